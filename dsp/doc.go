@@ -1,0 +1,35 @@
+// Package dsp is the numerical core of Pulsewright: pulse-compression
+// waveforms, weighting windows, matched and mismatched filters, figures of
+// merit, Doppler response and the ambiguity function.
+//
+// # Conventions
+//
+// Signals are complex baseband, []complex128, sampled at a rate fs in Hz.
+// Times are in seconds, frequencies in Hz, ranges in metres, powers in
+// linear units unless a name ends in DB (decibels, 10·log10 of a power
+// ratio). A transmitted pulse is a continuous-time complex envelope u(t)
+// defined for 0 ≤ t < τ and zero elsewhere; t is measured from the
+// leading edge. A Doppler shift f_d multiplies an echo by exp(+j2π·f_d·t):
+// f_d > 0 is a closing target.
+//
+// Correlation follows the filter's time axis: the compressed output of a
+// window x by a reference h is
+//
+//	y[k] = Σ_m x[k+m]·conj(h[m]),  k = 0 … len(x)−1,
+//
+// with x taken as zero beyond its end, so an echo whose leading edge is
+// at sample d peaks at y[d]. Fourier transforms are unnormalised, as in
+// gonum.org/v1/gonum/dsp/fourier.
+//
+// # Purity
+//
+// The package holds no globals, starts no goroutines, does no I/O and
+// never logs. Random draws take an explicit *rand.Rand so that results
+// are deterministic for a seed. Plans (types named …Plan or created by
+// New…) own scratch buffers, are reusable and are not safe for
+// concurrent use. Methods that fill a destination take it first and
+// allocate only when it is nil; a destination of the wrong length is a
+// programmer error and panics with a message prefixed "dsp: ". Invalid
+// user parameters are reported as errors by constructors; callers (the
+// scenarios package) validate user input before it reaches here.
+package dsp
