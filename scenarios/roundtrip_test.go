@@ -1,0 +1,187 @@
+package scenarios
+
+import (
+	"encoding/json"
+	"math"
+	"math/rand/v2"
+	"reflect"
+	"testing"
+)
+
+// randomScenario draws a scenario over every kind and optional field. It
+// may be invalid (derived limits); callers keep the valid ones.
+func randomScenario(r *rand.Rand) *Scenario {
+	pick := func(xs []string) string { return xs[r.IntN(len(xs))] }
+	u := func(lo, hi float64) float64 { return lo + (hi-lo)*r.Float64() }
+	s := &Scenario{Version: 1, Seed: r.Int64N(MaxSeed), Radar: defaultRadar(), Receiver: defaultReceiver()}
+	if r.IntN(2) == 0 {
+		s.Name = "scene ✓ " + string(rune('A'+r.IntN(26)))
+		s.Notes = "notes with \"quotes\" and\nnew lines"
+	}
+	w := &s.Waveform
+	w.Kind = pick(waveformKinds)
+	switch w.Kind {
+	case KindRect:
+		w.PulseWidthS = u(1e-7, 1e-4)
+	case KindLFM, KindNLFM:
+		w.PulseWidthS = u(1e-6, 1e-4)
+		w.BandwidthHz = u(1e6, 2e7)
+		w.Sweep = pick(sweeps)
+		if w.Kind == KindNLFM {
+			w.Sweep = ""
+			w.DesignSidelobeDB = math.Round(u(-60, -20))
+		}
+	case KindBarker:
+		w.Length = []int{2, 3, 4, 5, 7, 11, 13}[r.IntN(7)]
+	case KindMPS:
+		w.Length = 2 + r.IntN(MaxMPSLength-1)
+	case KindMLS:
+		w.Degree = 2 + r.IntN(9)
+	case KindFrank, KindP1:
+		m := 2 + r.IntN(10)
+		w.Length = m * m
+	case KindP2:
+		m := 2 * (1 + r.IntN(5))
+		w.Length = m * m
+	case KindP3, KindP4:
+		w.Length = 2 + r.IntN(200)
+	case KindZadoffChu:
+		w.Length, w.Root = 61, 1+r.IntN(60)
+	case KindCostas:
+		w.Length = []int{4, 6, 10, 12, 16, 18, 22}[r.IntN(7)]
+	case KindPhaseCode:
+		if r.IntN(2) == 0 {
+			w.Binary = "++-+-"
+		} else {
+			w.PhasesDeg = []float64{0, 90.5, -45, 180, r.Float64() * 360}
+		}
+	}
+	if w.Kind != KindRect && w.Kind != KindLFM && w.Kind != KindNLFM {
+		w.ChipS = u(5e-8, 2e-6)
+	}
+	if r.IntN(2) == 0 {
+		s.Radar.CarrierHz = u(1e9, 35e9)
+		s.Radar.PeakPowerW = u(1, 1e6)
+		s.Radar.Pulses = 1 + r.IntN(4)
+		s.Radar.BeamwidthAzDeg = u(0.5, 5)
+	}
+	s.Radar.SampleRateHz = w.Bandwidth() * []float64{2, 2, 3.5, 1}[r.IntN(4)]
+	s.Radar.PRIS = w.PulseWidth() * u(3, 20)
+	s.Radar.WindowStartM = math.Round(u(0, 2000))
+	s.Radar.WindowStopM = s.Radar.WindowStartM + u(100, C*s.Radar.PRIS/2)
+	if r.IntN(3) == 0 {
+		s.Radar.WindowStopM = C * s.Radar.PRIS / 2
+	}
+	if r.IntN(2) == 0 {
+		s.Receiver.Window = defaultWindow(pick(windowKinds))
+		if s.Receiver.Window.Kind == WindowTaylor {
+			s.Receiver.Window.NBar = 2 + r.IntN(8)
+		}
+	}
+	if r.IntN(2) == 0 {
+		s.Receiver.Detector = defaultDetector(pick(detectorKinds))
+		s.Receiver.Detector.PFA = math.Pow(10, -float64(2+r.IntN(10)))
+	}
+	if r.IntN(3) == 0 {
+		s.Receiver.DopplerWindow = defaultWindow(pick(windowKinds))
+	}
+	for i := range r.IntN(6) {
+		t := Target{ID: "t" + string(rune('a'+i)), Kind: pick(targetKinds), RangeRateMPS: math.Round(u(-300, 300))}
+		switch t.Kind {
+		case TargetPoint:
+			t.RangeM, t.RCSDBsm, t.Fluctuation = u(0, 5e4), u(-20, 40), pick(fluctuations)
+		case TargetExtended:
+			t.RangeStartM, t.RCSDBsmPerM = u(0, 5e4), u(-40, 0)
+			t.RangeStopM = t.RangeStartM + u(1, 3000)
+		case TargetVolume:
+			t.RangeStartM, t.ReflectivityDBZ = u(0, 5e4), u(0, 60)
+			t.RangeStopM = t.RangeStartM + u(1, 3000)
+			t.VelocitySpreadMPS = u(0, 5)
+		}
+		s.Targets = append(s.Targets, t)
+	}
+	if r.IntN(4) == 0 {
+		s.View = json.RawMessage(`{"zoom":[1,2],"plots":{"raw":true}}`)
+	}
+	return s
+}
+
+// TestRoundTripRandom is the property decode(encode(s)) == s over seeded
+// random valid scenarios, for the canonical JSON and for share links.
+func TestRoundTripRandom(t *testing.T) {
+	r := rand.New(rand.NewPCG(1, 1))
+	valid := 0
+	for i := 0; valid < 500 && i < 5000; i++ {
+		s := randomScenario(r)
+		if err := s.Validate(); err != nil {
+			continue
+		}
+		valid++
+		checkRoundTrip(t, s)
+	}
+	if valid < 500 {
+		t.Fatalf("only %d valid scenarios drawn; the generator is broken", valid)
+	}
+}
+
+func TestRoundTripDemos(t *testing.T) {
+	ds, err := Demos()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(ds) < 4 {
+		t.Fatalf("%d demos, want at least 4", len(ds))
+	}
+	for _, d := range ds {
+		t.Run(d.Name, func(t *testing.T) { checkRoundTrip(t, d.Scenario) })
+	}
+}
+
+func checkRoundTrip(t *testing.T, s *Scenario) {
+	t.Helper()
+	data, err := Canonical(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := Decode(data)
+	if err != nil {
+		t.Fatalf("decode canonical %s: %v", data, err)
+	}
+	if !reflect.DeepEqual(got, s) {
+		t.Fatalf("canonical round trip differs:\n got %+v\nwant %+v\njson %s", got, s, data)
+	}
+	again, _ := Canonical(got)
+	if string(again) != string(data) {
+		t.Fatalf("canonical form not stable:\n%s\n%s", data, again)
+	}
+	link, err := Link(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fromLink, err := ParseLink("http://127.0.0.1:8750" + link)
+	if err != nil {
+		t.Fatalf("parse link: %v", err)
+	}
+	if !reflect.DeepEqual(fromLink, s) {
+		t.Fatalf("link round trip differs:\n got %+v\nwant %+v", fromLink, s)
+	}
+}
+
+// TestCanonicalOmitsDefaults checks the canonical form of a minimal
+// scenario against the format document: defaults omitted, order kept.
+func TestCanonicalOmitsDefaults(t *testing.T) {
+	in := `{"waveform":{"bandwidth_hz":1e6,"kind":"lfm","pulse_width_s":1e-5,"sweep":"up"},"seed":1,"version":1,
+		"receiver":{"filter":"matched","window":{"kind":"none"},"detector":{"kind":"ca_cfar","pfa":1e-6}},"view":{}}`
+	s, err := Decode([]byte(in))
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, _ := Canonical(s)
+	want := `{"version":1,"waveform":{"kind":"lfm","pulse_width_s":0.00001,"bandwidth_hz":1000000}}`
+	if string(got) != want {
+		t.Fatalf("canonical:\n got %s\nwant %s", got, want)
+	}
+	if s.Radar.SampleRateHz != 2e6 || s.Radar.WindowStopM != C*1e-3/2 || s.Receiver.Detector.TrainingCells != 16 {
+		t.Fatalf("derived defaults not filled: %+v", s.Radar)
+	}
+}
