@@ -1,0 +1,114 @@
+// Command pulsewright is the Pulsewright workbench and its command line:
+// it serves the live page, and evaluates, checks and links scenarios.
+//
+// Run "pulsewright help" for the subcommands.
+package main
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"os/signal"
+	"syscall"
+
+	"github.com/pulsewright/pulsewright/scenarios"
+)
+
+// Exit codes.
+const (
+	exitOK      = 0
+	exitFailure = 1 // I/O and internal errors
+	exitInvalid = 2 // bad scenario, usage or flags
+)
+
+const usage = `pulsewright: a pulse-compression workbench for radar waveform design.
+
+Usage:
+  pulsewright [serve] [flags]        run the workbench (web page) on a demo scenario
+  pulsewright check SCENARIO         validate; print a canonical summary
+  pulsewright link SCENARIO          print the scenario's share link
+  pulsewright eval SCENARIO          print the report JSON (--format text for a table)
+  pulsewright demos                  list the built-in scenarios
+  pulsewright help                   show this text
+
+SCENARIO is a file path, - for standard input, a share link (a whole URL or
+just its #s= part), or demo:NAME for a built-in scene.
+
+Exit status: 0 success, 1 I/O or internal error, 2 invalid scenario or usage.
+`
+
+func main() {
+	ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+	code := run(ctx, os.Args[1:], os.Stdin, os.Stdout, os.Stderr)
+	stop()
+	os.Exit(code)
+}
+
+// run executes one command line and returns the exit status.
+func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer) int {
+	cmd := "serve"
+	if len(args) > 0 && (len(args[0]) == 0 || args[0][0] != '-') {
+		cmd, args = args[0], args[1:]
+	}
+	env := &env{ctx: ctx, stdin: stdin, stdout: stdout, stderr: stderr}
+	var err error
+	switch cmd {
+	case "check":
+		err = env.check(args)
+	case "link":
+		err = env.link(args)
+	case "eval":
+		err = env.eval(args)
+	case "demos":
+		err = env.demos(args)
+	case "serve":
+		err = env.serve(args)
+	case "help", "-h", "--help":
+		fmt.Fprint(stdout, usage)
+		return exitOK
+	default:
+		fmt.Fprintf(stderr, "pulsewright: unknown command %q\n\n%s", cmd, usage)
+		return exitInvalid
+	}
+	return env.exit(err)
+}
+
+// env carries the streams of one invocation.
+type env struct {
+	ctx    context.Context
+	stdin  io.Reader
+	stdout io.Writer
+	stderr io.Writer
+}
+
+// usageError is a mistake on the command line.
+type usageError struct{ msg string }
+
+func (e usageError) Error() string { return e.msg }
+
+// exit prints err, if any, and maps it to an exit status.
+func (e *env) exit(err error) int {
+	var ue usageError
+	var ve *scenarios.ValidationError
+	switch {
+	case err == nil:
+		return exitOK
+	case errors.As(err, &ue):
+		fmt.Fprintf(e.stderr, "pulsewright: %s\n\nRun 'pulsewright help' for usage.\n", ue.msg)
+		return exitInvalid
+	case errors.As(err, &ve):
+		fmt.Fprintf(e.stderr, "pulsewright: invalid scenario, %d problem(s):\n", len(ve.Fields))
+		for _, f := range ve.Fields {
+			fmt.Fprintf(e.stderr, "  %s\n", f.Error())
+		}
+		return exitInvalid
+	case errors.Is(err, scenarios.ErrInvalid), errors.Is(err, scenarios.ErrNotFound):
+		fmt.Fprintf(e.stderr, "pulsewright: %v\n", err)
+		return exitInvalid
+	default:
+		fmt.Fprintf(e.stderr, "pulsewright: %v\n", err)
+		return exitFailure
+	}
+}

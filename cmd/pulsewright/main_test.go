@@ -1,0 +1,110 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// runCmd runs the program with args and stdin and returns its exit status
+// and output.
+func runCmd(t *testing.T, stdin string, args ...string) (int, string, string) {
+	t.Helper()
+	var out, errb bytes.Buffer
+	code := run(context.Background(), args, strings.NewReader(stdin), &out, &errb)
+	return code, out.String(), errb.String()
+}
+
+func TestCheckForms(t *testing.T) {
+	dir := t.TempDir()
+	file := filepath.Join(dir, "s.json")
+	doc := `{"version":1,"name":"file scene","waveform":{"kind":"p4","length":64,"chip_s":1e-7}}`
+	if err := os.WriteFile(file, []byte(doc), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, link, _ := runCmd(t, "", "link", file)
+	if code != 0 {
+		t.Fatalf("link exit %d", code)
+	}
+	lines := strings.Split(strings.TrimSpace(link), "\n")
+	last := lines[len(lines)-1]
+	if !strings.HasPrefix(last, defaultBase+"/#s=") {
+		t.Fatalf("link line %q", last)
+	}
+	frag := last[strings.Index(last, "#"):]
+	for _, ref := range []string{file, "-", last, frag, "demo:closing-jet"} {
+		code, out, errs := runCmd(t, doc, "check", ref)
+		if code != 0 {
+			t.Fatalf("check %q: exit %d, %s", ref, code, errs)
+		}
+		if !strings.HasPrefix(out, "valid") || !strings.Contains(out, "canonical  {\"version\":1") {
+			t.Fatalf("check %q summary:\n%s", ref, out)
+		}
+	}
+}
+
+func TestCheckInvalid(t *testing.T) {
+	code, out, errs := runCmd(t, `{"version":1,"waveform":{"kind":"lfm","pulse_width_s":-1,"bandwidth_hz":1e6},"seed":-2}`, "check", "-")
+	if code != exitInvalid {
+		t.Fatalf("exit %d, want %d", code, exitInvalid)
+	}
+	if out != "" {
+		t.Errorf("stdout not empty: %q", out)
+	}
+	for _, want := range []string{"2 problem(s)", "waveform.pulse_width_s: -1 must be above 0", "seed: -2 is outside the valid range"} {
+		if !strings.Contains(errs, want) {
+			t.Errorf("stderr lacks %q:\n%s", want, errs)
+		}
+	}
+}
+
+func TestCheckErrors(t *testing.T) {
+	tests := []struct {
+		args []string
+		code int
+		want string
+	}{
+		{[]string{"check"}, exitInvalid, "check takes one SCENARIO"},
+		{[]string{"check", "demo:nope"}, exitInvalid, `demo "nope": not found (known: closing-jet`},
+		{[]string{"check", "/no/such/file.json"}, exitFailure, "open scenario"},
+		{[]string{"check", "#s=!!"}, exitInvalid, "not base64url"},
+		{[]string{"frobnicate"}, exitInvalid, `unknown command "frobnicate"`},
+		{[]string{"link", "demo:rocky-coast", "--bogus"}, exitInvalid, "flag provided but not defined: -bogus"},
+	}
+	for _, tt := range tests {
+		code, _, errs := runCmd(t, "", tt.args...)
+		if code != tt.code || !strings.Contains(errs, tt.want) {
+			t.Errorf("%v: exit %d stderr %q; want %d and %q", tt.args, code, errs, tt.code, tt.want)
+		}
+	}
+}
+
+func TestDemosList(t *testing.T) {
+	code, out, _ := runCmd(t, "", "demos")
+	if code != 0 || strings.Count(out, "demo:") < 4 {
+		t.Fatalf("exit %d, output:\n%s", code, out)
+	}
+}
+
+// TestCheckHostileInputFast feeds a stream that claims a gigabyte and a
+// deeply nested document; both must be refused with bounded allocation.
+func TestCheckHostileInput(t *testing.T) {
+	deep := `{"version":1,"view":` + strings.Repeat("[", 200000) + strings.Repeat("]", 200000) + "}"
+	for name, in := range map[string]string{
+		"1 GB claim": strings.Repeat(" ", 5<<20) + "{}",
+		"deep":       deep,
+	} {
+		allocs := testing.AllocsPerRun(1, func() {
+			code, _, _ := runCmd(t, in, "check", "-")
+			if code != exitInvalid {
+				t.Errorf("%s: exit %d", name, code)
+			}
+		})
+		if allocs > 2000 {
+			t.Errorf("%s: %v allocations", name, allocs)
+		}
+	}
+}
