@@ -1,0 +1,90 @@
+package scenarios
+
+// ReportVersion is the version of the report format.
+const ReportVersion = 1
+
+// Target statuses (report-format.md).
+const (
+	StatusDetected    = "detected"
+	StatusMasked      = "masked"
+	StatusBelowNoise  = "below_noise"
+	StatusEclipsed    = "eclipsed"
+	StatusOutOfWindow = "out_of_window"
+)
+
+// Report is what the tool concludes about one scenario: the report format
+// of shared/spec/report-format.md, version 1. A quantity that does not
+// apply is a nil pointer and is left out of the JSON.
+type Report struct {
+	Version  int            `json:"version"`
+	Scenario string         `json:"scenario"`
+	Waveform WaveformReport `json:"waveform"`
+	Targets  []TargetReport `json:"targets"`
+	Warnings []string       `json:"warnings"`
+}
+
+// WaveformReport holds the figures of the compression filter's response to
+// an ideal zero-Doppler echo.
+type WaveformReport struct {
+	Kind                   string   `json:"kind"`
+	PulseWidthS            float64  `json:"pulse_width_s"`
+	BandwidthHz            float64  `json:"bandwidth_hz"`
+	TimeBandwidth          float64  `json:"time_bandwidth"`
+	CompressionGainDB      float64  `json:"compression_gain_db"`
+	PSLRDB                 float64  `json:"pslr_db"`
+	ISLRDB                 float64  `json:"islr_db"`
+	Mainlobe3dBM           float64  `json:"mainlobe_3db_m"`
+	MismatchLossDB         float64  `json:"mismatch_loss_db"`
+	BlindRangeM            float64  `json:"blind_range_m"`
+	UnambiguousRangeM      float64  `json:"unambiguous_range_m"`
+	UnambiguousVelocityMPS float64  `json:"unambiguous_velocity_mps"`
+	DopplerResolutionHz    *float64 `json:"doppler_resolution_hz,omitempty"`   // pulse trains only
+	VelocityResolutionMPS  *float64 `json:"velocity_resolution_mps,omitempty"` // pulse trains only
+}
+
+// TargetReport says whether one target is seen, and why.
+type TargetReport struct {
+	ID                   string   `json:"id"`
+	RangeM               float64  `json:"range_m"`
+	SNRDB                float64  `json:"snr_db"`
+	DopplerHz            float64  `json:"doppler_hz"`
+	DopplerLossDB        float64  `json:"doppler_loss_db"`
+	RangeShiftM          float64  `json:"range_shift_m"`
+	Status               string   `json:"status"`
+	MaskedBy             string   `json:"masked_by,omitempty"`
+	MarginDB             *float64 `json:"margin_db,omitempty"`
+	Reason               string   `json:"reason"`
+	SNRIntegratedDB      *float64 `json:"snr_integrated_db,omitempty"`       // pulse trains only
+	ApparentRangeRateMPS *float64 `json:"apparent_range_rate_mps,omitempty"` // pulse trains only
+	BlindSpeed           *bool    `json:"blind_speed,omitempty"`             // pulse trains only
+}
+
+// Result is a report with the series the page plots.
+type Result struct {
+	Report Report
+	Series Series
+}
+
+// Series are the plot data of one evaluation over the receive window, one
+// value per range sample: sample k lies at range RangeM0 + k·RangeStepM.
+// Powers are in dB relative to the thermal noise power at the compression
+// filter's output, so the noise floor is 0 dB and a target's peak height
+// is its SNR.
+type Series struct {
+	RangeM0     float64      // m
+	RangeStepM  float64      // m, c/(2·fs)
+	Echo        []complex128 // raw receive window, echoes plus noise, scaled so that noise has unit power per sample
+	ProfileDB   []float64    // compressed output power, echoes plus noise, dB re output noise
+	CleanDB     []float64    // compressed output power of the noise-free scene, dB re output noise
+	ThresholdDB []float64    // detection threshold, dB re output noise (detector level or scene level, the larger)
+	NoiseDB     float64      // the noise floor, dB re output noise (0)
+	Response    Response     // the waveform alone
+}
+
+// Response is the zero-Doppler compressed response of the waveform alone,
+// interpolated to at least 8 points per 1/B, normalised to 0 dB at its
+// peak, on a range axis centred on the peak.
+type Response struct {
+	RangeM []float64 // m, negative before the peak
+	DB     []float64 // dB re peak, floored at −120 dB
+}
