@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strconv"
 	"time"
 
 	"github.com/gorilla/websocket"
@@ -13,18 +14,26 @@ import (
 	"github.com/pulsewright/pulsewright/scenarios"
 )
 
-// evalCache keeps the last evaluations of a session, so that a view
-// change re-decimates without evaluating again.
+// evalCache is compute's memory: the last good scenario and pin, their
+// evaluations, and which edits it has taken, so that a view change
+// re-decimates without evaluating again and a rejected edit leaves the
+// last good scenario in place.
 type evalCache struct {
-	scn    *scenarios.Scenario
+	scnSeq, pinSeq uint64 // the edits taken last
+
+	scn    *scenarios.Scenario // the last good scenario
 	res    *scenarios.Result
-	link   string
-	pin    *scenarios.Scenario
-	pinRes *scenarios.Result
+	report []byte // encoded report
+	link   []byte // encoded link string
+
+	pin     *scenarios.Scenario // nil when unpinned
+	pinRes  *scenarios.Result
+	pinRept []byte
 }
 
 // compute evaluates the newest state the reader posted and puts its frame
-// for the writer. A computation the reader cancels as stale is dropped.
+// for the writer. A computation the reader cancels as stale is dropped;
+// one that finishes is sent even if a newer state waits (see starveAfter).
 func (ss *session) compute(ctx context.Context) {
 	var cache evalCache
 	for {
@@ -33,9 +42,6 @@ func (ss *session) compute(ctx context.Context) {
 		case <-ctx.Done():
 			return
 		case w = <-ss.work.ch:
-		}
-		if w.scn == nil {
-			continue // a view or pin before the first scenario: nothing to show yet
 		}
 		runCtx, cancel := context.WithCancel(ctx)
 		ss.setRun(w.gen, cancel)
@@ -49,50 +55,98 @@ func (ss *session) compute(ctx context.Context) {
 		case stale:
 			ss.log.Debug("computation superseded", "id", w.id)
 		case err != nil:
-			ss.errs.put(ss.evalError(w.id, err))
-		default:
+			ss.errs.put(ss.evalError(err))
+		case f != nil:
 			ss.frames.put(f)
+			ss.framed()
 		}
 	}
 }
 
-// evaluate makes the frame of one state.
+// editError is a failed edit with the id of its message.
+type editError struct {
+	id  int64
+	pin bool // the pinned scenario failed
+	err error
+}
+
+func (e *editError) Error() string { return e.err.Error() }
+func (e *editError) Unwrap() error { return e.err }
+
+// evaluate makes the frame of one state; nil when there is nothing to
+// show yet.
 func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, error) {
 	start := time.Now()
-	if w.scn != c.scn {
-		res, err := ss.srv.eval(ctx, w.scn)
+	if w.scn.seq != c.scnSeq {
+		c.scnSeq = w.scn.seq // taken, good or bad: a bad one is reported once
+		sc, err := scenarios.Decode(w.scn.raw)
 		if err != nil {
+			return nil, &editError{id: w.scn.id, err: err}
+		}
+		res, err := ss.srv.eval(ctx, sc)
+		if err != nil {
+			c.scnSeq = 0 // evaluate again next time, unless a newer edit comes
+			return nil, &editError{id: w.scn.id, err: err}
+		}
+		report, err := json.Marshal(&res.Report)
+		if err != nil {
+			return nil, &editError{id: w.scn.id, err: fmt.Errorf("encode report: %w", err)}
+		}
+		link, err := scenarios.Link(sc)
+		if err != nil {
+			return nil, &editError{id: w.scn.id, err: err}
+		}
+		c.scn, c.res, c.report, c.link = sc, res, report, []byte(strconv.Quote(link))
+	}
+	if w.pin.seq != c.pinSeq {
+		c.pinSeq = w.pin.seq
+		if err := ss.takePin(ctx, w.pin, c); err != nil {
 			return nil, err
 		}
-		link, err := scenarios.Link(w.scn)
-		if err != nil {
-			return nil, err
-		}
-		c.scn, c.res, c.link = w.scn, res, link
 	}
-	var ref *scenarios.Result
-	if w.pin != nil {
-		if w.pin != c.pin {
-			res, err := ss.srv.eval(ctx, w.pin)
-			if err != nil {
-				return nil, fmt.Errorf("pinned scenario: %w", err)
-			}
-			c.pin, c.pinRes = w.pin, res
-		}
-		ref = c.pinRes
+	if c.res == nil {
+		return nil, nil // a view or pin before the first good scenario
 	}
-	f := &frame{id: w.id, report: &c.res.Report, link: c.link, charts: buildCharts(c.res, ref, w.view)}
-	if ref != nil {
-		f.reference = &ref.Report
+	f := &frame{id: w.id, report: c.report, link: c.link, charts: buildCharts(c.res, c.pinRes, w.view)}
+	if c.pin != nil {
+		f.reference = c.pinRept
 	}
 	f.computeMS = math.Round(float64(time.Since(start).Microseconds())/10) / 100
 	return f, nil
 }
 
-// evalError is the message for an evaluation that failed. Faults of the
+// takePin decodes and evaluates a new pin, or unpins.
+func (ss *session) takePin(ctx context.Context, p edit, c *evalCache) error {
+	if p.raw == nil {
+		c.pin, c.pinRes, c.pinRept = nil, nil, nil
+		return nil
+	}
+	sc, err := scenarios.Decode(p.raw)
+	if err != nil {
+		return &editError{p.id, true, fmt.Errorf("pinned scenario: %w", err)}
+	}
+	res, err := ss.srv.eval(ctx, sc)
+	if err != nil {
+		c.pinSeq = 0
+		return &editError{p.id, true, fmt.Errorf("pinned scenario: %w", err)}
+	}
+	report, err := json.Marshal(&res.Report)
+	if err != nil {
+		return &editError{p.id, true, fmt.Errorf("encode pinned report: %w", err)}
+	}
+	c.pin, c.pinRes, c.pinRept = sc, res, report
+	return nil
+}
+
+// evalError is the message for an edit that failed. Faults of the
 // scenario go to the page as they are; internal ones are logged and
 // reported briefly.
-func (ss *session) evalError(id int64, err error) *errorMsg {
+func (ss *session) evalError(err error) *errorMsg {
+	var id int64
+	var ee *editError
+	if errors.As(err, &ee) {
+		id = ee.id
+	}
 	if errors.Is(err, scenarios.ErrInvalid) || errors.Is(err, scenarios.ErrTooLarge) {
 		return rejection(id, err)
 	}
@@ -100,19 +154,45 @@ func (ss *session) evalError(id int64, err error) *errorMsg {
 	return rejection(id, errors.New("internal error while evaluating the scenario"))
 }
 
-// message renders a frame for a page that holds the chart structures in
+// encode renders a frame for a page that holds the chart structures in
 // sent: a chart whose structure key is unchanged gets a data-only merge.
-func (f *frame) message(sent map[string]string) *frameMsg {
-	m := &frameMsg{Type: MsgFrame, ID: f.id, Report: f.report, Link: f.link, Reference: f.reference, ComputeMS: f.computeMS,
-		Charts: make(map[string]chartMsg, len(f.charts))}
+// The bytes are assembled by hand around pieces encoded earlier, in the
+// shape of frameMsg, so that the plot data is not scanned again.
+func (f *frame) encode(sent map[string]string) []byte {
+	size := len(f.report) + len(f.reference) + len(f.link) + 128
 	for _, c := range f.charts {
-		if sent[c.name] == c.key {
-			m.Charts[c.name] = chartMsg{Replace: false, Option: c.merge()}
-		} else {
-			m.Charts[c.name] = chartMsg{Replace: true, Option: c.option}
-		}
+		size += len(c.option) + 64
 	}
-	return m
+	b := make([]byte, 0, size)
+	b = append(b, `{"type":"frame","id":`...)
+	b = strconv.AppendInt(b, f.id, 10)
+	b = append(b, `,"report":`...)
+	b = append(b, f.report...)
+	b = append(b, `,"link":`...)
+	b = append(b, f.link...)
+	b = append(b, `,"charts":{`...)
+	for i, c := range f.charts {
+		if i > 0 {
+			b = append(b, ',')
+		}
+		b = strconv.AppendQuote(b, c.name)
+		if sent[c.name] == c.key {
+			b = append(b, `:{"replace":false,"option":`...)
+			b = c.appendMerge(b)
+		} else {
+			b = append(b, `:{"replace":true,"option":`...)
+			b = append(b, c.option...)
+		}
+		b = append(b, '}')
+	}
+	b = append(b, '}')
+	if f.reference != nil {
+		b = append(b, `,"reference":`...)
+		b = append(b, f.reference...)
+	}
+	b = append(b, `,"compute_ms":`...)
+	b = strconv.AppendFloat(b, f.computeMS, 'f', -1, 64)
+	return append(b, '}')
 }
 
 // writeLoop is the session's only writer. It sends the newest frame and
@@ -132,7 +212,7 @@ func (ss *session) writeLoop(ctx context.Context) {
 			ss.conn.WriteControl(websocket.CloseMessage, websocket.FormatCloseMessage(code, text), time.Now().Add(writeWait))
 			return
 		case f := <-ss.frames.ch:
-			if err := ss.write(f.message(sent)); err != nil {
+			if err := ss.writeBytes(f.encode(sent)); err != nil {
 				return
 			}
 			for _, c := range f.charts {
@@ -156,14 +236,17 @@ func (ss *session) writeLoop(ctx context.Context) {
 	}
 }
 
-// write sends one JSON message under a write deadline. A message that
-// cannot be encoded is logged and replaced by an error message.
-func (ss *session) write(v any) error {
-	data, err := json.Marshal(v)
+// write sends one error message.
+func (ss *session) write(m *errorMsg) error {
+	data, err := json.Marshal(m)
 	if err != nil {
-		ss.log.Error("encode message", "err", err)
-		data, _ = json.Marshal(&errorMsg{Type: MsgError, Error: "internal error: the result could not be encoded", Fields: []scenarios.FieldError{}})
+		panic("server: error message not encodable: " + err.Error()) // strings only
 	}
+	return ss.writeBytes(data)
+}
+
+// writeBytes sends one text message under a write deadline.
+func (ss *session) writeBytes(data []byte) error {
 	ss.conn.SetWriteDeadline(time.Now().Add(writeWait))
 	return ss.conn.WriteMessage(websocket.TextMessage, data)
 }
