@@ -11,9 +11,9 @@ import (
 // the definitions of Harris (1978). Frequencies are in DFT bins of the
 // N-point window (1 bin = fs/N).
 type WindowStats struct {
-	CoherentGain float64 // Σw/N (1 for the rectangle)
-	ENBW         float64 // equivalent noise bandwidth NΣw²/(Σw)², bins
-	SNRLossDB    float64 // 10·log10(ENBW), dB ≥ 0 (Harris's processing loss)
+	CoherentGain      float64 // Σw/N (1 for the rectangle)
+	ENBW              float64 // equivalent noise bandwidth NΣw²/(Σw)², bins
+	SNRLossDB         float64 // 10·log10(ENBW), dB ≥ 0 (Harris's processing loss)
 	HighestSidelobeDB float64 // highest sidelobe of |W(f)| relative to |W(0)|, dB (negative)
 	ScallopLossDB     float64 // −20·log10|W(½ bin)/W(0)|, dB
 	WorstCaseLossDB   float64 // ScallopLossDB + SNRLossDB, dB
