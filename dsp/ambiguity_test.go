@@ -141,10 +141,9 @@ func TestAmbiguityLFMRidge(t *testing.T) {
 		nus = append(nus, nu)
 	}
 	chi := Ambiguity(nil, u, fs, delays, nus)
-	for i, row := range chi {
+	for _, row := range chi {
 		p, _ := refinePeak(row, argmax(row), true)
 		taus = append(taus, (p-float64(delays))/fs)
-		_ = i
 	}
 	// Least-squares slope ν/τ through the origin.
 	var sxy, sxx float64
