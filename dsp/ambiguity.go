@@ -17,28 +17,113 @@ const dopplerUp = 8
 // (20·log10(1−|fd|/B) in magnitude for a long LFM pulse, with the sign
 // reversed) and shift is the peak time minus the zero-Doppler peak time
 // in s: negative (earlier) for an up-chirp and a positive Doppler. Both
-// responses are interpolated band-limitedly at 8 points per sample and
-// their peaks refined with a parabola. fs is the sample rate in Hz. It
-// panics if pulse or ref is empty or fs ≤ 0.
+// responses are interpolated band-limitedly at 8 points per sample near
+// their peaks and refined with a parabola. fs is the sample rate in Hz.
+// It panics if pulse or ref is empty or fs ≤ 0. For many Doppler shifts
+// of one pulse, use a DopplerPlan.
 func DopplerResponse(pulse, ref []complex128, fs, fd float64) (lossDB, shift float64) {
+	return NewDopplerPlan(pulse, ref, fs).Response(fd)
+}
+
+// DopplerPlan measures the Doppler response of one pulse and reference at
+// many Doppler shifts, reusing its FFT plans and the zero-Doppler peak. It
+// is not safe for concurrent use.
+type DopplerPlan struct {
+	pulse, ref []complex128
+	fs         float64
+	corr       *Correlator
+	fft        *fourier.CmplxFFT
+	in, z      []complex128 // correlation input and output, len(pulse)+len(ref)−1
+	spec       []complex128 // spectrum of the zero-padded correlation
+	mag        []float64
+	p0, v0     float64 // zero-Doppler peak position (samples) and magnitude
+}
+
+// NewDopplerPlan prepares DopplerResponse for pulse and ref at rate fs.
+// It panics as DopplerResponse does.
+func NewDopplerPlan(pulse, ref []complex128, fs float64) *DopplerPlan {
 	if len(pulse) == 0 || len(ref) == 0 || !(fs > 0) {
 		panic("dsp: doppler response needs a pulse, a reference and fs > 0")
 	}
-	peak := func(x []complex128) (pos, val float64) {
-		fine := interpolate(fullCorrelation(x, ref, nil), dopplerUp)
-		m := make([]float64, len(fine))
-		for i, v := range fine {
-			m[i] = cmplx.Abs(v)
-		}
-		return refinePeak(m, argmax(m), true)
+	n := len(pulse) + len(ref) - 1
+	l := fftSize(n + n/4 + 16)
+	p := &DopplerPlan{
+		pulse: pulse, ref: ref, fs: fs,
+		corr: NewCorrelator(ref, n),
+		fft:  fourier.NewCmplxFFT(l),
+		in:   make([]complex128, n),
+		z:    make([]complex128, n),
+		spec: make([]complex128, l),
+		mag:  make([]float64, 2*dopplerUp+1),
 	}
-	p0, v0 := peak(pulse)
-	echo := make([]complex128, len(pulse))
+	p.p0, p.v0 = p.peak(pulse, 0)
+	return p
+}
+
+// Response returns the peak loss (dB, ≥ 0 up to rounding) and the peak
+// time shift (s) at Doppler shift fd in Hz.
+func (p *DopplerPlan) Response(fd float64) (lossDB, shift float64) {
+	if fd == 0 {
+		return 0, 0
+	}
+	p1, v1 := p.peak(p.pulse, fd)
+	return -20 * math.Log10(v1/p.v0), (p1 - p.p0) / dopplerUp / p.fs
+}
+
+// peak compresses pulse shifted by fd and returns the peak position in
+// units of 1/dopplerUp samples on the full-correlation grid, and its
+// magnitude, from the band-limited interpolation near the largest sample.
+func (p *DopplerPlan) peak(pulse []complex128, fd float64) (pos, val float64) {
+	nr := len(p.ref) - 1
+	clear(p.in[:nr])
 	for n, v := range pulse {
-		echo[n] = v * expj(2*math.Pi*fd*float64(n)/fs)
+		p.in[nr+n] = v * expj(2*math.Pi*fd*float64(n)/p.fs)
 	}
-	p1, v1 := peak(echo)
-	return -20 * math.Log10(v1/v0), (p1 - p0) / dopplerUp / fs
+	p.corr.Apply(p.z, p.in)
+	k := 0
+	best := 0.0
+	for i, v := range p.z {
+		if a := real(v)*real(v) + imag(v)*imag(v); a > best {
+			best, k = a, i
+		}
+	}
+	clear(p.spec)
+	copy(p.spec, p.z)
+	p.fft.Coefficients(p.spec, p.spec)
+	for i := range p.mag {
+		t := float64(k) + float64(i-dopplerUp)/dopplerUp
+		p.mag[i] = cmplx.Abs(p.at(t))
+	}
+	j := argmax(p.mag)
+	pos, val = refinePeak(p.mag, j, true)
+	return float64(k*dopplerUp) + pos - dopplerUp, val
+}
+
+// at evaluates the band-limited interpolation of the correlation at
+// fractional sample t, as interpolate does (Nyquist bin split between
+// ±fs/2), by direct summation of its spectrum.
+func (p *DopplerPlan) at(t float64) complex128 {
+	l := len(p.spec)
+	h := (l + 1) / 2
+	neg := l - h
+	var acc complex128
+	if l%2 == 0 {
+		neg--
+		acc += p.spec[h] * complex(math.Cos(math.Pi*t), 0)
+	}
+	step := expj(2 * math.Pi * t / float64(l))
+	w := complex(1, 0)
+	for k := 0; k < h; k++ {
+		acc += p.spec[k] * w
+		w *= step
+	}
+	back := cmplx.Conj(step)
+	w = back
+	for k := 1; k <= neg; k++ {
+		acc += p.spec[l-k] * w
+		w *= back
+	}
+	return acc / complex(float64(l), 0)
 }
 
 // Ambiguity fills dst with the magnitude of the normalised ambiguity

@@ -17,7 +17,21 @@ func toDB(p float64) float64 { return math.Max(dsp.DB(p), dbFloor) }
 // (as Decode returns it). It checks ctx between stages and returns
 // ctx.Err() when cancelled. The same scenario gives identical results.
 func Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
-	m, err := newModel(s)
+	return new(Engine).Evaluate(ctx, s)
+}
+
+// Engine evaluates a sequence of scenarios, reusing the waveform, pulse
+// and reference of the previous one when they did not change: the common
+// case while a user drags a target. The zero Engine is ready to use. An
+// Engine is not safe for concurrent use.
+type Engine struct {
+	last *model
+}
+
+// Evaluate is the package function Evaluate with reuse of the previous
+// scenario's waveform and reference.
+func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
+	m, err := newModel(s, e.last)
 	if err != nil {
 		return nil, err
 	}
@@ -38,13 +52,17 @@ func Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	}
 	res.Series = sc.series()
 	res.Report.Warnings = append([]string{}, m.warnings...)
-	return res, ctx.Err()
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	e.last = m
+	return res, nil
 }
 
 // Analyse computes the report alone, without plot series or suggestions:
 // the cheaper path for sweeps.
 func Analyse(ctx context.Context, s *Scenario) (*Report, error) {
-	m, err := newModel(s)
+	m, err := newModel(s, nil)
 	if err != nil {
 		return nil, err
 	}
@@ -59,7 +77,28 @@ func Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 }
 
 func (m *model) figures() dsp.Figures {
-	return dsp.ResponseFigures(m.pulse, m.ref, m.lead, m.fs, m.s.Waveform.Bandwidth())
+	if m.fig == nil {
+		f := dsp.ResponseFigures(m.pulse, m.ref, m.lead, m.fs, m.s.Waveform.Bandwidth())
+		m.fig = &f
+	}
+	return *m.fig
+}
+
+// doppler returns the peak loss (dB) and time shift (s) of the compressed
+// response at Doppler shift fd, cached per model.
+func (m *model) doppler(fd float64) dopFigure {
+	if m.dop == nil {
+		m.dop = make(map[float64]dopFigure)
+	}
+	d, ok := m.dop[fd]
+	if !ok {
+		if m.dopPlan == nil {
+			m.dopPlan = dsp.NewDopplerPlan(m.pulse, m.ref, m.fs)
+		}
+		d.lossDB, d.shift = m.dopPlan.Response(fd)
+		m.dop[fd] = d
+	}
+	return d
 }
 
 func (m *model) waveformReport() WaveformReport {
@@ -122,20 +161,14 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 	fig := m.figures()
 	budget := suggestionBudget(m)
 	out := make([]TargetReport, len(sc.targets))
-	type dop struct{ loss, shift float64 }
-	dopCache := map[float64]dop{}
 	for j, g := range sc.targets {
 		v := sc.judge(j, cf)
-		d, ok := dopCache[g.fd]
-		if !ok {
-			d.loss, d.shift = dsp.DopplerResponse(m.pulse, m.ref, m.fs, g.fd)
-			dopCache[g.fd] = d
-		}
+		d := m.doppler(g.fd)
 		tr := TargetReport{
 			ID:            g.t.ID,
 			RangeM:        g.rangeM,
 			DopplerHz:     g.fd,
-			DopplerLossDB: d.loss,
+			DopplerLossDB: d.lossDB,
 			RangeShiftM:   d.shift * C / 2,
 			Status:        v.status,
 			MarginDB:      v.margin(),
@@ -143,13 +176,13 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		if g.t.Kind != TargetPoint && v.peakK >= 0 {
 			tr.RangeM = m.rangeOf(float64(v.peakK))
 		}
-		tr.SNRDB = sc.snrDB(g, tr.RangeM, fig, d.loss)
+		tr.SNRDB = sc.snrDB(g, tr.RangeM, fig, d.lossDB)
 		if v.culprit >= 0 {
 			tr.MaskedBy = sc.targets[v.culprit].t.ID
 		}
 		tr.Reason = sc.reason(g, v, tr, cf)
 		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && budget > 0 && ctx.Err() == nil {
-			if hint := suggestFix(ctx, m.s, j, v, &budget); hint != "" {
+			if hint := suggestFix(ctx, m, j, v, &budget); hint != "" {
 				tr.Reason += " " + hint
 			}
 		}

@@ -193,7 +193,7 @@ func TestNoiseFloor(t *testing.T) {
 		if math.Abs(mean-1) > tol {
 			t.Errorf("window %s: mean output noise %.3f, want 1 ± %.3f", w, mean, tol)
 		}
-		m, _ := newModel(mustDecode(t, doc))
+		m, _ := newModel(mustDecode(t, doc), nil)
 		if want := dsp.Boltzmann * dsp.T0 * dsp.FromDB(3) * 4e7; math.Abs(m.noiseW-want) > 1e-9*want {
 			t.Errorf("noise power %v W, want k·T0·F·fs = %v", m.noiseW, want)
 		}

@@ -24,6 +24,30 @@ type model struct {
 	noiseW    float64      // input noise power k·T0·F·fs, W
 	unambM    float64      // unambiguous range c·PRI/2, m
 	warnings  []string
+	// refWarnings are the warnings of building the reference, carried
+	// over when a later model reuses it.
+	refWarnings []string
+	fig         *dsp.Figures          // figures of the reference, computed once
+	dop         map[float64]dopFigure // Doppler loss and shift by Doppler shift
+	dopPlan     *dsp.DopplerPlan
+}
+
+// dopFigure is the Doppler response of the reference at one Doppler shift.
+type dopFigure struct{ lossDB, shift float64 }
+
+// sameWaveform reports whether two waveform specs describe the same pulse.
+func sameWaveform(a, b Waveform) bool {
+	if a.Kind != b.Kind || a.PulseWidthS != b.PulseWidthS || a.BandwidthHz != b.BandwidthHz || a.Sweep != b.Sweep ||
+		a.DesignSidelobeDB != b.DesignSidelobeDB || a.Length != b.Length || a.Degree != b.Degree || a.Root != b.Root ||
+		a.ChipS != b.ChipS || a.Binary != b.Binary || len(a.PhasesDeg) != len(b.PhasesDeg) {
+		return false
+	}
+	for i := range a.PhasesDeg {
+		if a.PhasesDeg[i] != b.PhasesDeg[i] {
+			return false
+		}
+	}
+	return true
 }
 
 // buildWaveform maps the scenario's waveform onto its dsp form.
@@ -101,11 +125,19 @@ func dspWindow(w Window) dsp.Window {
 	return nil
 }
 
-// newModel prepares the evaluation of a valid scenario.
-func newModel(s *Scenario) (*model, error) {
-	wave, err := buildWaveform(s.Waveform)
-	if err != nil {
-		return nil, fmt.Errorf("build waveform: %w", err)
+// newModel prepares the evaluation of a valid scenario. When prev is not
+// nil, the parts that depend only on unchanged fields (the waveform, the
+// sampled pulse, the reference) are taken from it instead of rebuilt.
+func newModel(s *Scenario, prev *model) (*model, error) {
+	sameWave := prev != nil && sameWaveform(prev.s.Waveform, s.Waveform)
+	var wave dsp.Waveform
+	if sameWave {
+		wave = prev.wave
+	} else {
+		var err error
+		if wave, err = buildWaveform(s.Waveform); err != nil {
+			return nil, fmt.Errorf("build waveform: %w", err)
+		}
 	}
 	r := s.Radar
 	m := &model{
@@ -119,7 +151,20 @@ func newModel(s *Scenario) (*model, error) {
 		unambM: C * r.PRIS / 2,
 	}
 	m.noiseW = dsp.NoisePower(dsp.FromDB(r.NoiseFigureDB), m.fs)
-	m.pulse = dsp.Sample(nil, wave, m.fs, 0)
+	if sameWave && prev.fs == m.fs {
+		m.pulse = prev.pulse
+		rx, prx := s.Receiver, prev.s.Receiver
+		if rx.Filter == prx.Filter && rx.FilterLengthFactor == prx.FilterLengthFactor && rx.Window == prx.Window {
+			m.ref, m.lead, m.noiseGain = prev.ref, prev.lead, prev.noiseGain
+			m.fig, m.dop, m.dopPlan = prev.fig, prev.dop, prev.dopPlan
+			m.warnings = append(m.warnings, prev.refWarnings...)
+			m.refWarnings = prev.refWarnings
+			m.checkSampling()
+			return m, nil
+		}
+	} else {
+		m.pulse = dsp.Sample(nil, wave, m.fs, 0)
+	}
 	switch s.Receiver.Filter {
 	case FilterLeastSquares:
 		h, lead, err := dsp.LeastSquaresFilter(m.pulse, s.Receiver.FilterLengthFactor*len(m.pulse))
@@ -129,6 +174,7 @@ func newModel(s *Scenario) (*model, error) {
 		m.ref, m.lead = h, lead
 		if s.Receiver.Window.Kind != WindowNone {
 			m.warn("receiver.window %s is not applied: the least-squares filter sets its own weighting", s.Receiver.Window.Kind)
+			m.refWarnings = append(m.refWarnings, m.warnings[len(m.warnings)-1])
 		}
 	default:
 		m.ref = dsp.Reference(nil, m.pulse, dspWindow(s.Receiver.Window))

@@ -104,7 +104,8 @@ type candidate struct {
 // suggestFix tries a few changes a radar engineer would try first and
 // returns a sentence naming the first that makes target j detected, with
 // its margin; "" when none does within the budget.
-func suggestFix(ctx context.Context, s *Scenario, j int, v verdict, budget *int) string {
+func suggestFix(ctx context.Context, base *model, j int, v verdict, budget *int) string {
+	s := base.s
 	for _, c := range candidates(s, j, v) {
 		if *budget <= 0 || ctx.Err() != nil {
 			return ""
@@ -114,7 +115,7 @@ func suggestFix(ctx context.Context, s *Scenario, j int, v verdict, budget *int)
 			continue
 		}
 		*budget--
-		m, err := newModel(t)
+		m, err := newModel(t, base)
 		if err != nil {
 			continue
 		}
