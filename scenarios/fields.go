@@ -311,7 +311,7 @@ func (o *object) targets(dst *[]Target) {
 		o.errs.add("targets", "%d entries exceed the limit of %d", n, MaxTargets)
 		return
 	}
-	out := make([]Target, 0, 4)
+	var out []Target
 	for i, raw := range rawElements(v) {
 		var t Target
 		if c, ok := newObject(fmt.Sprintf("targets[%d]", i), raw, o.errs); ok {
