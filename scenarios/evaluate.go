@@ -62,7 +62,13 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 // Analyse computes the report alone, without plot series or suggestions:
 // the cheaper path for sweeps.
 func Analyse(ctx context.Context, s *Scenario) (*Report, error) {
-	m, err := newModel(s, nil)
+	return new(Engine).Analyse(ctx, s)
+}
+
+// Analyse is the package function Analyse with reuse of the previous
+// scenario's waveform and reference, as in Evaluate.
+func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
+	m, err := newModel(s, e.last)
 	if err != nil {
 		return nil, err
 	}
@@ -73,7 +79,11 @@ func Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	rep := &Report{Version: ReportVersion, Scenario: s.Name, Waveform: m.waveformReport()}
 	rep.Targets = sc.targetReports(ctx, m, false)
 	rep.Warnings = append([]string{}, m.warnings...)
-	return rep, ctx.Err()
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	e.last = m
+	return rep, nil
 }
 
 func (m *model) figures() dsp.Figures {
