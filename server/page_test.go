@@ -126,3 +126,46 @@ func TestReportPageInBrowser(t *testing.T) {
 	}
 	log.check(t)
 }
+
+// TestSweepPageInBrowser draws the Taylor sweep of demo:harbour-skiff: one
+// margin line per target with a point per swept level, and the waveform
+// figures; no request leaves the page.
+func TestSweepPageInBrowser(t *testing.T) {
+	ctx, log := browser(t)
+	d, err := scenarios.LoadDemo("harbour-skiff")
+	if err != nil {
+		t.Fatal(err)
+	}
+	kind, _ := scenarios.ParseAxis("receiver.window.kind=taylor")
+	sll, _ := scenarios.ParseAxis("receiver.window.sidelobe_db=-20:-45:-5")
+	g := &scenarios.Grid{Base: d.Scenario, Axes: []scenarios.Axis{kind, sll}}
+	var pts []scenarios.Point
+	if err := g.Run(context.Background(), 2, func(p scenarios.Point) error { pts = append(pts, p); return nil }); err != nil {
+		t.Fatal(err)
+	}
+	file := filepath.Join(t.TempDir(), "sweep.html")
+	f, err := os.Create(file)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if err := WriteSweepPage(f, d.Scenario, g, pts); err != nil {
+		t.Fatal(err)
+	}
+	f.Close()
+	st := openPage(t, ctx, file, "sweep.png", "margin", "figures")
+	m := st["margin"]
+	if strings.Join(m.Names, ",") != "tanker,skiff,pilot-boat" {
+		t.Errorf("margin series %v", m.Names)
+	}
+	for i, n := range m.Series {
+		if n != 6 {
+			t.Errorf("series %s has %d points, want 6", m.Names[i], n)
+		}
+	}
+	for id, c := range st {
+		if !c.Painted {
+			t.Errorf("chart %s not painted", id)
+		}
+	}
+	log.check(t)
+}

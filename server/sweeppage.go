@@ -108,7 +108,7 @@ func WriteSweepPage(w io.Writer, base *scenarios.Scenario, g *scenarios.Grid, pt
 			if zeroLine && i == 0 {
 				s["markLine"] = map[string]any{"silent": true, "symbol": "none",
 					"lineStyle": map[string]any{"color": "#6b7280", "type": "dashed"},
-					"label":     map[string]any{"formatter": "detection threshold"},
+					"label":     map[string]any{"formatter": "detection threshold", "position": "insideEndTop"},
 					"data":      []map[string]any{{"yAxis": 0}}}
 			}
 			series = append(series, s)
