@@ -316,6 +316,7 @@ type clutterField struct {
 	g    *tgt
 	rho  []complex128 // reflectivity per grid sample, √(noise power) units
 	dphi []float64    // per-pulse phase step of each scatterer, rad
+	rev  []complex128 // the time-reversed conjugate pulse: correlating with it convolves
 	corr *dsp.Correlator
 	x, y []complex128
 }
@@ -339,10 +340,21 @@ func (sc *scene) newClutterField(g *tgt) *clutterField {
 	for i, p := range m.pulse {
 		rev[np-1-i] = cmplx.Conj(p)
 	}
+	f.rev = rev
 	f.corr = dsp.NewCorrelator(rev, n+np)
 	f.x = make([]complex128, n+np)
 	f.y = make([]complex128, n+np)
 	return f
+}
+
+// clone returns a field that shares the realisation but has buffers of
+// its own, for another goroutine.
+func (f *clutterField) clone() *clutterField {
+	c := *f
+	c.corr = dsp.NewCorrelator(f.rev, len(f.x))
+	c.x = make([]complex128, len(f.x))
+	c.y = make([]complex128, len(f.y))
+	return &c
 }
 
 // add adds pulse p's echo of the field to a receive window.

@@ -5,7 +5,8 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
-	"math/rand/v2"
+	"runtime"
+	"sync"
 
 	"github.com/pulsewright/pulsewright/dsp"
 )
@@ -218,99 +219,161 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 func (tr *train) binHz(d int) float64 { return tr.plan.BinFrequency(d) / tr.m.s.Radar.PRIS }
 
 // simulate synthesises the pulses, compresses each, and forms the noisy
-// and the expected range–Doppler maps.
-func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, error) {
+// and the expected range–Doppler maps. Pulses, then range cells, are
+// shared among GOMAXPROCS workers; every random draw comes from a stream
+// of its own (per pulse for noise, per target for fluctuation and
+// scatterers), so the result does not depend on the number of workers.
+// It returns the map, the first pulse's raw echo and the expected map in
+// linear units ([bin][cell]).
+func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][]float32, error) {
 	m := tr.m
 	r := m.s.Radar
 	np, nb, n := r.Pulses, tr.plan.Bins(), m.n
-	cube := make([]complex128, np*n) // cube[p*n+k]
-	corr := dsp.NewCorrelator(m.ref, n+m.lead)
-	x := make([]complex128, n+m.lead)
-	y := make([]complex128, n+m.lead)
-	noise := streamOf(m.s.Seed, "", 0x4e01)
-	var echo0 []complex128
-	// Scan-to-scan fluctuation draws once per interval, pulse-to-pulse per pulse.
-	amps := make([]float64, len(tr.sc.targets))
-	rngs := make([]*rand.Rand, len(tr.sc.targets))
-	for j, g := range tr.sc.targets {
-		rngs[j] = streamOf(m.s.Seed, g.t.ID, 0x5157)
-		amps[j] = math.Sqrt(dsp.SwerlingRCS(rngs[j], 1, swerling(g.t.Fluctuation)))
+	targets := tr.sc.targets
+	// Fluctuation: scan-to-scan once per interval, pulse-to-pulse per pulse.
+	amps := make([][]float64, np)
+	for p := range amps {
+		amps[p] = make([]float64, len(targets))
 	}
-	clutter := make([]*clutterField, len(tr.sc.targets))
-	for j, g := range tr.sc.targets {
+	for j, g := range targets {
+		rng := streamOf(m.s.Seed, g.t.ID, 0x5157)
+		fl := swerling(g.t.Fluctuation)
+		a := math.Sqrt(dsp.SwerlingRCS(rng, 1, fl))
+		for p := range np {
+			if p > 0 && (fl == dsp.Swerling2 || fl == dsp.Swerling4) {
+				a = math.Sqrt(dsp.SwerlingRCS(rng, 1, fl))
+			}
+			amps[p][j] = a
+		}
+	}
+	fields := make([]*clutterField, len(targets))
+	for j, g := range targets {
 		if g.density != nil {
-			clutter[j] = tr.sc.newClutterField(g)
+			fields[j] = tr.sc.newClutterField(g)
 		}
 	}
-	for p := range np {
-		if err := ctx.Err(); err != nil {
-			return nil, nil, err
-		}
-		echo := x[m.lead:]
-		clear(x)
-		t := float64(p) * r.PRIS
-		for j, g := range tr.sc.targets {
-			switch {
-			case g.t.Kind == TargetPoint && g.amp > 0:
-				fl := swerling(g.t.Fluctuation)
-				if p > 0 && (fl == dsp.Swerling2 || fl == dsp.Swerling4) {
-					amps[j] = math.Sqrt(dsp.SwerlingRCS(rngs[j], 1, fl))
-				}
-				rp := g.t.RangeM + g.t.RangeRateMPS*t
-				app, _ := m.fold(rp)
-				ph := cmplx.Rect(1, -4*math.Pi*math.Mod(rp/m.lambda, 1))
-				a := g.amp * math.Pow(g.t.RangeM/rp, 2) * amps[j]
-				dsp.AddEcho(echo, m.wave, m.fs, 2*app/C-m.t0, complex(a, 0)*ph, g.fd)
-			case clutter[j] != nil:
-				clutter[j].add(echo, p)
+	cube := make([]complex128, np*n) // cube[p*n+k]
+	echo0 := make([]complex128, n)
+	scale := complex(1/math.Sqrt(m.noiseGain), 0)
+	err := parallel(ctx, np, func(next func() (int, bool)) {
+		corr := dsp.NewCorrelator(m.ref, n+m.lead)
+		x := make([]complex128, n+m.lead)
+		y := make([]complex128, n+m.lead)
+		own := make([]*clutterField, len(fields))
+		for j, f := range fields {
+			if f != nil {
+				own[j] = f.clone()
 			}
 		}
-		for i := range echo {
-			echo[i] += dsp.ComplexNormal(noise)
+		for p, ok := next(); ok; p, ok = next() {
+			clear(x)
+			echo := x[m.lead:]
+			t := float64(p) * r.PRIS
+			for j, g := range targets {
+				switch {
+				case g.t.Kind == TargetPoint && g.amp > 0:
+					rp := g.t.RangeM + g.t.RangeRateMPS*t
+					if rp <= 0 {
+						continue
+					}
+					app, _ := m.fold(rp)
+					ph := cmplx.Rect(1, -4*math.Pi*math.Mod(rp/m.lambda, 1))
+					a := g.amp * math.Pow(g.t.RangeM/rp, 2) * amps[p][j]
+					dsp.AddEcho(echo, m.wave, m.fs, 2*app/C-m.t0, complex(a, 0)*ph, g.fd)
+				case own[j] != nil:
+					own[j].add(echo, p)
+				}
+			}
+			noise := streamOf(m.s.Seed, "", 0x4e01+uint64(p)<<24)
+			for i := range echo {
+				echo[i] += dsp.ComplexNormal(noise)
+			}
+			tr.sc.blank(echo, 0)
+			if p == 0 {
+				copy(echo0, echo)
+			}
+			corr.Apply(y, x) // x holds lead zeros, then the echo: an echo at d peaks at y[d]
+			row := cube[p*n : (p+1)*n]
+			for k := range row {
+				row[k] = y[k] * scale
+			}
 		}
-		tr.sc.blank(echo, 0)
-		if p == 0 {
-			echo0 = append([]complex128(nil), echo...)
-		}
-		corr.Apply(y, x) // x holds lead zeros, then the echo: an echo at d peaks at y[d]
-		row := cube[p*n : (p+1)*n]
-		s := complex(1/math.Sqrt(m.noiseGain), 0)
-		for k := range row {
-			row[k] = y[k] * s
-		}
+	})
+	if err != nil {
+		return nil, nil, nil, err
 	}
 	rd := &RangeDoppler{DopplerHz: make([]float64, nb), RangeRateMPS: make([]float64, nb), DB: make([][]float32, nb), CleanDB: make([][]float32, nb)}
+	lin := make([][]float32, nb)
 	for d := range nb {
 		rd.DopplerHz[d] = tr.binHz(d)
 		rd.RangeRateMPS[d] = -rd.DopplerHz[d] * m.lambda / 2
 		rd.DB[d] = make([]float32, n)
 		rd.CleanDB[d] = make([]float32, n)
+		lin[d] = make([]float32, n)
 	}
-	col := make([]complex128, np)
-	out := make([]complex128, nb)
-	for k := range n {
-		for p := range np {
-			col[p] = cube[p*n+k]
+	const chunk = 1024
+	err = parallel(ctx, (n+chunk-1)/chunk, func(next func() (int, bool)) {
+		plan := dsp.NewSlowTimePlan(np, mtiTaps(m.s.Receiver.MTI), dspWindow(m.s.Receiver.DopplerWindow))
+		col := make([]complex128, np)
+		out := make([]complex128, nb)
+		for c, ok := next(); ok; c, ok = next() {
+			for k := c * chunk; k < min((c+1)*chunk, n); k++ {
+				for p := range np {
+					col[p] = cube[p*n+k]
+				}
+				plan.Apply(out, col)
+				for d, v := range out {
+					rd.DB[d][k] = float32(toDB(real(v)*real(v) + imag(v)*imag(v)))
+				}
+			}
 		}
-		tr.plan.Apply(out, col)
-		for d, v := range out {
-			rd.DB[d][k] = float32(toDB(real(v)*real(v) + imag(v)*imag(v)))
-		}
+	})
+	if err != nil {
+		return nil, nil, nil, err
 	}
-	for j, g := range tr.sc.targets {
+	for j, g := range targets {
 		for i, pw := range g.resp.pow {
 			k := g.resp.lo + i
 			for d := range nb {
-				rd.CleanDB[d][k] += float32(pw * tr.gain[j][d])
+				lin[d][k] += float32(pw * tr.gain[j][d])
 			}
 		}
 	}
 	for d := range nb {
-		for k, v := range rd.CleanDB[d] {
+		for k, v := range lin[d] {
 			rd.CleanDB[d][k] = float32(toDB(float64(v)))
 		}
 	}
-	return rd, echo0, nil
+	return rd, echo0, lin, nil
+}
+
+// parallel runs work on GOMAXPROCS goroutines (at most tasks); each
+// worker takes task indices 0 … tasks−1 from next until it reports false,
+// and stops early when ctx is done, which parallel then returns.
+func parallel(ctx context.Context, tasks int, work func(next func() (int, bool))) error {
+	var (
+		mu sync.Mutex
+		i  int
+		wg sync.WaitGroup
+	)
+	next := func() (int, bool) {
+		mu.Lock()
+		defer mu.Unlock()
+		if i >= tasks || ctx.Err() != nil {
+			return 0, false
+		}
+		i++
+		return i - 1, true
+	}
+	for range min(runtime.GOMAXPROCS(0), tasks) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			work(next)
+		}()
+	}
+	wg.Wait()
+	return ctx.Err()
 }
 
 // report adds the pulse-train fields to a target's report and the
@@ -363,7 +426,7 @@ func binDistance(a, b, n int) int {
 // at that cell's strongest expected bin, and the map itself.
 func (tr *train) series(ctx context.Context) (Series, error) {
 	m := tr.m
-	rd, echo0, err := tr.simulate(ctx)
+	rd, echo0, lin, err := tr.simulate(ctx)
 	if err != nil {
 		return Series{}, err
 	}
@@ -377,7 +440,7 @@ func (tr *train) series(ctx context.Context) (Series, error) {
 		ThresholdDB:  make([]float64, n),
 		RangeDoppler: rd,
 	}
-	clean := func(k, d int) float64 { return dsp.FromDB(float64(rd.CleanDB[d][k])) }
+	clean := func(k, d int) float64 { return float64(lin[d][k]) }
 	cf := tr.cfar()
 	for k := range n {
 		if k%4096 == 0 && ctx.Err() != nil {
@@ -392,7 +455,7 @@ func (tr *train) series(ctx context.Context) (Series, error) {
 			pk = max(pk, rd.DB[d][k])
 		}
 		s.ProfileDB[k], s.CleanDB[k] = float64(pk), float64(best)
-		s.ThresholdDB[k] = toDB(tr.level(cf, k, bd, func(k, d int) float64 { return math.Max(clean(k, d)-dsp.FromDB(dbFloor), 0) }))
+		s.ThresholdDB[k] = toDB(tr.level(cf, k, bd, clean))
 	}
 	for k := 0; k < m.blankEnd(); k++ {
 		s.ProfileDB[k], s.CleanDB[k] = dbFloor, dbFloor

@@ -1,6 +1,7 @@
 package scenarios
 
 import (
+	"context"
 	"encoding/json"
 	"math"
 	"strings"
@@ -114,3 +115,20 @@ func TestBlindSpeed(t *testing.T) {
 }
 
 func jsonMarshal(v any) ([]byte, error) { return json.Marshal(v) }
+
+// BenchmarkTrainLarge: 128 pulses × 65 536 samples with 20 point targets
+// and a rain band: synthesis, compression, Doppler FFT and CFAR.
+func BenchmarkTrainLarge(b *testing.B) {
+	s := largeScene(b)
+	s.Radar.Pulses = 128
+	s.Radar.WindowStopM = s.Radar.WindowStartM + 65535*C/(2*s.Radar.SampleRateHz)
+	if err := s.Validate(); err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := Evaluate(context.Background(), s); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
