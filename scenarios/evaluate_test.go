@@ -231,11 +231,12 @@ func TestDeterminism(t *testing.T) {
 // TestDemosTeach checks that each demo shows what its notes promise.
 func TestDemosTeach(t *testing.T) {
 	want := map[string]map[string]string{
-		"harbour-skiff":    {"tanker": StatusDetected, "skiff": StatusMasked},
-		"squall-line":      {"light-aircraft": StatusMasked, "rain-band": StatusDetected},
-		"closing-jet":      {"jet": StatusBelowNoise, "helicopter": StatusDetected},
-		"long-pulse-blind": {"drone": StatusEclipsed, "airliner": StatusDetected, "airliner-far": StatusOutOfWindow},
-		"rocky-coast":      {"patrol-boat": StatusDetected, "buoy": StatusMasked},
+		"harbour-skiff":        {"tanker": StatusDetected, "skiff": StatusMasked},
+		"squall-line":          {"light-aircraft": StatusMasked, "rain-band": StatusDetected},
+		"closing-jet":          {"jet": StatusBelowNoise, "helicopter": StatusDetected},
+		"long-pulse-blind":     {"drone": StatusEclipsed, "airliner": StatusDetected, "airliner-far": StatusOutOfWindow},
+		"rocky-coast":          {"patrol-boat": StatusDetected, "buoy": StatusMasked},
+		"hill-clutter-doppler": {"helicopter": StatusDetected, "jet": StatusMasked, "ridge": StatusDetected, "car": StatusDetected},
 	}
 	for name, ids := range want {
 		d, err := LoadDemo(name)

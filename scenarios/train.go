@@ -383,7 +383,7 @@ func (tr *train) report(j int, v, single verdict, bin int, out *TargetReport) {
 	r := m.s.Radar
 	prf := 1 / r.PRIS
 	fold := dsp.Fold(g.fd * r.PRIS)
-	rate := -fold * prf * m.lambda / 2
+	rate := tidy(-fold * prf * m.lambda / 2)
 	out.ApparentRangeRateMPS = &rate
 	binW := 1 / float64(tr.plan.Bins())
 	blind := math.Abs(fold) < binW/2 && math.Abs(g.fd*r.PRIS) >= binW/2
@@ -404,7 +404,7 @@ func (tr *train) report(j int, v, single verdict, bin int, out *TargetReport) {
 		o := tr.sc.targets[single.culprit]
 		_, od, _ := tr.peak(single.culprit)
 		out.Reason += fmt.Sprintf(" Doppler saves it: at %.1f m/s it sits %d Doppler bins from %s (%.1f m/s), which masks it in a single pulse.",
-			rate, binDistance(bin, od, tr.plan.Bins()), o.t.ID, -tr.binHz(od)*m.lambda/2)
+			rate, binDistance(bin, od, tr.plan.Bins()), o.t.ID, tidy(-tr.binHz(od)*m.lambda/2))
 	case v.status == StatusMasked && v.culprit >= 0:
 		_, od, _ := tr.peak(v.culprit)
 		if dd := binDistance(bin, od, tr.plan.Bins()); dd <= 1 {
@@ -462,4 +462,13 @@ func (tr *train) series(ctx context.Context) (Series, error) {
 	}
 	s.Response = m.response()
 	return s, nil
+}
+
+// tidy rounds values within a millimetre per second of zero to zero, so
+// that rounding never prints as "-0.0".
+func tidy(v float64) float64 {
+	if math.Abs(v) < 1e-3 {
+		return 0
+	}
+	return v
 }
