@@ -22,6 +22,10 @@ export class Editor {
       root.addEventListener('focusout', () => this.store.seal());
     }
     roots.targets.addEventListener('click', (ev) => this.onTargetClick(ev));
+    roots.targets.addEventListener('focusin', (ev) => {
+      const row = ev.target.closest('[data-row]');
+      if (row) this.select(Number(row.dataset.row));
+    });
     roots.targets.addEventListener('wheel', (ev) => this.onWheel(ev), { passive: false });
   }
 
@@ -131,10 +135,15 @@ export class Editor {
     });
   }
 
+  // Select target i: mark its row and show its detail form, leaving the
+  // table (and any input being typed in) alone.
   select(i) {
     if (i === this.selected) return;
     this.selected = i;
-    this.renderTargets(this.store.scenario, true);
+    for (const tr of $$('tr[data-row]', this.roots.targets)) tr.classList.toggle('sel', Number(tr.dataset.row) === i);
+    const detail = this.roots.targets.querySelector('.detail-slot');
+    if (detail) detail.replaceChildren(this.targetDetail(this.store.scenario));
+    this.shape = this.shapeOf(this.store.scenario);
   }
 
   selectId(id) {
@@ -178,10 +187,7 @@ export class Editor {
   render(s) {
     const t = s.targets || [];
     if (this.selected >= t.length) this.selected = Math.max(0, t.length - 1);
-    const rx = s.receiver || {};
-    const shape = JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, rx.detector && rx.detector.kind,
-      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected,
-      s.waveform && s.waveform.binary !== undefined]);
+    const shape = this.shapeOf(s);
     if (shape !== this.shape) {
       this.shape = shape;
       this.renderScene(s);
@@ -193,6 +199,14 @@ export class Editor {
     }
     this.renderTargets(s, false);
     for (const root of Object.values(this.roots)) this.syncValues(root, s);
+  }
+
+  shapeOf(s) {
+    const t = s.targets || [];
+    const rx = s.receiver || {};
+    return JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, rx.detector && rx.detector.kind,
+      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected,
+      s.waveform && s.waveform.binary !== undefined]);
   }
 
   syncValues(root, s) {
@@ -351,7 +365,7 @@ export class Editor {
         h('button', { type: 'button', dataset: { act: 'add' } }, '+ Add target'),
         h('span', { class: 'muted small' }, 'Drag a marker on the profile; wheel or ↑/↓ nudges the level.')),
       h('div', { class: 'err block', dataset: { errFor: 'targets' } }),
-      this.targetDetail(s));
+      h('div', { class: 'detail-slot' }, this.targetDetail(s)));
   }
 
   // Report statuses for the dots of the target table.
