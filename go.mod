@@ -2,4 +2,9 @@ module github.com/pulsewright/pulsewright
 
 go 1.26
 
-require gonum.org/v1/gonum v0.17.0
+require (
+	github.com/go-chi/chi/v5 v5.5.0
+	github.com/go-echarts/go-echarts/v2 v2.6.7
+	github.com/gorilla/websocket v1.5.3
+	gonum.org/v1/gonum v0.17.0
+)
