@@ -213,6 +213,11 @@ export class Editor {
     for (const el of $$('[data-path]', root)) {
       if (el === document.activeElement) continue;
       const v = getPath(s, el.dataset.path);
+      if (el.tagName === 'SELECT') {
+        const want = String(v ?? el.dataset.def ?? '');
+        if (want && el.value !== want) el.value = want;
+        continue;
+      }
       const text = el.dataset.type === 'phases' ? (v || []).join(', ') : toDisplay(v, Number(el.dataset.scale || 1));
       if (el.value !== text) el.value = text;
     }
@@ -225,7 +230,7 @@ export class Editor {
     const hint = fd.hint || (fd.def !== undefined ? toDisplay(fd.def, fd.scale) : '');
     let input;
     if (fd.type === 'select') {
-      input = h('select', { dataset: { path, type: 'select', int: fd.int ? '1' : '' } },
+      input = h('select', { dataset: { path, type: 'select', int: fd.int ? '1' : '', def: fd.def !== undefined ? String(fd.def) : undefined } },
         fd.options.map((o) => h('option', { value: String(o), selected: String(v ?? fd.def) === String(o) }, String(o))));
     } else if (fd.type === 'phases') {
       input = h('textarea', { rows: 2, dataset: { path, type: 'phases' }, placeholder: '0, 180, 90 …', value: (v || []).join(', ') });
@@ -274,9 +279,9 @@ export class Editor {
       h('div', { class: 'grid' }, waveformKinds[kind].fields.map((fd) => this.field(s, 'waveform', fd))));
   }
 
-  windowBlock(s, title, path) {
-    const w = getPath(s, path) || { kind: 'none' };
-    const kind = windowKinds[w.kind] ? w.kind : 'none';
+  windowBlock(s, title, path, def) {
+    const w = getPath(s, path) || { kind: def };
+    const kind = windowKinds[w.kind] ? w.kind : def;
     return h('div', { class: 'sub' },
       this.kindSelect(title, `window-kind:${path}`, windowKinds, kind, `${path}.kind`),
       h('div', { class: 'grid' }, windowKinds[kind].fields.map((fd) => this.field(s, path, fd))));
@@ -293,11 +298,11 @@ export class Editor {
     }
     this.roots.receive.replaceChildren(
       h('div', { class: 'grid' }, filterBlock),
-      this.windowBlock(s, 'Range weighting', 'receiver.window'),
+      this.windowBlock(s, 'Range weighting', 'receiver.window', 'none'),
       h('div', { class: 'sub' },
         this.kindSelect('Detector', 'detector-kind', detectorKinds, dkind, 'receiver.detector.kind'),
         h('div', { class: 'grid' }, detectorKinds[dkind].fields.map((k) => this.field(s, 'receiver.detector', detectorFields[k])))),
-      this.windowBlock(s, 'Pulse-to-pulse weighting', 'receiver.doppler_window'));
+      this.windowBlock(s, 'Pulse-to-pulse weighting (pulses > 1)', 'receiver.doppler_window', 'hann'));
   }
 
   targetRow(t, i) {
