@@ -84,10 +84,21 @@ func Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 
 func (m *model) figures() dsp.Figures {
 	if m.fig == nil {
-		f := dsp.ResponseFigures(m.pulse, m.ref, m.lead, m.fs, m.s.Waveform.Bandwidth())
+		f := dsp.ResponseFigures(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
 		m.fig = &f
 	}
 	return *m.fig
+}
+
+// interpBandwidth returns the bandwidth the figures interpolate the
+// compressed response with, or 0 to measure it at its samples: a code at
+// about one sample per chip is not band-limited at the sample rate, and
+// interpolating its samples would invent sidelobes between them.
+func (m *model) interpBandwidth() float64 {
+	if m.s.Waveform.IsPhaseCode() && m.fs*m.s.Waveform.ChipS < 1.5 {
+		return 0
+	}
+	return m.s.Waveform.Bandwidth()
 }
 
 // doppler returns the peak loss (dB) and time shift (s) of the compressed
@@ -298,7 +309,7 @@ func (sc *scene) series() Series {
 
 // response returns the zero-Doppler response of the waveform alone.
 func (m *model) response() Response {
-	t, db := dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.s.Waveform.Bandwidth())
+	t, db := dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
 	r := Response{RangeM: make([]float64, len(t)), DB: make([]float64, len(db))}
 	for i := range t {
 		r.RangeM[i] = t[i] * C / 2
