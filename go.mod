@@ -5,7 +5,9 @@ go 1.26
 require (
 	github.com/chromedp/cdproto v0.159.0
 	github.com/chromedp/chromedp v0.23.0
+	github.com/go-chi/chi/v5 v5.5.0
 	github.com/go-echarts/go-echarts/v2 v2.6.7
+	github.com/gorilla/websocket v1.5.3
 	gonum.org/v1/gonum v0.17.0
 )
 

@@ -46,6 +46,7 @@ type scene struct {
 	m       *model
 	targets []*tgt
 	total   []float64 // Σ of every target's power per window sample
+	train   *train    // slow-time processing when radar.pulses > 1
 }
 
 // tgt is one target's geometry and noise-free response.
@@ -92,6 +93,9 @@ func newScene(ctx context.Context, m *model) (*scene, error) {
 			sc.total[g.resp.lo+i] += p
 		}
 		sc.targets = append(sc.targets, g)
+	}
+	if m.s.Radar.Pulses > 1 {
+		sc.train = newTrain(m, sc)
 	}
 	return sc, nil
 }

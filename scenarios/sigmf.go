@@ -97,7 +97,11 @@ func WriteSigMF(meta, data io.Writer, s *Scenario, res *Result) error {
 		return err
 	}
 	r := s.Radar
-	desc := fmt.Sprintf("Simulated raw receive window of the scenario %q: %d complex samples from %.6g m to %.6g m of range. "+
+	train := ""
+	if r.Pulses > 1 {
+		train = fmt.Sprintf("The first of the %d pulses of the coherent processing interval. ", r.Pulses)
+	}
+	desc := train + fmt.Sprintf("Simulated raw receive window of the scenario %q: %d complex samples from %.6g m to %.6g m of range. "+
 		"Samples are scaled so that the thermal noise has unit power per complex sample; an echo's power per sample is its SNR before pulse compression. "+
 		"Simulated data; no signal was received.", s.Name, len(res.Series.Echo), r.WindowStartM, r.WindowStopM)
 	global := ordered{

@@ -28,6 +28,7 @@ export class Plots {
     this.hoverCard = hoverCard;
     this.drag = null;
     this.lastView = null;
+    this.applied = {}; // chart name → the last option applied, as JSON
 
     // Echo and profile share the range axis: zooming one zooms the other.
     this.charts.profile.group = 'pw-range';
@@ -55,6 +56,12 @@ export class Plots {
         chart = this.charts[name] = echarts.init(this.els[name], null, { renderer: 'canvas' });
       }
       if (!chart) continue;
+      // An option the chart holds already (the waveform's response while
+      // targets move) is not drawn again: applying the same option twice
+      // gives the same picture.
+      const key = (entry.replace ? 'r' : 'm') + JSON.stringify(entry.option);
+      if (key === this.applied[name]) continue;
+      this.applied[name] = key;
       chart.setOption(entry.option, { notMerge: !!entry.replace, lazyUpdate: false });
       if (name === 'profile') this.cacheMarkers(entry.option);
     }

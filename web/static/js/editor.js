@@ -22,6 +22,10 @@ export class Editor {
       root.addEventListener('focusout', () => this.store.seal());
     }
     roots.targets.addEventListener('click', (ev) => this.onTargetClick(ev));
+    roots.targets.addEventListener('focusin', (ev) => {
+      const row = ev.target.closest('[data-row]');
+      if (row) this.select(Number(row.dataset.row));
+    });
     roots.targets.addEventListener('wheel', (ev) => this.onWheel(ev), { passive: false });
   }
 
@@ -131,10 +135,15 @@ export class Editor {
     });
   }
 
+  // Select target i: mark its row and show its detail form, leaving the
+  // table (and any input being typed in) alone.
   select(i) {
     if (i === this.selected) return;
     this.selected = i;
-    this.renderTargets(this.store.scenario, true);
+    for (const tr of $$('tr[data-row]', this.roots.targets)) tr.classList.toggle('sel', Number(tr.dataset.row) === i);
+    const detail = this.roots.targets.querySelector('.detail-slot');
+    if (detail) detail.replaceChildren(this.targetDetail(this.store.scenario));
+    this.shape = this.shapeOf(this.store.scenario);
   }
 
   selectId(id) {
@@ -178,10 +187,7 @@ export class Editor {
   render(s) {
     const t = s.targets || [];
     if (this.selected >= t.length) this.selected = Math.max(0, t.length - 1);
-    const rx = s.receiver || {};
-    const shape = JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, rx.detector && rx.detector.kind,
-      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected,
-      s.waveform && s.waveform.binary !== undefined]);
+    const shape = this.shapeOf(s);
     if (shape !== this.shape) {
       this.shape = shape;
       this.renderScene(s);
@@ -195,10 +201,23 @@ export class Editor {
     for (const root of Object.values(this.roots)) this.syncValues(root, s);
   }
 
+  shapeOf(s) {
+    const t = s.targets || [];
+    const rx = s.receiver || {};
+    return JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, rx.detector && rx.detector.kind,
+      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected,
+      s.waveform && s.waveform.binary !== undefined]);
+  }
+
   syncValues(root, s) {
     for (const el of $$('[data-path]', root)) {
       if (el === document.activeElement) continue;
       const v = getPath(s, el.dataset.path);
+      if (el.tagName === 'SELECT') {
+        const want = String(v ?? el.dataset.def ?? '');
+        if (want && el.value !== want) el.value = want;
+        continue;
+      }
       const text = el.dataset.type === 'phases' ? (v || []).join(', ') : toDisplay(v, Number(el.dataset.scale || 1));
       if (el.value !== text) el.value = text;
     }
@@ -211,7 +230,7 @@ export class Editor {
     const hint = fd.hint || (fd.def !== undefined ? toDisplay(fd.def, fd.scale) : '');
     let input;
     if (fd.type === 'select') {
-      input = h('select', { dataset: { path, type: 'select', int: fd.int ? '1' : '' } },
+      input = h('select', { dataset: { path, type: 'select', int: fd.int ? '1' : '', def: fd.def !== undefined ? String(fd.def) : undefined } },
         fd.options.map((o) => h('option', { value: String(o), selected: String(v ?? fd.def) === String(o) }, String(o))));
     } else if (fd.type === 'phases') {
       input = h('textarea', { rows: 2, dataset: { path, type: 'phases' }, placeholder: '0, 180, 90 …', value: (v || []).join(', ') });
@@ -260,9 +279,9 @@ export class Editor {
       h('div', { class: 'grid' }, waveformKinds[kind].fields.map((fd) => this.field(s, 'waveform', fd))));
   }
 
-  windowBlock(s, title, path) {
-    const w = getPath(s, path) || { kind: 'none' };
-    const kind = windowKinds[w.kind] ? w.kind : 'none';
+  windowBlock(s, title, path, def) {
+    const w = getPath(s, path) || { kind: def };
+    const kind = windowKinds[w.kind] ? w.kind : def;
     return h('div', { class: 'sub' },
       this.kindSelect(title, `window-kind:${path}`, windowKinds, kind, `${path}.kind`),
       h('div', { class: 'grid' }, windowKinds[kind].fields.map((fd) => this.field(s, path, fd))));
@@ -279,11 +298,11 @@ export class Editor {
     }
     this.roots.receive.replaceChildren(
       h('div', { class: 'grid' }, filterBlock),
-      this.windowBlock(s, 'Range weighting', 'receiver.window'),
+      this.windowBlock(s, 'Range weighting', 'receiver.window', 'none'),
       h('div', { class: 'sub' },
         this.kindSelect('Detector', 'detector-kind', detectorKinds, dkind, 'receiver.detector.kind'),
         h('div', { class: 'grid' }, detectorKinds[dkind].fields.map((k) => this.field(s, 'receiver.detector', detectorFields[k])))),
-      this.windowBlock(s, 'Pulse-to-pulse weighting', 'receiver.doppler_window'));
+      this.windowBlock(s, 'Pulse-to-pulse weighting (pulses > 1)', 'receiver.doppler_window', 'hann'));
   }
 
   targetRow(t, i) {
@@ -351,7 +370,7 @@ export class Editor {
         h('button', { type: 'button', dataset: { act: 'add' } }, '+ Add target'),
         h('span', { class: 'muted small' }, 'Drag a marker on the profile; wheel or ↑/↓ nudges the level.')),
       h('div', { class: 'err block', dataset: { errFor: 'targets' } }),
-      this.targetDetail(s));
+      h('div', { class: 'detail-slot' }, this.targetDetail(s)));
   }
 
   // Report statuses for the dots of the target table.

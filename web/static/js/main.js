@@ -77,6 +77,7 @@ function applyFrame() {
   if (session.sent.has(f.id) && f.id > lastErrorId) {
     editor.clearErrors();
     $('#orphan-errors').textContent = '';
+    markTabs();
   }
   if (f.link) updateAddress(f.link);
   const sentAt = session.sent.get(f.id);
@@ -85,7 +86,9 @@ function applyFrame() {
     performance.mark(`pw-paint-${f.id}`);
     if (sentAt !== undefined) {
       const m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
-      latencies.push({ id: f.id, ms: m.duration, compute_ms: f.compute_ms });
+      // ms: send → new pixels; wait_ms: send → the frame's arrival (server
+      // and network); page_ms: arrival → new pixels (parse excluded).
+      latencies.push({ id: f.id, ms: m.duration, compute_ms: f.compute_ms, wait_ms: f.arrivedAt - sentAt, page_ms: performance.now() - f.arrivedAt });
       if (latencies.length > 1000) latencies.shift();
     }
   });
@@ -114,14 +117,24 @@ function onError(msg) {
   lastErrorId = msg.id;
   const first = (msg.fields || [])[0];
   const m = first && first.path && first.path.match(/^targets\[(\d+)\]/);
-  if (m) editor.select(Number(m[1]));
+  if (m && !$('.editor').contains(document.activeElement)) editor.select(Number(m[1]));
   const orphans = editor.showErrors(msg.fields);
   if (!(msg.fields || []).length && msg.error) orphans.push(msg.error);
   $('#orphan-errors').textContent = orphans.join('\n');
-  const activeTab = $('.tabs [aria-selected="true"]').dataset.tab;
+  markTabs();
+  // Show the panel of the first error, unless the user is typing in the
+  // editor: then the tabs only carry a mark.
   const panel = editor.errorPanel();
-  const tab = panel === 'targets' || panel === 'scene' ? 'scene' : panel;
-  if (tab && !$(`[data-panel="${activeTab}"]`).querySelector('.err:not(:empty)')) showTab(tab);
+  const tab = panel === 'targets' ? 'scene' : panel;
+  if (tab && !$('.editor').contains(document.activeElement)) showTab(tab);
+}
+
+// Mark each tab whose panel holds an error message.
+function markTabs() {
+  for (const b of $$('.tabs [data-tab]')) {
+    const p = $(`[data-panel="${b.dataset.tab}"]`);
+    b.classList.toggle('has-err', !!p.querySelector('.err:not(:empty)'));
+  }
 }
 
 function onStatus(state) {
@@ -215,8 +228,9 @@ async function loadDemo(name) {
 }
 
 async function fillDemos() {
+  let demos = [];
   try {
-    const demos = await api.demos();
+    demos = await api.demos();
     const sel = $('#demo-select');
     for (const d of demos) {
       const o = document.createElement('option');
@@ -226,6 +240,7 @@ async function fillDemos() {
       sel.append(o);
     }
   } catch { /* the list is a convenience */ }
+  return demos;
 }
 $('#demo-select').addEventListener('change', (ev) => {
   if (ev.target.value) loadDemo(ev.target.value);
@@ -286,8 +301,20 @@ initKeys({ store, editor, lastFrame: () => lastFrame });
 
 // --- start ---
 
+// Long tasks (> 50 ms) while the page runs, for the browser tests: live
+// updates must not stutter the page.
+window.__pwLongTasks = [];
+try {
+  new PerformanceObserver((list) => {
+    for (const e of list.getEntries()) window.__pwLongTasks.push(e.duration);
+  }).observe({ type: 'longtask' });
+} catch { /* not supported */ }
+
 session.connect();
-fillDemos();
+const demosReady = fillDemos();
 const startLink = linkPart(location.hash);
-if (startLink !== null) openLink(startLink);
-else loadDemo(DefaultDemo);
+if (startLink !== null) {
+  openLink(startLink);
+} else {
+  demosReady.then((demos) => loadDemo((demos.find((d) => d.start) || {}).name || DefaultDemo));
+}

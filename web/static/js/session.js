@@ -40,6 +40,7 @@ export class Session {
       } catch {
         return;
       }
+      msg.arrivedAt = performance.now();
       if (msg.type === MsgFrame) this.onFrame(msg);
       else if (msg.type === MsgError) this.onError(msg);
     };
