@@ -3,6 +3,7 @@ package scenarios
 import (
 	"context"
 	"errors"
+	"fmt"
 	"math"
 	"testing"
 )
@@ -141,4 +142,30 @@ func TestSweepInvalidPoint(t *testing.T) {
 		t.Fatalf("error %v", err)
 	}
 	t.Log(err)
+}
+
+// BenchmarkSweep runs 24 points of the harbour scene (the skiff's range)
+// on 1 and 2 workers: each worker's Engine reuses the waveform and the
+// reference between points.
+func BenchmarkSweep(b *testing.B) {
+	d, err := LoadDemo("harbour-skiff")
+	if err != nil {
+		b.Fatal(err)
+	}
+	a, err := ParseAxis("targets[skiff].range_m=6100:6560:20")
+	if err != nil {
+		b.Fatal(err)
+	}
+	g := &Grid{Base: d.Scenario, Axes: []Axis{a}}
+	for _, w := range []int{1, 2} {
+		b.Run(fmt.Sprintf("workers=%d", w), func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				if err := g.Run(context.Background(), w, func(Point) error { return nil }); err != nil {
+					b.Fatal(err)
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(g.Len())/1e6, "ms/point")
+		})
+	}
 }
