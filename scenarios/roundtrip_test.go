@@ -85,6 +85,13 @@ func randomScenario(r *rand.Rand) *Scenario {
 	if r.IntN(3) == 0 {
 		s.Receiver.DopplerWindow = defaultWindow(pick(windowKinds))
 	}
+	if r.IntN(3) == 0 {
+		s.Radar.Pulses = 4 + r.IntN(60)
+		s.Receiver.MTI = pick(mtis)
+		if s.Receiver.Detector.Kind != DetectorFixed {
+			s.Receiver.Detector.DopplerTrainingCells = 2 * r.IntN(5)
+		}
+	}
 	for i := range r.IntN(6) {
 		t := Target{ID: "t" + string(rune('a'+i)), Kind: pick(targetKinds), RangeRateMPS: math.Round(u(-300, 300))}
 		switch t.Kind {

@@ -181,11 +181,6 @@ func (e *env) demos(args []string) error {
 	return tw.Flush()
 }
 
-// eval and serve arrive with the DSP core and the server.
-func (e *env) eval(args []string) error {
-	return fmt.Errorf("eval is not built yet")
-}
-
 func (e *env) serve(args []string) error {
 	fmt.Fprint(e.stdout, usage)
 	return nil

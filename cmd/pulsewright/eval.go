@@ -1,0 +1,71 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"io"
+	"text/tabwriter"
+
+	"github.com/pulsewright/pulsewright/scenarios"
+)
+
+func (e *env) eval(args []string) error {
+	fs := newFlags("eval", e)
+	format := fs.String("format", "json", "output format: json (the report format) or text (a readable table)")
+	pos, err := parseFlags(fs, args)
+	if err != nil {
+		return err
+	}
+	if *format != "json" && *format != "text" {
+		return usageError{fmt.Sprintf("--format %q is not json or text", *format)}
+	}
+	s, err := e.oneScenario("eval", pos)
+	if err != nil {
+		return err
+	}
+	res, err := scenarios.Evaluate(e.ctx, s)
+	if err != nil {
+		return fmt.Errorf("evaluate: %w", err)
+	}
+	if *format == "text" {
+		return writeReportText(e.stdout, &res.Report)
+	}
+	enc := json.NewEncoder(e.stdout)
+	enc.SetIndent("", "  ")
+	return enc.Encode(res.Report)
+}
+
+// writeReportText prints a report as a table a person reads in a terminal.
+func writeReportText(w io.Writer, r *scenarios.Report) error {
+	wf := r.Waveform
+	fmt.Fprintf(w, "%s\n\n", r.Scenario)
+	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
+	fmt.Fprintf(tw, "waveform\t%s, τ %s, B %s, B·τ %.4g, gain %.1f dB\n", wf.Kind, si(wf.PulseWidthS, "s"), si(wf.BandwidthHz, "Hz"), wf.TimeBandwidth, wf.CompressionGainDB)
+	fmt.Fprintf(tw, "sidelobes\tPSLR %.2f dB, ISLR %.2f dB\n", wf.PSLRDB, wf.ISLRDB)
+	fmt.Fprintf(tw, "resolution\t%.2f m at −3 dB, mismatch loss %.2f dB\n", wf.Mainlobe3dBM, wf.MismatchLossDB)
+	fmt.Fprintf(tw, "ranges\tblind %.0f m, unambiguous %.0f m, unambiguous velocity ±%.2f m/s\n", wf.BlindRangeM, wf.UnambiguousRangeM, wf.UnambiguousVelocityMPS)
+	tw.Flush()
+	fmt.Fprintln(w)
+	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
+	fmt.Fprintln(tw, "ID\tRANGE m\tSNR dB\tDOPPLER Hz\tDOP LOSS dB\tSHIFT m\tMARGIN dB\tSTATUS\t")
+	for _, t := range r.Targets {
+		margin := "—"
+		if t.MarginDB != nil {
+			margin = fmt.Sprintf("%.1f", *t.MarginDB)
+		}
+		status := t.Status
+		if t.MaskedBy != "" {
+			status += " by " + t.MaskedBy
+		}
+		fmt.Fprintf(tw, "%s\t%.1f\t%.1f\t%.0f\t%.2f\t%.2f\t%s\t%s\t\n", t.ID, t.RangeM, t.SNRDB, t.DopplerHz, t.DopplerLossDB, t.RangeShiftM, margin, status)
+	}
+	tw.Flush()
+	fmt.Fprintln(w)
+	for _, t := range r.Targets {
+		fmt.Fprintf(w, "%s: %s\n", t.ID, t.Reason)
+	}
+	for _, warn := range r.Warnings {
+		fmt.Fprintf(w, "warning: %s\n", warn)
+	}
+	return nil
+}

@@ -1,0 +1,417 @@
+package scenarios
+
+import (
+	"context"
+	"math"
+	"math/cmplx"
+
+	"github.com/pulsewright/pulsewright/dsp"
+)
+
+// dbFloor is the lowest dB value in series: 10·log10(0) is not a number.
+const dbFloor = -100.0
+
+func toDB(p float64) float64 { return math.Max(dsp.DB(p), dbFloor) }
+
+// Evaluate computes the report and the plot series of a valid scenario
+// (as Decode returns it). It checks ctx between stages and returns
+// ctx.Err() when cancelled. The same scenario gives identical results.
+func Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
+	return new(Engine).Evaluate(ctx, s)
+}
+
+// Engine evaluates a sequence of scenarios, reusing the waveform, pulse
+// and reference of the previous one when they did not change: the common
+// case while a user drags a target. The zero Engine is ready to use. An
+// Engine is not safe for concurrent use.
+type Engine struct {
+	last *model
+}
+
+// Evaluate is the package function Evaluate with reuse of the previous
+// scenario's waveform and reference.
+func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
+	m, err := newModel(s, e.last)
+	if err != nil {
+		return nil, err
+	}
+	sc, err := newScene(ctx, m)
+	if err != nil {
+		return nil, err
+	}
+	res := &Result{}
+	res.Report.Version = ReportVersion
+	res.Report.Scenario = s.Name
+	res.Report.Waveform = m.waveformReport()
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	res.Report.Targets = sc.targetReports(ctx, m, true)
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	if sc.train != nil {
+		if res.Series, err = sc.train.series(ctx); err != nil {
+			return nil, err
+		}
+	} else {
+		res.Series = sc.series()
+	}
+	res.Report.Warnings = append([]string{}, m.warnings...)
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	e.last = m
+	return res, nil
+}
+
+// Analyse computes the report alone, without plot series or suggestions:
+// the cheaper path for sweeps.
+func Analyse(ctx context.Context, s *Scenario) (*Report, error) {
+	return new(Engine).Analyse(ctx, s)
+}
+
+// Analyse is the package function Analyse with reuse of the previous
+// scenario's waveform and reference, as in Evaluate.
+func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
+	m, err := newModel(s, e.last)
+	if err != nil {
+		return nil, err
+	}
+	sc, err := newScene(ctx, m)
+	if err != nil {
+		return nil, err
+	}
+	rep := &Report{Version: ReportVersion, Scenario: s.Name, Waveform: m.waveformReport()}
+	rep.Targets = sc.targetReports(ctx, m, false)
+	rep.Warnings = append([]string{}, m.warnings...)
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	e.last = m
+	return rep, nil
+}
+
+func (m *model) figures() dsp.Figures {
+	if m.fig == nil {
+		f := dsp.ResponseFigures(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
+		m.fig = &f
+	}
+	return *m.fig
+}
+
+// interpBandwidth returns the bandwidth the figures interpolate the
+// compressed response with, or 0 to measure it at its samples: a code at
+// about one sample per chip is not band-limited at the sample rate, and
+// interpolating its samples would invent sidelobes between them.
+func (m *model) interpBandwidth() float64 {
+	if m.s.Waveform.IsPhaseCode() && m.fs*m.s.Waveform.ChipS < 1.5 {
+		return 0
+	}
+	return m.s.Waveform.Bandwidth()
+}
+
+// doppler returns the peak loss (dB) and time shift (s) of the compressed
+// response at Doppler shift fd, cached per model.
+func (m *model) doppler(fd float64) dopFigure {
+	if m.dop == nil {
+		m.dop = make(map[float64]dopFigure)
+	}
+	d, ok := m.dop[fd]
+	if !ok {
+		if m.dopPlan == nil {
+			m.dopPlan = dsp.NewDopplerPlan(m.pulse, m.ref, m.fs)
+		}
+		d.lossDB, d.shift = m.dopPlan.Response(fd)
+		m.dop[fd] = d
+	}
+	return d
+}
+
+func (m *model) waveformReport() WaveformReport {
+	w, r := m.s.Waveform, m.s.Radar
+	fig := m.figures()
+	B, tau := w.Bandwidth(), w.PulseWidth()
+	rep := WaveformReport{
+		Kind:                   w.Kind,
+		PulseWidthS:            tau,
+		BandwidthHz:            B,
+		TimeBandwidth:          B * tau,
+		CompressionGainDB:      dsp.DB(B * tau),
+		PSLRDB:                 fig.PSLRDB,
+		ISLRDB:                 fig.ISLRDB,
+		Mainlobe3dBM:           fig.Mainlobe3dB * C / 2,
+		MismatchLossDB:         fig.MismatchLossDB,
+		BlindRangeM:            C * tau / 2,
+		UnambiguousRangeM:      C * r.PRIS / 2,
+		UnambiguousVelocityMPS: m.lambda / (4 * r.PRIS),
+	}
+	if r.Pulses > 1 {
+		dres := 1 / (float64(r.Pulses) * r.PRIS)
+		vres := dres * m.lambda / 2
+		rep.DopplerResolutionHz, rep.VelocityResolutionMPS = &dres, &vres
+	}
+	return rep
+}
+
+// eclipseLossDB returns the loss of the compressed peak when only the
+// part of the pulse after the transmit blanking is heard.
+func (m *model) eclipseLossDB(g *tgt) float64 {
+	if g.t.Kind != TargetPoint || g.received >= 1 {
+		return 0
+	}
+	if g.received <= 0 {
+		return math.Inf(1)
+	}
+	first := int(math.Ceil((m.tau - 2*g.apparent/C) * m.fs))
+	var full, part complex128
+	for i, p := range m.pulse {
+		if i+m.lead < 0 || i+m.lead >= len(m.ref) {
+			continue
+		}
+		c := p * cmplx.Conj(m.ref[i+m.lead])
+		full += c
+		if i >= first {
+			part += c
+		}
+	}
+	if cmplx.Abs(part) == 0 {
+		return math.Inf(1)
+	}
+	return -dsp.DB(cmplx.Abs(part) * cmplx.Abs(part) / (cmplx.Abs(full) * cmplx.Abs(full)))
+}
+
+// targetReports builds the per-target part of the report. With suggest,
+// a target that is not detected gets a verified change in its reason.
+func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []TargetReport {
+	cf := m.detector()
+	fig := m.figures()
+	budget := suggestionBudget(m)
+	var cf2 *dsp.CFAR2D
+	if sc.train != nil {
+		cf2 = sc.train.cfar()
+		budget = 0 // changes are verified on single pulses only
+	}
+	out := make([]TargetReport, len(sc.targets))
+	for j, g := range sc.targets {
+		v := sc.judge(j, cf)
+		single := v
+		bin := -1
+		if sc.train != nil {
+			v, bin = sc.train.judge(j, cf2)
+		}
+		d := m.doppler(g.fd)
+		tr := TargetReport{
+			ID:            g.t.ID,
+			RangeM:        g.rangeM,
+			DopplerHz:     g.fd,
+			DopplerLossDB: d.lossDB,
+			RangeShiftM:   d.shift * C / 2,
+			Status:        v.status,
+			MarginDB:      v.margin(),
+		}
+		if g.t.Kind != TargetPoint && v.peakK >= 0 {
+			tr.RangeM = m.rangeOf(float64(v.peakK))
+		}
+		tr.SNRDB = sc.snrDB(g, tr.RangeM, fig, d.lossDB)
+		if v.culprit >= 0 {
+			tr.MaskedBy = sc.targets[v.culprit].t.ID
+		}
+		tr.Reason = sc.reason(g, v, tr, cf)
+		if sc.train != nil {
+			sc.train.report(j, v, single, bin, &tr)
+		}
+		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && budget > 0 && ctx.Err() == nil {
+			if hint := suggestFix(ctx, m, j, v, &budget); hint != "" {
+				tr.Reason += " " + hint
+			}
+		}
+		if tr.Status == StatusOutOfWindow && g.t.Kind == TargetPoint {
+			m.warn("target %s at %s is outside the receive window %s–%s", g.t.ID, km(g.t.RangeM), km(m.s.Radar.WindowStartM), km(m.s.Radar.WindowStopM))
+		}
+		out[j] = tr
+	}
+	return out
+}
+
+// snrDB is the report's expected single-pulse SNR: the radar equation
+// less mismatch, Doppler and eclipsing losses; per resolution cell for
+// distributed targets.
+func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.Figures, dopLoss float64) float64 {
+	m := sc.m
+	r := m.s.Radar
+	var sigma float64
+	switch g.t.Kind {
+	case TargetPoint:
+		sigma = dsp.FromDB(g.t.RCSDBsm)
+	case TargetExtended:
+		sigma = dsp.FromDB(g.t.RCSDBsmPerM) * C / (2 * m.s.Waveform.Bandwidth())
+	case TargetVolume:
+		az, el := r.BeamwidthAzDeg*math.Pi/180, r.BeamwidthElDeg*math.Pi/180
+		sigma = dsp.VolumeReflectivity(g.t.ReflectivityDBZ, m.lambda) * dsp.BeamArea(rangeM, az, el) * C / (2 * m.s.Waveform.Bandwidth())
+	}
+	if rangeM <= 0 {
+		return dbFloor
+	}
+	snr := dsp.RadarSNR(r.PeakPowerW, m.tau, dsp.FromDB(r.AntennaGainDBi), m.lambda, sigma, rangeM,
+		dsp.FromDB(r.NoiseFigureDB), dsp.FromDB(r.SystemLossDB))
+	v := dsp.DB(snr) - fig.MismatchLossDB - dopLoss - m.eclipseLossDB(g)
+	return math.Max(v, dbFloor)
+}
+
+// series synthesises the noisy receive window, compresses it and returns
+// the plot series.
+func (sc *scene) series() Series {
+	m := sc.m
+	x := make([]complex128, m.n+m.lead)
+	echo := x[m.lead:]
+	for _, g := range sc.targets {
+		switch {
+		case g.t.Kind == TargetPoint && g.amp > 0:
+			rng := streamOf(m.s.Seed, g.t.ID, 0x5157)
+			amp := g.amp * math.Sqrt(dsp.SwerlingRCS(rng, 1, swerling(g.t.Fluctuation)))
+			dsp.AddEcho(echo, m.wave, m.fs, g.delay, complex(amp, 0)*g.phase, g.fd)
+		case g.density != nil:
+			sc.newClutterField(g).add(echo, 0)
+		}
+	}
+	noise := streamOf(m.s.Seed, "", 0x4e01)
+	for i := range echo {
+		echo[i] += dsp.ComplexNormal(noise)
+	}
+	sc.blank(echo, 0)
+	// x holds lead zeros, then the echo: an echo at window sample d peaks at y[d].
+	y := dsp.NewCorrelator(m.ref, len(x)).Apply(nil, x)
+	s := Series{
+		RangeM0:     m.rangeOf(0),
+		RangeStepM:  C / (2 * m.fs),
+		Echo:        append([]complex128(nil), echo...),
+		ProfileDB:   make([]float64, m.n),
+		CleanDB:     make([]float64, m.n),
+		ThresholdDB: make([]float64, m.n),
+	}
+	for k := range m.n {
+		v := y[k]
+		s.ProfileDB[k] = toDB((real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain)
+		s.CleanDB[k] = toDB(sc.total[k])
+	}
+	if cf := m.detector(); cf != nil {
+		p := make([]float64, m.n)
+		for k := range p {
+			p[k] = 1 + sc.total[k]
+		}
+		th := cf.Thresholds(nil, p)
+		for k, t := range th {
+			s.ThresholdDB[k] = toDB(t)
+		}
+	} else {
+		t := toDB(dsp.FixedMultiplier(m.s.Receiver.Detector.PFA))
+		for k := range s.ThresholdDB {
+			s.ThresholdDB[k] = t
+		}
+	}
+	for k := 0; k < m.blankEnd(); k++ {
+		s.ProfileDB[k], s.CleanDB[k] = dbFloor, dbFloor
+	}
+	s.Response = m.response()
+	return s
+}
+
+// response returns the zero-Doppler response of the waveform alone.
+func (m *model) response() Response {
+	t, db := dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
+	r := Response{RangeM: make([]float64, len(t)), DB: make([]float64, len(db))}
+	for i := range t {
+		r.RangeM[i] = t[i] * C / 2
+		r.DB[i] = math.Max(db[i], -120)
+	}
+	return r
+}
+
+// clutterField is a realisation of a distributed target: complex Gaussian
+// reflectivity on the window grid with the expected density, each
+// scatterer with its own range rate drawn from the target's velocity
+// spread, convolved with the pulse and shifted by the mean Doppler.
+type clutterField struct {
+	m    *model
+	g    *tgt
+	rho  []complex128 // reflectivity per grid sample, √(noise power) units
+	dphi []float64    // per-pulse phase step of each scatterer, rad
+	rev  []complex128 // the time-reversed conjugate pulse: correlating with it convolves
+	corr *dsp.Correlator
+	x, y []complex128
+}
+
+func (sc *scene) newClutterField(g *tgt) *clutterField {
+	m := sc.m
+	rng := streamOf(m.s.Seed, g.t.ID, 0xc1a7)
+	np := len(m.pulse)
+	n := len(g.density) + np
+	f := &clutterField{m: m, g: g, rho: make([]complex128, len(g.density)), dphi: make([]float64, len(g.density))}
+	for i, q := range g.density {
+		f.rho[i] = complex(math.Sqrt(q), 0) * dsp.ComplexNormal(rng)
+	}
+	if sd := g.t.VelocitySpreadMPS; sd > 0 {
+		vr := streamOf(m.s.Seed, g.t.ID, 0x5bead)
+		for i := range f.dphi {
+			f.dphi[i] = -4 * math.Pi * sd * vr.NormFloat64() * m.s.Radar.PRIS / m.lambda
+		}
+	}
+	rev := make([]complex128, np)
+	for i, p := range m.pulse {
+		rev[np-1-i] = cmplx.Conj(p)
+	}
+	f.rev = rev
+	f.corr = dsp.NewCorrelator(rev, n+np)
+	f.x = make([]complex128, n+np)
+	f.y = make([]complex128, n+np)
+	return f
+}
+
+// clone returns a field that shares the realisation but has buffers of
+// its own, for another goroutine.
+func (f *clutterField) clone() *clutterField {
+	c := *f
+	c.corr = dsp.NewCorrelator(f.rev, len(f.x))
+	c.x = make([]complex128, len(f.x))
+	c.y = make([]complex128, len(f.y))
+	return &c
+}
+
+// add adds pulse p's echo of the field to a receive window.
+func (f *clutterField) add(echo []complex128, p int) {
+	m := f.m
+	np := len(m.pulse)
+	clear(f.x)
+	for i, r := range f.rho {
+		if f.dphi[i] != 0 && p > 0 {
+			r *= cmplx.Rect(1, f.dphi[i]*float64(p))
+		}
+		f.x[np-1+i] = r
+	}
+	f.corr.Apply(f.y, f.x)
+	// y[t] = Σ_i ρ[i]·pulse[t−i]: the echo at window sample dlo + t. The
+	// mean Doppler advances the carrier phase by 2π·f_d·PRI per pulse.
+	t0 := float64(p) * m.s.Radar.PRIS
+	for t := 0; t < len(f.rho)+np; t++ {
+		k := f.g.dlo + t
+		if k >= len(echo) {
+			break
+		}
+		echo[k] += f.y[t] * cmplx.Rect(1, 2*math.Pi*f.g.fd*(float64(k)/m.fs+t0))
+	}
+}
+
+func swerling(f string) int {
+	switch f {
+	case "swerling1":
+		return dsp.Swerling1
+	case "swerling2":
+		return dsp.Swerling2
+	case "swerling3":
+		return dsp.Swerling3
+	case "swerling4":
+		return dsp.Swerling4
+	}
+	return dsp.SwerlingNone
+}

@@ -1,0 +1,253 @@
+package scenarios
+
+import (
+	"fmt"
+	"math"
+
+	"github.com/pulsewright/pulsewright/dsp"
+)
+
+// model is a scenario turned into the quantities the evaluation needs:
+// the sampled pulse, the receive reference and the window geometry.
+type model struct {
+	s         *Scenario
+	wave      dsp.Waveform
+	fs        float64      // sample rate, Hz
+	pulse     []complex128 // transmitted pulse sampled at t = i/fs from its leading edge
+	ref       []complex128 // receive reference (correlating)
+	lead      int          // samples the reference extends before the echo
+	noiseGain float64      // Σ|ref|²: output noise power for unit input noise
+	n         int          // samples in the receive window
+	t0        float64      // time of window sample 0 after the leading edge, s
+	tau       float64      // pulse width, s
+	lambda    float64      // wavelength, m
+	noiseW    float64      // input noise power k·T0·F·fs, W
+	unambM    float64      // unambiguous range c·PRI/2, m
+	warnings  []string
+	// refWarnings are the warnings of building the reference, carried
+	// over when a later model reuses it.
+	refWarnings []string
+	fig         *dsp.Figures          // figures of the reference, computed once
+	dop         map[float64]dopFigure // Doppler loss and shift by Doppler shift
+	dopPlan     *dsp.DopplerPlan
+}
+
+// dopFigure is the Doppler response of the reference at one Doppler shift.
+type dopFigure struct{ lossDB, shift float64 }
+
+// sameWaveform reports whether two waveform specs describe the same pulse.
+func sameWaveform(a, b Waveform) bool {
+	if a.Kind != b.Kind || a.PulseWidthS != b.PulseWidthS || a.BandwidthHz != b.BandwidthHz || a.Sweep != b.Sweep ||
+		a.DesignSidelobeDB != b.DesignSidelobeDB || a.Length != b.Length || a.Degree != b.Degree || a.Root != b.Root ||
+		a.ChipS != b.ChipS || a.Binary != b.Binary || len(a.PhasesDeg) != len(b.PhasesDeg) {
+		return false
+	}
+	for i := range a.PhasesDeg {
+		if a.PhasesDeg[i] != b.PhasesDeg[i] {
+			return false
+		}
+	}
+	return true
+}
+
+// buildWaveform maps the scenario's waveform onto its dsp form.
+func buildWaveform(w Waveform) (dsp.Waveform, error) {
+	code := func(phases []float64, err error) (dsp.Waveform, error) {
+		if err != nil {
+			return nil, err
+		}
+		return dsp.PhaseCoded{Phases: phases, Chip: w.ChipS}, nil
+	}
+	switch w.Kind {
+	case KindRect:
+		return dsp.Rect{Width: w.PulseWidthS}, nil
+	case KindLFM:
+		return dsp.LFM{Width: w.PulseWidthS, Band: w.BandwidthHz, Down: w.Sweep == "down"}, nil
+	case KindNLFM:
+		return dsp.NewNLFM(w.PulseWidthS, w.BandwidthHz, w.DesignSidelobeDB)
+	case KindBarker:
+		return code(dsp.Barker(w.Length))
+	case KindMPS:
+		return code(dsp.MPS(w.Length))
+	case KindMLS:
+		return code(dsp.MLS(w.Degree))
+	case KindFrank:
+		return code(dsp.Frank(w.Length))
+	case KindP1:
+		return code(dsp.P1(w.Length))
+	case KindP2:
+		return code(dsp.P2(w.Length))
+	case KindP3:
+		return code(dsp.P3(w.Length))
+	case KindP4:
+		return code(dsp.P4(w.Length))
+	case KindZadoffChu:
+		return code(dsp.ZadoffChu(w.Length, w.Root))
+	case KindCostas:
+		order, err := dsp.WelchCostas(w.Length)
+		if err != nil {
+			return nil, err
+		}
+		return dsp.Costas{Order: order, Chip: w.ChipS}, nil
+	case KindPhaseCode:
+		if w.Binary != "" {
+			return code(dsp.BinaryPhases(w.Binary))
+		}
+		ph := make([]float64, len(w.PhasesDeg))
+		for i, d := range w.PhasesDeg {
+			ph[i] = d * math.Pi / 180
+		}
+		return dsp.PhaseCoded{Phases: ph, Chip: w.ChipS}, nil
+	}
+	return nil, fmt.Errorf("waveform kind %q: %w", w.Kind, ErrInvalid)
+}
+
+// dspWindow maps a window spec onto its dsp form; none gives nil.
+func dspWindow(w Window) dsp.Window {
+	switch w.Kind {
+	case WindowHann:
+		return dsp.Hann{}
+	case WindowHamming:
+		return dsp.Hamming{}
+	case WindowBlackman:
+		return dsp.Blackman{}
+	case WindowBlackmanHarris:
+		return dsp.BlackmanHarris{}
+	case WindowTaylor:
+		return dsp.Taylor{NBar: w.NBar, SidelobeDB: w.SidelobeDB}
+	case WindowChebyshev:
+		return dsp.Chebyshev{SidelobeDB: w.SidelobeDB}
+	case WindowKaiser:
+		return dsp.Kaiser{Beta: w.Beta}
+	case WindowGaussian:
+		return dsp.Gaussian{Sigma: w.Sigma}
+	}
+	return nil
+}
+
+// newModel prepares the evaluation of a valid scenario. When prev is not
+// nil, the parts that depend only on unchanged fields (the waveform, the
+// sampled pulse, the reference) are taken from it instead of rebuilt.
+func newModel(s *Scenario, prev *model) (*model, error) {
+	sameWave := prev != nil && sameWaveform(prev.s.Waveform, s.Waveform)
+	var wave dsp.Waveform
+	if sameWave {
+		wave = prev.wave
+	} else {
+		var err error
+		if wave, err = buildWaveform(s.Waveform); err != nil {
+			return nil, fmt.Errorf("build waveform: %w", err)
+		}
+	}
+	r := s.Radar
+	m := &model{
+		s:      s,
+		wave:   wave,
+		fs:     r.SampleRateHz,
+		tau:    s.Waveform.PulseWidth(),
+		lambda: r.Wavelength(),
+		n:      s.WindowSamples(),
+		t0:     2 * r.WindowStartM / C,
+		unambM: C * r.PRIS / 2,
+	}
+	m.noiseW = dsp.NoisePower(dsp.FromDB(r.NoiseFigureDB), m.fs)
+	if sameWave && prev.fs == m.fs {
+		m.pulse = prev.pulse
+		rx, prx := s.Receiver, prev.s.Receiver
+		if rx.Filter == prx.Filter && rx.FilterLengthFactor == prx.FilterLengthFactor && rx.Window == prx.Window {
+			m.ref, m.lead, m.noiseGain = prev.ref, prev.lead, prev.noiseGain
+			m.fig, m.dop, m.dopPlan = prev.fig, prev.dop, prev.dopPlan
+			m.warnings = append(m.warnings, prev.refWarnings...)
+			m.refWarnings = prev.refWarnings
+			m.checkSampling()
+			return m, nil
+		}
+	} else {
+		m.pulse = dsp.Sample(nil, wave, m.fs, 0)
+	}
+	switch s.Receiver.Filter {
+	case FilterLeastSquares:
+		// Keep the matched main lobe of an oversampled code (samples per chip > 1).
+		half := int(math.Ceil(m.fs*s.Waveform.ChipS-1e-9)) - 1
+		h, lead, err := dsp.LeastSquaresFilterMainlobe(m.pulse, s.Receiver.FilterLengthFactor*len(m.pulse), max(half, 0))
+		if err != nil {
+			return nil, fmt.Errorf("least-squares filter: %w", err)
+		}
+		m.ref, m.lead = h, lead
+		if s.Receiver.Window.Kind != WindowNone {
+			m.warn("receiver.window %s is not applied: the least-squares filter sets its own weighting", s.Receiver.Window.Kind)
+			m.refWarnings = append(m.refWarnings, m.warnings[len(m.warnings)-1])
+		}
+	default:
+		m.ref = dsp.Reference(nil, m.pulse, dspWindow(s.Receiver.Window))
+	}
+	for _, v := range m.ref {
+		m.noiseGain += real(v)*real(v) + imag(v)*imag(v)
+	}
+	if m.noiseGain == 0 || math.IsNaN(m.noiseGain) {
+		return nil, fmt.Errorf("receive reference has no energy: %w", ErrInvalid)
+	}
+	m.checkSampling()
+	return m, nil
+}
+
+func (m *model) warn(format string, args ...any) {
+	m.warnings = append(m.warnings, fmt.Sprintf(format, args...))
+}
+
+// checkSampling warns about sample rates that cost accuracy.
+func (m *model) checkSampling() {
+	B := m.s.Waveform.Bandwidth()
+	if m.fs < 1.2*B {
+		m.warn("sample rate %s is only %.2f× the bandwidth %s: expect aliasing and straddle loss; 2× is usual", hz(m.fs), m.fs/B, hz(B))
+	}
+	if m.s.Waveform.Kind == KindCostas && m.fs < 2*B {
+		m.warn("costas hops span %s; sample at twice that or more to avoid aliasing the outer hops", hz(B))
+	}
+	if m.s.Radar.WindowStartM < C*m.tau/2 {
+		m.warn("the receive window starts at %.0f m, inside the %.0f m blind range of the %s pulse: the receiver is blanked there", m.s.Radar.WindowStartM, C*m.tau/2, sec(m.tau))
+	}
+}
+
+// rangeOf returns the range in m of window sample k.
+func (m *model) rangeOf(k float64) float64 { return C * (m.t0 + k/m.fs) / 2 }
+
+// sampleOf returns the (fractional) window sample of a range in m.
+func (m *model) sampleOf(r float64) float64 { return (2*r/C - m.t0) * m.fs }
+
+// blankEnd returns the first window sample the receiver hears: samples
+// before it fall inside the transmit pulse.
+func (m *model) blankEnd() int {
+	k := math.Ceil((m.tau - m.t0) * m.fs)
+	return int(math.Min(math.Max(k, 0), float64(m.n)))
+}
+
+// fold returns the apparent range of a true range r and the number of
+// PRIs it folds by.
+func (m *model) fold(r float64) (float64, int) {
+	n := math.Floor(r / m.unambM)
+	return r - n*m.unambM, int(n)
+}
+
+func hz(v float64) string  { return siUnit(v, "Hz") }
+func sec(v float64) string { return siUnit(v, "s") }
+
+// siUnit formats v with an SI prefix: 2e-5, "s" → "20 µs".
+func siUnit(v float64, unit string) string {
+	for _, p := range []struct {
+		f float64
+		p string
+	}{{1e9, "G"}, {1e6, "M"}, {1e3, "k"}, {1, ""}, {1e-3, "m"}, {1e-6, "µ"}, {1e-9, "n"}} {
+		if math.Abs(v) >= p.f {
+			return fmt.Sprintf("%.3g %s%s", v/p.f, p.p, unit)
+		}
+	}
+	return fmt.Sprintf("%.3g %s", v, unit)
+}
+
+func km(r float64) string {
+	if math.Abs(r) >= 1000 {
+		return fmt.Sprintf("%.2f km", r/1000)
+	}
+	return fmt.Sprintf("%.0f m", r)
+}

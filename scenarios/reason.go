@@ -1,0 +1,246 @@
+package scenarios
+
+import (
+	"context"
+	"fmt"
+	"math"
+
+	"github.com/pulsewright/pulsewright/dsp"
+)
+
+// detectorName names the detector for a reason sentence.
+func detectorName(d Detector) string {
+	switch d.Kind {
+	case DetectorCA:
+		return "CA-CFAR"
+	case DetectorOS:
+		return "OS-CFAR"
+	}
+	return "fixed"
+}
+
+// reason writes the one-sentence explanation of a verdict, with the
+// numbers that decide it.
+func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string {
+	m := sc.m
+	r := m.s.Radar
+	det := detectorName(m.s.Receiver.Detector)
+	id := g.t.ID
+	switch v.status {
+	case StatusDetected:
+		return fmt.Sprintf("Detected: its peak, %.1f dB above noise, clears the %s threshold by %.1f dB.", dsp.DB(v.peak), det, *tr.MarginDB)
+	case StatusOutOfWindow:
+		if g.t.Kind == TargetPoint && g.folds > 0 {
+			where := "outside the receive window"
+			if g.apparent >= r.WindowStartM && g.apparent <= r.WindowStopM {
+				where = "inside the window, where it looks like a target at that range"
+			}
+			return fmt.Sprintf("Beyond the unambiguous range of %s: the echo from %s arrives after the next pulse and folds to an apparent %s, %s.", km(m.unambM), km(g.rangeM), km(g.apparent), where)
+		}
+		if g.t.Kind != TargetPoint && g.t.RangeStartM >= m.unambM {
+			return fmt.Sprintf("Beyond the unambiguous range of %s: its echoes fold back by %d PRI(s) and appear nearer than they are.", km(m.unambM), g.folds)
+		}
+		return fmt.Sprintf("Outside the receive window %s–%s: at %s its peak is not recorded.", km(r.WindowStartM), km(r.WindowStopM), km(g.rangeM))
+	case StatusEclipsed:
+		blind := C * m.tau / 2
+		heard := "its range gates are not processed"
+		if g.t.Kind == TargetPoint {
+			heard = fmt.Sprintf("only %.0f %% of its echo is heard (%.1f dB lost) and its range gate is not processed", 100*g.received, m.eclipseLossDB(g))
+		}
+		return fmt.Sprintf("Eclipsed: at %s it lies inside the %s blind range of the %s pulse; the receiver is blanked while transmitting, so %s.", km(g.apparent), km(blind), sec(m.tau), heard)
+	case StatusBelowNoise:
+		return fmt.Sprintf("Below noise: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone.", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel))
+	}
+	// Masked.
+	by := "the rest of the scene"
+	var other *tgt
+	if v.culprit >= 0 {
+		other = sc.targets[v.culprit]
+		by = other.t.ID
+	}
+	clear := dsp.DB(v.peak / v.noiseLevel)
+	if v.byCell {
+		what := "range sidelobe"
+		if other != nil && g.t.Kind == TargetPoint && other.t.Kind == TargetPoint {
+			sep := math.Abs(other.apparent - g.apparent)
+			if sep < m.resolution() {
+				what = fmt.Sprintf("main lobe (only %.1f m apart, inside the %.1f m resolution)", sep, m.resolution())
+			}
+		} else if other != nil && other.t.Kind != TargetPoint && g.t.Kind == TargetPoint && g.apparent >= other.t.RangeStartM && g.apparent <= other.t.RangeStopM {
+			what = "clutter in the same cell"
+		}
+		return fmt.Sprintf("Masked by %s: its %s puts %.1f dB more power into %s's cell than %s's own peak, which would clear the noise-only threshold by %.1f dB.",
+			by, what, dsp.DB(v.cell/v.peak), id, id, clear)
+	}
+	cells := fmt.Sprintf("%d training cells", cf.Train)
+	if sc.train != nil && sc.train.cfar() != nil {
+		cells = fmt.Sprintf("%d training cells around it on the range–Doppler map", c2DCells(sc.train.cfar()))
+	}
+	return fmt.Sprintf("Masked by %s through the %s: its echo in the %s lifts the threshold %.1f dB above %s's peak, which would clear the noise-only threshold by %.1f dB.",
+		by, det, cells, dsp.DB(v.threshold/v.peak), id, clear)
+}
+
+// resolution returns the mainlobe half-width between nulls as a range, m:
+// targets closer than this are not resolved.
+func (m *model) resolution() float64 {
+	return C / (2 * m.s.Waveform.Bandwidth())
+}
+
+// suggestionBudget bounds the extra evaluations spent verifying changes,
+// so a large scene stays interactive.
+func suggestionBudget(m *model) int {
+	work := m.n + len(m.s.Targets)*(len(m.pulse)+2*len(m.ref))
+	switch {
+	case work > 1<<19:
+		return 0
+	case work > 1<<16:
+		return 3
+	}
+	return 8
+}
+
+// candidate is one change to try for a target that is not detected.
+type candidate struct {
+	text  string
+	apply func(s *Scenario) bool // false when it does not apply
+}
+
+// suggestFix tries a few changes a radar engineer would try first and
+// returns a sentence naming the first that makes target j detected, with
+// its margin; "" when none does within the budget.
+func suggestFix(ctx context.Context, base *model, j int, v verdict, budget *int) string {
+	s := base.s
+	for _, c := range candidates(s, j, v) {
+		if *budget <= 0 || ctx.Err() != nil {
+			return ""
+		}
+		t := s.clone()
+		if !c.apply(t) || t.Validate() != nil {
+			continue
+		}
+		*budget--
+		m, err := newModel(t, base)
+		if err != nil {
+			continue
+		}
+		sc, err := newScene(ctx, m)
+		if err != nil {
+			return ""
+		}
+		if w := sc.judge(j, m.detector()); w.status == StatusDetected {
+			return fmt.Sprintf("%s would detect it with %.1f dB margin.", c.text, *w.margin())
+		}
+	}
+	return ""
+}
+
+func (s *Scenario) clone() *Scenario {
+	t := *s
+	t.Targets = append([]Target(nil), s.Targets...)
+	t.Waveform.PhasesDeg = append([]float64(nil), s.Waveform.PhasesDeg...)
+	if s.Waveform.PhasesDeg == nil {
+		t.Waveform.PhasesDeg = nil
+	}
+	return &t
+}
+
+func candidates(s *Scenario, j int, v verdict) []candidate {
+	w := s.Waveform
+	fm := w.Kind == KindLFM || w.Kind == KindNLFM || w.Kind == KindRect
+	scale := func(k float64) func(*Scenario) bool {
+		return func(t *Scenario) bool {
+			if fm {
+				t.Waveform.PulseWidthS *= k
+				if t.Waveform.Kind == KindRect {
+					t.Radar.SampleRateHz /= k
+				}
+			} else {
+				t.Waveform.ChipS *= k
+				t.Radar.SampleRateHz /= k
+			}
+			return true
+		}
+	}
+	longer := func(k float64) string {
+		if fm {
+			return fmt.Sprintf("A %g× longer pulse (%s)", k, sec(w.PulseWidth()*k))
+		}
+		return fmt.Sprintf("A %g× longer chip (%s, pulse %s)", k, sec(w.ChipS*k), sec(w.PulseWidth()*k))
+	}
+	window := func(win Window) func(*Scenario) bool {
+		return func(t *Scenario) bool {
+			if t.Receiver.Filter != FilterMatched || t.Receiver.Window == win {
+				return false
+			}
+			t.Receiver.Window = win
+			return true
+		}
+	}
+	switch v.status {
+	case StatusEclipsed:
+		return []candidate{
+			{fmt.Sprintf("A pulse half as long (%s, blind range %s)", sec(w.PulseWidth()/2), km(C*w.PulseWidth()/4)), scale(0.5)},
+			{fmt.Sprintf("A pulse a quarter as long (%s, blind range %s)", sec(w.PulseWidth()/4), km(C*w.PulseWidth()/8)), scale(0.25)},
+		}
+	case StatusBelowNoise:
+		return []candidate{{longer(2), scale(2)}, {longer(4), scale(4)}}
+	}
+	c := []candidate{
+		{"A Taylor window (−35 dB, n̄ 5)", window(Window{Kind: WindowTaylor, SidelobeDB: -35, NBar: 5})},
+		{"A Taylor window (−45 dB, n̄ 8)", window(Window{Kind: WindowTaylor, SidelobeDB: -45, NBar: 8})},
+		{"A 4-term Blackman–Harris window", window(Window{Kind: WindowBlackmanHarris})},
+	}
+	if w.IsPhaseCode() && s.Receiver.Filter == FilterMatched {
+		c = append([]candidate{{"A least-squares mismatched filter (3× the code length)", func(t *Scenario) bool {
+			t.Receiver.Filter = FilterLeastSquares
+			t.Receiver.FilterLengthFactor = 3
+			t.Receiver.Window = Window{Kind: WindowNone}
+			return true
+		}}}, c...)
+	}
+	if w.Kind == KindLFM || w.Kind == KindNLFM {
+		c = append(c, candidate{fmt.Sprintf("Twice the bandwidth (%s)", hz(2*w.BandwidthHz)), func(t *Scenario) bool {
+			t.Waveform.BandwidthHz *= 2
+			t.Radar.SampleRateHz *= 2
+			return true
+		}})
+	}
+	if v.byCell {
+		return c
+	}
+	// Masked through the CFAR: when the culprit is distributed, change
+	// the detector first; when it is a point target, its sidelobes fill
+	// the training cells, so lower them first.
+	d := s.Receiver.Detector
+	cf := []candidate{
+		{"An OS-CFAR detector (same cells, rank ¾)", func(t *Scenario) bool {
+			if d.Kind != DetectorCA {
+				return false
+			}
+			t.Receiver.Detector = Detector{Kind: DetectorOS, PFA: d.PFA, GuardCells: d.GuardCells, TrainingCells: d.TrainingCells, Rank: (3*d.TrainingCells + 3) / 4}
+			return true
+		}},
+		fewerCells(d, 2), fewerCells(d, 4),
+	}
+	if v.culprit >= 0 && s.Targets[v.culprit].Kind != TargetPoint {
+		return append(cf, c...)
+	}
+	return append(c, cf...)
+}
+
+// fewerCells returns the candidate of a CFAR with 1/k of the training
+// cells, so that fewer of them reach an extended return.
+func fewerCells(d Detector, k int) candidate {
+	n := d.TrainingCells / k
+	n -= n % 2
+	return candidate{fmt.Sprintf("%d training cells instead of %d", n, d.TrainingCells), func(t *Scenario) bool {
+		if n < 2 {
+			return false
+		}
+		t.Receiver.Detector.TrainingCells = n
+		if t.Receiver.Detector.Kind == DetectorOS {
+			t.Receiver.Detector.Rank = (3*n + 3) / 4
+		}
+		return true
+	}}
+}

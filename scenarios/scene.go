@@ -1,0 +1,279 @@
+package scenarios
+
+import (
+	"context"
+	"hash/fnv"
+	"math"
+	"math/cmplx"
+	"math/rand/v2"
+
+	"github.com/pulsewright/pulsewright/dsp"
+)
+
+// maxFolds bounds how many unambiguous intervals of a distributed target
+// are folded into the window.
+const maxFolds = 64
+
+// response is one target's noise-free compressed output power over part of
+// the window, in units of the output noise power: pow[i] is sample lo+i.
+type response struct {
+	lo  int
+	pow []float64
+}
+
+// at returns the power at window sample k (0 outside the support).
+func (r *response) at(k int) float64 {
+	if k < r.lo || k >= r.lo+len(r.pow) {
+		return 0
+	}
+	return r.pow[k-r.lo]
+}
+
+// peak returns the window sample of the largest power and that power; -1
+// when the support holds no power.
+func (r *response) peak() (int, float64) {
+	best, bk := 0.0, -1
+	for i, p := range r.pow {
+		if p > best {
+			best, bk = p, r.lo+i
+		}
+	}
+	return bk, best
+}
+
+// scene is the noise-free analysis of every target.
+type scene struct {
+	m       *model
+	targets []*tgt
+	total   []float64 // Σ of every target's power per window sample
+	train   *train    // slow-time processing when radar.pulses > 1
+}
+
+// tgt is one target's geometry and noise-free response.
+type tgt struct {
+	t        Target
+	rangeM   float64 // true range (point) or near edge (distributed), m
+	apparent float64 // apparent range after folding, m
+	folds    int
+	fd       float64    // Doppler shift, Hz
+	amp      float64    // point: echo amplitude for the mean RCS, √(noise power) units
+	phase    complex128 // point: carrier phase of the echo
+	delay    float64    // point: echo leading edge after window sample 0, s
+	received float64    // point: fraction of the pulse heard after blanking
+	resp     response
+	density  []float64
+	dlo      int
+}
+
+func streamOf(seed int64, id string, salt uint64) *rand.Rand {
+	h := fnv.New64a()
+	h.Write([]byte(id))
+	return rand.New(rand.NewPCG(uint64(seed), h.Sum64()^salt))
+}
+
+// newScene computes the noise-free response of every target. Work is
+// checked against ctx between targets.
+func newScene(ctx context.Context, m *model) (*scene, error) {
+	sc := &scene{m: m, total: make([]float64, m.n)}
+	lp := &localPlan{m: m}
+	for _, t := range m.s.Targets {
+		if err := ctx.Err(); err != nil {
+			return nil, err
+		}
+		g := &tgt{t: t, fd: -2 * t.RangeRateMPS / m.lambda}
+		switch t.Kind {
+		case TargetPoint:
+			sc.point(g, lp)
+		default:
+			if err := sc.distributed(ctx, g, lp); err != nil {
+				return nil, err
+			}
+		}
+		for i, p := range g.resp.pow {
+			sc.total[g.resp.lo+i] += p
+		}
+		sc.targets = append(sc.targets, g)
+	}
+	if m.s.Radar.Pulses > 1 {
+		sc.train = newTrain(m, sc)
+	}
+	return sc, nil
+}
+
+// localPlan correlates short buffers that hold one echo and its full
+// compressed response: length len(pulse) + 2·len(ref) + 2.
+type localPlan struct {
+	m    *model
+	c    *dsp.Correlator
+	x, y []complex128
+}
+
+func (lp *localPlan) size() int { return len(lp.m.pulse) + 2*len(lp.m.ref) + 2 }
+
+func (lp *localPlan) ensure() {
+	if lp.c == nil {
+		n := lp.size()
+		lp.c = dsp.NewCorrelator(lp.m.ref, n)
+		lp.x = make([]complex128, n)
+		lp.y = make([]complex128, n)
+	}
+}
+
+// point places a point target's echo at exact fractional delay and
+// compresses it alone.
+func (sc *scene) point(g *tgt, lp *localPlan) {
+	m := sc.m
+	g.rangeM = g.t.RangeM
+	g.apparent, g.folds = m.fold(g.t.RangeM)
+	sigma := dsp.FromDB(g.t.RCSDBsm)
+	r := sc.m.s.Radar
+	if g.t.RangeM <= 0 {
+		return // at the antenna: no meaningful echo
+	}
+	pr := dsp.ReceivedPower(r.PeakPowerW, dsp.FromDB(r.AntennaGainDBi), m.lambda, sigma, g.t.RangeM, dsp.FromDB(r.SystemLossDB))
+	g.amp = math.Sqrt(pr / m.noiseW)
+	g.phase = cmplx.Rect(1, -4*math.Pi*math.Mod(g.t.RangeM/m.lambda, 1))
+	start := 2 * g.apparent / C // echo leading edge after the transmit edge, s
+	g.delay = start - m.t0
+	g.received = 1
+	if start < m.tau {
+		g.received = math.Max(0, start/m.tau)
+	}
+	lp.ensure()
+	d := g.delay * m.fs
+	b := int(math.Floor(d)) - len(m.ref)
+	clear(lp.x)
+	dsp.AddEcho(lp.x, m.wave, m.fs, g.delay-float64(b)/m.fs, complex(g.amp, 0)*g.phase, g.fd)
+	sc.blank(lp.x, b)
+	lp.c.Apply(lp.y, lp.x)
+	// y[j] is the output at window sample b+j+lead.
+	lo, hi := max(b+m.lead, 0), min(b+m.lead+len(lp.y), m.n)
+	if lo >= hi {
+		return
+	}
+	g.resp = response{lo: lo, pow: make([]float64, hi-lo)}
+	for k := lo; k < hi; k++ {
+		v := lp.y[k-b-m.lead]
+		g.resp.pow[k-lo] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
+	}
+}
+
+// blank zeroes the samples of a buffer starting at window sample b that
+// the receiver does not record: inside the transmit pulse or outside the
+// window.
+func (sc *scene) blank(x []complex128, b int) {
+	end := sc.m.blankEnd()
+	for i := range x {
+		if k := b + i; k < end || k >= sc.m.n {
+			x[i] = 0
+		}
+	}
+}
+
+// distributed computes the expected power density of an extended or volume
+// target on the window grid (its scatterers summed per sample) and the
+// expected compressed power: density convolved with |response kernel|².
+func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
+	m := sc.m
+	r := m.s.Radar
+	g.rangeM = g.t.RangeStartM
+	g.apparent, g.folds = m.fold(g.t.RangeStartM)
+	dr := C / (2 * m.fs) // range per sample, m
+	az, el := r.BeamwidthAzDeg*math.Pi/180, r.BeamwidthElDeg*math.Pi/180
+	perMetre := func(R float64) float64 {
+		if g.t.Kind == TargetExtended {
+			return dsp.FromDB(g.t.RCSDBsmPerM)
+		}
+		return dsp.VolumeReflectivity(g.t.ReflectivityDBZ, m.lambda) * dsp.BeamArea(R, az, el)
+	}
+	k0 := 1 / m.noiseW * r.PeakPowerW * math.Pow(dsp.FromDB(r.AntennaGainDBi), 2) * m.lambda * m.lambda /
+		(math.Pow(4*math.Pi, 3) * dsp.FromDB(r.SystemLossDB))
+	density := make([]float64, m.n)
+	end := m.blankEnd()
+	lo, hi := m.n, -1
+	first := int(math.Floor(g.t.RangeStartM / m.unambM))
+	last := int(math.Floor(g.t.RangeStopM / m.unambM))
+	if last-first >= maxFolds {
+		last = first + maxFolds - 1
+		m.warn("target %s spans more than %d unambiguous intervals; only the nearest %d are simulated", g.t.ID, maxFolds, maxFolds)
+	}
+	for f := first; f <= last; f++ {
+		base := float64(f) * m.unambM
+		// True ranges of this fold that land in the window.
+		a := math.Max(g.t.RangeStartM, base+m.rangeOf(0))
+		b := math.Min(g.t.RangeStopM, base+m.rangeOf(float64(m.n-1)+0.5))
+		if a >= b {
+			continue
+		}
+		ka := int(math.Max(0, math.Floor(m.sampleOf(a-base))))
+		kb := int(math.Min(float64(m.n-1), math.Ceil(m.sampleOf(b-base))))
+		for k := ka; k <= kb; k++ {
+			// Range slab of sample k: [rk−dr/2, rk+dr/2) clipped to the target.
+			rk := m.rangeOf(float64(k)) + base
+			s0, s1 := math.Max(rk-dr/2, g.t.RangeStartM), math.Min(rk+dr/2, g.t.RangeStopM)
+			if s1 <= s0 || k < end || rk <= 0 {
+				continue
+			}
+			density[k] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4)
+			lo, hi = min(lo, k), max(hi, k)
+		}
+		if err := ctx.Err(); err != nil {
+			return err
+		}
+	}
+	if hi < 0 {
+		return nil
+	}
+	g.density, g.dlo = density[lo:hi+1], lo
+	// Response kernel |r(l)|² of the Doppler-shifted pulse, l = −len(ref)+1 … len(pulse)−1.
+	lp.ensure()
+	clear(lp.x)
+	dsp.AddEcho(lp.x, m.wave, m.fs, float64(len(m.ref))/m.fs, 1, g.fd)
+	lp.c.Apply(lp.y, lp.x)
+	// y[j] is the response at lag j + lead − len(ref) from the echo's start.
+	kern := make([]float64, len(lp.y))
+	for j, v := range lp.y {
+		kern[j] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
+	}
+	off := len(m.ref) - m.lead
+	outLo, outHi := max(lo-off, 0), min(hi+len(kern)-off, m.n)
+	pow := make([]float64, outHi-outLo)
+	if len(g.density)*len(kern) <= 1<<22 {
+		for i, q := range g.density {
+			if q == 0 {
+				continue
+			}
+			for j, kv := range kern {
+				if k := lo + i + j - off; k >= outLo && k < outHi {
+					pow[k-outLo] += q * kv
+				}
+			}
+		}
+	} else {
+		convolveFFT(pow, outLo, g.density, lo, kern, off)
+	}
+	g.resp = response{lo: outLo, pow: pow}
+	return nil
+}
+
+// convolveFFT adds Σ_i q[i]·kern[k−(qlo+i)+off] to dst[k−dlo] by FFT
+// correlation with the reversed kernel.
+func convolveFFT(dst []float64, dlo int, q []float64, qlo int, kern []float64, off int) {
+	n := len(q) + len(kern)
+	rev := make([]complex128, len(kern))
+	for j, v := range kern {
+		rev[len(kern)-1-j] = complex(v, 0)
+	}
+	x := make([]complex128, n)
+	for i, v := range q {
+		x[len(kern)-1+i] = complex(v, 0)
+	}
+	y := dsp.NewCorrelator(rev, n).Apply(nil, x)
+	// y[t] = Σ_{i+j=t} q[i]·kern[j], which lands on sample k = qlo + t − off.
+	for t, v := range y {
+		k := t + qlo - off
+		if k >= dlo && k < dlo+len(dst) {
+			dst[k-dlo] += math.Max(real(v), 0)
+		}
+	}
+}
