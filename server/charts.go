@@ -16,9 +16,10 @@ import (
 
 // Chart names of a frame's charts map (DEVELOPERS.md, Websocket protocol).
 const (
-	ChartEcho     = "echo"
-	ChartProfile  = "profile"
-	ChartResponse = "response"
+	ChartEcho      = "echo"
+	ChartProfile   = "profile"
+	ChartResponse  = "response"
+	ChartAmbiguity = "ambiguity"
 )
 
 // Series ids. The page merges data updates by these ids.
@@ -33,6 +34,7 @@ const (
 	SeriesReference = "reference"
 	SeriesMarkers   = "markers"
 	SeriesResponse  = "response"
+	SeriesAmbiguity = "ambiguity"
 )
 
 // Colours of our own palette, chosen for contrast on a light background.
@@ -65,6 +67,10 @@ type chartOut struct {
 	key    string       // changes whenever the full option must be sent
 	option []byte       // the full ECharts option
 	data   []seriesData // per-series data, for a merge
+	// static charts change rarely (the waveform's response, the
+	// ambiguity surface): their key names their data too, and a chart
+	// the page holds under the same key is left out of the frame.
+	static bool
 }
 
 // seriesData is one series' encoded data array.
@@ -153,6 +159,12 @@ func (b *builder) build(name, key string) chartOut {
 		}
 	}
 	opt["series"] = series
+	return b.splice(name, key, opt)
+}
+
+// splice encodes opt, whose series data are placeholders, and puts the
+// encoded data of b in their places.
+func (b *builder) splice(name, key string, opt map[string]any) chartOut {
 	skeleton, err := json.Marshal(opt)
 	if err != nil {
 		panic("server: chart option not encodable: " + err.Error()) // options hold no user numbers but the axis bounds we clamp
@@ -301,7 +313,9 @@ func responseChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartO
 		b.add(SeriesReference, "pinned", colourReference, responseSeries(&ref.Series.Response, vw.width), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
 		key += "+ref"
 	}
-	return b.build(ChartResponse, key)
+	out := b.build(ChartResponse, key)
+	out.static = true
+	return out
 }
 
 func responseSeries(r *scenarios.Response, width int) []byte {
@@ -311,6 +325,81 @@ func responseSeries(r *scenarios.Response, width int) []byte {
 	}
 	g := grid{n: n, xs: r.RangeM[:n]}
 	return dbSeries(g, r.DB, plan(g, nil, width))
+}
+
+// Ambiguity surface: grid on the screen and colours from the floor (left
+// blank) to the peak.
+const (
+	ambiguityCols    = 201
+	ambiguityRows    = 81
+	ambiguityFloorDB = -60.0
+)
+
+var ambiguityColours = []string{"#f4f4ee", "#c9ddd4", "#6aa9a4", "#2b6a8f", "#182848"}
+
+// visualMapJSON patches the bounds of a go-echarts visual map: they are
+// float32 with omitempty, so a maximum of 0 dB would vanish and ECharts
+// would take 200.
+type visualMapJSON struct {
+	opts.VisualMap
+	Min float64 `json:"min"`
+	Max float64 `json:"max"`
+}
+
+// ambiguityChart plots |χ(τ, f_d)| as a heat map: delay (as range) across,
+// Doppler up, dB re the peak. Cells at the floor are left out.
+func ambiguityChart(a *scenarios.AmbiguitySurface, version int) chartOut {
+	c := charts.NewHeatMap()
+	vm := opts.VisualMap{Calculable: opts.Bool(true), Dimension: "2", Orient: "vertical", Right: "0", Top: "middle",
+		InRange: &opts.VisualMapInRange{Color: ambiguityColours}}
+	c.SetGlobalOptions(
+		charts.WithTitleOpts(opts.Title{Title: "Ambiguity surface (dB re peak)", Left: "center"}),
+		charts.WithAnimation(false),
+		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
+		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "delay as range (m)", NameLocation: "middle", NameGap: 28, Data: roundAll(a.DelayM, 1, 10)}),
+		charts.WithYAxisOpts(opts.YAxis{Type: "category", Name: "Doppler (kHz)", Data: roundAll(a.DopplerHz, 1e-3, 100)}),
+		charts.WithVisualMapOpts(vm),
+	)
+	c.AddSeries("|χ|", nil, charts.WithSeriesId(SeriesAmbiguity))
+	c.Validate()
+	opt := c.JSON()
+	opt["visualMap"] = []visualMapJSON{{VisualMap: vm, Min: ambiguityFloorDB, Max: 0}}
+	ms := c.MultiSeries
+	ms[0].Data = nil
+	opt["series"] = []seriesJSON{{SingleSeries: ms[0], Data: placeholder(0)}}
+	var cells []byte
+	cells = append(cells, '[')
+	for r, row := range a.DB {
+		for col, v := range row {
+			if !(v > ambiguityFloorDB) {
+				continue
+			}
+			if len(cells) > 1 {
+				cells = append(cells, ',')
+			}
+			cells = append(cells, '[')
+			cells = strconv.AppendInt(cells, int64(col), 10)
+			cells = append(cells, ',')
+			cells = strconv.AppendInt(cells, int64(r), 10)
+			cells = append(cells, ',')
+			cells = appendFixed(cells, clampDB(v), 1)
+			cells = append(cells, ']')
+		}
+	}
+	cells = append(cells, ']')
+	b := &builder{data: []seriesData{{id: SeriesAmbiguity, data: cells}}}
+	out := b.splice(ChartAmbiguity, fmt.Sprintf("ambiguity/%d", version), opt)
+	out.static = true
+	return out
+}
+
+// roundAll returns v·scale rounded to 1/per, as axis labels.
+func roundAll(v []float64, scale, per float64) []float64 {
+	out := make([]float64, len(v))
+	for i, x := range v {
+		out[i] = math.Round(clampAmp(x*scale)*per) / per
+	}
+	return out
 }
 
 // buildCharts makes every chart of a frame.

@@ -1,6 +1,7 @@
 package server
 
 import (
+	"context"
 	"encoding/json"
 	"math"
 	"strconv"
@@ -150,6 +151,47 @@ func TestChartOptions(t *testing.T) {
 				t.Errorf("markers %+v", marks)
 			}
 		}
+	}
+}
+
+func TestAmbiguityOption(t *testing.T) {
+	d, _ := scenarios.LoadDemo("harbour-skiff")
+	a, err := scenarios.Ambiguity(context.Background(), d.Scenario, ambiguityCols, ambiguityRows)
+	if err != nil {
+		t.Fatal(err)
+	}
+	c := ambiguityChart(a, 7)
+	var opt struct {
+		VisualMap []map[string]any `json:"visualMap"`
+		Series    []struct {
+			ID   string       `json:"id"`
+			Type string       `json:"type"`
+			Data [][3]float64 `json:"data"`
+		} `json:"series"`
+		XAxis []struct {
+			Data []float64 `json:"data"`
+		} `json:"xAxis"`
+	}
+	if err := json.Unmarshal(c.option, &opt); err != nil {
+		t.Fatalf("%v: %.300s", err, c.option)
+	}
+	if vm := opt.VisualMap[0]; vm["max"] != 0.0 || vm["min"] != ambiguityFloorDB {
+		t.Errorf("visual map bounds %v %v (a 0 dropped by omitempty?)", vm["min"], vm["max"])
+	}
+	if !c.static || c.key != "ambiguity/7" || len(opt.Series) != 1 || opt.Series[0].Type != "heatmap" || len(opt.XAxis[0].Data) != len(a.DelayM) {
+		t.Fatalf("chart %s %v: %+v", c.key, c.static, opt.XAxis)
+	}
+	peak := 0
+	for _, cell := range opt.Series[0].Data {
+		if cell[2] <= ambiguityFloorDB || cell[2] > 0 {
+			t.Fatalf("cell %v outside (floor, 0]", cell)
+		}
+		if cell[2] == 0 && int(cell[0]) == len(a.DelayM)/2 && int(cell[1]) == len(a.DopplerHz)/2 {
+			peak++
+		}
+	}
+	if peak != 1 {
+		t.Error("the peak is not at zero delay and zero Doppler") // |χ(0,0)| is the maximum of any ambiguity function
 	}
 }
 

@@ -1,6 +1,7 @@
 package server
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"errors"
@@ -29,6 +30,12 @@ type evalCache struct {
 	pin     *scenarios.Scenario // nil when unpinned
 	pinRes  *scenarios.Result
 	pinRept []byte
+
+	ambKey string    // the waveform and sample rate the surface is of
+	amb    *chartOut // nil when there is none
+
+	statics map[string]chartOut // the last static chart of each name
+	version int                 // counts static chart versions
 }
 
 // compute evaluates the newest state the reader posted and puts its frame
@@ -107,12 +114,67 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 	if c.res == nil {
 		return nil, nil // a view or pin before the first good scenario
 	}
-	f := &frame{id: w.id, report: c.report, link: c.link, charts: buildCharts(c.res, c.pinRes, w.view)}
+	if err := ss.ambiguity(ctx, c); err != nil {
+		return nil, err
+	}
+	f := &frame{id: w.id, report: c.report, link: c.link, charts: c.settle(buildCharts(c.res, c.pinRes, w.view))}
+	if c.amb != nil {
+		f.charts = append(f.charts, *c.amb)
+	}
 	if c.pin != nil {
 		f.reference = c.pinRept
 	}
 	f.computeMS = math.Round(float64(time.Since(start).Microseconds())/10) / 100
 	return f, nil
+}
+
+// settle gives each static chart a key that names its data: the previous
+// key when the option is byte for byte the same, a new one otherwise.
+func (c *evalCache) settle(cs []chartOut) []chartOut {
+	if c.statics == nil {
+		c.statics = map[string]chartOut{}
+	}
+	for i, ch := range cs {
+		if !ch.static {
+			continue
+		}
+		if last, ok := c.statics[ch.name]; ok && bytes.Equal(last.option, ch.option) {
+			cs[i].key = last.key
+			continue
+		}
+		c.version++
+		cs[i].key += "#" + strconv.Itoa(c.version)
+		c.statics[ch.name] = cs[i]
+	}
+	return cs
+}
+
+// ambiguity computes the ambiguity surface of the last good scenario's
+// pulse when its waveform or sample rate changed. A surface that cannot
+// be computed is logged and left out; only cancellation is an error.
+func (ss *session) ambiguity(ctx context.Context, c *evalCache) error {
+	w, err := json.Marshal(c.scn.Waveform)
+	if err != nil {
+		return err
+	}
+	key := string(w) + "@" + strconv.FormatFloat(c.scn.Radar.SampleRateHz, 'g', -1, 64)
+	if key == c.ambKey {
+		return nil
+	}
+	a, err := scenarios.Ambiguity(ctx, c.scn, ambiguityCols, ambiguityRows)
+	switch {
+	case ctx.Err() != nil:
+		return ctx.Err()
+	case err != nil:
+		ss.log.Warn("ambiguity surface", "err", err)
+		c.amb = nil
+	default:
+		c.version++
+		ch := ambiguityChart(a, c.version)
+		c.amb = &ch
+	}
+	c.ambKey = key
+	return nil
 }
 
 // takePin decodes and evaluates a new pin, or unpins.
@@ -171,10 +233,15 @@ func (f *frame) encode(sent map[string]string) []byte {
 	b = append(b, `,"link":`...)
 	b = append(b, f.link...)
 	b = append(b, `,"charts":{`...)
-	for i, c := range f.charts {
-		if i > 0 {
+	first := true
+	for _, c := range f.charts {
+		if c.static && sent[c.name] == c.key {
+			continue // the page holds this very chart
+		}
+		if !first {
 			b = append(b, ',')
 		}
+		first = false
 		b = strconv.AppendQuote(b, c.name)
 		if sent[c.name] == c.key {
 			b = append(b, `:{"replace":false,"option":`...)

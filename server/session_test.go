@@ -99,9 +99,22 @@ func TestSessionEdits(t *testing.T) {
 		}
 	}
 
-	// Another scene of the same structure: data-only merges by series id.
+	if _, ok := m.Charts[ChartAmbiguity]; !ok {
+		t.Error("no ambiguity surface in the first frame")
+	}
+	// Another scene of the same structure: data-only merges by series id;
+	// the waveform changed, so its response and surface come whole.
 	sendScenario(t, c, 2, mustDemoJSON(t, "rocky-coast"))
 	m = next(t, c, 2)
+	for _, name := range []string{ChartResponse, ChartAmbiguity} {
+		if !m.Charts[name].Replace {
+			t.Errorf("chart %s of a new waveform: replace false", name)
+		}
+		delete(m.Charts, name)
+	}
+	if len(m.Charts) != 2 {
+		t.Errorf("charts %v, want echo and profile", len(m.Charts))
+	}
 	for name, ch := range m.Charts {
 		var opt struct {
 			Series []map[string]json.RawMessage `json:"series"`
@@ -117,40 +130,51 @@ func TestSessionEdits(t *testing.T) {
 		}
 	}
 
-	// A bad edit is answered with its problems; the session lives on.
-	sendScenario(t, c, 3, `{"version":1,"waveform":{"kind":"barker","length":6,"chip_s":1e-6}}`)
+	// Only the seed changes: the waveform's charts are left out.
+	sendScenario(t, c, 3, strings.Replace(mustDemoJSON(t, "rocky-coast"), `"seed":23`, `"seed":24`, 1))
 	m = next(t, c, 3)
+	if _, ok := m.Charts[ChartResponse]; ok || len(m.Charts) != 2 {
+		t.Errorf("seed change: charts %d, response sent again", len(m.Charts))
+	}
+
+	// A bad edit is answered with its problems; the session lives on.
+	sendScenario(t, c, 13, `{"version":1,"waveform":{"kind":"barker","length":6,"chip_s":1e-6}}`)
+	m = next(t, c, 13)
 	if m.Type != MsgError || len(m.Fields) != 1 || m.Fields[0].Path != "waveform.length" {
 		t.Fatalf("bad edit: %+v", m)
 	}
-	send(t, c, "bogus", 4, "")
-	if m = next(t, c, 4); m.Type != MsgError || !strings.Contains(m.Error, "unknown message type") {
+	send(t, c, MsgPin, 14, `,"scenario":{"version":1}`)
+	if m = next(t, c, 14); m.Type != MsgError || m.Error != "invalid pinned scenario" || len(m.Fields) == 0 {
+		t.Fatalf("bad pin: %+v", m)
+	}
+	send(t, c, "bogus", 15, "")
+	if m = next(t, c, 15); m.Type != MsgError || !strings.Contains(m.Error, "unknown message type") {
 		t.Fatalf("unknown type: %+v", m)
 	}
 	// It keeps the last good scenario: a zoom re-plots rocky-coast.
 	calls := eval.calls.Load()
-	send(t, c, MsgView, 5, `,"range_m":[10000,12000],"width_px":400`)
-	m = next(t, c, 5)
+	send(t, c, MsgView, 16, `,"range_m":[10000,12000],"width_px":400`)
+	m = next(t, c, 16)
 	if m.Type != MsgFrame || m.Report.Scenario != "Patrol boat off a rocky coast" {
 		t.Fatalf("view after a bad edit: %+v", m)
 	}
 	if eval.calls.Load() != calls {
 		t.Error("a view change evaluated the scenario again")
 	}
-	send(t, c, MsgView, 6, `,"range_m":[5,1],"width_px":400`)
-	if m = next(t, c, 6); m.Type != MsgError {
+	send(t, c, MsgView, 17, `,"range_m":[5,1],"width_px":400`)
+	if m = next(t, c, 17); m.Type != MsgError {
 		t.Fatalf("reversed range: %+v", m)
 	}
 
 	// Pinning adds the reference series and report: a structure change.
-	send(t, c, MsgPin, 7, `,"scenario":`+skiff)
-	m = next(t, c, 7)
+	send(t, c, MsgPin, 18, `,"scenario":`+skiff)
+	m = next(t, c, 18)
 	if m.Reference == nil || m.Reference.Scenario != "Harbour approach: skiff beside a tanker" || !m.Charts[ChartProfile].Replace ||
 		!strings.Contains(string(m.Charts[ChartProfile].Option), `"id":"reference"`) || m.Charts[ChartEcho].Replace {
 		t.Fatalf("pin: reference %v, profile replace %v", m.Reference, m.Charts[ChartProfile].Replace)
 	}
-	send(t, c, MsgPin, 8, `,"scenario":null`)
-	m = next(t, c, 8)
+	send(t, c, MsgPin, 19, `,"scenario":null`)
+	m = next(t, c, 19)
 	if m.Reference != nil || !m.Charts[ChartProfile].Replace || strings.Contains(string(m.Charts[ChartProfile].Option), `"id":"reference"`) {
 		t.Fatalf("unpin: %+v", m.Reference)
 	}
