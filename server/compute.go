@@ -90,7 +90,7 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 		if err != nil {
 			return nil, &editError{id: w.scn.id, err: err}
 		}
-		res, err := ss.srv.eval(ctx, sc)
+		res, err := ss.eval(ctx, sc)
 		if err != nil {
 			c.scnSeq = 0 // evaluate again next time, unless a newer edit comes
 			return nil, &editError{id: w.scn.id, err: err}

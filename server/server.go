@@ -44,6 +44,10 @@ type Config struct {
 	MaxSessions int           // open websocket sessions at most; default 64
 	APITimeout  time.Duration // deadline of a REST request; default 30 s
 	StartDemo   string        // the demo the page opens on; default scenarios.DefaultDemo
+	// SessionEvaluator, when set, makes each websocket session its own
+	// evaluator for the edited scenario, one that may keep state from edit
+	// to edit (a scenarios.Engine). It is used by one goroutine at a time.
+	SessionEvaluator func() Evaluator
 }
 
 // Server is the workbench's HTTP server.

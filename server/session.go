@@ -81,6 +81,7 @@ var sessionIDs atomic.Uint64
 // writeLoop the only writer, compute the only evaluator.
 type session struct {
 	srv    *Server
+	eval   Evaluator // of the edited scenario; the pin uses srv.eval
 	conn   *websocket.Conn
 	log    *slog.Logger
 	work   mailbox[want]
@@ -116,11 +117,15 @@ func (s *Server) handleWS(w http.ResponseWriter, r *http.Request) {
 	defer conn.Close()
 	sess := &session{
 		srv:    s,
+		eval:   s.eval,
 		conn:   conn,
 		log:    s.log.With("session", sessionIDs.Add(1)),
 		work:   newMailbox[want](),
 		frames: newMailbox[*frame](),
 		errs:   newMailbox[*errorMsg](),
+	}
+	if s.cfg.SessionEvaluator != nil {
+		sess.eval = s.cfg.SessionEvaluator()
 	}
 	sess.log.Info("session open", "remote", r.RemoteAddr)
 	ctx, cancel := context.WithCancel(s.ctx)

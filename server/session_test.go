@@ -266,3 +266,33 @@ func TestSessionReadLimit(t *testing.T) {
 		t.Fatalf("oversized message: %v, want close 1009", err)
 	}
 }
+
+// TestSessionRealEvaluator runs every demo through a session with the
+// real evaluation: each gives a frame whose charts are valid JSON.
+func TestSessionRealEvaluator(t *testing.T) {
+	s, err := New(Config{DataDir: t.TempDir(), SessionEvaluator: func() Evaluator { return new(scenarios.Engine).Evaluate }}, testLogger(t), scenarios.Evaluate)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ts := httptest.NewServer(s.Handler())
+	defer ts.Close()
+	defer s.Close(context.Background())
+	c := mustDial(t, ts, nil)
+	demos, err := scenarios.Demos()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, d := range demos {
+		id := int64(i + 1)
+		sendScenario(t, c, id, mustDemoJSON(t, d.Name))
+		m := next(t, c, id)
+		if m.Type != MsgFrame || m.Report == nil || len(m.Report.Targets) != len(d.Scenario.Targets) {
+			t.Fatalf("%s: %+v", d.Name, m)
+		}
+		for name, ch := range m.Charts {
+			if !json.Valid(ch.Option) {
+				t.Errorf("%s: chart %s is not JSON", d.Name, name)
+			}
+		}
+	}
+}

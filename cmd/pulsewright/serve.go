@@ -84,6 +84,9 @@ func (e *env) serve(args []string) error {
 		h = slog.NewJSONHandler(e.stderr, opts)
 	}
 	log := slog.New(h)
+	// Each session keeps an engine that reuses the waveform and reference
+	// while only the targets change.
+	c.SessionEvaluator = func() server.Evaluator { return new(scenarios.Engine).Evaluate }
 	srv, err := server.New(c.Config, log, scenarios.Evaluate)
 	if err != nil {
 		return err
