@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+	"sync"
 	"time"
 
 	"github.com/gorilla/websocket"
@@ -149,9 +150,10 @@ func (c *evalCache) settle(cs []chartOut) []chartOut {
 	return cs
 }
 
-// ambiguity computes the ambiguity surface of the last good scenario's
-// pulse when its waveform or sample rate changed. A surface that cannot
-// be computed is logged and left out; only cancellation is an error.
+// ambiguity finds the ambiguity surface of the last good scenario's pulse
+// when its waveform or sample rate changed, from the server's cache or by
+// computing it. A surface that cannot be computed is logged and left
+// out; only cancellation is an error.
 func (ss *session) ambiguity(ctx context.Context, c *evalCache) error {
 	w, err := json.Marshal(c.scn.Waveform)
 	if err != nil {
@@ -161,20 +163,66 @@ func (ss *session) ambiguity(ctx context.Context, c *evalCache) error {
 	if key == c.ambKey {
 		return nil
 	}
-	a, err := scenarios.Ambiguity(ctx, c.scn, ambiguityCols, ambiguityRows)
-	switch {
-	case ctx.Err() != nil:
-		return ctx.Err()
-	case err != nil:
-		ss.log.Warn("ambiguity surface", "err", err)
-		c.amb = nil
-	default:
-		c.version++
-		ch := ambiguityChart(a, c.version)
-		c.amb = &ch
+	ch, ok := ss.srv.ambs.get(key)
+	if !ok {
+		a, err := scenarios.Ambiguity(ctx, c.scn, ambiguityCols, ambiguityRows)
+		switch {
+		case ctx.Err() != nil:
+			return ctx.Err()
+		case err != nil:
+			ss.log.Warn("ambiguity surface", "err", err)
+			ch = nil
+		default:
+			out := ambiguityChart(a, ss.srv.ambs.version())
+			ch = &out
+		}
+		ss.srv.ambs.put(key, ch)
 	}
-	c.ambKey = key
+	c.amb, c.ambKey = ch, key
 	return nil
+}
+
+// chartCache keeps the last few ambiguity charts by waveform, shared by
+// the sessions: tabs and demos share waveforms, and a surface costs more
+// than a frame. Entries are never changed once stored.
+type chartCache struct {
+	mu    sync.Mutex
+	byKey map[string]*chartOut
+	order []string // oldest first
+	seq   int
+}
+
+const chartCacheSize = 32
+
+func (cc *chartCache) get(key string) (*chartOut, bool) {
+	cc.mu.Lock()
+	defer cc.mu.Unlock()
+	ch, ok := cc.byKey[key]
+	return ch, ok
+}
+
+func (cc *chartCache) put(key string, ch *chartOut) {
+	cc.mu.Lock()
+	defer cc.mu.Unlock()
+	if cc.byKey == nil {
+		cc.byKey = map[string]*chartOut{}
+	}
+	if _, ok := cc.byKey[key]; !ok {
+		cc.order = append(cc.order, key)
+	}
+	cc.byKey[key] = ch
+	if len(cc.order) > chartCacheSize {
+		delete(cc.byKey, cc.order[0])
+		cc.order = cc.order[1:]
+	}
+}
+
+// version numbers the charts made, so that keys stay unique.
+func (cc *chartCache) version() int {
+	cc.mu.Lock()
+	defer cc.mu.Unlock()
+	cc.seq++
+	return cc.seq
 }
 
 // takePin decodes and evaluates a new pin, or unpins.

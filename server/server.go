@@ -59,6 +59,7 @@ type Server struct {
 	static fs.FS
 	token  string
 	up     websocket.Upgrader
+	ambs   chartCache // ambiguity charts by waveform
 
 	ctx    context.Context // cancelled by Close: ends the sessions
 	cancel context.CancelFunc
