@@ -51,17 +51,30 @@ func (ss *session) compute(ctx context.Context) {
 			return
 		case w = <-ss.work.ch:
 		}
-		runCtx, cancel := context.WithCancel(ctx)
-		ss.setRun(w.gen, cancel)
-		f, err := ss.evaluate(runCtx, w, &cache)
-		stale := runCtx.Err() != nil
-		ss.setRun(0, nil)
-		cancel()
+		// Wait for a compute slot; a newer state that comes meanwhile
+		// replaces w. Blocked senders on a channel are served in order, so
+		// sessions take turns.
+		for waiting := true; waiting; {
+			select {
+			case <-ctx.Done():
+				return
+			case ss.srv.slots <- struct{}{}:
+				waiting = false
+			case w = <-ss.work.ch:
+			}
+		}
+		f, stale, err := ss.run(ctx, w, &cache)
+		for stale && ctx.Err() == nil {
+			// The reader posts before it cancels, so the newer state is
+			// waiting: run it in the slot already held.
+			ss.log.Debug("computation superseded", "id", w.id)
+			w = <-ss.work.ch
+			f, stale, err = ss.run(ctx, w, &cache)
+		}
+		<-ss.srv.slots
 		switch {
 		case ctx.Err() != nil:
 			return
-		case stale:
-			ss.log.Debug("computation superseded", "id", w.id)
 		case err != nil:
 			ss.errs.put(ss.evalError(err))
 		case f != nil:
@@ -69,6 +82,18 @@ func (ss *session) compute(ctx context.Context) {
 			ss.framed()
 		}
 	}
+}
+
+// run evaluates one state under a context that the reader cancels when
+// the state goes stale, and reports whether it did.
+func (ss *session) run(ctx context.Context, w want, c *evalCache) (*frame, bool, error) {
+	runCtx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	ss.setRun(w.gen, cancel)
+	f, err := ss.evaluate(runCtx, w, c)
+	stale := runCtx.Err() != nil
+	ss.setRun(0, nil)
+	return f, stale, err
 }
 
 // editError is a failed edit with the id of its message.

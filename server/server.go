@@ -18,6 +18,7 @@ import (
 	"net/http"
 	"net/netip"
 	"os"
+	"runtime"
 	"sync"
 	"time"
 
@@ -59,7 +60,8 @@ type Server struct {
 	static fs.FS
 	token  string
 	up     websocket.Upgrader
-	ambs   chartCache // ambiguity charts by waveform
+	ambs   chartCache    // ambiguity charts by waveform
+	slots  chan struct{} // one per computation allowed to run at once
 
 	ctx    context.Context // cancelled by Close: ends the sessions
 	cancel context.CancelFunc
@@ -102,7 +104,10 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	if err != nil {
 		return nil, err
 	}
-	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token}
+	// Sessions compute at most one per processor at a time: the rest wait
+	// blocked, so readers and writers stay responsive and edits coalesce
+	// in the mailboxes rather than in socket buffers.
+	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token, slots: make(chan struct{}, runtime.GOMAXPROCS(0))}
 	if s.token == "" && !isLoopback(host) {
 		b := make([]byte, 24)
 		rand.Read(b)
