@@ -20,6 +20,7 @@ import (
 	"os"
 	"runtime"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/gorilla/websocket"
@@ -66,10 +67,11 @@ type Server struct {
 	ctx    context.Context // cancelled by Close: ends the sessions
 	cancel context.CancelFunc
 
-	mu       sync.Mutex // guards open, closing and the Add of sessions
-	open     int
-	closing  bool
-	sessions sync.WaitGroup
+	mu         sync.Mutex // guards open, closing and the Add of sessions
+	open       int
+	closing    bool
+	sessions   sync.WaitGroup
+	sessionIDs atomic.Uint64 // numbers sessions in logs
 
 	ln  net.Listener
 	srv *http.Server

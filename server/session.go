@@ -9,7 +9,6 @@ import (
 	"math"
 	"net/http"
 	"sync"
-	"sync/atomic"
 	"time"
 
 	"github.com/gorilla/websocket"
@@ -75,8 +74,6 @@ type frame struct {
 	computeMS float64
 }
 
-var sessionIDs atomic.Uint64
-
 // session is one websocket connection: readLoop is the only reader,
 // writeLoop the only writer, compute the only evaluator.
 type session struct {
@@ -119,7 +116,7 @@ func (s *Server) handleWS(w http.ResponseWriter, r *http.Request) {
 		srv:    s,
 		eval:   s.eval,
 		conn:   conn,
-		log:    s.log.With("session", sessionIDs.Add(1)),
+		log:    s.log.With("session", s.sessionIDs.Add(1)),
 		work:   newMailbox[want](),
 		frames: newMailbox[*frame](),
 		errs:   newMailbox[*errorMsg](),

@@ -1,6 +1,7 @@
 package server
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"fmt"
@@ -71,6 +72,16 @@ func next(tb testing.TB, c *websocket.Conn, id int64) testMsg {
 		var m testMsg
 		if err := json.Unmarshal(data, &m); err != nil {
 			tb.Fatalf("message %.200s: %v", data, err)
+		}
+		// Every message has exactly the shape protocol.go defines.
+		var shape any = &errorMsg{}
+		if m.Type == MsgFrame {
+			shape = &frameMsg{}
+		}
+		dec := json.NewDecoder(bytes.NewReader(data))
+		dec.DisallowUnknownFields()
+		if err := dec.Decode(shape); err != nil {
+			tb.Fatalf("%s message does not match protocol.go: %v", m.Type, err)
 		}
 		if m.ID == id {
 			return m
