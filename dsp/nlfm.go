@@ -25,7 +25,7 @@ import (
 // interpolation to give the instantaneous frequency f(t), which runs from
 // −B/2 at t = 0 to +B/2 at t = τ. The phase φ(t) = 2π∫f dt is tabulated
 // (trapezoid with end correction, fourth order) on a uniform grid of at
-// least 64·B·τ points, with φ = 0 at the pulse centre, and At evaluates
+// least 16·B·τ points, with φ = 0 at the pulse centre, and At evaluates
 // u(t) = exp(jφ(t)) by cubic Hermite interpolation using f as the
 // derivative.
 //
@@ -56,7 +56,7 @@ const (
 // (Hz) whose spectrum follows a Taylor taper of sidelobe level
 // sidelobeDB (dB, negative, −70 … −20). B·τ must lie in 1 … 1e5; the
 // design is meant for B·τ ≥ 100. The phase table holds
-// min(max(64·B·τ, 4096), 2^22) + 1 points of two float64 each.
+// min(max(16·B·τ, 4096), 2^22) + 1 points of two float64 each.
 func NewNLFM(width, band, sidelobeDB float64) (*NLFM, error) {
 	if err := checkPositive("nlfm width", width, "s"); err != nil {
 		return nil, err
@@ -73,20 +73,30 @@ func NewNLFM(width, band, sidelobeDB float64) (*NLFM, error) {
 	}
 	a := math.Acosh(math.Pow(10, -sidelobeDB/20)) / math.Pi
 	nbar := min(max(int(math.Ceil(2*a*a+0.5)), 4), 12)
+	return newNLFMTaylor(width, band, sidelobeDB, nbar), nil
+}
+
+// newNLFMTaylor builds the NLFM for a Taylor taper of the given n̄;
+// parameters are already validated.
+func newNLFMTaylor(width, band, sidelobeDB float64, nbar int) *NLFM {
+	bt := width * band
 	coef := taylorCoefficients(nbar, sidelobeDB)
 	taper := func(x float64) float64 { // x = f/B in [−½, ½], mean 1
-		w := 1.0
-		for m, fm := range coef {
-			w += 2 * fm * math.Cos(2*math.Pi*float64(m+1)*x)
+		// cos(2πmx) by the angle-addition recurrence from m = 1.
+		s1, c1 := math.Sincos(2 * math.Pi * x)
+		w, c, s := 1.0, c1, s1
+		for _, fm := range coef {
+			w += 2 * fm * c
+			c, s = c*c1-s*s1, s*c1+c*s1
 		}
 		return w
 	}
 
-	m := min(max(int(64*bt), 4096), nlfmMaxTable)
+	m := min(max(int(16*bt), 4096), nlfmMaxTable)
 	g := &NLFM{width: width, band: band, sll: sidelobeDB, nbar: nbar, dt: width / float64(m)}
 
-	// Cumulative integral of the taper on a frequency grid 4× finer.
-	k := 4 * m
+	// Cumulative integral of the taper on a frequency grid 2× finer.
+	k := 2 * m
 	cum := make([]float64, k+1)
 	prev := taper(-0.5)
 	for i := 1; i <= k; i++ {
@@ -125,7 +135,7 @@ func NewNLFM(width, band, sidelobeDB float64) (*NLFM, error) {
 	for j := range g.phase {
 		g.phase[j] -= mid
 	}
-	return g, nil
+	return g
 }
 
 // Duration returns the pulse width τ in s.
