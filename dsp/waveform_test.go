@@ -194,6 +194,19 @@ func TestAddEchoExact(t *testing.T) {
 	}
 }
 
+func TestSampleMatchesAt(t *testing.T) {
+	for name, w := range echoWaveforms(t) {
+		for _, t0 := range []float64{0, -1.23e-6, 0.77e-6} {
+			x := Sample(make([]complex128, 300), w, 9.7e6, t0)
+			for n, v := range x {
+				if want := w.At(t0 + float64(n)/9.7e6); cmplx.Abs(v-want) > 1e-9 {
+					t.Fatalf("%s t0=%g: x[%d] = %v, At gives %v", name, t0, n, v, want)
+				}
+			}
+		}
+	}
+}
+
 func TestAddEchoEnergy(t *testing.T) {
 	// A constant-envelope echo fully inside dst adds |amp|²·τ·fs of energy
 	// (τ·fs whole: exactly that many samples lie in [0, τ)).
@@ -232,7 +245,7 @@ func TestRateCheckPanics(t *testing.T) {
 
 func BenchmarkAddEchoLFM5000(b *testing.B) {
 	const fs = 50e6
-	l := LFM{Width: 100e-6, Band: 10e6} // 5000 samples
+	var l Waveform = LFM{Width: 100e-6, Band: 10e6} // 5000 samples
 	dst := make([]complex128, 6000)
 	b.ReportAllocs()
 	for b.Loop() {
@@ -243,7 +256,7 @@ func BenchmarkAddEchoLFM5000(b *testing.B) {
 func BenchmarkAddEchoGenericLFM5000(b *testing.B) {
 	// The At-per-sample path, for comparison with the specialised one.
 	const fs = 50e6
-	w := struct{ Waveform }{LFM{Width: 100e-6, Band: 10e6}}
+	var w Waveform = struct{ Waveform }{LFM{Width: 100e-6, Band: 10e6}}
 	dst := make([]complex128, 6000)
 	b.ReportAllocs()
 	for b.Loop() {
@@ -253,7 +266,7 @@ func BenchmarkAddEchoGenericLFM5000(b *testing.B) {
 
 func BenchmarkSampleBarker13(b *testing.B) {
 	ph, _ := Barker(13)
-	p := PhaseCoded{Phases: ph, Chip: 1e-6}
+	var p Waveform = PhaseCoded{Phases: ph, Chip: 1e-6}
 	dst := make([]complex128, 52)
 	b.ReportAllocs()
 	for b.Loop() {
