@@ -41,6 +41,7 @@ import (
 // 1000; design −35 dB gives −32.7, −35.5 and −34.5 dB.
 //
 // An NLFM is immutable after construction and safe for concurrent use.
+// Build it with NewNLFM; the zero value is a pulse of zero width.
 type NLFM struct {
 	width, band, sll float64
 	taperDB          float64 // sidelobe level of the spectral taper used, dB
@@ -246,7 +247,7 @@ func (g *NLFM) At(t float64) complex128 {
 // 0 ≤ t ≤ τ (linear interpolation of the table), from −B/2 to +B/2; NaN
 // outside.
 func (g *NLFM) InstFreq(t float64) float64 {
-	if !(t >= 0 && t <= g.width) {
+	if !(t >= 0 && t <= g.width) || len(g.freq) < 2 {
 		return math.NaN()
 	}
 	j, s := g.cell(t)

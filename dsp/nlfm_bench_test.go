@@ -1,10 +1,13 @@
 package dsp
 
-import "testing"
+import (
+	"fmt"
+	"testing"
+)
 
 func BenchmarkNewNLFM(b *testing.B) {
 	for _, bt := range []float64{100, 1000, 10000} {
-		b.Run(fmtBT(bt), func(b *testing.B) {
+		b.Run(fmt.Sprintf("BT=%g", bt), func(b *testing.B) {
 			b.ReportAllocs()
 			for b.Loop() {
 				if _, err := NewNLFM(bt*1e-6, 1e6, -40); err != nil {
@@ -15,12 +18,15 @@ func BenchmarkNewNLFM(b *testing.B) {
 	}
 }
 
-func fmtBT(bt float64) string {
-	switch bt {
-	case 100:
-		return "BT=100"
-	case 1000:
-		return "BT=1000"
+func BenchmarkNLFMAt(b *testing.B) {
+	g, err := NewNLFM(100e-6, 10e6, -40)
+	if err != nil {
+		b.Fatal(err)
 	}
-	return "BT=10000"
+	var w Waveform = g
+	dst := make([]complex128, 5000)
+	b.ReportAllocs()
+	for b.Loop() {
+		Sample(dst, w, 50e6, 0)
+	}
 }
