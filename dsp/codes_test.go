@@ -57,6 +57,36 @@ func TestBarker(t *testing.T) {
 	}
 }
 
+func TestBarkerMeritAndNested(t *testing.T) {
+	// Merit factor F = N²/(2Σ_{k≥1} r_k²) = N²/ISL: check-values §3,
+	// Golay (14.08 for Barker-13, from memory).
+	for _, tc := range []struct {
+		n int
+		f float64
+	}{{13, 14.083}, {11, 12.100}, {7, 8.167}, {5, 6.250}} {
+		ph, _ := Barker(tc.n)
+		if got := float64(tc.n*tc.n) / CodeISL(ph); math.Abs(got-tc.f) > 0.001 {
+			t.Errorf("Barker-%d merit factor %.4f, want %.3f", tc.n, got, tc.f)
+		}
+	}
+	// Nested B4⊗B5 (outer Barker-4, each chip carrying Barker-5), N = 20:
+	// PSL 5, PSLR −12.04 dB (R-p307; check-values §3).
+	b4, _ := Barker(4)
+	b5, _ := Barker(5)
+	var nested []float64
+	for _, o := range b4 {
+		for _, i := range b5 {
+			nested = append(nested, o+i)
+		}
+	}
+	if got := CodePSL(nested); math.Abs(got-5) > codeTol {
+		t.Errorf("B4⊗B5 PSL = %v, want 5", got)
+	}
+	if got := CodePSLRDB(nested); math.Abs(got+12.04) > 0.01 {
+		t.Errorf("B4⊗B5 PSLR = %.3f dB, want −12.04", got)
+	}
+}
+
 func TestBarker13ACF(t *testing.T) {
 	// R-p305 and check-values §3: lags 0…12 of Barker-13 are 13,0,1,0,1,…
 	ph, _ := Barker(13)
