@@ -94,9 +94,9 @@ func suggestionBudget(m *model) int {
 	case work > 1<<19:
 		return 0
 	case work > 1<<16:
-		return 3
+		return 2
 	}
-	return 8
+	return 5
 }
 
 // candidate is one change to try for a target that is not detected.
