@@ -262,6 +262,3 @@ func (s *Scenario) PulseSamples() int {
 	}
 	return int(n) + 1
 }
-
-// MaxMPSLength is the longest minimum-peak-sidelobe code in the table.
-const MaxMPSLength = 48

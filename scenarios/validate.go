@@ -2,6 +2,8 @@ package scenarios
 
 import (
 	"fmt"
+
+	"github.com/pulsewright/pulsewright/dsp"
 	"math"
 	"strings"
 	"unicode/utf8"
@@ -157,7 +159,7 @@ func (s *Scenario) validateWaveform(c checker) bool {
 			ok = false
 		}
 	case KindMPS:
-		ok = c.intBetween("waveform.length", w.Length, 2, MaxMPSLength) && ok
+		ok = c.intBetween("waveform.length", w.Length, 2, dsp.MPSMaxLen()) && ok
 	case KindMLS:
 		ok = c.intBetween("waveform.degree", w.Degree, 2, 16) && ok
 	case KindFrank, KindP1, KindP2:
