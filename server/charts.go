@@ -97,12 +97,14 @@ func (c *chartOut) appendMerge(b []byte) []byte {
 }
 
 // seriesJSON is a go-echarts series with the fields it lacks: our data
-// (a placeholder until the encoded array is spliced in) and ECharts 5.6's
-// peak-keeping sampling.
+// (a placeholder until the encoded array is spliced in) and progressive
+// drawing. No sampling: the server decimates already (min/max per pixel).
 type seriesJSON struct {
 	charts.SingleSeries
-	Data     string `json:"data"`
-	Sampling string `json:"sampling,omitempty"`
+	Data string `json:"data"`
+	// Progressive 0 draws a series in one go: the server sends screen
+	// resolution, and progressive drawing would spread it over frames.
+	Progressive *int `json:"progressive,omitempty"`
 }
 
 // builder assembles one line chart with go-echarts.
@@ -111,23 +113,34 @@ type builder struct {
 	data []seriesData
 }
 
-func newBuilder(title, xName, yName string, yMin any) *builder {
+func newBuilder(xName, yName string, yMin any) *builder {
 	c := charts.NewLine()
 	c.Colors = []string{colourProfile, colourClean, colourThreshold, colourNoise, colourReference}
 	c.SetGlobalOptions(
-		charts.WithTitleOpts(opts.Title{Title: title, Left: "center"}),
 		charts.WithAnimation(false),
 		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
-		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "24"}),
-		charts.WithXAxisOpts(opts.XAxis{Type: "value", Name: xName, NameLocation: "middle", NameGap: 28, Min: "dataMin", Max: "dataMax"}),
-		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: yName, Min: yMin}),
-		charts.WithDataZoomOpts(
-			opts.DataZoom{Type: "inside", XAxisIndex: []int{0}, FilterMode: "none"},
-			opts.DataZoom{Type: "slider", XAxisIndex: []int{0}, FilterMode: "none", End: 100},
-		),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "2", Left: "64", ItemWidth: 18, ItemHeight: 10}),
+		charts.WithGridOpts(opts.Grid{Left: strconv.Itoa(gridLeft), Right: "18", Top: "30", Bottom: "62"}),
+		charts.WithXAxisOpts(opts.XAxis{Type: "value", Name: xName, NameLocation: "middle", NameGap: 24, Min: "dataMin", Max: "dataMax",
+			AxisLabel: &opts.AxisLabel{ShowMinLabel: opts.Bool(false), ShowMaxLabel: opts.Bool(false)}}),
+		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: yName, NameLocation: "middle", NameGap: gridLeft - 16, Min: yMin}),
 	)
 	return &builder{line: c}
 }
+
+// gridLeft is the room left of a plot for the y labels and the y name
+// along the axis, px.
+const gridLeft = 56
+
+// sliderJSON is the zoom slider: thin, at the very bottom, under the x
+// name, and without the data shadow (ECharts would redraw it from the
+// first series on every update).
+// The zoom on range: the mouse wheel and drag inside the plot, and a
+// slider under it. Set after JSON(): go-echarts lacks the slider's fields.
+var insideJSON = map[string]any{"type": "inside", "xAxisIndex": []int{0}, "filterMode": "none"}
+
+var sliderJSON = map[string]any{"type": "slider", "xAxisIndex": []int{0}, "filterMode": "none", "end": 100,
+	"bottom": 4, "height": 16, "showDataShadow": false, "labelPrecision": 0}
 
 // add appends a line series with its encoded data.
 func (b *builder) add(id, name, colour string, data []byte, style opts.LineStyle, more ...charts.SeriesOpts) {
@@ -149,14 +162,12 @@ func placeholder(i int) string { return "@@series-data-" + strconv.Itoa(i) + "@@
 func (b *builder) build(name, key string) chartOut {
 	b.line.Validate()
 	opt := b.line.JSON()
+	opt["dataZoom"] = []any{insideJSON, sliderJSON}
 	ms := b.line.MultiSeries
 	series := make([]seriesJSON, len(ms))
 	for i, s := range ms {
 		s.Data = nil
 		series[i] = seriesJSON{SingleSeries: s, Data: placeholder(i)}
-		if s.Type == "line" {
-			series[i].Sampling = "minmax"
-		}
 	}
 	opt["series"] = series
 	return b.splice(name, key, opt)
@@ -192,6 +203,7 @@ func (b *builder) splice(name, key string, opt map[string]any) chartOut {
 type view struct {
 	rangeM *[2]float64 // nil: the whole window
 	width  int         // px
+	cell   *cell       // the map cell to cut through; nil: none
 }
 
 // windowGrid is the range axis of a result's series.
@@ -214,7 +226,7 @@ func echoChart(res *scenarios.Result, vw view) chartOut {
 	e := res.Series.Echo
 	g := windowGrid(&res.Series, len(e))
 	sp := plan(g, vw.rangeM, vw.width)
-	b := newBuilder("Raw echo", "range (m)", "amplitude (noise rms = 1)", nil)
+	b := newBuilder("range (m)", "amplitude (noise rms = 1)", nil)
 	thin := opts.LineStyle{Width: 1}
 	b.add(SeriesI, "I", colourI, ampSeries(g, func(k int) float64 { return real(e[k]) }, sp), thin)
 	b.add(SeriesQ, "Q", colourQ, ampSeries(g, func(k int) float64 { return imag(e[k]) }, sp), thin)
@@ -234,7 +246,7 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 	s := &res.Series
 	g := windowGrid(s, len(s.ProfileDB))
 	sp := plan(g, vw.rangeM, vw.width)
-	b := newBuilder("Compressed range profile", "range (m)", "dB re output noise", profileYMin)
+	b := newBuilder("range (m)", "dB re output noise", profileYMin)
 	b.add(SeriesProfile, "profile", colourProfile, dbSeries(g, s.ProfileDB, sp), opts.LineStyle{Width: 1.2})
 	b.add(SeriesClean, "noise-free", colourClean, dbSeries(windowGrid(s, len(s.CleanDB)), s.CleanDB, sp), opts.LineStyle{Width: 1})
 	b.add(SeriesThreshold, "threshold", colourThreshold, dbSeries(windowGrid(s, len(s.ThresholdDB)), s.ThresholdDB, sp), opts.LineStyle{Width: 1.2, Type: "dashed"})
@@ -305,7 +317,7 @@ func responseYMin(pslr float64) float64 {
 // pinned one's when pinned.
 func responseChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOut {
 	yMin := responseYMin(res.Report.Waveform.PSLRDB)
-	b := newBuilder("Waveform response", "range from peak (m)", "dB re peak", yMin)
+	b := newBuilder("range from peak (m)", "dB re peak", yMin)
 	b.line.YAxisList[0].Max = 0.0
 	b.add(SeriesResponse, "response", colourProfile, responseSeries(&res.Series.Response, vw.width), opts.LineStyle{Width: 1.2})
 	key := fmt.Sprintf("response/1/%g", yMin)
@@ -327,72 +339,6 @@ func responseSeries(r *scenarios.Response, width int) []byte {
 	return dbSeries(g, r.DB, plan(g, nil, width))
 }
 
-// Ambiguity surface: grid on the screen and colours from the floor (left
-// blank) to the peak.
-const (
-	ambiguityCols    = 201
-	ambiguityRows    = 81
-	ambiguityFloorDB = -60.0
-)
-
-var ambiguityColours = []string{"#f4f4ee", "#c9ddd4", "#6aa9a4", "#2b6a8f", "#182848"}
-
-// visualMapJSON patches the bounds of a go-echarts visual map: they are
-// float32 with omitempty, so a maximum of 0 dB would vanish and ECharts
-// would take 200.
-type visualMapJSON struct {
-	opts.VisualMap
-	Min float64 `json:"min"`
-	Max float64 `json:"max"`
-}
-
-// ambiguityChart plots |χ(τ, f_d)| as a heat map: delay (as range) across,
-// Doppler up, dB re the peak. Cells at the floor are left out.
-func ambiguityChart(a *scenarios.AmbiguitySurface, version int) chartOut {
-	c := charts.NewHeatMap()
-	vm := opts.VisualMap{Calculable: opts.Bool(true), Dimension: "2", Orient: "vertical", Right: "0", Top: "middle",
-		InRange: &opts.VisualMapInRange{Color: ambiguityColours}}
-	c.SetGlobalOptions(
-		charts.WithTitleOpts(opts.Title{Title: "Ambiguity surface (dB re peak)", Left: "center"}),
-		charts.WithAnimation(false),
-		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
-		charts.WithXAxisOpts(opts.XAxis{Type: "category", Name: "delay as range (m)", NameLocation: "middle", NameGap: 28, Data: roundAll(a.DelayM, 1, 10)}),
-		charts.WithYAxisOpts(opts.YAxis{Type: "category", Name: "Doppler (kHz)", Data: roundAll(a.DopplerHz, 1e-3, 100)}),
-		charts.WithVisualMapOpts(vm),
-	)
-	c.AddSeries("|χ|", nil, charts.WithSeriesId(SeriesAmbiguity))
-	c.Validate()
-	opt := c.JSON()
-	opt["visualMap"] = []visualMapJSON{{VisualMap: vm, Min: ambiguityFloorDB, Max: 0}}
-	ms := c.MultiSeries
-	ms[0].Data = nil
-	opt["series"] = []seriesJSON{{SingleSeries: ms[0], Data: placeholder(0)}}
-	var cells []byte
-	cells = append(cells, '[')
-	for r, row := range a.DB {
-		for col, v := range row {
-			if !(v > ambiguityFloorDB) {
-				continue
-			}
-			if len(cells) > 1 {
-				cells = append(cells, ',')
-			}
-			cells = append(cells, '[')
-			cells = strconv.AppendInt(cells, int64(col), 10)
-			cells = append(cells, ',')
-			cells = strconv.AppendInt(cells, int64(r), 10)
-			cells = append(cells, ',')
-			cells = appendFixed(cells, clampDB(v), 1)
-			cells = append(cells, ']')
-		}
-	}
-	cells = append(cells, ']')
-	b := &builder{data: []seriesData{{id: SeriesAmbiguity, data: cells}}}
-	out := b.splice(ChartAmbiguity, fmt.Sprintf("ambiguity/%d", version), opt)
-	out.static = true
-	return out
-}
-
 // roundAll returns v·scale rounded to 1/per, as axis labels.
 func roundAll(v []float64, scale, per float64) []float64 {
 	out := make([]float64, len(v))
@@ -404,9 +350,16 @@ func roundAll(v []float64, scale, per float64) []float64 {
 
 // buildCharts makes every chart of a frame.
 func buildCharts(res, ref *scenarios.Result, vw view) []chartOut {
-	return []chartOut{
+	out := []chartOut{
 		profileChart(res, ref, vw),
 		echoChart(res, vw),
 		responseChart(res, ref, vw),
 	}
+	if m, ok := rdmapChart(res, vw); ok {
+		out = append(out, m)
+	}
+	if c, ok := rdCutsChart(res, vw); ok {
+		out = append(out, c)
+	}
+	return out
 }

@@ -32,8 +32,8 @@ type evalCache struct {
 	pinRes  *scenarios.Result
 	pinRept []byte
 
-	ambKey string    // the waveform and sample rate the surface is of
-	amb    *chartOut // nil when there is none
+	ambKey string     // the waveform and sample rate the surface is of
+	amb    []chartOut // the surface and its cuts; nil when there is none
 
 	statics map[string]chartOut // the last static chart of each name
 	version int                 // counts static chart versions
@@ -144,9 +144,7 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 		return nil, err
 	}
 	f := &frame{id: w.id, report: c.report, link: c.link, charts: c.settle(buildCharts(c.res, c.pinRes, w.view))}
-	if c.amb != nil {
-		f.charts = append(f.charts, *c.amb)
-	}
+	f.charts = append(f.charts, c.amb...)
 	if c.pin != nil {
 		f.reference = c.pinRept
 	}
@@ -198,8 +196,8 @@ func (ss *session) ambiguity(ctx context.Context, c *evalCache) error {
 			ss.log.Warn("ambiguity surface", "err", err)
 			ch = nil
 		default:
-			out := ambiguityChart(a, ss.srv.ambs.version())
-			ch = &out
+			v := ss.srv.ambs.version()
+			ch = []chartOut{ambiguityChart(a, v), ambiguityCutsChart(a, v)}
 		}
 		ss.srv.ambs.put(key, ch)
 	}
@@ -207,30 +205,30 @@ func (ss *session) ambiguity(ctx context.Context, c *evalCache) error {
 	return nil
 }
 
-// chartCache keeps the last few ambiguity charts by waveform, shared by
+// chartCache keeps the last few ambiguity charts (surface and cuts) by waveform, shared by
 // the sessions: tabs and demos share waveforms, and a surface costs more
 // than a frame. Entries are never changed once stored.
 type chartCache struct {
 	mu    sync.Mutex
-	byKey map[string]*chartOut
+	byKey map[string][]chartOut
 	order []string // oldest first
 	seq   int
 }
 
 const chartCacheSize = 32
 
-func (cc *chartCache) get(key string) (*chartOut, bool) {
+func (cc *chartCache) get(key string) ([]chartOut, bool) {
 	cc.mu.Lock()
 	defer cc.mu.Unlock()
 	ch, ok := cc.byKey[key]
 	return ch, ok
 }
 
-func (cc *chartCache) put(key string, ch *chartOut) {
+func (cc *chartCache) put(key string, ch []chartOut) {
 	cc.mu.Lock()
 	defer cc.mu.Unlock()
 	if cc.byKey == nil {
-		cc.byKey = map[string]*chartOut{}
+		cc.byKey = map[string][]chartOut{}
 	}
 	if _, ok := cc.byKey[key]; !ok {
 		cc.order = append(cc.order, key)

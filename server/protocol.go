@@ -15,6 +15,7 @@ const (
 	MsgScenario = "scenario" // {id, scenario}: a new edit, latest wins
 	MsgView     = "view"     // {id, range_m: [a, b] | null, width_px}
 	MsgPin      = "pin"      // {id, scenario | null}: compare against a pinned scenario
+	MsgCell     = "cell"     // {id, cell: {range_m, range_rate_mps} | null}: cuts through the range–Doppler map
 )
 
 // Server → client message types.
@@ -37,6 +38,13 @@ type inMsg struct {
 	Scenario json.RawMessage `json:"scenario"`
 	RangeM   *[2]float64     `json:"range_m"`
 	WidthPx  int             `json:"width_px"`
+	Cell     *cellMsg        `json:"cell"`
+}
+
+// cellMsg is a place on the range–Doppler map.
+type cellMsg struct {
+	RangeM       float64 `json:"range_m"`
+	RangeRateMPS float64 `json:"range_rate_mps"`
 }
 
 // chartMsg is one entry of a frame's charts map: the page calls

@@ -208,9 +208,20 @@ func apply(st want, data []byte) (want, bool, error) {
 			st.view.width = min(max(m.WidthPx, minWidthPx), maxWidthPx)
 		}
 		return st, false, nil
+	case MsgCell:
+		st.view.cell = nil
+		if c := m.Cell; c != nil {
+			if !finite(c.RangeM) || !finite(c.RangeRateMPS) {
+				return bad, false, fmt.Errorf("cell {range_m: %g, range_rate_mps: %g}: want finite numbers: %w", c.RangeM, c.RangeRateMPS, scenarios.ErrInvalid)
+			}
+			st.view.cell = &cell{rangeM: c.RangeM, rateMPS: c.RangeRateMPS}
+		}
+		return st, false, nil
 	}
-	return bad, false, fmt.Errorf("unknown message type %q (want %s, %s or %s): %w", m.Type, MsgScenario, MsgView, MsgPin, scenarios.ErrInvalid)
+	return bad, false, fmt.Errorf("unknown message type %q (want %s, %s, %s or %s): %w", m.Type, MsgScenario, MsgView, MsgPin, MsgCell, scenarios.ErrInvalid)
 }
+
+func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 
 func isNull(raw json.RawMessage) bool { return len(raw) == 0 || string(raw) == "null" }
 

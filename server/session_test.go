@@ -110,14 +110,16 @@ func TestSessionEdits(t *testing.T) {
 		}
 	}
 
-	if _, ok := m.Charts[ChartAmbiguity]; !ok {
-		t.Error("no ambiguity surface in the first frame")
+	for _, name := range []string{ChartAmbiguity, ChartAmbiguityCuts} {
+		if _, ok := m.Charts[name]; !ok {
+			t.Errorf("no %s in the first frame", name)
+		}
 	}
 	// Another scene of the same structure: data-only merges by series id;
 	// the waveform changed, so its response and surface come whole.
 	sendScenario(t, c, 2, mustDemoJSON(t, "rocky-coast"))
 	m = next(t, c, 2)
-	for _, name := range []string{ChartResponse, ChartAmbiguity} {
+	for _, name := range []string{ChartResponse, ChartAmbiguity, ChartAmbiguityCuts} {
 		if !m.Charts[name].Replace {
 			t.Errorf("chart %s of a new waveform: replace false", name)
 		}
