@@ -202,8 +202,10 @@ func (b *builder) splice(name, key string, opt map[string]any) chartOut {
 // view is the page's zoom and plot width.
 type view struct {
 	rangeM *[2]float64 // nil: the whole window
-	width  int         // px
+	width  int         // px, of the range profile
 	cell   *cell       // the map cell to cut through; nil: none
+	// mapWidth is the range–Doppler map's width, px; 0: a third of width.
+	mapWidth int
 }
 
 // windowGrid is the range axis of a result's series.

@@ -86,14 +86,15 @@ func heatChart(name, key string, h heat, more ...heatSeries) chartOut {
 	c.SetGlobalOptions(
 		charts.WithAnimation(false),
 		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(false)}),
 		charts.WithGridOpts(opts.Grid{Left: strconv.Itoa(gridLeft), Right: "62", Top: "12", Bottom: "40"}),
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", Show: hidden, Data: h.xCats}),
 		charts.WithYAxisOpts(opts.YAxis{Type: "category", Show: hidden, Data: h.yCats}),
 		charts.WithVisualMapOpts(vm),
 	)
-	c.ExtendXAxis(opts.XAxis{Type: "value", Name: h.xName, NameLocation: "middle", NameGap: 24, Min: h.x0, Max: h.x1, AxisLabel: ends,
+	c.ExtendXAxis(opts.XAxis{Type: "value", Position: "bottom", Name: h.xName, NameLocation: "middle", NameGap: 24, Min: h.x0, Max: h.x1, AxisLabel: ends,
 		SplitLine: &opts.SplitLine{Show: hidden}})
-	c.ExtendYAxis(opts.YAxis{Type: "value", Name: h.yName, NameLocation: "middle", NameGap: gridLeft - 16, Min: h.y0, Max: h.y1, AxisLabel: ends,
+	c.ExtendYAxis(opts.YAxis{Type: "value", Position: "left", Name: h.yName, NameLocation: "middle", NameGap: gridLeft - 16, Min: h.y0, Max: h.y1, AxisLabel: ends,
 		SplitLine: &opts.SplitLine{Show: hidden}})
 	c.AddSeries("map", nil, charts.WithSeriesId(name))
 	for _, s := range more {
@@ -187,26 +188,34 @@ type cutLine struct {
 	width            float32
 }
 
+// cutsRightLeft is where the right plot of two cuts starts.
+const cutsRightLeft = "58%"
+
 func twoCuts(name, key string, plots [2]cutPlot) chartOut {
 	c := charts.NewLine()
 	ends := &opts.AxisLabel{ShowMinLabel: opts.Bool(false), ShowMaxLabel: opts.Bool(false)}
 	c.SetGlobalOptions(
 		charts.WithAnimation(false),
 		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(false)}),
 		charts.WithGridOpts(
-			opts.Grid{Left: strconv.Itoa(gridLeft), Width: "36%", Top: "26", Bottom: "40"},
-			opts.Grid{Right: "12", Width: "36%", Top: "26", Bottom: "40"}),
+			opts.Grid{Left: strconv.Itoa(gridLeft), Right: "53%", Top: "26", Bottom: "40"},
+			opts.Grid{Left: cutsRightLeft, Right: "12", Top: "26", Bottom: "40"}),
 	)
 	c.XAxisList = nil
 	c.YAxisList = nil
 	var titles []opts.Title
 	for i, p := range plots {
 		c.ExtendXAxis(opts.XAxis{Type: "value", GridIndex: i, Name: p.xName, NameLocation: "middle", NameGap: 24,
-			Min: "dataMin", Max: "dataMax", AxisLabel: ends})
-		c.ExtendYAxis(opts.YAxis{Type: "value", GridIndex: i, Name: p.yName, NameLocation: "middle", NameGap: gridLeft - 16, Min: p.yMin})
+			Min: "dataMin", Max: "dataMax", SplitNumber: 3, AxisLabel: ends})
+		yName := p.yName
+		if i == 1 {
+			yName = "" // the same as the left plot's
+		}
+		c.ExtendYAxis(opts.YAxis{Type: "value", GridIndex: i, Name: yName, NameLocation: "middle", NameGap: gridLeft - 16, Min: p.yMin})
 		left := strconv.Itoa(gridLeft)
 		if i == 1 {
-			left = "55%"
+			left = cutsRightLeft
 		}
 		titles = append(titles, opts.Title{Title: p.title, Left: left, Top: "2", TitleStyle: &opts.TextStyle{FontSize: 12, FontWeight: "normal"}})
 	}

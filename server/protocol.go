@@ -13,7 +13,7 @@ import (
 // Client → server message types.
 const (
 	MsgScenario = "scenario" // {id, scenario}: a new edit, latest wins
-	MsgView     = "view"     // {id, range_m: [a, b] | null, width_px}
+	MsgView     = "view"     // {id, range_m: [a, b] | null, width_px, map_px?}
 	MsgPin      = "pin"      // {id, scenario | null}: compare against a pinned scenario
 	MsgCell     = "cell"     // {id, cell: {range_m, range_rate_mps} | null}: cuts through the range–Doppler map
 )
@@ -38,6 +38,7 @@ type inMsg struct {
 	Scenario json.RawMessage `json:"scenario"`
 	RangeM   *[2]float64     `json:"range_m"`
 	WidthPx  int             `json:"width_px"`
+	MapPx    int             `json:"map_px"`
 	Cell     *cellMsg        `json:"cell"`
 }
 

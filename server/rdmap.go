@@ -52,7 +52,11 @@ func newRDLayout(res *scenarios.Result, vw view) *rdLayout {
 	slices.SortStableFunc(l.order, func(a, b int) int { return cmpFloat(rd.RangeRateMPS[a], rd.RangeRateMPS[b]) })
 	l.per = (nb + rdMaxRows - 1) / rdMaxRows
 	l.rows = (nb + l.per - 1) / l.per
-	l.cols = max(1, min(l.hi-l.lo, max(vw.width/2, 32), rdMaxCells/l.rows))
+	px := vw.mapWidth
+	if px == 0 {
+		px = vw.width / 3
+	}
+	l.cols = max(1, min(l.hi-l.lo, max(px/2, 32), rdMaxCells/l.rows))
 	span := l.hi - l.lo
 	l.colStart = func(c int) int { return l.lo + c*span/l.cols }
 	l.colEnd = func(c int) int { return l.lo + (c+1)*span/l.cols }
@@ -140,7 +144,7 @@ func rdmapChart(res *scenarios.Result, vw view) (chartOut, bool) {
 		panic("server: map markers not encodable: " + err.Error()) // every number in them is clamped
 	}
 	more := []heatSeries{{id: SeriesMarkers, name: "targets", data: marks, opts: []charts.SeriesOpts{
-		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.SymbolSize = 11 }),
+		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.SymbolSize = 13 }),
 		charts.WithLabelOpts(opts.Label{Show: opts.Bool(true), Position: "right", Formatter: "{b}", FontSize: 10, Color: "#1f2a30"}),
 	}}}
 	key := fmt.Sprintf("rdmap/1/%d-%d/%dx%d/%g-%g", l.lo, l.hi, l.cols, l.rows, vmin, vmax)
@@ -189,7 +193,7 @@ func rdMarkers(res *scenarios.Result, l *rdLayout) []rdMarker {
 		x := math.Min(math.Max(clampAmp(r), l.x0), l.x1)
 		y := math.Min(math.Max(clampAmp(*t.ApparentRangeRateMPS), l.y0), l.y1)
 		out = append(out, rdMarker{Name: t.ID, Value: [2]float64{x, y}, ID: t.ID, Status: t.Status, Reason: t.Reason, Symbol: st.symbol,
-			ItemStyle: map[string]any{"color": st.colour, "borderColor": "#ffffff", "borderWidth": 1.2}})
+			ItemStyle: map[string]any{"color": "rgba(255,255,255,0.15)", "borderColor": st.colour, "borderWidth": 2}})
 	}
 	return out
 }
@@ -231,11 +235,11 @@ func rdCutsChart(res *scenarios.Result, vw view) (chartOut, bool) {
 	rate := rd.RangeRateMPS[bin]
 	key := fmt.Sprintf("rdcuts/1/%d/%d", bin, k)
 	return twoCuts(ChartRDCuts, key, [2]cutPlot{
-		{title: fmt.Sprintf("range cut at %.1f m/s (%.0f Hz)", noNegZero(rate), noNegZero(rd.DopplerHz[bin])), xName: "range (m)", yName: "dB re noise", yMin: profileYMin,
+		{title: fmt.Sprintf("at %.1f m/s (%.0f Hz)", noNegZero(rate), noNegZero(rd.DopplerHz[bin])), xName: "range (m)", yName: "dB re noise", yMin: profileYMin,
 			lines: []cutLine{
 				{SeriesRangeCut, "map", colourProfile, rangeCut, 1.2},
 				{SeriesRangeClean, "noise-free", colourClean, rangeClean, 1}}},
-		{title: fmt.Sprintf("Doppler cut at %.0f m", l.g.x(k)), xName: "range rate (m/s)", yName: "dB re noise", yMin: profileYMin,
+		{title: fmt.Sprintf("at %.0f m", l.g.x(k)), xName: "range rate (m/s)", yName: "dB re noise", yMin: profileYMin,
 			lines: []cutLine{
 				{SeriesDopplerCut, "map", colourProfile, dop.appendJSON(nil, dbDecimals), 1.2},
 				{SeriesDopplerCln, "noise-free", colourClean, dopClean.appendJSON(nil, dbDecimals), 1}}},

@@ -57,7 +57,7 @@ func TestRDMapChart(t *testing.T) {
 	nb, n := len(rd.DB), len(rd.DB[0])
 	// The demo's map tops out under 80 dB: its colours start at 0 dB,
 	// which omitempty would drop.
-	plain, _ := rdmapChart(res, view{width: 800})
+	plain, _ := rdmapChart(res, view{width: 1200, mapWidth: 800})
 	o, cells := decodeHeat(t, plain)
 	t.Logf("map: %d cells, option %d bytes", len(cells), len(plain.option))
 	if o.VisualMap[0]["min"] != 0.0 || o.VisualMap[0]["max"] == nil {
@@ -66,7 +66,7 @@ func TestRDMapChart(t *testing.T) {
 	// A lone spike anywhere must survive the reduction (max-hold).
 	spikeBin, spikeK := nb/3, n/2+7
 	rd.DB[spikeBin][spikeK] = 222
-	c, ok := rdmapChart(res, view{width: 800})
+	c, ok := rdmapChart(res, view{width: 1200, mapWidth: 800})
 	if !ok {
 		t.Fatal("no map chart")
 	}
@@ -117,7 +117,7 @@ func TestRDMapChart(t *testing.T) {
 
 	// Zoomed to 100 cells: every cell has a column.
 	lo := res.Series.RangeM0 + 200*step
-	z, _ := rdmapChart(res, view{width: 800, rangeM: &[2]float64{lo, lo + 99*step}})
+	z, _ := rdmapChart(res, view{width: 1200, mapWidth: 800, rangeM: &[2]float64{lo, lo + 99*step}})
 	oz, _ := decodeHeat(t, z)
 	if cols := len(oz.XAxis[0]["data"].([]any)); cols != 100 {
 		t.Errorf("zoom over 100 cells: %d columns", cols)

@@ -207,6 +207,10 @@ func apply(st want, data []byte) (want, bool, error) {
 		if m.WidthPx != 0 {
 			st.view.width = min(max(m.WidthPx, minWidthPx), maxWidthPx)
 		}
+		st.view.mapWidth = 0
+		if m.MapPx != 0 {
+			st.view.mapWidth = min(max(m.MapPx, minWidthPx), maxWidthPx)
+		}
 		return st, false, nil
 	case MsgCell:
 		st.view.cell = nil

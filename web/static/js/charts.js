@@ -8,15 +8,16 @@ import { SeriesMarkers } from './protocol.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
 
+// Tooltip text is built from the report and the scenario: escape it.
+const esc = (v) => String(v).replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
+const num = (v, d) => (Number.isFinite(v) ? v.toFixed(d) : '—');
+
 export class Plots {
-  // els: {profile, echo, response, ambiguity} container elements.
-  constructor(els, { onView, onDrag, onDragEnd, onSelect, onNudge, hoverCard }) {
+  // els: chart name → container element; a container inside a tab pane
+  // (.pane) is drawn only while its pane shows.
+  constructor(els, { onView, onDrag, onDragEnd, onSelect, onNudge, onCell, hoverCard, wavelength }) {
     this.charts = {};
-    // A chart in a hidden figure (the ambiguity surface) is created when
-    // its first option arrives; every chart is created once.
-    for (const [name, el] of Object.entries(els)) {
-      if (!el.closest('[hidden]')) this.charts[name] = echarts.init(el, null, { renderer: 'canvas' });
-    }
+    for (const [name, el] of Object.entries(els)) this.charts[name] = echarts.init(el, null, { renderer: 'canvas' });
     this.els = els;
     this.markers = []; // [{id, x, y}] of the profile's markers series
     this.report = null;
@@ -25,10 +26,14 @@ export class Plots {
     this.onDragEnd = onDragEnd;
     this.onSelect = onSelect;
     this.onNudge = onNudge;
+    this.onCell = onCell;
     this.hoverCard = hoverCard;
+    this.wavelength = wavelength;
     this.drag = null;
     this.lastView = null;
-    this.applied = {}; // chart name → the last option applied, as JSON
+    this.pending = {}; // chart name → options held back while its pane is hidden
+    this.cats = {}; // heat map name → {x, y}: the cell centres of its category axes
+    this.train = false;
 
     // Echo and profile share the range axis: zooming one zooms the other.
     this.charts.profile.group = 'pw-range';
@@ -43,28 +48,127 @@ export class Plots {
     this.ro = ro;
     for (const el of Object.values(els)) ro.observe(el);
     this.bindPointer(els.profile);
+    this.bindMap();
+    for (const b of document.querySelectorAll('.plot-head [data-show]')) b.addEventListener('click', () => this.select(b.dataset.show));
   }
 
-  // Apply one frame's chart options. Unknown chart names are ignored.
+  // Apply one frame's chart options. Unknown chart names are ignored; a
+  // chart in a hidden pane gets its options when the pane shows.
   apply(frame) {
     this.report = frame.report || null;
-    for (const [name, entry] of Object.entries(frame.charts || {})) {
-      if (!entry || !entry.option) continue;
-      let chart = this.charts[name];
-      if (!chart && this.els[name]) {
-        this.els[name].closest('[hidden]').hidden = false;
-        chart = this.charts[name] = echarts.init(this.els[name], null, { renderer: 'canvas' });
+    const charts = frame.charts || {};
+    this.setTrain(!!(this.report && this.report.waveform && this.report.waveform.doppler_resolution_hz !== undefined));
+    for (const [name, entry] of Object.entries(charts)) {
+      if (!entry || !entry.option || !this.charts[name]) continue;
+      if (this.hidden(name)) {
+        // A full option supersedes what came before it; of the data-only
+        // merges after it, only the newest matters.
+        const q = this.pending[name] || [];
+        if (entry.replace) this.pending[name] = [entry];
+        else if (q.length && !q[q.length - 1].replace) q[q.length - 1] = entry;
+        else this.pending[name] = [...q, entry];
+        continue;
       }
-      if (!chart) continue;
-      // An option the chart holds already (the waveform's response while
-      // targets move) is not drawn again: applying the same option twice
-      // gives the same picture.
-      const key = (entry.replace ? 'r' : 'm') + JSON.stringify(entry.option);
-      if (key === this.applied[name]) continue;
-      this.applied[name] = key;
-      chart.setOption(entry.option, { notMerge: !!entry.replace, lazyUpdate: false });
-      if (name === 'profile') this.cacheMarkers(entry.option);
+      this.setOption(name, entry);
     }
+  }
+
+  setOption(name, entry) {
+    const chart = this.charts[name];
+    chart.setOption(entry.option, { notMerge: !!entry.replace });
+    if (entry.replace) this.decorate(name, entry.option);
+    if (name === 'profile') this.cacheMarkers(entry.option);
+    if (name === 'rdcuts') document.getElementById('rdcuts-hint').hidden = true;
+  }
+
+  hidden(name) {
+    const pane = this.els[name].closest('.pane');
+    return !!pane && !pane.classList.contains('on');
+  }
+
+  // Show the tab pane of chart name, and draw what it missed.
+  select(name) {
+    const tab = document.querySelector(`.plot-head [data-show="${name}"]`);
+    if (!tab) return;
+    const fig = tab.closest('.plot');
+    for (const b of fig.querySelectorAll('[data-show]')) b.setAttribute('aria-selected', String(b === tab));
+    for (const p of fig.querySelectorAll('.pane')) p.classList.toggle('on', p.dataset.pane === name);
+    fig.querySelector('button.png').dataset.png = name;
+    for (const entry of this.pending[name] || []) this.setOption(name, entry);
+    this.pending[name] = [];
+  }
+
+  selected(fig) {
+    const b = fig.querySelector('[data-show][aria-selected="true"]');
+    return b ? b.dataset.show : null;
+  }
+
+  // Pulse trains bring the range–Doppler map and its cuts; the map shows
+  // when a scene becomes a pulse train, the echo when it stops being one.
+  setTrain(on) {
+    if (on === this.train) return;
+    this.train = on;
+    document.querySelector('.plots').classList.toggle('train', on);
+    for (const b of document.querySelectorAll('.plot-head [data-train]')) b.hidden = !on;
+    if (on) {
+      this.select('rdmap');
+      return;
+    }
+    if (this.selected(document.getElementById('panel-left')) === 'rdmap') this.select('echo');
+    if (this.selected(document.getElementById('panel-right')) === 'rdcuts') this.select('response');
+  }
+
+  // Forget the selected map cell: the cuts pane goes back to its hint.
+  clearCell() {
+    this.charts.rdcuts.clear();
+    this.pending.rdcuts = [];
+    document.getElementById('rdcuts-hint').hidden = false;
+  }
+
+  // Tooltips of the heat maps, made here (the page runs under a strict
+  // CSP, so options carry no functions).
+  decorate(name, option) {
+    if (name !== 'rdmap' && name !== 'ambiguity') return;
+    const x = option.xAxis && option.xAxis[0] && option.xAxis[0].data;
+    const y = option.yAxis && option.yAxis[0] && option.yAxis[0].data;
+    this.cats[name] = { x: x || [], y: y || [] };
+    const formatter = name === 'rdmap' ? (p) => this.mapTip(p) : (p) => this.ambiguityTip(p);
+    this.charts[name].setOption({ tooltip: { formatter, confine: true, extraCssText: 'max-width: 320px; white-space: normal;' } });
+  }
+
+  mapTip(p) {
+    if (p.seriesId === 'rdmap' && Array.isArray(p.data)) {
+      const c = this.cats.rdmap;
+      const r = c.x[p.data[0]];
+      const v = c.y[p.data[1]];
+      const lambda = this.wavelength();
+      const fd = lambda > 0 ? (-2 * v) / lambda : NaN;
+      return `${num(r, 1)} m · ${num(v, 1)} m/s · ${num(fd, 0)} Hz<br>${num(p.data[2], 1)} dB re noise`;
+    }
+    if (p.seriesId === 'markers' && p.data) {
+      const d = p.data;
+      return `<b>${esc(d.id)}</b> · ${esc(String(d.status).replace(/_/g, ' '))}<br>${num(d.value[0], 1)} m · ${num(d.value[1], 1)} m/s<br>${esc(d.reason || '')}`;
+    }
+    return 'selected cell: its cuts are in the “Map cuts” tab';
+  }
+
+  ambiguityTip(p) {
+    if (!Array.isArray(p.data)) return '';
+    const c = this.cats.ambiguity;
+    return `delay ${num(c.x[p.data[0]], 1)} m · Doppler ${num(c.y[p.data[1]], 3)} kHz<br>${num(p.data[2], 1)} dB re peak`;
+  }
+
+  // A click in the map asks for cuts through that cell.
+  bindMap() {
+    const chart = this.charts.rdmap;
+    chart.getZr().on('click', (ev) => {
+      const px = [ev.offsetX, ev.offsetY];
+      if (!chart.containPixel({ gridIndex: 0 }, px)) return;
+      const v = chart.convertFromPixel({ xAxisIndex: 1, yAxisIndex: 1 }, px);
+      if (!v || !Number.isFinite(v[0]) || !Number.isFinite(v[1])) return;
+      this.onCell({ range_m: v[0], range_rate_mps: v[1] });
+      this.select('rdcuts');
+    });
   }
 
   cacheMarkers(option) {
@@ -95,10 +199,11 @@ export class Plots {
   viewChanged() {
     const range = this.visibleRange();
     const width = this.charts.profile.getWidth();
-    const key = JSON.stringify([range, width]);
+    const mapWidth = this.charts.rdmap.getWidth();
+    const key = JSON.stringify([range, width, mapWidth]);
     if (key === this.lastView) return;
     this.lastView = key;
-    this.onView(range, width);
+    this.onView(range, width, mapWidth);
   }
 
   markerPixel(m) {

@@ -34,8 +34,9 @@ window.__pwLatencies = latencies;
 const session = new Session({ onFrame, onError, onStatus });
 const plots = new Plots({
   profile: $('#chart-profile'), echo: $('#chart-echo'), response: $('#chart-response'), ambiguity: $('#chart-ambiguity'),
+  ambcuts: $('#chart-ambcuts'), rdmap: $('#chart-rdmap'), rdcuts: $('#chart-rdcuts'),
 }, {
-  onView: (range, width) => session.sendView(range, width),
+  onView: (range, width, mapWidth) => session.sendView(range, width, mapWidth),
   onDrag: (id, r) => editor.moveTo(id, r),
   onDragEnd: () => store.seal(),
   onSelect: (id) => editor.selectId(id),
@@ -43,12 +44,21 @@ const plots = new Plots({
     const i = (store.scenario.targets || []).findIndex((t) => t.id === id);
     if (i >= 0) editor.nudge(i, dB);
   },
+  onCell: (cell) => session.sendCell(cell),
+  wavelength: () => {
+    const f = store.scenario && store.scenario.radar && store.scenario.radar.carrier_hz;
+    return f > 0 ? 299792458 / f : NaN;
+  },
   hoverCard,
 });
 window.__pw = { store, editor, plots, session, frame: () => lastFrame };
 
 store.onChange((s, cause) => {
   editor.render(s);
+  if (cause === 'load' || cause === 'link') { // a new scene: its own cuts
+    if (session.cell) session.sendCell(null);
+    plots.clearCell();
+  }
   session.sendScenario(s, cause === 'link' ? 'link' : null);
   $('#btn-undo').disabled = !store.undoStack.length;
   $('#btn-redo').disabled = !store.redoStack.length;

@@ -4,15 +4,16 @@
 
 // Client → server message types.
 export const MsgScenario = 'scenario'; // {id, scenario}: a new edit, latest wins
-export const MsgView = 'view'; // {id, range_m: [a, b] | null, width_px}
+export const MsgView = 'view'; // {id, range_m: [a, b] | null, width_px, map_px}
 export const MsgPin = 'pin'; // {id, scenario | null}: compare against a pinned scenario
+export const MsgCell = 'cell'; // {id, cell: {range_m, range_rate_mps} | null}: cuts through the range–Doppler map
 
 // Server → client message types.
 export const MsgFrame = 'frame'; // {id, report, link, charts, reference?, compute_ms}
 export const MsgError = 'error'; // {id, error, fields: [{path, message}]}
 
 // Chart names that may appear in a frame's `charts` map.
-export const Charts = ['profile', 'echo', 'response', 'ambiguity', 'rdmap'];
+export const Charts = ['profile', 'echo', 'response', 'ambiguity', 'ambcuts', 'rdmap', 'rdcuts'];
 
 // Series ids of the profile chart.
 export const SeriesProfile = 'profile';
@@ -29,10 +30,14 @@ export function scenarioMsg(id, scenario) {
   return JSON.stringify({ type: MsgScenario, id, scenario });
 }
 
-export function viewMsg(id, rangeM, widthPx) {
-  return JSON.stringify({ type: MsgView, id, range_m: rangeM, width_px: Math.round(widthPx) });
+export function viewMsg(id, rangeM, widthPx, mapPx) {
+  return JSON.stringify({ type: MsgView, id, range_m: rangeM, width_px: Math.round(widthPx), map_px: Math.round(mapPx || 0) });
 }
 
 export function pinMsg(id, scenario) {
   return JSON.stringify({ type: MsgPin, id, scenario });
+}
+
+export function cellMsg(id, cell) {
+  return JSON.stringify({ type: MsgCell, id, cell });
 }

@@ -2,7 +2,7 @@
 // animation frame, latest wins), the view and the pin, and hands frames
 // and errors to the page. Reconnects with back-off and resends its state.
 
-import { MsgError, MsgFrame, pinMsg, scenarioMsg, viewMsg } from './protocol.js';
+import { MsgError, MsgFrame, cellMsg, pinMsg, scenarioMsg, viewMsg } from './protocol.js';
 
 export class Session {
   constructor({ onFrame, onError, onStatus }) {
@@ -13,8 +13,9 @@ export class Session {
     this.ws = null;
     this.scenario = null; // the newest scenario to send
     this.pinned = null;
-    this.view = { range: null, width: 800 };
-    this.dirty = { scenario: false, view: false, pin: false };
+    this.view = { range: null, width: 800, mapWidth: 0 };
+    this.cell = null; // the map cell to cut through
+    this.dirty = { scenario: false, view: false, pin: false, cell: false };
     this.scheduled = false;
     this.retry = 250;
     this.sent = new Map(); // edit id → performance.now() at send
@@ -30,7 +31,7 @@ export class Session {
     ws.onopen = () => {
       this.retry = 250;
       this.onStatus('live');
-      this.dirty = { scenario: !!this.scenario, view: true, pin: !!this.pinned };
+      this.dirty = { scenario: !!this.scenario, view: true, pin: !!this.pinned, cell: !!this.cell };
       this.flush();
     };
     ws.onmessage = (ev) => {
@@ -65,9 +66,15 @@ export class Session {
     return this.tags.get(id) || null;
   }
 
-  sendView(range, width) {
-    this.view = { range, width };
+  sendView(range, width, mapWidth) {
+    this.view = { range, width, mapWidth };
     this.dirty.view = true;
+    this.schedule();
+  }
+
+  sendCell(cell) {
+    this.cell = cell;
+    this.dirty.cell = true;
     this.schedule();
   }
 
@@ -92,7 +99,11 @@ export class Session {
     // The view and the pin go first, so that the edit's frame uses them.
     if (this.dirty.view) {
       this.dirty.view = false;
-      ws.send(viewMsg(this.nextId++, this.view.range, this.view.width));
+      ws.send(viewMsg(this.nextId++, this.view.range, this.view.width, this.view.mapWidth));
+    }
+    if (this.dirty.cell) {
+      this.dirty.cell = false;
+      ws.send(cellMsg(this.nextId++, this.cell));
     }
     if (this.dirty.pin) {
       this.dirty.pin = false;

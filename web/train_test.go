@@ -1,0 +1,86 @@
+package web_test
+
+import (
+	"context"
+	"fmt"
+	"testing"
+
+	"github.com/chromedp/chromedp"
+)
+
+// loadDemo picks a built-in scene from the menu, as a user does, and
+// waits for its frame.
+func loadDemo(t *testing.T, ctx context.Context, name string) {
+	t.Helper()
+	waitFor(t, ctx, "the demo menu", fmt.Sprintf(`!!document.querySelector('#demo-select option[value=%q]')`, name))
+	do(t, ctx, chromedp.Evaluate[chromedp.Void](fmt.Sprintf(`(() => { const s = document.querySelector('#demo-select');
+		s.value = %q; s.dispatchEvent(new Event('change', {bubbles: true})); })()`, name)))
+	waitFor(t, ctx, name+" evaluated", fmt.Sprintf(`(async () => { const d = await (await fetch('/api/v1/demos/%s')).json();
+		const f = window.__pw.frame(); return f && f.report.scenario === d.name && f.id >= window.__pw.session.nextId - 1; })()`, name))
+}
+
+// The pulse-train demo shows its range–Doppler map with a marker per
+// target, the helicopter detected on it, and cuts through a clicked cell.
+func TestPulseTrainMap(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	if eval[bool](t, ctx, `!document.querySelector('[data-show="rdmap"]').hidden`) {
+		t.Error("the map's tab shows for a single-pulse scene")
+	}
+	loadDemo(t, ctx, "hill-clutter-doppler")
+	waitFor(t, ctx, "the map drawn", `(() => { const o = window.__pw.plots.charts.rdmap.getOption();
+		return o.series && o.series.length >= 2 && o.series[0].data.length > 100; })()`)
+	if !eval[bool](t, ctx, `document.querySelector('[data-pane="rdmap"]').classList.contains('on')`) {
+		t.Error("the map pane is not shown for a pulse train")
+	}
+	if got := eval[string](t, ctx, jsTarget+`('helicopter').status`); got != "detected" {
+		t.Errorf("helicopter %s, want detected", got)
+	}
+	type mark struct {
+		ID     string     `json:"id"`
+		Status string     `json:"status"`
+		Value  [2]float64 `json:"value"`
+	}
+	marks := eval[[]mark](t, ctx, `window.__pw.plots.charts.rdmap.getOption().series.find((s) => s.id === 'markers').data`)
+	if len(marks) != 4 {
+		t.Fatalf("%d markers on the map, want 4", len(marks))
+	}
+	var heli mark
+	for _, m := range marks {
+		if m.ID == "helicopter" {
+			heli = m
+		}
+	}
+	if heli.Status != "detected" || heli.Value[1] > -20 || heli.Value[1] < -30 {
+		t.Errorf("helicopter marker %+v, want detected near −25 m/s", heli)
+	}
+	cells := eval[int](t, ctx, `window.__pw.plots.charts.rdmap.getOption().series[0].data.length`)
+	if cells > 16000 {
+		t.Errorf("%d heat map cells; the server must reduce the map", cells)
+	}
+	shot(t, ctx, "map")
+
+	// Click the helicopter's marker: cuts through its cell.
+	px := eval[[]float64](t, ctx, fmt.Sprintf(`window.__pw.plots.charts.rdmap.convertToPixel({xAxisIndex: 1, yAxisIndex: 1}, [%g, %g])`, heli.Value[0], heli.Value[1]))
+	clickAt(t, ctx, `#chart-rdmap`, px[0], px[1])
+	waitFor(t, ctx, "the cuts", `(() => { const o = window.__pw.plots.charts.rdcuts.getOption();
+		return o.series && o.series.length === 4 && o.series[2].data.length > 8; })()`)
+	if !eval[bool](t, ctx, `document.querySelector('[data-pane="rdcuts"]').classList.contains('on') && document.querySelector('#rdcuts-hint').hidden`) {
+		t.Error("the cuts pane is not shown")
+	}
+	// The noise-free Doppler cut through the helicopter's cell peaks near
+	// its −25 m/s, well above the cut 10 m/s away (the ridge's clutter at
+	// 0 m/s may be stronger still).
+	near := eval[[]float64](t, ctx, `(() => { const d = window.__pw.plots.charts.rdcuts.getOption().series[3].data;
+		const pk = d.filter((p) => Math.abs(p[0] + 25) < 5).reduce((a, b) => (b[1] > a[1] ? b : a));
+		const off = d.reduce((a, b) => (Math.abs(b[0] + 15) < Math.abs(a[0] + 15) ? b : a));
+		return [pk[0], pk[1], off[1]]; })()`)
+	if near[1]-near[2] < 20 {
+		t.Errorf("Doppler cut: %.1f dB at %.1f m/s, %.1f dB at −15 m/s; want the helicopter's peak 20 dB clear", near[1], near[0], near[2])
+	}
+	shot(t, ctx, "cuts")
+
+	// Back to a single pulse: the map's tabs go, the echo returns.
+	loadDemo(t, ctx, "harbour-skiff")
+	waitFor(t, ctx, "the echo pane", `document.querySelector('[data-pane="echo"]').classList.contains('on') && document.querySelector('[data-show="rdmap"]').hidden`)
+}
