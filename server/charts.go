@@ -118,7 +118,6 @@ func newBuilder(xName, yName string, yMin any) *builder {
 	c.Colors = []string{colourProfile, colourClean, colourThreshold, colourNoise, colourReference}
 	c.SetGlobalOptions(
 		charts.WithAnimation(false),
-		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "2", Left: "64", ItemWidth: 18, ItemHeight: 10}),
 		charts.WithGridOpts(opts.Grid{Left: strconv.Itoa(gridLeft), Right: "18", Top: "30", Bottom: "62"}),
 		charts.WithXAxisOpts(opts.XAxis{Type: "value", Name: xName, NameLocation: "middle", NameGap: 24, Min: "dataMin", Max: "dataMax",
@@ -135,6 +134,12 @@ const gridLeft = 56
 // sliderJSON is the zoom slider: thin, at the very bottom, under the x
 // name, and without the data shadow (ECharts would redraw it from the
 // first series on every update).
+// tooltipJSON is a tooltip drawn in the canvas: an HTML tooltip would
+// set inline styles, which the page's Content-Security-Policy refuses.
+func tooltipJSON(trigger string) map[string]any {
+	return map[string]any{"show": true, "trigger": trigger, "renderMode": "richText", "confine": true}
+}
+
 // The zoom on range: the mouse wheel and drag inside the plot, and a
 // slider under it. Set after JSON(): go-echarts lacks the slider's fields.
 var insideJSON = map[string]any{"type": "inside", "xAxisIndex": []int{0}, "filterMode": "none"}
@@ -163,6 +168,7 @@ func (b *builder) build(name, key string) chartOut {
 	b.line.Validate()
 	opt := b.line.JSON()
 	opt["dataZoom"] = []any{insideJSON, sliderJSON}
+	opt["tooltip"] = tooltipJSON("axis")
 	ms := b.line.MultiSeries
 	series := make([]seriesJSON, len(ms))
 	for i, s := range ms {

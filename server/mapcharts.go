@@ -44,11 +44,14 @@ var ambiguityColours = []string{"#f4f4ee", "#c9ddd4", "#6aa9a4", "#2b6a8f", "#18
 // Range–Doppler map on the screen: at most rdMaxRows Doppler rows and
 // rdMaxCells cells (a heat map of 131 k cells took 3 s to draw; 16 k
 // draw in a frame or two), about one column per two pixels of the plot.
-// Cells under the visual map's bottom are left out (blank).
+// Cells in the bottom tenth of the colour span are left out: drawn, they
+// would be all but the background's colour, and each cell costs about
+// 10 µs to paint in a software-rendered canvas.
 const (
 	rdMaxRows  = 128
 	rdMaxCells = 16000
 	rdSpanDB   = 80.0 // colours span at most this far under the top
+	rdBlank    = 0.1  // the fraction of the colour span left blank
 )
 
 var rdColours = []string{"#f6f4ec", "#cfd8dc", "#8fa9b8", "#4f7391", "#27456a", "#10203a"}
@@ -85,9 +88,7 @@ func heatChart(name, key string, h heat, more ...heatSeries) chartOut {
 	ends := &opts.AxisLabel{ShowMinLabel: opts.Bool(false), ShowMaxLabel: opts.Bool(false)}
 	c.SetGlobalOptions(
 		charts.WithAnimation(false),
-		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "item"}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(false)}),
-		charts.WithGridOpts(opts.Grid{Left: strconv.Itoa(gridLeft), Right: "62", Top: "12", Bottom: "40"}),
 		charts.WithXAxisOpts(opts.XAxis{Type: "category", Show: hidden, Data: h.xCats}),
 		charts.WithYAxisOpts(opts.YAxis{Type: "category", Show: hidden, Data: h.yCats}),
 		charts.WithVisualMapOpts(vm),
@@ -105,6 +106,10 @@ func heatChart(name, key string, h heat, more ...heatSeries) chartOut {
 	c.Validate()
 	opt := c.JSON()
 	opt["visualMap"] = []visualMapJSON{{VisualMap: vm, Min: h.vmin, Max: h.vmax, ItemW: 12}}
+	opt["tooltip"] = tooltipJSON("item")
+	// Blank cells show the grid's background: the bottom colour.
+	opt["grid"] = []map[string]any{{"left": gridLeft, "right": 62, "top": 12, "bottom": 40, "show": true,
+		"backgroundColor": h.colours[0], "borderWidth": 0}}
 	b := &builder{data: []seriesData{{id: name, data: h.cells}}}
 	zero := 0
 	first := c.MultiSeries[0]
@@ -196,7 +201,6 @@ func twoCuts(name, key string, plots [2]cutPlot) chartOut {
 	ends := &opts.AxisLabel{ShowMinLabel: opts.Bool(false), ShowMaxLabel: opts.Bool(false)}
 	c.SetGlobalOptions(
 		charts.WithAnimation(false),
-		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(false)}),
 		charts.WithGridOpts(
 			opts.Grid{Left: strconv.Itoa(gridLeft), Right: "53%", Top: "26", Bottom: "40"},
@@ -229,6 +233,7 @@ func twoCuts(name, key string, plots [2]cutPlot) chartOut {
 	b.line.Validate()
 	opt := b.line.JSON()
 	opt["title"] = titles
+	opt["tooltip"] = tooltipJSON("axis")
 	ms := b.line.MultiSeries
 	series := make([]seriesJSON, len(ms))
 	for i, s := range ms {

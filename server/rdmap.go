@@ -123,8 +123,9 @@ func rdmapChart(res *scenarios.Result, vw view) (chartOut, bool) {
 	vmin := math.Max(0, vmax-rdSpanDB)
 	cells := make([]byte, 0, 16*len(vals)/2)
 	cells = append(cells, '[')
+	blank := vmin + rdBlank*(vmax-vmin)
 	for i, v := range vals {
-		if float64(v) > vmin {
+		if float64(v) > blank {
 			cells = appendCell(cells, i%l.cols, i/l.cols, float64(v))
 		}
 	}

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"log/slog"
+	"maps"
 	"net/http/httptest"
 	"os"
 	"path/filepath"
@@ -347,7 +348,7 @@ func TestEditLatency(t *testing.T) {
 	for _, sc := range scenes {
 		eval[bool](t, ctx, `(async () => { const s = await `+sc.load+`; window.__pw.store.load(s); return true; })()`)
 		waitFor(t, ctx, sc.name+" loaded", `window.__pw.frame() && window.__pw.frame().id >= window.__pw.session.nextId - 1 && window.__pw.frame().report.scenario === window.__pw.store.scenario.name`)
-		eval[bool](t, ctx, `(window.__pwLatencies.length = 0, window.__pwLongTasks.length = 0, true)`)
+		eval[bool](t, ctx, `(window.__pwLatencies.length = 0, window.__pwLongTasks.length = 0, Object.keys(window.__pwChartMs).forEach((k) => delete window.__pwChartMs[k]), true)`)
 		for i := range edits {
 			// One nudge of the first target's level, as the wheel does; wait
 			// for its repaint before the next, so that none is skipped.
@@ -371,6 +372,12 @@ func TestEditLatency(t *testing.T) {
 		}
 		t.Logf("%-16s %2d edits  send→paint median %5.0f ms, p90 %5.0f, max %5.0f | server compute %4.0f | send→arrival %4.0f | arrival→paint %4.0f (medians) | long tasks %d, max %.0f ms",
 			sc.name, len(ms), median(ms), quantile(ms, 0.9), slices.Max(ms), median(comp), median(wait), median(page), len(long), maxOr0(long))
+		perChart := eval[map[string][]float64](t, ctx, `window.__pwChartMs`)
+		var parts []string
+		for _, name := range slices.Sorted(maps.Keys(perChart)) {
+			parts = append(parts, fmt.Sprintf("%s %.0f", name, median(perChart[name])))
+		}
+		t.Logf("%-16s setOption per chart, median ms: %s", "", strings.Join(parts, ", "))
 		shot(t, ctx, sc.name)
 	}
 }

@@ -8,8 +8,26 @@ import { SeriesMarkers } from './protocol.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
 
-// Tooltip text is built from the report and the scenario: escape it.
-const esc = (v) => String(v).replace(/[&<>"']/g, (c) => `&#${c.charCodeAt(0)};`);
+const chartMs = {};
+window.__pwChartMs = chartMs;
+
+// Tooltips are drawn in the canvas (renderMode 'richText': an HTML
+// tooltip would need inline styles, which the CSP refuses). Text from the
+// scenario loses braces, which rich text would read as markup, and long
+// lines are wrapped by hand.
+const plain = (v) => String(v).replace(/[{}]/g, '');
+const wrap = (text, width = 52) => {
+  const lines = [];
+  let line = '';
+  for (const w of plain(text).split(/\s+/)) {
+    if (line && line.length + 1 + w.length > width) {
+      lines.push(line);
+      line = w;
+    } else line = line ? `${line} ${w}` : w;
+  }
+  if (line) lines.push(line);
+  return lines.join('\n');
+};
 const num = (v, d) => (Number.isFinite(v) ? v.toFixed(d) : '—');
 
 export class Plots {
@@ -75,7 +93,12 @@ export class Plots {
 
   setOption(name, entry) {
     const chart = this.charts[name];
+    const t0 = performance.now();
     chart.setOption(entry.option, { notMerge: !!entry.replace });
+    // Time per chart, ms, for the latency test (the last 100 of each).
+    const ms = (chartMs[name] = chartMs[name] || []);
+    ms.push(performance.now() - t0);
+    if (ms.length > 100) ms.shift();
     if (entry.replace) this.decorate(name, entry.option);
     if (name === 'profile') this.cacheMarkers(entry.option);
     if (name === 'rdcuts') document.getElementById('rdcuts-hint').hidden = true;
@@ -133,7 +156,7 @@ export class Plots {
     const y = option.yAxis && option.yAxis[0] && option.yAxis[0].data;
     this.cats[name] = { x: x || [], y: y || [] };
     const formatter = name === 'rdmap' ? (p) => this.mapTip(p) : (p) => this.ambiguityTip(p);
-    this.charts[name].setOption({ tooltip: { formatter, confine: true, extraCssText: 'max-width: 320px; white-space: normal;' } });
+    this.charts[name].setOption({ tooltip: { formatter } });
   }
 
   mapTip(p) {
@@ -143,11 +166,11 @@ export class Plots {
       const v = c.y[p.data[1]];
       const lambda = this.wavelength();
       const fd = lambda > 0 ? (-2 * v) / lambda : NaN;
-      return `${num(r, 1)} m · ${num(v, 1)} m/s · ${num(fd, 0)} Hz<br>${num(p.data[2], 1)} dB re noise`;
+      return `${num(r, 1)} m · ${num(v, 1)} m/s · ${num(fd, 0)} Hz\n${num(p.data[2], 1)} dB re noise`;
     }
     if (p.seriesId === 'markers' && p.data) {
       const d = p.data;
-      return `<b>${esc(d.id)}</b> · ${esc(String(d.status).replace(/_/g, ' '))}<br>${num(d.value[0], 1)} m · ${num(d.value[1], 1)} m/s<br>${esc(d.reason || '')}`;
+      return `${plain(d.id)} · ${String(d.status).replace(/_/g, ' ')}\n${num(d.value[0], 1)} m · ${num(d.value[1], 1)} m/s\n${wrap(d.reason || '')}`;
     }
     return 'selected cell: its cuts are in the “Map cuts” tab';
   }
@@ -155,7 +178,7 @@ export class Plots {
   ambiguityTip(p) {
     if (!Array.isArray(p.data)) return '';
     const c = this.cats.ambiguity;
-    return `delay ${num(c.x[p.data[0]], 1)} m · Doppler ${num(c.y[p.data[1]], 3)} kHz<br>${num(p.data[2], 1)} dB re peak`;
+    return `delay ${num(c.x[p.data[0]], 1)} m · Doppler ${num(c.y[p.data[1]], 3)} kHz\n${num(p.data[2], 1)} dB re peak`;
   }
 
   // A click in the map asks for cuts through that cell.
