@@ -70,25 +70,31 @@ export class Plots {
     for (const b of document.querySelectorAll('.plot-head [data-show]')) b.addEventListener('click', () => this.select(b.dataset.show));
   }
 
-  // Apply one frame's chart options. Unknown chart names are ignored; a
-  // chart in a hidden pane gets its options when the pane shows.
+  // Apply one frame's chart options: chart name → an option entry, or a
+  // list of them to apply in turn (frames skipped on the way). Unknown
+  // chart names are ignored; a chart in a hidden pane gets its options
+  // when the pane shows.
   apply(frame) {
     this.report = frame.report || null;
     const charts = frame.charts || {};
     this.setTrain(!!(this.report && this.report.waveform && this.report.waveform.doppler_resolution_hz !== undefined));
-    for (const [name, entry] of Object.entries(charts)) {
-      if (!entry || !entry.option || !this.charts[name]) continue;
-      if (this.hidden(name)) {
-        // A full option supersedes what came before it; of the data-only
-        // merges after it, only the newest matters.
-        const q = this.pending[name] || [];
-        if (entry.replace) this.pending[name] = [entry];
-        else if (q.length && !q[q.length - 1].replace) q[q.length - 1] = entry;
-        else this.pending[name] = [...q, entry];
-        continue;
-      }
-      this.setOption(name, entry);
+    for (const [name, entries] of Object.entries(charts)) {
+      for (const entry of [entries].flat()) this.applyOne(name, entry);
     }
+  }
+
+  applyOne(name, entry) {
+    if (!entry || !entry.option || !this.charts[name]) return;
+    if (this.hidden(name)) {
+      // A full option supersedes what came before it; of the data-only
+      // merges after it, only the newest matters.
+      const q = this.pending[name] || [];
+      if (entry.replace) this.pending[name] = [entry];
+      else if (q.length && !q[q.length - 1].replace) q[q.length - 1] = entry;
+      else this.pending[name] = [...q, entry];
+      return;
+    }
+    this.setOption(name, entry);
   }
 
   setOption(name, entry) {

@@ -67,10 +67,26 @@ store.onChange((s, cause) => {
 // --- frames ---
 
 function onFrame(msg) {
+  // A frame not yet applied is skipped, but not its chart options: the
+  // server sends a chart whole only once and then data merges, so a
+  // skipped full option must still be applied before the merges after it.
+  if (pendingFrame) msg.charts = carryCharts(pendingFrame.charts || {}, msg.charts || {});
   pendingFrame = msg;
   if (applyScheduled) return;
   applyScheduled = true;
   requestAnimationFrame(applyFrame);
+}
+
+// carryCharts joins the charts of a skipped frame to the next one's:
+// chart name → the list of options to apply in turn (see Plots.apply).
+function carryCharts(older, newer) {
+  const out = { ...newer };
+  for (const [name, entry] of Object.entries(older)) {
+    const prev = [entry].flat();
+    const next = name in newer ? [newer[name]].flat() : [];
+    out[name] = next.some((e) => e.replace) ? next : [...prev, ...next];
+  }
+  return out;
 }
 
 // Apply the newest frame in one animation frame; older unapplied frames
