@@ -84,3 +84,29 @@ func TestPulseTrainMap(t *testing.T) {
 	loadDemo(t, ctx, "harbour-skiff")
 	waitFor(t, ctx, "the echo pane", `document.querySelector('[data-pane="echo"]').classList.contains('on') && document.querySelector('[data-show="rdmap"]').hidden`)
 }
+
+// The ambiguity surface and its cuts sit in tabs beside the response.
+func TestAmbiguityTabs(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	do(t, ctx, chromedp.Click(chromedp.CSS(`[data-show="ambiguity"]`)))
+	waitFor(t, ctx, "the surface", `(() => { const o = window.__pw.plots.charts.ambiguity.getOption();
+		return o.series && o.series[0].type === 'heatmap' && o.series[0].data.length > 100 && o.visualMap[0].max === 0; })()`)
+	if eval[string](t, ctx, `document.querySelector('.plot button.png[data-png="ambiguity"]') ? 'ok' : ''`) != "ok" {
+		t.Error("the PNG button does not follow the tab")
+	}
+	shot(t, ctx, "surface")
+	do(t, ctx, chromedp.Click(chromedp.CSS(`[data-show="ambcuts"]`)))
+	// The zero-Doppler cut peaks at 0 dB at zero delay; so does the
+	// zero-delay cut at zero Doppler (|χ(0,0)| is the largest value).
+	peaks := eval[[][]float64](t, ctx, `window.__pw.plots.charts.ambcuts.getOption().series.map((s) => s.data.reduce((a, b) => (b[1] > a[1] ? b : a)))`)
+	if len(peaks) != 2 {
+		t.Fatalf("%d cut series, want 2", len(peaks))
+	}
+	for i, p := range peaks {
+		if p[1] != 0 || p[0] != 0 {
+			t.Errorf("cut %d peaks at %v, want 0 dB at 0", i, p)
+		}
+	}
+	shot(t, ctx, "cuts")
+}
