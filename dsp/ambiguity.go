@@ -32,9 +32,9 @@ type DopplerPlan struct {
 	pulse, ref []complex128
 	fs         float64
 	corr       *Correlator
-	fft        *fourier.CmplxFFT
+	fft        *fftPlan
 	in, z      []complex128 // correlation input and output, len(pulse)+len(ref)−1
-	spec       []complex128 // spectrum of the zero-padded correlation
+	spec, work []complex128 // spectrum of the zero-padded correlation; FFT scratch
 	mag        []float64
 	p0, v0     float64 // zero-Doppler peak position (samples) and magnitude
 }
@@ -50,10 +50,11 @@ func NewDopplerPlan(pulse, ref []complex128, fs float64) *DopplerPlan {
 	p := &DopplerPlan{
 		pulse: pulse, ref: ref, fs: fs,
 		corr: NewCorrelator(ref, n),
-		fft:  fourier.NewCmplxFFT(l),
+		fft:  newFFTPlan(l),
 		in:   make([]complex128, n),
 		z:    make([]complex128, n),
 		spec: make([]complex128, l),
+		work: make([]complex128, l),
 		mag:  make([]float64, 2*dopplerUp+1),
 	}
 	p.p0, p.v0 = p.peak(pulse, 0)
@@ -89,7 +90,7 @@ func (p *DopplerPlan) peak(pulse []complex128, fd float64) (pos, val float64) {
 	}
 	clear(p.spec)
 	copy(p.spec, p.z)
-	p.fft.Coefficients(p.spec, p.spec)
+	p.fft.transform(p.spec, p.work)
 	for i := range p.mag {
 		t := float64(k) + float64(i-dopplerUp)/dopplerUp
 		p.mag[i] = cmplx.Abs(p.at(t))

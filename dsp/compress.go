@@ -3,8 +3,6 @@ package dsp
 import (
 	"math"
 	"math/cmplx"
-
-	"gonum.org/v1/gonum/dsp/fourier"
 )
 
 // Reference returns the matched reference for pulse weighted by w across
@@ -253,9 +251,11 @@ func interpolate(z []complex128, up int) []complex128 {
 	l := fftSize(len(z) + len(z)/4 + 16)
 	buf := make([]complex128, l)
 	copy(buf, z)
-	spec := fourier.NewCmplxFFT(l).Coefficients(nil, buf)
 	lf := l * up
 	big := make([]complex128, lf)
+	work := make([]complex128, lf)
+	newFFTPlan(l).transform(buf, work[:l])
+	spec := buf
 	h := (l + 1) / 2 // bins 0 … h−1 are non-negative frequencies
 	copy(big[:h], spec[:h])
 	neg := l - h
@@ -265,7 +265,7 @@ func interpolate(z []complex128, up int) []complex128 {
 		big[lf-neg-1] = spec[h] / 2
 	}
 	copy(big[lf-neg:], spec[l-neg:])
-	fourier.NewCmplxFFT(lf).Sequence(big, big)
+	newFFTPlan(lf).inverse(big, work)
 	inv := complex(1/float64(l), 0)
 	out := big[:(len(z)-1)*up+1]
 	for i := range out {

@@ -168,6 +168,7 @@ func (c *CFAR) Thresholds(dst, power []float64) []float64 {
 	for i, v := range power {
 		c.prefix[i+1] = c.prefix[i] + v
 	}
+	lastM, lastA := -1, 0.0
 	for k := range power {
 		lo1, hi1, lo2, hi2 := c.TrainingCells(k, n)
 		m := hi1 - lo1 + hi2 - lo2
@@ -175,8 +176,11 @@ func (c *CFAR) Thresholds(dst, power []float64) []float64 {
 			dst[k] = math.Inf(1)
 			continue
 		}
+		if m != lastM { // the count changes only near the ends
+			lastM, lastA = m, c.Multiplier(m)/float64(m)
+		}
 		s := c.prefix[hi1] - c.prefix[lo1] + c.prefix[hi2] - c.prefix[lo2]
-		dst[k] = c.Multiplier(m) * math.Max(s, 0) / float64(m)
+		dst[k] = lastA * math.Max(s, 0)
 	}
 	return dst
 }

@@ -50,21 +50,51 @@ func newFFTPlan(n int) *fftPlan {
 		panic("dsp: fft length must have no prime factor above 5")
 	}
 	f := &fftPlan{n: n}
+	root := newRoots(n)
 	cur, s := n, 1
 	for _, p := range radices {
 		m := cur / p
 		st := fftStage{radix: p, s: s, m: m, tw: make([]complex128, m*(p-1))}
 		for q := range m {
 			for j := 1; j < p; j++ {
-				// Reduce the angle exactly in integers before scaling.
-				sin, cos := math.Sincos(-2 * math.Pi * float64(q*j%cur) / float64(cur))
-				st.tw[q*(p-1)+j-1] = complex(cos, sin)
+				// exp(−j2π·q·j/cur) = exp(−j2π·q·j·s/n), reduced exactly.
+				st.tw[q*(p-1)+j-1] = root.at(q * j * s % n)
 			}
 		}
 		f.stages = append(f.stages, st)
 		cur, s = m, s*p
 	}
 	return f
+}
+
+// roots gives exp(−j2π·k/n) for 0 ≤ k < n as the product of two exactly
+// rounded factors, hi[k/b]·lo[k%b] with b ≈ √n: 2√n calls to Sincos
+// instead of n, and an error of a few units in the last place.
+type roots struct {
+	b      int
+	hi, lo []complex128
+}
+
+func newRoots(n int) roots {
+	b := int(math.Sqrt(float64(n))) + 1
+	r := roots{b: b, hi: make([]complex128, n/b+1), lo: make([]complex128, b)}
+	w := -2 * math.Pi / float64(n)
+	for i := range r.hi {
+		sin, cos := math.Sincos(w * float64(i*b))
+		r.hi[i] = complex(cos, sin)
+	}
+	for i := range r.lo {
+		sin, cos := math.Sincos(w * float64(i))
+		r.lo[i] = complex(cos, sin)
+	}
+	return r
+}
+
+func (r roots) at(k int) complex128 {
+	if k < r.b {
+		return r.lo[k]
+	}
+	return r.hi[k/r.b] * r.lo[k%r.b]
 }
 
 // transform replaces x (len n) by its DFT, using work (len n) as scratch.
@@ -89,6 +119,21 @@ func (f *fftPlan) transform(x, work []complex128) {
 	}
 	if len(f.stages)%2 == 1 {
 		copy(x, work)
+	}
+}
+
+// inverse replaces X (len n) by its unnormalised inverse DFT,
+// x[t] = Σ_k X[k]·exp(+j2π·k·t/n) (gonum's CmplxFFT.Sequence), as
+// conj(FFT(conj(X))).
+func (f *fftPlan) inverse(x, work []complex128) {
+	conjInPlace(x)
+	f.transform(x, work)
+	conjInPlace(x)
+}
+
+func conjInPlace(x []complex128) {
+	for i, v := range x {
+		x[i] = complex(real(v), -imag(v))
 	}
 }
 

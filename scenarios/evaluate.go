@@ -46,11 +46,17 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
+	// The plot series (noisy window, compression, thresholds) read the
+	// scene and model without changing them, so they are computed on a
+	// second goroutine while the target reports, with their verified
+	// suggestions, are built on this one.
+	series := make(chan Series, 1)
+	go func() { series <- sc.series() }()
 	res.Report.Targets = sc.targetReports(ctx, m, true)
+	res.Series = <-series
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
-	res.Series = sc.series()
 	res.Report.Warnings = append([]string{}, m.warnings...)
 	if err := ctx.Err(); err != nil {
 		return nil, err
@@ -240,8 +246,8 @@ func (sc *scene) series() Series {
 		echo[i] += dsp.ComplexNormal(noise)
 	}
 	sc.blank(echo, 0)
-	y := dsp.NewCorrelator(m.ref, len(x)).Apply(nil, append(make([]complex128, m.lead), echo...)[:len(x)])
-	// With lead zeros in front, an echo at window sample d peaks at y[d].
+	y := dsp.NewCorrelator(m.ref, len(x)).Apply(nil, x)
+	// With lead zeros in front of the echo, an echo at window sample d peaks at y[d].
 	s := Series{
 		RangeM0:     m.rangeOf(0),
 		RangeStepM:  C / (2 * m.fs),
@@ -261,8 +267,12 @@ func (sc *scene) series() Series {
 			p[k] = 1 + sc.total[k]
 		}
 		th := cf.Thresholds(nil, p)
+		last, lastDB := math.NaN(), 0.0
 		for k, t := range th {
-			s.ThresholdDB[k] = toDB(t)
+			if t != last { // constant away from the targets: skip the logarithm
+				last, lastDB = t, toDB(t)
+			}
+			s.ThresholdDB[k] = lastDB
 		}
 	} else {
 		t := toDB(dsp.FixedMultiplier(m.s.Receiver.Detector.PFA))

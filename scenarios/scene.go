@@ -234,7 +234,7 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 	off := len(m.ref) - m.lead
 	outLo, outHi := max(lo-off, 0), min(hi+len(kern)-off, m.n)
 	pow := make([]float64, outHi-outLo)
-	if len(g.density)*len(kern) <= 1<<22 {
+	if len(g.density)*len(kern) <= 1<<15 { // beyond, the FFT is cheaper
 		for i, q := range g.density {
 			if q == 0 {
 				continue

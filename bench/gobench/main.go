@@ -91,6 +91,7 @@ func gen(dir string, seed uint64, n, m int) error {
 
 type timing struct {
 	TimesMS   []float64 `json:"times_ms"`
+	CPUMS     []float64 `json:"cpu_ms"` // process CPU time (user+system, all threads) per repetition
 	PlanMS    float64   `json:"plan_ms,omitempty"`
 	MaxRSSKiB int64     `json:"maxrss_kib"`
 	Info      string    `json:"info,omitempty"`
@@ -117,12 +118,13 @@ func compress(xf, hf string, reps, workers int, cold bool, out string) error {
 		}
 	}
 	for range reps {
-		t := time.Now()
+		t, c := time.Now(), cpuTime()
 		if cold {
 			p = dsp.NewCorrelatorWorkers(h, len(x), workers)
 		}
 		p.Apply(dst, x)
 		tm.TimesMS = append(tm.TimesMS, ms(time.Since(t)))
+		tm.CPUMS = append(tm.CPUMS, ms(cpuTime()-c))
 	}
 	tm.Info = fmt.Sprintf("workers=%d", workers)
 	return report(tm)
@@ -157,11 +159,12 @@ func evaluate(file string, reps int, out string) error {
 	}
 	var tm timing
 	for range reps {
-		t := time.Now()
+		t, c := time.Now(), cpuTime()
 		if _, err := scenarios.Evaluate(ctx, s); err != nil {
 			return err
 		}
 		tm.TimesMS = append(tm.TimesMS, ms(time.Since(t)))
+		tm.CPUMS = append(tm.CPUMS, ms(cpuTime()-c))
 	}
 	tm.Info = fmt.Sprintf("samples=%d targets=%d", len(res.Series.ProfileDB), len(res.Report.Targets))
 	return report(tm)
@@ -200,6 +203,13 @@ func report(tm timing) error {
 	}
 	fmt.Println(string(b))
 	return nil
+}
+
+// cpuTime returns the process's user plus system CPU time.
+func cpuTime() time.Duration {
+	var ru syscall.Rusage
+	syscall.Getrusage(syscall.RUSAGE_SELF, &ru)
+	return time.Duration(ru.Utime.Nano() + ru.Stime.Nano())
 }
 
 func ms(d time.Duration) float64 { return float64(d.Nanoseconds()) / 1e6 }
