@@ -46,7 +46,15 @@ type scene struct {
 	m       *model
 	targets []*tgt
 	total   []float64 // Σ of every target's power per window sample
+	// reachLo, reachHi bound the window samples whose power is needed:
+	// a target whose response cannot reach [reachLo, reachHi) keeps an
+	// empty response (see newSceneFor).
+	reachLo, reachHi int
 }
+
+// reaches reports whether a response over window samples [lo, hi) is
+// needed.
+func (sc *scene) reaches(lo, hi int) bool { return lo < sc.reachHi && hi > sc.reachLo }
 
 // tgt is one target's geometry and noise-free response.
 type tgt struct {
@@ -73,12 +81,32 @@ func streamOf(seed int64, id string, salt uint64) *rand.Rand {
 // newScene computes the noise-free response of every target. Work is
 // checked against ctx between targets.
 func newScene(ctx context.Context, m *model) (*scene, error) {
-	sc := &scene{m: m, total: make([]float64, m.n)}
+	return newSceneFor(ctx, m, -1)
+}
+
+// newSceneFor is newScene when focus < 0. Otherwise it computes only what
+// judging target focus needs: that target's response first, then the
+// responses of the others that reach its peak cell or its detector's
+// training cells there; the rest keep an empty response, so sc.total is
+// exact on those cells only. Used to verify suggested changes.
+func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
+	sc := &scene{m: m, total: make([]float64, m.n), reachHi: m.n}
+	sc.targets = make([]*tgt, len(m.s.Targets))
 	lp := &localPlan{m: m}
-	for _, t := range m.s.Targets {
+	order := make([]int, 0, len(m.s.Targets))
+	if focus >= 0 {
+		order = append(order, focus)
+	}
+	for i := range m.s.Targets {
+		if i != focus {
+			order = append(order, i)
+		}
+	}
+	for n, i := range order {
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
+		t := m.s.Targets[i]
 		g := &tgt{t: t, fd: -2 * t.RangeRateMPS / m.lambda}
 		switch t.Kind {
 		case TargetPoint:
@@ -88,10 +116,20 @@ func newScene(ctx context.Context, m *model) (*scene, error) {
 				return nil, err
 			}
 		}
-		for i, p := range g.resp.pow {
-			sc.total[g.resp.lo+i] += p
+		for k, p := range g.resp.pow {
+			sc.total[g.resp.lo+k] += p
 		}
-		sc.targets = append(sc.targets, g)
+		sc.targets[i] = g
+		if n == 0 && focus >= 0 {
+			sc.reachLo, sc.reachHi = 0, 0
+			if k, _ := g.resp.peak(); k >= 0 {
+				sc.reachLo, sc.reachHi = k, k+1
+				if cf := m.detector(); cf != nil {
+					sc.reachLo, _, _, sc.reachHi = cf.TrainingCells(k, m.n)
+					sc.reachLo, sc.reachHi = min(sc.reachLo, k), max(sc.reachHi, k+1)
+				}
+			}
+		}
 	}
 	return sc, nil
 }
@@ -135,9 +173,12 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 	if start < m.tau {
 		g.received = math.Max(0, start/m.tau)
 	}
-	lp.ensure()
 	d := g.delay * m.fs
 	b := int(math.Floor(d)) - len(m.ref)
+	if !sc.reaches(b+m.lead, b+m.lead+lp.size()) {
+		return
+	}
+	lp.ensure()
 	clear(lp.x)
 	dsp.AddEcho(lp.x, m.wave, m.fs, g.delay-float64(b)/m.fs, complex(g.amp, 0)*g.phase, g.fd)
 	sc.blank(lp.x, b)
@@ -221,6 +262,9 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 		return nil
 	}
 	g.density, g.dlo = density[lo:hi+1], lo
+	if off := len(m.ref) - m.lead; !sc.reaches(lo-off, hi+lp.size()-off) {
+		return nil
+	}
 	// Response kernel |r(l)|² of the Doppler-shifted pulse, l = −len(ref)+1 … len(pulse)−1.
 	lp.ensure()
 	clear(lp.x)
