@@ -88,7 +88,7 @@ func stageCost(radix int) float64 {
 	case 3:
 		return 1.05
 	}
-	return 1.65 // radix 5
+	return 1.9 // radix 5
 }
 
 // fftCost models the time of one length-l transform plus the per-block

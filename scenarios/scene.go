@@ -135,14 +135,16 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 }
 
 // localPlan correlates short buffers that hold one echo and its full
-// compressed response: length len(pulse) + 2·len(ref) + 2.
+// compressed response: length len(pulse) + len(ref) + 2. The echo starts
+// at local sample len(ref) (plus a fraction), so the response, non-zero
+// at lags 0 … len(pulse)+len(ref), fits.
 type localPlan struct {
 	m    *model
 	c    *dsp.Correlator
 	x, y []complex128
 }
 
-func (lp *localPlan) size() int { return len(lp.m.pulse) + 2*len(lp.m.ref) + 2 }
+func (lp *localPlan) size() int { return len(lp.m.pulse) + len(lp.m.ref) + 2 }
 
 func (lp *localPlan) ensure() {
 	if lp.c == nil {
