@@ -251,7 +251,7 @@ func (sc *scene) series() Series {
 	s := Series{
 		RangeM0:     m.rangeOf(0),
 		RangeStepM:  C / (2 * m.fs),
-		Echo:        append([]complex128(nil), echo...),
+		Echo:        echo, // x is not used after the compression
 		ProfileDB:   make([]float64, m.n),
 		CleanDB:     make([]float64, m.n),
 		ThresholdDB: make([]float64, m.n),
@@ -259,26 +259,28 @@ func (sc *scene) series() Series {
 	for k := range m.n {
 		v := y[k]
 		s.ProfileDB[k] = toDB((real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain)
-		s.CleanDB[k] = toDB(sc.total[k])
 	}
 	if cf := m.detector(); cf != nil {
-		p := make([]float64, m.n)
+		p := s.CleanDB // holds 1 + total until the dB values below
 		for k := range p {
 			p[k] = 1 + sc.total[k]
 		}
-		th := cf.Thresholds(nil, p)
+		th := cf.Thresholds(s.ThresholdDB, p) // in place, converted to dB below
 		last, lastDB := math.NaN(), 0.0
 		for k, t := range th {
 			if t != last { // constant away from the targets: skip the logarithm
 				last, lastDB = t, toDB(t)
 			}
-			s.ThresholdDB[k] = lastDB
+			th[k] = lastDB
 		}
 	} else {
 		t := toDB(dsp.FixedMultiplier(m.s.Receiver.Detector.PFA))
 		for k := range s.ThresholdDB {
 			s.ThresholdDB[k] = t
 		}
+	}
+	for k, v := range sc.total {
+		s.CleanDB[k] = toDB(v)
 	}
 	for k := 0; k < m.blankEnd(); k++ {
 		s.ProfileDB[k], s.CleanDB[k] = dbFloor, dbFloor

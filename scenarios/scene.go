@@ -227,25 +227,42 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 	}
 	k0 := 1 / m.noiseW * r.PeakPowerW * math.Pow(dsp.FromDB(r.AntennaGainDBi), 2) * m.lambda * m.lambda /
 		(math.Pow(4*math.Pi, 3) * dsp.FromDB(r.SystemLossDB))
-	density := make([]float64, m.n)
 	end := m.blankEnd()
-	lo, hi := m.n, -1
 	first := int(math.Floor(g.t.RangeStartM / m.unambM))
 	last := int(math.Floor(g.t.RangeStopM / m.unambM))
 	if last-first >= maxFolds {
 		last = first + maxFolds - 1
 		m.warn("target %s spans more than %d unambiguous intervals; only the nearest %d are simulated", g.t.ID, maxFolds, maxFolds)
 	}
-	for f := first; f <= last; f++ {
-		base := float64(f) * m.unambM
+	// span returns the window samples [ka, kb] of fold f's true ranges.
+	span := func(f int) (base float64, ka, kb int, ok bool) {
+		base = float64(f) * m.unambM
 		// True ranges of this fold that land in the window.
 		a := math.Max(g.t.RangeStartM, base+m.rangeOf(0))
 		b := math.Min(g.t.RangeStopM, base+m.rangeOf(float64(m.n-1)+0.5))
 		if a >= b {
+			return base, 0, -1, false
+		}
+		ka = int(math.Max(0, math.Floor(m.sampleOf(a-base))))
+		kb = int(math.Min(float64(m.n-1), math.Ceil(m.sampleOf(b-base))))
+		return base, ka, kb, true
+	}
+	klo, khi := m.n, -1
+	for f := first; f <= last; f++ {
+		if _, ka, kb, ok := span(f); ok {
+			klo, khi = min(klo, ka), max(khi, kb)
+		}
+	}
+	if khi < klo {
+		return nil
+	}
+	density := make([]float64, khi-klo+1) // density[k−klo]: only the samples the folds touch
+	lo, hi := m.n, -1
+	for f := first; f <= last; f++ {
+		base, ka, kb, ok := span(f)
+		if !ok {
 			continue
 		}
-		ka := int(math.Max(0, math.Floor(m.sampleOf(a-base))))
-		kb := int(math.Min(float64(m.n-1), math.Ceil(m.sampleOf(b-base))))
 		for k := ka; k <= kb; k++ {
 			// Range slab of sample k: [rk−dr/2, rk+dr/2) clipped to the target.
 			rk := m.rangeOf(float64(k)) + base
@@ -253,7 +270,7 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 			if s1 <= s0 || k < end || rk <= 0 {
 				continue
 			}
-			density[k] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4)
+			density[k-klo] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4)
 			lo, hi = min(lo, k), max(hi, k)
 		}
 		if err := ctx.Err(); err != nil {
@@ -263,7 +280,7 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 	if hi < 0 {
 		return nil
 	}
-	g.density, g.dlo = density[lo:hi+1], lo
+	g.density, g.dlo = density[lo-klo:hi-klo+1], lo
 	if off := len(m.ref) - m.lead; !sc.reaches(lo-off, hi+lp.size()-off) {
 		return nil
 	}
