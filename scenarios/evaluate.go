@@ -11,7 +11,15 @@ import (
 // dbFloor is the lowest dB value in series: 10·log10(0) is not a number.
 const dbFloor = -100.0
 
-func toDB(p float64) float64 { return math.Max(dsp.DB(p), dbFloor) }
+func toDB(p float64) float64 {
+	if !(p > 1e-10) { // at or below the floor, or NaN (as math.Max would keep it)
+		if p != p {
+			return p
+		}
+		return dbFloor
+	}
+	return dsp.DB(p)
+}
 
 // Evaluate computes the report and the plot series of a valid scenario
 // (as Decode returns it). It checks ctx between stages and returns
