@@ -1,7 +1,7 @@
 package dsp
 
 import (
-	"math/bits"
+	"math"
 	"sync"
 )
 
@@ -76,24 +76,24 @@ func newCorrelatorLen(ref []complex128, n, l, workers int) *Correlator {
 	return c
 }
 
-// Relative cost per point of one FFT stage, by radix, from
-// BenchmarkFFTRadix (in cache, amd64): radix 4 covers two halvings for
-// about the price of one radix-3 or radix-2 stage.
+// Relative cost per point of one FFT stage, by radix, from the best of
+// repeated BenchmarkFFTRadix runs (amd64): a radix-4 stage covers two
+// halvings for the price of a radix-2 one.
 func stageCost(radix int) float64 {
 	switch radix {
-	case 4:
+	case 4, 2:
 		return 1.0
-	case 2:
-		return 0.75
 	case 3:
-		return 1.05
+		return 1.3
 	}
-	return 1.9 // radix 5
+	return 2.0 // radix 5
 }
 
 // fftCost models the time of one length-l transform plus the per-block
 // spectral product and copies (about one stage's worth), with a penalty
-// once the two l-point buffers no longer fit a 1 MiB cache.
+// for lengths beyond 2¹⁴ whose buffers spill out of a core's cache
+// (BenchmarkFFTRadix: the time per point and stage grows about 17 % per
+// doubling from 2¹⁴ to 2²⁰ on the reference machine).
 func fftCost(l int) float64 {
 	c := 1.0
 	r := l
@@ -107,19 +107,19 @@ func fftCost(l int) float64 {
 			r /= p
 		}
 	}
-	if 32*l > 1<<20 {
-		c *= 1 + 0.1*float64(bits.Len(uint(32*l))-21)
+	if l > 1<<14 {
+		c *= 1 + 0.17*(math.Log2(float64(l))-14)
 	}
 	return c * float64(l)
 }
 
 // bestBlockLen picks the FFT length minimising the modelled time of the
 // busiest worker, over 2,3,5-smooth L from the smallest useful block to
-// one block of n+m−1.
+// twice one block of n+m−1 (a longer single block of cheaper radices can
+// win).
 func bestBlockLen(n, m, workers int) int {
-	single := fftSize(n + m - 1)
-	best, bestCost := single, blockCost(n, m, single, workers)
-	for l := fftSize(m + 1); l < single; l = fftSize(l + 1) {
+	best, bestCost := 0, math.Inf(1)
+	for l := fftSize(m + 1); l <= 2*(n+m-1); l = fftSize(l + 1) {
 		if c := blockCost(n, m, l, workers); c < bestCost {
 			best, bestCost = l, c
 		}

@@ -137,8 +137,24 @@ func conjInPlace(x []complex128) {
 	}
 }
 
+// Below this stride the passes index directly instead of slicing per
+// butterfly group: the inner loops are too short to repay the slicing.
+const shortStride = 8
+
 func (st *fftStage) pass2(x, y []complex128) {
 	s, m, tw := st.s, st.m, st.tw
+	if s < shortStride {
+		for p := range m {
+			w := tw[p]
+			xb, yb := s*p, 2*s*p
+			for q := range s {
+				a, b := x[xb+q], x[xb+q+s*m]
+				y[yb+q] = a + b
+				y[yb+s+q] = (a - b) * w
+			}
+		}
+		return
+	}
 	for p := range m {
 		w := tw[p]
 		x0 := x[s*p : s*p+s]
@@ -158,20 +174,20 @@ func (st *fftStage) pass2(x, y []complex128) {
 
 func (st *fftStage) pass4(x, y []complex128) {
 	s, m, tw := st.s, st.m, st.tw
-	if s == 1 {
-		x = x[:4*m]
-		y = y[:4*m]
+	if s < shortStride {
 		for p := range m {
-			a0, a1, a2, a3 := x[p], x[p+m], x[p+2*m], x[p+3*m]
-			t0, t1 := a0+a2, a0-a2
-			t2, d := a1+a3, a1-a3
-			t3 := complex(imag(d), -real(d)) // −j·(a1−a3)
 			w := tw[3*p : 3*p+3]
-			o := y[4*p : 4*p+4]
-			o[0] = t0 + t2
-			o[1] = (t1 + t3) * w[0]
-			o[2] = (t0 - t2) * w[1]
-			o[3] = (t1 - t3) * w[2]
+			xb, yb, sm := s*p, 4*s*p, s*m
+			for q := range s {
+				a0, a1, a2, a3 := x[xb+q], x[xb+q+sm], x[xb+q+2*sm], x[xb+q+3*sm]
+				t0, t1 := a0+a2, a0-a2
+				t2, d := a1+a3, a1-a3
+				t3 := complex(imag(d), -real(d)) // −j·(a1−a3)
+				y[yb+q] = t0 + t2
+				y[yb+s+q] = (t1 + t3) * w[0]
+				y[yb+2*s+q] = (t0 - t2) * w[1]
+				y[yb+3*s+q] = (t1 - t3) * w[2]
+			}
 		}
 		return
 	}
@@ -203,6 +219,22 @@ const sin3 = 0.86602540378443864676372317075293618347140262690519
 
 func (st *fftStage) pass3(x, y []complex128) {
 	s, m, tw := st.s, st.m, st.tw
+	if s < shortStride {
+		for p := range m {
+			w1, w2 := tw[2*p], tw[2*p+1]
+			xb, yb, sm := s*p, 3*s*p, s*m
+			for q := range s {
+				a0, a1, a2 := x[xb+q], x[xb+q+sm], x[xb+q+2*sm]
+				t, d := a1+a2, a1-a2
+				c := a0 - complex(0.5*real(t), 0.5*imag(t))
+				e := complex(sin3*imag(d), -sin3*real(d))
+				y[yb+q] = a0 + t
+				y[yb+s+q] = (c + e) * w1
+				y[yb+2*s+q] = (c - e) * w2
+			}
+		}
+		return
+	}
 	for p := range m {
 		w1, w2 := tw[2*p], tw[2*p+1]
 		x0 := x[s*p : s*p+s]
@@ -232,8 +264,37 @@ const (
 	sin5b = 0.58778525229247312916870595463907276859765243764314
 )
 
+// bfly5 returns the five outputs of a radix-5 butterfly before twiddling.
+func bfly5(a0, a1, a2, a3, a4 complex128) (b0, b1, b2, b3, b4 complex128) {
+	t1, t2 := a1+a4, a2+a3
+	d1, d2 := a1-a4, a2-a3
+	c1 := complex(real(a0)+cos5a*real(t1)+cos5b*real(t2), imag(a0)+cos5a*imag(t1)+cos5b*imag(t2))
+	c2 := complex(real(a0)+cos5b*real(t1)+cos5a*real(t2), imag(a0)+cos5b*imag(t1)+cos5a*imag(t2))
+	// −j·(sin5a·d1 + sin5b·d2) and −j·(sin5b·d1 − sin5a·d2).
+	u1r, u1i := sin5a*real(d1)+sin5b*real(d2), sin5a*imag(d1)+sin5b*imag(d2)
+	u2r, u2i := sin5b*real(d1)-sin5a*real(d2), sin5b*imag(d1)-sin5a*imag(d2)
+	e1 := complex(u1i, -u1r)
+	e2 := complex(u2i, -u2r)
+	return a0 + t1 + t2, c1 + e1, c2 + e2, c2 - e2, c1 - e1
+}
+
 func (st *fftStage) pass5(x, y []complex128) {
 	s, m, tw := st.s, st.m, st.tw
+	if s < shortStride {
+		for p := range m {
+			w := tw[4*p : 4*p+4]
+			xb, yb, sm := s*p, 5*s*p, s*m
+			for q := range s {
+				b0, b1, b2, b3, b4 := bfly5(x[xb+q], x[xb+q+sm], x[xb+q+2*sm], x[xb+q+3*sm], x[xb+q+4*sm])
+				y[yb+q] = b0
+				y[yb+s+q] = b1 * w[0]
+				y[yb+2*s+q] = b2 * w[1]
+				y[yb+3*s+q] = b3 * w[2]
+				y[yb+4*s+q] = b4 * w[3]
+			}
+		}
+		return
+	}
 	for p := range m {
 		w := tw[4*p : 4*p+4]
 		w1, w2, w3, w4 := w[0], w[1], w[2], w[3]

@@ -7,7 +7,7 @@ import (
 )
 
 func BenchmarkFFTRadix(b *testing.B) {
-	for _, n := range []int{16384, 32768, 19683, 15625, 4096 * 4 * 3, 1 << 18, 3 * 3 * 3 * 5 * 5 * 5 * 64} {
+	for _, n := range []int{1024, 2048, 4096, 8192, 16384, 65536, 1 << 18, 1 << 20, 19683, 15625, 1215, 1280} {
 		x := randComplex(rand.New(rand.NewPCG(3, 3)), n)
 		p, w := newFFTPlan(n), make([]complex128, n)
 		b.Run(fmt.Sprint(n), func(b *testing.B) {
