@@ -47,21 +47,23 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
+	// The plot series of the window (noisy echo, compression, thresholds)
+	// read the scene and model without changing them, so they are
+	// computed on a second goroutine while the waveform and target
+	// reports, with their verified suggestions, and the pulse's response
+	// are built on this one.
+	series := make(chan Series, 1)
+	go func() { series <- sc.series() }()
 	res := &Result{}
 	res.Report.Version = ReportVersion
 	res.Report.Scenario = s.Name
 	res.Report.Waveform = m.waveformReport()
-	if err := ctx.Err(); err != nil {
-		return nil, err
+	if ctx.Err() == nil {
+		res.Report.Targets = sc.targetReports(ctx, m, true)
 	}
-	// The plot series (noisy window, compression, thresholds) read the
-	// scene and model without changing them, so they are computed on a
-	// second goroutine while the target reports, with their verified
-	// suggestions, are built on this one.
-	series := make(chan Series, 1)
-	go func() { series <- sc.series() }()
-	res.Report.Targets = sc.targetReports(ctx, m, true)
+	resp := m.response()
 	res.Series = <-series
+	res.Series.Response = resp
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -234,7 +236,7 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.Figures, dopLoss float64)
 }
 
 // series synthesises the noisy receive window, compresses it and returns
-// the plot series.
+// the plot series but the pulse's response (model.response).
 func (sc *scene) series() Series {
 	m := sc.m
 	x := make([]complex128, m.n+m.lead)
@@ -293,14 +295,18 @@ func (sc *scene) series() Series {
 	for k := 0; k < m.blankEnd(); k++ {
 		s.ProfileDB[k], s.CleanDB[k] = dbFloor, dbFloor
 	}
-	t, db := dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.s.Waveform.Bandwidth())
-	s.Response.RangeM = make([]float64, len(t))
-	s.Response.DB = make([]float64, len(db))
-	for i := range t {
-		s.Response.RangeM[i] = t[i] * C / 2
-		s.Response.DB[i] = math.Max(db[i], -120)
-	}
 	return s
+}
+
+// response returns the plot of the pulse's compressed response.
+func (m *model) response() Response {
+	t, db := dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.s.Waveform.Bandwidth())
+	r := Response{RangeM: make([]float64, len(t)), DB: make([]float64, len(db))}
+	for i := range t {
+		r.RangeM[i] = t[i] * C / 2
+		r.DB[i] = math.Max(db[i], -120)
+	}
+	return r
 }
 
 // clutter adds a realisation of a distributed target: complex Gaussian
