@@ -48,8 +48,10 @@ type scene struct {
 	total   []float64 // Σ of every target's power per window sample
 	// reachLo, reachHi bound the window samples whose power is needed:
 	// a target whose response cannot reach [reachLo, reachHi) keeps an
-	// empty response (see newSceneFor).
+	// empty response (see newSceneFor). With partial, point targets'
+	// responses are computed on those samples only.
 	reachLo, reachHi int
+	partial          bool
 }
 
 // reaches reports whether a response over window samples [lo, hi) is
@@ -121,6 +123,7 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 		}
 		sc.targets[i] = g
 		if n == 0 && focus >= 0 {
+			sc.partial = true
 			sc.reachLo, sc.reachHi = 0, 0
 			if k, _ := g.resp.peak(); k >= 0 {
 				sc.reachLo, sc.reachHi = k, k+1
@@ -177,24 +180,49 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 	}
 	d := g.delay * m.fs
 	b := int(math.Floor(d)) - len(m.ref)
-	if !sc.reaches(b+m.lead, b+m.lead+lp.size()) {
+	// Output j of the local buffer is window sample b+j+lead.
+	lo, hi := max(b+m.lead, 0), min(b+m.lead+lp.size(), m.n)
+	if sc.partial {
+		lo, hi = max(lo, sc.reachLo), min(hi, sc.reachHi)
+	}
+	if lo >= hi || !sc.reaches(lo, hi) {
 		return
 	}
 	lp.ensure()
 	clear(lp.x)
 	dsp.AddEcho(lp.x, m.wave, m.fs, g.delay-float64(b)/m.fs, complex(g.amp, 0)*g.phase, g.fd)
 	sc.blank(lp.x, b)
-	lp.c.Apply(lp.y, lp.x)
-	// y[j] is the output at window sample b+j+lead.
-	lo, hi := max(b+m.lead, 0), min(b+m.lead+len(lp.y), m.n)
-	if lo >= hi {
+	g.resp = response{lo: lo, pow: make([]float64, hi-lo)}
+	if sc.partial && (hi-lo)*len(m.ref) <= 8*lp.size() {
+		// A few cells: direct sums are cheaper than the FFT pair.
+		for k := lo; k < hi; k++ {
+			v := correlateAt(lp.x, m.ref, k-b-m.lead)
+			g.resp.pow[k-lo] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
+		}
 		return
 	}
-	g.resp = response{lo: lo, pow: make([]float64, hi-lo)}
+	lp.c.Apply(lp.y, lp.x)
 	for k := lo; k < hi; k++ {
 		v := lp.y[k-b-m.lead]
 		g.resp.pow[k-lo] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
 	}
+}
+
+// correlateAt returns Σ_i x[j+i]·conj(h[i]) with x zero beyond its end:
+// output j of dsp.Correlator, directly.
+func correlateAt(x, h []complex128, j int) complex128 {
+	x = x[j:]
+	if len(x) > len(h) {
+		x = x[:len(h)]
+	}
+	h = h[:len(x)]
+	var re, im float64
+	for i, a := range x {
+		c := h[i]
+		re += real(a)*real(c) + imag(a)*imag(c)
+		im += imag(a)*real(c) - real(a)*imag(c)
+	}
+	return complex(re, im)
 }
 
 // blank zeroes the samples of a buffer starting at window sample b that
