@@ -164,6 +164,14 @@ func (st *fftStage) pass2(x, y []complex128) {
 		x1 = x1[:len(x0)]
 		y0 = y0[:len(x0)]
 		y1 = y1[:len(x0)]
+		if p == 0 {
+			for q, a := range x0 {
+				b := x1[q]
+				y0[q] = a + b
+				y1[q] = a - b
+			}
+			continue
+		}
 		for q, a := range x0 {
 			b := x1[q]
 			y0[q] = a + b
@@ -192,7 +200,6 @@ func (st *fftStage) pass4(x, y []complex128) {
 		return
 	}
 	for p := range m {
-		w1, w2, w3 := tw[3*p], tw[3*p+1], tw[3*p+2]
 		x0 := x[s*p : s*p+s]
 		x1 := x[s*(p+m) : s*(p+m)+s]
 		x2 := x[s*(p+2*m) : s*(p+2*m)+s]
@@ -201,6 +208,20 @@ func (st *fftStage) pass4(x, y []complex128) {
 		y0, y1, y2, y3 := o[:s], o[s:2*s], o[2*s:3*s], o[3*s:4*s]
 		x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
 		y0, y1, y2, y3 = y0[:len(x0)], y1[:len(x0)], y2[:len(x0)], y3[:len(x0)]
+		if p == 0 { // unit twiddles: the whole last stage, and a share of the others
+			for q, a0 := range x0 {
+				a1, a2, a3 := x1[q], x2[q], x3[q]
+				t0, t1 := a0+a2, a0-a2
+				t2, d := a1+a3, a1-a3
+				t3 := complex(imag(d), -real(d))
+				y0[q] = t0 + t2
+				y1[q] = t1 + t3
+				y2[q] = t0 - t2
+				y3[q] = t1 - t3
+			}
+			continue
+		}
+		w1, w2, w3 := tw[3*p], tw[3*p+1], tw[3*p+2]
 		for q, a0 := range x0 {
 			a1, a2, a3 := x1[q], x2[q], x3[q]
 			t0, t1 := a0+a2, a0-a2
@@ -236,7 +257,6 @@ func (st *fftStage) pass3(x, y []complex128) {
 		return
 	}
 	for p := range m {
-		w1, w2 := tw[2*p], tw[2*p+1]
 		x0 := x[s*p : s*p+s]
 		x1 := x[s*(p+m) : s*(p+m)+s]
 		x2 := x[s*(p+2*m) : s*(p+2*m)+s]
@@ -244,6 +264,19 @@ func (st *fftStage) pass3(x, y []complex128) {
 		y0, y1, y2 := o[:s], o[s:2*s], o[2*s:3*s]
 		x1, x2 = x1[:len(x0)], x2[:len(x0)]
 		y0, y1, y2 = y0[:len(x0)], y1[:len(x0)], y2[:len(x0)]
+		if p == 0 {
+			for q, a0 := range x0 {
+				a1, a2 := x1[q], x2[q]
+				t, d := a1+a2, a1-a2
+				c := a0 - complex(0.5*real(t), 0.5*imag(t))
+				e := complex(sin3*imag(d), -sin3*real(d))
+				y0[q] = a0 + t
+				y1[q] = c + e
+				y2[q] = c - e
+			}
+			continue
+		}
+		w1, w2 := tw[2*p], tw[2*p+1]
 		for q, a0 := range x0 {
 			a1, a2 := x1[q], x2[q]
 			t, d := a1+a2, a1-a2
@@ -296,8 +329,6 @@ func (st *fftStage) pass5(x, y []complex128) {
 		return
 	}
 	for p := range m {
-		w := tw[4*p : 4*p+4]
-		w1, w2, w3, w4 := w[0], w[1], w[2], w[3]
 		x0 := x[s*p : s*p+s]
 		x1 := x[s*(p+m) : s*(p+m)+s]
 		x2 := x[s*(p+2*m) : s*(p+2*m)+s]
@@ -307,6 +338,14 @@ func (st *fftStage) pass5(x, y []complex128) {
 		y0, y1, y2, y3, y4 := o[:s], o[s:2*s], o[2*s:3*s], o[3*s:4*s], o[4*s:5*s]
 		x1, x2, x3, x4 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)], x4[:len(x0)]
 		y0, y1, y2, y3, y4 = y0[:len(x0)], y1[:len(x0)], y2[:len(x0)], y3[:len(x0)], y4[:len(x0)]
+		if p == 0 {
+			for q, a0 := range x0 {
+				y0[q], y1[q], y2[q], y3[q], y4[q] = bfly5(a0, x1[q], x2[q], x3[q], x4[q])
+			}
+			continue
+		}
+		w := tw[4*p : 4*p+4]
+		w1, w2, w3, w4 := w[0], w[1], w[2], w[3]
 		for q, a0 := range x0 {
 			a1, a2, a3, a4 := x1[q], x2[q], x3[q], x4[q]
 			t1, t2 := a1+a4, a2+a3
