@@ -181,7 +181,8 @@ func CodeISL(phases []float64) float64 {
 	return 2 * s
 }
 
-// CodePSLRDB returns 20·log10(CodePSL/N) dB (−Inf for N ≤ 1).
+// CodePSLRDB returns 20·log10(CodePSL/N) dB (−Inf for N = 1, NaN for an
+// empty code).
 func CodePSLRDB(phases []float64) float64 {
 	return 20 * math.Log10(CodePSL(phases)/float64(len(phases)))
 }

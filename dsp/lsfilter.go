@@ -39,6 +39,16 @@ const denseMaxTaps = 128
 // Toeplitz), are solved by Cholesky (gonum/mat) up to 128 taps and by the
 // Levinson recursion beyond.
 func LeastSquaresFilter(code []complex128, length int) (h []complex128, lead int, err error) {
+	return LeastSquaresFilterMainlobe(code, length, 0)
+}
+
+// LeastSquaresFilterMainlobe is LeastSquaresFilter for a code sampled at
+// more than one sample per chip: the desired response keeps the matched
+// filter's main lobe over lags −half … half (the code's autocorrelation
+// there, scaled to a unit peak) and is zero elsewhere, instead of a unit
+// delta that an oversampled code cannot reach without a large mismatch
+// loss. half = 0 is LeastSquaresFilter; use half = ⌈samples per chip⌉ − 1.
+func LeastSquaresFilterMainlobe(code []complex128, length, half int) (h []complex128, lead int, err error) {
 	n := len(code)
 	if n == 0 {
 		return nil, 0, errors.New("least-squares filter: empty code")
@@ -56,12 +66,15 @@ func LeastSquaresFilter(code []complex128, length int) (h []complex128, lead int
 	if length < n || length > MaxLSFilterTaps {
 		return nil, 0, fmt.Errorf("least-squares filter: length %d out of range [%d, %d]", length, n, MaxLSFilterTaps)
 	}
+	if half < 0 || half >= n {
+		return nil, 0, fmt.Errorf("least-squares filter: main-lobe half-width %d out of range [0, %d]", half, n-1)
+	}
 	lead = length - 1 - (n+length-2)/2 // the centre row is (n+length−2)/2
 	var g []complex128
 	if length <= denseMaxTaps {
-		g, err = lsDense(code, length, lead)
+		g, err = lsDense(code, length, lead, half)
 	} else {
-		g, err = lsLevinson(code, length, lead)
+		g, err = lsLevinson(code, length, lead, half)
 	}
 	if err != nil {
 		return nil, 0, err
@@ -79,8 +92,8 @@ func LeastSquaresFilter(code []complex128, length int) (h []complex128, lead int
 // stacked A lost accuracy here at a few dozen taps, so the small dense
 // path uses the normal equations, which are well conditioned for codes
 // with a flat spectrum.)
-func lsDense(code []complex128, l, lead int) ([]complex128, error) {
-	rho, b := normalEquations(code, l, lead)
+func lsDense(code []complex128, l, lead, half int) ([]complex128, error) {
+	rho, b := normalEquations(code, l, lead, half)
 	t := mat.NewSymDense(2*l, nil)
 	for i := range l {
 		for j := i; j < l; j++ {
@@ -112,8 +125,12 @@ func lsDense(code []complex128, l, lead int) ([]complex128, error) {
 }
 
 // normalEquations returns the first row ρ of T = AᴴA, T[i][j] = ρ(j−i),
-// ρ(d) = Σ_s code[s+d]·conj(code[s]), and b = Aᴴe, b[m] = conj(code[m−lead]).
-func normalEquations(code []complex128, l, lead int) (rho, b []complex128) {
+// ρ(d) = Σ_s code[s+d]·conj(code[s]), and b = Aᴴd for the desired
+// response d: d_j = ρ(j)/ρ(0) at the rows c+j around the centre row c for
+// |j| ≤ half, zero elsewhere. Row c+j of A holds code[i−lead+j] in column
+// i, so b[m] = Σ_j d_j·conj(code[m−lead+j]); half = 0 gives
+// b[m] = conj(code[m−lead]).
+func normalEquations(code []complex128, l, lead, half int) (rho, b []complex128) {
 	n := len(code)
 	rho = make([]complex128, l) // zero beyond n−1
 	for d := 0; d < min(n, l); d++ {
@@ -123,10 +140,28 @@ func normalEquations(code []complex128, l, lead int) (rho, b []complex128) {
 		}
 		rho[d] = s
 	}
+	acf := func(j int) complex128 { // ρ(j) for any j, |j| < n
+		if j >= 0 {
+			var s complex128
+			for i := 0; i+j < n; i++ {
+				s += code[i+j] * cmplx.Conj(code[i])
+			}
+			return s
+		}
+		var s complex128
+		for i := 0; i-j < n; i++ {
+			s += code[i] * cmplx.Conj(code[i-j])
+		}
+		return s
+	}
+	r0 := acf(0)
 	b = make([]complex128, l)
-	for m := range b {
-		if i := m - lead; i >= 0 && i < n {
-			b[m] = cmplx.Conj(code[i])
+	for j := -half; j <= half; j++ {
+		d := acf(j) / r0
+		for m := range b {
+			if i := m - lead + j; i >= 0 && i < n {
+				b[m] += d * cmplx.Conj(code[i])
+			}
 		}
 	}
 	return rho, b
@@ -135,8 +170,8 @@ func normalEquations(code []complex128, l, lead int) (rho, b []complex128) {
 // lsLevinson solves the normal equations (AᴴA)·g = Aᴴe. AᴴA is Hermitian
 // Toeplitz, T[i][j] = ρ(j−i), ρ(d) = Σ_s code[s+d]·conj(code[s]); the
 // right side is b[m] = conj(code[m−lead]).
-func lsLevinson(code []complex128, l, lead int) ([]complex128, error) {
-	rho, b := normalEquations(code, l, lead)
+func lsLevinson(code []complex128, l, lead, half int) ([]complex128, error) {
+	rho, b := normalEquations(code, l, lead, half)
 	// a(k) = T[i][j] for i−j = k: a(k) = conj(ρ(k)), a(−k) = ρ(k).
 	g, err := levinson(rho, b)
 	if err != nil {

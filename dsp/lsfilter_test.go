@@ -126,7 +126,7 @@ func TestLeastSquaresSolvers(t *testing.T) {
 				t.Errorf("normal-equation residual %.3g", r)
 			}
 			if c.l <= denseMaxTaps {
-				g, err := lsLevinson(code, c.l, lead)
+				g, err := lsLevinson(code, c.l, lead, 0)
 				if err != nil {
 					t.Fatal(err)
 				}

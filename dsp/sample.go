@@ -30,16 +30,17 @@ func SampleLen(tau, fs float64) int {
 //
 // with fs in Hz and t0 in s (t0 > 0 starts inside the pulse; t0 < 0 gives
 // leading zeros). A nil dst allocates SampleLen(w.Duration(), fs) samples,
-// the whole pulse for t0 = 0. It returns dst. Sample panics if fs is not
-// positive and finite.
+// the whole pulse for t0 = 0. It returns dst. Sample uses the
+// specialised paths of AddEcho (delay −t0, unit amplitude, no Doppler).
+// It panics if fs is not positive and finite.
 func Sample(dst []complex128, w Waveform, fs, t0 float64) []complex128 {
 	checkRate("Sample", fs)
 	if dst == nil {
 		dst = make([]complex128, SampleLen(w.Duration(), fs))
+	} else {
+		clear(dst)
 	}
-	for n := range dst {
-		dst[n] = w.At(t0 + float64(n)/fs)
-	}
+	AddEcho(dst, w, fs, -t0, 1, 0)
 	return dst
 }
 

@@ -143,11 +143,16 @@ func canonicalReceiver(r Receiver) ordered {
 		if det.Kind == DetectorOS {
 			od.put("rank", det.Rank, (3*det.TrainingCells+3)/4)
 		}
+		if det.Kind != DetectorFixed {
+			od.put("doppler_guard_cells", det.DopplerGuardCells, dd.DopplerGuardCells)
+			od.put("doppler_training_cells", det.DopplerTrainingCells, dd.DopplerTrainingCells)
+		}
 		o = append(o, member{"detector", od})
 	}
 	if r.DopplerWindow != d.DopplerWindow {
 		o = append(o, member{"doppler_window", canonicalWindow(r.DopplerWindow)})
 	}
+	o.put("mti", r.MTI, d.MTI)
 	return o
 }
 

@@ -87,6 +87,7 @@ func defaultReceiver() Receiver {
 		Window:             Window{Kind: WindowNone},
 		Detector:           defaultDetector(DetectorCA),
 		DopplerWindow:      Window{Kind: WindowHann},
+		MTI:                MTINone,
 	}
 }
 
@@ -95,6 +96,8 @@ func defaultDetector(kind string) Detector {
 	if kind != DetectorFixed {
 		d.GuardCells = 2
 		d.TrainingCells = 16
+		d.DopplerGuardCells = 1
+		d.DopplerTrainingCells = 4
 	}
 	if kind == DetectorOS {
 		d.Rank = 12 // 3/4 of the training cells: common practice, no source

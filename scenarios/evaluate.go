@@ -47,13 +47,16 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	// The plot series of the window (noisy echo, compression, thresholds)
-	// read the scene and model without changing them, so they are
-	// computed on a second goroutine while the waveform and target
+	// A single pulse's plot series (noisy window, compression,
+	// thresholds) read the scene and model without changing them, so they
+	// are computed on a second goroutine while the waveform and target
 	// reports, with their verified suggestions, and the pulse's response
 	// are built on this one.
-	series := make(chan Series, 1)
-	go func() { series <- sc.series() }()
+	var series chan Series
+	if sc.train == nil {
+		series = make(chan Series, 1)
+		go func() { series <- sc.series() }()
+	}
 	res := &Result{}
 	res.Report.Version = ReportVersion
 	res.Report.Scenario = s.Name
@@ -61,11 +64,18 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	if ctx.Err() == nil {
 		res.Report.Targets = sc.targetReports(ctx, m, true)
 	}
-	resp := m.response()
-	res.Series = <-series
-	res.Series.Response = resp
+	if series != nil {
+		resp := m.response()
+		res.Series = <-series
+		res.Series.Response = resp
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
+	}
+	if sc.train != nil {
+		if res.Series, err = sc.train.series(ctx); err != nil {
+			return nil, err
+		}
 	}
 	res.Report.Warnings = append([]string{}, m.warnings...)
 	if err := ctx.Err(); err != nil {
@@ -78,7 +88,13 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 // Analyse computes the report alone, without plot series or suggestions:
 // the cheaper path for sweeps.
 func Analyse(ctx context.Context, s *Scenario) (*Report, error) {
-	m, err := newModel(s, nil)
+	return new(Engine).Analyse(ctx, s)
+}
+
+// Analyse is the package function Analyse with reuse of the previous
+// scenario's waveform and reference, as in Evaluate.
+func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
+	m, err := newModel(s, e.last)
 	if err != nil {
 		return nil, err
 	}
@@ -89,15 +105,30 @@ func Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	rep := &Report{Version: ReportVersion, Scenario: s.Name, Waveform: m.waveformReport()}
 	rep.Targets = sc.targetReports(ctx, m, false)
 	rep.Warnings = append([]string{}, m.warnings...)
-	return rep, ctx.Err()
+	if err := ctx.Err(); err != nil {
+		return nil, err
+	}
+	e.last = m
+	return rep, nil
 }
 
 func (m *model) figures() dsp.Figures {
 	if m.fig == nil {
-		f := dsp.ResponseFigures(m.pulse, m.ref, m.lead, m.fs, m.s.Waveform.Bandwidth())
+		f := dsp.ResponseFigures(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
 		m.fig = &f
 	}
 	return *m.fig
+}
+
+// interpBandwidth returns the bandwidth the figures interpolate the
+// compressed response with, or 0 to measure it at its samples: a code at
+// about one sample per chip is not band-limited at the sample rate, and
+// interpolating its samples would invent sidelobes between them.
+func (m *model) interpBandwidth() float64 {
+	if m.s.Waveform.IsPhaseCode() && m.fs*m.s.Waveform.ChipS < 1.5 {
+		return 0
+	}
+	return m.s.Waveform.Bandwidth()
 }
 
 // doppler returns the peak loss (dB) and time shift (s) of the compressed
@@ -176,9 +207,19 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 	cf := m.detector()
 	fig := m.figures()
 	budget := suggestionBudget(m)
+	var cf2 *dsp.CFAR2D
+	if sc.train != nil {
+		cf2 = sc.train.cfar()
+		budget = 0 // changes are verified on single pulses only
+	}
 	out := make([]TargetReport, len(sc.targets))
 	for j, g := range sc.targets {
 		v := sc.judge(j, cf)
+		single := v
+		bin := -1
+		if sc.train != nil {
+			v, bin = sc.train.judge(j, cf2)
+		}
 		d := m.doppler(g.fd)
 		tr := TargetReport{
 			ID:            g.t.ID,
@@ -197,6 +238,9 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 			tr.MaskedBy = sc.targets[v.culprit].t.ID
 		}
 		tr.Reason = sc.reason(g, v, tr, cf)
+		if sc.train != nil {
+			sc.train.report(j, v, single, bin, &tr)
+		}
 		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && budget > 0 && ctx.Err() == nil {
 			if hint := suggestFix(ctx, m, j, v, &budget); hint != "" {
 				tr.Reason += " " + hint
@@ -248,7 +292,7 @@ func (sc *scene) series() Series {
 			amp := g.amp * math.Sqrt(dsp.SwerlingRCS(rng, 1, swerling(g.t.Fluctuation)))
 			dsp.AddEcho(echo, m.wave, m.fs, g.delay, complex(amp, 0)*g.phase, g.fd)
 		case g.density != nil:
-			sc.clutter(echo, g)
+			sc.newClutterField(g).add(echo, 0)
 		}
 	}
 	noise := streamOf(m.s.Seed, "", 0x4e01)
@@ -256,8 +300,8 @@ func (sc *scene) series() Series {
 		echo[i] += dsp.ComplexNormal(noise)
 	}
 	sc.blank(echo, 0)
+	// x holds lead zeros, then the echo: an echo at window sample d peaks at y[d].
 	y := dsp.NewCorrelator(m.ref, len(x)).Apply(nil, x)
-	// With lead zeros in front of the echo, an echo at window sample d peaks at y[d].
 	s := Series{
 		RangeM0:     m.rangeOf(0),
 		RangeStepM:  C / (2 * m.fs),
@@ -275,7 +319,7 @@ func (sc *scene) series() Series {
 		for k := range p {
 			p[k] = 1 + sc.total[k]
 		}
-		th := cf.Thresholds(s.ThresholdDB, p) // in place, converted to dB below
+		th := cf.Thresholds(s.ThresholdDB, p) // converted to dB in place below
 		last, lastDB := math.NaN(), 0.0
 		for k, t := range th {
 			if t != last { // constant away from the targets: skip the logarithm
@@ -298,9 +342,9 @@ func (sc *scene) series() Series {
 	return s
 }
 
-// response returns the plot of the pulse's compressed response.
+// response returns the zero-Doppler response of the waveform alone.
 func (m *model) response() Response {
-	t, db := dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.s.Waveform.Bandwidth())
+	t, db := dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
 	r := Response{RangeM: make([]float64, len(t)), DB: make([]float64, len(db))}
 	for i := range t {
 		r.RangeM[i] = t[i] * C / 2
@@ -309,31 +353,77 @@ func (m *model) response() Response {
 	return r
 }
 
-// clutter adds a realisation of a distributed target: complex Gaussian
-// reflectivity on the window grid with the expected density, convolved
-// with the pulse and shifted by the target's Doppler.
-func (sc *scene) clutter(echo []complex128, g *tgt) {
+// clutterField is a realisation of a distributed target: complex Gaussian
+// reflectivity on the window grid with the expected density, each
+// scatterer with its own range rate drawn from the target's velocity
+// spread, convolved with the pulse and shifted by the mean Doppler.
+type clutterField struct {
+	m    *model
+	g    *tgt
+	rho  []complex128 // reflectivity per grid sample, √(noise power) units
+	dphi []float64    // per-pulse phase step of each scatterer, rad
+	rev  []complex128 // the time-reversed conjugate pulse: correlating with it convolves
+	corr *dsp.Correlator
+	x, y []complex128
+}
+
+func (sc *scene) newClutterField(g *tgt) *clutterField {
 	m := sc.m
 	rng := streamOf(m.s.Seed, g.t.ID, 0xc1a7)
 	np := len(m.pulse)
 	n := len(g.density) + np
-	x := make([]complex128, n+np)
+	f := &clutterField{m: m, g: g, rho: make([]complex128, len(g.density)), dphi: make([]float64, len(g.density))}
 	for i, q := range g.density {
-		x[np-1+i] = complex(math.Sqrt(q), 0) * dsp.ComplexNormal(rng)
+		f.rho[i] = complex(math.Sqrt(q), 0) * dsp.ComplexNormal(rng)
+	}
+	if sd := g.t.VelocitySpreadMPS; sd > 0 {
+		vr := streamOf(m.s.Seed, g.t.ID, 0x5bead)
+		for i := range f.dphi {
+			f.dphi[i] = -4 * math.Pi * sd * vr.NormFloat64() * m.s.Radar.PRIS / m.lambda
+		}
 	}
 	rev := make([]complex128, np)
 	for i, p := range m.pulse {
 		rev[np-1-i] = cmplx.Conj(p)
 	}
-	y := dsp.NewCorrelator(rev, len(x)).Apply(nil, x)
-	// y[t] = Σ_i ρ[i]·pulse[t−i]: the echo at window sample dlo + t.
-	for t := 0; t < n; t++ {
-		k := g.dlo + t
+	f.rev = rev
+	f.corr = dsp.NewCorrelator(rev, n+np)
+	f.x = make([]complex128, n+np)
+	f.y = make([]complex128, n+np)
+	return f
+}
+
+// clone returns a field that shares the realisation but has buffers of
+// its own, for another goroutine.
+func (f *clutterField) clone() *clutterField {
+	c := *f
+	c.corr = dsp.NewCorrelator(f.rev, len(f.x))
+	c.x = make([]complex128, len(f.x))
+	c.y = make([]complex128, len(f.y))
+	return &c
+}
+
+// add adds pulse p's echo of the field to a receive window.
+func (f *clutterField) add(echo []complex128, p int) {
+	m := f.m
+	np := len(m.pulse)
+	clear(f.x)
+	for i, r := range f.rho {
+		if f.dphi[i] != 0 && p > 0 {
+			r *= cmplx.Rect(1, f.dphi[i]*float64(p))
+		}
+		f.x[np-1+i] = r
+	}
+	f.corr.Apply(f.y, f.x)
+	// y[t] = Σ_i ρ[i]·pulse[t−i]: the echo at window sample dlo + t. The
+	// mean Doppler advances the carrier phase by 2π·f_d·PRI per pulse.
+	t0 := float64(p) * m.s.Radar.PRIS
+	for t := 0; t < len(f.rho)+np; t++ {
+		k := f.g.dlo + t
 		if k >= len(echo) {
 			break
 		}
-		ph := cmplx.Rect(1, 2*math.Pi*g.fd*float64(k)/m.fs)
-		echo[k] += y[t] * ph
+		echo[k] += f.y[t] * cmplx.Rect(1, 2*math.Pi*f.g.fd*(float64(k)/m.fs+t0))
 	}
 }
 

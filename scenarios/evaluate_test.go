@@ -231,11 +231,12 @@ func TestDeterminism(t *testing.T) {
 // TestDemosTeach checks that each demo shows what its notes promise.
 func TestDemosTeach(t *testing.T) {
 	want := map[string]map[string]string{
-		"harbour-skiff":    {"tanker": StatusDetected, "skiff": StatusMasked},
-		"squall-line":      {"light-aircraft": StatusMasked, "rain-band": StatusDetected},
-		"closing-jet":      {"jet": StatusBelowNoise, "helicopter": StatusDetected},
-		"long-pulse-blind": {"drone": StatusEclipsed, "airliner": StatusDetected, "airliner-far": StatusOutOfWindow},
-		"rocky-coast":      {"patrol-boat": StatusDetected, "buoy": StatusMasked},
+		"harbour-skiff":        {"tanker": StatusDetected, "skiff": StatusMasked},
+		"squall-line":          {"light-aircraft": StatusMasked, "rain-band": StatusDetected},
+		"closing-jet":          {"jet": StatusBelowNoise, "helicopter": StatusDetected},
+		"long-pulse-blind":     {"drone": StatusEclipsed, "airliner": StatusDetected, "airliner-far": StatusOutOfWindow},
+		"rocky-coast":          {"patrol-boat": StatusDetected, "buoy": StatusMasked},
+		"hill-clutter-doppler": {"helicopter": StatusDetected, "jet": StatusMasked, "ridge": StatusDetected, "car": StatusDetected},
 	}
 	for name, ids := range want {
 		d, err := LoadDemo(name)
@@ -297,4 +298,25 @@ func largeScene(tb testing.TB) *Scenario {
 	doc := `{"version":1,"radar":{"sample_rate_hz":2e7,"pri_s":1e-3,"window_start_m":5000,"window_stop_m":496600},
 		"waveform":{"kind":"lfm","pulse_width_s":2e-5,"bandwidth_hz":1e7},"receiver":{"window":{"kind":"taylor"}},"targets":[` + strings.Join(ts, ",") + `]}`
 	return mustDecode(tb, doc)
+}
+
+// TestLeastSquaresBarker13 compares the least-squares mismatched filter
+// for Barker 13 at one sample per chip with the matched filter (PSLR
+// −22.28 dB, Richards 2014 p. 304): at 3× the code length it reaches
+// −38.5 dB for 0.20 dB mismatch loss, the value an independent numpy
+// least-squares solve gives (testdata/golden/lsfilter.py); 20 dB below
+// the matched filter needs 45 taps (dsp/lsfilter_test.go).
+func TestLeastSquaresBarker13(t *testing.T) {
+	doc := `{"version":1,"radar":{"sample_rate_hz":1e6},"waveform":{"kind":"barker","length":13,"chip_s":1e-6},"receiver":{"filter":"%s"}}`
+	matched := mustEvaluate(t, mustDecode(t, strings.Replace(doc, "%s", "matched", 1))).Report.Waveform
+	ls := mustEvaluate(t, mustDecode(t, strings.Replace(doc, "%s", "least_squares", 1))).Report.Waveform
+	if math.Abs(matched.PSLRDB+22.28) > 0.01 {
+		t.Errorf("matched PSLR %.2f dB, want −22.28", matched.PSLRDB)
+	}
+	if math.Abs(ls.PSLRDB+38.47) > 0.05 || ls.PSLRDB > matched.PSLRDB-16 {
+		t.Errorf("least-squares PSLR %.2f dB, want −38.47", ls.PSLRDB)
+	}
+	if ls.MismatchLossDB < 0.1 || ls.MismatchLossDB > 0.3 {
+		t.Errorf("least-squares mismatch loss %.3f dB, want about 0.20", ls.MismatchLossDB)
+	}
 }

@@ -19,7 +19,8 @@ var (
 
 	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "view"}
 	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg"}
-	receiverFields = []string{"filter", "filter_length_factor", "window", "detector", "doppler_window"}
+	receiverFields = []string{"filter", "filter_length_factor", "window", "detector", "doppler_window", "mti"}
+	mtis           = []string{MTINone, MTITwoPulse, MTIThreePulse}
 )
 
 // waveformFields lists, per kind, the fields after "kind" in format order.
@@ -48,8 +49,8 @@ var windowFields = map[string][]string{
 }
 
 var detectorFields = map[string][]string{
-	DetectorCA:    {"pfa", "guard_cells", "training_cells"},
-	DetectorOS:    {"pfa", "guard_cells", "training_cells", "rank"},
+	DetectorCA:    {"pfa", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
+	DetectorOS:    {"pfa", "guard_cells", "training_cells", "rank", "doppler_guard_cells", "doppler_training_cells"},
 	DetectorFixed: {"pfa"},
 }
 
@@ -249,6 +250,9 @@ func (o *object) decodeReceiver(r *Receiver) {
 	if c, ok := o.child("doppler_window"); ok {
 		c.decodeWindow(&r.DopplerWindow)
 	}
+	if o.str("mti", &r.MTI) {
+		o.oneOf("mti", r.MTI, mtis)
+	}
 	o.finish(receiverFields...)
 }
 
@@ -295,6 +299,8 @@ func (o *object) decodeDetector(d *Detector) {
 		d.Rank = (3*d.TrainingCells + 3) / 4
 	}
 	o.int("rank", &d.Rank)
+	o.int("doppler_guard_cells", &d.DopplerGuardCells)
+	o.int("doppler_training_cells", &d.DopplerTrainingCells)
 	o.finishKindOnly(kind, fields)
 }
 

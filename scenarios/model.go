@@ -167,7 +167,9 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 	}
 	switch s.Receiver.Filter {
 	case FilterLeastSquares:
-		h, lead, err := dsp.LeastSquaresFilter(m.pulse, s.Receiver.FilterLengthFactor*len(m.pulse))
+		// Keep the matched main lobe of an oversampled code (samples per chip > 1).
+		half := int(math.Ceil(m.fs*s.Waveform.ChipS-1e-9)) - 1
+		h, lead, err := dsp.LeastSquaresFilterMainlobe(m.pulse, s.Receiver.FilterLengthFactor*len(m.pulse), max(half, 0))
 		if err != nil {
 			return nil, fmt.Errorf("least-squares filter: %w", err)
 		}

@@ -72,8 +72,12 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		return fmt.Sprintf("Masked by %s: its %s puts %.1f dB more power into %s's cell than %s's own peak, which would clear the noise-only threshold by %.1f dB.",
 			by, what, dsp.DB(v.cell/v.peak), id, id, clear)
 	}
-	return fmt.Sprintf("Masked by %s through the %s: its echo in the %d training cells lifts the threshold %.1f dB above %s's peak, which would clear the noise-only threshold by %.1f dB.",
-		by, det, cf.Train, dsp.DB(v.threshold/v.peak), id, clear)
+	cells := fmt.Sprintf("%d training cells", cf.Train)
+	if sc.train != nil && sc.train.cfar() != nil {
+		cells = fmt.Sprintf("%d training cells around it on the range–Doppler map", c2DCells(sc.train.cfar()))
+	}
+	return fmt.Sprintf("Masked by %s through the %s: its echo in the %s lifts the threshold %.1f dB above %s's peak, which would clear the noise-only threshold by %.1f dB.",
+		by, det, cells, dsp.DB(v.threshold/v.peak), id, clear)
 }
 
 // resolution returns the mainlobe half-width between nulls as a range, m:
@@ -90,9 +94,9 @@ func suggestionBudget(m *model) int {
 	case work > 1<<19:
 		return 0
 	case work > 1<<16:
-		return 3
+		return 2
 	}
-	return 8
+	return 5
 }
 
 // candidate is one change to try for a target that is not detected.

@@ -79,6 +79,10 @@ type Series struct {
 	ThresholdDB []float64    // detection threshold, dB re output noise (detector level or scene level, the larger)
 	NoiseDB     float64      // the noise floor, dB re output noise (0)
 	Response    Response     // the waveform alone
+	// RangeDoppler is the range–Doppler map when radar.pulses > 1; the
+	// profile series then hold, per range cell, the largest value over
+	// Doppler, and Echo the first pulse.
+	RangeDoppler *RangeDoppler
 }
 
 // Response is the zero-Doppler compressed response of the waveform alone,

@@ -2,6 +2,7 @@ package scenarios
 
 import (
 	"encoding/json"
+	"github.com/pulsewright/pulsewright/dsp"
 	"math"
 	"math/rand/v2"
 	"reflect"
@@ -34,7 +35,7 @@ func randomScenario(r *rand.Rand) *Scenario {
 	case KindBarker:
 		w.Length = []int{2, 3, 4, 5, 7, 11, 13}[r.IntN(7)]
 	case KindMPS:
-		w.Length = 2 + r.IntN(MaxMPSLength-1)
+		w.Length = 2 + r.IntN(dsp.MPSMaxLen()-1)
 	case KindMLS:
 		w.Degree = 2 + r.IntN(9)
 	case KindFrank, KindP1:
@@ -84,6 +85,13 @@ func randomScenario(r *rand.Rand) *Scenario {
 	}
 	if r.IntN(3) == 0 {
 		s.Receiver.DopplerWindow = defaultWindow(pick(windowKinds))
+	}
+	if r.IntN(3) == 0 {
+		s.Radar.Pulses = 4 + r.IntN(60)
+		s.Receiver.MTI = pick(mtis)
+		if s.Receiver.Detector.Kind != DetectorFixed {
+			s.Receiver.Detector.DopplerTrainingCells = 2 * r.IntN(5)
+		}
 	}
 	for i := range r.IntN(6) {
 		t := Target{ID: "t" + string(rune('a'+i)), Kind: pick(targetKinds), RangeRateMPS: math.Round(u(-300, 300))}

@@ -107,7 +107,15 @@ type Receiver struct {
 	Window             Window   `json:"window"`
 	Detector           Detector `json:"detector"`
 	DopplerWindow      Window   `json:"doppler_window"`
+	MTI                string   `json:"mti"` // extension: none, two_pulse or three_pulse canceller before the Doppler DFT
 }
+
+// MTI cancellers (an extension of the format).
+const (
+	MTINone       = "none"
+	MTITwoPulse   = "two_pulse"
+	MTIThreePulse = "three_pulse"
+)
 
 // Window kinds.
 const (
@@ -145,6 +153,9 @@ type Detector struct {
 	GuardCells    int     `json:"guard_cells,omitempty"`    // CFAR: cells skipped on each side of the cell under test
 	TrainingCells int     `json:"training_cells,omitempty"` // CFAR: reference cells, both sides together
 	Rank          int     `json:"rank,omitempty"`           // os_cfar: 1-based rank of the ordered training cell used
+	// Extensions for range–Doppler maps (pulses > 1): Doppler bins.
+	DopplerGuardCells    int `json:"doppler_guard_cells,omitempty"`    // CFAR: guard bins on each side in Doppler
+	DopplerTrainingCells int `json:"doppler_training_cells,omitempty"` // CFAR: training bins in Doppler, both sides together
 }
 
 // Target kinds and fluctuation models.
@@ -251,6 +262,3 @@ func (s *Scenario) PulseSamples() int {
 	}
 	return int(n) + 1
 }
-
-// MaxMPSLength is the longest minimum-peak-sidelobe code in the table.
-const MaxMPSLength = 48

@@ -46,6 +46,7 @@ type scene struct {
 	m       *model
 	targets []*tgt
 	total   []float64 // Σ of every target's power per window sample
+	train   *train    // slow-time processing when radar.pulses > 1
 	// reachLo, reachHi bound the window samples whose power is needed:
 	// a target whose response cannot reach [reachLo, reachHi) keeps an
 	// empty response (see newSceneFor). With partial, point targets'
@@ -133,6 +134,9 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 				}
 			}
 		}
+	}
+	if m.s.Radar.Pulses > 1 && focus < 0 { // suggestions are checked on single pulses
+		sc.train = newTrain(m, sc)
 	}
 	return sc, nil
 }

@@ -2,6 +2,8 @@ package scenarios
 
 import (
 	"fmt"
+
+	"github.com/pulsewright/pulsewright/dsp"
 	"math"
 	"strings"
 	"unicode/utf8"
@@ -157,7 +159,7 @@ func (s *Scenario) validateWaveform(c checker) bool {
 			ok = false
 		}
 	case KindMPS:
-		ok = c.intBetween("waveform.length", w.Length, 2, MaxMPSLength) && ok
+		ok = c.intBetween("waveform.length", w.Length, 2, dsp.MPSMaxLen()) && ok
 	case KindMLS:
 		ok = c.intBetween("waveform.degree", w.Degree, 2, 16) && ok
 	case KindFrank, KindP1, KindP2:
@@ -221,6 +223,9 @@ func (s *Scenario) validateWaveform(c checker) bool {
 func (s *Scenario) validateReceiver(c checker) {
 	r := s.Receiver
 	c.intBetween("receiver.filter_length_factor", r.FilterLengthFactor, 1, 8)
+	if taps := map[string]int{MTITwoPulse: 2, MTIThreePulse: 3}[r.MTI]; taps > 0 && !c.errs.has("radar.pulses") && s.Radar.Pulses < taps+1 {
+		c.errs.add("receiver.mti", "%s needs at least %d pulses; radar.pulses is %d", r.MTI, taps+1, s.Radar.Pulses)
+	}
 	if r.Filter == FilterLeastSquares && !c.errs.has("receiver.filter") && !c.errs.has("waveform.kind") {
 		switch {
 		case !s.Waveform.IsPhaseCode():
@@ -249,6 +254,10 @@ func (s *Scenario) validateReceiver(c checker) {
 	}
 	if d.Kind == DetectorOS && !c.errs.has(p+"training_cells") {
 		c.intBetween(p+"rank", d.Rank, 1, d.TrainingCells)
+	}
+	c.intBetween(p+"doppler_guard_cells", d.DopplerGuardCells, 0, 16)
+	if c.intBetween(p+"doppler_training_cells", d.DopplerTrainingCells, 0, 64) && d.DopplerTrainingCells%2 != 0 {
+		c.errs.add(p+"doppler_training_cells", "%d is odd; training bins count both sides together, so it must be even", d.DopplerTrainingCells)
 	}
 }
 

@@ -21,6 +21,9 @@ const (
 	exitOK      = 0
 	exitFailure = 1 // I/O and internal errors
 	exitInvalid = 2 // bad scenario, usage or flags
+	exitMasked  = 3 // sweep --fail-if-masked: the target is detected at no point
+	// exitInterrupted follows the shell's 128 + SIGINT.
+	exitInterrupted = 130
 )
 
 const usage = `pulsewright: a pulse-compression workbench for radar waveform design.
@@ -30,13 +33,26 @@ Usage:
   pulsewright check SCENARIO         validate; print a canonical summary
   pulsewright link SCENARIO          print the scenario's share link
   pulsewright eval SCENARIO          print the report JSON (--format text for a table)
+  pulsewright sweep SCENARIO --set PATH=START:STOP:STEP [--set …] [--out FILE.csv]
+                     [--html FILE.html] [--fail-if-masked ID] [--jobs N]
+                                     evaluate a grid of variants; one CSV row per point
+  pulsewright report SCENARIO -o FILE.html
+                                     write a self-contained HTML report for a customer
+  pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
+                                     write the raw I/Q as SigMF, the profile as CSV
   pulsewright demos                  list the built-in scenarios
   pulsewright help                   show this text
 
 SCENARIO is a file path, - for standard input, a share link (a whole URL or
 just its #s= part), or demo:NAME for a built-in scene.
 
-Exit status: 0 success, 1 I/O or internal error, 2 invalid scenario or usage.
+PATH is a JSON path into the scenario: receiver.window.sidelobe_db,
+targets[1].range_m or targets[skiff].rcs_dbsm. PATH=VALUE sets a fixed
+value (receiver.window.kind=taylor), PATH=V1,V2 a list.
+
+Exit status: 0 success, 1 I/O or internal error, 2 invalid scenario or usage,
+3 sweep --fail-if-masked target never detected, 130 interrupted (the rows
+done are written).
 `
 
 func main() {
@@ -61,6 +77,12 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.link(args)
 	case "eval":
 		err = env.eval(args)
+	case "sweep":
+		err = env.sweep(args)
+	case "report":
+		err = env.report(args)
+	case "export":
+		err = env.export(args)
 	case "demos":
 		err = env.demos(args)
 	case "serve":
@@ -88,13 +110,25 @@ type usageError struct{ msg string }
 
 func (e usageError) Error() string { return e.msg }
 
+// statusError ends the program with its own exit status and message.
+type statusError struct {
+	code int
+	msg  string
+}
+
+func (e statusError) Error() string { return e.msg }
+
 // exit prints err, if any, and maps it to an exit status.
 func (e *env) exit(err error) int {
 	var ue usageError
 	var ve *scenarios.ValidationError
+	var se statusError
 	switch {
 	case err == nil:
 		return exitOK
+	case errors.As(err, &se):
+		fmt.Fprintf(e.stderr, "pulsewright: %s\n", se.msg)
+		return se.code
 	case errors.As(err, &ue):
 		fmt.Fprintf(e.stderr, "pulsewright: %s\n\nRun 'pulsewright help' for usage.\n", ue.msg)
 		return exitInvalid

@@ -15,7 +15,8 @@
 // a[N−1−m] at depth m). After each step, every lag k has a known partial
 // sum s_k over products whose two chips are fixed and u_k products still
 // unknown; the branch is cut when |s_k| − u_k > P for some k, since each
-// unknown product changes r_k by exactly ±1. a[0] = +1 is fixed (negation
+// unknown product changes r_k by exactly ±1. Chips are held as bits of a
+// uint64 (N ≤ 64), so s_k comes from two popcounts per lag. a[0] = +1 is fixed (negation
 // symmetry).
 //
 // Hex convention of the output: the first chip is the most significant
@@ -32,6 +33,7 @@ import (
 	"io"
 	"log"
 	"math/big"
+	"math/bits"
 	"os"
 	"strings"
 	"time"
@@ -57,62 +59,49 @@ func publishedPSL(n int) int {
 type searcher struct {
 	n, psl   int
 	a        []int8
-	sum, cnt [][]int // per depth: partial sum and number of known products per lag
+	fixed    uint64 // bit i set: chip i is fixed
+	plus     uint64 // bit i set: chip i is +1
 	nodes    int64
 	deadline time.Time
 	timedOut bool
 }
 
 func newSearcher(n, psl int, deadline time.Time) *searcher {
-	s := &searcher{n: n, psl: psl, a: make([]int8, n), deadline: deadline}
-	depth := n/2 + 2
-	s.sum = make([][]int, depth)
-	s.cnt = make([][]int, depth)
-	for i := range s.sum {
-		s.sum[i] = make([]int, n)
-		s.cnt[i] = make([]int, n)
+	if n > 64 {
+		log.Fatalf("length %d: at most 64", n)
 	}
-	return s
+	return &searcher{n: n, psl: psl, a: make([]int8, n), deadline: deadline}
 }
 
-// fixed reports whether chip i is fixed when chips 0..m−1 and n−m..n−1 are.
-func fixedAt(i, m, n int) bool { return i < m || i >= n-m }
-
-// add fixes chip i (value already in s.a) at level d, given the set of
-// chips fixed before (m pairs, plus optionally the left chip of the current
-// pair), and updates sums with all products between i and fixed chips.
-func (s *searcher) addChip(d, i, m int, leftExtra int) {
-	n := s.n
-	sum, cnt := s.sum[d], s.cnt[d]
-	ai := int(s.a[i])
-	for j := range n {
-		if j == i {
-			continue
-		}
-		if !(fixedAt(j, m, n) || j == leftExtra) {
-			continue
-		}
-		k := i - j
-		if k < 0 {
-			k = -k
-		}
-		sum[k] += ai * int(s.a[j])
-		cnt[k]++
-	}
-}
-
-func (s *searcher) ok(d int) bool {
-	sum, cnt := s.sum[d], s.cnt[d]
+// ok reports whether every lag can still reach |r_k| ≤ psl. For lag k the
+// known pairs (i, i+k) are the bits of F & (F>>k); a pair contributes −1
+// when its chips differ, so s_k = c_k − 2·d_k with d_k the popcount of
+// the differing known pairs, and u_k = (n−k) − c_k products are unknown.
+func (s *searcher) ok() bool {
+	f, v := s.fixed, s.plus
 	for k := 1; k < s.n; k++ {
-		v := sum[k]
-		if v < 0 {
-			v = -v
+		known := f & (f >> k)
+		c := bits.OnesCount64(known)
+		d := bits.OnesCount64((v ^ (v >> k)) & known)
+		sk := c - 2*d
+		if sk < 0 {
+			sk = -sk
 		}
-		if v-(s.n-k-cnt[k]) > s.psl {
+		if sk-(s.n-k-c) > s.psl {
 			return false
 		}
 	}
 	return true
+}
+
+func (s *searcher) set(i int, v int8) {
+	s.a[i] = v
+	s.fixed |= 1 << i
+	if v > 0 {
+		s.plus |= 1 << i
+	} else {
+		s.plus &^= 1 << i
+	}
 }
 
 // search fixes pair m (chips m and n−1−m) and recurses.
@@ -133,23 +122,18 @@ func (s *searcher) search(m int) bool {
 	if m == 0 {
 		vals = []int8{1} // a[0] = +1: negation symmetry
 	}
+	saveF, saveV := s.fixed, s.plus
 	for _, vl := range vals {
 		for _, vr := range []int8{1, -1} {
 			if l == r && vr != vl {
 				continue
 			}
-			d := m + 1
-			copy(s.sum[d], s.sum[m])
-			copy(s.cnt[d], s.cnt[m])
-			s.a[l] = vl
-			s.addChip(d, l, m, -1)
-			if r != l {
-				s.a[r] = vr
-				s.addChip(d, r, m, l)
-			}
-			if s.ok(d) && s.search(m+1) {
+			s.set(l, vl)
+			s.set(r, vr)
+			if s.ok() && s.search(m+1) {
 				return true
 			}
+			s.fixed, s.plus = saveF, saveV
 		}
 	}
 	return false

@@ -1,0 +1,253 @@
+package main
+
+import (
+	"context"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"os"
+	"runtime"
+	"strconv"
+	"strings"
+	"time"
+
+	"github.com/pulsewright/pulsewright/scenarios"
+	"github.com/pulsewright/pulsewright/server"
+)
+
+// multiFlag collects a repeated string flag.
+type multiFlag []string
+
+func (m *multiFlag) String() string     { return strings.Join(*m, " ") }
+func (m *multiFlag) Set(v string) error { *m = append(*m, v); return nil }
+
+func (e *env) sweep(args []string) error {
+	fs := newFlags("sweep", e)
+	var sets multiFlag
+	fs.Var(&sets, "set", "PATH=START:STOP:STEP, PATH=V1,V2,… or PATH=VALUE (repeat for a grid)")
+	out := fs.String("out", "", "write the CSV to this file instead of standard output")
+	html := fs.String("html", "", "also write a self-contained HTML page of margin against the swept value")
+	failIf := fs.String("fail-if-masked", "", "exit 3 when the target with this id is detected at no point")
+	jobs := fs.Int("jobs", 0, "points evaluated at once (0: one per core)")
+	pos, err := parseFlags(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(sets) == 0 {
+		return usageError{"sweep needs at least one --set PATH=START:STOP:STEP"}
+	}
+	if *jobs < 0 {
+		return usageError{fmt.Sprintf("--jobs %d is negative", *jobs)}
+	}
+	base, err := e.oneScenario("sweep", pos)
+	if err != nil {
+		return err
+	}
+	g := &scenarios.Grid{Base: base}
+	for _, spec := range sets {
+		a, err := scenarios.ParseAxis(spec)
+		if err != nil {
+			return err
+		}
+		g.Axes = append(g.Axes, a)
+	}
+	ids := make([]string, len(base.Targets))
+	for i, t := range base.Targets {
+		ids[i] = t.ID
+	}
+	if *failIf != "" && !contains(ids, *failIf) {
+		return usageError{fmt.Sprintf("--fail-if-masked %q is not a target of the scenario (targets: %s)", *failIf, strings.Join(ids, ", "))}
+	}
+	// Validate every point before creating any file.
+	for i := range g.Len() {
+		if _, err := g.Scenario(i); err != nil {
+			return err
+		}
+	}
+
+	w := e.stdout
+	if *out != "" {
+		f, err := os.Create(*out)
+		if err != nil {
+			return fmt.Errorf("sweep: %w", err)
+		}
+		defer f.Close()
+		w = f
+	}
+	sw := newSweepWriter(w, g, ids)
+	if err := sw.header(); err != nil {
+		return fmt.Errorf("write csv: %w", err)
+	}
+	workers := *jobs
+	if workers == 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	bar := newProgress(e.stderr, g.Len())
+	var points []scenarios.Point
+	detected := false
+	runErr := g.Run(e.ctx, workers, func(p scenarios.Point) error {
+		points = append(points, p)
+		if t := findTarget(p.Report, *failIf); t != nil && t.Status == scenarios.StatusDetected {
+			detected = true
+		}
+		bar.step()
+		return sw.row(p)
+	})
+	bar.done()
+	if *html != "" && len(points) > 0 {
+		if err := writeFile(*html, func(w io.Writer) error {
+			return server.WriteSweepPage(w, base, g, points)
+		}); err != nil {
+			return err
+		}
+	}
+	if *out != "" {
+		if f, ok := w.(*os.File); ok {
+			if err := f.Close(); err != nil {
+				return fmt.Errorf("sweep: %w", err)
+			}
+		}
+	}
+	switch {
+	case errors.Is(runErr, context.Canceled):
+		return statusError{exitInterrupted, fmt.Sprintf("sweep interrupted: %d of %d points written", len(points), g.Len())}
+	case runErr != nil:
+		return runErr
+	case *failIf != "" && !detected:
+		return statusError{exitMasked, fmt.Sprintf("target %s is not detected at any of the %d points", *failIf, g.Len())}
+	}
+	return nil
+}
+
+func contains(list []string, v string) bool {
+	for _, s := range list {
+		if s == v {
+			return true
+		}
+	}
+	return false
+}
+
+func findTarget(r *scenarios.Report, id string) *scenarios.TargetReport {
+	for i := range r.Targets {
+		if r.Targets[i].ID == id {
+			return &r.Targets[i]
+		}
+	}
+	return nil
+}
+
+// writeFile creates path and writes it with fn, reporting the first error.
+func writeFile(path string, fn func(io.Writer) error) error {
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	if err := fn(f); err != nil {
+		f.Close()
+		return fmt.Errorf("write %s: %w", path, err)
+	}
+	return f.Close()
+}
+
+// sweepWriter writes one CSV row per point and flushes it, so the rows of
+// an interrupted sweep are on disk.
+type sweepWriter struct {
+	c   *csv.Writer
+	g   *scenarios.Grid
+	ids []string
+}
+
+func newSweepWriter(w io.Writer, g *scenarios.Grid, ids []string) *sweepWriter {
+	return &sweepWriter{c: csv.NewWriter(w), g: g, ids: ids}
+}
+
+func (s *sweepWriter) header() error {
+	var h []string
+	for _, a := range s.g.Axes {
+		h = append(h, a.Path)
+	}
+	h = append(h, "pslr_db", "islr_db", "mainlobe_3db_m", "mismatch_loss_db")
+	for _, id := range s.ids {
+		h = append(h, id+".status", id+".snr_db", id+".margin_db")
+	}
+	s.c.Write(h)
+	s.c.Flush()
+	return s.c.Error()
+}
+
+func (s *sweepWriter) row(p scenarios.Point) error {
+	var r []string
+	for k, a := range s.g.Axes {
+		r = append(r, a.Label(p.Values[k]))
+	}
+	wf := p.Report.Waveform
+	r = append(r, num(wf.PSLRDB), num(wf.ISLRDB), num(wf.Mainlobe3dBM), num(wf.MismatchLossDB))
+	for _, id := range s.ids {
+		t := findTarget(p.Report, id)
+		switch {
+		case t == nil:
+			r = append(r, "", "", "")
+		case t.MarginDB == nil:
+			r = append(r, t.Status, num(t.SNRDB), "")
+		default:
+			r = append(r, t.Status, num(t.SNRDB), num(*t.MarginDB))
+		}
+	}
+	s.c.Write(r)
+	s.c.Flush()
+	return s.c.Error()
+}
+
+// num formats a figure to 0.001 (dB, m), which is below any tolerance
+// that matters and keeps the CSV readable.
+func num(v float64) string { return strconv.FormatFloat(v, 'f', 3, 64) }
+
+// progress draws a bar with an ETA on a terminal and nothing otherwise.
+type progress struct {
+	w     io.Writer
+	n, i  int
+	start time.Time
+	last  time.Time
+}
+
+func newProgress(w io.Writer, n int) *progress {
+	if !isTerminal(w) {
+		return &progress{}
+	}
+	return &progress{w: w, n: n, start: time.Now()}
+}
+
+// isTerminal reports whether w is a character device (a terminal).
+func isTerminal(w io.Writer) bool {
+	f, ok := w.(*os.File)
+	if !ok {
+		return false
+	}
+	st, err := f.Stat()
+	return err == nil && st.Mode()&os.ModeCharDevice != 0
+}
+
+func (p *progress) step() {
+	if p.w == nil {
+		return
+	}
+	p.i++
+	now := time.Now()
+	if now.Sub(p.last) < 100*time.Millisecond && p.i < p.n {
+		return
+	}
+	p.last = now
+	const width = 30
+	fill := width * p.i / p.n
+	el := now.Sub(p.start)
+	eta := time.Duration(float64(el) / float64(p.i) * float64(p.n-p.i)).Round(time.Second)
+	fmt.Fprintf(p.w, "\r[%s%s] %d/%d  ETA %s ", strings.Repeat("#", fill), strings.Repeat(".", width-fill), p.i, p.n, eta)
+}
+
+func (p *progress) done() {
+	if p.w != nil {
+		fmt.Fprintln(p.w)
+	}
+}

@@ -1,0 +1,474 @@
+package scenarios
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/cmplx"
+	"runtime"
+	"sync"
+
+	"github.com/pulsewright/pulsewright/dsp"
+)
+
+// RangeDoppler is the range–Doppler map of a pulse train: Doppler bins by
+// range cells (the range axis of Series), in dB relative to the noise
+// power per cell.
+type RangeDoppler struct {
+	DopplerHz    []float64   // bin centres, Hz, ascending from −PRF/2
+	RangeRateMPS []float64   // the range rate of each bin, m/s (−f_d·λ/2)
+	DB           [][]float32 // DB[bin][cell]
+	CleanDB      [][]float32 // noise-free expected map, same layout
+}
+
+// train is the slow-time side of a pulse-train evaluation.
+type train struct {
+	m    *model
+	sc   *scene
+	plan *dsp.SlowTimePlan
+	gain [][]float64 // gain[j][bin]: target j's power per bin for unit single-pulse power, re noise per bin
+}
+
+func mtiTaps(kind string) []float64 {
+	switch kind {
+	case MTITwoPulse:
+		return dsp.MTITwoPulse
+	case MTIThreePulse:
+		return dsp.MTIThreePulse
+	}
+	return dsp.MTINone
+}
+
+// coherentFraction is the share of a fluctuating target's mean power that
+// stays coherent from pulse to pulse when only its amplitude fluctuates:
+// (E√σ)²/Eσ, π/4 for exponential power (Swerling 2) and
+// Γ(2.5)²/(2·Γ(2)²) = 9π/32 for chi-square with four degrees of freedom
+// (Swerling 4). Steady and scan-to-scan targets stay wholly coherent.
+func coherentFraction(fluct string) float64 {
+	switch fluct {
+	case "swerling2":
+		return math.Pi / 4
+	case "swerling4":
+		return 9 * math.Pi / 32
+	}
+	return 1
+}
+
+func newTrain(m *model, sc *scene) *train {
+	r := m.s.Radar
+	tr := &train{m: m, sc: sc, plan: dsp.NewSlowTimePlan(r.Pulses, mtiTaps(m.s.Receiver.MTI), dspWindow(m.s.Receiver.DopplerWindow))}
+	nb := tr.plan.Bins()
+	for _, g := range sc.targets {
+		gain := make([]float64, nb)
+		fdT := g.fd * r.PRIS
+		switch {
+		case g.t.Kind == TargetPoint:
+			c := coherentFraction(g.t.Fluctuation)
+			tone := tr.plan.ToneResponse(nil, fdT)
+			for d := range gain {
+				gain[d] = c*tone[d] + (1-c)*tr.incoherent()
+			}
+		default:
+			// Gaussian Doppler spectrum of rms width 2σv/λ, as 33 tones.
+			sd := 2 * g.t.VelocitySpreadMPS / m.lambda * r.PRIS
+			if sd*float64(nb) < 0.05 {
+				tr.plan.ToneResponse(gain, fdT)
+				break
+			}
+			const k = 33
+			tone := make([]float64, nb)
+			wsum := 0.0
+			for i := range k {
+				x := 3 * (2*float64(i)/(k-1) - 1)
+				w := math.Exp(-x * x / 2)
+				wsum += w
+				tr.plan.ToneResponse(tone, fdT+x*sd)
+				for d := range gain {
+					gain[d] += w * tone[d]
+				}
+			}
+			for d := range gain {
+				gain[d] /= wsum
+			}
+		}
+		tr.gain = append(tr.gain, gain)
+	}
+	for j, g := range sc.targets {
+		if g.t.Kind != TargetPoint {
+			continue
+		}
+		move := math.Abs(g.t.RangeRateMPS) * float64(r.Pulses) * r.PRIS
+		if move > m.resolution() {
+			m.warn("target %s moves %.1f m during the %d-pulse interval, more than the %.1f m resolution: its echo migrates across range cells and the map spreads it", g.t.ID, move, r.Pulses, m.resolution())
+		}
+		_ = j
+	}
+	return tr
+}
+
+// incoherent is the per-bin power of a unit-power return that decorrelates
+// from pulse to pulse: 1, since the plan keeps white noise at unit power.
+func (tr *train) incoherent() float64 { return 1 }
+
+// power returns target j's expected power at range cell k, Doppler bin d.
+func (tr *train) power(j, k, d int) float64 {
+	return tr.sc.targets[j].resp.at(k) * tr.gain[j][d]
+}
+
+// peak returns target j's peak cell on the map.
+func (tr *train) peak(j int) (k, d int, p float64) {
+	k, pr := tr.sc.targets[j].resp.peak()
+	if k < 0 {
+		return -1, -1, 0
+	}
+	d = 0
+	for i, v := range tr.gain[j] {
+		if v > tr.gain[j][d] {
+			d = i
+		}
+	}
+	return k, d, pr * tr.gain[j][d]
+}
+
+// cfar returns the detector on the map, or nil for a fixed threshold.
+func (tr *train) cfar() *dsp.CFAR2D {
+	d := tr.m.s.Receiver.Detector
+	if d.Kind == DetectorFixed {
+		return nil
+	}
+	c := &dsp.CFAR2D{PFA: d.PFA, GuardR: d.GuardCells, TrainR: d.TrainingCells, GuardD: d.DopplerGuardCells, TrainD: d.DopplerTrainingCells}
+	if d.Kind == DetectorOS {
+		c.Rank = 1 + int(math.Round(float64(d.Rank-1)/float64(d.TrainingCells)*float64(c2DCells(c))))
+	}
+	return c
+}
+
+func c2DCells(c *dsp.CFAR2D) int {
+	return (2*(c.GuardR+c.TrainR/2)+1)*(2*(c.GuardD+c.TrainD/2)+1) - (2*c.GuardR+1)*(2*c.GuardD+1)
+}
+
+// level returns the map detector's threshold at (k, d) with extra power
+// p(k, d) on top of unit noise in the training cells.
+func (tr *train) level(cf *dsp.CFAR2D, k, d int, p func(k, d int) float64) float64 {
+	if cf == nil {
+		return dsp.FixedMultiplier(tr.m.s.Receiver.Detector.PFA)
+	}
+	return cf.Level(func(k, d int) float64 { return 1 + p(k, d) }, k, d, tr.m.n, tr.plan.Bins())
+}
+
+// judge decides target j's status on the range–Doppler map.
+func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
+	sc := tr.sc
+	g := sc.targets[j]
+	v := verdict{culprit: -1}
+	k, d, p := tr.peak(j)
+	v.peakK, v.peak = k, p
+	others := func(kk, dd int) float64 {
+		s := 0.0
+		for i := range sc.targets {
+			if i != j {
+				s += tr.power(i, kk, dd)
+			}
+		}
+		return s
+	}
+	if k >= 0 {
+		v.noiseLevel = tr.level(cf, k, d, func(int, int) float64 { return 0 })
+		v.sceneLevel = tr.level(cf, k, d, others)
+		v.cell = others(k, d)
+		v.threshold = math.Max(v.sceneLevel, v.cell)
+	}
+	switch {
+	case sc.outOfWindow(g):
+		v.status = StatusOutOfWindow
+	case sc.inBlind(g):
+		v.status = StatusEclipsed
+	case k < 0 || p <= 0:
+		v.status = StatusOutOfWindow
+	case p >= v.threshold:
+		v.status = StatusDetected
+	case p < v.noiseLevel:
+		v.status = StatusBelowNoise
+	default:
+		v.status = StatusMasked
+		v.byCell = v.cell >= v.sceneLevel
+		best := 0.0
+		for i := range sc.targets {
+			if i == j {
+				continue
+			}
+			c := tr.power(i, k, d)
+			if !v.byCell && cf != nil {
+				c = 0
+				lo, hi := k-cf.GuardR-cf.TrainR/2, k+cf.GuardR+cf.TrainR/2
+				for kk := max(lo, 0); kk <= min(hi, tr.m.n-1); kk++ {
+					for dd := d - cf.GuardD - cf.TrainD/2; dd <= d+cf.GuardD+cf.TrainD/2; dd++ {
+						c += tr.power(i, kk, (dd%tr.plan.Bins()+tr.plan.Bins())%tr.plan.Bins())
+					}
+				}
+			}
+			if c > best {
+				best, v.culprit = c, i
+			}
+		}
+	}
+	return v, d
+}
+
+// binHz returns the Doppler frequency of bin d in Hz.
+func (tr *train) binHz(d int) float64 { return tr.plan.BinFrequency(d) / tr.m.s.Radar.PRIS }
+
+// simulate synthesises the pulses, compresses each, and forms the noisy
+// and the expected range–Doppler maps. Pulses, then range cells, are
+// shared among GOMAXPROCS workers; every random draw comes from a stream
+// of its own (per pulse for noise, per target for fluctuation and
+// scatterers), so the result does not depend on the number of workers.
+// It returns the map, the first pulse's raw echo and the expected map in
+// linear units ([bin][cell]).
+func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][]float32, error) {
+	m := tr.m
+	r := m.s.Radar
+	np, nb, n := r.Pulses, tr.plan.Bins(), m.n
+	targets := tr.sc.targets
+	// Fluctuation: scan-to-scan once per interval, pulse-to-pulse per pulse.
+	amps := make([][]float64, np)
+	for p := range amps {
+		amps[p] = make([]float64, len(targets))
+	}
+	for j, g := range targets {
+		rng := streamOf(m.s.Seed, g.t.ID, 0x5157)
+		fl := swerling(g.t.Fluctuation)
+		a := math.Sqrt(dsp.SwerlingRCS(rng, 1, fl))
+		for p := range np {
+			if p > 0 && (fl == dsp.Swerling2 || fl == dsp.Swerling4) {
+				a = math.Sqrt(dsp.SwerlingRCS(rng, 1, fl))
+			}
+			amps[p][j] = a
+		}
+	}
+	fields := make([]*clutterField, len(targets))
+	for j, g := range targets {
+		if g.density != nil {
+			fields[j] = tr.sc.newClutterField(g)
+		}
+	}
+	cube := make([]complex128, np*n) // cube[p*n+k]
+	echo0 := make([]complex128, n)
+	scale := complex(1/math.Sqrt(m.noiseGain), 0)
+	err := parallel(ctx, np, func(next func() (int, bool)) {
+		corr := dsp.NewCorrelator(m.ref, n+m.lead)
+		x := make([]complex128, n+m.lead)
+		y := make([]complex128, n+m.lead)
+		own := make([]*clutterField, len(fields))
+		for j, f := range fields {
+			if f != nil {
+				own[j] = f.clone()
+			}
+		}
+		for p, ok := next(); ok; p, ok = next() {
+			clear(x)
+			echo := x[m.lead:]
+			t := float64(p) * r.PRIS
+			for j, g := range targets {
+				switch {
+				case g.t.Kind == TargetPoint && g.amp > 0:
+					rp := g.t.RangeM + g.t.RangeRateMPS*t
+					if rp <= 0 {
+						continue
+					}
+					app, _ := m.fold(rp)
+					ph := cmplx.Rect(1, -4*math.Pi*math.Mod(rp/m.lambda, 1))
+					a := g.amp * math.Pow(g.t.RangeM/rp, 2) * amps[p][j]
+					dsp.AddEcho(echo, m.wave, m.fs, 2*app/C-m.t0, complex(a, 0)*ph, g.fd)
+				case own[j] != nil:
+					own[j].add(echo, p)
+				}
+			}
+			noise := streamOf(m.s.Seed, "", 0x4e01+uint64(p)<<24)
+			for i := range echo {
+				echo[i] += dsp.ComplexNormal(noise)
+			}
+			tr.sc.blank(echo, 0)
+			if p == 0 {
+				copy(echo0, echo)
+			}
+			corr.Apply(y, x) // x holds lead zeros, then the echo: an echo at d peaks at y[d]
+			row := cube[p*n : (p+1)*n]
+			for k := range row {
+				row[k] = y[k] * scale
+			}
+		}
+	})
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	rd := &RangeDoppler{DopplerHz: make([]float64, nb), RangeRateMPS: make([]float64, nb), DB: make([][]float32, nb), CleanDB: make([][]float32, nb)}
+	lin := make([][]float32, nb)
+	for d := range nb {
+		rd.DopplerHz[d] = tr.binHz(d)
+		rd.RangeRateMPS[d] = -rd.DopplerHz[d] * m.lambda / 2
+		rd.DB[d] = make([]float32, n)
+		rd.CleanDB[d] = make([]float32, n)
+		lin[d] = make([]float32, n)
+	}
+	const chunk = 1024
+	err = parallel(ctx, (n+chunk-1)/chunk, func(next func() (int, bool)) {
+		plan := dsp.NewSlowTimePlan(np, mtiTaps(m.s.Receiver.MTI), dspWindow(m.s.Receiver.DopplerWindow))
+		col := make([]complex128, np)
+		out := make([]complex128, nb)
+		for c, ok := next(); ok; c, ok = next() {
+			for k := c * chunk; k < min((c+1)*chunk, n); k++ {
+				for p := range np {
+					col[p] = cube[p*n+k]
+				}
+				plan.Apply(out, col)
+				for d, v := range out {
+					rd.DB[d][k] = float32(toDB(real(v)*real(v) + imag(v)*imag(v)))
+				}
+			}
+		}
+	})
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	for j, g := range targets {
+		for i, pw := range g.resp.pow {
+			k := g.resp.lo + i
+			for d := range nb {
+				lin[d][k] += float32(pw * tr.gain[j][d])
+			}
+		}
+	}
+	for d := range nb {
+		for k, v := range lin[d] {
+			rd.CleanDB[d][k] = float32(toDB(float64(v)))
+		}
+	}
+	return rd, echo0, lin, nil
+}
+
+// parallel runs work on GOMAXPROCS goroutines (at most tasks); each
+// worker takes task indices 0 … tasks−1 from next until it reports false,
+// and stops early when ctx is done, which parallel then returns.
+func parallel(ctx context.Context, tasks int, work func(next func() (int, bool))) error {
+	var (
+		mu sync.Mutex
+		i  int
+		wg sync.WaitGroup
+	)
+	next := func() (int, bool) {
+		mu.Lock()
+		defer mu.Unlock()
+		if i >= tasks || ctx.Err() != nil {
+			return 0, false
+		}
+		i++
+		return i - 1, true
+	}
+	for range min(runtime.GOMAXPROCS(0), tasks) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			work(next)
+		}()
+	}
+	wg.Wait()
+	return ctx.Err()
+}
+
+// report adds the pulse-train fields to a target's report and the
+// sentences on Doppler that decide its status.
+func (tr *train) report(j int, v, single verdict, bin int, out *TargetReport) {
+	m, g := tr.m, tr.sc.targets[j]
+	r := m.s.Radar
+	prf := 1 / r.PRIS
+	fold := dsp.Fold(g.fd * r.PRIS)
+	rate := tidy(-fold * prf * m.lambda / 2)
+	out.ApparentRangeRateMPS = &rate
+	binW := 1 / float64(tr.plan.Bins())
+	blind := math.Abs(fold) < binW/2 && math.Abs(g.fd*r.PRIS) >= binW/2
+	out.BlindSpeed = &blind
+	if v.peakK >= 0 && v.peak > 0 {
+		snr := out.SNRDB + dsp.DB(tr.gain[j][bin])
+		out.SNRIntegratedDB = &snr
+	}
+	if blind {
+		what := "where stationary clutter sits"
+		if m.s.Receiver.MTI != MTINone {
+			what = "where the MTI canceller rejects it"
+		}
+		out.Reason += fmt.Sprintf(" Blind speed: its Doppler of %.0f Hz is a multiple of the %.0f Hz PRF, so it folds onto zero Doppler, %s.", g.fd, prf, what)
+	}
+	switch {
+	case v.status == StatusDetected && single.status == StatusMasked && single.culprit >= 0:
+		o := tr.sc.targets[single.culprit]
+		_, od, _ := tr.peak(single.culprit)
+		out.Reason += fmt.Sprintf(" Doppler saves it: at %.1f m/s it sits %d Doppler bins from %s (%.1f m/s), which masks it in a single pulse.",
+			rate, binDistance(bin, od, tr.plan.Bins()), o.t.ID, tidy(-tr.binHz(od)*m.lambda/2))
+	case v.status == StatusMasked && v.culprit >= 0:
+		_, od, _ := tr.peak(v.culprit)
+		if dd := binDistance(bin, od, tr.plan.Bins()); dd <= 1 {
+			out.Reason += fmt.Sprintf(" They share its Doppler (%d bin apart at %.1f m/s), so Doppler processing cannot separate them.", dd, rate)
+		}
+	}
+}
+
+func binDistance(a, b, n int) int {
+	d := (a - b) % n
+	if d < 0 {
+		d += n
+	}
+	return min(d, n-d)
+}
+
+// series returns the plot series of a pulse train: the range profile is
+// the largest value over Doppler of each range cell, with the threshold
+// at that cell's strongest expected bin, and the map itself.
+func (tr *train) series(ctx context.Context) (Series, error) {
+	m := tr.m
+	rd, echo0, lin, err := tr.simulate(ctx)
+	if err != nil {
+		return Series{}, err
+	}
+	n, nb := m.n, tr.plan.Bins()
+	s := Series{
+		RangeM0:      m.rangeOf(0),
+		RangeStepM:   C / (2 * m.fs),
+		Echo:         echo0,
+		ProfileDB:    make([]float64, n),
+		CleanDB:      make([]float64, n),
+		ThresholdDB:  make([]float64, n),
+		RangeDoppler: rd,
+	}
+	clean := func(k, d int) float64 { return float64(lin[d][k]) }
+	cf := tr.cfar()
+	for k := range n {
+		if k%4096 == 0 && ctx.Err() != nil {
+			return Series{}, ctx.Err()
+		}
+		best, bd := float32(-1e9), 0
+		pk := float32(-1e9)
+		for d := range nb {
+			if rd.CleanDB[d][k] > best {
+				best, bd = rd.CleanDB[d][k], d
+			}
+			pk = max(pk, rd.DB[d][k])
+		}
+		s.ProfileDB[k], s.CleanDB[k] = float64(pk), float64(best)
+		s.ThresholdDB[k] = toDB(tr.level(cf, k, bd, clean))
+	}
+	for k := 0; k < m.blankEnd(); k++ {
+		s.ProfileDB[k], s.CleanDB[k] = dbFloor, dbFloor
+	}
+	s.Response = m.response()
+	return s, nil
+}
+
+// tidy rounds values within a millimetre per second of zero to zero, so
+// that rounding never prints as "-0.0".
+func tidy(v float64) float64 {
+	if math.Abs(v) < 1e-3 {
+		return 0
+	}
+	return v
+}

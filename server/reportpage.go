@@ -1,0 +1,277 @@
+package server
+
+import (
+	"fmt"
+	"html/template"
+	"io"
+	"math"
+
+	"github.com/go-echarts/go-echarts/v2/charts"
+	"github.com/go-echarts/go-echarts/v2/opts"
+
+	"github.com/pulsewright/pulsewright/scenarios"
+)
+
+// reportBuckets is the number of min/max pairs a profile keeps: about
+// 4000 points, twice the width of a wide screen.
+const reportBuckets = 2000
+
+// WriteReportPage writes the customer report of one evaluated scenario: a
+// single HTML file with ECharts inline and no reference to any other
+// resource. It holds the scene, the waveform and its figures, the
+// compressed profile with its threshold and a marker per target, the
+// waveform's own response, the per-target table with reasons, the
+// warnings, the share link and the RF caution note. link is the whole
+// share URL.
+func WriteReportPage(w io.Writer, s *scenarios.Scenario, res *scenarios.Result, link string) error {
+	cs := []pageChart{
+		{ID: "profile", Height: 420, Option: profileOption(res)},
+		{ID: "response", Height: 320, Option: responseOption(res)},
+	}
+	js, err := chartScript(cs)
+	if err != nil {
+		return err
+	}
+	rep := &res.Report
+	data := reportData{
+		Title:    s.Name,
+		Notes:    s.Notes,
+		Scene:    sceneRows(s),
+		Figures:  figureRows(rep),
+		Targets:  targetRows(rep),
+		Warnings: rep.Warnings,
+		Link:     link,
+		Caution:  caution,
+		Style:    template.CSS(pageStyle),
+		Charts:   cs,
+		Script:   js,
+	}
+	if data.Title == "" {
+		data.Title = "Unnamed scenario"
+	}
+	return reportTmpl.Execute(w, data)
+}
+
+type reportData struct {
+	Title, Notes   string
+	Scene, Figures [][2]string
+	Targets        []targetRow
+	Warnings       []string
+	Link, Caution  string
+	Style          template.CSS
+	Charts         []pageChart
+	Script         template.JS
+}
+
+type targetRow struct {
+	ID, Status, Colour, Range, SNR, Margin, Reason string
+}
+
+func sceneRows(s *scenarios.Scenario) [][2]string {
+	r, wf, rx := s.Radar, s.Waveform, s.Receiver
+	rows := [][2]string{
+		{"Carrier", si(r.CarrierHz, "Hz")},
+		{"Peak power", si(r.PeakPowerW, "W")},
+		{"Antenna gain", fmt.Sprintf("%.4g dBi", r.AntennaGainDBi)},
+		{"Noise figure, losses", fmt.Sprintf("%.3g dB, %.3g dB", r.NoiseFigureDB, r.SystemLossDB)},
+		{"Sample rate", si(r.SampleRateHz, "Hz")},
+		{"PRI, pulses", fmt.Sprintf("%s, %d", si(r.PRIS, "s"), r.Pulses)},
+		{"Receive window", fmt.Sprintf("%.6g – %.6g m", r.WindowStartM, r.WindowStopM)},
+		{"Waveform", waveformText(wf)},
+		{"Compression filter", rx.Filter},
+		{"Weighting", windowText(rx.Window)},
+		{"Detector", detectorText(rx.Detector)},
+		{"Seed", fmt.Sprint(s.Seed)},
+	}
+	for _, t := range s.Targets {
+		rows = append(rows, [2]string{"Target " + t.ID, targetText(t)})
+	}
+	return rows
+}
+
+func figureRows(r *scenarios.Report) [][2]string {
+	w := r.Waveform
+	rows := [][2]string{
+		{"Pulse width τ", si(w.PulseWidthS, "s")},
+		{"Bandwidth B", si(w.BandwidthHz, "Hz")},
+		{"Time–bandwidth B·τ", fmt.Sprintf("%.4g", w.TimeBandwidth)},
+		{"Compression gain", fmt.Sprintf("%.2f dB", w.CompressionGainDB)},
+		{"Peak sidelobe level (PSLR)", fmt.Sprintf("%.2f dB", w.PSLRDB)},
+		{"Integrated sidelobe level (ISLR)", fmt.Sprintf("%.2f dB", w.ISLRDB)},
+		{"Main lobe width at −3 dB", fmt.Sprintf("%.2f m", w.Mainlobe3dBM)},
+		{"Mismatch loss", fmt.Sprintf("%.2f dB", w.MismatchLossDB)},
+		{"Blind range c·τ/2", fmt.Sprintf("%.0f m", w.BlindRangeM)},
+		{"Unambiguous range", fmt.Sprintf("%.0f m", w.UnambiguousRangeM)},
+		{"Unambiguous range rate", fmt.Sprintf("±%.2f m/s", w.UnambiguousVelocityMPS)},
+	}
+	if w.VelocityResolutionMPS != nil {
+		rows = append(rows, [2]string{"Range-rate resolution", fmt.Sprintf("%.3g m/s", *w.VelocityResolutionMPS)})
+	}
+	return rows
+}
+
+func targetRows(r *scenarios.Report) []targetRow {
+	out := make([]targetRow, len(r.Targets))
+	for i, t := range r.Targets {
+		row := targetRow{
+			ID:     t.ID,
+			Status: t.Status,
+			Colour: statusColour[t.Status],
+			Range:  fmt.Sprintf("%.1f", t.RangeM),
+			SNR:    fmt.Sprintf("%.1f", t.SNRDB),
+			Margin: "—",
+			Reason: t.Reason,
+		}
+		if t.MaskedBy != "" {
+			row.Status += " by " + t.MaskedBy
+		}
+		if t.MarginDB != nil {
+			row.Margin = fmt.Sprintf("%+.1f", *t.MarginDB)
+		}
+		out[i] = row
+	}
+	return out
+}
+
+// baseLine returns a line chart with our common layout.
+func baseLine(title, xName, yName string) *charts.Line {
+	c := charts.NewLine()
+	c.SetGlobalOptions(
+		charts.WithTitleOpts(opts.Title{Title: title, Left: "12"}),
+		charts.WithAnimation(false),
+		charts.WithTooltipOpts(opts.Tooltip{Show: opts.Bool(true), Trigger: "axis"}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "6", Right: "12"}),
+		charts.WithGridOpts(opts.Grid{Left: "64", Right: "28", Top: "56", Bottom: "76"}),
+		charts.WithXAxisOpts(opts.XAxis{Type: "value", Name: xName, NameLocation: "middle", NameGap: 28, Min: "dataMin", Max: "dataMax"}),
+		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: yName}),
+		charts.WithDataZoomOpts(
+			opts.DataZoom{Type: "inside", XAxisIndex: []int{0}, FilterMode: "none"},
+			opts.DataZoom{Type: "slider", XAxisIndex: []int{0}, FilterMode: "none", End: 100},
+		),
+	)
+	c.Validate()
+	return c
+}
+
+func lineSeries(name, colour string, width float64, data any) map[string]any {
+	return map[string]any{
+		"type": "line", "id": name, "name": name, "data": data,
+		"showSymbol": false, "sampling": "minmax",
+		"lineStyle": map[string]any{"color": colour, "width": width},
+		"itemStyle": map[string]any{"color": colour},
+	}
+}
+
+// profileOption is the compressed range profile: noisy output, noise-free
+// output and threshold, in dB re output noise, with a marker per target.
+func profileOption(res *scenarios.Result) map[string]any {
+	s := &res.Series
+	c := baseLine("Compressed range profile", "range (m)", "dB re noise")
+	opt := c.JSON()
+	prof := roundPairs(minMaxPairs(s.RangeM0, s.RangeStepM, s.ProfileDB, reportBuckets, -40))
+	clean := roundPairs(minMaxPairs(s.RangeM0, s.RangeStepM, s.CleanDB, reportBuckets, -40))
+	thr := roundPairs(minMaxPairs(s.RangeM0, s.RangeStepM, s.ThresholdDB, reportBuckets, -40))
+	var marks []map[string]any
+	for _, t := range res.Report.Targets {
+		k := int(math.Round((t.RangeM - s.RangeM0) / s.RangeStepM))
+		if t.Status == scenarios.StatusOutOfWindow || k < 0 || k >= len(s.CleanDB) {
+			continue
+		}
+		y := math.Max(s.CleanDB[k], -40)
+		marks = append(marks, map[string]any{
+			"name":      t.ID + " · " + t.Status,
+			"value":     []float64{round4(t.RangeM), round4(y)},
+			"itemStyle": map[string]any{"color": statusColour[t.Status], "borderColor": "#fff", "borderWidth": 1},
+			"label":     map[string]any{"show": true, "formatter": t.ID, "position": "top", "color": statusColour[t.Status], "fontWeight": "bold"},
+		})
+	}
+	opt["series"] = []map[string]any{
+		lineSeries("received (with noise)", "#9aa5b1", 1, prof),
+		lineSeries("noise-free", "#0b5394", 1.5, clean),
+		lineSeries("threshold", "#c2410c", 1.5, thr),
+		{"type": "scatter", "id": "targets", "name": "targets", "data": marks, "symbolSize": 12, "symbol": "diamond", "z": 5,
+			"itemStyle": map[string]any{"color": "#374151"},
+			"tooltip":   map[string]any{"trigger": "item", "formatter": "{b}: {c}"}},
+	}
+	opt["yAxis"] = []map[string]any{{"type": "value", "name": "dB re noise", "min": -40}}
+	setXBounds(opt, "range (m)", s.RangeM0, s.RangeM0+float64(len(s.ProfileDB)-1)*s.RangeStepM)
+	return opt
+}
+
+// responseOption is the waveform's own zero-Doppler compressed response.
+func responseOption(res *scenarios.Result) map[string]any {
+	r := &res.Series.Response
+	c := baseLine("Compressed response of the waveform (zero Doppler)", "range from peak (m)", "dB re peak")
+	opt := c.JSON()
+	var pts [][2]float64
+	if n := len(r.RangeM); n > 1 {
+		step := (r.RangeM[n-1] - r.RangeM[0]) / float64(n-1)
+		pts = roundPairs(minMaxPairs(r.RangeM[0], step, r.DB, reportBuckets, -120))
+	}
+	floor := math.Max(-100, math.Floor((res.Report.Waveform.PSLRDB-30)/10)*10)
+	opt["series"] = []map[string]any{lineSeries("response", "#0b5394", 1.2, pts)}
+	opt["yAxis"] = []map[string]any{{"type": "value", "name": "dB re peak", "min": floor, "max": 0}}
+	if len(pts) > 1 {
+		setXBounds(opt, "range from peak (m)", pts[0][0], pts[len(pts)-1][0])
+	}
+	return opt
+}
+
+// setXBounds sets the x axis to [lo, hi] widened to round numbers (a
+// fiftieth of a power of ten of the span), so the end labels stay short.
+func setXBounds(opt map[string]any, name string, lo, hi float64) {
+	step := math.Pow(10, math.Floor(math.Log10(math.Max(hi-lo, 1e-9)))) / 50
+	opt["xAxis"] = []map[string]any{{"type": "value", "name": name, "nameLocation": "middle", "nameGap": 28,
+		"min": math.Floor(lo/step) * step, "max": math.Ceil(hi/step) * step}}
+}
+
+var reportTmpl = template.Must(template.New("report").Parse(`<!DOCTYPE html>
+<html lang="en">
+<head>
+<meta charset="utf-8">
+<meta name="viewport" content="width=device-width, initial-scale=1">
+<title>{{.Title}} · Pulsewright report</title>
+<style>{{.Style}}</style>
+</head>
+<body>
+<main>
+<header>
+<div class="brand">Pulsewright · scenario report</div>
+<h1>{{.Title}}</h1>
+{{if .Notes}}<p class="notes">{{.Notes}}</p>{{end}}
+</header>
+
+<h2>Targets</h2>
+<table>
+<tr><th>Target</th><th>Status</th><th class="num">Range (m)</th><th class="num">SNR (dB)</th><th class="num">Margin (dB)</th><th>Why</th></tr>
+{{range .Targets}}<tr><td><b>{{.ID}}</b></td><td><span class="status" style="background:{{.Colour}}">{{.Status}}</span></td><td class="num">{{.Range}}</td><td class="num">{{.SNR}}</td><td class="num">{{.Margin}}</td><td>{{.Reason}}</td></tr>
+{{else}}<tr><td colspan="6">No targets in this scene.</td></tr>{{end}}
+</table>
+{{range .Warnings}}<p class="warn">⚠ {{.}}</p>{{end}}
+
+{{range .Charts}}<div class="chart" id="{{.ID}}" style="height:{{.Height}}px"></div>
+{{end}}
+<p class="notes">SNR is the expected single-pulse SNR at the compression filter's output; the margin is the target's noise-free peak over the detection threshold at its cell (positive: detected). Profiles are drawn from per-pixel minimum and maximum, so no peak is lost.</p>
+
+<div class="grid2">
+<section>
+<h2>Scene</h2>
+<table class="kv">{{range .Scene}}<tr><th>{{index . 0}}</th><td>{{index . 1}}</td></tr>{{end}}</table>
+</section>
+<section>
+<h2>Waveform figures</h2>
+<table class="kv">{{range .Figures}}<tr><th>{{index . 0}}</th><td>{{index . 1}}</td></tr>{{end}}</table>
+</section>
+</div>
+
+<h2>Open this scene in the workbench</h2>
+<p>The link carries the whole scenario; it opens the same picture in any Pulsewright workbench (start it with <code>pulsewright serve</code>).</p>
+<div class="link">{{.Link}}</div>
+
+<div class="caution"><b>Caution.</b> {{.Caution}}</div>
+<footer>Made with Pulsewright. Every figure here is computed from the scenario above and can be reproduced from the link.</footer>
+</main>
+<script type="module">{{.Script}}</script>
+</body>
+</html>
+`))

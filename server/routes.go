@@ -1,0 +1,53 @@
+package server
+
+import (
+	"net/http"
+
+	"github.com/go-chi/chi/v5"
+	"github.com/go-chi/chi/v5/middleware"
+)
+
+// Handler returns the server's routes: the one route table.
+func (s *Server) Handler() http.Handler {
+	r := chi.NewRouter()
+	r.Use(middleware.RequestID, s.recoverer, s.requestLogger, securityHeaders, s.requireToken)
+	r.NotFound(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errNoRoute) })
+	r.MethodNotAllowed(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errMethod) })
+
+	// GET /healthz: liveness, {"status":"ok"}.
+	r.Get("/healthz", s.handleHealth)
+
+	// GET /ws: the live session (websocket; no request timeout).
+	r.Get("/ws", s.handleWS)
+
+	r.Route("/api/v1", func(r chi.Router) {
+		r.Use(middleware.Timeout(s.cfg.APITimeout))
+		r.NotFound(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errNoRoute) })
+		r.MethodNotAllowed(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errMethod) })
+
+		// POST /evaluate: scenario in, report out.
+		r.Post("/evaluate", s.handleEvaluate)
+		// POST /links: scenario in, {"link": "/#s=…"} out.
+		r.Post("/links", s.handleLink)
+
+		// GET /demos: the built-in scenes, [{name, title, summary, start}].
+		r.Get("/demos", s.handleDemos)
+		// GET /demos/{name}: a built-in scene's canonical JSON (?form=full: every default filled in).
+		r.Get("/demos/{name}", s.handleDemo)
+
+		r.Route("/scenarios", func(r chi.Router) {
+			// GET /scenarios: saved scenarios, [{name, title, revision, modified}].
+			r.Get("/", s.handleSavedList)
+			// GET /scenarios/{name}: the saved canonical JSON, ETag = revision.
+			r.Get("/{name}", s.handleSavedGet)
+			// PUT /scenarios/{name}: save; If-Match: "rev" or * to replace, none to create.
+			r.Put("/{name}", s.handleSavedPut)
+			// DELETE /scenarios/{name}: remove; If-Match optional.
+			r.Delete("/{name}", s.handleSavedDelete)
+		})
+	})
+
+	// Everything else: the page.
+	r.Handle("/*", http.FileServerFS(s.static))
+	return r
+}

@@ -1,0 +1,391 @@
+package web_test
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"log/slog"
+	"net/http/httptest"
+	"os"
+	"path/filepath"
+	"slices"
+	"strings"
+	"sync"
+	"testing"
+	"time"
+
+	"github.com/chromedp/chromedp"
+
+	"github.com/pulsewright/pulsewright/scenarios"
+	"github.com/pulsewright/pulsewright/server"
+	"github.com/pulsewright/pulsewright/web"
+)
+
+// The browser tests drive Debian's chromium, headless, against the real
+// server. They skip when chromium is absent, unless
+// PULSEWRIGHT_REQUIRE_BROWSER=1 (CI), when they fail instead.
+
+const chromium = "/usr/bin/chromium"
+
+// outDir holds a screenshot per test (gitignored).
+const outDir = "../test-output"
+
+var (
+	browserOnce   sync.Once
+	browserCtx    context.Context
+	browserErr    error
+	browserCancel func()
+)
+
+// TestMain closes the shared browser after the tests.
+func TestMain(m *testing.M) {
+	code := m.Run()
+	if browserCancel != nil {
+		browserCancel()
+	}
+	os.Exit(code)
+}
+
+// mustBrowser returns a context of a new tab in the shared headless
+// browser, started on first use with a fresh profile.
+func mustBrowser(t *testing.T) context.Context {
+	t.Helper()
+	if _, err := os.Stat(chromium); err != nil {
+		if os.Getenv("PULSEWRIGHT_REQUIRE_BROWSER") == "1" {
+			t.Fatalf("chromium is required (PULSEWRIGHT_REQUIRE_BROWSER=1) but %s is missing", chromium)
+		}
+		t.Skipf("no %s; set PULSEWRIGHT_REQUIRE_BROWSER=1 to fail instead", chromium)
+	}
+	browserOnce.Do(func() {
+		dir, err := os.MkdirTemp("", "pulsewright-chromium-")
+		if err != nil {
+			browserErr = err
+			return
+		}
+		opts := append(chromedp.DefaultExecAllocatorOptions[:],
+			chromedp.ExecPath(chromium),
+			chromedp.Headless,
+			chromedp.NoSandbox,
+			chromedp.DisableGPU,
+			chromedp.NoFirstRun,
+			chromedp.UserDataDir(dir),
+			chromedp.WindowSize(1366, 768),
+			chromedp.Flag("disable-quic", true),
+			chromedp.Flag("disable-background-networking", true),
+			chromedp.Flag("disable-component-update", true),
+			chromedp.Flag("disable-sync", true),
+			chromedp.Flag("disable-dev-shm-usage", true),
+		)
+		actx, cancelA := chromedp.NewExecAllocator(context.Background(), opts...)
+		bctx, cancelB := chromedp.NewContext(actx)
+		// Start the browser now, so that each test's tab shares it.
+		if err := chromedp.Do(bctx); err != nil {
+			browserErr = err
+		}
+		browserCtx = bctx
+		browserCancel = func() {
+			cancelB()
+			cancelA()
+			os.RemoveAll(dir)
+		}
+	})
+	if browserErr != nil {
+		t.Fatalf("start chromium: %v", browserErr)
+	}
+	ctx, cancel := chromedp.NewContext(browserCtx)
+	ctx, cancelT := context.WithTimeout(ctx, 60*time.Second)
+	t.Cleanup(func() {
+		cancelT()
+		cancel()
+	})
+	// Fail the test on any uncaught exception in the page and on anything
+	// the Content-Security-Policy blocks.
+	msgs := chromedp.Console(ctx)
+	go func() {
+		for m, err := range msgs {
+			if err != nil {
+				return
+			}
+			if m.IsException() || strings.Contains(m.String(), "Content Security Policy") {
+				t.Errorf("page: %s", m)
+			}
+		}
+	}()
+	return ctx
+}
+
+// mustServer starts the workbench server on an httptest listener.
+func mustServer(t *testing.T) string {
+	t.Helper()
+	log := slog.New(slog.NewTextHandler(io.Discard, nil))
+	s, err := server.New(server.Config{Addr: "127.0.0.1:0", DataDir: t.TempDir(), Static: web.FS()}, log, scenarios.Evaluate)
+	if err != nil {
+		t.Fatalf("server.New: %v", err)
+	}
+	ts := httptest.NewServer(s.Handler())
+	t.Cleanup(func() {
+		ts.Close()
+		s.Close(context.Background())
+	})
+	return ts.URL
+}
+
+func do(t *testing.T, ctx context.Context, steps ...chromedp.Action[chromedp.Void]) {
+	t.Helper()
+	if err := chromedp.Do(ctx, steps...); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// eval runs a JavaScript expression (awaiting a promise) and decodes its
+// value into T.
+func eval[T any](t *testing.T, ctx context.Context, expr string) T {
+	t.Helper()
+	v, err := chromedp.Run(ctx, chromedp.Evaluate[T](expr, chromedp.EvalAwaitPromise))
+	if err != nil {
+		t.Fatalf("evaluate %s: %v", expr, err)
+	}
+	return v
+}
+
+// waitFor polls a JavaScript predicate until it is truthy.
+func waitFor(t *testing.T, ctx context.Context, what, expr string) {
+	t.Helper()
+	_, err := chromedp.Run(ctx, chromedp.Poll[chromedp.Void](expr, chromedp.WithPollingTimeout(20*time.Second)))
+	if err != nil {
+		shot(t, ctx, "failed")
+		t.Fatalf("waiting for %s (%s): %v", what, expr, err)
+	}
+}
+
+// shot saves a screenshot of the page under test-output.
+func shot(t *testing.T, ctx context.Context, suffix string) {
+	t.Helper()
+	buf, err := chromedp.Run(ctx, chromedp.CaptureScreenshot())
+	if err != nil {
+		t.Logf("screenshot: %v", err)
+		return
+	}
+	os.MkdirAll(outDir, 0o755)
+	name := strings.NewReplacer("/", "_", " ", "_").Replace(t.Name())
+	if suffix != "" {
+		name += "-" + suffix
+	}
+	p := filepath.Join(outDir, name+".png")
+	if err := os.WriteFile(p, buf, 0o644); err != nil {
+		t.Logf("screenshot: %v", err)
+	}
+}
+
+// openPage loads the page and waits for its first frame.
+func openPage(t *testing.T, ctx context.Context, url string) {
+	t.Helper()
+	do(t, ctx, chromedp.Navigate(url))
+	waitFor(t, ctx, "the first frame", `window.__pw && window.__pw.frame() && window.__pw.frame().report`)
+}
+
+// JavaScript snippets that read the page's state.
+const (
+	jsTarget = `((id) => (window.__pw.frame().report.targets || []).find((t) => t.id === id))`
+	jsMarker = `((id) => { const o = window.__pw.plots.charts.profile.getOption();
+		const m = o.series.find((s) => s.id === 'markers'); return m && m.data.find((d) => d.id === id); })`
+)
+
+func TestPageLoadsWithPlots(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	for _, c := range []struct {
+		chart  string
+		series []string
+	}{
+		{"profile", []string{"profile", "clean", "threshold", "noise", "markers"}},
+		{"echo", []string{"i", "q", "magnitude"}},
+		{"response", []string{"response"}},
+	} {
+		got := eval[map[string]int](t, ctx, fmt.Sprintf(`(() => {
+			const o = window.__pw.plots.charts[%q].getOption(); const out = {};
+			for (const s of o.series) out[s.id] = (s.data || []).length; return out; })()`, c.chart))
+		for _, id := range c.series {
+			if got[id] == 0 {
+				t.Errorf("chart %s: series %q has no data (series: %v)", c.chart, id, got)
+			}
+		}
+	}
+	n := eval[int](t, ctx, `document.querySelectorAll('#ed-targets tr[data-row]').length`)
+	if n != 3 {
+		t.Errorf("target table has %d rows, want the harbour-skiff demo's 3", n)
+	}
+	if txt := eval[string](t, ctx, `document.querySelector('.foot').textContent`); !strings.Contains(txt, "RF exposure") {
+		t.Errorf("footer caution missing: %q", txt)
+	}
+	shot(t, ctx, "")
+}
+
+// typeInto replaces the text of the input at sel as a user would.
+func typeInto(t *testing.T, ctx context.Context, sel, text string) {
+	t.Helper()
+	do(t, ctx,
+		chromedp.Focus(chromedp.CSS(sel)),
+		chromedp.Evaluate[chromedp.Void](fmt.Sprintf(`document.querySelector(%q).select()`, sel)),
+		chromedp.SendKeys(chromedp.CSS(sel), text))
+}
+
+func TestEditRangeMovesMarker(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	before := eval[[]float64](t, ctx, jsMarker+`('skiff').value`)
+	px0 := eval[[]float64](t, ctx, `window.__pw.plots.markerPixel({x: `+fmt.Sprint(before[0])+`, y: `+fmt.Sprint(before[1])+`})`)
+	typeInto(t, ctx, `tr[data-row="1"] input[data-path="targets[1].range_m"]`, "7000")
+	waitFor(t, ctx, "the skiff's marker at 7000 m", jsMarker+`('skiff').value[0] === 7000`)
+	after := eval[[]float64](t, ctx, jsMarker+`('skiff').value`)
+	px1 := eval[[]float64](t, ctx, `window.__pw.plots.markerPixel({x: `+fmt.Sprint(after[0])+`, y: `+fmt.Sprint(after[1])+`})`)
+	if !(px1[0] > px0[0]+20) {
+		t.Errorf("marker moved from x=%.1f px to x=%.1f px; want it well to the right", px0[0], px1[0])
+	}
+	if r := eval[float64](t, ctx, jsTarget+`('skiff').range_m`); r != 7000 {
+		t.Errorf("report range of skiff = %g, want 7000", r)
+	}
+	shot(t, ctx, "")
+}
+
+func TestMaskedSkiffRevealedByTaylor(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	waitFor(t, ctx, "the skiff masked", jsTarget+`('skiff').status === 'masked'`)
+	if by := eval[string](t, ctx, jsTarget+`('skiff').masked_by`); by != "tanker" {
+		t.Errorf("skiff masked by %q, want tanker", by)
+	}
+	shot(t, ctx, "masked")
+	do(t, ctx,
+		chromedp.Click(chromedp.CSS(`.tabs [data-tab="receive"]`)),
+		chromedp.SetValue(chromedp.CSS(`select[data-action="window-kind:receiver.window"]`), "taylor"),
+		chromedp.Evaluate[chromedp.Void](`document.querySelector('select[data-action="window-kind:receiver.window"]').dispatchEvent(new Event('change', {bubbles: true}))`))
+	waitFor(t, ctx, "the skiff detected", jsTarget+`('skiff').status === 'detected'`)
+	if k := eval[string](t, ctx, `window.__pw.store.scenario.receiver.window.kind`); k != "taylor" {
+		t.Errorf("window kind = %q, want taylor", k)
+	}
+	shot(t, ctx, "taylor")
+}
+
+func TestShareLinkOpensSameScenario(t *testing.T) {
+	ctx := mustBrowser(t)
+	base := mustServer(t)
+	openPage(t, ctx, base)
+	typeInto(t, ctx, `tr[data-row="2"] input[data-path="targets[2].rcs_dbsm"]`, "17.5")
+	waitFor(t, ctx, "the edit's frame", jsMarker+`('pilot-boat') && window.__pw.store.scenario.targets[2].rcs_dbsm === 17.5 && window.__pw.frame().id >= window.__pw.session.nextId - 1`)
+	link := eval[string](t, ctx, `window.__pw.frame().link`)
+	scene := eval[string](t, ctx, `JSON.stringify(window.__pw.frame().report)`)
+	if !strings.HasPrefix(link, "/#s=") {
+		t.Fatalf("frame link %q", link)
+	}
+	if h := eval[string](t, ctx, `location.hash`); "/"+h != link {
+		t.Errorf("address bar hash %q does not follow the frame's link %q", h, link)
+	}
+
+	ctx2, cancel := chromedp.NewContext(ctx) // a second tab in the same browser
+	defer cancel()
+	openPage(t, ctx2, base+link)
+	waitFor(t, ctx2, "the linked scene", `window.__pw.store.scenario.targets[2].rcs_dbsm === 17.5`)
+	if got := eval[string](t, ctx2, `window.__pw.frame().link`); got != link {
+		t.Errorf("new page's link differs:\n got %s\nwant %s", got, link)
+	}
+	if got := eval[string](t, ctx2, `JSON.stringify(window.__pw.frame().report)`); got != scene {
+		t.Errorf("new page's report differs:\n got %s\nwant %s", got, scene)
+	}
+	shot(t, ctx2, "opened")
+
+	// A broken link: a clear message, and the scene stays.
+	do(t, ctx2, chromedp.Evaluate[chromedp.Void](`location.hash = '#s=AAAA-not-a-scenario'`))
+	waitFor(t, ctx2, "the broken-link notice", `!document.querySelector('#notice').hidden && document.querySelector('#notice-text').textContent.includes('cannot be opened')`)
+	if v := eval[float64](t, ctx2, `window.__pw.store.scenario.targets[2].rcs_dbsm`); v != 17.5 {
+		t.Errorf("scene changed after a broken link: rcs %g", v)
+	}
+	shot(t, ctx2, "broken")
+}
+
+func TestBadValueShowsErrorBesideField(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	typeInto(t, ctx, `tr[data-row="1"] input[data-path="targets[1].range_m"]`, "-5")
+	const slot = `document.querySelector('.field [data-err-for="targets[1].range_m"]')`
+	waitFor(t, ctx, "the range error", slot+` && `+slot+`.textContent.includes('below the minimum')`)
+	// The message sits in the same field as the input it names.
+	same := eval[bool](t, ctx, slot+`.closest('.field').querySelector('input').dataset.path === 'targets[1].range_m'`)
+	if !same {
+		t.Error("the error is not beside the targets[1].range_m input")
+	}
+	shot(t, ctx, "range")
+
+	do(t, ctx, chromedp.Click(chromedp.CSS(`.tabs [data-tab="radar"]`)))
+	typeInto(t, ctx, `input[data-path="radar.carrier_hz"]`, "400")
+	const slot2 = `document.querySelector('[data-err-for="radar.carrier_hz"]')`
+	waitFor(t, ctx, "the carrier error", slot2+`.textContent.includes('above the maximum')`)
+	shot(t, ctx, "carrier")
+}
+
+// TestEditLatency measures edit-to-repaint latency (performance marks
+// from sending an edit to the first animation frame after its frame is
+// applied) for each demo and for a 64 k-sample scene, and logs it.
+func TestEditLatency(t *testing.T) {
+	if testing.Short() {
+		t.Skip("latency measurement skipped in -short")
+	}
+	ctx := mustBrowser(t)
+	base := mustServer(t)
+	openPage(t, ctx, base)
+	demos := eval[[]string](t, ctx, `fetch('/api/v1/demos').then((r) => r.json()).then((d) => d.map((x) => x.name))`)
+	type scene struct{ name, load string }
+	var scenes []scene
+	for _, d := range demos {
+		scenes = append(scenes, scene{d, fmt.Sprintf(`fetch('/api/v1/demos/%s').then((r) => r.json())`, d)})
+	}
+	// 64 k samples: a 20 MHz receive window of 65 536 samples, about 491 km.
+	scenes = append(scenes, scene{"64k-samples", `fetch('/api/v1/demos/harbour-skiff').then((r) => r.json()).then((s) => {
+		s.radar.sample_rate_hz = 20e6; s.radar.pri_s = 4e-3; s.radar.window_start_m = 3500;
+		s.radar.window_stop_m = 3500 + 65535 * 299792458 / 2 / 20e6; return s; })`})
+	const edits = 12
+	for _, sc := range scenes {
+		eval[bool](t, ctx, `(async () => { const s = await `+sc.load+`; window.__pw.store.load(s); return true; })()`)
+		waitFor(t, ctx, sc.name+" loaded", `window.__pw.frame() && window.__pw.frame().id >= window.__pw.session.nextId - 1 && window.__pw.frame().report.scenario === window.__pw.store.scenario.name`)
+		eval[bool](t, ctx, `(window.__pwLatencies.length = 0, window.__pwLongTasks.length = 0, true)`)
+		for i := range edits {
+			// One nudge of the first target's level, as the wheel does; wait
+			// for its repaint before the next, so that none is skipped.
+			eval[bool](t, ctx, fmt.Sprintf(`(window.__pw.editor.nudge(0, %d), true)`, 1-2*(i%2)))
+			waitFor(t, ctx, "repaint", fmt.Sprintf(`window.__pwLatencies.length >= %d`, i+1))
+		}
+		lat := eval[[]struct {
+			MS        float64 `json:"ms"`
+			ComputeMS float64 `json:"compute_ms"`
+			WaitMS    float64 `json:"wait_ms"`
+			PageMS    float64 `json:"page_ms"`
+		}](t, ctx, `window.__pwLatencies`)
+		if len(lat) == 0 {
+			t.Errorf("%s: no latencies recorded", sc.name)
+			continue
+		}
+		long := eval[[]float64](t, ctx, `window.__pwLongTasks`)
+		var ms, comp, wait, page []float64
+		for _, l := range lat {
+			ms, comp, wait, page = append(ms, l.MS), append(comp, l.ComputeMS), append(wait, l.WaitMS), append(page, l.PageMS)
+		}
+		t.Logf("%-16s %2d edits  send→paint median %5.0f ms, p90 %5.0f, max %5.0f | server compute %4.0f | send→arrival %4.0f | arrival→paint %4.0f (medians) | long tasks %d, max %.0f ms",
+			sc.name, len(ms), median(ms), quantile(ms, 0.9), slices.Max(ms), median(comp), median(wait), median(page), len(long), maxOr0(long))
+		shot(t, ctx, sc.name)
+	}
+}
+
+func quantile(v []float64, q float64) float64 {
+	s := slices.Clone(v)
+	slices.Sort(s)
+	return s[min(len(s)-1, int(q*float64(len(s))))]
+}
+
+func median(v []float64) float64 { return quantile(v, 0.5) }
+
+func maxOr0(v []float64) float64 {
+	if len(v) == 0 {
+		return 0
+	}
+	return slices.Max(v)
+}

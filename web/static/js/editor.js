@@ -1,0 +1,442 @@
+// The scene editor: radar, pulse and receive forms and the target table.
+// Every input carries the JSON path of its field (data-path), so that the
+// server's validation messages land beside the field they name.
+
+import { $$, getPath, h, setPath } from './dom.js';
+import {
+  convertTarget, detectorFields, detectorKinds, fluctuations, fromDisplay, levelKey, levelUnit,
+  newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
+} from './schema.js';
+
+export class Editor {
+  // roots: {targets, radar, pulse, receive, scene} elements.
+  constructor(roots, store) {
+    this.roots = roots;
+    this.store = store;
+    this.selected = 0; // index of the selected target
+    this.status = new Map(); // target id → report entry
+    this.shape = '';
+    for (const root of Object.values(roots)) {
+      root.addEventListener('input', (ev) => this.onInput(ev));
+      root.addEventListener('change', (ev) => this.onChange(ev));
+      root.addEventListener('focusout', () => this.store.seal());
+    }
+    roots.targets.addEventListener('click', (ev) => this.onTargetClick(ev));
+    roots.targets.addEventListener('focusin', (ev) => {
+      const row = ev.target.closest('[data-row]');
+      if (row) this.select(Number(row.dataset.row));
+    });
+    roots.targets.addEventListener('wheel', (ev) => this.onWheel(ev), { passive: false });
+  }
+
+  // --- input handling ---
+
+  value(el) {
+    const type = el.dataset.type;
+    if (type === 'text' || type === 'select') {
+      if (el.dataset.int) return Number(el.value);
+      return el.value === '' && el.dataset.optional ? undefined : el.value;
+    }
+    if (type === 'phases') {
+      const parts = el.value.split(/[\s,;]+/).filter(Boolean);
+      if (!parts.length) return undefined;
+      const nums = parts.map((p) => fromDisplay(p, 1, false));
+      return nums.some((n) => Number.isNaN(n)) ? NaN : nums;
+    }
+    return fromDisplay(el.value, Number(el.dataset.scale || 1), type === 'int');
+  }
+
+  onInput(ev) {
+    const el = ev.target;
+    const path = el.dataset && el.dataset.path;
+    if (!path || el.tagName === 'SELECT') return;
+    const v = this.value(el);
+    if (typeof v === 'number' && Number.isNaN(v) || Array.isArray(v) && v.some(Number.isNaN)) {
+      this.showLocalError(path, 'not a number');
+      return;
+    }
+    this.showLocalError(path, '');
+    this.store.update((s) => setPath(s, path, v), path);
+  }
+
+  onChange(ev) {
+    const el = ev.target;
+    if (el.tagName !== 'SELECT') return;
+    const action = el.dataset.action;
+    const v = el.value;
+    if (action === 'waveform-kind') {
+      this.store.update((s) => { s.waveform = newWaveform(v, s.waveform); });
+    } else if (action && action.startsWith('window-kind:')) {
+      const path = action.slice('window-kind:'.length);
+      this.store.update((s) => setPath(s, path, { kind: v }));
+    } else if (action === 'detector-kind') {
+      this.store.update((s) => {
+        s.receiver = s.receiver || {};
+        const old = s.receiver.detector || {};
+        const d = { kind: v };
+        if (old.pfa !== undefined) d.pfa = old.pfa;
+        s.receiver.detector = d;
+      });
+    } else if (action === 'target-kind') {
+      const i = Number(el.dataset.index);
+      this.store.update((s) => { s.targets[i] = convertTarget(s.targets[i], v); });
+    } else if (el.dataset.path) {
+      this.store.update((s) => setPath(s, el.dataset.path, this.value(el)));
+    }
+  }
+
+  onTargetClick(ev) {
+    const btn = ev.target.closest('[data-act]');
+    const row = ev.target.closest('[data-row]');
+    if (btn) {
+      const i = Number(btn.dataset.index);
+      const act = btn.dataset.act;
+      if (act === 'add') this.addTarget();
+      else if (act === 'dup') this.duplicate(i);
+      else if (act === 'del') this.remove(i);
+      return;
+    }
+    if (row) this.select(Number(row.dataset.row));
+  }
+
+  onWheel(ev) {
+    const el = ev.target.closest('[data-level]');
+    if (!el) return;
+    ev.preventDefault();
+    const i = Number(el.dataset.level);
+    this.select(i);
+    this.nudge(i, (ev.deltaY < 0 ? 1 : -1) * (ev.shiftKey ? 0.1 : 1));
+  }
+
+  addTarget() {
+    this.store.update((s) => {
+      s.targets = s.targets || [];
+      const last = s.targets[s.targets.length - 1];
+      const r = last ? (last.range_m ?? last.range_stop_m ?? 1000) + 200 : ((s.radar && s.radar.window_start_m) || 0) + 2000;
+      s.targets.push({ id: uniqueId(s.targets, 'target'), kind: 'point', range_m: r, rcs_dbsm: 10 });
+      this.selected = s.targets.length - 1;
+    });
+  }
+
+  duplicate(i) {
+    this.store.update((s) => {
+      const t = structuredClone(s.targets[i]);
+      t.id = uniqueId(s.targets, `${t.id}-2`);
+      if (t.kind === 'point') t.range_m += 100;
+      s.targets.splice(i + 1, 0, t);
+      this.selected = i + 1;
+    });
+  }
+
+  remove(i) {
+    this.store.update((s) => {
+      s.targets.splice(i, 1);
+      this.selected = Math.max(0, Math.min(this.selected, s.targets.length - 1));
+    });
+  }
+
+  // Select target i: mark its row and show its detail form, leaving the
+  // table (and any input being typed in) alone.
+  select(i) {
+    if (i === this.selected) return;
+    this.selected = i;
+    for (const tr of $$('tr[data-row]', this.roots.targets)) tr.classList.toggle('sel', Number(tr.dataset.row) === i);
+    const detail = this.roots.targets.querySelector('.detail-slot');
+    if (detail) detail.replaceChildren(this.targetDetail(this.store.scenario));
+    this.shape = this.shapeOf(this.store.scenario);
+  }
+
+  selectId(id) {
+    const i = (this.store.scenario.targets || []).findIndex((t) => t.id === id);
+    if (i >= 0) this.select(i);
+  }
+
+  // Nudge the level (RCS, RCS per metre or reflectivity) of target i.
+  nudge(i, dB) {
+    const t = (this.store.scenario.targets || [])[i];
+    if (!t) return;
+    const key = levelKey(t.kind);
+    this.store.update((s) => {
+      const v = (s.targets[i][key] ?? 0) + dB;
+      s.targets[i][key] = Math.round(v * 10) / 10;
+    }, `nudge:${i}`);
+  }
+
+  // Move target id to range r (drag on the profile plot).
+  moveTo(id, r) {
+    const i = (this.store.scenario.targets || []).findIndex((t) => t.id === id);
+    if (i < 0) return;
+    r = Math.max(0, Math.round(r * 10) / 10);
+    this.store.update((s) => {
+      const t = s.targets[i];
+      if (t.kind === 'point') {
+        t.range_m = r;
+      } else {
+        const w = t.range_stop_m - t.range_start_m;
+        t.range_start_m = r;
+        t.range_stop_m = Math.round((r + w) * 10) / 10;
+      }
+    }, `drag:${id}`);
+  }
+
+  // --- rendering ---
+
+  // Bring the forms in line with the scenario. Forms are rebuilt when their
+  // shape changes (a kind, the number of targets); otherwise only values
+  // change, and the field being typed in is left alone.
+  render(s) {
+    const t = s.targets || [];
+    if (this.selected >= t.length) this.selected = Math.max(0, t.length - 1);
+    const shape = this.shapeOf(s);
+    if (shape !== this.shape) {
+      this.shape = shape;
+      this.renderScene(s);
+      this.renderRadar(s);
+      this.renderPulse(s);
+      this.renderReceive(s);
+      this.renderTargets(s, true);
+      return;
+    }
+    this.renderTargets(s, false);
+    for (const root of Object.values(this.roots)) this.syncValues(root, s);
+  }
+
+  shapeOf(s) {
+    const t = s.targets || [];
+    const rx = s.receiver || {};
+    return JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, rx.detector && rx.detector.kind,
+      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected,
+      s.waveform && s.waveform.binary !== undefined]);
+  }
+
+  syncValues(root, s) {
+    for (const el of $$('[data-path]', root)) {
+      if (el === document.activeElement) continue;
+      const v = getPath(s, el.dataset.path);
+      if (el.tagName === 'SELECT') {
+        const want = String(v ?? el.dataset.def ?? '');
+        if (want && el.value !== want) el.value = want;
+        continue;
+      }
+      const text = el.dataset.type === 'phases' ? (v || []).join(', ') : toDisplay(v, Number(el.dataset.scale || 1));
+      if (el.value !== text) el.value = text;
+    }
+  }
+
+  // A labelled input for field fd of the object at base.
+  field(s, base, fd) {
+    const path = base ? `${base}.${fd.key}` : fd.key;
+    const v = getPath(s, path);
+    const hint = fd.hint || (fd.def !== undefined ? toDisplay(fd.def, fd.scale) : '');
+    let input;
+    if (fd.type === 'select') {
+      input = h('select', { dataset: { path, type: 'select', int: fd.int ? '1' : '', def: fd.def !== undefined ? String(fd.def) : undefined } },
+        fd.options.map((o) => h('option', { value: String(o), selected: String(v ?? fd.def) === String(o) }, String(o))));
+    } else if (fd.type === 'phases') {
+      input = h('textarea', { rows: 2, dataset: { path, type: 'phases' }, placeholder: '0, 180, 90 …', value: (v || []).join(', ') });
+    } else {
+      input = h('input', {
+        type: 'text', inputmode: fd.type === 'text' ? 'text' : 'decimal', autocomplete: 'off', spellcheck: 'false',
+        dataset: { path, type: fd.type, scale: String(fd.scale), optional: '1' },
+        placeholder: hint, value: toDisplay(v, fd.scale),
+      });
+    }
+    input.id = `f-${path.replace(/[^\w]/g, '_')}`;
+    return h('div', { class: 'field' },
+      h('label', { for: input.id }, fd.label),
+      h('div', { class: 'input-unit' }, input, fd.unit ? h('span', { class: 'unit' }, fd.unit) : null),
+      h('div', { class: 'err', dataset: { errFor: path } }));
+  }
+
+  kindSelect(label, action, kinds, current, path) {
+    const id = `k-${action.replace(/[^\w]/g, '_')}`;
+    return h('div', { class: 'field wide' },
+      h('label', { for: id }, label),
+      h('select', { id, dataset: { action, errPath: path } },
+        Object.entries(kinds).map(([k, d]) => h('option', { value: k, selected: k === current }, d.label))),
+      h('div', { class: 'err', dataset: { errFor: path } }));
+  }
+
+  renderScene(s) {
+    this.roots.scene.replaceChildren(
+      this.field(s, '', { key: 'name', label: 'Scene name', unit: '', scale: 1, type: 'text' }),
+      this.field(s, '', { key: 'seed', label: 'Noise seed', unit: '', scale: 1, type: 'int', def: 1 }),
+    );
+  }
+
+  renderRadar(s) {
+    this.roots.radar.replaceChildren(
+      h('div', { class: 'err block', dataset: { errFor: 'radar' } }),
+      h('div', { class: 'grid' }, radarFields.map((fd) => this.field(s, 'radar', fd))));
+  }
+
+  renderPulse(s) {
+    const w = s.waveform || {};
+    const kind = waveformKinds[w.kind] ? w.kind : 'lfm';
+    this.roots.pulse.replaceChildren(
+      this.kindSelect('Waveform', 'waveform-kind', waveformKinds, kind, 'waveform.kind'),
+      h('div', { class: 'err block', dataset: { errFor: 'waveform' } }),
+      h('div', { class: 'grid' }, waveformKinds[kind].fields.map((fd) => this.field(s, 'waveform', fd))));
+  }
+
+  windowBlock(s, title, path, def) {
+    const w = getPath(s, path) || { kind: def };
+    const kind = windowKinds[w.kind] ? w.kind : def;
+    return h('div', { class: 'sub' },
+      this.kindSelect(title, `window-kind:${path}`, windowKinds, kind, `${path}.kind`),
+      h('div', { class: 'grid' }, windowKinds[kind].fields.map((fd) => this.field(s, path, fd))));
+  }
+
+  renderReceive(s) {
+    const rx = s.receiver || {};
+    const det = rx.detector || { kind: 'ca_cfar' };
+    const dkind = detectorKinds[det.kind] ? det.kind : 'ca_cfar';
+    const filterFd = { key: 'filter', label: 'Compression filter', type: 'select', options: ['matched', 'least_squares'], def: 'matched', scale: 1 };
+    const filterBlock = [this.field(s, 'receiver', filterFd)];
+    if (rx.filter === 'least_squares') {
+      filterBlock.push(this.field(s, 'receiver', { key: 'filter_length_factor', label: 'Filter length', unit: '× code', scale: 1, type: 'int', def: 3 }));
+    }
+    this.roots.receive.replaceChildren(
+      h('div', { class: 'grid' }, filterBlock),
+      this.windowBlock(s, 'Range weighting', 'receiver.window', 'none'),
+      h('div', { class: 'sub' },
+        this.kindSelect('Detector', 'detector-kind', detectorKinds, dkind, 'receiver.detector.kind'),
+        h('div', { class: 'grid' }, detectorKinds[dkind].fields.map((k) => this.field(s, 'receiver.detector', detectorFields[k])))),
+      this.windowBlock(s, 'Pulse-to-pulse weighting (pulses > 1)', 'receiver.doppler_window', 'hann'));
+  }
+
+  targetRow(t, i) {
+    const lk = levelKey(t.kind);
+    const num = (key, scale = 1, cls = '') => h('input', {
+      type: 'text', inputmode: 'decimal', autocomplete: 'off', class: cls, value: toDisplay(t[key], scale),
+      dataset: { path: `targets[${i}].${key}`, type: 'num', scale: String(scale), optional: '1' },
+      'aria-label': `${t.id} ${key}`,
+    });
+    const rep = this.status.get(t.id);
+    const st = rep ? rep.status : '';
+    const level = num(lk);
+    level.dataset.level = String(i);
+    level.title = 'Wheel or ↑/↓ to nudge by 1 dB (Shift: 0.1 dB)';
+    return h('tr', { class: i === this.selected ? 'sel' : '', dataset: { row: String(i) } },
+      h('td', {}, h('span', { class: `dot st-${st || 'none'}`, title: st ? st.replace('_', ' ') : 'not evaluated' })),
+      h('td', {}, h('input', { type: 'text', class: 'id', value: t.id, autocomplete: 'off', spellcheck: 'false',
+        dataset: { path: `targets[${i}].id`, type: 'text' }, 'aria-label': 'target id' })),
+      h('td', {}, h('select', { dataset: { action: 'target-kind', index: String(i) }, 'aria-label': 'kind' },
+        targetKinds.map((k) => h('option', { value: k, selected: k === t.kind }, k)))),
+      h('td', {}, num(t.kind === 'point' ? 'range_m' : 'range_start_m')),
+      h('td', {}, level),
+      h('td', {}, num('range_rate_mps')),
+      h('td', { class: 'acts' },
+        h('button', { type: 'button', class: 'icon', title: 'Duplicate', dataset: { act: 'dup', index: String(i) } }, '+'),
+        h('button', { type: 'button', class: 'icon', title: 'Delete', dataset: { act: 'del', index: String(i) } }, '×')));
+  }
+
+  // The detail form of the selected target: every field of its kind.
+  targetDetail(s) {
+    const i = this.selected;
+    const t = (s.targets || [])[i];
+    if (!t) return h('p', { class: 'muted' }, 'No targets. Add one to start.');
+    const base = `targets[${i}]`;
+    const fds = t.kind === 'point'
+      ? [{ key: 'range_m', label: 'Range', unit: 'm' }, { key: 'rcs_dbsm', label: 'RCS', unit: 'dBsm' },
+        { key: 'range_rate_mps', label: 'Range rate', unit: 'm/s', def: 0 },
+        { key: 'fluctuation', label: 'Fluctuation', type: 'select', options: fluctuations, def: 'none' }]
+      : [{ key: 'range_start_m', label: 'Near edge', unit: 'm' }, { key: 'range_stop_m', label: 'Far edge', unit: 'm' },
+        { key: levelKey(t.kind), label: t.kind === 'extended' ? 'RCS per metre' : 'Reflectivity', unit: levelUnit[t.kind] },
+        { key: 'range_rate_mps', label: 'Range rate', unit: 'm/s', def: 0 },
+        { key: 'velocity_spread_mps', label: 'Velocity spread', unit: 'm/s rms', def: 0 }];
+    return h('div', { class: 'detail' },
+      h('div', { class: 'detail-head' }, `Target “${t.id}” · ${t.kind}`),
+      h('div', { class: 'err block', dataset: { errFor: base } }),
+      h('div', { class: 'grid' }, fds.map((fd) => this.field(s, base, { scale: 1, type: 'num', ...fd }))));
+  }
+
+  renderTargets(s, full) {
+    const root = this.roots.targets;
+    const targets = s.targets || [];
+    const active = document.activeElement;
+    if (!full && root.contains(active) && active.dataset && active.dataset.path) {
+      this.syncValues(root, s); // typing in the table: keep the input
+      this.updateDots();
+      return;
+    }
+    root.replaceChildren(
+      h('table', { class: 'targets' },
+        h('thead', {}, h('tr', {},
+          h('th', {}, ''), h('th', {}, 'id'), h('th', {}, 'kind'), h('th', {}, 'range m'),
+          h('th', {}, 'level dB'), h('th', {}, 'rate m/s'), h('th', {}, ''))),
+        h('tbody', {}, targets.map((t, i) => this.targetRow(t, i)))),
+      h('div', { class: 'row-actions' },
+        h('button', { type: 'button', dataset: { act: 'add' } }, '+ Add target'),
+        h('span', { class: 'muted small' }, 'Drag a marker on the profile; wheel or ↑/↓ nudges the level.')),
+      h('div', { class: 'err block', dataset: { errFor: 'targets' } }),
+      h('div', { class: 'detail-slot' }, this.targetDetail(s)));
+  }
+
+  // Report statuses for the dots of the target table.
+  setReport(report) {
+    this.status = new Map(((report && report.targets) || []).map((t) => [t.id, t]));
+    this.updateDots();
+  }
+
+  updateDots() {
+    const targets = (this.store.scenario && this.store.scenario.targets) || [];
+    $$('tr[data-row]', this.roots.targets).forEach((tr) => {
+      const t = targets[Number(tr.dataset.row)];
+      const rep = t && this.status.get(t.id);
+      const dot = tr.querySelector('.dot');
+      if (!dot) return;
+      const st = rep ? rep.status : 'none';
+      dot.className = `dot st-${st}`;
+      dot.title = rep ? `${st.replace('_', ' ')}: ${rep.reason}` : 'not evaluated';
+    });
+  }
+
+  // --- validation messages ---
+
+  showLocalError(path, msg) {
+    for (const el of $$(`[data-err-for="${CSS.escape(path)}"]`)) el.textContent = msg;
+  }
+
+  // Show the server's field errors beside their fields; a path with no
+  // field of its own goes to its nearest parent that has a message slot.
+  // Returns the messages that found no place.
+  showErrors(fields) {
+    this.clearErrors();
+    const orphans = [];
+    for (const fe of fields || []) {
+      let path = fe.path || '';
+      let slots = [];
+      while (path) {
+        slots = $$(`[data-err-for="${CSS.escape(path)}"]`);
+        if (slots.length) break;
+        path = path.replace(/(\.[^.[\]]*|\[\d+\])$/, '');
+      }
+      if (!slots.length) {
+        orphans.push(fe.path ? `${fe.path}: ${fe.message}` : fe.message);
+        continue;
+      }
+      const text = path === fe.path ? fe.message : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
+      for (const slot of slots) {
+        slot.textContent = slot.textContent ? `${slot.textContent}; ${text}` : text;
+        const input = slot.parentElement && slot.parentElement.querySelector('input, select, textarea');
+        if (input) input.setAttribute('aria-invalid', 'true');
+      }
+      for (const input of $$(`[data-path="${CSS.escape(fe.path)}"]`)) input.setAttribute('aria-invalid', 'true');
+    }
+    return orphans;
+  }
+
+  clearErrors() {
+    for (const el of $$('[data-err-for]')) el.textContent = '';
+    for (const el of $$('[aria-invalid]')) el.removeAttribute('aria-invalid');
+  }
+
+  // The first panel holding an error, so the page can show that tab.
+  errorPanel() {
+    for (const [name, root] of Object.entries(this.roots)) {
+      if ($$('[data-err-for]', root).some((e) => e.textContent)) return name;
+    }
+    return null;
+  }
+}

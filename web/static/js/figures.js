@@ -1,0 +1,81 @@
+// The figures panel: the waveform's figures of merit and each target's
+// verdict, from the report, beside the pinned reference when there is one.
+
+import { h } from './dom.js';
+
+const fmt = (v, digits = 1) => (v === undefined || v === null || !Number.isFinite(v) ? '—' : v.toFixed(digits));
+const eng = (v, unit) => {
+  if (v === undefined || v === null || !Number.isFinite(v)) return '—';
+  const a = Math.abs(v);
+  const [s, p] = a >= 1e9 ? [1e9, 'G'] : a >= 1e6 ? [1e6, 'M'] : a >= 1e3 ? [1e3, 'k'] : a >= 1 || a === 0 ? [1, ''] : a >= 1e-3 ? [1e-3, 'm'] : a >= 1e-6 ? [1e-6, 'µ'] : [1e-9, 'n'];
+  return `${Number((v / s).toPrecision(4))} ${p}${unit}`;
+};
+const metres = (v) => (v === undefined || !Number.isFinite(v) ? '—' : v >= 10000 ? `${(v / 1000).toFixed(2)} km` : `${v.toFixed(v < 10 ? 2 : 1)} m`);
+
+// Rows: label, getter, formatter, and whether larger is better (for the
+// comparison arrow).
+const waveformRows = [
+  ['Waveform', (w) => w.kind, (v) => v ?? '—'],
+  ['Pulse width τ', (w) => w.pulse_width_s, (v) => eng(v, 's')],
+  ['Bandwidth B', (w) => w.bandwidth_hz, (v) => eng(v, 'Hz')],
+  ['B·τ', (w) => w.time_bandwidth, (v) => fmt(v, 1)],
+  ['Compression gain', (w) => w.compression_gain_db, (v) => `${fmt(v)} dB`, true],
+  ['PSLR', (w) => w.pslr_db, (v) => `${fmt(v)} dB`, false],
+  ['ISLR', (w) => w.islr_db, (v) => `${fmt(v)} dB`, false],
+  ['Resolution (−3 dB)', (w) => w.mainlobe_3db_m, metres, false],
+  ['Mismatch loss', (w) => w.mismatch_loss_db, (v) => `${fmt(v, 2)} dB`, false],
+  ['Blind range', (w) => w.blind_range_m, metres, false],
+  ['Unambiguous range', (w) => w.unambiguous_range_m, metres, true],
+  ['Unambiguous velocity', (w) => w.unambiguous_velocity_mps, (v) => `±${fmt(v)} m/s`, true],
+  ['Doppler resolution', (w) => w.doppler_resolution_hz, (v) => eng(v, 'Hz')],
+  ['Velocity resolution', (w) => w.velocity_resolution_mps, (v) => `${fmt(v, 2)} m/s`],
+];
+
+export function renderFigures(root, report, reference, computeMs) {
+  if (!report) {
+    root.replaceChildren(h('p', { class: 'muted' }, 'Waiting for the first result…'));
+    return;
+  }
+  const w = report.waveform || {};
+  const rw = reference ? reference.waveform || {} : null;
+  const rows = waveformRows.filter(([, get]) => get(w) !== undefined || (rw && get(rw) !== undefined));
+  const table = h('table', { class: 'figs' },
+    h('thead', {}, h('tr', {}, h('th', {}, 'Figure'), h('th', {}, 'Now'), rw ? h('th', {}, 'Pinned') : null)),
+    h('tbody', {}, rows.map(([label, get, f, better]) => {
+      const now = get(w);
+      const ref = rw ? get(rw) : undefined;
+      let cls = '';
+      if (rw && better !== undefined && Number.isFinite(now) && Number.isFinite(ref) && Math.abs(now - ref) > 1e-9) {
+        cls = (now > ref) === better ? 'better' : 'worse';
+      }
+      return h('tr', {}, h('th', {}, label), h('td', { class: cls }, f(now)), rw ? h('td', {}, f(ref)) : null);
+    })));
+
+  const refTargets = new Map(((reference && reference.targets) || []).map((t) => [t.id, t]));
+  const cards = (report.targets || []).map((t) => {
+    const rt = refTargets.get(t.id);
+    return h('li', { class: `tcard st-${t.status}`, dataset: { target: t.id } },
+      h('div', { class: 'tcard-head' },
+        h('span', { class: `dot st-${t.status}` }),
+        h('b', {}, t.id),
+        h('span', { class: 'status' }, t.status.replace(/_/g, ' ')),
+        rt && rt.status !== t.status ? h('span', { class: 'was' }, `pinned: ${rt.status.replace(/_/g, ' ')}`) : null),
+      h('div', { class: 'tcard-nums' },
+        h('span', {}, `SNR ${fmt(t.snr_db)} dB`),
+        t.margin_db !== undefined ? h('span', {}, `margin ${t.margin_db >= 0 ? '+' : ''}${fmt(t.margin_db)} dB`) : null,
+        t.snr_integrated_db !== undefined ? h('span', {}, `integrated ${fmt(t.snr_integrated_db)} dB`) : null,
+        t.masked_by ? h('span', {}, `masked by ${t.masked_by}`) : null,
+        t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null),
+      h('div', { class: 'reason' }, t.reason || ''));
+  });
+
+  root.replaceChildren(
+    h('h3', {}, 'Waveform'),
+    table,
+    h('h3', {}, 'Targets'),
+    cards.length ? h('ul', { class: 'tcards' }, cards) : h('p', { class: 'muted' }, 'No targets in the scene.'),
+    (report.warnings || []).length
+      ? h('div', { class: 'warnings' }, h('h3', {}, 'Warnings'), h('ul', {}, report.warnings.map((m) => h('li', {}, m))))
+      : null,
+    computeMs !== undefined ? h('p', { class: 'muted small' }, `computed in ${fmt(computeMs, 1)} ms`) : null);
+}

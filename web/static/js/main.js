@@ -1,0 +1,320 @@
+// The workbench page: wires the scenario store, the editor, the plots, the
+// figures panel and the websocket session together.
+
+import { $, $$, download } from './dom.js';
+import { Editor } from './editor.js';
+import { renderFigures } from './figures.js';
+import { Plots } from './charts.js';
+import { Session } from './session.js';
+import { api, decodeLink, linkPart } from './share.js';
+import { Store } from './store.js';
+import { initLibrary } from './library.js';
+import { initKeys } from './keys.js';
+
+const DefaultDemo = 'harbour-skiff';
+
+const store = new Store();
+const editor = new Editor({
+  scene: $('#ed-scene'), targets: $('#ed-targets'), radar: $('#ed-radar'), pulse: $('#ed-pulse'), receive: $('#ed-receive'),
+}, store);
+
+let lastFrame = null;
+let pendingFrame = null;
+let applyScheduled = false;
+let lastErrorId = 0;
+let pinned = null;
+let shownLink = null; // encoded part of the link in the address bar
+let pushNextLink = false; // the next frame's link starts a new history entry
+let linkFallback = null; // scenario JSON to return to if a link's scenario is rejected
+
+// Measured latencies, edit send → new pixels, for the browser tests.
+const latencies = [];
+window.__pwLatencies = latencies;
+
+const session = new Session({ onFrame, onError, onStatus });
+const plots = new Plots({
+  profile: $('#chart-profile'), echo: $('#chart-echo'), response: $('#chart-response'), ambiguity: $('#chart-ambiguity'),
+}, {
+  onView: (range, width) => session.sendView(range, width),
+  onDrag: (id, r) => editor.moveTo(id, r),
+  onDragEnd: () => store.seal(),
+  onSelect: (id) => editor.selectId(id),
+  onNudge: (id, dB) => {
+    const i = (store.scenario.targets || []).findIndex((t) => t.id === id);
+    if (i >= 0) editor.nudge(i, dB);
+  },
+  hoverCard,
+});
+window.__pw = { store, editor, plots, session, frame: () => lastFrame };
+
+store.onChange((s, cause) => {
+  editor.render(s);
+  session.sendScenario(s, cause === 'link' ? 'link' : null);
+  $('#btn-undo').disabled = !store.undoStack.length;
+  $('#btn-redo').disabled = !store.redoStack.length;
+});
+
+// --- frames ---
+
+function onFrame(msg) {
+  pendingFrame = msg;
+  if (applyScheduled) return;
+  applyScheduled = true;
+  requestAnimationFrame(applyFrame);
+}
+
+// Apply the newest frame in one animation frame; older unapplied frames
+// are skipped.
+function applyFrame() {
+  applyScheduled = false;
+  const f = pendingFrame;
+  pendingFrame = null;
+  if (!f) return;
+  lastFrame = f;
+  plots.apply(f);
+  editor.setReport(f.report);
+  renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms);
+  if (session.sent.has(f.id) && f.id > lastErrorId) {
+    editor.clearErrors();
+    $('#orphan-errors').textContent = '';
+    markTabs();
+  }
+  if (f.link) updateAddress(f.link);
+  const sentAt = session.sent.get(f.id);
+  performance.mark(`pw-apply-${f.id}`);
+  requestAnimationFrame(() => {
+    performance.mark(`pw-paint-${f.id}`);
+    if (sentAt !== undefined) {
+      const m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
+      // ms: send → new pixels; wait_ms: send → the frame's arrival (server
+      // and network); page_ms: arrival → new pixels (parse excluded).
+      latencies.push({ id: f.id, ms: m.duration, compute_ms: f.compute_ms, wait_ms: f.arrivedAt - sentAt, page_ms: performance.now() - f.arrivedAt });
+      if (latencies.length > 1000) latencies.shift();
+    }
+  });
+}
+
+function updateAddress(link) {
+  const enc = linkPart(link.slice(link.indexOf('#')));
+  if (enc === null || enc === shownLink) return;
+  const url = `${location.pathname}${location.search}#s=${enc}`;
+  if (pushNextLink && shownLink !== null) history.pushState(null, '', url);
+  else history.replaceState(null, '', url);
+  pushNextLink = false;
+  shownLink = enc;
+}
+
+function onError(msg) {
+  if (session.tagOf(msg.id) === 'link' && linkFallback !== null) {
+    const why = (msg.fields || []).map((f) => (f.path ? `${f.path}: ${f.message}` : f.message)).join('; ') || msg.error;
+    notice(`This share link holds a scenario that cannot be used (${why}). The current scene is kept.`, 'error');
+    store.load(JSON.parse(linkFallback), { record: false, cause: 'revert' });
+    store.undoStack.pop(); // the step that loaded the link
+    linkFallback = null;
+    restoreAddress();
+    return;
+  }
+  lastErrorId = msg.id;
+  const first = (msg.fields || [])[0];
+  const m = first && first.path && first.path.match(/^targets\[(\d+)\]/);
+  if (m && !$('.editor').contains(document.activeElement)) editor.select(Number(m[1]));
+  const orphans = editor.showErrors(msg.fields);
+  if (!(msg.fields || []).length && msg.error) orphans.push(msg.error);
+  $('#orphan-errors').textContent = orphans.join('\n');
+  markTabs();
+  // Show the panel of the first error, unless the user is typing in the
+  // editor: then the tabs only carry a mark.
+  const panel = editor.errorPanel();
+  const tab = panel === 'targets' ? 'scene' : panel;
+  if (tab && !$('.editor').contains(document.activeElement)) showTab(tab);
+}
+
+// Mark each tab whose panel holds an error message.
+function markTabs() {
+  for (const b of $$('.tabs [data-tab]')) {
+    const p = $(`[data-panel="${b.dataset.tab}"]`);
+    b.classList.toggle('has-err', !!p.querySelector('.err:not(:empty)'));
+  }
+}
+
+function onStatus(state) {
+  $('#conn').dataset.state = state;
+  $('#conn-text').textContent = state;
+}
+
+// --- notices, tabs, hover card ---
+
+function notice(text, kind = 'info') {
+  $('#notice-text').textContent = text;
+  $('#notice').dataset.kind = kind;
+  $('#notice').hidden = false;
+}
+$('#notice-close').addEventListener('click', () => { $('#notice').hidden = true; });
+
+function showTab(name) {
+  for (const b of $$('.tabs [data-tab]')) b.setAttribute('aria-selected', String(b.dataset.tab === name));
+  for (const p of $$('[data-panel]')) p.hidden = p.dataset.panel !== name;
+}
+for (const b of $$('.tabs [data-tab]')) b.addEventListener('click', () => showTab(b.dataset.tab));
+
+function hoverCard(hit) {
+  const card = $('#hover-card');
+  const t = hit && lastFrame && (lastFrame.report.targets || []).find((x) => x.id === hit.id);
+  if (!t) {
+    card.hidden = true;
+    return;
+  }
+  card.replaceChildren();
+  const head = document.createElement('div');
+  head.className = `hc-head st-${t.status}`;
+  head.textContent = `${t.id} · ${t.status.replace(/_/g, ' ')}`;
+  const nums = document.createElement('div');
+  nums.className = 'hc-nums';
+  nums.textContent = `SNR ${t.snr_db.toFixed(1)} dB` + (t.margin_db !== undefined ? ` · margin ${t.margin_db.toFixed(1)} dB` : '')
+    + (t.masked_by ? ` · masked by ${t.masked_by}` : '');
+  const reason = document.createElement('div');
+  reason.textContent = t.reason;
+  const tip = document.createElement('div');
+  tip.className = 'hc-tip';
+  tip.textContent = 'drag to move · wheel to change RCS';
+  card.append(head, nums, reason, tip);
+  card.hidden = false;
+  const x = Math.min(hit.clientX + 14, innerWidth - card.offsetWidth - 8);
+  const y = Math.min(hit.clientY + 14, innerHeight - card.offsetHeight - 8);
+  card.style.left = `${x}px`;
+  card.style.top = `${y}px`;
+}
+
+// --- links and history ---
+
+async function openLink(enc) {
+  let s;
+  try {
+    s = await decodeLink(enc);
+  } catch (e) {
+    notice(`This share link cannot be opened: ${e.message}. The current scene is kept.`, 'error');
+    if (!store.scenario) await loadDemo(DefaultDemo);
+    restoreAddress();
+    return;
+  }
+  shownLink = enc;
+  linkFallback = store.scenario ? JSON.stringify(store.scenario) : null;
+  store.load(s, { cause: 'link' });
+}
+
+function restoreAddress() {
+  const url = shownLink ? `${location.pathname}#s=${shownLink}` : location.pathname;
+  history.replaceState(null, '', url);
+}
+
+function fromLocation() {
+  const enc = linkPart(location.hash);
+  if (enc === null || enc === shownLink) return;
+  openLink(enc);
+}
+addEventListener('hashchange', fromLocation);
+addEventListener('popstate', fromLocation);
+
+// --- scenes ---
+
+async function loadDemo(name) {
+  try {
+    const s = await api.demo(name);
+    pushNextLink = true;
+    store.load(s);
+  } catch (e) {
+    notice(`Could not load the built-in scene “${name}”: ${e.message}`, 'error');
+  }
+}
+
+async function fillDemos() {
+  let demos = [];
+  try {
+    demos = await api.demos();
+    const sel = $('#demo-select');
+    for (const d of demos) {
+      const o = document.createElement('option');
+      o.value = d.name;
+      o.textContent = d.title || d.name;
+      o.title = d.summary || '';
+      sel.append(o);
+    }
+  } catch { /* the list is a convenience */ }
+  return demos;
+}
+$('#demo-select').addEventListener('change', (ev) => {
+  if (ev.target.value) loadDemo(ev.target.value);
+  ev.target.value = '';
+});
+
+// --- toolbar ---
+
+$('#btn-undo').addEventListener('click', () => store.undo());
+$('#btn-redo').addEventListener('click', () => store.redo());
+
+$('#btn-pin').addEventListener('click', () => {
+  pinned = pinned ? null : structuredClone(store.scenario);
+  session.sendPin(pinned);
+  $('#btn-pin').textContent = pinned ? 'Unpin reference' : 'Pin reference';
+  $('#btn-pin').setAttribute('aria-pressed', String(!!pinned));
+  $('#pin-badge').hidden = !pinned;
+  session.sendScenario(store.scenario); // a fresh frame with (or without) the reference
+});
+
+$('#btn-share').addEventListener('click', async () => {
+  if (!lastFrame || !lastFrame.link) return;
+  const url = new URL(lastFrame.link, location.href).href;
+  try {
+    await navigator.clipboard.writeText(url);
+    notice('Share link copied. Anyone running Pulsewright can open it to see this exact scene.');
+  } catch {
+    notice(`Copy this link: ${url}`);
+  }
+});
+
+$('#btn-import').addEventListener('click', () => $('#file-import').click());
+$('#file-import').addEventListener('change', async (ev) => {
+  const file = ev.target.files[0];
+  ev.target.value = '';
+  if (!file) return;
+  try {
+    const s = JSON.parse(await file.text());
+    if (!s || typeof s !== 'object' || Array.isArray(s)) throw new Error('not a JSON object');
+    pushNextLink = true;
+    store.load(s);
+  } catch (e) {
+    notice(`Could not import ${file.name}: ${e.message}. The current scene is kept.`, 'error');
+  }
+});
+
+const fileStem = () => ((store.scenario && store.scenario.name) || 'scenario').replace(/[^\w.-]+/g, '-').replace(/^-|-$/g, '').slice(0, 60) || 'scenario';
+$('#btn-export').addEventListener('click', () => {
+  download(`${fileStem()}.json`, JSON.stringify(store.scenario, null, 2) + '\n', 'application/json');
+});
+$('#btn-csv').addEventListener('click', () => download(`${fileStem()}-profile.csv`, plots.profileCSV(), 'text/csv'));
+for (const b of $$('[data-png]')) {
+  b.addEventListener('click', () => download(`${fileStem()}-${b.dataset.png}.png`, plots.png(b.dataset.png)));
+}
+
+initLibrary({ store, notice, onOpen: () => { pushNextLink = true; } });
+initKeys({ store, editor, lastFrame: () => lastFrame });
+
+// --- start ---
+
+// Long tasks (> 50 ms) while the page runs, for the browser tests: live
+// updates must not stutter the page.
+window.__pwLongTasks = [];
+try {
+  new PerformanceObserver((list) => {
+    for (const e of list.getEntries()) window.__pwLongTasks.push(e.duration);
+  }).observe({ type: 'longtask' });
+} catch { /* not supported */ }
+
+session.connect();
+const demosReady = fillDemos();
+const startLink = linkPart(location.hash);
+if (startLink !== null) {
+  openLink(startLink);
+} else {
+  demosReady.then((demos) => loadDemo((demos.find((d) => d.start) || {}).name || DefaultDemo));
+}

@@ -1,0 +1,38 @@
+// Websocket protocol of /ws, mirrored from server/protocol.go (see
+// DEVELOPERS.md, "Websocket protocol"). JSON text messages, each with a
+// `type`. Change both files together.
+
+// Client → server message types.
+export const MsgScenario = 'scenario'; // {id, scenario}: a new edit, latest wins
+export const MsgView = 'view'; // {id, range_m: [a, b] | null, width_px}
+export const MsgPin = 'pin'; // {id, scenario | null}: compare against a pinned scenario
+
+// Server → client message types.
+export const MsgFrame = 'frame'; // {id, report, link, charts, reference?, compute_ms}
+export const MsgError = 'error'; // {id, error, fields: [{path, message}]}
+
+// Chart names that may appear in a frame's `charts` map.
+export const Charts = ['profile', 'echo', 'response', 'ambiguity', 'rdmap'];
+
+// Series ids of the profile chart.
+export const SeriesProfile = 'profile';
+export const SeriesClean = 'clean';
+export const SeriesThreshold = 'threshold';
+export const SeriesNoise = 'noise';
+export const SeriesReference = 'reference';
+export const SeriesMarkers = 'markers';
+
+// Target statuses of the report format.
+export const Statuses = ['detected', 'masked', 'below_noise', 'eclipsed', 'out_of_window'];
+
+export function scenarioMsg(id, scenario) {
+  return JSON.stringify({ type: MsgScenario, id, scenario });
+}
+
+export function viewMsg(id, rangeM, widthPx) {
+  return JSON.stringify({ type: MsgView, id, range_m: rangeM, width_px: Math.round(widthPx) });
+}
+
+export function pinMsg(id, scenario) {
+  return JSON.stringify({ type: MsgPin, id, scenario });
+}

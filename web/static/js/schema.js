@@ -1,0 +1,184 @@
+// The scenario format (shared/spec/scenario-format.md, version 1) as the
+// editor needs it: kinds, the fields of each kind, display units and
+// defaults. Values are stored in SI as the format has them; `scale` is the
+// size of one display unit in SI (1e-6 shows seconds as µs).
+
+export const C = 299792458;
+
+// A field: path relative to its object, label, unit, scale, type
+// ('num' | 'int' | 'text' | 'select'), options, default shown as a hint.
+const f = (key, label, unit = '', scale = 1, type = 'num', extra = {}) => ({ key, label, unit, scale, type, ...extra });
+
+export const radarFields = [
+  f('carrier_hz', 'Carrier', 'GHz', 1e9, 'num', { def: 9.5e9 }),
+  f('peak_power_w', 'Peak power', 'W', 1, 'num', { def: 1000 }),
+  f('antenna_gain_dbi', 'Antenna gain', 'dBi', 1, 'num', { def: 30 }),
+  f('noise_figure_db', 'Noise figure', 'dB', 1, 'num', { def: 3 }),
+  f('system_loss_db', 'System loss', 'dB', 1, 'num', { def: 3 }),
+  f('sample_rate_hz', 'Sample rate', 'MHz', 1e6, 'num', { hint: '2 × B' }),
+  f('pri_s', 'PRI', 'µs', 1e-6, 'num', { def: 1e-3 }),
+  f('pulses', 'Pulses', '', 1, 'int', { def: 1 }),
+  f('window_start_m', 'Window start', 'm', 1, 'num', { def: 0 }),
+  f('window_stop_m', 'Window stop', 'm', 1, 'num', { hint: 'c·PRI/2' }),
+  f('beamwidth_az_deg', 'Beamwidth az', '°', 1, 'num', { def: 2 }),
+  f('beamwidth_el_deg', 'Beamwidth el', '°', 1, 'num', { def: 2 }),
+];
+
+const chip = f('chip_s', 'Chip length', 'µs', 1e-6);
+const codeLen = f('length', 'Length', 'chips', 1, 'int');
+export const waveformKinds = {
+  rect: { label: 'Rectangular (unmodulated)', fields: [f('pulse_width_s', 'Pulse width', 'µs', 1e-6)] },
+  lfm: {
+    label: 'Linear FM',
+    fields: [f('pulse_width_s', 'Pulse width', 'µs', 1e-6), f('bandwidth_hz', 'Bandwidth', 'MHz', 1e6),
+      f('sweep', 'Sweep', '', 1, 'select', { options: ['up', 'down'], def: 'up' })],
+  },
+  nlfm: {
+    label: 'Non-linear FM',
+    fields: [f('pulse_width_s', 'Pulse width', 'µs', 1e-6), f('bandwidth_hz', 'Bandwidth', 'MHz', 1e6),
+      f('design_sidelobe_db', 'Design sidelobe', 'dB', 1, 'num', { def: -40 })],
+  },
+  barker: { label: 'Barker code', fields: [f('length', 'Length', 'chips', 1, 'select', { options: [2, 3, 4, 5, 7, 11, 13], int: true }), chip] },
+  mps: { label: 'Minimum peak sidelobe code', fields: [codeLen, chip] },
+  mls: { label: 'Maximal-length sequence', fields: [f('degree', 'Degree n (2ⁿ−1 chips)', '', 1, 'int'), chip] },
+  frank: { label: 'Frank code', fields: [codeLen, chip] },
+  p1: { label: 'P1 code', fields: [codeLen, chip] },
+  p2: { label: 'P2 code', fields: [codeLen, chip] },
+  p3: { label: 'P3 code', fields: [codeLen, chip] },
+  p4: { label: 'P4 code', fields: [codeLen, chip] },
+  zadoff_chu: { label: 'Zadoff–Chu', fields: [codeLen, f('root', 'Root', '', 1, 'int'), chip] },
+  costas: { label: 'Costas frequency hops', fields: [codeLen, chip] },
+  phase_code: {
+    label: 'Own phase code',
+    fields: [f('phases_deg', 'Phases', '° per chip', 1, 'phases'), f('binary', 'Binary', '+/−', 1, 'text'), chip],
+  },
+};
+
+// A fresh waveform of a kind, keeping the pulse's time scale where it can.
+export function newWaveform(kind, old) {
+  const tau = old ? pulseWidth(old) : 20e-6;
+  const B = old ? bandwidth(old) : 5e6;
+  const chipFor = (n) => roundSig(Math.max(tau / n, 1e-9), 3);
+  switch (kind) {
+    case 'rect': return { kind, pulse_width_s: roundSig(tau, 3) };
+    case 'lfm': return { kind, pulse_width_s: roundSig(tau, 3), bandwidth_hz: roundSig(B, 3) };
+    case 'nlfm': return { kind, pulse_width_s: roundSig(tau, 3), bandwidth_hz: roundSig(B, 3), design_sidelobe_db: -40 };
+    case 'barker': return { kind, length: 13, chip_s: chipFor(13) };
+    case 'mps': return { kind, length: 24, chip_s: chipFor(24) };
+    case 'mls': return { kind, degree: 7, chip_s: chipFor(127) };
+    case 'frank': case 'p1': case 'p2': return { kind, length: 64, chip_s: chipFor(64) };
+    case 'p3': case 'p4': return { kind, length: 64, chip_s: chipFor(64) };
+    case 'zadoff_chu': return { kind, length: 63, root: 1, chip_s: chipFor(63) };
+    case 'costas': return { kind, length: 10, chip_s: chipFor(10) };
+    case 'phase_code': return { kind, binary: '+++--+-', chip_s: chipFor(7) };
+  }
+  return { kind };
+}
+
+export function pulseWidth(w) {
+  if (w.pulse_width_s) return w.pulse_width_s;
+  return chips(w) * (w.chip_s || 0);
+}
+
+export function chips(w) {
+  switch (w.kind) {
+    case 'mls': return 2 ** (w.degree || 0) - 1;
+    case 'phase_code': return w.binary ? w.binary.length : (w.phases_deg || []).length;
+  }
+  return w.length || 0;
+}
+
+export function bandwidth(w) {
+  switch (w.kind) {
+    case 'rect': return 1 / w.pulse_width_s;
+    case 'lfm': case 'nlfm': return w.bandwidth_hz;
+    case 'costas': return (w.length || 1) / w.chip_s;
+  }
+  return w.chip_s ? 1 / w.chip_s : 0;
+}
+
+export const windowKinds = {
+  none: { label: 'None (uniform)', fields: [] },
+  hann: { label: 'Hann', fields: [] },
+  hamming: { label: 'Hamming', fields: [] },
+  blackman: { label: 'Blackman', fields: [] },
+  blackman_harris: { label: 'Blackman–Harris (4-term)', fields: [] },
+  taylor: { label: 'Taylor', fields: [f('sidelobe_db', 'Sidelobe level', 'dB', 1, 'num', { def: -35 }), f('nbar', 'n̄', '', 1, 'int', { def: 5 })] },
+  chebyshev: { label: 'Dolph–Chebyshev', fields: [f('sidelobe_db', 'Sidelobe level', 'dB', 1, 'num', { def: -50 })] },
+  kaiser: { label: 'Kaiser', fields: [f('beta', 'β', '', 1, 'num', { def: 6 })] },
+  gaussian: { label: 'Gaussian', fields: [f('sigma', 'σ', '× half length', 1, 'num', { def: 0.4 })] },
+};
+
+export const detectorKinds = {
+  ca_cfar: { label: 'Cell-averaging CFAR', fields: ['pfa', 'guard_cells', 'training_cells'] },
+  os_cfar: { label: 'Ordered-statistic CFAR', fields: ['pfa', 'guard_cells', 'training_cells', 'rank'] },
+  fixed: { label: 'Fixed threshold', fields: ['pfa'] },
+};
+export const detectorFields = {
+  pfa: f('pfa', 'P_fa', 'per cell', 1, 'num', { def: 1e-6 }),
+  guard_cells: f('guard_cells', 'Guard cells', 'each side', 1, 'int', { def: 2 }),
+  training_cells: f('training_cells', 'Training cells', 'both sides', 1, 'int', { def: 16 }),
+  rank: f('rank', 'Rank', '1-based', 1, 'int', { hint: '¾ of training' }),
+};
+
+export const targetKinds = ['point', 'extended', 'volume'];
+export const fluctuations = ['none', 'swerling1', 'swerling2', 'swerling3', 'swerling4'];
+
+// The level field of a target kind and its unit.
+export function levelKey(kind) {
+  return kind === 'extended' ? 'rcs_dbsm_per_m' : kind === 'volume' ? 'reflectivity_dbz' : 'rcs_dbsm';
+}
+export const levelUnit = { point: 'dBsm', extended: 'dBsm/m', volume: 'dBZ' };
+
+// The near range of a target (its range for a point target).
+export function targetRange(t) {
+  return t.kind === 'point' ? t.range_m : t.range_start_m;
+}
+
+// Convert a target to another kind, keeping id, range and range rate.
+export function convertTarget(t, kind) {
+  const r = targetRange(t) ?? 1000;
+  const out = { id: t.id, kind };
+  if (kind === 'point') {
+    Object.assign(out, { range_m: r, rcs_dbsm: 10 });
+  } else {
+    const stop = t.range_stop_m ?? r + 500;
+    Object.assign(out, { range_start_m: r, range_stop_m: stop });
+    out[levelKey(kind)] = kind === 'extended' ? -20 : 30;
+  }
+  if (t.range_rate_mps) out.range_rate_mps = t.range_rate_mps;
+  return out;
+}
+
+// A unique target id built on base.
+export function uniqueId(targets, base) {
+  const ids = new Set(targets.map((t) => t.id));
+  if (!ids.has(base)) return base;
+  const stem = base.replace(/-\d+$/, '');
+  for (let i = 2; ; i++) {
+    if (!ids.has(`${stem}-${i}`)) return `${stem}-${i}`;
+  }
+}
+
+export function roundSig(x, n) {
+  if (!isFinite(x) || x === 0) return x;
+  return Number(x.toPrecision(n));
+}
+
+// Display text of an SI value in a field's unit.
+export function toDisplay(v, scale) {
+  if (v === undefined || v === null || v === '') return '';
+  if (typeof v !== 'number') return String(v);
+  return String(Number((v / scale).toPrecision(12)));
+}
+
+// Parse display text to an SI value: undefined for empty text (the field
+// then takes its default), NaN for text that is not a number.
+export function fromDisplay(text, scale, isInt) {
+  const s = text.trim().replace(',', '.').replace(/^\u2212/, '-');
+  if (s === '') return undefined;
+  const n = Number(s);
+  if (!Number.isFinite(n)) return NaN;
+  if (isInt) return n;
+  return Number((n * scale).toPrecision(15));
+}

@@ -1,0 +1,112 @@
+// The websocket session with the server: sends edits (at most one per
+// animation frame, latest wins), the view and the pin, and hands frames
+// and errors to the page. Reconnects with back-off and resends its state.
+
+import { MsgError, MsgFrame, pinMsg, scenarioMsg, viewMsg } from './protocol.js';
+
+export class Session {
+  constructor({ onFrame, onError, onStatus }) {
+    this.onFrame = onFrame;
+    this.onError = onError;
+    this.onStatus = onStatus;
+    this.nextId = 1;
+    this.ws = null;
+    this.scenario = null; // the newest scenario to send
+    this.pinned = null;
+    this.view = { range: null, width: 800 };
+    this.dirty = { scenario: false, view: false, pin: false };
+    this.scheduled = false;
+    this.retry = 250;
+    this.sent = new Map(); // edit id → performance.now() at send
+    this.tag = null;
+    this.tags = new Map(); // edit id → tag given to sendScenario
+  }
+
+  connect() {
+    const url = `${location.protocol === 'https:' ? 'wss' : 'ws'}://${location.host}/ws`;
+    const ws = new WebSocket(url);
+    this.ws = ws;
+    this.onStatus('connecting');
+    ws.onopen = () => {
+      this.retry = 250;
+      this.onStatus('live');
+      this.dirty = { scenario: !!this.scenario, view: true, pin: !!this.pinned };
+      this.flush();
+    };
+    ws.onmessage = (ev) => {
+      let msg;
+      try {
+        msg = JSON.parse(ev.data);
+      } catch {
+        return;
+      }
+      msg.arrivedAt = performance.now();
+      if (msg.type === MsgFrame) this.onFrame(msg);
+      else if (msg.type === MsgError) this.onError(msg);
+    };
+    ws.onclose = () => {
+      if (this.ws !== ws) return;
+      this.onStatus('offline');
+      setTimeout(() => this.connect(), this.retry);
+      this.retry = Math.min(this.retry * 2, 5000);
+    };
+  }
+
+  // Queue the scenario; it goes out on the next animation frame. A tag
+  // (e.g. 'link') is remembered with the id it goes out under; see tagOf.
+  sendScenario(scenario, tag = null) {
+    this.scenario = scenario;
+    this.tag = tag;
+    this.dirty.scenario = true;
+    this.schedule();
+  }
+
+  tagOf(id) {
+    return this.tags.get(id) || null;
+  }
+
+  sendView(range, width) {
+    this.view = { range, width };
+    this.dirty.view = true;
+    this.schedule();
+  }
+
+  sendPin(scenario) {
+    this.pinned = scenario;
+    this.dirty.pin = true;
+    this.schedule();
+  }
+
+  schedule() {
+    if (this.scheduled) return;
+    this.scheduled = true;
+    requestAnimationFrame(() => {
+      this.scheduled = false;
+      this.flush();
+    });
+  }
+
+  flush() {
+    const ws = this.ws;
+    if (!ws || ws.readyState !== WebSocket.OPEN) return;
+    // The view and the pin go first, so that the edit's frame uses them.
+    if (this.dirty.view) {
+      this.dirty.view = false;
+      ws.send(viewMsg(this.nextId++, this.view.range, this.view.width));
+    }
+    if (this.dirty.pin) {
+      this.dirty.pin = false;
+      ws.send(pinMsg(this.nextId++, this.pinned));
+    }
+    if (this.dirty.scenario && this.scenario) {
+      this.dirty.scenario = false;
+      const id = this.nextId++;
+      performance.mark(`pw-send-${id}`);
+      this.sent.set(id, performance.now());
+      if (this.sent.size > 500) this.sent.delete(this.sent.keys().next().value);
+      if (this.tag) this.tags.set(id, this.tag);
+      this.tag = null;
+      ws.send(scenarioMsg(id, this.scenario));
+    }
+  }
+}
