@@ -3,6 +3,7 @@ package dsp
 import (
 	"math"
 	"sync"
+	"sync/atomic"
 )
 
 // Correlator is a fast-correlation plan: it compresses windows of n
@@ -21,11 +22,12 @@ import (
 // not safe for concurrent use.
 type Correlator struct {
 	n, m    int
-	step    int          // outputs per block, L−m+1
-	fft     *fftPlan     // length L, shared read-only by the workers
-	spec    []complex128 // conj(FFT(h zero-padded to L)) / L
-	scratch [][]complex128
+	step    int            // outputs per block, L−m+1
+	fft     *fftPlan       // length L, shared read-only by the workers
+	spec    []complex128   // conj(FFT(h zero-padded to L)) / L
+	scratch [][]complex128 // one 2L buffer per worker
 	wg      sync.WaitGroup
+	next    atomic.Int64 // next block to take, with several workers
 }
 
 // NewCorrelator returns a plan for windows of n samples (n ≥ 1) and the
@@ -152,36 +154,47 @@ func (c *Correlator) Apply(dst, x []complex128) []complex128 {
 		panic("dsp: correlator destination length mismatch")
 	}
 	if len(c.scratch) == 1 {
-		c.blocks(0, 1, dst, x)
+		c.blocks(0, dst, x)
 		return dst
 	}
 	c.parallel(dst, x)
 	return dst
 }
 
-// parallel runs the blocks on one goroutine per scratch buffer.
+// parallel runs the blocks on one goroutine per scratch buffer; each takes
+// the next block not yet taken, so a goroutine that waits for a core
+// leaves its share to the others.
 func (c *Correlator) parallel(dst, x []complex128) {
 	w := len(c.scratch)
+	c.next.Store(0)
 	c.wg.Add(w - 1)
 	for i := 1; i < w; i++ {
 		go func() {
 			defer c.wg.Done()
-			c.blocks(i, w, dst, x)
+			c.blocks(i, dst, x)
 		}()
 	}
-	c.blocks(0, w, dst, x)
+	c.blocks(0, dst, x)
 	c.wg.Wait()
 }
 
-// blocks computes the overlap-save blocks first, first+stride, … with the
-// scratch of worker first. The inverse transform is conj(FFT(conj(·))):
-// the conjugations are folded into the spectral product and the copy out.
-func (c *Correlator) blocks(first, stride int, dst, x []complex128) {
+// blocks computes overlap-save blocks with the scratch of worker i: all of
+// them in order for a one-worker plan, else those it takes from c.next.
+// The inverse transform is conj(FFT(conj(·))): the conjugations are folded
+// into the spectral product and the copy out.
+func (c *Correlator) blocks(i int, dst, x []complex128) {
 	l := c.fft.n
-	s := c.scratch[first]
+	s := c.scratch[i]
 	buf, work := s[:l], s[l:]
 	spec := c.spec[:l]
-	for b := first * c.step; b < c.n; b += stride * c.step {
+	serial := len(c.scratch) == 1
+	for b := 0; ; b += c.step {
+		if !serial {
+			b = int(c.next.Add(1)-1) * c.step
+		}
+		if b >= c.n {
+			return
+		}
 		k := copy(buf, x[b:])
 		clear(buf[k:])
 		c.fft.transform(buf, work)

@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"math/cmplx"
+	"runtime"
 
 	"github.com/pulsewright/pulsewright/dsp"
 )
@@ -52,10 +53,12 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	// are computed on a second goroutine while the waveform and target
 	// reports, with their verified suggestions, and the pulse's response
 	// are built on this one.
-	var series chan Series
+	var window chan Series
 	if sc.train == nil {
-		series = make(chan Series, 1)
-		go func() { series <- sc.series() }()
+		window = make(chan Series, 1)
+		// The compression takes its blocks on two goroutines, so that it
+		// also uses this one's core once the reports are done.
+		go func() { window <- sc.window(min(2, runtime.GOMAXPROCS(0))) }()
 	}
 	res := &Result{}
 	res.Report.Version = ReportVersion
@@ -64,10 +67,12 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	if ctx.Err() == nil {
 		res.Report.Targets = sc.targetReports(ctx, m, true)
 	}
-	if series != nil {
+	if window != nil {
+		var lv Series
+		sc.levels(&lv)
 		resp := m.response()
-		res.Series = <-series
-		res.Series.Response = resp
+		res.Series = <-window
+		res.Series.CleanDB, res.Series.ThresholdDB, res.Series.Response = lv.CleanDB, lv.ThresholdDB, resp
 	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
@@ -280,8 +285,18 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.Figures, dopLoss float64)
 }
 
 // series synthesises the noisy receive window, compresses it and returns
-// the plot series but the pulse's response (model.response).
+// the plot series.
 func (sc *scene) series() Series {
+	s := sc.window(1)
+	sc.levels(&s)
+	s.Response = sc.m.response()
+	return s
+}
+
+// window synthesises the noisy receive window and compresses it on up to
+// workers goroutines: the series but CleanDB, ThresholdDB (levels) and
+// Response.
+func (sc *scene) window(workers int) Series {
 	m := sc.m
 	x := make([]complex128, m.n+m.lead)
 	echo := x[m.lead:]
@@ -301,19 +316,29 @@ func (sc *scene) series() Series {
 	}
 	sc.blank(echo, 0)
 	// x holds lead zeros, then the echo: an echo at window sample d peaks at y[d].
-	y := dsp.NewCorrelator(m.ref, len(x)).Apply(nil, x)
+	y := dsp.NewCorrelatorWorkers(m.ref, len(x), workers).Apply(nil, x)
 	s := Series{
-		RangeM0:     m.rangeOf(0),
-		RangeStepM:  C / (2 * m.fs),
-		Echo:        echo, // x is not used after the compression
-		ProfileDB:   make([]float64, m.n),
-		CleanDB:     make([]float64, m.n),
-		ThresholdDB: make([]float64, m.n),
+		RangeM0:    m.rangeOf(0),
+		RangeStepM: C / (2 * m.fs),
+		Echo:       echo, // x is not used after the compression
+		ProfileDB:  make([]float64, m.n),
 	}
 	for k := range m.n {
 		v := y[k]
 		s.ProfileDB[k] = toDB((real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain)
 	}
+	for k := 0; k < m.blankEnd(); k++ {
+		s.ProfileDB[k] = dbFloor
+	}
+	return s
+}
+
+// levels fills the noise-free profile and the detection threshold of s
+// (CleanDB, ThresholdDB): they depend on the scene alone, not on the
+// noisy window, so they can be computed beside window.
+func (sc *scene) levels(s *Series) {
+	m := sc.m
+	s.CleanDB, s.ThresholdDB = make([]float64, m.n), make([]float64, m.n)
 	if cf := m.detector(); cf != nil {
 		p := s.CleanDB // holds 1 + total until the dB values below
 		for k := range p {
@@ -337,9 +362,8 @@ func (sc *scene) series() Series {
 		s.CleanDB[k] = toDB(v)
 	}
 	for k := 0; k < m.blankEnd(); k++ {
-		s.ProfileDB[k], s.CleanDB[k] = dbFloor, dbFloor
+		s.CleanDB[k] = dbFloor
 	}
-	return s
 }
 
 // response returns the zero-Doppler response of the waveform alone.
