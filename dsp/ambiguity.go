@@ -37,6 +37,7 @@ type DopplerPlan struct {
 	spec, work []complex128 // spectrum of the zero-padded correlation; FFT scratch
 	mag        []float64
 	p0, v0     float64 // zero-Doppler peak position (samples) and magnitude
+	haveZero   bool    // p0 and v0 are computed (on the first non-zero shift)
 }
 
 // NewDopplerPlan prepares DopplerResponse for pulse and ref at rate fs.
@@ -57,7 +58,6 @@ func NewDopplerPlan(pulse, ref []complex128, fs float64) *DopplerPlan {
 		work: make([]complex128, l),
 		mag:  make([]float64, 2*dopplerUp+1),
 	}
-	p.p0, p.v0 = p.peak(pulse, 0)
 	return p
 }
 
@@ -66,6 +66,10 @@ func NewDopplerPlan(pulse, ref []complex128, fs float64) *DopplerPlan {
 func (p *DopplerPlan) Response(fd float64) (lossDB, shift float64) {
 	if fd == 0 {
 		return 0, 0
+	}
+	if !p.haveZero {
+		p.p0, p.v0 = p.peak(p.pulse, 0)
+		p.haveZero = true
 	}
 	p1, v1 := p.peak(p.pulse, fd)
 	return -20 * math.Log10(v1/p.v0), (p1 - p.p0) / dopplerUp / p.fs

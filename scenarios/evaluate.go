@@ -119,8 +119,8 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 
 func (m *model) figures() dsp.Figures {
 	if m.fig == nil {
-		f := dsp.ResponseFigures(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
-		m.fig = &f
+		t, db, f := dsp.ResponseWithFigures(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
+		m.fig, m.plot = &f, newResponsePlot(t, db)
 	}
 	return *m.fig
 }
@@ -366,10 +366,18 @@ func (sc *scene) levels(s *Series) {
 	}
 }
 
-// response returns the zero-Doppler response of the waveform alone.
+// response returns the zero-Doppler response of the waveform alone: the
+// plot computed with the figures when this model computed them, a new
+// one otherwise.
 func (m *model) response() Response {
-	t, db := dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
-	r := Response{RangeM: make([]float64, len(t)), DB: make([]float64, len(db))}
+	if m.plot != nil {
+		return *m.plot
+	}
+	return *newResponsePlot(dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth()))
+}
+
+func newResponsePlot(t, db []float64) *Response {
+	r := &Response{RangeM: make([]float64, len(t)), DB: make([]float64, len(db))}
 	for i := range t {
 		r.RangeM[i] = t[i] * C / 2
 		r.DB[i] = math.Max(db[i], -120)

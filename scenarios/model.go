@@ -28,6 +28,7 @@ type model struct {
 	// over when a later model reuses it.
 	refWarnings []string
 	fig         *dsp.Figures          // figures of the reference, computed once
+	plot        *Response             // the response plot computed with fig, if any
 	dop         map[float64]dopFigure // Doppler loss and shift by Doppler shift
 	dopPlan     *dsp.DopplerPlan
 }
