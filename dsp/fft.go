@@ -50,15 +50,15 @@ func newFFTPlan(n int) *fftPlan {
 		panic("dsp: fft length must have no prime factor above 5")
 	}
 	f := &fftPlan{n: n}
-	root := newRoots(n)
+	root := roots(n)
 	cur, s := n, 1
 	for _, p := range radices {
 		m := cur / p
 		st := fftStage{radix: p, s: s, m: m, tw: make([]complex128, m*(p-1))}
 		for q := range m {
 			for j := 1; j < p; j++ {
-				// exp(−j2π·q·j/cur) = exp(−j2π·q·j·s/n), reduced exactly.
-				st.tw[q*(p-1)+j-1] = root.at(q * j * s % n)
+				// exp(−j2π·q·j/cur) = exp(−j2π·q·j·s/n), with q·j·s < s·m·p = n.
+				st.tw[q*(p-1)+j-1] = root[q*j*s]
 			}
 		}
 		f.stages = append(f.stages, st)
@@ -67,34 +67,28 @@ func newFFTPlan(n int) *fftPlan {
 	return f
 }
 
-// roots gives exp(−j2π·k/n) for 0 ≤ k < n as the product of two exactly
-// rounded factors, hi[k/b]·lo[k%b] with b ≈ √n: 2√n calls to Sincos
-// instead of n, and an error of a few units in the last place.
-type roots struct {
-	b      int
-	hi, lo []complex128
-}
-
-func newRoots(n int) roots {
+// roots returns exp(−j2π·k/n) for 0 ≤ k < n, each the product of two
+// exactly rounded factors exp(−j2π·a·b/n)·exp(−j2π·c/n), k = a·b + c,
+// b ≈ √n: 2√n calls to Sincos instead of n, and an error of a few units
+// in the last place.
+func roots(n int) []complex128 {
 	b := int(math.Sqrt(float64(n))) + 1
-	r := roots{b: b, hi: make([]complex128, n/b+1), lo: make([]complex128, b)}
 	w := -2 * math.Pi / float64(n)
-	for i := range r.hi {
-		sin, cos := math.Sincos(w * float64(i*b))
-		r.hi[i] = complex(cos, sin)
+	lo := make([]complex128, b)
+	for c := range lo {
+		sin, cos := math.Sincos(w * float64(c))
+		lo[c] = complex(cos, sin)
 	}
-	for i := range r.lo {
-		sin, cos := math.Sincos(w * float64(i))
-		r.lo[i] = complex(cos, sin)
+	r := make([]complex128, n)
+	for a := 0; a*b < n; a++ {
+		sin, cos := math.Sincos(w * float64(a*b))
+		hi := complex(cos, sin)
+		blk := r[a*b : min(a*b+b, n)]
+		for c := range blk {
+			blk[c] = hi * lo[c]
+		}
 	}
 	return r
-}
-
-func (r roots) at(k int) complex128 {
-	if k < r.b {
-		return r.lo[k]
-	}
-	return r.hi[k/r.b] * r.lo[k%r.b]
 }
 
 // transform replaces x (len n) by its DFT, using work (len n) as scratch.
