@@ -325,8 +325,9 @@ func (sc *scene) window(workers int) Series {
 	}
 	for k := range m.n {
 		v := y[k]
-		s.ProfileDB[k] = toDB((real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain)
+		s.ProfileDB[k] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
 	}
+	dsp.PowersDB(s.ProfileDB, s.ProfileDB, dbFloor)
 	for k := 0; k < m.blankEnd(); k++ {
 		s.ProfileDB[k] = dbFloor
 	}
@@ -344,23 +345,15 @@ func (sc *scene) levels(s *Series) {
 		for k := range p {
 			p[k] = 1 + sc.total[k]
 		}
-		th := cf.Thresholds(s.ThresholdDB, p) // converted to dB in place below
-		last, lastDB := math.NaN(), 0.0
-		for k, t := range th {
-			if t != last { // constant away from the targets: skip the logarithm
-				last, lastDB = t, toDB(t)
-			}
-			th[k] = lastDB
-		}
+		th := cf.Thresholds(s.ThresholdDB, p)
+		dsp.PowersDB(th, th, dbFloor)
 	} else {
 		t := toDB(dsp.FixedMultiplier(m.s.Receiver.Detector.PFA))
 		for k := range s.ThresholdDB {
 			s.ThresholdDB[k] = t
 		}
 	}
-	for k, v := range sc.total {
-		s.CleanDB[k] = toDB(v)
-	}
+	dsp.PowersDB(s.CleanDB, sc.total, dbFloor)
 	for k := 0; k < m.blankEnd(); k++ {
 		s.CleanDB[k] = dbFloor
 	}
