@@ -100,7 +100,10 @@ def ca_cfar(p):
     lo1, hi1, lo2, hi2 = training(k, n)
     cnt = hi1 - lo1 + hi2 - lo2
     s = c[hi1] - c[lo1] + c[hi2] - c[lo2]
-    return ca_alpha(cnt) * np.maximum(s, 0) / cnt
+    alpha = np.full(n, ca_alpha(TRAIN))  # fewer cells only near the ends
+    edge = cnt != TRAIN
+    alpha[edge] = ca_alpha(cnt[edge])
+    return alpha * np.maximum(s, 0) / cnt
 
 
 class Setup:
@@ -242,15 +245,17 @@ def evaluate(s):
         if len(r) and r.max() > 0:
             j = int(np.argmax(r))
             pk, kp = r[j], lo + j
-            own = np.zeros(n)
-            own[lo:lo + len(r)] = r
             l1, h1, l2, h2 = (int(v) for v in training(kp, n))
             cells = np.concatenate((np.arange(l1, h1), np.arange(l2, h2)))
-            others = np.maximum(total[cells] - own[cells], 0)
+            i = cells - lo
+            ok = (i >= 0) & (i < len(r))
+            own = np.zeros(len(cells))
+            own[ok] = r[i[ok]]
+            others = np.maximum(total[cells] - own, 0)
             cnt = len(cells)
             noise_level = ca_alpha(cnt)
             scene_level = ca_alpha(cnt) * np.mean(1 + others)
-            thr = max(scene_level, max(total[kp] - own[kp], 0))
+            thr = max(scene_level, max(total[kp] - pk, 0))
             margin = float(10 * np.log10(pk / thr))
             if t["kind"] != "point":
                 rng_m = float(s.range_of(kp))
