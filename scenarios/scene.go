@@ -4,6 +4,7 @@ import (
 	"context"
 	"hash/fnv"
 	"math"
+	"math/bits"
 	"math/cmplx"
 	"math/rand/v2"
 
@@ -197,8 +198,9 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 	dsp.AddEcho(lp.x, m.wave, m.fs, g.delay-float64(b)/m.fs, complex(g.amp, 0)*g.phase, g.fd)
 	sc.blank(lp.x, b)
 	g.resp = response{lo: lo, pow: make([]float64, hi-lo)}
-	if sc.partial && (hi-lo)*len(m.ref) <= 8*lp.size() {
-		// A few cells: direct sums are cheaper than the FFT pair.
+	if n := lp.size(); sc.partial && (hi-lo)*len(m.ref) <= 2*n*bits.Len(uint(n)) {
+		// A few cells: direct sums cost less than the FFT pair,
+		// about 2·n·log2(n) multiply-adds.
 		for k := lo; k < hi; k++ {
 			v := correlateAt(lp.x, m.ref, k-b-m.lead)
 			g.resp.pow[k-lo] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
