@@ -73,9 +73,49 @@ func mpsCode(n int) (hex string, psl int, ok bool) {
 		return "1F9CAD97", 3, true // proved
 	case 30:
 		return "3D4EE2CB", 3, true // proved
+	case 31:
+		return "7E70B657", 3, true // proved
+	case 32:
+		return "FE49CF57", 3, true // proved
+	case 33:
+		return "1FBA65617", 3, true // proved
+	case 34:
+		return "3F98E9A97", 3, true // proved
+	case 35:
+		return "7F8695667", 3, true // proved
+	case 36:
+		return "FE27269D7", 3, true // proved
+	case 37:
+		return "1F53D60B37", 3, true
+	case 38:
+		return "3BBB44B787", 3, true
+	case 39:
+		return "79CB722517", 3, true
+	case 40:
+		return "F9F116E537", 3, true
+	case 41:
+		return "1C715ADFC9B", 3, true
+	case 42:
+		return "3BBB8478B4B", 3, true
+	case 43:
+		return "780C31B355B", 3, true
+	case 44:
+		return "FEE34725C97", 3, true
+	case 45:
+		return "1D50F3392409", 3, true
+	case 46:
+		return "3C3F30849AA9", 3, true
+	case 47:
+		return "7965817AE677", 3, true
+	case 48:
+		return "F6DC7956E237", 3, true
+	case 49:
+		return "1FE47346D4FAF", 4, true
+	case 50:
+		return "3FCB68D99C2AF", 4, true
 	}
 	return "", 0, false
 }
 
 // mpsMaxLen is the longest stored MPS code length.
-const mpsMaxLen = 30
+const mpsMaxLen = 50

@@ -2,6 +2,7 @@ package scenarios
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"math/cmplx"
 	"runtime"
@@ -243,6 +244,11 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 			tr.MaskedBy = sc.targets[v.culprit].t.ID
 		}
 		tr.Reason = sc.reason(g, v, tr, cf)
+		if v.status == StatusBelowNoise || v.status == StatusMasked {
+			if d.lossDB >= 1 {
+				tr.Reason += fmt.Sprintf(" Its Doppler shift of %s costs %.1f dB of compressed peak.", hz(math.Abs(g.fd)), d.lossDB)
+			}
+		}
 		if sc.train != nil {
 			sc.train.report(j, v, single, bin, &tr)
 		}
@@ -252,7 +258,11 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 			}
 		}
 		if tr.Status == StatusOutOfWindow && g.t.Kind == TargetPoint {
-			m.warn("target %s at %s is outside the receive window %s–%s", g.t.ID, km(g.t.RangeM), km(m.s.Radar.WindowStartM), km(m.s.Radar.WindowStopM))
+			if g.folds > 0 {
+				m.warn("target %s at %s is beyond the unambiguous range %s and folds to an apparent %s", g.t.ID, km(g.t.RangeM), km(m.unambM), km(g.apparent))
+			} else {
+				m.warn("target %s at %s is outside the receive window %s–%s", g.t.ID, km(g.t.RangeM), km(m.s.Radar.WindowStartM), km(m.s.Radar.WindowStopM))
+			}
 		}
 		out[j] = tr
 	}

@@ -183,7 +183,16 @@ func candidates(s *Scenario, j int, v verdict) []candidate {
 			{fmt.Sprintf("A pulse a quarter as long (%s, blind range %s)", sec(w.PulseWidth()/4), km(C*w.PulseWidth()/8)), scale(0.25)},
 		}
 	case StatusBelowNoise:
-		return []candidate{{longer(2), scale(2)}, {longer(4), scale(4)}}
+		c := []candidate{{longer(2), scale(2)}, {longer(4), scale(4)}}
+		if w.IsPhaseCode() || w.Kind == KindCostas {
+			// A Doppler-tolerant pulse of the same length and band.
+			c = append([]candidate{{fmt.Sprintf("An LFM of the same length and bandwidth (%s, %s), which tolerates Doppler,", sec(w.PulseWidth()), hz(w.Bandwidth())), func(t *Scenario) bool {
+				t.Waveform = Waveform{Kind: KindLFM, PulseWidthS: w.PulseWidth(), BandwidthHz: w.Bandwidth(), Sweep: "up"}
+				t.Receiver.Filter = FilterMatched
+				return true
+			}}}, c...)
+		}
+		return c
 	}
 	c := []candidate{
 		{"A Taylor window (−35 dB, n̄ 5)", window(Window{Kind: WindowTaylor, SidelobeDB: -35, NBar: 5})},

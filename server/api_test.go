@@ -51,6 +51,8 @@ func TestRoutes(t *testing.T) {
 		{"demo traversal", "GET", "/api/v1/demos/..%2fdemos%2frocky-coast", "", nil, 404, `not found`},
 		{"no route", "GET", "/api/v1/nope", "", nil, 404, `no such endpoint`},
 		{"page", "GET", "/", "", nil, 200, `<title>page</title>`},
+		{"page file", "GET", "/index.html", "", nil, 301, ``},
+		{"no listing", "GET", "/js/", "", nil, 404, `no such endpoint`},
 	}
 	for _, tt := range tests {
 		t.Run(tt.name, func(t *testing.T) {

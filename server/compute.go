@@ -1,11 +1,14 @@
 package server
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
+	"strconv"
+	"sync"
 	"time"
 
 	"github.com/gorilla/websocket"
@@ -13,18 +16,32 @@ import (
 	"github.com/pulsewright/pulsewright/scenarios"
 )
 
-// evalCache keeps the last evaluations of a session, so that a view
-// change re-decimates without evaluating again.
+// evalCache is compute's memory: the last good scenario and pin, their
+// evaluations, and which edits it has taken, so that a view change
+// re-decimates without evaluating again and a rejected edit leaves the
+// last good scenario in place.
 type evalCache struct {
-	scn    *scenarios.Scenario
+	scnSeq, pinSeq uint64 // the edits taken last
+
+	scn    *scenarios.Scenario // the last good scenario
 	res    *scenarios.Result
-	link   string
-	pin    *scenarios.Scenario
-	pinRes *scenarios.Result
+	report []byte // encoded report
+	link   []byte // encoded link string
+
+	pin     *scenarios.Scenario // nil when unpinned
+	pinRes  *scenarios.Result
+	pinRept []byte
+
+	ambKey string    // the waveform and sample rate the surface is of
+	amb    *chartOut // nil when there is none
+
+	statics map[string]chartOut // the last static chart of each name
+	version int                 // counts static chart versions
 }
 
 // compute evaluates the newest state the reader posted and puts its frame
-// for the writer. A computation the reader cancels as stale is dropped.
+// for the writer. A computation the reader cancels as stale is dropped;
+// one that finishes is sent even if a newer state waits (see starveAfter).
 func (ss *session) compute(ctx context.Context) {
 	var cache evalCache
 	for {
@@ -34,65 +51,237 @@ func (ss *session) compute(ctx context.Context) {
 			return
 		case w = <-ss.work.ch:
 		}
-		if w.scn == nil {
-			continue // a view or pin before the first scenario: nothing to show yet
+		// Wait for a compute slot; a newer state that comes meanwhile
+		// replaces w. Blocked senders on a channel are served in order, so
+		// sessions take turns.
+		for waiting := true; waiting; {
+			select {
+			case <-ctx.Done():
+				return
+			case ss.srv.slots <- struct{}{}:
+				waiting = false
+			case w = <-ss.work.ch:
+			}
 		}
-		runCtx, cancel := context.WithCancel(ctx)
-		ss.setRun(w.gen, cancel)
-		f, err := ss.evaluate(runCtx, w, &cache)
-		stale := runCtx.Err() != nil
-		ss.setRun(0, nil)
-		cancel()
+		f, stale, err := ss.run(ctx, w, &cache)
+		for stale && ctx.Err() == nil {
+			// The reader posts before it cancels, so the newer state is
+			// waiting: run it in the slot already held.
+			ss.log.Debug("computation superseded", "id", w.id)
+			w = <-ss.work.ch
+			f, stale, err = ss.run(ctx, w, &cache)
+		}
+		<-ss.srv.slots
 		switch {
 		case ctx.Err() != nil:
 			return
-		case stale:
-			ss.log.Debug("computation superseded", "id", w.id)
 		case err != nil:
-			ss.errs.put(ss.evalError(w.id, err))
-		default:
+			ss.errs.put(ss.evalError(err))
+		case f != nil:
 			ss.frames.put(f)
+			ss.framed()
 		}
 	}
 }
 
-// evaluate makes the frame of one state.
+// run evaluates one state under a context that the reader cancels when
+// the state goes stale, and reports whether it did.
+func (ss *session) run(ctx context.Context, w want, c *evalCache) (*frame, bool, error) {
+	runCtx, cancel := context.WithCancel(ctx)
+	defer cancel()
+	ss.setRun(w.gen, cancel)
+	f, err := ss.evaluate(runCtx, w, c)
+	stale := runCtx.Err() != nil
+	ss.setRun(0, nil)
+	return f, stale, err
+}
+
+// editError is a failed edit with the id of its message.
+type editError struct {
+	id  int64
+	pin bool // the pinned scenario failed
+	err error
+}
+
+func (e *editError) Error() string { return e.err.Error() }
+func (e *editError) Unwrap() error { return e.err }
+
+// evaluate makes the frame of one state; nil when there is nothing to
+// show yet.
 func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, error) {
 	start := time.Now()
-	if w.scn != c.scn {
-		res, err := ss.srv.eval(ctx, w.scn)
+	if w.scn.seq != c.scnSeq {
+		c.scnSeq = w.scn.seq // taken, good or bad: a bad one is reported once
+		sc, err := scenarios.Decode(w.scn.raw)
 		if err != nil {
+			return nil, &editError{id: w.scn.id, err: err}
+		}
+		res, err := ss.eval(ctx, sc)
+		if err != nil {
+			c.scnSeq = 0 // evaluate again next time, unless a newer edit comes
+			return nil, &editError{id: w.scn.id, err: err}
+		}
+		report, err := json.Marshal(&res.Report)
+		if err != nil {
+			return nil, &editError{id: w.scn.id, err: fmt.Errorf("encode report: %w", err)}
+		}
+		link, err := scenarios.Link(sc)
+		if err != nil {
+			return nil, &editError{id: w.scn.id, err: err}
+		}
+		c.scn, c.res, c.report, c.link = sc, res, report, []byte(strconv.Quote(link))
+	}
+	if w.pin.seq != c.pinSeq {
+		c.pinSeq = w.pin.seq
+		if err := ss.takePin(ctx, w.pin, c); err != nil {
 			return nil, err
 		}
-		link, err := scenarios.Link(w.scn)
-		if err != nil {
-			return nil, err
-		}
-		c.scn, c.res, c.link = w.scn, res, link
 	}
-	var ref *scenarios.Result
-	if w.pin != nil {
-		if w.pin != c.pin {
-			res, err := ss.srv.eval(ctx, w.pin)
-			if err != nil {
-				return nil, fmt.Errorf("pinned scenario: %w", err)
-			}
-			c.pin, c.pinRes = w.pin, res
-		}
-		ref = c.pinRes
+	if c.res == nil {
+		return nil, nil // a view or pin before the first good scenario
 	}
-	f := &frame{id: w.id, report: &c.res.Report, link: c.link, charts: buildCharts(c.res, ref, w.view)}
-	if ref != nil {
-		f.reference = &ref.Report
+	if err := ss.ambiguity(ctx, c); err != nil {
+		return nil, err
+	}
+	f := &frame{id: w.id, report: c.report, link: c.link, charts: c.settle(buildCharts(c.res, c.pinRes, w.view))}
+	if c.amb != nil {
+		f.charts = append(f.charts, *c.amb)
+	}
+	if c.pin != nil {
+		f.reference = c.pinRept
 	}
 	f.computeMS = math.Round(float64(time.Since(start).Microseconds())/10) / 100
 	return f, nil
 }
 
-// evalError is the message for an evaluation that failed. Faults of the
+// settle gives each static chart a key that names its data: the previous
+// key when the option is byte for byte the same, a new one otherwise.
+func (c *evalCache) settle(cs []chartOut) []chartOut {
+	if c.statics == nil {
+		c.statics = map[string]chartOut{}
+	}
+	for i, ch := range cs {
+		if !ch.static {
+			continue
+		}
+		if last, ok := c.statics[ch.name]; ok && bytes.Equal(last.option, ch.option) {
+			cs[i].key = last.key
+			continue
+		}
+		c.version++
+		cs[i].key += "#" + strconv.Itoa(c.version)
+		c.statics[ch.name] = cs[i]
+	}
+	return cs
+}
+
+// ambiguity finds the ambiguity surface of the last good scenario's pulse
+// when its waveform or sample rate changed, from the server's cache or by
+// computing it. A surface that cannot be computed is logged and left
+// out; only cancellation is an error.
+func (ss *session) ambiguity(ctx context.Context, c *evalCache) error {
+	w, err := json.Marshal(c.scn.Waveform)
+	if err != nil {
+		return err
+	}
+	key := string(w) + "@" + strconv.FormatFloat(c.scn.Radar.SampleRateHz, 'g', -1, 64)
+	if key == c.ambKey {
+		return nil
+	}
+	ch, ok := ss.srv.ambs.get(key)
+	if !ok {
+		a, err := scenarios.Ambiguity(ctx, c.scn, ambiguityCols, ambiguityRows)
+		switch {
+		case ctx.Err() != nil:
+			return ctx.Err()
+		case err != nil:
+			ss.log.Warn("ambiguity surface", "err", err)
+			ch = nil
+		default:
+			out := ambiguityChart(a, ss.srv.ambs.version())
+			ch = &out
+		}
+		ss.srv.ambs.put(key, ch)
+	}
+	c.amb, c.ambKey = ch, key
+	return nil
+}
+
+// chartCache keeps the last few ambiguity charts by waveform, shared by
+// the sessions: tabs and demos share waveforms, and a surface costs more
+// than a frame. Entries are never changed once stored.
+type chartCache struct {
+	mu    sync.Mutex
+	byKey map[string]*chartOut
+	order []string // oldest first
+	seq   int
+}
+
+const chartCacheSize = 32
+
+func (cc *chartCache) get(key string) (*chartOut, bool) {
+	cc.mu.Lock()
+	defer cc.mu.Unlock()
+	ch, ok := cc.byKey[key]
+	return ch, ok
+}
+
+func (cc *chartCache) put(key string, ch *chartOut) {
+	cc.mu.Lock()
+	defer cc.mu.Unlock()
+	if cc.byKey == nil {
+		cc.byKey = map[string]*chartOut{}
+	}
+	if _, ok := cc.byKey[key]; !ok {
+		cc.order = append(cc.order, key)
+	}
+	cc.byKey[key] = ch
+	if len(cc.order) > chartCacheSize {
+		delete(cc.byKey, cc.order[0])
+		cc.order = cc.order[1:]
+	}
+}
+
+// version numbers the charts made, so that keys stay unique.
+func (cc *chartCache) version() int {
+	cc.mu.Lock()
+	defer cc.mu.Unlock()
+	cc.seq++
+	return cc.seq
+}
+
+// takePin decodes and evaluates a new pin, or unpins.
+func (ss *session) takePin(ctx context.Context, p edit, c *evalCache) error {
+	if p.raw == nil {
+		c.pin, c.pinRes, c.pinRept = nil, nil, nil
+		return nil
+	}
+	sc, err := scenarios.Decode(p.raw)
+	if err != nil {
+		return &editError{p.id, true, fmt.Errorf("pinned scenario: %w", err)}
+	}
+	res, err := ss.srv.eval(ctx, sc)
+	if err != nil {
+		c.pinSeq = 0
+		return &editError{p.id, true, fmt.Errorf("pinned scenario: %w", err)}
+	}
+	report, err := json.Marshal(&res.Report)
+	if err != nil {
+		return &editError{p.id, true, fmt.Errorf("encode pinned report: %w", err)}
+	}
+	c.pin, c.pinRes, c.pinRept = sc, res, report
+	return nil
+}
+
+// evalError is the message for an edit that failed. Faults of the
 // scenario go to the page as they are; internal ones are logged and
 // reported briefly.
-func (ss *session) evalError(id int64, err error) *errorMsg {
+func (ss *session) evalError(err error) *errorMsg {
+	var id int64
+	var ee *editError
+	if errors.As(err, &ee) {
+		id = ee.id
+	}
 	if errors.Is(err, scenarios.ErrInvalid) || errors.Is(err, scenarios.ErrTooLarge) {
 		return rejection(id, err)
 	}
@@ -100,19 +289,50 @@ func (ss *session) evalError(id int64, err error) *errorMsg {
 	return rejection(id, errors.New("internal error while evaluating the scenario"))
 }
 
-// message renders a frame for a page that holds the chart structures in
+// encode renders a frame for a page that holds the chart structures in
 // sent: a chart whose structure key is unchanged gets a data-only merge.
-func (f *frame) message(sent map[string]string) *frameMsg {
-	m := &frameMsg{Type: MsgFrame, ID: f.id, Report: f.report, Link: f.link, Reference: f.reference, ComputeMS: f.computeMS,
-		Charts: make(map[string]chartMsg, len(f.charts))}
+// The bytes are assembled by hand around pieces encoded earlier, in the
+// shape of frameMsg, so that the plot data is not scanned again.
+func (f *frame) encode(sent map[string]string) []byte {
+	size := len(f.report) + len(f.reference) + len(f.link) + 128
 	for _, c := range f.charts {
-		if sent[c.name] == c.key {
-			m.Charts[c.name] = chartMsg{Replace: false, Option: c.merge()}
-		} else {
-			m.Charts[c.name] = chartMsg{Replace: true, Option: c.option}
-		}
+		size += len(c.option) + 64
 	}
-	return m
+	b := make([]byte, 0, size)
+	b = append(b, `{"type":"frame","id":`...)
+	b = strconv.AppendInt(b, f.id, 10)
+	b = append(b, `,"report":`...)
+	b = append(b, f.report...)
+	b = append(b, `,"link":`...)
+	b = append(b, f.link...)
+	b = append(b, `,"charts":{`...)
+	first := true
+	for _, c := range f.charts {
+		if c.static && sent[c.name] == c.key {
+			continue // the page holds this very chart
+		}
+		if !first {
+			b = append(b, ',')
+		}
+		first = false
+		b = strconv.AppendQuote(b, c.name)
+		if sent[c.name] == c.key {
+			b = append(b, `:{"replace":false,"option":`...)
+			b = c.appendMerge(b)
+		} else {
+			b = append(b, `:{"replace":true,"option":`...)
+			b = append(b, c.option...)
+		}
+		b = append(b, '}')
+	}
+	b = append(b, '}')
+	if f.reference != nil {
+		b = append(b, `,"reference":`...)
+		b = append(b, f.reference...)
+	}
+	b = append(b, `,"compute_ms":`...)
+	b = strconv.AppendFloat(b, f.computeMS, 'f', -1, 64)
+	return append(b, '}')
 }
 
 // writeLoop is the session's only writer. It sends the newest frame and
@@ -132,7 +352,7 @@ func (ss *session) writeLoop(ctx context.Context) {
 			ss.conn.WriteControl(websocket.CloseMessage, websocket.FormatCloseMessage(code, text), time.Now().Add(writeWait))
 			return
 		case f := <-ss.frames.ch:
-			if err := ss.write(f.message(sent)); err != nil {
+			if err := ss.writeBytes(f.encode(sent)); err != nil {
 				return
 			}
 			for _, c := range f.charts {
@@ -156,14 +376,17 @@ func (ss *session) writeLoop(ctx context.Context) {
 	}
 }
 
-// write sends one JSON message under a write deadline. A message that
-// cannot be encoded is logged and replaced by an error message.
-func (ss *session) write(v any) error {
-	data, err := json.Marshal(v)
+// write sends one error message.
+func (ss *session) write(m *errorMsg) error {
+	data, err := json.Marshal(m)
 	if err != nil {
-		ss.log.Error("encode message", "err", err)
-		data, _ = json.Marshal(&errorMsg{Type: MsgError, Error: "internal error: the result could not be encoded", Fields: []scenarios.FieldError{}})
+		panic("server: error message not encodable: " + err.Error()) // strings only
 	}
+	return ss.writeBytes(data)
+}
+
+// writeBytes sends one text message under a write deadline.
+func (ss *session) writeBytes(data []byte) error {
 	ss.conn.SetWriteDeadline(time.Now().Add(writeWait))
 	return ss.conn.WriteMessage(websocket.TextMessage, data)
 }

@@ -2,6 +2,7 @@ package server
 
 import (
 	"math"
+	"slices"
 	"strconv"
 )
 
@@ -11,28 +12,66 @@ import (
 const (
 	floorDB = -150.0
 	ceilDB  = 400.0
-	maxAmp  = 1e30
+	maxAmp  = 1e12
 )
 
-// points is a polyline as flat pairs x0, y0, x1, y1, … It encodes as the
-// ECharts data array [[x0,y0],[x1,y1],…] with x to 0.01 and y to 4
-// significant digits beyond the point, which is far below a pixel.
+// points is a polyline as flat pairs x0, y0, x1, y1, …
 type points []float64
 
-func (p points) MarshalJSON() ([]byte, error) {
-	b := make([]byte, 0, 16*len(p)+2)
+// Decimal places of encoded plot values: range to 0.01 m, dB values to
+// 0.01 dB, linear amplitudes (noise rms = 1) to 0.001. All are far below
+// a pixel.
+const (
+	xDecimals   = 2
+	dbDecimals  = 2
+	ampDecimals = 3
+)
+
+// appendJSON appends p as the ECharts data array [[x0,y0],[x1,y1],…],
+// with y to yDecimals places. It writes the bytes directly: encoding/json
+// would re-scan a Marshaler's output, and fixed-point digits cost a
+// fraction of general float formatting.
+func (p points) appendJSON(b []byte, yDecimals int) []byte {
+	b = slices.Grow(b, 20*len(p)/2+2)
 	b = append(b, '[')
 	for i := 0; i+1 < len(p); i += 2 {
 		if i > 0 {
 			b = append(b, ',')
 		}
 		b = append(b, '[')
-		b = strconv.AppendFloat(b, math.Round(p[i]*100)/100, 'f', -1, 64)
+		b = appendFixed(b, p[i], xDecimals)
 		b = append(b, ',')
-		b = strconv.AppendFloat(b, p[i+1], 'g', 6, 64)
+		b = appendFixed(b, p[i+1], yDecimals)
 		b = append(b, ']')
 	}
-	return append(b, ']'), nil
+	return append(b, ']')
+}
+
+var pow10 = [...]int64{1, 10, 100, 1000, 10000}
+
+// appendFixed appends v rounded to dec decimal places (dec ≤ 4), without
+// trailing zeros. |v| must stay below 1e14, which the clamps ensure.
+func appendFixed(b []byte, v float64, dec int) []byte {
+	scale := pow10[dec]
+	n := int64(math.Round(v * float64(scale)))
+	if n < 0 {
+		b = append(b, '-')
+		n = -n
+	}
+	b = strconv.AppendInt(b, n/scale, 10)
+	frac := n % scale
+	if frac == 0 {
+		return b
+	}
+	for frac%10 == 0 {
+		frac /= 10
+		dec--
+	}
+	b = append(b, '.')
+	for d := dec - 1; d >= 0; d-- {
+		b = append(b, byte('0'+frac/pow10[d]%10))
+	}
+	return b
 }
 
 // clampDB maps NaN and −Inf to floorDB and +Inf to ceilDB.

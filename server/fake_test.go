@@ -68,19 +68,20 @@ func plausibleResult(s *scenarios.Scenario) *scenarios.Result {
 			status = scenarios.StatusBelowNoise
 		}
 		res.Report.Targets = append(res.Report.Targets, scenarios.TargetReport{ID: t.ID, RangeM: r, SNRDB: snr, Status: status, Reason: "made up by the test's fake evaluator"})
+		p := math.Pow(10, snr/10)
 		for k := range clean {
 			x := (res.Series.RangeM0 + float64(k)*step - r) / res4
 			sinc := 1.0
 			if x != 0 {
 				sinc = math.Sin(math.Pi*x) / (math.Pi * x)
 			}
-			clean[k] += math.Pow(10, snr/10) * sinc * sinc
+			clean[k] += p * sinc * sinc
 		}
 	}
 	for k := range n {
 		noise := complex(rng.NormFloat64(), rng.NormFloat64()) / math.Sqrt2
 		sig := complex(math.Sqrt(clean[k]), 0)
-		res.Series.Echo[k] = noise + sig*cmplx.Exp(complex(0, float64(k)))
+		res.Series.Echo[k] = noise + sig*complex(math.Cos(float64(k)), math.Sin(float64(k)))
 		res.Series.ProfileDB[k] = 10 * math.Log10(cmplx.Abs(noise+sig)*cmplx.Abs(noise+sig))
 		res.Series.CleanDB[k] = 10 * math.Log10(clean[k]) // −Inf where no target reaches: the server must floor it
 		res.Series.ThresholdDB[k] = 13

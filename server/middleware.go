@@ -128,3 +128,15 @@ func presentedToken(r *http.Request) (tok string, fromQuery bool) {
 	}
 	return "", false
 }
+
+// noListing answers 404 for a directory other than the root, so that the
+// file server shows files but never lists them.
+func (s *Server) noListing(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		if r.URL.Path != "/" && strings.HasSuffix(r.URL.Path, "/") {
+			s.writeError(w, r, errNoRoute)
+			return
+		}
+		next.ServeHTTP(w, r)
+	})
+}

@@ -46,7 +46,10 @@ type chartMsg struct {
 	Option  any  `json:"option"`
 }
 
-// frameMsg is the result of the newest edit.
+// frameMsg is the result of the newest edit. frame.encode writes this
+// shape by hand around pieces encoded beforehand (the plot data would
+// cost twice through encoding/json); the tests decode every frame into
+// it, refusing unknown fields.
 type frameMsg struct {
 	Type      string              `json:"type"` // MsgFrame
 	ID        int64               `json:"id"`

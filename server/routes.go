@@ -47,7 +47,7 @@ func (s *Server) Handler() http.Handler {
 		})
 	})
 
-	// Everything else: the page.
-	r.Handle("/*", http.FileServerFS(s.static))
+	// Everything else: the page's files (no directory listings).
+	r.Handle("/*", s.noListing(http.FileServerFS(s.static)))
 	return r
 }

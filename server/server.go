@@ -18,7 +18,9 @@ import (
 	"net/http"
 	"net/netip"
 	"os"
+	"runtime"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/gorilla/websocket"
@@ -44,6 +46,10 @@ type Config struct {
 	MaxSessions int           // open websocket sessions at most; default 64
 	APITimeout  time.Duration // deadline of a REST request; default 30 s
 	StartDemo   string        // the demo the page opens on; default scenarios.DefaultDemo
+	// SessionEvaluator, when set, makes each websocket session its own
+	// evaluator for the edited scenario, one that may keep state from edit
+	// to edit (a scenarios.Engine). It is used by one goroutine at a time.
+	SessionEvaluator func() Evaluator
 }
 
 // Server is the workbench's HTTP server.
@@ -55,14 +61,17 @@ type Server struct {
 	static fs.FS
 	token  string
 	up     websocket.Upgrader
+	ambs   chartCache    // ambiguity charts by waveform
+	slots  chan struct{} // one per computation allowed to run at once
 
 	ctx    context.Context // cancelled by Close: ends the sessions
 	cancel context.CancelFunc
 
-	mu       sync.Mutex // guards open, closing and the Add of sessions
-	open     int
-	closing  bool
-	sessions sync.WaitGroup
+	mu         sync.Mutex // guards open, closing and the Add of sessions
+	open       int
+	closing    bool
+	sessions   sync.WaitGroup
+	sessionIDs atomic.Uint64 // numbers sessions in logs
 
 	ln  net.Listener
 	srv *http.Server
@@ -97,7 +106,10 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	if err != nil {
 		return nil, err
 	}
-	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token}
+	// Sessions compute at most one per processor at a time: the rest wait
+	// blocked, so readers and writers stay responsive and edits coalesce
+	// in the mailboxes rather than in socket buffers.
+	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token, slots: make(chan struct{}, runtime.GOMAXPROCS(0))}
 	if s.token == "" && !isLoopback(host) {
 		b := make([]byte, 24)
 		rand.Read(b)

@@ -9,7 +9,6 @@ import (
 	"math"
 	"net/http"
 	"sync"
-	"sync/atomic"
 	"time"
 
 	"github.com/gorilla/websocket"
@@ -46,42 +45,57 @@ func (m mailbox[T]) put(v T) { // never blocks; replaces an unread value
 }
 
 // want is the whole state the page asked for, as of its newest message.
-// The reader owns it and posts a copy after each message.
+// The reader owns it and posts a copy after each message. Scenarios stay
+// raw until compute takes them, so that edits skipped by a faster one
+// cost no decoding.
 type want struct {
 	gen  uint64 // counts the reader's posts
 	id   int64  // the newest message's id
-	scn  *scenarios.Scenario
-	pin  *scenarios.Scenario
+	scn  edit   // the newest scenario
+	pin  edit   // the newest pin; raw nil when unpinned
 	view view
+}
+
+// edit is a scenario as the page sent it.
+type edit struct {
+	seq uint64          // the gen that set it; 0 when never set
+	id  int64           // its message's id
+	raw json.RawMessage // the scenario document
 }
 
 // frame is a computed result waiting for the writer, which chooses per
 // chart between the full option and a data-only merge.
 type frame struct {
 	id        int64
-	report    *scenarios.Report
-	reference *scenarios.Report
-	link      string
+	report    []byte // encoded report
+	reference []byte // encoded pinned report, nil when not pinned
+	link      []byte // encoded link string
 	charts    []chartOut
 	computeMS float64
 }
-
-var sessionIDs atomic.Uint64
 
 // session is one websocket connection: readLoop is the only reader,
 // writeLoop the only writer, compute the only evaluator.
 type session struct {
 	srv    *Server
+	eval   Evaluator // of the edited scenario; the pin uses srv.eval
 	conn   *websocket.Conn
 	log    *slog.Logger
 	work   mailbox[want]
 	frames mailbox[*frame]
 	errs   mailbox[*errorMsg]
 
-	mu        sync.Mutex // guards runGen and runCancel
+	mu        sync.Mutex // guards runGen, runCancel and lastFrame
 	runGen    uint64
 	runCancel context.CancelFunc
+	lastFrame time.Time // when compute last put a frame
 }
+
+// starveAfter bounds how long edits may keep cancelling computations: when
+// the page has had no frame for this long, a computation in flight runs to
+// its end (and its frame is sent) even though a newer edit is waiting, so
+// that a slider dragged faster than the scene evaluates still animates.
+const starveAfter = 250 * time.Millisecond
 
 // handleWS upgrades to a websocket and runs the session until either side
 // closes it or the server shuts down. It returns only after the reader
@@ -100,11 +114,15 @@ func (s *Server) handleWS(w http.ResponseWriter, r *http.Request) {
 	defer conn.Close()
 	sess := &session{
 		srv:    s,
+		eval:   s.eval,
 		conn:   conn,
-		log:    s.log.With("session", sessionIDs.Add(1)),
+		log:    s.log.With("session", s.sessionIDs.Add(1)),
 		work:   newMailbox[want](),
 		frames: newMailbox[*frame](),
 		errs:   newMailbox[*errorMsg](),
+	}
+	if s.cfg.SessionEvaluator != nil {
+		sess.eval = s.cfg.SessionEvaluator()
 	}
 	sess.log.Info("session open", "remote", r.RemoteAddr)
 	ctx, cancel := context.WithCancel(s.ctx)
@@ -156,8 +174,8 @@ func (ss *session) readLoop(cancel context.CancelFunc) {
 
 // apply returns the state after one client message, and whether it makes
 // a computation of the previous state useless (a new scenario or pin; a
-// view change alone reuses the evaluation). On error the returned state
-// carries only the message's id.
+// view change alone reuses the evaluation). Scenarios are validated by
+// compute; apply checks the envelope and the view.
 func apply(st want, data []byte) (want, bool, error) {
 	var m inMsg
 	if err := json.Unmarshal(data, &m); err != nil {
@@ -170,20 +188,12 @@ func apply(st want, data []byte) (want, bool, error) {
 		if isNull(m.Scenario) {
 			return bad, false, fmt.Errorf("scenario message without a scenario: %w", scenarios.ErrInvalid)
 		}
-		sc, err := scenarios.Decode(m.Scenario)
-		if err != nil {
-			return bad, false, err
-		}
-		st.scn = sc
+		st.scn = edit{seq: st.gen + 1, id: m.ID, raw: m.Scenario}
 		return st, true, nil
 	case MsgPin:
-		st.pin = nil
+		st.pin = edit{seq: st.gen + 1, id: m.ID}
 		if !isNull(m.Scenario) {
-			sc, err := scenarios.Decode(m.Scenario)
-			if err != nil {
-				return bad, false, fmt.Errorf("pinned scenario: %w", err)
-			}
-			st.pin = sc
+			st.pin.raw = m.Scenario
 		}
 		return st, true, nil
 	case MsgView:
@@ -210,17 +220,21 @@ func rejection(id int64, err error) *errorMsg {
 	var ve *scenarios.ValidationError
 	if errors.As(err, &ve) {
 		m.Error = "invalid scenario"
+		var ee *editError
+		if errors.As(err, &ee) && ee.pin {
+			m.Error = "invalid pinned scenario"
+		}
 		m.Fields = ve.Fields
 	}
 	return m
 }
 
 // cancelBefore cancels the running computation if it serves a state older
-// than gen.
+// than gen, unless the page has waited starveAfter for a frame.
 func (ss *session) cancelBefore(gen uint64) {
 	ss.mu.Lock()
 	defer ss.mu.Unlock()
-	if ss.runCancel != nil && ss.runGen < gen {
+	if ss.runCancel != nil && ss.runGen < gen && time.Since(ss.lastFrame) < starveAfter {
 		ss.runCancel()
 		ss.runCancel = nil
 	}
@@ -229,5 +243,12 @@ func (ss *session) cancelBefore(gen uint64) {
 func (ss *session) setRun(gen uint64, cancel context.CancelFunc) {
 	ss.mu.Lock()
 	ss.runGen, ss.runCancel = gen, cancel
+	ss.mu.Unlock()
+}
+
+// framed records that a frame went to the writer.
+func (ss *session) framed() {
+	ss.mu.Lock()
+	ss.lastFrame = time.Now()
 	ss.mu.Unlock()
 }

@@ -180,8 +180,3 @@ func (e *env) demos(args []string) error {
 	}
 	return tw.Flush()
 }
-
-func (e *env) serve(args []string) error {
-	fmt.Fprint(e.stdout, usage)
-	return nil
-}
