@@ -178,20 +178,7 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 		v.cell = others(k, d)
 		v.threshold = math.Max(v.sceneLevel, v.cell)
 	}
-	switch {
-	case sc.outOfWindow(g):
-		v.status = StatusOutOfWindow
-	case sc.inBlind(g):
-		v.status = StatusEclipsed
-	case k < 0 || p <= 0:
-		v.status = StatusOutOfWindow
-	case p >= v.threshold:
-		v.status = StatusDetected
-	case p < v.noiseLevel:
-		v.status = StatusBelowNoise
-	default:
-		v.status = StatusMasked
-		v.byCell = v.cell >= v.sceneLevel
+	if sc.decide(g, &v) == StatusMasked {
 		best := 0.0
 		for i := range sc.targets {
 			if i == j {
