@@ -28,7 +28,12 @@ func PowersDB(dst, p []float64, floor float64) []float64 {
 		logc[i] = -math.Log(inv[i]) // consistent with the rounded inv[i]
 	}
 	const toDB = 10 / math.Ln10
+	last, lastV := math.NaN(), 0.0 // runs of equal values (a CFAR level away from targets) reuse the result
 	for k, x := range p {
+		if x == last {
+			dst[k] = lastV
+			continue
+		}
 		if !(x >= 0x1p-1022 && x <= math.MaxFloat64) { // zero, negative, subnormal, Inf, NaN
 			switch {
 			case x != x:
@@ -50,7 +55,7 @@ func PowersDB(dst, p []float64, floor float64) []float64 {
 		if v < floor {
 			v = floor
 		}
-		dst[k] = v
+		dst[k], last, lastV = v, x, v
 	}
 	return dst
 }

@@ -19,6 +19,7 @@ func TestPowersDB(t *testing.T) {
 		p = append(p, m, math.Nextafter(m, 0), math.Nextafter(m, 2), m*1e-30, 1)
 	}
 	p = append(p, 0, -1, math.SmallestNonzeroFloat64, math.MaxFloat64, math.Inf(1), math.NaN(), 0x1p-1022)
+	p = append(p, 5, 5, 5, 0, 0, 7, 7, math.NaN(), math.NaN(), 5) // runs reuse the previous result
 	got := PowersDB(nil, p, -300)
 	for i, x := range p {
 		want := math.Max(DB(x), -300)
