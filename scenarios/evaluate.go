@@ -140,6 +140,9 @@ func (m *model) interpBandwidth() float64 {
 // doppler returns the peak loss (dB) and time shift (s) of the compressed
 // response at Doppler shift fd, cached per model.
 func (m *model) doppler(fd float64) dopFigure {
+	if fd == 0 {
+		return dopFigure{} // DopplerPlan.Response(0) is 0, 0: no plan needed
+	}
 	if m.dop == nil {
 		m.dop = make(map[float64]dopFigure)
 	}
