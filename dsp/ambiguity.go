@@ -3,8 +3,6 @@ package dsp
 import (
 	"math"
 	"math/cmplx"
-
-	"gonum.org/v1/gonum/dsp/fourier"
 )
 
 // dopplerUp is the interpolation factor (points per sample) of the
@@ -165,10 +163,11 @@ func Ambiguity(dst [][]float64, u []complex128, fs float64, delays int, dopplers
 	// Circular correlation at length l ≥ n + min(delays, n−1) keeps every
 	// needed lag free of wrap-around.
 	l := fftSize(n + min(delays, n-1))
-	fft := fourier.NewCmplxFFT(l)
+	fft := newFFTPlan(l) // l = fftSize(…) is 2·3·5-smooth
+	work := make([]complex128, l)
 	uspec := make([]complex128, l)
 	copy(uspec, u)
-	fft.Coefficients(uspec, uspec)
+	fft.transform(uspec, work)
 	buf := make([]complex128, l)
 	scale := 1 / (float64(l) * energy)
 	for i, nu := range dopplers {
@@ -180,12 +179,12 @@ func Ambiguity(dst [][]float64, u []complex128, fs float64, delays int, dopplers
 		for k, v := range u {
 			buf[k] = v * expj(2*math.Pi*nu*float64(k)/fs)
 		}
-		fft.Coefficients(buf, buf)
+		fft.transform(buf, work)
 		// c[k] = Σ_n u[n+k]·conj(v[n]) = IFFT(U·conj(V)); χ = conj(c).
 		for k, v := range uspec {
 			buf[k] = v * cmplx.Conj(buf[k])
 		}
-		fft.Sequence(buf, buf)
+		fft.inverse(buf, work)
 		for j := range row {
 			k := j - delays
 			switch {
