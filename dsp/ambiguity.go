@@ -3,8 +3,6 @@ package dsp
 import (
 	"math"
 	"math/cmplx"
-
-	"gonum.org/v1/gonum/dsp/fourier"
 )
 
 // dopplerUp is the interpolation factor (points per sample) of the
@@ -32,11 +30,12 @@ type DopplerPlan struct {
 	pulse, ref []complex128
 	fs         float64
 	corr       *Correlator
-	fft        *fourier.CmplxFFT
+	fft        *fftPlan
 	in, z      []complex128 // correlation input and output, len(pulse)+len(ref)−1
-	spec       []complex128 // spectrum of the zero-padded correlation
+	spec, work []complex128 // spectrum of the zero-padded correlation; FFT scratch
 	mag        []float64
 	p0, v0     float64 // zero-Doppler peak position (samples) and magnitude
+	haveZero   bool    // p0 and v0 are computed (on the first non-zero shift)
 }
 
 // NewDopplerPlan prepares DopplerResponse for pulse and ref at rate fs.
@@ -50,13 +49,13 @@ func NewDopplerPlan(pulse, ref []complex128, fs float64) *DopplerPlan {
 	p := &DopplerPlan{
 		pulse: pulse, ref: ref, fs: fs,
 		corr: NewCorrelator(ref, n),
-		fft:  fourier.NewCmplxFFT(l),
+		fft:  newFFTPlan(l),
 		in:   make([]complex128, n),
 		z:    make([]complex128, n),
 		spec: make([]complex128, l),
+		work: make([]complex128, l),
 		mag:  make([]float64, 2*dopplerUp+1),
 	}
-	p.p0, p.v0 = p.peak(pulse, 0)
 	return p
 }
 
@@ -65,6 +64,10 @@ func NewDopplerPlan(pulse, ref []complex128, fs float64) *DopplerPlan {
 func (p *DopplerPlan) Response(fd float64) (lossDB, shift float64) {
 	if fd == 0 {
 		return 0, 0
+	}
+	if !p.haveZero {
+		p.p0, p.v0 = p.peak(p.pulse, 0)
+		p.haveZero = true
 	}
 	p1, v1 := p.peak(p.pulse, fd)
 	return -20 * math.Log10(v1/p.v0), (p1 - p.p0) / dopplerUp / p.fs
@@ -89,7 +92,7 @@ func (p *DopplerPlan) peak(pulse []complex128, fd float64) (pos, val float64) {
 	}
 	clear(p.spec)
 	copy(p.spec, p.z)
-	p.fft.Coefficients(p.spec, p.spec)
+	p.fft.transform(p.spec, p.work)
 	for i := range p.mag {
 		t := float64(k) + float64(i-dopplerUp)/dopplerUp
 		p.mag[i] = cmplx.Abs(p.at(t))
@@ -160,10 +163,11 @@ func Ambiguity(dst [][]float64, u []complex128, fs float64, delays int, dopplers
 	// Circular correlation at length l ≥ n + min(delays, n−1) keeps every
 	// needed lag free of wrap-around.
 	l := fftSize(n + min(delays, n-1))
-	fft := fourier.NewCmplxFFT(l)
+	fft := newFFTPlan(l) // l = fftSize(…) is 2·3·5-smooth
+	work := make([]complex128, l)
 	uspec := make([]complex128, l)
 	copy(uspec, u)
-	fft.Coefficients(uspec, uspec)
+	fft.transform(uspec, work)
 	buf := make([]complex128, l)
 	scale := 1 / (float64(l) * energy)
 	for i, nu := range dopplers {
@@ -175,12 +179,12 @@ func Ambiguity(dst [][]float64, u []complex128, fs float64, delays int, dopplers
 		for k, v := range u {
 			buf[k] = v * expj(2*math.Pi*nu*float64(k)/fs)
 		}
-		fft.Coefficients(buf, buf)
+		fft.transform(buf, work)
 		// c[k] = Σ_n u[n+k]·conj(v[n]) = IFFT(U·conj(V)); χ = conj(c).
 		for k, v := range uspec {
 			buf[k] = v * cmplx.Conj(buf[k])
 		}
-		fft.Sequence(buf, buf)
+		fft.inverse(buf, work)
 		for j := range row {
 			k := j - delays
 			switch {

@@ -3,8 +3,6 @@ package dsp
 import (
 	"math"
 	"math/cmplx"
-
-	"gonum.org/v1/gonum/dsp/fourier"
 )
 
 // Reference returns the matched reference for pulse weighted by w across
@@ -73,7 +71,19 @@ type Figures struct {
 // It panics if pulse or ref is empty or fs ≤ 0; for a reference
 // orthogonal to the pulse (no peak) the levels are NaN or ±Inf.
 func ResponseFigures(pulse, ref []complex128, lead int, fs, bandwidth float64) Figures {
+	return newResponse(pulse, ref, fs, bandwidth).figures(pulse, ref, lead, fs, bandwidth)
+}
+
+// ResponseWithFigures returns what Response and ResponseFigures return,
+// from one computation of the compressed response (half the work of
+// calling both). It panics as they do.
+func ResponseWithFigures(pulse, ref []complex128, lead int, fs, bandwidth float64) (t, db []float64, fig Figures) {
 	r := newResponse(pulse, ref, fs, bandwidth)
+	t, db = r.plot(ref, lead, fs)
+	return t, db, r.figures(pulse, ref, lead, fs, bandwidth)
+}
+
+func (r response) figures(pulse, ref []complex128, lead int, fs, bandwidth float64) Figures {
 	var fig Figures
 	mag := r.mag
 	ip := argmax(mag)
@@ -144,7 +154,10 @@ func ResponseFigures(pulse, ref []complex128, lead int, fs, bandwidth float64) F
 // in dB relative to the largest grid value (floored at −300 dB). Both
 // slices are newly allocated.
 func Response(pulse, ref []complex128, lead int, fs, bandwidth float64) (t, db []float64) {
-	r := newResponse(pulse, ref, fs, bandwidth)
+	return newResponse(pulse, ref, fs, bandwidth).plot(ref, lead, fs)
+}
+
+func (r response) plot(ref []complex128, lead int, fs float64) (t, db []float64) {
 	peak := r.mag[argmax(r.mag)]
 	t = make([]float64, len(r.mag))
 	db = make([]float64, len(r.mag))
@@ -253,9 +266,11 @@ func interpolate(z []complex128, up int) []complex128 {
 	l := fftSize(len(z) + len(z)/4 + 16)
 	buf := make([]complex128, l)
 	copy(buf, z)
-	spec := fourier.NewCmplxFFT(l).Coefficients(nil, buf)
 	lf := l * up
 	big := make([]complex128, lf)
+	work := make([]complex128, lf)
+	newFFTPlan(l).transform(buf, work[:l])
+	spec := buf
 	h := (l + 1) / 2 // bins 0 … h−1 are non-negative frequencies
 	copy(big[:h], spec[:h])
 	neg := l - h
@@ -265,7 +280,7 @@ func interpolate(z []complex128, up int) []complex128 {
 		big[lf-neg-1] = spec[h] / 2
 	}
 	copy(big[lf-neg:], spec[l-neg:])
-	fourier.NewCmplxFFT(lf).Sequence(big, big)
+	newFFTPlan(lf).inverse(big, work)
 	inv := complex(1/float64(l), 0)
 	out := big[:(len(z)-1)*up+1]
 	for i := range out {

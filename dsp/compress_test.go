@@ -170,3 +170,23 @@ func TestResponse(t *testing.T) {
 		}
 	}
 }
+
+// ResponseWithFigures must equal Response and ResponseFigures exactly:
+// the same computation, shared.
+func TestResponseWithFigures(t *testing.T) {
+	const fs = 20e6
+	lfm := LFM{Width: 10e-6, Band: 5e6}
+	pulse := Sample(nil, lfm, fs, 0)
+	ref := Reference(nil, pulse, Hamming{})
+	t1, db1 := Response(pulse, ref, 0, fs, lfm.Band)
+	f1 := ResponseFigures(pulse, ref, 0, fs, lfm.Band)
+	t2, db2, f2 := ResponseWithFigures(pulse, ref, 0, fs, lfm.Band)
+	if f1 != f2 || len(t1) != len(t2) || len(db1) != len(db2) {
+		t.Fatalf("figures %+v vs %+v, lengths %d/%d", f1, f2, len(t1), len(t2))
+	}
+	for i := range t1 {
+		if t1[i] != t2[i] || db1[i] != db2[i] {
+			t.Fatalf("sample %d: (%v, %v) vs (%v, %v)", i, t1[i], db1[i], t2[i], db2[i])
+		}
+	}
+}

@@ -2,8 +2,8 @@ package dsp
 
 import (
 	"math"
-
-	"gonum.org/v1/gonum/dsp/fourier"
+	"sync"
+	"sync/atomic"
 )
 
 // Correlator is a fast-correlation plan: it compresses windows of n
@@ -13,42 +13,64 @@ import (
 //
 // with x taken as zero beyond its end (the package convention: an echo
 // whose leading edge is at sample d peaks at y[d]). It multiplies spectra
-// from gonum's mixed-radix fourier.CmplxFFT at a length L whose prime
+// from the package's Stockham FFT (fft.go) at a length L whose prime
 // factors are 2, 3 and 5: one block of L ≥ n+m−1 when that is cheapest,
-// otherwise overlap-save blocks of L−m+1 outputs each, L chosen by an
-// operation-count model. A Correlator owns its scratch space; Apply does
-// not allocate when dst is given. It is not safe for concurrent use.
+// otherwise overlap-save blocks of L−m+1 outputs each, L chosen by a cost
+// model of that FFT (measured per radix, with a penalty for blocks that
+// overflow a core's cache). A Correlator owns its scratch space; Apply
+// does not allocate when dst is given and the plan has one worker. It is
+// not safe for concurrent use.
 type Correlator struct {
-	n, m int
-	step int               // outputs per block, L−m+1
-	fft  *fourier.CmplxFFT // length L
-	spec []complex128      // conj(FFT(h zero-padded to L)) / L
-	buf  []complex128      // length L
+	n, m    int
+	step    int            // outputs per block, L−m+1
+	fft     *fftPlan       // length L, shared read-only by the workers
+	spec    []complex128   // conj(FFT(h zero-padded to L)) / L
+	scratch [][]complex128 // one 2L buffer per worker
+	wg      sync.WaitGroup
+	next    atomic.Int64 // next block to take, with several workers
 }
 
 // NewCorrelator returns a plan for windows of n samples (n ≥ 1) and the
 // reference ref (len(ref) ≥ 1), which is copied. It panics on empty
-// arguments (programmer errors).
+// arguments (programmer errors). Its Apply starts no goroutines.
 func NewCorrelator(ref []complex128, n int) *Correlator {
-	if n < 1 || len(ref) < 1 {
-		panic("dsp: correlator needs n ≥ 1 and a non-empty reference")
+	return NewCorrelatorWorkers(ref, n, 1)
+}
+
+// NewCorrelatorWorkers is NewCorrelator for a plan whose Apply may run its
+// overlap-save blocks on up to workers goroutines (workers ≥ 1; the caller
+// chooses, typically runtime.GOMAXPROCS(0)). It is the package's one,
+// approved, exception to "no goroutines": the goroutines live only for the
+// duration of an Apply call and share nothing but read-only tables and
+// disjoint parts of dst. With workers > 1 each Apply allocates one small
+// closure per extra goroutine; the transform buffers are never
+// reallocated. The block length is chosen for that worker count; the
+// result does not depend on it beyond rounding (the same blocks are
+// computed in any order). It panics on empty arguments or workers < 1.
+func NewCorrelatorWorkers(ref []complex128, n, workers int) *Correlator {
+	if n < 1 || len(ref) < 1 || workers < 1 {
+		panic("dsp: correlator needs n ≥ 1, a non-empty reference and workers ≥ 1")
 	}
-	return newCorrelatorLen(ref, n, bestBlockLen(n, len(ref)))
+	l := bestBlockLen(n, len(ref), workers)
+	return newCorrelatorLen(ref, n, l, workers)
 }
 
 // newCorrelatorLen builds the plan with FFT length l ≥ len(ref).
-func newCorrelatorLen(ref []complex128, n, l int) *Correlator {
+func newCorrelatorLen(ref []complex128, n, l, workers int) *Correlator {
 	m := len(ref)
 	c := &Correlator{
 		n:    n,
 		m:    m,
 		step: l - m + 1,
-		fft:  fourier.NewCmplxFFT(l),
+		fft:  newFFTPlan(l),
 		spec: make([]complex128, l),
-		buf:  make([]complex128, l),
+	}
+	blocks := (n + c.step - 1) / c.step
+	for range min(workers, blocks) {
+		c.scratch = append(c.scratch, make([]complex128, 2*l))
 	}
 	copy(c.spec, ref)
-	c.fft.Coefficients(c.spec, c.spec)
+	c.fft.transform(c.spec, c.scratch[0][:l])
 	inv := 1 / float64(l)
 	for i, v := range c.spec {
 		c.spec[i] = complex(real(v)*inv, -imag(v)*inv)
@@ -56,22 +78,61 @@ func newCorrelatorLen(ref []complex128, n, l int) *Correlator {
 	return c
 }
 
-// bestBlockLen picks the FFT length minimising blocks·L·log2(L) over
-// 2,3,5-smooth L from the smallest useful block to one block of n+m−1.
-func bestBlockLen(n, m int) int {
-	single := fftSize(n + m - 1)
-	best, bestCost := single, blockCost(n, m, single)
-	for l := fftSize(2 * m); l < single; l = fftSize(l + 1) {
-		if c := blockCost(n, m, l); c < bestCost {
+// Relative cost per point of one FFT stage, by radix, from the best of
+// repeated BenchmarkFFTRadix runs (amd64): a radix-4 stage covers two
+// halvings for the price of a radix-2 one.
+func stageCost(radix int) float64 {
+	switch radix {
+	case 4, 2:
+		return 1.0
+	case 3:
+		return 1.3
+	}
+	return 2.0 // radix 5
+}
+
+// fftCost models the time of one length-l transform plus the per-block
+// spectral product and copies (about one stage's worth), with a penalty
+// for lengths beyond 2¹⁴ whose buffers spill out of a core's cache
+// (BenchmarkFFTRadix: the time per point and stage grows about 17 % per
+// doubling from 2¹⁴ to 2²⁰ on the reference machine).
+func fftCost(l int) float64 {
+	c := 1.0
+	r := l
+	for r%4 == 0 {
+		c += stageCost(4)
+		r /= 4
+	}
+	for _, p := range []int{2, 3, 5} {
+		for r%p == 0 {
+			c += stageCost(p)
+			r /= p
+		}
+	}
+	if l > 1<<14 {
+		c *= 1 + 0.17*(math.Log2(float64(l))-14)
+	}
+	return c * float64(l)
+}
+
+// bestBlockLen picks the FFT length minimising the modelled time of the
+// busiest worker, over 2,3,5-smooth L from the smallest useful block to
+// twice one block of n+m−1 (a longer single block of cheaper radices can
+// win).
+func bestBlockLen(n, m, workers int) int {
+	best, bestCost := 0, math.Inf(1)
+	for l := fftSize(m + 1); l <= 2*(n+m-1); l = fftSize(l + 1) {
+		if c := blockCost(n, m, l, workers); c < bestCost {
 			best, bestCost = l, c
 		}
 	}
 	return best
 }
 
-func blockCost(n, m, l int) float64 {
+func blockCost(n, m, l, workers int) float64 {
 	blocks := (n + l - m) / (l - m + 1) // ceil(n / (l−m+1))
-	return float64(blocks) * float64(l) * math.Log2(float64(l))
+	perWorker := (blocks + workers - 1) / workers
+	return float64(perWorker) * fftCost(l)
 }
 
 // Len returns n, the input and output length.
@@ -92,16 +153,60 @@ func (c *Correlator) Apply(dst, x []complex128) []complex128 {
 	} else if len(dst) != c.n {
 		panic("dsp: correlator destination length mismatch")
 	}
-	l := len(c.buf)
-	for b := 0; b < c.n; b += c.step {
-		k := copy(c.buf, x[b:])
-		clear(c.buf[k:])
-		c.fft.Coefficients(c.buf, c.buf)
-		for i, v := range c.spec {
-			c.buf[i] *= v
-		}
-		c.fft.Sequence(c.buf, c.buf)
-		copy(dst[b:min(b+c.step, c.n)], c.buf[:min(c.step, l)])
+	if len(c.scratch) == 1 {
+		c.blocks(0, dst, x)
+		return dst
 	}
+	c.parallel(dst, x)
 	return dst
+}
+
+// parallel runs the blocks on one goroutine per scratch buffer; each takes
+// the next block not yet taken, so a goroutine that waits for a core
+// leaves its share to the others.
+func (c *Correlator) parallel(dst, x []complex128) {
+	w := len(c.scratch)
+	c.next.Store(0)
+	c.wg.Add(w - 1)
+	for i := 1; i < w; i++ {
+		go func() {
+			defer c.wg.Done()
+			c.blocks(i, dst, x)
+		}()
+	}
+	c.blocks(0, dst, x)
+	c.wg.Wait()
+}
+
+// blocks computes overlap-save blocks with the scratch of worker i: all of
+// them in order for a one-worker plan, else those it takes from c.next.
+// The inverse transform is conj(FFT(conj(·))): the conjugations are folded
+// into the spectral product and the copy out.
+func (c *Correlator) blocks(i int, dst, x []complex128) {
+	l := c.fft.n
+	s := c.scratch[i]
+	buf, work := s[:l], s[l:]
+	spec := c.spec[:l]
+	serial := len(c.scratch) == 1
+	for b := 0; ; b += c.step {
+		if !serial {
+			b = int(c.next.Add(1)-1) * c.step
+		}
+		if b >= c.n {
+			return
+		}
+		k := copy(buf, x[b:])
+		clear(buf[k:])
+		c.fft.transform(buf, work)
+		for i, v := range spec {
+			p := buf[i] * v
+			buf[i] = complex(real(p), -imag(p))
+		}
+		c.fft.transform(buf, work)
+		out := dst[b:min(b+c.step, c.n)]
+		for i := range out {
+			v := buf[i]
+			out[i] = complex(real(v), -imag(v))
+		}
+	}
 }

@@ -62,12 +62,12 @@ func TestCorrelatorDirect(t *testing.T) {
 			if c.l == 0 {
 				p = NewCorrelator(h, c.n)
 			} else {
-				p = newCorrelatorLen(h, c.n, c.l)
+				p = newCorrelatorLen(h, c.n, c.l, 1)
 			}
 			h[0] = 1e6 // the plan must hold its own copy
 			got := p.Apply(nil, x)
 			if e := maxRelErr(got, want); e > tol {
-				t.Errorf("max relative error %.3g > %v (FFT length %d)", e, tol, len(p.buf))
+				t.Errorf("max relative error %.3g > %v (FFT length %d)", e, tol, p.fft.n)
 			}
 			again := p.Apply(got, x) // reuse of the destination and the plan
 			if e := maxRelErr(again, want); e > tol {
@@ -118,6 +118,33 @@ func TestCorrelatorScipy(t *testing.T) {
 	}
 }
 
+// Source: the definition in doc.go, evaluated directly; the parallel
+// plan must give the serial plan's blocks, whatever the worker count.
+func TestCorrelatorWorkers(t *testing.T) {
+	const tol = 1e-9
+	rnd := rand.New(rand.NewPCG(5, 5))
+	for _, c := range []struct{ n, m, l, w int }{
+		{1000, 50, 64, 2}, {1000, 50, 64, 3}, {999, 100, 128, 2}, {5000, 250, 270, 4},
+		{100, 13, 0, 2}, {3000, 200, 0, 2}, {20000, 300, 0, 2},
+	} {
+		t.Run(fmt.Sprintf("n=%d/m=%d/L=%d/w=%d", c.n, c.m, c.l, c.w), func(t *testing.T) {
+			x, h := randComplex(rnd, c.n), randComplex(rnd, c.m)
+			want := directCorrelate(x, h)
+			var p *Correlator
+			if c.l == 0 {
+				p = NewCorrelatorWorkers(h, c.n, c.w)
+			} else {
+				p = newCorrelatorLen(h, c.n, c.l, c.w)
+			}
+			for range 2 {
+				if e := maxRelErr(p.Apply(nil, x), want); e > tol {
+					t.Errorf("max relative error %.3g > %v (FFT length %d)", e, tol, p.fft.n)
+				}
+			}
+		})
+	}
+}
+
 func TestCorrelatorAllocs(t *testing.T) {
 	rnd := rand.New(rand.NewPCG(2, 2))
 	for _, c := range []struct{ n, m int }{{4096, 300}, {20000, 100}} {
@@ -136,6 +163,7 @@ func TestCorrelatorPanics(t *testing.T) {
 		"short dst": func() { p.Apply(make([]complex128, 9), make([]complex128, 8)) },
 		"empty ref": func() { NewCorrelator(nil, 8) },
 		"zero n":    func() { NewCorrelator([]complex128{1}, 0) },
+		"0 workers": func() { NewCorrelatorWorkers([]complex128{1}, 8, 0) },
 	} {
 		t.Run(name, func(t *testing.T) {
 			defer func() {
@@ -150,16 +178,20 @@ func TestCorrelatorPanics(t *testing.T) {
 }
 
 func BenchmarkCorrelator(b *testing.B) {
-	for _, c := range []struct{ n, m int }{{65536, 5000}, {1048576, 50000}} {
-		b.Run(fmt.Sprintf("n=%d/m=%d", c.n, c.m), func(b *testing.B) {
+	for _, c := range []struct{ n, m, w int }{
+		{65536, 5000, 1}, {65536, 5000, 2}, {1048576, 50000, 1}, {1048576, 50000, 2},
+		{66736, 800, 1}, {66736, 800, 2}, {1202, 400, 1},
+	} {
+		b.Run(fmt.Sprintf("n=%d/m=%d/w=%d", c.n, c.m, c.w), func(b *testing.B) {
 			rnd := rand.New(rand.NewPCG(3, 3))
-			p := NewCorrelator(randComplex(rnd, c.m), c.n)
+			p := NewCorrelatorWorkers(randComplex(rnd, c.m), c.n, c.w)
 			x, dst := randComplex(rnd, c.n), make([]complex128, c.n)
 			b.ReportAllocs()
 			for b.Loop() {
 				p.Apply(dst, x)
 			}
-			b.ReportMetric(float64(len(p.buf)), "fftlen")
+			b.ReportMetric(float64(p.fft.n), "fftlen")
+			b.ReportMetric(float64((c.n+p.step-1)/p.step), "blocks")
 		})
 	}
 }

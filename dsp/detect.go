@@ -168,15 +168,43 @@ func (c *CFAR) Thresholds(dst, power []float64) []float64 {
 	for i, v := range power {
 		c.prefix[i+1] = c.prefix[i] + v
 	}
-	for k := range power {
+	// Cells whose training cells all lie inside power need no clamping:
+	// [inLo, inHi), with 2·half cells each.
+	half := c.Train / 2
+	inLo, inHi := c.Guard+half, n-c.Guard-half
+	if half == 0 || inLo >= inHi {
+		inLo, inHi = n, n
+	}
+	if inLo < inHi {
+		a := c.Multiplier(2*half) / float64(2*half)
+		p := c.prefix
+		for k := inLo; k < inHi; k++ {
+			s := p[k-c.Guard] - p[k-c.Guard-half] + p[k+c.Guard+1+half] - p[k+c.Guard+1]
+			if s < 0 {
+				s = 0
+			}
+			dst[k] = a * s
+		}
+	}
+	lastM, lastA := -1, 0.0
+	edge := func(k int) {
 		lo1, hi1, lo2, hi2 := c.TrainingCells(k, n)
 		m := hi1 - lo1 + hi2 - lo2
 		if m == 0 {
 			dst[k] = math.Inf(1)
-			continue
+			return
+		}
+		if m != lastM { // the count changes only near the ends
+			lastM, lastA = m, c.Multiplier(m)/float64(m)
 		}
 		s := c.prefix[hi1] - c.prefix[lo1] + c.prefix[hi2] - c.prefix[lo2]
-		dst[k] = c.Multiplier(m) * math.Max(s, 0) / float64(m)
+		dst[k] = lastA * math.Max(s, 0)
+	}
+	for k := range inLo {
+		edge(k)
+	}
+	for k := inHi; k < n; k++ {
+		edge(k)
 	}
 	return dst
 }

@@ -82,15 +82,20 @@ func TestCFARFalseAlarmRate(t *testing.T) {
 // paths agree.
 func TestCFARLevelMatchesThresholds(t *testing.T) {
 	r := rand.New(rand.NewPCG(2, 2))
-	p := make([]float64, 300)
-	for i := range p {
-		p[i] = r.ExpFloat64() * float64(1+i%7)
-	}
-	c := &CFAR{PFA: 1e-5, Guard: 2, Train: 16}
-	th := c.Thresholds(nil, p)
-	for k := range p {
-		if l := c.Level(p, k); math.Abs(l-th[k]) > 1e-9*l {
-			t.Fatalf("cell %d: Level %v, Thresholds %v", k, l, th[k])
+	// Lengths shorter than, equal to and longer than the CFAR window
+	// (2·guard + train + 1 = 21 cells), so that the clamped edge path and
+	// the interior path are both exercised.
+	for _, n := range []int{1, 5, 20, 21, 22, 300} {
+		p := make([]float64, n)
+		for i := range p {
+			p[i] = r.ExpFloat64() * float64(1+i%7)
+		}
+		c := &CFAR{PFA: 1e-5, Guard: 2, Train: 16}
+		th := c.Thresholds(nil, p)
+		for k := range p {
+			if l := c.Level(p, k); math.Abs(l-th[k]) > 1e-9*l && !(math.IsInf(l, 1) && math.IsInf(th[k], 1)) {
+				t.Fatalf("n=%d cell %d: Level %v, Thresholds %v", n, k, l, th[k])
+			}
 		}
 	}
 }

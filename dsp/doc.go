@@ -19,12 +19,18 @@
 //
 // with x taken as zero beyond its end, so an echo whose leading edge is
 // at sample d peaks at y[d]. Fourier transforms are unnormalised, as in
-// gonum.org/v1/gonum/dsp/fourier.
+// gonum.org/v1/gonum/dsp/fourier. The correlation plans use the package's
+// own Stockham FFT (fft.go; lengths with prime factors 2, 3 and 5),
+// which is tested against gonum's to 1e-12 of the transform's norm and
+// runs several times faster.
 //
 // # Purity
 //
-// The package holds no globals, starts no goroutines, does no I/O and
-// never logs. Random draws take an explicit *rand.Rand so that results
+// The package holds no globals, does no I/O and never logs. It starts no
+// goroutines, with one exception approved for speed: a plan made by
+// NewCorrelatorWorkers with more than one worker runs its overlap-save
+// blocks on that many goroutines, which live only inside Apply and share
+// only read-only tables and disjoint parts of the destination. Random draws take an explicit *rand.Rand so that results
 // are deterministic for a seed. Plans (types named …Plan or created by
 // New…) own scratch buffers, are reusable and are not safe for
 // concurrent use. Methods that fill a destination take it first and

@@ -44,8 +44,20 @@ type SlowTimePlan struct {
 	taps  []float64
 	w     []float64
 	scale float64
-	fft   *fourier.CmplxFFT
+	fft   *fourier.CmplxFFT // used when M has a prime factor above 5
+	fast  *fftPlan
 	buf   []complex128
+	work  []complex128
+}
+
+// smooth235 reports whether n has no prime factor above 5.
+func smooth235(n int) bool {
+	for _, p := range []int{2, 3, 5} {
+		for n%p == 0 {
+			n /= p
+		}
+	}
+	return n == 1
 }
 
 // NewSlowTimePlan prepares slow-time processing of n pulses with MTI taps
@@ -69,7 +81,12 @@ func NewSlowTimePlan(n int, h []float64, w Window) *SlowTimePlan {
 		wg += v * v
 	}
 	p.scale = 1 / math.Sqrt(hg*wg)
-	p.fft = fourier.NewCmplxFFT(m)
+	if smooth235(m) {
+		p.fast = newFFTPlan(m)
+		p.work = make([]complex128, m)
+	} else {
+		p.fft = fourier.NewCmplxFFT(m)
+	}
 	p.buf = make([]complex128, m)
 	return p
 }
@@ -106,7 +123,11 @@ func (p *SlowTimePlan) Apply(dst, x []complex128) []complex128 {
 		}
 		p.buf[q] = s * complex(p.w[q]*p.scale, 0)
 	}
-	p.fft.Coefficients(p.buf, p.buf)
+	if p.fast != nil {
+		p.fast.transform(p.buf, p.work)
+	} else {
+		p.fft.Coefficients(p.buf, p.buf)
+	}
 	half := p.m / 2
 	copy(dst[half:], p.buf[:p.m-half])
 	copy(dst[:half], p.buf[p.m-half:])

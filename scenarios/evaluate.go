@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"runtime"
 
 	"github.com/pulsewright/pulsewright/dsp"
 )
@@ -12,7 +13,15 @@ import (
 // dbFloor is the lowest dB value in series: 10·log10(0) is not a number.
 const dbFloor = -100.0
 
-func toDB(p float64) float64 { return math.Max(dsp.DB(p), dbFloor) }
+func toDB(p float64) float64 {
+	if !(p > 1e-10) { // at or below the floor, or NaN (as math.Max would keep it)
+		if p != p {
+			return p
+		}
+		return dbFloor
+	}
+	return dsp.DB(p)
+}
 
 // Evaluate computes the report and the plot series of a valid scenario
 // (as Decode returns it). It checks ctx between stages and returns
@@ -40,14 +49,32 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
+	// A single pulse's plot series (noisy window, compression,
+	// thresholds) read the scene and model without changing them, so they
+	// are computed on a second goroutine while the waveform and target
+	// reports, with their verified suggestions, and the pulse's response
+	// are built on this one.
+	var window chan Series
+	if sc.train == nil {
+		window = make(chan Series, 1)
+		// The compression takes its blocks on two goroutines, so that it
+		// also uses this one's core once the reports are done.
+		go func() { window <- sc.window(min(2, runtime.GOMAXPROCS(0))) }()
+	}
 	res := &Result{}
 	res.Report.Version = ReportVersion
 	res.Report.Scenario = s.Name
 	res.Report.Waveform = m.waveformReport()
-	if err := ctx.Err(); err != nil {
-		return nil, err
+	if ctx.Err() == nil {
+		res.Report.Targets = sc.targetReports(ctx, m, true)
 	}
-	res.Report.Targets = sc.targetReports(ctx, m, true)
+	if window != nil {
+		var lv Series
+		sc.levels(&lv)
+		resp := m.response()
+		res.Series = <-window
+		res.Series.CleanDB, res.Series.ThresholdDB, res.Series.Response = lv.CleanDB, lv.ThresholdDB, resp
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -55,8 +82,6 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 		if res.Series, err = sc.train.series(ctx); err != nil {
 			return nil, err
 		}
-	} else {
-		res.Series = sc.series()
 	}
 	res.Report.Warnings = append([]string{}, m.warnings...)
 	if err := ctx.Err(); err != nil {
@@ -95,8 +120,8 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 
 func (m *model) figures() dsp.Figures {
 	if m.fig == nil {
-		f := dsp.ResponseFigures(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
-		m.fig = &f
+		t, db, f := dsp.ResponseWithFigures(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
+		m.fig, m.plot = &f, newResponsePlot(t, db)
 	}
 	return *m.fig
 }
@@ -115,6 +140,9 @@ func (m *model) interpBandwidth() float64 {
 // doppler returns the peak loss (dB) and time shift (s) of the compressed
 // response at Doppler shift fd, cached per model.
 func (m *model) doppler(fd float64) dopFigure {
+	if fd == 0 {
+		return dopFigure{} // DopplerPlan.Response(0) is 0, 0: no plan needed
+	}
 	if m.dop == nil {
 		m.dop = make(map[float64]dopFigure)
 	}
@@ -272,6 +300,16 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.Figures, dopLoss float64)
 // series synthesises the noisy receive window, compresses it and returns
 // the plot series.
 func (sc *scene) series() Series {
+	s := sc.window(1)
+	sc.levels(&s)
+	s.Response = sc.m.response()
+	return s
+}
+
+// window synthesises the noisy receive window and compresses it on up to
+// workers goroutines: the series but CleanDB, ThresholdDB (levels) and
+// Response.
+func (sc *scene) window(workers int) Series {
 	m := sc.m
 	x := make([]complex128, m.n+m.lead)
 	echo := x[m.lead:]
@@ -291,46 +329,61 @@ func (sc *scene) series() Series {
 	}
 	sc.blank(echo, 0)
 	// x holds lead zeros, then the echo: an echo at window sample d peaks at y[d].
-	y := dsp.NewCorrelator(m.ref, len(x)).Apply(nil, x)
+	y := dsp.NewCorrelatorWorkers(m.ref, len(x), workers).Apply(nil, x)
 	s := Series{
-		RangeM0:     m.rangeOf(0),
-		RangeStepM:  C / (2 * m.fs),
-		Echo:        append([]complex128(nil), echo...),
-		ProfileDB:   make([]float64, m.n),
-		CleanDB:     make([]float64, m.n),
-		ThresholdDB: make([]float64, m.n),
+		RangeM0:    m.rangeOf(0),
+		RangeStepM: C / (2 * m.fs),
+		Echo:       echo, // x is not used after the compression
+		ProfileDB:  make([]float64, m.n),
 	}
 	for k := range m.n {
 		v := y[k]
-		s.ProfileDB[k] = toDB((real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain)
-		s.CleanDB[k] = toDB(sc.total[k])
+		s.ProfileDB[k] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
 	}
+	dsp.PowersDB(s.ProfileDB, s.ProfileDB, dbFloor)
+	for k := 0; k < m.blankEnd(); k++ {
+		s.ProfileDB[k] = dbFloor
+	}
+	return s
+}
+
+// levels fills the noise-free profile and the detection threshold of s
+// (CleanDB, ThresholdDB): they depend on the scene alone, not on the
+// noisy window, so they can be computed beside window.
+func (sc *scene) levels(s *Series) {
+	m := sc.m
+	s.CleanDB, s.ThresholdDB = make([]float64, m.n), make([]float64, m.n)
 	if cf := m.detector(); cf != nil {
-		p := make([]float64, m.n)
+		p := s.CleanDB // holds 1 + total until the dB values below
 		for k := range p {
 			p[k] = 1 + sc.total[k]
 		}
-		th := cf.Thresholds(nil, p)
-		for k, t := range th {
-			s.ThresholdDB[k] = toDB(t)
-		}
+		th := cf.Thresholds(s.ThresholdDB, p)
+		dsp.PowersDB(th, th, dbFloor)
 	} else {
 		t := toDB(dsp.FixedMultiplier(m.s.Receiver.Detector.PFA))
 		for k := range s.ThresholdDB {
 			s.ThresholdDB[k] = t
 		}
 	}
+	dsp.PowersDB(s.CleanDB, sc.total, dbFloor)
 	for k := 0; k < m.blankEnd(); k++ {
-		s.ProfileDB[k], s.CleanDB[k] = dbFloor, dbFloor
+		s.CleanDB[k] = dbFloor
 	}
-	s.Response = m.response()
-	return s
 }
 
-// response returns the zero-Doppler response of the waveform alone.
+// response returns the zero-Doppler response of the waveform alone: the
+// plot computed with the figures when this model computed them, a new
+// one otherwise.
 func (m *model) response() Response {
-	t, db := dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
-	r := Response{RangeM: make([]float64, len(t)), DB: make([]float64, len(db))}
+	if m.plot != nil {
+		return *m.plot
+	}
+	return *newResponsePlot(dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth()))
+}
+
+func newResponsePlot(t, db []float64) *Response {
+	r := &Response{RangeM: make([]float64, len(t)), DB: make([]float64, len(db))}
 	for i := range t {
 		r.RangeM[i] = t[i] * C / 2
 		r.DB[i] = math.Max(db[i], -120)

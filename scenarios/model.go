@@ -28,6 +28,7 @@ type model struct {
 	// over when a later model reuses it.
 	refWarnings []string
 	fig         *dsp.Figures          // figures of the reference, computed once
+	plot        *Response             // the response plot computed with fig, if any
 	dop         map[float64]dopFigure // Doppler loss and shift by Doppler shift
 	dopPlan     *dsp.DopplerPlan
 }
@@ -229,21 +230,8 @@ func (m *model) fold(r float64) (float64, int) {
 	return r - n*m.unambM, int(n)
 }
 
-func hz(v float64) string  { return siUnit(v, "Hz") }
-func sec(v float64) string { return siUnit(v, "s") }
-
-// siUnit formats v with an SI prefix: 2e-5, "s" → "20 µs".
-func siUnit(v float64, unit string) string {
-	for _, p := range []struct {
-		f float64
-		p string
-	}{{1e9, "G"}, {1e6, "M"}, {1e3, "k"}, {1, ""}, {1e-3, "m"}, {1e-6, "µ"}, {1e-9, "n"}} {
-		if math.Abs(v) >= p.f {
-			return fmt.Sprintf("%.3g %s%s", v/p.f, p.p, unit)
-		}
-	}
-	return fmt.Sprintf("%.3g %s", v, unit)
-}
+func hz(v float64) string  { return SI(v, "Hz") }
+func sec(v float64) string { return SI(v, "s") }
 
 func km(r float64) string {
 	if math.Abs(r) >= 1000 {

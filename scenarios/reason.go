@@ -123,7 +123,7 @@ func suggestFix(ctx context.Context, base *model, j int, v verdict, budget *int)
 		if err != nil {
 			continue
 		}
-		sc, err := newScene(ctx, m)
+		sc, err := newSceneFor(ctx, m, j)
 		if err != nil {
 			return ""
 		}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"hash/fnv"
 	"math"
+	"math/bits"
 	"math/cmplx"
 	"math/rand/v2"
 
@@ -47,7 +48,17 @@ type scene struct {
 	targets []*tgt
 	total   []float64 // Σ of every target's power per window sample
 	train   *train    // slow-time processing when radar.pulses > 1
+	// reachLo, reachHi bound the window samples whose power is needed:
+	// a target whose response cannot reach [reachLo, reachHi) keeps an
+	// empty response (see newSceneFor). With partial, point targets'
+	// responses are computed on those samples only.
+	reachLo, reachHi int
+	partial          bool
 }
+
+// reaches reports whether a response over window samples [lo, hi) is
+// needed.
+func (sc *scene) reaches(lo, hi int) bool { return lo < sc.reachHi && hi > sc.reachLo }
 
 // tgt is one target's geometry and noise-free response.
 type tgt struct {
@@ -74,12 +85,32 @@ func streamOf(seed int64, id string, salt uint64) *rand.Rand {
 // newScene computes the noise-free response of every target. Work is
 // checked against ctx between targets.
 func newScene(ctx context.Context, m *model) (*scene, error) {
-	sc := &scene{m: m, total: make([]float64, m.n)}
+	return newSceneFor(ctx, m, -1)
+}
+
+// newSceneFor is newScene when focus < 0. Otherwise it computes only what
+// judging target focus needs: that target's response first, then the
+// responses of the others that reach its peak cell or its detector's
+// training cells there; the rest keep an empty response, so sc.total is
+// exact on those cells only. Used to verify suggested changes.
+func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
+	sc := &scene{m: m, total: make([]float64, m.n), reachHi: m.n}
+	sc.targets = make([]*tgt, len(m.s.Targets))
 	lp := &localPlan{m: m}
-	for _, t := range m.s.Targets {
+	order := make([]int, 0, len(m.s.Targets))
+	if focus >= 0 {
+		order = append(order, focus)
+	}
+	for i := range m.s.Targets {
+		if i != focus {
+			order = append(order, i)
+		}
+	}
+	for n, i := range order {
 		if err := ctx.Err(); err != nil {
 			return nil, err
 		}
+		t := m.s.Targets[i]
 		g := &tgt{t: t, fd: -2 * t.RangeRateMPS / m.lambda}
 		switch t.Kind {
 		case TargetPoint:
@@ -89,26 +120,39 @@ func newScene(ctx context.Context, m *model) (*scene, error) {
 				return nil, err
 			}
 		}
-		for i, p := range g.resp.pow {
-			sc.total[g.resp.lo+i] += p
+		for k, p := range g.resp.pow {
+			sc.total[g.resp.lo+k] += p
 		}
-		sc.targets = append(sc.targets, g)
+		sc.targets[i] = g
+		if n == 0 && focus >= 0 {
+			sc.partial = true
+			sc.reachLo, sc.reachHi = 0, 0
+			if k, _ := g.resp.peak(); k >= 0 {
+				sc.reachLo, sc.reachHi = k, k+1
+				if cf := m.detector(); cf != nil {
+					sc.reachLo, _, _, sc.reachHi = cf.TrainingCells(k, m.n)
+					sc.reachLo, sc.reachHi = min(sc.reachLo, k), max(sc.reachHi, k+1)
+				}
+			}
+		}
 	}
-	if m.s.Radar.Pulses > 1 {
+	if m.s.Radar.Pulses > 1 && focus < 0 { // suggestions are checked on single pulses
 		sc.train = newTrain(m, sc)
 	}
 	return sc, nil
 }
 
 // localPlan correlates short buffers that hold one echo and its full
-// compressed response: length len(pulse) + 2·len(ref) + 2.
+// compressed response: length len(pulse) + len(ref) + 2. The echo starts
+// at local sample len(ref) (plus a fraction), so the response, non-zero
+// at lags 0 … len(pulse)+len(ref), fits.
 type localPlan struct {
 	m    *model
 	c    *dsp.Correlator
 	x, y []complex128
 }
 
-func (lp *localPlan) size() int { return len(lp.m.pulse) + 2*len(lp.m.ref) + 2 }
+func (lp *localPlan) size() int { return len(lp.m.pulse) + len(lp.m.ref) + 2 }
 
 func (lp *localPlan) ensure() {
 	if lp.c == nil {
@@ -139,23 +183,52 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 	if start < m.tau {
 		g.received = math.Max(0, start/m.tau)
 	}
-	lp.ensure()
 	d := g.delay * m.fs
 	b := int(math.Floor(d)) - len(m.ref)
+	// Output j of the local buffer is window sample b+j+lead.
+	lo, hi := max(b+m.lead, 0), min(b+m.lead+lp.size(), m.n)
+	if sc.partial {
+		lo, hi = max(lo, sc.reachLo), min(hi, sc.reachHi)
+	}
+	if lo >= hi || !sc.reaches(lo, hi) {
+		return
+	}
+	lp.ensure()
 	clear(lp.x)
 	dsp.AddEcho(lp.x, m.wave, m.fs, g.delay-float64(b)/m.fs, complex(g.amp, 0)*g.phase, g.fd)
 	sc.blank(lp.x, b)
-	lp.c.Apply(lp.y, lp.x)
-	// y[j] is the output at window sample b+j+lead.
-	lo, hi := max(b+m.lead, 0), min(b+m.lead+len(lp.y), m.n)
-	if lo >= hi {
+	g.resp = response{lo: lo, pow: make([]float64, hi-lo)}
+	if n := lp.size(); sc.partial && (hi-lo)*len(m.ref) <= 2*n*bits.Len(uint(n)) {
+		// A few cells: direct sums cost less than the FFT pair,
+		// about 2·n·log2(n) multiply-adds.
+		for k := lo; k < hi; k++ {
+			v := correlateAt(lp.x, m.ref, k-b-m.lead)
+			g.resp.pow[k-lo] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
+		}
 		return
 	}
-	g.resp = response{lo: lo, pow: make([]float64, hi-lo)}
+	lp.c.Apply(lp.y, lp.x)
 	for k := lo; k < hi; k++ {
 		v := lp.y[k-b-m.lead]
 		g.resp.pow[k-lo] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
 	}
+}
+
+// correlateAt returns Σ_i x[j+i]·conj(h[i]) with x zero beyond its end:
+// output j of dsp.Correlator, directly.
+func correlateAt(x, h []complex128, j int) complex128 {
+	x = x[j:]
+	if len(x) > len(h) {
+		x = x[:len(h)]
+	}
+	h = h[:len(x)]
+	var re, im float64
+	for i, a := range x {
+		c := h[i]
+		re += real(a)*real(c) + imag(a)*imag(c)
+		im += imag(a)*real(c) - real(a)*imag(c)
+	}
+	return complex(re, im)
 }
 
 // blank zeroes the samples of a buffer starting at window sample b that
@@ -188,25 +261,42 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 	}
 	k0 := 1 / m.noiseW * r.PeakPowerW * math.Pow(dsp.FromDB(r.AntennaGainDBi), 2) * m.lambda * m.lambda /
 		(math.Pow(4*math.Pi, 3) * dsp.FromDB(r.SystemLossDB))
-	density := make([]float64, m.n)
 	end := m.blankEnd()
-	lo, hi := m.n, -1
 	first := int(math.Floor(g.t.RangeStartM / m.unambM))
 	last := int(math.Floor(g.t.RangeStopM / m.unambM))
 	if last-first >= maxFolds {
 		last = first + maxFolds - 1
 		m.warn("target %s spans more than %d unambiguous intervals; only the nearest %d are simulated", g.t.ID, maxFolds, maxFolds)
 	}
-	for f := first; f <= last; f++ {
-		base := float64(f) * m.unambM
+	// span returns the window samples [ka, kb] of fold f's true ranges.
+	span := func(f int) (base float64, ka, kb int, ok bool) {
+		base = float64(f) * m.unambM
 		// True ranges of this fold that land in the window.
 		a := math.Max(g.t.RangeStartM, base+m.rangeOf(0))
 		b := math.Min(g.t.RangeStopM, base+m.rangeOf(float64(m.n-1)+0.5))
 		if a >= b {
+			return base, 0, -1, false
+		}
+		ka = int(math.Max(0, math.Floor(m.sampleOf(a-base))))
+		kb = int(math.Min(float64(m.n-1), math.Ceil(m.sampleOf(b-base))))
+		return base, ka, kb, true
+	}
+	klo, khi := m.n, -1
+	for f := first; f <= last; f++ {
+		if _, ka, kb, ok := span(f); ok {
+			klo, khi = min(klo, ka), max(khi, kb)
+		}
+	}
+	if khi < klo {
+		return nil
+	}
+	density := make([]float64, khi-klo+1) // density[k−klo]: only the samples the folds touch
+	lo, hi := m.n, -1
+	for f := first; f <= last; f++ {
+		base, ka, kb, ok := span(f)
+		if !ok {
 			continue
 		}
-		ka := int(math.Max(0, math.Floor(m.sampleOf(a-base))))
-		kb := int(math.Min(float64(m.n-1), math.Ceil(m.sampleOf(b-base))))
 		for k := ka; k <= kb; k++ {
 			// Range slab of sample k: [rk−dr/2, rk+dr/2) clipped to the target.
 			rk := m.rangeOf(float64(k)) + base
@@ -214,7 +304,7 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 			if s1 <= s0 || k < end || rk <= 0 {
 				continue
 			}
-			density[k] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4)
+			density[k-klo] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4)
 			lo, hi = min(lo, k), max(hi, k)
 		}
 		if err := ctx.Err(); err != nil {
@@ -224,7 +314,10 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 	if hi < 0 {
 		return nil
 	}
-	g.density, g.dlo = density[lo:hi+1], lo
+	g.density, g.dlo = density[lo-klo:hi-klo+1], lo
+	if off := len(m.ref) - m.lead; !sc.reaches(lo-off, hi+lp.size()-off) {
+		return nil
+	}
 	// Response kernel |r(l)|² of the Doppler-shifted pulse, l = −len(ref)+1 … len(pulse)−1.
 	lp.ensure()
 	clear(lp.x)
@@ -238,7 +331,7 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 	off := len(m.ref) - m.lead
 	outLo, outHi := max(lo-off, 0), min(hi+len(kern)-off, m.n)
 	pow := make([]float64, outHi-outLo)
-	if len(g.density)*len(kern) <= 1<<22 {
+	if len(g.density)*len(kern) <= 1<<15 { // beyond, the FFT is cheaper
 		for i, q := range g.density {
 			if q == 0 {
 				continue

@@ -69,6 +69,15 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 		v.cell = others(v.peakK)
 		v.threshold = math.Max(v.sceneLevel, v.cell)
 	}
+	if sc.decide(g, &v) == StatusMasked {
+		v.culprit = sc.culprit(j, v, cf)
+	}
+	return v
+}
+
+// decide sets the status of a verdict whose peak and thresholds are
+// measured, as the report format orders the cases, and returns it.
+func (sc *scene) decide(g *tgt, v *verdict) string {
 	switch {
 	case sc.outOfWindow(g):
 		v.status = StatusOutOfWindow
@@ -83,9 +92,8 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 	default:
 		v.status = StatusMasked
 		v.byCell = v.cell >= v.sceneLevel
-		v.culprit = sc.culprit(j, v, cf)
 	}
-	return v
+	return v.status
 }
 
 // outOfWindow reports whether a target's echo folds from beyond the

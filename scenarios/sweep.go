@@ -212,7 +212,7 @@ func (g *Grid) Run(ctx context.Context, workers int, emit func(Point) error) err
 			continue
 		}
 		pending[d.i] = d.rep
-		for {
+		for ctx.Err() == nil { // once cancelled (by the caller too), emit no more
 			rep, ok := pending[next]
 			if !ok {
 				break

@@ -178,20 +178,7 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 		v.cell = others(k, d)
 		v.threshold = math.Max(v.sceneLevel, v.cell)
 	}
-	switch {
-	case sc.outOfWindow(g):
-		v.status = StatusOutOfWindow
-	case sc.inBlind(g):
-		v.status = StatusEclipsed
-	case k < 0 || p <= 0:
-		v.status = StatusOutOfWindow
-	case p >= v.threshold:
-		v.status = StatusDetected
-	case p < v.noiseLevel:
-		v.status = StatusBelowNoise
-	default:
-		v.status = StatusMasked
-		v.byCell = v.cell >= v.sceneLevel
+	if sc.decide(g, &v) == StatusMasked {
 		best := 0.0
 		for i := range sc.targets {
 			if i == j {
@@ -311,16 +298,22 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 		rd.CleanDB[d] = make([]float32, n)
 		lin[d] = make([]float32, n)
 	}
-	const chunk = 1024
+	const chunk = 256
 	err = parallel(ctx, (n+chunk-1)/chunk, func(next func() (int, bool)) {
 		plan := dsp.NewSlowTimePlan(np, mtiTaps(m.s.Receiver.MTI), dspWindow(m.s.Receiver.DopplerWindow))
 		col := make([]complex128, np)
 		out := make([]complex128, nb)
+		block := make([]complex128, chunk*np) // block[i*np+p]: cell c·chunk+i, pulse p
 		for c, ok := next(); ok; c, ok = next() {
-			for k := c * chunk; k < min((c+1)*chunk, n); k++ {
-				for p := range np {
-					col[p] = cube[p*n+k]
+			k0, k1 := c*chunk, min((c+1)*chunk, n)
+			for p := range np { // gather pulse rows in cache-friendly runs
+				row := cube[p*n+k0 : p*n+k1]
+				for i, v := range row {
+					block[i*np+p] = v
 				}
+			}
+			for k := k0; k < k1; k++ {
+				copy(col, block[(k-k0)*np:(k-k0+1)*np])
 				plan.Apply(out, col)
 				for d, v := range out {
 					rd.DB[d][k] = float32(toDB(real(v)*real(v) + imag(v)*imag(v)))

@@ -70,21 +70,21 @@ type targetRow struct {
 func sceneRows(s *scenarios.Scenario) [][2]string {
 	r, wf, rx := s.Radar, s.Waveform, s.Receiver
 	rows := [][2]string{
-		{"Carrier", si(r.CarrierHz, "Hz")},
-		{"Peak power", si(r.PeakPowerW, "W")},
+		{"Carrier", scenarios.SI(r.CarrierHz, "Hz")},
+		{"Peak power", scenarios.SI(r.PeakPowerW, "W")},
 		{"Antenna gain", fmt.Sprintf("%.4g dBi", r.AntennaGainDBi)},
 		{"Noise figure, losses", fmt.Sprintf("%.3g dB, %.3g dB", r.NoiseFigureDB, r.SystemLossDB)},
-		{"Sample rate", si(r.SampleRateHz, "Hz")},
-		{"PRI, pulses", fmt.Sprintf("%s, %d", si(r.PRIS, "s"), r.Pulses)},
+		{"Sample rate", scenarios.SI(r.SampleRateHz, "Hz")},
+		{"PRI, pulses", fmt.Sprintf("%s, %d", scenarios.SI(r.PRIS, "s"), r.Pulses)},
 		{"Receive window", fmt.Sprintf("%.6g – %.6g m", r.WindowStartM, r.WindowStopM)},
-		{"Waveform", waveformText(wf)},
+		{"Waveform", wf.Describe()},
 		{"Compression filter", rx.Filter},
-		{"Weighting", windowText(rx.Window)},
-		{"Detector", detectorText(rx.Detector)},
+		{"Weighting", rx.Window.Describe()},
+		{"Detector", rx.Detector.Describe()},
 		{"Seed", fmt.Sprint(s.Seed)},
 	}
 	for _, t := range s.Targets {
-		rows = append(rows, [2]string{"Target " + t.ID, targetText(t)})
+		rows = append(rows, [2]string{"Target " + t.ID, t.Describe()})
 	}
 	return rows
 }
@@ -92,8 +92,8 @@ func sceneRows(s *scenarios.Scenario) [][2]string {
 func figureRows(r *scenarios.Report) [][2]string {
 	w := r.Waveform
 	rows := [][2]string{
-		{"Pulse width τ", si(w.PulseWidthS, "s")},
-		{"Bandwidth B", si(w.BandwidthHz, "Hz")},
+		{"Pulse width τ", scenarios.SI(w.PulseWidthS, "s")},
+		{"Bandwidth B", scenarios.SI(w.BandwidthHz, "Hz")},
 		{"Time–bandwidth B·τ", fmt.Sprintf("%.4g", w.TimeBandwidth)},
 		{"Compression gain", fmt.Sprintf("%.2f dB", w.CompressionGainDB)},
 		{"Peak sidelobe level (PSLR)", fmt.Sprintf("%.2f dB", w.PSLRDB)},
