@@ -360,15 +360,18 @@ func TestEditLatency(t *testing.T) {
 			ComputeMS float64 `json:"compute_ms"`
 			WaitMS    float64 `json:"wait_ms"`
 			PageMS    float64 `json:"page_ms"`
+			ChartsMS  float64 `json:"charts_ms"`
+			PanelMS   float64 `json:"panel_ms"`
 		}](t, ctx, `window.__pwLatencies`)
 		if len(lat) == 0 {
 			t.Errorf("%s: no latencies recorded", sc.name)
 			continue
 		}
 		long := eval[[]float64](t, ctx, `window.__pwLongTasks`)
-		var ms, comp, wait, page []float64
+		var ms, comp, wait, page, chartsMS, panelMS []float64
 		for _, l := range lat {
 			ms, comp, wait, page = append(ms, l.MS), append(comp, l.ComputeMS), append(wait, l.WaitMS), append(page, l.PageMS)
+			chartsMS, panelMS = append(chartsMS, l.ChartsMS), append(panelMS, l.PanelMS)
 		}
 		t.Logf("%-16s %2d edits  send→paint median %5.0f ms, p90 %5.0f, max %5.0f | server compute %4.0f | send→arrival %4.0f | arrival→paint %4.0f (medians) | long tasks %d, max %.0f ms",
 			sc.name, len(ms), median(ms), quantile(ms, 0.9), slices.Max(ms), median(comp), median(wait), median(page), len(long), maxOr0(long))
@@ -377,7 +380,7 @@ func TestEditLatency(t *testing.T) {
 		for _, name := range slices.Sorted(maps.Keys(perChart)) {
 			parts = append(parts, fmt.Sprintf("%s %.0f", name, median(perChart[name])))
 		}
-		t.Logf("%-16s setOption per chart, median ms: %s", "", strings.Join(parts, ", "))
+		t.Logf("%-16s page: charts %.0f ms, panels %.0f ms; setOption per chart: %s (medians)", "", median(chartsMS), median(panelMS), strings.Join(parts, ", "))
 		shot(t, ctx, sc.name)
 	}
 }

@@ -97,7 +97,9 @@ function applyFrame() {
   pendingFrame = null;
   if (!f) return;
   lastFrame = f;
+  const t0 = performance.now();
   plots.apply(f);
+  const t1 = performance.now();
   editor.setReport(f.report);
   renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms);
   if (session.sent.has(f.id) && f.id > lastErrorId) {
@@ -107,14 +109,18 @@ function applyFrame() {
   }
   if (f.link) updateAddress(f.link);
   const sentAt = session.sent.get(f.id);
+  const t2 = performance.now();
   performance.mark(`pw-apply-${f.id}`);
   requestAnimationFrame(() => {
     performance.mark(`pw-paint-${f.id}`);
     if (sentAt !== undefined) {
       const m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
       // ms: send → new pixels; wait_ms: send → the frame's arrival (server
-      // and network); page_ms: arrival → new pixels (parse excluded).
-      latencies.push({ id: f.id, ms: m.duration, compute_ms: f.compute_ms, wait_ms: f.arrivedAt - sentAt, page_ms: performance.now() - f.arrivedAt });
+      // and network); page_ms: arrival → new pixels (parse excluded), of
+      // which charts_ms went to the charts' setOption and panel_ms to the
+      // editor and figures panels.
+      latencies.push({ id: f.id, ms: m.duration, compute_ms: f.compute_ms, wait_ms: f.arrivedAt - sentAt, page_ms: performance.now() - f.arrivedAt,
+        charts_ms: t1 - t0, panel_ms: t2 - t1 });
       if (latencies.length > 1000) latencies.shift();
     }
   });
