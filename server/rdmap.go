@@ -214,8 +214,8 @@ func (l *rdLayout) snap(c cell) (bin, k int) {
 }
 
 // rdCutsChart plots the cuts through the selected cell: the map's row
-// against range (at the cell's Doppler bin, at full resolution inside
-// the zoom) and its column against range rate (every bin), noisy and
+// against range (at the cell's Doppler bin, over the map's range: the
+// zoom, at full resolution inside it) and its column against range rate (every bin), noisy and
 // noise-free. ok is false without a map or a selected cell.
 func rdCutsChart(res *scenarios.Result, vw view) (chartOut, bool) {
 	l := newRDLayout(res, vw)
@@ -224,10 +224,12 @@ func rdCutsChart(res *scenarios.Result, vw view) (chartOut, bool) {
 	}
 	bin, k := l.snap(*vw.cell)
 	rd := l.rd
-	sp := plan(l.g, vw.rangeM, max(vw.width/2, minWidthPx))
-	row, clean := rd.DB[bin], rd.CleanDB[bin]
-	rangeCut := dbSeries32(l.g, row, sp)
-	rangeClean := dbSeries32(l.g, clean, sp)
+	// The range cut spans the map's range: the zoom, if any.
+	g := grid{x0: l.g.x(l.lo), dx: l.g.dx, n: l.hi - l.lo}
+	sp := plan(g, nil, max(vw.width/2, minWidthPx))
+	row, clean := rd.DB[bin][l.lo:l.hi], rd.CleanDB[bin][l.lo:l.hi]
+	rangeCut := dbSeries32(g, row, sp)
+	rangeClean := dbSeries32(g, clean, sp)
 	var dop, dopClean points
 	for _, d := range l.order {
 		dop = append(dop, clampAmp(rd.RangeRateMPS[d]), clampDB(float64(rd.DB[d][k])))

@@ -181,6 +181,25 @@ func TestRDCutsChart(t *testing.T) {
 	if p := peak(o.Series[1].Data); math.Abs(p[0]-heli.RangeM) > res.Report.Waveform.Mainlobe3dBM {
 		t.Errorf("noise-free range cut peaks at %g m, want %g", p[0], heli.RangeM)
 	}
+	// Zoomed, the range cut spans the zoom only, every sample.
+	zoom := [2]float64{heli.RangeM - 150, heli.RangeM + 150}
+	vz := vw
+	vz.rangeM = &zoom
+	cz, _ := rdCutsChart(res, vz)
+	var oz struct {
+		Series []struct {
+			Data [][2]float64 `json:"data"`
+		} `json:"series"`
+	}
+	if err := json.Unmarshal(cz.option, &oz); err != nil {
+		t.Fatal(err)
+	}
+	step := res.Series.RangeStepM
+	rc := oz.Series[0].Data
+	if first, last := rc[0][0], rc[len(rc)-1][0]; first < zoom[0]-step || last > zoom[1]+step || math.Abs(rc[1][0]-rc[0][0]-step) > 0.01 {
+		t.Errorf("zoomed range cut over %g…%g m in steps of %g m, want %g…%g m in steps of %g m", first, last, rc[1][0]-rc[0][0], zoom[0], zoom[1], step)
+	}
+
 	// The map marks the selected cell.
 	m, _ := rdmapChart(res, vw)
 	om, _ := decodeHeat(t, m)

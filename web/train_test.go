@@ -3,6 +3,8 @@ package web_test
 import (
 	"context"
 	"fmt"
+	"math"
+	"strings"
 	"testing"
 
 	"github.com/chromedp/chromedp"
@@ -80,6 +82,25 @@ func TestPulseTrainMap(t *testing.T) {
 	}
 	shot(t, ctx, "cuts")
 
+	// The map's tooltip gives the Doppler shift beside the range rate.
+	tip := eval[string](t, ctx, `(() => { const p = window.__pw.plots; const d = p.charts.rdmap.getOption().series[0].data[0];
+		return p.mapTip({seriesId: 'rdmap', data: d}); })()`)
+	if !strings.Contains(tip, " m/s · ") || !strings.Contains(tip, " Hz\n") || !strings.Contains(tip, "dB re noise") {
+		t.Errorf("map tooltip %q", tip)
+	}
+
+	// The map follows the profile's zoom, at full resolution inside it.
+	do(t, ctx, chromedp.Evaluate[chromedp.Void](`window.__pw.plots.charts.profile.dispatchAction({type: 'dataZoom', dataZoomIndex: 0, startValue: 6800, endValue: 7400})`))
+	waitFor(t, ctx, "the zoomed map", `(() => { const x = window.__pw.plots.charts.rdmap.getOption().xAxis[1]; return x.min > 6750 && x.max < 7450; })()`)
+	step := eval[float64](t, ctx, `(() => { const d = window.__pw.plots.charts.rdmap.getOption().xAxis[0].data; return (d[d.length - 1] - d[0]) / (d.length - 1); })()`)
+	// A column per range sample: c/(2·fs), fs defaulting to 2·B.
+	cell := eval[float64](t, ctx, `(() => { const s = window.__pw.store.scenario;
+		return 299792458 / 2 / (s.radar.sample_rate_hz || 2 * window.__pw.frame().report.waveform.bandwidth_hz); })()`)
+	if math.Abs(step-cell) > 0.05*cell {
+		t.Errorf("zoomed map: columns %.2f m apart, want one per range sample (%.2f m)", step, cell)
+	}
+	shot(t, ctx, "zoomed")
+
 	// Back to a single pulse: the map's tabs go, the echo returns.
 	loadDemo(t, ctx, "harbour-skiff")
 	waitFor(t, ctx, "the echo pane", `document.querySelector('[data-pane="echo"]').classList.contains('on') && document.querySelector('[data-show="rdmap"]').hidden`)
@@ -109,4 +130,24 @@ func TestAmbiguityTabs(t *testing.T) {
 		}
 	}
 	shot(t, ctx, "cuts")
+}
+
+// A frame skipped because a newer one came within the same animation
+// frame hands its full options on: the merges after them need them.
+func TestSkippedFrameKeepsFullOptions(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	got := eval[string](t, ctx, `import('/js/charts.js').then(({ carryCharts }) => {
+		const full = (n) => ({ replace: true, option: { n } }), merge = (n) => ({ replace: false, option: { n } });
+		const show = (c) => Object.keys(c).sort().map((k) => k + ':' + [c[k]].flat().map((e) => (e.replace ? 'R' : 'm') + e.option.n).join('')).join(' ');
+		return [
+			show(carryCharts({ profile: full(1), response: full(2) }, { profile: merge(3) })),
+			show(carryCharts({ profile: merge(1) }, { profile: merge(2) })),
+			show(carryCharts({ profile: full(1) }, { profile: full(2) })),
+			show(carryCharts(carryCharts({ profile: full(1) }, { profile: merge(2) }), { profile: merge(3), echo: full(4) })),
+		].join(' | '); })`)
+	want := "profile:R1m3 response:R2 | profile:m1m2 | profile:R2 | echo:R4 profile:R1m2m3"
+	if got != want {
+		t.Errorf("carried charts\n got %s\nwant %s", got, want)
+	}
 }

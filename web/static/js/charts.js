@@ -30,6 +30,18 @@ const wrap = (text, width = 52) => {
 };
 const num = (v, d) => (Number.isFinite(v) ? v.toFixed(d) : '—');
 
+// carryCharts joins the charts of a skipped frame to the next one's:
+// chart name → the list of options to apply in turn (see Plots.apply).
+export function carryCharts(older, newer) {
+  const out = { ...newer };
+  for (const [name, entry] of Object.entries(older)) {
+    const prev = [entry].flat();
+    const next = name in newer ? [newer[name]].flat() : [];
+    out[name] = next.some((e) => e.replace) ? next : [...prev, ...next];
+  }
+  return out;
+}
+
 export class Plots {
   // els: chart name → container element; a container inside a tab pane
   // (.pane) is drawn only while its pane shows.

@@ -4,7 +4,7 @@
 import { $, $$, download } from './dom.js';
 import { Editor } from './editor.js';
 import { renderFigures } from './figures.js';
-import { Plots } from './charts.js';
+import { Plots, carryCharts } from './charts.js';
 import { Session } from './session.js';
 import { api, decodeLink, linkPart } from './share.js';
 import { Store } from './store.js';
@@ -75,18 +75,6 @@ function onFrame(msg) {
   if (applyScheduled) return;
   applyScheduled = true;
   requestAnimationFrame(applyFrame);
-}
-
-// carryCharts joins the charts of a skipped frame to the next one's:
-// chart name → the list of options to apply in turn (see Plots.apply).
-function carryCharts(older, newer) {
-  const out = { ...newer };
-  for (const [name, entry] of Object.entries(older)) {
-    const prev = [entry].flat();
-    const next = name in newer ? [newer[name]].flat() : [];
-    out[name] = next.some((e) => e.replace) ? next : [...prev, ...next];
-  }
-  return out;
 }
 
 // Apply the newest frame in one animation frame; older unapplied frames
