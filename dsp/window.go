@@ -184,27 +184,7 @@ func (t Taylor) Coefficients(dst []float64) []float64 {
 	if n == 1 || t.NBar <= 1 {
 		return dst
 	}
-	b := math.Pow(10, math.Abs(t.SidelobeDB)/20)
-	a := math.Acosh(b) / math.Pi
-	nb := float64(t.NBar)
-	s2 := nb * nb / (a*a + (nb-0.5)*(nb-0.5))
-	fm := make([]float64, t.NBar-1)
-	for mi := range fm {
-		m := float64(mi + 1)
-		num := 1.0
-		if mi%2 == 1 {
-			num = -1
-		}
-		den := 2.0
-		for j := range fm {
-			q := float64(j + 1)
-			num *= 1 - m*m/s2/(a*a+(q-0.5)*(q-0.5))
-			if j != mi {
-				den *= 1 - m*m/(q*q)
-			}
-		}
-		fm[mi] = num / den
-	}
+	fm := taylorCoefficients(t.NBar, -math.Abs(t.SidelobeDB))
 	pattern := func(k float64) float64 {
 		s := 1.0
 		for mi, f := range fm {
