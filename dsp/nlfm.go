@@ -4,8 +4,6 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
-
-	"gonum.org/v1/gonum/dsp/fourier"
 )
 
 // NLFM is a nonlinear-FM pulse designed by the principle of stationary
@@ -129,7 +127,7 @@ func taylorNbar(sll float64) int {
 
 // measurePSLR returns the peak sidelobe ratio (dB) of the autocorrelation
 // of g sampled at 4B: the largest |r| beyond the first minimum after lag
-// 0, relative to r_0. It uses a zero-padded FFT (gonum).
+// 0, relative to r_0. It uses a zero-padded FFT.
 func (g *NLFM) measurePSLR() float64 {
 	fs := 4 * g.band
 	x := Sample(nil, g, fs, 0)
@@ -137,14 +135,15 @@ func (g *NLFM) measurePSLR() float64 {
 	for n < 2*len(x) {
 		n <<= 1
 	}
-	fft := fourier.NewCmplxFFT(n)
-	buf := make([]complex128, n)
-	copy(buf, x)
-	spec := fft.Coefficients(nil, buf)
-	for i, v := range spec {
-		spec[i] = complex(real(v)*real(v)+imag(v)*imag(v), 0)
+	fft := newFFTPlan(n) // n is a power of two
+	r := make([]complex128, n)
+	work := make([]complex128, n)
+	copy(r, x)
+	fft.transform(r, work)
+	for i, v := range r {
+		r[i] = complex(real(v)*real(v)+imag(v)*imag(v), 0)
 	}
-	r := fft.Sequence(buf, spec)
+	fft.inverse(r, work)
 	mag := func(k int) float64 { return cmplx.Abs(r[k]) }
 	k := 1
 	for k < len(x)-1 && mag(k+1) < mag(k) {
