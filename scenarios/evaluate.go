@@ -45,6 +45,11 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
+	// The window's compression plan is kept across frames by the Engine
+	// alone: suggestions build models of their own and must not share it.
+	if p := e.last; p != nil && p.winCorr != nil && p.n == m.n && len(p.ref) > 0 && len(p.ref) == len(m.ref) && &p.ref[0] == &m.ref[0] {
+		m.winCorr = p.winCorr
+	}
 	sc, err := newScene(ctx, m)
 	if err != nil {
 		return nil, err
@@ -329,7 +334,10 @@ func (sc *scene) window(workers int) Series {
 	}
 	sc.blank(echo, 0)
 	// x holds lead zeros, then the echo: an echo at window sample d peaks at y[d].
-	y := dsp.NewCorrelatorWorkers(m.ref, len(x), workers).Apply(nil, x)
+	if m.winCorr == nil || m.winCorr.Len() != len(x) {
+		m.winCorr = dsp.NewCorrelatorWorkers(m.ref, len(x), workers)
+	}
+	y := m.winCorr.Apply(nil, x)
 	s := Series{
 		RangeM0:    m.rangeOf(0),
 		RangeStepM: C / (2 * m.fs),

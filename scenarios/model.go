@@ -31,6 +31,7 @@ type model struct {
 	plot        *Response             // the response plot computed with fig, if any
 	dop         map[float64]dopFigure // Doppler loss and shift by Doppler shift
 	dopPlan     *dsp.DopplerPlan
+	winCorr     *dsp.Correlator // compression plan of the whole window, kept across frames
 }
 
 // dopFigure is the Doppler response of the reference at one Doppler shift.
