@@ -166,6 +166,9 @@ func (m *model) waveformReport() WaveformReport {
 	w, r := m.s.Waveform, m.s.Radar
 	fig := m.figures()
 	B, tau := w.Bandwidth(), w.PulseWidth()
+	if w.Kind == KindNLFM && m.s.Receiver.Window.Kind == WindowNone && fig.PSLRDB > w.DesignSidelobeDB+3 {
+		m.warn("the NLFM reaches a PSLR of %.1f dB, short of its %.0f dB design: at B·τ = %.0f the ripple of a stationary-phase design limits it; a longer pulse or more bandwidth gets closer", fig.PSLRDB, w.DesignSidelobeDB, B*tau)
+	}
 	rep := WaveformReport{
 		Kind:                   w.Kind,
 		PulseWidthS:            tau,

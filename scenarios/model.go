@@ -206,7 +206,7 @@ func (m *model) checkSampling() {
 	if m.s.Waveform.Kind == KindCostas && m.fs < 2*B {
 		m.warn("costas hops span %s; sample at twice that or more to avoid aliasing the outer hops", hz(B))
 	}
-	if m.s.Radar.WindowStartM < C*m.tau/2 {
+	if start := m.s.Radar.WindowStartM; start > 0 && start < C*m.tau/2 {
 		m.warn("the receive window starts at %.0f m, inside the %.0f m blind range of the %s pulse: the receiver is blanked there", m.s.Radar.WindowStartM, C*m.tau/2, sec(m.tau))
 	}
 }
