@@ -255,12 +255,21 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 	g := windowGrid(s, len(s.ProfileDB))
 	sp := plan(g, vw.rangeM, vw.width)
 	b := newBuilder("range (m)", "dB re output noise", profileYMin)
-	b.add(SeriesProfile, "profile", colourProfile, dbSeries(g, s.ProfileDB, sp), opts.LineStyle{Width: 1.2})
-	b.add(SeriesClean, "noise-free", colourClean, dbSeries(windowGrid(s, len(s.CleanDB)), s.CleanDB, sp), opts.LineStyle{Width: 1})
+	profileName, cleanName := "profile", "noise-free"
+	if s.RangeDoppler != nil {
+		// A pulse train's profile is the largest value over Doppler of each
+		// range cell: its noise sits a few dB above the 0 dB floor.
+		profileName, cleanName = "max over Doppler", "noise-free, max over Doppler"
+	}
+	b.add(SeriesProfile, profileName, colourProfile, dbSeries(g, s.ProfileDB, sp), opts.LineStyle{Width: 1.2})
+	b.add(SeriesClean, cleanName, colourClean, dbSeries(windowGrid(s, len(s.CleanDB)), s.CleanDB, sp), opts.LineStyle{Width: 1})
 	b.add(SeriesThreshold, "threshold", colourThreshold, dbSeries(windowGrid(s, len(s.ThresholdDB)), s.ThresholdDB, sp), opts.LineStyle{Width: 1.2, Type: "dashed"})
 	last := g.x(max(g.n-1, 0))
 	b.add(SeriesNoise, "noise floor", colourNoise, points{g.x0, clampDB(s.NoiseDB), last, clampDB(s.NoiseDB)}.appendJSON(nil, dbDecimals), opts.LineStyle{Width: 1, Type: "dotted"})
 	key := "profile/1"
+	if s.RangeDoppler != nil {
+		key += "+map"
+	}
 	if ref != nil {
 		rs := &ref.Series
 		rg := windowGrid(rs, len(rs.ProfileDB))
