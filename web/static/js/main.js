@@ -164,10 +164,14 @@ function onStatus(state) {
 
 // --- notices, tabs, hover card ---
 
+// Information notices fade after a few seconds; errors stay until closed.
+let noticeTimer = 0;
 function notice(text, kind = 'info') {
   $('#notice-text').textContent = text;
   $('#notice').dataset.kind = kind;
   $('#notice').hidden = false;
+  clearTimeout(noticeTimer);
+  if (kind !== 'error') noticeTimer = setTimeout(() => { $('#notice').hidden = true; }, 6000);
 }
 $('#notice-close').addEventListener('click', () => { $('#notice').hidden = true; });
 
