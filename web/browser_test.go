@@ -320,7 +320,8 @@ func TestBadValueShowsErrorBesideField(t *testing.T) {
 	do(t, ctx, chromedp.Click(chromedp.CSS(`.tabs [data-tab="radar"]`)))
 	typeInto(t, ctx, `input[data-path="radar.carrier_hz"]`, "400")
 	const slot2 = `document.querySelector('[data-err-for="radar.carrier_hz"]')`
-	waitFor(t, ctx, "the carrier error", slot2+`.textContent.includes('above the maximum')`)
+	// The SI message is restated in the field's own unit.
+	waitFor(t, ctx, "the carrier error", slot2+`.textContent.includes('400 GHz is above the maximum 300 GHz')`)
 	shot(t, ctx, "carrier")
 }
 

@@ -416,7 +416,7 @@ export class Editor {
         orphans.push(fe.path ? `${fe.path}: ${fe.message}` : fe.message);
         continue;
       }
-      const text = path === fe.path ? fe.message : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
+      const text = path === fe.path ? inUnits(fe.message, slots[0]) : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
       for (const slot of slots) {
         slot.textContent = slot.textContent ? `${slot.textContent}; ${text}` : text;
         const input = slot.parentElement && slot.parentElement.querySelector('input, select, textarea');
@@ -439,4 +439,20 @@ export class Editor {
     }
     return null;
   }
+}
+
+// The server states range errors in SI ("4e+11 is above the maximum
+// 3e+11"); beside a field shown in another unit (GHz), restate the numbers
+// of such a message in that unit ("400 GHz is above the maximum 300 GHz").
+const rangeMessage = /^(-?[\d.]+(?:e[+-]?\d+)?) (is above the maximum|is below the minimum|must be above) (-?[\d.]+(?:e[+-]?\d+)?)(.*)$/;
+function inUnits(msg, slot) {
+  const field = slot.parentElement;
+  const input = field && field.querySelector('input[data-scale]');
+  const unit = field && field.querySelector('.unit');
+  const scale = input ? Number(input.dataset.scale) : 1;
+  const m = rangeMessage.exec(msg);
+  if (!m || !unit || !(scale > 0) || scale === 1) return msg;
+  const show = (x) => `${Number((Number(x) / scale).toPrecision(6))} ${unit.textContent}`;
+  const rest = m[4].replace(/(above|at most) (-?[\d.]+(?:e[+-]?\d+)?)/g, (_, w, x) => `${w} ${show(x)}`);
+  return `${show(m[1])} ${m[2]} ${show(m[3])}${rest}`;
 }
