@@ -45,7 +45,11 @@ type Config struct {
 	Static      fs.FS         // the page's files; overrides Dev and the embedded copy (tests)
 	MaxSessions int           // open websocket sessions at most; default 64
 	APITimeout  time.Duration // deadline of a REST request; default 30 s
-	StartDemo   string        // the demo the page opens on; default scenarios.DefaultDemo
+	// StarveAfter bounds how long new edits may keep cancelling a
+	// session's computation in flight (see session.cancelBefore); default
+	// 250 ms.
+	StarveAfter time.Duration
+	StartDemo   string // the demo the page opens on; default scenarios.DefaultDemo
 	// SessionEvaluator, when set, makes each websocket session its own
 	// evaluator for the edited scenario, one that may keep state from edit
 	// to edit (a scenarios.Engine). It is used by one goroutine at a time.
@@ -85,6 +89,9 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	}
 	if cfg.Addr == "" {
 		cfg.Addr = DefaultAddr
+	}
+	if cfg.StarveAfter <= 0 {
+		cfg.StarveAfter = starveAfter
 	}
 	if cfg.MaxSessions <= 0 {
 		cfg.MaxSessions = 64

@@ -91,7 +91,8 @@ type session struct {
 	lastFrame time.Time // when compute last put a frame
 }
 
-// starveAfter bounds how long edits may keep cancelling computations: when
+// starveAfter is the default of Config.StarveAfter, which bounds how long
+// edits may keep cancelling computations: when
 // the page has had no frame for this long, a computation in flight runs to
 // its end (and its frame is sent) even though a newer edit is waiting, so
 // that a slider dragged faster than the scene evaluates still animates.
@@ -245,11 +246,11 @@ func rejection(id int64, err error) *errorMsg {
 }
 
 // cancelBefore cancels the running computation if it serves a state older
-// than gen, unless the page has waited starveAfter for a frame.
+// than gen, unless the page has waited Config.StarveAfter for a frame.
 func (ss *session) cancelBefore(gen uint64) {
 	ss.mu.Lock()
 	defer ss.mu.Unlock()
-	if ss.runCancel != nil && ss.runGen < gen && time.Since(ss.lastFrame) < starveAfter {
+	if ss.runCancel != nil && ss.runGen < gen && time.Since(ss.lastFrame) < ss.srv.cfg.StarveAfter {
 		ss.runCancel()
 		ss.runCancel = nil
 	}

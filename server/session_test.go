@@ -223,7 +223,9 @@ func TestSessionCancelsStale(t *testing.T) {
 		}
 		return plausibleResult(s), nil
 	}}
-	_, ts := mustServer(t, eval, nil)
+	// A long starvation bound keeps the test independent of the machine's
+	// speed: here every new edit must cancel the one in flight.
+	_, ts := mustServer(t, eval, func(c *Config) { c.StarveAfter = time.Minute })
 	c := mustDial(t, ts, nil)
 	sendScenario(t, c, 0, `{"version":1,"name":"first","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
 	<-started
