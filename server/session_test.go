@@ -239,6 +239,41 @@ func TestSessionCancelsStale(t *testing.T) {
 	}
 }
 
+// TestSessionStarvation: once the page has waited StarveAfter for a frame,
+// a new edit no longer cancels the computation in flight; its frame is
+// sent, then the newest edit's, so a fast slider still animates.
+func TestSessionStarvation(t *testing.T) {
+	release := make(chan struct{})
+	started := make(chan string, 10)
+	eval := &fakeEval{EvaluateFn: func(ctx context.Context, s *scenarios.Scenario) (*scenarios.Result, error) {
+		started <- s.Name
+		if s.Name == "slow" {
+			select {
+			case <-release:
+			case <-ctx.Done():
+				return nil, ctx.Err()
+			}
+		}
+		return plausibleResult(s), nil
+	}}
+	_, ts := mustServer(t, eval, func(c *Config) { c.StarveAfter = time.Nanosecond })
+	c := mustDial(t, ts, nil)
+	sendScenario(t, c, 0, `{"version":1,"name":"first","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
+	<-started
+	next(t, c, 0)
+	sendScenario(t, c, 1, `{"version":1,"name":"slow","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
+	<-started
+	sendScenario(t, c, 2, `{"version":1,"name":"quick","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
+	time.Sleep(20 * time.Millisecond) // let the reader hand the edit over; a cancel would end "slow" now
+	close(release)
+	if m := next(t, c, 1); m.Report.Scenario != "slow" {
+		t.Fatalf("first frame after the slow edit is %q, want the slow one", m.Report.Scenario)
+	}
+	if m := next(t, c, 2); m.Report.Scenario != "quick" {
+		t.Fatalf("then %q, want quick", m.Report.Scenario)
+	}
+}
+
 func TestSessionCap(t *testing.T) {
 	_, ts := mustServer(t, nil, func(c *Config) { c.MaxSessions = 2 })
 	mustDial(t, ts, nil)
