@@ -319,4 +319,11 @@ func TestLeastSquaresBarker13(t *testing.T) {
 	if ls.MismatchLossDB < 0.1 || ls.MismatchLossDB > 0.3 {
 		t.Errorf("least-squares mismatch loss %.3f dB, want about 0.20", ls.MismatchLossDB)
 	}
+	// The minimax filter of the same length reaches 20 dB below the matched
+	// filter: −43.09 dB, the linear-programming optimum of scipy's linprog
+	// (testdata/golden/minimax.py).
+	mm := mustEvaluate(t, mustDecode(t, strings.Replace(doc, "%s", "minimax", 1))).Report.Waveform
+	if mm.PSLRDB > matched.PSLRDB-20 || math.Abs(mm.PSLRDB+43.09) > 0.05 {
+		t.Errorf("minimax PSLR %.2f dB, want −43.09 (20 dB below %.2f)", mm.PSLRDB, matched.PSLRDB)
+	}
 }

@@ -14,7 +14,7 @@ var (
 	detectorKinds = []string{DetectorCA, DetectorOS, DetectorFixed}
 	targetKinds   = []string{TargetPoint, TargetExtended, TargetVolume}
 	fluctuations  = []string{FluctuationNone, "swerling1", "swerling2", "swerling3", "swerling4"}
-	filters       = []string{FilterMatched, FilterLeastSquares}
+	filters       = []string{FilterMatched, FilterLeastSquares, FilterMinimax}
 	sweeps        = []string{"up", "down"}
 
 	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "view"}

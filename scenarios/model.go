@@ -168,16 +168,21 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 		m.pulse = dsp.Sample(nil, wave, m.fs, 0)
 	}
 	switch s.Receiver.Filter {
-	case FilterLeastSquares:
+	case FilterLeastSquares, FilterMinimax:
 		// Keep the matched main lobe of an oversampled code (samples per chip > 1).
-		half := int(math.Ceil(m.fs*s.Waveform.ChipS-1e-9)) - 1
-		h, lead, err := dsp.LeastSquaresFilterMainlobe(m.pulse, s.Receiver.FilterLengthFactor*len(m.pulse), max(half, 0))
+		half := max(int(math.Ceil(m.fs*s.Waveform.ChipS-1e-9))-1, 0)
+		taps := s.Receiver.FilterLengthFactor * len(m.pulse)
+		design := dsp.LeastSquaresFilterMainlobe
+		if s.Receiver.Filter == FilterMinimax {
+			design = dsp.MinimaxFilter
+		}
+		h, lead, err := design(m.pulse, taps, half)
 		if err != nil {
-			return nil, fmt.Errorf("least-squares filter: %w", err)
+			return nil, fmt.Errorf("%s filter: %w", s.Receiver.Filter, err)
 		}
 		m.ref, m.lead = h, lead
 		if s.Receiver.Window.Kind != WindowNone {
-			m.warn("receiver.window %s is not applied: the least-squares filter sets its own weighting", s.Receiver.Window.Kind)
+			m.warn("receiver.window %s is not applied: the %s filter sets its own weighting", s.Receiver.Window.Kind, s.Receiver.Filter)
 			m.refWarnings = append(m.refWarnings, m.warnings[len(m.warnings)-1])
 		}
 	default:

@@ -200,12 +200,18 @@ func candidates(s *Scenario, j int, v verdict) []candidate {
 		{"A 4-term Blackman–Harris window", window(Window{Kind: WindowBlackmanHarris})},
 	}
 	if w.IsPhaseCode() && s.Receiver.Filter == FilterMatched {
-		c = append([]candidate{{"A least-squares mismatched filter (3× the code length)", func(t *Scenario) bool {
-			t.Receiver.Filter = FilterLeastSquares
-			t.Receiver.FilterLengthFactor = 3
-			t.Receiver.Window = Window{Kind: WindowNone}
-			return true
-		}}}, c...)
+		mismatched := func(kind string) func(*Scenario) bool {
+			return func(t *Scenario) bool {
+				t.Receiver.Filter = kind
+				t.Receiver.FilterLengthFactor = 3
+				t.Receiver.Window = Window{Kind: WindowNone}
+				return true
+			}
+		}
+		c = append([]candidate{
+			{"A least-squares mismatched filter (3× the code length)", mismatched(FilterLeastSquares)},
+			{"A minimax mismatched filter (3× the code length)", mismatched(FilterMinimax)},
+		}, c...)
 	}
 	if w.Kind == KindLFM || w.Kind == KindNLFM {
 		c = append(c, candidate{fmt.Sprintf("Twice the bandwidth (%s)", hz(2*w.BandwidthHz)), func(t *Scenario) bool {

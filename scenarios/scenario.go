@@ -98,6 +98,7 @@ type Waveform struct {
 const (
 	FilterMatched      = "matched"
 	FilterLeastSquares = "least_squares"
+	FilterMinimax      = "minimax" // extension: a peak-sidelobe-optimal mismatched filter
 )
 
 // Receiver is the compression filter, its weighting and the detector.

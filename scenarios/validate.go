@@ -226,14 +226,19 @@ func (s *Scenario) validateReceiver(c checker) {
 	if taps := map[string]int{MTITwoPulse: 2, MTIThreePulse: 3}[r.MTI]; taps > 0 && !c.errs.has("radar.pulses") && s.Radar.Pulses < taps+1 {
 		c.errs.add("receiver.mti", "%s needs at least %d pulses; radar.pulses is %d", r.MTI, taps+1, s.Radar.Pulses)
 	}
-	if r.Filter == FilterLeastSquares && !c.errs.has("receiver.filter") && !c.errs.has("waveform.kind") {
+	if (r.Filter == FilterLeastSquares || r.Filter == FilterMinimax) && !c.errs.has("receiver.filter") && !c.errs.has("waveform.kind") {
+		limit := MaxFilterTaps
+		if r.Filter == FilterMinimax {
+			limit = dsp.MaxMinimaxTaps
+		}
 		switch {
 		case !s.Waveform.IsPhaseCode():
-			c.errs.add("receiver.filter", "least_squares applies to phase codes; waveform kind %q needs filter \"matched\"", s.Waveform.Kind)
+			c.errs.add("receiver.filter", "%s applies to phase codes; waveform kind %q needs filter \"matched\"", r.Filter, s.Waveform.Kind)
 		case !c.errs.has("radar.sample_rate_hz") && !c.errs.has("receiver.filter_length_factor"):
-			taps := r.FilterLengthFactor * s.PulseSamples()
-			if taps > MaxFilterTaps {
-				c.errs.add("receiver.filter_length_factor", "%d × %d pulse samples = %d taps exceed the least-squares limit of %d taps (shorten the code or lower the sample rate)", r.FilterLengthFactor, s.PulseSamples(), taps, MaxFilterTaps)
+			ns := dsp.SampleLen(s.Waveform.PulseWidth(), s.Radar.SampleRateHz)
+			taps := r.FilterLengthFactor * ns
+			if taps > limit {
+				c.errs.add("receiver.filter_length_factor", "%d × %d pulse samples = %d taps exceed the %s limit of %d taps (shorten the code or lower the sample rate)", r.FilterLengthFactor, ns, taps, r.Filter, limit)
 			}
 		}
 	}

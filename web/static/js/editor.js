@@ -291,9 +291,9 @@ export class Editor {
     const rx = s.receiver || {};
     const det = rx.detector || { kind: 'ca_cfar' };
     const dkind = detectorKinds[det.kind] ? det.kind : 'ca_cfar';
-    const filterFd = { key: 'filter', label: 'Compression filter', type: 'select', options: ['matched', 'least_squares'], def: 'matched', scale: 1 };
+    const filterFd = { key: 'filter', label: 'Compression filter', type: 'select', options: ['matched', 'least_squares', 'minimax'], def: 'matched', scale: 1 };
     const filterBlock = [this.field(s, 'receiver', filterFd)];
-    if (rx.filter === 'least_squares') {
+    if (rx.filter === 'least_squares' || rx.filter === 'minimax') {
       filterBlock.push(this.field(s, 'receiver', { key: 'filter_length_factor', label: 'Filter length', unit: '× code', scale: 1, type: 'int', def: 3 }));
     }
     this.roots.receive.replaceChildren(
