@@ -154,13 +154,18 @@ func writeFile(path string, fn func(io.Writer) error) error {
 // sweepWriter writes one CSV row per point and flushes it, so the rows of
 // an interrupted sweep are on disk.
 type sweepWriter struct {
-	c   *csv.Writer
-	g   *scenarios.Grid
-	ids []string
+	c      *csv.Writer
+	g      *scenarios.Grid
+	ids    []string
+	trains bool // pulse trains: add each target's integrated SNR and apparent range rate
 }
 
 func newSweepWriter(w io.Writer, g *scenarios.Grid, ids []string) *sweepWriter {
-	return &sweepWriter{c: csv.NewWriter(w), g: g, ids: ids}
+	trains := g.Base.Radar.Pulses > 1
+	for _, a := range g.Axes {
+		trains = trains || a.Path == "radar.pulses"
+	}
+	return &sweepWriter{c: csv.NewWriter(w), g: g, ids: ids, trains: trains}
 }
 
 func (s *sweepWriter) header() error {
@@ -171,6 +176,9 @@ func (s *sweepWriter) header() error {
 	h = append(h, "pslr_db", "islr_db", "mainlobe_3db_m", "mismatch_loss_db")
 	for _, id := range s.ids {
 		h = append(h, id+".status", id+".snr_db", id+".margin_db")
+		if s.trains {
+			h = append(h, id+".snr_integrated_db", id+".apparent_range_rate_mps")
+		}
 	}
 	s.c.Write(h)
 	s.c.Flush()
@@ -194,6 +202,10 @@ func (s *sweepWriter) row(p scenarios.Point) error {
 		default:
 			r = append(r, t.Status, num(t.SNRDB), num(*t.MarginDB))
 		}
+		if s.trains {
+			r = append(r, optNum(t, func(t *scenarios.TargetReport) *float64 { return t.SNRIntegratedDB }),
+				optNum(t, func(t *scenarios.TargetReport) *float64 { return t.ApparentRangeRateMPS }))
+		}
 	}
 	s.c.Write(r)
 	s.c.Flush()
@@ -203,6 +215,14 @@ func (s *sweepWriter) row(p scenarios.Point) error {
 // num formats a figure to 0.001 (dB, m), which is below any tolerance
 // that matters and keeps the CSV readable.
 func num(v float64) string { return strconv.FormatFloat(v, 'f', 3, 64) }
+
+// optNum formats a figure that a report may leave out, "" when it does.
+func optNum(t *scenarios.TargetReport, f func(*scenarios.TargetReport) *float64) string {
+	if t == nil || f(t) == nil {
+		return ""
+	}
+	return num(*f(t))
+}
 
 // progress draws a bar with an ETA on a terminal and nothing otherwise.
 type progress struct {

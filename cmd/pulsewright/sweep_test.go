@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/csv"
+	"math"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -163,5 +164,39 @@ func TestSweepInterruptKeepsRows(t *testing.T) {
 		if got, want := r["receiver.window.sidelobe_db"], strconv.Itoa(-20-5*i); got != want {
 			t.Errorf("row %d: sidelobe %s, want %s", i, got, want)
 		}
+	}
+}
+
+// TestSweepPulsesCSV sweeps the number of pulses of the Doppler demo: the
+// train columns appear, the integrated SNR of the ridge (at zero Doppler,
+// so on a bin centre at every length) grows by 10·log10(2) per doubling
+// (coherent integration, Richards 2014 §5.2; common practice),
+// and the helicopter, masked by the ridge with 16 pulses, is detected from
+// 32 on, when the Doppler bins are fine enough to separate it.
+func TestSweepPulsesCSV(t *testing.T) {
+	code, stdout, stderr := runCmd(t, "", "sweep", "demo:hill-clutter-doppler", "--set", "radar.pulses=16,32,64")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	rows := readCSV(t, stdout)
+	if len(rows) != 3 {
+		t.Fatalf("%d rows, want 3", len(rows))
+	}
+	var prev float64
+	for i, r := range rows {
+		snr, err := strconv.ParseFloat(r["ridge.snr_integrated_db"], 64)
+		if err != nil {
+			t.Fatalf("row %d: ridge.snr_integrated_db %q", i, r["ridge.snr_integrated_db"])
+		}
+		if i > 0 && math.Abs(snr-prev-10*math.Log10(2)) > 0.05 {
+			t.Errorf("row %d: integrated SNR grew %.2f dB from %d pulses, want about 3.01", i, snr-prev, 16<<(i-1))
+		}
+		prev = snr
+		if r["helicopter.apparent_range_rate_mps"] != "-25.000" {
+			t.Errorf("row %d: helicopter apparent range rate %q", i, r["helicopter.apparent_range_rate_mps"])
+		}
+	}
+	if rows[0]["helicopter.status"] != "masked" || rows[1]["helicopter.status"] != "detected" || rows[2]["helicopter.status"] != "detected" {
+		t.Errorf("helicopter statuses %s, %s, %s; want masked, detected, detected", rows[0]["helicopter.status"], rows[1]["helicopter.status"], rows[2]["helicopter.status"])
 	}
 }
