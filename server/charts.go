@@ -169,6 +169,12 @@ func (b *builder) build(name, key string) chartOut {
 	opt := b.line.JSON()
 	opt["dataZoom"] = []any{insideJSON, sliderJSON}
 	opt["tooltip"] = tooltipJSON("axis")
+	return b.spliceSeries(name, key, opt)
+}
+
+// spliceSeries replaces the series of opt by ones whose data are
+// placeholders, then splices the real data in.
+func (b *builder) spliceSeries(name, key string, opt map[string]any) chartOut {
 	ms := b.line.MultiSeries
 	series := make([]seriesJSON, len(ms))
 	for i, s := range ms {

@@ -234,14 +234,7 @@ func twoCuts(name, key string, plots [2]cutPlot) chartOut {
 	opt := b.line.JSON()
 	opt["title"] = titles
 	opt["tooltip"] = tooltipJSON("axis")
-	ms := b.line.MultiSeries
-	series := make([]seriesJSON, len(ms))
-	for i, s := range ms {
-		s.Data = nil
-		series[i] = seriesJSON{SingleSeries: s, Data: placeholder(i)}
-	}
-	opt["series"] = series
-	return b.splice(name, key, opt)
+	return b.spliceSeries(name, key, opt)
 }
 
 // ambiguityCutsChart plots the zero-Doppler cut (against delay) and the
