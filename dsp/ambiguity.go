@@ -36,6 +36,19 @@ type DopplerPlan struct {
 	mag        []float64
 	p0, v0     float64 // zero-Doppler peak position (samples) and magnitude
 	haveZero   bool    // p0 and v0 are computed (on the first non-zero shift)
+	held       bool    // samples are held over their intervals: the response is linear between lags
+}
+
+// NewHeldDopplerPlan is NewDopplerPlan for held sequences (each sample
+// held over 1/fs, as a rect-chip code or filter at an integer number of
+// samples per chip): their response is exactly linear between lags, so
+// its peak magnitude sits on a lag and is read there without
+// interpolation. The Doppler phase is applied per sample. It panics as
+// NewDopplerPlan does.
+func NewHeldDopplerPlan(pulse, ref []complex128, fs float64) *DopplerPlan {
+	p := NewDopplerPlan(pulse, ref, fs)
+	p.held = true
+	return p
 }
 
 // NewDopplerPlan prepares DopplerResponse for pulse and ref at rate fs.
@@ -89,6 +102,9 @@ func (p *DopplerPlan) peak(pulse []complex128, fd float64) (pos, val float64) {
 		if a := real(v)*real(v) + imag(v)*imag(v); a > best {
 			best, k = a, i
 		}
+	}
+	if p.held {
+		return float64(k * dopplerUp), math.Sqrt(best)
 	}
 	clear(p.spec)
 	copy(p.spec, p.z)

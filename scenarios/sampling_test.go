@@ -1,6 +1,7 @@
 package scenarios
 
 import (
+	"fmt"
 	"math"
 	"math/big"
 	"math/cmplx"
@@ -10,31 +11,39 @@ import (
 	"github.com/pulsewright/pulsewright/dsp"
 )
 
-// threeDigits returns a random value with three significant digits
-// between lo and hi (lo, hi > 0), as a user types them: 1.3e-6, 6.98e-6.
-func threeDigits(rng *rand.Rand, lo, hi float64) float64 {
+// decimal is a value as a user types it: exact as a rational, and the
+// nearest double the program receives.
+type decimal struct {
+	r *big.Rat
+	f float64
+}
+
+func newDecimal(r *big.Rat) decimal {
+	f, _ := r.Float64()
+	return decimal{r, f}
+}
+
+// threeDigits returns a random decimal with three significant digits
+// between lo and hi, such as 1.3e-6 or 6.98e-6.
+func threeDigits(rng *rand.Rand, lo, hi float64) decimal {
 	for {
 		v := lo * math.Pow(hi/lo, rng.Float64())
-		e := math.Floor(math.Log10(v)) - 2
-		m := math.Round(v / math.Pow(10, e))
-		// Parse the decimal as Go would from the text, e.g. "698e-8".
-		x := m * math.Pow(10, e)
-		if e < 0 {
-			x = m / math.Pow(10, -e)
-		}
-		if x >= lo && x <= hi {
-			return x
+		e := int(math.Floor(math.Log10(v))) - 2
+		m := int64(math.Round(v / math.Pow(10, float64(e))))
+		r, _ := new(big.Rat).SetString(fmt.Sprintf("%de%d", m, e))
+		if d := newDecimal(r); d.f >= lo && d.f <= hi {
+			return d
 		}
 	}
 }
 
-// exactChip returns ⌊(n/fs − delay)/chip⌋ computed with rationals from
-// the double values: the definition the sampling must follow.
-func exactChip(n int, fs, delay, chip float64) int {
+// exactChip returns ⌊(n/fs − delay)/chip⌋ of the decimal values with
+// rationals: the definition the sampling must follow.
+func exactChip(n int, fs, delay, chip *big.Rat) int {
 	t := new(big.Rat).SetFrac64(int64(n), 1)
-	t.Quo(t, new(big.Rat).SetFloat64(fs))
-	t.Sub(t, new(big.Rat).SetFloat64(delay))
-	t.Quo(t, new(big.Rat).SetFloat64(chip))
+	t.Quo(t, fs)
+	t.Sub(t, delay)
+	t.Quo(t, chip)
 	q := new(big.Int).Quo(t.Num(), t.Denom()) // truncates toward zero
 	if t.Sign() < 0 && new(big.Rat).SetInt(q).Cmp(t) != 0 {
 		q.Sub(q, big.NewInt(1))
@@ -42,15 +51,32 @@ func exactChip(n int, fs, delay, chip float64) int {
 	return int(q.Int64())
 }
 
-// chipOf decides the chip of sample n like exactChip, using rationals only
+// chipOf decides the chip of sample n like exactChip, with rationals only
 // where the float quotient is within 1e-6 of a whole number (elsewhere
 // the float floor is certainly right).
-func chipOf(n int, fs, delay, chip float64) int {
-	q := (float64(n)/fs - delay) / chip
+func chipOf(n int, fs, delay, chip decimal) int {
+	q := (float64(n)/fs.f - delay.f) / chip.f
 	if math.Abs(q-math.Round(q)) > 1e-6 {
 		return int(math.Floor(q))
 	}
-	return exactChip(n, fs, delay, chip)
+	return exactChip(n, fs.r, delay.r, chip.r)
+}
+
+// randomRate returns a sample rate for chips of length chip: a whole
+// number of samples per chip, a usual ratio (1.5, 2.5 …) or a three-digit
+// value; as a rational, and as the double the program computes from the
+// user's numbers (K/chip) or reads.
+func randomRate(rng *rand.Rand, chip decimal) decimal {
+	switch rng.IntN(3) {
+	case 0:
+		k := int64(1 + rng.IntN(8))
+		return decimal{new(big.Rat).Quo(big.NewRat(k, 1), chip.r), float64(k) / chip.f}
+	case 1:
+		k := []float64{1, 1.5, 2, 2.5, 3, 4, 8}[rng.IntN(7)]
+		kr := new(big.Rat).SetFloat64(k)
+		return decimal{new(big.Rat).Quo(kr, chip.r), k / chip.f}
+	}
+	return threeDigits(rng, 1/chip.f, 8/chip.f)
 }
 
 // randomCodeWaveform returns a valid chip-based waveform of a random kind
@@ -89,46 +115,40 @@ func randomCodeWaveform(rng *rand.Rand, chip float64) Waveform {
 }
 
 // TestSampleChipsExact builds every chip-based kind at thousands of
-// three-digit chip lengths and rates, with and without a fractional echo
-// delay, and compares every sample with the definition u(n/fs − delay),
-// the chip taken as the exact rational floor (issue 12: 1.3e-6 s chips
-// used to take the previous chip wherever t/chip lands just below a whole
-// number).
+// three-digit chip lengths and rates, with and without an echo delay, and
+// compares every sample with the definition u(n/fs − delay), the chip
+// taken as the exact rational floor of the decimal values (issue 12:
+// 1.3e-6 s chips used to take the previous chip wherever t/chip lands
+// just below a whole number).
 func TestSampleChipsExact(t *testing.T) {
 	rng := rand.New(rand.NewPCG(12, 1))
 	trials := 3000
 	if testing.Short() {
 		trials = 300
 	}
-	var boundary int // samples within 1e-6 of a chip boundary: the hard cases
+	var boundary int // samples exactly on a chip boundary: the hard cases
+	zero := decimal{new(big.Rat), 0}
 	for trial := range trials {
 		chip := threeDigits(rng, 1e-8, 1e-4)
-		var fs float64
-		switch rng.IntN(3) {
-		case 0: // a whole number of samples per chip, as users set it
-			fs = float64(1+rng.IntN(8)) / chip
-		case 1:
-			fs = threeDigits(rng, 1/chip, 8/chip)
-		default:
-			fs = []float64{1, 1.5, 2, 2.5, 3, 4, 8}[rng.IntN(7)] / chip
-		}
-		w := randomCodeWaveform(rng, chip)
+		fs := randomRate(rng, chip)
+		w := randomCodeWaveform(rng, chip.f)
 		wave, err := buildWaveform(w)
 		if err != nil {
 			t.Fatalf("trial %d: %+v: %v", trial, w, err)
 		}
-		delay := 0.0
-		if rng.IntN(2) == 0 {
-			delay = float64(rng.IntN(50)) / fs
-			if rng.IntN(2) == 0 {
-				delay = threeDigits(rng, 1e-9, 1e-4)
-			}
+		delay := zero
+		switch rng.IntN(3) {
+		case 0: // a whole number of samples
+			m := int64(rng.IntN(50))
+			delay = decimal{new(big.Rat).Quo(big.NewRat(m, 1), fs.r), float64(m) / fs.f}
+		case 1:
+			delay = threeDigits(rng, 1e-9, 1e-4)
 		}
 		tau := wave.Duration()
-		got := make([]complex128, int(math.Ceil((tau+delay)*fs))+3)
-		dsp.AddEcho(got, wave, fs, delay, 1, 0)
+		got := make([]complex128, int(math.Ceil((tau+delay.f)*fs.f))+3)
+		dsp.AddEcho(got, wave, fs.f, delay.f, 1, 0)
 		var nChips int
-		value := func(k, n int) complex128 { return 0 }
+		var value func(k, n int) complex128
 		switch v := wave.(type) {
 		case dsp.PhaseCoded:
 			nChips = len(v.Phases)
@@ -137,52 +157,51 @@ func TestSampleChipsExact(t *testing.T) {
 			nChips = len(v.Order)
 			m := float64(len(v.Order)-1) / 2
 			value = func(k, n int) complex128 {
-				f := (float64(v.Order[k]) - m) / chip
-				return cmplx.Rect(1, 2*math.Pi*f*(float64(n)/fs-delay))
+				f := (float64(v.Order[k]) - m) / chip.f
+				return cmplx.Rect(1, 2*math.Pi*f*(float64(n)/fs.f-delay.f))
 			}
 		default:
 			t.Fatalf("kind %s built %T", w.Kind, wave)
 		}
 		for n := range got {
-			q := (float64(n)/fs - delay) / chip
-			if math.Abs(q-math.Round(q)) < 1e-6 {
+			k := chipOf(n, fs, delay, chip)
+			q := (float64(n)/fs.f - delay.f) / chip.f
+			if math.Abs(q-math.Round(q)) < 1e-6 && k == int(math.Round(q)) {
 				boundary++
 			}
-			k := chipOf(n, fs, delay, chip)
 			want := complex128(0)
 			if k >= 0 && k < nChips {
 				want = value(k, n)
 			}
 			if cmplx.Abs(got[n]-want) > 1e-6 {
-				t.Fatalf("trial %d: %s chip %g s, fs %g Hz, delay %g s: sample %d is %v, want %v (chip %d of %d)", trial, w.Kind, chip, fs, delay, n, got[n], want, k, nChips)
+				t.Fatalf("trial %d: %s chip %g s, fs %g Hz, delay %g s: sample %d is %v, want %v (chip %d of %d)", trial, w.Kind, chip.f, fs.f, delay.f, n, got[n], want, k, nChips)
 			}
 		}
 	}
 	if boundary < trials {
-		t.Errorf("only %d samples near chip boundaries: the property does not exercise the hard case", boundary)
+		t.Errorf("only %d samples on chip boundaries: the property does not exercise the hard case", boundary)
 	}
 }
 
 // TestChipIndexExact compares dsp.ChipIndex with the rational definition
-// on values chosen to sit on and next to chip boundaries.
+// on samples chosen to sit on and next to chip boundaries.
 func TestChipIndexExact(t *testing.T) {
 	rng := rand.New(rand.NewPCG(12, 2))
+	zero := decimal{new(big.Rat), 0}
 	for range 20000 {
 		chip := threeDigits(rng, 1e-9, 1e-3)
-		fs := threeDigits(rng, 0.5/chip, 16/chip)
-		if rng.IntN(2) == 0 {
-			fs = float64(1+rng.IntN(16)) / chip
-		}
+		fs := randomRate(rng, chip)
 		k := rng.IntN(5000)
-		n := int(math.Round(float64(k) * chip * fs))
-		delay := 0.0
+		n := int(math.Round(float64(k) * chip.f * fs.f))
+		delay := zero
 		if rng.IntN(3) == 0 {
-			delay = float64(rng.IntN(100)) / fs
-			n += rng.IntN(100)
+			m := int64(rng.IntN(100))
+			delay = decimal{new(big.Rat).Quo(big.NewRat(m, 1), fs.r), float64(m) / fs.f}
+			n += int(m)
 		}
 		for dn := -1; dn <= 1; dn++ {
-			if got, want := dsp.ChipIndex(float64(n+dn), fs, delay, chip), exactChip(n+dn, fs, delay, chip); got != want {
-				t.Fatalf("ChipIndex(%d, %g, %g, %g) = %d, want %d", n+dn, fs, delay, chip, got, want)
+			if got, want := dsp.ChipIndex(float64(n+dn), fs.f, delay.f, chip.f), exactChip(n+dn, fs.r, delay.r, chip.r); got != want {
+				t.Fatalf("ChipIndex(%d, %g, %g, %g) = %d, want %d", n+dn, fs.f, delay.f, chip.f, got, want)
 			}
 		}
 	}

@@ -96,10 +96,11 @@ func figureRows(r *scenarios.Report) [][2]string {
 		{"Bandwidth B", scenarios.SI(w.BandwidthHz, "Hz")},
 		{"Time–bandwidth B·τ", fmt.Sprintf("%.4g", w.TimeBandwidth)},
 		{"Compression gain", fmt.Sprintf("%.2f dB", w.CompressionGainDB)},
-		{"Peak sidelobe level (PSLR)", fmt.Sprintf("%.2f dB", w.PSLRDB)},
-		{"Integrated sidelobe level (ISLR)", fmt.Sprintf("%.2f dB", w.ISLRDB)},
+		{"Peak sidelobe level (PSLR)", optDB(w.PSLRDB, "no sidelobes")},
+		{"Integrated sidelobe level (ISLR)", optDB(w.ISLRDB, "no sidelobes")},
 		{"Main lobe width at −3 dB", fmt.Sprintf("%.2f m", w.Mainlobe3dBM)},
 		{"Mismatch loss", fmt.Sprintf("%.2f dB", w.MismatchLossDB)},
+		{"Sampling (straddle) loss, worst / mean", fmt.Sprintf("%.2f dB / %.2f dB", w.StraddleLossMaxDB, w.StraddleLossMeanDB)},
 		{"Blind range c·τ/2", fmt.Sprintf("%.0f m", w.BlindRangeM)},
 		{"Unambiguous range", fmt.Sprintf("%.0f m", w.UnambiguousRangeM)},
 		{"Unambiguous range rate", fmt.Sprintf("±%.2f m/s", w.UnambiguousVelocityMPS)},
@@ -208,7 +209,10 @@ func responseOption(res *scenarios.Result) map[string]any {
 		step := (r.RangeM[n-1] - r.RangeM[0]) / float64(n-1)
 		pts = roundPairs(minMaxPairs(r.RangeM[0], step, r.DB, reportBuckets, -120))
 	}
-	floor := math.Max(-100, math.Floor((res.Report.Waveform.PSLRDB-30)/10)*10)
+	floor := -60.0 // no sidelobes
+	if p := res.Report.Waveform.PSLRDB; p != nil {
+		floor = math.Max(-100, math.Floor((*p-30)/10)*10)
+	}
 	opt["series"] = []map[string]any{lineSeries("response", "#0b5394", 1.2, pts)}
 	opt["yAxis"] = []map[string]any{{"type": "value", "name": "dB re peak", "min": floor, "max": 0}}
 	if len(pts) > 1 {
@@ -275,3 +279,11 @@ var reportTmpl = template.Must(template.New("report").Parse(`<!DOCTYPE html>
 </body>
 </html>
 `))
+
+// optDB formats a figure the report may leave out, or says why it is out.
+func optDB(v *float64, none string) string {
+	if v == nil {
+		return none
+	}
+	return fmt.Sprintf("%.2f dB", *v)
+}

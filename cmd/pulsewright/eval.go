@@ -41,8 +41,13 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 	fmt.Fprintf(w, "%s\n\n", r.Scenario)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	fmt.Fprintf(tw, "waveform\t%s, τ %s, B %s, B·τ %.4g, gain %.1f dB\n", wf.Kind, scenarios.SI(wf.PulseWidthS, "s"), scenarios.SI(wf.BandwidthHz, "Hz"), wf.TimeBandwidth, wf.CompressionGainDB)
-	fmt.Fprintf(tw, "sidelobes\tPSLR %.2f dB, ISLR %.2f dB\n", wf.PSLRDB, wf.ISLRDB)
+	if wf.PSLRDB != nil && wf.ISLRDB != nil {
+		fmt.Fprintf(tw, "sidelobes\tPSLR %.2f dB, ISLR %.2f dB\n", *wf.PSLRDB, *wf.ISLRDB)
+	} else {
+		fmt.Fprintf(tw, "sidelobes\tno sidelobes (the response falls monotonically from its peak)\n")
+	}
 	fmt.Fprintf(tw, "resolution\t%.2f m at −3 dB, mismatch loss %.2f dB\n", wf.Mainlobe3dBM, wf.MismatchLossDB)
+	fmt.Fprintf(tw, "sampling\tstraddle loss %.2f dB worst, %.2f dB mean at this sample rate\n", wf.StraddleLossMaxDB, wf.StraddleLossMeanDB)
 	fmt.Fprintf(tw, "ranges\tblind %.0f m, unambiguous %.0f m, unambiguous velocity ±%.2f m/s\n", wf.BlindRangeM, wf.UnambiguousRangeM, wf.UnambiguousVelocityMPS)
 	tw.Flush()
 	fmt.Fprintln(w)

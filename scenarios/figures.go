@@ -1,0 +1,180 @@
+package scenarios
+
+import (
+	"math"
+	"math/cmplx"
+
+	"github.com/pulsewright/pulsewright/dsp"
+)
+
+// The waveform's figures in continuous time (docs/figures.md): they
+// describe the pulse and its filter, not the scenario's sample rate. They
+// are computed on an internal grid chosen by the waveform and the filter,
+// once per waveform and receiver, and kept across frames by the Engine.
+
+// Internal grids (docs/figures.md §4).
+const (
+	heldPerChip    = 8   // held grid: at least 8 samples per chip
+	heldMinSamples = 256 // … and at least 256 samples per pulse
+	fmPerBandwidth = 8   // interpolated grid: at least 8 samples per 1/B
+	fmMinSamples   = 64  // … and at least 64 per pulse
+	straddleSteps  = 64  // fractional delays per sample of the straddle loss
+)
+
+// contFigures is what the continuous-time evaluation of a waveform and its
+// filter gives: the figures, the response plot and the grid the Doppler
+// response is computed on.
+type contFigures struct {
+	fig          dsp.ChiFigures
+	plot         *Response
+	x, h         []complex128 // pulse and filter on the Doppler grid
+	rate         float64      // Doppler grid rate, Hz
+	held         bool         // x and h are held sequences
+	dop          map[float64]dopFigure
+	dopPlan      *dsp.DopplerPlan
+	straddleMax  float64 // dB
+	straddleMean float64 // dB
+}
+
+// chipValues returns the chip values and chip length of a rect-chip pulse
+// (a phase code, or a rect pulse as one chip), or nil.
+func chipValues(w dsp.Waveform) ([]complex128, float64) {
+	switch v := w.(type) {
+	case dsp.Rect:
+		return []complex128{1}, v.Width
+	case dsp.PhaseCoded:
+		a := make([]complex128, len(v.Phases))
+		for i, p := range v.Phases {
+			a[i] = cmplx.Rect(1, p)
+		}
+		return a, v.Chip
+	}
+	return nil, 0
+}
+
+// repeatChips holds each value over k samples.
+func repeatChips(a []complex128, k int) []complex128 {
+	x := make([]complex128, 0, len(a)*k)
+	for _, v := range a {
+		for range k {
+			x = append(x, v)
+		}
+	}
+	return x
+}
+
+// continuous computes (once per model and its reuses) the continuous-time
+// figures of the waveform and its filter.
+func (m *model) continuous() *contFigures {
+	if m.cont != nil {
+		return m.cont
+	}
+	c := &contFigures{}
+	var chi *dsp.Chi
+	win := dspWindow(m.s.Receiver.Window)
+	mismatched := m.taps != nil
+	if a, chip := chipValues(m.wave); a != nil {
+		k := max(heldPerChip, (heldMinSamples+len(a)-1)/len(a))
+		c.held, c.rate = true, float64(k)/chip
+		c.x = repeatChips(a, k)
+		switch {
+		case mismatched: // the taps, one per chip, held
+			chi = dsp.HeldChi(a, m.taps, chip)
+			c.h = repeatChips(m.taps, k)
+		case win == nil: // exact on the chip grid
+			chi = dsp.HeldChi(a, a, chip)
+			c.h = c.x
+		default:
+			c.h = dsp.Reference(nil, c.x, win)
+			chi = dsp.HeldChi(c.x, c.h, chip/float64(k))
+		}
+	} else {
+		B, tau := m.wave.Bandwidth(), m.wave.Duration()
+		c.rate = math.Max(fmPerBandwidth*B, fmMinSamples/tau)
+		c.x = dsp.Sample(nil, m.wave, c.rate, 0)
+		c.h = dsp.Reference(nil, c.x, win)
+		chi = dsp.SampledChi(c.x, c.h, c.rate, B)
+	}
+	c.fig = chi.Figures()
+	per := max(1, min(16, (1<<18)/chi.Len()))
+	c.plot = newResponsePlot(chi.Plot(per))
+	c.straddleMax, c.straddleMean = m.straddle(c.fig)
+	m.cont = c
+	return c
+}
+
+// doppler returns the peak loss (dB) and delay shift (s) of the
+// continuous-time response at Doppler shift fd (docs/figures.md §5),
+// cached per waveform and filter.
+func (m *model) doppler(fd float64) dopFigure {
+	if fd == 0 {
+		return dopFigure{}
+	}
+	c := m.continuous()
+	if c.dop == nil {
+		c.dop = make(map[float64]dopFigure)
+	}
+	d, ok := c.dop[fd]
+	if !ok {
+		if c.dopPlan == nil {
+			if c.held {
+				c.dopPlan = dsp.NewHeldDopplerPlan(c.x, c.h, c.rate)
+			} else {
+				c.dopPlan = dsp.NewDopplerPlan(c.x, c.h, c.rate)
+			}
+		}
+		d.lossDB, d.shift = c.dopPlan.Response(fd)
+		c.dop[fd] = d
+	}
+	return d
+}
+
+// response returns the zero-Doppler response of the waveform alone.
+func (m *model) response() Response { return *m.continuous().plot }
+
+// straddle returns the worst and mean loss (dB) of the best output sample
+// of the sampled processing at the scenario's rate against the
+// continuous-time peak SNR of the same filter, over fractional echo
+// delays uniform in one sample (docs/figures.md §6).
+func (m *model) straddle(f dsp.ChiFigures) (maxDB, meanDB float64) {
+	if f.Peak == 0 || f.EnergyH == 0 {
+		return 0, 0
+	}
+	snrC := f.Peak * f.Peak / f.EnergyH // noise density 1
+	np, nr := len(m.pulse), len(m.ref)
+	// The best lag at zero delay, from the full correlation.
+	in := make([]complex128, nr-1+np+1)
+	copy(in[nr-1:], m.pulse)
+	y := dsp.NewCorrelator(m.ref, len(in)).Apply(nil, in)
+	k0 := 0
+	for i, v := range y {
+		if cmplx.Abs(v) > cmplx.Abs(y[k0]) {
+			k0 = i
+		}
+	}
+	k0 -= nr - 1 // lag: y[lag] = Σ_i x[lag+i]·conj(ref[i])
+	x := make([]complex128, np+1)
+	maxDB = math.Inf(-1)
+	for j := range straddleSteps {
+		clear(x)
+		dsp.AddEcho(x, m.wave, m.fs, float64(j)/straddleSteps/m.fs, 1, 0)
+		best := 0.0
+		for lag := k0 - 2; lag <= k0+3; lag++ {
+			var s complex128
+			for i, r := range m.ref {
+				if n := lag + i; n >= 0 && n < len(x) {
+					s += x[n] * cmplx.Conj(r)
+				}
+			}
+			best = math.Max(best, real(s)*real(s)+imag(s)*imag(s))
+		}
+		snrS := best / (m.fs * m.noiseGain)
+		loss := 10 * math.Log10(snrC/snrS)
+		if snrS == 0 {
+			loss = 300 // nothing of the echo is heard: cannot happen for a valid scenario
+		}
+		maxDB = math.Max(maxDB, loss)
+		meanDB += loss / straddleSteps
+	}
+	return maxDB, meanDB
+}
