@@ -157,7 +157,11 @@ func (p *DopplerPlan) at(t float64) complex128 {
 // k = j − delays samples, j = 0 … 2·delays. A nil dst is allocated;
 // otherwise it must have len(dopplers) rows of 2·delays+1 values (else it
 // panics). Each Doppler row costs two FFTs of about len(u)+delays points.
-// It panics if u is empty or has no energy, fs ≤ 0 or delays < 0.
+// It panics if u is empty or has no energy, fs ≤ 0 or delays < 0. The
+// surface is that of the sampled pulse at its sample lags: for the
+// continuous-time surface of a short pulse, sample it finely (a code held
+// at several samples per chip), or a plot with more columns than lags
+// shows gaps between them.
 func Ambiguity(dst [][]float64, u []complex128, fs float64, delays int, dopplers []float64) [][]float64 {
 	if len(u) == 0 || !(fs > 0) || delays < 0 {
 		panic("dsp: ambiguity needs a pulse, fs > 0 and delays ≥ 0")

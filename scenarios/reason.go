@@ -45,7 +45,11 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		blind := C * m.tau / 2
 		heard := "its range gates are not processed"
 		if g.t.Kind == TargetPoint {
-			heard = fmt.Sprintf("only %.0f %% of its echo is heard (%.1f dB lost) and its range gate is not processed", 100*g.received, m.eclipseLossDB(g))
+			lost := "nothing of its compressed peak remains" // a loss without bound is never printed as +Inf
+			if l := m.eclipseLossDB(g); !math.IsInf(l, 0) && !math.IsNaN(l) {
+				lost = fmt.Sprintf("%.1f dB lost", l)
+			}
+			heard = fmt.Sprintf("only %.0f %% of its echo is heard (%s) and its range gate is not processed", 100*g.received, lost)
 		}
 		return fmt.Sprintf("Eclipsed: at %s it lies inside the %s blind range of the %s pulse; the receiver is blanked while transmitting, so %s.", km(g.apparent), km(blind), sec(m.tau), heard)
 	case StatusBelowNoise:
