@@ -173,6 +173,9 @@ func (m *model) straddle(f dsp.ChiFigures) (maxDB, meanDB float64) {
 		if snrS == 0 {
 			loss = 300 // nothing of the echo is heard: cannot happen for a valid scenario
 		}
+		if math.Abs(loss) < 1e-9 {
+			loss = 0 // rounding of an exact match: never print −0.00
+		}
 		maxDB = math.Max(maxDB, loss)
 		meanDB += loss / straddleSteps
 	}
