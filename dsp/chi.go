@@ -112,6 +112,9 @@ func (c *Chi) edge(p, dir int) float64 {
 		a, b := z[j], z[j+dir]
 		d := b - a
 		f0 := real(cmplx.Conj(a) * d) // ½ d|z|²/dε at the near node
+		if cmplx.Abs(d) <= 1e-12*c.mag[p] && c.mag[j] >= c.mag[p]*(1-1e-12) {
+			continue // a plateau at the peak (up to rounding) belongs to the main lobe
+		}
 		if f0 >= 0 {
 			return float64(j)
 		}

@@ -100,3 +100,33 @@ func TestSampledChiLFM(t *testing.T) {
 		t.Errorf("LFM matched: mismatch loss %g dB", f.MismatchLossDB)
 	}
 }
+
+// TestWindowMidpoints: the continuous windows at the midpoints (i+½)/N
+// are the symmetric (2N+1)-point windows (scipy-checked, windows.json) at
+// their odd points, exactly for the closed forms and to O(1/N) for Taylor
+// (whose N-point construction depends on N); Chebyshev stays N-point.
+func TestWindowMidpoints(t *testing.T) {
+	const n = 400
+	for _, c := range []struct {
+		w   Window
+		tol float64
+	}{
+		{Hann{}, 1e-12}, {Hamming{}, 1e-12}, {Blackman{}, 1e-12}, {BlackmanHarris{}, 1e-12},
+		{Kaiser{Beta: 6}, 1e-12}, {Gaussian{Sigma: 0.4}, 1e-12}, {Taylor{NBar: 5, SidelobeDB: -35}, 5e-3},
+	} {
+		got := WindowMidpoints(make([]float64, n), c.w)
+		sym := c.w.Coefficients(make([]float64, 2*n+1))
+		for i, v := range got {
+			if math.Abs(v-sym[2*i+1]) > c.tol {
+				t.Fatalf("%T: point %d is %v, symmetric window %v", c.w, i, v, sym[2*i+1])
+			}
+		}
+	}
+	got := WindowMidpoints(make([]float64, 9), Chebyshev{SidelobeDB: -50})
+	want := Chebyshev{SidelobeDB: -50}.Coefficients(make([]float64, 9))
+	for i := range got {
+		if got[i] != want[i] {
+			t.Fatalf("chebyshev point %d: %v, want %v", i, got[i], want[i])
+		}
+	}
+}

@@ -14,11 +14,12 @@ import (
 
 // Internal grids (docs/figures.md §4).
 const (
-	heldPerChip    = 8   // held grid: at least 8 samples per chip
-	heldMinSamples = 256 // … and at least 256 samples per pulse
-	fmPerBandwidth = 8   // interpolated grid: at least 8 samples per 1/B
-	fmMinSamples   = 64  // … and at least 64 per pulse
-	straddleSteps  = 64  // fractional delays per sample of the straddle loss
+	heldPerChip    = 8       // held grid: at least 8 samples per chip
+	heldMinSamples = 256     // … and at least 256 samples per pulse
+	fmPerBandwidth = 8       // interpolated grid: at least 8 samples per 1/B
+	fmMinSamples   = 64      // … and at least 64 per pulse
+	fmMaxSamples   = 1 << 21 // … but at most 2²¹ (B·τ > 2¹⁸: still ≥ 2 per 1/B, as fs ≥ B and τ·fs ≤ 2²⁰)
+	straddleSteps  = 64      // fractional delays per sample of the straddle loss
 )
 
 // contFigures is what the continuous-time evaluation of a waveform and its
@@ -50,6 +51,20 @@ func chipValues(w dsp.Waveform) ([]complex128, float64) {
 		return a, v.Chip
 	}
 	return nil, 0
+}
+
+// weighted returns x weighted by the continuous window at the midpoints
+// of its samples (dsp.WindowMidpoints); a nil window returns x.
+func weighted(x []complex128, win dsp.Window) []complex128 {
+	if win == nil {
+		return x
+	}
+	w := dsp.WindowMidpoints(make([]float64, len(x)), win)
+	h := make([]complex128, len(x))
+	for i, v := range x {
+		h[i] = v * complex(w[i], 0)
+	}
+	return h
 }
 
 // repeatChips holds each value over k samples.
@@ -85,14 +100,16 @@ func (m *model) continuous() *contFigures {
 			chi = dsp.HeldChi(a, a, chip)
 			c.h = c.x
 		default:
-			c.h = dsp.Reference(nil, c.x, win)
+			c.h = weighted(c.x, win)
 			chi = dsp.HeldChi(c.x, c.h, chip/float64(k))
 		}
 	} else {
+		// n samples at the midpoints t = (i + ½)·τ/n.
 		B, tau := m.wave.Bandwidth(), m.wave.Duration()
-		c.rate = math.Max(fmPerBandwidth*B, fmMinSamples/tau)
-		c.x = dsp.Sample(nil, m.wave, c.rate, 0)
-		c.h = dsp.Reference(nil, c.x, win)
+		n := int(math.Min(math.Ceil(math.Max(fmPerBandwidth*B*tau, fmMinSamples)-1e-9), fmMaxSamples))
+		c.rate = float64(n) / tau
+		c.x = dsp.Sample(make([]complex128, n), m.wave, c.rate, 0.5/c.rate)
+		c.h = weighted(c.x, win)
 		chi = dsp.SampledChi(c.x, c.h, c.rate, B)
 	}
 	c.fig = chi.Figures()
