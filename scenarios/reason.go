@@ -53,6 +53,9 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		}
 		return fmt.Sprintf("Eclipsed: at %s it lies inside the %s blind range of the %s pulse; the receiver is blanked while transmitting, so %s.", km(g.apparent), km(blind), sec(m.tau), heard)
 	case StatusBelowNoise:
+		if math.IsInf(v.noiseLevel, 1) {
+			return fmt.Sprintf("Below noise: its peak is %.1f dB above noise, but the %s has no training cells around it in this receive window, so it cannot detect there; widen the window or use fewer training cells.", dsp.DB(v.peak), det)
+		}
 		return fmt.Sprintf("Below noise: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone.", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel))
 	}
 	// Masked.
