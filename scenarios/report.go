@@ -89,9 +89,11 @@ type Series struct {
 	RangeDoppler *RangeDoppler
 }
 
-// Response is the zero-Doppler compressed response of the waveform alone,
-// interpolated to at least 8 points per 1/B, normalised to 0 dB at its
-// peak, on a range axis centred on the peak.
+// Response is the zero-Doppler compressed response of the waveform alone
+// in continuous time, as its figures measure it (docs/figures.md §4: exact
+// between chip lags for rect-chip codes, at least 16 points per 1/B for
+// FM), normalised to 0 dB at its peak, on a range axis centred on the
+// peak.
 type Response struct {
 	RangeM []float64 // m, negative before the peak
 	DB     []float64 // dB re peak, floored at −120 dB
