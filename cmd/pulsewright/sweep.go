@@ -8,7 +8,6 @@ import (
 	"io"
 	"os"
 	"runtime"
-	"strconv"
 	"strings"
 	"time"
 
@@ -214,7 +213,7 @@ func (s *sweepWriter) row(p scenarios.Point) error {
 
 // num formats a figure to 0.001 (dB, m), which is below any tolerance
 // that matters and keeps the CSV readable.
-func num(v float64) string { return strconv.FormatFloat(v, 'f', 3, 64) }
+func num(v float64) string { return fx(v, 3) }
 
 // optFig formats a waveform figure that a report may leave out (no
 // sidelobes), "" when it does.

@@ -77,7 +77,7 @@ func randomScenarioDoc(r *rand.Rand) string {
 
 var scriptBlock = regexp.MustCompile(`(?s)<script.*?</script>`)
 
-var nonFinite = regexp.MustCompile(`(?i)\bnan\b|\binf\b|[+-]inf|[^0-9.]-0([^.0-9eE]|$)|\(\+?Inf`)
+var nonFinite = regexp.MustCompile(`(?i)\bnan\b|\binf\b|[+-]inf|[^0-9.]-0(\.0*)?([^.0-9eE]|$)|\(\+?Inf`)
 
 // TestEveryEncoderTotal feeds random valid scenarios through the
 // evaluation and every encoder (JSON, text, CSV row, HTML report): each
