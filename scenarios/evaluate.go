@@ -131,8 +131,9 @@ func (m *model) waveformReport() WaveformReport {
 	if w.Kind == KindNLFM && m.s.Receiver.Window.Kind == WindowNone && fig.Sidelobes && fig.PSLRDB > w.DesignSidelobeDB+3 {
 		m.warn("the NLFM reaches a PSLR of %.1f dB, short of its %.0f dB design: at B·τ = %.0f the ripple of a stationary-phase design limits it; a longer pulse or more bandwidth gets closer", fig.PSLRDB, w.DesignSidelobeDB, B*tau)
 	}
-	if cont.straddleMax > 1 {
-		m.warn("sampling at %s costs up to %.1f dB (%.1f dB on average) of the compressed peak against the waveform's continuous response; a higher sample rate costs less", hz(m.fs), cont.straddleMax, cont.straddleMean)
+	straddleMax, straddleMean := m.sampling()
+	if straddleMax > 1 {
+		m.warn("sampling at %s costs up to %.1f dB (%.1f dB on average) of the compressed peak against the waveform's continuous response; a higher sample rate costs less", hz(m.fs), straddleMax, straddleMean)
 	}
 	rep := WaveformReport{
 		Kind:                   w.Kind,
@@ -142,8 +143,8 @@ func (m *model) waveformReport() WaveformReport {
 		CompressionGainDB:      dsp.DB(B * tau),
 		Mainlobe3dBM:           fig.Mainlobe3dB * C / 2,
 		MismatchLossDB:         fig.MismatchLossDB,
-		StraddleLossMaxDB:      cont.straddleMax,
-		StraddleLossMeanDB:     cont.straddleMean,
+		StraddleLossMaxDB:      straddleMax,
+		StraddleLossMeanDB:     straddleMean,
 		BlindRangeM:            C * tau / 2,
 		UnambiguousRangeM:      C * r.PRIS / 2,
 		UnambiguousVelocityMPS: m.lambda / (4 * r.PRIS),

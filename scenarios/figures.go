@@ -29,7 +29,8 @@ const (
 // response is computed on.
 type contFigures struct {
 	fig          dsp.ChiFigures
-	plot         *Response
+	chi          *dsp.Chi
+	plot         *Response    // computed on first use
 	x, h         []complex128 // pulse and filter on the Doppler grid
 	rate         float64      // Doppler grid rate, Hz
 	held         bool         // x and h are held sequences
@@ -37,6 +38,7 @@ type contFigures struct {
 	dopPlan      *dsp.DopplerPlan
 	straddleMax  float64 // dB
 	straddleMean float64 // dB
+	straddleDone bool    // straddleMax and straddleMean are computed
 }
 
 // chipValues returns the chip values and chip length of a rect-chip pulse
@@ -119,12 +121,20 @@ func (m *model) continuous() *contFigures {
 		c.x = dsp.Sample(make([]complex128, nd), m.wave, c.rate, 0.5/c.rate)
 		c.h = weighted(c.x, win)
 	}
-	c.fig = chi.Figures()
-	per := max(1, min(16, (1<<18)/chi.Len()))
-	c.plot = newResponsePlot(chi.Plot(per))
-	c.straddleMax, c.straddleMean = m.straddle(c.fig)
+	c.fig, c.chi = chi.Figures(), chi
 	m.cont = c
 	return c
+}
+
+// sampling returns the straddle losses at the scenario's rate, computed
+// on first use (the report needs them; a verified suggestion does not).
+func (m *model) sampling() (maxDB, meanDB float64) {
+	c := m.continuous()
+	if !c.straddleDone {
+		c.straddleMax, c.straddleMean = m.straddle(c.fig)
+		c.straddleDone = true
+	}
+	return c.straddleMax, c.straddleMean
 }
 
 // doppler returns the peak loss (dB) and delay shift (s) of the
@@ -154,7 +164,14 @@ func (m *model) doppler(fd float64) dopFigure {
 }
 
 // response returns the zero-Doppler response of the waveform alone.
-func (m *model) response() Response { return *m.continuous().plot }
+func (m *model) response() Response {
+	c := m.continuous()
+	if c.plot == nil {
+		per := max(1, min(16, (1<<18)/c.chi.Len()))
+		c.plot = newResponsePlot(c.chi.Plot(per))
+	}
+	return *c.plot
+}
 
 // straddle returns the worst and mean loss (dB) of the best output sample
 // of the sampled processing at the scenario's rate against the
