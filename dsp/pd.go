@@ -109,8 +109,25 @@ func (d Detector) Validate() error {
 		return errors.New("dsp: coherent integration of a Swerling 4 target over several pulses has no closed form: " +
 			"its echo decorrelates from pulse to pulse; use NonCoherent or one pulse")
 	}
+	if d.CFARCells > 0 {
+		n, _, _ := d.stat()
+		if cfarSumMultiplier(d.Pfa, n, float64(d.CFARCells)) > maxCFARSumMultiplier {
+			m := d.CFARCells
+			for cfarSumMultiplier(d.Pfa, n, float64(m)) > maxCFARSumMultiplier {
+				m++
+			}
+			return fmt.Errorf("dsp: CFARCells %d too few for Pfa %g: the threshold would exceed %g times the "+
+				"reference level (a CFAR loss of tens of dB); want %d … %d", d.CFARCells, d.Pfa,
+				float64(maxCFARSumMultiplier), m, MaxCFARCells)
+		}
+	}
 	return nil
 }
+
+// maxCFARSumMultiplier is the largest CA-CFAR multiplier on the sum of the
+// reference cells that Validate accepts; the series for Pd needs about
+// 40·(1 + c) terms, so this bounds its cost.
+const maxCFARSumMultiplier = 1e4
 
 // stat returns the number of pulses n in the tested statistic and the
 // shape K of the gamma law of the target energy in it, with scale, the
@@ -215,10 +232,10 @@ func (d Detector) Pd(snr float64) float64 {
 	n, shape, scale := d.stat()
 	lambda := scale * snr
 	if d.CFARCells == 0 {
-		return mixture(lambda, shape, newGammaTail(n, GammaThreshold(d.Pfa, n)))
+		return mixture(lambda, shape, gammaTail(n, GammaThreshold(d.Pfa, n)))
 	}
 	m := float64(d.CFARCells)
-	return mixture(lambda, shape, newBetaTail(n, m, cfarSumMultiplier(d.Pfa, n, m)))
+	return mixture(lambda, shape, betaTail(n, m, cfarSumMultiplier(d.Pfa, n, m)))
 }
 
 // MarcumQ returns the generalized Marcum Q function Q_m(a, b), the
@@ -237,72 +254,75 @@ func MarcumQ(m int, a, b float64) float64 {
 	if b == 0 {
 		return 1
 	}
-	return mixture(a*a/2, math.Inf(1), newGammaTail(float64(m), b*b/2))
+	return mixture(a*a/2, math.Inf(1), gammaTail(float64(m), b*b/2))
 }
 
-// tail is the sequence G_k = P(X_{n+k} > threshold) of the series, kept as
-// its current value and the log of its next increment.
+// tail is the sequence G_k = P(X_{n+k} > threshold) of the series: its
+// current value and the log of its next increment, for the current shape
+// b = n + k of the gamma variable.
 type tail struct {
+	gamma      bool    // Q(b, t) with a known noise level, else I_y(a, b)
+	n          float64 // shape of the statistic under noise alone (N or 1)
+	t          float64 // gamma: threshold T
+	a          float64 // beta: M·n, the shape of the reference sum
+	logy, logv float64 // beta: log y and log(1−y), y = 1/(1+c)
+
+	b    float64 // current shape n + k
 	g    float64 // G_k
 	logd float64 // log(G_{k+1} − G_k)
-	// ratio of successive increments: d_{k+1}/d_k = (p + q·(n+k+1))/(n+k+1)
-	// for the gamma tail (p = T, q = 0) and (1−y)(a+n+k)/(n+k+1) for the
-	// beta tail; stored as the affine pieces below.
-	gamma   bool
-	n, t    float64 // gamma: shape n, threshold T
-	a, logv float64 // beta: a = M·n, log(1−y)
 }
 
-// newGammaTail starts G_k = Q(n+k, t). Q(a+1, t) = Q(a, t) + e^(−t)t^a/Γ(a+1).
-func newGammaTail(n, t float64) tail {
-	lg, _ := math.Lgamma(n + 1)
-	return tail{
-		g:     mathext.GammaIncRegComp(n, t),
-		logd:  -t + n*math.Log(t) - lg,
-		gamma: true, n: n, t: t,
-	}
+// gammaTail is G_k = Q(n+k, t): Q(b+1, t) = Q(b, t) + e^(−t)·t^b/Γ(b+1).
+func gammaTail(n, t float64) tail { return tail{gamma: true, n: n, t: t} }
+
+// betaTail is G_k = I_y(m·n, n+k), y = 1/(1+c), the probability that
+// Gamma(n+k) exceeds c times an independent Gamma(m·n):
+// I_y(a, b+1) = I_y(a, b) + y^a·(1−y)^b·Γ(a+b)/(Γ(a)·Γ(b+1)).
+func betaTail(n, m, c float64) tail {
+	logy := -math.Log1p(c)
+	return tail{n: n, a: m * n, logy: logy, logv: math.Log(c) + logy}
 }
 
-// newBetaTail starts G_k = I_y(m·n, n+k), y = 1/(1+c): the probability that
-// Gamma(n+k) exceeds c times an independent Gamma(m·n).
-// I_y(a, b+1) = I_y(a, b) + y^a (1−y)^b Γ(a+b)/(Γ(a)Γ(b+1)).
-func newBetaTail(n, m, c float64) tail {
-	a := m * n
-	logy := -math.Log1p(c)       // log y
-	logv := math.Log(c) + logy   // log(1−y) = log(c/(1+c))
-	lab, _ := math.Lgamma(a + n) // Γ(a+b)
-	la, _ := math.Lgamma(a)      // Γ(a)
-	lb, _ := math.Lgamma(n + 1)  // Γ(b+1)
-	g := math.Exp(a * logy)      // exact for n = 1
-	if n != 1 {
-		g = mathext.RegIncBeta(a, n, math.Exp(logy))
+// start sets the sequence at k = k0 directly.
+func (s *tail) start(k0 float64) {
+	b := s.n + k0
+	s.b = b
+	lb1, _ := math.Lgamma(b + 1)
+	if s.gamma {
+		s.g = mathext.GammaIncRegComp(b, s.t)
+		s.logd = -s.t + b*math.Log(s.t) - lb1
+		return
 	}
-	return tail{
-		g:    g,
-		logd: a*logy + n*logv + lab - la - lb,
-		n:    n, a: a, logv: logv,
+	if b == 1 {
+		s.g = math.Exp(s.a * s.logy) // exact: y^a
+	} else {
+		s.g = mathext.RegIncBeta(s.a, b, math.Exp(s.logy))
 	}
+	lab, _ := math.Lgamma(s.a + b)
+	la, _ := math.Lgamma(s.a)
+	s.logd = s.a*s.logy + b*s.logv + lab - la - lb1
 }
 
 // next advances from G_k to G_{k+1}. It reports whether G has converged:
 // the increments fall and all the remaining ones add up to less than
 // 1e-17, so every later G_k equals the current one to rounding.
-func (s *tail) next(k int) (converged bool) {
+func (s *tail) next() (converged bool) {
 	s.g = min(s.g+math.Exp(s.logd), 1)
-	b := s.n + float64(k) // current shape
-	var r float64         // d_{k+1}/d_k
+	var r float64 // d_{k+1}/d_k
 	if s.gamma {
-		r = s.t / (b + 1)
+		r = s.t / (s.b + 1)
 	} else {
-		r = math.Exp(s.logv) * (s.a + b) / (b + 1)
+		r = math.Exp(s.logv) * (s.a + s.b) / (s.b + 1)
 	}
+	s.b++
 	s.logd += math.Log(r)
 	return r < 1 && math.Exp(s.logd)/(1-r) < 1e-17
 }
 
-// maxTerms bounds the series; with the limits of Detector it is never
-// reached (the longest series, a steady target at the largest energies,
-// stops after about λ + 40√λ terms or when G_k reaches 1).
+// maxTerms bounds the series. With the limits of Detector it is not
+// reached: the series starts 40 standard deviations below the mean of the
+// weights and stops past the mode when the remaining weight, or the
+// remaining increments of G, fall below 1e-16 of the sum.
 const maxTerms = 50_000_000
 
 // mixture sums Σ w_k G_k with w_k the Poisson(λ) weights (shape = +Inf) or
@@ -310,16 +330,31 @@ const maxTerms = 50_000_000
 // distributed with the given shape and mean λ.
 func mixture(lambda, shape float64, s tail) float64 {
 	if lambda == 0 {
+		s.start(0)
 		return s.g
 	}
 	poisson := math.IsInf(shape, 1)
-	var logw, p float64
-	if poisson {
-		logw = -lambda
-	} else {
+	variance := lambda
+	var p float64
+	if !poisson {
 		theta := lambda / shape
-		logw = -shape * math.Log1p(theta)
+		variance = lambda * (1 + theta)
 		p = theta / (1 + theta) // success probability of the negative binomial
+	}
+	// Weights more than 40 standard deviations below the mean are below
+	// e^(−800) of the peak for these laws: start there.
+	k0 := max(math.Floor(lambda-40*math.Sqrt(variance)), 0)
+	lk1, _ := math.Lgamma(k0 + 1)
+	var logw float64
+	if poisson {
+		logw = -lambda + k0*math.Log(lambda) - lk1
+	} else {
+		lks, _ := math.Lgamma(shape + k0)
+		ls, _ := math.Lgamma(shape)
+		logw = lks - ls - lk1 - shape*math.Log1p(lambda/shape)
+		if k0 > 0 {
+			logw += k0 * math.Log(p)
+		}
 	}
 	// ratio returns w_{k+1}/w_k.
 	ratio := func(k float64) float64 {
@@ -328,21 +363,23 @@ func mixture(lambda, shape float64, s tail) float64 {
 		}
 		return (shape + k) / (k + 1) * p
 	}
+	s.start(k0)
 	const tol = 1e-16
 	sum, wsum := 0.0, 0.0
-	for k := 0; k < maxTerms; k++ {
+	for j := 0; j < maxTerms; j++ {
+		k := k0 + float64(j)
 		w := math.Exp(logw)
 		sum += w * s.g
 		wsum += w
-		converged := s.next(k)
-		r := ratio(float64(k))
+		converged := s.next()
+		r := ratio(k)
 		logw += math.Log(r)
 		if converged {
 			// Every later G equals s.g to rounding: add the remaining
 			// weight at once.
 			return min(sum+max(1-wsum, 0)*s.g, 1)
 		}
-		if rn := ratio(float64(k + 1)); rn < 1 && r < 1 {
+		if rn := ratio(k + 1); rn < 1 && r < 1 {
 			// Past the mode the ratios fall, so the remaining weight is
 			// below w_{k+1}/(1 − r_{k+1}); each G is at most 1.
 			if math.Exp(logw)/(1-rn) <= tol*sum {
