@@ -40,6 +40,11 @@ Usage:
                                      write a self-contained HTML report for a customer
   pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
                                      write the raw I/Q as SigMF, the profile as CSV
+  pulsewright pd [--swerling 0-4] [--pulses N] [--integration noncoherent|coherent]
+                 [--pfa P] [--cfar-cells M] [--pd-required 0.9] [--from --to --step]
+                 [--ref-range-m R --ref-snr-db S] [--csv] [--html FILE.html]
+                                     Pd against SNR per pulse (or against range, R⁴ law,
+                                     from a reference point) and the SNR a required Pd needs
   pulsewright demos                  list the built-in scenarios
   pulsewright help                   show this text
 
@@ -83,6 +88,8 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.report(args)
 	case "export":
 		err = env.export(args)
+	case "pd":
+		err = env.pd(args)
 	case "demos":
 		err = env.demos(args)
 	case "serve":
