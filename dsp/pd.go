@@ -89,6 +89,12 @@ type Detector struct {
 	// CFAR, each integrated like the cell under test; 0 means the noise
 	// level is known (a fixed threshold).
 	CFARCells int
+	// OSRank, when > 0, makes the CFAR an ordered-statistic one: the
+	// threshold is α times the OSRank-th smallest (1-based) of the
+	// CFARCells reference cells (Rohling, IEEE TAES 19(4), 1983). It
+	// needs one test per dwell (Pulses = 1 or Coherent). 0 is cell
+	// averaging.
+	OSRank int
 }
 
 // Validate reports the first field of d that is out of range, naming the
@@ -108,6 +114,19 @@ func (d Detector) Validate() error {
 	case d.Integration == Coherent && d.Swerling == Swerling4 && d.Pulses > 1:
 		return errors.New("dsp: coherent integration of a Swerling 4 target over several pulses has no closed form: " +
 			"its echo decorrelates from pulse to pulse; use NonCoherent or one pulse")
+	}
+	if d.OSRank != 0 {
+		switch {
+		case d.CFARCells == 0 || d.OSRank < 0 || d.OSRank > d.CFARCells:
+			return fmt.Errorf("dsp: OSRank %d out of range: want 0 (cell averaging) or 1 … CFARCells (%d)", d.OSRank, d.CFARCells)
+		case d.Integration == NonCoherent && d.Pulses > 1:
+			return fmt.Errorf("dsp: an ordered-statistic CFAR over %d non-coherently integrated pulses is not "+
+				"modelled: want Pulses 1 or Coherent integration", d.Pulses)
+		case OSPfa(maxCFARSumMultiplier*float64(d.CFARCells), d.CFARCells, d.OSRank) > d.Pfa:
+			return fmt.Errorf("dsp: CFARCells %d with OSRank %d cannot reach Pfa %g with a multiplier below %g: "+
+				"use more cells or a higher rank", d.CFARCells, d.OSRank, d.Pfa, maxCFARSumMultiplier*float64(d.CFARCells))
+		}
+		return nil
 	}
 	if d.CFARCells > 0 {
 		n, _, _ := d.stat()
@@ -177,12 +196,17 @@ func (d Detector) stat() (n, shape, scale float64) {
 //	Pfa = I_{1/(1+α/M)}(M·n, n),
 //
 // which for n = 1 is α = M·(Pfa^(−1/M) − 1), Richards eq. 6.135 and
-// CAMultiplier. It panics if d is not valid.
+// CAMultiplier. Behind an ordered-statistic CFAR (OSRank > 0) it is the
+// multiplier α on the OSRank-th smallest reference cell (OSMultiplier). It
+// panics if d is not valid.
 func (d Detector) Threshold() float64 {
 	d.mustValidate()
 	n, _, _ := d.stat()
 	if d.CFARCells == 0 {
 		return GammaThreshold(d.Pfa, n)
+	}
+	if d.OSRank > 0 {
+		return OSMultiplier(d.Pfa, d.CFARCells, d.OSRank)
 	}
 	return float64(d.CFARCells) * cfarSumMultiplier(d.Pfa, n, float64(d.CFARCells))
 }
@@ -234,8 +258,91 @@ func (d Detector) Pd(snr float64) float64 {
 	if d.CFARCells == 0 {
 		return mixture(lambda, shape, gammaTail(n, GammaThreshold(d.Pfa, n)))
 	}
+	if d.OSRank > 0 {
+		return osPd(lambda, shape, OSMultiplier(d.Pfa, d.CFARCells, d.OSRank), d.CFARCells, d.OSRank)
+	}
 	m := float64(d.CFARCells)
 	return mixture(lambda, shape, betaTail(n, m, cfarSumMultiplier(d.Pfa, n, m)))
+}
+
+// osPd returns the Pd of one square-law test against α times the k-th
+// smallest of m exponential reference cells, exactly. By the Rényi
+// representation, α·X_(k) is a sum of k exponential stages of rates
+// β_i = (m−i)/α, i = 0 … k−1; given j in the Poisson mixture of §Pd the
+// statistic is a sum of 1 + j unit exponential stages. The test passes when
+// the k reference stages finish first, so, racing the stages (memoryless),
+//
+//	P(Gamma(1+j) > α·X_(k)) = Σ_{a=0}^{j} h_a,
+//	h_a = Π_i p_i · H_a(q_0, …, q_{k−1}),  p_i = β_i/(1+β_i), q_i = 1 − p_i,
+//
+// with H_a the complete homogeneous symmetric polynomial of degree a, and
+// Pd = Σ_a h_a·P(J ≥ a) with J the mixture index. Every term is positive.
+// For a Swerling 1 target this sums to Π (m−i)/(m−i+α/(1+χ)) (Rohling 1983).
+func osPd(lambda, shape, alpha float64, m, k int) float64 {
+	var buf [64]float64 // H_a(q_0 … q_i) for i < k; on the stack for k ≤ 64
+	h := buf[:0]
+	if k > len(buf) {
+		h = make([]float64, 0, k)
+	}
+	logp0 := 0.0
+	for i := range k {
+		b := float64(m-i) / alpha
+		logp0 += math.Log(b / (1 + b))
+		h = append(h, 1) // H_0 = 1
+	}
+	// Weights of the mixture index J and its survival S_a = P(J ≥ a).
+	poisson := math.IsInf(shape, 1)
+	var logw, p float64
+	if poisson {
+		logw = -lambda
+	} else {
+		theta := lambda / shape
+		logw = -shape * math.Log1p(theta)
+		p = theta / (1 + theta)
+	}
+	surv := 1.0
+	logscale := logp0 // h_a = exp(logscale)·h[k−1]
+	sum := 0.0
+	prev := math.Inf(1)
+	for a := 0; a < maxTerms; a++ {
+		if a > 0 {
+			// H_a(q_0 … q_i) = H_a(q_0 … q_{i−1}) + q_i·H_{a−1}(q_0 … q_i).
+			left := 0.0
+			for i := range h {
+				b := float64(m-i) / alpha
+				h[i] = left + h[i]/(1+b)
+				left = h[i]
+			}
+			if top := h[len(h)-1]; top > 1e100 {
+				for i := range h {
+					h[i] *= 1e-100
+				}
+				logscale += 100 * math.Ln10
+			}
+			// S_a = S_{a−1} − w_{a−1}.
+			surv = max(surv-math.Exp(logw), 0)
+			if lambda == 0 {
+				surv = 0
+			} else if poisson {
+				logw += math.Log(lambda / float64(a))
+			} else {
+				logw += math.Log((shape + float64(a-1)) / float64(a) * p)
+			}
+		}
+		ha := math.Exp(logscale + math.Log(h[len(h)-1]))
+		term := ha * surv
+		sum += term
+		if surv == 0 {
+			break
+		}
+		// Past the peak the ratios h_{a+1}/h_a fall towards max q_i, so
+		// the rest is below h_a·S_a·ρ/(1−ρ).
+		if rho := ha / prev; a > 0 && rho < 1 && ha*surv*rho/(1-rho) <= 1e-17*sum {
+			break
+		}
+		prev = ha
+	}
+	return min(sum, 1)
 }
 
 // MarcumQ returns the generalized Marcum Q function Q_m(a, b), the
@@ -435,7 +542,7 @@ func (d Detector) CFARLoss(pd float64) (float64, error) {
 		return 0, err
 	}
 	known := d
-	known.CFARCells = 0
+	known.CFARCells, known.OSRank = 0, 0
 	without, err := known.RequiredSNR(pd)
 	if err != nil {
 		return 0, err

@@ -7,6 +7,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -99,6 +100,12 @@ func TestCFARLoss(t *testing.T) {
 			t.Errorf("%d cells, Pd %g: CFAR loss %.4f dB, want %.3f", c.cells, c.pd, got, c.want)
 		}
 	}
+	// Ordered-statistic CFAR, rank 12 of 16, Swerling 1: from Rohling's
+	// closed form at α/(1+χ) and the known-noise closed form.
+	os := Detector{Pfa: 1e-6, Pulses: 1, Swerling: Swerling1, CFARCells: 16, OSRank: 12}
+	if got, err := os.CFARLoss(0.9); err != nil || math.Abs(got-2.934) > 0.001 {
+		t.Errorf("OS-CFAR 12 of 16: loss %.4f dB (%v), want 2.934", got, err)
+	}
 	if got, _ := (Detector{Pfa: 1e-6, Pulses: 1}).CFARLoss(0.9); got != 0 {
 		t.Errorf("loss without a CFAR = %g, want 0", got)
 	}
@@ -151,6 +158,38 @@ func TestPdClosedForms(t *testing.T) {
 							t.Errorf("Swerling 1 CA-CFAR M=%d %s: Pd %.15g, eq. 6.137 %.15g", m, name, got, want)
 						}
 					}
+				}
+			}
+		}
+	}
+}
+
+// TestOSCFARPd: for a Swerling 1 target and one pulse the ordered-statistic
+// CFAR has the closed form Pd = Π_{i<k} (M−i)/(M−i+α/(1+χ)), the false-alarm
+// formula of Rohling (IEEE TAES 19(4), 1983) at α/(1+χ); the series must
+// reproduce it, and give Pfa at zero SNR for every model.
+func TestOSCFARPd(t *testing.T) {
+	for _, c := range []struct{ m, k int }{{16, 12}, {16, 16}, {24, 18}, {8, 6}, {32, 1}, {200, 150}} {
+		for _, pfa := range []float64{1e-3, 1e-6} {
+			d := Detector{Pfa: pfa, Pulses: 1, Swerling: Swerling1, CFARCells: c.m, OSRank: c.k}
+			if d.Validate() != nil {
+				continue // this rank cannot reach the Pfa with a sane multiplier
+			}
+			alpha := d.Threshold()
+			if got := OSPfa(alpha, c.m, c.k); !near(got, pfa, 1e-9) {
+				t.Errorf("M=%d k=%d: OSPfa(threshold) = %g, want %g", c.m, c.k, got, pfa)
+			}
+			for _, snrDB := range []float64{-10, 0, 10, 20, 40} {
+				x := FromDB(snrDB)
+				want := OSPfa(alpha/(1+x), c.m, c.k)
+				if got := d.Pd(x); !near(got, want, 1e-10) {
+					t.Errorf("M=%d k=%d Pfa %g SNR %g dB: Pd %.15g, Rohling closed form %.15g", c.m, c.k, pfa, snrDB, got, want)
+				}
+			}
+			for sw := SwerlingNone; sw <= Swerling4; sw++ {
+				d.Swerling = sw
+				if got := d.Pd(0); !near(got, pfa, 1e-9) {
+					t.Errorf("Swerling %d M=%d k=%d: Pd(0) = %g, want Pfa %g", sw, c.m, c.k, got, pfa)
 				}
 			}
 		}
@@ -237,6 +276,12 @@ func TestDetectorValidate(t *testing.T) {
 		{Detector{Pfa: 1e-6, Pulses: 1, CFARCells: 1}, "want 2 … 10000"},
 		{Detector{Pfa: 1e-6, Pulses: 1, CFARCells: 2}, ""},
 		{Detector{Pfa: 1e-4, Pulses: 1, CFARCells: 1}, ""},
+		{Detector{Pfa: 1e-6, Pulses: 1, CFARCells: 16, OSRank: 12}, ""},
+		{Detector{Pfa: 1e-6, Pulses: 1, CFARCells: 16, OSRank: 17}, "OSRank 17 out of range: want 0 (cell averaging) or 1 … CFARCells (16)"},
+		{Detector{Pfa: 1e-6, Pulses: 1, OSRank: 1}, "OSRank 1 out of range"},
+		{Detector{Pfa: 1e-6, Pulses: 4, CFARCells: 16, OSRank: 12}, "ordered-statistic CFAR over 4 non-coherently integrated pulses"},
+		{Detector{Pfa: 1e-6, Pulses: 4, Integration: Coherent, CFARCells: 16, OSRank: 12}, ""},
+		{Detector{Pfa: 1e-6, Pulses: 1, CFARCells: 16, OSRank: 1}, "CFARCells 16 with OSRank 1 cannot reach Pfa 1e-06"},
 	} {
 		err := c.d.Validate()
 		switch {
@@ -274,6 +319,15 @@ func TestPdGolden(t *testing.T) {
 		Alpha     float64 `json:"alpha"`
 	}
 	var doc struct {
+		OSCFAR []struct {
+			Swerling  int     `json:"swerling"`
+			SNRDB     float64 `json:"snr_db"`
+			CFARCells int     `json:"cfar_cells"`
+			Rank      int     `json:"rank"`
+			Pfa       float64 `json:"pfa"`
+			Alpha     float64 `json:"alpha"`
+			Pd        float64 `json:"pd"`
+		} `json:"os_cfar"`
 		Scipy      string `json:"scipy"`
 		Marcum     []struct{ M, A, B, Q float64 }
 		Threshold  []pdCase
@@ -320,6 +374,18 @@ func TestPdGolden(t *testing.T) {
 	for _, c := range doc.Required {
 		if got := requiredDB(t, det(c), c.Pd); math.Abs(got-c.SNRDB) > 1e-5 {
 			t.Errorf("required SNR %+v for Pd %g = %.6f dB, scipy %.6f", det(c), c.Pd, got, c.SNRDB)
+		}
+	}
+	if len(doc.OSCFAR) < 5 {
+		t.Fatalf("only %d ordered-statistic CFAR cases", len(doc.OSCFAR))
+	}
+	for _, c := range doc.OSCFAR {
+		d := Detector{Pfa: c.Pfa, Pulses: 1, Swerling: c.Swerling, CFARCells: c.CFARCells, OSRank: c.Rank}
+		if got := d.Threshold(); !near(got, c.Alpha, 1e-10) {
+			t.Errorf("OS-CFAR %+v: α %.15g, scipy %.15g", d, got, c.Alpha)
+		}
+		if got := d.Pd(FromDB(c.SNRDB)); !near(got, c.Pd, 1e-8) {
+			t.Errorf("OS-CFAR %+v at %g dB: Pd %.12g, scipy %.12g", d, c.SNRDB, got, c.Pd)
 		}
 	}
 	for _, c := range doc.Albersheim {
@@ -395,6 +461,8 @@ func TestPdMonteCarlo(t *testing.T) {
 		{Pfa: 1e-4, Pulses: 4, Integration: Coherent, Swerling: Swerling3},
 		{Pfa: 1e-4, Pulses: 4, Integration: Coherent, Swerling: Swerling2},
 		{Pfa: 1e-3, Pulses: 4, Integration: Coherent, Swerling: Swerling1, CFARCells: 8},
+		{Pfa: 1e-3, Pulses: 1, CFARCells: 16, OSRank: 12},
+		{Pfa: 1e-3, Pulses: 1, Swerling: Swerling3, CFARCells: 24, OSRank: 18},
 	} {
 		snr := 0.0 // the first case checks the false-alarm rate
 		if d.Pfa < 1e-2 {
@@ -447,6 +515,16 @@ func simulateDwell(rnd *rand.Rand, d Detector, snr float64) float64 {
 	if d.CFARCells == 0 {
 		return sum
 	}
+	if d.OSRank > 0 { // one pulse: the OSRank-th smallest reference cell
+		var buf [64]float64
+		cells := buf[:d.CFARCells]
+		for i := range cells {
+			z := ComplexNormal(rnd)
+			cells[i] = real(z)*real(z) + imag(z)*imag(z)
+		}
+		slices.Sort(cells)
+		return sum / cells[d.OSRank-1]
+	}
 	var ref float64
 	for range d.CFARCells {
 		var cell float64
@@ -470,8 +548,9 @@ func BenchmarkPd(b *testing.B) {
 		{Pfa: 1e-6, Pulses: 10, Swerling: Swerling1},
 		{Pfa: 1e-6, Pulses: 100, Swerling: Swerling4},
 		{Pfa: 1e-6, Pulses: 1, CFARCells: 16},
+		{Pfa: 1e-6, Pulses: 1, CFARCells: 16, OSRank: 12},
 	} {
-		b.Run(fmt.Sprintf("sw%d_N%d_M%d", d.Swerling, d.Pulses, d.CFARCells), func(b *testing.B) {
+		b.Run(fmt.Sprintf("sw%d_N%d_M%d_k%d", d.Swerling, d.Pulses, d.CFARCells, d.OSRank), func(b *testing.B) {
 			for b.Loop() {
 				d.Pd(FromDB(10))
 			}

@@ -41,7 +41,7 @@ Usage:
   pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
                                      write the raw I/Q as SigMF, the profile as CSV
   pulsewright pd [--swerling 0-4] [--pulses N] [--integration noncoherent|coherent]
-                 [--pfa P] [--cfar-cells M] [--pd-required 0.9] [--from --to --step]
+                 [--pfa P] [--cfar-cells M [--os-rank K]] [--pd-required 0.9] [--from --to --step]
                  [--ref-range-m R --ref-snr-db S] [--csv] [--html FILE.html]
                                      Pd against SNR per pulse (or against range, R⁴ law,
                                      from a reference point) and the SNR a required Pd needs

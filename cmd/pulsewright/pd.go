@@ -140,7 +140,8 @@ func (e *env) parsePd(args []string) (*pdArgs, error) {
 	pulses := fs.Int("pulses", 1, "pulses integrated")
 	integ := fs.String("integration", "noncoherent", "noncoherent (sum of detected pulses) or coherent (sum of complex pulses)")
 	pfa := fs.Float64("pfa", 1e-6, "false-alarm probability per cell")
-	cells := fs.Int("cfar-cells", 0, "reference cells of a cell-averaging CFAR (0: known noise level)")
+	cells := fs.Int("cfar-cells", 0, "reference cells of a CFAR (0: known noise level)")
+	rank := fs.Int("os-rank", 0, "ordered-statistic CFAR: rank (1-based) of the reference cell used (0: cell averaging)")
 	pdReq := fs.Float64("pd-required", 0.9, "required probability of detection")
 	from := fs.Float64("from", math.NaN(), "first SNR in dB (default -5), or first range in m with --ref-range-m")
 	to := fs.Float64("to", math.NaN(), "last SNR in dB (default 30), or last range in m (default 2.5 × reference)")
@@ -160,7 +161,7 @@ func (e *env) parsePd(args []string) (*pdArgs, error) {
 		return usageError{fmt.Sprintf("--%s %v out of range: want %s", flag, v, want)}
 	}
 	a := &pdArgs{pdRequired: *pdReq, csv: *asCSV, html: *html}
-	a.det = dsp.Detector{Pfa: *pfa, Pulses: *pulses, Swerling: *swerling, CFARCells: *cells}
+	a.det = dsp.Detector{Pfa: *pfa, Pulses: *pulses, Swerling: *swerling, CFARCells: *cells, OSRank: *rank}
 	switch *integ {
 	case "noncoherent":
 	case "coherent":
@@ -177,13 +178,16 @@ func (e *env) parsePd(args []string) (*pdArgs, error) {
 		return nil, bad("pfa", *pfa, "0 < pfa < 1")
 	case *cells < 0 || *cells > dsp.MaxCFARCells:
 		return nil, bad("cfar-cells", *cells, fmt.Sprintf("0 (known noise) or 1 … %d", dsp.MaxCFARCells))
+	case *rank < 0 || *rank > *cells:
+		return nil, bad("os-rank", *rank, fmt.Sprintf("0 (cell averaging) or 1 … --cfar-cells (%d)", *cells))
 	case !(*pdReq > *pfa && *pdReq < 1):
 		return nil, bad("pd-required", *pdReq, fmt.Sprintf("pfa (%g) < pd-required < 1", *pfa))
 	}
 	if err := a.det.Validate(); err != nil {
 		// The remaining combinations: coherent Swerling 4, too few CFAR cells.
 		msg := strings.TrimPrefix(err.Error(), "dsp: ")
-		msg = strings.NewReplacer("CFARCells", "--cfar-cells", "Pfa", "--pfa",
+		msg = strings.NewReplacer("CFARCells", "--cfar-cells", "OSRank", "--os-rank", "Pfa", "--pfa", "Pulses", "--pulses",
+			"want Pulses 1 or Coherent integration", "want --pulses 1 or --integration coherent",
 			"use NonCoherent or one pulse", "use --integration noncoherent or --pulses 1").Replace(msg)
 		return nil, usageError{msg}
 	}
@@ -239,7 +243,10 @@ func describeDetector(d dsp.Detector) string {
 		pulses = fmt.Sprintf("%d pulses integrated %s", d.Pulses, d.Integration)
 	}
 	noise := "known noise level"
-	if d.CFARCells > 0 {
+	switch {
+	case d.OSRank > 0:
+		noise = fmt.Sprintf("ordered-statistic CFAR, rank %d of %d cells", d.OSRank, d.CFARCells)
+	case d.CFARCells > 0:
 		noise = fmt.Sprintf("cell-averaging CFAR over %d cells", d.CFARCells)
 	}
 	return fmt.Sprintf("Pd of a %s, %s, Pfa %g, %s", model, pulses, d.Pfa, noise)

@@ -104,10 +104,27 @@ func TestPdCommandErrors(t *testing.T) {
 		{[]string{"--ref-range-m", "-1", "--ref-snr-db", "10"}, "--ref-range-m -1 out of range"},
 		{[]string{"--ref-range-m", "5000"}, "--ref-snr-db NaN out of range: want -300 … 300 dB (with --ref-range-m)"},
 		{[]string{"extra"}, `pd takes no arguments, got "extra"`},
+		{[]string{"--cfar-cells", "16", "--os-rank", "17"}, "--os-rank 17 out of range: want 0 (cell averaging) or 1 … --cfar-cells (16)"},
+		{[]string{"--cfar-cells", "16", "--os-rank", "12", "--pulses", "4"}, "want --pulses 1 or --integration coherent"},
 	} {
 		code, out, errOut := runCmd(t, "", append([]string{"pd"}, c.args...)...)
 		if code != exitInvalid || out != "" || !strings.Contains(errOut, c.want) {
 			t.Errorf("pd %v: exit %d, stdout %q, stderr %q; want exit 2 and %q", c.args, code, out, errOut, c.want)
+		}
+	}
+}
+
+// TestPdCommandOS: an ordered-statistic CFAR (rank 12 of 16) against a
+// Swerling 1 target needs 24.08 dB for Pd 0.9 at Pfa 1e-6, from Rohling's
+// closed form (IEEE TAES 19(4), 1983) at α/(1+SNR).
+func TestPdCommandOS(t *testing.T) {
+	code, out, errOut := runCmd(t, "", "pd", "--swerling", "1", "--cfar-cells", "16", "--os-rank", "12", "--from", "23", "--to", "25")
+	if code != exitOK {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	for _, want := range []string{"ordered-statistic CFAR, rank 12 of 16 cells", "SNR per pulse for Pd 0.9: 24.08 dB", "CFAR loss at Pd 0.9: 2.93 dB"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
 		}
 	}
 }

@@ -22,6 +22,10 @@ needs no quadrature of its own; Swerling 1 behind a CFAR has the closed form
 of Richards eq. 6.137, tested in Go, and the other models are checked there
 by Monte Carlo). Coherent integration of N pulses of a target
 with constant complex amplitude is one pulse at N*snr (Swerling 2: at snr).
+ordered-statistic CFAR (one pulse): the threshold is alpha times the k-th
+smallest of M exponential cells, whose density is
+k*C(M,k)*(1-exp(-x))^(k-1)*exp(-(M-k+1)x); alpha solves the Pfa of Rohling
+(1983) by brentq, and Pd is integrated numerically over that density.
 Required SNRs are found with scipy.optimize.brentq.
 
 Run: cd testdata/golden && /usr/bin/python3 pd.py   (writes pd.json)
@@ -80,6 +84,22 @@ def pd(snr, n, sw, pfa, cells=0, coherent=False):
     return v
 
 
+def os_alpha(pfa, m, k):
+    f = lambda la: np.sum(np.log((m - np.arange(k)) / (m - np.arange(k) + np.exp(la)))) - np.log(pfa)
+    return np.exp(optimize.brentq(f, -10, 30, xtol=1e-14))
+
+
+def pd_os(snr, sw, pfa, m, k):
+    alpha = os_alpha(pfa, m, k)
+    logc = special.gammaln(m + 1) - special.gammaln(k) - special.gammaln(m - k + 1)
+    dens = lambda x: np.exp(logc + (k - 1) * np.log(-np.expm1(-x)) - (m - k + 1) * x)
+    lo = -np.log1p(-special.betaincinv(k, m - k + 1, 1e-16))
+    hi = -np.log(special.betaincinv(m - k + 1, k, 1e-16))
+    f = lambda x: pd_known(snr, 1, sw, alpha * x) * dens(x)
+    v, _ = integrate.quad(f, lo, hi, limit=400, epsabs=1e-15, epsrel=1e-11)
+    return alpha, v
+
+
 def required_db(p, n, sw, pfa, cells=0, coherent=False):
     g = lambda x: pd(10 ** (x / 10), n, sw, pfa, cells, coherent) - p
     return optimize.brentq(g, -20, 40, xtol=1e-6)
@@ -101,6 +121,7 @@ def main():
         "pd": [],
         "required": [],
         "albersheim": [],
+        "os_cfar": [],
     }
     # Generalized Marcum Q_m(a, b) = ncx2.sf(b^2, 2m, a^2).
     for m, a, b in [(1, 0.5, 1.0), (1, 3.0, 4.0), (1, 5.0, 2.0), (2, 1.0, 3.0), (4, 2.0, 5.0),
@@ -143,6 +164,11 @@ def main():
                                 "pd": p, "snr_db": float(required_db(p, n, sw, pfa, m, coh))})
     for p, pfa, n in [(0.9, 1e-6, 1), (0.9, 1e-6, 10), (0.5, 1e-6, 1), (0.9, 1e-4, 1), (0.8, 1e-5, 100)]:
         out["albersheim"].append({"pd": p, "pfa": pfa, "pulses": n, "snr_db": float(albersheim(p, pfa, n))})
+    for sw, snr_db, m, k, pfa in [(0, 0.0, 16, 12, 1e-6), (0, 15.0, 16, 12, 1e-6), (0, 18.0, 24, 18, 1e-6),
+                                  (2, 20.0, 16, 8, 1e-4), (0, 12.0, 32, 24, 1e-4), (0, 16.0, 8, 6, 1e-3)]:
+        alpha, v = pd_os(10 ** (snr_db / 10), sw, pfa, m, k)
+        out["os_cfar"].append({"swerling": sw, "snr_db": snr_db, "cfar_cells": m, "rank": k, "pfa": pfa,
+                               "alpha": float(alpha), "pd": float(v)})
     with open("pd.json", "w") as f:
         json.dump(out, f, indent=1)
         f.write("\n")
