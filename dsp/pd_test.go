@@ -338,7 +338,7 @@ func TestPdGolden(t *testing.T) {
 	if err := json.Unmarshal(b, &doc); err != nil {
 		t.Fatal(err)
 	}
-	if len(doc.Marcum) < 5 || len(doc.Pd) < 50 || len(doc.Required) < 20 || len(doc.Threshold) < 20 {
+	if len(doc.Marcum) < 15 || len(doc.Pd) < 50 || len(doc.Required) < 20 || len(doc.Threshold) < 20 {
 		t.Fatalf("golden file too short: %d marcum, %d pd, %d required, %d thresholds",
 			len(doc.Marcum), len(doc.Pd), len(doc.Required), len(doc.Threshold))
 	}
@@ -350,7 +350,8 @@ func TestPdGolden(t *testing.T) {
 		return d
 	}
 	for _, c := range doc.Marcum {
-		if got := MarcumQ(int(c.M), c.A, c.B); !near(got, c.Q, 1e-10) {
+		// Relative, down to the deep tail (Q_1(10, 40) ≈ 1e-198).
+		if got := MarcumQ(int(c.M), c.A, c.B); math.Abs(got-c.Q) > 1e-10*c.Q {
 			t.Errorf("MarcumQ(%g, %g, %g) = %.15g, scipy %.15g", c.M, c.A, c.B, got, c.Q)
 		}
 	}
