@@ -279,16 +279,33 @@ func (d Detector) Pd(snr float64) float64 {
 // Pd = Σ_a h_a·P(J ≥ a) with J the mixture index. Every term is positive.
 // For a Swerling 1 target this sums to Π (m−i)/(m−i+α/(1+χ)) (Rohling 1983).
 func osPd(lambda, shape, alpha float64, m, k int) float64 {
-	var buf [64]float64 // H_a(q_0 … q_i) for i < k; on the stack for k ≤ 64
-	h := buf[:0]
+	var buf [64]float64 // q_i on the stack for k ≤ 64
+	q := buf[:0]
 	if k > len(buf) {
-		h = make([]float64, 0, k)
+		q = make([]float64, 0, k)
 	}
-	logp0 := 0.0
 	for i := range k {
-		b := float64(m-i) / alpha
-		logp0 += math.Log(b / (1 + b))
-		h = append(h, 1) // H_0 = 1
+		q = append(q, alpha/(alpha+float64(m-i))) // 1/(1+β_i), β_i = (m−i)/α
+	}
+	return racePd(lambda, shape, q)
+}
+
+// racePd returns P(Gamma(1+J) > T), J the Poisson (shape = +Inf) or
+// negative-binomial mixture index of mean λ, T a sum of exponential stages
+// of rates β_i, given as q_i = 1/(1+β_i) (0 < q_i < 1): the stage race of
+// osPd. It overwrites q.
+func racePd(lambda, shape float64, q []float64) float64 {
+	h := q // h[i] = H_a(q_0 … q_i) once q[i] is read; q is kept in qs
+	var qbuf [64]float64
+	qs := qbuf[:0]
+	if len(q) > len(qbuf) {
+		qs = make([]float64, 0, len(q))
+	}
+	qs = append(qs, q...)
+	logp0 := 0.0
+	for i := range h {
+		logp0 += math.Log1p(-qs[i]) // log p_i
+		h[i] = 1                    // H_0 = 1
 	}
 	// Weights of the mixture index J and its survival S_a = P(J ≥ a).
 	poisson := math.IsInf(shape, 1)
@@ -309,8 +326,7 @@ func osPd(lambda, shape, alpha float64, m, k int) float64 {
 			// H_a(q_0 … q_i) = H_a(q_0 … q_{i−1}) + q_i·H_{a−1}(q_0 … q_i).
 			left := 0.0
 			for i := range h {
-				b := float64(m-i) / alpha
-				h[i] = left + h[i]/(1+b)
+				h[i] = left + h[i]*qs[i]
 				left = h[i]
 			}
 			if top := h[len(h)-1]; top > 1e100 {
@@ -343,6 +359,51 @@ func osPd(lambda, shape, alpha float64, m, k int) float64 {
 		prev = ha
 	}
 	return min(sum, 1)
+}
+
+// PdCorrelatedCA returns the Pd of one square-law test of d (one pulse, or
+// one coherent sum: Pulses = 1 or Coherent) against a cell-averaging
+// threshold α times the mean of M reference cells whose noise samples are
+// correlated, as they are at a sample rate above the bandwidth or after a
+// Doppler window. ev are the eigenvalues of the M×M covariance matrix R of
+// the reference cells' complex noise, each cell of unit noise power
+// (trace R = M); the cell under test is independent of them. The reference
+// mean is then Σ ev_j·E_j/M with E_j independent unit exponentials, so the
+// threshold is a sum of exponential stages and the stage race of the
+// ordered-statistic case applies exactly. PdCorrelatedCA(0, …) is
+// Pfa = Π_j 1/(1 + α·ev_j/M) = 1/det(I + (α/M)R); with R = I it equals
+// Detector{CFARCells: M}.Pd, and for a Swerling 1 target it is
+// Π_j 1/(1 + α·ev_j/(M(1+SNR))). d.CFARCells and d.OSRank are ignored.
+// It panics if d is not valid or not one test per dwell, α ≤ 0, ev is
+// empty, or an eigenvalue is negative or not finite.
+func (d Detector) PdCorrelatedCA(snr, alpha float64, ev []float64) float64 {
+	d.CFARCells, d.OSRank = 0, 0
+	d.mustValidate()
+	if d.Integration == NonCoherent && d.Pulses > 1 {
+		panic("dsp: PdCorrelatedCA needs one test per dwell (Pulses 1 or Coherent)")
+	}
+	if !(snr >= 0) || math.IsInf(snr, 1) || !(alpha > 0) || math.IsInf(alpha, 1) || len(ev) == 0 {
+		panic("dsp: PdCorrelatedCA needs a finite SNR ≥ 0, a finite α > 0 and eigenvalues")
+	}
+	var buf [64]float64
+	q := buf[:0]
+	if len(ev) > len(buf) {
+		q = make([]float64, 0, len(ev))
+	}
+	m := float64(len(ev))
+	for _, e := range ev {
+		if !(e >= 0) || math.IsInf(e, 1) {
+			panic("dsp: PdCorrelatedCA eigenvalues must be finite and ≥ 0")
+		}
+		if e > 1e-12*m { // a zero eigenvalue is a stage of no duration
+			q = append(q, alpha*e/(alpha*e+m)) // 1/(1+β), β = M/(α·e)
+		}
+	}
+	_, shape, scale := d.stat()
+	if len(q) == 0 {
+		return 1 // no noise in the reference: a zero threshold
+	}
+	return racePd(scale*snr, shape, q)
 }
 
 // MarcumQ returns the generalized Marcum Q function Q_m(a, b), the

@@ -569,3 +569,92 @@ func ExampleDetector_RequiredSNR() {
 	fmt.Printf("%.2f dB, of which %.2f dB CFAR loss\n", DB(snr), loss)
 	// Output: 23.15 dB, of which 2.01 dB CFAR loss
 }
+
+// TestPdCorrelatedCA checks the CA-CFAR Pd with correlated reference cells:
+// with R = I it is the independent-cell series; for Swerling 1 it is the
+// closed form Π 1/(1 + α·ev/(M(1+χ))), the moment-generating function of
+// the reference mean (the correlated-cell Pfa 1/det(I + (α/M)R) at
+// α/(1+χ)); and a Monte Carlo of cells made by a two-tap moving average of
+// white noise (covariance 1 on the diagonal, ½ beside it, eigenvalues
+// 1 + cos(iπ/(M+1)), i = 1 … M) agrees inside its 99 % interval.
+func TestPdCorrelatedCA(t *testing.T) {
+	const m = 16
+	ones := make([]float64, m)
+	for i := range ones {
+		ones[i] = 1
+	}
+	for sw := SwerlingNone; sw <= Swerling4; sw++ {
+		d := Detector{Pfa: 1e-6, Pulses: 1, Swerling: sw, CFARCells: m}
+		alpha := d.Threshold()
+		for _, snrDB := range []float64{-5, 5, 15, 25} {
+			x := FromDB(snrDB)
+			if got, want := d.PdCorrelatedCA(x, alpha, ones), d.Pd(x); !near(got, want, 1e-10) {
+				t.Errorf("Swerling %d at %g dB, R = I: %.15g, independent cells %.15g", sw, snrDB, got, want)
+			}
+		}
+	}
+	ev := make([]float64, m)
+	for i := range ev {
+		ev[i] = 1 + math.Cos(float64(i+1)*math.Pi/(m+1))
+	}
+	// α giving Pfa 1e-3 with these cells, by bisection on the exact Pfa.
+	steady := Detector{Pfa: 1e-3, Pulses: 1}
+	lo, hi := 1.0, 1000.0
+	for range 200 {
+		mid := math.Sqrt(lo * hi)
+		if steady.PdCorrelatedCA(0, mid, ev) > 1e-3 {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	alpha := math.Sqrt(lo * hi)
+	pfa := 1.0
+	for _, e := range ev {
+		pfa /= 1 + alpha*e/m
+	}
+	if !near(pfa, 1e-3, 1e-9) {
+		t.Fatalf("Pfa with α %g: det form %g", alpha, pfa)
+	}
+	for _, snrDB := range []float64{0, 10, 20} {
+		x := FromDB(snrDB)
+		want := 1.0
+		for _, e := range ev {
+			want /= 1 + alpha*e/(m*(1+x))
+		}
+		sw1 := Detector{Pfa: 1e-3, Pulses: 1, Swerling: Swerling1}
+		if got := sw1.PdCorrelatedCA(x, alpha, ev); !near(got, want, 1e-10) {
+			t.Errorf("Swerling 1 correlated at %g dB: %.15g, closed form %.15g", snrDB, got, want)
+		}
+	}
+	// Monte Carlo, steady target, near Pd 0.6.
+	snr := FromDB(10)
+	want := steady.PdCorrelatedCA(snr, alpha, ev)
+	rnd := rand.New(rand.NewPCG(12, 15))
+	const trials = 200_000
+	hits := 0
+	var w [m + 1]complex128
+	for range trials {
+		phase := rnd.Float64() * 2 * math.Pi
+		a := math.Sqrt(snr)
+		y := complex(a*math.Cos(phase), a*math.Sin(phase)) + ComplexNormal(rnd)
+		for i := range w {
+			w[i] = ComplexNormal(rnd)
+		}
+		ref := 0.0
+		for i := range m {
+			c := (w[i] + w[i+1]) / complex(math.Sqrt2, 0)
+			ref += real(c)*real(c) + imag(c)*imag(c)
+		}
+		if real(y)*real(y)+imag(y)*imag(y) > alpha*ref/m {
+			hits++
+		}
+	}
+	p := float64(hits) / trials
+	half := 2.576 * math.Sqrt(want*(1-want)/trials)
+	t.Logf("correlated cells, α %.3f (independent cells: %.3f): Monte Carlo %.5f, series %.5f, 99 %% half-width %.5f",
+		alpha, CAMultiplier(1e-3, m), p, want, half)
+	if math.Abs(p-want) > half {
+		t.Errorf("correlated CA-CFAR: Monte Carlo Pd %.5f, series %.5f (99 %% half-width %.5f)", p, want, half)
+	}
+}
