@@ -22,17 +22,18 @@ const uncorrelated = 0.1
 // output of a correlator with reference h (dsp's convention, y[k] =
 // Σ x[k+i]·conj(h[i])) between outputs m samples apart:
 //
-//	ρ(m) = Σ_n h[n]·conj(h[n+m]) / Σ_n |h[n]|²,  m = 0 … len(h)−1,
+//	ρ(m) = Σ_n h[n]·conj(h[n+m]) / Σ_n |h[n]|²,  m = 0 … len(dst)−1,
 //
 // with ρ(0) = 1, ρ(−m) = conj(ρ(m)) and ρ(m) = 0 beyond len(h)−1. A nil
-// dst allocates; otherwise len(dst) must be len(h) (else it panics). It
-// returns dst. It panics when h has no energy.
+// dst allocates len(h) lags (all that can be non-zero); a shorter dst
+// gets the first len(dst) lags at a cost of O(len(h)·len(dst)). It
+// returns dst. It panics if len(dst) > len(h) or h has no energy.
 func NoiseCorrelation(dst, h []complex128) []complex128 {
 	if dst == nil {
 		dst = make([]complex128, len(h))
 	}
-	if len(dst) != len(h) {
-		panic("dsp: noise correlation destination length mismatch")
+	if len(dst) > len(h) {
+		panic("dsp: noise correlation destination longer than the reference")
 	}
 	var e float64
 	for _, v := range h {
@@ -41,7 +42,7 @@ func NoiseCorrelation(dst, h []complex128) []complex128 {
 	if !(e > 0) {
 		panic("dsp: noise correlation of a reference without energy")
 	}
-	for m := range h {
+	for m := range dst {
 		var s complex128
 		for n := 0; n+m < len(h); n++ {
 			s += h[n] * cmplx.Conj(h[n+m])

@@ -191,7 +191,7 @@ type CFAR2D struct {
 	DopplerCov     [][]complex128
 
 	c        CFAR
-	cells2   []cell2
+	cells2   []Cell2
 	pattern  map[string]float64
 	key      []byte
 	sr, sd   int
@@ -199,7 +199,9 @@ type CFAR2D struct {
 	spacings bool
 }
 
-type cell2 struct{ a, b int }
+// Cell2 is a training cell of a CFAR2D: offsets A in range cells and B in
+// Doppler bins from the cell under test.
+type Cell2 struct{ A, B int }
 
 // Level returns the threshold at range cell k and Doppler bin d of a map
 // with nr range cells and nd bins, whose power at (k, d) is p(k, d).
@@ -210,7 +212,7 @@ func (c *CFAR2D) Level(p func(k, d int) float64, k, d, nr, nd int) float64 {
 // Cells returns the training cells (range offset, Doppler offset) used at
 // (k, d): inside the map, in valid range cells (valid == nil: all), on the
 // ordered statistic's lattice. The slice is reused by the next call.
-func (c *CFAR2D) Cells(valid func(k int) bool, k, d, nr, nd int) []cell2 {
+func (c *CFAR2D) Cells(valid func(k int) bool, k, d, nr, nd int) []Cell2 {
 	c.spacing(nd)
 	hr, hd := c.GuardR+c.TrainR/2, c.GuardD+c.TrainD/2
 	hd = min(hd, (nd-1)/2)
@@ -228,7 +230,7 @@ func (c *CFAR2D) Cells(valid func(k int) bool, k, d, nr, nd int) []cell2 {
 			if abs(dk) <= c.GuardR && abs(dd) <= c.GuardD || dd%sd != 0 {
 				continue
 			}
-			cs = append(cs, cell2{dk, dd})
+			cs = append(cs, Cell2{dk, dd})
 		}
 	}
 	c.cells2 = cs
@@ -245,7 +247,7 @@ func (c *CFAR2D) LevelValid(p func(k, d int) float64, valid func(k int) bool, k,
 	}
 	vals := c.c.scratch[:0]
 	for _, q := range cs {
-		vals = append(vals, p(k+q.a, ((d+q.b)%nd+nd)%nd))
+		vals = append(vals, p(k+q.A, ((d+q.B)%nd+nd)%nd))
 	}
 	c.c.scratch = vals
 	if c.Rank == 0 {
@@ -272,7 +274,7 @@ func (c *CFAR2D) dcorr(d, d1, d2, nd int) complex128 {
 }
 
 // multiplier returns the CA multiplier for the cells cs at bin d.
-func (c *CFAR2D) multiplier(cs []cell2, d, nd int) float64 {
+func (c *CFAR2D) multiplier(cs []Cell2, d, nd int) float64 {
 	if c.RhoR == nil && c.DopplerCov == nil {
 		return c.c.Multiplier(len(cs))
 	}
@@ -295,7 +297,7 @@ func (c *CFAR2D) multiplier(cs []cell2, d, nd int) float64 {
 		c.key = append(c.key, byte(d), byte(d>>8), 0xff)
 	}
 	for _, q := range cs {
-		c.key = append(c.key, byte(q.a), byte(q.a>>8), byte(q.b))
+		c.key = append(c.key, byte(q.A), byte(q.A>>8), byte(q.B))
 	}
 	if c.pattern == nil {
 		c.pattern = make(map[string]float64)
@@ -304,15 +306,15 @@ func (c *CFAR2D) multiplier(cs []cell2, d, nd int) float64 {
 		return a
 	}
 	// Index 0 is the cell under test, 1 … N the training cells.
-	at := func(i int) cell2 {
+	at := func(i int) Cell2 {
 		if i == 0 {
-			return cell2{}
+			return Cell2{}
 		}
 		return cs[i-1]
 	}
 	a := correlatedCAWithCUT(c.PFA, len(cs), func(i, j int) complex128 {
 		ci, cj := at(i), at(j)
-		return lagCorrelation(c.RhoR, cj.a-ci.a) * c.dcorr(d, d+ci.b, d+cj.b, nd)
+		return lagCorrelation(c.RhoR, cj.A-ci.A) * c.dcorr(d, d+ci.B, d+cj.B, nd)
 	})
 	c.pattern[string(c.key)] = a
 	return a
