@@ -233,7 +233,7 @@ func TestDeterminism(t *testing.T) {
 // TestDemosTeach checks that each demo shows what its notes promise.
 func TestDemosTeach(t *testing.T) {
 	want := map[string]map[string]string{
-		"harbour-skiff":        {"tanker": StatusDetected, "skiff": StatusMasked},
+		"harbour-skiff": {"tanker": StatusDetected, "skiff": StatusMasked},
 		// A CA-CFAR does not single out returns wider than its training
 		// window: the rain band and the ridge mask themselves.
 		"squall-line":          {"light-aircraft": StatusMasked, "rain-band": StatusMasked},

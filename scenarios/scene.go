@@ -81,9 +81,9 @@ type tgt struct {
 	outOfBand  bool
 	bandLossDB float64
 	rejected   bool
-	resp     response
-	density  []float64
-	dlo      int
+	resp       response
+	density    []float64
+	dlo        int
 }
 
 func streamOf(seed int64, id string, salt uint64) *rand.Rand {

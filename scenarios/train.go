@@ -27,7 +27,7 @@ type train struct {
 	sc   *scene
 	plan *dsp.SlowTimePlan
 	gain [][]float64 // gain[j][bin]: target j's power per bin for unit single-pulse power, re noise per bin
-	cf2  *dsp.CFAR2D  // the map's detector, kept with the multipliers it has solved
+	cf2  *dsp.CFAR2D // the map's detector, kept with the multipliers it has solved
 	cfOK bool
 }
 
