@@ -194,11 +194,11 @@ func (m *model) waveformReport() WaveformReport {
 // eclipseLossDB returns a point target's eclipsing loss (docs/detection.md
 // §3): its unblanked peak over its blanked one, in dB; ok is false when
 // no sample was blanked or every one was.
-func (g *tgt) eclipseLossDB() (db float64, ok bool) {
+func (g *tgt) eclipseLossDB(processed []bool) (db float64, ok bool) {
 	if g.t.Kind != TargetPoint || !g.blankTouched {
 		return 0, false
 	}
-	_, p := g.resp.peak()
+	_, p := g.resp.peakIn(processed)
 	if !(p > 0) || !(g.unblankedPeak > 0) || g.received <= 0 {
 		return 0, false
 	}
@@ -237,7 +237,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		if g.t.Kind != TargetPoint && v.peakK >= 0 {
 			tr.RangeM = m.rangeOf(float64(v.peakK))
 		}
-		if l, ok := g.eclipseLossDB(); ok {
+		if l, ok := g.eclipseLossDB(m.processed); ok {
 			tr.EclipsingLossDB = &l
 		}
 		if g.outOfBand && !g.rejected && g.t.Kind == TargetPoint {
@@ -299,7 +299,7 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.Figures, dopLoss float64)
 	snr := dsp.RadarSNR(r.PeakPowerW, m.tau, dsp.FromDB(r.AntennaGainDBi), m.lambda, sigma, rangeM,
 		dsp.FromDB(r.NoiseFigureDB), dsp.FromDB(r.SystemLossDB))
 	v := dsp.DB(snr) - fig.MismatchLossDB - dopLoss
-	if l, ok := g.eclipseLossDB(); ok {
+	if l, ok := g.eclipseLossDB(m.processed); ok {
 		v -= l
 	}
 	if g.rejected {

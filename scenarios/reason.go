@@ -47,14 +47,14 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 			return fmt.Sprintf("Eclipsed: it lies inside the %s blind range of the %s pulse; the receiver is blanked while transmitting, so its range gates are not processed.", km(blind), sec(m.tau))
 		}
 		which := sc.whichPulse(g)
-		if g.received <= 0 || v.peakK < 0 || v.peak <= 0 {
+		if g.received <= 0 {
 			return fmt.Sprintf("Eclipsed: at %s its whole echo arrives while %s is transmitted; the receiver is blanked then, so none of it is heard.", km(g.apparent), which)
 		}
-		l, _ := g.eclipseLossDB()
-		if !m.processed[v.peakK] {
-			return fmt.Sprintf("Eclipsed: at %s its peak falls in range gates that are not processed, inside the %s blind range of the %s pulse (the receiver is blanked while transmitting); %.0f %% of its echo is heard (%.1f dB lost).", km(g.apparent), km(blind), sec(m.tau), 100*g.received, l)
+		if v.peakK < 0 || v.peak <= 0 {
+			return fmt.Sprintf("Eclipsed: at %s, inside the %s blind range of the %s pulse, none of its response reaches a processed range gate (the receiver is blanked while transmitting); %.0f %% of its echo is heard.", km(g.apparent), km(blind), sec(m.tau), 100*g.received)
 		}
-		return fmt.Sprintf("Eclipsed: only %.0f %% of its echo is heard, the rest arrives while %s is transmitted; the %.1f dB lost leaves its peak %.1f dB under the %s threshold, which it would clear by %.1f dB without that loss.", 100*g.received, which, l, -dsp.DB(v.peak/v.threshold), det, dsp.DB(g.unblankedPeak/v.threshold))
+		l, _ := g.eclipseLossDB(sc.m.processed)
+		return fmt.Sprintf("Eclipsed: only %.0f %% of its echo is heard, the rest arrives while %s is transmitted; the %.1f dB lost leaves its peak on the processed range gates %.1f dB under the %s threshold, while without that loss it would clear the threshold against noise alone by %.1f dB.", 100*g.received, which, l, -dsp.DB(v.peak/v.threshold), det, dsp.DB(g.unblankedPeak/v.noiseLevel))
 	case StatusBelowNoise:
 		if g.rejected {
 			return fmt.Sprintf("Below noise: its Doppler shift of %s lies outside the receiver's band of ±%s, which rejects its echo entirely.", hz(g.fd), hz(m.fs/2))
@@ -110,7 +110,7 @@ func (sc *scene) whichPulse(g *tgt) string {
 // losses (eclipsing, receiver band), or "".
 func (sc *scene) lossWords(g *tgt) string {
 	out := ""
-	if l, ok := g.eclipseLossDB(); ok {
+	if l, ok := g.eclipseLossDB(sc.m.processed); ok {
 		out += fmt.Sprintf(" Eclipsing costs %.1f dB: %.0f %% of its echo is heard, the rest arrives while %s is transmitted.", l, 100*g.received, sc.whichPulse(g))
 	}
 	if g.outOfBand && !g.rejected && g.t.Kind == TargetPoint {

@@ -42,6 +42,19 @@ func (r *response) peak() (int, float64) {
 	return bk, best
 }
 
+// peakIn returns the processed gate of the largest power and that power
+// (docs/detection.md §2: a target's peak cell); -1 when no processed gate
+// holds power.
+func (r *response) peakIn(processed []bool) (int, float64) {
+	best, bk := 0.0, -1
+	for i, p := range r.pow {
+		if p > best && processed[r.lo+i] {
+			best, bk = p, r.lo+i
+		}
+	}
+	return bk, best
+}
+
 // scene is the noise-free analysis of every target.
 type scene struct {
 	m       *model
@@ -137,7 +150,7 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 		if n == 0 && focus >= 0 {
 			sc.partial = true
 			sc.reachLo, sc.reachHi = 0, 0
-			if k, _ := g.resp.peak(); k >= 0 {
+			if k, _ := g.resp.peakIn(m.processed); k >= 0 {
 				sc.reachLo, sc.reachHi = k, k+1
 				if cf := m.detector(); cf != nil {
 					sc.reachLo, _, _, sc.reachHi = cf.TrainingCells(k, m.n)

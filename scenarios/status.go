@@ -68,7 +68,7 @@ func (sc *scene) level(cf *dsp.CFAR, k int, extra func(i int) float64) float64 {
 func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 	g := sc.targets[j]
 	v := verdict{culprit: -1}
-	v.peakK, v.peak = g.resp.peak()
+	v.peakK, v.peak = g.resp.peakIn(sc.m.processed)
 	others := func(i int) float64 { return math.Max(sc.total[i]-g.resp.at(i), 0) }
 	if v.peakK >= 0 {
 		v.noiseLevel = sc.level(cf, v.peakK, func(int) float64 { return 0 })
@@ -99,11 +99,9 @@ func (sc *scene) decide(g *tgt, v *verdict) string {
 		v.status = StatusBelowNoise // wholly outside the receiver's band
 	case v.peakK < 0 || v.peak <= 0:
 		v.status = StatusOutOfWindow
-	case !sc.m.processed[v.peakK]:
-		v.status = StatusEclipsed
 	case v.peak >= v.threshold:
 		v.status = StatusDetected
-	case g.blankTouched && g.unblankedPeak >= v.threshold:
+	case g.blankTouched && g.unblankedPeak >= v.noiseLevel:
 		v.status = StatusEclipsed // the eclipsing loss decides
 	case v.peak < v.noiseLevel:
 		v.status = StatusBelowNoise

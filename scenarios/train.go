@@ -119,7 +119,7 @@ func (tr *train) power(j, k, d int) float64 {
 
 // peak returns target j's peak cell on the map.
 func (tr *train) peak(j int) (k, d int, p float64) {
-	k, pr := tr.sc.targets[j].resp.peak()
+	k, pr := tr.sc.targets[j].resp.peakIn(tr.m.processed)
 	if k < 0 {
 		return -1, -1, 0
 	}
@@ -196,7 +196,7 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 	}
 	// The eclipsing loss scales the target's map power as its range power.
 	pu := g.unblankedPeak
-	if _, p0 := g.resp.peak(); p0 > 0 && k >= 0 {
+	if _, p0 := g.resp.peakIn(tr.m.processed); p0 > 0 && k >= 0 {
 		pu *= v.peak / p0
 	}
 	gu := *g
