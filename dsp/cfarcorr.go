@@ -11,7 +11,7 @@ import (
 // CorrelatedCAMultiplier's callers (CFAR, CFAR2D) solve the exact
 // determinant condition; beyond it they use the effective number of
 // independent cells (EffectiveCells).
-const MaxExactCorrelatedCells = 512
+const MaxExactCorrelatedCells = 64
 
 // uncorrelated is the largest |ρ| at which two cells count as independent
 // when an ordered-statistic CFAR thins its training cells (common practice,
@@ -236,39 +236,81 @@ func newCutSpectrum(n int, cov func(i, j int) complex128) (cutSpectrum, bool) {
 // (matrix determinant lemma), μ₊ the root of f on μ > 0.
 func (sp cutSpectrum) logPfa(alpha float64) float64 {
 	beta := alpha / float64(sp.n)
-	f := func(mu float64) float64 {
-		s := 0.0
+	// f is increasing and concave on μ > 0: bracket its root, then Newton
+	// steps from the left converge monotonically.
+	fd := func(mu float64) (f, d float64) {
+		s, ds := 0.0, 0.0
 		for k, l := range sp.lambda {
-			s += l * sp.w[k] / (mu + beta*l)
+			a := l * sp.w[k]
+			q := mu + beta*l
+			s += a / q
+			ds += a / (q * q)
 		}
-		return 1 - (1+beta)*s
+		return 1 - (1+beta)*s, (1 + beta) * ds
 	}
-	lo, hi := 1e-300, 1.0
-	for f(hi) < 0 {
-		hi *= 2
+	lo := 1.0
+	for f, _ := fd(lo); f > 0 && lo > 1e-300; f, _ = fd(lo) {
+		lo /= 4
 	}
-	lo = hi / 2
-	for f(lo) > 0 && lo > 1e-300 {
-		lo /= 2
-	}
-	for range 200 {
-		mid := math.Sqrt(lo * hi)
-		if f(mid) < 0 {
-			lo = mid
-		} else {
-			hi = mid
-		}
-		if hi-lo <= 1e-14*hi {
+	mu := lo
+	for range 100 {
+		f, d := fd(mu)
+		if !(f < 0) || d == 0 {
 			break
 		}
+		next := mu - f/d
+		if next-mu <= 1e-15*mu {
+			mu = next
+			break
+		}
+		mu = next
 	}
-	mu := math.Sqrt(lo * hi)
 	var logProd, d float64
 	for k, l := range sp.lambda {
 		logProd += math.Log(mu + beta*l)
 		d += l * sp.w[k] / ((mu + beta*l) * (mu + beta*l))
 	}
 	return float64(sp.n)*math.Log(mu) - (logProd/2 + math.Log1p(beta) + math.Log(d))
+}
+
+// solveLog finds x = ln α with g(x) = 0 for a decreasing g, by bracketing
+// then the Illinois variant of regula falsi, to |Δx| ≤ 1e-13.
+func solveLog(g func(x float64) float64) float64 {
+	a, b := -5.0, 5.0
+	ga, gb := g(a), g(b)
+	for ga < 0 {
+		a -= 10
+		ga = g(a)
+	}
+	for gb > 0 {
+		b += 10
+		gb = g(b)
+	}
+	side := 0
+	for range 200 {
+		x := (a*gb - b*ga) / (gb - ga)
+		gx := g(x)
+		switch {
+		case gx == 0:
+			return x
+		case gx > 0:
+			a, ga = x, gx
+			if side == 1 {
+				gb /= 2
+			}
+			side = 1
+		default:
+			b, gb = x, gx
+			if side == -1 {
+				ga /= 2
+			}
+			side = -1
+		}
+		if b-a <= 1e-13 {
+			break
+		}
+	}
+	return (a + b) / 2
 }
 
 // CAMultiplierWithCUT returns the cell-averaging multiplier α that gives
@@ -289,28 +331,17 @@ func CAMultiplierWithCUT(pfa float64, n int, cov func(i, j int) complex128) floa
 		return math.NaN()
 	}
 	target := math.Log(pfa)
-	lo, hi := 1e-12, 1.0
-	for sp.logPfa(hi) > target {
-		hi *= 2
-	}
-	for range 200 {
-		mid := math.Sqrt(lo * hi)
-		if sp.logPfa(mid) > target {
-			lo = mid
-		} else {
-			hi = mid
-		}
-		if hi-lo <= 1e-12*hi {
-			break
-		}
-	}
-	return math.Sqrt(lo * hi)
+	return math.Exp(solveLog(func(x float64) float64 { return sp.logPfa(math.Exp(x)) - target }))
 }
 
-// correlatedCAWithCUT is correlatedCA with the cell under test's own
-// correlation to its training cells: cov over indices 0 (the cell under
-// test) … n. Exact up to MaxExactCorrelatedCells training cells; beyond,
-// the training cells' effective number in Richards' formula.
+// correlatedCAWithCUT returns the CA multiplier for n training cells with
+// the cell under test's own correlation to them: cov over indices 0 (the
+// cell under test) … n. Exact up to MaxExactCorrelatedCells training
+// cells (CAMultiplierWithCUT); beyond, Richards' formula for the training
+// cells' effective number N²/Σ|R_ij|², which ignores the cell under
+// test's correlation and so errs on the safe side (a lower Pfa: 0.87·Pfa
+// for 128 cells, 4 guard, a Hamming-weighted LFM at 4 samples per 1/B,
+// from the exact form).
 func correlatedCAWithCUT(pfa float64, n int, cov func(i, j int) complex128) float64 {
 	if n <= MaxExactCorrelatedCells {
 		if a := CAMultiplierWithCUT(pfa, n, cov); !math.IsNaN(a) {

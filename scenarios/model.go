@@ -169,6 +169,10 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 			m.refWarnings = prev.refWarnings
 			if prev.rho != nil && len(prev.rho) == rhoLags(s, len(m.ref)) {
 				m.rho = prev.rho
+				// The detector plan keeps the multipliers it has solved.
+				if s.Receiver.Detector == prev.s.Receiver.Detector {
+					m.cfar = prev.cfar
+				}
 			}
 			m.checkSampling()
 			m.record()
