@@ -54,7 +54,7 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 			return fmt.Sprintf("Eclipsed: at %s, inside the %s blind range of the %s pulse, none of its response reaches a processed range gate (the receiver is blanked while transmitting); %.0f %% of its echo is heard.", km(g.apparent), km(blind), sec(m.tau), 100*g.received)
 		}
 		l, _ := g.eclipseLossDB(sc.m.processed)
-		return fmt.Sprintf("Eclipsed: only %.0f %% of its echo is heard, the rest arrives while %s is transmitted; the %.1f dB lost leaves its peak on the processed range gates %.1f dB under the %s threshold, while without that loss it would clear the threshold against noise alone by %.1f dB.", 100*g.received, which, l, -dsp.DB(v.peak/v.threshold), det, dsp.DB(g.unblankedPeak/v.noiseLevel))
+		return fmt.Sprintf("Eclipsed: only %.0f %% of its echo is heard, the rest arrives while %s is transmitted; the %.1f dB lost leaves its peak on the processed range gates %.1f dB under the %s threshold, while without that loss it would clear the threshold against noise alone by %.1f dB.", 100*g.received, which, l, -dsp.DB(v.peak/v.threshold), det, dsp.DB(v.unblanked/v.noiseLevel))
 	case StatusBelowNoise:
 		if g.rejected {
 			return fmt.Sprintf("Below noise: its Doppler shift of %s lies outside the receiver's band of ±%s, which rejects its echo entirely.", hz(g.fd), hz(m.fs/2))

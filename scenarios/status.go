@@ -18,6 +18,7 @@ type verdict struct {
 	culprit    int     // index of the target that masks it, -1 if none
 	byCell     bool    // masked by power at its very cell (sidelobe or mainlobe) rather than through the CFAR
 	cells      int     // training cells used at the peak cell
+	unblanked  float64 // the peak of its echo without blanking (same units as peak), 0 when not blanked
 }
 
 // margin returns the peak over the threshold in dB, or nil when the target
@@ -69,6 +70,7 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 	g := sc.targets[j]
 	v := verdict{culprit: -1}
 	v.peakK, v.peak = g.resp.peakIn(sc.m.processed)
+	v.unblanked = g.unblankedPeak
 	others := func(i int) float64 { return math.Max(sc.total[i]-g.resp.at(i), 0) }
 	if v.peakK >= 0 {
 		v.noiseLevel = sc.level(cf, v.peakK, func(int) float64 { return 0 })
@@ -101,7 +103,7 @@ func (sc *scene) decide(g *tgt, v *verdict) string {
 		v.status = StatusOutOfWindow
 	case v.peak >= v.threshold:
 		v.status = StatusDetected
-	case g.blankTouched && g.unblankedPeak >= v.noiseLevel:
+	case g.blankTouched && v.unblanked >= v.noiseLevel:
 		v.status = StatusEclipsed // the eclipsing loss decides
 	case v.peak < v.noiseLevel:
 		v.status = StatusBelowNoise

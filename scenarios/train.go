@@ -199,9 +199,8 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 	if _, p0 := g.resp.peakIn(tr.m.processed); p0 > 0 && k >= 0 {
 		pu *= v.peak / p0
 	}
-	gu := *g
-	gu.unblankedPeak = pu
-	if sc.decide(&gu, &v) == StatusMasked {
+	v.unblanked = pu
+	if sc.decide(g, &v) == StatusMasked {
 		best := 0.0
 		var cells []dsp.Cell2
 		if !v.byCell && cf != nil {
