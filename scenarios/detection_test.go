@@ -276,3 +276,36 @@ func TestFalseAlarmsOversampledScene(t *testing.T) {
 		}
 	}
 }
+
+// TestMaskedByCellChoosesLargestContribution (docs/detection.md §7): with
+// a fixed threshold a target can only be masked at its own cell; of two
+// targets whose responses reach that cell, masked_by names the one that
+// puts more power there, measured here by evaluating each alone.
+func TestMaskedByCellChoosesLargestContribution(t *testing.T) {
+	step := C / (2 * 4e7)
+	w := 6000.0
+	det := `{"kind":"fixed","pfa":1e-6}`
+	wj := pointJSON("w", w, rcsFor(20, w))
+	pj := pointJSON("p", w-10*step, rcsFor(55, w-10*step))
+	qj := pointJSON("q", w+25*step, rcsFor(62, w+25*step))
+	scene := func(ts ...string) *Result {
+		return mustEvaluate(t, mustDecode(t, lfmScene(`{"kind":"none"}`, det, ts...)))
+	}
+	alone := scene(wj).Series
+	k := int(math.Round((w - alone.RangeM0) / alone.RangeStepM))
+	for i := k - 2; i <= k+2; i++ {
+		if alone.CleanDB[i] > alone.CleanDB[k] {
+			k = i
+		}
+	}
+	atP, atQ := scene(pj).Series.CleanDB[k], scene(qj).Series.CleanDB[k]
+	want := "p"
+	if atQ > atP {
+		want = "q"
+	}
+	got := target(scene(wj, pj, qj), "w")
+	if got.Status != StatusMasked || got.MaskedBy != want {
+		t.Fatalf("w: %s by %q, want by %q (p puts %.1f dB at its cell, q %.1f dB): %s", got.Status, got.MaskedBy, want, atP, atQ, got.Reason)
+	}
+	t.Logf("p %.1f dB, q %.1f dB at w's cell: masked by %s", atP, atQ, got.MaskedBy)
+}
