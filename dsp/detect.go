@@ -133,7 +133,7 @@ func (c *CFAR) Spacing() int {
 		return 1
 	}
 	if c.step == 0 {
-		c.step = DecorrelationSpacing(c.Guard+c.Train/2+c.Train/2, func(m int) float64 { return cmplx.Abs(lagCorrelation(c.Rho, m)) })
+		c.step = DecorrelationSpacing(2*(c.Guard+c.Train/2), func(m int) float64 { return cmplx.Abs(lagCorrelation(c.Rho, m)) })
 	}
 	return c.step
 }

@@ -225,6 +225,13 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 			g.bandLossDB = -dsp.DB(in)
 		}
 	}
+	// Outside the raw record nothing is recorded; blanking is what the
+	// transmit intervals then remove (docs/detection.md §1, §3).
+	for i := range lp.x {
+		if k := b + i; k < 0 || k >= m.recLen {
+			lp.x[i] = 0
+		}
+	}
 	e0 := energy(lp.x)
 	if lp.u == nil {
 		lp.u = make([]complex128, len(lp.x))
@@ -234,13 +241,7 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 	g.blankTouched = e0 > 0 && energy(lp.x) < e0*(1-1e-12)
 	g.resp = response{lo: lo, pow: make([]float64, hi-lo)}
 	if g.blankTouched && !sc.partial {
-		// The same echo unblanked (not recorded before the window start
-		// or past the record still applies).
-		for i := range lp.u {
-			if k := b + i; k < 0 || k >= m.recLen {
-				lp.u[i] = 0
-			}
-		}
+		// The same echo unblanked (lp.u, limited to the record).
 		lp.c.Apply(lp.y, lp.u)
 		for k := full0; k < full1; k++ {
 			v := lp.y[k-b-m.lead]

@@ -24,7 +24,7 @@ type verdict struct {
 // margin returns the peak over the threshold in dB, or nil when the target
 // has no peak in the window.
 func (v *verdict) margin() *float64 {
-	if v.peakK < 0 || v.peak <= 0 || v.status == StatusEclipsed || v.status == StatusOutOfWindow && v.threshold == 0 {
+	if v.peakK < 0 || v.peak <= 0 || v.status == StatusEclipsed || v.status == StatusOutOfWindow || math.IsInf(v.threshold, 1) {
 		return nil
 	}
 	m := dsp.DB(v.peak / v.threshold)
