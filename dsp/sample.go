@@ -197,8 +197,10 @@ func addGeneric(dst []complex128, lo, hi int, wf Waveform, fs, delay float64, am
 // amp·u(t − delay)·exp(j2π·fd·t) is passed through the ideal filter of
 // that band, then sampled at fs, so an echo whose Doppler lies outside the
 // band is rejected rather than aliased. bandwidth (Hz, > 0) is the
-// waveform's nominal bandwidth, which sets the internal rate M·fs with
-// M·fs/2 ≥ |fd| + 4·bandwidth (the spectrum beyond that is neglected).
+// waveform's nominal bandwidth, which sets the internal rate M·fs,
+// M = max(16, ⌈16·(|fd| + 4·bandwidth)/fs⌉), so that M·fs/2 is at least
+// eight times |fd| + 4·bandwidth (the spectrum beyond it, which would
+// alias into the band, is neglected).
 // The filter is applied circularly over dst's span at the internal rate,
 // so dst should hold a margin of a pulse length around the echo. It
 // returns the fraction of the echo's energy inside the band (1 for an
@@ -207,7 +209,7 @@ func AddEchoInBand(dst []complex128, w Waveform, fs, delay float64, amp complex1
 	if len(dst) == 0 {
 		return 1
 	}
-	m := max(2, int(math.Ceil(2*(math.Abs(fd)+4*bandwidth)/fs)))
+	m := max(16, int(math.Ceil(16*(math.Abs(fd)+4*bandwidth)/fs)))
 	r := float64(m) * fs
 	l := len(dst) * m
 	x := make([]complex128, l)

@@ -225,8 +225,8 @@ func (m *model) record() {
 	m.blanks = m.blanks[:0]
 	tEnd := m.t0 + float64(m.recLen)/m.fs
 	for q := max(math.Floor(m.t0/pri)-1, 0); q*pri < tEnd; q++ {
-		lo := int(math.Max(math.Ceil((q*pri-m.t0)*m.fs), 0))
-		hi := int(math.Min(math.Max(math.Ceil((q*pri+m.tau-m.t0)*m.fs), 0), float64(m.recLen)))
+		lo := int(math.Max(ceilSnap((q*pri-m.t0)*m.fs), 0))
+		hi := int(math.Min(math.Max(ceilSnap((q*pri+m.tau-m.t0)*m.fs), 0), float64(m.recLen)))
 		if lo < hi {
 			m.blanks = append(m.blanks, [2]int{lo, hi})
 		}
@@ -240,6 +240,15 @@ func (m *model) record() {
 			m.processed[k] = false
 		}
 	}
+}
+
+// ceilSnap is ⌈x⌉ with x within 1e-9 (relative) of a whole number taken
+// as that number, so that τ·fs = 100 does not become 101 by rounding.
+func ceilSnap(x float64) float64 {
+	if r := math.Round(x); math.Abs(x-r) <= 1e-9*math.Max(1, math.Abs(r)) {
+		return r
+	}
+	return math.Ceil(x)
 }
 
 // blanked reports whether raw sample j is blanked or not recorded.
@@ -311,13 +320,6 @@ func (m *model) rangeOf(k float64) float64 { return C * (m.t0 + k/m.fs) / 2 }
 
 // sampleOf returns the (fractional) window sample of a range in m.
 func (m *model) sampleOf(r float64) float64 { return (2*r/C - m.t0) * m.fs }
-
-// blankEnd returns the first window sample the receiver hears: samples
-// before it fall inside the transmit pulse.
-func (m *model) blankEnd() int {
-	k := math.Ceil((m.tau - m.t0) * m.fs)
-	return int(math.Min(math.Max(k, 0), float64(m.n)))
-}
 
 // fold returns the apparent range of a true range r and the number of
 // PRIs it folds by.

@@ -44,11 +44,13 @@ func (r *response) peak() (int, float64) {
 
 // peakIn returns the processed gate of the largest power and that power
 // (docs/detection.md §2: a target's peak cell); -1 when no processed gate
-// holds power.
+// holds power. Powers within 1e-9 (relative) of each other tie, and the
+// first gate wins: a flat-topped response (a short pulse against a
+// tapered reference) has several equal gates up to rounding.
 func (r *response) peakIn(processed []bool) (int, float64) {
 	best, bk := 0.0, -1
 	for i, p := range r.pow {
-		if p > best && processed[r.lo+i] {
+		if p > best*(1+1e-9) && processed[r.lo+i] {
 			best, bk = p, r.lo+i
 		}
 	}
