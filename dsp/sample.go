@@ -201,8 +201,8 @@ func addGeneric(dst []complex128, lo, hi int, wf Waveform, fs, delay float64, am
 // M = max(16, ⌈16·(|fd| + 4·bandwidth)/fs⌉), so that M·fs/2 is at least
 // eight times |fd| + 4·bandwidth (the spectrum beyond it, which would
 // alias into the band, is neglected).
-// The filter is applied circularly over dst's span at the internal rate,
-// so dst should hold a margin of a pulse length around the echo. It
+// The filter is applied by FFT over dst's span padded on both sides by
+// max(len(dst), 256) samples; ringing beyond that is neglected. It
 // returns the fraction of the echo's energy inside the band (1 for an
 // echo with no energy). It allocates.
 func AddEchoInBand(dst []complex128, w Waveform, fs, delay float64, amp complex128, fd, bandwidth float64) float64 {
@@ -211,9 +211,14 @@ func AddEchoInBand(dst []complex128, w Waveform, fs, delay float64, amp complex1
 	}
 	m := max(16, int(math.Ceil(16*(math.Abs(fd)+4*bandwidth)/fs)))
 	r := float64(m) * fs
-	l := len(dst) * m
+	// Zero padding of max(len(dst), 256) samples on each side: the band's
+	// edges cut the spectrum finely enough, and the filter's ringing does
+	// not wrap around onto dst.
+	pad := max(len(dst), 256)
+	l := (len(dst) + 2*pad) * m
 	x := make([]complex128, l)
-	AddEcho(x, w, r, delay, amp, fd)
+	// The Doppler phase stays referenced to dst's sample 0.
+	AddEcho(x, w, r, delay+float64(pad)/fs, amp*expj(-2*math.Pi*fd*float64(pad)/fs), fd)
 	f := fourier.NewCmplxFFT(l)
 	c := f.Coefficients(nil, x)
 	var in, all float64
@@ -236,7 +241,7 @@ func AddEchoInBand(dst []complex128, w Waveform, fs, delay float64, amp complex1
 	f.Sequence(x, c)
 	scale := complex(1/float64(l), 0)
 	for i := range dst {
-		dst[i] += x[i*m] * scale
+		dst[i] += x[(pad+i)*m] * scale
 	}
 	return in / all
 }
