@@ -10,7 +10,7 @@ import (
 // Handler returns the server's routes: the one route table.
 func (s *Server) Handler() http.Handler {
 	r := chi.NewRouter()
-	r.Use(middleware.RequestID, s.recoverer, s.requestLogger, securityHeaders, s.requireToken)
+	r.Use(middleware.RequestID, s.recoverer, s.requestLogger, securityHeaders, s.checkHost, s.requireToken)
 	r.NotFound(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errNoRoute) })
 	r.MethodNotAllowed(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errMethod) })
 

@@ -38,13 +38,17 @@ const DefaultAddr = "127.0.0.1:8750"
 
 // Config configures a Server. Zero fields take the defaults noted.
 type Config struct {
-	Addr        string        // host:port to listen on; default DefaultAddr; port 0 picks a free one
-	DataDir     string        // directory of saved scenarios; required
-	Token       string        // access token; generated when the address is not loopback and Token is empty
-	Dev         bool          // serve the page from web/static on disk instead of the embedded copy
-	Static      fs.FS         // the page's files; overrides Dev and the embedded copy (tests)
-	MaxSessions int           // open websocket sessions at most; default 64
-	APITimeout  time.Duration // deadline of a REST request; default 30 s
+	Addr    string // host:port to listen on; default DefaultAddr; port 0 picks a free one
+	DataDir string // directory of saved scenarios; required
+	Token   string // access token; generated when the address is not loopback and Token is empty
+	// AllowedHosts are host names, besides localhost, IP literals and the
+	// bound host, that requests may name in their Host header (a name the
+	// server is reached by on a team network). Any other Host gets 421.
+	AllowedHosts []string
+	Dev          bool          // serve the page from web/static on disk instead of the embedded copy
+	Static       fs.FS         // the page's files; overrides Dev and the embedded copy (tests)
+	MaxSessions  int           // open websocket sessions at most; default 64
+	APITimeout   time.Duration // deadline of a REST request; default 30 s
 	// StarveAfter bounds how long new edits may keep cancelling a
 	// session's computation in flight (see session.cancelBefore); default
 	// 250 ms.
@@ -64,6 +68,7 @@ type Server struct {
 	store  *scenarios.Store
 	static fs.FS
 	token  string
+	hosts  map[string]struct{} // host names accepted besides IP literals and localhost
 	up     websocket.Upgrader
 	ambs   chartCache    // ambiguity charts by waveform
 	slots  chan struct{} // one per computation allowed to run at once
@@ -109,6 +114,10 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	if err != nil {
 		return nil, fmt.Errorf("address %q: %w", cfg.Addr, err)
 	}
+	hosts, err := allowedHosts(host, cfg.AllowedHosts)
+	if err != nil {
+		return nil, err
+	}
 	store, err := scenarios.OpenStore(cfg.DataDir)
 	if err != nil {
 		return nil, err
@@ -116,7 +125,7 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	// Sessions compute at most one per processor at a time: the rest wait
 	// blocked, so readers and writers stay responsive and edits coalesce
 	// in the mailboxes rather than in socket buffers.
-	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token, slots: make(chan struct{}, runtime.GOMAXPROCS(0))}
+	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token, hosts: hosts, slots: make(chan struct{}, runtime.GOMAXPROCS(0))}
 	if s.token == "" && !isLoopback(host) {
 		b := make([]byte, 24)
 		rand.Read(b)

@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"strconv"
+	"strings"
 	"time"
 
 	"github.com/pulsewright/pulsewright/scenarios"
@@ -54,11 +55,21 @@ func (e *env) parseServe(args []string) (serveConfig, error) {
 	fs.StringVar(&c.logFormat, "log-format", envOr("PULSEWRIGHT_LOG_FORMAT", "text"), "log format on standard error: text or json (env PULSEWRIGHT_LOG_FORMAT)")
 	fs.BoolVar(&c.open, "open", open, "open the page in the browser (env PULSEWRIGHT_OPEN)")
 	fs.BoolVar(&c.Dev, "dev", false, "serve the page from web/static on disk (for work on the page)")
+	var hosts multiFlag
+	fs.Var(&hosts, "allowed-host", "a `name` the page may be reached by besides localhost and IP addresses (repeat for more; env PULSEWRIGHT_ALLOWED_HOSTS, comma-separated)")
 	fs.StringVar(&c.Token, "token", os.Getenv("PULSEWRIGHT_TOKEN"), "access `token` to require instead of a generated one (env PULSEWRIGHT_TOKEN)")
 	pos, err := parseFlags(fs, args)
 	if err != nil {
 		return c, err
 	}
+	if len(hosts) == 0 {
+		for _, h := range strings.Split(os.Getenv("PULSEWRIGHT_ALLOWED_HOSTS"), ",") {
+			if h = strings.TrimSpace(h); h != "" {
+				hosts = append(hosts, h)
+			}
+		}
+	}
+	c.AllowedHosts = hosts
 	switch {
 	case len(pos) > 0:
 		return c, usageError{fmt.Sprintf("serve takes no arguments, got %q", pos)}
