@@ -21,7 +21,7 @@ func (s *Server) handleEvaluate(w http.ResponseWriter, r *http.Request) {
 		s.writeError(w, r, err)
 		return
 	}
-	res, err := s.eval(r.Context(), sc)
+	res, err := s.admitted(r.Context(), sc, false, s.eval)
 	if err != nil {
 		s.writeError(w, r, fmt.Errorf("evaluate scenario %q: %w", sc.Name, err))
 		return

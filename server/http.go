@@ -45,7 +45,16 @@ func classify(err error) (int, errorBody) {
 	var se *statusError
 	var ve *scenarios.ValidationError
 	var mbe *http.MaxBytesError
+	var ce *scenarios.CostError
+	var te errEvalTimeout
 	switch {
+	case errors.As(err, &ce):
+		body.Error = ce.Error()
+		body.Fields = ce.Fields()
+		return http.StatusUnprocessableEntity, body
+	case errors.As(err, &te):
+		body.Error = te.Error()
+		return http.StatusServiceUnavailable, body
 	case errors.As(err, &se):
 		return se.status, body
 	case errors.As(err, &ve):

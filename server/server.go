@@ -49,6 +49,19 @@ type Config struct {
 	Static       fs.FS         // the page's files; overrides Dev and the embedded copy (tests)
 	MaxSessions  int           // open websocket sessions at most; default 64
 	APITimeout   time.Duration // deadline of a REST request; default 30 s
+	// EvalTimeout is the deadline of one evaluation, REST or websocket;
+	// default 30 s.
+	EvalTimeout time.Duration
+	// MemoryLimit is the memory budget, in bytes, of the evaluations in
+	// flight, REST and websocket together, counted by their estimated cost
+	// (scenarios.EstimateCost). One over it is refused at once with 422;
+	// others wait for room until their deadline. Default: half the
+	// machine's memory, at most 4 GiB.
+	MemoryLimit int64
+	// SessionIdle is how long a websocket session may go without a client
+	// message before it drops its evaluation buffers (they are rebuilt on
+	// the next message); default 2 minutes.
+	SessionIdle time.Duration
 	// StarveAfter bounds how long new edits may keep cancelling a
 	// session's computation in flight (see session.cancelBefore); default
 	// 250 ms.
@@ -70,8 +83,8 @@ type Server struct {
 	token  string
 	hosts  map[string]struct{} // host names accepted besides IP literals and localhost
 	up     websocket.Upgrader
-	ambs   chartCache    // ambiguity charts by waveform
-	slots  chan struct{} // one per computation allowed to run at once
+	ambs   chartCache // ambiguity charts by waveform
+	adm    *admission // compute slots and memory budget, shared by REST and sessions
 
 	ctx    context.Context // cancelled by Close: ends the sessions
 	cancel context.CancelFunc
@@ -104,6 +117,15 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	if cfg.APITimeout <= 0 {
 		cfg.APITimeout = 30 * time.Second
 	}
+	if cfg.EvalTimeout <= 0 {
+		cfg.EvalTimeout = 30 * time.Second
+	}
+	if cfg.MemoryLimit <= 0 {
+		cfg.MemoryLimit = defaultMemoryLimit()
+	}
+	if cfg.SessionIdle <= 0 {
+		cfg.SessionIdle = 2 * time.Minute
+	}
 	if cfg.StartDemo == "" {
 		cfg.StartDemo = scenarios.DefaultDemo
 	}
@@ -125,7 +147,7 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	// Sessions compute at most one per processor at a time: the rest wait
 	// blocked, so readers and writers stay responsive and edits coalesce
 	// in the mailboxes rather than in socket buffers.
-	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token, hosts: hosts, slots: make(chan struct{}, runtime.GOMAXPROCS(0))}
+	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token, hosts: hosts, adm: newAdmission(runtime.GOMAXPROCS(0), cfg.MemoryLimit)}
 	if s.token == "" && !isLoopback(host) {
 		b := make([]byte, 24)
 		rand.Read(b)

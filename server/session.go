@@ -9,6 +9,7 @@ import (
 	"math"
 	"net/http"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/gorilla/websocket"
@@ -89,6 +90,8 @@ type session struct {
 	runGen    uint64
 	runCancel context.CancelFunc
 	lastFrame time.Time // when compute last put a frame
+
+	releases atomic.Int64 // times the idle session dropped its buffers (tests)
 }
 
 // starveAfter is the default of Config.StarveAfter, which bounds how long
@@ -241,6 +244,10 @@ func rejection(id int64, err error) *errorMsg {
 			m.Error = "invalid pinned scenario"
 		}
 		m.Fields = ve.Fields
+	}
+	var ce *scenarios.CostError
+	if errors.As(err, &ce) {
+		m.Fields = ce.Fields()
 	}
 	return m
 }
