@@ -381,14 +381,20 @@ func (f *frame) encode(sent map[string]string) []byte {
 func (ss *session) writeLoop(ctx context.Context) {
 	ticker := time.NewTicker(pingPeriod)
 	defer ticker.Stop()
+	timeout := ss.srv.cfg.SessionTimeout
+	idleCheck := time.NewTicker(min(timeout/4, time.Minute))
+	defer idleCheck.Stop()
 	sent := map[string]string{} // chart name → structure key the page holds
 	lastFrame := int64(math.MinInt64)
 	for {
 		select {
 		case <-ctx.Done():
 			code, text := websocket.CloseNormalClosure, ""
-			if ss.srv.ctx.Err() != nil {
+			switch cause := context.Cause(ctx); {
+			case ss.srv.ctx.Err() != nil:
 				code, text = websocket.CloseGoingAway, "server shutting down"
+			case errors.Is(cause, errEvicted), errors.Is(cause, errIdleClosed):
+				code, text = websocket.CloseTryAgainLater, cause.Error()
 			}
 			ss.conn.WriteControl(websocket.CloseMessage, websocket.FormatCloseMessage(code, text), time.Now().Add(writeWait))
 			return
@@ -407,6 +413,11 @@ func (ss *session) writeLoop(ctx context.Context) {
 			}
 			if err := ss.write(e); err != nil {
 				return
+			}
+		case now := <-idleCheck.C:
+			if ss.slot.idle(now) >= timeout {
+				ss.log.Info("idle session closed", "idle", ss.slot.idle(now).Round(time.Second))
+				ss.slot.cancel(errIdleClosed)
 			}
 		case <-ticker.C:
 			ss.conn.SetWriteDeadline(time.Now().Add(writeWait))

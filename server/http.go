@@ -28,7 +28,6 @@ var (
 	errNoRoute          = &statusError{http.StatusNotFound, "no such endpoint"}
 	errMethod           = &statusError{http.StatusMethodNotAllowed, "method not allowed on this endpoint"}
 	errUnauthorized     = &statusError{http.StatusUnauthorized, "missing or wrong access token: open the URL the server printed"}
-	errTooManySessions  = &statusError{http.StatusServiceUnavailable, "too many open sessions; close a tab and reload"}
 )
 
 // errorBody is every error response: a message and, for an invalid

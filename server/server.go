@@ -45,10 +45,19 @@ type Config struct {
 	// bound host, that requests may name in their Host header (a name the
 	// server is reached by on a team network). Any other Host gets 421.
 	AllowedHosts []string
-	Dev          bool          // serve the page from web/static on disk instead of the embedded copy
-	Static       fs.FS         // the page's files; overrides Dev and the embedded copy (tests)
-	MaxSessions  int           // open websocket sessions at most; default 64
-	APITimeout   time.Duration // deadline of a REST request; default 30 s
+	Dev          bool  // serve the page from web/static on disk instead of the embedded copy
+	Static       fs.FS // the page's files; overrides Dev and the embedded copy (tests)
+	MaxSessions  int   // open websocket sessions at most; default 64
+	// MaxSessionsPerClient bounds the sessions of one remote address;
+	// default 16.
+	MaxSessionsPerClient int
+	// SessionTimeout closes a session that has sent no message for this
+	// long (pings do not count); default 30 minutes. When the server or a
+	// client is at its cap, a new session instead closes the one idle
+	// longest, if it has been idle for EvictAfter (default 1 minute).
+	SessionTimeout time.Duration
+	EvictAfter     time.Duration
+	APITimeout     time.Duration // deadline of a REST request; default 30 s
 	// EvalTimeout is the deadline of one evaluation, REST or websocket;
 	// default 30 s.
 	EvalTimeout time.Duration
@@ -89,8 +98,8 @@ type Server struct {
 	ctx    context.Context // cancelled by Close: ends the sessions
 	cancel context.CancelFunc
 
-	mu         sync.Mutex // guards open, closing and the Add of sessions
-	open       int
+	mu         sync.Mutex // guards live, closing and the Add of sessions
+	live       map[*sessionSlot]struct{}
 	closing    bool
 	sessions   sync.WaitGroup
 	sessionIDs atomic.Uint64 // numbers sessions in logs
@@ -113,6 +122,15 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	}
 	if cfg.MaxSessions <= 0 {
 		cfg.MaxSessions = 64
+	}
+	if cfg.MaxSessionsPerClient <= 0 {
+		cfg.MaxSessionsPerClient = 16
+	}
+	if cfg.SessionTimeout <= 0 {
+		cfg.SessionTimeout = 30 * time.Minute
+	}
+	if cfg.EvictAfter <= 0 {
+		cfg.EvictAfter = time.Minute
 	}
 	if cfg.APITimeout <= 0 {
 		cfg.APITimeout = 30 * time.Second
@@ -147,7 +165,7 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	// Sessions compute at most one per processor at a time: the rest wait
 	// blocked, so readers and writers stay responsive and edits coalesce
 	// in the mailboxes rather than in socket buffers.
-	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token, hosts: hosts, adm: newAdmission(runtime.GOMAXPROCS(0), cfg.MemoryLimit)}
+	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token, hosts: hosts, live: map[*sessionSlot]struct{}{}, adm: newAdmission(runtime.GOMAXPROCS(0), cfg.MemoryLimit)}
 	if s.token == "" && !isLoopback(host) {
 		b := make([]byte, 24)
 		rand.Read(b)
@@ -251,24 +269,4 @@ func (s *Server) Close(ctx context.Context) error {
 		return fmt.Errorf("close: sessions still open: %w", ctx.Err())
 	}
 	return err
-}
-
-// acquireSession reserves a session slot; false when the server is full
-// or closing.
-func (s *Server) acquireSession() bool {
-	s.mu.Lock()
-	defer s.mu.Unlock()
-	if s.closing || s.open >= s.cfg.MaxSessions {
-		return false
-	}
-	s.open++
-	s.sessions.Add(1)
-	return true
-}
-
-func (s *Server) releaseSession() {
-	s.mu.Lock()
-	s.open--
-	s.mu.Unlock()
-	s.sessions.Done()
 }
