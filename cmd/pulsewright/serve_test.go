@@ -10,6 +10,7 @@ import (
 	"net/http"
 	"os"
 	"os/exec"
+	"os/signal"
 	"path/filepath"
 	"regexp"
 	"strings"
@@ -25,7 +26,16 @@ import (
 // The crash test re-runs this test binary as the server: with
 // PULSEWRIGHT_TEST_SERVE set, TestMain runs "serve" with the arguments in
 // it instead of the tests.
+//
+// With PULSEWRIGHT_TEST_RUN set (arguments separated by newlines), it
+// runs that command line as main does, signals included.
 func TestMain(m *testing.M) {
+	if args := os.Getenv("PULSEWRIGHT_TEST_RUN"); args != "" {
+		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+		code := run(ctx, strings.Split(args, "\n"), os.Stdin, os.Stdout, os.Stderr)
+		stop()
+		os.Exit(code)
+	}
 	if args := os.Getenv("PULSEWRIGHT_TEST_SERVE"); args != "" {
 		ctx, stop := context.WithCancel(context.Background())
 		defer stop()
