@@ -40,15 +40,22 @@ type Saved struct {
 // Store keeps saved scenarios as one canonical JSON file each,
 // dir/NAME.json. Writes are atomic (temporary file, fsync, rename, fsync
 // of the directory), so a crash leaves either the old or the new file,
-// never a partial one. A Store is safe for concurrent use; writes to one
-// name are serialised.
+// never a partial one. A Store is safe for concurrent use, also by
+// several processes on one directory: each write checks its precondition
+// and replaces the file under a lock on the directory (flock(2) on
+// dir/.lock where the system has it), so an If-Match holds across
+// processes.
 type Store struct {
 	dir   string
-	locks [64]sync.Mutex // striped by name
+	locks [64]sync.Mutex // striped by name, within this process
+	flock dirLock        // across processes
 }
 
 // OpenStore opens, creating it if need be, the store in dir, and removes
-// temporary files that an interrupted write left behind.
+// temporary files that an interrupted write left behind: only when the
+// directory's lock is free at that moment (every writer holds it while
+// its temporary file exists, so none is in progress) and, without
+// flock(2), only files older than an hour.
 func OpenStore(dir string) (*Store, error) {
 	if dir == "" {
 		return nil, fmt.Errorf("open store: empty directory name")
@@ -56,14 +63,31 @@ func OpenStore(dir string) (*Store, error) {
 	if err := os.MkdirAll(dir, 0o700); err != nil {
 		return nil, fmt.Errorf("open store: %w", err)
 	}
-	leftovers, err := filepath.Glob(filepath.Join(dir, ".*.tmp"))
+	st := &Store{dir: dir, flock: dirLock{filepath.Join(dir, ".lock")}}
+	if unlock, ok := st.flock.tryLock(); ok {
+		leftovers, _ := filepath.Glob(filepath.Join(dir, ".*.tmp"))
+		for _, f := range leftovers {
+			if fi, err := os.Lstat(f); err == nil && fi.Mode().IsRegular() && time.Since(fi.ModTime()) >= staleAfter {
+				os.Remove(f)
+			}
+		}
+		unlock()
+	}
+	return st, nil
+}
+
+// exclusive runs fn holding the lock of name in this process and the
+// directory's lock across processes.
+func (st *Store) exclusive(name string, fn func() error) error {
+	mu := st.lock(name)
+	mu.Lock()
+	defer mu.Unlock()
+	unlock, err := st.flock.lock()
 	if err != nil {
-		return nil, fmt.Errorf("open store: %w", err)
+		return fmt.Errorf("lock the store %s: %w", st.dir, err)
 	}
-	for _, f := range leftovers {
-		os.Remove(f)
-	}
-	return &Store{dir: dir}, nil
+	defer unlock()
+	return fn()
 }
 
 // Dir returns the store's directory.
@@ -207,15 +231,19 @@ func (st *Store) Put(name string, s *Scenario, match string) (Saved, bool, error
 		return Saved{}, false, fmt.Errorf("save scenario %q: %w", name, err)
 	}
 	data = append(data, '\n')
-	mu := st.lock(name)
-	mu.Lock()
-	defer mu.Unlock()
-	exists, err := st.check(name, match)
+	var exists bool
+	err = st.exclusive(name, func() error {
+		var err error
+		if exists, err = st.check(name, match); err != nil {
+			return err
+		}
+		if err := st.writeAtomic(name, data); err != nil {
+			return fmt.Errorf("save scenario %q: %w", name, err)
+		}
+		return nil
+	})
 	if err != nil {
 		return Saved{}, false, err
-	}
-	if err := st.writeAtomic(name, data); err != nil {
-		return Saved{}, false, fmt.Errorf("save scenario %q: %w", name, err)
 	}
 	return describeSaved(name, data, time.Now()), !exists, nil
 }
@@ -268,17 +296,16 @@ func (st *Store) Delete(name, match string) error {
 	if match == MatchNone {
 		match = MatchAny
 	}
-	mu := st.lock(name)
-	mu.Lock()
-	defer mu.Unlock()
-	if _, _, err := st.read(name); err != nil {
-		return err
-	}
-	if _, err := st.check(name, match); err != nil {
-		return err
-	}
-	if err := os.Remove(st.path(name)); err != nil {
-		return fmt.Errorf("delete saved scenario %q: %w", name, err)
-	}
-	return st.syncDir()
+	return st.exclusive(name, func() error {
+		if _, _, err := st.read(name); err != nil {
+			return err
+		}
+		if _, err := st.check(name, match); err != nil {
+			return err
+		}
+		if err := os.Remove(st.path(name)); err != nil {
+			return fmt.Errorf("delete saved scenario %q: %w", name, err)
+		}
+		return st.syncDir()
+	})
 }
