@@ -61,7 +61,7 @@ func OpenStore(dir string) (*Store, error) {
 		return nil, fmt.Errorf("open store: empty directory name")
 	}
 	if err := os.MkdirAll(dir, 0o700); err != nil {
-		return nil, fmt.Errorf("open store: %w", err)
+		return nil, fmt.Errorf("open store: %w", explainWrite(dir, err))
 	}
 	st := &Store{dir: dir, flock: dirLock{filepath.Join(dir, ".lock")}}
 	if unlock, ok := st.flock.tryLock(); ok {
@@ -84,10 +84,25 @@ func (st *Store) exclusive(name string, fn func() error) error {
 	defer mu.Unlock()
 	unlock, err := st.flock.lock()
 	if err != nil {
-		return fmt.Errorf("lock the store %s: %w", st.dir, err)
+		return fmt.Errorf("lock the store: %w", explainWrite(st.dir, err))
 	}
 	defer unlock()
 	return fn()
+}
+
+// CheckWritable reports, with an error that says what to do, when the
+// store's directory cannot take a save: read-only, not writable by this
+// user, or full. It writes and removes a small temporary file.
+func (st *Store) CheckWritable() error {
+	f, err := os.CreateTemp(st.dir, ".probe.*.tmp")
+	if err == nil {
+		_, err = f.Write([]byte("probe\n"))
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+		os.Remove(f.Name())
+	}
+	return explainWrite(st.dir, err)
 }
 
 // Dir returns the store's directory.
@@ -163,8 +178,26 @@ func (st *Store) List() ([]Saved, error) {
 	return out, nil
 }
 
+// read returns the bytes and time of name's file. It refuses anything
+// but a regular file: a symbolic link (which could point anywhere on the
+// machine), a directory or a device, checked with Lstat and again on the
+// opened file, so that a link swapped in between is caught too.
 func (st *Store) read(name string) ([]byte, time.Time, error) {
-	f, err := os.Open(st.path(name))
+	p := st.path(name)
+	li, err := os.Lstat(p)
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil, time.Time{}, fmt.Errorf("saved scenario %q: %w", name, ErrNotFound)
+	}
+	if err != nil {
+		return nil, time.Time{}, err
+	}
+	notRegular := func() error {
+		return fmt.Errorf("saved scenario %q: %s in %s is %w (a symbolic link, directory or device); the store reads only regular files", name, name+".json", st.dir, ErrNotRegular)
+	}
+	if !li.Mode().IsRegular() {
+		return nil, time.Time{}, notRegular()
+	}
+	f, err := os.Open(p)
 	if errors.Is(err, fs.ErrNotExist) {
 		return nil, time.Time{}, fmt.Errorf("saved scenario %q: %w", name, ErrNotFound)
 	}
@@ -175,6 +208,9 @@ func (st *Store) read(name string) ([]byte, time.Time, error) {
 	fi, err := f.Stat()
 	if err != nil {
 		return nil, time.Time{}, err
+	}
+	if !fi.Mode().IsRegular() || !os.SameFile(li, fi) {
+		return nil, time.Time{}, notRegular()
 	}
 	if fi.Size() > MaxDocumentBytes {
 		return nil, time.Time{}, fmt.Errorf("saved scenario %q: %d bytes: %w", name, fi.Size(), ErrTooLarge)
@@ -238,7 +274,7 @@ func (st *Store) Put(name string, s *Scenario, match string) (Saved, bool, error
 			return err
 		}
 		if err := st.writeAtomic(name, data); err != nil {
-			return fmt.Errorf("save scenario %q: %w", name, err)
+			return fmt.Errorf("save scenario %q: %w", name, explainWrite(st.dir, err))
 		}
 		return nil
 	})
@@ -304,7 +340,7 @@ func (st *Store) Delete(name, match string) error {
 			return err
 		}
 		if err := os.Remove(st.path(name)); err != nil {
-			return fmt.Errorf("delete saved scenario %q: %w", name, err)
+			return fmt.Errorf("delete saved scenario %q: %w", name, explainWrite(st.dir, err))
 		}
 		return st.syncDir()
 	})

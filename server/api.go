@@ -16,7 +16,7 @@ func (s *Server) handleHealth(w http.ResponseWriter, r *http.Request) {
 
 // handleEvaluate evaluates the scenario in the body and returns its report.
 func (s *Server) handleEvaluate(w http.ResponseWriter, r *http.Request) {
-	sc, err := decodeScenario(w, r)
+	sc, err := s.decodeScenario(w, r)
 	if err != nil {
 		s.writeError(w, r, err)
 		return
@@ -37,7 +37,7 @@ type linkBody struct {
 
 // handleLink returns the share link of the scenario in the body.
 func (s *Server) handleLink(w http.ResponseWriter, r *http.Request) {
-	sc, err := decodeScenario(w, r)
+	sc, err := s.decodeScenario(w, r)
 	if err != nil {
 		s.writeError(w, r, err)
 		return

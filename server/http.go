@@ -7,8 +7,11 @@ import (
 	"io"
 	"log/slog"
 	"mime"
+	"net"
 	"net/http"
+	"os"
 	"strconv"
+	"time"
 
 	"github.com/go-chi/chi/v5/middleware"
 
@@ -71,6 +74,13 @@ func classify(err error) (int, errorBody) {
 		return http.StatusNotFound, body
 	case errors.Is(err, scenarios.ErrConflict):
 		return http.StatusConflict, body
+	case errors.Is(err, scenarios.ErrNotRegular):
+		return http.StatusForbidden, body
+	case errors.Is(err, scenarios.ErrStorage):
+		return http.StatusInsufficientStorage, body
+	case isTimeout(err):
+		body.Error = "the request body did not arrive in time; send it again"
+		return http.StatusRequestTimeout, body
 	case errors.Is(err, context.DeadlineExceeded), errors.Is(err, context.Canceled):
 		body.Error = "the request was cancelled or took too long"
 		return http.StatusServiceUnavailable, body
@@ -79,11 +89,20 @@ func classify(err error) (int, errorBody) {
 	return http.StatusInternalServerError, body
 }
 
+// isTimeout reports whether err is a read that passed its deadline.
+func isTimeout(err error) bool {
+	var ne net.Error
+	return errors.Is(err, os.ErrDeadlineExceeded) || errors.As(err, &ne) && ne.Timeout()
+}
+
 // writeError sends err as JSON with its status. A 5xx is logged in full;
 // the client gets a short message.
 func (s *Server) writeError(w http.ResponseWriter, r *http.Request, err error) {
 	status, body := classify(err)
-	if status >= 500 && status != http.StatusServiceUnavailable {
+	switch {
+	case status == http.StatusInsufficientStorage:
+		s.log.Warn("request failed", "method", r.Method, "path", r.URL.Path, "err", err)
+	case status >= 500 && status != http.StatusServiceUnavailable:
 		s.log.Error("request failed", "method", r.Method, "path", r.URL.Path, "request_id", middleware.GetReqID(r.Context()), "err", err)
 	}
 	writeJSON(w, status, body)
@@ -101,19 +120,29 @@ func writeJSON(w http.ResponseWriter, status int, v any) {
 	w.Write(append(data, '\n'))
 }
 
-// readBody reads a JSON request body of at most limit bytes.
-func readBody(w http.ResponseWriter, r *http.Request, limit int64) ([]byte, error) {
+// bodyTimeout is the default of Config.BodyTimeout.
+const bodyTimeout = 20 * time.Second
+
+// readBody reads a JSON request body of at most limit bytes, within the
+// server's body deadline: a body that trickles in slower gets 408.
+func (s *Server) readBody(w http.ResponseWriter, r *http.Request, limit int64) ([]byte, error) {
 	ct := r.Header.Get("Content-Type")
 	mt, _, err := mime.ParseMediaType(ct)
 	if err != nil || mt != "application/json" {
 		return nil, errUnsupportedMedia
 	}
-	return io.ReadAll(http.MaxBytesReader(w, r.Body, limit))
+	rc := http.NewResponseController(w)
+	rc.SetReadDeadline(time.Now().Add(s.cfg.BodyTimeout)) // not supported by every writer (tests): then ReadTimeout alone bounds it
+	data, err := io.ReadAll(http.MaxBytesReader(w, r.Body, limit))
+	if isTimeout(err) {
+		w.Header().Set("Connection", "close")
+	}
+	return data, err
 }
 
 // decodeScenario reads, decodes and validates the scenario in the body.
-func decodeScenario(w http.ResponseWriter, r *http.Request) (*scenarios.Scenario, error) {
-	data, err := readBody(w, r, scenarios.MaxDocumentBytes)
+func (s *Server) decodeScenario(w http.ResponseWriter, r *http.Request) (*scenarios.Scenario, error) {
+	data, err := s.readBody(w, r, scenarios.MaxDocumentBytes)
 	if err != nil {
 		return nil, err
 	}

@@ -55,7 +55,7 @@ func (s *Server) handleSavedPut(w http.ResponseWriter, r *http.Request) {
 		s.writeError(w, r, err)
 		return
 	}
-	sc, err := decodeScenario(w, r)
+	sc, err := s.decodeScenario(w, r)
 	if err != nil {
 		s.writeError(w, r, err)
 		return

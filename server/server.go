@@ -61,6 +61,9 @@ type Config struct {
 	// EvalTimeout is the deadline of one evaluation, REST or websocket;
 	// default 30 s.
 	EvalTimeout time.Duration
+	// BodyTimeout bounds the time to receive a request's body, from the
+	// handler's start; a slower body gets 408. Default 20 s.
+	BodyTimeout time.Duration
 	// MemoryLimit is the memory budget, in bytes, of the evaluations in
 	// flight, REST and websocket together, counted by their estimated cost
 	// (scenarios.EstimateCost). One over it is refused at once with 422;
@@ -135,6 +138,9 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	if cfg.APITimeout <= 0 {
 		cfg.APITimeout = 30 * time.Second
 	}
+	if cfg.BodyTimeout <= 0 {
+		cfg.BodyTimeout = bodyTimeout
+	}
 	if cfg.EvalTimeout <= 0 {
 		cfg.EvalTimeout = 30 * time.Second
 	}
@@ -161,6 +167,9 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	store, err := scenarios.OpenStore(cfg.DataDir)
 	if err != nil {
 		return nil, err
+	}
+	if err := store.CheckWritable(); err != nil {
+		log.Warn("saved scenarios cannot be written: saves and deletes will fail", "err", err)
 	}
 	// Sessions compute at most one per processor at a time: the rest wait
 	// blocked, so readers and writers stay responsive and edits coalesce
