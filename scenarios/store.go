@@ -10,6 +10,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 	"sync"
@@ -27,6 +28,9 @@ const (
 	// MatchAny makes Put and Delete require that the name exists, at any
 	// revision.
 	MatchAny = "*"
+	// MatchNever is a precondition no revision meets (an If-Match that
+	// lists only weak tags).
+	MatchNever = "-"
 )
 
 // Saved describes one saved scenario.
@@ -113,7 +117,7 @@ func (st *Store) Dir() string { return st.dir }
 // starting with '.' or '-'. The error wraps ErrInvalid.
 func ValidName(name string) error {
 	bad := func(why string) error {
-		return fmt.Errorf("scenario name %q %s: %w", name, why, ErrInvalid)
+		return fmt.Errorf("scenario name %s %s: %w", clipQ(name), why, ErrInvalid)
 	}
 	switch {
 	case name == "":
@@ -248,7 +252,9 @@ func (st *Store) check(name, match string) (exists bool, err error) {
 		return false, err
 	case match == MatchNone:
 		return true, fmt.Errorf("saved scenario %q already exists; give its revision to replace it: %w", name, ErrConflict)
-	case match != MatchAny && match != revision(data):
+	case match == MatchNever:
+		return true, fmt.Errorf("saved scenario %q: a weak entity tag never matches (If-Match compares strongly); send the ETag as given: %w", name, ErrConflict)
+	case match != MatchAny && !slices.Contains(strings.Split(match, ","), revision(data)):
 		return true, fmt.Errorf("saved scenario %q changed since revision %s (now %s): %w", name, match, revision(data), ErrConflict)
 	}
 	return true, nil
@@ -256,7 +262,7 @@ func (st *Store) check(name, match string) (exists bool, err error) {
 
 // Put saves s under name as canonical JSON. match is MatchNone to create
 // a new name, MatchAny to replace an existing one, or the revision the
-// caller last read; a failed precondition gives an error wrapping
+// caller last read (or several, comma-separated: any of them will do); a failed precondition gives an error wrapping
 // ErrConflict. It reports whether the name was created.
 func (st *Store) Put(name string, s *Scenario, match string) (Saved, bool, error) {
 	if err := ValidName(name); err != nil {

@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"io"
 	"log/slog"
 	"mime"
@@ -78,9 +79,6 @@ func classify(err error) (int, errorBody) {
 		return http.StatusForbidden, body
 	case errors.Is(err, scenarios.ErrStorage):
 		return http.StatusInsufficientStorage, body
-	case isTimeout(err):
-		body.Error = "the request body did not arrive in time; send it again"
-		return http.StatusRequestTimeout, body
 	case errors.Is(err, context.DeadlineExceeded), errors.Is(err, context.Canceled):
 		body.Error = "the request was cancelled or took too long"
 		return http.StatusServiceUnavailable, body
@@ -89,10 +87,11 @@ func classify(err error) (int, errorBody) {
 	return http.StatusInternalServerError, body
 }
 
-// isTimeout reports whether err is a read that passed its deadline.
+// isTimeout reports whether err, from reading a request's body, is a
+// read that passed its deadline.
 func isTimeout(err error) bool {
 	var ne net.Error
-	return errors.Is(err, os.ErrDeadlineExceeded) || errors.As(err, &ne) && ne.Timeout()
+	return err != nil && !errors.Is(err, context.DeadlineExceeded) && (errors.Is(err, os.ErrDeadlineExceeded) || errors.As(err, &ne) && ne.Timeout())
 }
 
 // writeError sends err as JSON with its status. A 5xx is logged in full;
@@ -136,6 +135,7 @@ func (s *Server) readBody(w http.ResponseWriter, r *http.Request, limit int64) (
 	data, err := io.ReadAll(http.MaxBytesReader(w, r.Body, limit))
 	if isTimeout(err) {
 		w.Header().Set("Connection", "close")
+		return nil, &statusError{http.StatusRequestTimeout, fmt.Sprintf("the request body did not arrive within %s; send it again", s.cfg.BodyTimeout)}
 	}
 	return data, err
 }

@@ -33,6 +33,9 @@ import (
 // must return promptly with ctx.Err() once ctx is cancelled.
 type Evaluator func(ctx context.Context, s *scenarios.Scenario) (*scenarios.Result, error)
 
+// MinTokenLen is the shortest access token accepted in Config.Token.
+const MinTokenLen = 16
+
 // DefaultAddr is the workbench's address unless told otherwise.
 const DefaultAddr = "127.0.0.1:8750"
 
@@ -159,6 +162,9 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	host, _, err := net.SplitHostPort(cfg.Addr)
 	if err != nil {
 		return nil, fmt.Errorf("address %q: %w", cfg.Addr, err)
+	}
+	if n := len(cfg.Token); n > 0 && n < MinTokenLen {
+		return nil, fmt.Errorf("access token of %d characters is too easy to guess: use at least %d, or none to have one generated", n, MinTokenLen)
 	}
 	hosts, err := allowedHosts(host, cfg.AllowedHosts)
 	if err != nil {

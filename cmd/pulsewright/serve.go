@@ -84,6 +84,8 @@ func (e *env) parseServe(args []string) (serveConfig, error) {
 		return c, usageError{fmt.Sprintf("serve takes no arguments, got %q", pos)}
 	case c.logFormat != "text" && c.logFormat != "json":
 		return c, usageError{fmt.Sprintf("--log-format %q: want text or json", c.logFormat)}
+	case c.Token != "" && len(c.Token) < server.MinTokenLen:
+		return c, usageError{fmt.Sprintf("--token of %d characters is too easy to guess: use at least %d, or leave it unset to have one generated", len(c.Token), server.MinTokenLen)}
 	case c.DataDir == "":
 		return c, usageError{"no --data-dir given and no user config directory to default to"}
 	}

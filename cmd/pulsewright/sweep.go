@@ -95,7 +95,7 @@ func (e *env) sweep(args []string) error {
 	if workers == 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	bar := newProgress(e.stderr, n)
+	bar := newProgress(e.rawStderr, n)
 	var points []scenarios.Point
 	detected := false
 	runErr := g.Run(e.ctx, workers, func(p scenarios.Point) error {
