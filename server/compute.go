@@ -226,7 +226,11 @@ func (ss *session) ambiguity(ctx context.Context, c *evalCache) error {
 	}
 	ch, ok := ss.srv.ambs.get(key)
 	if !ok {
-		a, err := scenarios.Ambiguity(ctx, c.scn, ambiguityCols, ambiguityRows)
+		// The surface has the evaluation's deadline; past it, it is left
+		// out rather than holding the frame.
+		actx, cancel := context.WithTimeout(ctx, ss.srv.cfg.EvalTimeout)
+		a, err := scenarios.Ambiguity(actx, c.scn, ambiguityCols, ambiguityRows)
+		cancel()
 		switch {
 		case ctx.Err() != nil:
 			return ctx.Err()
