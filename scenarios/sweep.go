@@ -25,6 +25,28 @@ type Axis struct {
 // value: a fixed setting such as receiver.window.kind=taylor). Values
 // that are not numbers are strings.
 func ParseAxis(spec string) (Axis, error) {
+	return parseAxis(spec, false)
+}
+
+// CountAxes returns the number of points of the grid the specs (as
+// ParseAxis reads them) span, without making their values, so that an
+// oversized grid is refused before any work: the product is checked at
+// each factor and never overflows. The error wraps ErrInvalid.
+func CountAxes(specs []string) (int, error) {
+	g := &Grid{}
+	for _, spec := range specs {
+		a, err := parseAxis(spec, true)
+		if err != nil {
+			return 0, err
+		}
+		g.Axes = append(g.Axes, a)
+	}
+	return g.Count()
+}
+
+// parseAxis is ParseAxis; with countOnly, Values has the right length
+// but holds nil values.
+func parseAxis(spec string, countOnly bool) (Axis, error) {
 	path, vals, ok := strings.Cut(spec, "=")
 	if !ok || path == "" || vals == "" {
 		return Axis{}, fmt.Errorf("sweep %q: want PATH=START:STOP:STEP, PATH=V1,V2,… or PATH=VALUE: %w", spec, ErrInvalid)
@@ -52,6 +74,10 @@ func ParseAxis(spec string) (Axis, error) {
 		if !(n <= MaxSweepPoints) { // NaN too
 			return Axis{}, fmt.Errorf("sweep %s: %g points is over the limit of %d: %w", path, n, MaxSweepPoints, ErrInvalid)
 		}
+		if countOnly {
+			a.Values = make([]json.RawMessage, int(n))
+			return a, nil
+		}
 		for i := 0; i < int(n); i++ {
 			v := start + float64(i)*step
 			// Round off the binary noise of i·step (0.1·3 = 0.30000000000000004).
@@ -62,6 +88,10 @@ func ParseAxis(spec string) (Axis, error) {
 		list := strings.Split(vals, ",")
 		if len(list) > MaxSweepPoints {
 			return Axis{}, fmt.Errorf("sweep %s: %d values is over the limit of %d: %w", path, len(list), MaxSweepPoints, ErrInvalid)
+		}
+		if countOnly {
+			a.Values = make([]json.RawMessage, len(list))
+			return a, nil
 		}
 		for _, v := range list {
 			a.Values = append(a.Values, ParseValue(v))

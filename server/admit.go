@@ -72,7 +72,7 @@ func (a *admission) reserve(ctx context.Context, c scenarios.Cost) (release func
 		select {
 		case <-freed:
 		case <-ctx.Done():
-			return nil, fmt.Errorf("%w (%v)", errBusy, ctx.Err())
+			return nil, fmt.Errorf("%w: %w", errBusy, ctx.Err())
 		}
 	}
 }
@@ -83,7 +83,7 @@ func (a *admission) slot(ctx context.Context) (func(), error) {
 	case a.slots <- struct{}{}:
 		return func() { <-a.slots }, nil
 	case <-ctx.Done():
-		return nil, fmt.Errorf("%w (%v)", errBusy, ctx.Err())
+		return nil, fmt.Errorf("%w: %w", errBusy, ctx.Err())
 	}
 }
 

@@ -191,7 +191,7 @@ func TestSessionIdleRelease(t *testing.T) {
 	eval := &fakeEval{}
 	var made atomic.Int64
 	_, ts := mustServer(t, eval, func(c *Config) {
-		c.SessionIdle = 500 * time.Millisecond
+		c.SessionIdle = time.Second
 		c.SessionEvaluator = func() Evaluator { made.Add(1); return eval.Evaluate }
 	})
 	c := mustDial(t, ts, nil)
@@ -202,7 +202,7 @@ func TestSessionIdleRelease(t *testing.T) {
 	if n := eval.calls.Load(); n != 1 {
 		t.Fatalf("a view change evaluated again (%d calls)", n)
 	}
-	time.Sleep(1200 * time.Millisecond)
+	time.Sleep(2500 * time.Millisecond)
 	if n := made.Load(); n != 2 {
 		t.Fatalf("evaluators made: %d, want a fresh one after the idle release", n)
 	}

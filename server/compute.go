@@ -56,7 +56,6 @@ func (ss *session) compute(ctx context.Context) {
 			continue
 		case w = <-ss.work.ch:
 		}
-		idle.Reset(ss.srv.cfg.SessionIdle)
 		// Wait for a compute slot; a newer state that comes meanwhile
 		// replaces w. Blocked senders on a channel are served in order, so
 		// sessions take turns.
@@ -78,6 +77,7 @@ func (ss *session) compute(ctx context.Context) {
 			f, stale, err = ss.run(ctx, w, &cache)
 		}
 		<-ss.srv.adm.slots
+		idle.Reset(ss.srv.cfg.SessionIdle) // idle from the end of the last computation
 		switch {
 		case ctx.Err() != nil:
 			return

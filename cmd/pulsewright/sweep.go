@@ -41,6 +41,9 @@ func (e *env) sweep(args []string) error {
 		return usageError{fmt.Sprintf("--jobs %d is negative", *jobs)}
 	}
 	// The grid is counted, with overflow checks, before anything else.
+	if _, err := scenarios.CountAxes(sets); err != nil {
+		return err
+	}
 	g := &scenarios.Grid{}
 	for _, spec := range sets {
 		a, err := scenarios.ParseAxis(spec)
