@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/bits"
+	"runtime"
 	"sort"
 )
 
@@ -53,7 +54,8 @@ func nextPow2(n int) int {
 }
 
 // EstimateCost returns the estimated peak memory of evaluating a valid
-// scenario (as Decode returns it).
+// scenario (as Decode returns it). For pulse trains it depends on the
+// number of processors (runtime.GOMAXPROCS), one simulation worker each.
 func EstimateCost(s *Scenario) Cost {
 	n := s.WindowSamples()
 	np := s.PulseSamples()
@@ -77,8 +79,22 @@ func EstimateCost(s *Scenario) Cost {
 		add("radar.pulses", fmt.Sprintf("%d pulses × %d window samples", p, n),
 			float64(costPerCell)*float64(p)*float64(n))
 	}
-	var spread, points float64
 	nDist := 0
+	for _, t := range s.Targets {
+		if t.Kind != TargetPoint {
+			nDist++
+		}
+	}
+	if p > 1 {
+		// Each of the simulation's workers (one per processor) compresses
+		// whole pulses and keeps its own copy of every clutter field's
+		// buffers.
+		w := runtime.GOMAXPROCS(0)
+		add("radar.pulses", fmt.Sprintf("%d simulation workers' buffers for %d window samples", w, n),
+			float64(w)*(float64(costPerFFTPoint)*float64(nfft)+float64(nDist)*float64(costPerSpread)*float64(n+2*np)))
+	}
+	var spread, points float64
+	nDist = 0
 	for _, t := range s.Targets {
 		if t.Kind == TargetPoint {
 			points += float64(np + nr)

@@ -69,12 +69,15 @@ func costScene(t *testing.T, fs, stopM, tau float64, pulses, T int, kind string)
 // stress each term, the estimate must be at least the peak heap measured
 // during Evaluate, and not more than 4 times it once the peak passes
 // 20 MB (below that the fixed 4 MiB base dominates). Measured on
-// linux/amd64 when the constants were set (estimate / measured peak):
-// a 66 k-sample window 1.2 to 4.2 (small), 4 extended targets over it
-// 1.3, a 20 000-sample pulse 1.7, a 933 k-sample window with 4
-// extended targets 1.5, a 100 000-sample pulse in it 1.8, 64 pulses ×
-// 119 k samples 1.4, 128 extended targets over 119 k samples 1.3
-// (965 MB measured).
+// linux/amd64, 2 processors, when the constants were set (estimate /
+// measured peak): this test's cases 3.5 (a 66 k-sample window alone,
+// 6 MB), 1.6, 1.6, 2.9, 1.8 and 1.4; larger runs by hand: a 933 k-sample
+// window with 4 extended targets 1.5 (278 MB measured), a
+// 100 000-sample pulse in it 1.8 (326 MB), 64 pulses × 119 k samples
+// 1.4 (230 MB), 128 extended targets over 119 k samples 1.3 (965 MB);
+// other kinds: a 1024-chip P4 with a least-squares filter 4.6, a Barker
+// 13 with a minimax filter 4.6 (both under 4 MB), a 32-pulse NLFM train
+// with volume and extended clutter 1.9, a Costas code 3.1.
 func TestCostBoundsMeasuredHeap(t *testing.T) {
 	if testing.Short() {
 		t.Skip("seconds of CPU")
