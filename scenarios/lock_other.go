@@ -47,3 +47,9 @@ func (l dirLock) tryLock() (unlock func(), ok bool) {
 // free, to be removed at start: without flock a writer that died holding
 // nothing cannot be told from a slow one, so only old files go.
 const staleAfter = time.Hour
+
+// noFollow is 0 where O_NOFOLLOW is missing: the Lstat before the open and
+// the check of the opened file remain.
+const noFollow = 0
+
+func isLinkRefused(error) bool { return false }

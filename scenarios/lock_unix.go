@@ -55,3 +55,9 @@ func (l dirLock) tryLock() (unlock func(), ok bool) {
 // free, to be removed at start; with flock the free lock alone proves
 // that no writer is alive, so any age will do.
 const staleAfter = 0
+
+// noFollow makes an open fail on a symbolic link.
+const noFollow = syscall.O_NOFOLLOW
+
+// isLinkRefused reports whether err is an open refused by noFollow.
+func isLinkRefused(err error) bool { return errors.Is(err, syscall.ELOOP) }
