@@ -371,7 +371,8 @@ func racePd(lambda, shape float64, q []float64) float64 {
 // mean is then Σ ev_j·E_j/M with E_j independent unit exponentials, so the
 // threshold is a sum of exponential stages and the stage race of the
 // ordered-statistic case applies exactly. PdCorrelatedCA(0, …) is
-// Pfa = Π_j 1/(1 + α·ev_j/M) = 1/det(I + (α/M)R); with R = I it equals
+// Pfa = Π_j 1/(1 + α·ev_j/M) = 1/det(I + (α/M)R), CorrelatedCAPfa, so the α
+// of CorrelatedCAMultiplier for the same ev holds Pfa; with R = I it equals
 // Detector{CFARCells: M}.Pd, and for a Swerling 1 target it is
 // Π_j 1/(1 + α·ev_j/(M(1+SNR))). d.CFARCells and d.OSRank are ignored.
 // It panics if d is not valid or not one test per dwell, α ≤ 0, ev is

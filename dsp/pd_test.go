@@ -597,24 +597,12 @@ func TestPdCorrelatedCA(t *testing.T) {
 	for i := range ev {
 		ev[i] = 1 + math.Cos(float64(i+1)*math.Pi/(m+1))
 	}
-	// α giving Pfa 1e-3 with these cells, by bisection on the exact Pfa.
+	// α giving Pfa 1e-3 with these cells (CorrelatedCAMultiplier, the
+	// detector's own); the series at zero SNR must give that Pfa.
 	steady := Detector{Pfa: 1e-3, Pulses: 1}
-	lo, hi := 1.0, 1000.0
-	for range 200 {
-		mid := math.Sqrt(lo * hi)
-		if steady.PdCorrelatedCA(0, mid, ev) > 1e-3 {
-			lo = mid
-		} else {
-			hi = mid
-		}
-	}
-	alpha := math.Sqrt(lo * hi)
-	pfa := 1.0
-	for _, e := range ev {
-		pfa /= 1 + alpha*e/m
-	}
-	if !near(pfa, 1e-3, 1e-9) {
-		t.Fatalf("Pfa with α %g: det form %g", alpha, pfa)
+	alpha := CorrelatedCAMultiplier(1e-3, ev)
+	if got := steady.PdCorrelatedCA(0, alpha, ev); !near(got, 1e-3, 1e-9) {
+		t.Fatalf("Pd(0) with α %g = %g, want Pfa 1e-3", alpha, got)
 	}
 	for _, snrDB := range []float64{0, 10, 20} {
 		x := FromDB(snrDB)
