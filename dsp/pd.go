@@ -245,9 +245,11 @@ func (d Detector) mustValidate() {
 
 // Pd returns the probability of detection of d for a target of per-pulse
 // SNR snr (linear power ratio, ≥ 0; see the conventions above). Pd(0) is
-// the false-alarm probability. It is exact up to rounding (absolute error
-// below 1e-13, and relative error below 1e-12 when Pd is small). It panics
-// if d is not valid or snr is negative or not finite.
+// the false-alarm probability. The series is exact up to rounding: the
+// tests find it within 1e-10 (relative) of the published closed forms and
+// within 1e-8 of scipy quadrature (the quadrature's own accuracy). It
+// allocates nothing, except an ordered-statistic CFAR of more than 64
+// cells. It panics if d is not valid or snr is negative or not finite.
 func (d Detector) Pd(snr float64) float64 {
 	d.mustValidate()
 	if !(snr >= 0) || math.IsInf(snr, 1) {
