@@ -6,9 +6,9 @@ import (
 	"testing"
 )
 
-// TestCAMultiplier checks α = N(Pfa^(−1/N) − 1) against the values in
-// shared/reference/check-values.md §7 (Richards 2014, eq. 6.135; values
-// computed there to 3 decimals).
+// TestCAMultiplier checks α = N(Pfa^(−1/N) − 1) (Richards, Fundamentals of
+// Radar Signal Processing, 2nd ed. 2014, eq. 6.135) against values
+// computed from that formula to 3 decimals with numpy.
 func TestCAMultiplier(t *testing.T) {
 	for _, tt := range []struct {
 		n    int

@@ -13,7 +13,7 @@ const (
 )
 
 // Report is what the tool concludes about one scenario: the report format
-// of shared/spec/report-format.md, version 1. A quantity that does not
+// of docs/report-format.md, version 1. A quantity that does not
 // apply is a nil pointer and is left out of the JSON.
 type Report struct {
 	Version  int            `json:"version"`

@@ -1,4 +1,4 @@
-// The scenario format (shared/spec/scenario-format.md, version 1) as the
+// The scenario format (docs/scenario-format.md, version 1) as the
 // editor needs it: kinds, the fields of each kind, display units and
 // defaults. Values are stored in SI as the format has them; `scale` is the
 // size of one display unit in SI (1e-6 shows seconds as µs).
