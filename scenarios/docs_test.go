@@ -193,6 +193,7 @@ func TestReportFormatDocumentsEveryField(t *testing.T) {
 		{"report: top", reflect.TypeFor[Report]()},
 		{"report: waveform", reflect.TypeFor[WaveformReport]()},
 		{"report: target", reflect.TypeFor[TargetReport]()},
+		{"report: engine", reflect.TypeFor[EngineInfo]()},
 	} {
 		rows, ok := tables[c.key]
 		if !ok {

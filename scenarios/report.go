@@ -21,6 +21,9 @@ type Report struct {
 	Waveform WaveformReport `json:"waveform"`
 	Targets  []TargetReport `json:"targets"`
 	Warnings []string       `json:"warnings"`
+	// Engine names the build that computed the report. It is filled in
+	// when the report is encoded (see MarshalJSON) if it is nil.
+	Engine *EngineInfo `json:"engine,omitempty"`
 }
 
 // WaveformReport holds the figures of the compression filter's response to

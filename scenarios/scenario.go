@@ -42,6 +42,14 @@ type Scenario struct {
 	Receiver Receiver        `json:"receiver"`
 	Targets  []Target        `json:"targets"`
 	View     json.RawMessage `json:"view,omitempty"` // compact JSON object, nil when empty
+
+	// ReadVersion is the format version of the document the scenario was
+	// read from when it was older than Version (0 otherwise), and Upgraded
+	// says, one sentence each, what reading it in the current version
+	// changed. Neither is part of the format: the canonical form is always
+	// written in the current version.
+	ReadVersion int      `json:"-"`
+	Upgraded    []string `json:"-"`
 }
 
 // Radar is the transmitter, antenna, receiver front end and timing.

@@ -43,8 +43,15 @@ func TestExportFiles(t *testing.T) {
 		t.Fatal(err)
 	}
 	lines := strings.Split(strings.TrimSpace(string(csv)), "\n")
-	if lines[0] != "range_m,profile_db,clean_db,threshold_db" || len(lines) != n+1 {
-		t.Errorf("csv header %q, %d lines, want %d", lines[0], len(lines), n+1)
+	if !strings.HasPrefix(lines[0], "# pulsewright ") || lines[1] != "range_m,profile_db,clean_db,threshold_db" || len(lines) != n+2 {
+		t.Errorf("csv comment %q, header %q, %d lines, want %d", lines[0], lines[1], len(lines), n+2)
+	}
+	var global map[string]any
+	json.Unmarshal(meta, &struct {
+		G *map[string]any `json:"global"`
+	}{&global})
+	if e, _ := global["pulsewright:engine"].(map[string]any); e == nil || e["version"] == "" {
+		t.Errorf("sigmf global has no pulsewright:engine: %v", global["pulsewright:engine"])
 	}
 	if code, _, _ := runCmd(t, "", "export", "demo:harbour-skiff"); code != exitInvalid {
 		t.Errorf("export without outputs: exit %d", code)

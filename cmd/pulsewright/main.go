@@ -41,6 +41,8 @@ Usage:
   pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
                                      write the raw I/Q as SigMF, the profile as CSV
   pulsewright demos                  list the built-in scenarios
+  pulsewright version [--format json]
+                                     print the engine's version, commit and format versions
   pulsewright help                   show this text
 
 SCENARIO is a file path, - for standard input, a share link (a whole URL or
@@ -87,6 +89,8 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.demos(args)
 	case "serve":
 		err = env.serve(args)
+	case "version", "--version":
+		err = env.version(args)
 	case "help", "-h", "--help":
 		fmt.Fprint(stdout, usage)
 		return exitOK

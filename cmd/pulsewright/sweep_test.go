@@ -10,6 +10,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/pulsewright/pulsewright/scenarios"
 )
 
 var taylorSweep = []string{"sweep", "demo:harbour-skiff",
@@ -18,7 +20,12 @@ var taylorSweep = []string{"sweep", "demo:harbour-skiff",
 
 func readCSV(t *testing.T, data string) []map[string]string {
 	t.Helper()
-	recs, err := csv.NewReader(strings.NewReader(data)).ReadAll()
+	if !strings.HasPrefix(data, "# pulsewright ") {
+		t.Errorf("the CSV does not open with the engine comment: %.80q", data)
+	}
+	r := csv.NewReader(strings.NewReader(data))
+	r.Comment = '#'
+	recs, err := r.ReadAll()
 	if err != nil {
 		t.Fatalf("csv: %v\n%s", err, data)
 	}
@@ -52,7 +59,11 @@ func TestSweepTaylorCSV(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	head := strings.SplitN(string(data), "\n", 2)[0]
+	lines := strings.SplitN(string(data), "\n", 3)
+	if lines[0] != "# "+scenarios.RunningEngine().String() {
+		t.Errorf("comment line %q", lines[0])
+	}
+	head := lines[1]
 	want := "receiver.window.kind,receiver.window.sidelobe_db,pslr_db,islr_db,mainlobe_3db_m,mismatch_loss_db," +
 		"tanker.status,tanker.snr_db,tanker.margin_db,skiff.status,skiff.snr_db,skiff.margin_db,pilot-boat.status,pilot-boat.snr_db,pilot-boat.margin_db"
 	if head != want {
@@ -144,13 +155,13 @@ func (w *cancelAfter) Write(p []byte) (int, error) {
 	return n, err
 }
 
-// TestSweepInterruptKeepsRows cancels the context after the header and two
-// rows: the rows already written stay, in grid order, and the exit status
+// TestSweepInterruptKeepsRows cancels the context after the comment line,
+// the header and two rows: the rows already written stay, in grid order, and the exit status
 // says interrupted.
 func TestSweepInterruptKeepsRows(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
-	out := &cancelAfter{n: 3, cancel: cancel}
+	out := &cancelAfter{n: 4, cancel: cancel}
 	var errb bytes.Buffer
 	code := run(ctx, append(taylorSweep, "--jobs", "2"), strings.NewReader(""), out, &errb)
 	if code != exitInterrupted || !strings.Contains(errb.String(), "sweep interrupted") {
