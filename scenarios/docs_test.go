@@ -142,6 +142,7 @@ func TestScenarioFormatDocumentsEveryField(t *testing.T) {
 	sameSet(t, "top level", firstNames(t, table("fields: top")), topFields)
 	sameSet(t, "radar", firstNames(t, table("fields: radar")), radarFields)
 	sameSet(t, "receiver", firstNames(t, table("fields: receiver")), receiverFields)
+	sameSet(t, "receiver.taps", firstNames(t, table("fields: taps")), tapsFields)
 
 	kinds := []struct {
 		name   string

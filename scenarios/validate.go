@@ -133,6 +133,8 @@ func (s *Scenario) validateWaveform(c checker) bool {
 	}
 	ok := true
 	switch w.Kind {
+	case KindSamples:
+		return s.validateSamples(c)
 	case KindRect, KindLFM, KindNLFM:
 		ok = c.above("waveform.pulse_width_s", w.PulseWidthS, 0, 0.1)
 		if w.Kind != KindRect {
@@ -242,6 +244,7 @@ func (s *Scenario) validateReceiver(c checker) {
 			}
 		}
 	}
+	s.validateTaps(c)
 	validateWindow(c, "receiver.window", r.Window)
 	validateWindow(c, "receiver.doppler_window", r.DopplerWindow)
 	d := r.Detector

@@ -38,8 +38,12 @@ Usage:
                                      evaluate a grid of variants; one CSV row per point
   pulsewright report SCENARIO -o FILE.html
                                      write a self-contained HTML report for a customer
-  pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
-                                     write the raw I/Q as SigMF, the profile as CSV
+  pulsewright export SCENARIO [--sigmf BASE] [--csv FILE] [--pulse-sigmf BASE]
+                                     write the raw I/Q as SigMF, the profile as CSV,
+                                     the transmitted pulse as SigMF
+  pulsewright import FILE --into SCENARIO [--as waveform|filter] [--rate HZ] [--bandwidth HZ]
+                                     write a recorded pulse (SigMF cf32_le or CSV) into a
+                                     scenario as its waveform or receive filter; print it
   pulsewright demos                  list the built-in scenarios
   pulsewright version [--format json]
                                      print the engine's version, commit and format versions
@@ -89,6 +93,8 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.demos(args)
 	case "serve":
 		err = env.serve(args)
+	case "import":
+		err = env.importSamples(args)
 	case "version", "--version":
 		err = env.version(args)
 	case "help", "-h", "--help":
