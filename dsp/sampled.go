@@ -50,7 +50,7 @@ type Sampled struct {
 }
 
 // kaiserSteps is the resolution of Sampled's tabulated taper; linear
-// interpolation in it errs by at most β²/(8·kaiserSteps²)·max|w''| ≈ 1e-7,
+// interpolation in it errs by at most β²/(8·kaiserSteps²)·max|w”| ≈ 1e-7,
 // far below the kernel's own 2e-4.
 const kaiserSteps = 4096
 
