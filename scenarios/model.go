@@ -156,10 +156,10 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 		unambM: C * r.PRIS / 2,
 	}
 	m.noiseW = dsp.NoisePower(dsp.FromDB(r.NoiseFigureDB), m.fs)
-	if sameWave && prev.fs == m.fs {
+	if sameWave && prev.fs == m.fs && sameTaps(s.Receiver.Taps, prev.s.Receiver.Taps) {
 		m.pulse = prev.pulse
 		rx, prx := s.Receiver, prev.s.Receiver
-		if rx.Filter == prx.Filter && rx.FilterLengthFactor == prx.FilterLengthFactor && rx.Window == prx.Window && sameTaps(rx.Taps, prx.Taps) {
+		if rx.Filter == prx.Filter && rx.FilterLengthFactor == prx.FilterLengthFactor && rx.Window == prx.Window {
 			m.ref, m.lead, m.noiseGain = prev.ref, prev.lead, prev.noiseGain
 			m.fig, m.dop, m.dopPlan = prev.fig, prev.dop, prev.dopPlan
 			m.warnings = append(m.warnings, prev.refWarnings...)

@@ -84,6 +84,7 @@ func (s *Scenario) validate(errs *errList) {
 	waveOK := s.validateWaveform(c)
 	s.validateRadar(c, waveOK)
 	s.validateReceiver(c)
+	s.validateTaps(c)
 	s.validateTargets(c)
 }
 
@@ -244,7 +245,6 @@ func (s *Scenario) validateReceiver(c checker) {
 			}
 		}
 	}
-	s.validateTaps(c)
 	validateWindow(c, "receiver.window", r.Window)
 	validateWindow(c, "receiver.doppler_window", r.DopplerWindow)
 	d := r.Detector
