@@ -6,9 +6,9 @@ import (
 	"testing"
 )
 
-// TestCAMultiplier checks α = N(Pfa^(−1/N) − 1) (Richards, Fundamentals of
-// Radar Signal Processing, 2nd ed. 2014, eq. 6.135) against values
-// computed from that formula to 3 decimals with numpy.
+// TestCAMultiplier checks α = N(Pfa^(−1/N) − 1) for independent cells
+// against Richards, Fundamentals of Radar Signal Processing, 2nd ed.,
+// eq. 6.135 (values to 3 decimals).
 func TestCAMultiplier(t *testing.T) {
 	for _, tt := range []struct {
 		n    int

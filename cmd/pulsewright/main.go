@@ -38,13 +38,13 @@ Usage:
                                      evaluate a grid of variants; one CSV row per point
   pulsewright report SCENARIO -o FILE.html
                                      write a self-contained HTML report for a customer
-  pulsewright export SCENARIO [--sigmf BASE] [--csv FILE] [--pulse-sigmf BASE]
-                                     write the raw I/Q as SigMF, the profile as CSV,
-                                     the transmitted pulse as SigMF
+  pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
+                                     write the raw I/Q as SigMF, the profile as CSV
+  pulsewright demos                  list the built-in scenarios
   pulsewright import FILE --into SCENARIO [--as waveform|filter] [--rate HZ] [--bandwidth HZ]
                                      write a recorded pulse (SigMF cf32_le or CSV) into a
                                      scenario as its waveform or receive filter; print it
-  pulsewright demos                  list the built-in scenarios
+                                     (export --pulse-sigmf BASE writes a scenario's pulse)
   pulsewright version [--format json]
                                      print the engine's version, commit and format versions
   pulsewright help                   show this text
