@@ -18,11 +18,25 @@ var taylorSweep = []string{"sweep", "demo:harbour-skiff",
 	"--set", "receiver.window.kind=taylor",
 	"--set", "receiver.window.sidelobe_db=-20:-45:-5"}
 
+// readSweepFile reads a sweep CSV file, checks that its first line is the
+// comment naming the engine, and returns the rest.
+func readSweepFile(t *testing.T, path string) ([]byte, error) {
+	t.Helper()
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	first, rest, _ := bytes.Cut(data, []byte("\n"))
+	if string(first) != "# "+scenarios.RunningEngine().String() {
+		t.Errorf("the CSV does not open with the engine comment: %.80q", first)
+	}
+	return rest, nil
+}
+
+// readCSV parses sweep CSV text into rows keyed by the header; comment
+// lines (the engine line) are skipped.
 func readCSV(t *testing.T, data string) []map[string]string {
 	t.Helper()
-	if !strings.HasPrefix(data, "# pulsewright ") {
-		t.Errorf("the CSV does not open with the engine comment: %.80q", data)
-	}
 	r := csv.NewReader(strings.NewReader(data))
 	r.Comment = '#'
 	recs, err := r.ReadAll()
@@ -55,15 +69,11 @@ func TestSweepTaylorCSV(t *testing.T) {
 	if stdout != "" || stderr != "" {
 		t.Errorf("stdout %q stderr %q; want both empty (no terminal, CSV in a file)", stdout, stderr)
 	}
-	data, err := os.ReadFile(out)
+	data, err := readSweepFile(t, out)
 	if err != nil {
 		t.Fatal(err)
 	}
-	lines := strings.SplitN(string(data), "\n", 3)
-	if lines[0] != "# "+scenarios.RunningEngine().String() {
-		t.Errorf("comment line %q", lines[0])
-	}
-	head := lines[1]
+	head := strings.SplitN(string(data), "\n", 2)[0]
 	want := "receiver.window.kind,receiver.window.sidelobe_db,pslr_db,islr_db,mainlobe_3db_m,mismatch_loss_db," +
 		"tanker.status,tanker.snr_db,tanker.margin_db,skiff.status,skiff.snr_db,skiff.margin_db,pilot-boat.status,pilot-boat.snr_db,pilot-boat.margin_db"
 	if head != want {
@@ -166,6 +176,9 @@ func TestSweepInterruptKeepsRows(t *testing.T) {
 	code := run(ctx, append(taylorSweep, "--jobs", "2"), strings.NewReader(""), out, &errb)
 	if code != exitInterrupted || !strings.Contains(errb.String(), "sweep interrupted") {
 		t.Fatalf("exit %d, stderr %q; want %d", code, errb.String(), exitInterrupted)
+	}
+	if !strings.HasPrefix(out.String(), "# pulsewright ") {
+		t.Errorf("the interrupted CSV lost its engine comment: %.80q", out.String())
 	}
 	rows := readCSV(t, out.String())
 	if len(rows) < 2 || len(rows) == 6 {
