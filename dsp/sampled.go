@@ -42,6 +42,7 @@ const (
 // of this package: a radar-equation SNR computed with τ and the peak power
 // then holds, with "peak power" read as the mean power over the pulse.
 type Sampled struct {
+	hold   bool // zero-order hold instead of interpolation (NewHeldSamples)
 	x      []complex128
 	rate   float64   // Hz
 	band   float64   // Hz
@@ -94,6 +95,31 @@ func NewSampled(x []complex128, rate, band float64) (*Sampled, error) {
 	return s, nil
 }
 
+// NewHeldSamples is NewSampled for a pulse that holds each sample for
+// 1/rate: u(t) = x[⌊t·rate⌋], a value within 1e-9 of a whole number of
+// samples taken as that number. It is the continuous form of a pulse
+// designed as a sequence of constant pieces (a phase code given at an
+// integer number of samples per chip), where band-limited interpolation
+// would smooth the pieces' edges that define it.
+func NewHeldSamples(x []complex128, rate, band float64) (*Sampled, error) {
+	s, err := NewSampled(x, rate, band)
+	if s != nil {
+		s.hold = true
+	}
+	return s, err
+}
+
+// Held reports whether the pulse holds its samples (NewHeldSamples), and
+// then returns them (scaled, not to be modified) and the hold length
+// 1/rate in s: the pulse is then a sequence of constant pieces, and its
+// figures can be computed exactly as for a rectangular-chip code.
+func (s *Sampled) Held() (values []complex128, piece float64, ok bool) {
+	if !s.hold {
+		return nil, 0, false
+	}
+	return s.x, 1 / s.rate, true
+}
+
 // Duration returns τ = N/Rate in s.
 func (s *Sampled) Duration() float64 { return float64(len(s.x)) / s.rate }
 
@@ -110,8 +136,8 @@ func (s *Sampled) Len() int { return len(s.x) }
 // bring them to unit mean power.
 func (s *Sampled) Scale() float64 { return s.scale }
 
-// At returns u(t), interpolated as described on Sampled; 0 outside
-// [0, τ). t is in s from the leading edge.
+// At returns u(t), interpolated as described on Sampled (or held, for
+// NewHeldSamples); 0 outside [0, τ). t is in s from the leading edge.
 func (s *Sampled) At(t float64) complex128 {
 	if !(t >= 0 && t < s.Duration()) {
 		return 0
@@ -123,6 +149,9 @@ func (s *Sampled) At(t float64) complex128 {
 			return s.x[k]
 		}
 		return 0
+	}
+	if s.hold {
+		return s.x[min(int(r), len(s.x)-1)]
 	}
 	lo := int(math.Floor(r)) - SampledHalfWidth + 1
 	// sin(π(r − n)) = ±sin(π(r − lo)), the sign alternating with n: one

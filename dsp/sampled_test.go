@@ -142,3 +142,32 @@ func BenchmarkSampledAt(b *testing.B) {
 		AddEcho(dst, s, 2e6, 0.3e-6, 1, 0)
 	}
 }
+
+// TestHeldSamplesAreChips: Barker 7 given at 3 samples per chip and held
+// is the rectangular-chip code itself at every instant (definition of a
+// phase code with rectangular chips), including instants a hair before a
+// chip edge.
+func TestHeldSamplesAreChips(t *testing.T) {
+	ph, _ := Barker(7)
+	code := PhaseCoded{Phases: ph, Chip: 1e-6}
+	x := make([]complex128, 21)
+	for i := range x {
+		x[i] = cmplx.Exp(complex(0, ph[i/3]))
+	}
+	s, err := NewHeldSamples(x, 3e6, 1e6)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k := range 7000 {
+		tt := float64(k) * 1e-9
+		if got, want := s.At(tt), code.At(tt); cmplx.Abs(got-want) > 1e-12 {
+			t.Fatalf("t = %g s: %v held, %v code", tt, got, want)
+		}
+	}
+	if v, piece, ok := s.Held(); !ok || len(v) != 21 || math.Abs(piece-1/3e6) > 1e-20 {
+		t.Errorf("Held() = %d values, %g s, %v", len(v), piece, ok)
+	}
+	if _, _, ok := (&Sampled{}).Held(); ok {
+		t.Error("an interpolated pulse says it is held")
+	}
+}

@@ -121,6 +121,8 @@ func canonicalWaveform(w Waveform) ordered {
 			o.put(f, w.Binary, "")
 		case "sample_rate_hz":
 			o.put(f, w.SampleRateHz, nil)
+		case "interpolation":
+			o.put(f, w.Interpolation, InterpBandLimited)
 		case "i":
 			o = canonicalIQ(o, w.Samples) // writes i, q or amplitude, phase_deg
 		}

@@ -39,7 +39,7 @@ var waveformFields = map[string][]string{
 	KindZadoffChu: {"length", "root", "chip_s"},
 	KindCostas:    {"length", "chip_s"},
 	KindPhaseCode: {"phases_deg", "binary", "chip_s"},
-	KindSamples:   append([]string{"sample_rate_hz", "bandwidth_hz"}, iqFields...),
+	KindSamples:   append([]string{"sample_rate_hz", "bandwidth_hz", "interpolation"}, iqFields...),
 }
 
 var windowFields = map[string][]string{

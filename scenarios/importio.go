@@ -27,6 +27,9 @@ type Recording struct {
 	Samples     IQ
 	RateHz      float64 // samples per second; 0 when the file does not say
 	BandwidthHz float64 // nominal bandwidth; 0 when the file does not say
+	// Interpolation is how the pulse reads between samples, when the file
+	// says (pulsewright:interpolation): InterpHold or InterpBandLimited.
+	Interpolation string
 }
 
 // WritePulseSigMF writes the transmitted pulse of a valid scenario, sampled
@@ -67,6 +70,7 @@ func WritePulseSigMF(meta, data io.Writer, s *Scenario) error {
 		{"core:sha512", hex.EncodeToString(h.Sum(nil))},
 		{"core:extensions", []ordered{{{"name", SigMFExtension}, {"version", sigmfExtensionVersion}, {"optional", true}}}},
 		{"pulsewright:bandwidth_hz", s.Waveform.Bandwidth()},
+		{"pulsewright:interpolation", pulseInterpolation(s)},
 		{"pulsewright:pulse_width_s", s.Waveform.PulseWidth()},
 		{"pulsewright:scenario", json.RawMessage(canon)},
 		{"pulsewright:engine", RunningEngine()},
@@ -121,6 +125,12 @@ func ReadSigMF(meta []byte, data io.Reader) (*Recording, error) {
 		return nil, errors.New("sigmf metadata: core:sample_rate is missing or not positive")
 	}
 	rec.BandwidthHz, _ = num(SigMFExtension + ":bandwidth_hz")
+	switch in := str(SigMFExtension + ":interpolation"); in {
+	case "", InterpBandLimited, InterpHold:
+		rec.Interpolation = in
+	default:
+		return nil, fmt.Errorf("sigmf metadata: %s:interpolation %q is not %s or %s", SigMFExtension, in, InterpBandLimited, InterpHold)
+	}
 	raw, err := io.ReadAll(io.LimitReader(data, 8*MaxImportSamples+1))
 	if err != nil {
 		return nil, fmt.Errorf("sigmf data: %w", err)
@@ -209,7 +219,11 @@ func WithSamplesWaveform(s *Scenario, rec *Recording, rate, band float64) (*Scen
 		return nil, fmt.Errorf("the pulse's bandwidth is not known: give it (--bandwidth): %w", ErrInvalid)
 	}
 	out := *s
-	out.Waveform = Waveform{Kind: KindSamples, SampleRateHz: rate, BandwidthHz: band, Samples: rec.Samples}
+	interp := rec.Interpolation
+	if interp == "" {
+		interp = InterpBandLimited
+	}
+	out.Waveform = Waveform{Kind: KindSamples, SampleRateHz: rate, BandwidthHz: band, Interpolation: interp, Samples: rec.Samples}
 	// A sample rate the old waveform implied by default follows the new one.
 	if s.Radar.SampleRateHz == 2*s.Waveform.Bandwidth() {
 		out.Radar.SampleRateHz = 2 * band
@@ -241,4 +255,24 @@ func redecode(s *Scenario) (*Scenario, error) {
 		return nil, err
 	}
 	return Decode(bytes.TrimSpace(data))
+}
+
+// pulseInterpolation says how an exported pulse should be read between its
+// samples: held, when it is made of constant pieces that the samples
+// resolve exactly (a rect pulse or a phase code at a whole number of
+// samples per chip), and band-limited otherwise.
+func pulseInterpolation(s *Scenario) string {
+	w := s.Waveform
+	if w.Kind != KindRect && !w.IsPhaseCode() {
+		return InterpBandLimited
+	}
+	piece := w.ChipS
+	if w.Kind == KindRect {
+		piece = w.PulseWidthS
+	}
+	per := piece * s.Radar.SampleRateHz
+	if math.Abs(per-math.Round(per)) <= 1e-9*per && math.Round(per) >= 1 {
+		return InterpHold
+	}
+	return InterpBandLimited
 }

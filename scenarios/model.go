@@ -42,7 +42,7 @@ func sameWaveform(a, b Waveform) bool {
 	if a.Kind != b.Kind || a.PulseWidthS != b.PulseWidthS || a.BandwidthHz != b.BandwidthHz || a.Sweep != b.Sweep ||
 		a.DesignSidelobeDB != b.DesignSidelobeDB || a.Length != b.Length || a.Degree != b.Degree || a.Root != b.Root ||
 		a.ChipS != b.ChipS || a.Binary != b.Binary || len(a.PhasesDeg) != len(b.PhasesDeg) ||
-		a.SampleRateHz != b.SampleRateHz || !a.Samples.Equal(b.Samples) {
+		a.SampleRateHz != b.SampleRateHz || a.Interpolation != b.Interpolation || !a.Samples.Equal(b.Samples) {
 		return false
 	}
 	for i := range a.PhasesDeg {

@@ -60,6 +60,7 @@ func randomScenario(r *rand.Rand) *Scenario {
 		w.SampleRateHz = u(1e6, 4e7)
 		w.BandwidthHz = w.SampleRateHz * u(0.2, 1)
 		w.Samples = randomIQ(r, 1+r.IntN(40))
+		w.Interpolation = pick(interpolations)
 	}
 	if r.IntN(8) == 0 {
 		s.Receiver.Filter = FilterCustom

@@ -21,6 +21,14 @@ import (
 // taps of a custom filter.
 const MaxImportSamples = 65536
 
+// How a "samples" waveform is read between its samples.
+const (
+	InterpBandLimited = "band_limited" // Kaiser-windowed sinc (dsp.NewSampled)
+	InterpHold        = "hold"         // each sample held for 1/rate (dsp.NewHeldSamples)
+)
+
+var interpolations = []string{InterpBandLimited, InterpHold}
+
 // iqFields are the fields of a sample sequence, in format order.
 var iqFields = []string{"i", "q", "amplitude", "phase_deg"}
 
@@ -33,6 +41,10 @@ func (o *object) decodeSamples(w *Waveform) {
 	o.float("sample_rate_hz", &w.SampleRateHz)
 	o.require("bandwidth_hz", "the pulse's nominal bandwidth in Hz")
 	o.float("bandwidth_hz", &w.BandwidthHz)
+	w.Interpolation = InterpBandLimited
+	if o.str("interpolation", &w.Interpolation) {
+		o.oneOf("interpolation", w.Interpolation, interpolations)
+	}
 	o.iq(&w.Samples)
 }
 
@@ -211,6 +223,9 @@ func canonicalIQ(o ordered, v IQ) ordered {
 
 // sampledWaveform builds the dsp pulse of a "samples" waveform.
 func sampledWaveform(w Waveform) (dsp.Waveform, error) {
+	if w.Interpolation == InterpHold {
+		return dsp.NewHeldSamples(w.Samples.Complex(), w.SampleRateHz, w.BandwidthHz)
+	}
 	return dsp.NewSampled(w.Samples.Complex(), w.SampleRateHz, w.BandwidthHz)
 }
 
@@ -250,5 +265,9 @@ func sameTaps(a, b *IQ) bool {
 
 // describeSamples describes a "samples" waveform for people.
 func describeSamples(w Waveform) string {
-	return fmt.Sprintf("imported pulse, %d samples at %s (τ %s), B %s", w.Samples.Len(), SI(w.SampleRateHz, "Hz"), SI(w.PulseWidth(), "s"), SI(w.BandwidthHz, "Hz"))
+	how := ""
+	if w.Interpolation == InterpHold {
+		how = ", held"
+	}
+	return fmt.Sprintf("imported pulse, %d samples at %s%s (τ %s), B %s", w.Samples.Len(), SI(w.SampleRateHz, "Hz"), how, SI(w.PulseWidth(), "s"), SI(w.BandwidthHz, "Hz"))
 }

@@ -108,8 +108,9 @@ type Waveform struct {
 	// samples (an extension): the pulse as complex samples at
 	// SampleRateHz, given as I and Q or as amplitude and phase; BandwidthHz
 	// is its nominal bandwidth.
-	SampleRateHz float64 `json:"sample_rate_hz,omitempty"` // samples: rate of the samples, Hz
-	Samples      IQ      `json:"-"`                        // samples: the samples, in the form given
+	SampleRateHz  float64 `json:"sample_rate_hz,omitempty"` // samples: rate of the samples, Hz
+	Interpolation string  `json:"interpolation,omitempty"`  // samples: band_limited or hold, between samples
+	Samples       IQ      `json:"-"`                        // samples: the samples, in the form given
 }
 
 // IQ is a sequence of complex samples as a scenario gives them: I and Q,
