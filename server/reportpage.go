@@ -5,7 +5,6 @@ import (
 	"html/template"
 	"io"
 	"math"
-	"strings"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
@@ -65,27 +64,6 @@ type reportData struct {
 	Style          template.CSS
 	Charts         []pageChart
 	Script         template.JS
-}
-
-// noteParagraphs splits the scenario's notes into paragraphs at blank
-// lines; single line breaks inside a paragraph are kept by the page's
-// style (white-space: pre-line).
-func noteParagraphs(notes string) []string {
-	var out []string
-	for _, p := range strings.Split(strings.ReplaceAll(notes, "\r\n", "\n"), "\n\n") {
-		if p = strings.TrimSpace(p); p != "" {
-			out = append(out, p)
-		}
-	}
-	return out
-}
-
-// engineLine names the engine that computed the report.
-func engineLine(rep *scenarios.Report) string {
-	if rep.Engine != nil {
-		return rep.Engine.String()
-	}
-	return scenarios.RunningEngine().String()
 }
 
 type targetRow struct {
