@@ -18,7 +18,7 @@ func TestCAMultiplier(t *testing.T) {
 			t.Errorf("CAMultiplier(1e-6, %d) = %.4f, want %.3f", tt.n, got, tt.want)
 		}
 	}
-	// Known-noise threshold −ln Pfa = 13.8155 (same table).
+	// Known-noise threshold −ln Pfa = 13.8155 (same source).
 	if got := FixedMultiplier(1e-6); math.Abs(got-13.8155) > 1e-4 {
 		t.Errorf("FixedMultiplier(1e-6) = %v", got)
 	}
