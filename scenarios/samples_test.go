@@ -15,7 +15,7 @@ import (
 func roundTripScene(t *testing.T, waveform string, fs float64) *Scenario {
 	t.Helper()
 	gate := func(k int) float64 { return float64(k) * C / (2 * fs) }
-	doc := fmt.Sprintf(`{"version":1,"name":"import round trip","radar":{"sample_rate_hz":%g,"pri_s":2e-4,"window_stop_m":%g},
+	doc := fmt.Sprintf(`{"version":1,"name":"import round trip","radar":{"sample_rate_hz":%g,"pri_s":3.2e-3,"window_stop_m":%g},
 		"waveform":%s,
 		"targets":[{"id":"hull","kind":"point","range_m":%g,"rcs_dbsm":30},
 		           {"id":"dinghy","kind":"point","range_m":%g,"rcs_dbsm":-12},

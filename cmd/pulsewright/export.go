@@ -24,6 +24,9 @@ func (e *env) export(args []string) error {
 		if *sigmf != "" {
 			outs["--sigmf (meta)"], outs["--sigmf (data)"] = *sigmf+".sigmf-meta", *sigmf+".sigmf-data"
 		}
+		if *pulse != "" {
+			outs["--pulse-sigmf (meta)"], outs["--pulse-sigmf (data)"] = *pulse+".sigmf-meta", *pulse+".sigmf-data"
+		}
 		if err := checkOutputs(pos[0], outs); err != nil {
 			return err
 		}
@@ -67,18 +70,18 @@ func (e *env) export(args []string) error {
 	return nil
 }
 
-// writeSigMFPair writes BASE.sigmf-data and BASE.sigmf-meta with write.
+// writeSigMFPair writes BASE.sigmf-data and BASE.sigmf-meta with write,
+// each atomically, the data in place before the metadata that names it.
 func writeSigMFPair(base string, write func(meta, data io.Writer) error) error {
-	data, err := os.Create(base + ".sigmf-data")
+	data, err := createOut(base + ".sigmf-data")
 	if err != nil {
 		return fmt.Errorf("export: %w", err)
 	}
-	defer data.Close()
-	if err := writeFile(base+".sigmf-meta", func(meta io.Writer) error { return write(meta, data) }); err != nil {
-		return err
-	}
-	if err := data.Close(); err != nil {
-		return fmt.Errorf("export: %w", err)
-	}
-	return nil
+	defer data.Abort() // after Commit, a no-op
+	return writeFile(base+".sigmf-meta", func(meta io.Writer) error {
+		if err := write(meta, data); err != nil {
+			return err
+		}
+		return data.Commit()
+	})
 }
