@@ -28,6 +28,7 @@ const (
 // filter gives: the figures, the response plot and the grid the Doppler
 // response is computed on.
 type contFigures struct {
+	m            *model // the model that computed them (for a custom filter's taps)
 	fig          dsp.ChiFigures
 	chi          *dsp.Chi
 	plot         *Response    // computed on first use
@@ -53,6 +54,10 @@ func chipValues(w dsp.Waveform) ([]complex128, float64) {
 			a[i] = cmplx.Rect(1, p)
 		}
 		return a, v.Chip
+	case *dsp.Sampled: // imported samples held over 1/rate are constant pieces too
+		if x, piece, ok := v.Held(); ok {
+			return x, piece
+		}
 	}
 	return nil, 0
 }
@@ -88,11 +93,14 @@ func (m *model) continuous() *contFigures {
 	if m.cont != nil {
 		return m.cont
 	}
-	c := &contFigures{}
+	c := &contFigures{m: m}
 	var chi *dsp.Chi
 	win := dspWindow(m.s.Receiver.Window)
 	mismatched := m.taps != nil
-	if a, chip := chipValues(m.wave); a != nil {
+	if m.s.Receiver.Filter == FilterCustom {
+		c.customFilter()
+		chi = c.chi
+	} else if a, chip := chipValues(m.wave); a != nil {
 		k := max(heldPerChip, (heldMinSamples+len(a)-1)/len(a))
 		c.held, c.rate = true, float64(k)/chip
 		c.x = repeatChips(a, k)
@@ -135,6 +143,26 @@ func (m *model) sampling() (maxDB, meanDB float64) {
 		c.straddleDone = true
 	}
 	return c.straddleMax, c.straddleMean
+}
+
+// customFilter sets the response of a custom filter, whose taps are
+// known only at the scenario's rate fs: against a pulse of constant
+// pieces a whole number of samples long (a code at an integer number of
+// samples per chip, held imported samples) the taps are held over 1/fs
+// and the response is exact between lags; otherwise the pulse and taps
+// are read as band-limited samples at fs.
+func (c *contFigures) customFilter() {
+	m := c.m
+	c.rate, c.h = m.fs, m.ref
+	if a, chip := chipValues(m.wave); a != nil {
+		if k := math.Round(chip * m.fs); k >= 1 && math.Abs(chip*m.fs-k) <= 1e-9*k {
+			c.held, c.x = true, repeatChips(a, int(k))
+			c.chi = dsp.HeldChi(c.x, c.h, 1/m.fs)
+			return
+		}
+	}
+	c.x = m.pulse
+	c.chi = dsp.SampledChi(c.x, c.h, m.fs, m.wave.Bandwidth())
 }
 
 // doppler returns the peak loss (dB) and delay shift (s) of the
