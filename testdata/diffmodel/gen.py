@@ -1,0 +1,302 @@
+#!/usr/bin/python3
+"""Seeded generator of the differential cases: random waveform cases (every
+kind, window and filter at 1, 1.5, 2, 2.5, 3, 4, 5 and 8 samples per 1/B,
+each with one Doppler-shifted target) and random single-pulse scenes (1-4
+point targets, Doppler, fixed / CA-CFAR / OS-CFAR detectors), with the
+report fields the independent model (model.py) expects.
+
+    cd testdata/diffmodel && /usr/bin/python3 gen.py   -> cases.json
+
+Read by scenarios/diff_test.go. Deterministic for SEED.
+"""
+import json
+import math
+import sys
+import time
+
+import numpy as np
+import scipy
+
+import model
+
+SEED = 20261202
+N_WAVE = 320
+N_SCENE = 210
+RATES = [1, 1.5, 2, 2.5, 3, 4, 5, 8]
+C = model.C
+KINDS = ["rect", "lfm", "nlfm", "barker", "mps", "mls", "frank", "p1", "p2", "p3", "p4",
+         "zadoff_chu", "costas", "phase_code"]
+WINDOWS = ["none", "hann", "hamming", "blackman", "blackman_harris", "taylor", "chebyshev",
+           "kaiser", "gaussian"]
+COSTAS = [2, 4, 6, 10, 12, 16, 18, 22, 28, 30]
+
+
+def sig3(rng, lo, hi):
+    """a random value log-uniform in [lo, hi], rounded to 3 significant
+    digits (chip lengths such as 1.3e-6 s exercise exact chip sampling)."""
+    v = math.exp(rng.uniform(math.log(lo), math.log(hi)))
+    e = math.floor(math.log10(v)) - 2
+    return float(f"{round(v / 10 ** e)}e{e}")
+
+
+def random_waveform(rng, kind, small=False):
+    w = {"kind": kind}
+    if kind == "rect":
+        w["pulse_width_s"] = sig3(rng, 2e-7, 2e-5)
+    elif kind == "lfm":
+        bt = math.exp(rng.uniform(math.log(2), math.log(60 if small else 400)))
+        B = sig3(rng, 1e6, 2e7)
+        w["pulse_width_s"] = float(f"{bt / B:.3g}")
+        w["bandwidth_hz"] = B
+        if rng.random() < 0.5:
+            w["sweep"] = "down"
+    elif kind == "nlfm":
+        bt = math.exp(rng.uniform(math.log(60), math.log(300)))
+        B = sig3(rng, 1e6, 1e7)
+        w["pulse_width_s"] = float(f"{bt / B:.3g}")
+        w["bandwidth_hz"] = B
+        w["design_sidelobe_db"] = float(round(rng.uniform(-45, -20), 1))
+    elif kind == "barker":
+        w["length"] = int(rng.choice([2, 3, 4, 5, 7, 11, 13]))
+    elif kind == "mps":
+        w["length"] = int(rng.integers(2, 26 if small else 51))
+    elif kind == "mls":
+        w["degree"] = int(rng.integers(2, 6 if small else 9))
+    elif kind in ("frank", "p1"):
+        m = int(rng.integers(2, 6 if small else 13))
+        w["length"] = m * m
+    elif kind == "p2":
+        m = int(rng.choice([2, 4] if small else [2, 4, 6, 8, 10]))
+        w["length"] = m * m
+    elif kind in ("p3", "p4"):
+        w["length"] = int(rng.integers(2, 30 if small else 300))
+    elif kind == "zadoff_chu":
+        n = int(rng.integers(2, 30 if small else 300))
+        roots = [u for u in range(1, n) if math.gcd(u, n) == 1]
+        w["length"] = n
+        w["root"] = int(rng.choice(roots))
+    elif kind == "costas":
+        w["length"] = int(rng.choice(COSTAS[:6] if small else COSTAS))
+    elif kind == "phase_code":
+        n = int(rng.integers(1, 30))
+        r = rng.random()
+        if r < 0.15:
+            w["binary"] = "+" * n if rng.random() < 0.5 else "-" * n
+        elif r < 0.5:
+            w["binary"] = "".join(rng.choice(["+", "-"], n))
+        else:
+            w["phases_deg"] = [float(round(x, 1)) for x in rng.uniform(-180, 360, n)]
+    if kind not in ("rect", "lfm", "nlfm"):
+        w["chip_s"] = sig3(rng, 1e-7, 5e-6) if kind != "costas" else sig3(rng, 1e-6, 2e-5)
+    return w
+
+
+def random_window(rng, kind):
+    w = {"kind": kind}
+    if kind == "taylor":
+        w["sidelobe_db"] = float(round(rng.uniform(-50, -25), 1))
+        w["nbar"] = int(rng.integers(3, 9))
+    elif kind == "chebyshev":
+        w["sidelobe_db"] = float(round(rng.uniform(-70, -30), 1))
+    elif kind == "kaiser":
+        w["beta"] = float(round(rng.uniform(0, 10), 2))
+    elif kind == "gaussian":
+        w["sigma"] = float(round(rng.uniform(0.2, 0.8), 3))
+    return w
+
+
+def bandwidth(w):
+    if w["kind"] == "rect":
+        return 1 / w["pulse_width_s"]
+    if w["kind"] in ("lfm", "nlfm"):
+        return w["bandwidth_hz"]
+    if w["kind"] == "costas":
+        return w["length"] / w["chip_s"]
+    return 1 / w["chip_s"]
+
+
+def pulse_width(w):
+    if w["kind"] in ("rect", "lfm", "nlfm"):
+        return w["pulse_width_s"]
+    n = {"mls": lambda: 2 ** w["degree"] - 1,
+         "phase_code": lambda: len(w.get("binary") or w.get("phases_deg"))}.get(w["kind"], lambda: w["length"])()
+    return n * w["chip_s"]
+
+
+def chips(w):
+    return round(pulse_width(w) / w["chip_s"])
+
+
+def doppler_target(rng, w, fs, tid, r, rcs):
+    """a point target whose Doppler is a random fraction of min(0.3 B,
+    0.45 fs); the carrier is chosen so the range rate stays within 1e4 m/s."""
+    B = bandwidth(w)
+    fmax = min(0.3 * B, 0.45 * fs)
+    fd = float(rng.uniform(-1, 1)) * fmax * (rng.random() < 0.85)
+    return fd
+
+
+def carrier_for(fdmax):
+    # lambda <= 2e4 / fdmax so that |range_rate| <= 1e4 m/s; also <= 9.5 GHz default
+    f = max(9.5e9, fdmax * C / 2e4 * 1.01)
+    return float(f"{min(f, 3e11):.4g}")
+
+
+def waveform_case(rng, i):
+    kind = KINDS[i % len(KINDS)]
+    rate = RATES[(i // len(KINDS)) % len(RATES)]
+    filt = "matched"
+    phase = kind in model.PHASE_CODES
+    r = rng.random()
+    if phase and r < 0.22:
+        filt = "least_squares"
+    elif phase and r < 0.34:
+        filt = "minimax"
+    w = random_waveform(rng, kind, small=(filt == "minimax"))
+    rx = {}
+    if filt == "matched":
+        win = WINDOWS[int(rng.integers(0, len(WINDOWS)))] if rng.random() < 0.7 else "none"
+        if win != "none":
+            rx["window"] = random_window(rng, win)
+    else:
+        rx["filter"] = filt
+        n = chips(w)
+        fmax = 8 if filt == "least_squares" else max(1, min(8, 128 // n))
+        rx["filter_length_factor"] = int(rng.integers(1, fmax + 1))
+    B = bandwidth(w)
+    fs = float(f"{rate * B:.6g}")
+    if fs < B:
+        fs = B
+    tau = pulse_width(w)
+    blind = C * tau / 2
+    fd = doppler_target(rng, w, fs, "t", 0, 0)
+    carrier = carrier_for(abs(fd))
+    lam = C / carrier
+    rr = float(f"{-fd * lam / 2:.6g}")
+    start = float(round(blind + 1000 + rng.uniform(0, 2000)))
+    rng_t = float(round(start + 300 + rng.uniform(0, 1000), 2))
+    stop = float(round(rng_t + 300 + blind))
+    sc = {"version": 1, "name": f"wave-{i:03d}",
+          "radar": {"carrier_hz": carrier, "sample_rate_hz": fs, "pri_s": 2e-4 if blind < 1e4 else 1e-3,
+                    "window_start_m": start, "window_stop_m": stop},
+          "waveform": w}
+    if rx:
+        sc["receiver"] = rx
+    sc["targets"] = [{"id": "t", "kind": "point", "range_m": rng_t, "rcs_dbsm": 20.0, "range_rate_mps": rr}]
+    return sc
+
+
+SCENE_KINDS = ["lfm", "lfm", "lfm", "rect", "barker", "mps", "p4", "frank", "mls", "nlfm", "costas", "zadoff_chu"]
+
+
+def scene_case(rng, i):
+    kind = SCENE_KINDS[i % len(SCENE_KINDS)]
+    w = random_waveform(rng, kind, small=True)
+    rx = {}
+    if kind in model.PHASE_CODES and rng.random() < 0.25:
+        rx["filter"] = "least_squares"
+        rx["filter_length_factor"] = int(rng.integers(1, 4))
+    elif rng.random() < 0.5:
+        win = WINDOWS[int(rng.integers(1, len(WINDOWS)))]
+        rx["window"] = random_window(rng, win)
+    dk = ["fixed", "ca_cfar", "os_cfar"][i % 3]
+    det = {"kind": dk, "pfa": float(f"{10 ** rng.uniform(-9, -3):.2g}")}
+    if dk != "fixed":
+        g = int(rng.integers(0, 5))
+        tr = 2 * int(rng.integers(2, 17))
+        det["guard_cells"] = g
+        det["training_cells"] = tr
+        if dk == "os_cfar":
+            det["rank"] = int(rng.integers(1, tr + 1))
+    rx["detector"] = det
+    B = bandwidth(w)
+    tau = pulse_width(w)
+    rate = RATES[int(rng.integers(0, len(RATES)))]
+    fs = float(f"{rate * B:.6g}")
+    blind = C * tau / 2
+    # short PRI so that the window can reach the next pulse
+    pri = float(f"{max(4 * tau, 2e-6 * rng.uniform(8, 40)):.3g}")
+    runamb = C * pri / 2
+    full = rng.random() < 0.5
+    if full:
+        start, stop = 0.0, None
+    else:
+        start = float(round(rng.uniform(0, 0.5) * blind))
+        stop = float(round(min(runamb * rng.uniform(0.6, 1.0), start + 6000 + 3 * blind)))
+    wstop = stop if stop is not None else runamb
+    # the gate count must stay small
+    ngates = (wstop - start) * 2 / C * fs
+    if ngates > 20000:
+        wstop = start + 20000 * C / (2 * fs)
+        stop = float(round(wstop))
+    nt = int(rng.integers(1, 5))
+    targets = []
+    base = rng.uniform(start + 0.3 * blind, wstop)
+    fdmax = min(0.3 * B, 0.45 * fs)
+    fds = [float(rng.uniform(-1, 1)) * fdmax * (rng.random() < 0.7) for _ in range(nt)]
+    carrier = carrier_for(max(abs(f) for f in fds) if fds else 0)
+    lam = C / carrier
+    for j in range(nt):
+        r = rng.random()
+        if r < 0.35 and j > 0:  # near a previous target: masking
+            R = targets[-1]["range_m"] + rng.uniform(-1, 1) * rng.choice([1, 3, 10]) * C / (2 * B)
+        elif r < 0.5:  # near the blind range: partial eclipsing
+            R = blind * rng.uniform(0.6, 1.3)
+        elif r < 0.6:  # near the next pulse
+            R = runamb - blind * rng.uniform(-0.2, 1.3)
+        elif r < 0.65:  # beyond the window or folded
+            R = wstop + rng.uniform(0, 2) * runamb * 0.3
+        else:
+            R = base + rng.uniform(-1, 1) * 2000
+        R = float(round(max(R, 10.0), 2))
+        # SNR spread around the detection threshold
+        rcs = float(round(rng.uniform(-25, 25), 1))
+        rr = float(f"{-fds[j] * lam / 2:.6g}")
+        t = {"id": f"t{j}", "kind": "point", "range_m": R, "rcs_dbsm": rcs}
+        if rr:
+            t["range_rate_mps"] = rr
+        targets.append(t)
+    radar = {"carrier_hz": carrier, "sample_rate_hz": fs, "pri_s": pri, "window_start_m": start,
+             "peak_power_w": float(f"{10 ** rng.uniform(0, 4):.3g}")}
+    if stop is not None:
+        radar["window_stop_m"] = stop
+    sc = {"version": 1, "name": f"scene-{i:03d}", "radar": radar, "waveform": w, "receiver": rx,
+          "targets": targets}
+    return sc
+
+
+def strip(d):
+    return {k: v for k, v in d.items() if not k.startswith("_")}
+
+
+def main():
+    rng = np.random.default_rng(SEED)
+    cases = []
+    t0 = time.time()
+    only = sys.argv[1] if len(sys.argv) > 1 else None
+    for i in range(N_WAVE):
+        sc = waveform_case(rng, i)
+        if only and sc["name"] != only:
+            continue
+        wf, ts = model.scene(sc)
+        cases.append({"scenario": sc, "expected": {"waveform": strip(wf), "targets": [strip(t) for t in ts]},
+                      "info": {"peak_gate": [t["_peak_gate"] for t in ts]}})
+    for i in range(N_SCENE):
+        sc = scene_case(rng, i)
+        if only and sc["name"] != only:
+            continue
+        wf, ts = model.scene(sc)
+        cases.append({"scenario": sc, "expected": {"waveform": strip(wf), "targets": [strip(t) for t in ts]},
+                      "info": {"peak_gate": [t["_peak_gate"] for t in ts],
+                               "masked_via": [t.get("_masked_via", "") for t in ts]}})
+    out = {"generator": "testdata/diffmodel/gen.py", "seed": SEED, "numpy": np.__version__,
+           "scipy": scipy.__version__, "cases": cases}
+    name = "cases.json" if not only else "/tmp/diff_" + only + ".json"
+    with open(name, "w") as f:
+        json.dump(out, f, separators=(",", ":"))
+        f.write("\n")
+    print(len(cases), "cases in %.0f s" % (time.time() - t0), file=sys.stderr)
+
+
+if __name__ == "__main__":
+    main()
