@@ -132,6 +132,11 @@ def doppler_target(rng, w, fs, tid, r, rcs):
     0.45 fs); the carrier is chosen so the range rate stays within 1e4 m/s."""
     B = bandwidth(w)
     fmax = min(0.3 * B, 0.45 * fs)
+    if w["kind"] not in ("lfm", "nlfm"):
+        # codes and rect pulses: within a few tenths of 1/tau, where the
+        # peak is still one peak (beyond it the response breaks up into
+        # near-equal humps and the argmax is a coin toss)
+        fmax = min(fmax, 0.6 / pulse_width(w))
     fd = float(rng.uniform(-1, 1)) * fmax * (rng.random() < 0.85)
     return fd
 
@@ -233,6 +238,8 @@ def scene_case(rng, i):
     targets = []
     base = rng.uniform(start + 0.3 * blind, wstop)
     fdmax = min(0.3 * B, 0.45 * fs)
+    if w["kind"] not in ("lfm", "nlfm"):
+        fdmax = min(fdmax, 0.6 / tau)
     fds = [float(rng.uniform(-1, 1)) * fdmax * (rng.random() < 0.7) for _ in range(nt)]
     carrier = carrier_for(max(abs(f) for f in fds) if fds else 0)
     lam = C / carrier
@@ -265,6 +272,57 @@ def scene_case(rng, i):
     return sc
 
 
+def issue_cases():
+    """The reproducers of issue 12, as scenarios."""
+    base = {"version": 1}
+    out = []
+
+    def add(name, w, rx=None, radar=None, targets=None):
+        sc = dict(base, name=name, waveform=w)
+        sc["radar"] = dict({"window_start_m": 3000.0, "window_stop_m": 9000.0, "pri_s": 2e-4}, **(radar or {}))
+        if rx:
+            sc["receiver"] = rx
+        sc["targets"] = targets if targets is not None else [
+            {"id": "t", "kind": "point", "range_m": 6000.0, "rcs_dbsm": 10.0}]
+        out.append(sc)
+    add("issue-barker13-1.3us", {"kind": "barker", "length": 13, "chip_s": 1.3e-6})
+    add("issue-p4-100-6.98us", {"kind": "p4", "length": 100, "chip_s": 6.98e-6},
+        radar={"pri_s": 2e-3, "window_start_m": 110000.0, "window_stop_m": 120000.0},
+        targets=[{"id": "t", "kind": "point", "range_m": 115000.0, "rcs_dbsm": 30.0}])
+    add("issue-rect", {"kind": "rect", "pulse_width_s": 1e-6})
+    add("issue-lfm-hann-bt3", {"kind": "lfm", "pulse_width_s": 1e-6, "bandwidth_hz": 3e6}, {"window": {"kind": "hann"}})
+    add("issue-one-chip", {"kind": "phase_code", "binary": "+", "chip_s": 1e-6})
+    add("issue-equal-chips", {"kind": "phase_code", "binary": "++++", "chip_s": 1e-6})
+    for spc in (1.5, 2, 2.5, 3):
+        add(f"issue-barker13-{spc}spc", {"kind": "barker", "length": 13, "chip_s": 1e-6},
+            radar={"sample_rate_hz": spc * 1e6})
+    add("issue-barker4-1spc", {"kind": "barker", "length": 4, "chip_s": 1e-6}, radar={"sample_rate_hz": 1e6})
+    add("issue-rect-hamming", {"kind": "rect", "pulse_width_s": 1e-6}, {"window": {"kind": "hamming"}})
+    add("issue-minimax-2spc", {"kind": "barker", "length": 13, "chip_s": 1e-6}, {"filter": "minimax", "filter_length_factor": 3})
+    add("issue-minimax-barker3", {"kind": "barker", "length": 3, "chip_s": 1e-6},
+        {"filter": "minimax", "filter_length_factor": 2}, radar={"sample_rate_hz": 1e6})
+    add("issue-2-sample-hann", {"kind": "rect", "pulse_width_s": 1e-6}, {"window": {"kind": "hann"}},
+        radar={"sample_rate_hz": 1e6})
+    # a target just inside the unambiguous range: next-pulse eclipsing
+    add("issue-next-pulse", {"kind": "lfm", "pulse_width_s": 1e-5, "bandwidth_hz": 5e6},
+        radar={"pri_s": 1e-4, "window_start_m": 0.0, "window_stop_m": 14990.0},
+        targets=[{"id": "t", "kind": "point", "range_m": 14500.0, "rcs_dbsm": 10.0}])
+    # a target nearer than c tau / 2 with most of its echo heard
+    add("issue-partial-eclipse", {"kind": "lfm", "pulse_width_s": 1e-5, "bandwidth_hz": 5e6},
+        radar={"pri_s": 1e-4, "window_start_m": 0.0, "window_stop_m": 6000.0},
+        targets=[{"id": "t", "kind": "point", "range_m": 1490.0, "rcs_dbsm": 10.0}])
+    # an eclipsed target beside a detected one (blanked gates are no training cells)
+    add("issue-eclipsed-neighbour", {"kind": "lfm", "pulse_width_s": 1e-5, "bandwidth_hz": 5e6},
+        radar={"pri_s": 1e-4, "window_start_m": 0.0, "window_stop_m": 6000.0},
+        targets=[{"id": "near", "kind": "point", "range_m": 1200.0, "rcs_dbsm": 40.0},
+                 {"id": "far", "kind": "point", "range_m": 1560.0, "rcs_dbsm": -10.0}])
+    # window-end: an echo running past window_stop_m
+    add("issue-window-end", {"kind": "lfm", "pulse_width_s": 2e-5, "bandwidth_hz": 5e6},
+        radar={"window_start_m": 3000.0, "window_stop_m": 7402.0},
+        targets=[{"id": "t", "kind": "point", "range_m": 7400.0, "rcs_dbsm": 0.0}])
+    return out
+
+
 def strip(d):
     return {k: v for k, v in d.items() if not k.startswith("_")}
 
@@ -289,6 +347,12 @@ def main():
         cases.append({"scenario": sc, "expected": {"waveform": strip(wf), "targets": [strip(t) for t in ts]},
                       "info": {"peak_gate": [t["_peak_gate"] for t in ts],
                                "masked_via": [t.get("_masked_via", "") for t in ts]}})
+    for sc in issue_cases():
+        if only and sc["name"] != only:
+            continue
+        wf, ts = model.scene(sc)
+        cases.append({"scenario": sc, "expected": {"waveform": strip(wf), "targets": [strip(t) for t in ts]},
+                      "info": {"peak_gate": [t["_peak_gate"] for t in ts]}})
     out = {"generator": "testdata/diffmodel/gen.py", "seed": SEED, "numpy": np.__version__,
            "scipy": scipy.__version__, "cases": cases}
     name = "cases.json" if not only else "/tmp/diff_" + only + ".json"
