@@ -171,6 +171,9 @@ func TestDiffModel(t *testing.T) {
 			known[k.Case+"/"+k.Field] = k.Reason
 		}
 	}
+	// DIFF_DUMP=FILE writes the engine's reports (one JSON object per
+	// case, keyed by name) for study next to the model's expectations.
+	dump := map[string]json.RawMessage{}
 	seenKnown := map[string]bool{}
 	worstOf := map[string]*worst{}
 	var failures []string
@@ -218,6 +221,7 @@ func TestDiffModel(t *testing.T) {
 			record(name, "encode", err.Error(), "JSON", math.Inf(1))
 			continue
 		}
+		dump[name] = enc
 		var got struct {
 			Waveform map[string]any   `json:"waveform"`
 			Targets  []map[string]any `json:"targets"`
@@ -293,6 +297,15 @@ func TestDiffModel(t *testing.T) {
 			case want["status"] == "masked" && want["masked_by"] == want["id"] && !strings.Contains(strings.ToLower(reason), "own"):
 				record(name, prefix+"reason", reason, "says it masks itself (its own sidelobes)", math.Inf(1))
 			}
+		}
+	}
+	if path := os.Getenv("DIFF_DUMP"); path != "" {
+		b, err := json.Marshal(dump)
+		if err == nil {
+			err = os.WriteFile(path, b, 0o644)
+		}
+		if err != nil {
+			t.Errorf("DIFF_DUMP: %v", err)
 		}
 	}
 	// Summary: the worst difference beyond tolerance per field.
