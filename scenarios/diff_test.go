@@ -23,6 +23,7 @@ import (
 type diffCase struct {
 	Scenario json.RawMessage `json:"scenario"`
 	Expected struct {
+		Error    string           `json:"error"` // the scenario must be refused
 		Waveform map[string]any   `json:"waveform"`
 		Targets  []map[string]any `json:"targets"`
 	} `json:"expected"`
@@ -60,7 +61,9 @@ func waveClass(sc map[string]any) string {
 		win, _ = wm["kind"].(string)
 	}
 	switch w["kind"] {
-	case "lfm", "nlfm", "costas":
+	case "nlfm":
+		return "nlfm"
+	case "lfm", "costas":
 		return "fm"
 	}
 	if filter == "minimax" {
@@ -76,6 +79,21 @@ func waveClass(sc map[string]any) string {
 // compared for presence only (see README.md).
 func tolerance(field, class string, bwHz float64) (tol, bool) {
 	res := scenarios.C / (2 * bwHz) // range resolution, m
+	if class == "nlfm" {
+		// The taper depth of the NLFM design is chosen by a search whose
+		// stopping rule the docs do not fix (README.md): its figures are
+		// compared loosely.
+		switch field {
+		case "pslr_db", "islr_db":
+			return tol{1.5, 0}, true
+		case "mainlobe_3db_m", "range_shift_m":
+			return tol{0, 0.1}, true
+		case "doppler_loss_db", "snr_db":
+			return tol{0.1, 0.1}, true
+		case "margin_db":
+			return tol{1.5, 0}, true
+		}
+	}
 	switch field {
 	case "pulse_width_s", "bandwidth_hz", "time_bandwidth", "compression_gain_db",
 		"blind_range_m", "unambiguous_range_m", "unambiguous_velocity_mps",
@@ -207,6 +225,15 @@ func TestDiffModel(t *testing.T) {
 		}
 		name := raw["name"].(string)
 		s, err := scenarios.Decode(c.Scenario)
+		if c.Expected.Error != "" {
+			if err == nil {
+				_, err = scenarios.Analyse(context.Background(), s)
+			}
+			if err == nil {
+				record(name, "error", "accepted", c.Expected.Error, math.Inf(1))
+			}
+			continue
+		}
 		if err != nil {
 			record(name, "decode", err.Error(), "valid", math.Inf(1))
 			continue

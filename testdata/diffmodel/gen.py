@@ -136,7 +136,7 @@ def doppler_target(rng, w, fs, tid, r, rcs):
         # codes and rect pulses: within a few tenths of 1/tau, where the
         # peak is still one peak (beyond it the response breaks up into
         # near-equal humps and the argmax is a coin toss)
-        fmax = min(fmax, 0.6 / pulse_width(w))
+        fmax = min(fmax, 0.3 / pulse_width(w))
     fd = float(rng.uniform(-1, 1)) * fmax * (rng.random() < 0.85)
     return fd
 
@@ -145,6 +145,12 @@ def carrier_for(fdmax):
     # lambda <= 2e4 / fdmax so that |range_rate| <= 1e4 m/s; also <= 9.5 GHz default
     f = max(9.5e9, fdmax * C / 2e4 * 1.01)
     return float(f"{min(f, 3e11):.4g}")
+
+
+def rate_for(rate, B):
+    """rate x B rounded to 6 significant digits, never below B."""
+    fs = float(f"{rate * B:.6g}")
+    return fs if fs >= B else rate * B
 
 
 def waveform_case(rng, i):
@@ -169,9 +175,7 @@ def waveform_case(rng, i):
         fmax = 8 if filt == "least_squares" else max(1, min(8, 128 // n))
         rx["filter_length_factor"] = int(rng.integers(1, fmax + 1))
     B = bandwidth(w)
-    fs = float(f"{rate * B:.6g}")
-    if fs < B:
-        fs = B
+    fs = rate_for(rate, B)
     tau = pulse_width(w)
     blind = C * tau / 2
     fd = doppler_target(rng, w, fs, "t", 0, 0)
@@ -217,7 +221,7 @@ def scene_case(rng, i):
     B = bandwidth(w)
     tau = pulse_width(w)
     rate = RATES[int(rng.integers(0, len(RATES)))]
-    fs = float(f"{rate * B:.6g}")
+    fs = rate_for(rate, B)
     blind = C * tau / 2
     # short PRI so that the window can reach the next pulse
     pri = float(f"{max(4 * tau, 2e-6 * rng.uniform(8, 40)):.3g}")
@@ -239,7 +243,7 @@ def scene_case(rng, i):
     base = rng.uniform(start + 0.3 * blind, wstop)
     fdmax = min(0.3 * B, 0.45 * fs)
     if w["kind"] not in ("lfm", "nlfm"):
-        fdmax = min(fdmax, 0.6 / tau)
+        fdmax = min(fdmax, 0.3 / tau)
     fds = [float(rng.uniform(-1, 1)) * fdmax * (rng.random() < 0.7) for _ in range(nt)]
     carrier = carrier_for(max(abs(f) for f in fds) if fds else 0)
     lam = C / carrier
@@ -270,6 +274,34 @@ def scene_case(rng, i):
     sc = {"version": 1, "name": f"scene-{i:03d}", "radar": radar, "waveform": w, "receiver": rx,
           "targets": targets}
     return sc
+
+
+def band_cases(rng, count=12):
+    """Scenes whose targets' Doppler lies at or beyond the receiver band
+    |fd| >= fs/2 (docs/detection.md §2): narrow-band pulses, fs 1-2 B."""
+    out = []
+    for i in range(count):
+        if i % 2 == 0:
+            B = sig3(rng, 5e4, 2e5)
+            w = {"kind": "lfm", "pulse_width_s": float(f"{rng.uniform(2, 6) / B:.3g}"), "bandwidth_hz": B}
+        else:
+            w = {"kind": "rect", "pulse_width_s": sig3(rng, 5e-6, 3e-5)}
+            B = 1 / w["pulse_width_s"]
+        fs = rate_for(float(rng.choice([1, 1.5, 2])), B)
+        tau = pulse_width(w)
+        start = float(round(C * tau / 2 + 2000))
+        targets = []
+        for j in range(int(rng.integers(1, 4))):
+            fd = float(rng.choice([-1, 1]) * rng.uniform(0.3, 1.6) * fs)
+            rr = float(f"{-fd * (C / 9.5e9) / 2:.6g}")
+            targets.append({"id": f"b{j}", "kind": "point", "range_m": float(round(start + rng.uniform(2000, 18000), 1)),
+                            "rcs_dbsm": float(round(rng.uniform(0, 30), 1)), "range_rate_mps": rr})
+        sc = {"version": 1, "name": f"band-{i:03d}",
+              "radar": {"sample_rate_hz": fs, "pri_s": 1e-3, "window_start_m": start, "window_stop_m": start + 20000},
+              "waveform": w, "receiver": {"detector": {"kind": ["fixed", "ca_cfar", "os_cfar"][i % 3]}},
+              "targets": targets}
+        out.append(sc)
+    return out
 
 
 def issue_cases():
@@ -323,36 +355,68 @@ def issue_cases():
     return out
 
 
+def expect(sc):
+    try:
+        wf, ts = model.scene(sc)
+    except model.NoEnergy as e:
+        return {"error": str(e)}, {}
+    return ({"waveform": strip(wf), "targets": [strip(t) for t in ts]},
+            {"peak_gate": [t["_peak_gate"] for t in ts], "masked_via": [t.get("_masked_via", "") for t in ts],
+             "level_db": [t.get("_level_db") for t in ts], "noise_level_db": [t.get("_noise_level_db") for t in ts],
+             "peak_db": [t.get("_P_db") for t in ts]})
+
+
 def strip(d):
     return {k: v for k, v in d.items() if not k.startswith("_")}
 
 
+def self_check():
+    """The model against published values before it writes anything."""
+    def fig(w, rx=None, fs=None):
+        sc = {"waveform": w, "receiver": rx or {}}
+        if fs:
+            sc["radar"] = {"sample_rate_hz": fs}
+        return model.waveform_figures(sc)[0]
+    b13 = fig({"kind": "barker", "length": 13, "chip_s": 1e-6})
+    # Levanon & Mozeson 2004 (Barker PSL 1/13); width 2(1 - 1/sqrt 2) chip
+    assert abs(b13["pslr_db"] - 20 * math.log10(1 / 13)) < 1e-9
+    assert abs(b13["mainlobe_3db_m"] - 2 * (1 - 2 ** -0.5) * 1e-6 * C / 2) < 1e-6
+    # Barker 4 two-sided code ISL 4 over 16 (published code ISL)
+    assert abs(fig({"kind": "barker", "length": 4, "chip_s": 1e-6})["islr_db"] - 10 * math.log10(4 / 16)) < 1e-9
+    # Frank 1963 closed form 20 log10(1/(N sin(pi/M)))
+    fr = fig({"kind": "frank", "length": 256, "chip_s": 1e-6})["pslr_db"]
+    assert abs(fr - 20 * math.log10(1 / (256 * math.sin(math.pi / 16)))) < 1e-9
+    # LFM sampled at 1/B and 1/(2B): worst straddle of a sinc 3.92 and 0.91 dB
+    # (Richards 2014 p. 375 for the 3.92 dB); B tau = 100
+    l1 = fig({"kind": "lfm", "pulse_width_s": 1e-5, "bandwidth_hz": 1e7}, fs=1e7)
+    l2 = fig({"kind": "lfm", "pulse_width_s": 1e-5, "bandwidth_hz": 1e7}, fs=2e7)
+    assert abs(l1["straddle_loss_max_db"] - 3.92) < 0.01 and abs(l2["straddle_loss_max_db"] - 0.91) < 0.01
+    assert abs(l1["pslr_db"] + 13.39) < 0.02  # unweighted B tau = 100 (Richards 2014 p. 285: 13.5 dB)
+    # minimax optimum of Barker 3, factor 2 (scipy linprog, testdata/golden/minimax.py)
+    mm = fig({"kind": "barker", "length": 3, "chip_s": 1e-6}, {"filter": "minimax", "filter_length_factor": 2})
+    assert abs(mm["pslr_db"] + 19.55) < 0.01
+    # CA-CFAR alpha for 16 correlated cells, 2 guard, rho(m) = sinc(m/2): 31.45
+    offs = np.array([o for o in range(-10, 11) if abs(o) > 2])
+    lam = np.linalg.eigvalsh(np.sinc((offs[None, :] - offs[:, None]) / 2))
+    assert abs(model.ca_alpha(lam, 16, 1e-6) - 31.448) < 0.01
+    assert abs(model.ca_alpha(np.ones(16), 16, 1e-6) - 16 * (1e-6 ** (-1 / 16) - 1)) < 1e-6
+
+
 def main():
+    self_check()
     rng = np.random.default_rng(SEED)
     cases = []
     t0 = time.time()
     only = sys.argv[1] if len(sys.argv) > 1 else None
-    for i in range(N_WAVE):
-        sc = waveform_case(rng, i)
+    gens = [waveform_case(rng, i) for i in range(N_WAVE)]
+    gens += [scene_case(rng, i) for i in range(N_SCENE)]
+    gens += issue_cases()
+    gens += band_cases(rng)
+    for sc in gens:
         if only and sc["name"] != only:
             continue
-        wf, ts = model.scene(sc)
-        cases.append({"scenario": sc, "expected": {"waveform": strip(wf), "targets": [strip(t) for t in ts]},
-                      "info": {"peak_gate": [t["_peak_gate"] for t in ts]}})
-    for i in range(N_SCENE):
-        sc = scene_case(rng, i)
-        if only and sc["name"] != only:
-            continue
-        wf, ts = model.scene(sc)
-        cases.append({"scenario": sc, "expected": {"waveform": strip(wf), "targets": [strip(t) for t in ts]},
-                      "info": {"peak_gate": [t["_peak_gate"] for t in ts],
-                               "masked_via": [t.get("_masked_via", "") for t in ts]}})
-    for sc in issue_cases():
-        if only and sc["name"] != only:
-            continue
-        wf, ts = model.scene(sc)
-        cases.append({"scenario": sc, "expected": {"waveform": strip(wf), "targets": [strip(t) for t in ts]},
-                      "info": {"peak_gate": [t["_peak_gate"] for t in ts]}})
+        exp, info = expect(sc)
+        cases.append({"scenario": sc, "expected": exp, "info": info})
     out = {"generator": "testdata/diffmodel/gen.py", "seed": SEED, "numpy": np.__version__,
            "scipy": scipy.__version__, "cases": cases}
     name = "cases.json" if not only else "/tmp/diff_" + only + ".json"

@@ -767,18 +767,15 @@ def sample_len(tau, fs):
 
 
 def exact_floor_div(num_n, fs, delta, T):
-    """floor((n/fs - delta)/T) for integer array n, as the exact floor of the
-    real number formed from the double values (docs/figures.md §7)."""
-    from fractions import Fraction
-    q = (num_n / fs - delta) / T
-    k = np.floor(q).astype(np.int64)
-    near = np.abs(q - np.round(q)) < 1e-6 * np.maximum(1.0, np.abs(q))
-    if near.any():
-        F, D, Tt = Fraction(fs), Fraction(delta), Fraction(T)
-        for i in np.nonzero(near)[0]:
-            v = (Fraction(int(num_n[i])) / F - D) / Tt
-            k[i] = math.floor(v)
-    return k
+    """k = floor(q), q = (n/fs - delta)/T, where a q within rounding of a
+    whole number r (|q - r| <= 16 * 2^-52 * ((|n/fs| + |delta|)/T + |q| + 1))
+    counts as r (docs/figures.md §7: a sample on a chip boundary in the
+    decimal values a user types is in the later chip)."""
+    n = np.asarray(num_n, float)
+    q = (n / fs - delta) / T
+    r = np.round(q)
+    eps = 16 * 2.0 ** -52 * ((np.abs(n / fs) + abs(delta)) / T + np.abs(q) + 1)
+    return np.where(np.abs(q - r) <= eps, r, np.floor(q)).astype(np.int64)
 
 
 def sample_wave(wave, fs, n, delta):
@@ -848,11 +845,18 @@ def reference_at(wave, filt, fs):
     return ref, lead
 
 
+class NoEnergy(Exception):
+    """The reference sampled at fs has no energy (a window that is zero at
+    both ends of a 2-sample pulse): the scenario must be refused."""
+
+
 def straddle(wave, filt, fs, mismatch_db):
     """(worst, mean) straddle loss in dB over d = j/64 samples
     (docs/figures.md §6)."""
     ref, _ = reference_at(wave, filt, fs)
     eref = np.sum(np.abs(ref) ** 2)
+    if eref <= 1e-20 * len(ref):
+        raise NoEnergy("reference has no energy at this sample rate")
     snr_c = wave.tau * 10 ** (-mismatch_db / 10)
     n = np.arange(sample_len(wave.tau, fs) + 3)
     loss = []
@@ -921,6 +925,28 @@ def os_alpha(n, r, pfa):
     return math.sqrt(lo * hi)
 
 
+def band_limited(wave, fs, nraw, t0, delta, amp, fd):
+    """The echo a*u(t - delta')*exp(j2 pi fd t) at the raw samples after the
+    receiver's ideal band [-fs/2, fs/2) (docs/detection.md §2): computed
+    on a grid M times finer, filtered by FFT (zero-padded on both sides by
+    the record's length), sampled at fs. Returns (samples, E_in/E)."""
+    M = int(math.ceil(4 * (abs(fd) + wave.B) / fs)) + 1
+    F = M * fs
+    pad = max(nraw, sample_len(wave.tau, fs)) * M
+    q = np.arange(-pad, nraw * M + pad)
+    t = t0 + q / F
+    # u(n/F - delta) with n = q: the same delay in seconds as at fs
+    e = sample_wave(wave, F, q, delta) * amp * np.exp(2j * math.pi * fd * t)
+    X = np.fft.fft(e)
+    f = np.fft.fftfreq(len(e), 1 / F)
+    keep = (f >= -fs / 2) & (f < fs / 2)
+    E = np.sum(np.abs(X) ** 2)
+    Ein = np.sum(np.abs(X[keep]) ** 2)
+    X[~keep] = 0
+    y = np.fft.ifft(X)
+    return y[pad:pad + nraw * M:M], (Ein / E if E > 0 else 0.0)
+
+
 def scene(sc):
     """Target report fields of a single-pulse scene of point targets
     (docs/detection.md)."""
@@ -975,9 +1001,11 @@ def scene(sc):
         amp = math.sqrt(snr_eq / (tau * fs)) if math.isfinite(snr_eq) else 0.0
         x = sample_wave(wave, fs, jr, delta) * amp
         inpulse = np.abs(x) > 0
+        band = None
         if abs(fd) >= fs / 2:
-            raise NotImplementedError("Doppler beyond the receiver band")
-        x = x * np.exp(2j * math.pi * fd * traw)
+            x, band = band_limited(wave, fs, nraw, t0, delta, amp, fd)
+        else:
+            x = x * np.exp(2j * math.pi * fd * traw)
         P_u = np.abs(compress(x)) ** 2 / G
         nb = np.count_nonzero(inpulse & blank)
         nin = np.count_nonzero(inpulse)
@@ -985,7 +1013,7 @@ def scene(sc):
         P = np.abs(compress(xb)) ** 2 / G
         kstar = int(np.argmax(P))
         dl, shift = doppler_response(wave, filt, fd)
-        targets.append(dict(t=t, R=R, Ra=Ra, folds=folds, fd=fd, snr_eq=snr_eq, P=P, Pu=P_u,
+        targets.append(dict(t=t, R=R, Ra=Ra, folds=folds, fd=fd, snr_eq=snr_eq, P=P, Pu=P_u, band=band,
                             kstar=kstar, Pstar=P[kstar], Pustar=P_u.max(), nb=nb, nin=nin,
                             dl=dl, shift=shift))
     S = np.zeros(n)
@@ -1054,20 +1082,27 @@ def scene(sc):
         T = max(Lk, Cc)
         ecl = None
         if 0 < d["nb"] < d["nin"] and Pstar > 0:
-            ecl = 10 * math.log10(d["Pustar"] / Pstar)
-        snr = 10 * math.log10(d["snr_eq"]) - wf["mismatch_loss_db"] - d["dl"] - (ecl or 0.0)
+            # a loss: an echo that peaks beyond the last gate can show a
+            # larger blanked partial overlap than unblanked (out_of_window)
+            ecl = max(0.0, 10 * math.log10(d["Pustar"] / Pstar))
+        band = d["band"]
+        rejected = band is not None and band <= 1e-12
+        band_db = -10 * math.log10(band) if band is not None and not rejected else None
+        snr = 10 * math.log10(d["snr_eq"]) - wf["mismatch_loss_db"] - d["dl"] - (ecl or 0.0) - (band_db or 0.0)
         rec = {
             "id": t["id"], "range_m": d["R"], "snr_db": max(snr, -100.0),
             "doppler_hz": d["fd"], "doppler_loss_db": d["dl"], "range_shift_m": d["shift"] * C / 2,
         }
         if ecl is not None:
             rec["eclipsing_loss_db"] = ecl
+        if band_db is not None:
+            rec["band_loss_db"] = band_db
         margin = 10 * math.log10(Pstar / T) if Pstar > 0 and math.isfinite(T) else None
         if d["folds"] > 0 or not (ws <= d["Ra"] <= we):
             st = "out_of_window"
         elif d["nb"] == d["nin"] or not processed[k] or (Pstar < T <= d["Pustar"]):
             st = "eclipsed"
-        elif Pstar == 0 or Pstar < Lnoise:
+        elif rejected or Pstar == 0 or Pstar < Lnoise:
             st = "below_noise"
         elif Pstar >= T:
             st = "detected"
@@ -1086,6 +1121,11 @@ def scene(sc):
         if st not in ("eclipsed", "out_of_window") and margin is not None:
             rec["margin_db"] = margin
         rec["_peak_gate"] = k
+        rec["_P_db"] = 10 * math.log10(Pstar) if Pstar > 0 else None
+        rec["_level_db"] = 10 * math.log10(Lk) if math.isfinite(Lk) else None
+        rec["_noise_level_db"] = 10 * math.log10(Lnoise) if math.isfinite(Lnoise) else None
+        rec["_cell_db"] = 10 * math.log10(Cc) if Cc > 0 else None
+        rec["_cells"] = len(offs)
         out.append(rec)
     return wf, out
 
