@@ -400,6 +400,12 @@ def self_check():
     lam = np.linalg.eigvalsh(np.sinc((offs[None, :] - offs[:, None]) / 2))
     assert abs(model.ca_alpha(lam, 16, 1e-6) - 31.448) < 0.01
     assert abs(model.ca_alpha(np.ones(16), 16, 1e-6) - 16 * (1e-6 ** (-1 / 16) - 1)) < 1e-6
+    # with the cell under test in the covariance (docs/detection.md §5):
+    # 28.325 at 1e-6 and 9.772 at 1e-3 for the same cells
+    o = np.concatenate([[0], offs])
+    sig = np.sinc((o[None, :] - o[:, None]) / 2)
+    assert abs(model.ca_alpha_cut(sig, 1e-6) - 28.325) < 0.001
+    assert abs(model.ca_alpha_cut(sig, 1e-3) - 9.772) < 0.001
 
 
 def main():

@@ -911,6 +911,36 @@ def ca_alpha(lam, n, pfa):
     return math.sqrt(lo * hi)
 
 
+def ca_alpha_cut(Sigma, pfa):
+    """alpha (on the mean of the N training cells) for which the test
+    |z0|² > (alpha/N) sum |z_i|² has false-alarm probability pfa, z complex
+    Gaussian with covariance Sigma over [cell under test, training cells]
+    (docs/detection.md §5): with Q = diag(1, -beta, ..., -beta), beta =
+    alpha/N, the eigenvalues of Sigma^1/2 Q Sigma^1/2 are one positive mu+
+    and N others mu_j, and Pfa = prod 1/(1 + |mu_j|/mu+)."""
+    n = Sigma.shape[0] - 1
+    Lc = np.linalg.cholesky(Sigma)
+
+    def logpfa(a):
+        q = np.full(n + 1, -a / n)
+        q[0] = 1
+        mu = np.linalg.eigvalsh(Lc.conj().T @ (q[:, None] * Lc))
+        mp = mu[-1]
+        rest = mu[:-1]
+        return -np.sum(np.log1p(np.abs(rest) / mp))
+    target = math.log(pfa)
+    lo, hi = 1e-9, 1.0
+    while logpfa(hi) > target:
+        hi *= 2
+    for _ in range(100):
+        mid = math.sqrt(lo * hi)
+        if logpfa(mid) > target:
+            lo = mid
+        else:
+            hi = mid
+    return math.sqrt(lo * hi)
+
+
 def os_alpha(n, r, pfa):
     f = lambda a: sum(math.log((n - i) / (n - i + a)) for i in range(r)) - math.log(pfa)
     lo, hi = 1e-12, 1.0
@@ -930,7 +960,7 @@ def band_limited(wave, fs, nraw, t0, delta, amp, fd):
     receiver's ideal band [-fs/2, fs/2) (docs/detection.md §2): computed
     on a grid M times finer, filtered by FFT (zero-padded on both sides by
     the record's length), sampled at fs. Returns (samples, E_in/E)."""
-    M = int(math.ceil(4 * (abs(fd) + wave.B) / fs)) + 1
+    M = max(16, int(math.ceil(16 * (abs(fd) + 4 * wave.B) / fs)))
     F = M * fs
     pad = max(nraw, sample_len(wave.tau, fs)) * M
     q = np.arange(-pad, nraw * M + pad)
@@ -1011,10 +1041,11 @@ def scene(sc):
         nin = np.count_nonzero(inpulse)
         xb = np.where(blank, 0, x)
         P = np.abs(compress(xb)) ** 2 / G
-        kstar = int(np.argmax(P))
+        Pp = np.where(processed, P, -1.0)
+        kstar = int(np.argmax(Pp))
         dl, shift = doppler_response(wave, filt, fd)
         targets.append(dict(t=t, R=R, Ra=Ra, folds=folds, fd=fd, snr_eq=snr_eq, P=P, Pu=P_u, band=band,
-                            kstar=kstar, Pstar=P[kstar], Pustar=P_u.max(), nb=nb, nin=nin,
+                            kstar=kstar, Pstar=max(P[kstar], 0.0) if processed[kstar] else 0.0, Pustar=P_u.max(), nb=nb, nin=nin,
                             dl=dl, shift=shift))
     S = np.zeros(n)
     for d in targets:
@@ -1037,9 +1068,10 @@ def scene(sc):
         g, tr = det["guard_cells"], det["training_cells"]
         offs = [o for o in range(-(g + tr // 2), g + tr // 2 + 1) if abs(o) > g]
         if kind == "os_cfar":
+            span = 2 * (g + tr // 2)
             s_ = 1
-            while True:
-                js = np.arange(1, L // s_ + 2)
+            while s_ <= span:
+                js = np.arange(1, span // s_ + 1)
                 if np.all(np.abs(rho(js * s_)) <= 0.1):
                     break
                 s_ += 1
@@ -1060,10 +1092,10 @@ def scene(sc):
         if kind == "ca_cfar":
             key = tuple(offs)
             if key not in cache:
-                o = np.array(offs)
-                Rm = rho(o[None, :] - o[:, None])
-                lamb = np.linalg.eigvalsh(Rm)
-                cache[key] = ca_alpha(np.maximum(lamb, 0), N, pfa)
+                o = np.array([0] + list(offs))
+                Sig = rho(o[None, :] - o[:, None])  # Sigma_ab = rho(o_b - o_a)
+                Sig = (Sig + Sig.conj().T) / 2
+                cache[key] = ca_alpha_cut(Sig + 1e-12 * np.eye(len(o)), pfa)
             a = cache[key]
             return a * vals.mean(), a, offs
         tr = det["training_cells"]
@@ -1081,7 +1113,7 @@ def scene(sc):
         Cc = sum(e["P"][k] for i, e in enumerate(targets) if i != j)
         T = max(Lk, Cc)
         ecl = None
-        if 0 < d["nb"] < d["nin"] and Pstar > 0:
+        if 0 < d["nb"] < d["nin"] and Pstar > 0:  # P* over processed gates (§2)
             # a loss: an echo that peaks beyond the last gate can show a
             # larger blanked partial overlap than unblanked (out_of_window)
             ecl = max(0.0, 10 * math.log10(d["Pustar"] / Pstar))
@@ -1098,14 +1130,21 @@ def scene(sc):
         if band_db is not None:
             rec["band_loss_db"] = band_db
         margin = 10 * math.log10(Pstar / T) if Pstar > 0 and math.isfinite(T) else None
+        touched = d["nb"] > 0
         if d["folds"] > 0 or not (ws <= d["Ra"] <= we):
             st = "out_of_window"
-        elif d["nb"] == d["nin"] or not processed[k] or (Pstar < T <= d["Pustar"]):
+        elif touched and (d["nb"] == d["nin"] or Pstar == 0):
             st = "eclipsed"
-        elif rejected or Pstar == 0 or Pstar < Lnoise:
+        elif rejected:
             st = "below_noise"
+        elif Pstar == 0:
+            st = "out_of_window"
         elif Pstar >= T:
             st = "detected"
+        elif touched and d["Pustar"] >= Lnoise:
+            st = "eclipsed"
+        elif Pstar < Lnoise:
+            st = "below_noise"
         else:
             st = "masked"
             if Cc >= Lk:
