@@ -1001,8 +1001,13 @@ def scene(sc):
     tau = wave.tau
 
     def blanked(t):
-        m = np.floor(t / pri)
-        return (t >= 0) & (t - m * pri < tau)
+        # [m PRI, m PRI + tau) for m >= 0; a time within rounding of an
+        # interval's edge counts as on it (a sample at exactly tau after a
+        # transmit edge, in the decimal values typed, is not blanked)
+        eps = 1e-12 * np.maximum(np.abs(t), tau)
+        m = np.floor((t + eps) / pri)
+        rel = t - m * pri
+        return (t >= -eps) & (rel >= -eps) & (rel < tau - eps)
     blank = blanked(traw)
     tk = t0 + np.arange(n) / fs
     processed = ~blanked(tk)
@@ -1042,7 +1047,10 @@ def scene(sc):
         xb = np.where(blank, 0, x)
         P = np.abs(compress(xb)) ** 2 / G
         Pp = np.where(processed, P, -1.0)
-        kstar = int(np.argmax(Pp))
+        # first index on ties (docs/detection.md §2), ties within 1e-9:
+        # a plateau (a rect pulse with a window zero at both ends) is flat
+        # to rounding
+        kstar = int(np.argmax(Pp >= Pp.max() * (1 - 1e-9))) if Pp.max() > 0 else int(np.argmax(Pp))
         dl, shift = doppler_response(wave, filt, fd)
         targets.append(dict(t=t, R=R, Ra=Ra, folds=folds, fd=fd, snr_eq=snr_eq, P=P, Pu=P_u, band=band,
                             kstar=kstar, Pstar=max(P[kstar], 0.0) if processed[kstar] else 0.0, Pustar=P_u.max(), nb=nb, nin=nin,
