@@ -200,6 +200,9 @@ func TestDiffModel(t *testing.T) {
 	// case, keyed by name) for study next to the model's expectations.
 	dump := map[string]json.RawMessage{}
 	seenKnown := map[string]bool{}
+	// DIFF_KNOWN_WRITE=FILE writes every difference beyond tolerance (case,
+	// field, engine, model) for known.py, which turns it into known.json.
+	var current []map[string]string
 	worstOf := map[string]*worst{}
 	var failures []string
 	checked := 0
@@ -218,6 +221,7 @@ func TestDiffModel(t *testing.T) {
 		if excess > w.diff || w.name == "" {
 			w.diff, w.got, w.want, w.name = excess, got, want, name+" "+field
 		}
+		current = append(current, map[string]string{"case": name, "field": field, "engine": got, "model": want})
 		if _, ok := known[name+"/"+field]; ok {
 			seenKnown[name+"/"+field] = true
 			return
@@ -290,6 +294,12 @@ func TestDiffModel(t *testing.T) {
 					if !cmp || f == "eclipsing_loss_db" && wx > 100 {
 						continue
 					}
+					// Beyond 3 dB of Doppler loss the ambiguity cut of a
+					// short pulse breaks into near-equal humps: where the
+					// peak sits is ill-conditioned (README.md).
+					if dl, _ := want["doppler_loss_db"].(float64); f == "range_shift_m" && dl > 3 {
+						continue
+					}
 					allowed := tl.abs + tl.rel*math.Abs(wx)
 					if d := math.Abs(hx - wx); d > allowed {
 						record(name, path, show(hv, true), show(wv, true), d-allowed)
@@ -331,6 +341,15 @@ func TestDiffModel(t *testing.T) {
 			case want["status"] == "masked" && want["masked_by"] == want["id"] && !strings.Contains(strings.ToLower(reason), "own"):
 				record(name, prefix+"reason", reason, "says it masks itself (its own sidelobes)", math.Inf(1))
 			}
+		}
+	}
+	if path := os.Getenv("DIFF_KNOWN_WRITE"); path != "" {
+		b, err := json.MarshalIndent(current, "", " ")
+		if err == nil {
+			err = os.WriteFile(path, b, 0o644)
+		}
+		if err != nil {
+			t.Errorf("DIFF_KNOWN_WRITE: %v", err)
 		}
 	}
 	if path := os.Getenv("DIFF_DUMP"); path != "" {
