@@ -371,6 +371,7 @@ func TestDiffModel(t *testing.T) {
 	if len(ws) == 0 {
 		t.Logf("every field within tolerance")
 	}
+	t.Logf("%d differences beyond tolerance: %d known (testdata/diffmodel/known.json), %d new", len(current), len(seenKnown), len(failures))
 	for _, w := range ws {
 		t.Logf("%-24s %4d cases beyond tolerance; worst %s: engine %s, model %s (excess %.3g)", w.field, w.cases, w.name, w.got, w.want, w.diff)
 	}
