@@ -376,10 +376,11 @@ def window_samples(win, n, wave=None):
     x = i/(n_i - 1), linearly interpolated onto the fine grid."""
     x = (np.arange(n) + 0.5) / n
     if win.get("kind") == "chebyshev":
-        fsi = max(8 * wave.B, 64 / wave.tau)
-        ni = int(math.ceil(wave.tau * fsi - 1e-9))
+        # the engine's n_i = ceil(max(8 B tau, 64)) midpoint samples carry
+        # the symmetric n_i-point window (docs/figures.md §4.3)
+        ni = int(math.ceil(max(8 * wave.B * wave.tau, 64) - 1e-9))
         cw = scipy.signal.windows.chebwin(ni, at=-win.get("sidelobe_db", -50.0), sym=True)
-        return np.interp(x, np.arange(ni) / (ni - 1), cw)
+        return np.interp(x, (np.arange(ni) + 0.5) / ni, cw)
     return window_cont(win, x)
 
 
@@ -1000,17 +1001,19 @@ def scene(sc):
     traw = t0 + jr / fs
     tau = wave.tau
 
-    def blanked(t):
-        # [m PRI, m PRI + tau) for m >= 0; a time within rounding of an
-        # interval's edge counts as on it (a sample at exactly tau after a
-        # transmit edge, in the decimal values typed, is not blanked)
-        eps = 1e-12 * np.maximum(np.abs(t), tau)
-        m = np.floor((t + eps) / pri)
-        rel = t - m * pri
-        return (t >= -eps) & (rel >= -eps) & (rel < tau - eps)
-    blank = blanked(traw)
-    tk = t0 + np.arange(n) / fs
-    processed = ~blanked(tk)
+    # transmit intervals in samples (docs/detection.md §1):
+    # [ceil((m PRI - t0) fs), ceil((m PRI + tau - t0) fs)), a value within
+    # 1e-9 (relative) of a whole number taken as that number
+    def ceil9(x):
+        r = round(x)
+        return int(r) if abs(x - r) <= 1e-9 * max(1.0, abs(x)) else int(math.ceil(x))
+    blank = np.zeros(nraw, bool)
+    m = max(math.floor(t0 / pri) - 1, 0)
+    while m * pri < t0 + nraw / fs:
+        lo, hi = ceil9((m * pri - t0) * fs), ceil9((m * pri + tau - t0) * fs)
+        blank[max(lo, 0):max(min(hi, nraw), 0)] = True
+        m += 1
+    processed = ~blank[:n]
 
     def compress(x):
         # y[k] = sum_i x[k - lead + i] conj(h[i]), k = 0..n-1
