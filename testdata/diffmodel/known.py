@@ -18,6 +18,7 @@ FINDINGS = {
     "F3": "figures: interpolated path (lfm, nlfm, costas) of short pulses (B·τ of 2 to 4): the band-limited interpolation of a response with rect edges leaves ISLR 0.1-0.3 dB and the Doppler loss 0.02 dB from the converged continuous value (the model converges to 0.05 dB at 32 samples per 1/B)",
     "F4": "figures: NLFM taper depth chosen by an undocumented stopping rule (README: NLFM taper)",
     "S2": "statuses: a gate with no training cells (window shorter than the guard band, or an empty OS lattice) prints '+Inf dB' in the reason",
+    "M1": "merge of figures and statuses: the reason for a gate without training cells (figures' sentence) must also append statuses' stated losses (lossWords): an eclipsed-in-part target's reason does not name its eclipsing loss; for an empty OS lattice the advice 'widen the window' does not apply",
     "S4": "statuses: echo beyond the receiver band: the compressed power of the band-limited echo differs by up to 1 dB (engine: ideal filter on a local padded buffer; model: over the whole record, closed form within 0.2 dB for the band loss itself)",
 }
 
@@ -41,6 +42,8 @@ def main():
         f = None
         if base == "reason" and "Inf" in d["engine"]:
             f = "S2"
+        elif base == "reason" and "no training cells" in d["engine"]:
+            f = "M1"
         elif name.startswith("band-") and tgt is not None:
             f = "S4"
         elif w["kind"] == "nlfm":
