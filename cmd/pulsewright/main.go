@@ -68,7 +68,14 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 	if len(args) > 0 && (len(args[0]) == 0 || args[0][0] != '-') {
 		cmd, args = args[0], args[1:]
 	}
-	env := &env{ctx: ctx, stdin: stdin, stdout: stdout, stderr: stderr}
+	// Text for people passes through termSafe; the CSV of a sweep is data
+	// and goes raw unless it lands on a terminal, and the progress bar
+	// writes to the raw standard error.
+	out := stdout
+	if cmd != "sweep" || isTerminal(stdout) {
+		out = newTermSafe(stdout)
+	}
+	env := &env{ctx: ctx, stdin: stdin, stdout: out, stderr: newTermSafe(stderr), rawStderr: stderr}
 	var err error
 	switch cmd {
 	case "check":
@@ -103,6 +110,8 @@ type env struct {
 	stdin  io.Reader
 	stdout io.Writer
 	stderr io.Writer
+	// rawStderr is stderr without termSafe, for the progress bar's \r.
+	rawStderr io.Writer
 }
 
 // usageError is a mistake on the command line.
