@@ -32,8 +32,14 @@ import (
 // Stationary phase holds only for large B·τ: the Fresnel ripple of the
 // spectrum leaves the achieved peak sidelobe above the taper's level at
 // small B·τ. For B·τ ≤ 2000, NewNLFM therefore measures the PSLR of each
-// candidate (autocorrelation sampled at 4B) and deepens the taper in
-// 2.5 dB steps, up to 15 dB, until the design level is reached. Measured
+// candidate (autocorrelation of the pulse sampled at exactly fs = 4B,
+// SampleLen(τ, 4B) samples; the largest |r| from the first local minimum
+// after lag 0 on, over r_0) and deepens the taper in 2.5 dB steps: it tries
+// the design level, design − 2.5 dB, … (at most six steps, 15 dB, and never
+// below −70 dB) and stops at the first candidate whose PSLR reaches the
+// design level. If none does, it keeps the shallowest candidate whose PSLR
+// is within 0.5 dB of the best one tried (a deeper taper widens the main
+// lobe for no sidelobe gain). TaperDB reports the level kept. Measured
 // PSLR (package tests, ×4 interpolated): design −40 dB gives −32.7 dB at
 // B·τ = 100 (the limit of the method there), −39.9 at 500 and −40.6 at
 // 1000; design −35 dB gives −32.7, −35.5 and −34.5 dB.

@@ -260,14 +260,30 @@ class NLFM:
         self.tau, self.B, self.sll = tau, B, sll
         bt = B * tau
         self.taper = sll
-        self._build(sll)
-        if bt <= 2000:
-            for step in range(7):
-                taper = sll - 2.5 * step
-                self._build(taper)
-                if self._pslr4() <= sll:
-                    break
-            self.taper = taper
+        if bt > 2000:
+            self._build(sll)
+            return
+        # Stopping rule documented on dsp.NLFM: try design, design - 2.5 dB,
+        # ... (at most 6 steps, never below -70 dB); stop at the first whose
+        # PSLR (autocorrelation sampled at 4B) reaches the design; if none
+        # does, keep the shallowest whose PSLR is within 0.5 dB of the best.
+        trials = []
+        for step in range(7):
+            taper = sll - 2.5 * step
+            if taper < -70:
+                break
+            self._build(taper)
+            p = self._pslr4()
+            trials.append((taper, p))
+            if p <= sll:
+                break
+        pick = trials[-1]
+        if pick[1] > sll:
+            best = min(p for _, p in trials)
+            pick = next(tr for tr in trials if tr[1] <= best + 0.5)
+        if pick[0] != trials[-1][0]:
+            self._build(pick[0])
+        self.taper = pick[0]
 
     def _build(self, taper_db):
         a = math.acosh(10 ** (abs(taper_db) / 20)) / math.pi
@@ -301,8 +317,10 @@ class NLFM:
         return np.exp(1j * (h00 * p0 + h10 * d0 + h01 * p1_ + h11 * d1))
 
     def _pslr4(self):
-        n = int(math.ceil(4 * self.B * self.tau))
-        fs = n / self.tau
+        # sampled at exactly fs = 4B, ceil(tau fs) samples (dsp.SampleLen)
+        fs = 4 * self.B
+        x = self.tau * fs
+        n = int(round(x)) if abs(x - round(x)) <= 1e-9 * x else int(math.ceil(x))
         u = self.at(np.arange(n) / fs)
         r = np.abs(scipy.signal.fftconvolve(u, np.conj(u[::-1])))
         c = n - 1
