@@ -175,9 +175,15 @@ type localPlan struct {
 	m       *model
 	c       *dsp.Correlator
 	x, y, u []complex128
+	n       int // buffer length when not the default (out-of-band echoes)
 }
 
-func (lp *localPlan) size() int { return len(lp.m.pulse) + len(lp.m.ref) + 2 }
+func (lp *localPlan) size() int {
+	if lp.n > 0 {
+		return lp.n
+	}
+	return len(lp.m.pulse) + len(lp.m.ref) + 2
+}
 
 func (lp *localPlan) ensure() {
 	if lp.c == nil {
@@ -208,6 +214,16 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 	g.outOfBand = math.Abs(g.fd) >= m.fs/2
 	d := g.delay * m.fs
 	b := int(math.Floor(d)) - len(m.ref)
+	if g.outOfBand {
+		// The ideal band filter's impulse response rings without end, so
+		// the filtered echo reaches every gate: filter and compress it
+		// over the whole raw record, not over a local buffer that would
+		// cut the ringing off a few gates from the echo (docs/detection.md
+		// §2). The buffer starts before raw sample 0 so that its outputs
+		// cover gate 0.
+		b = min(0, -m.lead) - 1
+		lp = &localPlan{m: m, n: m.recLen - b + len(m.ref) + 2}
+	}
 	// Output j of the local buffer is window sample b+j+lead.
 	full0, full1 := max(b+m.lead, 0), min(b+m.lead+lp.size(), m.n)
 	lo, hi := full0, full1
