@@ -79,21 +79,6 @@ func waveClass(sc map[string]any) string {
 // compared for presence only (see README.md).
 func tolerance(field, class string, bwHz float64) (tol, bool) {
 	res := scenarios.C / (2 * bwHz) // range resolution, m
-	if class == "nlfm" {
-		// The taper depth of the NLFM design is chosen by a search whose
-		// stopping rule the docs do not fix (README.md): its figures are
-		// compared loosely.
-		switch field {
-		case "pslr_db", "islr_db":
-			return tol{1.5, 0}, true
-		case "mainlobe_3db_m", "range_shift_m":
-			return tol{0, 0.1}, true
-		case "doppler_loss_db", "snr_db":
-			return tol{0.1, 0.1}, true
-		case "margin_db":
-			return tol{1.5, 0}, true
-		}
-	}
 	switch field {
 	case "pulse_width_s", "bandwidth_hz", "time_bandwidth", "compression_gain_db",
 		"blind_range_m", "unambiguous_range_m", "unambiguous_velocity_mps",
@@ -154,8 +139,8 @@ func tolerance(field, class string, bwHz float64) (tol, bool) {
 		return tol{0.05, 0.03}, true
 	case "band_loss_db":
 		// Checked against the closed form ∫sinc² of a rect pulse: the
-		// model's FFT band filter is within 0.2 dB of it.
-		return tol{0.3, 0}, true
+		// model's FFT band filter is within 0.25 dB of it.
+		return tol{bandLossTol, 0}, true
 	case "margin_db":
 		if class == "minimax" {
 			return tol{}, false
@@ -164,6 +149,9 @@ func tolerance(field, class string, bwHz float64) (tol, bool) {
 	}
 	return tol{}, false
 }
+
+// bandLossTol is the tolerance of band_loss_db, dB (README.md).
+const bandLossTol = 0.3
 
 type worst struct {
 	field string
@@ -270,6 +258,7 @@ func TestDiffModel(t *testing.T) {
 		}
 		class := waveClass(raw)
 		bw := c.Expected.Waveform["bandwidth_hz"].(float64)
+		bandScene := false
 		compare := func(prefix string, want, have map[string]any, fields []string) {
 			for _, f := range fields {
 				wv, wok := want[f]
@@ -301,6 +290,14 @@ func TestDiffModel(t *testing.T) {
 						continue
 					}
 					allowed := tl.abs + tl.rel*math.Abs(wx)
+					// An echo beyond the receiver band is heard through the
+					// far tail of its spectrum, which both sides compute on
+					// an internal grid (aliasing of a rect-edged spectrum):
+					// its SNR, and every margin of a scene that holds one,
+					// carry the band loss's tolerance too (README.md, S4).
+					if _, ob := want["band_loss_db"]; f == "snr_db" && ob || f == "margin_db" && bandScene {
+						allowed += bandLossTol
+					}
 					if d := math.Abs(hx - wx); d > allowed {
 						record(name, path, show(hv, true), show(wv, true), d-allowed)
 					}
@@ -322,6 +319,14 @@ func TestDiffModel(t *testing.T) {
 			continue
 		}
 		for i, want := range c.Expected.Targets {
+			if i == 0 {
+				bandScene = false
+				for _, w := range c.Expected.Targets {
+					if _, ob := w["band_loss_db"]; ob {
+						bandScene = true
+					}
+				}
+			}
 			have := got.Targets[i]
 			prefix := fmt.Sprintf("targets[%d].", i)
 			compare(prefix, want, have, []string{

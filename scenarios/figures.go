@@ -14,12 +14,15 @@ import (
 
 // Internal grids (docs/figures.md §4).
 const (
-	heldPerChip    = 8       // held grid: at least 8 samples per chip
-	heldMinSamples = 256     // … and at least 256 samples per pulse
-	fmPerBandwidth = 8       // interpolated grid: at least 8 samples per 1/B
-	fmMinSamples   = 64      // … and at least 64 per pulse
-	fmMaxSamples   = 1 << 21 // … but at most 2²¹ (B·τ > 2¹⁸: still ≥ 2 per 1/B, as fs ≥ B and τ·fs ≤ 2²⁰)
-	straddleSteps  = 64      // fractional delays per sample of the straddle loss
+	heldPerChip    = 8   // held grid: at least 8 samples per chip
+	heldMinSamples = 256 // … and at least 256 samples per pulse
+	fmPerBandwidth = 8   // interpolated grid: at least 8 samples per 1/B
+	fmMinSamples   = 64  // … and at least 64 per pulse
+	// fmMinSamplesFine is the interpolated grid's minimum for every window
+	// but Chebyshev (whose symmetric n-point window keeps n as above).
+	fmMinSamplesFine = 512
+	fmMaxSamples     = 1 << 21 // … but at most 2²¹ (B·τ > 2¹⁸: still ≥ 2 per 1/B, as fs ≥ B and τ·fs ≤ 2²⁰)
+	straddleSteps    = 64      // fractional delays per sample of the straddle loss
 	// fmDopplerPerBandwidth is the grid of FM Doppler responses, samples per 1/B.
 	fmDopplerPerBandwidth = 4
 )
@@ -118,13 +121,20 @@ func (m *model) continuous() *contFigures {
 	} else {
 		// n samples at the midpoints t = (i + ½)·τ/n.
 		B, tau := m.wave.Bandwidth(), m.wave.Duration()
-		n := int(math.Min(math.Ceil(math.Max(fmPerBandwidth*B*tau, fmMinSamples)-1e-9), fmMaxSamples))
+		minN := float64(fmMinSamples)
+		if m.s.Receiver.Window.Kind != WindowChebyshev {
+			// A short pulse's response has rect edges, which
+			// band-limited interpolation blurs: sample it finer.
+			// (Chebyshev keeps n, which defines its n-point window.)
+			minN = fmMinSamplesFine
+		}
+		n := int(math.Min(math.Ceil(math.Max(fmPerBandwidth*B*tau, minN)-1e-9), fmMaxSamples))
 		rate := float64(n) / tau
 		x := dsp.Sample(make([]complex128, n), m.wave, rate, 0.5/rate)
 		chi = dsp.SampledChi(x, weighted(x, win), rate, B)
 		// The Doppler response is band-limited interpolated near its peak;
 		// 4 samples per 1/B serve it as well at a quarter of the cost.
-		nd := int(math.Min(math.Ceil(math.Max(fmDopplerPerBandwidth*B*tau, fmMinSamples)-1e-9), fmMaxSamples))
+		nd := int(math.Min(math.Ceil(math.Max(fmDopplerPerBandwidth*B*tau, minN)-1e-9), fmMaxSamples))
 		c.rate = float64(nd) / tau
 		c.x = dsp.Sample(make([]complex128, nd), m.wave, c.rate, 0.5/c.rate)
 		c.h = weighted(c.x, win)
