@@ -410,7 +410,10 @@ export class Editor {
       while (path) {
         slots = $$(`[data-err-for="${CSS.escape(path)}"]`);
         if (slots.length) break;
-        path = path.replace(/(\.[^.[\]]*|\[\d+\])$/, '');
+        // Up one level; a top-level name ("version", an unknown field) has
+        // no parent, and its message goes to the page's own list.
+        const up = path.replace(/(\.[^.[\]]*|\[\d+\])$/, '');
+        path = up === path ? '' : up;
       }
       if (!slots.length) {
         orphans.push(fe.path ? `${fe.path}: ${fe.message}` : fe.message);

@@ -6,7 +6,7 @@ import { Editor } from './editor.js';
 import { renderFigures } from './figures.js';
 import { Plots, carryCharts } from './charts.js';
 import { Session } from './session.js';
-import { api, decodeLink, linkPart } from './share.js';
+import { HTTPError, api, decodeLink, linkPart, refusal } from './share.js';
 import { Store } from './store.js';
 import { initLibrary } from './library.js';
 import { initKeys } from './keys.js';
@@ -25,7 +25,7 @@ let lastErrorId = 0;
 let pinned = null;
 let shownLink = null; // encoded part of the link in the address bar
 let pushNextLink = false; // the next frame's link starts a new history entry
-let linkFallback = null; // scenario JSON to return to if a link's scenario is rejected
+let openingLink = null; // the link being opened (one paste fires hashchange and popstate)
 
 // Measured latencies, edit send → new pixels, for the browser tests.
 const latencies = [];
@@ -125,15 +125,6 @@ function updateAddress(link) {
 }
 
 function onError(msg) {
-  if (session.tagOf(msg.id) === 'link' && linkFallback !== null) {
-    const why = (msg.fields || []).map((f) => (f.path ? `${f.path}: ${f.message}` : f.message)).join('; ') || msg.error;
-    notice(`This share link holds a scenario that cannot be used (${why}). The current scene is kept.`, 'error');
-    store.load(JSON.parse(linkFallback), { record: false, cause: 'revert' });
-    store.undoStack.pop(); // the step that loaded the link
-    linkFallback = null;
-    restoreAddress();
-    return;
-  }
   lastErrorId = msg.id;
   const first = (msg.fields || [])[0];
   const m = first && first.path && first.path.match(/^targets\[(\d+)\]/);
@@ -211,19 +202,44 @@ function hoverCard(hit) {
 
 // --- links and history ---
 
-async function openLink(enc) {
-  let s;
+// A scene from outside (a link, a file) replaces the user's only once the
+// server accepts it; otherwise the page says why and keeps the scene.
+async function vetted(s, what) {
+  const kept = store.scenario ? 'The current scene is kept.' : 'The start scene is shown instead.';
   try {
-    s = await decodeLink(enc);
+    await api.check(s);
+    return true;
   } catch (e) {
-    notice(`This share link cannot be opened: ${e.message}. The current scene is kept.`, 'error');
-    if (!store.scenario) await loadDemo(DefaultDemo);
-    restoreAddress();
-    return;
+    if (e instanceof HTTPError && e.status >= 400 && e.status < 500) {
+      notice(`${what} holds a scenario that cannot be used: ${refusal(e)}. ${kept}`, 'error');
+    } else {
+      notice(`${what} could not be checked (${e.message}); is the Pulsewright server running? ${kept}`, 'error');
+    }
+    return false;
   }
-  shownLink = enc;
-  linkFallback = store.scenario ? JSON.stringify(store.scenario) : null;
-  store.load(s, { cause: 'link' });
+}
+
+async function openLink(enc) {
+  if (enc === openingLink) return;
+  openingLink = enc;
+  try {
+    let s;
+    try {
+      s = await decodeLink(enc);
+    } catch (e) {
+      notice(`This share link cannot be opened: ${e.message}. ${store.scenario ? 'The current scene is kept.' : 'The start scene is shown instead.'}`, 'error');
+      s = null;
+    }
+    if (!s || !(await vetted(s, 'This share link'))) {
+      if (!store.scenario) await loadStart();
+      restoreAddress();
+      return;
+    }
+    shownLink = enc;
+    store.load(s, { cause: 'link' });
+  } finally {
+    if (openingLink === enc) openingLink = null;
+  }
 }
 
 function restoreAddress() {
@@ -304,6 +320,7 @@ $('#file-import').addEventListener('change', async (ev) => {
   try {
     const s = JSON.parse(await file.text());
     if (!s || typeof s !== 'object' || Array.isArray(s)) throw new Error('not a JSON object');
+    if (!(await vetted(s, `The file ${file.name}`))) return;
     pushNextLink = true;
     store.load(s);
   } catch (e) {
@@ -337,8 +354,8 @@ try {
 session.connect();
 const demosReady = fillDemos();
 const startLink = linkPart(location.hash);
-if (startLink !== null) {
-  openLink(startLink);
-} else {
-  demosReady.then((demos) => loadDemo((demos.find((d) => d.start) || {}).name || DefaultDemo));
+function loadStart() {
+  return demosReady.then((demos) => loadDemo((demos.find((d) => d.start) || {}).name || DefaultDemo));
 }
+if (startLink !== null) openLink(startLink);
+else loadStart();
