@@ -16,6 +16,11 @@ export class Editor {
     this.selected = 0; // index of the selected target
     this.status = new Map(); // target id → report entry
     this.shape = '';
+    // Fields whose text is not a value (typed "12x"): path → message. The
+    // scene keeps the field's last good value; the message stays until the
+    // text is fixed or replaced, whatever frames arrive meanwhile.
+    this.localErrors = new Map();
+    this.onLocalErrors = () => {};
     for (const root of Object.values(roots)) {
       root.addEventListener('input', (ev) => this.onInput(ev));
       root.addEventListener('change', (ev) => this.onChange(ev));
@@ -52,10 +57,12 @@ export class Editor {
     if (!path || el.tagName === 'SELECT') return;
     const v = this.value(el);
     if (typeof v === 'number' && Number.isNaN(v) || Array.isArray(v) && v.some(Number.isNaN)) {
-      this.showLocalError(path, 'not a number');
+      this.setLocalError(path, el.dataset.type === 'phases'
+        ? `“${el.value.trim()}” is not a list of numbers (degrees, separated by commas or spaces)`
+        : `“${el.value.trim()}” is not a number`);
       return;
     }
-    this.showLocalError(path, '');
+    this.setLocalError(path, '');
     this.store.update((s) => setPath(s, path, v), path);
   }
 
@@ -190,6 +197,10 @@ export class Editor {
     const shape = this.shapeOf(s);
     if (shape !== this.shape) {
       this.shape = shape;
+      if (this.localErrors.size) {
+        this.localErrors.clear();
+        this.onLocalErrors();
+      }
       this.renderScene(s);
       this.renderRadar(s);
       this.renderPulse(s);
@@ -219,7 +230,10 @@ export class Editor {
         continue;
       }
       const text = el.dataset.type === 'phases' ? (v || []).join(', ') : toDisplay(v, Number(el.dataset.scale || 1));
-      if (el.value !== text) el.value = text;
+      if (el.value !== text) {
+        el.value = text;
+        if (this.localErrors.has(el.dataset.path)) this.setLocalError(el.dataset.path, '');
+      }
     }
   }
 
@@ -394,8 +408,26 @@ export class Editor {
 
   // --- validation messages ---
 
+  setLocalError(path, msg) {
+    const had = this.localErrors.has(path);
+    if (msg) this.localErrors.set(path, msg);
+    else this.localErrors.delete(path);
+    this.showLocalError(path, msg);
+    if (had !== !!msg || msg) this.onLocalErrors();
+  }
+
   showLocalError(path, msg) {
     for (const el of $$(`[data-err-for="${CSS.escape(path)}"]`)) el.textContent = msg;
+    for (const el of $$(`[data-path="${CSS.escape(path)}"]`)) {
+      if (msg) el.setAttribute('aria-invalid', 'true');
+      else el.removeAttribute('aria-invalid');
+    }
+  }
+
+  // The first field whose text is not a value, as a sentence, or null.
+  localProblem() {
+    for (const [path, msg] of this.localErrors) return `${path}: ${msg}`;
+    return null;
   }
 
   // Show the server's field errors beside their fields; a path with no
@@ -433,6 +465,7 @@ export class Editor {
   clearErrors() {
     for (const el of $$('[data-err-for]')) el.textContent = '';
     for (const el of $$('[aria-invalid]')) el.removeAttribute('aria-invalid');
+    for (const [path, msg] of this.localErrors) this.showLocalError(path, msg);
   }
 
   // The first panel holding an error, so the page can show that tab.

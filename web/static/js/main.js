@@ -1,7 +1,7 @@
 // The workbench page: wires the scenario store, the editor, the plots, the
 // figures panel and the websocket session together.
 
-import { $, $$, download } from './dom.js';
+import { $, $$, download, h } from './dom.js';
 import { Editor } from './editor.js';
 import { renderFigures } from './figures.js';
 import { Plots, carryCharts } from './charts.js';
@@ -10,6 +10,8 @@ import { HTTPError, api, decodeLink, linkPart, refusal } from './share.js';
 import { Store } from './store.js';
 import { initLibrary } from './library.js';
 import { initKeys } from './keys.js';
+import { Staleness } from './stale.js';
+import { initCopyLink } from './copylink.js';
 
 const DefaultDemo = 'harbour-skiff';
 
@@ -25,6 +27,23 @@ let lastErrorId = 0;
 let pinned = null;
 let shownLink = null; // encoded part of the link in the address bar
 let pushNextLink = false; // the next frame's link starts a new history entry
+// Which scene the plots show, against the editor's (see stale.js).
+const stale = new Staleness($('.plots'));
+let shownVersion = null; // store version of the plotted scene
+let errorVersion = null; // store version the server last refused, and why
+let errorText = null;
+const rejected = new Set(); // ids of refused scenario messages
+let connState = 'connecting';
+let wasLive = false; // reconnecting after a drop counts as offline
+function refreshStale() {
+  stale.update({
+    behind: shownVersion !== store.version,
+    invalid: editor.localProblem() || (errorVersion === store.version ? errorText : null),
+    offline: connState === 'offline' || (wasLive && connState !== 'live'),
+  });
+}
+editor.onLocalErrors = refreshStale;
+
 let openingLink = null; // the link being opened (one paste fires hashchange and popstate)
 
 // Measured latencies, edit send → new pixels, for the browser tests.
@@ -51,7 +70,7 @@ const plots = new Plots({
   },
   hoverCard,
 });
-window.__pw = { store, editor, plots, session, frame: () => lastFrame };
+window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame };
 
 store.onChange((s, cause) => {
   editor.render(s);
@@ -59,7 +78,8 @@ store.onChange((s, cause) => {
     if (session.cell) session.sendCell(null);
     plots.clearCell();
   }
-  session.sendScenario(s, cause === 'link' ? 'link' : null);
+  session.sendScenario(s, cause === 'link' ? 'link' : null, store.version);
+  refreshStale();
   $('#btn-undo').disabled = !store.undoStack.length;
   $('#btn-redo').disabled = !store.redoStack.length;
 });
@@ -85,6 +105,8 @@ function applyFrame() {
   pendingFrame = null;
   if (!f) return;
   lastFrame = f;
+  const shows = session.versionAt(f.id, rejected);
+  if (shows !== null) shownVersion = shows;
   const t0 = performance.now();
   plots.apply(f);
   const t1 = performance.now();
@@ -96,6 +118,7 @@ function applyFrame() {
     markTabs();
   }
   if (f.link) updateAddress(f.link);
+  refreshStale();
   const sentAt = session.sent.get(f.id);
   const t2 = performance.now();
   performance.mark(`pw-apply-${f.id}`);
@@ -125,6 +148,14 @@ function updateAddress(link) {
 }
 
 function onError(msg) {
+  rejected.add(msg.id);
+  const v = session.versionOf(msg.id);
+  if (v !== null) {
+    const fe = (msg.fields || [])[0];
+    errorVersion = v;
+    errorText = fe ? (fe.path ? `${fe.path}: ${fe.message}` : fe.message) : msg.error;
+    refreshStale();
+  }
   lastErrorId = msg.id;
   const first = (msg.fields || [])[0];
   const m = first && first.path && first.path.match(/^targets\[(\d+)\]/);
@@ -151,18 +182,29 @@ function markTabs() {
 function onStatus(state) {
   $('#conn').dataset.state = state;
   $('#conn-text').textContent = state;
+  connState = state;
+  if (state === 'live') wasLive = true;
+  refreshStale();
 }
 
 // --- notices, tabs, hover card ---
 
 // Information notices fade after a few seconds; errors stay until closed.
+// extra: an element shown under the text (the link to copy by hand).
 let noticeTimer = 0;
-function notice(text, kind = 'info') {
+function notice(text, kind = 'info', extra = null) {
   $('#notice-text').textContent = text;
+  let more = $('#notice-extra');
+  if (!more) {
+    more = h('div', { id: 'notice-extra', class: 'notice-extra' });
+    $('#notice-text').after(more);
+  }
+  more.replaceChildren(...(extra ? [extra] : []));
+  more.hidden = !extra;
   $('#notice').dataset.kind = kind;
   $('#notice').hidden = false;
   clearTimeout(noticeTimer);
-  if (kind !== 'error') noticeTimer = setTimeout(() => { $('#notice').hidden = true; }, 6000);
+  if (kind === 'info') noticeTimer = setTimeout(() => { $('#notice').hidden = true; }, 6000);
 }
 $('#notice-close').addEventListener('click', () => { $('#notice').hidden = true; });
 
@@ -298,19 +340,10 @@ $('#btn-pin').addEventListener('click', () => {
   $('#btn-pin').textContent = pinned ? 'Unpin reference' : 'Pin reference';
   $('#btn-pin').setAttribute('aria-pressed', String(!!pinned));
   $('#pin-badge').hidden = !pinned;
-  session.sendScenario(store.scenario); // a fresh frame with (or without) the reference
+  session.sendScenario(store.scenario, null, store.version); // a fresh frame with (or without) the reference
 });
 
-$('#btn-share').addEventListener('click', async () => {
-  if (!lastFrame || !lastFrame.link) return;
-  const url = new URL(lastFrame.link, location.href).href;
-  try {
-    await navigator.clipboard.writeText(url);
-    notice('Share link copied. Anyone running Pulsewright can open it to see this exact scene.');
-  } catch {
-    notice(`Copy this link: ${url}`);
-  }
-});
+initCopyLink({ button: $('#btn-share'), frame: () => lastFrame, stale, store, notice });
 
 $('#btn-import').addEventListener('click', () => $('#file-import').click());
 $('#file-import').addEventListener('change', async (ev) => {

@@ -13,6 +13,7 @@ export class Store {
     this.lastKey = null;
     this.lastTime = 0;
     this.listeners = new Set();
+    this.version = 0; // counts changes, so that a frame can be matched to the scene it shows
   }
 
   onChange(fn) {
@@ -20,6 +21,7 @@ export class Store {
   }
 
   emit(cause) {
+    this.version++;
     for (const fn of this.listeners) fn(this.scenario, cause);
   }
 
