@@ -4,7 +4,7 @@
 
 import { $$, getPath, h, setPath } from './dom.js';
 import {
-  convertTarget, detectorFields, detectorKinds, fluctuations, fromDisplay, levelKey, levelUnit,
+  convertTarget, detectorFields, kindShort, kindTitle, levelName, levelShort, detectorKinds, fluctuations, fromDisplay, levelKey, levelUnit,
   newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
 } from './schema.js';
 
@@ -15,6 +15,7 @@ export class Editor {
     this.store = store;
     this.selected = 0; // index of the selected target
     this.status = new Map(); // target id → report entry
+    this.reportTargets = []; // the report's entries, in scene order
     this.shape = '';
     // Fields whose text is not a value (typed "12x"): path → message. The
     // scene keeps the field's last good value; the message stays until the
@@ -209,7 +210,7 @@ export class Editor {
       return;
     }
     this.renderTargets(s, false);
-    for (const root of Object.values(this.roots)) this.syncValues(root, s);
+    for (const [name, root] of Object.entries(this.roots)) if (name !== 'targets') this.syncValues(root, s);
   }
 
   shapeOf(s) {
@@ -326,20 +327,27 @@ export class Editor {
       dataset: { path: `targets[${i}].${key}`, type: 'num', scale: String(scale), optional: '1' },
       'aria-label': `${t.id} ${key}`,
     });
-    const rep = this.status.get(t.id);
+    const rep = this.reportTargets.length === (this.store.scenario.targets || []).length ? this.reportTargets[i] : this.status.get(t.id);
     const st = rep ? rep.status : '';
     const level = num(lk);
     level.dataset.level = String(i);
-    level.title = 'Wheel or ↑/↓ to nudge by 1 dB (Shift: 0.1 dB)';
+    level.title = `${levelName[t.kind]} in ${levelUnit[t.kind]}: wheel, or ↑/↓ while this field has the focus, nudges it by 1 dB (Shift: 0.1 dB)`;
+    level.setAttribute('aria-label', `${t.id} ${levelName[t.kind]} (${levelUnit[t.kind]})`);
+    const range = num(t.kind === 'point' ? 'range_m' : 'range_start_m');
+    range.setAttribute('aria-label', `${t.id} ${t.kind === 'point' ? 'range' : 'near edge'} (m)`);
+    range.title = t.kind === 'point' ? 'Range, m' : 'Near edge of the target, m (the far edge is in the form below)';
+    const rate = num('range_rate_mps');
+    rate.setAttribute('aria-label', `${t.id} range rate (m/s)`);
+    rate.title = 'Range rate, m/s (negative: closing)';
     return h('tr', { class: i === this.selected ? 'sel' : '', dataset: { row: String(i) } },
       h('td', {}, h('span', { class: `dot st-${st || 'none'}`, title: st ? st.replace('_', ' ') : 'not evaluated' })),
-      h('td', {}, h('input', { type: 'text', class: 'id', value: t.id, autocomplete: 'off', spellcheck: 'false',
+      h('td', {}, h('input', { type: 'text', class: 'id', value: t.id, autocomplete: 'off', spellcheck: 'false', title: t.id,
         dataset: { path: `targets[${i}].id`, type: 'text' }, 'aria-label': 'target id' })),
-      h('td', {}, h('select', { dataset: { action: 'target-kind', index: String(i) }, 'aria-label': 'kind' },
-        targetKinds.map((k) => h('option', { value: k, selected: k === t.kind }, k)))),
-      h('td', {}, num(t.kind === 'point' ? 'range_m' : 'range_start_m')),
-      h('td', {}, level),
-      h('td', {}, num('range_rate_mps')),
+      h('td', {}, h('select', { class: 'kind', dataset: { action: 'target-kind', index: String(i), path: `targets[${i}].kind`, type: 'kind' }, 'aria-label': `${t.id} kind`, title: kindTitle[t.kind] },
+        targetKinds.map((k) => h('option', { value: k, selected: k === t.kind, title: kindTitle[k] }, kindShort[k])))),
+      h('td', {}, range),
+      h('td', { class: this.mixedKinds ? 'with-unit' : '' }, level, this.mixedKinds ? h('span', { class: 'cell-unit' }, levelUnit[t.kind]) : null),
+      h('td', {}, rate),
       h('td', { class: 'acts' },
         h('button', { type: 'button', class: 'icon', title: 'Duplicate', dataset: { act: 'dup', index: String(i) } }, '+'),
         h('button', { type: 'button', class: 'icon', title: 'Delete', dataset: { act: 'del', index: String(i) } }, '×')));
@@ -360,7 +368,7 @@ export class Editor {
         { key: 'range_rate_mps', label: 'Range rate', unit: 'm/s', def: 0 },
         { key: 'velocity_spread_mps', label: 'Velocity spread', unit: 'm/s rms', def: 0 }];
     return h('div', { class: 'detail' },
-      h('div', { class: 'detail-head' }, `Target “${t.id}” · ${t.kind}`),
+      h('div', { class: 'detail-head' }, `Target “${t.id}” · ${kindTitle[t.kind]}`),
       h('div', { class: 'err block', dataset: { errFor: base } }),
       h('div', { class: 'grid' }, fds.map((fd) => this.field(s, base, { scale: 1, type: 'num', ...fd }))));
   }
@@ -368,17 +376,29 @@ export class Editor {
   renderTargets(s, full) {
     const root = this.roots.targets;
     const targets = s.targets || [];
-    const active = document.activeElement;
-    if (!full && root.contains(active) && active.dataset && active.dataset.path) {
-      this.syncValues(root, s); // typing in the table: keep the input
+    if (!full) {
+      // Same shape: only values change. Rebuilding the table would lose
+      // the field being typed in and costs a layout on every drag step.
+      this.syncValues(root, s);
       this.updateDots();
+      const t = targets[this.selected];
+      const head = root.querySelector('.detail-head');
+      if (t && head) head.textContent = `Target “${t.id}” · ${kindTitle[t.kind]}`;
+      for (const input of $$('input.id', root)) input.title = input.value;
       return;
     }
+    const kinds = [...new Set(targets.map((t) => t.kind))];
+    this.mixedKinds = kinds.length > 1;
+    const one = kinds.length === 1 ? kinds[0] : null;
+    const head = (name, unit, title) => h('th', { title }, h('span', { class: 'th-name' }, name), h('span', { class: 'th-unit' }, unit));
     root.replaceChildren(
       h('table', { class: 'targets' },
         h('thead', {}, h('tr', {},
-          h('th', {}, ''), h('th', {}, 'id'), h('th', {}, 'kind'), h('th', {}, 'range m'),
-          h('th', {}, 'level dB'), h('th', {}, 'rate m/s'), h('th', {}, ''))),
+          h('th', {}, ''), head('Target', '', 'Target id'), head('Kind', '', 'point, extended (ext.) or volume (vol.)'),
+          head('Range', '(m)', 'Range of a point target, near edge of an extended or volume target, in metres'),
+          one ? head(levelShort[one], `(${levelUnit[one]})`, `${levelName[one]} in ${levelUnit[one]}`)
+            : head('Level', '(per row)', 'RCS of a point target (dBsm), RCS per metre of an extended one (dBsm/m), reflectivity of a volume (dBZ)'),
+          head('Rate', '(m/s)', 'Range rate in metres per second; negative: closing'), h('th', {}, ''))),
         h('tbody', {}, targets.map((t, i) => this.targetRow(t, i)))),
       h('div', { class: 'row-actions' },
         h('button', { type: 'button', dataset: { act: 'add' } }, '+ Add target'),
@@ -389,15 +409,21 @@ export class Editor {
 
   // Report statuses for the dots of the target table.
   setReport(report) {
-    this.status = new Map(((report && report.targets) || []).map((t) => [t.id, t]));
+    this.reportTargets = (report && report.targets) || [];
+    this.status = new Map(this.reportTargets.map((t) => [t.id, t]));
     this.updateDots();
   }
 
+  // A row's status is the report's entry at the same index (ids can be
+  // duplicated or renamed while typing); when the plotted scene has a
+  // different number of targets, entries are matched by id instead.
   updateDots() {
     const targets = (this.store.scenario && this.store.scenario.targets) || [];
+    const byIndex = this.reportTargets.length === targets.length;
     $$('tr[data-row]', this.roots.targets).forEach((tr) => {
-      const t = targets[Number(tr.dataset.row)];
-      const rep = t && this.status.get(t.id);
+      const i = Number(tr.dataset.row);
+      const t = targets[i];
+      const rep = t && (byIndex ? this.reportTargets[i] : this.status.get(t.id));
       const dot = tr.querySelector('.dot');
       if (!dot) return;
       const st = rep ? rep.status : 'none';
@@ -454,7 +480,10 @@ export class Editor {
       const text = path === fe.path ? inUnits(fe.message, slots[0]) : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
       for (const slot of slots) {
         slot.textContent = slot.textContent ? `${slot.textContent}; ${text}` : text;
-        const input = slot.parentElement && slot.parentElement.querySelector('input, select, textarea');
+        // Outline the slot's own input only when the message is about it:
+        // a message that climbed to a parent's slot (a duplicate id shown
+        // in the target's form) must not outline another field there.
+        const input = path === fe.path && slot.parentElement && slot.parentElement.querySelector('input, select, textarea');
         if (input) input.setAttribute('aria-invalid', 'true');
       }
       for (const input of $$(`[data-path="${CSS.escape(fe.path)}"]`)) input.setAttribute('aria-invalid', 'true');

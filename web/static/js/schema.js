@@ -129,6 +129,10 @@ export function levelKey(kind) {
   return kind === 'extended' ? 'rcs_dbsm_per_m' : kind === 'volume' ? 'reflectivity_dbz' : 'rcs_dbsm';
 }
 export const levelUnit = { point: 'dBsm', extended: 'dBsm/m', volume: 'dBZ' };
+export const levelName = { point: 'RCS', extended: 'RCS per metre', volume: 'reflectivity' };
+export const levelShort = { point: 'RCS', extended: 'RCS/m', volume: 'Refl.' };
+export const kindShort = { point: 'point', extended: 'ext.', volume: 'vol.' };
+export const kindTitle = { point: 'point target', extended: 'extended target (spread in range)', volume: 'volume target (weather)' };
 
 // The near range of a target (its range for a point target).
 export function targetRange(t) {

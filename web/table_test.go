@@ -1,0 +1,95 @@
+package web_test
+
+import (
+	"fmt"
+	"strings"
+	"testing"
+
+	"github.com/chromedp/chromedp"
+)
+
+// jsCut lists the target table's cells whose text does not fit: inputs
+// whose text is wider than the box, and kind menus whose shown option is.
+const jsCut = `(() => {
+	const out = [];
+	const ctx = document.createElement('canvas').getContext('2d');
+	for (const el of document.querySelectorAll('#ed-targets table.targets input, #ed-targets table.targets select')) {
+		const cs = getComputedStyle(el);
+		const pad = parseFloat(cs.paddingLeft) + parseFloat(cs.paddingRight);
+		const text = el.tagName === 'SELECT' ? el.options[el.selectedIndex].text : el.value;
+		ctx.font = cs.fontWeight + ' ' + cs.fontSize + ' ' + cs.fontFamily;
+		const need = ctx.measureText(text).width + pad;
+		if (need > el.clientWidth + 0.5 || el.scrollWidth > el.clientWidth) out.push(text + ' (' + Math.ceil(need) + ' px in ' + el.clientWidth + ')');
+	}
+	return out; })()`
+
+// TestTargetTableShowsWholeValues: on every demo and at two window sizes,
+// the target table shows every id and number whole, and its headers give
+// units that fit each target kind.
+func TestTargetTableShowsWholeValues(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	demos := eval[[]string](t, ctx, `fetch('/api/v1/demos').then((r) => r.json()).then((d) => d.map((x) => x.name))`)
+	for _, size := range [][2]int64{{1280, 720}, {1600, 1000}} {
+		do(t, ctx, chromedp.EmulateViewport(size[0], size[1]))
+		for _, d := range demos {
+			loadDemo(t, ctx, d)
+			if cut := eval[[]string](t, ctx, jsCut); len(cut) > 0 {
+				t.Errorf("%dx%d %s: cells cut: %s", size[0], size[1], d, strings.Join(cut, "; "))
+			}
+			head := eval[string](t, ctx, `[...document.querySelectorAll('#ed-targets table.targets th')].map((th) => th.textContent).join(' | ')`)
+			for _, bad := range []string{"RANGE M", "LEVEL DB", "RATE M/S", "level dB", "range m"} {
+				if strings.Contains(head, bad) {
+					t.Errorf("%s: header %q still reads %q", d, head, bad)
+				}
+			}
+			if !strings.Contains(head, "(m)") || !strings.Contains(head, "(m/s)") {
+				t.Errorf("%s: header %q lacks the range or rate unit", d, head)
+			}
+			// Each row's level unit is that of its kind: in the header when
+			// every target is of one kind, beside the value otherwise.
+			units := eval[[]string](t, ctx, `(() => { const ks = window.__pw.store.scenario.targets.map((t) => t.kind);
+				const unit = {point: 'dBsm', extended: 'dBsm/m', volume: 'dBZ'};
+				const head = document.querySelector('#ed-targets table.targets th:nth-child(5)').textContent;
+				return ks.map((k, i) => { const cell = document.querySelectorAll('#ed-targets tr[data-row] td:nth-child(5)')[i];
+					const u = cell.querySelector('.cell-unit');
+					return u ? u.textContent === unit[k] ? '' : 'row ' + i + ' shows ' + u.textContent + ' for a ' + k
+						: head.includes('(' + unit[k] + ')') ? '' : 'row ' + i + ' (' + k + ') under header ' + head; }).filter(Boolean); })()`)
+			for _, u := range units {
+				t.Errorf("%s: %s", d, u)
+			}
+			shot(t, ctx, fmt.Sprintf("%dx%d-%s", size[0], size[1], d))
+		}
+	}
+}
+
+// TestEditorFollowsTargets: a duplicate id is flagged on the id, not on
+// another field; the status dots follow the rows, not the ids; the form's
+// heading follows a rename.
+func TestEditorFollowsTargets(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	waitFor(t, ctx, "the skiff masked", jsTarget+`('skiff').status === 'masked'`)
+	const id1 = `tr[data-row="1"] input[data-path="targets[1].id"]`
+	do(t, ctx, chromedp.Click(chromedp.CSS(id1)))
+	typeInto(t, ctx, id1, "tanker")
+	waitFor(t, ctx, "the duplicate-id error", `document.querySelector('`+id1+`').getAttribute('aria-invalid') === 'true'`)
+	if bad := eval[[]string](t, ctx, `[...document.querySelectorAll('#ed-targets [aria-invalid="true"]')].map((e) => e.dataset.path)`); len(bad) != 1 || bad[0] != "targets[1].id" {
+		t.Errorf("fields outlined for a duplicate id: %v, want only targets[1].id", bad)
+	}
+	// The plots still show the last valid scene (skiff masked): row 1's dot
+	// is the skiff's, not the tanker's.
+	if cls := eval[string](t, ctx, `document.querySelector('tr[data-row="1"] .dot').className`); !strings.Contains(cls, "st-masked") {
+		t.Errorf("row 1's dot is %q, want the skiff's masked status", cls)
+	}
+	shot(t, ctx, "duplicate")
+	typeInto(t, ctx, id1, "skiff-2")
+	waitFor(t, ctx, "the renamed frame", fresh+` && `+jsTarget+`('skiff-2')`)
+	if head := eval[string](t, ctx, `document.querySelector('.detail-head').textContent`); !strings.Contains(head, "skiff-2") {
+		t.Errorf("the form's heading %q does not follow the rename", head)
+	}
+	if cls := eval[string](t, ctx, `document.querySelector('tr[data-row="1"] .dot').className`); !strings.Contains(cls, "st-masked") {
+		t.Errorf("row 1's dot after the rename is %q, want masked", cls)
+	}
+	shot(t, ctx, "renamed")
+}
