@@ -6,6 +6,7 @@ import (
 	"context"
 	"encoding/base64"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
@@ -13,6 +14,7 @@ import (
 	"time"
 
 	"github.com/chromedp/chromedp"
+	"github.com/chromedp/chromedp/kb"
 )
 
 // Browser tests of the page's robustness: bad scenarios from files and
@@ -162,4 +164,61 @@ func TestPastedBadLinkKeepsWork(t *testing.T) {
 	waitFor(t, ctx, "the redone frame", fresh+` && window.__pw.store.scenario.targets[2].rcs_dbsm === 17.5`)
 	do(t, ctx, chromedp.Reload())
 	waitFor(t, ctx, "the reloaded scene", `window.__pw && window.__pw.store.scenario && window.__pw.store.scenario.targets[2].rcs_dbsm === 17.5`)
+}
+
+// TestNudgesOnlyWhenNudging: arrow keys change a target only while the
+// profile plot (after a click or wheel on it) or a level field has the
+// focus; a wheel gesture over a marker changes its level notch by notch
+// and never zooms the plot.
+func TestNudgesOnlyWhenNudging(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	waitFor(t, ctx, "the start scene", jsMarker+`('pilot-boat')`)
+	const rcs = `window.__pw.store.scenario.targets[2].rcs_dbsm`
+	rcs0 := eval[float64](t, ctx, rcs)
+	// Select the pilot boat by clicking its row, then click a button and
+	// press ↓: nothing changes.
+	do(t, ctx, chromedp.Click(chromedp.CSS(`tr[data-row="2"] td:first-child`)))
+	waitFor(t, ctx, "row 2 selected", `window.__pw.editor.selected === 2`)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#btn-pin`)), chromedp.KeyEvent(kb.ArrowDown), chromedp.KeyEvent(kb.ArrowUp), chromedp.KeyEvent(kb.ArrowUp))
+	// Click the figures panel and press ↓ to scroll it.
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#figures h3`)), chromedp.KeyEvent(kb.ArrowDown), chromedp.KeyEvent(kb.ArrowDown), chromedp.KeyEvent(kb.ArrowDown))
+	time.Sleep(300 * time.Millisecond)
+	if v := eval[float64](t, ctx, rcs); v != rcs0 {
+		t.Errorf("arrow keys on a button and in the figures panel changed the pilot boat's RCS from %g to %g", rcs0, v)
+	}
+	// ←/→ in a level field move the caret, not the target.
+	r0 := eval[float64](t, ctx, `window.__pw.store.scenario.targets[2].range_m`)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`tr[data-row="2"] input[data-level]`)), chromedp.KeyEvent(kb.ArrowLeft), chromedp.KeyEvent(kb.ArrowRight))
+	time.Sleep(200 * time.Millisecond)
+	if r := eval[float64](t, ctx, `window.__pw.store.scenario.targets[2].range_m`); r != r0 {
+		t.Errorf("←/→ in the level field moved the target from %g m to %g m", r0, r)
+	}
+	// ↑ in the level field nudges it.
+	do(t, ctx, chromedp.KeyEvent(kb.ArrowUp))
+	waitFor(t, ctx, "one nudge up in the level field", fmt.Sprintf(`%s === %g`, rcs, rcs0+1))
+	shot(t, ctx, "keys")
+
+	// A wheel gesture of six notches over the skiff's marker.
+	waitFor(t, ctx, "in step", fresh)
+	s0 := eval[float64](t, ctx, `window.__pw.store.scenario.targets[1].rcs_dbsm`)
+	p := markerPx(t, ctx, "skiff")
+	ox, oy := chartOrigin(t, ctx, "#chart-profile")
+	mouse(t, ctx, chromedp.MouseMoved, ox+p[0], oy+p[1])
+	for range 6 {
+		wheelAt(t, ctx, ox+p[0], oy+p[1], -100)
+		time.Sleep(60 * time.Millisecond)
+	}
+	waitFor(t, ctx, "six notches", fmt.Sprintf(`window.__pw.store.scenario.targets[1].rcs_dbsm === %g`, s0+6))
+	time.Sleep(300 * time.Millisecond)
+	if v := eval[float64](t, ctx, `window.__pw.store.scenario.targets[1].rcs_dbsm`); v != s0+6 {
+		t.Errorf("six wheel notches changed the skiff's RCS by %g dB, want 6", v-s0)
+	}
+	if z := eval[[]float64](t, ctx, `(() => { const d = window.__pw.plots.charts.profile.getOption().dataZoom[0]; return [d.start, d.end]; })()`); z[0] != 0 || z[1] != 100 {
+		t.Errorf("the wheel over a marker zoomed the profile to %v %%", z)
+	}
+	// The profile now has the focus: ↓ nudges the skiff.
+	do(t, ctx, chromedp.KeyEvent(kb.ArrowDown))
+	waitFor(t, ctx, "one key step down", fmt.Sprintf(`window.__pw.store.scenario.targets[1].rcs_dbsm === %g`, s0+5))
+	shot(t, ctx, "wheel")
 }

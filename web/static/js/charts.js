@@ -7,6 +7,7 @@ import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
+const WheelGestureMs = 500; // wheel events closer than this form one gesture
 
 const chartMs = {};
 window.__pwChartMs = chartMs;
@@ -326,8 +327,13 @@ export class Plots {
     el.addEventListener('pointerleave', () => this.hoverCard(null));
     el.addEventListener('wheel', (ev) => {
       const [px, py] = local(ev);
-      const m = this.hit(px, py);
+      // One wheel gesture stays on the marker it started on, even when the
+      // nudged peak moves from under the pointer: it never turns into a zoom.
+      const now = performance.now();
+      const lock = this.wheelLock && now - this.wheelLock.t < WheelGestureMs ? this.wheelLock : null;
+      const m = lock || this.hit(px, py);
       if (!m) return;
+      this.wheelLock = { id: m.id, t: now };
       ev.stopPropagation();
       ev.preventDefault();
       this.onSelect(m.id);
@@ -335,21 +341,22 @@ export class Plots {
     }, { capture: true, passive: false });
   }
 
-  // Draw (px) or remove (null) the vertical guide shown while dragging.
+  // Draw (px) or remove (null) the vertical guide shown while dragging: a
+  // page element over the chart, so that a drag step does not redraw it.
   guide(px) {
-    const chart = this.charts.profile;
+    const el = this.els.profile;
+    let g = el.querySelector('.drag-guide');
     if (px === null) {
-      chart.setOption({ graphic: [{ id: 'pw-drag-guide', $action: 'remove' }] });
+      if (g) g.hidden = true;
       return;
     }
-    const h = chart.getHeight();
-    chart.setOption({
-      graphic: [{
-        id: 'pw-drag-guide', type: 'line', silent: true, z: 100,
-        shape: { x1: px, y1: 30, x2: px, y2: h - 40 },
-        style: { stroke: '#b4561d', lineWidth: 1.5, lineDash: [5, 4] },
-      }],
-    });
+    if (!g) {
+      g = document.createElement('div');
+      g.className = 'drag-guide';
+      el.append(g);
+    }
+    g.hidden = false;
+    g.style.left = `${Math.round(px)}px`;
   }
 
   png(name) {

@@ -402,7 +402,7 @@ export class Editor {
         h('tbody', {}, targets.map((t, i) => this.targetRow(t, i)))),
       h('div', { class: 'row-actions' },
         h('button', { type: 'button', dataset: { act: 'add' } }, '+ Add target'),
-        h('span', { class: 'muted small' }, 'Drag a marker on the profile; wheel or ↑/↓ nudges the level.')),
+        h('span', { class: 'muted small' }, 'Drag a marker on the profile; the wheel over it, or ↑/↓ in a level field, nudges its level.')),
       h('div', { class: 'err block', dataset: { errFor: 'targets' } }),
       h('div', { class: 'detail-slot' }, this.targetDetail(s)));
   }

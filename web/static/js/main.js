@@ -371,7 +371,7 @@ for (const b of $$('[data-png]')) {
 }
 
 initLibrary({ store, notice, onOpen: () => { pushNextLink = true; } });
-initKeys({ store, editor, lastFrame: () => lastFrame });
+initKeys({ store, editor, lastFrame: () => lastFrame, profile: $('#chart-profile') });
 
 // --- start ---
 

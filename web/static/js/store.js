@@ -34,10 +34,12 @@ export class Store {
   }
 
   // Apply mutate(scenario) as one edit. Edits with the same key in quick
-  // succession (typing in one field, dragging one marker) form one undo step.
+  // succession (typing in one field, nudging one level) form one undo step;
+  // a drag ("drag:…" keys) is one step however slowly it goes, until seal().
   update(mutate, key = null) {
     const now = performance.now();
-    if (!(key && key === this.lastKey && now - this.lastTime < CoalesceMs)) this.push(key);
+    const same = key && key === this.lastKey && (now - this.lastTime < CoalesceMs || key.startsWith('drag:'));
+    if (!same) this.push(key);
     this.lastKey = key;
     this.lastTime = now;
     mutate(this.scenario);
