@@ -7,7 +7,7 @@ import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
-const WheelGestureMs = 500; // wheel events closer than this form one gesture
+const WheelGestureMs = 800; // wheel events closer than this, ms, form one gesture
 
 const chartMs = {};
 window.__pwChartMs = chartMs;
@@ -328,12 +328,17 @@ export class Plots {
     el.addEventListener('wheel', (ev) => {
       const [px, py] = local(ev);
       // One wheel gesture stays on the marker it started on, even when the
-      // nudged peak moves from under the pointer: it never turns into a zoom.
-      const now = performance.now();
-      const lock = this.wheelLock && now - this.wheelLock.t < WheelGestureMs ? this.wheelLock : null;
+      // nudged peak moves from under the pointer: it never turns into a
+      // zoom. It ends when the pointer moves away or the wheel rests.
+      const now = ev.timeStamp;
+      const w = this.wheelLock;
+      const lock = w && now - w.t < WheelGestureMs && Math.hypot(px - w.px, py - w.py) < 6 ? w : null;
       const m = lock || this.hit(px, py);
-      if (!m) return;
-      this.wheelLock = { id: m.id, t: now };
+      if (!m) {
+        this.wheelLock = null;
+        return;
+      }
+      this.wheelLock = { id: m.id, t: now, px: lock ? w.px : px, py: lock ? w.py : py };
       ev.stopPropagation();
       ev.preventDefault();
       this.onSelect(m.id);
