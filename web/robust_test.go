@@ -222,3 +222,40 @@ func TestNudgesOnlyWhenNudging(t *testing.T) {
 	waitFor(t, ctx, "one key step down", fmt.Sprintf(`window.__pw.store.scenario.targets[1].rcs_dbsm === %g`, s0+5))
 	shot(t, ctx, "wheel")
 }
+
+// TestMarkerClickAndQuietPage: clicking a marker raises no exception in
+// the page (the harness fails the test on any), the figures panel shows
+// no stray "null", and the page's icon is served.
+func TestMarkerClickAndQuietPage(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	waitFor(t, ctx, "the start scene", jsMarker+`('skiff')`)
+	eval[bool](t, ctx, `(window.__errs = [], addEventListener('error', (e) => window.__errs.push(String(e.message))), addEventListener('unhandledrejection', (e) => window.__errs.push(String(e.reason))),
+		((ce) => { console.error = (...a) => { window.__errs.push(a.map(String).join(' ')); ce(...a); }; })(console.error), true)`)
+	for _, id := range []string{"skiff", "tanker", "pilot-boat"} {
+		p := markerPx(t, ctx, id)
+		ox, oy := chartOrigin(t, ctx, "#chart-profile")
+		// A click as a hand makes it: no hover first, then a second click.
+		for range 2 {
+			mouse(t, ctx, chromedp.MousePressed, ox+p[0], oy+p[1], chromedp.ButtonLeft, chromedp.ClickCount(1))
+			mouse(t, ctx, chromedp.MouseReleased, ox+p[0], oy+p[1], chromedp.ButtonLeft, chromedp.ClickCount(1))
+		}
+		clickAt(t, ctx, "#chart-profile", p[0], p[1])
+		waitFor(t, ctx, id+" selected", fmt.Sprintf(`window.__pw.store.scenario.targets[window.__pw.editor.selected].id === %q`, id))
+	}
+	time.Sleep(300 * time.Millisecond)
+	if errs := eval[[]string](t, ctx, `window.__errs`); len(errs) > 0 {
+		t.Errorf("errors in the page after clicking markers: %v", errs)
+	}
+	if txt := eval[string](t, ctx, `document.querySelector('#figures').innerText`); strings.Contains(txt, "null") || strings.Contains(txt, "undefined") {
+		t.Errorf("figures panel shows a stray null/undefined: %q", txt)
+	}
+	icon := eval[string](t, ctx, `(document.querySelector('link[rel~="icon"]') || {}).href || ''`)
+	if icon == "" {
+		t.Fatal("the page names no icon, so the browser asks for /favicon.ico")
+	}
+	if st := eval[int](t, ctx, fmt.Sprintf(`fetch(%q).then((r) => r.status)`, icon)); st != 200 {
+		t.Errorf("icon %s: status %d", icon, st)
+	}
+	shot(t, ctx, "")
+}

@@ -69,7 +69,8 @@ export function renderFigures(root, report, reference, computeMs) {
       h('div', { class: 'reason' }, t.reason || ''));
   });
 
-  root.replaceChildren(
+  // replaceChildren would write an absent part (null) as the text "null".
+  root.replaceChildren(...[
     h('h3', {}, 'Waveform'),
     table,
     h('h3', {}, 'Targets'),
@@ -77,5 +78,6 @@ export function renderFigures(root, report, reference, computeMs) {
     (report.warnings || []).length
       ? h('div', { class: 'warnings' }, h('h3', {}, 'Warnings'), h('ul', {}, report.warnings.map((m) => h('li', {}, m))))
       : null,
-    computeMs !== undefined ? h('p', { class: 'muted small' }, `computed in ${fmt(computeMs, 1)} ms`) : null);
+    computeMs !== undefined ? h('p', { class: 'muted small' }, `computed in ${fmt(computeMs, 1)} ms`) : null,
+  ].filter(Boolean));
 }
