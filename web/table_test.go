@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"github.com/chromedp/chromedp"
+	"github.com/chromedp/chromedp/kb"
 )
 
 // jsCut lists the target table's cells whose text does not fit: inputs
@@ -92,4 +93,47 @@ func TestEditorFollowsTargets(t *testing.T) {
 		t.Errorf("row 1's dot after the rename is %q, want masked", cls)
 	}
 	shot(t, ctx, "renamed")
+}
+
+// TestLibraryKeysConfirmAndNames: Enter in "Save as" saves; a bad name is
+// refused as typed (not URL-encoded); Delete asks first and can be undone.
+func TestLibraryKeysConfirmAndNames(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	const saved = `fetch('/api/v1/scenarios').then((r) => r.json()).then((l) => (Array.isArray(l) ? l : l.scenarios || []).map((x) => x.name).join(','))`
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#btn-library`)))
+	waitFor(t, ctx, "the library", `document.querySelector('#library').open`)
+	typeInto(t, ctx, `#lib-name`, "by-enter")
+	do(t, ctx, chromedp.KeyEvent(kb.Enter))
+	waitFor(t, ctx, "saved by Enter", `document.querySelector('#lib-rows').textContent.includes('by-enter')`)
+	if s := eval[string](t, ctx, saved); s != "by-enter" {
+		t.Errorf("saved scenarios after Enter: %q, want by-enter", s)
+	}
+	if !eval[bool](t, ctx, `document.querySelector('#library').open`) {
+		t.Error("Enter closed the library")
+	}
+
+	typeInto(t, ctx, `#lib-name`, "my scene/1")
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#lib-save`)))
+	waitFor(t, ctx, "the name refused", `document.querySelector('#lib-msg').textContent !== ''`)
+	msg := eval[string](t, ctx, `document.querySelector('#lib-msg').textContent`)
+	if !strings.Contains(msg, "my scene/1") || strings.Contains(msg, "%2F") || strings.Contains(msg, "%20") {
+		t.Errorf("bad-name message %q: want the name as typed", msg)
+	}
+	shot(t, ctx, "bad-name")
+
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#lib-rows tr td.acts button[data-lib="delete"]`)))
+	waitFor(t, ctx, "the confirmation", `!!document.querySelector('#lib-rows [data-lib="confirm-delete"]')`)
+	if s := eval[string](t, ctx, saved); s != "by-enter" {
+		t.Errorf("one click on Delete deleted already (saved: %q)", s)
+	}
+	shot(t, ctx, "confirm")
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#lib-rows [data-lib="confirm-delete"]`)))
+	waitFor(t, ctx, "deleted", `document.querySelector('#lib-rows').textContent.includes('Nothing saved yet') && !!document.querySelector('#lib-undo')`)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#lib-undo`)))
+	waitFor(t, ctx, "restored", `document.querySelector('#lib-rows').textContent.includes('by-enter')`)
+	if s := eval[string](t, ctx, saved); s != "by-enter" {
+		t.Errorf("after undo, saved scenarios %q, want by-enter", s)
+	}
+	shot(t, ctx, "undone")
 }
