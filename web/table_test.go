@@ -137,3 +137,50 @@ func TestLibraryKeysConfirmAndNames(t *testing.T) {
 	}
 	shot(t, ctx, "undone")
 }
+
+// TestStatusMarksAgree: each target's mark on the profile and on its card
+// and table row has the same colour and shape, on every demo; a target
+// beyond the unambiguous range is marked where its folded echo appears.
+func TestStatusMarksAgree(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	demos := eval[[]string](t, ctx, `fetch('/api/v1/demos').then((r) => r.json()).then((d) => d.map((x) => x.name))`)
+	const jsCheck = `(() => {
+		const rgb = (c) => { const d = document.createElement('div'); d.style.color = c; document.body.append(d); const v = getComputedStyle(d).color; d.remove(); return v; };
+		const shape = (el) => { const s = getComputedStyle(el);
+			if (s.clipPath.startsWith('polygon')) return 'triangle';
+			if (s.transform !== 'none') return 'diamond';
+			if (s.backgroundColor === 'rgba(0, 0, 0, 0)') return 'emptyCircle';
+			return s.borderRadius === '50%' ? 'circle' : 'rect'; };
+		const colour = (el) => { const s = getComputedStyle(el); return s.backgroundColor === 'rgba(0, 0, 0, 0)' ? s.borderTopColor : s.backgroundColor; };
+		const ms = window.__pw.plots.charts.profile.getOption().series.find((s) => s.id === 'markers').data;
+		const out = [];
+		ms.forEach((m, i) => {
+			const card = document.querySelector('.tcard[data-target="' + CSS.escape(m.id) + '"] .dot');
+			const row = document.querySelectorAll('#ed-targets tr[data-row] .dot')[i];
+			for (const [where, el] of [['card', card], ['row', row]]) {
+				if (!el) { out.push(m.id + ': no ' + where + ' mark'); continue; }
+				if (shape(el) !== m.symbol) out.push(m.id + ' (' + m.status + '): ' + where + ' shape ' + shape(el) + ', plot ' + m.symbol);
+				if (colour(el) !== rgb(m.itemStyle.color)) out.push(m.id + ' (' + m.status + '): ' + where + ' colour ' + colour(el) + ', plot ' + rgb(m.itemStyle.color));
+			}
+		});
+		return out; })()`
+	seen := map[string]bool{}
+	for _, d := range demos {
+		loadDemo(t, ctx, d)
+		for _, p := range eval[[]string](t, ctx, jsCheck) {
+			t.Errorf("%s: %s", d, p)
+		}
+		for _, s := range eval[[]string](t, ctx, `window.__pw.frame().report.targets.map((t) => t.status)`) {
+			seen[s] = true
+		}
+		if d == "long-pulse-blind" {
+			x := eval[float64](t, ctx, jsMarker+`('airliner-far').value[0]`)
+			if x < 59600 || x > 60600 {
+				t.Errorf("airliner-far (210 km, folding to about 60.1 km) is marked at %.0f m", x)
+			}
+			shot(t, ctx, d)
+		}
+	}
+	t.Logf("statuses seen: %v", seen)
+}
