@@ -39,6 +39,7 @@ export class Editor {
 
   value(el) {
     const type = el.dataset.type;
+    if (type === 'notes') return el.value.trim() === '' ? undefined : el.value;
     if (type === 'text' || type === 'select') {
       if (el.dataset.int) return Number(el.value);
       return el.value === '' && el.dataset.optional ? undefined : el.value;
@@ -247,6 +248,8 @@ export class Editor {
     if (fd.type === 'select') {
       input = h('select', { dataset: { path, type: 'select', int: fd.int ? '1' : '', def: fd.def !== undefined ? String(fd.def) : undefined } },
         fd.options.map((o) => h('option', { value: String(o), selected: String(v ?? fd.def) === String(o) }, String(o))));
+    } else if (fd.type === 'notes') {
+      input = h('textarea', { rows: 4, dataset: { path, type: 'notes' }, placeholder: fd.hint || '', value: v || '', spellcheck: 'true' });
     } else if (fd.type === 'phases') {
       input = h('textarea', { rows: 2, dataset: { path, type: 'phases' }, placeholder: '0, 180, 90 …', value: (v || []).join(', ') });
     } else {
@@ -257,7 +260,7 @@ export class Editor {
       });
     }
     input.id = `f-${path.replace(/[^\w]/g, '_')}`;
-    return h('div', { class: 'field' },
+    return h('div', { class: fd.wide ? 'field wide' : 'field' },
       h('label', { for: input.id }, fd.label),
       h('div', { class: 'input-unit' }, input, fd.unit ? h('span', { class: 'unit' }, fd.unit) : null),
       h('div', { class: 'err', dataset: { errFor: path } }));
@@ -274,8 +277,10 @@ export class Editor {
 
   renderScene(s) {
     this.roots.scene.replaceChildren(
-      this.field(s, '', { key: 'name', label: 'Scene name', unit: '', scale: 1, type: 'text' }),
+      this.field(s, '', { key: 'name', label: 'Scene name', unit: '', scale: 1, type: 'text', wide: true }),
       this.field(s, '', { key: 'seed', label: 'Noise seed', unit: '', scale: 1, type: 'int', def: 1 }),
+      this.field(s, '', { key: 'notes', label: 'Notes (travel with the scenario and its link)', unit: '', scale: 1, type: 'notes', wide: true,
+        hint: 'What this scene shows, what to try…' }),
     );
   }
 

@@ -12,6 +12,7 @@ import { initLibrary } from './library.js';
 import { initKeys } from './keys.js';
 import { Staleness } from './stale.js';
 import { initCopyLink } from './copylink.js';
+import { Story } from './story.js';
 
 const DefaultDemo = 'harbour-skiff';
 
@@ -27,6 +28,8 @@ let lastErrorId = 0;
 let pinned = null;
 let shownLink = null; // encoded part of the link in the address bar
 let pushNextLink = false; // the next frame's link starts a new history entry
+const story = new Story($('.figures .fig-head'));
+
 // Which scene the plots show, against the editor's (see stale.js).
 const stale = new Staleness($('.plots'));
 let shownVersion = null; // store version of the plotted scene
@@ -80,6 +83,7 @@ store.onChange((s, cause) => {
   }
   session.sendScenario(s, cause === 'link' ? 'link' : null, store.version);
   refreshStale();
+  story.render(s, lastFrame && lastFrame.report);
   $('#btn-undo').disabled = !store.undoStack.length;
   $('#btn-redo').disabled = !store.redoStack.length;
 });
@@ -119,6 +123,7 @@ function applyFrame() {
   }
   if (f.link) updateAddress(f.link);
   refreshStale();
+  story.render(store.scenario, f.report);
   const sentAt = session.sent.get(f.id);
   const t2 = performance.now();
   performance.mark(`pw-apply-${f.id}`);
