@@ -184,3 +184,66 @@ func TestStatusMarksAgree(t *testing.T) {
 	}
 	t.Logf("statuses seen: %v", seen)
 }
+
+// jsLabelClash lists the x-axis labels of a chart that are drawn over or
+// against one another, less than 4 px apart (from the renderer's own list
+// of shown text).
+const jsLabelClash = `((name) => {
+	const c = window.__pw.plots.charts[name];
+	const h = c.getHeight();
+	const els = c.getZr().storage.getDisplayList(true);
+	const rows = {};
+	for (const e of els) {
+		if ((e.type !== 'text' && e.type !== 'tspan') || e.ignore || e.invisible || !e.style || !/^[−-]?[\d,. ]+$/.test(String(e.style.text))) continue;
+		const r = e.getBoundingRect().clone();
+		r.applyTransform(e.getComputedTransform());
+		if (r.y < h * 0.55) continue; // the x axis is at the bottom
+		(rows[Math.round(r.y)] = rows[Math.round(r.y)] || []).push(r.plain ? r.plain() : {x: r.x, width: r.width, text: e.style.text});
+		rows[Math.round(r.y)][rows[Math.round(r.y)].length - 1].text = e.style.text;
+	}
+	const out = [];
+	for (const row of Object.values(rows)) {
+		row.sort((a, b) => a.x - b.x);
+		for (let i = 1; i < row.length; i++) if (row[i - 1].x + row[i - 1].width + 4 > row[i].x) out.push(row[i - 1].text + ' / ' + row[i].text);
+	}
+	return out; })`
+
+// TestNarrowWindowLayout: at 1280×720 every plot tab shows whole and
+// clear of the PNG button, and no axis labels run together.
+func TestNarrowWindowLayout(t *testing.T) {
+	ctx := mustBrowser(t)
+	do(t, ctx, chromedp.EmulateViewport(1280, 720))
+	openPage(t, ctx, mustServer(t))
+	for _, d := range []string{"hill-clutter-doppler", "long-pulse-blind", "harbour-skiff"} {
+		loadDemo(t, ctx, d)
+		bad := eval[[]string](t, ctx, `(() => { const out = [];
+			for (const fig of document.querySelectorAll('.plot')) {
+				const png = fig.querySelector('button.png').getBoundingClientRect();
+				const head = fig.querySelector('.plot-head').getBoundingClientRect();
+				for (const tab of fig.querySelectorAll('.plot-head [role="tab"]')) {
+					if (tab.hidden) continue;
+					const r = tab.getBoundingClientRect();
+					if (r.right > png.left - 1 && r.left < png.right) out.push(tab.textContent + ' under the PNG button');
+					if (r.right > head.right + 0.5) out.push(tab.textContent + ' past the header');
+					if (tab.scrollWidth > tab.clientWidth) out.push(tab.textContent + ' cut');
+				}
+			}
+			return out; })()`)
+		for _, b := range bad {
+			t.Errorf("%s: %s", d, b)
+		}
+		for _, c := range []string{"profile", "echo", "rdmap", "response"} {
+			if eval[bool](t, ctx, `window.__pw.plots.hidden('`+c+`')`) {
+				continue
+			}
+			if clash := eval[[]string](t, ctx, jsLabelClash+`('`+c+`')`); len(clash) > 0 {
+				t.Errorf("%s: %s axis labels run together: %v", d, c, clash)
+			}
+		}
+		do(t, ctx, chromedp.Click(chromedp.CSS(`[data-show="echo"]`)))
+		if clash := eval[[]string](t, ctx, jsLabelClash+`('echo')`); len(clash) > 0 {
+			t.Errorf("%s: echo axis labels run together: %v", d, clash)
+		}
+		shot(t, ctx, d)
+	}
+}

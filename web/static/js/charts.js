@@ -31,6 +31,18 @@ const wrap = (text, width = 52) => {
 };
 const num = (v, d) => (Number.isFinite(v) ? v.toFixed(d) : '—');
 
+// spaceAxisLabels keeps the x-axis labels of a narrow chart apart ("90,000"
+// and "120,000" drawn against each other): ticks about every AxisLabelPx,
+// and any labels that would still touch are left out.
+const AxisLabelPx = 95;
+function spaceAxisLabels(option, width) {
+  for (const ax of [option.xAxis || []].flat()) {
+    if (!ax || ax.type !== 'value') continue;
+    ax.splitNumber = Math.max(2, Math.floor(width / AxisLabelPx));
+    ax.axisLabel = { ...(ax.axisLabel || {}), hideOverlap: true };
+  }
+}
+
 // carryCharts joins the charts of a skipped frame to the next one's:
 // chart name → the list of options to apply in turn (see Plots.apply).
 export function carryCharts(older, newer) {
@@ -113,6 +125,7 @@ export class Plots {
   setOption(name, entry) {
     const chart = this.charts[name];
     const t0 = performance.now();
+    if (entry.replace) spaceAxisLabels(entry.option, chart.getWidth());
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     // Paint now, inside this animation frame, instead of waiting for the
     // renderer's own loop to notice on the next one.
