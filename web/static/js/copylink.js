@@ -22,7 +22,7 @@ export function initCopyLink({ button, frame, stale, store, notice }) {
         what = 'it opens the scene in the editor, with your latest edits (the plots are still catching up).';
       } catch (e) {
         if (e instanceof HTTPError && e.status >= 400 && e.status < 500) {
-          what = `it opens the scene on the plots, without your latest edit, which is not valid (${refusal(e)}).`;
+          what = `it opens the scene on the plots, without your latest edit, which is not valid (${refusal(e, store.scenario)}).`;
         } else {
           what = 'it opens the scene on the plots, without your latest edits, which the server has not seen (no connection).';
         }

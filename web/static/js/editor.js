@@ -4,9 +4,10 @@
 
 import { $$, getPath, h, setPath } from './dom.js';
 import {
-  convertTarget, detectorFields, kindShort, kindTitle, levelName, levelShort, detectorKinds, fluctuations, fromDisplay, levelKey, levelUnit,
+  convertTarget, detectorFields, isPhaseCode, sciDisplay, kindShort, kindTitle, levelName, levelShort, detectorKinds, fluctuations, fromDisplay, levelKey, levelUnit,
   newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
 } from './schema.js';
+import { describeFields, fieldName } from './words.js';
 
 export class Editor {
   // roots: {targets, radar, pulse, receive, scene} elements.
@@ -65,7 +66,13 @@ export class Editor {
       return;
     }
     this.setLocalError(path, '');
-    this.store.update((s) => setPath(s, path, v), path);
+    this.store.update((s) => {
+      setPath(s, path, v);
+      // A phase code is given by phases or by a +/− string, not both: the
+      // one being typed replaces the other.
+      if (v !== undefined && path === 'waveform.phases_deg') delete s.waveform.binary;
+      if (v !== undefined && path === 'waveform.binary') delete s.waveform.phases_deg;
+    }, path);
   }
 
   onChange(ev) {
@@ -74,7 +81,14 @@ export class Editor {
     const action = el.dataset.action;
     const v = el.value;
     if (action === 'waveform-kind') {
-      this.store.update((s) => { s.waveform = newWaveform(v, s.waveform); });
+      this.store.update((s) => {
+        s.waveform = newWaveform(v, s.waveform);
+        // A mismatched filter needs a phase code: back to matched otherwise.
+        if (!isPhaseCode(v) && s.receiver && (s.receiver.filter === 'least_squares' || s.receiver.filter === 'minimax')) {
+          delete s.receiver.filter;
+          delete s.receiver.filter_length_factor;
+        }
+      });
     } else if (action && action.startsWith('window-kind:')) {
       const path = action.slice('window-kind:'.length);
       this.store.update((s) => setPath(s, path, { kind: v }));
@@ -218,8 +232,7 @@ export class Editor {
     const t = s.targets || [];
     const rx = s.receiver || {};
     return JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, rx.detector && rx.detector.kind,
-      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected,
-      s.waveform && s.waveform.binary !== undefined]);
+      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected]);
   }
 
   syncValues(root, s) {
@@ -231,7 +244,8 @@ export class Editor {
         if (want && el.value !== want) el.value = want;
         continue;
       }
-      const text = el.dataset.type === 'phases' ? (v || []).join(', ') : toDisplay(v, Number(el.dataset.scale || 1));
+      const text = el.dataset.type === 'phases' ? (v || []).join(', ')
+        : el.dataset.sci ? sciDisplay(v) : toDisplay(v, Number(el.dataset.scale || 1));
       if (el.value !== text) {
         el.value = text;
         if (this.localErrors.has(el.dataset.path)) this.setLocalError(el.dataset.path, '');
@@ -246,8 +260,13 @@ export class Editor {
     const hint = fd.hint || (fd.def !== undefined ? toDisplay(fd.def, fd.scale) : '');
     let input;
     if (fd.type === 'select') {
+      // An option is a value, or [value, label] when the value is an
+      // identifier ("least_squares") that people should not have to read.
       input = h('select', { dataset: { path, type: 'select', int: fd.int ? '1' : '', def: fd.def !== undefined ? String(fd.def) : undefined } },
-        fd.options.map((o) => h('option', { value: String(o), selected: String(v ?? fd.def) === String(o) }, String(o))));
+        fd.options.map((o) => {
+          const [val, label] = Array.isArray(o) ? o : [o, String(o)];
+          return h('option', { value: String(val), selected: String(v ?? fd.def) === String(val) }, label);
+        }));
     } else if (fd.type === 'notes') {
       input = h('textarea', { rows: 4, dataset: { path, type: 'notes' }, placeholder: fd.hint || '', value: v || '', spellcheck: 'true' });
     } else if (fd.type === 'phases') {
@@ -256,8 +275,9 @@ export class Editor {
       input = h('input', {
         type: 'text', inputmode: fd.type === 'text' ? 'text' : 'decimal', autocomplete: 'off', spellcheck: 'false',
         dataset: { path, type: fd.type, scale: String(fd.scale), optional: '1' },
-        placeholder: hint, value: toDisplay(v, fd.scale),
+        placeholder: fd.sci && fd.def !== undefined ? sciDisplay(fd.def) : hint, value: fd.sci ? sciDisplay(v) : toDisplay(v, fd.scale),
       });
+      if (fd.sci) input.dataset.sci = '1';
     }
     input.id = `f-${path.replace(/[^\w]/g, '_')}`;
     return h('div', { class: fd.wide ? 'field wide' : 'field' },
@@ -311,7 +331,13 @@ export class Editor {
     const rx = s.receiver || {};
     const det = rx.detector || { kind: 'ca_cfar' };
     const dkind = detectorKinds[det.kind] ? det.kind : 'ca_cfar';
-    const filterFd = { key: 'filter', label: 'Compression filter', type: 'select', options: ['matched', 'least_squares', 'minimax'], def: 'matched', scale: 1 };
+    // Mismatched filters apply to phase codes only: others are not offered.
+    const code = isPhaseCode(s.waveform && s.waveform.kind);
+    const filterFd = {
+      key: 'filter', label: 'Compression filter', type: 'select', def: 'matched', scale: 1,
+      options: [['matched', 'Matched'], ...(code || rx.filter === 'least_squares' ? [['least_squares', 'Mismatched, least-squares']] : []),
+        ...(code || rx.filter === 'minimax' ? [['minimax', 'Mismatched, minimax (lowest peak sidelobe)']] : [])],
+    };
     const filterBlock = [this.field(s, 'receiver', filterFd)];
     if (rx.filter === 'least_squares' || rx.filter === 'minimax') {
       filterBlock.push(this.field(s, 'receiver', { key: 'filter_length_factor', label: 'Filter length', unit: '× code', scale: 1, type: 'int', def: 3 }));
@@ -457,7 +483,7 @@ export class Editor {
 
   // The first field whose text is not a value, as a sentence, or null.
   localProblem() {
-    for (const [path, msg] of this.localErrors) return `${path}: ${msg}`;
+    for (const [path, msg] of this.localErrors) return `${fieldName(path, this.store.scenario)}: ${msg}`;
     return null;
   }
 
@@ -479,7 +505,7 @@ export class Editor {
         path = up === path ? '' : up;
       }
       if (!slots.length) {
-        orphans.push(fe.path ? `${fe.path}: ${fe.message}` : fe.message);
+        orphans.push(describeFields([fe], this.store.scenario));
         continue;
       }
       const text = path === fe.path ? inUnits(fe.message, slots[0]) : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
@@ -515,14 +541,19 @@ export class Editor {
 // 3e+11"); beside a field shown in another unit (GHz), restate the numbers
 // of such a message in that unit ("400 GHz is above the maximum 300 GHz").
 const rangeMessage = /^(-?[\d.]+(?:e[+-]?\d+)?) (is above the maximum|is below the minimum|must be above) (-?[\d.]+(?:e[+-]?\d+)?)(.*)$/;
+const physicalUnit = /^(m|m\/s|m\/s rms|dB|dBi|dBsm|dBsm\/m|dBZ|W|Hz|kHz|MHz|GHz|s|ms|µs|ns|°)$/;
 function inUnits(msg, slot) {
   const field = slot.parentElement;
   const input = field && field.querySelector('input[data-scale]');
   const unit = field && field.querySelector('.unit');
   const scale = input ? Number(input.dataset.scale) : 1;
   const m = rangeMessage.exec(msg);
-  if (!m || !unit || !(scale > 0) || scale === 1) return msg;
-  const show = (x) => `${Number((Number(x) / scale).toPrecision(6))} ${unit.textContent}`;
+  if (!m || !unit || !(scale > 0) || !physicalUnit.test(unit.textContent)) return msg;
+  const show = (x) => {
+    const v = Number(x) / scale;
+    if (unit.textContent === 'm' && Math.abs(v) >= 100000) return `${Number((v / 1000).toPrecision(6))} km`;
+    return `${Number(v.toPrecision(6))} ${unit.textContent}`;
+  };
   const rest = m[4].replace(/(above|at most) (-?[\d.]+(?:e[+-]?\d+)?)/g, (_, w, x) => `${w} ${show(x)}`);
   return `${show(m[1])} ${m[2]} ${show(m[3])}${rest}`;
 }

@@ -13,6 +13,7 @@ import { initKeys } from './keys.js';
 import { Staleness } from './stale.js';
 import { initCopyLink } from './copylink.js';
 import { Story } from './story.js';
+import { fieldName } from './words.js';
 
 const DefaultDemo = 'harbour-skiff';
 
@@ -155,12 +156,6 @@ function updateAddress(link) {
 function onError(msg) {
   rejected.add(msg.id);
   const v = session.versionOf(msg.id);
-  if (v !== null) {
-    const fe = (msg.fields || [])[0];
-    errorVersion = v;
-    errorText = fe ? (fe.path ? `${fe.path}: ${fe.message}` : fe.message) : msg.error;
-    refreshStale();
-  }
   lastErrorId = msg.id;
   const first = (msg.fields || [])[0];
   const m = first && first.path && first.path.match(/^targets\[(\d+)\]/);
@@ -169,6 +164,16 @@ function onError(msg) {
   if (!(msg.fields || []).length && msg.error) orphans.push(msg.error);
   $('#orphan-errors').textContent = orphans.join('\n');
   markTabs();
+  if (v !== null) {
+    // The banner on the plots names the field; the message is the one
+    // beside the field, in its units, when it has one.
+    const fe = (msg.fields || [])[0];
+    const slot = fe && fe.path && document.querySelector(`[data-err-for="${CSS.escape(fe.path)}"]`);
+    const said = slot && slot.textContent ? slot.textContent : fe && fe.message;
+    errorVersion = v;
+    errorText = fe ? (fe.path ? `${fieldName(fe.path, store.scenario)}: ${said}` : fe.message) : msg.error;
+    refreshStale();
+  }
   // Show the panel of the first error, unless the user is typing in the
   // editor: then the tabs only carry a mark.
   const panel = editor.errorPanel();
@@ -258,7 +263,7 @@ async function vetted(s, what) {
     return true;
   } catch (e) {
     if (e instanceof HTTPError && e.status >= 400 && e.status < 500) {
-      notice(`${what} holds a scenario that cannot be used: ${refusal(e)}. ${kept}`, 'error');
+      notice(`${what} holds a scenario that cannot be used: ${refusal(e, s)}. ${kept}`, 'error');
     } else {
       notice(`${what} could not be checked (${e.message}); is the Pulsewright server running? ${kept}`, 'error');
     }

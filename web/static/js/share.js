@@ -5,6 +5,8 @@
 // server gives each frame's link; the page only decodes links it is opened
 // with, using the browser's DecompressionStream.
 
+import { describeFields } from './words.js';
+
 const MaxDocumentBytes = 4 << 20;
 
 export class LinkError extends Error {}
@@ -140,8 +142,8 @@ export const isConflict = (e) => e instanceof HTTPError && (e.status === 412 || 
 
 // The reasons of a refused scenario, one phrase per field: "colour: unknown
 // field; version: 2 is not supported …".
-export function refusal(e) {
+export function refusal(e, scenario) {
   const fields = (e && e.body && Array.isArray(e.body.fields)) ? e.body.fields : [];
-  const why = fields.map((f) => (f.path ? `${f.path}: ${f.message}` : f.message)).join('; ');
+  const why = describeFields(fields, scenario);
   return why || (e && e.message) || String(e);
 }
