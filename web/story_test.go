@@ -18,7 +18,7 @@ func TestSceneStoryOnScreen(t *testing.T) {
 	waitFor(t, ctx, "the skiff masked", jsTarget+`('skiff').status === 'masked'`)
 	waitFor(t, ctx, "the story", `!!document.querySelector('.story .story-masked')`)
 	story := eval[string](t, ctx, `document.querySelector('.story').innerText`)
-	for _, want := range []string{"Harbour approach: skiff beside a tanker", "Try a Taylor window", "skiff", "hidden by tanker", "Taylor window (−35 dB"} {
+	for _, want := range []string{"Harbour approach: skiff beside a tanker", "Try a Taylor window", "skiff", "hidden by tanker", "A Taylor window ("} {
 		if !strings.Contains(story, want) {
 			t.Errorf("the story on screen lacks %q:\n%s", want, story)
 		}

@@ -53,10 +53,12 @@ export class Staleness {
       clearTimeout(this.timer);
       this.timer = setTimeout(() => this.render(), age >= PendingAfterMs ? 500 : PendingAfterMs - age + 5);
     }
+    if (this.text.textContent !== text) this.text.textContent = text;
+    if (kind === this.kind) return;
+    // Only on a change: the body's attribute restyles the whole page.
     this.kind = kind;
     this.banner.hidden = kind === 'none';
     this.banner.dataset.kind = kind;
-    this.text.textContent = text;
     this.plots.classList.toggle('stale', kind !== 'none');
     document.body.dataset.stale = kind;
   }

@@ -4,6 +4,7 @@
 
 const MaxHistory = 200;
 const CoalesceMs = 800; // repeated edits of one field within this merge into one undo step
+const NudgeCoalesceMs = 2000; // nudges of one level (wheel, arrow keys) within this form one step
 
 export class Store {
   constructor() {
@@ -38,7 +39,8 @@ export class Store {
   // a drag ("drag:…" keys) is one step however slowly it goes, until seal().
   update(mutate, key = null) {
     const now = performance.now();
-    const same = key && key === this.lastKey && (now - this.lastTime < CoalesceMs || key.startsWith('drag:'));
+    const span = key && key.startsWith('nudge:') ? NudgeCoalesceMs : CoalesceMs;
+    const same = key && key === this.lastKey && (now - this.lastTime < span || key.startsWith('drag:'));
     if (!same) this.push(key);
     this.lastKey = key;
     this.lastTime = now;
