@@ -7,7 +7,7 @@ import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
-const WheelGestureMs = 800; // wheel events closer than this, ms, form one gesture
+const WheelGestureMs = 3000; // ms: wheel events this close, with the pointer still, form one gesture
 
 const chartMs = {};
 window.__pwChartMs = chartMs;
