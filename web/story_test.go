@@ -121,3 +121,18 @@ func TestWordsAndUnits(t *testing.T) {
 		t.Errorf("the cards' numbers are not explained: %q", help)
 	}
 }
+
+// TestCautionShowsWhole: the RF-exposure and spectrum caution is on
+// screen whole at 1280×720 and 1600×1000.
+func TestCautionShowsWhole(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	for _, size := range [][2]int64{{1280, 720}, {1600, 1000}} {
+		do(t, ctx, chromedp.EmulateViewport(size[0], size[1]))
+		ok := eval[bool](t, ctx, `(() => { const s = [...document.querySelectorAll('.foot > span')].find((e) => e.textContent.includes('RF exposure'));
+			const r = s.getBoundingClientRect(); return s.scrollWidth <= s.clientWidth + 1 && r.right <= innerWidth && r.bottom <= innerHeight && r.width > 0; })()`)
+		if !ok {
+			t.Errorf("%dx%d: the RF caution is cut or off screen", size[0], size[1])
+		}
+	}
+}

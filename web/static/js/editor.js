@@ -334,7 +334,7 @@ export class Editor {
     // Mismatched filters apply to phase codes only: others are not offered.
     const code = isPhaseCode(s.waveform && s.waveform.kind);
     const filterFd = {
-      key: 'filter', label: 'Compression filter', type: 'select', def: 'matched', scale: 1,
+      key: 'filter', label: 'Compression filter', type: 'select', def: 'matched', scale: 1, wide: code,
       options: [['matched', 'Matched'], ...(code || rx.filter === 'least_squares' ? [['least_squares', 'Mismatched, least-squares']] : []),
         ...(code || rx.filter === 'minimax' ? [['minimax', 'Mismatched, minimax (lowest peak sidelobe)']] : [])],
     };
