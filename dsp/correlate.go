@@ -18,7 +18,7 @@ import (
 // otherwise overlap-save blocks of L−m+1 outputs each, L chosen by a cost
 // model of that FFT (measured per radix, with a penalty for blocks that
 // overflow a core's cache). A Correlator owns its scratch space; Apply
-// does not allocate when dst is given and the plan has one worker. It is
+// does not allocate when dst is given, whatever its worker count. It is
 // not safe for concurrent use.
 type Correlator struct {
 	n, m    int
