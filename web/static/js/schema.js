@@ -1,4 +1,4 @@
-// The scenario format (shared/spec/scenario-format.md, version 1) as the
+// The scenario format (docs/scenario-format.md, version 1) as the
 // editor needs it: kinds, the fields of each kind, display units and
 // defaults. Values are stored in SI as the format has them; `scale` is the
 // size of one display unit in SI (1e-6 shows seconds as µs).
@@ -52,6 +52,12 @@ export const waveformKinds = {
     label: 'Own phase code',
     fields: [f('phases_deg', 'Phases', '° per chip', 1, 'phases'), f('binary', 'Binary', '+/−', 1, 'text'), chip],
   },
+  // Imported I/Q samples (pulsewright import writes them in); the arrays
+  // themselves are kept as they are, only the rate and bandwidth are edited.
+  samples: {
+    label: 'Imported samples',
+    fields: [f('sample_rate_hz', 'Samples\u2019 rate', 'MHz', 1e6), f('bandwidth_hz', 'Bandwidth', 'MHz', 1e6)],
+  },
 };
 
 // A fresh waveform of a kind, keeping the pulse's time scale where it can.
@@ -71,12 +77,18 @@ export function newWaveform(kind, old) {
     case 'zadoff_chu': return { kind, length: 63, root: 1, chip_s: chipFor(63) };
     case 'costas': return { kind, length: 10, chip_s: chipFor(10) };
     case 'phase_code': return { kind, binary: '+++--+-', chip_s: chipFor(7) };
+    case 'samples': {
+      // A plain pulse of 16 samples at 2B until a recording is imported.
+      const rate = roundSig(2 * B, 3);
+      return { kind, sample_rate_hz: rate, bandwidth_hz: roundSig(B, 3), i: Array(16).fill(1), q: Array(16).fill(0) };
+    }
   }
   return { kind };
 }
 
 export function pulseWidth(w) {
   if (w.pulse_width_s) return w.pulse_width_s;
+  if (w.kind === 'samples') return (w.i || w.amplitude || []).length / (w.sample_rate_hz || 1);
   return chips(w) * (w.chip_s || 0);
 }
 
@@ -91,7 +103,7 @@ export function chips(w) {
 export function bandwidth(w) {
   switch (w.kind) {
     case 'rect': return 1 / w.pulse_width_s;
-    case 'lfm': case 'nlfm': return w.bandwidth_hz;
+    case 'lfm': case 'nlfm': case 'samples': return w.bandwidth_hz;
     case 'costas': return (w.length || 1) / w.chip_s;
   }
   return w.chip_s ? 1 / w.chip_s : 0;
@@ -115,20 +127,37 @@ export const detectorKinds = {
   fixed: { label: 'Fixed threshold', fields: ['pfa'] },
 };
 export const detectorFields = {
-  pfa: f('pfa', 'P_fa', 'per cell', 1, 'num', { def: 1e-6 }),
+  pfa: f('pfa', 'Pfa', 'per cell', 1, 'num', { def: 1e-6, sci: true }),
   guard_cells: f('guard_cells', 'Guard cells', 'each side', 1, 'int', { def: 2 }),
   training_cells: f('training_cells', 'Training cells', 'both sides', 1, 'int', { def: 16 }),
   rank: f('rank', 'Rank', '1-based', 1, 'int', { hint: '¾ of training' }),
 };
 
 export const targetKinds = ['point', 'extended', 'volume'];
-export const fluctuations = ['none', 'swerling1', 'swerling2', 'swerling3', 'swerling4'];
+export const fluctuations = [['none', 'none (steady)'], ['swerling1', 'Swerling 1'], ['swerling2', 'Swerling 2'], ['swerling3', 'Swerling 3'], ['swerling4', 'Swerling 4']];
+
+// Waveform kinds that are phase codes (mismatched filters apply to them).
+const phaseCodes = new Set(['barker', 'mps', 'mls', 'frank', 'p1', 'p2', 'p3', 'p4', 'zadoff_chu', 'phase_code']);
+export const isPhaseCode = (kind) => phaseCodes.has(kind);
+
+// A small or large number as people write it in scientific notation
+// ("1e-6", "2.5e-4"); ordinary numbers as they are.
+export function sciDisplay(v) {
+  if (typeof v !== 'number' || !Number.isFinite(v)) return toDisplay(v, 1);
+  const a = Math.abs(v);
+  if (a === 0 || (a >= 1e-3 && a < 1e6)) return toDisplay(v, 1);
+  return v.toExponential().replace(/\.?0+e/, 'e').replace('e+', 'e');
+}
 
 // The level field of a target kind and its unit.
 export function levelKey(kind) {
   return kind === 'extended' ? 'rcs_dbsm_per_m' : kind === 'volume' ? 'reflectivity_dbz' : 'rcs_dbsm';
 }
 export const levelUnit = { point: 'dBsm', extended: 'dBsm/m', volume: 'dBZ' };
+export const levelName = { point: 'RCS', extended: 'RCS per metre', volume: 'reflectivity' };
+export const levelShort = { point: 'RCS', extended: 'RCS/m', volume: 'Refl.' };
+export const kindShort = { point: 'point', extended: 'ext.', volume: 'vol.' };
+export const kindTitle = { point: 'point target', extended: 'extended target (spread in range)', volume: 'volume target (weather)' };
 
 // The near range of a target (its range for a point target).
 export function targetRange(t) {
