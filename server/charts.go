@@ -105,12 +105,25 @@ type seriesJSON struct {
 	// Progressive 0 draws a series in one go: the server sends screen
 	// resolution, and progressive drawing would spread it over frames.
 	Progressive *int `json:"progressive,omitempty"`
+	// Fields go-echarts lacks or nests (labels.go); at this depth they
+	// win over SingleSeries' embedded ones of the same name.
+	EndLabel    map[string]any `json:"endLabel,omitempty"`
+	LabelLayout map[string]any `json:"labelLayout,omitempty"`
+	MarkArea    map[string]any `json:"markArea,omitempty"`
+	Z           int            `json:"z,omitempty"`
+}
+
+// seriesExtra holds a series' fields that seriesJSON adds.
+type seriesExtra struct {
+	EndLabel, LabelLayout, MarkArea map[string]any
+	Z                               int
 }
 
 // builder assembles one line chart with go-echarts.
 type builder struct {
-	line *charts.Line
-	data []seriesData
+	line  *charts.Line
+	data  []seriesData
+	extra map[string]seriesExtra // by series id
 }
 
 func newBuilder(xName, yName string, yMin any) *builder {
@@ -124,7 +137,7 @@ func newBuilder(xName, yName string, yMin any) *builder {
 			AxisLabel: &opts.AxisLabel{ShowMinLabel: opts.Bool(false), ShowMaxLabel: opts.Bool(false)}}),
 		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: yName, NameLocation: "middle", NameGap: gridLeft - 16, Min: yMin}),
 	)
-	return &builder{line: c}
+	return &builder{line: c, extra: map[string]seriesExtra{}}
 }
 
 // gridLeft is the room left of a plot for the y labels and the y name
@@ -179,7 +192,8 @@ func (b *builder) spliceSeries(name, key string, opt map[string]any) chartOut {
 	series := make([]seriesJSON, len(ms))
 	for i, s := range ms {
 		s.Data = nil
-		series[i] = seriesJSON{SingleSeries: s, Data: placeholder(i)}
+		x := b.extra[s.Id]
+		series[i] = seriesJSON{SingleSeries: s, Data: placeholder(i), EndLabel: x.EndLabel, LabelLayout: x.LabelLayout, MarkArea: x.MarkArea, Z: x.Z}
 	}
 	opt["series"] = series
 	return b.splice(name, key, opt)
@@ -282,10 +296,13 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 		b.add(SeriesReference, "pinned", colourReference, dbSeries(rg, rs.ProfileDB, plan(rg, vw.rangeM, vw.width)), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
 		key += "+ref"
 	}
+	key += annotate(b, res, g)
 	b.line.AddSeries("targets", nil,
 		charts.WithSeriesId(SeriesMarkers),
 		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.Type = "scatter"; s.SymbolSize = 11 }),
+		charts.WithLabelOpts(markerLabel),
 	)
+	b.extra[SeriesMarkers] = seriesExtra{LabelLayout: map[string]any{"hideOverlap": true}, Z: 5}
 	marks, err := json.Marshal(markers(res, g.x0, last))
 	if err != nil {
 		panic("server: markers not encodable: " + err.Error()) // every number in them is clamped
@@ -298,6 +315,7 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 // window, with the true range beside it) and its expected peak SNR.
 type marker struct {
 	Value     [2]float64     `json:"value"`
+	Name      string         `json:"name"` // the label on the plot
 	ID        string         `json:"id"`
 	Status    string         `json:"status"`
 	Reason    string         `json:"reason"`
@@ -316,6 +334,7 @@ func markers(res *scenarios.Result, lo, hi float64) []marker {
 		x := clampAmp(t.RangeM)
 		out = append(out, marker{
 			Value:     [2]float64{math.Min(math.Max(x, lo), hi), clampDB(t.SNRDB)},
+			Name:      t.ID,
 			ID:        t.ID,
 			Status:    t.Status,
 			Reason:    t.Reason,
@@ -342,24 +361,30 @@ func responseChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartO
 	yMin := responseYMin(res.Report.Waveform.PSLRDB)
 	b := newBuilder("range from peak (m)", "dB re peak", yMin)
 	b.line.YAxisList[0].Max = 0.0
-	b.add(SeriesResponse, "response", colourProfile, responseSeries(&res.Series.Response, vw.width), opts.LineStyle{Width: 1.2})
-	key := fmt.Sprintf("response/1/%g", yMin)
+	near := responseNear(res)
+	b.add(SeriesResponse, "response", colourProfile, responseSeries(&res.Series.Response, vw.width, near), opts.LineStyle{Width: 1.2})
+	key := fmt.Sprintf("response/2/%g", yMin)
 	if ref != nil {
-		b.add(SeriesReference, "pinned", colourReference, responseSeries(&ref.Series.Response, vw.width), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
+		b.add(SeriesReference, "pinned", colourReference, responseSeries(&ref.Series.Response, vw.width, near), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
 		key += "+ref"
 	}
-	out := b.build(ChartResponse, key)
+	out := b.buildZoomed(ChartResponse, key, near)
 	out.static = true
 	return out
 }
 
-func responseSeries(r *scenarios.Response, width int) []byte {
+func responseSeries(r *scenarios.Response, width int, near *[2]float64) []byte {
 	n := min(len(r.RangeM), len(r.DB))
 	if n == 0 {
 		return []byte("[]")
 	}
 	g := grid{n: n, xs: r.RangeM[:n]}
-	return dbSeries(g, r.DB, plan(g, nil, width))
+	if n > 1 && r.RangeM[n-1] > r.RangeM[0] {
+		// A uniform axis (as scenarios makes it): every sample near the
+		// main lobe, an outline beyond.
+		g = grid{x0: r.RangeM[0], dx: (r.RangeM[n-1] - r.RangeM[0]) / float64(n-1), n: n}
+	}
+	return dbSeries(g, r.DB, plan(g, near, width))
 }
 
 // roundAll returns v·scale rounded to 1/per, as axis labels.

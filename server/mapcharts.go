@@ -233,6 +233,7 @@ func twoCuts(name, key string, plots [2]cutPlot) chartOut {
 	b.line.Validate()
 	opt := b.line.JSON()
 	opt["title"] = titles
+	opt["legend"] = cutsLegends(plots)
 	opt["tooltip"] = tooltipJSON("axis")
 	return b.spliceSeries(name, key, opt)
 }
