@@ -36,7 +36,8 @@ var markerLabel = opts.Label{Show: opts.Bool(true), Position: "top", Formatter: 
 // key they fix (the blind range is a mark area, sent with the full option).
 func annotate(b *builder, res *scenarios.Result, g grid) string {
 	b.extra[SeriesThreshold] = seriesExtra{EndLabel: map[string]any{
-		"show": true, "formatter": "threshold", "color": colourThreshold, "fontSize": 11, "distance": 4}}
+		"show": true, "formatter": "threshold", "color": colourThreshold, "fontSize": 11,
+		"offset": []int{-62, -9}}} // inside the plot, above the line's end
 	key := ""
 	last := g.x(max(g.n-1, 0))
 	if blind := res.Report.Waveform.BlindRangeM; blind > g.x0 && g.n > 0 {
@@ -59,7 +60,8 @@ func annotate(b *builder, res *scenarios.Result, g grid) string {
 		charts.WithSeriesId(SeriesMasking),
 		charts.WithItemStyleOpts(opts.ItemStyle{Color: colourMasking}),
 		charts.WithLineStyleOpts(opts.LineStyle{Color: colourMasking, Width: 1.2, Type: "dashed"}),
-		charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(false)}),
+		// A line's labels hang on its symbols: shown, but a pixel wide.
+		charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 1}),
 	)
 	b.data = append(b.data, seriesData{id: SeriesMasking, data: maskingData(res, g)})
 	b.extra[SeriesMasking] = seriesExtra{Z: 4}
@@ -101,7 +103,7 @@ func maskingData(res *scenarios.Result, g grid) []byte {
 		items = append(items,
 			maskingItem{Value: [2]any{round2(m.RangeM), math.Round(clampDB(m.SNRDB)*100) / 100}},
 			maskingItem{Value: [2]any{round2(t.RangeM), math.Round(clampDB(s.CleanDB[k])*100) / 100},
-				Label: map[string]any{"show": true, "position": "right", "color": colourMasking, "fontSize": 11,
+				Label: map[string]any{"show": true, "position": "right", "distance": 10, "color": colourMasking, "fontSize": 11, "fontWeight": "bold",
 					"formatter": plainLabel(m.ID) + "'s response masks " + plainLabel(t.ID)}})
 	}
 	if items == nil {
@@ -136,8 +138,8 @@ func mustJSON(v any) []byte {
 var mapLabel = opts.Label{Show: opts.Bool(true), Position: "right", Formatter: "{b}", FontSize: 11, Color: "#10202c",
 	BackgroundColor: "rgba(255,255,255,0.82)", BorderRadius: 3, Padding: "1"}
 
-// cutsLegends gives each plot of a twoCuts chart its own legend, at the
-// top right of the plot, on the row of its heading.
+// cutsLegends gives each plot of a twoCuts chart its own legend, under
+// its heading, at the plot's left.
 func cutsLegends(plots [2]cutPlot) []map[string]any {
 	out := make([]map[string]any, 0, 2)
 	for i, p := range plots {
@@ -145,11 +147,11 @@ func cutsLegends(plots [2]cutPlot) []map[string]any {
 		for _, l := range p.lines {
 			names = append(names, l.name)
 		}
-		right := any(12)
-		if i == 0 {
-			right = "53%"
+		left := any(gridLeft)
+		if i == 1 {
+			left = cutsRightLeft
 		}
-		out = append(out, map[string]any{"show": true, "data": names, "right": right, "top": 2,
+		out = append(out, map[string]any{"show": true, "data": names, "left": left, "top": 19,
 			"itemWidth": 16, "itemHeight": 8, "textStyle": map[string]any{"fontSize": 11}})
 	}
 	return out

@@ -203,8 +203,8 @@ func twoCuts(name, key string, plots [2]cutPlot) chartOut {
 		charts.WithAnimation(false),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(false)}),
 		charts.WithGridOpts(
-			opts.Grid{Left: strconv.Itoa(gridLeft), Right: "53%", Top: "26", Bottom: "40"},
-			opts.Grid{Left: cutsRightLeft, Right: "12", Top: "26", Bottom: "40"}),
+			opts.Grid{Left: strconv.Itoa(gridLeft), Right: "53%", Top: "40", Bottom: "40"},
+			opts.Grid{Left: cutsRightLeft, Right: "12", Top: "40", Bottom: "40"}),
 	)
 	c.XAxisList = nil
 	c.YAxisList = nil

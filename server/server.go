@@ -66,6 +66,7 @@ type Server struct {
 	token  string
 	up     websocket.Upgrader
 	ambs   chartCache    // ambiguity charts by waveform
+	waves  chartCache    // the designer's charts by waveform and receiver
 	slots  chan struct{} // one per computation allowed to run at once
 
 	ctx    context.Context // cancelled by Close: ends the sessions

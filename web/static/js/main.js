@@ -10,6 +10,8 @@ import { api, decodeLink, linkPart } from './share.js';
 import { Store } from './store.js';
 import { initLibrary } from './library.js';
 import { initKeys } from './keys.js';
+import { initFocus } from './focus.js';
+import { printablePNG } from './export.js';
 
 const DefaultDemo = 'harbour-skiff';
 
@@ -35,6 +37,7 @@ const session = new Session({ onFrame, onError, onStatus });
 const plots = new Plots({
   profile: $('#chart-profile'), echo: $('#chart-echo'), response: $('#chart-response'), ambiguity: $('#chart-ambiguity'),
   ambcuts: $('#chart-ambcuts'), rdmap: $('#chart-rdmap'), rdcuts: $('#chart-rdcuts'),
+  pulse: $('#chart-pulse'), spectrum: $('#chart-spectrum'), filter: $('#chart-filter'), doppler: $('#chart-doppler'),
 }, {
   onView: (range, width, mapWidth) => session.sendView(range, width, mapWidth),
   onDrag: (id, r) => editor.moveTo(id, r),
@@ -51,7 +54,8 @@ const plots = new Plots({
   },
   hoverCard,
 });
-window.__pw = { store, editor, plots, session, frame: () => lastFrame };
+const focusUI = initFocus({ plots, frame: () => lastFrame });
+window.__pw = { store, editor, plots, session, frame: () => lastFrame, focus: focusUI.focus };
 
 store.onChange((s, cause) => {
   editor.render(s);
@@ -87,6 +91,7 @@ function applyFrame() {
   lastFrame = f;
   const t0 = performance.now();
   plots.apply(f);
+  focusUI.refresh();
   const t1 = performance.now();
   editor.setReport(f.report);
   renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms);
@@ -316,8 +321,15 @@ $('#btn-export').addEventListener('click', () => {
   download(`${fileStem()}.json`, JSON.stringify(store.scenario, null, 2) + '\n', 'application/json');
 });
 $('#btn-csv').addEventListener('click', () => download(`${fileStem()}-profile.csv`, plots.profileCSV(), 'text/csv'));
+// PNG: a printable picture of the shown plot, titled, without the slider.
+const plotTitle = (name) => ($(`.plot-head [data-show="${name}"]`) || $('.plot-label')).textContent.trim();
 for (const b of $$('[data-png]')) {
-  b.addEventListener('click', () => download(`${fileStem()}-${b.dataset.png}.png`, plots.png(b.dataset.png)));
+  b.addEventListener('click', async () => {
+    const name = b.dataset.png;
+    const title = (store.scenario && store.scenario.name) || 'Untitled scene';
+    const when = new Date().toISOString().slice(0, 16).replace('T', ' ');
+    download(`${fileStem()}-${name}.png`, await printablePNG(plots.charts[name], { title, subtitle: `${plotTitle(name)} · Pulsewright · ${when} UTC` }));
+  });
 }
 
 initLibrary({ store, notice, onOpen: () => { pushNextLink = true; } });
