@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"slices"
+	"strings"
 	"strconv"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
@@ -83,17 +84,17 @@ func waveCharts(w *scenarios.WavePlots, version int) []chartOut {
 		freqTitle = "instantaneous frequency: none (a phase code jumps)"
 	}
 	pulse := twoCuts(ChartPulse, key(ChartPulse), [2]cutPlot{
-		{title: "phase", xName: "time from leading edge (µs)", yName: phaseY,
+		{title: "phase", xName: "time (µs)", yName: phaseY,
 			lines: []cutLine{{SeriesPhase, phaseName, colourProfile, phase, 1.2}}},
-		{title: freqTitle, xName: "time from leading edge (µs)", yName: "MHz",
+		{title: freqTitle, xName: "time (µs)", yName: "MHz",
 			lines: []cutLine{{SeriesFrequency, "frequency", colourI, xy(w.FreqTimeS, w.FreqHz, 1e6, 1e-6, 4, 4), 1.2}}},
 	})
 	// The filter's taps: amplitude and phase against time.
 	tapUnit := "amplitude re largest tap"
 	filter := twoCuts(ChartFilter, key(ChartFilter), [2]cutPlot{
-		{title: "receive filter (" + w.Filter + "): amplitude", xName: "time re echo's leading edge (µs)", yName: tapUnit,
-			lines: []cutLine{{SeriesTapAmp, "amplitude", colourProfile, xy(w.TapTimeS, w.TapAmp, 1e6, 1, 4, 4), 1.2}}},
-		{title: "phase", xName: "time re echo's leading edge (µs)", yName: "°",
+		{title: "tap amplitude", xName: "time re echo (µs)", yName: tapUnit,
+			lines: []cutLine{{SeriesTapAmp, strings.ReplaceAll(w.Filter, "_", " ") + " filter", colourProfile, xy(w.TapTimeS, w.TapAmp, 1e6, 1, 4, 4), 1.2}}},
+		{title: "tap phase", xName: "time re echo (µs)", yName: "°",
 			lines: []cutLine{{SeriesTapPhase, "phase", colourQ, xy(w.TapTimeS, degrees(w.TapPhaseRad), 1e6, 1, 4, 1), 1}}},
 	})
 	// The Doppler tolerance: peak loss and range shift against Doppler.
