@@ -6,8 +6,8 @@ import (
 	"fmt"
 	"math"
 	"slices"
-	"strings"
 	"strconv"
+	"strings"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
