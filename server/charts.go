@@ -253,7 +253,9 @@ func ampSeries(g grid, y func(k int) float64, sp span) []byte {
 func echoChart(res *scenarios.Result, vw view) chartOut {
 	e := res.Series.Echo
 	g := windowGrid(&res.Series, len(e))
-	sp := plan(g, vw.rangeM, vw.width)
+	// The echo shares the lower left pane with the range–Doppler map, so
+	// it is as wide as map_px (about half the profile's width otherwise).
+	sp := plan(g, vw.rangeM, plotColumns(echoWidth(vw)))
 	b := newBuilder("range (m)", "amplitude (noise rms = 1)", nil)
 	thin := opts.LineStyle{Width: 1}
 	b.add(SeriesI, "I", colourI, ampSeries(g, func(k int) float64 { return real(e[k]) }, sp), thin)
@@ -273,7 +275,7 @@ const profileYMin = -20.0
 func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOut {
 	s := &res.Series
 	g := windowGrid(s, len(s.ProfileDB))
-	sp := plan(g, vw.rangeM, vw.width)
+	sp := plan(g, vw.rangeM, plotColumns(vw.width))
 	b := newBuilder("range (m)", "dB re output noise", profileYMin)
 	profileName, cleanName := "profile", "noise-free"
 	if s.RangeDoppler != nil {
@@ -293,7 +295,7 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 	if ref != nil {
 		rs := &ref.Series
 		rg := windowGrid(rs, len(rs.ProfileDB))
-		b.add(SeriesReference, "pinned", colourReference, dbSeries(rg, rs.ProfileDB, plan(rg, vw.rangeM, vw.width)), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
+		b.add(SeriesReference, "pinned", colourReference, dbSeries(rg, rs.ProfileDB, plan(rg, vw.rangeM, plotColumns(vw.width))), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
 		key += "+ref"
 	}
 	key += annotate(b, res, g)

@@ -194,3 +194,19 @@ func (b *builder) buildZoomed(name, key string, near *[2]float64) chartOut {
 	opt["tooltip"] = tooltipJSON("axis")
 	return b.spliceSeries(name, key, opt)
 }
+
+// echoWidth is the raw echo plot's width, px: the lower left pane's
+// (map_px), or half the profile's when the page did not say.
+func echoWidth(vw view) int {
+	if vw.mapWidth > 0 {
+		return vw.mapWidth
+	}
+	return max(vw.width/2, 1)
+}
+
+// plotColumns is the number of min/max columns for a line plot width px
+// wide: one per two pixels of its plot area (a min and a max each, so
+// about one point per pixel: the point count the plot can show).
+func plotColumns(width int) int {
+	return max((width-gridLeft-18)/2, 16)
+}

@@ -77,8 +77,42 @@ function onFrame(msg) {
   if (pendingFrame) msg.charts = carryCharts(pendingFrame.charts || {}, msg.charts || {});
   pendingFrame = msg;
   if (applyScheduled) return;
+  // The first frame since the last paint is drawn at once (its pixels go
+  // out with the next vsync); frames that follow within the same frame
+  // time wait for the next animation frame, and only the newest is drawn.
+  if (performance.now() - lastApplyAt > 16) {
+    applyFrame();
+    return;
+  }
   applyScheduled = true;
   requestAnimationFrame(applyFrame);
+}
+let lastApplyAt = -Infinity;
+
+// The editor's status marks and the figures panel follow the frames, but
+// while frames stream in (a drag) at most every PanelMs: rebuilding the
+// panel costs as much as a chart, and the plots are what the hand follows.
+// The newest frame's panels are always drawn.
+const PanelMs = 100;
+let panelsAt = -Infinity;
+let panelTimer = 0;
+let panelFrame = null;
+function panels(f) {
+  panelFrame = f;
+  if (panelTimer) return;
+  const wait = panelsAt + PanelMs - performance.now();
+  if (wait <= 0) {
+    drawPanels();
+    return;
+  }
+  panelTimer = setTimeout(drawPanels, wait);
+}
+function drawPanels() {
+  panelTimer = 0;
+  const f = panelFrame;
+  panelsAt = performance.now();
+  editor.setReport(f.report);
+  renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms);
 }
 
 // Apply the newest frame in one animation frame; older unapplied frames
@@ -90,11 +124,11 @@ function applyFrame() {
   if (!f) return;
   lastFrame = f;
   const t0 = performance.now();
+  lastApplyAt = t0;
   plots.apply(f);
   focusUI.refresh();
   const t1 = performance.now();
-  editor.setReport(f.report);
-  renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms);
+  panels(f);
   if (session.sent.has(f.id) && f.id > lastErrorId) {
     editor.clearErrors();
     $('#orphan-errors').textContent = '';
