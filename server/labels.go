@@ -42,7 +42,7 @@ func annotate(b *builder, res *scenarios.Result, g grid) string {
 	last := g.x(max(g.n-1, 0))
 	if blind := res.Report.Waveform.BlindRangeM; blind > g.x0 && g.n > 0 {
 		end := math.Min(blind, last)
-		b.line.AddSeries("blind range c·τ/2", nil,
+		b.line.AddSeries("blind range", nil,
 			charts.WithSeriesId(SeriesBlind),
 			charts.WithItemStyleOpts(opts.ItemStyle{Color: colourBlind}),
 			charts.WithLineStyleOpts(opts.LineStyle{Color: colourBlind, Width: 0}),
@@ -56,7 +56,7 @@ func annotate(b *builder, res *scenarios.Result, g grid) string {
 		}}
 		key += "+blind" + strconv.FormatFloat(round2(end), 'f', -1, 64)
 	}
-	b.line.AddSeries("masking response", nil,
+	b.line.AddSeries("masking", nil,
 		charts.WithSeriesId(SeriesMasking),
 		charts.WithItemStyleOpts(opts.ItemStyle{Color: colourMasking}),
 		charts.WithLineStyleOpts(opts.LineStyle{Color: colourMasking, Width: 1.2, Type: "dashed"}),
@@ -136,7 +136,7 @@ func mustJSON(v any) []byte {
 // mapLabel names a marker on a heat map: dark text on a pale, rounded
 // plate, readable over the darkest cells.
 var mapLabel = opts.Label{Show: opts.Bool(true), Position: "right", Formatter: "{b}", FontSize: 11, Color: "#10202c",
-	BackgroundColor: "rgba(255,255,255,0.82)", BorderRadius: 3, Padding: "1"}
+	BackgroundColor: "rgba(255,255,255,0.85)", BorderRadius: 3}
 
 // cutsLegends gives each plot of a twoCuts chart its own legend, under
 // its heading, at the plot's left.

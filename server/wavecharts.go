@@ -21,12 +21,11 @@ import (
 // sample rate only, so they are static charts cached like the ambiguity
 // surface.
 
-// Chart names and series ids of the designer's charts.
+// Chart names and series ids of the designer's charts: two charts of two
+// plots each, every plot with a left and a right value axis.
 const (
-	ChartPulse    = "pulse"
-	ChartSpectrum = "spectrum"
-	ChartFilter   = "filter"
-	ChartDoppler  = "doppler"
+	ChartPulse  = "pulse"  // the pulse against time | its spectrum
+	ChartFilter = "filter" // the filter's taps | the Doppler tolerance
 
 	SeriesPhase     = "phase"
 	SeriesFrequency = "frequency"
@@ -38,9 +37,8 @@ const (
 )
 
 // wavePointsPx is the plot width the designer's series are decimated for
-// (min/max per column, two points per pixel): a plot is at most half the
-// page.
-const wavePointsPx = 800
+// (min/max per column): a plot is at most a quarter of the page.
+const wavePointsPx = 500
 
 // xy encodes the pairs (xs[i]·xScale, ys[i]·yScale) as [[x,y],…] with the
 // given decimals, min/max-decimated to wavePointsPx columns.
@@ -71,73 +69,152 @@ func degrees(v []float64) []float64 {
 	return out
 }
 
-// waveCharts makes the four designer's charts; version keeps keys unique.
-func waveCharts(w *scenarios.WavePlots, version int) []chartOut {
-	key := func(name string) string { return fmt.Sprintf("%s/%d", name, version) }
-	// The pulse: phase, and instantaneous frequency, against time.
-	phaseName, phaseY, phase := "phase (unwrapped)", "phase (rad)", xy(w.TimeS, w.PhaseRad, 1e6, 1, 4, 3)
-	if w.PhaseWrapped {
-		phaseName, phaseY, phase = "phase", "phase (°)", xy(w.TimeS, degrees(w.PhaseRad), 1e6, 1, 4, 1)
+// dualPlot is one plot of a two-plot designer's chart: a heading, an x
+// axis, a left and (when rightName is set) a right value axis.
+type dualPlot struct {
+	title, xName, leftName, rightName string
+	xMin, xMax, leftMin, leftMax      any // nil: from the data
+	lines                             []dualLine
+}
+
+type dualLine struct {
+	id, name, colour string
+	data             []byte
+	right            bool // on the right axis
+	width            float32
+	dashed           bool
+	markArea         map[string]any
+}
+
+// Layout of two plots side by side, each with axes on both sides.
+var dualGrids = [2]opts.Grid{
+	{Left: "44", Right: "57%", Top: "42", Bottom: "40"},
+	{Left: "57%", Right: "44", Top: "42", Bottom: "40"},
+}
+
+// dualChart builds a chart of two plots side by side.
+func dualChart(name, key string, plots [2]dualPlot) chartOut {
+	c := charts.NewLine()
+	ends := &opts.AxisLabel{ShowMinLabel: opts.Bool(false), ShowMaxLabel: opts.Bool(false), FontSize: 10}
+	c.SetGlobalOptions(
+		charts.WithAnimation(false),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(false)}),
+		charts.WithGridOpts(dualGrids[0], dualGrids[1]),
+	)
+	c.XAxisList, c.YAxisList = nil, nil
+	var titles []opts.Title
+	var legends []map[string]any
+	yIndex := make([][2]int, 2) // plot → its left and right y axis indices
+	for i, p := range plots {
+		xMin, xMax := p.xMin, p.xMax
+		if xMin == nil {
+			xMin, xMax = "dataMin", "dataMax"
+		}
+		c.ExtendXAxis(opts.XAxis{Type: "value", GridIndex: i, Name: p.xName, NameLocation: "middle", NameGap: 24,
+			Min: xMin, Max: xMax, SplitNumber: 3, AxisLabel: ends})
+		yIndex[i][0] = len(c.YAxisList)
+		c.ExtendYAxis(opts.YAxis{Type: "value", GridIndex: i, Position: "left", Name: p.leftName, NameLocation: "end", NameGap: 6,
+			Min: p.leftMin, Max: p.leftMax, SplitNumber: 4, AxisLabel: &opts.AxisLabel{FontSize: 10}})
+		yIndex[i][1] = yIndex[i][0]
+		if p.rightName != "" {
+			yIndex[i][1] = len(c.YAxisList)
+			c.ExtendYAxis(opts.YAxis{Type: "value", GridIndex: i, Position: "right", Name: p.rightName, NameLocation: "end", NameGap: 6,
+				SplitNumber: 4, SplitLine: &opts.SplitLine{Show: opts.Bool(false)}, AxisLabel: &opts.AxisLabel{FontSize: 10}})
+		}
+		left := dualGrids[i].Left
+		titles = append(titles, opts.Title{Title: p.title, Left: left, Top: "2", TitleStyle: &opts.TextStyle{FontSize: 12, FontWeight: "normal"}})
+		names := []string{}
+		for _, l := range p.lines {
+			names = append(names, l.name)
+		}
+		if len(names) < 2 {
+			continue // the heading names a lone line
+		}
+		legends = append(legends, map[string]any{"show": true, "data": names, "left": left, "top": 18,
+			"itemWidth": 14, "itemHeight": 8, "itemGap": 6, "textStyle": map[string]any{"fontSize": 10}})
 	}
-	freqTitle := "instantaneous frequency"
-	if len(w.FreqHz) == 0 {
-		freqTitle = "instantaneous frequency: none (a phase code jumps)"
+	b := &builder{line: c, extra: map[string]seriesExtra{}}
+	for i, p := range plots {
+		for _, l := range p.lines {
+			y := yIndex[i][0]
+			if l.right {
+				y = yIndex[i][1]
+			}
+			style := opts.LineStyle{Width: l.width}
+			if l.dashed {
+				style.Type = "dashed"
+			}
+			b.add(l.id, l.name, l.colour, l.data, style,
+				charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.XAxisIndex, s.YAxisIndex = i, y }))
+			if l.markArea != nil {
+				b.extra[l.id] = seriesExtra{MarkArea: l.markArea}
+			}
+		}
 	}
-	pulse := twoCuts(ChartPulse, key(ChartPulse), [2]cutPlot{
-		{title: "phase", xName: "time (µs)", yName: phaseY,
-			lines: []cutLine{{SeriesPhase, phaseName, colourProfile, phase, 1.2}}},
-		{title: freqTitle, xName: "time (µs)", yName: "MHz",
-			lines: []cutLine{{SeriesFrequency, "frequency", colourI, xy(w.FreqTimeS, w.FreqHz, 1e6, 1e-6, 4, 4), 1.2}}},
-	})
-	// The filter's taps: amplitude and phase against time.
-	tapUnit := "amplitude re largest tap"
-	filter := twoCuts(ChartFilter, key(ChartFilter), [2]cutPlot{
-		{title: "tap amplitude", xName: "time re echo (µs)", yName: tapUnit,
-			lines: []cutLine{{SeriesTapAmp, strings.ReplaceAll(w.Filter, "_", " ") + " filter", colourProfile, xy(w.TapTimeS, w.TapAmp, 1e6, 1, 4, 4), 1.2}}},
-		{title: "tap phase", xName: "time re echo (µs)", yName: "°",
-			lines: []cutLine{{SeriesTapPhase, "phase", colourQ, xy(w.TapTimeS, degrees(w.TapPhaseRad), 1e6, 1, 4, 1), 1}}},
-	})
-	// The Doppler tolerance: peak loss and range shift against Doppler.
-	doppler := twoCuts(ChartDoppler, key(ChartDoppler), [2]cutPlot{
-		{title: "peak loss", xName: "Doppler shift (kHz)", yName: "dB",
-			lines: []cutLine{{SeriesLoss, "loss", colourThreshold, xy(w.DopplerHz, w.DopplerLossDB, 1e-3, 1, 3, 3), 1.4}}},
-		{title: "range–Doppler coupling", xName: "Doppler shift (kHz)", yName: "m",
-			lines: []cutLine{{SeriesShift, "peak shift", colourProfile, xy(w.DopplerHz, w.DopplerShiftM, 1e-3, 1, 3, 3), 1.4}}},
-	})
-	out := []chartOut{pulse, spectrumChart(w, key(ChartSpectrum)), filter, doppler}
-	for i := range out {
-		out[i].static = true
-	}
+	b.line.Validate()
+	opt := b.line.JSON()
+	opt["title"] = titles
+	opt["legend"] = legends
+	opt["tooltip"] = tooltipJSON("axis")
+	out := b.spliceSeries(name, key, opt)
+	out.static = true
 	return out
 }
 
-// spectrumChart plots the pulse's energy spectrum with the 99 % occupied
-// band shaded and named.
-func spectrumChart(w *scenarios.WavePlots, key string) chartOut {
-	b := newBuilder("frequency re carrier (MHz)", "dB re peak", scenarios.SpectrumFloorDB)
-	b.line.YAxisList[0].Max = 0.0
-	b.add(SeriesSpectrum, "energy spectrum", colourProfile, xy(w.SpectrumHz, w.SpectrumDB, 1e-6, 1, 4, 2), opts.LineStyle{Width: 1.2})
+// waveCharts makes the designer's two charts; version keeps keys unique.
+func waveCharts(w *scenarios.WavePlots, version int) []chartOut {
+	key := func(name string) string { return fmt.Sprintf("%s/%d", name, version) }
+	// The pulse: phase (left) and instantaneous frequency (right) against
+	// time; its spectrum with the occupied band.
+	phaseName, phaseY, phase := "phase", "rad", xy(w.TimeS, w.PhaseRad, 1e6, 1, 4, 3)
+	if w.PhaseWrapped {
+		phaseName, phaseY, phase = "phase", "°", xy(w.TimeS, degrees(w.PhaseRad), 1e6, 1, 4, 1)
+	}
+	pulseLines := []dualLine{{id: SeriesPhase, name: phaseName, colour: colourQ, data: phase, width: 1.2}}
+	freqAxis := ""
+	if len(w.FreqHz) > 0 {
+		freqAxis = "MHz"
+		pulseLines = append(pulseLines, dualLine{id: SeriesFrequency, name: "frequency", colour: colourProfile,
+			data: xy(w.FreqTimeS, w.FreqHz, 1e6, 1e-6, 4, 4), right: true, width: 1.4})
+	}
+	spec := dualLine{id: SeriesSpectrum, name: "energy spectrum", colour: colourProfile,
+		data: xy(w.SpectrumHz, w.SpectrumDB, 1e-6, 1, 4, 2), width: 1}
+	specTitle := "spectrum"
+	var xMin, xMax any
 	if bw := w.OccupiedBandwidthHz; bw > 0 {
 		lo, hi := w.OccupiedHz[0]*1e-6, w.OccupiedHz[1]*1e-6
-		b.extra[SeriesSpectrum] = seriesExtra{MarkArea: map[string]any{
+		specTitle = "99 %: " + siHz(bw)
+		spec.markArea = map[string]any{
 			"silent":    true,
-			"itemStyle": map[string]any{"color": colourClean, "opacity": 0.25},
-			"label":     map[string]any{"show": true, "position": "insideTop", "color": "#1f3b52", "fontSize": 11},
-			"data": [][2]map[string]any{{
-				{"name": "99 % occupied: " + siHz(bw), "xAxis": math.Round(lo*1e4) / 1e4},
-				{"xAxis": math.Round(hi*1e4) / 1e4}}},
-		}}
+			"itemStyle": map[string]any{"color": colourClean, "opacity": 0.3},
+			"data":      [][2]map[string]any{{{"name": "99 %", "xAxis": math.Round(lo*1e4) / 1e4}, {"xAxis": math.Round(hi*1e4) / 1e4}}},
+			"label":     map[string]any{"show": true, "position": "insideBottom", "color": "#1f3b52", "fontSize": 10},
+		}
+		// Open on the occupied band and its own width each side.
+		c := (lo + hi) / 2
+		edge := slices.Max(w.SpectrumHz) * 1e-6
+		xMin = math.Round(math.Max(c-1.5*(hi-lo), -edge)*1e3) / 1e3
+		xMax = math.Round(math.Min(c+1.5*(hi-lo), edge)*1e3) / 1e3
 	}
-	// The spectrum spans ±fs/2; open on the occupied band and a margin
-	// of its own width each side.
-	var near *[2]float64
-	if bw := w.OccupiedBandwidthHz * 1e-6; bw > 0 && len(w.SpectrumHz) > 1 {
-		c := (w.OccupiedHz[0] + w.OccupiedHz[1]) / 2 * 1e-6
-		a, z := math.Max(c-1.5*bw, w.SpectrumHz[0]*1e-6), math.Min(c+1.5*bw, slices.Max(w.SpectrumHz)*1e-6)
-		near = &[2]float64{math.Round(a*1e4) / 1e4, math.Round(z*1e4) / 1e4}
-	}
-	b.line.SetGlobalOptions(charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "2", Left: "64", ItemWidth: 18, ItemHeight: 10}))
-	return b.buildZoomed(ChartSpectrum, key, near)
+	pulse := dualChart(ChartPulse, key(ChartPulse), [2]dualPlot{
+		{title: "transmitted pulse", xName: "time (µs)", leftName: phaseY, rightName: freqAxis, lines: pulseLines},
+		{title: specTitle, xName: "MHz re carrier", leftName: "dB", leftMin: scenarios.SpectrumFloorDB, leftMax: 0.0,
+			xMin: xMin, xMax: xMax, lines: []dualLine{spec}},
+	})
+	// The filter's taps and the Doppler tolerance.
+	filter := dualChart(ChartFilter, key(ChartFilter), [2]dualPlot{
+		{title: strings.ReplaceAll(w.Filter, "_", " ") + " filter taps", xName: "µs re echo", leftName: "re max", rightName: "°", leftMin: 0.0,
+			lines: []dualLine{
+				{id: SeriesTapAmp, name: "amplitude", colour: colourProfile, data: xy(w.TapTimeS, w.TapAmp, 1e6, 1, 4, 4), width: 1.4},
+				{id: SeriesTapPhase, name: "phase", colour: colourQ, data: xy(w.TapTimeS, degrees(w.TapPhaseRad), 1e6, 1, 4, 1), right: true, width: 1},
+			}},
+		{title: "Doppler tol.", xName: "Doppler (kHz)", leftName: "dB", rightName: "m", leftMin: 0.0,
+			lines: []dualLine{
+				{id: SeriesLoss, name: "loss", colour: colourThreshold, data: xy(w.DopplerHz, w.DopplerLossDB, 1e-3, 1, 3, 3), width: 1.4},
+				{id: SeriesShift, name: "shift", colour: colourProfile, data: xy(w.DopplerHz, w.DopplerShiftM, 1e-3, 1, 3, 3), right: true, width: 1.2, dashed: true},
+			}},
+	})
+	return []chartOut{pulse, filter}
 }
 
 // siHz formats a frequency with three significant digits and an SI prefix.

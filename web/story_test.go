@@ -52,7 +52,7 @@ func TestDesignerTabs(t *testing.T) {
 	ctx := mustBrowser(t)
 	openPage(t, ctx, mustServer(t))
 	for _, c := range []struct{ tab, series string }{
-		{"pulse", "frequency"}, {"spectrum", "spectrum"}, {"filter", "tap-amplitude"}, {"doppler", "doppler-loss"},
+		{"pulse", "frequency"}, {"pulse", "spectrum"}, {"filter", "tap-amplitude"}, {"filter", "doppler-loss"},
 	} {
 		sel := fmt.Sprintf(`.plot-head [data-show=%q]`, c.tab)
 		do(t, ctx, chromedp.Click(chromedp.CSS(sel)))

@@ -37,7 +37,7 @@ const session = new Session({ onFrame, onError, onStatus });
 const plots = new Plots({
   profile: $('#chart-profile'), echo: $('#chart-echo'), response: $('#chart-response'), ambiguity: $('#chart-ambiguity'),
   ambcuts: $('#chart-ambcuts'), rdmap: $('#chart-rdmap'), rdcuts: $('#chart-rdcuts'),
-  pulse: $('#chart-pulse'), spectrum: $('#chart-spectrum'), filter: $('#chart-filter'), doppler: $('#chart-doppler'),
+  pulse: $('#chart-pulse'), filter: $('#chart-filter'),
 }, {
   onView: (range, width, mapWidth) => session.sendView(range, width, mapWidth),
   onDrag: (id, r) => editor.moveTo(id, r),
