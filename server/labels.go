@@ -51,8 +51,8 @@ func annotate(b *builder, res *scenarios.Result, g grid) string {
 		b.extra[SeriesBlind] = seriesExtra{MarkArea: map[string]any{
 			"silent":    true,
 			"itemStyle": map[string]any{"color": colourBlind, "opacity": 0.22},
-			"label":     map[string]any{"show": true, "position": "insideTop", "color": "#4b535c", "fontSize": 11},
-			"data":      [][2]map[string]any{{{"name": "blind", "xAxis": round2(g.x0)}, {"xAxis": round2(end)}}},
+			"label":     map[string]any{"show": true, "position": "insideBottom", "color": "#4b535c", "fontSize": 11},
+			"data":      [][2]map[string]any{{{"name": "blind range", "xAxis": round2(g.x0)}, {"xAxis": round2(end)}}},
 		}}
 		key += "+blind" + strconv.FormatFloat(round2(end), 'f', -1, 64)
 	}
