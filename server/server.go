@@ -47,7 +47,7 @@ type Config struct {
 	APITimeout  time.Duration // deadline of a REST request; default 30 s
 	// StarveAfter bounds how long new edits may keep cancelling a
 	// session's computation in flight (see session.cancelBefore); default
-	// 250 ms.
+	// 50 ms.
 	StarveAfter time.Duration
 	StartDemo   string // the demo the page opens on; default scenarios.DefaultDemo
 	// SessionEvaluator, when set, makes each websocket session its own
