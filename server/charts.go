@@ -131,7 +131,10 @@ func newBuilder(xName, yName string, yMin any) *builder {
 	c.Colors = []string{colourProfile, colourClean, colourThreshold, colourNoise, colourReference}
 	c.SetGlobalOptions(
 		charts.WithAnimation(false),
-		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "2", Left: "64", ItemWidth: 18, ItemHeight: 10}),
+		// One row of legend, paged when the plot is narrow: a second row
+		// would sit on the plot.
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Type: "scroll", Top: "2", Left: "64", Right: "8", ItemWidth: 18, ItemHeight: 10,
+			TextStyle: &opts.TextStyle{FontSize: 11}}),
 		charts.WithGridOpts(opts.Grid{Left: strconv.Itoa(gridLeft), Right: "18", Top: "30", Bottom: "62"}),
 		charts.WithXAxisOpts(opts.XAxis{Type: "value", Name: xName, NameLocation: "middle", NameGap: 24, Min: "dataMin", Max: "dataMax",
 			AxisLabel: &opts.AxisLabel{ShowMinLabel: opts.Bool(false), ShowMaxLabel: opts.Bool(false)}}),

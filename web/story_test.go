@@ -119,3 +119,31 @@ func TestPrintableExport(t *testing.T) {
 		t.Errorf("export %v×%v px, want the chart (%v×%v) at 2× under a 64 px band", size[0], size[1], size[2], size[3])
 	}
 }
+
+// The range–Doppler map names each marker on a pale plate, and the map
+// cuts carry a legend per plot.
+func TestMapLabelsAndCutLegends(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	eval[bool](t, ctx, `(async () => { const s = await fetch('/api/v1/demos/hill-clutter-doppler').then((r) => r.json()); window.__pw.store.load(s); return true; })()`)
+	waitFor(t, ctx, "the map", fresh+` && window.__pw.frame().report.scenario === window.__pw.store.scenario.name && window.__pw.plots.charts.rdmap.getOption() && window.__pw.plots.charts.rdmap.getOption().series.length > 1`)
+	lab := eval[map[string]any](t, ctx, `(() => { const s = window.__pw.plots.charts.rdmap.getOption().series.find((x) => x.id === 'markers');
+		return { show: s.label.show, plate: s.label.backgroundColor || '', names: s.data.map((d) => d.name).join(',') }; })()`)
+	if lab["show"] != true || lab["plate"] == "" || lab["names"] != "ridge,helicopter,jet,car" {
+		t.Errorf("map marker labels %v", lab)
+	}
+	// A real click on the map asks for cuts; their chart has two legends.
+	ox, oy := chartOrigin(t, ctx, "#chart-rdmap")
+	w := eval[float64](t, ctx, `window.__pw.plots.charts.rdmap.getWidth()`)
+	h := eval[float64](t, ctx, `window.__pw.plots.charts.rdmap.getHeight()`)
+	x, y := ox+w*0.4, oy+h*0.45
+	mouse(t, ctx, chromedp.MouseMoved, x, y)
+	mouse(t, ctx, chromedp.MousePressed, x, y, chromedp.ButtonLeft, chromedp.ClickCount(1))
+	mouse(t, ctx, chromedp.MouseReleased, x, y, chromedp.ButtonLeft, chromedp.ClickCount(1))
+	waitFor(t, ctx, "the cuts", `(() => { const o = window.__pw.plots.charts.rdcuts.getOption(); return !!o && o.series && o.series.length === 4; })()`)
+	n := eval[int](t, ctx, `window.__pw.plots.charts.rdcuts.getOption().legend.filter((l) => l.show !== false).length`)
+	if n != 2 {
+		t.Errorf("map cuts have %d legends, want one per plot", n)
+	}
+	shot(t, ctx, "cuts")
+}
