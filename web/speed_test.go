@@ -58,14 +58,19 @@ func TestDragRate(t *testing.T) {
 		t1 := eval[float64](t, ctx, `performance.now()`)
 		mouse(t, ctx, chromedp.MouseReleased, x, y, chromedp.ButtonLeft, chromedp.ClickCount(1))
 		lat := eval[[]struct {
-			MS       float64 `json:"ms"`
-			ChartsMS float64 `json:"charts_ms"`
-			PanelMS  float64 `json:"panel_ms"`
-			WaitMS   float64 `json:"wait_ms"`
+			MS       float64  `json:"ms"`
+			ChartsMS float64  `json:"charts_ms"`
+			PanelMS  float64  `json:"panel_ms"`
+			WaitMS   float64  `json:"wait_ms"`
+			Held     []string `json:"held"`
 		}](t, ctx, `window.__pwLatencies.slice()`)
 		long := eval[[]float64](t, ctx, `window.__pwLongTasks.slice()`)
 		var ms, charts, panels, wait []float64
+		held := 0
 		for _, l := range lat {
+			if len(l.Held) > 0 {
+				held++
+			}
 			ms, charts, panels, wait = append(ms, l.MS), append(charts, l.ChartsMS), append(panels, l.PanelMS), append(wait, l.WaitMS)
 		}
 		secs := (t1 - t0) / 1000
@@ -73,8 +78,8 @@ func TestDragRate(t *testing.T) {
 			t.Errorf("%s: no picture painted while dragging %s", d, id)
 			continue
 		}
-		t.Logf("%-22s drag %-14s %3d moves, %3d pictures in %.1f s: %5.1f updates/s | send→paint median %4.0f ms, p95 %4.0f | send→arrival %4.0f, charts %3.0f, panels %3.0f (medians) | long tasks %d, max %.0f ms",
-			d, id, moves, len(ms), secs, float64(len(ms))/secs, median(ms), quantile(ms, 0.95), median(wait), median(charts), median(panels), len(long), maxOr0(long))
+		t.Logf("%-22s drag %-14s %3d moves, %3d pictures in %.1f s: %5.1f updates/s | send→paint median %4.0f ms, p95 %4.0f | send→arrival %4.0f, charts %3.0f, panels %3.0f (medians) | long tasks %d, max %.0f ms | %d held back",
+			d, id, moves, len(ms), secs, float64(len(ms))/secs, median(ms), quantile(ms, 0.95), median(wait), median(charts), median(panels), len(long), maxOr0(long), held)
 		shot(t, ctx, d)
 		waitFor(t, ctx, "the drag's last frame", fresh)
 		_ = slices.Max(ms)

@@ -119,6 +119,11 @@ export class Plots {
     this.setOption(name, entry);
   }
 
+  // The shown charts whose newest options wait for their redraw timer.
+  held() {
+    return Object.keys(this.timers).filter((k) => this.timers[k] && !this.hidden(k));
+  }
+
   // Keep an option for later. A full option supersedes what came before
   // it; of the data-only merges after it, only the newest matters.
   hold(name, entry) {

@@ -147,7 +147,7 @@ function applyFrame() {
       // which charts_ms went to the charts' setOption and panel_ms to the
       // editor and figures panels.
       latencies.push({ id: f.id, ms: m.duration, compute_ms: f.compute_ms, wait_ms: f.arrivedAt - sentAt, page_ms: performance.now() - f.arrivedAt,
-        charts_ms: t1 - t0, panel_ms: t2 - t1 });
+        charts_ms: t1 - t0, panel_ms: t2 - t1, held: plots.held(), panels_held: !!panelTimer });
       if (latencies.length > 1000) latencies.shift();
     }
   });
