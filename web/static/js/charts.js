@@ -411,7 +411,8 @@ export class Plots {
   profileCSV() {
     const opt = this.charts.profile.getOption();
     const xData = opt.xAxis && opt.xAxis[0] && opt.xAxis[0].data;
-    const cols = (opt.series || []).filter((s) => s.type === 'line' && Array.isArray(s.data));
+    // The annotations (masking segments, blind range) are not series of the profile.
+    const cols = (opt.series || []).filter((s) => s.type === 'line' && Array.isArray(s.data) && s.id !== 'masking' && s.id !== 'blind');
     const rows = new Map();
     cols.forEach((s, ci) => {
       s.data.forEach((d, i) => {
