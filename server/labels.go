@@ -104,6 +104,7 @@ func maskingData(res *scenarios.Result, g grid) []byte {
 			maskingItem{Value: [2]any{round2(m.RangeM), math.Round(clampDB(m.SNRDB)*100) / 100}},
 			maskingItem{Value: [2]any{round2(t.RangeM), math.Round(clampDB(s.CleanDB[k])*100) / 100},
 				Label: map[string]any{"show": true, "position": "right", "distance": 10, "color": colourMasking, "fontSize": 11, "fontWeight": "bold",
+					"backgroundColor": "rgba(255,255,255,0.85)", "borderRadius": 3,
 					"formatter": plainLabel(m.ID) + "'s response masks " + plainLabel(t.ID)}})
 	}
 	if items == nil {
