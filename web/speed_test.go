@@ -20,7 +20,7 @@ func TestDragRate(t *testing.T) {
 	if testing.Short() {
 		t.Skip("drag measurement skipped in -short")
 	}
-	ctx := mustBrowser(t)
+	ctx := mustBrowserFor(t, 8*time.Minute)
 	openPage(t, ctx, mustServer(t))
 	demos := eval[[]string](t, ctx, `fetch('/api/v1/demos').then((r) => r.json()).then((d) => d.map((x) => x.name))`)
 	for _, d := range demos {
