@@ -2,6 +2,7 @@ package dsp
 
 import (
 	"math"
+	"math/cmplx"
 	"slices"
 )
 
@@ -74,22 +75,39 @@ func checkPFA(pfa float64, n int) {
 // CFAR computes detection thresholds over a power profile (linear units,
 // e.g. |y|²). Training cells lie on both sides of the cell under test,
 // beyond Guard cells on each side; Train counts both sides together. Near
-// the ends of the profile only the cells that exist are used and the
-// multiplier is recomputed for their number, so the false-alarm
-// probability holds everywhere. A CFAR is a plan: it is not safe for
-// concurrent use.
+// the ends of the profile, and next to cells marked invalid (gates that
+// hold no data), only the valid cells that exist are used and the
+// multiplier is recomputed for exactly those cells, so the false-alarm
+// probability holds everywhere.
+//
+// Rho, when set, is the complex correlation of the noise between profile
+// cells by lag (NoiseCorrelation of the receive reference): at sample
+// rates above the bandwidth neighbouring cells share noise. Cell averaging
+// then solves Pfa = 1/det(I + (α/N)·R) for the correlation matrix R of the
+// cells used (CorrelatedCAMultiplier); an ordered statistic trains on a
+// lattice of cells DecorrelationSpacing apart, which are independent by
+// construction, and uses Rohling's α for their number. A nil Rho treats
+// the cells as independent (Richards eq. 6.135; Rohling). A CFAR is a
+// plan: it is not safe for concurrent use.
 type CFAR struct {
-	PFA   float64 // false-alarm probability per cell
-	Guard int     // guard cells on each side
-	Train int     // training cells, both sides together (even)
-	Rank  int     // ordered-statistic rank (1-based); 0 selects cell averaging
+	PFA   float64      // false-alarm probability per cell
+	Guard int          // guard cells on each side
+	Train int          // training cells, both sides together (even)
+	Rank  int          // ordered-statistic rank (1-based); 0 selects cell averaging
+	Rho   []complex128 // noise correlation by lag, ρ(0) = 1; nil for independent cells
 
 	mult    map[int]float64
+	pattern map[string]float64
+	key     []byte
+	offs    []int
+	step    int
 	scratch []float64
 	prefix  []float64
+	count   []int
 }
 
-// Multiplier returns the threshold multiplier for n training cells.
+// Multiplier returns the threshold multiplier for n independent training
+// cells.
 func (c *CFAR) Multiplier(n int) float64 {
 	if c.mult == nil {
 		c.mult = make(map[int]float64)
@@ -107,14 +125,56 @@ func (c *CFAR) Multiplier(n int) float64 {
 	return a
 }
 
+// Spacing returns the spacing of the training cells an ordered statistic
+// uses: 1 for cell averaging or independent cells, otherwise
+// DecorrelationSpacing of Rho over the training span.
+func (c *CFAR) Spacing() int {
+	if c.Rank == 0 || c.Rho == nil {
+		return 1
+	}
+	if c.step == 0 {
+		c.step = DecorrelationSpacing(2*(c.Guard+c.Train/2), func(m int) float64 { return cmplx.Abs(lagCorrelation(c.Rho, m)) })
+	}
+	return c.step
+}
+
+// multiplierFor returns the multiplier for the training offsets offs
+// (relative to the cell under test).
+func (c *CFAR) multiplierFor(offs []int) float64 {
+	if c.Rho == nil || c.Rank != 0 {
+		return c.Multiplier(len(offs))
+	}
+	c.key = c.key[:0]
+	for _, o := range offs {
+		c.key = append(c.key, byte(o), byte(o>>8), byte(o>>16))
+	}
+	if c.pattern == nil {
+		c.pattern = make(map[string]float64)
+	}
+	if a, ok := c.pattern[string(c.key)]; ok {
+		return a
+	}
+	// Index 0 is the cell under test (offset 0), 1 … N the training cells.
+	off := func(i int) int {
+		if i == 0 {
+			return 0
+		}
+		return offs[i-1]
+	}
+	a := correlatedCAWithCUT(c.PFA, len(offs), func(i, j int) complex128 { return lagCorrelation(c.Rho, off(j)-off(i)) })
+	c.pattern[string(c.key)] = a
+	return a
+}
+
 // rank scales the configured rank to n available cells.
 func (c *CFAR) rank(n int) int {
 	k := int(math.Round(float64(c.Rank) * float64(n) / float64(c.Train)))
 	return min(max(k, 1), n)
 }
 
-// TrainingCells returns the index ranges [lo1, hi1) and [lo2, hi2) of the
-// training cells of cell k in a profile of length n.
+// TrainingCells returns the index ranges [lo1, hi1) and [lo2, hi2) that
+// hold the training cells of cell k in a profile of length n (before
+// thinning and validity; see Cells).
 func (c *CFAR) TrainingCells(k, n int) (lo1, hi1, lo2, hi2 int) {
 	half := c.Train / 2
 	hi1 = max(k-c.Guard, 0)
@@ -124,25 +184,53 @@ func (c *CFAR) TrainingCells(k, n int) (lo1, hi1, lo2, hi2 int) {
 	return
 }
 
+// Cells appends to dst the offsets from k of the training cells actually
+// used at cell k of a profile of length n: inside the profile, valid
+// (valid == nil: all), and on the ordered statistic's lattice. Offsets are
+// ascending.
+func (c *CFAR) Cells(dst []int, k, n int, valid []bool) []int {
+	half, s := c.Train/2, c.Spacing()
+	for o := -(c.Guard + half); o <= c.Guard+half; o++ {
+		if o >= -c.Guard && o <= c.Guard {
+			continue
+		}
+		if s > 1 && o%s != 0 {
+			continue
+		}
+		i := k + o
+		if i < 0 || i >= n || valid != nil && !valid[i] {
+			continue
+		}
+		dst = append(dst, o)
+	}
+	return dst
+}
+
 // Level returns the threshold at cell k of power: the multiplier times the
 // mean (CA) or the ranked value (OS) of its training cells.
 func (c *CFAR) Level(power []float64, k int) float64 {
-	lo1, hi1, lo2, hi2 := c.TrainingCells(k, len(power))
-	n := hi1 - lo1 + hi2 - lo2
+	return c.LevelValid(power, nil, k)
+}
+
+// LevelValid is Level with only the cells i with valid[i] as training
+// cells (valid == nil: all). It returns +Inf when no training cell is left.
+func (c *CFAR) LevelValid(power []float64, valid []bool, k int) float64 {
+	c.offs = c.Cells(c.offs[:0], k, len(power), valid)
+	n := len(c.offs)
 	if n == 0 {
 		return math.Inf(1)
 	}
 	if c.Rank == 0 {
 		s := 0.0
-		for _, v := range power[lo1:hi1] {
-			s += v
+		for _, o := range c.offs {
+			s += power[k+o]
 		}
-		for _, v := range power[lo2:hi2] {
-			s += v
-		}
-		return c.Multiplier(n) * s / float64(n)
+		return c.multiplierFor(c.offs) * s / float64(n)
 	}
-	c.scratch = append(append(c.scratch[:0], power[lo1:hi1]...), power[lo2:hi2]...)
+	c.scratch = c.scratch[:0]
+	for _, o := range c.offs {
+		c.scratch = append(c.scratch, power[k+o])
+	}
 	return c.Multiplier(n) * quickSelect(c.scratch, c.rank(n)-1)
 }
 
@@ -150,61 +238,64 @@ func (c *CFAR) Level(power []float64, k int) float64 {
 // returns it; a nil dst allocates. It costs O(len) for cell averaging and
 // O(len·Train) for ordered statistics.
 func (c *CFAR) Thresholds(dst, power []float64) []float64 {
+	return c.ThresholdsValid(dst, power, nil)
+}
+
+// ThresholdsValid is Thresholds with only valid cells as training cells
+// (valid == nil: all; else len(valid) must equal len(power)). Invalid
+// cells get a threshold too (from their valid neighbours); callers that do
+// not process them ignore it.
+func (c *CFAR) ThresholdsValid(dst, power []float64, valid []bool) []float64 {
 	n := len(power)
 	if dst == nil {
 		dst = make([]float64, n)
 	}
-	if len(dst) != n {
+	if len(dst) != n || valid != nil && len(valid) != n {
 		panic("dsp: CFAR destination length mismatch")
 	}
 	if c.Rank != 0 {
 		for k := range power {
-			dst[k] = c.Level(power, k)
+			dst[k] = c.LevelValid(power, valid, k)
 		}
 		return dst
 	}
 	c.prefix = slices.Grow(c.prefix[:0], n+1)[:n+1]
-	c.prefix[0] = 0
+	c.count = slices.Grow(c.count[:0], n+1)[:n+1]
+	c.prefix[0], c.count[0] = 0, 0
 	for i, v := range power {
+		ok := valid == nil || valid[i]
+		if !ok {
+			v = 0
+		}
 		c.prefix[i+1] = c.prefix[i] + v
+		c.count[i+1] = c.count[i]
+		if ok {
+			c.count[i+1]++
+		}
 	}
-	// Cells whose training cells all lie inside power need no clamping:
-	// [inLo, inHi), with 2·half cells each.
 	half := c.Train / 2
-	inLo, inHi := c.Guard+half, n-c.Guard-half
-	if half == 0 || inLo >= inHi {
-		inLo, inHi = n, n
+	full := 2 * half
+	var aFull float64
+	if full > 0 {
+		c.offs = c.Cells(c.offs[:0], c.Guard+half, max(n, 2*(c.Guard+half)+1), nil)
+		aFull = c.multiplierFor(c.offs) / float64(full)
 	}
-	if inLo < inHi {
-		a := c.Multiplier(2*half) / float64(2*half)
-		p := c.prefix
-		for k := inLo; k < inHi; k++ {
-			s := p[k-c.Guard] - p[k-c.Guard-half] + p[k+c.Guard+1+half] - p[k+c.Guard+1]
-			if s < 0 {
-				s = 0
-			}
-			dst[k] = a * s
-		}
-	}
-	lastM, lastA := -1, 0.0
-	edge := func(k int) {
+	p, cnt := c.prefix, c.count
+	for k := range n {
 		lo1, hi1, lo2, hi2 := c.TrainingCells(k, n)
-		m := hi1 - lo1 + hi2 - lo2
-		if m == 0 {
+		m := cnt[hi1] - cnt[lo1] + cnt[hi2] - cnt[lo2]
+		s := math.Max(p[hi1]-p[lo1]+p[hi2]-p[lo2], 0)
+		switch {
+		case m == 0:
 			dst[k] = math.Inf(1)
-			return
+		case m == full:
+			dst[k] = aFull * s
+		case c.Rho == nil:
+			dst[k] = c.Multiplier(m) / float64(m) * s
+		default:
+			c.offs = c.Cells(c.offs[:0], k, n, valid)
+			dst[k] = c.multiplierFor(c.offs) / float64(m) * s
 		}
-		if m != lastM { // the count changes only near the ends
-			lastM, lastA = m, c.Multiplier(m)/float64(m)
-		}
-		s := c.prefix[hi1] - c.prefix[lo1] + c.prefix[hi2] - c.prefix[lo2]
-		dst[k] = lastA * math.Max(s, 0)
-	}
-	for k := range inLo {
-		edge(k)
-	}
-	for k := inHi; k < n; k++ {
-		edge(k)
 	}
 	return dst
 }

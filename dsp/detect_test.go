@@ -6,9 +6,9 @@ import (
 	"testing"
 )
 
-// TestCAMultiplier checks α = N(Pfa^(−1/N) − 1) against the values in
-// shared/reference/check-values.md §7 (Richards 2014, eq. 6.135; values
-// computed there to 3 decimals).
+// TestCAMultiplier checks α = N(Pfa^(−1/N) − 1) for independent cells
+// against Richards, Fundamentals of Radar Signal Processing, 2nd ed.,
+// eq. 6.135 (values to 3 decimals).
 func TestCAMultiplier(t *testing.T) {
 	for _, tt := range []struct {
 		n    int
@@ -18,7 +18,7 @@ func TestCAMultiplier(t *testing.T) {
 			t.Errorf("CAMultiplier(1e-6, %d) = %.4f, want %.3f", tt.n, got, tt.want)
 		}
 	}
-	// Known-noise threshold −ln Pfa = 13.8155 (same table).
+	// Known-noise threshold −ln Pfa = 13.8155 (same source).
 	if got := FixedMultiplier(1e-6); math.Abs(got-13.8155) > 1e-4 {
 		t.Errorf("FixedMultiplier(1e-6) = %v", got)
 	}

@@ -2,6 +2,8 @@ package dsp
 
 import (
 	"math"
+
+	"gonum.org/v1/gonum/dsp/fourier"
 )
 
 // resyncLen is the number of samples after which AddEcho recomputes its
@@ -188,4 +190,58 @@ func addGeneric(dst []complex128, lo, hi int, wf Waveform, fs, delay float64, am
 		dst[n] += dop * wf.At(float64(n)/fs-delay)
 		dop *= step
 	}
+}
+
+// AddEchoInBand adds to dst the echo AddEcho describes (same arguments)
+// as a receiver whose band is [−fs/2, fs/2) hears it: the continuous echo
+// amp·u(t − delay)·exp(j2π·fd·t) is passed through the ideal filter of
+// that band, then sampled at fs, so an echo whose Doppler lies outside the
+// band is rejected rather than aliased. bandwidth (Hz, > 0) is the
+// waveform's nominal bandwidth, which sets the internal rate M·fs,
+// M = max(16, ⌈16·(|fd| + 4·bandwidth)/fs⌉), so that M·fs/2 is at least
+// eight times |fd| + 4·bandwidth (the spectrum beyond it, which would
+// alias into the band, is neglected).
+// The filter is applied by FFT over dst's span padded on both sides by
+// max(len(dst), 256) samples; ringing beyond that is neglected. It
+// returns the fraction of the echo's energy inside the band (1 for an
+// echo with no energy). It allocates.
+func AddEchoInBand(dst []complex128, w Waveform, fs, delay float64, amp complex128, fd, bandwidth float64) float64 {
+	if len(dst) == 0 {
+		return 1
+	}
+	m := max(16, int(math.Ceil(16*(math.Abs(fd)+4*bandwidth)/fs)))
+	r := float64(m) * fs
+	// Zero padding of max(len(dst), 256) samples on each side: the band's
+	// edges cut the spectrum finely enough, and the filter's ringing does
+	// not wrap around onto dst.
+	pad := max(len(dst), 256)
+	l := (len(dst) + 2*pad) * m
+	x := make([]complex128, l)
+	// The Doppler phase stays referenced to dst's sample 0.
+	AddEcho(x, w, r, delay+float64(pad)/fs, amp*expj(-2*math.Pi*fd*float64(pad)/fs), fd)
+	f := fourier.NewCmplxFFT(l)
+	c := f.Coefficients(nil, x)
+	var in, all float64
+	for k, v := range c {
+		p := real(v)*real(v) + imag(v)*imag(v)
+		all += p
+		fk := float64(k) * r / float64(l)
+		if k >= (l+1)/2 {
+			fk -= r
+		}
+		if fk >= -fs/2 && fk < fs/2 {
+			in += p
+		} else {
+			c[k] = 0
+		}
+	}
+	if all == 0 {
+		return 1
+	}
+	f.Sequence(x, c)
+	scale := complex(1/float64(l), 0)
+	for i := range dst {
+		dst[i] += x[(pad+i)*m] * scale
+	}
+	return in / all
 }

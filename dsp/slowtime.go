@@ -2,6 +2,7 @@ package dsp
 
 import (
 	"math"
+	"math/cmplx"
 
 	"gonum.org/v1/gonum/dsp/fourier"
 )
@@ -168,53 +169,212 @@ func Fold(fdT float64) float64 { return fdT - math.Floor(fdT+0.5) }
 // CFAR2D is a cell-averaging or ordered-statistic CFAR on a range–Doppler
 // map: training cells fill a rectangle of ±(GuardR+TrainR/2) range cells
 // and ±(GuardD+TrainD/2) Doppler bins around the cell under test, less the
-// guard rectangle ±GuardR × ±GuardD. Range stops at the map's edges;
-// Doppler wraps around (the spectrum is periodic).
+// guard rectangle ±GuardR × ±GuardD. Range stops at the map's edges (and
+// at invalid range cells, see LevelValid); Doppler wraps around (the
+// spectrum is periodic).
+//
+// RhoR is the noise correlation between range cells by lag
+// (NoiseCorrelation of the receive reference) and DopplerCov the
+// covariance of the Doppler bins for white unit noise per pulse
+// (SlowTimePlan.NoiseCovariance): the noise of cells (k1, d1) and (k2, d2)
+// correlates as ρ(k2−k1)·C(d1, d2). Either nil treats that dimension's
+// cells as independent. Cell averaging solves Pfa = 1/det(I + (α/N)·R)
+// for the cells used, normalised by the variance of the cell under test;
+// an ordered statistic trains on a lattice of cells spaced by the
+// decorrelation spacing of each dimension (independent by construction).
 type CFAR2D struct {
 	PFA            float64
 	GuardR, TrainR int // range guard cells each side, range training cells both sides together
 	GuardD, TrainD int // Doppler guard bins each side, Doppler training bins both sides together
 	Rank           int // ordered-statistic rank scaled to the cells present (see CFAR); 0 for cell averaging
+	RhoR           []complex128
+	DopplerCov     [][]complex128
 
-	c CFAR
+	c        CFAR
+	cells2   []Cell2
+	pattern  map[string]float64
+	key      []byte
+	sr, sd   int
+	circ     int // 0 unknown, 1 DopplerCov circulant, 2 not
+	spacings bool
 }
+
+// Cell2 is a training cell of a CFAR2D: offsets A in range cells and B in
+// Doppler bins from the cell under test.
+type Cell2 struct{ A, B int }
 
 // Level returns the threshold at range cell k and Doppler bin d of a map
 // with nr range cells and nd bins, whose power at (k, d) is p(k, d).
 func (c *CFAR2D) Level(p func(k, d int) float64, k, d, nr, nd int) float64 {
-	c.c.PFA, c.c.Rank, c.c.Train = c.PFA, c.Rank, max(c.cells(), 1)
+	return c.LevelValid(p, nil, k, d, nr, nd)
+}
+
+// Cells returns the training cells (range offset, Doppler offset) used at
+// (k, d): inside the map, in valid range cells (valid == nil: all), on the
+// ordered statistic's lattice. The slice is reused by the next call.
+func (c *CFAR2D) Cells(valid func(k int) bool, k, d, nr, nd int) []Cell2 {
+	c.spacing(nd)
 	hr, hd := c.GuardR+c.TrainR/2, c.GuardD+c.TrainD/2
 	hd = min(hd, (nd-1)/2)
-	vals := c.c.scratch[:0]
+	sr, sd := 1, 1
+	if c.Rank != 0 {
+		sr, sd = c.sr, c.sd
+	}
+	cs := c.cells2[:0]
 	for dk := -hr; dk <= hr; dk++ {
 		kk := k + dk
-		if kk < 0 || kk >= nr {
+		if kk < 0 || kk >= nr || valid != nil && !valid(kk) || dk%sr != 0 {
 			continue
 		}
 		for dd := -hd; dd <= hd; dd++ {
-			if abs(dk) <= c.GuardR && abs(dd) <= c.GuardD {
+			if abs(dk) <= c.GuardR && abs(dd) <= c.GuardD || dd%sd != 0 {
 				continue
 			}
-			vals = append(vals, p(kk, ((d+dd)%nd+nd)%nd))
+			cs = append(cs, Cell2{dk, dd})
 		}
 	}
-	c.c.scratch = vals
-	if len(vals) == 0 {
+	c.cells2 = cs
+	return cs
+}
+
+// LevelValid is Level with only valid range cells as training cells.
+// It returns +Inf when no training cell is left.
+func (c *CFAR2D) LevelValid(p func(k, d int) float64, valid func(k int) bool, k, d, nr, nd int) float64 {
+	c.c.PFA, c.c.Rank, c.c.Train = c.PFA, c.Rank, max(c.cells(), 1)
+	cs := c.Cells(valid, k, d, nr, nd)
+	if len(cs) == 0 {
 		return math.Inf(1)
 	}
+	vals := c.c.scratch[:0]
+	for _, q := range cs {
+		vals = append(vals, p(k+q.A, ((d+q.B)%nd+nd)%nd))
+	}
+	c.c.scratch = vals
 	if c.Rank == 0 {
 		s := 0.0
 		for _, v := range vals {
 			s += v
 		}
-		return c.c.Multiplier(len(vals)) * s / float64(len(vals))
+		return c.multiplier(cs, d, nd) * s / float64(len(vals))
 	}
 	return c.c.Multiplier(len(vals)) * quickSelect(vals, c.c.rank(len(vals))-1)
+}
+
+// dcorr returns the normalised Doppler noise correlation between bins
+// d1 and d2 relative to the variance of bin d (the cell under test).
+func (c *CFAR2D) dcorr(d, d1, d2, nd int) complex128 {
+	if c.DopplerCov == nil {
+		if d1 == d2 {
+			return 1
+		}
+		return 0
+	}
+	w := func(x int) int { return ((x % nd) + nd) % nd }
+	return c.DopplerCov[w(d1)][w(d2)] / complex(real(c.DopplerCov[w(d)][w(d)]), 0)
+}
+
+// multiplier returns the CA multiplier for the cells cs at bin d.
+func (c *CFAR2D) multiplier(cs []Cell2, d, nd int) float64 {
+	if c.RhoR == nil && c.DopplerCov == nil {
+		return c.c.Multiplier(len(cs))
+	}
+	if c.circ == 0 {
+		c.circ = 1
+		if c.DopplerCov != nil {
+		check:
+			for i := range nd {
+				for j := range nd {
+					if cmplx.Abs(c.DopplerCov[i][j]-c.DopplerCov[0][((j-i)%nd+nd)%nd]) > 1e-9*real(c.DopplerCov[0][0]) {
+						c.circ = 2
+						break check
+					}
+				}
+			}
+		}
+	}
+	c.key = c.key[:0]
+	if c.circ == 2 {
+		c.key = append(c.key, byte(d), byte(d>>8), 0xff)
+	}
+	for _, q := range cs {
+		c.key = append(c.key, byte(q.A), byte(q.A>>8), byte(q.B))
+	}
+	if c.pattern == nil {
+		c.pattern = make(map[string]float64)
+	}
+	if a, ok := c.pattern[string(c.key)]; ok {
+		return a
+	}
+	// Index 0 is the cell under test, 1 … N the training cells.
+	at := func(i int) Cell2 {
+		if i == 0 {
+			return Cell2{}
+		}
+		return cs[i-1]
+	}
+	a := correlatedCAWithCUT(c.PFA, len(cs), func(i, j int) complex128 {
+		ci, cj := at(i), at(j)
+		return lagCorrelation(c.RhoR, cj.A-ci.A) * c.dcorr(d, d+ci.B, d+cj.B, nd)
+	})
+	c.pattern[string(c.key)] = a
+	return a
+}
+
+// spacing sets the ordered statistic's lattice spacings in range and
+// Doppler (1 without correlation data).
+func (c *CFAR2D) spacing(nd int) {
+	if c.spacings {
+		return
+	}
+	c.spacings, c.sr, c.sd = true, 1, 1
+	if c.Rank == 0 {
+		return
+	}
+	if c.RhoR != nil {
+		c.sr = DecorrelationSpacing(2*(c.GuardR+c.TrainR/2), func(m int) float64 { return cmplx.Abs(lagCorrelation(c.RhoR, m)) })
+	}
+	if c.DopplerCov != nil {
+		c.sd = DecorrelationSpacing(min(2*(c.GuardD+c.TrainD/2), nd-1), func(m int) float64 {
+			worst := 0.0
+			for d := range nd {
+				e := (d + m) % nd
+				v := cmplx.Abs(c.DopplerCov[d][e]) / math.Sqrt(real(c.DopplerCov[d][d])*real(c.DopplerCov[e][e]))
+				worst = max(worst, v)
+			}
+			return worst
+		})
+	}
 }
 
 // cells returns the number of training cells away from the map's edges.
 func (c *CFAR2D) cells() int {
 	return (2*(c.GuardR+c.TrainR/2)+1)*(2*(c.GuardD+c.TrainD/2)+1) - (2*c.GuardR+1)*(2*c.GuardD+1)
+}
+
+// NoiseCovariance returns the M×M covariance C[d1][d2] = E[Y_d1·conj(Y_d2)]
+// of the plan's output bins for white complex noise of unit power per
+// pulse, exactly: C = A·Aᴴ with A the plan's linear map (MTI, window,
+// DFT, scaling), so that the diagonal is each bin's noise power.
+func (p *SlowTimePlan) NoiseCovariance() [][]complex128 {
+	a := make([][]complex128, p.n) // a[q] = response to a unit impulse on pulse q
+	e := make([]complex128, p.n)
+	for q := range p.n {
+		clear(e)
+		e[q] = 1
+		a[q] = p.Apply(nil, e)
+	}
+	c := make([][]complex128, p.m)
+	for i := range c {
+		c[i] = make([]complex128, p.m)
+		for j := range c[i] {
+			var s complex128
+			for q := range p.n {
+				s += a[q][i] * cmplx.Conj(a[q][j])
+			}
+			c[i][j] = s
+		}
+	}
+	return c
 }
 
 func abs(x int) int {

@@ -30,6 +30,10 @@ func Decode(data []byte) (*Scenario, error) {
 		errs.add("", "document is larger than the limit of %d bytes", MaxDocumentBytes)
 		return nil, errs.err()
 	}
+	if fe := checkEncoding(data); fe != nil {
+		errs.add(fe.Path, "%s", fe.Message)
+		return nil, errs.err()
+	}
 	top, ok := newObject("", data, &errs)
 	if !ok {
 		return nil, errs.err()
@@ -276,7 +280,7 @@ func (o *object) oneOf(name, v string, valid []string) bool {
 			return true
 		}
 	}
-	o.errs.add(o.sub(name), "%q is not one of %s", v, strings.Join(valid, ", "))
+	o.errs.add(o.sub(name), "%s is not one of %s", clipQ(v), strings.Join(valid, ", "))
 	return false
 }
 
@@ -307,9 +311,9 @@ func (o *object) finish(known ...string) {
 	sort.Strings(unknown)
 	for _, k := range unknown {
 		if len(known) > 0 {
-			o.errs.add(o.sub(k), "unknown field (fields here: %s)", strings.Join(known, ", "))
+			o.errs.add(o.sub(Clip(k, echoLen)), "unknown field (fields here: %s)", strings.Join(known, ", "))
 		} else {
-			o.errs.add(o.sub(k), "unknown field")
+			o.errs.add(o.sub(Clip(k, echoLen)), "unknown field")
 		}
 	}
 }

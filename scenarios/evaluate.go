@@ -191,31 +191,18 @@ func (m *model) waveformReport() WaveformReport {
 	return rep
 }
 
-// eclipseLossDB returns the loss of the compressed peak when only the
-// part of the pulse after the transmit blanking is heard.
-func (m *model) eclipseLossDB(g *tgt) float64 {
-	if g.t.Kind != TargetPoint || g.received >= 1 {
-		return 0
+// eclipseLossDB returns a point target's eclipsing loss (docs/detection.md
+// §3): its unblanked peak over its blanked one, in dB; ok is false when
+// no sample was blanked or every one was.
+func (g *tgt) eclipseLossDB(processed []bool) (db float64, ok bool) {
+	if g.t.Kind != TargetPoint || !g.blankTouched {
+		return 0, false
 	}
-	if g.received <= 0 {
-		return math.Inf(1)
+	_, p := g.resp.peakIn(processed)
+	if !(p > 0) || !(g.unblankedPeak > 0) || g.received <= 0 {
+		return 0, false
 	}
-	first := int(math.Ceil((m.tau - 2*g.apparent/C) * m.fs))
-	var full, part complex128
-	for i, p := range m.pulse {
-		if i+m.lead < 0 || i+m.lead >= len(m.ref) {
-			continue
-		}
-		c := p * cmplx.Conj(m.ref[i+m.lead])
-		full += c
-		if i >= first {
-			part += c
-		}
-	}
-	if cmplx.Abs(part) == 0 {
-		return math.Inf(1)
-	}
-	return -dsp.DB(cmplx.Abs(part) * cmplx.Abs(part) / (cmplx.Abs(full) * cmplx.Abs(full)))
+	return math.Max(dsp.DB(g.unblankedPeak/p), 0), true
 }
 
 // targetReports builds the per-target part of the report. With suggest,
@@ -249,6 +236,16 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		}
 		if g.t.Kind != TargetPoint && v.peakK >= 0 {
 			tr.RangeM = m.rangeOf(float64(v.peakK))
+		}
+		if l, ok := g.eclipseLossDB(m.processed); ok {
+			tr.EclipsingLossDB = &l
+		}
+		if g.outOfBand && !g.rejected && g.t.Kind == TargetPoint {
+			l := g.bandLossDB
+			tr.BandLossDB = &l
+		}
+		if g.outOfBand {
+			m.warn("target %s: its Doppler shift of %s is outside the receiver's band of ±%s (sample rate %s): %s", g.t.ID, hz(g.fd), hz(m.fs/2), hz(m.fs), bandWords(g))
 		}
 		tr.SNRDB = sc.snrDB(g, tr.RangeM, fig, d.lossDB)
 		if v.culprit >= 0 {
@@ -301,7 +298,16 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.Figures, dopLoss float64)
 	}
 	snr := dsp.RadarSNR(r.PeakPowerW, m.tau, dsp.FromDB(r.AntennaGainDBi), m.lambda, sigma, rangeM,
 		dsp.FromDB(r.NoiseFigureDB), dsp.FromDB(r.SystemLossDB))
-	v := dsp.DB(snr) - fig.MismatchLossDB - dopLoss - m.eclipseLossDB(g)
+	v := dsp.DB(snr) - fig.MismatchLossDB - dopLoss
+	if l, ok := g.eclipseLossDB(m.processed); ok {
+		v -= l
+	}
+	if g.rejected {
+		return dbFloor
+	}
+	if g.outOfBand && g.t.Kind == TargetPoint {
+		v -= g.bandLossDB
+	}
 	return math.Max(v, dbFloor)
 }
 
@@ -319,14 +325,14 @@ func (sc *scene) series() Series {
 // Response.
 func (sc *scene) window(workers int) Series {
 	m := sc.m
-	x := make([]complex128, m.n+m.lead)
+	x := make([]complex128, m.recLen+m.lead)
 	echo := x[m.lead:]
 	for _, g := range sc.targets {
 		switch {
 		case g.t.Kind == TargetPoint && g.amp > 0:
 			rng := streamOf(m.s.Seed, g.t.ID, 0x5157)
 			amp := g.amp * math.Sqrt(dsp.SwerlingRCS(rng, 1, swerling(g.t.Fluctuation)))
-			dsp.AddEcho(echo, m.wave, m.fs, g.delay, complex(amp, 0)*g.phase, g.fd)
+			m.addPointEcho(echo, g.delay, complex(amp, 0)*g.phase, g.fd)
 		case g.density != nil:
 			sc.newClutterField(g).add(echo, 0)
 		}
@@ -344,7 +350,7 @@ func (sc *scene) window(workers int) Series {
 	s := Series{
 		RangeM0:    m.rangeOf(0),
 		RangeStepM: C / (2 * m.fs),
-		Echo:       echo, // x is not used after the compression
+		Echo:       echo[:m.n], // x is not used after the compression
 		ProfileDB:  make([]float64, m.n),
 	}
 	for k := range m.n {
@@ -352,8 +358,10 @@ func (sc *scene) window(workers int) Series {
 		s.ProfileDB[k] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
 	}
 	dsp.PowersDB(s.ProfileDB, s.ProfileDB, dbFloor)
-	for k := 0; k < m.blankEnd(); k++ {
-		s.ProfileDB[k] = dbFloor
+	for k, ok := range m.processed {
+		if !ok {
+			s.ProfileDB[k] = dbFloor
+		}
 	}
 	return s
 }
@@ -369,7 +377,12 @@ func (sc *scene) levels(s *Series) {
 		for k := range p {
 			p[k] = 1 + sc.total[k]
 		}
-		th := cf.Thresholds(s.ThresholdDB, p)
+		th := cf.ThresholdsValid(s.ThresholdDB, p, m.processed)
+		for k, ok := range m.processed { // no training cell: no threshold
+			if !ok || math.IsInf(th[k], 1) {
+				th[k] = 0
+			}
+		}
 		dsp.PowersDB(th, th, dbFloor)
 	} else {
 		t := toDB(dsp.FixedMultiplier(m.s.Receiver.Detector.PFA))
@@ -378,9 +391,37 @@ func (sc *scene) levels(s *Series) {
 		}
 	}
 	dsp.PowersDB(s.CleanDB, sc.total, dbFloor)
-	for k := 0; k < m.blankEnd(); k++ {
-		s.CleanDB[k] = dbFloor
+	for k, ok := range m.processed { // unprocessed gates hold no data
+		if !ok {
+			s.CleanDB[k], s.ThresholdDB[k] = dbFloor, dbFloor
+		}
 	}
+}
+
+// addPointEcho adds a point echo to the raw record (dsp.AddEcho's delay,
+// amplitude and Doppler) as the receiver hears it: directly when its
+// Doppler is inside the band, otherwise band-limited on a local buffer.
+func (m *model) addPointEcho(rec []complex128, delay float64, amp complex128, fd float64) {
+	if math.Abs(fd) < m.fs/2 {
+		dsp.AddEcho(rec, m.wave, m.fs, delay, amp, fd)
+		return
+	}
+	b := int(math.Floor(delay*m.fs)) - len(m.ref)
+	buf := make([]complex128, len(m.pulse)+2*len(m.ref)+2)
+	m.addEcho(buf, delay-float64(b)/m.fs, amp, fd)
+	for i, v := range buf {
+		if k := b + i; k >= 0 && k < len(rec) {
+			rec[k] += v
+		}
+	}
+}
+
+// bandWords says what the receiver band does to an out-of-band target.
+func bandWords(g *tgt) string {
+	if g.rejected {
+		return "its echo is rejected"
+	}
+	return fmt.Sprintf("only part of its echo passes, %.1f dB lost", g.bandLossDB)
 }
 
 // response returns the zero-Doppler response of the waveform alone: the

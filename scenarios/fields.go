@@ -97,7 +97,7 @@ func (o *object) finishKind(kind string, fields []string) {
 	known := append([]string{"kind"}, fields...)
 	for k := range o.raw {
 		if !o.used[k] {
-			o.errs.add(o.sub(k), "not a field of kind %q (its fields: %s)", kind, strings.Join(known, ", "))
+			o.errs.add(o.sub(Clip(k, echoLen)), "not a field of kind %q (its fields: %s)", kind, strings.Join(known, ", "))
 		}
 	}
 }

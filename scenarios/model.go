@@ -32,6 +32,12 @@ type model struct {
 	dop         map[float64]dopFigure // Doppler loss and shift by Doppler shift
 	dopPlan     *dsp.DopplerPlan
 	winCorr     *dsp.Correlator // compression plan of the whole window, kept across frames
+	// The raw record and its blanking (docs/detection.md §1).
+	recLen    int      // raw samples recorded: window samples 0 … recLen−1
+	blanks    [][2]int // transmit intervals [lo, hi) in raw samples, within [0, recLen)
+	processed []bool   // per gate: its sample time lies in no transmit interval
+	cfar      *dsp.CFAR
+	rho       []complex128 // noise correlation of the reference by lag, up to the CFAR span
 }
 
 // dopFigure is the Doppler response of the reference at one Doppler shift.
@@ -161,7 +167,15 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 			m.fig, m.dop, m.dopPlan = prev.fig, prev.dop, prev.dopPlan
 			m.warnings = append(m.warnings, prev.refWarnings...)
 			m.refWarnings = prev.refWarnings
+			if prev.rho != nil && len(prev.rho) == rhoLags(s, len(m.ref)) {
+				m.rho = prev.rho
+				// The detector plan keeps the multipliers it has solved.
+				if s.Receiver.Detector == prev.s.Receiver.Detector {
+					m.cfar = prev.cfar
+				}
+			}
 			m.checkSampling()
+			m.record()
 			return m, nil
 		}
 	} else {
@@ -195,7 +209,89 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 		return nil, fmt.Errorf("receive reference has no energy: %w", ErrInvalid)
 	}
 	m.checkSampling()
+	m.record()
 	return m, nil
+}
+
+// record sets the raw record's length, its transmit intervals and the
+// processed gates (docs/detection.md §1): the record runs
+// len(ref)−1−lead samples past the last gate, so every gate is compressed
+// in full; raw sample j at t = t0 + j/fs is blanked when t lies in
+// [q·PRI, q·PRI + τ) for a pulse q ≥ 0, in samples
+// [⌈(q·PRI − t0)·fs⌉, ⌈(q·PRI + τ − t0)·fs⌉).
+func (m *model) record() {
+	m.recLen = m.n + max(len(m.ref)-1-m.lead, 0)
+	pri := m.s.Radar.PRIS
+	m.blanks = m.blanks[:0]
+	tEnd := m.t0 + float64(m.recLen)/m.fs
+	for q := max(math.Floor(m.t0/pri)-1, 0); q*pri < tEnd; q++ {
+		lo := int(math.Max(ceilSnap((q*pri-m.t0)*m.fs), 0))
+		hi := int(math.Min(math.Max(ceilSnap((q*pri+m.tau-m.t0)*m.fs), 0), float64(m.recLen)))
+		if lo < hi {
+			m.blanks = append(m.blanks, [2]int{lo, hi})
+		}
+	}
+	m.processed = make([]bool, m.n)
+	for k := range m.processed {
+		m.processed[k] = true
+	}
+	for _, b := range m.blanks {
+		for k := b[0]; k < min(b[1], m.n); k++ {
+			m.processed[k] = false
+		}
+	}
+}
+
+// ceilSnap is ⌈x⌉ with x within 1e-9 (relative) of a whole number taken
+// as that number, so that τ·fs = 100 does not become 101 by rounding.
+func ceilSnap(x float64) float64 {
+	if r := math.Round(x); math.Abs(x-r) <= 1e-9*math.Max(1, math.Abs(r)) {
+		return r
+	}
+	return math.Ceil(x)
+}
+
+// blanked reports whether raw sample j is blanked or not recorded.
+func (m *model) blanked(j int) bool {
+	if j < 0 || j >= m.recLen {
+		return true
+	}
+	for _, b := range m.blanks {
+		if j >= b[0] && j < b[1] {
+			return true
+		}
+	}
+	return false
+}
+
+// heardFraction returns the fraction of an echo that starts at time
+// start after the transmit edge (s) and lasts τ which falls outside every
+// transmit interval [q·PRI, q·PRI + τ).
+func (m *model) heardFraction(start float64) float64 {
+	pri, tau := m.s.Radar.PRIS, m.tau
+	lost := 0.0
+	for q := math.Floor(start/pri) - 1; q*pri < start+tau; q++ {
+		lo, hi := math.Max(q*pri, start), math.Min(q*pri+tau, start+tau)
+		if hi > lo {
+			lost += hi - lo
+		}
+	}
+	return math.Max(0, 1-lost/tau)
+}
+
+// rhoLags returns how many lags of the noise correlation the detector
+// needs: its training span, at most the reference length.
+func rhoLags(s *Scenario, refLen int) int {
+	d := s.Receiver.Detector
+	return min(2*(d.GuardCells+d.TrainingCells/2)+1, refLen)
+}
+
+// noiseCorrelation returns ρ(m) of the reference over the detector's span.
+func (m *model) noiseCorrelation() []complex128 {
+	if m.rho == nil {
+		m.rho = dsp.NoiseCorrelation(make([]complex128, rhoLags(m.s, len(m.ref))), m.ref)
+	}
+	return m.rho
 }
 
 func (m *model) warn(format string, args ...any) {
@@ -211,6 +307,9 @@ func (m *model) checkSampling() {
 	if m.s.Waveform.Kind == KindCostas && m.fs < 2*B {
 		m.warn("costas hops span %s; sample at twice that or more to avoid aliasing the outer hops", hz(B))
 	}
+	if d := m.s.Receiver.Detector; (d.Kind == DetectorCA || d.Kind == DetectorOS) && float64(d.GuardCells+1) < m.fs/B {
+		m.warn("the CFAR's %d guard cells do not cover the main lobe, about %.0f samples to the null on each side at %.1f samples per 1/B: a target's own main lobe enters its training cells and masks it (self-masking); use at least %d guard cells", d.GuardCells, m.fs/B, m.fs/B, int(math.Ceil(m.fs/B))-1)
+	}
 	if start := m.s.Radar.WindowStartM; start > 0 && start < C*m.tau/2 {
 		m.warn("the receive window starts at %.0f m, inside the %.0f m blind range of the %s pulse: the receiver is blanked there", m.s.Radar.WindowStartM, C*m.tau/2, sec(m.tau))
 	}
@@ -221,13 +320,6 @@ func (m *model) rangeOf(k float64) float64 { return C * (m.t0 + k/m.fs) / 2 }
 
 // sampleOf returns the (fractional) window sample of a range in m.
 func (m *model) sampleOf(r float64) float64 { return (2*r/C - m.t0) * m.fs }
-
-// blankEnd returns the first window sample the receiver hears: samples
-// before it fall inside the transmit pulse.
-func (m *model) blankEnd() int {
-	k := math.Ceil((m.tau - m.t0) * m.fs)
-	return int(math.Min(math.Max(k, 0), float64(m.n)))
-}
 
 // fold returns the apparent range of a true range r and the number of
 // PRIs it folds by.
@@ -244,4 +336,16 @@ func km(r float64) string {
 		return fmt.Sprintf("%.2f km", r/1000)
 	}
 	return fmt.Sprintf("%.0f m", r)
+}
+
+// addEcho adds a point echo to dst (dsp.AddEcho's arguments) as the
+// receiver hears it and returns the fraction of its energy inside the
+// receiver's band: 1 when |f_d| < fs/2 (sampled directly); otherwise the
+// echo is first limited to the band [−fs/2, fs/2) (docs/detection.md §2).
+func (m *model) addEcho(dst []complex128, delay float64, amp complex128, fd float64) float64 {
+	if math.Abs(fd) < m.fs/2 {
+		dsp.AddEcho(dst, m.wave, m.fs, delay, amp, fd)
+		return 1
+	}
+	return dsp.AddEchoInBand(dst, m.wave, m.fs, delay, amp, fd, m.s.Waveform.Bandwidth())
 }

@@ -28,7 +28,7 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 	id := g.t.ID
 	switch v.status {
 	case StatusDetected:
-		return fmt.Sprintf("Detected: its peak, %.1f dB above noise, clears the %s threshold by %.1f dB.", dsp.DB(v.peak), det, *tr.MarginDB)
+		return fmt.Sprintf("Detected: its peak, %.1f dB above noise, clears the %s threshold by %.1f dB.", dsp.DB(v.peak), det, *tr.MarginDB) + sc.lossWords(g)
 	case StatusOutOfWindow:
 		if g.t.Kind == TargetPoint && g.folds > 0 {
 			where := "outside the receive window"
@@ -43,13 +43,23 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		return fmt.Sprintf("Outside the receive window %s–%s: at %s its peak is not recorded.", km(r.WindowStartM), km(r.WindowStopM), km(g.rangeM))
 	case StatusEclipsed:
 		blind := C * m.tau / 2
-		heard := "its range gates are not processed"
-		if g.t.Kind == TargetPoint {
-			heard = fmt.Sprintf("only %.0f %% of its echo is heard (%.1f dB lost) and its range gate is not processed", 100*g.received, m.eclipseLossDB(g))
+		if g.t.Kind != TargetPoint {
+			return fmt.Sprintf("Eclipsed: it lies inside the %s blind range of the %s pulse; the receiver is blanked while transmitting, so its range gates are not processed.", km(blind), sec(m.tau))
 		}
-		return fmt.Sprintf("Eclipsed: at %s it lies inside the %s blind range of the %s pulse; the receiver is blanked while transmitting, so %s.", km(g.apparent), km(blind), sec(m.tau), heard)
+		which := sc.whichPulse(g)
+		if g.received <= 0 {
+			return fmt.Sprintf("Eclipsed: at %s its whole echo arrives while %s is transmitted; the receiver is blanked then, so none of it is heard.", km(g.apparent), which)
+		}
+		if v.peakK < 0 || v.peak <= 0 {
+			return fmt.Sprintf("Eclipsed: at %s, inside the %s blind range of the %s pulse, none of its response reaches a processed range gate (the receiver is blanked while transmitting); %.0f %% of its echo is heard.", km(g.apparent), km(blind), sec(m.tau), 100*g.received)
+		}
+		l, _ := g.eclipseLossDB(sc.m.processed)
+		return fmt.Sprintf("Eclipsed: only %.0f %% of its echo is heard, the rest arrives while %s is transmitted; the %.1f dB lost leaves its peak on the processed range gates %.1f dB under the %s threshold, while without that loss it would clear the threshold against noise alone by %.1f dB.", 100*g.received, which, l, -dsp.DB(v.peak/v.threshold), det, dsp.DB(v.unblanked/v.noiseLevel))
 	case StatusBelowNoise:
-		return fmt.Sprintf("Below noise: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone.", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel))
+		if g.rejected {
+			return fmt.Sprintf("Below noise: its Doppler shift of %s lies outside the receiver's band of ±%s, which rejects its echo entirely.", hz(g.fd), hz(m.fs/2))
+		}
+		return fmt.Sprintf("Below noise: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone.", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel)) + sc.lossWords(g)
 	}
 	// Masked.
 	by := "the rest of the scene"
@@ -72,12 +82,41 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		return fmt.Sprintf("Masked by %s: its %s puts %.1f dB more power into %s's cell than %s's own peak, which would clear the noise-only threshold by %.1f dB.",
 			by, what, dsp.DB(v.cell/v.peak), id, id, clear)
 	}
-	cells := fmt.Sprintf("%d training cells", cf.Train)
+	cells := fmt.Sprintf("%d training cells", v.cells)
 	if sc.train != nil && sc.train.cfar() != nil {
-		cells = fmt.Sprintf("%d training cells around it on the range–Doppler map", c2DCells(sc.train.cfar()))
+		cells = fmt.Sprintf("%d training cells around it on the range–Doppler map", v.cells)
+	}
+	if other == g && g.t.Kind != TargetPoint {
+		return fmt.Sprintf("Masked by itself: its own return, spread over its extent, fills the %s's %s and lifts the threshold %.1f dB above its strongest cell, which would clear the noise-only threshold by %.1f dB; a cell-averaging detector does not single out a return wider than its training window.",
+			det, cells, dsp.DB(v.threshold/v.peak), clear)
+	}
+	if other == g {
+		return fmt.Sprintf("Masked by its own range sidelobes: its own response fills the %s's %s and lifts the threshold %.1f dB above its peak, which would clear the noise-only threshold by %.1f dB.",
+			det, cells, dsp.DB(v.threshold/v.peak), clear) + sc.lossWords(g)
 	}
 	return fmt.Sprintf("Masked by %s through the %s: its echo in the %s lifts the threshold %.1f dB above %s's peak, which would clear the noise-only threshold by %.1f dB.",
-		by, det, cells, dsp.DB(v.threshold/v.peak), id, clear)
+		by, det, cells, dsp.DB(v.threshold/v.peak), id, clear) + sc.lossWords(g)
+}
+
+// whichPulse names the transmit pulse that eclipses a point target.
+func (sc *scene) whichPulse(g *tgt) string {
+	if g.apparent < C*sc.m.tau/2 {
+		return "the pulse"
+	}
+	return "the next pulse"
+}
+
+// lossWords returns the sentences naming a target's stated physical
+// losses (eclipsing, receiver band), or "".
+func (sc *scene) lossWords(g *tgt) string {
+	out := ""
+	if l, ok := g.eclipseLossDB(sc.m.processed); ok {
+		out += fmt.Sprintf(" Eclipsing costs %.1f dB: %.0f %% of its echo is heard, the rest arrives while %s is transmitted.", l, 100*g.received, sc.whichPulse(g))
+	}
+	if g.outOfBand && !g.rejected && g.t.Kind == TargetPoint {
+		out += fmt.Sprintf(" Its Doppler shift of %s lies outside the receiver's band of ±%s: %.1f dB of its echo's energy is rejected.", hz(g.fd), hz(sc.m.fs/2), g.bandLossDB)
+	}
+	return out
 }
 
 // resolution returns the mainlobe half-width between nulls as a range, m:

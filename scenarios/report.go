@@ -57,6 +57,10 @@ type TargetReport struct {
 	SNRIntegratedDB      *float64 `json:"snr_integrated_db,omitempty"`       // pulse trains only
 	ApparentRangeRateMPS *float64 `json:"apparent_range_rate_mps,omitempty"` // pulse trains only
 	BlindSpeed           *bool    `json:"blind_speed,omitempty"`             // pulse trains only
+	// Stated physical losses (docs/detection.md §3), omitted when they
+	// do not apply.
+	EclipsingLossDB *float64 `json:"eclipsing_loss_db,omitempty"` // point target partly inside a transmit interval
+	BandLossDB      *float64 `json:"band_loss_db,omitempty"`      // point target with |Doppler| ≥ fs/2: energy outside the receiver's band
 }
 
 // Result is a report with the series the page plots.

@@ -42,6 +42,21 @@ func (r *response) peak() (int, float64) {
 	return bk, best
 }
 
+// peakIn returns the processed gate of the largest power and that power
+// (docs/detection.md §2: a target's peak cell); -1 when no processed gate
+// holds power. Powers within 1e-9 (relative) of each other tie, and the
+// first gate wins: a flat-topped response (a short pulse against a
+// tapered reference) has several equal gates up to rounding.
+func (r *response) peakIn(processed []bool) (int, float64) {
+	best, bk := 0.0, -1
+	for i, p := range r.pow {
+		if p > best*(1+1e-9) && processed[r.lo+i] {
+			best, bk = p, r.lo+i
+		}
+	}
+	return bk, best
+}
+
 // scene is the noise-free analysis of every target.
 type scene struct {
 	m       *model
@@ -70,10 +85,20 @@ type tgt struct {
 	amp      float64    // point: echo amplitude for the mean RCS, √(noise power) units
 	phase    complex128 // point: carrier phase of the echo
 	delay    float64    // point: echo leading edge after window sample 0, s
-	received float64    // point: fraction of the pulse heard after blanking
-	resp     response
-	density  []float64
-	dlo      int
+	received float64    // point: fraction of the pulse's duration heard outside the transmit intervals
+	// Point targets: blankTouched when blanking removed part of the echo,
+	// unblankedPeak the peak over the gates of the same echo unblanked
+	// (docs/detection.md §3).
+	blankTouched  bool
+	unblankedPeak float64
+	// Receiver band (docs/detection.md §2): bandLossDB when |f_d| ≥ fs/2,
+	// rejected when the echo lies wholly outside the band.
+	outOfBand  bool
+	bandLossDB float64
+	rejected   bool
+	resp       response
+	density    []float64
+	dlo        int
 }
 
 func streamOf(seed int64, id string, salt uint64) *rand.Rand {
@@ -127,7 +152,7 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 		if n == 0 && focus >= 0 {
 			sc.partial = true
 			sc.reachLo, sc.reachHi = 0, 0
-			if k, _ := g.resp.peak(); k >= 0 {
+			if k, _ := g.resp.peakIn(m.processed); k >= 0 {
 				sc.reachLo, sc.reachHi = k, k+1
 				if cf := m.detector(); cf != nil {
 					sc.reachLo, _, _, sc.reachHi = cf.TrainingCells(k, m.n)
@@ -147,9 +172,9 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 // at local sample len(ref) (plus a fraction), so the response, non-zero
 // at lags 0 … len(pulse)+len(ref), fits.
 type localPlan struct {
-	m    *model
-	c    *dsp.Correlator
-	x, y []complex128
+	m       *model
+	c       *dsp.Correlator
+	x, y, u []complex128
 }
 
 func (lp *localPlan) size() int { return len(lp.m.pulse) + len(lp.m.ref) + 2 }
@@ -179,14 +204,13 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 	g.phase = cmplx.Rect(1, -4*math.Pi*math.Mod(g.t.RangeM/m.lambda, 1))
 	start := 2 * g.apparent / C // echo leading edge after the transmit edge, s
 	g.delay = start - m.t0
-	g.received = 1
-	if start < m.tau {
-		g.received = math.Max(0, start/m.tau)
-	}
+	g.received = m.heardFraction(start)
+	g.outOfBand = math.Abs(g.fd) >= m.fs/2
 	d := g.delay * m.fs
 	b := int(math.Floor(d)) - len(m.ref)
 	// Output j of the local buffer is window sample b+j+lead.
-	lo, hi := max(b+m.lead, 0), min(b+m.lead+lp.size(), m.n)
+	full0, full1 := max(b+m.lead, 0), min(b+m.lead+lp.size(), m.n)
+	lo, hi := full0, full1
 	if sc.partial {
 		lo, hi = max(lo, sc.reachLo), min(hi, sc.reachHi)
 	}
@@ -195,9 +219,37 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 	}
 	lp.ensure()
 	clear(lp.x)
-	dsp.AddEcho(lp.x, m.wave, m.fs, g.delay-float64(b)/m.fs, complex(g.amp, 0)*g.phase, g.fd)
+	in := m.addEcho(lp.x, g.delay-float64(b)/m.fs, complex(g.amp, 0)*g.phase, g.fd)
+	if g.outOfBand {
+		if in < 1e-12 {
+			g.rejected = true
+		} else {
+			g.bandLossDB = -dsp.DB(in)
+		}
+	}
+	// Outside the raw record nothing is recorded; blanking is what the
+	// transmit intervals then remove (docs/detection.md §1, §3).
+	for i := range lp.x {
+		if k := b + i; k < 0 || k >= m.recLen {
+			lp.x[i] = 0
+		}
+	}
+	e0 := energy(lp.x)
+	if lp.u == nil {
+		lp.u = make([]complex128, len(lp.x))
+	}
+	copy(lp.u, lp.x)
 	sc.blank(lp.x, b)
+	g.blankTouched = e0 > 0 && energy(lp.x) < e0*(1-1e-12)
 	g.resp = response{lo: lo, pow: make([]float64, hi-lo)}
+	if g.blankTouched && !sc.partial {
+		// The same echo unblanked (lp.u, limited to the record).
+		lp.c.Apply(lp.y, lp.u)
+		for k := full0; k < full1; k++ {
+			v := lp.y[k-b-m.lead]
+			g.unblankedPeak = max(g.unblankedPeak, (real(v)*real(v)+imag(v)*imag(v))/m.noiseGain)
+		}
+	}
 	if n := lp.size(); sc.partial && (hi-lo)*len(m.ref) <= 2*n*bits.Len(uint(n)) {
 		// A few cells: direct sums cost less than the FFT pair,
 		// about 2·n·log2(n) multiply-adds.
@@ -212,6 +264,14 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 		v := lp.y[k-b-m.lead]
 		g.resp.pow[k-lo] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
 	}
+}
+
+func energy(x []complex128) float64 {
+	e := 0.0
+	for _, v := range x {
+		e += real(v)*real(v) + imag(v)*imag(v)
+	}
+	return e
 }
 
 // correlateAt returns Σ_i x[j+i]·conj(h[i]) with x zero beyond its end:
@@ -231,14 +291,19 @@ func correlateAt(x, h []complex128, j int) complex128 {
 	return complex(re, im)
 }
 
-// blank zeroes the samples of a buffer starting at window sample b that
-// the receiver does not record: inside the transmit pulse or outside the
-// window.
+// blank zeroes the samples of a buffer starting at raw sample b that the
+// receiver does not record: inside a transmit interval, before the window
+// or past the raw record (docs/detection.md §1).
 func (sc *scene) blank(x []complex128, b int) {
-	end := sc.m.blankEnd()
+	m := sc.m
 	for i := range x {
-		if k := b + i; k < end || k >= sc.m.n {
+		if k := b + i; k < 0 || k >= m.recLen {
 			x[i] = 0
+		}
+	}
+	for _, bl := range m.blanks {
+		for k := max(bl[0], b); k < min(bl[1], b+len(x)); k++ {
+			x[k-b] = 0
 		}
 	}
 }
@@ -261,7 +326,6 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 	}
 	k0 := 1 / m.noiseW * r.PeakPowerW * math.Pow(dsp.FromDB(r.AntennaGainDBi), 2) * m.lambda * m.lambda /
 		(math.Pow(4*math.Pi, 3) * dsp.FromDB(r.SystemLossDB))
-	end := m.blankEnd()
 	first := int(math.Floor(g.t.RangeStartM / m.unambM))
 	last := int(math.Floor(g.t.RangeStopM / m.unambM))
 	if last-first >= maxFolds {
@@ -301,7 +365,7 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 			// Range slab of sample k: [rk−dr/2, rk+dr/2) clipped to the target.
 			rk := m.rangeOf(float64(k)) + base
 			s0, s1 := math.Max(rk-dr/2, g.t.RangeStartM), math.Min(rk+dr/2, g.t.RangeStopM)
-			if s1 <= s0 || k < end || rk <= 0 {
+			if s1 <= s0 || !m.processed[k] || rk <= 0 {
 				continue
 			}
 			density[k-klo] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4)

@@ -17,12 +17,14 @@ type verdict struct {
 	threshold  float64 // max(sceneLevel, cell)
 	culprit    int     // index of the target that masks it, -1 if none
 	byCell     bool    // masked by power at its very cell (sidelobe or mainlobe) rather than through the CFAR
+	cells      int     // training cells used at the peak cell
+	unblanked  float64 // the peak of its echo without blanking (same units as peak), 0 when not blanked
 }
 
 // margin returns the peak over the threshold in dB, or nil when the target
 // has no peak in the window.
 func (v *verdict) margin() *float64 {
-	if v.peakK < 0 || v.peak <= 0 || v.status == StatusEclipsed || v.status == StatusOutOfWindow && v.threshold == 0 {
+	if v.peakK < 0 || v.peak <= 0 || v.status == StatusEclipsed || v.status == StatusOutOfWindow || math.IsInf(v.threshold, 1) {
 		return nil
 	}
 	m := dsp.DB(v.peak / v.threshold)
@@ -30,42 +32,52 @@ func (v *verdict) margin() *float64 {
 }
 
 // detector returns the CFAR plan of the scenario, or nil for a fixed
-// threshold.
+// threshold. The plan knows the noise correlation between gates, so its
+// multipliers hold the false-alarm probability at any oversampling; it is
+// kept for the model's lifetime, with the multipliers it has solved.
 func (m *model) detector() *dsp.CFAR {
 	d := m.s.Receiver.Detector
-	switch d.Kind {
-	case DetectorCA:
-		return &dsp.CFAR{PFA: d.PFA, Guard: d.GuardCells, Train: d.TrainingCells}
-	case DetectorOS:
-		return &dsp.CFAR{PFA: d.PFA, Guard: d.GuardCells, Train: d.TrainingCells, Rank: d.Rank}
+	if d.Kind != DetectorCA && d.Kind != DetectorOS {
+		return nil
 	}
-	return nil
+	if m.cfar == nil {
+		m.cfar = &dsp.CFAR{PFA: d.PFA, Guard: d.GuardCells, Train: d.TrainingCells, Rho: m.noiseCorrelation()}
+		if d.Kind == DetectorOS {
+			m.cfar.Rank = d.Rank
+		}
+	}
+	return m.cfar
 }
 
-// level returns the detector's threshold at window sample k when the
-// training cells hold 1 (noise) plus extra(i) at sample i.
+// level returns the detector's threshold at gate k when the training cells
+// hold 1 (noise) plus extra(i) at gate i; only processed gates train.
 func (sc *scene) level(cf *dsp.CFAR, k int, extra func(i int) float64) float64 {
 	if cf == nil {
 		return dsp.FixedMultiplier(sc.m.s.Receiver.Detector.PFA)
 	}
 	lo1, _, _, hi2 := cf.TrainingCells(k, sc.m.n)
+	lo1, hi2 = min(lo1, k), max(hi2, k+1)
 	loc := make([]float64, hi2-lo1)
 	for i := range loc {
 		loc[i] = 1 + extra(lo1+i)
 	}
-	return cf.Level(loc, k-lo1)
+	return cf.LevelValid(loc, sc.m.processed[lo1:hi2], k-lo1)
 }
 
-// judge decides the status of target j on the noise-free scene, as the
-// report format defines it.
+// judge decides the status of target j on the noise-free scene, as
+// docs/detection.md §6 defines it.
 func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 	g := sc.targets[j]
 	v := verdict{culprit: -1}
-	v.peakK, v.peak = g.resp.peak()
+	v.peakK, v.peak = g.resp.peakIn(sc.m.processed)
+	v.unblanked = g.unblankedPeak
 	others := func(i int) float64 { return math.Max(sc.total[i]-g.resp.at(i), 0) }
 	if v.peakK >= 0 {
 		v.noiseLevel = sc.level(cf, v.peakK, func(int) float64 { return 0 })
-		v.sceneLevel = sc.level(cf, v.peakK, others)
+		if cf != nil {
+			v.cells = len(cf.Cells(nil, v.peakK, sc.m.n, sc.m.processed))
+		}
+		v.sceneLevel = sc.level(cf, v.peakK, func(i int) float64 { return sc.total[i] })
 		v.cell = others(v.peakK)
 		v.threshold = math.Max(v.sceneLevel, v.cell)
 	}
@@ -76,17 +88,23 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 }
 
 // decide sets the status of a verdict whose peak and thresholds are
-// measured, as the report format orders the cases, and returns it.
+// measured, in the order of docs/detection.md §6, and returns it.
 func (sc *scene) decide(g *tgt, v *verdict) string {
 	switch {
 	case sc.outOfWindow(g):
 		v.status = StatusOutOfWindow
-	case sc.inBlind(g):
+	case g.t.Kind == TargetPoint && g.blankTouched && (g.received <= 0 || v.peakK < 0 || v.peak <= 0):
+		v.status = StatusEclipsed // wholly eclipsed
+	case g.t.Kind != TargetPoint && sc.inBlind(g):
 		v.status = StatusEclipsed
+	case g.rejected:
+		v.status = StatusBelowNoise // wholly outside the receiver's band
 	case v.peakK < 0 || v.peak <= 0:
 		v.status = StatusOutOfWindow
 	case v.peak >= v.threshold:
 		v.status = StatusDetected
+	case g.blankTouched && v.unblanked >= v.noiseLevel:
+		v.status = StatusEclipsed // the eclipsing loss decides
 	case v.peak < v.noiseLevel:
 		v.status = StatusBelowNoise
 	default:
@@ -106,36 +124,44 @@ func (sc *scene) outOfWindow(g *tgt) bool {
 	return g.t.RangeStartM >= sc.m.unambM || g.t.RangeStopM < r.WindowStartM || g.t.RangeStartM > r.WindowStopM
 }
 
-// inBlind reports whether a target lies in the blind range c·τ/2, where
-// range gates are not processed because the receiver is blanked while the
-// pulse is transmitted: a point target's range, or the whole extent of a
-// distributed one.
+// inBlind reports whether a distributed target lies wholly in
+// unprocessed gates (or nearer than the first gate's blind range).
 func (sc *scene) inBlind(g *tgt) bool {
-	blind := C * sc.m.tau / 2
-	if g.t.Kind == TargetPoint {
-		return g.apparent < blind
+	if g.t.RangeStopM <= C*sc.m.tau/2 {
+		return true
 	}
-	return g.t.RangeStopM <= blind
+	m := sc.m
+	lo := max(int(math.Floor(m.sampleOf(g.t.RangeStartM))), 0)
+	hi := min(int(math.Ceil(m.sampleOf(g.t.RangeStopM))), m.n-1)
+	for k := lo; k <= hi; k++ {
+		if m.processed[k] {
+			return false
+		}
+	}
+	return lo <= hi
 }
 
 // culprit returns the index of the target that contributes most to what
-// masks target j: the power at its peak cell, or in its training cells.
+// masks target j (docs/detection.md §7): by cell, the power the others
+// put at its peak cell; through the CFAR, the power each target, itself
+// included, puts into the training cells actually used. Ties go to the
+// first target; -1 when nothing contributes.
 func (sc *scene) culprit(j int, v verdict, cf *dsp.CFAR) int {
 	best, bi := 0.0, -1
+	var offs []int
+	if !v.byCell && cf != nil {
+		offs = cf.Cells(nil, v.peakK, sc.m.n, sc.m.processed)
+	}
 	for i, g := range sc.targets {
-		if i == j {
-			continue
-		}
 		var c float64
 		if v.byCell || cf == nil {
+			if i == j {
+				continue
+			}
 			c = g.resp.at(v.peakK)
 		} else {
-			lo1, hi1, lo2, hi2 := cf.TrainingCells(v.peakK, sc.m.n)
-			for k := lo1; k < hi1; k++ {
-				c += g.resp.at(k)
-			}
-			for k := lo2; k < hi2; k++ {
-				c += g.resp.at(k)
+			for _, o := range offs {
+				c += g.resp.at(v.peakK + o)
 			}
 		}
 		if c > best {

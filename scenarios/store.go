@@ -10,6 +10,7 @@ import (
 	"io/fs"
 	"os"
 	"path/filepath"
+	"slices"
 	"sort"
 	"strings"
 	"sync"
@@ -27,6 +28,9 @@ const (
 	// MatchAny makes Put and Delete require that the name exists, at any
 	// revision.
 	MatchAny = "*"
+	// MatchNever is a precondition no revision meets (an If-Match that
+	// lists only weak tags).
+	MatchNever = "-"
 )
 
 // Saved describes one saved scenario.
@@ -40,30 +44,69 @@ type Saved struct {
 // Store keeps saved scenarios as one canonical JSON file each,
 // dir/NAME.json. Writes are atomic (temporary file, fsync, rename, fsync
 // of the directory), so a crash leaves either the old or the new file,
-// never a partial one. A Store is safe for concurrent use; writes to one
-// name are serialised.
+// never a partial one. A Store is safe for concurrent use, also by
+// several processes on one directory: each write checks its precondition
+// and replaces the file under a lock on the directory (flock(2) on
+// dir/.lock where the system has it), so an If-Match holds across
+// processes.
 type Store struct {
 	dir   string
-	locks [64]sync.Mutex // striped by name
+	locks [64]sync.Mutex // striped by name, within this process
+	flock dirLock        // across processes
 }
 
 // OpenStore opens, creating it if need be, the store in dir, and removes
-// temporary files that an interrupted write left behind.
+// temporary files that an interrupted write left behind: only when the
+// directory's lock is free at that moment (every writer holds it while
+// its temporary file exists, so none is in progress) and, without
+// flock(2), only files older than an hour.
 func OpenStore(dir string) (*Store, error) {
 	if dir == "" {
 		return nil, fmt.Errorf("open store: empty directory name")
 	}
 	if err := os.MkdirAll(dir, 0o700); err != nil {
-		return nil, fmt.Errorf("open store: %w", err)
+		return nil, fmt.Errorf("open store: %w", explainWrite(dir, err))
 	}
-	leftovers, err := filepath.Glob(filepath.Join(dir, ".*.tmp"))
+	st := &Store{dir: dir, flock: dirLock{filepath.Join(dir, ".lock")}}
+	if unlock, ok := st.flock.tryLock(); ok {
+		leftovers, _ := filepath.Glob(filepath.Join(dir, ".*.tmp"))
+		for _, f := range leftovers {
+			if fi, err := os.Lstat(f); err == nil && fi.Mode().IsRegular() && time.Since(fi.ModTime()) >= staleAfter {
+				os.Remove(f)
+			}
+		}
+		unlock()
+	}
+	return st, nil
+}
+
+// exclusive runs fn holding the lock of name in this process and the
+// directory's lock across processes.
+func (st *Store) exclusive(name string, fn func() error) error {
+	mu := st.lock(name)
+	mu.Lock()
+	defer mu.Unlock()
+	unlock, err := st.flock.lock()
 	if err != nil {
-		return nil, fmt.Errorf("open store: %w", err)
+		return fmt.Errorf("lock the store: %w", explainWrite(st.dir, err))
 	}
-	for _, f := range leftovers {
-		os.Remove(f)
+	defer unlock()
+	return fn()
+}
+
+// CheckWritable reports, with an error that says what to do, when the
+// store's directory cannot take a save: read-only, not writable by this
+// user, or full. It writes and removes a small temporary file.
+func (st *Store) CheckWritable() error {
+	f, err := os.CreateTemp(st.dir, ".probe.*.tmp")
+	if err == nil {
+		_, err = f.Write([]byte("probe\n"))
+		if cerr := f.Close(); err == nil {
+			err = cerr
+		}
+		os.Remove(f.Name())
 	}
-	return &Store{dir: dir}, nil
+	return explainWrite(st.dir, err)
 }
 
 // Dir returns the store's directory.
@@ -74,7 +117,7 @@ func (st *Store) Dir() string { return st.dir }
 // starting with '.' or '-'. The error wraps ErrInvalid.
 func ValidName(name string) error {
 	bad := func(why string) error {
-		return fmt.Errorf("scenario name %q %s: %w", name, why, ErrInvalid)
+		return fmt.Errorf("scenario name %s %s: %w", clipQ(name), why, ErrInvalid)
 	}
 	switch {
 	case name == "":
@@ -139,10 +182,32 @@ func (st *Store) List() ([]Saved, error) {
 	return out, nil
 }
 
+// read returns the bytes and time of name's file. It refuses anything
+// but a regular file: a symbolic link (which could point anywhere on the
+// machine), a directory or a device: checked with Lstat, opened without
+// following a link (O_NOFOLLOW where the system has it), and checked
+// again on the opened file.
 func (st *Store) read(name string) ([]byte, time.Time, error) {
-	f, err := os.Open(st.path(name))
+	p := st.path(name)
+	li, err := os.Lstat(p)
 	if errors.Is(err, fs.ErrNotExist) {
 		return nil, time.Time{}, fmt.Errorf("saved scenario %q: %w", name, ErrNotFound)
+	}
+	if err != nil {
+		return nil, time.Time{}, err
+	}
+	notRegular := func() error {
+		return fmt.Errorf("saved scenario %q: %s in %s is %w (a symbolic link, directory or device); the store reads only regular files", name, name+".json", st.dir, ErrNotRegular)
+	}
+	if !li.Mode().IsRegular() {
+		return nil, time.Time{}, notRegular()
+	}
+	f, err := os.OpenFile(p, os.O_RDONLY|noFollow, 0)
+	if errors.Is(err, fs.ErrNotExist) {
+		return nil, time.Time{}, fmt.Errorf("saved scenario %q: %w", name, ErrNotFound)
+	}
+	if isLinkRefused(err) {
+		return nil, time.Time{}, notRegular() // a link swapped in after the Lstat
 	}
 	if err != nil {
 		return nil, time.Time{}, err
@@ -151,6 +216,9 @@ func (st *Store) read(name string) ([]byte, time.Time, error) {
 	fi, err := f.Stat()
 	if err != nil {
 		return nil, time.Time{}, err
+	}
+	if !fi.Mode().IsRegular() {
+		return nil, time.Time{}, notRegular()
 	}
 	if fi.Size() > MaxDocumentBytes {
 		return nil, time.Time{}, fmt.Errorf("saved scenario %q: %d bytes: %w", name, fi.Size(), ErrTooLarge)
@@ -188,7 +256,9 @@ func (st *Store) check(name, match string) (exists bool, err error) {
 		return false, err
 	case match == MatchNone:
 		return true, fmt.Errorf("saved scenario %q already exists; give its revision to replace it: %w", name, ErrConflict)
-	case match != MatchAny && match != revision(data):
+	case match == MatchNever:
+		return true, fmt.Errorf("saved scenario %q: a weak entity tag never matches (If-Match compares strongly); send the ETag as given: %w", name, ErrConflict)
+	case match != MatchAny && !slices.Contains(strings.Split(match, ","), revision(data)):
 		return true, fmt.Errorf("saved scenario %q changed since revision %s (now %s): %w", name, match, revision(data), ErrConflict)
 	}
 	return true, nil
@@ -196,7 +266,7 @@ func (st *Store) check(name, match string) (exists bool, err error) {
 
 // Put saves s under name as canonical JSON. match is MatchNone to create
 // a new name, MatchAny to replace an existing one, or the revision the
-// caller last read; a failed precondition gives an error wrapping
+// caller last read (or several, comma-separated: any of them will do); a failed precondition gives an error wrapping
 // ErrConflict. It reports whether the name was created.
 func (st *Store) Put(name string, s *Scenario, match string) (Saved, bool, error) {
 	if err := ValidName(name); err != nil {
@@ -207,15 +277,19 @@ func (st *Store) Put(name string, s *Scenario, match string) (Saved, bool, error
 		return Saved{}, false, fmt.Errorf("save scenario %q: %w", name, err)
 	}
 	data = append(data, '\n')
-	mu := st.lock(name)
-	mu.Lock()
-	defer mu.Unlock()
-	exists, err := st.check(name, match)
+	var exists bool
+	err = st.exclusive(name, func() error {
+		var err error
+		if exists, err = st.check(name, match); err != nil {
+			return err
+		}
+		if err := st.writeAtomic(name, data); err != nil {
+			return fmt.Errorf("save scenario %q: %w", name, explainWrite(st.dir, err))
+		}
+		return nil
+	})
 	if err != nil {
 		return Saved{}, false, err
-	}
-	if err := st.writeAtomic(name, data); err != nil {
-		return Saved{}, false, fmt.Errorf("save scenario %q: %w", name, err)
 	}
 	return describeSaved(name, data, time.Now()), !exists, nil
 }
@@ -268,17 +342,16 @@ func (st *Store) Delete(name, match string) error {
 	if match == MatchNone {
 		match = MatchAny
 	}
-	mu := st.lock(name)
-	mu.Lock()
-	defer mu.Unlock()
-	if _, _, err := st.read(name); err != nil {
-		return err
-	}
-	if _, err := st.check(name, match); err != nil {
-		return err
-	}
-	if err := os.Remove(st.path(name)); err != nil {
-		return fmt.Errorf("delete saved scenario %q: %w", name, err)
-	}
-	return st.syncDir()
+	return st.exclusive(name, func() error {
+		if _, _, err := st.read(name); err != nil {
+			return err
+		}
+		if _, err := st.check(name, match); err != nil {
+			return err
+		}
+		if err := os.Remove(st.path(name)); err != nil {
+			return fmt.Errorf("delete saved scenario %q: %w", name, explainWrite(st.dir, err))
+		}
+		return st.syncDir()
+	})
 }

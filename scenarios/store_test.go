@@ -3,7 +3,9 @@ package scenarios
 import (
 	"errors"
 	"os"
+	"os/exec"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"sync"
 	"testing"
@@ -113,7 +115,7 @@ func TestStoreConcurrent(t *testing.T) {
 	if wins["one"] != 1 || wins["two"] != 1 {
 		t.Fatalf("creates that won: %v, want exactly one per name", wins)
 	}
-	files, _ := filepath.Glob(filepath.Join(dir, "*"))
+	files, _ := filepath.Glob(filepath.Join(dir, "*.json"))
 	if len(files) != 2 {
 		t.Fatalf("files left: %v", files)
 	}
@@ -125,5 +127,119 @@ func TestStoreConcurrent(t *testing.T) {
 		if _, err := Decode(data); err != nil {
 			t.Errorf("%s: %v", f, err)
 		}
+	}
+}
+
+// TestStoreHelperProcess is the child of TestStoreAcrossProcesses: with
+// PULSEWRIGHT_STORE_HELPER=DIR it adds 1 to the seed of DIR's "counter"
+// PULSEWRIGHT_STORE_ROUNDS times, each a read and a Put with If-Match of
+// the revision read, again on a conflict.
+func TestStoreHelperProcess(t *testing.T) {
+	dir := os.Getenv("PULSEWRIGHT_STORE_HELPER")
+	if dir == "" {
+		t.Skip("child process of TestStoreAcrossProcesses")
+	}
+	rounds, _ := strconv.Atoi(os.Getenv("PULSEWRIGHT_STORE_ROUNDS"))
+	st, err := OpenStore(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for done := 0; done < rounds; {
+		data, saved, err := st.Get("counter")
+		if err != nil {
+			t.Fatal(err)
+		}
+		s, err := Decode(data)
+		if err != nil {
+			t.Fatal(err)
+		}
+		s.Seed++
+		_, _, err = st.Put("counter", s, saved.Revision)
+		switch {
+		case errors.Is(err, ErrConflict):
+			continue
+		case err != nil:
+			t.Fatal(err)
+		}
+		done++
+	}
+}
+
+// TestStoreAcrossProcesses runs two processes (this test binary again)
+// that increment one saved scenario with If-Match: no increment may be
+// lost, so the final seed is the sum of their rounds. Without a lock
+// across processes both read a revision, both pass the check and one
+// write silently replaces the other.
+func TestStoreAcrossProcesses(t *testing.T) {
+	dir := t.TempDir()
+	st, err := OpenStore(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := mustLoadDemo(t, DefaultDemo)
+	s.Seed = 0
+	if _, _, err := st.Put("counter", s, MatchNone); err != nil {
+		t.Fatal(err)
+	}
+	const procs, rounds = 2, 60
+	var cmds []*exec.Cmd
+	for range procs {
+		cmd := exec.Command(os.Args[0], "-test.run=^TestStoreHelperProcess$")
+		cmd.Env = append(os.Environ(), "PULSEWRIGHT_STORE_HELPER="+dir, "PULSEWRIGHT_STORE_ROUNDS="+strconv.Itoa(rounds))
+		cmd.Stdout, cmd.Stderr = os.Stderr, os.Stderr
+		if err := cmd.Start(); err != nil {
+			t.Fatal(err)
+		}
+		cmds = append(cmds, cmd)
+	}
+	for _, c := range cmds {
+		if err := c.Wait(); err != nil {
+			t.Fatal(err)
+		}
+	}
+	data, _, err := st.Get("counter")
+	if err != nil {
+		t.Fatal(err)
+	}
+	got, err := Decode(data)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got.Seed != procs*rounds {
+		t.Fatalf("seed %d after %d increments: %d lost", got.Seed, procs*rounds, procs*rounds-int(got.Seed))
+	}
+}
+
+// TestStoreKeepsLiveTempFiles: opening a store while another process's
+// write is in progress (it holds the directory's lock and its temporary
+// file exists) must not remove that file; once the lock is free, a
+// leftover is removed.
+func TestStoreKeepsLiveTempFiles(t *testing.T) {
+	dir := t.TempDir()
+	st, err := OpenStore(dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	tmp := filepath.Join(dir, ".skiff.12345.tmp")
+	os.WriteFile(tmp, []byte("{"), 0o600)
+	unlock, err := st.flock.lock()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := OpenStore(dir); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := os.Stat(tmp); err != nil {
+		t.Fatalf("a temporary file was removed while its writer held the lock: %v", err)
+	}
+	unlock()
+	if staleAfter > 0 {
+		return // without flock only old files go
+	}
+	if _, err := OpenStore(dir); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := os.Stat(tmp); err == nil {
+		t.Fatal("a stale temporary file was kept")
 	}
 }

@@ -25,6 +25,28 @@ type Axis struct {
 // value: a fixed setting such as receiver.window.kind=taylor). Values
 // that are not numbers are strings.
 func ParseAxis(spec string) (Axis, error) {
+	return parseAxis(spec, false)
+}
+
+// CountAxes returns the number of points of the grid the specs (as
+// ParseAxis reads them) span, without making their values, so that an
+// oversized grid is refused before any work: the product is checked at
+// each factor and never overflows. The error wraps ErrInvalid.
+func CountAxes(specs []string) (int, error) {
+	g := &Grid{}
+	for _, spec := range specs {
+		a, err := parseAxis(spec, true)
+		if err != nil {
+			return 0, err
+		}
+		g.Axes = append(g.Axes, a)
+	}
+	return g.Count()
+}
+
+// parseAxis is ParseAxis; with countOnly, Values has the right length
+// but holds nil values.
+func parseAxis(spec string, countOnly bool) (Axis, error) {
 	path, vals, ok := strings.Cut(spec, "=")
 	if !ok || path == "" || vals == "" {
 		return Axis{}, fmt.Errorf("sweep %q: want PATH=START:STOP:STEP, PATH=V1,V2,… or PATH=VALUE: %w", spec, ErrInvalid)
@@ -49,8 +71,12 @@ func ParseAxis(spec string) (Axis, error) {
 			return Axis{}, fmt.Errorf("sweep %s: step %g does not lead from %g to %g: %w", path, step, start, stop, ErrInvalid)
 		}
 		n := math.Floor((stop-start)/step+1e-6) + 1
-		if n > MaxSweepPoints {
+		if !(n <= MaxSweepPoints) { // NaN too
 			return Axis{}, fmt.Errorf("sweep %s: %g points is over the limit of %d: %w", path, n, MaxSweepPoints, ErrInvalid)
+		}
+		if countOnly {
+			a.Values = make([]json.RawMessage, int(n))
+			return a, nil
 		}
 		for i := 0; i < int(n); i++ {
 			v := start + float64(i)*step
@@ -59,7 +85,15 @@ func ParseAxis(spec string) (Axis, error) {
 			a.Values = append(a.Values, json.RawMessage(strconv.FormatFloat(v, 'g', -1, 64)))
 		}
 	case len(parts) == 1:
-		for _, v := range strings.Split(vals, ",") {
+		list := strings.Split(vals, ",")
+		if len(list) > MaxSweepPoints {
+			return Axis{}, fmt.Errorf("sweep %s: %d values is over the limit of %d: %w", path, len(list), MaxSweepPoints, ErrInvalid)
+		}
+		if countOnly {
+			a.Values = make([]json.RawMessage, len(list))
+			return a, nil
+		}
+		for _, v := range list {
 			a.Values = append(a.Values, ParseValue(v))
 		}
 	default:
@@ -85,13 +119,92 @@ type Grid struct {
 	Axes []Axis
 }
 
-// Len returns the number of points.
+// Len returns the number of points, or -1 when it is over
+// MaxSweepPoints (Count says by how much).
 func (g *Grid) Len() int {
-	n := 1
-	for _, a := range g.Axes {
-		n *= len(a.Values)
+	n, err := g.Count()
+	if err != nil {
+		return -1
 	}
 	return n
+}
+
+// Count returns the number of points, the product of the axes' lengths,
+// computed with a check at each factor so that no product overflows: a
+// grid over MaxSweepPoints (or with an empty axis) is an error wrapping
+// ErrInvalid that gives each axis's length. It costs nothing but the
+// multiplications, so a caller can refuse a grid before doing anything.
+func (g *Grid) Count() (int, error) {
+	n := 1
+	lens := make([]string, len(g.Axes))
+	over := false
+	for k, a := range g.Axes {
+		lens[k] = fmt.Sprintf("%s: %d", a.Path, len(a.Values))
+		if len(a.Values) == 0 {
+			return 0, fmt.Errorf("sweep %s has no values: %w", a.Path, ErrInvalid)
+		}
+		if !over && n > MaxSweepPoints/len(a.Values) {
+			over = true
+		}
+		if !over {
+			n *= len(a.Values)
+		}
+	}
+	if over || n > MaxSweepPoints {
+		what := fmt.Sprint(n)
+		if over {
+			what = "more than " + strconv.Itoa(MaxSweepPoints)
+		}
+		return 0, fmt.Errorf("sweep grid of %s points (%s) is over the limit of %d: %w", what, strings.Join(lens, " × "), MaxSweepPoints, ErrInvalid)
+	}
+	return n, nil
+}
+
+// prevalidate is the largest grid whose points are all validated before
+// the first is evaluated; larger grids validate each axis's values alone
+// up front and each point as it is evaluated.
+const prevalidate = 2000
+
+// Validate checks the grid before anything runs: its size (Count), each
+// axis's values (the two ends of one longer than 100) with the other axes
+// at their first value, and, for grids
+// of up to prevalidate points, every point. It stops with ctx.Err() when ctx is
+// cancelled.
+func (g *Grid) Validate(ctx context.Context) error {
+	n, err := g.Count()
+	if err != nil {
+		return err
+	}
+	// The cross through point 0: each axis's values, the others at their
+	// first value. A long axis is checked at its ends only (a range's
+	// values are monotonic, so its ends meet any bound first).
+	idx := make([]int, len(g.Axes))
+	for k, a := range g.Axes {
+		for i := range a.Values {
+			if len(a.Values) > 100 && i != 0 && i != len(a.Values)-1 {
+				continue
+			}
+			if err := ctx.Err(); err != nil {
+				return err
+			}
+			idx[k] = i
+			if _, err := g.scenarioAt(idx); err != nil {
+				return err
+			}
+		}
+		idx[k] = 0
+	}
+	if n <= prevalidate {
+		for i := range n {
+			if err := ctx.Err(); err != nil {
+				return err
+			}
+			if _, err := g.Scenario(i); err != nil {
+				return err
+			}
+		}
+	}
+	return nil
 }
 
 // Index returns the value index on each axis of point i.
@@ -107,7 +220,10 @@ func (g *Grid) Index(i int) []int {
 
 // Scenario returns the scenario of point i, validated.
 func (g *Grid) Scenario(i int) (*Scenario, error) {
-	idx := g.Index(i)
+	return g.scenarioAt(g.Index(i))
+}
+
+func (g *Grid) scenarioAt(idx []int) (*Scenario, error) {
 	sets := make([]Assignment, len(g.Axes))
 	for k, a := range g.Axes {
 		sets[k] = Assignment{Path: a.Path, Value: a.Values[idx[k]]}
@@ -136,24 +252,18 @@ type Point struct {
 
 // Run evaluates every point of the grid on the given number of workers
 // (at least 1) and calls emit once per point in grid order, from the
-// calling goroutine. Every point is decoded and validated before any is
-// evaluated, so a value outside a field's range fails at once. When ctx is
+// calling goroutine. The grid is checked with Validate first, so an
+// oversized grid or a value outside a field's range fails at once; a
+// point of a large grid that is invalid only in combination stops the
+// run when it is reached, with an error naming it. When ctx is
 // cancelled, Run stops handing out points, emits the completed points that
 // precede the first missing one, and returns ctx.Err(). An error from
 // emit stops the run and is returned.
 func (g *Grid) Run(ctx context.Context, workers int, emit func(Point) error) error {
-	n := g.Len()
-	if n > MaxSweepPoints {
-		return fmt.Errorf("sweep of %d points is over the limit of %d: %w", n, MaxSweepPoints, ErrInvalid)
+	if err := g.Validate(ctx); err != nil {
+		return err
 	}
-	scens := make([]*Scenario, n)
-	for i := range scens {
-		s, err := g.Scenario(i)
-		if err != nil {
-			return err
-		}
-		scens[i] = s
-	}
+	n, _ := g.Count()
 	workers = max(1, min(workers, n))
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
@@ -172,7 +282,11 @@ func (g *Grid) Run(ctx context.Context, workers int, emit func(Point) error) err
 			defer wg.Done()
 			var e Engine
 			for i := range jobs {
-				rep, err := e.Analyse(ctx, scens[i])
+				s, err := g.Scenario(i)
+				var rep *Report
+				if err == nil {
+					rep, err = e.Analyse(ctx, s)
+				}
 				select {
 				case results <- done{i, rep, err}:
 				case <-ctx.Done():
@@ -207,7 +321,10 @@ func (g *Grid) Run(ctx context.Context, workers int, emit func(Point) error) err
 			if errors.Is(d.err, context.Canceled) || errors.Is(d.err, context.DeadlineExceeded) {
 				continue
 			}
-			runErr = fmt.Errorf("sweep point %s: %w", g.describe(g.Index(d.i)), d.err)
+			runErr = d.err
+			if !strings.HasPrefix(d.err.Error(), "sweep point") {
+				runErr = fmt.Errorf("sweep point %s: %w", g.describe(g.Index(d.i)), d.err)
+			}
 			cancel()
 			continue
 		}

@@ -2,9 +2,11 @@ package scenarios
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
+	"strings"
 	"testing"
 )
 
@@ -167,5 +169,30 @@ func BenchmarkSweep(b *testing.B) {
 			}
 			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/float64(g.Len())/1e6, "ms/point")
 		})
+	}
+}
+
+// TestGridCountOverflow: products that overflow int are refused, never
+// wrapped to a small or negative count.
+func TestGridCountOverflow(t *testing.T) {
+	axis := func(n int) Axis {
+		return Axis{Path: "seed", Values: make([]json.RawMessage, n)}
+	}
+	for _, lens := range [][]int{{65536, 65536, 65536, 65536}, {65536, 65536, 65536, 65536, 3}, {1 << 16, 1 << 16}, {100001}, {400, 251}} {
+		g := &Grid{}
+		for _, n := range lens {
+			g.Axes = append(g.Axes, axis(n))
+		}
+		n, err := g.Count()
+		if err == nil || !errors.Is(err, ErrInvalid) || !strings.Contains(err.Error(), "over the limit") {
+			t.Errorf("%v: count %d, err %v; want refused", lens, n, err)
+		}
+		if g.Len() != -1 {
+			t.Errorf("%v: Len %d, want -1", lens, g.Len())
+		}
+	}
+	g := &Grid{Axes: []Axis{axis(400), axis(250)}}
+	if n, err := g.Count(); n != 100000 || err != nil {
+		t.Errorf("400 × 250: %d, %v", n, err)
 	}
 }

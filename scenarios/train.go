@@ -27,6 +27,8 @@ type train struct {
 	sc   *scene
 	plan *dsp.SlowTimePlan
 	gain [][]float64 // gain[j][bin]: target j's power per bin for unit single-pulse power, re noise per bin
+	cf2  *dsp.CFAR2D // the map's detector, kept with the multipliers it has solved
+	cfOK bool
 }
 
 func mtiTaps(kind string) []float64 {
@@ -117,7 +119,7 @@ func (tr *train) power(j, k, d int) float64 {
 
 // peak returns target j's peak cell on the map.
 func (tr *train) peak(j int) (k, d int, p float64) {
-	k, pr := tr.sc.targets[j].resp.peak()
+	k, pr := tr.sc.targets[j].resp.peakIn(tr.m.processed)
 	if k < 0 {
 		return -1, -1, 0
 	}
@@ -130,18 +132,29 @@ func (tr *train) peak(j int) (k, d int, p float64) {
 	return k, d, pr * tr.gain[j][d]
 }
 
-// cfar returns the detector on the map, or nil for a fixed threshold.
+// cfar returns the detector on the map, or nil for a fixed threshold. It
+// knows the noise correlation between range cells and between Doppler
+// bins (docs/detection.md §9).
 func (tr *train) cfar() *dsp.CFAR2D {
+	if tr.cfOK {
+		return tr.cf2
+	}
+	tr.cfOK = true
 	d := tr.m.s.Receiver.Detector
 	if d.Kind == DetectorFixed {
 		return nil
 	}
-	c := &dsp.CFAR2D{PFA: d.PFA, GuardR: d.GuardCells, TrainR: d.TrainingCells, GuardD: d.DopplerGuardCells, TrainD: d.DopplerTrainingCells}
+	c := &dsp.CFAR2D{PFA: d.PFA, GuardR: d.GuardCells, TrainR: d.TrainingCells, GuardD: d.DopplerGuardCells, TrainD: d.DopplerTrainingCells,
+		RhoR: tr.m.noiseCorrelation(), DopplerCov: tr.plan.NoiseCovariance()}
 	if d.Kind == DetectorOS {
 		c.Rank = 1 + int(math.Round(float64(d.Rank-1)/float64(d.TrainingCells)*float64(c2DCells(c))))
 	}
+	tr.cf2 = c
 	return c
 }
+
+// valid reports whether range cell k is processed.
+func (tr *train) valid(k int) bool { return tr.m.processed[k] }
 
 func c2DCells(c *dsp.CFAR2D) int {
 	return (2*(c.GuardR+c.TrainR/2)+1)*(2*(c.GuardD+c.TrainD/2)+1) - (2*c.GuardR+1)*(2*c.GuardD+1)
@@ -153,7 +166,7 @@ func (tr *train) level(cf *dsp.CFAR2D, k, d int, p func(k, d int) float64) float
 	if cf == nil {
 		return dsp.FixedMultiplier(tr.m.s.Receiver.Detector.PFA)
 	}
-	return cf.Level(func(k, d int) float64 { return 1 + p(k, d) }, k, d, tr.m.n, tr.plan.Bins())
+	return cf.LevelValid(func(k, d int) float64 { return 1 + p(k, d) }, tr.valid, k, d, tr.m.n, tr.plan.Bins())
 }
 
 // judge decides target j's status on the range–Doppler map.
@@ -174,24 +187,36 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 	}
 	if k >= 0 {
 		v.noiseLevel = tr.level(cf, k, d, func(int, int) float64 { return 0 })
-		v.sceneLevel = tr.level(cf, k, d, others)
+		v.sceneLevel = tr.level(cf, k, d, func(kk, dd int) float64 { return others(kk, dd) + tr.power(j, kk, dd) })
 		v.cell = others(k, d)
 		v.threshold = math.Max(v.sceneLevel, v.cell)
+		if cf != nil {
+			v.cells = len(cf.Cells(tr.valid, k, d, tr.m.n, tr.plan.Bins()))
+		}
 	}
+	// The eclipsing loss scales the target's map power as its range power.
+	pu := g.unblankedPeak
+	if _, p0 := g.resp.peakIn(tr.m.processed); p0 > 0 && k >= 0 {
+		pu *= v.peak / p0
+	}
+	v.unblanked = pu
 	if sc.decide(g, &v) == StatusMasked {
 		best := 0.0
+		var cells []dsp.Cell2
+		if !v.byCell && cf != nil {
+			cells = append(cells, cf.Cells(tr.valid, k, d, tr.m.n, tr.plan.Bins())...)
+		}
+		nb := tr.plan.Bins()
 		for i := range sc.targets {
-			if i == j {
-				continue
-			}
-			c := tr.power(i, k, d)
-			if !v.byCell && cf != nil {
-				c = 0
-				lo, hi := k-cf.GuardR-cf.TrainR/2, k+cf.GuardR+cf.TrainR/2
-				for kk := max(lo, 0); kk <= min(hi, tr.m.n-1); kk++ {
-					for dd := d - cf.GuardD - cf.TrainD/2; dd <= d+cf.GuardD+cf.TrainD/2; dd++ {
-						c += tr.power(i, kk, (dd%tr.plan.Bins()+tr.plan.Bins())%tr.plan.Bins())
-					}
+			var c float64
+			if v.byCell || cf == nil {
+				if i == j {
+					continue
+				}
+				c = tr.power(i, k, d)
+			} else {
+				for _, q := range cells {
+					c += tr.power(i, k+q.A, ((d+q.B)%nb+nb)%nb)
 				}
 			}
 			if c > best {
@@ -243,9 +268,9 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 	echo0 := make([]complex128, n)
 	scale := complex(1/math.Sqrt(m.noiseGain), 0)
 	err := parallel(ctx, np, func(next func() (int, bool)) {
-		corr := dsp.NewCorrelator(m.ref, n+m.lead)
-		x := make([]complex128, n+m.lead)
-		y := make([]complex128, n+m.lead)
+		corr := dsp.NewCorrelator(m.ref, m.recLen+m.lead)
+		x := make([]complex128, m.recLen+m.lead)
+		y := make([]complex128, m.recLen+m.lead)
 		own := make([]*clutterField, len(fields))
 		for j, f := range fields {
 			if f != nil {
@@ -266,7 +291,7 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 					app, _ := m.fold(rp)
 					ph := cmplx.Rect(1, -4*math.Pi*math.Mod(rp/m.lambda, 1))
 					a := g.amp * math.Pow(g.t.RangeM/rp, 2) * amps[p][j]
-					dsp.AddEcho(echo, m.wave, m.fs, 2*app/C-m.t0, complex(a, 0)*ph, g.fd)
+					m.addPointEcho(echo, 2*app/C-m.t0, complex(a, 0)*ph, g.fd)
 				case own[j] != nil:
 					own[j].add(echo, p)
 				}
@@ -277,7 +302,7 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 			}
 			tr.sc.blank(echo, 0)
 			if p == 0 {
-				copy(echo0, echo)
+				copy(echo0, echo[:n])
 			}
 			corr.Apply(y, x) // x holds lead zeros, then the echo: an echo at d peaks at y[d]
 			row := cube[p*n : (p+1)*n]
@@ -448,10 +473,15 @@ func (tr *train) series(ctx context.Context) (Series, error) {
 			pk = max(pk, rd.DB[d][k])
 		}
 		s.ProfileDB[k], s.CleanDB[k] = float64(pk), float64(best)
-		s.ThresholdDB[k] = toDB(tr.level(cf, k, bd, clean))
-	}
-	for k := 0; k < m.blankEnd(); k++ {
-		s.ProfileDB[k], s.CleanDB[k] = dbFloor, dbFloor
+		if !m.processed[k] { // unprocessed gates hold no data
+			s.ProfileDB[k], s.CleanDB[k], s.ThresholdDB[k] = dbFloor, dbFloor, dbFloor
+			continue
+		}
+		th := tr.level(cf, k, bd, clean)
+		if math.IsInf(th, 1) {
+			th = 0
+		}
+		s.ThresholdDB[k] = toDB(th)
 	}
 	s.Response = m.response()
 	return s, nil

@@ -292,7 +292,7 @@ func (s *Scenario) validateTargets(c checker) {
 		if !c.errs.has(p + "id") {
 			switch {
 			case t.ID == "" || len(t.ID) > MaxIDLen:
-				c.errs.add(p+"id", "%q must have 1 to %d characters", t.ID, MaxIDLen)
+				c.errs.add(p+"id", "%s must have 1 to %d characters", clipQ(t.ID), MaxIDLen)
 			case strings.IndexFunc(t.ID, func(r rune) bool { return !idChar(r) }) >= 0:
 				c.errs.add(p+"id", "%q may hold only letters, digits, '-', '_' and '.'", t.ID)
 			default:

@@ -16,12 +16,12 @@ func (s *Server) handleHealth(w http.ResponseWriter, r *http.Request) {
 
 // handleEvaluate evaluates the scenario in the body and returns its report.
 func (s *Server) handleEvaluate(w http.ResponseWriter, r *http.Request) {
-	sc, err := decodeScenario(w, r)
+	sc, err := s.decodeScenario(w, r)
 	if err != nil {
 		s.writeError(w, r, err)
 		return
 	}
-	res, err := s.eval(r.Context(), sc)
+	res, err := s.admitted(r.Context(), sc, false, s.eval)
 	if err != nil {
 		s.writeError(w, r, fmt.Errorf("evaluate scenario %q: %w", sc.Name, err))
 		return
@@ -37,7 +37,7 @@ type linkBody struct {
 
 // handleLink returns the share link of the scenario in the body.
 func (s *Server) handleLink(w http.ResponseWriter, r *http.Request) {
-	sc, err := decodeScenario(w, r)
+	sc, err := s.decodeScenario(w, r)
 	if err != nil {
 		s.writeError(w, r, err)
 		return

@@ -152,7 +152,7 @@ func TestSavedScenarios(t *testing.T) {
 	tag2 := resp.Header.Get("ETag")
 	// The first tab's revision is now stale.
 	resp, body = testRequest(t, ts, "PUT", "/api/v1/scenarios/squall", demo, "If-Match", tag1)
-	expect(resp, body, 409, "changed since revision")
+	expect(resp, body, 412, "changed since revision")
 	resp, body = testRequest(t, ts, "GET", "/api/v1/scenarios/squall", "")
 	expect(resp, body, 200, `"name":"Fast closing jet`)
 	if resp.Header.Get("ETag") != tag2 {
@@ -161,7 +161,7 @@ func TestSavedScenarios(t *testing.T) {
 	resp, body = testRequest(t, ts, "GET", "/api/v1/scenarios", "")
 	expect(resp, body, 200, `"revision":`+tag2)
 	resp, body = testRequest(t, ts, "DELETE", "/api/v1/scenarios/squall", "", "If-Match", tag1)
-	expect(resp, body, 409, "changed since")
+	expect(resp, body, 412, "changed since")
 	resp, body = testRequest(t, ts, "DELETE", "/api/v1/scenarios/squall", "", "If-Match", tag2)
 	expect(resp, body, 204, "")
 	for _, tt := range []struct {
@@ -171,8 +171,8 @@ func TestSavedScenarios(t *testing.T) {
 		want               string
 	}{
 		{"GET", "/api/v1/scenarios/squall", "", nil, 404, "not found"},
-		{"DELETE", "/api/v1/scenarios/squall", "", nil, 404, "not found"},
-		{"PUT", "/api/v1/scenarios/gone", demo, []string{"If-Match", `"0011223344556677"`}, 409, "no longer exists"},
+		{"DELETE", "/api/v1/scenarios/squall", "", []string{"If-Match", "*"}, 404, "not found"},
+		{"PUT", "/api/v1/scenarios/gone", demo, []string{"If-Match", `"0011223344556677"`}, 412, "no longer exists"},
 		{"PUT", "/api/v1/scenarios/.hidden", demo, nil, 400, "starts with '.'"},
 		{"PUT", "/api/v1/scenarios/..", demo, nil, 400, "starts with '.'"},
 		{"PUT", "/api/v1/scenarios/a%2Fb", demo, nil, 400, "may hold only"},
@@ -195,6 +195,7 @@ func TestSavedScenarios(t *testing.T) {
 func TestToken(t *testing.T) {
 	s, ts := mustServer(t, nil, func(c *Config) { c.Addr = "0.0.0.0:0" })
 	tok := s.Token()
+	port := ts.URL[strings.LastIndex(ts.URL, ":")+1:]
 	if len(tok) < 24 {
 		t.Fatalf("token %q", tok)
 	}
@@ -209,7 +210,8 @@ func TestToken(t *testing.T) {
 		{"/api/v1/demos?token=" + tok[:len(tok)-1] + "x", nil, 401},
 		{"/api/v1/demos", []string{"Authorization", "Bearer " + tok}, 200},
 		{"/api/v1/demos", []string{"Authorization", "Bearer wrong"}, 401},
-		{"/api/v1/demos", []string{"Cookie", tokenCookie + "=" + tok}, 200},
+		{"/api/v1/demos", []string{"Cookie", tokenCookie + "_" + port + "=" + tok}, 200},
+		{"/api/v1/demos", []string{"Cookie", tokenCookie + "_1=" + tok}, 401},
 		{"/api/v1/demos?token=" + tok, nil, 200},
 		{"/ws", nil, 401},
 	} {
@@ -225,7 +227,7 @@ func TestToken(t *testing.T) {
 	}
 	var c *http.Cookie
 	for _, k := range resp.Cookies() {
-		if k.Name == tokenCookie {
+		if k.Name == tokenCookie+"_"+port {
 			c = k
 		}
 	}

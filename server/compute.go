@@ -47,11 +47,16 @@ type evalCache struct {
 // one that finishes is sent even if a newer state waits (see starveAfter).
 func (ss *session) compute(ctx context.Context) {
 	var cache evalCache
+	idle := time.NewTimer(ss.srv.cfg.SessionIdle)
+	defer idle.Stop()
 	for {
 		var w want
 		select {
 		case <-ctx.Done():
 			return
+		case <-idle.C:
+			ss.release(&cache)
+			continue
 		case w = <-ss.work.ch:
 		}
 		// Wait for a compute slot; a newer state that comes meanwhile
@@ -61,7 +66,7 @@ func (ss *session) compute(ctx context.Context) {
 			select {
 			case <-ctx.Done():
 				return
-			case ss.srv.slots <- struct{}{}:
+			case ss.srv.adm.slots <- struct{}{}:
 				waiting = false
 			case w = <-ss.work.ch:
 			}
@@ -74,7 +79,8 @@ func (ss *session) compute(ctx context.Context) {
 			w = <-ss.work.ch
 			f, stale, err = ss.run(ctx, w, &cache)
 		}
-		<-ss.srv.slots
+		<-ss.srv.adm.slots
+		idle.Reset(ss.srv.cfg.SessionIdle) // idle from the end of the last computation
 		switch {
 		case ctx.Err() != nil:
 			return
@@ -85,6 +91,22 @@ func (ss *session) compute(ctx context.Context) {
 			ss.framed()
 		}
 	}
+}
+
+// release drops what an idle session holds beyond its last good
+// scenarios and their encoded reports: the evaluations (plot series,
+// range-Doppler maps) and the evaluator's kept state. The next message
+// evaluates the scenarios again.
+func (ss *session) release(c *evalCache) {
+	if c.res == nil && c.pinRes == nil {
+		return
+	}
+	c.res, c.pinRes = nil, nil
+	if ss.srv.cfg.SessionEvaluator != nil {
+		ss.eval = ss.srv.cfg.SessionEvaluator()
+	}
+	ss.releases.Add(1)
+	ss.log.Debug("idle: evaluation buffers released")
 }
 
 // run evaluates one state under a context that the reader cancels when
@@ -119,9 +141,11 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 		if err != nil {
 			return nil, &editError{id: w.scn.id, err: err}
 		}
-		res, err := ss.eval(ctx, sc)
-		if err != nil {
+		res, err := ss.srv.admitted(ctx, sc, true, ss.eval)
+		if errors.Is(err, context.Canceled) {
 			c.scnSeq = 0 // evaluate again next time, unless a newer edit comes
+		}
+		if err != nil {
 			return nil, &editError{id: w.scn.id, err: err}
 		}
 		report, err := json.Marshal(&res.Report)
@@ -139,6 +163,20 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 		if err := ss.takePin(ctx, w.pin, c); err != nil {
 			return nil, err
 		}
+	}
+	if c.res == nil && c.scn != nil { // released while idle: evaluate the last good scenario again
+		res, err := ss.srv.admitted(ctx, c.scn, true, ss.eval)
+		if err != nil {
+			return nil, &editError{id: w.scn.id, err: err}
+		}
+		c.res = res
+	}
+	if c.pin != nil && c.pinRes == nil {
+		res, err := ss.srv.admitted(ctx, c.pin, true, ss.srv.eval)
+		if err != nil {
+			return nil, &editError{w.pin.id, true, fmt.Errorf("pinned scenario: %w", err)}
+		}
+		c.pinRes = res
 	}
 	if c.res == nil {
 		return nil, nil // a view or pin before the first good scenario
@@ -195,7 +233,11 @@ func (ss *session) ambiguity(ctx context.Context, c *evalCache) error {
 	}
 	ch, ok := ss.srv.ambs.get(key)
 	if !ok {
-		a, err := scenarios.Ambiguity(ctx, c.scn, ambiguityCols, ambiguityRows)
+		// The surface has the evaluation's deadline; past it, it is left
+		// out rather than holding the frame.
+		actx, cancel := context.WithTimeout(ctx, ss.srv.cfg.EvalTimeout)
+		a, err := scenarios.Ambiguity(actx, c.scn, ambiguityCols, ambiguityRows)
+		cancel()
 		switch {
 		case ctx.Err() != nil:
 			return ctx.Err()
@@ -265,9 +307,11 @@ func (ss *session) takePin(ctx context.Context, p edit, c *evalCache) error {
 	if err != nil {
 		return &editError{p.id, true, fmt.Errorf("pinned scenario: %w", err)}
 	}
-	res, err := ss.srv.eval(ctx, sc)
-	if err != nil {
+	res, err := ss.srv.admitted(ctx, sc, true, ss.srv.eval)
+	if errors.Is(err, context.Canceled) {
 		c.pinSeq = 0
+	}
+	if err != nil {
 		return &editError{p.id, true, fmt.Errorf("pinned scenario: %w", err)}
 	}
 	report, err := json.Marshal(&res.Report)
@@ -287,7 +331,10 @@ func (ss *session) evalError(err error) *errorMsg {
 	if errors.As(err, &ee) {
 		id = ee.id
 	}
-	if errors.Is(err, scenarios.ErrInvalid) || errors.Is(err, scenarios.ErrTooLarge) {
+	var te errEvalTimeout
+	var se *statusError
+	if errors.Is(err, scenarios.ErrInvalid) || errors.Is(err, scenarios.ErrTooLarge) || errors.Is(err, scenarios.ErrTooCostly) ||
+		errors.As(err, &te) || errors.As(err, &se) {
 		return rejection(id, err)
 	}
 	ss.log.Error("evaluate", "id", id, "err", err)
@@ -345,14 +392,20 @@ func (f *frame) encode(sent map[string]string) []byte {
 func (ss *session) writeLoop(ctx context.Context) {
 	ticker := time.NewTicker(pingPeriod)
 	defer ticker.Stop()
+	timeout := ss.srv.cfg.SessionTimeout
+	idleCheck := time.NewTicker(min(timeout/4, time.Minute))
+	defer idleCheck.Stop()
 	sent := map[string]string{} // chart name → structure key the page holds
 	lastFrame := int64(math.MinInt64)
 	for {
 		select {
 		case <-ctx.Done():
 			code, text := websocket.CloseNormalClosure, ""
-			if ss.srv.ctx.Err() != nil {
+			switch cause := context.Cause(ctx); {
+			case ss.srv.ctx.Err() != nil:
 				code, text = websocket.CloseGoingAway, "server shutting down"
+			case errors.Is(cause, errEvicted), errors.Is(cause, errIdleClosed):
+				code, text = websocket.CloseTryAgainLater, cause.Error()
 			}
 			ss.conn.WriteControl(websocket.CloseMessage, websocket.FormatCloseMessage(code, text), time.Now().Add(writeWait))
 			return
@@ -371,6 +424,11 @@ func (ss *session) writeLoop(ctx context.Context) {
 			}
 			if err := ss.write(e); err != nil {
 				return
+			}
+		case now := <-idleCheck.C:
+			if ss.slot.idle(now) >= timeout {
+				ss.log.Info("idle session closed", "idle", ss.slot.idle(now).Round(time.Second))
+				ss.slot.cancel(errIdleClosed)
 			}
 		case <-ticker.C:
 			ss.conn.SetWriteDeadline(time.Now().Add(writeWait))

@@ -4,11 +4,15 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"io"
 	"log/slog"
 	"mime"
+	"net"
 	"net/http"
+	"os"
 	"strconv"
+	"time"
 
 	"github.com/go-chi/chi/v5/middleware"
 
@@ -28,7 +32,6 @@ var (
 	errNoRoute          = &statusError{http.StatusNotFound, "no such endpoint"}
 	errMethod           = &statusError{http.StatusMethodNotAllowed, "method not allowed on this endpoint"}
 	errUnauthorized     = &statusError{http.StatusUnauthorized, "missing or wrong access token: open the URL the server printed"}
-	errTooManySessions  = &statusError{http.StatusServiceUnavailable, "too many open sessions; close a tab and reload"}
 )
 
 // errorBody is every error response: a message and, for an invalid
@@ -45,7 +48,16 @@ func classify(err error) (int, errorBody) {
 	var se *statusError
 	var ve *scenarios.ValidationError
 	var mbe *http.MaxBytesError
+	var ce *scenarios.CostError
+	var te errEvalTimeout
 	switch {
+	case errors.As(err, &ce):
+		body.Error = ce.Error()
+		body.Fields = ce.Fields()
+		return http.StatusUnprocessableEntity, body
+	case errors.As(err, &te):
+		body.Error = te.Error()
+		return http.StatusServiceUnavailable, body
 	case errors.As(err, &se):
 		return se.status, body
 	case errors.As(err, &ve):
@@ -63,6 +75,10 @@ func classify(err error) (int, errorBody) {
 		return http.StatusNotFound, body
 	case errors.Is(err, scenarios.ErrConflict):
 		return http.StatusConflict, body
+	case errors.Is(err, scenarios.ErrNotRegular):
+		return http.StatusForbidden, body
+	case errors.Is(err, scenarios.ErrStorage):
+		return http.StatusInsufficientStorage, body
 	case errors.Is(err, context.DeadlineExceeded), errors.Is(err, context.Canceled):
 		body.Error = "the request was cancelled or took too long"
 		return http.StatusServiceUnavailable, body
@@ -71,11 +87,21 @@ func classify(err error) (int, errorBody) {
 	return http.StatusInternalServerError, body
 }
 
+// isTimeout reports whether err, from reading a request's body, is a
+// read that passed its deadline.
+func isTimeout(err error) bool {
+	var ne net.Error
+	return err != nil && !errors.Is(err, context.DeadlineExceeded) && (errors.Is(err, os.ErrDeadlineExceeded) || errors.As(err, &ne) && ne.Timeout())
+}
+
 // writeError sends err as JSON with its status. A 5xx is logged in full;
 // the client gets a short message.
 func (s *Server) writeError(w http.ResponseWriter, r *http.Request, err error) {
 	status, body := classify(err)
-	if status >= 500 && status != http.StatusServiceUnavailable {
+	switch {
+	case status == http.StatusInsufficientStorage:
+		s.log.Warn("request failed", "method", r.Method, "path", r.URL.Path, "err", err)
+	case status >= 500 && status != http.StatusServiceUnavailable:
 		s.log.Error("request failed", "method", r.Method, "path", r.URL.Path, "request_id", middleware.GetReqID(r.Context()), "err", err)
 	}
 	writeJSON(w, status, body)
@@ -93,19 +119,30 @@ func writeJSON(w http.ResponseWriter, status int, v any) {
 	w.Write(append(data, '\n'))
 }
 
-// readBody reads a JSON request body of at most limit bytes.
-func readBody(w http.ResponseWriter, r *http.Request, limit int64) ([]byte, error) {
+// bodyTimeout is the default of Config.BodyTimeout.
+const bodyTimeout = 20 * time.Second
+
+// readBody reads a JSON request body of at most limit bytes, within the
+// server's body deadline: a body that trickles in slower gets 408.
+func (s *Server) readBody(w http.ResponseWriter, r *http.Request, limit int64) ([]byte, error) {
 	ct := r.Header.Get("Content-Type")
 	mt, _, err := mime.ParseMediaType(ct)
 	if err != nil || mt != "application/json" {
 		return nil, errUnsupportedMedia
 	}
-	return io.ReadAll(http.MaxBytesReader(w, r.Body, limit))
+	rc := http.NewResponseController(w)
+	rc.SetReadDeadline(time.Now().Add(s.cfg.BodyTimeout)) // not supported by every writer (tests): then ReadTimeout alone bounds it
+	data, err := io.ReadAll(http.MaxBytesReader(w, r.Body, limit))
+	if isTimeout(err) {
+		w.Header().Set("Connection", "close")
+		return nil, &statusError{http.StatusRequestTimeout, fmt.Sprintf("the request body did not arrive within %s; send it again", s.cfg.BodyTimeout)}
+	}
+	return data, err
 }
 
 // decodeScenario reads, decodes and validates the scenario in the body.
-func decodeScenario(w http.ResponseWriter, r *http.Request) (*scenarios.Scenario, error) {
-	data, err := readBody(w, r, scenarios.MaxDocumentBytes)
+func (s *Server) decodeScenario(w http.ResponseWriter, r *http.Request) (*scenarios.Scenario, error) {
+	data, err := s.readBody(w, r, scenarios.MaxDocumentBytes)
 	if err != nil {
 		return nil, err
 	}

@@ -50,7 +50,7 @@ func TestLoad(t *testing.T) {
 		docs[i] = string(doc)
 	}
 	baseline := runtime.NumGoroutine()
-	s, err := New(Config{DataDir: t.TempDir(), MaxSessions: sessions}, testLogger(t), (&fakeEval{}).Evaluate)
+	s, err := New(Config{DataDir: t.TempDir(), MaxSessions: sessions, MaxSessionsPerClient: sessions}, testLogger(t), (&fakeEval{}).Evaluate)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -4,6 +4,7 @@ import (
 	"crypto/sha256"
 	"crypto/subtle"
 	"fmt"
+	"net"
 	"net/http"
 	"runtime/debug"
 	"strings"
@@ -81,8 +82,22 @@ func validHost(h string) bool {
 	return true
 }
 
-// tokenCookie carries the access token after the first page load.
+// tokenCookie is the prefix of the cookie that carries the access token
+// after the first page load. Cookies are per host, not per port, so the
+// name carries the server's port: two servers on one machine keep a
+// cookie each instead of logging each other out.
 const tokenCookie = "pulsewright_token"
+
+// cookieName returns the token cookie's name for the server that took r:
+// tokenCookie_PORT, the port of the local address the request came in on.
+func cookieName(r *http.Request) string {
+	if a, ok := r.Context().Value(http.LocalAddrContextKey).(net.Addr); ok {
+		if _, port, err := net.SplitHostPort(a.String()); err == nil {
+			return tokenCookie + "_" + port
+		}
+	}
+	return tokenCookie
+}
 
 // requireToken admits a request only with the server's access token, as
 // ?token=, the cookie, or an Authorization: Bearer header, compared in
@@ -102,7 +117,7 @@ func (s *Server) requireToken(next http.Handler) http.Handler {
 			return
 		}
 		if fromQuery {
-			http.SetCookie(w, &http.Cookie{Name: tokenCookie, Value: tok, Path: "/", HttpOnly: true, SameSite: http.SameSiteStrictMode})
+			http.SetCookie(w, &http.Cookie{Name: cookieName(r), Value: tok, Path: "/", HttpOnly: true, SameSite: http.SameSiteStrictMode})
 			if r.Method == http.MethodGet && !strings.HasPrefix(r.URL.Path, "/api/") && r.URL.Path != "/ws" {
 				u := *r.URL
 				q := u.Query()
@@ -123,7 +138,7 @@ func presentedToken(r *http.Request) (tok string, fromQuery bool) {
 	if a := r.Header.Get("Authorization"); len(a) > 7 && strings.EqualFold(a[:7], "bearer ") {
 		return strings.TrimSpace(a[7:]), false
 	}
-	if c, err := r.Cookie(tokenCookie); err == nil {
+	if c, err := r.Cookie(cookieName(r)); err == nil {
 		return c.Value, false
 	}
 	return "", false
@@ -136,6 +151,19 @@ func (s *Server) noListing(next http.Handler) http.Handler {
 		if r.URL.Path != "/" && strings.HasSuffix(r.URL.Path, "/") {
 			s.writeError(w, r, errNoRoute)
 			return
+		}
+		next.ServeHTTP(w, r)
+	})
+}
+
+// headAsGet answers HEAD on every GET route: the request is routed as a
+// GET, and net/http, which knows the request was a HEAD, sends the
+// headers and drops the body.
+func headAsGet(next http.Handler) http.Handler {
+	return http.HandlerFunc(func(w http.ResponseWriter, r *http.Request) {
+		if r.Method == http.MethodHead {
+			r = r.Clone(r.Context())
+			r.Method = http.MethodGet
 		}
 		next.ServeHTTP(w, r)
 	})

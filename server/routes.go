@@ -10,7 +10,7 @@ import (
 // Handler returns the server's routes: the one route table.
 func (s *Server) Handler() http.Handler {
 	r := chi.NewRouter()
-	r.Use(middleware.RequestID, s.recoverer, s.requestLogger, securityHeaders, s.requireToken)
+	r.Use(middleware.RequestID, s.recoverer, s.requestLogger, securityHeaders, s.checkHost, s.requireToken, headAsGet)
 	r.NotFound(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errNoRoute) })
 	r.MethodNotAllowed(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errMethod) })
 
@@ -40,9 +40,9 @@ func (s *Server) Handler() http.Handler {
 			r.Get("/", s.handleSavedList)
 			// GET /scenarios/{name}: the saved canonical JSON, ETag = revision.
 			r.Get("/{name}", s.handleSavedGet)
-			// PUT /scenarios/{name}: save; If-Match: "rev" or * to replace, none to create.
+			// PUT /scenarios/{name}: save; If-Match: "rev", a list or * to replace; none or If-None-Match: * to create.
 			r.Put("/{name}", s.handleSavedPut)
-			// DELETE /scenarios/{name}: remove; If-Match optional.
+			// DELETE /scenarios/{name}: remove; If-Match: "rev" or * required (428 without).
 			r.Delete("/{name}", s.handleSavedDelete)
 		})
 	})

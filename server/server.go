@@ -33,18 +33,50 @@ import (
 // must return promptly with ctx.Err() once ctx is cancelled.
 type Evaluator func(ctx context.Context, s *scenarios.Scenario) (*scenarios.Result, error)
 
+// MinTokenLen is the shortest access token accepted in Config.Token.
+const MinTokenLen = 16
+
 // DefaultAddr is the workbench's address unless told otherwise.
 const DefaultAddr = "127.0.0.1:8750"
 
 // Config configures a Server. Zero fields take the defaults noted.
 type Config struct {
-	Addr        string        // host:port to listen on; default DefaultAddr; port 0 picks a free one
-	DataDir     string        // directory of saved scenarios; required
-	Token       string        // access token; generated when the address is not loopback and Token is empty
-	Dev         bool          // serve the page from web/static on disk instead of the embedded copy
-	Static      fs.FS         // the page's files; overrides Dev and the embedded copy (tests)
-	MaxSessions int           // open websocket sessions at most; default 64
-	APITimeout  time.Duration // deadline of a REST request; default 30 s
+	Addr    string // host:port to listen on; default DefaultAddr; port 0 picks a free one
+	DataDir string // directory of saved scenarios; required
+	Token   string // access token; generated when the address is not loopback and Token is empty
+	// AllowedHosts are host names, besides localhost, IP literals and the
+	// bound host, that requests may name in their Host header (a name the
+	// server is reached by on a team network). Any other Host gets 421.
+	AllowedHosts []string
+	Dev          bool  // serve the page from web/static on disk instead of the embedded copy
+	Static       fs.FS // the page's files; overrides Dev and the embedded copy (tests)
+	MaxSessions  int   // open websocket sessions at most; default 64
+	// MaxSessionsPerClient bounds the sessions of one remote address;
+	// default 16.
+	MaxSessionsPerClient int
+	// SessionTimeout closes a session that has sent no message for this
+	// long (pings do not count); default 30 minutes. When the server or a
+	// client is at its cap, a new session instead closes the one idle
+	// longest, if it has been idle for EvictAfter (default 1 minute).
+	SessionTimeout time.Duration
+	EvictAfter     time.Duration
+	APITimeout     time.Duration // deadline of a REST request; default 30 s
+	// EvalTimeout is the deadline of one evaluation, REST or websocket;
+	// default 30 s.
+	EvalTimeout time.Duration
+	// BodyTimeout bounds the time to receive a request's body, from the
+	// handler's start; a slower body gets 408. Default 20 s.
+	BodyTimeout time.Duration
+	// MemoryLimit is the memory budget, in bytes, of the evaluations in
+	// flight, REST and websocket together, counted by their estimated cost
+	// (scenarios.EstimateCost). One over it is refused at once with 422;
+	// others wait for room until their deadline. Default: half the
+	// machine's memory, at most 4 GiB.
+	MemoryLimit int64
+	// SessionIdle is how long a websocket session may go without a client
+	// message before it drops its evaluation buffers (they are rebuilt on
+	// the next message); default 2 minutes.
+	SessionIdle time.Duration
 	// StarveAfter bounds how long new edits may keep cancelling a
 	// session's computation in flight (see session.cancelBefore); default
 	// 50 ms.
@@ -64,16 +96,17 @@ type Server struct {
 	store  *scenarios.Store
 	static fs.FS
 	token  string
+	hosts  map[string]struct{} // host names accepted besides IP literals and localhost
 	up     websocket.Upgrader
-	ambs   chartCache    // ambiguity charts by waveform
-	waves  chartCache    // the designer's charts by waveform and receiver
-	slots  chan struct{} // one per computation allowed to run at once
+	ambs   chartCache // ambiguity charts by waveform
+	waves  chartCache // the designer's charts by waveform and receiver
+	adm    *admission // compute slots and memory budget, shared by REST and sessions
 
 	ctx    context.Context // cancelled by Close: ends the sessions
 	cancel context.CancelFunc
 
-	mu         sync.Mutex // guards open, closing and the Add of sessions
-	open       int
+	mu         sync.Mutex // guards live, closing and the Add of sessions
+	live       map[*sessionSlot]struct{}
 	closing    bool
 	sessions   sync.WaitGroup
 	sessionIDs atomic.Uint64 // numbers sessions in logs
@@ -97,8 +130,29 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	if cfg.MaxSessions <= 0 {
 		cfg.MaxSessions = 64
 	}
+	if cfg.MaxSessionsPerClient <= 0 {
+		cfg.MaxSessionsPerClient = 16
+	}
+	if cfg.SessionTimeout <= 0 {
+		cfg.SessionTimeout = 30 * time.Minute
+	}
+	if cfg.EvictAfter <= 0 {
+		cfg.EvictAfter = time.Minute
+	}
 	if cfg.APITimeout <= 0 {
 		cfg.APITimeout = 30 * time.Second
+	}
+	if cfg.BodyTimeout <= 0 {
+		cfg.BodyTimeout = bodyTimeout
+	}
+	if cfg.EvalTimeout <= 0 {
+		cfg.EvalTimeout = 30 * time.Second
+	}
+	if cfg.MemoryLimit <= 0 {
+		cfg.MemoryLimit = defaultMemoryLimit()
+	}
+	if cfg.SessionIdle <= 0 {
+		cfg.SessionIdle = 2 * time.Minute
 	}
 	if cfg.StartDemo == "" {
 		cfg.StartDemo = scenarios.DefaultDemo
@@ -110,14 +164,24 @@ func New(cfg Config, log *slog.Logger, eval Evaluator) (*Server, error) {
 	if err != nil {
 		return nil, fmt.Errorf("address %q: %w", cfg.Addr, err)
 	}
+	if n := len(cfg.Token); n > 0 && n < MinTokenLen {
+		return nil, fmt.Errorf("access token of %d characters is too easy to guess: use at least %d, or none to have one generated", n, MinTokenLen)
+	}
+	hosts, err := allowedHosts(host, cfg.AllowedHosts)
+	if err != nil {
+		return nil, err
+	}
 	store, err := scenarios.OpenStore(cfg.DataDir)
 	if err != nil {
 		return nil, err
 	}
+	if err := store.CheckWritable(); err != nil {
+		log.Warn("saved scenarios cannot be written: saves and deletes will fail", "err", err)
+	}
 	// Sessions compute at most one per processor at a time: the rest wait
 	// blocked, so readers and writers stay responsive and edits coalesce
 	// in the mailboxes rather than in socket buffers.
-	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token, slots: make(chan struct{}, runtime.GOMAXPROCS(0))}
+	s := &Server{cfg: cfg, log: log, eval: eval, store: store, token: cfg.Token, hosts: hosts, live: map[*sessionSlot]struct{}{}, adm: newAdmission(runtime.GOMAXPROCS(0), cfg.MemoryLimit)}
 	if s.token == "" && !isLoopback(host) {
 		b := make([]byte, 24)
 		rand.Read(b)
@@ -221,24 +285,4 @@ func (s *Server) Close(ctx context.Context) error {
 		return fmt.Errorf("close: sessions still open: %w", ctx.Err())
 	}
 	return err
-}
-
-// acquireSession reserves a session slot; false when the server is full
-// or closing.
-func (s *Server) acquireSession() bool {
-	s.mu.Lock()
-	defer s.mu.Unlock()
-	if s.closing || s.open >= s.cfg.MaxSessions {
-		return false
-	}
-	s.open++
-	s.sessions.Add(1)
-	return true
-}
-
-func (s *Server) releaseSession() {
-	s.mu.Lock()
-	s.open--
-	s.mu.Unlock()
-	s.sessions.Done()
 }

@@ -9,6 +9,7 @@ import (
 	"math"
 	"net/http"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/gorilla/websocket"
@@ -78,6 +79,7 @@ type frame struct {
 // writeLoop the only writer, compute the only evaluator.
 type session struct {
 	srv    *Server
+	slot   *sessionSlot
 	eval   Evaluator // of the edited scenario; the pin uses srv.eval
 	conn   *websocket.Conn
 	log    *slog.Logger
@@ -89,6 +91,8 @@ type session struct {
 	runGen    uint64
 	runCancel context.CancelFunc
 	lastFrame time.Time // when compute last put a frame
+
+	releases atomic.Int64 // times the idle session dropped its buffers (tests)
 }
 
 // starveAfter is the default of Config.StarveAfter, which bounds how long
@@ -106,11 +110,14 @@ const starveAfter = 50 * time.Millisecond
 // closes it or the server shuts down. It returns only after the reader
 // and the compute goroutine have stopped.
 func (s *Server) handleWS(w http.ResponseWriter, r *http.Request) {
-	if !s.acquireSession() {
-		s.writeError(w, r, errTooManySessions)
+	ctx, cancel := context.WithCancelCause(s.ctx)
+	defer cancel(nil)
+	slot, err := s.acquireSession(clientOf(r), cancel)
+	if err != nil {
+		s.writeError(w, r, err)
 		return
 	}
-	defer s.releaseSession()
+	defer s.releaseSession(slot)
 	conn, err := s.up.Upgrade(w, r, nil) // refuses a foreign Origin with 403
 	if err != nil {
 		s.log.Debug("websocket refused", "err", err, "origin", r.Header.Get("Origin"))
@@ -119,6 +126,7 @@ func (s *Server) handleWS(w http.ResponseWriter, r *http.Request) {
 	defer conn.Close()
 	sess := &session{
 		srv:    s,
+		slot:   slot,
 		eval:   s.eval,
 		conn:   conn,
 		log:    s.log.With("session", s.sessionIDs.Add(1)),
@@ -130,12 +138,11 @@ func (s *Server) handleWS(w http.ResponseWriter, r *http.Request) {
 		sess.eval = s.cfg.SessionEvaluator()
 	}
 	sess.log.Info("session open", "remote", r.RemoteAddr)
-	ctx, cancel := context.WithCancel(s.ctx)
 	var wg sync.WaitGroup
-	wg.Go(func() { sess.readLoop(cancel) })
+	wg.Go(func() { sess.readLoop(func() { cancel(nil) }) })
 	wg.Go(func() { sess.compute(ctx) })
 	sess.writeLoop(ctx)
-	cancel()
+	cancel(nil)
 	conn.Close() // unblocks the reader
 	wg.Wait()
 	sess.log.Info("session closed")
@@ -159,6 +166,7 @@ func (ss *session) readLoop(cancel context.CancelFunc) {
 			return
 		}
 		ss.conn.SetReadDeadline(time.Now().Add(pongWait))
+		ss.slot.touch()
 		if kind != websocket.TextMessage {
 			ss.errs.put(&errorMsg{Type: MsgError, Error: "binary messages are not part of the protocol", Fields: []scenarios.FieldError{}})
 			continue
@@ -245,6 +253,10 @@ func rejection(id int64, err error) *errorMsg {
 			m.Error = "invalid pinned scenario"
 		}
 		m.Fields = ve.Fields
+	}
+	var ce *scenarios.CostError
+	if errors.As(err, &ce) {
+		m.Fields = ce.Fields()
 	}
 	return m
 }

@@ -3,7 +3,6 @@ package main
 import (
 	"fmt"
 	"io"
-	"os"
 
 	"github.com/pulsewright/pulsewright/scenarios"
 )
@@ -19,6 +18,15 @@ func (e *env) export(args []string) error {
 	if *sigmf == "" && *csvOut == "" {
 		return usageError{"export needs --sigmf BASE and/or --csv FILE"}
 	}
+	if len(pos) == 1 {
+		outs := map[string]string{"--csv": *csvOut}
+		if *sigmf != "" {
+			outs["--sigmf (meta)"], outs["--sigmf (data)"] = *sigmf+".sigmf-meta", *sigmf+".sigmf-data"
+		}
+		if err := checkOutputs(pos[0], outs); err != nil {
+			return err
+		}
+	}
 	s, err := e.oneScenario("export", pos)
 	if err != nil {
 		return err
@@ -28,19 +36,20 @@ func (e *env) export(args []string) error {
 		return fmt.Errorf("evaluate: %w", err)
 	}
 	if *sigmf != "" {
-		data, err := os.Create(*sigmf + ".sigmf-data")
+		data, err := createOut(*sigmf + ".sigmf-data")
 		if err != nil {
 			return fmt.Errorf("export: %w", err)
 		}
-		defer data.Close()
+		defer data.Abort() // after Commit, a no-op
 		err = writeFile(*sigmf+".sigmf-meta", func(meta io.Writer) error {
-			return scenarios.WriteSigMF(meta, data, s, res)
+			if err := scenarios.WriteSigMF(meta, data, s, res); err != nil {
+				return err
+			}
+			// The data goes in place before its metadata, which names it.
+			return data.Commit()
 		})
 		if err != nil {
 			return err
-		}
-		if err := data.Close(); err != nil {
-			return fmt.Errorf("export: %w", err)
 		}
 	}
 	if *csvOut != "" {

@@ -40,6 +40,11 @@ Usage:
                                      write a self-contained HTML report for a customer
   pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
                                      write the raw I/Q as SigMF, the profile as CSV
+  pulsewright pd [--swerling 0-4] [--pulses N] [--integration noncoherent|coherent]
+                 [--pfa P] [--cfar-cells M [--os-rank K]] [--pd-required 0.9] [--from --to --step]
+                 [--ref-range-m R --ref-snr-db S] [--csv] [--html FILE.html]
+                                     Pd against SNR per pulse (or against range, R⁴ law,
+                                     from a reference point) and the SNR a required Pd needs
   pulsewright demos                  list the built-in scenarios
   pulsewright help                   show this text
 
@@ -68,7 +73,14 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 	if len(args) > 0 && (len(args[0]) == 0 || args[0][0] != '-') {
 		cmd, args = args[0], args[1:]
 	}
-	env := &env{ctx: ctx, stdin: stdin, stdout: stdout, stderr: stderr}
+	// Text for people passes through termSafe; the CSV of a sweep is data
+	// and goes raw unless it lands on a terminal, and the progress bar
+	// writes to the raw standard error.
+	out := stdout
+	if cmd != "sweep" || isTerminal(stdout) {
+		out = newTermSafe(stdout)
+	}
+	env := &env{ctx: ctx, stdin: stdin, stdout: out, stderr: newTermSafe(stderr), rawStderr: stderr}
 	var err error
 	switch cmd {
 	case "check":
@@ -83,6 +95,8 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.report(args)
 	case "export":
 		err = env.export(args)
+	case "pd":
+		err = env.pd(args)
 	case "demos":
 		err = env.demos(args)
 	case "serve":
@@ -103,6 +117,8 @@ type env struct {
 	stdin  io.Reader
 	stdout io.Writer
 	stderr io.Writer
+	// rawStderr is stderr without termSafe, for the progress bar's \r.
+	rawStderr io.Writer
 }
 
 // usageError is a mistake on the command line.

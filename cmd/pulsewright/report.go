@@ -20,6 +20,11 @@ func (e *env) report(args []string) error {
 	if *out == "" {
 		return usageError{"report needs -o FILE.html"}
 	}
+	if len(pos) == 1 {
+		if err := checkOutputs(pos[0], map[string]string{"-o": *out}); err != nil {
+			return err
+		}
+	}
 	s, err := e.oneScenario("report", pos)
 	if err != nil {
 		return err

@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"runtime"
 	"strconv"
+	"strings"
 	"time"
 
 	"github.com/pulsewright/pulsewright/scenarios"
@@ -54,16 +55,37 @@ func (e *env) parseServe(args []string) (serveConfig, error) {
 	fs.StringVar(&c.logFormat, "log-format", envOr("PULSEWRIGHT_LOG_FORMAT", "text"), "log format on standard error: text or json (env PULSEWRIGHT_LOG_FORMAT)")
 	fs.BoolVar(&c.open, "open", open, "open the page in the browser (env PULSEWRIGHT_OPEN)")
 	fs.BoolVar(&c.Dev, "dev", false, "serve the page from web/static on disk (for work on the page)")
+	memMiB, err := strconv.ParseInt(envOr("PULSEWRIGHT_MEMORY_LIMIT_MIB", "0"), 10, 64)
+	if err != nil || memMiB < 0 {
+		return c, usageError{fmt.Sprintf("PULSEWRIGHT_MEMORY_LIMIT_MIB=%q: want a whole number of MiB", os.Getenv("PULSEWRIGHT_MEMORY_LIMIT_MIB"))}
+	}
+	fs.Int64Var(&memMiB, "memory-limit", memMiB, "memory budget of the evaluations in flight, in `MiB`; one that would need more is refused (0: half the machine's memory, at most 4096) (env PULSEWRIGHT_MEMORY_LIMIT_MIB)")
+	var hosts multiFlag
+	fs.Var(&hosts, "allowed-host", "a `name` the page may be reached by besides localhost and IP addresses (repeat for more; env PULSEWRIGHT_ALLOWED_HOSTS, comma-separated)")
 	fs.StringVar(&c.Token, "token", os.Getenv("PULSEWRIGHT_TOKEN"), "access `token` to require instead of a generated one (env PULSEWRIGHT_TOKEN)")
 	pos, err := parseFlags(fs, args)
 	if err != nil {
 		return c, err
 	}
+	if len(hosts) == 0 {
+		for _, h := range strings.Split(os.Getenv("PULSEWRIGHT_ALLOWED_HOSTS"), ",") {
+			if h = strings.TrimSpace(h); h != "" {
+				hosts = append(hosts, h)
+			}
+		}
+	}
+	c.AllowedHosts = hosts
+	if memMiB < 0 || memMiB > 1<<30 {
+		return c, usageError{fmt.Sprintf("--memory-limit %d: want 0 (automatic) or a number of MiB", memMiB)}
+	}
+	c.MemoryLimit = memMiB << 20
 	switch {
 	case len(pos) > 0:
 		return c, usageError{fmt.Sprintf("serve takes no arguments, got %q", pos)}
 	case c.logFormat != "text" && c.logFormat != "json":
 		return c, usageError{fmt.Sprintf("--log-format %q: want text or json", c.logFormat)}
+	case c.Token != "" && len(c.Token) < server.MinTokenLen:
+		return c, usageError{fmt.Sprintf("--token of %d characters is too easy to guess: use at least %d, or leave it unset to have one generated", len(c.Token), server.MinTokenLen)}
 	case c.DataDir == "":
 		return c, usageError{"no --data-dir given and no user config directory to default to"}
 	}

@@ -40,11 +40,11 @@ func (e *env) sweep(args []string) error {
 	if *jobs < 0 {
 		return usageError{fmt.Sprintf("--jobs %d is negative", *jobs)}
 	}
-	base, err := e.oneScenario("sweep", pos)
-	if err != nil {
+	// The grid is counted, with overflow checks, before anything else.
+	if _, err := scenarios.CountAxes(sets); err != nil {
 		return err
 	}
-	g := &scenarios.Grid{Base: base}
+	g := &scenarios.Grid{}
 	for _, spec := range sets {
 		a, err := scenarios.ParseAxis(spec)
 		if err != nil {
@@ -52,6 +52,20 @@ func (e *env) sweep(args []string) error {
 		}
 		g.Axes = append(g.Axes, a)
 	}
+	n, err := g.Count()
+	if err != nil {
+		return err
+	}
+	if len(pos) == 1 {
+		if err := checkOutputs(pos[0], map[string]string{"--out": *out, "--html": *html}); err != nil {
+			return err
+		}
+	}
+	base, err := e.oneScenario("sweep", pos)
+	if err != nil {
+		return err
+	}
+	g.Base = base
 	ids := make([]string, len(base.Targets))
 	for i, t := range base.Targets {
 		ids[i] = t.ID
@@ -59,21 +73,22 @@ func (e *env) sweep(args []string) error {
 	if *failIf != "" && !contains(ids, *failIf) {
 		return usageError{fmt.Sprintf("--fail-if-masked %q is not a target of the scenario (targets: %s)", *failIf, strings.Join(ids, ", "))}
 	}
-	// Validate every point before creating any file.
-	for i := range g.Len() {
-		if _, err := g.Scenario(i); err != nil {
-			return err
+	// Validate before creating any file.
+	if err := g.Validate(e.ctx); err != nil {
+		if e.ctx.Err() != nil {
+			return statusError{exitInterrupted, "sweep interrupted while checking the grid; nothing written"}
 		}
+		return err
 	}
 
-	w := e.stdout
+	var w io.Writer = e.stdout
+	var outF *outFile
 	if *out != "" {
-		f, err := os.Create(*out)
-		if err != nil {
+		if outF, err = createOut(*out); err != nil {
 			return fmt.Errorf("sweep: %w", err)
 		}
-		defer f.Close()
-		w = f
+		defer outF.Abort() // after Commit, a no-op
+		w = outF
 	}
 	sw := newSweepWriter(w, g, ids)
 	if err := sw.header(); err != nil {
@@ -83,7 +98,7 @@ func (e *env) sweep(args []string) error {
 	if workers == 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	bar := newProgress(e.stderr, g.Len())
+	bar := newProgress(e.rawStderr, n)
 	var points []scenarios.Point
 	detected := false
 	runErr := g.Run(e.ctx, workers, func(p scenarios.Point) error {
@@ -102,20 +117,21 @@ func (e *env) sweep(args []string) error {
 			return err
 		}
 	}
-	if *out != "" {
-		if f, ok := w.(*os.File); ok {
-			if err := f.Close(); err != nil {
-				return fmt.Errorf("sweep: %w", err)
-			}
+	interrupted := errors.Is(runErr, context.Canceled)
+	if outF != nil && (runErr == nil || interrupted) {
+		// The rows done are kept on an interrupt; on a failure the
+		// previous file stays.
+		if err := outF.Commit(); err != nil {
+			return fmt.Errorf("sweep: %w", err)
 		}
 	}
 	switch {
-	case errors.Is(runErr, context.Canceled):
-		return statusError{exitInterrupted, fmt.Sprintf("sweep interrupted: %d of %d points written", len(points), g.Len())}
+	case interrupted:
+		return statusError{exitInterrupted, fmt.Sprintf("sweep interrupted: %d of %d points written", len(points), n)}
 	case runErr != nil:
 		return runErr
 	case *failIf != "" && !detected:
-		return statusError{exitMasked, fmt.Sprintf("target %s is not detected at any of the %d points", *failIf, g.Len())}
+		return statusError{exitMasked, fmt.Sprintf("target %s is not detected at any of the %d points", *failIf, n)}
 	}
 	return nil
 }
@@ -136,19 +152,6 @@ func findTarget(r *scenarios.Report, id string) *scenarios.TargetReport {
 		}
 	}
 	return nil
-}
-
-// writeFile creates path and writes it with fn, reporting the first error.
-func writeFile(path string, fn func(io.Writer) error) error {
-	f, err := os.Create(path)
-	if err != nil {
-		return err
-	}
-	if err := fn(f); err != nil {
-		f.Close()
-		return fmt.Errorf("write %s: %w", path, err)
-	}
-	return f.Close()
 }
 
 // sweepWriter writes one CSV row per point and flushes it, so the rows of
