@@ -249,7 +249,11 @@ func (ss *session) wavePlots(ctx context.Context, c *evalCache) error {
 	}
 	ch, ok := ss.srv.waves.get(key)
 	if !ok {
-		p, err := scenarios.WaveformPlots(ctx, c.scn)
+		// The evaluation's deadline holds here too; past it, the charts are
+		// left out rather than holding the frame.
+		wctx, cancel := context.WithTimeout(ctx, ss.srv.cfg.EvalTimeout)
+		p, err := scenarios.WaveformPlots(wctx, c.scn)
+		cancel()
 		switch {
 		case ctx.Err() != nil:
 			return ctx.Err()
