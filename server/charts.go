@@ -363,7 +363,11 @@ func responseYMin(pslr float64) float64 {
 // responseChart plots the waveform's own compressed response, and the
 // pinned one's when pinned.
 func responseChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOut {
-	yMin := responseYMin(res.Report.Waveform.PSLRDB)
+	pslr := 0.0 // no sidelobes: the default span
+	if p := res.Report.Waveform.PSLRDB; p != nil {
+		pslr = *p
+	}
+	yMin := responseYMin(pslr)
 	b := newBuilder("range from peak (m)", "dB re peak", yMin)
 	b.line.YAxisList[0].Max = 0.0
 	near := responseNear(res)

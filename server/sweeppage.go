@@ -84,7 +84,11 @@ func WriteSweepPage(w io.Writer, base *scenarios.Scenario, g *scenarios.Grid, pt
 		}
 		wf := p.Report.Waveform
 		l := find(&figs, "PSLR"+suffix)
-		l.data = append(l.data, [2]any{xval(p), round4(wf.PSLRDB)})
+		var pslr any // no sidelobes: a gap in the line
+		if wf.PSLRDB != nil {
+			pslr = round4(*wf.PSLRDB)
+		}
+		l.data = append(l.data, [2]any{xval(p), pslr})
 		l = find(&figs, "mismatch loss"+suffix)
 		l.data = append(l.data, [2]any{xval(p), round4(wf.MismatchLossDB)})
 	}
@@ -144,6 +148,7 @@ func WriteSweepPage(w io.Writer, base *scenarios.Scenario, g *scenarios.Grid, pt
 		"Charts":  cs,
 		"Script":  js,
 		"Caution": caution,
+		"Engine":  scenarios.RunningEngine().String(),
 	})
 }
 
@@ -166,6 +171,7 @@ var sweepTmpl = template.Must(template.New("sweep").Parse(`<!DOCTYPE html>
 {{end}}
 <p class="notes">A target is detected where its margin is at or above 0 dB. Missing points are targets outside the receive window.</p>
 <div class="caution"><b>Caution.</b> {{.Caution}}</div>
+<footer>Made with Pulsewright: <span class="engine">{{.Engine}}</span>.</footer>
 </main>
 <script type="module">{{.Script}}</script>
 </body>

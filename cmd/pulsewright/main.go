@@ -46,6 +46,12 @@ Usage:
                                      Pd against SNR per pulse (or against range, R⁴ law,
                                      from a reference point) and the SNR a required Pd needs
   pulsewright demos                  list the built-in scenarios
+  pulsewright import FILE --into SCENARIO [--as waveform|filter] [--rate HZ] [--bandwidth HZ]
+                                     write a recorded pulse (SigMF cf32_le or CSV) into a
+                                     scenario as its waveform or receive filter; print it
+                                     (export --pulse-sigmf BASE writes a scenario's pulse)
+  pulsewright version [--format json]
+                                     print the engine's version, commit and format versions
   pulsewright help                   show this text
 
 SCENARIO is a file path, - for standard input, a share link (a whole URL or
@@ -101,6 +107,10 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.demos(args)
 	case "serve":
 		err = env.serve(args)
+	case "import":
+		err = env.importSamples(args)
+	case "version", "--version":
+		err = env.version(args)
 	case "help", "-h", "--help":
 		fmt.Fprint(stdout, usage)
 		return exitOK

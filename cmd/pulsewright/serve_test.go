@@ -106,7 +106,7 @@ func TestServeEndToEnd(t *testing.T) {
 	var rep scenarios.Report
 	json.NewDecoder(resp.Body).Decode(&rep)
 	resp.Body.Close()
-	if resp.StatusCode != 200 || len(rep.Targets) == 0 || rep.Waveform.PSLRDB >= 0 {
+	if resp.StatusCode != 200 || len(rep.Targets) == 0 || rep.Waveform.PSLRDB == nil || *rep.Waveform.PSLRDB >= 0 {
 		t.Fatalf("evaluate: %d %+v", resp.StatusCode, rep)
 	}
 	cancel() // as SIGINT does through signal.NotifyContext
@@ -214,7 +214,16 @@ func TestServeCrashMidSave(t *testing.T) {
 				}
 			})
 		}
+		// Kill at a random moment, but only once this iteration has
+		// completed a save: on a loaded machine (or under -race) the first
+		// save can take longer than the random delay, and a kill before it
+		// would test nothing.
+		before := saved.Load()
 		time.Sleep(time.Duration(30+rng.IntN(150)) * time.Millisecond)
+		for deadline := time.Now().Add(10 * time.Second); saved.Load() == before && time.Now().Before(deadline); {
+			time.Sleep(5 * time.Millisecond)
+		}
+		time.Sleep(time.Duration(rng.IntN(20)) * time.Millisecond)
 		cmd.Process.Signal(syscall.SIGKILL)
 		cmd.Wait()
 		close(stop)
