@@ -1,149 +1,138 @@
 package web_test
 
 import (
-	"encoding/base64"
+	"context"
 	"fmt"
-	"math"
-	"os"
-	"path/filepath"
 	"strings"
 	"testing"
 
 	"github.com/chromedp/chromedp"
 )
 
-// The page tells the harbour scene's story on the plots themselves:
-// named markers, the masking line labelled, the threshold named, and a
-// double-click on the masked skiff zooms onto it and its masker.
-func TestStoryLabelsAndFocus(t *testing.T) {
+// TestSceneStoryOnScreen: the scene's notes and the masked target's reason
+// are on screen; notes the user writes travel with the share link.
+func TestSceneStoryOnScreen(t *testing.T) {
 	ctx := mustBrowser(t)
-	openPage(t, ctx, mustServer(t))
-	label := eval[string](t, ctx, `(() => { const o = window.__pw.plots.charts.profile.getOption();
-		const s = o.series.find((x) => x.id === 'masking'); const d = s && s.data.find((x) => x && x.label);
-		return d ? d.label.formatter : ''; })()`)
-	if label != "tanker's response masks skiff" {
-		t.Errorf("masking label %q", label)
+	base := mustServer(t)
+	openPage(t, ctx, base)
+	waitFor(t, ctx, "the skiff masked", jsTarget+`('skiff').status === 'masked'`)
+	waitFor(t, ctx, "the story", `!!document.querySelector('.story .story-masked')`)
+	story := eval[string](t, ctx, `document.querySelector('.story').innerText`)
+	for _, want := range []string{"Harbour approach: skiff beside a tanker", "Try a Taylor window", "skiff", "hidden by tanker", "A Taylor window ("} {
+		if !strings.Contains(story, want) {
+			t.Errorf("the story on screen lacks %q:\n%s", want, story)
+		}
 	}
-	names := eval[[]string](t, ctx, `window.__pw.plots.charts.profile.getOption().series.find((s) => s.id === 'markers').data.map((d) => d.name)`)
-	if strings.Join(names, ",") != "tanker,skiff,pilot-boat" {
-		t.Errorf("marker names %v", names)
+	// The story is in view without scrolling.
+	if !eval[bool](t, ctx, `(() => { const r = document.querySelector('.story-masked').getBoundingClientRect(); return r.top >= 0 && r.bottom <= innerHeight; })()`) {
+		t.Error("the masked target's reason is not in view")
 	}
-	shot(t, ctx, "labels")
+	shot(t, ctx, "harbour")
 
-	// Real keys in the profile's Focus list: typing "s" picks "skiff and
-	// tanker (masks it)". (A double-click on a marker does the same; a
-	// click on a marker still trips a chart-library exception that another
-	// change fixes, so this test uses the keyboard.)
-	do(t, ctx, chromedp.Focus(chromedp.CSS(`#focus-select`)), chromedp.KeyEvent("s"))
-	waitFor(t, ctx, "the focused zoom", `window.__pw.plots.visibleRange() !== null`)
-	r := eval[[]float64](t, ctx, `window.__pw.plots.visibleRange()`)
-	// Tanker at 6000 m, skiff at 6300 m: the span holds both, with 150 m
-	// (half their distance) each side; the window is 3.5–9 km.
-	if !(r[0] < 6000 && r[1] > 6300 && r[1]-r[0] < 700) {
-		t.Errorf("focused range %v m, want about [5850, 6450]", r)
+	// Write a note of one's own, in the Scene tab, with the keyboard.
+	const notes = `textarea[data-path="notes"]`
+	do(t, ctx, chromedp.Click(chromedp.CSS(notes)))
+	typeInto(t, ctx, notes, "Customer demo: the skiff hides in the tanker's sidelobes.")
+	waitFor(t, ctx, "the note in the story", `document.querySelector('.story').innerText.includes('Customer demo')`)
+	waitFor(t, ctx, "the note's frame", fresh+` && window.__pw.store.scenario.notes === "Customer demo: the skiff hides in the tanker's sidelobes."`)
+	link := eval[string](t, ctx, `window.__pw.frame().link`)
+	tab, cancel := chromedp.NewContext(ctx)
+	defer cancel()
+	openPage(t, tab, base+link)
+	waitFor(t, tab, "the linked note", `document.querySelector('.story').innerText.includes('Customer demo: the skiff hides')`)
+	if v := eval[string](t, tab, `document.querySelector('textarea[data-path="notes"]').value`); v != "Customer demo: the skiff hides in the tanker's sidelobes." {
+		t.Errorf("the linked scene's notes field holds %q", v)
 	}
-	waitFor(t, ctx, "the echo following", `(() => { const a = window.__pw.plots.charts.echo.getModel().getComponent('xAxis', 0).axis.scale.getExtent(); return a[1] - a[0] < 700; })()`)
-	shot(t, ctx, "focused")
+	shot(t, tab, "linked-note")
 }
 
-// The designer's tabs show the pulse, the spectrum with its occupied band,
-// the filter's taps and the Doppler tolerance, each opened by a real click.
-func TestDesignerTabs(t *testing.T) {
+// setSelect picks a value in a menu and fires its change event, as a pick
+// with the keyboard does.
+func setSelect(t *testing.T, ctx context.Context, sel, value string) {
+	t.Helper()
+	do(t, ctx, chromedp.Focus(chromedp.CSS(sel)), chromedp.SetValue(chromedp.CSS(sel), value),
+		chromedp.Evaluate[chromedp.Void](fmt.Sprintf(`document.querySelector(%q).dispatchEvent(new Event('change', {bubbles: true}))`, sel)))
+}
+
+// TestWordsAndUnits: messages give units; menus and panels show names,
+// not identifiers; a mismatched filter is offered only where it applies;
+// Pfa reads in scientific notation; typed phases replace the binary code.
+func TestWordsAndUnits(t *testing.T) {
 	ctx := mustBrowser(t)
 	openPage(t, ctx, mustServer(t))
-	for _, c := range []struct{ tab, series string }{
-		{"pulse", "frequency"}, {"pulse", "spectrum"}, {"filter", "tap-amplitude"}, {"filter", "doppler-loss"},
-	} {
-		sel := fmt.Sprintf(`.plot-head [data-show=%q]`, c.tab)
-		do(t, ctx, chromedp.Click(chromedp.CSS(sel)))
-		waitFor(t, ctx, c.tab+" drawn", fmt.Sprintf(`(() => { const o = window.__pw.plots.charts[%q].getOption();
-			const s = o && o.series && o.series.find((x) => x.id === %q); return !!s && s.data.length > 10; })()`, c.tab, c.series))
-		shot(t, ctx, c.tab)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`.tabs [data-tab="radar"]`)))
+	typeInto(t, ctx, `input[data-path="radar.window_stop_m"]`, "1000")
+	const stop = `document.querySelector('[data-err-for="radar.window_stop_m"]').textContent`
+	waitFor(t, ctx, "the window error", stop+` !== ''`)
+	if msg := eval[string](t, ctx, stop); !strings.Contains(msg, "1000 m") || !strings.Contains(msg, "3500 m") {
+		t.Errorf("window stop message %q: want metres on both numbers", msg)
 	}
-	// The LFM's instantaneous frequency runs from −B/2 to +B/2 (±5 MHz).
-	f := eval[[]float64](t, ctx, `(() => { const d = window.__pw.plots.charts.pulse.getOption().series.find((x) => x.id === 'frequency').data;
-		return [d[0][1], d[d.length - 1][1]]; })()`)
-	if math.Abs(f[0]+5) > 0.05 || math.Abs(f[1]-5) > 0.05 {
-		t.Errorf("frequency from %g to %g MHz, want −5 to +5", f[0], f[1])
+	shot(t, ctx, "units")
+	typeInto(t, ctx, `input[data-path="radar.window_stop_m"]`, "9000")
+	waitFor(t, ctx, "in step", fresh+` && `+stop+` === ''`)
+
+	do(t, ctx, chromedp.Click(chromedp.CSS(`.tabs [data-tab="receive"]`)))
+	const filterOpts = `[...document.querySelectorAll('select[data-path="receiver.filter"] option')].map((o) => o.value + '=' + o.textContent)`
+	opts := eval[[]string](t, ctx, filterOpts)
+	if len(opts) != 1 {
+		t.Errorf("filters offered for an LFM: %v, want only the matched filter", opts)
 	}
-	// The card names each moving target's Doppler shift and peak shift.
-	card := eval[string](t, ctx, `document.querySelector('[data-target="skiff"] .dop').textContent`)
-	if !strings.Contains(card, "Doppler +") || !strings.Contains(card, "peak shift") {
-		t.Errorf("skiff's card: %q", card)
+	if v := eval[string](t, ctx, `document.querySelector('input[data-path="receiver.detector.pfa"]').value || document.querySelector('input[data-path="receiver.detector.pfa"]').placeholder`); v != "1e-6" {
+		t.Errorf("Pfa shown as %q, want 1e-6", v)
+	}
+	do(t, ctx, chromedp.Click(chromedp.CSS(`.tabs [data-tab="pulse"]`)))
+	setSelect(t, ctx, `select[data-action="waveform-kind"]`, "barker")
+	waitFor(t, ctx, "the Barker frame", fresh+` && window.__pw.frame().report.waveform.kind === 'barker'`)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`.tabs [data-tab="receive"]`)))
+	opts = eval[[]string](t, ctx, filterOpts)
+	if len(opts) != 3 {
+		t.Errorf("filters offered for a Barker code: %v, want three", opts)
+	}
+	setSelect(t, ctx, `select[data-path="receiver.filter"]`, "least_squares")
+	waitFor(t, ctx, "the mismatched frame", fresh+` && window.__pw.store.scenario.receiver.filter === 'least_squares'`)
+	shot(t, ctx, "mismatched")
+	// Back to an LFM: the mismatched filter goes, and nothing is refused.
+	do(t, ctx, chromedp.Click(chromedp.CSS(`.tabs [data-tab="pulse"]`)))
+	setSelect(t, ctx, `select[data-action="waveform-kind"]`, "lfm")
+	waitFor(t, ctx, "the LFM frame", fresh+` && window.__pw.frame().report.waveform.kind === 'lfm'`)
+	if f := eval[string](t, ctx, `window.__pw.store.scenario.receiver.filter || 'matched'`); f != "matched" {
+		t.Errorf("filter after going back to an LFM: %q", f)
+	}
+	// An own phase code: typed phases replace the binary code.
+	setSelect(t, ctx, `select[data-action="waveform-kind"]`, "phase_code")
+	waitFor(t, ctx, "the phase-code frame", fresh+` && window.__pw.frame().report.waveform.kind === 'phase_code'`)
+	typeInto(t, ctx, `textarea[data-path="waveform.phases_deg"]`, "0, 90, 180")
+	waitFor(t, ctx, "the phases' frame", fresh+` && JSON.stringify(window.__pw.store.scenario.waveform.phases_deg) === '[0,90,180]'`)
+	if errs := eval[string](t, ctx, `[...document.querySelectorAll('[data-err-for]')].map((e) => e.textContent).join('')`); errs != "" {
+		t.Errorf("errors after typing three phases: %q", errs)
+	}
+	if eval[bool](t, ctx, `'binary' in window.__pw.store.scenario.waveform`) {
+		t.Error("the binary code stayed beside the typed phases")
+	}
+	shot(t, ctx, "phases")
+	// No identifiers on screen; the card numbers are explained.
+	text := eval[string](t, ctx, `document.body.innerText`)
+	for _, id := range []string{"least_squares", "swerling1", "ca_cfar", "below_noise", "P_fa", "phase_code"} {
+		if strings.Contains(text, id) {
+			t.Errorf("the page shows the identifier %q", id)
+		}
+	}
+	if help := eval[string](t, ctx, `(document.querySelector('.nums-help') || {}).textContent || ''`); !strings.Contains(help, "margin") || !strings.Contains(help, "SNR") {
+		t.Errorf("the cards' numbers are not explained: %q", help)
 	}
 }
 
-// The Response plot opens on the main lobe and zooms further with a real
-// wheel turn.
-func TestResponseOpensNearAndWheelZooms(t *testing.T) {
+// TestCautionShowsWhole: the RF-exposure and spectrum caution is on
+// screen whole at 1280×720 and 1600×1000.
+func TestCautionShowsWhole(t *testing.T) {
 	ctx := mustBrowser(t)
 	openPage(t, ctx, mustServer(t))
-	extent := `(() => { const a = window.__pw.plots.charts.response.getModel().getComponent('xAxis', 0).axis.scale.getExtent(); return [a[0], a[1]]; })()`
-	waitFor(t, ctx, "the response", `window.__pw.plots.charts.response.getOption() && window.__pw.plots.charts.response.getOption().series.length > 0`)
-	r := eval[[]float64](t, ctx, extent)
-	lobe := eval[float64](t, ctx, `window.__pw.frame().report.waveform.mainlobe_3db_m`)
-	if math.Abs(r[1]-12*lobe) > 1 || math.Abs(r[0]+12*lobe) > 1 {
-		t.Errorf("response opens on [%g, %g] m, want ±12 main lobes (±%g m)", r[0], r[1], 12*lobe)
+	for _, size := range [][2]int64{{1280, 720}, {1600, 1000}} {
+		do(t, ctx, chromedp.EmulateViewport(size[0], size[1]))
+		ok := eval[bool](t, ctx, `(() => { const s = [...document.querySelectorAll('.foot > span')].find((e) => e.textContent.includes('RF exposure'));
+			const r = s.getBoundingClientRect(); return s.scrollWidth <= s.clientWidth + 1 && r.right <= innerWidth && r.bottom <= innerHeight && r.width > 0; })()`)
+		if !ok {
+			t.Errorf("%dx%d: the RF caution is cut or off screen", size[0], size[1])
+		}
 	}
-	ox, oy := chartOrigin(t, ctx, "#chart-response")
-	w := eval[float64](t, ctx, `window.__pw.plots.charts.response.getWidth()`)
-	h := eval[float64](t, ctx, `window.__pw.plots.charts.response.getHeight()`)
-	mouse(t, ctx, chromedp.MouseMoved, ox+w/2, oy+h/2)
-	for range 3 {
-		wheelAt(t, ctx, ox+w/2, oy+h/2, -120)
-	}
-	waitFor(t, ctx, "the wheel zoom", extent+`[1] - `+extent+`[0] < `+fmt.Sprint(0.9*(r[1]-r[0])))
-	shot(t, ctx, "zoomed")
-}
-
-// The printable export carries a title band with the scene's name over the
-// chart as drawn, without the zoom slider.
-func TestPrintableExport(t *testing.T) {
-	ctx := mustBrowser(t)
-	openPage(t, ctx, mustServer(t))
-	url := eval[string](t, ctx, `import('/js/export.js').then((m) => m.printablePNG(window.__pw.plots.charts.profile,
-		{ title: window.__pw.store.scenario.name, subtitle: 'Compressed range profile' }))`)
-	const head = "data:image/png;base64,"
-	if !strings.HasPrefix(url, head) {
-		t.Fatalf("export is %.40q", url)
-	}
-	png, err := base64.StdEncoding.DecodeString(url[len(head):])
-	if err != nil {
-		t.Fatal(err)
-	}
-	os.MkdirAll(outDir, 0o755)
-	os.WriteFile(filepath.Join(outDir, "TestPrintableExport-profile.png"), png, 0o644)
-	size := eval[[]float64](t, ctx, `(async () => { const i = new Image(); i.src = `+fmt.Sprintf("%q", url)+`; await i.decode();
-		const c = window.__pw.plots.charts.profile; return [i.width, i.height, c.getWidth(), c.getHeight()]; })()`)
-	if size[0] != 2*size[2] || size[1] != 2*size[3]+128 {
-		t.Errorf("export %v×%v px, want the chart (%v×%v) at 2× under a 64 px band", size[0], size[1], size[2], size[3])
-	}
-}
-
-// The range–Doppler map names each marker on a pale plate, and the map
-// cuts carry a legend per plot.
-func TestMapLabelsAndCutLegends(t *testing.T) {
-	ctx := mustBrowser(t)
-	openPage(t, ctx, mustServer(t))
-	eval[bool](t, ctx, `(async () => { const s = await fetch('/api/v1/demos/hill-clutter-doppler').then((r) => r.json()); window.__pw.store.load(s); return true; })()`)
-	waitFor(t, ctx, "the map", fresh+` && window.__pw.frame().report.scenario === window.__pw.store.scenario.name && window.__pw.plots.charts.rdmap.getOption() && window.__pw.plots.charts.rdmap.getOption().series.length > 1`)
-	lab := eval[map[string]any](t, ctx, `(() => { const s = window.__pw.plots.charts.rdmap.getOption().series.find((x) => x.id === 'markers');
-		return { show: s.label.show, plate: s.label.backgroundColor || '', names: s.data.map((d) => d.name).join(',') }; })()`)
-	if lab["show"] != true || lab["plate"] == "" || lab["names"] != "ridge,helicopter,jet,car" {
-		t.Errorf("map marker labels %v", lab)
-	}
-	// A real click on the map asks for cuts; their chart has two legends.
-	ox, oy := chartOrigin(t, ctx, "#chart-rdmap")
-	w := eval[float64](t, ctx, `window.__pw.plots.charts.rdmap.getWidth()`)
-	h := eval[float64](t, ctx, `window.__pw.plots.charts.rdmap.getHeight()`)
-	x, y := ox+w*0.4, oy+h*0.45
-	mouse(t, ctx, chromedp.MouseMoved, x, y)
-	mouse(t, ctx, chromedp.MousePressed, x, y, chromedp.ButtonLeft, chromedp.ClickCount(1))
-	mouse(t, ctx, chromedp.MouseReleased, x, y, chromedp.ButtonLeft, chromedp.ClickCount(1))
-	waitFor(t, ctx, "the cuts", `(() => { const o = window.__pw.plots.charts.rdcuts.getOption(); return !!o && o.series && o.series.length === 4; })()`)
-	n := eval[int](t, ctx, `window.__pw.plots.charts.rdcuts.getOption().legend.filter((l) => l.show !== false).length`)
-	if n != 2 {
-		t.Errorf("map cuts have %d legends, want one per plot", n)
-	}
-	shot(t, ctx, "cuts")
 }

@@ -8,6 +8,7 @@ import { SeriesMarkers } from './protocol.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
 const SecondaryMs = 100; // plots other than the profile redraw at most this often while frames stream
+const WheelGestureMs = 3000; // ms: wheel events this close, with the pointer still, form one gesture
 
 const chartMs = {};
 window.__pwChartMs = chartMs;
@@ -30,6 +31,18 @@ const wrap = (text, width = 52) => {
   return lines.join('\n');
 };
 const num = (v, d) => (Number.isFinite(v) ? v.toFixed(d) : '—');
+
+// spaceAxisLabels keeps the x-axis labels of a narrow chart apart ("90,000"
+// and "120,000" drawn against each other): ticks about every AxisLabelPx,
+// and any labels that would still touch are left out.
+const AxisLabelPx = 95;
+function spaceAxisLabels(option, width) {
+  for (const ax of [option.xAxis || []].flat()) {
+    if (!ax || ax.type !== 'value') continue;
+    ax.splitNumber = Math.max(2, Math.floor(width / AxisLabelPx));
+    ax.axisLabel = { ...(ax.axisLabel || {}), hideOverlap: true };
+  }
+}
 
 // carryCharts joins the charts of a skipped frame to the next one's:
 // chart name → the list of options to apply in turn (see Plots.apply).
@@ -147,6 +160,7 @@ export class Plots {
     const chart = this.charts[name];
     const t0 = performance.now();
     this.drawnAt[name] = t0;
+    if (entry.replace) spaceAxisLabels(entry.option, chart.getWidth());
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     // Paint now, inside this animation frame, instead of waiting for the
     // renderer's own loop to notice on the next one.
@@ -363,8 +377,18 @@ export class Plots {
     el.addEventListener('pointerleave', () => this.hoverCard(null));
     el.addEventListener('wheel', (ev) => {
       const [px, py] = local(ev);
-      const m = this.hit(px, py);
-      if (!m) return;
+      // One wheel gesture stays on the marker it started on, even when the
+      // nudged peak moves from under the pointer: it never turns into a
+      // zoom. It ends when the pointer moves away or the wheel rests.
+      const now = ev.timeStamp;
+      const w = this.wheelLock;
+      const lock = w && now - w.t < WheelGestureMs && Math.hypot(px - w.px, py - w.py) < 6 ? w : null;
+      const m = lock || this.hit(px, py);
+      if (!m) {
+        this.wheelLock = null;
+        return;
+      }
+      this.wheelLock = { id: m.id, t: now, px: lock ? w.px : px, py: lock ? w.py : py };
       ev.stopPropagation();
       ev.preventDefault();
       this.onSelect(m.id);
@@ -384,23 +408,22 @@ export class Plots {
     this.hoverCard(null);
   }
 
-  // Draw (px) or remove (null) the vertical guide shown while dragging: an
-  // element over the chart, so that moving it redraws nothing of the plot
-  // (an ECharts graphic would re-render the whole chart on every move).
+  // Draw (px) or remove (null) the vertical guide shown while dragging: a
+  // page element over the chart, so that a drag step does not redraw it.
   guide(px) {
-    const host = this.els.profile;
-    let g = host.querySelector('.pw-drag-guide');
+    const el = this.els.profile;
+    let g = el.querySelector('.drag-guide');
     if (px === null) {
       if (g) g.hidden = true;
       return;
     }
     if (!g) {
       g = document.createElement('div');
-      g.className = 'pw-drag-guide';
-      host.append(g);
+      g.className = 'drag-guide';
+      el.append(g);
     }
     g.hidden = false;
-    g.style.transform = `translateX(${Math.round(px)}px)`;
+    g.style.left = `${Math.round(px)}px`;
   }
 
   png(name) {
