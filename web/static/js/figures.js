@@ -72,7 +72,9 @@ export function renderFigures(root, report, reference, computeMs) {
         t.margin_db !== undefined ? h('span', { title: MarginHelp }, `margin ${t.margin_db >= 0 ? '+' : ''}${fmt(t.margin_db)} dB`) : null,
         t.snr_integrated_db !== undefined ? h('span', { title: IntegratedHelp }, `integrated ${fmt(t.snr_integrated_db)} dB`) : null,
         t.masked_by ? h('span', {}, `masked by ${t.masked_by}`) : null,
-        t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null),
+        t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null,
+        t.doppler_hz ? h('span', { class: 'dop', title: 'Doppler shift of the echo, and the shift of its compressed peak in range (range–Doppler coupling)' },
+          `Doppler ${t.doppler_hz > 0 ? '+' : ''}${eng(t.doppler_hz, 'Hz')} · peak shift ${t.range_shift_m > 0 ? '+' : ''}${fmt(t.range_shift_m, 2)} m`) : null),
       h('div', { class: 'reason' }, t.reason || ''));
   });
 
