@@ -103,8 +103,8 @@ type CFAR struct {
 	Variant CFARVariant
 	Censor  int // Censored: largest training cells dropped, of Train (scaled to the cells used)
 
-	vc      variantCache
-	lead    []bool
+	vc   variantCache
+	lead []bool
 
 	mult    map[int]float64
 	pattern map[string]float64

@@ -190,10 +190,10 @@ type CFAR2D struct {
 	// Variant and Censor as in CFAR (Censor of the whole window's cells).
 	// Greatest/smallest-of split the window into the cells nearer in
 	// range (A < 0, or A = 0 and B < 0) and the others.
-	Variant CFARVariant
-	Censor  int
-	RhoR           []complex128
-	DopplerCov     [][]complex128
+	Variant    CFARVariant
+	Censor     int
+	RhoR       []complex128
+	DopplerCov [][]complex128
 
 	c        CFAR
 	vc       variantCache
