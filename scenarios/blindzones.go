@@ -88,8 +88,8 @@ func (s *BlindZoneSpec) Validate() error {
 // range Ranges[j] (cell centres).
 type BlindZoneMap struct {
 	Spec     BlindZoneSpec
-	Ranges   []float64 // m
-	Rates    []float64 // m/s, positive receding
+	Ranges   []float64  // m
+	Rates    []float64  // m/s, positive receding
 	Eclipsed [][]uint32 // [rate][range] bit i set: eclipsed in CPI i
 	Blind    [][]uint32 // bit i set: at a blind speed in CPI i
 	M        int        // effective M

@@ -40,6 +40,10 @@ Usage:
                                      write a self-contained HTML report for a customer
   pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
                                      write the raw I/Q as SigMF, the profile as CSV
+  pulsewright blindzones --pri T1,T2,… --tau S --carrier HZ [--pulses N1,N2,…] [--m M]
+                     [--range MIN:MAX] [--rate V] [--cells 100x40] [--format table|csv|html] [-o FILE]
+                                     map where a PRF schedule is blind (eclipsed or at a
+                                     blind speed) in range × range rate, and what M-of-N sees
   pulsewright demos                  list the built-in scenarios
   pulsewright help                   show this text
 
@@ -92,6 +96,8 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.export(args)
 	case "demos":
 		err = env.demos(args)
+	case "blindzones":
+		err = env.blindzones(args)
 	case "serve":
 		err = env.serve(args)
 	case "help", "-h", "--help":
