@@ -6,7 +6,7 @@ import (
 	"testing"
 )
 
-// Source: check-values.md §5: up-chirp T = 10 µs, B = 10 MHz, f_d = 100 kHz
+// Source: Richards 2014 p. 276 (eq. 4.105–4.106): up-chirp T = 10 µs, B = 10 MHz, f_d = 100 kHz
 // → peak shift −f_d·T/B = −100 ns (R-p276) within 0.5 %, peak loss
 // 20·log10(1−f_d/B) (0.087 dB; 0.915 dB at f_d/B = 0.1) within 0.005 dB.
 // The down-chirp flips the sign of the shift (trap 9).
@@ -39,8 +39,8 @@ func TestDopplerResponseLFM(t *testing.T) {
 	}
 }
 
-// Source: check-values.md §9: |χ(0,0)| = 1 and the volume
-// ∫∫|χ|²dτdν = 1 (Woodward; Barker-13, |ν| ≤ 4/chip: 1.0002, tol 1e-3).
+// Source: Levanon & Mozeson, Radar Signals, 2004 (normalisation):
+// |χ(0,0)| = 1, and the volume ∫∫|χ|²dτdν = 1 (Woodward 1953, from memory; Barker-13, |ν| ≤ 4/chip: 1.0002, tol 1e-3).
 // At 8 samples per chip, |ν| < 4/chip is one period of the sampled
 // χ(τ,ν) in ν, over which the rectangle rule is exact (Parseval): the
 // volume is 1 to rounding, and the table's 1.0002 is that value with
@@ -73,7 +73,7 @@ func TestAmbiguityVolume(t *testing.T) {
 	}
 }
 
-// Source: check-values.md §9, zero-delay cut of a constant-envelope pulse
+// Source: zero-delay cut of a constant-envelope pulse
 // |sinc(νT)| (R-p245): νT = 0.25 → −0.912 dB, 0.5 → −3.922 dB, null at 1.
 // The sampled pulse gives the Dirichlet kernel sin(πνT)/(N·sin(πνT/N)),
 // equal to sinc to about (π/N)² relative.
@@ -100,7 +100,8 @@ func TestZeroDelayCut(t *testing.T) {
 	}
 }
 
-// Source: check-values.md §9, Barker-13 (T = 13 chips): peak and highest
+// Source: Barker-13 (T = 13 chips), computed with numpy from the LM04
+// definition; R-p307 (Doppler loss ≤ 1 dB for νT ≤ 0.25): peak and highest
 // sidelobe relative to the zero-Doppler peak at νT = 0.1, 0.25, 0.5
 // (tolerance 0.05 dB), 16 samples per chip standing for rectangular chips.
 func TestAmbiguityBarkerDoppler(t *testing.T) {
@@ -129,7 +130,8 @@ func TestAmbiguityBarkerDoppler(t *testing.T) {
 	}
 }
 
-// Source: LM04 convention (check-values.md §9, trap 9): for an up-chirp
+// Source: Levanon & Mozeson, Radar Signals, 2004 (their convention
+// χ(τ,ν) = ∫u(t)u*(t+τ)e^{j2πνt}dt): for an up-chirp
 // u = exp(jπ(B/T)t²) the ridge of |χ(τ,ν)| follows ν = (B/T)·τ.
 func TestAmbiguityLFMRidge(t *testing.T) {
 	const T, B = 10e-6, 5e6

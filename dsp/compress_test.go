@@ -32,9 +32,10 @@ func barker13(spc int) []complex128 {
 	return p
 }
 
-// Source: check-values.md §5 (LFM rows): unweighted PSL vs BT at fs = 8B
-// (R-p285 for BT = 100), half-power width 0.88589/B (large BT), and the
-// compression gain 10·log10(BT) (R-p304).
+// Source: Richards 2014 (Fundamentals of Radar Signal Processing, 2nd ed.;
+// pages of one electronic edition): unweighted PSL vs BT at fs = 8B
+// (p. 285 for BT = 100; other BT computed with numpy), half-power width 0.88589/B (large BT), and the
+// compression gain 10·log10(BT) (p. 304).
 func TestLFMUnweighted(t *testing.T) {
 	const tolPSL = 0.05
 	for _, c := range []struct{ bt, psl float64 }{
@@ -73,11 +74,12 @@ func TestLFMUnweighted(t *testing.T) {
 	}
 }
 
-// Source: check-values.md §5, receive weighting in time, BT = 100, fs = 8B:
-// Hamming PSL −40.75 dB, LPG 5.36 dB (R-p289: −40.7 dB, LPG 5.36 dB);
-// Taylor(5, −35) PSL −33.1 dB; Hamming PSL vs BT (Fresnel ripple).
+// Source: receive weighting in time, BT = 100, fs = 8B: Hamming PSL
+// −40.75 dB, LPG 5.36 dB (Richards 2014 p. 289: −40.7 dB, LPG 5.36 dB);
+// Taylor(5, −35) PSL −33.1 dB and Hamming PSL vs BT (Fresnel ripple;
+// Kowatsch & Stocker, IEE Proc. F 129(1), 1982, from memory) computed with numpy.
 // The mismatch loss of a weighted constant-envelope pulse is the window's
-// SNR loss, 1.347 dB for a long symmetric Hamming window (§1, R-p373).
+// SNR loss, 1.347 dB for a long symmetric Hamming window (Richards 2014 p. 373).
 func TestLFMWeighted(t *testing.T) {
 	const tol = 0.3
 	const B = 10e6
@@ -116,8 +118,8 @@ func TestLFMWeighted(t *testing.T) {
 	}
 }
 
-// Source: check-values.md §9 (Barker-13 zero-Doppler PSL −22.28 dB =
-// 20·log10(1/13)) and §3 (PSL defined on the samples, 1 sample per chip).
+// Source: Barker-13 zero-Doppler PSL −22.28 dB = 20·log10(1/13) (Richards
+// 2014 p. 304; PSL defined on the samples, 1 sample per chip).
 func TestBarker13(t *testing.T) {
 	want := 20 * math.Log10(1.0/13)
 	// One sample per chip, measured on the samples.
@@ -130,7 +132,7 @@ func TestBarker13(t *testing.T) {
 		t.Errorf("gain %.4f dB, want 10·log10(13)", f.GainDB)
 	}
 	// Rectangular chips at 8 samples per chip, band-limited interpolation
-	// at B = 1/chip: the sidelobe apexes are kinks, so allow §9's 0.05 dB.
+	// at B = 1/chip: the sidelobe apexes are kinks, so allow 0.05 dB (common practice, no source).
 	p = barker13(8)
 	f = ResponseFigures(p, p, 0, 8e6, 1e6)
 	if math.Abs(f.PSLRDB-(-22.28)) > 0.05 {

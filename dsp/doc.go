@@ -24,6 +24,18 @@
 // which is tested against gonum's to 1e-12 of the transform's norm and
 // runs several times faster.
 //
+// # Detection probability
+//
+// Detector computes the probability of detection of a square-law detector
+// for a steady or Swerling 1–4 target, N pulses integrated non-coherently
+// or coherently, with a known noise level or behind a cell-averaging or
+// ordered-statistic CFAR, by one exact series (see pd.go); RequiredSNR
+// inverts it, MarcumQ is the steady single case, and Albersheim and
+// Shnidman give the published approximations as cross-checks. SNR there is
+// always the mean SNR of one pulse; thresholds are in units of the noise
+// power of one pulse, and CFAR multipliers apply to the mean of the
+// reference cells (docs/detection-probability.md).
+//
 // # Purity
 //
 // The package holds no globals, does no I/O and never logs. It starts no

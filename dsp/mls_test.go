@@ -97,7 +97,7 @@ func TestMLS(t *testing.T) {
 
 func TestMLS1023Sidelobe(t *testing.T) {
 	// R-p308: a PN code of N = 1023 has its aperiodic peak sidelobe "just
-	// above −30 dB" (≈ −10log10 N); tolerance ±2 dB (check-values §3).
+	// above −30 dB" (≈ −10log10 N); tolerance ±2 dB (Richards 2014, p. 308).
 	ph, _ := MLS(10)
 	db := pslrDB(acfMag(codeSamples(ph)))
 	if db < -32 || db > -26 {

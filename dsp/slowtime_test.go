@@ -30,9 +30,9 @@ func TestMTIResponse(t *testing.T) {
 
 // TestSlowTimeGain checks the coherent integration gain N on a bin centre
 // with no weighting, and the Hamming window's SNR loss and straddle loss
-// for a symmetric window with K = M bins, against check-values.md §1
-// (Richards 2014 p. 373 and p. 376: 1.75 dB and 1.5 dB for M = 8) and
-// the rectangular straddle loss 3.92 dB (§10).
+// for a symmetric window with K = M bins, against Richards 2014 p. 373
+// and p. 376 (1.75 dB and 1.5 dB for M = 8) and the rectangular straddle
+// loss 3.92 dB (p. 375).
 func TestSlowTimeGain(t *testing.T) {
 	for _, n := range []int{8, 16, 64} {
 		p := NewSlowTimePlan(n, MTINone, nil)

@@ -7,15 +7,15 @@ import (
 )
 
 // periodic returns the N-point DFT-even window: the first N values of the
-// symmetric (N+1)-point window (Harris 1978 uses DFT-even windows; trap 1
-// of check-values.md).
+// symmetric (N+1)-point window (Harris 1978 uses DFT-even windows, so
+// his figures are the large-N limit).
 func periodic(w Window, n int) []float64 {
 	return w.Coefficients(make([]float64, n+1))[:n]
 }
 
 // gridUnderRead bounds how far below the true peak a sidelobe level read
 // on a zero-padded FFT grid can fall (a grid sample never exceeds the
-// peak). The check-values tables were read on such a grid: their Hamming
+// peak). Our reference values were read on such a grid: their Hamming
 // HSLL is −42.68 where the transform peaks at −42.675 (numpy, 256× padding:
 // windows.json), their Taylor(10, −60) PSL −60.11 where it peaks at −60.059.
 const gridUnderRead = 0.06
@@ -26,8 +26,9 @@ func hsllAgrees(got, want, tol float64) bool {
 	return got >= want-tol && got <= want+tol+gridUnderRead
 }
 
-// Source: check-values.md §1 (H78 Table I definitions; values computed
-// with DFT-even N = 2048, the large-N limit; tolerances of that table).
+// Source: Harris, Proc. IEEE 66(1):51–83, 1978, Table I (definitions;
+// Heinzel, Rüdiger & Schilling, AEI report 2002, App. C, for Hann and
+// Hamming); values computed with numpy with DFT-even N = 2048, the large-N limit; tolerances of that table).
 // Columns: HSLL dB, CG, ENBW bins, 3-dB BW bins, 6-dB BW bins, scallop dB, WCPL dB.
 func TestWindowFiguresHarris(t *testing.T) {
 	const n = 2048
@@ -76,8 +77,8 @@ func TestWindowFiguresHarris(t *testing.T) {
 	}
 }
 
-// Source: check-values.md §1, R-p373 (SNR loss of the symmetric Hamming
-// window) and R-p288 (LPG ≈ 5.4 dB for large M: 5.359 dB computed).
+// Source: Richards 2014 p. 373 (SNR loss of the symmetric Hamming
+// window) and p. 288 (LPG ≈ 5.4 dB for large M: 5.359 dB computed).
 func TestHammingSmallM(t *testing.T) {
 	const tol = 0.01
 	for _, c := range []struct {
@@ -97,8 +98,8 @@ func TestHammingSmallM(t *testing.T) {
 	}
 }
 
-// Source: check-values.md §2 (Taylor weighting, N = 4096, computed two ways
-// from scipy.signal.windows.taylor and Taylor's closed-form pattern).
+// Source: Taylor weighting (Taylor 1955), N = 4096, computed two ways
+// from scipy.signal.windows.taylor and Taylor's closed-form pattern.
 func TestTaylorFigures(t *testing.T) {
 	if testing.Short() {
 		t.Skip("4096-point windows with exact-transform refinement")

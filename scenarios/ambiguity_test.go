@@ -8,7 +8,7 @@ import (
 
 // TestAmbiguitySurface checks |χ(0,0)| = 1 (0 dB, LM04 normalisation) and
 // the zero-delay cut of a constant-envelope pulse, |sinc(νT)|: νT = 0.5 →
-// −3.922 dB (Richards 2014 eq. 4.53; check-values.md §9).
+// −3.922 dB (Richards 2014, eq. 4.53).
 func TestAmbiguitySurface(t *testing.T) {
 	s := mustDecode(t, `{"version":1,"radar":{"sample_rate_hz":4e6},"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`)
 	a, err := Ambiguity(context.Background(), s, 101, 33)
@@ -32,7 +32,7 @@ func TestAmbiguitySurface(t *testing.T) {
 		t.Errorf("zero-delay cut at νT = 0.5: %.3f dB, want −3.922", got)
 	}
 	// The zero-Doppler cut of Barker 13 peaks at 0 dB with −22.28 dB sidelobes
-	// (check-values.md §3); max-hold keeps the level of the sidelobes.
+	// (20·log10(1/13), Richards 2014 p. 304); max-hold keeps the level of the sidelobes.
 	side := -100.0
 	for c, v := range a.ZeroDoppler {
 		if math.Abs(a.DelayM[c]) > 1.5e-6*C/2 {

@@ -119,6 +119,12 @@ func canonicalWaveform(w Waveform) ordered {
 			}
 		case "binary":
 			o.put(f, w.Binary, "")
+		case "sample_rate_hz":
+			o.put(f, w.SampleRateHz, nil)
+		case "interpolation":
+			o.put(f, w.Interpolation, InterpBandLimited)
+		case "i":
+			o = canonicalIQ(o, w.Samples) // writes i, q or amplitude, phase_deg
 		}
 	}
 	return o
@@ -129,6 +135,9 @@ func canonicalReceiver(r Receiver) ordered {
 	var o ordered
 	o.put("filter", r.Filter, d.Filter)
 	o.put("filter_length_factor", r.FilterLengthFactor, d.FilterLengthFactor)
+	if r.Taps != nil {
+		o = append(o, member{"taps", canonicalIQ(nil, *r.Taps)})
+	}
 	if r.Window != d.Window {
 		o = append(o, member{"window", canonicalWindow(r.Window)})
 	}

@@ -25,6 +25,12 @@ func Read(r io.Reader) (*Scenario, error) {
 // document that is not valid yields a *ValidationError listing every
 // problem; a document over MaxDocumentBytes is rejected before parsing.
 func Decode(data []byte) (*Scenario, error) {
+	return decodeWith(data, formatUpgrades)
+}
+
+// decodeWith is Decode with a table of upgrades from older format
+// versions (formatUpgrades in the program; tests pass their own).
+func decodeWith(data []byte, upgrades map[int]upgrade) (*Scenario, error) {
 	var errs errList
 	if len(data) > MaxDocumentBytes {
 		errs.add("", "document is larger than the limit of %d bytes", MaxDocumentBytes)
@@ -39,8 +45,22 @@ func Decode(data []byte) (*Scenario, error) {
 		return nil, errs.err()
 	}
 	s := &Scenario{}
-	if !top.version(&s.Version) {
+	if !top.version(&s.Version, upgrades) {
 		return nil, errs.err()
+	}
+	if s.Version != Version {
+		// An older document: bring it to the current version, then read
+		// it as one. Its errors then name the current fields.
+		up, notes, err := upgradeDocument(data, s.Version, upgrades)
+		if err != nil {
+			errs.add("version", "%v", err)
+			return nil, errs.err()
+		}
+		if top, ok = newObject("", up, &errs); !ok {
+			return nil, errs.err()
+		}
+		top.used["version"] = true
+		s.Version, s.ReadVersion, s.Upgraded = Version, s.Version, notes
 	}
 	top.str("name", &s.Name)
 	top.str("notes", &s.Notes)
@@ -327,18 +347,24 @@ func (o *object) finish(known ...string) {
 }
 
 // version reads the version field first: another version's fields may mean
-// other things, so nothing else is read when it is wrong.
-func (o *object) version(dst *int) bool {
+// other things, so nothing else is read when it is wrong. It accepts the
+// current version and every older one that upgrades lead from.
+func (o *object) version(dst *int, upgrades map[int]upgrade) bool {
+	supported := supportedVersions(upgrades)
 	if !o.has("version") {
-		o.errs.add("version", "required: the format version, supported: %d", Version)
+		o.errs.add("version", "required: the format version, supported: %s", joinInts(supported))
 		return false
 	}
 	v := int64(0)
 	if !o.intIn("version", &v, math.MinInt32, math.MaxInt32) {
 		return false
 	}
-	if v != Version {
-		o.errs.add("version", "%d is not supported (supported versions: %d)", v, Version)
+	ok := false
+	for _, s := range supported {
+		ok = ok || int64(s) == v
+	}
+	if !ok {
+		o.errs.add("version", "%d is not supported (supported versions: %s)", v, joinInts(supported))
 		return false
 	}
 	*dst = int(v)

@@ -34,6 +34,8 @@ func (w Waveform) Describe() string {
 		return fmt.Sprintf("MLS of degree %d, %d chips of %s", w.Degree, w.Chips(), SI(w.ChipS, "s"))
 	case KindZadoffChu:
 		return fmt.Sprintf("Zadoff–Chu root %d, %d chips of %s", w.Root, w.Chips(), SI(w.ChipS, "s"))
+	case KindSamples:
+		return describeSamples(w)
 	}
 	return fmt.Sprintf("%s, %d chips of %s", w.Kind, w.Chips(), SI(w.ChipS, "s"))
 }

@@ -1,5 +1,5 @@
 // Package scenarios is Pulsewright's scenario model: the JSON format of
-// ../shared/spec/scenario-format.md (version 1), its strict decoder and
+// docs/scenario-format.md (version 1), its strict decoder and
 // validator, the canonical encoding and share links, the built-in demo
 // scenes, and (in later files) the evaluation that turns a scenario into a
 // report through package dsp.

@@ -64,8 +64,9 @@ func pointJSON(id string, r, rcs float64) string {
 
 // TestMaskingBySidelobe: a weak target on the third range sidelobe of an
 // unweighted LFM (sinc sidelobes −13.3, −17.8, −20.8 dB: textbook result,
-// check-values.md §5) 25 dB below a strong one is masked by it at its
-// cell; a Taylor window (−35 dB, n̄ 5; §2 achieved PSL −35.22 dB) lowers
+// common practice, no source) 25 dB below a strong one is masked by it at
+// its cell; a Taylor window (−35 dB, n̄ 5; achieved PSL −35.22 dB computed
+// with scipy.signal.windows.taylor) lowers
 // the sidelobes below it and it is detected.
 func TestMaskingBySidelobe(t *testing.T) {
 	const r0 = 6000.0
@@ -145,8 +146,9 @@ func TestEveryStatus(t *testing.T) {
 // target at off-grid ranges sits at its true range within a tenth of a
 // resolution cell (c/2B), and that its height equals the radar equation
 // SNR of the scenario format (unweighted, zero Doppler) within the
-// straddle of a sinc sampled at 4 points per 1/B (≤ 0.23 dB, check-values
-// §10 scaled) — this ties the echo scaling to the noise power k·T0·F·fs.
+// straddle of a sinc sampled at 4 points per 1/B (≤ 0.23 dB: |sinc| at
+// 1/8 of 1/B off its peak, computed from the sinc; the mechanism is
+// Richards 2014 p. 235) — this ties the echo scaling to the noise power k·T0·F·fs.
 func TestLoneTargetPeak(t *testing.T) {
 	cell := C / (2 * 1e7)
 	for _, r := range []float64{6000, 6000.37, 6001.9, 7234.567} {

@@ -9,17 +9,17 @@ import (
 
 var (
 	waveformKinds = []string{KindRect, KindLFM, KindNLFM, KindBarker, KindMPS, KindMLS, KindFrank,
-		KindP1, KindP2, KindP3, KindP4, KindZadoffChu, KindCostas, KindPhaseCode}
+		KindP1, KindP2, KindP3, KindP4, KindZadoffChu, KindCostas, KindPhaseCode, KindSamples}
 	windowKinds   = []string{WindowNone, WindowHann, WindowHamming, WindowBlackman, WindowBlackmanHarris, WindowTaylor, WindowChebyshev, WindowKaiser, WindowGaussian}
 	detectorKinds = []string{DetectorCA, DetectorOS, DetectorGO, DetectorSO, DetectorCens, DetectorFixed}
 	targetKinds   = []string{TargetPoint, TargetExtended, TargetVolume}
 	fluctuations  = []string{FluctuationNone, "swerling1", "swerling2", "swerling3", "swerling4"}
-	filters       = []string{FilterMatched, FilterLeastSquares, FilterMinimax}
+	filters       = []string{FilterMatched, FilterLeastSquares, FilterMinimax, FilterCustom}
 	sweeps        = []string{"up", "down"}
 
 	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "view"}
 	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg"}
-	receiverFields = []string{"filter", "filter_length_factor", "window", "detector", "doppler_window", "mti"}
+	receiverFields = []string{"filter", "filter_length_factor", "taps", "window", "detector", "doppler_window", "mti"}
 	mtis           = []string{MTINone, MTITwoPulse, MTIThreePulse}
 )
 
@@ -39,6 +39,7 @@ var waveformFields = map[string][]string{
 	KindZadoffChu: {"length", "root", "chip_s"},
 	KindCostas:    {"length", "chip_s"},
 	KindPhaseCode: {"phases_deg", "binary", "chip_s"},
+	KindSamples:   append([]string{"sample_rate_hz", "bandwidth_hz", "interpolation"}, iqFields...),
 }
 
 var windowFields = map[string][]string{
@@ -111,6 +112,10 @@ func (o *object) decodeWaveform(w *Waveform) {
 		return
 	}
 	switch w.Kind {
+	case KindSamples:
+		o.decodeSamples(w)
+		o.finishKind(w.Kind, fields)
+		return
 	case KindRect:
 		o.require("pulse_width_s", "the pulse width in s")
 		o.float("pulse_width_s", &w.PulseWidthS)
@@ -244,6 +249,9 @@ func (o *object) decodeReceiver(r *Receiver) {
 		o.oneOf("filter", r.Filter, filters)
 	}
 	o.int("filter_length_factor", &r.FilterLengthFactor)
+	if c, ok := o.child("taps"); ok {
+		c.decodeTaps(&r.Taps)
+	}
 	if c, ok := o.child("window"); ok {
 		c.decodeWindow(&r.Window)
 	}

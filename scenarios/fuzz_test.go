@@ -14,6 +14,7 @@ func FuzzDecode(f *testing.F) {
 		f.Add(data)
 	}
 	f.Add([]byte(`{"version":1,"waveform":{"kind":"phase_code","binary":"+-+","chip_s":1e-6},"view":{"a":[1,{"b":null}]}}`))
+	f.Add([]byte(`{"version":1,"waveform":{"kind":"samples","sample_rate_hz":2e6,"bandwidth_hz":1e6,"i":[1,0.5,-1],"q":[0,1,0]},"receiver":{"filter":"custom","taps":{"amplitude":[1,1],"phase_deg":[0,90]}}}`))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		s, err := Decode(data)
 		if err != nil {

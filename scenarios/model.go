@@ -47,7 +47,8 @@ type dopFigure struct{ lossDB, shift float64 }
 func sameWaveform(a, b Waveform) bool {
 	if a.Kind != b.Kind || a.PulseWidthS != b.PulseWidthS || a.BandwidthHz != b.BandwidthHz || a.Sweep != b.Sweep ||
 		a.DesignSidelobeDB != b.DesignSidelobeDB || a.Length != b.Length || a.Degree != b.Degree || a.Root != b.Root ||
-		a.ChipS != b.ChipS || a.Binary != b.Binary || len(a.PhasesDeg) != len(b.PhasesDeg) {
+		a.ChipS != b.ChipS || a.Binary != b.Binary || len(a.PhasesDeg) != len(b.PhasesDeg) ||
+		a.SampleRateHz != b.SampleRateHz || a.Interpolation != b.Interpolation || !a.Samples.Equal(b.Samples) {
 		return false
 	}
 	for i := range a.PhasesDeg {
@@ -97,6 +98,8 @@ func buildWaveform(w Waveform) (dsp.Waveform, error) {
 			return nil, err
 		}
 		return dsp.Costas{Order: order, Chip: w.ChipS}, nil
+	case KindSamples:
+		return sampledWaveform(w)
 	case KindPhaseCode:
 		if w.Binary != "" {
 			return code(dsp.BinaryPhases(w.Binary))
@@ -159,7 +162,7 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 		unambM: C * r.PRIS / 2,
 	}
 	m.noiseW = dsp.NoisePower(dsp.FromDB(r.NoiseFigureDB), m.fs)
-	if sameWave && prev.fs == m.fs {
+	if sameWave && prev.fs == m.fs && sameTaps(s.Receiver.Taps, prev.s.Receiver.Taps) {
 		m.pulse = prev.pulse
 		rx, prx := s.Receiver, prev.s.Receiver
 		if rx.Filter == prx.Filter && rx.FilterLengthFactor == prx.FilterLengthFactor && rx.Window == prx.Window {
@@ -197,6 +200,12 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 		m.ref, m.lead = h, lead
 		if s.Receiver.Window.Kind != WindowNone {
 			m.warn("receiver.window %s is not applied: the %s filter sets its own weighting", s.Receiver.Window.Kind, s.Receiver.Filter)
+			m.refWarnings = append(m.refWarnings, m.warnings[len(m.warnings)-1])
+		}
+	case FilterCustom:
+		m.ref, m.lead = customReference(m.pulse, *s.Receiver.Taps)
+		if s.Receiver.Window.Kind != WindowNone {
+			m.warn("receiver.window %s is not applied: the custom filter's taps are used as given", s.Receiver.Window.Kind)
 			m.refWarnings = append(m.refWarnings, m.warnings[len(m.warnings)-1])
 		}
 	default:

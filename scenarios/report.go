@@ -13,7 +13,7 @@ const (
 )
 
 // Report is what the tool concludes about one scenario: the report format
-// of shared/spec/report-format.md, version 1. A quantity that does not
+// of docs/report-format.md, version 1. A quantity that does not
 // apply is a nil pointer and is left out of the JSON.
 type Report struct {
 	Version  int            `json:"version"`
@@ -21,6 +21,9 @@ type Report struct {
 	Waveform WaveformReport `json:"waveform"`
 	Targets  []TargetReport `json:"targets"`
 	Warnings []string       `json:"warnings"`
+	// Engine names the build that computed the report. It is filled in
+	// when the report is encoded (see MarshalJSON) if it is nil.
+	Engine *EngineInfo `json:"engine,omitempty"`
 }
 
 // WaveformReport holds the figures of the compression filter's response to

@@ -56,8 +56,18 @@ func randomScenario(r *rand.Rand) *Scenario {
 		} else {
 			w.PhasesDeg = []float64{0, 90.5, -45, 180, r.Float64() * 360}
 		}
+	case KindSamples:
+		w.SampleRateHz = u(1e6, 4e7)
+		w.BandwidthHz = w.SampleRateHz * u(0.2, 1)
+		w.Samples = randomIQ(r, 1+r.IntN(40))
+		w.Interpolation = pick(interpolations)
 	}
-	if w.Kind != KindRect && w.Kind != KindLFM && w.Kind != KindNLFM {
+	if r.IntN(8) == 0 {
+		s.Receiver.Filter = FilterCustom
+		taps := randomIQ(r, 1+r.IntN(30))
+		s.Receiver.Taps = &taps
+	}
+	if w.Kind != KindRect && w.Kind != KindLFM && w.Kind != KindNLFM && w.Kind != KindSamples {
 		w.ChipS = u(5e-8, 2e-6)
 	}
 	if r.IntN(2) == 0 {
@@ -112,6 +122,21 @@ func randomScenario(r *rand.Rand) *Scenario {
 		s.View = json.RawMessage(`{"zoom":[1,2],"plots":{"raw":true}}`)
 	}
 	return s
+}
+
+// randomIQ draws n samples as I and Q or as amplitude and phase.
+func randomIQ(r *rand.Rand, n int) IQ {
+	a, b := make([]float64, n), make([]float64, n)
+	for k := range n {
+		a[k], b[k] = r.NormFloat64(), r.NormFloat64()
+	}
+	if r.IntN(2) == 0 {
+		for k := range n {
+			a[k], b[k] = math.Abs(a[k])+0.1, 180*b[k]
+		}
+		return IQ{Amplitude: a, PhaseDeg: b}
+	}
+	return IQ{I: a, Q: b}
 }
 
 // TestRoundTripRandom is the property decode(encode(s)) == s over seeded

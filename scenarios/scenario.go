@@ -1,6 +1,10 @@
 package scenarios
 
-import "encoding/json"
+import (
+	"encoding/json"
+	"math"
+	"slices"
+)
 
 // Physical constants of the format (scenario-format.md, Units).
 const (
@@ -42,6 +46,14 @@ type Scenario struct {
 	Receiver Receiver        `json:"receiver"`
 	Targets  []Target        `json:"targets"`
 	View     json.RawMessage `json:"view,omitempty"` // compact JSON object, nil when empty
+
+	// ReadVersion is the format version of the document the scenario was
+	// read from when it was older than Version (0 otherwise), and Upgraded
+	// says, one sentence each, what reading it in the current version
+	// changed. Neither is part of the format: the canonical form is always
+	// written in the current version.
+	ReadVersion int      `json:"-"`
+	Upgraded    []string `json:"-"`
 }
 
 // Radar is the transmitter, antenna, receiver front end and timing.
@@ -76,6 +88,7 @@ const (
 	KindZadoffChu = "zadoff_chu"
 	KindCostas    = "costas"
 	KindPhaseCode = "phase_code"
+	KindSamples   = "samples" // extension: a pulse given by its I/Q samples (samples.go)
 )
 
 // Waveform is the transmitted pulse. Which fields apply depends on Kind;
@@ -92,6 +105,49 @@ type Waveform struct {
 	ChipS            float64   `json:"chip_s,omitempty"`             // codes: chip length, s
 	PhasesDeg        []float64 `json:"phases_deg,omitempty"`         // phase_code: one phase per chip, degrees
 	Binary           string    `json:"binary,omitempty"`             // phase_code: "+" and "-" chips
+	// samples (an extension): the pulse as complex samples at
+	// SampleRateHz, given as I and Q or as amplitude and phase; BandwidthHz
+	// is its nominal bandwidth.
+	SampleRateHz  float64 `json:"sample_rate_hz,omitempty"` // samples: rate of the samples, Hz
+	Interpolation string  `json:"interpolation,omitempty"`  // samples: band_limited or hold, between samples
+	Samples       IQ      `json:"-"`                        // samples: the samples, in the form given
+}
+
+// IQ is a sequence of complex samples as a scenario gives them: I and Q,
+// or amplitude and phase in degrees (one pair, the other nil). Each pair
+// has equal lengths.
+type IQ struct {
+	I, Q      []float64
+	Amplitude []float64
+	PhaseDeg  []float64 // degrees
+}
+
+// Len returns the number of samples.
+func (v IQ) Len() int {
+	if v.Amplitude != nil {
+		return len(v.Amplitude)
+	}
+	return len(v.I)
+}
+
+// Complex returns the samples as complex numbers.
+func (v IQ) Complex() []complex128 {
+	out := make([]complex128, v.Len())
+	for k := range out {
+		if v.Amplitude != nil {
+			s, c := math.Sincos(v.PhaseDeg[k] * math.Pi / 180)
+			out[k] = complex(v.Amplitude[k]*c, v.Amplitude[k]*s)
+		} else {
+			out[k] = complex(v.I[k], v.Q[k])
+		}
+	}
+	return out
+}
+
+// Equal reports whether two sample sequences are given identically.
+func (v IQ) Equal(w IQ) bool {
+	return slices.Equal(v.I, w.I) && slices.Equal(v.Q, w.Q) && slices.Equal(v.Amplitude, w.Amplitude) && slices.Equal(v.PhaseDeg, w.PhaseDeg) &&
+		(v.I == nil) == (w.I == nil) && (v.Amplitude == nil) == (w.Amplitude == nil)
 }
 
 // Receive filters.
@@ -99,12 +155,14 @@ const (
 	FilterMatched      = "matched"
 	FilterLeastSquares = "least_squares"
 	FilterMinimax      = "minimax" // extension: a peak-sidelobe-optimal mismatched filter
+	FilterCustom       = "custom"  // extension: the taps in Receiver.Taps
 )
 
 // Receiver is the compression filter, its weighting and the detector.
 type Receiver struct {
 	Filter             string   `json:"filter"`
 	FilterLengthFactor int      `json:"filter_length_factor"` // least_squares: filter taps ÷ code samples
+	Taps               *IQ      `json:"-"`                    // custom: the filter's taps at radar.sample_rate_hz, nil otherwise
 	Window             Window   `json:"window"`
 	Detector           Detector `json:"detector"`
 	DopplerWindow      Window   `json:"doppler_window"`
@@ -203,6 +261,8 @@ func (w Waveform) Bandwidth() float64 {
 		return w.BandwidthHz
 	case KindCostas:
 		return float64(w.Length) / w.ChipS
+	case KindSamples:
+		return w.BandwidthHz
 	}
 	if w.ChipS > 0 {
 		return 1 / w.ChipS
@@ -226,6 +286,8 @@ func (w Waveform) Chips() int {
 			return len(w.Binary)
 		}
 		return len(w.PhasesDeg)
+	case KindSamples:
+		return 0
 	}
 	return w.Length
 }
@@ -235,6 +297,11 @@ func (w Waveform) PulseWidth() float64 {
 	switch w.Kind {
 	case KindRect, KindLFM, KindNLFM:
 		return w.PulseWidthS
+	case KindSamples:
+		if w.SampleRateHz > 0 {
+			return float64(w.Samples.Len()) / w.SampleRateHz
+		}
+		return 0
 	}
 	return float64(w.Chips()) * w.ChipS
 }

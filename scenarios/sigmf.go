@@ -23,6 +23,10 @@ import (
 // variance ½ in I and in Q). A target's echo power per sample over 1 is
 // therefore its SNR before pulse compression. The same statement is
 // written into core:description and the pulsewright:noise_power field.
+//
+// pulsewright:engine names the engine and format versions that simulated
+// the recording (EngineInfo), beside pulsewright:scenario, the canonical
+// scenario: together they say how to reproduce it.
 
 const (
 	// SigMFVersion is the SigMF specification version the metadata
@@ -30,8 +34,10 @@ const (
 	SigMFVersion = "1.2.0"
 	// SigMFExtension is the namespace of our own metadata fields, declared
 	// in core:extensions as optional.
-	SigMFExtension        = "pulsewright"
-	sigmfExtensionVersion = "1.0.0"
+	SigMFExtension = "pulsewright"
+	// sigmfExtensionVersion is the version of our namespace: 1.1.0 added
+	// pulsewright:engine.
+	sigmfExtensionVersion = "1.1.0"
 )
 
 // Gate is the span of receive-window samples that hold one target's echo:
@@ -118,6 +124,7 @@ func WriteSigMF(meta, data io.Writer, s *Scenario, res *Result) error {
 		{"pulsewright:range_start_m", res.Series.RangeM0},
 		{"pulsewright:range_step_m", res.Series.RangeStepM},
 		{"pulsewright:scenario", json.RawMessage(canon)},
+		{"pulsewright:engine", RunningEngine()},
 	}
 	captures := []ordered{{{"core:sample_start", 0}, {"core:frequency", r.CarrierHz}}}
 
@@ -168,9 +175,14 @@ func WriteSigMF(meta, data io.Writer, s *Scenario, res *Result) error {
 // WriteProfileCSV writes the compressed profile of an evaluated scenario,
 // one row per range sample: range_m, profile_db (with noise), clean_db
 // (noise-free) and threshold_db, all in dB re the output noise power.
+//
+// The first line is a comment naming the engine ("# pulsewright …"), as
+// in every CSV the program writes; CSV readers skip it with their comment
+// option.
 func WriteProfileCSV(w io.Writer, res *Result) error {
 	bw := bufio.NewWriter(w)
 	s := &res.Series
+	bw.WriteString(CSVComment())
 	bw.WriteString("range_m,profile_db,clean_db,threshold_db\n")
 	f := func(v float64, prec int) string { return strconv.FormatFloat(v, 'f', prec, 64) }
 	for k := range s.ProfileDB {

@@ -38,8 +38,8 @@ func targetByID(r *Report, id string) *TargetReport {
 // barely changes with the window (only the mismatch loss, below 1.4 dB
 // here), so lowering the Taylor design level must turn it from masked to
 // detected. The crossing point is our computation; the mismatch losses are
-// checked against check-values.md §2 (Taylor table, scipy.signal.windows.
-// taylor via taylor.py, provenance d).
+// checked against the Taylor window's SNR loss computed with
+// scipy.signal.windows.taylor (N = 4096; no published table was at hand).
 func TestSweepTaylorUnmasksSkiff(t *testing.T) {
 	g := taylorGrid(t)
 	if g.Len() != 6 {
@@ -67,7 +67,7 @@ func TestSweepTaylorUnmasksSkiff(t *testing.T) {
 	if first.Status != StatusMasked || last.Status != StatusDetected {
 		t.Errorf("skiff %s at −20 dB and %s at −45 dB; want masked then detected", first.Status, last.Status)
 	}
-	// check-values.md §2: n̄ 5 at −30 dB loses 0.679 dB, at −35 dB 0.926 dB
+	// scipy.signal.windows.taylor, N = 4096: n̄ 5 at −30 dB loses 0.679 dB, at −35 dB 0.926 dB
 	// (N = 4096; the pulse here has 400 samples, hence 0.02 dB).
 	for _, c := range []struct {
 		i    int
@@ -78,7 +78,8 @@ func TestSweepTaylorUnmasksSkiff(t *testing.T) {
 		}
 	}
 	// Lower design sidelobes give a lower PSLR and a larger mismatch loss
-	// (check-values.md §2, Taylor table: loss grows with the design level).
+	// (the Taylor window's loss grows with the design level: Farnett &
+	// Stevens in Skolnik, Radar Handbook, 2nd ed. 1990, ch. 10, from memory).
 	for i := 1; i < len(got); i++ {
 		a, b := got[i-1].Report.Waveform, got[i].Report.Waveform
 		if !(b.PSLRDB < a.PSLRDB) || !(b.MismatchLossDB > a.MismatchLossDB) {

@@ -46,7 +46,7 @@ func TestTrainFigures(t *testing.T) {
 // TestCoherentGain: a target on a Doppler bin centre gains 10·log10(N)
 // with no Doppler window; with a Hann window it loses the window's SNR
 // loss, 10·log10(ENBW) = 1.76 dB for a large symmetric window
-// (Harris 1978 ENBW 1.50 bins; check-values.md §1), 1.8 dB at N = 32.
+// (Harris, Proc. IEEE 66(1), 1978, Table I: ENBW 1.50 bins), 1.8 dB at N = 32.
 func TestCoherentGain(t *testing.T) {
 	lambda := C / 9.5e9
 	rate := -lambda / 2 * 5 / (32 * 1e-4) // 5 bins from zero Doppler

@@ -84,6 +84,7 @@ func (s *Scenario) validate(errs *errList) {
 	waveOK := s.validateWaveform(c)
 	s.validateRadar(c, waveOK)
 	s.validateReceiver(c)
+	s.validateTaps(c)
 	s.validateTargets(c)
 }
 
@@ -133,6 +134,8 @@ func (s *Scenario) validateWaveform(c checker) bool {
 	}
 	ok := true
 	switch w.Kind {
+	case KindSamples:
+		return s.validateSamples(c)
 	case KindRect, KindLFM, KindNLFM:
 		ok = c.above("waveform.pulse_width_s", w.PulseWidthS, 0, 0.1)
 		if w.Kind != KindRect {

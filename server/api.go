@@ -11,7 +11,20 @@ import (
 )
 
 func (s *Server) handleHealth(w http.ResponseWriter, r *http.Request) {
-	writeJSON(w, http.StatusOK, map[string]string{"status": "ok"})
+	writeJSON(w, http.StatusOK, map[string]any{"status": "ok", "engine": scenarios.RunningEngine()})
+}
+
+// versionInfo is the body of GET /api/v1/version: the engine's build and
+// formats (docs/report-format.md, "Engine"), and the same as one line.
+type versionInfo struct {
+	scenarios.EngineInfo
+	Text string `json:"text"`
+}
+
+// handleVersion answers which engine computes this server's results.
+func (s *Server) handleVersion(w http.ResponseWriter, r *http.Request) {
+	e := scenarios.RunningEngine()
+	writeJSON(w, http.StatusOK, versionInfo{EngineInfo: e, Text: e.String()})
 }
 
 // handleEvaluate evaluates the scenario in the body and returns its report.

@@ -34,7 +34,9 @@ func TestRoutes(t *testing.T) {
 		status                   int
 		want                     string // substring of the body
 	}{
-		{"health", "GET", "/healthz", "", nil, 200, `"status":"ok"`},
+		{"health", "GET", "/healthz", "", nil, 200, `"engine":{"version":"`},
+		{"version", "GET", "/api/v1/version", "", nil, 200, `"scenario_format":1,"report_format":1,"text":"pulsewright `},
+		{"evaluate names its engine", "POST", "/api/v1/evaluate", demo, nil, 200, `"engine":{"version":`},
 		{"evaluate", "POST", "/api/v1/evaluate", demo, nil, 200, `"scenario":"Harbour approach`},
 		{"evaluate invalid", "POST", "/api/v1/evaluate", invalid, nil, 400, `"path":"waveform.length"`},
 		{"evaluate not json", "POST", "/api/v1/evaluate", `{"version":`, nil, 400, `not valid JSON`},

@@ -184,6 +184,7 @@ td.num { text-align: right; font-variant-numeric: tabular-nums; white-space: now
 .caution { border-left: 4px solid #b45309; background: #fff7ed; padding: 10px 14px; margin-top: 28px; }
 .warn { color: #b45309; }
 footer { margin-top: 28px; color: var(--muted); font-size: 12px; }
+.scenario-notes p { white-space: pre-line; margin: 6px 0; }
 @media print { .chart { break-inside: avoid; } }
 `
 

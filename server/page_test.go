@@ -3,6 +3,7 @@ package server
 import (
 	"bytes"
 	"context"
+	"html/template"
 	"os"
 	"path/filepath"
 	"regexp"
@@ -168,4 +169,35 @@ func TestSweepPageInBrowser(t *testing.T) {
 		}
 	}
 	log.check(t)
+}
+
+// TestReportPageNotesAndEngine: the scenario's notes appear as their own
+// section, paragraph by paragraph, escaped, with single line breaks kept;
+// the footer names the engine that computed the report.
+func TestReportPageNotesAndEngine(t *testing.T) {
+	s, res := evalDemo(t, "harbour-skiff")
+	s.Notes = "Measured at the pier on a calm day.\nSecond line, same paragraph.\n\n<b>Not bold</b> & friends."
+	var b bytes.Buffer
+	if err := WriteReportPage(&b, s, res, "http://127.0.0.1:8750/#s=abc"); err != nil {
+		t.Fatal(err)
+	}
+	page := b.String()
+	for _, want := range []string{
+		"<h2>Notes</h2>",
+		"<p>Measured at the pier on a calm day.\nSecond line, same paragraph.</p>",
+		"<p>&lt;b&gt;Not bold&lt;/b&gt; &amp; friends.</p>",
+		`<span class="engine">` + template.HTMLEscapeString(scenarios.RunningEngine().String()) + "</span>",
+	} {
+		if !strings.Contains(page, want) {
+			t.Errorf("page lacks %q", want)
+		}
+	}
+	s.Notes = ""
+	b.Reset()
+	if err := WriteReportPage(&b, s, res, "x"); err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(b.String(), "<h2>Notes</h2>") {
+		t.Error("a scenario without notes gets a Notes section")
+	}
 }

@@ -35,7 +35,8 @@ func WriteReportPage(w io.Writer, s *scenarios.Scenario, res *scenarios.Result, 
 	rep := &res.Report
 	data := reportData{
 		Title:    s.Name,
-		Notes:    s.Notes,
+		Notes:    noteParagraphs(s.Notes),
+		Engine:   engineLine(rep),
 		Scene:    sceneRows(s),
 		Figures:  figureRows(rep),
 		Targets:  targetRows(rep),
@@ -53,7 +54,9 @@ func WriteReportPage(w io.Writer, s *scenarios.Scenario, res *scenarios.Result, 
 }
 
 type reportData struct {
-	Title, Notes   string
+	Title          string
+	Notes          []string // the scenario's notes, one entry per paragraph
+	Engine         string
 	Scene, Figures [][2]string
 	Targets        []targetRow
 	Warnings       []string
@@ -238,9 +241,12 @@ var reportTmpl = template.Must(template.New("report").Parse(`<!DOCTYPE html>
 <header>
 <div class="brand">Pulsewright · scenario report</div>
 <h1>{{.Title}}</h1>
-{{if .Notes}}<p class="notes">{{.Notes}}</p>{{end}}
 </header>
-
+{{if .Notes}}<section class="scenario-notes">
+<h2>Notes</h2>
+{{range .Notes}}<p>{{.}}</p>
+{{end}}</section>
+{{end}}
 <h2>Targets</h2>
 <table>
 <tr><th>Target</th><th>Status</th><th class="num">Range (m)</th><th class="num">SNR (dB)</th><th class="num">Margin (dB)</th><th>Why</th></tr>
@@ -269,7 +275,7 @@ var reportTmpl = template.Must(template.New("report").Parse(`<!DOCTYPE html>
 <div class="link">{{.Link}}</div>
 
 <div class="caution"><b>Caution.</b> {{.Caution}}</div>
-<footer>Made with Pulsewright. Every figure here is computed from the scenario above and can be reproduced from the link.</footer>
+<footer>Made with Pulsewright. Every figure here is computed from the scenario above and can be reproduced from the link with the same engine: <span class="engine">{{.Engine}}</span>.</footer>
 </main>
 <script type="module">{{.Script}}</script>
 </body>

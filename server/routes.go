@@ -14,7 +14,7 @@ func (s *Server) Handler() http.Handler {
 	r.NotFound(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errNoRoute) })
 	r.MethodNotAllowed(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errMethod) })
 
-	// GET /healthz: liveness, {"status":"ok"}.
+	// GET /healthz: liveness, {"status":"ok","engine":{…}}.
 	r.Get("/healthz", s.handleHealth)
 
 	// GET /ws: the live session (websocket; no request timeout).
@@ -25,6 +25,8 @@ func (s *Server) Handler() http.Handler {
 		r.NotFound(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errNoRoute) })
 		r.MethodNotAllowed(func(w http.ResponseWriter, r *http.Request) { s.writeError(w, r, errMethod) })
 
+		// GET /version: the engine's version and formats, {version, commit, modified, scenario_format, report_format, text}.
+		r.Get("/version", s.handleVersion)
 		// POST /evaluate: scenario in, report out.
 		r.Post("/evaluate", s.handleEvaluate)
 		// POST /links: scenario in, {"link": "/#s=…"} out.

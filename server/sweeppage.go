@@ -144,6 +144,7 @@ func WriteSweepPage(w io.Writer, base *scenarios.Scenario, g *scenarios.Grid, pt
 		"Charts":  cs,
 		"Script":  js,
 		"Caution": caution,
+		"Engine":  scenarios.RunningEngine().String(),
 	})
 }
 
@@ -166,6 +167,7 @@ var sweepTmpl = template.Must(template.New("sweep").Parse(`<!DOCTYPE html>
 {{end}}
 <p class="notes">A target is detected where its margin is at or above 0 dB. Missing points are targets outside the receive window.</p>
 <div class="caution"><b>Caution.</b> {{.Caution}}</div>
+<footer>Made with Pulsewright: <span class="engine">{{.Engine}}</span>.</footer>
 </main>
 <script type="module">{{.Script}}</script>
 </body>

@@ -219,6 +219,8 @@ func TestPageLoadsWithPlots(t *testing.T) {
 	if txt := eval[string](t, ctx, `document.querySelector('.foot').textContent`); !strings.Contains(txt, "RF exposure") {
 		t.Errorf("footer caution missing: %q", txt)
 	}
+	// The footer names the engine, from GET /api/v1/version.
+	waitFor(t, ctx, "the engine in the footer", `/^pulsewright .* · scenario format 1 · report format 1$/.test(document.querySelector('#engine').textContent)`)
 	shot(t, ctx, "")
 }
 

@@ -45,6 +45,12 @@ func (e *env) check(args []string) error {
 	if err != nil {
 		return err
 	}
+	if s.ReadVersion != 0 {
+		fmt.Fprintf(e.stdout, "read as format version %d from version %d\n", s.Version, s.ReadVersion)
+		for _, n := range s.Upgraded {
+			fmt.Fprintf(e.stdout, "  %s\n", n)
+		}
+	}
 	return writeSummary(e.stdout, s)
 }
 

@@ -67,5 +67,10 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 	for _, warn := range r.Warnings {
 		fmt.Fprintf(w, "warning: %s\n", warn)
 	}
+	eng := scenarios.RunningEngine()
+	if r.Engine != nil {
+		eng = *r.Engine
+	}
+	fmt.Fprintf(w, "\n%s\n", eng)
 	return nil
 }

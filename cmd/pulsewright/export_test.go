@@ -1,6 +1,7 @@
 package main
 
 import (
+	"context"
 	"encoding/json"
 	"os"
 	"path/filepath"
@@ -43,10 +44,70 @@ func TestExportFiles(t *testing.T) {
 		t.Fatal(err)
 	}
 	lines := strings.Split(strings.TrimSpace(string(csv)), "\n")
-	if lines[0] != "range_m,profile_db,clean_db,threshold_db" || len(lines) != n+1 {
-		t.Errorf("csv header %q, %d lines, want %d", lines[0], len(lines), n+1)
+	if !strings.HasPrefix(lines[0], "# pulsewright ") || lines[1] != "range_m,profile_db,clean_db,threshold_db" || len(lines) != n+2 {
+		t.Errorf("csv comment %q, header %q, %d lines, want %d", lines[0], lines[1], len(lines), n+2)
+	}
+	var global map[string]any
+	json.Unmarshal(meta, &struct {
+		G *map[string]any `json:"global"`
+	}{&global})
+	if e, _ := global["pulsewright:engine"].(map[string]any); e == nil || e["version"] == "" {
+		t.Errorf("sigmf global has no pulsewright:engine: %v", global["pulsewright:engine"])
 	}
 	if code, _, _ := runCmd(t, "", "export", "demo:harbour-skiff"); code != exitInvalid {
 		t.Errorf("export without outputs: exit %d", code)
 	}
+}
+
+// TestExportImportPulse: the rocky-coast demo's NLFM pulse exported with
+// --pulse-sigmf and imported back with import --into gives a scenario of
+// kind samples that checks and evaluates to the same statuses; a CSV of
+// amplitude and phase needs --rate and --bandwidth; taps at another rate
+// than the scenario's are refused.
+func TestExportImportPulse(t *testing.T) {
+	dir := t.TempDir()
+	base := filepath.Join(dir, "pulse")
+	if code, _, stderr := runCmd(t, "", "export", "demo:rocky-coast", "--pulse-sigmf", base); code != exitOK {
+		t.Fatalf("export: exit %d: %s", code, stderr)
+	}
+	code, out, stderr := runCmd(t, "", "import", base+".sigmf-meta", "--into", "demo:rocky-coast")
+	if code != exitOK {
+		t.Fatalf("import: exit %d: %s", code, stderr)
+	}
+	s, err := scenarios.Decode([]byte(out))
+	if err != nil || s.Waveform.Kind != scenarios.KindSamples {
+		t.Fatalf("imported scenario: %v, kind %q", err, s.Waveform.Kind)
+	}
+	d, _ := scenarios.LoadDemo("rocky-coast")
+	want := map[string]string{}
+	for _, tr := range mustReport(t, d.Scenario).Targets {
+		want[tr.ID] = tr.Status
+	}
+	for _, tr := range mustReport(t, s).Targets {
+		if tr.Status != want[tr.ID] {
+			t.Errorf("%s: %s after import, %s before", tr.ID, tr.Status, want[tr.ID])
+		}
+	}
+
+	csv := filepath.Join(dir, "pulse.csv")
+	os.WriteFile(csv, []byte("amplitude,phase_deg\n1,0\n1,90\n1,180\n1,270\n"), 0o644)
+	if code, _, stderr := runCmd(t, "", "import", csv, "--into", "demo:rocky-coast"); code != exitInvalid || !strings.Contains(stderr, "--rate") {
+		t.Errorf("csv without a rate: exit %d: %s", code, stderr)
+	}
+	code, out, stderr = runCmd(t, "", "import", csv, "--rate", "4e6", "--bandwidth", "1e6", "--into", "demo:rocky-coast")
+	if code != exitOK || !strings.Contains(out, `"amplitude": [`) {
+		t.Errorf("csv import: exit %d: %s %.200s", code, stderr, out)
+	}
+	if code, _, stderr := runCmd(t, "", "import", csv, "--as", "filter", "--rate", "4e6", "--into", "demo:rocky-coast"); code != exitInvalid || !strings.Contains(stderr, "radar.sample_rate_hz") {
+		t.Errorf("taps at another rate: exit %d: %s", code, stderr)
+	}
+}
+
+func mustReport(t *testing.T, s *scenarios.Scenario) *scenarios.Report {
+	t.Helper()
+	res, err := scenarios.Evaluate(context.Background(), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return &res.Report
 }

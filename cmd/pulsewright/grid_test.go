@@ -60,7 +60,8 @@ func TestSweepOutputAtomic(t *testing.T) {
 		t.Errorf("temporary files left: %v", left)
 	}
 	code, _, errs = runCmd(t, "", "sweep", "demo:harbour-skiff", "--out", out, "--set", "seed=1,2")
-	if data, _ := os.ReadFile(out); code != exitOK || !strings.HasPrefix(string(data), "seed,") {
+	// The first line names the engine (docs/report-format.md); the header follows.
+	if data, _ := os.ReadFile(out); code != exitOK || !strings.HasPrefix(string(data), "# pulsewright ") || !strings.Contains(string(data), "\nseed,") {
 		t.Errorf("exit %d %q, --out %q", code, errs, data)
 	}
 }
@@ -108,7 +109,7 @@ func TestSweepSigint(t *testing.T) {
 		t.Fatal(err)
 	}
 	lines := strings.Split(strings.TrimSpace(string(data)), "\n")
-	if len(lines) < 3 || !strings.HasPrefix(lines[0], "seed,") || !strings.HasPrefix(lines[1], "1,") {
+	if len(lines) < 4 || !strings.HasPrefix(lines[0], "# pulsewright ") || !strings.HasPrefix(lines[1], "seed,") || !strings.HasPrefix(lines[2], "1,") {
 		t.Fatalf("kept %d lines: %.200q", len(lines), data)
 	}
 	if left, _ := filepath.Glob(filepath.Join(dir, ".*.tmp")); len(left) != 0 {

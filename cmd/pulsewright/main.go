@@ -40,11 +40,22 @@ Usage:
                                      write a self-contained HTML report for a customer
   pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
                                      write the raw I/Q as SigMF, the profile as CSV
+  pulsewright pd [--swerling 0-4] [--pulses N] [--integration noncoherent|coherent]
+                 [--pfa P] [--cfar-cells M [--os-rank K]] [--pd-required 0.9] [--from --to --step]
+                 [--ref-range-m R --ref-snr-db S] [--csv] [--html FILE.html]
+                                     Pd against SNR per pulse (or against range, R⁴ law,
+                                     from a reference point) and the SNR a required Pd needs
   pulsewright blindzones --pri T1,T2,… --tau S --carrier HZ [--pulses N1,N2,…] [--m M]
                      [--range MIN:MAX] [--rate V] [--cells 100x40] [--format table|csv|html] [-o FILE]
                                      map where a PRF schedule is blind (eclipsed or at a
                                      blind speed) in range × range rate, and what M-of-N sees
   pulsewright demos                  list the built-in scenarios
+  pulsewright import FILE --into SCENARIO [--as waveform|filter] [--rate HZ] [--bandwidth HZ]
+                                     write a recorded pulse (SigMF cf32_le or CSV) into a
+                                     scenario as its waveform or receive filter; print it
+                                     (export --pulse-sigmf BASE writes a scenario's pulse)
+  pulsewright version [--format json]
+                                     print the engine's version, commit and format versions
   pulsewright help                   show this text
 
 SCENARIO is a file path, - for standard input, a share link (a whole URL or
@@ -94,12 +105,18 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.report(args)
 	case "export":
 		err = env.export(args)
+	case "pd":
+		err = env.pd(args)
 	case "demos":
 		err = env.demos(args)
 	case "blindzones":
 		err = env.blindzones(args)
 	case "serve":
 		err = env.serve(args)
+	case "import":
+		err = env.importSamples(args)
+	case "version", "--version":
+		err = env.version(args)
 	case "help", "-h", "--help":
 		fmt.Fprint(stdout, usage)
 		return exitOK

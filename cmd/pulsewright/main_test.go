@@ -3,10 +3,13 @@ package main
 import (
 	"bytes"
 	"context"
+	"encoding/json"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"github.com/pulsewright/pulsewright/scenarios"
 )
 
 // runCmd runs the program with args and stdin and returns its exit status
@@ -106,5 +109,22 @@ func TestCheckHostileInput(t *testing.T) {
 		if allocs > 2000 {
 			t.Errorf("%s: %v allocations", name, allocs)
 		}
+	}
+}
+
+// TestVersionCommand: one line naming the engine and the formats, or the
+// report's engine object as JSON.
+func TestVersionCommand(t *testing.T) {
+	code, out, stderr := runCmd(t, "", "version")
+	if code != exitOK || !strings.HasPrefix(out, "pulsewright ") || !strings.Contains(out, "scenario format 1 · report format 1") {
+		t.Errorf("version: exit %d, %q %s", code, out, stderr)
+	}
+	code, out, _ = runCmd(t, "", "version", "--format", "json")
+	var e scenarios.EngineInfo
+	if err := json.Unmarshal([]byte(out), &e); code != exitOK || err != nil || e.Version == "" || e.ReportFormat != scenarios.ReportVersion {
+		t.Errorf("version --format json: exit %d, %v, %q", code, err, out)
+	}
+	if code, _, _ := runCmd(t, "", "version", "--format", "xml"); code != exitInvalid {
+		t.Errorf("version --format xml: exit %d", code)
 	}
 }

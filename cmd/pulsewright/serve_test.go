@@ -214,7 +214,16 @@ func TestServeCrashMidSave(t *testing.T) {
 				}
 			})
 		}
+		// Kill at a random moment, but only once this iteration has
+		// completed a save: on a loaded machine (or under -race) the first
+		// save can take longer than the random delay, and a kill before it
+		// would test nothing.
+		before := saved.Load()
 		time.Sleep(time.Duration(30+rng.IntN(150)) * time.Millisecond)
+		for deadline := time.Now().Add(10 * time.Second); saved.Load() == before && time.Now().Before(deadline); {
+			time.Sleep(5 * time.Millisecond)
+		}
+		time.Sleep(time.Duration(rng.IntN(20)) * time.Millisecond)
 		cmd.Process.Signal(syscall.SIGKILL)
 		cmd.Wait()
 		close(stop)

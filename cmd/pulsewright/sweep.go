@@ -157,6 +157,7 @@ func findTarget(r *scenarios.Report, id string) *scenarios.TargetReport {
 // sweepWriter writes one CSV row per point and flushes it, so the rows of
 // an interrupted sweep are on disk.
 type sweepWriter struct {
+	w      io.Writer // under c, for the comment line
 	c      *csv.Writer
 	g      *scenarios.Grid
 	ids    []string
@@ -168,10 +169,15 @@ func newSweepWriter(w io.Writer, g *scenarios.Grid, ids []string) *sweepWriter {
 	for _, a := range g.Axes {
 		trains = trains || a.Path == "radar.pulses"
 	}
-	return &sweepWriter{c: csv.NewWriter(w), g: g, ids: ids, trains: trains}
+	return &sweepWriter{w: w, c: csv.NewWriter(w), g: g, ids: ids, trains: trains}
 }
 
+// header writes the comment line naming the engine (docs/report-format.md,
+// "Other outputs") and the header row.
 func (s *sweepWriter) header() error {
+	if _, err := io.WriteString(s.w, scenarios.CSVComment()); err != nil {
+		return err
+	}
 	var h []string
 	for _, a := range s.g.Axes {
 		h = append(h, a.Path)

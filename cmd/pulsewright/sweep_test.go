@@ -10,15 +10,36 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/pulsewright/pulsewright/scenarios"
 )
 
 var taylorSweep = []string{"sweep", "demo:harbour-skiff",
 	"--set", "receiver.window.kind=taylor",
 	"--set", "receiver.window.sidelobe_db=-20:-45:-5"}
 
+// readSweepFile reads a sweep CSV file, checks that its first line is the
+// comment naming the engine, and returns the rest.
+func readSweepFile(t *testing.T, path string) ([]byte, error) {
+	t.Helper()
+	data, err := os.ReadFile(path)
+	if err != nil {
+		return nil, err
+	}
+	first, rest, _ := bytes.Cut(data, []byte("\n"))
+	if string(first) != "# "+scenarios.RunningEngine().String() {
+		t.Errorf("the CSV does not open with the engine comment: %.80q", first)
+	}
+	return rest, nil
+}
+
+// readCSV parses sweep CSV text into rows keyed by the header; comment
+// lines (the engine line) are skipped.
 func readCSV(t *testing.T, data string) []map[string]string {
 	t.Helper()
-	recs, err := csv.NewReader(strings.NewReader(data)).ReadAll()
+	r := csv.NewReader(strings.NewReader(data))
+	r.Comment = '#'
+	recs, err := r.ReadAll()
 	if err != nil {
 		t.Fatalf("csv: %v\n%s", err, data)
 	}
@@ -36,8 +57,8 @@ func readCSV(t *testing.T, data string) []map[string]string {
 // TestSweepTaylorCSV: the skiff of demo:harbour-skiff is masked by the
 // tanker's sidelobes with a −20 dB Taylor window and detected at −45 dB;
 // the margin grows as the design level falls. The mismatch losses at −30
-// and −35 dB match check-values.md §2 (Taylor n̄ 5: 0.679 and 0.926 dB,
-// scipy.signal.windows.taylor, provenance d).
+// and −35 dB match the Taylor window's loss (n̄ 5: 0.679 and 0.926 dB,
+// computed with scipy.signal.windows.taylor at N = 4096).
 func TestSweepTaylorCSV(t *testing.T) {
 	dir := t.TempDir()
 	out, html := filepath.Join(dir, "s.csv"), filepath.Join(dir, "s.html")
@@ -48,7 +69,7 @@ func TestSweepTaylorCSV(t *testing.T) {
 	if stdout != "" || stderr != "" {
 		t.Errorf("stdout %q stderr %q; want both empty (no terminal, CSV in a file)", stdout, stderr)
 	}
-	data, err := os.ReadFile(out)
+	data, err := readSweepFile(t, out)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -144,17 +165,20 @@ func (w *cancelAfter) Write(p []byte) (int, error) {
 	return n, err
 }
 
-// TestSweepInterruptKeepsRows cancels the context after the header and two
-// rows: the rows already written stay, in grid order, and the exit status
+// TestSweepInterruptKeepsRows cancels the context after the comment line,
+// the header and two rows: the rows already written stay, in grid order, and the exit status
 // says interrupted.
 func TestSweepInterruptKeepsRows(t *testing.T) {
 	ctx, cancel := context.WithCancel(context.Background())
 	defer cancel()
-	out := &cancelAfter{n: 3, cancel: cancel}
+	out := &cancelAfter{n: 4, cancel: cancel}
 	var errb bytes.Buffer
 	code := run(ctx, append(taylorSweep, "--jobs", "2"), strings.NewReader(""), out, &errb)
 	if code != exitInterrupted || !strings.Contains(errb.String(), "sweep interrupted") {
 		t.Fatalf("exit %d, stderr %q; want %d", code, errb.String(), exitInterrupted)
+	}
+	if !strings.HasPrefix(out.String(), "# pulsewright ") {
+		t.Errorf("the interrupted CSV lost its engine comment: %.80q", out.String())
 	}
 	rows := readCSV(t, out.String())
 	if len(rows) < 2 || len(rows) == 6 {

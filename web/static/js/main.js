@@ -321,6 +321,8 @@ for (const b of $$('[data-png]')) {
 }
 
 initLibrary({ store, notice, onOpen: () => { pushNextLink = true; } });
+// The footer names the engine, as reports and exports do.
+api.version().then((v) => { $('#engine').textContent = v.text; }).catch(() => {});
 initKeys({ store, editor, lastFrame: () => lastFrame });
 
 // --- start ---

@@ -1,4 +1,4 @@
-// The scenario format (shared/spec/scenario-format.md, version 1) as the
+// The scenario format (docs/scenario-format.md, version 1) as the
 // editor needs it: kinds, the fields of each kind, display units and
 // defaults. Values are stored in SI as the format has them; `scale` is the
 // size of one display unit in SI (1e-6 shows seconds as µs).
@@ -52,6 +52,12 @@ export const waveformKinds = {
     label: 'Own phase code',
     fields: [f('phases_deg', 'Phases', '° per chip', 1, 'phases'), f('binary', 'Binary', '+/−', 1, 'text'), chip],
   },
+  // Imported I/Q samples (pulsewright import writes them in); the arrays
+  // themselves are kept as they are, only the rate and bandwidth are edited.
+  samples: {
+    label: 'Imported samples',
+    fields: [f('sample_rate_hz', 'Samples\u2019 rate', 'MHz', 1e6), f('bandwidth_hz', 'Bandwidth', 'MHz', 1e6)],
+  },
 };
 
 // A fresh waveform of a kind, keeping the pulse's time scale where it can.
@@ -71,12 +77,18 @@ export function newWaveform(kind, old) {
     case 'zadoff_chu': return { kind, length: 63, root: 1, chip_s: chipFor(63) };
     case 'costas': return { kind, length: 10, chip_s: chipFor(10) };
     case 'phase_code': return { kind, binary: '+++--+-', chip_s: chipFor(7) };
+    case 'samples': {
+      // A plain pulse of 16 samples at 2B until a recording is imported.
+      const rate = roundSig(2 * B, 3);
+      return { kind, sample_rate_hz: rate, bandwidth_hz: roundSig(B, 3), i: Array(16).fill(1), q: Array(16).fill(0) };
+    }
   }
   return { kind };
 }
 
 export function pulseWidth(w) {
   if (w.pulse_width_s) return w.pulse_width_s;
+  if (w.kind === 'samples') return (w.i || w.amplitude || []).length / (w.sample_rate_hz || 1);
   return chips(w) * (w.chip_s || 0);
 }
 
@@ -91,7 +103,7 @@ export function chips(w) {
 export function bandwidth(w) {
   switch (w.kind) {
     case 'rect': return 1 / w.pulse_width_s;
-    case 'lfm': case 'nlfm': return w.bandwidth_hz;
+    case 'lfm': case 'nlfm': case 'samples': return w.bandwidth_hz;
     case 'costas': return (w.length || 1) / w.chip_s;
   }
   return w.chip_s ? 1 / w.chip_s : 0;

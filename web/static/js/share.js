@@ -102,6 +102,10 @@ function scenarioOf(data) {
 const listOf = (data, key) => (Array.isArray(data) ? data : (data && data[key]) || []);
 
 export const api = {
+  // The engine's version and formats ({version, commit, …, text}).
+  async version() {
+    return (await request('GET', '/api/v1/version')).data;
+  },
   async demos() {
     return listOf((await request('GET', '/api/v1/demos')).data, 'demos');
   },

@@ -1,0 +1,105 @@
+package scenarios
+
+import (
+	"bytes"
+	"context"
+	"errors"
+	"os"
+	"strings"
+	"testing"
+)
+
+// TestReadsVersion1 keeps a version 1 file and its share link, as a user
+// saved them, readable by every later engine: both decode, to the same
+// scenario, whose canonical form (written in the current version) is the
+// committed one, and the verdicts are the ones the scene was built for.
+// When the format moves to version 2, the canonical file is regenerated
+// in version 2 and this test then checks the upgrade path.
+func TestReadsVersion1(t *testing.T) {
+	dir := "testdata/formats/v1/"
+	file, err := os.ReadFile(dir + "estuary.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	link, err := os.ReadFile(dir + "estuary.link")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := os.ReadFile(dir + "estuary.canonical.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	fromFile, err := Decode(file)
+	if err != nil {
+		t.Fatalf("version 1 file: %v", err)
+	}
+	fromLink, err := ParseLink(strings.TrimSpace(string(link)))
+	if err != nil {
+		t.Fatalf("version 1 link: %v", err)
+	}
+	for name, s := range map[string]*Scenario{"file": fromFile, "link": fromLink} {
+		got, err := Canonical(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Equal(got, bytes.TrimSpace(want)) {
+			t.Errorf("%s: canonical form\n%s\nwant\n%s", name, got, want)
+		}
+	}
+	res, err := Evaluate(context.Background(), fromLink)
+	if err != nil {
+		t.Fatal(err)
+	}
+	statuses := map[string]string{"ferry": StatusDetected, "buoy": StatusOutOfWindow, "kayak": StatusBelowNoise}
+	for _, tr := range res.Report.Targets {
+		if tr.Status != statuses[tr.ID] {
+			t.Errorf("%s: %s, want %s (%s)", tr.ID, tr.Status, statuses[tr.ID], tr.Reason)
+		}
+	}
+}
+
+// TestUpgradeChain runs the machinery that reads older versions with a
+// made-up version 0 whose receive window ended at "window_end_m" and whose
+// status name for targets hidden by others was "hidden". The real
+// upgrades (formatUpgrades) are written the same way.
+func TestUpgradeChain(t *testing.T) {
+	if Version != 1 {
+		t.Skip("the made-up version 0 sits just below version 1")
+	}
+	ups := map[int]upgrade{0: func(doc map[string]any) ([]string, error) {
+		r, _ := doc["radar"].(map[string]any)
+		if v, ok := r["window_end_m"]; ok {
+			delete(r, "window_end_m")
+			r["window_stop_m"] = v
+			return []string{"radar.window_end_m is now radar.window_stop_m"}, nil
+		}
+		return nil, nil
+	}}
+	old := []byte(`{"version":0,"radar":{"window_end_m":9000},"waveform":{"kind":"rect","pulse_width_s":1e-6}}`)
+	s, err := decodeWith(old, ups)
+	if err != nil {
+		t.Fatalf("version 0 with an upgrade: %v", err)
+	}
+	if s.Version != Version || s.ReadVersion != 0 || s.Radar.WindowStopM != 9000 || len(s.Upgraded) != 1 {
+		t.Errorf("upgraded: version %d, read %d, window_stop_m %g, notes %q", s.Version, s.ReadVersion, s.Radar.WindowStopM, s.Upgraded)
+	}
+	// Errors in an upgraded document name the current fields.
+	bad := []byte(`{"version":0,"radar":{"window_end_m":-5},"waveform":{"kind":"rect","pulse_width_s":1e-6}}`)
+	if _, err := decodeWith(bad, ups); err == nil || !strings.Contains(err.Error(), "radar.window_stop_m") {
+		t.Errorf("bad version 0 document: %v", err)
+	}
+	// Without the upgrade, version 0 is refused with the list of versions.
+	_, err = Decode(old)
+	var verr *ValidationError
+	if !errors.As(err, &verr) || !strings.Contains(err.Error(), "0 is not supported (supported versions: 1)") {
+		t.Errorf("version 0 without an upgrade: %v", err)
+	}
+	if got := joinInts(supportedVersions(ups)); got != "0, 1" {
+		t.Errorf("supported versions %q, want \"0, 1\"", got)
+	}
+	// A current document is not marked as upgraded.
+	cur, err := decodeWith([]byte(`{"version":1,"waveform":{"kind":"rect","pulse_width_s":1e-6}}`), ups)
+	if err != nil || cur.ReadVersion != 0 || cur.Upgraded != nil {
+		t.Errorf("current document: %v, read %d, notes %q", err, cur.ReadVersion, cur.Upgraded)
+	}
+}
