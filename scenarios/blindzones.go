@@ -85,7 +85,8 @@ func (s *BlindZoneSpec) Validate() error {
 }
 
 // BlindZoneMap is the computed map. Cell (i, j) is range rate Rates[i],
-// range Ranges[j] (cell centres).
+// range Ranges[j] (cell centres); a cell is marked eclipsed or blind in a
+// CPI when any part of it is.
 type BlindZoneMap struct {
 	Spec     BlindZoneSpec
 	Ranges   []float64  // m
@@ -168,10 +169,19 @@ func BlindZones(s BlindZoneSpec) (*BlindZoneMap, error) {
 		}
 		return s.Pulses[k]
 	}
+	// A cell is marked when any part of it is blind (conservative: a
+	// blind zone narrower than a cell still shows). Eclipsed ranges of a
+	// PRI are the intervals k·Ru ± (1 − f)·c·τ/2 (EclipsedFraction ≥ f);
+	// blind range rates k·v_b ± v_b/(2N) (AtBlindSpeed).
+	hit := func(a, b, period, half float64) bool {
+		k := math.Ceil((a - half) / period)
+		return k*period <= b+half
+	}
 	ecl := make([]uint32, s.RangeCells)
+	w := (1 - s.EclipseFraction) * C * s.PulseS / 2
 	for j, r := range b.Ranges {
 		for k, p := range s.PRIs {
-			if EclipsedFraction(r, p, s.PulseS) >= s.EclipseFraction {
+			if hit(r-dr/2, r+dr/2, dsp.UnambiguousRange(p), w) {
 				ecl[j] |= 1 << k
 			}
 		}
@@ -179,7 +189,8 @@ func BlindZones(s BlindZoneSpec) (*BlindZoneMap, error) {
 	for _, v := range b.Rates {
 		var bl uint32
 		for k, p := range s.PRIs {
-			if AtBlindSpeed(v, p, lambda, pulses(k)) {
+			vb := dsp.BlindSpeed(p, lambda)
+			if pulses(k) > 1 && hit(v-dv/2, v+dv/2, vb, vb/(2*float64(pulses(k)))) {
 				bl |= 1 << k
 			}
 		}
