@@ -36,6 +36,19 @@ type DopplerPlan struct {
 	mag        []float64
 	p0, v0     float64 // zero-Doppler peak position (samples) and magnitude
 	haveZero   bool    // p0 and v0 are computed (on the first non-zero shift)
+	held       bool    // samples are held over their intervals: the response is linear between lags
+}
+
+// NewHeldDopplerPlan is NewDopplerPlan for held sequences (each sample
+// held over 1/fs, as a rect-chip code or filter at an integer number of
+// samples per chip): their response is exactly linear between lags, so
+// its peak magnitude sits on a lag and is read there without
+// interpolation. The Doppler phase is applied per sample. It panics as
+// NewDopplerPlan does.
+func NewHeldDopplerPlan(pulse, ref []complex128, fs float64) *DopplerPlan {
+	p := NewDopplerPlan(pulse, ref, fs)
+	p.held = true
+	return p
 }
 
 // NewDopplerPlan prepares DopplerResponse for pulse and ref at rate fs.
@@ -90,6 +103,9 @@ func (p *DopplerPlan) peak(pulse []complex128, fd float64) (pos, val float64) {
 			best, k = a, i
 		}
 	}
+	if p.held {
+		return float64(k * dopplerUp), math.Sqrt(best)
+	}
 	clear(p.spec)
 	copy(p.spec, p.z)
 	p.fft.transform(p.spec, p.work)
@@ -141,7 +157,11 @@ func (p *DopplerPlan) at(t float64) complex128 {
 // k = j − delays samples, j = 0 … 2·delays. A nil dst is allocated;
 // otherwise it must have len(dopplers) rows of 2·delays+1 values (else it
 // panics). Each Doppler row costs two FFTs of about len(u)+delays points.
-// It panics if u is empty or has no energy, fs ≤ 0 or delays < 0.
+// It panics if u is empty or has no energy, fs ≤ 0 or delays < 0. The
+// surface is that of the sampled pulse at its sample lags: for the
+// continuous-time surface of a short pulse, sample it finely (a code held
+// at several samples per chip), or a plot with more columns than lags
+// shows gaps between them.
 func Ambiguity(dst [][]float64, u []complex128, fs float64, delays int, dopplers []float64) [][]float64 {
 	if len(u) == 0 || !(fs > 0) || delays < 0 {
 		panic("dsp: ambiguity needs a pulse, fs > 0 and delays ≥ 0")

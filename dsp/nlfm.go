@@ -54,7 +54,7 @@ const (
 	nlfmMinBT    = 1
 	nlfmMaxBT    = 1e5
 	nlfmMinSLL   = -70
-	nlfmMaxSLL   = -20
+	nlfmMaxSLL   = -15
 	nlfmMaxTable = 1 << 22
 	// Above this B·τ stationary phase is accurate and NewNLFM uses the
 	// design level directly instead of tuning the taper.
@@ -63,7 +63,7 @@ const (
 
 // NewNLFM designs an NLFM of pulse width width (s) and swept band band
 // (Hz) whose matched-filter output aims at the peak sidelobe level
-// sidelobeDB (dB, negative, −70 … −20); see NLFM for the method. B·τ
+// sidelobeDB (dB, negative, −70 … −15); see NLFM for the method. B·τ
 // must lie in 1 … 1e5; the design is meant for B·τ ≥ 100. For
 // B·τ ≤ 2000 the constructor runs up to seven trial designs (about 15 ms
 // at B·τ = 1000). The phase table holds min(max(16·B·τ, 4096), 2^22) + 1

@@ -77,9 +77,17 @@ func AddEcho(dst []complex128, w Waveform, fs, delay float64, amp complex128, fd
 	case *LFM:
 		addLFM(dst, lo, hi, *v, fs, delay, amp, fd)
 	case PhaseCoded:
-		addCoded(dst, lo, hi, v, fs, delay, amp, fd)
+		addChips(dst, lo, hi, len(v.Phases), v.Chip, func(i int) complex128 { return phasor(v.Phases[i]) }, fs, delay, amp, fd)
 	case *PhaseCoded:
-		addCoded(dst, lo, hi, *v, fs, delay, amp, fd)
+		addChips(dst, lo, hi, len(v.Phases), v.Chip, func(i int) complex128 { return phasor(v.Phases[i]) }, fs, delay, amp, fd)
+	case Held:
+		addChips(dst, lo, hi, len(v.Values), v.Chip, func(i int) complex128 { return v.Values[i] }, fs, delay, amp, fd)
+	case *Held:
+		addChips(dst, lo, hi, len(v.Values), v.Chip, func(i int) complex128 { return v.Values[i] }, fs, delay, amp, fd)
+	case Costas:
+		addCostas(dst, lo, hi, v, fs, delay, amp, fd)
+	case *Costas:
+		addCostas(dst, lo, hi, *v, fs, delay, amp, fd)
 	default:
 		addGeneric(dst, lo, hi, w, fs, delay, amp, fd)
 	}
@@ -160,21 +168,46 @@ func addLFM(dst []complex128, lo, hi int, l LFM, fs, delay float64, amp complex1
 	}
 }
 
-func addCoded(dst []complex128, lo, hi int, p PhaseCoded, fs, delay float64, amp complex128, fd float64) {
+// addChips adds the echo of a chip-based pulse of nc chips of length
+// chip whose chip i has the envelope value val(i). The chip of each
+// sample is exact (ChipIndex), so the span [lo, hi) from echoSpan is
+// widened by one sample each way and decided sample by sample.
+func addChips(dst []complex128, lo, hi, nc int, chip float64, val func(int) complex128, fs, delay float64, amp complex128, fd float64) {
+	lo, hi = max(lo-1, 0), min(hi+1, len(dst))
 	w := 2 * math.Pi * fd / fs
 	step := phasor(w)
-	var dop, chip complex128
+	var dop, v complex128
 	last := -1
 	for n := lo; n < hi; n++ {
 		if (n-lo)%resyncLen == 0 {
 			dop = amp * phasor(w*float64(n))
 		}
-		i, _ := p.chipIndex(float64(n)/fs - delay)
-		if i != last {
-			chip = phasor(p.Phases[i])
-			last = i
+		i := ChipIndex(float64(n), fs, delay, chip)
+		if i >= 0 && i < nc {
+			if i != last {
+				v = val(i)
+				last = i
+			}
+			dst[n] += dop * v
 		}
-		dst[n] += dop * chip
+		dop *= step
+	}
+}
+
+// addCostas adds a Costas echo, the hop of each sample decided exactly as
+// in addChips.
+func addCostas(dst []complex128, lo, hi int, c Costas, fs, delay float64, amp complex128, fd float64) {
+	lo, hi = max(lo-1, 0), min(hi+1, len(dst))
+	w := 2 * math.Pi * fd / fs
+	step := phasor(w)
+	var dop complex128
+	for n := lo; n < hi; n++ {
+		if (n-lo)%resyncLen == 0 {
+			dop = amp * phasor(w*float64(n))
+		}
+		if i := ChipIndex(float64(n), fs, delay, c.Chip); i >= 0 && i < len(c.Order) {
+			dst[n] += dop * c.hop(i, float64(n)/fs-delay)
+		}
 		dop *= step
 	}
 }

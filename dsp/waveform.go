@@ -93,7 +93,9 @@ func (l LFM) Validate() error {
 //
 //	u(t) = exp(j·Phases[⌊t/Chip⌋]),  0 ≤ t < len(Phases)·Chip,
 //
-// with phases in radians. Chips need not span a whole number of samples.
+// with phases in radians. Chips need not span a whole number of samples;
+// the chip of a time is the exact floor of t/Chip (ChipIndex), and so is
+// the end of the pulse.
 type PhaseCoded struct {
 	Phases []float64 // phase of each chip, rad
 	Chip   float64   // chip length, s
@@ -115,16 +117,14 @@ func (p PhaseCoded) At(t float64) complex128 {
 	return complex(c, s)
 }
 
-// chipIndex returns ⌊t/Chip⌋ and whether t lies in [0, τ).
+// chipIndex returns ⌊t/Chip⌋, exact (ChipIndex), and whether it is a
+// chip of the code, 0 ≤ t < len(Phases)·Chip in exact arithmetic.
 func (p PhaseCoded) chipIndex(t float64) (int, bool) {
-	if !(t >= 0 && t < p.Duration()) {
+	if math.IsNaN(t) || math.IsInf(t, 0) {
 		return 0, false
 	}
-	i := int(t / p.Chip)
-	if i >= len(p.Phases) { // t/Chip rounded up to len at the last edge
-		i = len(p.Phases) - 1
-	}
-	return i, true
+	i := ChipIndex(t, 1, 0, p.Chip)
+	return i, i >= 0 && i < len(p.Phases)
 }
 
 // Validate reports an empty code, a non-positive chip or a non-finite phase.
@@ -138,6 +138,33 @@ func (p PhaseCoded) Validate() error {
 		}
 	}
 	return checkPositive("phase code chip", p.Chip, "s")
+}
+
+// Held is a sequence of complex values each held over a chip of length
+// Chip: u(t) = Values[⌊t/Chip⌋] for 0 ≤ t < len(Values)·Chip (exact floor,
+// ChipIndex). It represents a rect-chip filter (a mismatched filter's taps
+// realised in continuous time) and is sampled like a phase code. Unlike
+// the pulses of this package its envelope need not be constant.
+type Held struct {
+	Values []complex128 // value of each chip
+	Chip   float64      // chip length, s
+}
+
+// Duration returns len(Values)·Chip in s.
+func (h Held) Duration() float64 { return float64(len(h.Values)) * h.Chip }
+
+// Bandwidth returns 1/Chip in Hz.
+func (h Held) Bandwidth() float64 { return 1 / h.Chip }
+
+// At returns u(t) as defined on Held, zero outside the sequence.
+func (h Held) At(t float64) complex128 {
+	if math.IsNaN(t) || math.IsInf(t, 0) {
+		return 0
+	}
+	if i := ChipIndex(t, 1, 0, h.Chip); i >= 0 && i < len(h.Values) {
+		return h.Values[i]
+	}
+	return 0
 }
 
 // Costas is a frequency-hopped pulse of n = len(Order) hops of length
@@ -164,11 +191,19 @@ func (c Costas) Bandwidth() float64 { return float64(len(c.Order)) / c.Chip }
 
 // At returns u(t) as defined on Costas, zero outside [0, τ).
 func (c Costas) At(t float64) complex128 {
-	n := len(c.Order)
-	if !(t >= 0 && t < c.Duration()) {
+	if math.IsNaN(t) || math.IsInf(t, 0) {
 		return 0
 	}
-	i := min(int(t/c.Chip), n-1)
+	i := ChipIndex(t, 1, 0, c.Chip)
+	if i < 0 || i >= len(c.Order) {
+		return 0
+	}
+	return c.hop(i, t)
+}
+
+// hop returns exp(j2π·f_i·t), the envelope of hop i at time t in s.
+func (c Costas) hop(i int, t float64) complex128 {
+	n := len(c.Order)
 	f := (float64(c.Order[i]) - float64(n-1)/2) / c.Chip
 	s, co := math.Sincos(2 * math.Pi * f * t)
 	return complex(co, s)

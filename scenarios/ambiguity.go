@@ -28,6 +28,38 @@ const (
 
 const ambFloorDB = -60
 
+// ambMaxSamples bounds the pulse samples of the ambiguity surface: each
+// Doppler row costs two FFTs of about twice that.
+const ambMaxSamples = 1 << 15
+
+// ambiguityPulse returns the pulse sampled for the ambiguity surface and
+// its rate: the internal grid of the waveform's figures (a code held at
+// 8 or more samples per chip, FM at 8·B or more; docs/figures.md §4), and
+// at least enough samples that every one of cols columns receives a
+// delay of its own, so no column falls between two lags and draws a
+// false null (issue 12: Barker 13 on 512 columns). Pulses longer than
+// ambMaxSamples on that grid use the scenario's rate fs or the rate that
+// fits, whichever is higher.
+func ambiguityPulse(wave dsp.Waveform, fs float64, cols int) ([]complex128, float64) {
+	tau := wave.Duration()
+	need := (cols + 2) / 2 // samples for 2·(n−1)+1 ≥ cols lags
+	if a, chip := chipValues(wave); a != nil {
+		k := max(heldPerChip, (need+len(a)-1)/len(a))
+		if k*len(a) > ambMaxSamples {
+			k = max(1, ambMaxSamples/len(a))
+			if float64(k)/chip < fs { // already long: keep the scenario's samples
+				return dsp.Sample(nil, wave, fs, 0), fs
+			}
+		}
+		return repeatChips(a, k), float64(k) / chip
+	}
+	rate := math.Max(math.Max(fmPerBandwidth*wave.Bandwidth(), fmMinSamples/tau), float64(need)/tau)
+	if rate*tau > ambMaxSamples {
+		rate = math.Max(ambMaxSamples/tau, fs)
+	}
+	return dsp.Sample(nil, wave, rate, 0), rate
+}
+
 // Ambiguity computes the ambiguity surface of a valid scenario's pulse
 // over delays ±τ on cols columns and Doppler shifts over ±span on rows
 // rows, where span is 4/τ, widened for FM pulses to show the range–
@@ -40,8 +72,7 @@ func Ambiguity(ctx context.Context, s *Scenario, cols, rows int) (*AmbiguitySurf
 	if err != nil {
 		return nil, err
 	}
-	fs := s.Radar.SampleRateHz
-	u := dsp.Sample(nil, wave, fs, 0)
+	u, fs := ambiguityPulse(wave, s.Radar.SampleRateHz, cols)
 	tau := s.Waveform.PulseWidth()
 	span := 4 / tau
 	if k := s.Waveform.Kind; k == KindLFM || k == KindNLFM || k == KindCostas {

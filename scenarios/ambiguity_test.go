@@ -46,3 +46,30 @@ func TestAmbiguitySurface(t *testing.T) {
 		t.Error("oversized grid accepted")
 	}
 }
+
+// TestAmbiguityNoFalseNulls: a pulse with fewer samples than plot columns
+// is evaluated on a finer internal grid, so no column falls between two
+// lags (issue 12: Barker 13 at 2 samples per chip drew −60 dB at 19 m
+// from the peak, where the triangular main lobe 13(1 − |Δ|/T) is at
+// 20·log10(1 − 0.127) = −1.18 dB).
+func TestAmbiguityNoFalseNulls(t *testing.T) {
+	s := mustDecode(t, `{"version":1,"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`)
+	a, err := Ambiguity(context.Background(), s, 512, 9)
+	if err != nil {
+		t.Fatal(err)
+	}
+	chipM := 1e-6 * C / 2
+	best, at := math.Inf(1), 0
+	for c, d := range a.DelayM {
+		if math.Abs(d) < 0.9*chipM && a.ZeroDoppler[c] < -20 {
+			t.Errorf("column at %.1f m inside the main lobe reads %.1f dB", d, a.ZeroDoppler[c])
+		}
+		if e := math.Abs(d - 19); e < best {
+			best, at = e, c
+		}
+	}
+	want := 20 * math.Log10(1-19/chipM)
+	if got := a.ZeroDoppler[at]; math.Abs(got-want) > 0.5 {
+		t.Errorf("zero-Doppler cut at %.1f m: %.2f dB, want about %.2f", a.DelayM[at], got, want)
+	}
+}

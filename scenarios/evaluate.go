@@ -123,51 +123,17 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	return rep, nil
 }
 
-func (m *model) figures() dsp.Figures {
-	if m.fig == nil {
-		t, db, f := dsp.ResponseWithFigures(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth())
-		m.fig, m.plot = &f, newResponsePlot(t, db)
-	}
-	return *m.fig
-}
-
-// interpBandwidth returns the bandwidth the figures interpolate the
-// compressed response with, or 0 to measure it at its samples: a code at
-// about one sample per chip is not band-limited at the sample rate, and
-// interpolating its samples would invent sidelobes between them.
-func (m *model) interpBandwidth() float64 {
-	if m.s.Waveform.IsPhaseCode() && m.fs*m.s.Waveform.ChipS < 1.5 {
-		return 0
-	}
-	return m.s.Waveform.Bandwidth()
-}
-
-// doppler returns the peak loss (dB) and time shift (s) of the compressed
-// response at Doppler shift fd, cached per model.
-func (m *model) doppler(fd float64) dopFigure {
-	if fd == 0 {
-		return dopFigure{} // DopplerPlan.Response(0) is 0, 0: no plan needed
-	}
-	if m.dop == nil {
-		m.dop = make(map[float64]dopFigure)
-	}
-	d, ok := m.dop[fd]
-	if !ok {
-		if m.dopPlan == nil {
-			m.dopPlan = dsp.NewDopplerPlan(m.pulse, m.ref, m.fs)
-		}
-		d.lossDB, d.shift = m.dopPlan.Response(fd)
-		m.dop[fd] = d
-	}
-	return d
-}
-
 func (m *model) waveformReport() WaveformReport {
 	w, r := m.s.Waveform, m.s.Radar
-	fig := m.figures()
+	cont := m.continuous()
+	fig := cont.fig
 	B, tau := w.Bandwidth(), w.PulseWidth()
-	if w.Kind == KindNLFM && m.s.Receiver.Window.Kind == WindowNone && fig.PSLRDB > w.DesignSidelobeDB+3 {
+	if w.Kind == KindNLFM && m.s.Receiver.Window.Kind == WindowNone && fig.Sidelobes && fig.PSLRDB > w.DesignSidelobeDB+3 {
 		m.warn("the NLFM reaches a PSLR of %.1f dB, short of its %.0f dB design: at B·τ = %.0f the ripple of a stationary-phase design limits it; a longer pulse or more bandwidth gets closer", fig.PSLRDB, w.DesignSidelobeDB, B*tau)
+	}
+	straddleMax, straddleMean := m.sampling()
+	if straddleMax > 1 {
+		m.warn("sampling at %s costs up to %.1f dB (%.1f dB on average) of the compressed peak against the waveform's continuous response; a higher sample rate costs less", hz(m.fs), straddleMax, straddleMean)
 	}
 	rep := WaveformReport{
 		Kind:                   w.Kind,
@@ -175,13 +141,17 @@ func (m *model) waveformReport() WaveformReport {
 		BandwidthHz:            B,
 		TimeBandwidth:          B * tau,
 		CompressionGainDB:      dsp.DB(B * tau),
-		PSLRDB:                 fig.PSLRDB,
-		ISLRDB:                 fig.ISLRDB,
 		Mainlobe3dBM:           fig.Mainlobe3dB * C / 2,
 		MismatchLossDB:         fig.MismatchLossDB,
+		StraddleLossMaxDB:      straddleMax,
+		StraddleLossMeanDB:     straddleMean,
 		BlindRangeM:            C * tau / 2,
 		UnambiguousRangeM:      C * r.PRIS / 2,
 		UnambiguousVelocityMPS: m.lambda / (4 * r.PRIS),
+	}
+	if fig.Sidelobes {
+		pslr, islr := fig.PSLRDB, fig.ISLRDB
+		rep.PSLRDB, rep.ISLRDB = &pslr, &islr
 	}
 	if r.Pulses > 1 {
 		dres := 1 / (float64(r.Pulses) * r.PRIS)
@@ -209,7 +179,7 @@ func (g *tgt) eclipseLossDB(processed []bool) (db float64, ok bool) {
 // a target that is not detected gets a verified change in its reason.
 func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []TargetReport {
 	cf := m.detector()
-	fig := m.figures()
+	fig := m.continuous().fig
 	budget := suggestionBudget(m)
 	var cf2 *dsp.CFAR2D
 	if sc.train != nil {
@@ -228,7 +198,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		tr := TargetReport{
 			ID:            g.t.ID,
 			RangeM:        g.rangeM,
-			DopplerHz:     g.fd,
+			DopplerHz:     g.fd + 0, // never −0
 			DopplerLossDB: d.lossDB,
 			RangeShiftM:   d.shift * C / 2,
 			Status:        v.status,
@@ -280,7 +250,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 // snrDB is the report's expected single-pulse SNR: the radar equation
 // less mismatch, Doppler and eclipsing losses; per resolution cell for
 // distributed targets.
-func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.Figures, dopLoss float64) float64 {
+func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.ChiFigures, dopLoss float64) float64 {
 	m := sc.m
 	r := m.s.Radar
 	var sigma float64
@@ -422,16 +392,6 @@ func bandWords(g *tgt) string {
 		return "its echo is rejected"
 	}
 	return fmt.Sprintf("only part of its echo passes, %.1f dB lost", g.bandLossDB)
-}
-
-// response returns the zero-Doppler response of the waveform alone: the
-// plot computed with the figures when this model computed them, a new
-// one otherwise.
-func (m *model) response() Response {
-	if m.plot != nil {
-		return *m.plot
-	}
-	return *newResponsePlot(dsp.Response(m.pulse, m.ref, m.lead, m.fs, m.interpBandwidth()))
 }
 
 func newResponsePlot(t, db []float64) *Response {

@@ -27,10 +27,8 @@ type model struct {
 	// refWarnings are the warnings of building the reference, carried
 	// over when a later model reuses it.
 	refWarnings []string
-	fig         *dsp.Figures          // figures of the reference, computed once
-	plot        *Response             // the response plot computed with fig, if any
-	dop         map[float64]dopFigure // Doppler loss and shift by Doppler shift
-	dopPlan     *dsp.DopplerPlan
+	taps        []complex128    // mismatched filter: one tap per chip (nil for the matched filter)
+	cont        *contFigures    // continuous-time figures of the waveform and filter, computed once
 	winCorr     *dsp.Correlator // compression plan of the whole window, kept across frames
 	// The raw record and its blanking (docs/detection.md §1).
 	recLen    int      // raw samples recorded: window samples 0 … recLen−1
@@ -166,8 +164,8 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 		m.pulse = prev.pulse
 		rx, prx := s.Receiver, prev.s.Receiver
 		if rx.Filter == prx.Filter && rx.FilterLengthFactor == prx.FilterLengthFactor && rx.Window == prx.Window {
-			m.ref, m.lead, m.noiseGain = prev.ref, prev.lead, prev.noiseGain
-			m.fig, m.dop, m.dopPlan = prev.fig, prev.dop, prev.dopPlan
+			m.ref, m.lead, m.noiseGain, m.taps = prev.ref, prev.lead, prev.noiseGain, prev.taps
+			m.cont = prev.cont
 			m.warnings = append(m.warnings, prev.refWarnings...)
 			m.refWarnings = prev.refWarnings
 			if prev.rho != nil && len(prev.rho) == rhoLags(s, len(m.ref)) {
@@ -186,18 +184,23 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 	}
 	switch s.Receiver.Filter {
 	case FilterLeastSquares, FilterMinimax:
-		// Keep the matched main lobe of an oversampled code (samples per chip > 1).
-		half := max(int(math.Ceil(m.fs*s.Waveform.ChipS-1e-9))-1, 0)
-		taps := s.Receiver.FilterLengthFactor * len(m.pulse)
-		design := dsp.LeastSquaresFilterMainlobe
+		// Designed at one tap per chip against the chip values, realised
+		// as a rect-chip filter sampled at fs (docs/figures.md §2).
+		a, chip := chipValues(wave)
+		taps := s.Receiver.FilterLengthFactor * len(a)
+		var h []complex128
+		var lead int
+		var err error
 		if s.Receiver.Filter == FilterMinimax {
-			design = dsp.MinimaxFilter
+			h, lead, err = dsp.MinimaxFilter(a, taps, 0)
+		} else {
+			h, lead, err = dsp.LeastSquaresFilter(a, taps)
 		}
-		h, lead, err := design(m.pulse, taps, half)
 		if err != nil {
 			return nil, fmt.Errorf("%s filter: %w", s.Receiver.Filter, err)
 		}
-		m.ref, m.lead = h, lead
+		m.taps = h
+		m.ref, m.lead = sampleTaps(h, lead, chip, m.fs)
 		if s.Receiver.Window.Kind != WindowNone {
 			m.warn("receiver.window %s is not applied: the %s filter sets its own weighting", s.Receiver.Window.Kind, s.Receiver.Filter)
 			m.refWarnings = append(m.refWarnings, m.warnings[len(m.warnings)-1])
@@ -220,6 +223,18 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 	m.checkSampling()
 	m.record()
 	return m, nil
+}
+
+// sampleTaps realises a rect-chip filter of taps starting lead chips
+// before the code at rate fs: reference sample i lies at
+// t = (i − leadS)/fs from the code's leading edge, leadS = ⌈lead·chip·fs⌉,
+// and holds the tap of the chip it falls in (exactly, dsp.ChipIndex).
+func sampleTaps(taps []complex128, lead int, chip, fs float64) ([]complex128, int) {
+	leadS := dsp.SampleLen(float64(lead)*chip, fs)
+	delay := float64(leadS)/fs - float64(lead)*chip // filter start after sample 0, s
+	ref := make([]complex128, dsp.SampleLen(float64(len(taps))*chip+delay, fs))
+	dsp.AddEcho(ref, dsp.Held{Values: taps, Chip: chip}, fs, delay, 1, 0)
+	return ref, leadS
 }
 
 // record sets the raw record's length, its transmit intervals and the

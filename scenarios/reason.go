@@ -65,6 +65,9 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		if g.rejected {
 			return fmt.Sprintf("Below noise: its Doppler shift of %s lies outside the receiver's band of ±%s, which rejects its echo entirely.", hz(g.fd), hz(m.fs/2))
 		}
+		if math.IsInf(v.noiseLevel, 1) {
+			return fmt.Sprintf("Below noise: its peak is %.1f dB above noise, but the %s has no training cells around it in this receive window, so it cannot detect there; widen the window or use fewer training cells.", dsp.DB(v.peak), det) + sc.lossWords(g)
+		}
 		return fmt.Sprintf("Below noise: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone.", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel)) + sc.lossWords(g)
 	}
 	// Masked.

@@ -27,17 +27,21 @@ type Report struct {
 }
 
 // WaveformReport holds the figures of the compression filter's response to
-// an ideal zero-Doppler echo.
+// an ideal zero-Doppler echo, in continuous time (docs/figures.md): they do
+// not depend on the sample rate, except the straddle losses, which state
+// what sampling at the scenario's rate costs.
 type WaveformReport struct {
 	Kind                   string   `json:"kind"`
 	PulseWidthS            float64  `json:"pulse_width_s"`
 	BandwidthHz            float64  `json:"bandwidth_hz"`
 	TimeBandwidth          float64  `json:"time_bandwidth"`
 	CompressionGainDB      float64  `json:"compression_gain_db"`
-	PSLRDB                 float64  `json:"pslr_db"`
-	ISLRDB                 float64  `json:"islr_db"`
+	PSLRDB                 *float64 `json:"pslr_db,omitempty"` // absent when the response has no sidelobe
+	ISLRDB                 *float64 `json:"islr_db,omitempty"` // absent when the response has no sidelobe
 	Mainlobe3dBM           float64  `json:"mainlobe_3db_m"`
 	MismatchLossDB         float64  `json:"mismatch_loss_db"`
+	StraddleLossMaxDB      float64  `json:"straddle_loss_max_db"`  // worst loss of sampling at the scenario's rate, dB
+	StraddleLossMeanDB     float64  `json:"straddle_loss_mean_db"` // mean (of dB) over the echo's fractional delay, dB
 	BlindRangeM            float64  `json:"blind_range_m"`
 	UnambiguousRangeM      float64  `json:"unambiguous_range_m"`
 	UnambiguousVelocityMPS float64  `json:"unambiguous_velocity_mps"`
@@ -92,9 +96,11 @@ type Series struct {
 	RangeDoppler *RangeDoppler
 }
 
-// Response is the zero-Doppler compressed response of the waveform alone,
-// interpolated to at least 8 points per 1/B, normalised to 0 dB at its
-// peak, on a range axis centred on the peak.
+// Response is the zero-Doppler compressed response of the waveform alone
+// in continuous time, as its figures measure it (docs/figures.md §4: exact
+// between chip lags for rect-chip codes, at least 16 points per 1/B for
+// FM), normalised to 0 dB at its peak, on a range axis centred on the
+// peak.
 type Response struct {
 	RangeM []float64 // m, negative before the peak
 	DB     []float64 // dB re peak, floored at −120 dB

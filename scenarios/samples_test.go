@@ -203,7 +203,11 @@ func TestCustomFilterMatchesMatched(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	compareReports(t, want, mustEvaluate(t, custom).Report, cmpTol{1e-4, 1e-6, 1e-3})
+	// The matched filter's figures come from the analytic LFM in continuous
+	// time (docs/figures.md §4); custom taps are known only at fs = 2B and
+	// read band-limited, which differs at the FM's edge transients, as in
+	// TestImportRoundTrip's LFM case (measured 0.035 dB ISLR, 5 mm shift).
+	compareReports(t, want, mustEvaluate(t, custom).Report, cmpTol{0.05, 5e-3, 0.02})
 
 	shifted := *rec
 	shifted.Samples.I = append(make([]float64, 7), rec.Samples.I...)
@@ -215,7 +219,9 @@ func TestCustomFilterMatchesMatched(t *testing.T) {
 	got := mustEvaluate(t, custom).Report
 	for i, ta := range want.Targets {
 		tb := got.Targets[i]
-		if ta.Status != tb.Status || ta.RangeM != tb.RangeM || math.Abs(ta.SNRDB-tb.SNRDB) > 1e-6 {
+		// SNRs carry the mismatch loss, continuous-time for the matched
+		// filter and read at fs for the taps: within 1e-3 dB.
+		if ta.Status != tb.Status || ta.RangeM != tb.RangeM || math.Abs(ta.SNRDB-tb.SNRDB) > 1e-3 {
 			t.Errorf("%s behind leading zeros: %s at %g m, SNR %.4f dB; matched: %s at %g m, %.4f dB", ta.ID, tb.Status, tb.RangeM, tb.SNRDB, ta.Status, ta.RangeM, ta.SNRDB)
 		}
 		// The margins move by up to 0.04 dB here: the scene's noise-free

@@ -28,6 +28,9 @@ func (v *verdict) margin() *float64 {
 		return nil
 	}
 	m := dsp.DB(v.peak / v.threshold)
+	if math.IsInf(m, 0) || math.IsNaN(m) {
+		return nil // no finite threshold (a detector without training cells): no margin to state
+	}
 	return &m
 }
 

@@ -237,12 +237,19 @@ func (s *Scenario) validateReceiver(c checker) {
 		switch {
 		case !s.Waveform.IsPhaseCode():
 			c.errs.add("receiver.filter", "%s applies to phase codes; waveform kind %q needs filter \"matched\"", r.Filter, s.Waveform.Kind)
-		case !c.errs.has("radar.sample_rate_hz") && !c.errs.has("receiver.filter_length_factor"):
-			ns := dsp.SampleLen(s.Waveform.PulseWidth(), s.Radar.SampleRateHz)
-			taps := r.FilterLengthFactor * ns
+		case !c.errs.has("receiver.filter_length_factor"):
+			// One tap per chip (docs/figures.md §2).
+			nc := s.Waveform.Chips()
+			taps := r.FilterLengthFactor * nc
 			if taps > limit {
-				c.errs.add("receiver.filter_length_factor", "%d × %d pulse samples = %d taps exceed the %s limit of %d taps (shorten the code or lower the sample rate)", r.FilterLengthFactor, ns, taps, r.Filter, limit)
+				c.errs.add("receiver.filter_length_factor", "%d × %d chips = %d taps exceed the %s limit of %d taps (shorten the code or lower the factor)", r.FilterLengthFactor, nc, taps, r.Filter, limit)
 			}
+		}
+	}
+	// A window zero at both ends leaves a two-sample reference no energy.
+	if k := r.Window.Kind; (k == WindowHann || k == WindowBlackman) && r.Filter == FilterMatched && !c.errs.has("radar.sample_rate_hz") && s.Waveform.PulseWidth() > 0 {
+		if ns := dsp.SampleLen(s.Waveform.PulseWidth(), s.Radar.SampleRateHz); ns == 2 {
+			c.errs.add("receiver.window", "%s is zero at both ends of a pulse of %d samples, leaving the reference no energy; use at least 3 samples per pulse (raise radar.sample_rate_hz) or another window", k, ns)
 		}
 	}
 	validateWindow(c, "receiver.window", r.Window)

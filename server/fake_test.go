@@ -51,7 +51,7 @@ func plausibleResult(s *scenarios.Scenario) *scenarios.Result {
 	rng := rand.New(rand.NewPCG(uint64(s.Seed), 7))
 	res := &scenarios.Result{
 		Report: scenarios.Report{Version: scenarios.ReportVersion, Scenario: s.Name, Warnings: []string{},
-			Waveform: scenarios.WaveformReport{Kind: s.Waveform.Kind, PulseWidthS: s.Waveform.PulseWidth(), BandwidthHz: s.Waveform.Bandwidth(), PSLRDB: -13.26}},
+			Waveform: scenarios.WaveformReport{Kind: s.Waveform.Kind, PulseWidthS: s.Waveform.PulseWidth(), BandwidthHz: s.Waveform.Bandwidth(), PSLRDB: ptr(-13.26)}},
 		Series: scenarios.Series{RangeM0: s.Radar.WindowStartM, RangeStepM: step,
 			Echo: make([]complex128, n), ProfileDB: make([]float64, n), CleanDB: make([]float64, n), ThresholdDB: make([]float64, n)},
 	}
@@ -174,3 +174,5 @@ func mustDemoJSON(tb testing.TB, name string) string {
 	}
 	return string(data)
 }
+
+func ptr(v float64) *float64 { return &v }

@@ -163,7 +163,7 @@ func ambiguityChart(a *scenarios.AmbiguitySurface, version int) chartOut {
 	cells := []byte{'['}
 	for r, row := range a.DB {
 		for col, v := range row {
-			if v > ambiguityFloorDB {
+			if v >= ambiguityFloorDB+0.05 { // a cell that prints as the floor (one decimal) is left out too
 				cells = appendCell(cells, col, r, v)
 			}
 		}

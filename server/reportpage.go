@@ -5,6 +5,8 @@ import (
 	"html/template"
 	"io"
 	"math"
+	"strconv"
+	"strings"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
@@ -98,11 +100,12 @@ func figureRows(r *scenarios.Report) [][2]string {
 		{"Pulse width τ", scenarios.SI(w.PulseWidthS, "s")},
 		{"Bandwidth B", scenarios.SI(w.BandwidthHz, "Hz")},
 		{"Time–bandwidth B·τ", fmt.Sprintf("%.4g", w.TimeBandwidth)},
-		{"Compression gain", fmt.Sprintf("%.2f dB", w.CompressionGainDB)},
-		{"Peak sidelobe level (PSLR)", fmt.Sprintf("%.2f dB", w.PSLRDB)},
-		{"Integrated sidelobe level (ISLR)", fmt.Sprintf("%.2f dB", w.ISLRDB)},
-		{"Main lobe width at −3 dB", fmt.Sprintf("%.2f m", w.Mainlobe3dBM)},
-		{"Mismatch loss", fmt.Sprintf("%.2f dB", w.MismatchLossDB)},
+		{"Compression gain", fixed(w.CompressionGainDB, 2) + " dB"},
+		{"Peak sidelobe level (PSLR)", optDB(w.PSLRDB, "no sidelobes")},
+		{"Integrated sidelobe level (ISLR)", optDB(w.ISLRDB, "no sidelobes")},
+		{"Main lobe width at −3 dB", fixed(w.Mainlobe3dBM, 2) + " m"},
+		{"Mismatch loss", fixed(w.MismatchLossDB, 2) + " dB"},
+		{"Sampling (straddle) loss, worst / mean", fixed(w.StraddleLossMaxDB, 2) + " dB / " + fixed(w.StraddleLossMeanDB, 2) + " dB"},
 		{"Blind range c·τ/2", fmt.Sprintf("%.0f m", w.BlindRangeM)},
 		{"Unambiguous range", fmt.Sprintf("%.0f m", w.UnambiguousRangeM)},
 		{"Unambiguous range rate", fmt.Sprintf("±%.2f m/s", w.UnambiguousVelocityMPS)},
@@ -120,8 +123,8 @@ func targetRows(r *scenarios.Report) []targetRow {
 			ID:     t.ID,
 			Status: t.Status,
 			Colour: statusColour[t.Status],
-			Range:  fmt.Sprintf("%.1f", t.RangeM),
-			SNR:    fmt.Sprintf("%.1f", t.SNRDB),
+			Range:  fixed(t.RangeM, 1),
+			SNR:    fixed(t.SNRDB, 1),
 			Margin: "—",
 			Reason: t.Reason,
 		}
@@ -129,7 +132,10 @@ func targetRows(r *scenarios.Report) []targetRow {
 			row.Status += " by " + t.MaskedBy
 		}
 		if t.MarginDB != nil {
-			row.Margin = fmt.Sprintf("%+.1f", *t.MarginDB)
+			row.Margin = fixed(*t.MarginDB, 1)
+			if row.Margin != "0.0" && !strings.HasPrefix(row.Margin, "-") {
+				row.Margin = "+" + row.Margin
+			}
 		}
 		out[i] = row
 	}
@@ -211,7 +217,10 @@ func responseOption(res *scenarios.Result) map[string]any {
 		step := (r.RangeM[n-1] - r.RangeM[0]) / float64(n-1)
 		pts = roundPairs(minMaxPairs(r.RangeM[0], step, r.DB, reportBuckets, -120))
 	}
-	floor := math.Max(-100, math.Floor((res.Report.Waveform.PSLRDB-30)/10)*10)
+	floor := -60.0 // no sidelobes
+	if p := res.Report.Waveform.PSLRDB; p != nil {
+		floor = math.Max(-100, math.Floor((*p-30)/10)*10)
+	}
 	opt["series"] = []map[string]any{lineSeries("response", "#0b5394", 1.2, pts)}
 	opt["yAxis"] = []map[string]any{{"type": "value", "name": "dB re peak", "min": floor, "max": 0}}
 	if len(pts) > 1 {
@@ -281,3 +290,20 @@ var reportTmpl = template.Must(template.New("report").Parse(`<!DOCTYPE html>
 </body>
 </html>
 `))
+
+// optDB formats a figure the report may leave out, or says why it is out.
+func optDB(v *float64, none string) string {
+	if v == nil {
+		return none
+	}
+	return fixed(*v, 2) + " dB"
+}
+
+// fixed formats v with prec decimals, never as a negative zero.
+func fixed(v float64, prec int) string {
+	t := strconv.FormatFloat(v, 'f', prec, 64)
+	if strings.Trim(t, "-0.") == "" {
+		return strings.TrimPrefix(t, "-")
+	}
+	return t
+}

@@ -84,7 +84,11 @@ func WriteSweepPage(w io.Writer, base *scenarios.Scenario, g *scenarios.Grid, pt
 		}
 		wf := p.Report.Waveform
 		l := find(&figs, "PSLR"+suffix)
-		l.data = append(l.data, [2]any{xval(p), round4(wf.PSLRDB)})
+		var pslr any // no sidelobes: a gap in the line
+		if wf.PSLRDB != nil {
+			pslr = round4(*wf.PSLRDB)
+		}
+		l.data = append(l.data, [2]any{xval(p), pslr})
 		l = find(&figs, "mismatch loss"+suffix)
 		l.data = append(l.data, [2]any{xval(p), round4(wf.MismatchLossDB)})
 	}

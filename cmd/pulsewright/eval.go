@@ -4,6 +4,8 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"strconv"
+	"strings"
 	"text/tabwriter"
 
 	"github.com/pulsewright/pulsewright/scenarios"
@@ -40,9 +42,14 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 	wf := r.Waveform
 	fmt.Fprintf(w, "%s\n\n", r.Scenario)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintf(tw, "waveform\t%s, τ %s, B %s, B·τ %.4g, gain %.1f dB\n", wf.Kind, scenarios.SI(wf.PulseWidthS, "s"), scenarios.SI(wf.BandwidthHz, "Hz"), wf.TimeBandwidth, wf.CompressionGainDB)
-	fmt.Fprintf(tw, "sidelobes\tPSLR %.2f dB, ISLR %.2f dB\n", wf.PSLRDB, wf.ISLRDB)
-	fmt.Fprintf(tw, "resolution\t%.2f m at −3 dB, mismatch loss %.2f dB\n", wf.Mainlobe3dBM, wf.MismatchLossDB)
+	fmt.Fprintf(tw, "waveform\t%s, τ %s, B %s, B·τ %.4g, gain %s dB\n", wf.Kind, scenarios.SI(wf.PulseWidthS, "s"), scenarios.SI(wf.BandwidthHz, "Hz"), wf.TimeBandwidth, fx(wf.CompressionGainDB, 1))
+	if wf.PSLRDB != nil && wf.ISLRDB != nil {
+		fmt.Fprintf(tw, "sidelobes\tPSLR %s dB, ISLR %s dB\n", fx(*wf.PSLRDB, 2), fx(*wf.ISLRDB, 2))
+	} else {
+		fmt.Fprintf(tw, "sidelobes\tno sidelobes (the response falls monotonically from its peak)\n")
+	}
+	fmt.Fprintf(tw, "resolution\t%s m at −3 dB, mismatch loss %s dB\n", fx(wf.Mainlobe3dBM, 2), fx(wf.MismatchLossDB, 2))
+	fmt.Fprintf(tw, "sampling\tstraddle loss %s dB worst, %s dB mean at this sample rate\n", fx(wf.StraddleLossMaxDB, 2), fx(wf.StraddleLossMeanDB, 2))
 	fmt.Fprintf(tw, "ranges\tblind %.0f m, unambiguous %.0f m, unambiguous velocity ±%.2f m/s\n", wf.BlindRangeM, wf.UnambiguousRangeM, wf.UnambiguousVelocityMPS)
 	tw.Flush()
 	fmt.Fprintln(w)
@@ -51,13 +58,13 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 	for _, t := range r.Targets {
 		margin := "—"
 		if t.MarginDB != nil {
-			margin = fmt.Sprintf("%.1f", *t.MarginDB)
+			margin = fx(*t.MarginDB, 1)
 		}
 		status := t.Status
 		if t.MaskedBy != "" {
 			status += " by " + t.MaskedBy
 		}
-		fmt.Fprintf(tw, "%s\t%.1f\t%.1f\t%.0f\t%.2f\t%.2f\t%s\t%s\t\n", t.ID, t.RangeM, t.SNRDB, t.DopplerHz, t.DopplerLossDB, t.RangeShiftM, margin, status)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", t.ID, fx(t.RangeM, 1), fx(t.SNRDB, 1), fx(t.DopplerHz, 0), fx(t.DopplerLossDB, 2), fx(t.RangeShiftM, 2), margin, status)
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
@@ -73,4 +80,14 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 	}
 	fmt.Fprintf(w, "\n%s\n", eng)
 	return nil
+}
+
+// fx formats v with prec decimals, never as a negative zero ("-0.00"
+// for a value that rounds to zero).
+func fx(v float64, prec int) string {
+	t := strconv.FormatFloat(v, 'f', prec, 64)
+	if strings.Trim(t, "-0.") == "" {
+		return strings.TrimPrefix(t, "-")
+	}
+	return t
 }

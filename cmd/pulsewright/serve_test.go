@@ -106,7 +106,7 @@ func TestServeEndToEnd(t *testing.T) {
 	var rep scenarios.Report
 	json.NewDecoder(resp.Body).Decode(&rep)
 	resp.Body.Close()
-	if resp.StatusCode != 200 || len(rep.Targets) == 0 || rep.Waveform.PSLRDB >= 0 {
+	if resp.StatusCode != 200 || len(rep.Targets) == 0 || rep.Waveform.PSLRDB == nil || *rep.Waveform.PSLRDB >= 0 {
 		t.Fatalf("evaluate: %d %+v", resp.StatusCode, rep)
 	}
 	cancel() // as SIGINT does through signal.NotifyContext

@@ -8,7 +8,6 @@ import (
 	"io"
 	"os"
 	"runtime"
-	"strconv"
 	"strings"
 	"time"
 
@@ -182,7 +181,7 @@ func (s *sweepWriter) header() error {
 	for _, a := range s.g.Axes {
 		h = append(h, a.Path)
 	}
-	h = append(h, "pslr_db", "islr_db", "mainlobe_3db_m", "mismatch_loss_db")
+	h = append(h, "pslr_db", "islr_db", "mainlobe_3db_m", "mismatch_loss_db", "straddle_loss_max_db", "straddle_loss_mean_db")
 	for _, id := range s.ids {
 		h = append(h, id+".status", id+".snr_db", id+".margin_db")
 		if s.trains {
@@ -200,7 +199,7 @@ func (s *sweepWriter) row(p scenarios.Point) error {
 		r = append(r, a.Label(p.Values[k]))
 	}
 	wf := p.Report.Waveform
-	r = append(r, num(wf.PSLRDB), num(wf.ISLRDB), num(wf.Mainlobe3dBM), num(wf.MismatchLossDB))
+	r = append(r, optFig(wf.PSLRDB), optFig(wf.ISLRDB), num(wf.Mainlobe3dBM), num(wf.MismatchLossDB), num(wf.StraddleLossMaxDB), num(wf.StraddleLossMeanDB))
 	for _, id := range s.ids {
 		t := findTarget(p.Report, id)
 		switch {
@@ -223,7 +222,16 @@ func (s *sweepWriter) row(p scenarios.Point) error {
 
 // num formats a figure to 0.001 (dB, m), which is below any tolerance
 // that matters and keeps the CSV readable.
-func num(v float64) string { return strconv.FormatFloat(v, 'f', 3, 64) }
+func num(v float64) string { return fx(v, 3) }
+
+// optFig formats a waveform figure that a report may leave out (no
+// sidelobes), "" when it does.
+func optFig(v *float64) string {
+	if v == nil {
+		return ""
+	}
+	return num(*v)
+}
 
 // optNum formats a figure that a report may leave out, "" when it does.
 func optNum(t *scenarios.TargetReport, f func(*scenarios.TargetReport) *float64) string {

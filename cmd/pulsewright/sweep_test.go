@@ -74,7 +74,7 @@ func TestSweepTaylorCSV(t *testing.T) {
 		t.Fatal(err)
 	}
 	head := strings.SplitN(string(data), "\n", 2)[0]
-	want := "receiver.window.kind,receiver.window.sidelobe_db,pslr_db,islr_db,mainlobe_3db_m,mismatch_loss_db," +
+	want := "receiver.window.kind,receiver.window.sidelobe_db,pslr_db,islr_db,mainlobe_3db_m,mismatch_loss_db,straddle_loss_max_db,straddle_loss_mean_db," +
 		"tanker.status,tanker.snr_db,tanker.margin_db,skiff.status,skiff.snr_db,skiff.margin_db,pilot-boat.status,pilot-boat.snr_db,pilot-boat.margin_db"
 	if head != want {
 		t.Fatalf("header\n%s\nwant\n%s", head, want)

@@ -70,9 +70,16 @@ def minimax(code, length, faces=64):
 
 def main():
     barker13 = [1, 1, 1, 1, 1, -1, -1, 1, 1, -1, 1, -1, 1]
+    barker3 = [1, 1, -1]
+    barker7 = [1, 1, 1, -1, -1, 1, -1]
+    barker11 = [1, 1, 1, -1, -1, -1, 1, -1, -1, 1, -1]
     n = 16
     p4 = [np.exp(1j * (np.pi * i * i / n - np.pi * i)) for i in range(n)]
     cases = [
+        # Issue 12's reproducer: Barker 3 at twice its length, one tap per chip.
+        {"code": "barker3", "length": 6, "pslr_db": minimax(barker3, 6)},
+        {"code": "barker7", "length": 14, "pslr_db": minimax(barker7, 14)},
+        {"code": "barker11", "length": 33, "pslr_db": minimax(barker11, 33)},
         {"code": "barker13", "length": 39, "pslr_db": minimax(barker13, 39)},
         {"code": "barker13", "length": 45, "pslr_db": minimax(barker13, 45)},
         {"code": "p4-16", "length": 48, "pslr_db": minimax(p4, 48)},
