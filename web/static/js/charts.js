@@ -7,6 +7,8 @@ import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
+const SecondaryMs = 100; // plots other than the profile redraw at most this often while frames stream
+const WheelGestureMs = 3000; // ms: wheel events this close, with the pointer still, form one gesture
 
 const chartMs = {};
 window.__pwChartMs = chartMs;
@@ -29,6 +31,18 @@ const wrap = (text, width = 52) => {
   return lines.join('\n');
 };
 const num = (v, d) => (Number.isFinite(v) ? v.toFixed(d) : '—');
+
+// spaceAxisLabels keeps the x-axis labels of a narrow chart apart ("90,000"
+// and "120,000" drawn against each other): ticks about every AxisLabelPx,
+// and any labels that would still touch are left out.
+const AxisLabelPx = 95;
+function spaceAxisLabels(option, width) {
+  for (const ax of [option.xAxis || []].flat()) {
+    if (!ax || ax.type !== 'value') continue;
+    ax.splitNumber = Math.max(2, Math.floor(width / AxisLabelPx));
+    ax.axisLabel = { ...(ax.axisLabel || {}), hideOverlap: true };
+  }
+}
 
 // carryCharts joins the charts of a skipped frame to the next one's:
 // chart name → the list of options to apply in turn (see Plots.apply).
@@ -61,7 +75,9 @@ export class Plots {
     this.wavelength = wavelength;
     this.drag = null;
     this.lastView = null;
-    this.pending = {}; // chart name → options held back while its pane is hidden
+    this.pending = {}; // chart name → options held back (its pane is hidden, or it was drawn just now)
+    this.drawnAt = {}; // chart name → when it was last drawn (performance.now)
+    this.timers = {}; // chart name → timer that draws what it holds back
     this.cats = {}; // heat map name → {x, y}: the cell centres of its category axes
     this.train = false;
 
@@ -98,20 +114,53 @@ export class Plots {
   applyOne(name, entry) {
     if (!entry || !entry.option || !this.charts[name]) return;
     if (this.hidden(name)) {
-      // A full option supersedes what came before it; of the data-only
-      // merges after it, only the newest matters.
-      const q = this.pending[name] || [];
-      if (entry.replace) this.pending[name] = [entry];
-      else if (q.length && !q[q.length - 1].replace) q[q.length - 1] = entry;
-      else this.pending[name] = [...q, entry];
+      this.hold(name, entry);
       return;
     }
+    // While frames stream in (a drag, a held key), the profile follows
+    // every frame and the other plots at most every SecondaryMs: each
+    // setOption re-lays out a whole chart, whatever changed.
+    if (name !== 'profile' && !entry.replace) {
+      const wait = (this.drawnAt[name] || -Infinity) + SecondaryMs - performance.now();
+      if (wait > 0 || this.timers[name]) {
+        this.hold(name, entry);
+        if (!this.timers[name]) this.timers[name] = setTimeout(() => this.flush(name), Math.max(wait, 0));
+        return;
+      }
+    }
+    this.flush(name);
     this.setOption(name, entry);
+  }
+
+  // The shown charts whose newest options wait for their redraw timer.
+  held() {
+    return Object.keys(this.timers).filter((k) => this.timers[k] && !this.hidden(k));
+  }
+
+  // Keep an option for later. A full option supersedes what came before
+  // it; of the data-only merges after it, only the newest matters.
+  hold(name, entry) {
+    const q = this.pending[name] || [];
+    if (entry.replace) this.pending[name] = [entry];
+    else if (q.length && !q[q.length - 1].replace) q[q.length - 1] = entry;
+    else this.pending[name] = [...q, entry];
+  }
+
+  // Draw what chart name holds back, unless its pane is hidden.
+  flush(name) {
+    clearTimeout(this.timers[name]);
+    this.timers[name] = 0;
+    if (this.hidden(name)) return;
+    const q = this.pending[name] || [];
+    this.pending[name] = [];
+    for (const entry of q) this.setOption(name, entry);
   }
 
   setOption(name, entry) {
     const chart = this.charts[name];
     const t0 = performance.now();
+    this.drawnAt[name] = t0;
+    if (entry.replace) spaceAxisLabels(entry.option, chart.getWidth());
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     // Paint now, inside this animation frame, instead of waiting for the
     // renderer's own loop to notice on the next one.
@@ -138,8 +187,7 @@ export class Plots {
     for (const b of fig.querySelectorAll('[data-show]')) b.setAttribute('aria-selected', String(b === tab));
     for (const p of fig.querySelectorAll('.pane')) p.classList.toggle('on', p.dataset.pane === name);
     fig.querySelector('button.png').dataset.png = name;
-    for (const entry of this.pending[name] || []) this.setOption(name, entry);
-    this.pending[name] = [];
+    this.flush(name);
   }
 
   selected(fig) {
@@ -304,10 +352,12 @@ export class Plots {
         ev.stopPropagation();
         if (!this.drag.moved && Math.abs(px - this.drag.startX) < 2) return;
         this.drag.moved = true;
-        const r = this.rangeAt(px);
-        if (r !== null) this.onDrag(this.drag.id, r);
-        this.guide(px);
-        this.hoverCard(null);
+        // Moves come faster than frames: handle the newest once per frame.
+        this.drag.px = px;
+        if (!this.drag.queued) {
+          this.drag.queued = true;
+          requestAnimationFrame(() => this.dragStep());
+        }
         return;
       }
       const m = this.hit(px, py);
@@ -317,6 +367,7 @@ export class Plots {
     const end = (ev) => {
       if (!this.drag || ev.pointerId !== this.drag.pointerId) return;
       ev.stopPropagation();
+      if (this.drag.queued) this.dragStep(); // the last position counts
       this.drag = null;
       this.guide(null);
       this.onDragEnd();
@@ -326,8 +377,18 @@ export class Plots {
     el.addEventListener('pointerleave', () => this.hoverCard(null));
     el.addEventListener('wheel', (ev) => {
       const [px, py] = local(ev);
-      const m = this.hit(px, py);
-      if (!m) return;
+      // One wheel gesture stays on the marker it started on, even when the
+      // nudged peak moves from under the pointer: it never turns into a
+      // zoom. It ends when the pointer moves away or the wheel rests.
+      const now = ev.timeStamp;
+      const w = this.wheelLock;
+      const lock = w && now - w.t < WheelGestureMs && Math.hypot(px - w.px, py - w.py) < 6 ? w : null;
+      const m = lock || this.hit(px, py);
+      if (!m) {
+        this.wheelLock = null;
+        return;
+      }
+      this.wheelLock = { id: m.id, t: now, px: lock ? w.px : px, py: lock ? w.py : py };
       ev.stopPropagation();
       ev.preventDefault();
       this.onSelect(m.id);
@@ -335,21 +396,34 @@ export class Plots {
     }, { capture: true, passive: false });
   }
 
-  // Draw (px) or remove (null) the vertical guide shown while dragging.
+  // One step of a drag, at most once per animation frame: the target
+  // moves to the newest pointer position.
+  dragStep() {
+    const d = this.drag;
+    if (!d || !d.queued) return;
+    d.queued = false;
+    const r = this.rangeAt(d.px);
+    if (r !== null) this.onDrag(d.id, r);
+    this.guide(d.px);
+    this.hoverCard(null);
+  }
+
+  // Draw (px) or remove (null) the vertical guide shown while dragging: a
+  // page element over the chart, so that a drag step does not redraw it.
   guide(px) {
-    const chart = this.charts.profile;
+    const el = this.els.profile;
+    let g = el.querySelector('.drag-guide');
     if (px === null) {
-      chart.setOption({ graphic: [{ id: 'pw-drag-guide', $action: 'remove' }] });
+      if (g) g.hidden = true;
       return;
     }
-    const h = chart.getHeight();
-    chart.setOption({
-      graphic: [{
-        id: 'pw-drag-guide', type: 'line', silent: true, z: 100,
-        shape: { x1: px, y1: 30, x2: px, y2: h - 40 },
-        style: { stroke: '#b4561d', lineWidth: 1.5, lineDash: [5, 4] },
-      }],
-    });
+    if (!g) {
+      g = document.createElement('div');
+      g.className = 'drag-guide';
+      el.append(g);
+    }
+    g.hidden = false;
+    g.style.left = `${Math.round(px)}px`;
   }
 
   png(name) {
@@ -360,7 +434,8 @@ export class Plots {
   profileCSV() {
     const opt = this.charts.profile.getOption();
     const xData = opt.xAxis && opt.xAxis[0] && opt.xAxis[0].data;
-    const cols = (opt.series || []).filter((s) => s.type === 'line' && Array.isArray(s.data));
+    // The annotations (masking segments, blind range) are not series of the profile.
+    const cols = (opt.series || []).filter((s) => s.type === 'line' && Array.isArray(s.data) && s.id !== 'masking' && s.id !== 'blind');
     const rows = new Map();
     cols.forEach((s, ci) => {
       s.data.forEach((d, i) => {
