@@ -134,7 +134,7 @@ func (m *model) continuous() *contFigures {
 		chi = dsp.SampledChi(x, weighted(x, win), rate, B)
 		// The Doppler response is band-limited interpolated near its peak;
 		// 4 samples per 1/B serve it as well at a quarter of the cost.
-		nd := int(math.Min(math.Ceil(math.Max(fmDopplerPerBandwidth*B*tau, minN)-1e-9), fmMaxSamples))
+		nd := int(math.Min(math.Ceil(math.Max(fmDopplerPerBandwidth*B*tau, minN/2)-1e-9), fmMaxSamples))
 		c.rate = float64(nd) / tau
 		c.x = dsp.Sample(make([]complex128, nd), m.wave, c.rate, 0.5/c.rate)
 		c.h = weighted(c.x, win)
