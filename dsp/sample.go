@@ -235,7 +235,8 @@ func addGeneric(dst []complex128, lo, hi int, wf Waveform, fs, delay float64, am
 // eight times |fd| + 4·bandwidth (the spectrum beyond it, which would
 // alias into the band, is neglected).
 // The filter is applied by FFT over dst's span padded on both sides by
-// max(len(dst), 256) samples; ringing beyond that is neglected. It
+// at least max(len(dst), 256) samples (the transform's length is rounded
+// up to a power of two); ringing beyond that is neglected. It
 // returns the fraction of the echo's energy inside the band (1 for an
 // echo with no energy). It allocates.
 func AddEchoInBand(dst []complex128, w Waveform, fs, delay float64, amp complex128, fd, bandwidth float64) float64 {
@@ -248,7 +249,13 @@ func AddEchoInBand(dst []complex128, w Waveform, fs, delay float64, amp complex1
 	// edges cut the spectrum finely enough, and the filter's ringing does
 	// not wrap around onto dst.
 	pad := max(len(dst), 256)
-	l := (len(dst) + 2*pad) * m
+	// A power of two at least that long: an FFT of an arbitrary length
+	// with a large prime factor costs far more (the extra zeros only pad
+	// further).
+	l := 1
+	for l < (len(dst)+2*pad)*m {
+		l <<= 1
+	}
 	x := make([]complex128, l)
 	// The Doppler phase stays referenced to dst's sample 0.
 	AddEcho(x, w, r, delay+float64(pad)/fs, amp*expj(-2*math.Pi*fd*float64(pad)/fs), fd)

@@ -178,6 +178,10 @@ type localPlan struct {
 	n       int // buffer length when not the default (out-of-band echoes)
 }
 
+// bandRingSpan is how far (samples) on each side of an echo beyond the
+// receiver band its filtered ringing is kept when the record is longer.
+const bandRingSpan = 1024
+
 func (lp *localPlan) size() int {
 	if lp.n > 0 {
 		return lp.n
@@ -220,9 +224,16 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 		// over the whole raw record, not over a local buffer that would
 		// cut the ringing off a few gates from the echo (docs/detection.md
 		// §2). The buffer starts before raw sample 0 so that its outputs
-		// cover gate 0.
+		// cover gate 0. A long record is cut bandRingSpan samples either
+		// side of the echo (the ringing's power there is below −70 dB of
+		// its peak), which bounds the FFT's memory.
 		b = min(0, -m.lead) - 1
-		lp = &localPlan{m: m, n: m.recLen - b + len(m.ref) + 2}
+		size := m.recLen - b + len(m.ref) + 2
+		if span := lp.size() + 2*bandRingSpan; size > span {
+			b = int(math.Floor(d)) - len(m.ref) - bandRingSpan
+			size = span
+		}
+		lp = &localPlan{m: m, n: size}
 	}
 	// Output j of the local buffer is window sample b+j+lead.
 	full0, full1 := max(b+m.lead, 0), min(b+m.lead+lp.size(), m.n)
