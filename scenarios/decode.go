@@ -115,8 +115,12 @@ func defaultReceiver() Receiver {
 	}
 }
 
+// DefaultPdRequired is the default receiver.detector.pd_required: common
+// practice in radar specifications, no single source.
+const DefaultPdRequired = 0.9
+
 func defaultDetector(kind string) Detector {
-	d := Detector{Kind: kind, PFA: 1e-6}
+	d := Detector{Kind: kind, PFA: 1e-6, PdRequired: DefaultPdRequired}
 	if kind != DetectorFixed {
 		d.GuardCells = 2
 		d.TrainingCells = 16

@@ -50,9 +50,9 @@ var windowFields = map[string][]string{
 }
 
 var detectorFields = map[string][]string{
-	DetectorCA:    {"pfa", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
-	DetectorOS:    {"pfa", "guard_cells", "training_cells", "rank", "doppler_guard_cells", "doppler_training_cells"},
-	DetectorFixed: {"pfa"},
+	DetectorCA:    {"pfa", "pd_required", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
+	DetectorOS:    {"pfa", "pd_required", "guard_cells", "training_cells", "rank", "doppler_guard_cells", "doppler_training_cells"},
+	DetectorFixed: {"pfa", "pd_required"},
 }
 
 var targetFields = map[string][]string{
@@ -301,6 +301,7 @@ func (o *object) decodeDetector(d *Detector) {
 	}
 	*d = defaultDetector(kind)
 	o.float("pfa", &d.PFA)
+	o.float("pd_required", &d.PdRequired)
 	o.int("guard_cells", &d.GuardCells)
 	o.int("training_cells", &d.TrainingCells)
 	if kind == DetectorOS && !o.has("rank") {

@@ -274,7 +274,7 @@ func candidates(s *Scenario, j int, v verdict) []candidate {
 			if d.Kind != DetectorCA {
 				return false
 			}
-			t.Receiver.Detector = Detector{Kind: DetectorOS, PFA: d.PFA, GuardCells: d.GuardCells, TrainingCells: d.TrainingCells, Rank: (3*d.TrainingCells + 3) / 4}
+			t.Receiver.Detector = Detector{Kind: DetectorOS, PFA: d.PFA, PdRequired: d.PdRequired, GuardCells: d.GuardCells, TrainingCells: d.TrainingCells, Rank: (3*d.TrainingCells + 3) / 4}
 			return true
 		}},
 		fewerCells(d, 2), fewerCells(d, 4),
