@@ -1,0 +1,138 @@
+package scenarios
+
+import (
+	"math"
+
+	"github.com/pulsewright/pulsewright/dsp"
+)
+
+// Probability of detection of a point target in the scene
+// (docs/detection-probability.md §6). The tested SNR is the target's own
+// noise-free power at its peak cell over the noise there (verdict.peak):
+// the single-pulse SNR after every stated loss, straddle included, or on
+// a range–Doppler map the integrated SNR of a coherent train.
+
+// pdTest is the dsp detector that models one target's test, and the SNR
+// (linear, at the tested cell) it is fed.
+type pdTest struct {
+	det dsp.Detector
+	snr float64
+}
+
+// pdTestFor returns the test of a target of fluctuation fluct whose
+// verdict is v, or false when no closed form applies: distributed targets,
+// no peak, no training cell, and Swerling 2 and 4 targets on a
+// range–Doppler map (their echo decorrelates within the train; left to
+// the Monte Carlo command).
+func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
+	if g.t.Kind != TargetPoint || v.peakK < 0 || !(v.peak > 0) || math.IsInf(v.peak, 0) {
+		return pdTest{}, false
+	}
+	sw := swerling(g.t.Fluctuation)
+	if train && (sw == dsp.Swerling2 || sw == dsp.Swerling4) {
+		return pdTest{}, false
+	}
+	d := m.s.Receiver.Detector
+	det := dsp.Detector{Pfa: d.PFA, Pulses: 1, Integration: dsp.Coherent, Swerling: sw}
+	switch d.Kind {
+	case DetectorCA:
+		det.CFARCells = v.cells
+	case DetectorOS:
+		det.CFARCells = v.cells
+		if v.cells > 0 {
+			if train {
+				det.OSRank = 1 + int(math.Round(float64(d.Rank-1)/float64(d.TrainingCells)*float64(v.cells)))
+			} else {
+				det.OSRank = int(math.Round(float64(d.Rank) * float64(v.cells) / float64(d.TrainingCells)))
+			}
+			det.OSRank = min(max(det.OSRank, 1), v.cells)
+		}
+	}
+	if d.Kind != DetectorFixed && v.cells == 0 {
+		return pdTest{}, false
+	}
+	if det.Validate() != nil {
+		return pdTest{}, false
+	}
+	return pdTest{det: det, snr: v.peak}, true
+}
+
+// logPfaRaised returns the natural log of the false-alarm probability of
+// t's detector when its threshold multiplier is r ≥ 1 times the nominal
+// one, with independent exponential reference cells.
+func (t pdTest) logPfaRaised(r float64) float64 {
+	d := t.det
+	m := float64(d.CFARCells)
+	switch {
+	case d.CFARCells == 0:
+		return r * math.Log(d.Pfa) // exp(−r·T), T = −ln Pfa
+	case d.OSRank > 0:
+		a := dsp.OSMultiplier(d.Pfa, d.CFARCells, d.OSRank)
+		return math.Log(dsp.OSPfa(r*a, d.CFARCells, d.OSRank))
+	}
+	c := math.Expm1(-math.Log(d.Pfa) / m) // multiplier on the reference sum
+	return -m * math.Log1p(r*c)
+}
+
+// pdBelow is the Pd reported as 0: a target whose Pd against a raised
+// threshold is below it even at the smallest false-alarm probability the
+// series reaches.
+const pdBelow = 1e-9
+
+// pd returns t's Pd against a threshold raised r ≥ 1 times above the one
+// the detector sets against noise alone (the scene's extra power in the
+// training cells, or a neighbour's power at the cell). The raised
+// threshold is the nominal one of a detector of smaller Pfa, so Pd is the
+// exact series at that Pfa. ok is false when the series cannot reach the
+// raised threshold and Pd is not below pdBelow there.
+func (t pdTest) pd(r float64) (float64, bool) {
+	if !(r >= 1) || math.IsInf(r, 1) {
+		return 0, false
+	}
+	d := t.det
+	if r > 1 {
+		lp := t.logPfaRaised(r)
+		d.Pfa = math.Exp(lp)
+		if lp < math.Log(1e-300) || d.Validate() != nil {
+			// Beyond the series: an upper bound at a reachable Pfa
+			// above the true one.
+			for _, p := range []float64{1e-300, 1e-200, 1e-100, 1e-50, 1e-30, 1e-20, 1e-15, 1e-12} {
+				d.Pfa = p
+				if p >= math.Exp(lp) && d.Validate() == nil {
+					if d.Pd(t.snr) < pdBelow {
+						return 0, true
+					}
+					break
+				}
+			}
+			return 0, false
+		}
+	}
+	return d.Pd(t.snr), true
+}
+
+// pdFigures sets pd, pd_alone, snr_required_db and pd_margin_db of a
+// point target with verdict v; alone is the threshold of its cell with
+// the other targets removed (its own sidelobes kept).
+func (m *model) pdFigures(g *tgt, v verdict, alone float64, train bool, out *TargetReport) {
+	if v.status == StatusOutOfWindow || g.rejected || !(v.noiseLevel > 0) {
+		return
+	}
+	t, ok := m.pdTestFor(g, v, train)
+	if !ok {
+		return
+	}
+	if p, ok := t.pd(math.Max(v.threshold/v.noiseLevel, 1)); ok {
+		out.Pd = &p
+	}
+	if p, ok := t.pd(math.Max(alone/v.noiseLevel, 1)); ok {
+		out.PdAlone = &p
+	}
+	if req, err := t.det.RequiredSNR(m.s.Receiver.Detector.PdRequired); err == nil {
+		rdb := dsp.DB(req)
+		mdb := dsp.DB(t.snr) - rdb
+		if !math.IsInf(rdb, 0) && !math.IsNaN(rdb) && !math.IsInf(mdb, 0) && !math.IsNaN(mdb) {
+			out.SNRRequiredDB, out.PdMarginDB = &rdb, &mdb
+		}
+	}
+}

@@ -1,0 +1,81 @@
+package scenarios
+
+import (
+	"encoding/json"
+	"math"
+	"testing"
+)
+
+// pdScene evaluates one point target of the given fluctuation at 6 km in
+// lfmScene's radar, with its RCS tuned (two evaluations) so that the SNR
+// the Pd test sees at its cell (snr_required_db + pd_margin_db) is snrDB.
+func pdScene(t *testing.T, window, detector, fluct string, snrDB float64) TargetReport {
+	t.Helper()
+	rcs := rcsFor(snrDB, 6000)
+	var tr TargetReport
+	for range 2 {
+		b, _ := json.Marshal(map[string]any{"id": "a", "kind": "point", "range_m": 6000, "rcs_dbsm": rcs, "fluctuation": fluct})
+		tr = target(mustEvaluate(t, mustDecode(t, lfmScene(window, detector, string(b)))), "a")
+		if tr.SNRRequiredDB == nil || tr.PdMarginDB == nil || tr.Pd == nil || tr.PdAlone == nil {
+			t.Fatalf("%s %s: Pd fields missing: %+v", detector, fluct, tr)
+		}
+		rcs += snrDB - (*tr.SNRRequiredDB + *tr.PdMarginDB)
+	}
+	return tr
+}
+
+// TestPdCheckValues reaches the published check values for Pfa 1e-6 and
+// Pd 0.9 (one pulse) through whole scenarios:
+//   - steady target, known noise: 13.18 dB (non-central chi-square,
+//     numerical Marcum Q; Richards, Fundamentals of Radar Signal
+//     Processing, 2nd ed., 2014, eq. 6.79; Albersheim 1981 gives 13.11 dB);
+//   - Swerling 1, known noise: 21.14 dB (closed form Pd = Pfa^(1/(1+SNR)),
+//     Richards §6.3);
+//   - Swerling 1 behind a 16-cell CA-CFAR: 23.15 dB (Richards eq. 6.137).
+//
+// The target is placed so that its tested SNR is the check value; its Pd
+// must be 0.9 and snr_required_db the check value. Behind the CFAR, guard
+// cells of 64 gates (16 resolution cells) and a Taylor window keep its own
+// sidelobes 40 dB down in its training cells, so pd ≈ pd_alone ≈ 0.9.
+func TestPdCheckValues(t *testing.T) {
+	fixed := `{"kind":"fixed","pfa":1e-6}`
+	ca := `{"kind":"ca_cfar","pfa":1e-6,"guard_cells":64,"training_cells":16}`
+	for _, c := range []struct {
+		name, window, det, fluct string
+		snr, tol                 float64
+	}{
+		{"steady", `{"kind":"none"}`, fixed, "none", 13.18, 0.002},
+		{"swerling1", `{"kind":"none"}`, fixed, "swerling1", 21.14, 0.002},
+		{"swerling1 CA-CFAR 16", `{"kind":"taylor"}`, ca, "swerling1", 23.15, 0.005},
+	} {
+		tr := pdScene(t, c.window, c.det, c.fluct, c.snr)
+		if math.Abs(*tr.SNRRequiredDB-c.snr) > 0.006 {
+			t.Errorf("%s: snr_required_db %.4f, want %.2f", c.name, *tr.SNRRequiredDB, c.snr)
+		}
+		if math.Abs(*tr.PdAlone-0.9) > c.tol || math.Abs(*tr.Pd-0.9) > c.tol {
+			t.Errorf("%s at %.2f dB: pd %.4f, pd_alone %.4f, want 0.9 ± %g", c.name, c.snr, *tr.Pd, *tr.PdAlone, c.tol)
+		}
+	}
+}
+
+// TestPdFluctuationMatters: the same scene gives a different Pd for each
+// fluctuation model (the status and threshold margin do not change yet).
+// At 16 dB, one pulse, Pfa 1e-6, known noise, the Pd falls from steady to
+// Swerling 1 (Swerling 3 in between); Swerling 2 and 4 equal 1 and 3 for
+// one pulse (Richards §6.3: they differ only over several pulses).
+func TestPdFluctuationMatters(t *testing.T) {
+	pd := map[string]float64{}
+	for _, f := range []string{"none", "swerling1", "swerling2", "swerling3", "swerling4"} {
+		pd[f] = *pdScene(t, `{"kind":"none"}`, `{"kind":"fixed","pfa":1e-6}`, f, 16).Pd
+	}
+	if !(pd["none"] > pd["swerling3"] && pd["swerling3"] > pd["swerling1"]) {
+		t.Errorf("want Pd steady > Swerling 3 > Swerling 1 at 16 dB: %v", pd)
+	}
+	// Swerling 1, one pulse: Pd = Pfa^(1/(1+SNR)) (Richards §6.3).
+	if want := math.Pow(1e-6, 1/(1+math.Pow(10, 1.6))); math.Abs(pd["swerling1"]-want) > 1e-6 {
+		t.Errorf("Swerling 1 at 16 dB: pd %.6f, want %.6f", pd["swerling1"], want)
+	}
+	if math.Abs(pd["swerling2"]-pd["swerling1"]) > 1e-9 || math.Abs(pd["swerling4"]-pd["swerling3"]) > 1e-9 {
+		t.Errorf("one pulse: want Swerling 2 = 1 and 4 = 3: %v", pd)
+	}
+}
