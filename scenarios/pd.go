@@ -2,6 +2,7 @@ package scenarios
 
 import (
 	"math"
+	"strconv"
 
 	"github.com/pulsewright/pulsewright/dsp"
 )
@@ -135,4 +136,16 @@ func (m *model) pdFigures(g *tgt, v verdict, alone float64, train bool, out *Tar
 			out.SNRRequiredDB, out.PdMarginDB = &rdb, &mdb
 		}
 	}
+}
+
+// PdText formats a probability of detection for people: three decimals,
+// "> 0.999" and "< 0.001" at the ends (never a rounded 1 or 0).
+func PdText(p float64) string {
+	switch {
+	case p >= 0.9995:
+		return "> 0.999"
+	case p < 0.0005:
+		return "< 0.001"
+	}
+	return strconv.FormatFloat(p, 'f', 3, 64)
 }

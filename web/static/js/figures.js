@@ -4,6 +4,8 @@
 import { h } from './dom.js';
 
 const fmt = (v, digits = 1) => (v === undefined || v === null || !Number.isFinite(v) ? '—' : v.toFixed(digits));
+// A probability of detection as the report's text gives it (scenarios.PdText).
+const pdText = (p) => (p >= 0.9995 ? '> 0.999' : p < 0.0005 ? '< 0.001' : p.toFixed(3));
 const eng = (v, unit) => {
   if (v === undefined || v === null || !Number.isFinite(v)) return '—';
   const a = Math.abs(v);
@@ -64,6 +66,8 @@ export function renderFigures(root, report, reference, computeMs) {
         h('span', {}, `SNR ${fmt(t.snr_db)} dB`),
         t.margin_db !== undefined ? h('span', {}, `margin ${t.margin_db >= 0 ? '+' : ''}${fmt(t.margin_db)} dB`) : null,
         t.snr_integrated_db !== undefined ? h('span', {}, `integrated ${fmt(t.snr_integrated_db)} dB`) : null,
+        t.pd !== undefined ? h('span', { title: 'probability of detection at the scenario\'s Pfa' }, `Pd ${pdText(t.pd)}`
+          + (t.pd_alone !== undefined && pdText(t.pd_alone) !== pdText(t.pd) ? ` (alone ${pdText(t.pd_alone)})` : '')) : null,
         t.masked_by ? h('span', {}, `masked by ${t.masked_by}`) : null,
         t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null),
       h('div', { class: 'reason' }, t.reason || ''));
