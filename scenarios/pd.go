@@ -1,7 +1,9 @@
 package scenarios
 
 import (
+	"fmt"
 	"math"
+	"math/cmplx"
 	"strconv"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -18,6 +20,12 @@ import (
 type pdTest struct {
 	det dsp.Detector
 	snr float64
+	// ev, when set, are the eigenvalues of the covariance of the
+	// correlated CA-CFAR training cells (unit diagonal), and alpha the
+	// multiplier on their mean that holds Pfa; the cell under test is
+	// independent of them (docs/detection-probability.md §7).
+	ev    []float64
+	alpha float64
 }
 
 // pdTestFor returns the test of a target of fluctuation fluct whose
@@ -55,7 +63,81 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 	if det.Validate() != nil {
 		return pdTest{}, false
 	}
-	return pdTest{det: det, snr: v.peak}, true
+	t := pdTest{det: det, snr: v.peak}
+	if d.Kind == DetectorCA && !train {
+		t.ev, t.alpha = m.correlatedCells(v.peakK)
+	}
+	return t, true
+}
+
+// correlatedCells returns the eigenvalues of the noise covariance of the
+// CA-CFAR training cells used at gate k and the multiplier that holds Pfa
+// for them, when those cells are correlated with one another but not with
+// the cell under test (every training offset beyond the noise correlation);
+// otherwise nil.
+func (m *model) correlatedCells(k int) ([]float64, float64) {
+	rho := m.noiseCorrelation()
+	cf := m.detector()
+	offs := cf.Cells(nil, k, m.n, m.processed)
+	if len(offs) == 0 || len(rho) < 2 {
+		return nil, 0
+	}
+	corr := false
+	for i, a := range offs {
+		if a > -len(rho) && a < len(rho) {
+			return nil, 0 // the cell under test shares noise with a training cell
+		}
+		if i > 0 && a-offs[i-1] < len(rho) {
+			corr = true
+		}
+	}
+	if !corr {
+		return nil, 0
+	}
+	lag := func(l int) complex128 {
+		switch {
+		case l >= len(rho) || -l >= len(rho):
+			return 0
+		case l < 0:
+			return cmplx.Conj(rho[-l])
+		}
+		return rho[l]
+	}
+	ev := dsp.HermitianEigenvalues(len(offs), func(i, j int) complex128 { return lag(offs[j] - offs[i]) })
+	if ev == nil {
+		return nil, 0
+	}
+	for i, e := range ev {
+		ev[i] = max(e, 0) // rounding below zero
+	}
+	return ev, dsp.CorrelatedCAMultiplier(m.s.Receiver.Detector.PFA, ev)
+}
+
+// pdAt returns the Pd of t at SNR snr against r times the nominal
+// threshold, for the correlated-cell case.
+func (t pdTest) pdCorrelated(snr, r float64) float64 {
+	return t.det.PdCorrelatedCA(snr, r*t.alpha, t.ev)
+}
+
+// requiredSNR returns the SNR (linear) at which t reaches pd against noise
+// alone.
+func (t pdTest) requiredSNR(pd float64) (float64, error) {
+	if t.ev == nil {
+		return t.det.RequiredSNR(pd)
+	}
+	lo, hi := -60.0, 200.0
+	if t.pdCorrelated(dsp.FromDB(hi), 1) < pd {
+		return 0, fmt.Errorf("Pd %g needs more than %g dB", pd, hi)
+	}
+	for hi-lo > 1e-9 {
+		mid := (lo + hi) / 2
+		if t.pdCorrelated(dsp.FromDB(mid), 1) < pd {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return dsp.FromDB((lo + hi) / 2), nil
 }
 
 // logPfaRaised returns the natural log of the false-alarm probability of
@@ -89,6 +171,9 @@ const pdBelow = 1e-9
 func (t pdTest) pd(r float64) (float64, bool) {
 	if !(r >= 1) || math.IsInf(r, 1) {
 		return 0, false
+	}
+	if t.ev != nil {
+		return t.pdCorrelated(t.snr, r), true
 	}
 	d := t.det
 	if r > 1 {
@@ -129,7 +214,7 @@ func (m *model) pdFigures(g *tgt, v verdict, alone float64, train bool, out *Tar
 	if p, ok := t.pd(math.Max(alone/v.noiseLevel, 1)); ok {
 		out.PdAlone = &p
 	}
-	if req, err := t.det.RequiredSNR(m.s.Receiver.Detector.PdRequired); err == nil {
+	if req, err := t.requiredSNR(m.s.Receiver.Detector.PdRequired); err == nil {
 		rdb := dsp.DB(req)
 		mdb := dsp.DB(t.snr) - rdb
 		if !math.IsInf(rdb, 0) && !math.IsNaN(rdb) && !math.IsInf(mdb, 0) && !math.IsNaN(mdb) {

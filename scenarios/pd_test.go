@@ -79,3 +79,36 @@ func TestPdFluctuationMatters(t *testing.T) {
 		t.Errorf("one pulse: want Swerling 2 = 1 and 4 = 3: %v", pd)
 	}
 }
+
+// TestPdCorrelatedCells: a Barker-13 pulse sampled at two samples per chip
+// makes neighbouring range gates share noise, while 30 guard cells keep
+// the cell under test independent of its 16 training cells; the exact
+// correlated-cell series applies. Sixteen cells two samples apart hold
+// about as much independent noise as eight, so the Swerling 1 SNR for
+// Pd 0.9 at Pfa 1e-6 lies between the 16-cell (23.15 dB) and the 8-cell
+// (25.41 dB) CA-CFAR values of Richards eq. 6.137 (21.14 dB plus the
+// CFAR losses 2.01 and 4.27 dB), and a target placed there has Pd 0.9.
+func TestPdCorrelatedCells(t *testing.T) {
+	scene := func(snr float64) TargetReport {
+		b, _ := json.Marshal(map[string]any{"id": "a", "kind": "point", "range_m": 6000, "rcs_dbsm": snr, "fluctuation": "swerling1"})
+		doc := `{"version":1,"radar":{"peak_power_w":1000,"sample_rate_hz":2e7,"pri_s":2e-4,"window_start_m":3000,"window_stop_m":12000},
+			"waveform":{"kind":"barker","length":13,"chip_s":1e-7},
+			"receiver":{"window":{"kind":"none"},"detector":{"kind":"ca_cfar","pfa":1e-6,"guard_cells":30,"training_cells":16}},
+			"targets":[` + string(b) + `]}`
+		return target(mustEvaluate(t, mustDecode(t, doc)), "a")
+	}
+	tr := scene(0)
+	if tr.SNRRequiredDB == nil || tr.PdMarginDB == nil {
+		t.Fatalf("Pd fields missing: %+v", tr)
+	}
+	req := *tr.SNRRequiredDB
+	t.Logf("snr_required_db %.3f dB", req)
+	if !(req > 23.3 && req < 25.3) {
+		t.Errorf("Swerling 1, 16 correlated cells: snr_required_db %.3f, want between 23.15 and 25.41 dB", req)
+	}
+	// Place the target at the required SNR (the RCS moves the SNR dB for dB).
+	tr = scene(req - (req + *tr.PdMarginDB))
+	if tr.Pd == nil || math.Abs(*tr.Pd-0.9) > 0.003 {
+		t.Errorf("at the required SNR: pd %v, want 0.9", tr.Pd)
+	}
+}
