@@ -176,6 +176,9 @@ func (t pdTest) pd(r float64) (float64, bool) {
 		return t.pdCorrelated(t.snr, r), true
 	}
 	d := t.det
+	if d.CFARCells == 0 && r > 1 {
+		return knownNoisePd(d.Swerling, t.snr, -r*math.Log(d.Pfa)), true
+	}
 	if r > 1 {
 		lp := t.logPfaRaised(r)
 		d.Pfa = math.Exp(lp)
@@ -233,4 +236,21 @@ func PdText(p float64) string {
 		return "< 0.001"
 	}
 	return strconv.FormatFloat(p, 'f', 3, 64)
+}
+
+// knownNoisePd returns the Pd of one square-law test of a target of SNR
+// chi (linear) against the threshold T in units of the noise power, for
+// any threshold (no Pfa to underflow): steady, Q_1(√(2χ), √(2T)) (Marcum);
+// Swerling 1 and 2, exp(−T/(1+χ)); Swerling 3 and 4,
+// exp(−T/(1+χ/2))·(1 + (χ/2)·T/(1+χ/2)²) (Richards, Fundamentals of Radar
+// Signal Processing, 2nd ed., §6.3 and Table 6.1, one pulse).
+func knownNoisePd(swerling int, chi, T float64) float64 {
+	switch swerling {
+	case dsp.Swerling1, dsp.Swerling2:
+		return math.Exp(-T / (1 + chi))
+	case dsp.Swerling3, dsp.Swerling4:
+		x := chi / 2
+		return math.Exp(-T/(1+x)) * (1 + x*T/((1+x)*(1+x)))
+	}
+	return dsp.MarcumQ(1, math.Sqrt(2*chi), math.Sqrt(2*T))
 }

@@ -3,7 +3,10 @@ package scenarios
 import (
 	"encoding/json"
 	"math"
+	"strings"
 	"testing"
+
+	"github.com/pulsewright/pulsewright/dsp"
 )
 
 // pdScene evaluates one point target of the given fluctuation at 6 km in
@@ -110,5 +113,50 @@ func TestPdCorrelatedCells(t *testing.T) {
 	tr = scene(req - (req + *tr.PdMarginDB))
 	if tr.Pd == nil || math.Abs(*tr.Pd-0.9) > 0.003 {
 		t.Errorf("at the required SNR: pd %v, want 0.9", tr.Pd)
+	}
+}
+
+// TestPdMaskedAndTrain: a target masked by a neighbour's range sidelobe
+// (the scene of TestMaskingBySidelobe) has a Pd in the scene far below its
+// Pd alone; on a coherent 16-pulse train a steady target is one test at
+// its integrated SNR, so it needs the one-pulse 13.18 dB (Pfa 1e-6,
+// Pd 0.9; non-central chi-square, Richards eq. 6.79) at its map cell and
+// that cell's SNR is snr_integrated_db less its straddle.
+func TestPdMaskedAndTrain(t *testing.T) {
+	const r0 = 6000.0
+	weakR := r0 + 3.47*C/(2*1e7)
+	fixed := `{"kind":"fixed","pfa":1e-6}`
+	got := mustEvaluate(t, mustDecode(t, lfmScene(`{"kind":"none"}`, fixed, pointJSON("strong", r0, rcsFor(60, r0)), pointJSON("weak", weakR, rcsFor(35, weakR)))))
+	w := target(got, "weak")
+	if w.Pd == nil || w.PdAlone == nil || !(*w.Pd < 0.01) || !(*w.PdAlone > 0.999) {
+		t.Errorf("masked by a sidelobe: pd %v, pd_alone %v; want < 0.01 and > 0.999", w.Pd, w.PdAlone)
+	}
+	doc := strings.Replace(lfmScene(`{"kind":"none"}`, fixed, pointJSON("a", r0, rcsFor(0, r0))), `"pri_s":2e-4`, `"pri_s":2e-4,"pulses":16`, 1)
+	a := target(mustEvaluate(t, mustDecode(t, doc)), "a")
+	if a.SNRIntegratedDB == nil || a.SNRRequiredDB == nil || a.PdMarginDB == nil || a.Pd == nil {
+		t.Fatalf("train: fields missing: %+v", a)
+	}
+	if math.Abs(*a.SNRRequiredDB-13.18) > 0.006 {
+		t.Errorf("train: snr_required_db %.4f, want 13.18", *a.SNRRequiredDB)
+	}
+	if cell := *a.SNRRequiredDB + *a.PdMarginDB; cell > *a.SNRIntegratedDB+1e-9 || cell < *a.SNRIntegratedDB-1 {
+		t.Errorf("train: tested SNR %.3f dB, snr_integrated_db %.3f dB", cell, *a.SNRIntegratedDB)
+	}
+}
+
+// TestKnownNoisePd: the closed forms used against a raised fixed threshold
+// agree with the dsp series where both apply (Swerling 1 and 3 one-pulse
+// forms: Richards §6.3, Table 6.1; steady: Marcum Q).
+func TestKnownNoisePd(t *testing.T) {
+	for _, sw := range []int{dsp.SwerlingNone, dsp.Swerling1, dsp.Swerling2, dsp.Swerling3, dsp.Swerling4} {
+		for _, chi := range []float64{0.5, 3, 30, 300} {
+			for _, pfa := range []float64{1e-3, 1e-6, 1e-10} {
+				d := dsp.Detector{Pfa: pfa, Pulses: 1, Integration: dsp.Coherent, Swerling: sw}
+				want := d.Pd(chi)
+				if got := knownNoisePd(sw, chi, -math.Log(pfa)); math.Abs(got-want) > 1e-10*math.Max(want, 1e-300) && math.Abs(got-want) > 1e-14 {
+					t.Errorf("Swerling %d, SNR %g, Pfa %g: %.12g, series %.12g", sw, chi, pfa, got, want)
+				}
+			}
+		}
 	}
 }
