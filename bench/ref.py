@@ -3,6 +3,18 @@
 python3-scipy), written the way an engineer would script it.
 
   ref.py compress X H REPS [GO_OUT]    scipy.signal.correlate(method="fft")
+  ref.py fftw X H REPS BLOCK [GO_OUT]  the same correlation on FFTW 3 (pyfftw,
+                                       Debian python3-pyfftw): plans made once
+                                       outside the timed loop (FFTW_MEASURE,
+                                       2 threads); BLOCK is "full" (one
+                                       transform of next_fast_len(n+m-1)), a
+                                       power of two (overlap-save blocks of
+                                       that length) or "pick" (time every
+                                       power-of-two block and print the best)
+                                       FFTW_WISDOM=FILE: wisdom read before
+                                       planning and written after (planning
+                                       with FFTW_MEASURE takes seconds to
+                                       minutes on a loaded machine)
   ref.py evaluate SCENE REPS [GO_DIR]  the scene: echoes, noise, compression,
                                        CA-CFAR, per-target peak and threshold
 
@@ -64,6 +76,117 @@ def compress(xf, hf, reps, go_out=None):
         err = float(np.max(np.abs(g - y)) / np.max(np.abs(y)))
         d["check_max_rel_err"] = err
         d["check_ok"] = bool(len(g) == len(y) and err < 1e-9)
+    out(d)
+
+
+# ---------------------------------------------------------------- FFTW
+
+FFTW_THREADS = 2
+
+
+class FFTWCorrelator:
+    """y[k] = sum_i x[k+i] conj(h[i]), k < n, on FFTW plans of length L made
+    once (FFTW_MEASURE): one block when L >= n+m-1, else overlap-save blocks
+    of L-m+1 outputs. Buffers are aligned and reused; the 1/L of the inverse
+    is folded into the reference spectrum."""
+
+    def __init__(self, h, n, L):
+        import pyfftw
+        m = len(h)
+        self.n, self.m, self.L, self.step = n, m, L, L - m + 1
+        self.a = pyfftw.empty_aligned(L, dtype="complex128")
+        self.b = pyfftw.empty_aligned(L, dtype="complex128")
+        flags = ("FFTW_MEASURE", "FFTW_DESTROY_INPUT")
+        self.fwd = pyfftw.FFTW(self.a, self.b, direction="FFTW_FORWARD", flags=flags, threads=FFTW_THREADS)
+        self.inv = pyfftw.FFTW(self.b, self.a, direction="FFTW_BACKWARD", flags=flags, threads=FFTW_THREADS)
+        self.a[:] = 0
+        self.a[:m] = h
+        self.fwd.execute()
+        self.spec = np.conj(self.b) / L
+        self.y = np.empty(n, dtype="complex128")
+
+    def __call__(self, x):
+        n, L, step, a, b = self.n, self.L, self.step, self.a, self.b
+        for s in range(0, n, step):
+            seg = x[s:s + L]
+            a[:len(seg)] = seg
+            a[len(seg):] = 0
+            self.fwd.execute()
+            np.multiply(b, self.spec, out=b)
+            self.inv.execute()
+            k = min(step, n - s)
+            self.y[s:s + k] = a[:k]
+        return self.y
+
+
+def fftw_full_len(n, m):
+    try:
+        from pyfftw import next_fast_len
+    except ImportError:
+        next_fast_len = sfft.next_fast_len
+    return next_fast_len(n + m - 1)
+
+
+def fftw_pick(x, h):
+    """The fastest power-of-two overlap-save block, by the median of 5
+    timed calls per candidate (plans made before timing), among the first
+    four powers of two above m, stopping at the first that holds the whole
+    window (planning longer ones with FFTW_MEASURE takes minutes here)."""
+    n, m = len(x), len(h)
+    L, best = 1, None
+    while L < m + 1:
+        L *= 2
+    res = {}
+    for _ in range(4):
+        c = FFTWCorrelator(h, n, L)
+        _, (times, _) = timed(lambda: c(x), 5)
+        res[L] = sorted(times)[len(times) // 2]
+        if best is None or res[L] < res[best]:
+            best = L
+        if L >= n + m - 1:
+            break
+        L *= 2
+    return best, res
+
+
+def fftw(xf, hf, reps, block, go_out=None):
+    import os
+    import pickle
+    import pyfftw
+    wf = os.environ.get("FFTW_WISDOM")
+    if wf and os.path.exists(wf):
+        with open(wf, "rb") as f:
+            pyfftw.import_wisdom(pickle.load(f))
+    x = np.fromfile(xf, dtype="<c16")
+    h = np.fromfile(hf, dtype="<c16")
+    n, m = len(x), len(h)
+    d = {}
+    if block == "pick":
+        L, cands = fftw_pick(x, h)
+        d["block"] = L
+        d["candidates_ms"] = " ".join("%d:%.2f" % kv for kv in sorted(cands.items()))
+    else:
+        L = fftw_full_len(n, m) if block == "full" else int(block)
+        d["block"] = L
+    t = time.perf_counter()
+    c = FFTWCorrelator(h, n, L)
+    d["plan_ms"] = (time.perf_counter() - t) * 1e3
+    if wf:
+        with open(wf, "wb") as f:
+            pickle.dump(pyfftw.export_wisdom(), f)
+    y, (times, cpu) = timed(lambda: c(x), reps)
+    d.update({"times_ms": times, "cpu_ms": cpu})
+    # Correctness against SciPy (and Go's output when given), outside the timing.
+    want = ss.correlate(x, h, mode="full", method="fft")[m - 1:m - 1 + n]
+    scale = float(np.max(np.abs(want)))
+    d["check_vs_scipy"] = float(np.max(np.abs(y - want)) / scale)
+    ok = d["check_vs_scipy"] < 1e-9
+    if go_out:
+        g = np.fromfile(go_out, dtype="<c16")
+        d["check_go_vs_fftw"] = float(np.max(np.abs(g - y)) / scale)
+        ok = ok and len(g) == n and d["check_go_vs_fftw"] < 1e-9
+    d["check_ok"] = bool(ok)
+    d["fftw"] = "pyfftw %s, %d threads, FFTW_MEASURE" % (pyfftw.__version__, FFTW_THREADS)
     out(d)
 
 
@@ -329,7 +452,9 @@ if __name__ == "__main__":
     cmd, a = sys.argv[1], sys.argv[2:]
     if cmd == "compress":
         compress(a[0], a[1], int(a[2]), a[3] if len(a) > 3 else None)
+    elif cmd == "fftw":
+        fftw(a[0], a[1], int(a[2]), a[3], a[4] if len(a) > 4 else None)
     elif cmd == "evaluate":
         evaluate_cmd(a[0], int(a[1]), a[2] if len(a) > 2 else None)
     else:
-        sys.exit("usage: ref.py compress X H REPS [GO_OUT] | evaluate SCENE REPS [GO_DIR]")
+        sys.exit("usage: ref.py compress X H REPS [GO_OUT] | fftw X H REPS BLOCK [GO_OUT] | evaluate SCENE REPS [GO_DIR]")

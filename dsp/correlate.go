@@ -18,7 +18,7 @@ import (
 // otherwise overlap-save blocks of L−m+1 outputs each, L chosen by a cost
 // model of that FFT (measured per radix, with a penalty for blocks that
 // overflow a core's cache). A Correlator owns its scratch space; Apply
-// does not allocate when dst is given and the plan has one worker. It is
+// does not allocate when dst is given, whatever its worker count. It is
 // not safe for concurrent use.
 type Correlator struct {
 	n, m    int
@@ -28,6 +28,10 @@ type Correlator struct {
 	scratch [][]complex128 // one 2L buffer per worker
 	wg      sync.WaitGroup
 	next    atomic.Int64 // next block to take, with several workers
+	// With several workers: the goroutine bodies, made once so that Apply
+	// does not allocate, and the arguments of the Apply in progress.
+	workers []func()
+	dst, x  []complex128
 }
 
 // NewCorrelator returns a plan for windows of n samples (n ≥ 1) and the
@@ -42,9 +46,8 @@ func NewCorrelator(ref []complex128, n int) *Correlator {
 // chooses, typically runtime.GOMAXPROCS(0)). It is the package's one,
 // approved, exception to "no goroutines": the goroutines live only for the
 // duration of an Apply call and share nothing but read-only tables and
-// disjoint parts of dst. With workers > 1 each Apply allocates one small
-// closure per extra goroutine; the transform buffers are never
-// reallocated. The block length is chosen for that worker count; the
+// disjoint parts of dst. Apply does not allocate (the goroutines' bodies
+// are made with the plan). The block length is chosen for that worker count; the
 // result does not depend on it beyond rounding (the same blocks are
 // computed in any order). It panics on empty arguments or workers < 1.
 func NewCorrelatorWorkers(ref []complex128, n, workers int) *Correlator {
@@ -69,6 +72,12 @@ func newCorrelatorLen(ref []complex128, n, l, workers int) *Correlator {
 	for range min(workers, blocks) {
 		c.scratch = append(c.scratch, make([]complex128, 2*l))
 	}
+	for i := 1; i < len(c.scratch); i++ {
+		c.workers = append(c.workers, func() {
+			defer c.wg.Done()
+			c.blocks(i, c.dst, c.x)
+		})
+	}
 	copy(c.spec, ref)
 	c.fft.transform(c.spec, c.scratch[0][:l])
 	inv := 1 / float64(l)
@@ -91,13 +100,14 @@ func stageCost(radix int) float64 {
 	return 2.0 // radix 5
 }
 
-// fftCost models the time of one length-l transform plus the per-block
-// spectral product and copies (about one stage's worth), with a penalty
+// fftCost models the time of one length-l transform plus half the
+// per-block copies (the spectral product rides on the inverse transform's
+// first pass; the copy out is about half a stage per transform), with a penalty
 // for lengths beyond 2¹⁴ whose buffers spill out of a core's cache
 // (BenchmarkFFTRadix: the time per point and stage grows about 17 % per
 // doubling from 2¹⁴ to 2²⁰ on the reference machine).
 func fftCost(l int) float64 {
-	c := 1.0
+	c := 0.5
 	r := l
 	for r%4 == 0 {
 		c += stageCost(4)
@@ -165,23 +175,24 @@ func (c *Correlator) Apply(dst, x []complex128) []complex128 {
 // the next block not yet taken, so a goroutine that waits for a core
 // leaves its share to the others.
 func (c *Correlator) parallel(dst, x []complex128) {
-	w := len(c.scratch)
 	c.next.Store(0)
-	c.wg.Add(w - 1)
-	for i := 1; i < w; i++ {
-		go func() {
-			defer c.wg.Done()
-			c.blocks(i, dst, x)
-		}()
+	c.dst, c.x = dst, x
+	c.wg.Add(len(c.workers))
+	for _, f := range c.workers {
+		go f()
 	}
 	c.blocks(0, dst, x)
 	c.wg.Wait()
+	c.dst, c.x = nil, nil
 }
 
 // blocks computes overlap-save blocks with the scratch of worker i: all of
 // them in order for a one-worker plan, else those it takes from c.next.
-// The inverse transform is conj(FFT(conj(·))): the conjugations are folded
-// into the spectral product and the copy out.
+// The inverse transform is conj(FFT(conj(·))): the spectral product and
+// the first conjugation are folded into the first pass of the second
+// transform (fftPlan.run), the last conjugation into the copy out. A
+// whole block is transformed from where it lies in x; only the last,
+// zero-padded one is copied.
 func (c *Correlator) blocks(i int, dst, x []complex128) {
 	l := c.fft.n
 	s := c.scratch[i]
@@ -195,17 +206,22 @@ func (c *Correlator) blocks(i int, dst, x []complex128) {
 		if b >= c.n {
 			return
 		}
-		k := copy(buf, x[b:])
-		clear(buf[k:])
-		c.fft.transform(buf, work)
-		for i, v := range spec {
-			p := buf[i] * v
-			buf[i] = complex(real(p), -imag(p))
+		src := buf
+		if b+l <= c.n {
+			src = x[b : b+l]
+		} else {
+			k := copy(buf, x[b:])
+			clear(buf[k:])
 		}
-		c.fft.transform(buf, work)
+		y := c.fft.run(src, work, buf, nil)
+		other := buf
+		if &y[0] == &buf[0] {
+			other = work
+		}
+		z := c.fft.run(y, other, y, spec)
 		out := dst[b:min(b+c.step, c.n)]
-		for i := range out {
-			v := buf[i]
+		z = z[:len(out)]
+		for i, v := range z {
 			out[i] = complex(real(v), -imag(v))
 		}
 	}

@@ -96,23 +96,73 @@ func (f *fftPlan) transform(x, work []complex128) {
 	if len(x) != f.n || len(work) != f.n {
 		panic("dsp: fft buffer length mismatch")
 	}
-	src, dst := x, work
+	if r := f.run(x, work, x, nil); &r[0] != &x[0] {
+		copy(x, r)
+	}
+}
+
+// run computes the DFT of src, or of conj(src[i]·pre[i]) when pre is not
+// nil, and returns the buffer holding it: a or b (all of length n). The
+// first stage reads src and writes a, the next ones alternate between b
+// and a, so src may be b (in place) or a buffer that must not be written
+// (when src is neither a nor b). Folding the spectral product and the
+// conjugation of the inverse into the first stage, and reading the input
+// where it lies, saves the correlator three passes over each block.
+func (f *fftPlan) run(src, a, b, pre []complex128) []complex128 {
+	if len(f.stages) == 0 { // n = 1
+		a[0] = src[0]
+		if pre != nil {
+			a[0] = conjMul(src[0], pre[0])
+		}
+		return a
+	}
+	in, out := src, a
 	for i := range f.stages {
 		st := &f.stages[i]
-		switch st.radix {
-		case 4:
-			st.pass4(src, dst)
-		case 2:
-			st.pass2(src, dst)
-		case 3:
-			st.pass3(src, dst)
-		case 5:
-			st.pass5(src, dst)
+		if i == 0 && pre != nil {
+			switch st.radix {
+			case 4:
+				st.pass4pre(in, out, pre)
+			default:
+				for j, v := range pre {
+					out[j] = conjMul(in[j], v)
+				}
+				in = out
+				if &in[0] == &a[0] {
+					out = b
+				} else {
+					out = a
+				}
+				st.pass(in, out)
+			}
+		} else {
+			st.pass(in, out)
 		}
-		src, dst = dst, src
+		if &out[0] == &a[0] {
+			in, out = a, b
+		} else {
+			in, out = b, a
+		}
 	}
-	if len(f.stages)%2 == 1 {
-		copy(x, work)
+	return in
+}
+
+// conjMul returns conj(a·b).
+func conjMul(a, b complex128) complex128 {
+	return complex(real(a)*real(b)-imag(a)*imag(b), -(real(a)*imag(b) + imag(a)*real(b)))
+}
+
+// pass runs the stage from x into y.
+func (st *fftStage) pass(x, y []complex128) {
+	switch st.radix {
+	case 4:
+		st.pass4(x, y)
+	case 2:
+		st.pass2(x, y)
+	case 3:
+		st.pass3(x, y)
+	case 5:
+		st.pass5(x, y)
 	}
 }
 
@@ -357,5 +407,25 @@ func (st *fftStage) pass5(x, y []complex128) {
 			y3[q] = (c2 - e2) * w3
 			y4[q] = (c1 - e1) * w4
 		}
+	}
+}
+
+// pass4pre is the first radix-4 stage (s = 1) applied to conj(x[i]·pre[i]).
+func (st *fftStage) pass4pre(x, y, pre []complex128) {
+	m, tw := st.m, st.tw
+	x0, x1, x2, x3 := x[:m], x[m:2*m], x[2*m:3*m], x[3*m:4*m]
+	p0, p1, p2, p3 := pre[:m], pre[m:2*m], pre[2*m:3*m], pre[3*m:4*m]
+	for p := range x0 {
+		o := y[4*p : 4*p+4 : 4*p+4]
+		w := tw[3*p : 3*p+3 : 3*p+3]
+		a0, a1 := conjMul(x0[p], p0[p]), conjMul(x1[p], p1[p])
+		a2, a3 := conjMul(x2[p], p2[p]), conjMul(x3[p], p3[p])
+		t0, t1 := a0+a2, a0-a2
+		t2, d := a1+a3, a1-a3
+		t3 := complex(imag(d), -real(d))
+		o[0] = t0 + t2
+		o[1] = (t1 + t3) * w[0]
+		o[2] = (t0 - t2) * w[1]
+		o[3] = (t1 - t3) * w[2]
 	}
 }

@@ -101,3 +101,33 @@ func BenchmarkFFT(b *testing.B) {
 		})
 	}
 }
+
+// The fused first stage (run with pre) must equal the transform of
+// conj(x·pre), for first radices 4, 2, 3 and 5, with x left intact when it
+// is neither scratch buffer. Source: gonum's CmplxFFT, as above.
+func TestFFTRunFused(t *testing.T) {
+	rnd := rand.New(rand.NewPCG(8, 8))
+	for _, n := range []int{1, 2, 3, 5, 8, 12, 40, 64, 1024, 4096, 6000, 6561, 15625, 1 << 15} {
+		x, pre := randComplex(rnd, n), randComplex(rnd, n)
+		in := make([]complex128, n)
+		for i := range in {
+			in[i] = cmplx.Conj(x[i] * pre[i])
+		}
+		want := fourier.NewCmplxFFT(n).Coefficients(nil, in)
+		keep := append([]complex128(nil), x...)
+		a, b := make([]complex128, n), make([]complex128, n)
+		got := newFFTPlan(n).run(x, a, b, pre)
+		var e float64
+		for i := range got {
+			e = math.Max(e, cmplx.Abs(got[i]-want[i]))
+		}
+		if e /= norm2(want); e > 1e-12 {
+			t.Errorf("n=%d: max error %.3g of the norm > 1e-12", n, e)
+		}
+		for i := range x {
+			if x[i] != keep[i] {
+				t.Fatalf("n=%d: run wrote into its source at %d", n, i)
+			}
+		}
+	}
+}

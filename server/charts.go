@@ -52,11 +52,13 @@ const (
 // statusStyle gives each target status a colour and a marker shape, so
 // that status reads without colour too.
 var statusStyle = map[string]struct{ colour, symbol string }{
-	scenarios.StatusDetected:    {"#1e8c4e", "circle"},
-	scenarios.StatusMasked:      {"#d4651c", "diamond"},
-	scenarios.StatusBelowNoise:  {"#6f7782", "emptyCircle"},
-	scenarios.StatusEclipsed:    {"#7b4fb8", "triangle"},
-	scenarios.StatusOutOfWindow: {"#b5a33a", "rect"},
+	// The page's cards and table use the same colours and shapes
+	// (web/static/css: --st-* and .dot).
+	scenarios.StatusDetected:    {"#2f7d3a", "circle"},
+	scenarios.StatusMasked:      {"#c2410c", "diamond"},
+	scenarios.StatusBelowNoise:  {"#7b8389", "emptyCircle"},
+	scenarios.StatusEclipsed:    {"#6d3fc0", "triangle"},
+	scenarios.StatusOutOfWindow: {"#1b6aa5", "rect"},
 }
 
 // chartOut is one chart of a frame: its full option, and the series data
@@ -294,8 +296,10 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 	return b.build(ChartProfile, key)
 }
 
-// marker is one target on the profile: at its range (clamped into the
-// window, with the true range beside it) and its expected peak SNR.
+// marker is one target on the profile: where its echo appears (a point
+// target beyond the unambiguous range at its folded, apparent range;
+// otherwise its range clamped into the window), with the true range
+// beside it, and its expected peak SNR.
 type marker struct {
 	Value     [2]float64     `json:"value"`
 	ID        string         `json:"id"`
@@ -314,8 +318,12 @@ func markers(res *scenarios.Result, lo, hi float64) []marker {
 			st = statusStyle[scenarios.StatusBelowNoise]
 		}
 		x := clampAmp(t.RangeM)
+		at := x
+		if ru := res.Report.Waveform.UnambiguousRangeM; ru > 0 && x >= ru {
+			at = x - math.Floor(x/ru)*ru // where the folded echo appears
+		}
 		out = append(out, marker{
-			Value:     [2]float64{math.Min(math.Max(x, lo), hi), clampDB(t.SNRDB)},
+			Value:     [2]float64{math.Min(math.Max(at, lo), hi), clampDB(t.SNRDB)},
 			ID:        t.ID,
 			Status:    t.Status,
 			Reason:    t.Reason,

@@ -207,7 +207,9 @@ func TestLibrarySaveOpenConflictDelete(t *testing.T) {
 	// Delete it.
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#btn-library`)))
 	waitFor(t, ctx, "the list", rowNames+` === 'harbour-a'`)
-	do(t, ctx, chromedp.Click(chromedp.CSS(`#lib-rows tr td.acts button:nth-child(2)`)))
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#lib-rows tr td.acts button[data-lib="delete"]`)))
+	waitFor(t, ctx, "the confirmation", `!!document.querySelector('#lib-rows [data-lib="confirm-delete"]')`)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#lib-rows [data-lib="confirm-delete"]`)))
 	waitFor(t, ctx, "the empty list", `document.querySelector('#lib-rows').textContent.includes('Nothing saved yet')`)
 	if n := eval[int](t, ctx, `fetch('/api/v1/scenarios').then((r) => r.json()).then((l) => (Array.isArray(l) ? l : l.scenarios || []).length)`); n != 0 {
 		t.Errorf("%d saved scenarios left after delete", n)

@@ -7,6 +7,7 @@ import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
+const WheelGestureMs = 3000; // ms: wheel events this close, with the pointer still, form one gesture
 
 const chartMs = {};
 window.__pwChartMs = chartMs;
@@ -29,6 +30,18 @@ const wrap = (text, width = 52) => {
   return lines.join('\n');
 };
 const num = (v, d) => (Number.isFinite(v) ? v.toFixed(d) : '—');
+
+// spaceAxisLabels keeps the x-axis labels of a narrow chart apart ("90,000"
+// and "120,000" drawn against each other): ticks about every AxisLabelPx,
+// and any labels that would still touch are left out.
+const AxisLabelPx = 95;
+function spaceAxisLabels(option, width) {
+  for (const ax of [option.xAxis || []].flat()) {
+    if (!ax || ax.type !== 'value') continue;
+    ax.splitNumber = Math.max(2, Math.floor(width / AxisLabelPx));
+    ax.axisLabel = { ...(ax.axisLabel || {}), hideOverlap: true };
+  }
+}
 
 // carryCharts joins the charts of a skipped frame to the next one's:
 // chart name → the list of options to apply in turn (see Plots.apply).
@@ -112,6 +125,7 @@ export class Plots {
   setOption(name, entry) {
     const chart = this.charts[name];
     const t0 = performance.now();
+    if (entry.replace) spaceAxisLabels(entry.option, chart.getWidth());
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     // Paint now, inside this animation frame, instead of waiting for the
     // renderer's own loop to notice on the next one.
@@ -326,8 +340,18 @@ export class Plots {
     el.addEventListener('pointerleave', () => this.hoverCard(null));
     el.addEventListener('wheel', (ev) => {
       const [px, py] = local(ev);
-      const m = this.hit(px, py);
-      if (!m) return;
+      // One wheel gesture stays on the marker it started on, even when the
+      // nudged peak moves from under the pointer: it never turns into a
+      // zoom. It ends when the pointer moves away or the wheel rests.
+      const now = ev.timeStamp;
+      const w = this.wheelLock;
+      const lock = w && now - w.t < WheelGestureMs && Math.hypot(px - w.px, py - w.py) < 6 ? w : null;
+      const m = lock || this.hit(px, py);
+      if (!m) {
+        this.wheelLock = null;
+        return;
+      }
+      this.wheelLock = { id: m.id, t: now, px: lock ? w.px : px, py: lock ? w.py : py };
       ev.stopPropagation();
       ev.preventDefault();
       this.onSelect(m.id);
@@ -335,21 +359,22 @@ export class Plots {
     }, { capture: true, passive: false });
   }
 
-  // Draw (px) or remove (null) the vertical guide shown while dragging.
+  // Draw (px) or remove (null) the vertical guide shown while dragging: a
+  // page element over the chart, so that a drag step does not redraw it.
   guide(px) {
-    const chart = this.charts.profile;
+    const el = this.els.profile;
+    let g = el.querySelector('.drag-guide');
     if (px === null) {
-      chart.setOption({ graphic: [{ id: 'pw-drag-guide', $action: 'remove' }] });
+      if (g) g.hidden = true;
       return;
     }
-    const h = chart.getHeight();
-    chart.setOption({
-      graphic: [{
-        id: 'pw-drag-guide', type: 'line', silent: true, z: 100,
-        shape: { x1: px, y1: 30, x2: px, y2: h - 40 },
-        style: { stroke: '#b4561d', lineWidth: 1.5, lineDash: [5, 4] },
-      }],
-    });
+    if (!g) {
+      g = document.createElement('div');
+      g.className = 'drag-guide';
+      el.append(g);
+    }
+    g.hidden = false;
+    g.style.left = `${Math.round(px)}px`;
   }
 
   png(name) {

@@ -4,9 +4,10 @@
 
 import { $$, getPath, h, setPath } from './dom.js';
 import {
-  convertTarget, detectorFields, detectorKinds, fluctuations, fromDisplay, levelKey, levelUnit,
+  convertTarget, detectorFields, isPhaseCode, sciDisplay, kindShort, kindTitle, levelName, levelShort, detectorKinds, fluctuations, fromDisplay, levelKey, levelUnit,
   newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
 } from './schema.js';
+import { describeFields, fieldName } from './words.js';
 
 export class Editor {
   // roots: {targets, radar, pulse, receive, scene} elements.
@@ -15,7 +16,13 @@ export class Editor {
     this.store = store;
     this.selected = 0; // index of the selected target
     this.status = new Map(); // target id → report entry
+    this.reportTargets = []; // the report's entries, in scene order
     this.shape = '';
+    // Fields whose text is not a value (typed "12x"): path → message. The
+    // scene keeps the field's last good value; the message stays until the
+    // text is fixed or replaced, whatever frames arrive meanwhile.
+    this.localErrors = new Map();
+    this.onLocalErrors = () => {};
     for (const root of Object.values(roots)) {
       root.addEventListener('input', (ev) => this.onInput(ev));
       root.addEventListener('change', (ev) => this.onChange(ev));
@@ -33,6 +40,7 @@ export class Editor {
 
   value(el) {
     const type = el.dataset.type;
+    if (type === 'notes') return el.value.trim() === '' ? undefined : el.value;
     if (type === 'text' || type === 'select') {
       if (el.dataset.int) return Number(el.value);
       return el.value === '' && el.dataset.optional ? undefined : el.value;
@@ -52,11 +60,19 @@ export class Editor {
     if (!path || el.tagName === 'SELECT') return;
     const v = this.value(el);
     if (typeof v === 'number' && Number.isNaN(v) || Array.isArray(v) && v.some(Number.isNaN)) {
-      this.showLocalError(path, 'not a number');
+      this.setLocalError(path, el.dataset.type === 'phases'
+        ? `“${el.value.trim()}” is not a list of numbers (degrees, separated by commas or spaces)`
+        : `“${el.value.trim()}” is not a number`);
       return;
     }
-    this.showLocalError(path, '');
-    this.store.update((s) => setPath(s, path, v), path);
+    this.setLocalError(path, '');
+    this.store.update((s) => {
+      setPath(s, path, v);
+      // A phase code is given by phases or by a +/− string, not both: the
+      // one being typed replaces the other.
+      if (v !== undefined && path === 'waveform.phases_deg') delete s.waveform.binary;
+      if (v !== undefined && path === 'waveform.binary') delete s.waveform.phases_deg;
+    }, path);
   }
 
   onChange(ev) {
@@ -65,7 +81,14 @@ export class Editor {
     const action = el.dataset.action;
     const v = el.value;
     if (action === 'waveform-kind') {
-      this.store.update((s) => { s.waveform = newWaveform(v, s.waveform); });
+      this.store.update((s) => {
+        s.waveform = newWaveform(v, s.waveform);
+        // A mismatched filter needs a phase code: back to matched otherwise.
+        if (!isPhaseCode(v) && s.receiver && (s.receiver.filter === 'least_squares' || s.receiver.filter === 'minimax')) {
+          delete s.receiver.filter;
+          delete s.receiver.filter_length_factor;
+        }
+      });
     } else if (action && action.startsWith('window-kind:')) {
       const path = action.slice('window-kind:'.length);
       this.store.update((s) => setPath(s, path, { kind: v }));
@@ -190,6 +213,10 @@ export class Editor {
     const shape = this.shapeOf(s);
     if (shape !== this.shape) {
       this.shape = shape;
+      if (this.localErrors.size) {
+        this.localErrors.clear();
+        this.onLocalErrors();
+      }
       this.renderScene(s);
       this.renderRadar(s);
       this.renderPulse(s);
@@ -198,15 +225,14 @@ export class Editor {
       return;
     }
     this.renderTargets(s, false);
-    for (const root of Object.values(this.roots)) this.syncValues(root, s);
+    for (const [name, root] of Object.entries(this.roots)) if (name !== 'targets') this.syncValues(root, s);
   }
 
   shapeOf(s) {
     const t = s.targets || [];
     const rx = s.receiver || {};
     return JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, rx.detector && rx.detector.kind,
-      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected,
-      s.waveform && s.waveform.binary !== undefined]);
+      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected]);
   }
 
   syncValues(root, s) {
@@ -218,8 +244,12 @@ export class Editor {
         if (want && el.value !== want) el.value = want;
         continue;
       }
-      const text = el.dataset.type === 'phases' ? (v || []).join(', ') : toDisplay(v, Number(el.dataset.scale || 1));
-      if (el.value !== text) el.value = text;
+      const text = el.dataset.type === 'phases' ? (v || []).join(', ')
+        : el.dataset.sci ? sciDisplay(v) : toDisplay(v, Number(el.dataset.scale || 1));
+      if (el.value !== text) {
+        el.value = text;
+        if (this.localErrors.has(el.dataset.path)) this.setLocalError(el.dataset.path, '');
+      }
     }
   }
 
@@ -230,19 +260,27 @@ export class Editor {
     const hint = fd.hint || (fd.def !== undefined ? toDisplay(fd.def, fd.scale) : '');
     let input;
     if (fd.type === 'select') {
+      // An option is a value, or [value, label] when the value is an
+      // identifier ("least_squares") that people should not have to read.
       input = h('select', { dataset: { path, type: 'select', int: fd.int ? '1' : '', def: fd.def !== undefined ? String(fd.def) : undefined } },
-        fd.options.map((o) => h('option', { value: String(o), selected: String(v ?? fd.def) === String(o) }, String(o))));
+        fd.options.map((o) => {
+          const [val, label] = Array.isArray(o) ? o : [o, String(o)];
+          return h('option', { value: String(val), selected: String(v ?? fd.def) === String(val) }, label);
+        }));
+    } else if (fd.type === 'notes') {
+      input = h('textarea', { rows: 4, dataset: { path, type: 'notes' }, placeholder: fd.hint || '', value: v || '', spellcheck: 'true' });
     } else if (fd.type === 'phases') {
       input = h('textarea', { rows: 2, dataset: { path, type: 'phases' }, placeholder: '0, 180, 90 …', value: (v || []).join(', ') });
     } else {
       input = h('input', {
         type: 'text', inputmode: fd.type === 'text' ? 'text' : 'decimal', autocomplete: 'off', spellcheck: 'false',
         dataset: { path, type: fd.type, scale: String(fd.scale), optional: '1' },
-        placeholder: hint, value: toDisplay(v, fd.scale),
+        placeholder: fd.sci && fd.def !== undefined ? sciDisplay(fd.def) : hint, value: fd.sci ? sciDisplay(v) : toDisplay(v, fd.scale),
       });
+      if (fd.sci) input.dataset.sci = '1';
     }
     input.id = `f-${path.replace(/[^\w]/g, '_')}`;
-    return h('div', { class: 'field' },
+    return h('div', { class: fd.wide ? 'field wide' : 'field' },
       h('label', { for: input.id }, fd.label),
       h('div', { class: 'input-unit' }, input, fd.unit ? h('span', { class: 'unit' }, fd.unit) : null),
       h('div', { class: 'err', dataset: { errFor: path } }));
@@ -259,8 +297,10 @@ export class Editor {
 
   renderScene(s) {
     this.roots.scene.replaceChildren(
-      this.field(s, '', { key: 'name', label: 'Scene name', unit: '', scale: 1, type: 'text' }),
+      this.field(s, '', { key: 'name', label: 'Scene name', unit: '', scale: 1, type: 'text', wide: true }),
       this.field(s, '', { key: 'seed', label: 'Noise seed', unit: '', scale: 1, type: 'int', def: 1 }),
+      this.field(s, '', { key: 'notes', label: 'Notes (travel with the scenario and its link)', unit: '', scale: 1, type: 'notes', wide: true,
+        hint: 'What this scene shows, what to try…' }),
     );
   }
 
@@ -291,7 +331,13 @@ export class Editor {
     const rx = s.receiver || {};
     const det = rx.detector || { kind: 'ca_cfar' };
     const dkind = detectorKinds[det.kind] ? det.kind : 'ca_cfar';
-    const filterFd = { key: 'filter', label: 'Compression filter', type: 'select', options: ['matched', 'least_squares', 'minimax'], def: 'matched', scale: 1 };
+    // Mismatched filters apply to phase codes only: others are not offered.
+    const code = isPhaseCode(s.waveform && s.waveform.kind);
+    const filterFd = {
+      key: 'filter', label: 'Compression filter', type: 'select', def: 'matched', scale: 1, wide: code,
+      options: [['matched', 'Matched'], ...(code || rx.filter === 'least_squares' ? [['least_squares', 'Mismatched, least-squares']] : []),
+        ...(code || rx.filter === 'minimax' ? [['minimax', 'Mismatched, minimax (lowest peak sidelobe)']] : [])],
+    };
     const filterBlock = [this.field(s, 'receiver', filterFd)];
     if (rx.filter === 'least_squares' || rx.filter === 'minimax') {
       filterBlock.push(this.field(s, 'receiver', { key: 'filter_length_factor', label: 'Filter length', unit: '× code', scale: 1, type: 'int', def: 3 }));
@@ -312,20 +358,27 @@ export class Editor {
       dataset: { path: `targets[${i}].${key}`, type: 'num', scale: String(scale), optional: '1' },
       'aria-label': `${t.id} ${key}`,
     });
-    const rep = this.status.get(t.id);
+    const rep = this.reportTargets.length === (this.store.scenario.targets || []).length ? this.reportTargets[i] : this.status.get(t.id);
     const st = rep ? rep.status : '';
     const level = num(lk);
     level.dataset.level = String(i);
-    level.title = 'Wheel or ↑/↓ to nudge by 1 dB (Shift: 0.1 dB)';
+    level.title = `${levelName[t.kind]} in ${levelUnit[t.kind]}: wheel, or ↑/↓ while this field has the focus, nudges it by 1 dB (Shift: 0.1 dB)`;
+    level.setAttribute('aria-label', `${t.id} ${levelName[t.kind]} (${levelUnit[t.kind]})`);
+    const range = num(t.kind === 'point' ? 'range_m' : 'range_start_m');
+    range.setAttribute('aria-label', `${t.id} ${t.kind === 'point' ? 'range' : 'near edge'} (m)`);
+    range.title = t.kind === 'point' ? 'Range, m' : 'Near edge of the target, m (the far edge is in the form below)';
+    const rate = num('range_rate_mps');
+    rate.setAttribute('aria-label', `${t.id} range rate (m/s)`);
+    rate.title = 'Range rate, m/s (negative: closing)';
     return h('tr', { class: i === this.selected ? 'sel' : '', dataset: { row: String(i) } },
       h('td', {}, h('span', { class: `dot st-${st || 'none'}`, title: st ? st.replace('_', ' ') : 'not evaluated' })),
-      h('td', {}, h('input', { type: 'text', class: 'id', value: t.id, autocomplete: 'off', spellcheck: 'false',
+      h('td', {}, h('input', { type: 'text', class: 'id', value: t.id, autocomplete: 'off', spellcheck: 'false', title: t.id,
         dataset: { path: `targets[${i}].id`, type: 'text' }, 'aria-label': 'target id' })),
-      h('td', {}, h('select', { dataset: { action: 'target-kind', index: String(i) }, 'aria-label': 'kind' },
-        targetKinds.map((k) => h('option', { value: k, selected: k === t.kind }, k)))),
-      h('td', {}, num(t.kind === 'point' ? 'range_m' : 'range_start_m')),
-      h('td', {}, level),
-      h('td', {}, num('range_rate_mps')),
+      h('td', {}, h('select', { class: 'kind', dataset: { action: 'target-kind', index: String(i), path: `targets[${i}].kind`, type: 'kind' }, 'aria-label': `${t.id} kind`, title: kindTitle[t.kind] },
+        targetKinds.map((k) => h('option', { value: k, selected: k === t.kind, title: kindTitle[k] }, kindShort[k])))),
+      h('td', {}, range),
+      h('td', { class: this.mixedKinds ? 'with-unit' : '' }, level, this.mixedKinds ? h('span', { class: 'cell-unit' }, levelUnit[t.kind]) : null),
+      h('td', {}, rate),
       h('td', { class: 'acts' },
         h('button', { type: 'button', class: 'icon', title: 'Duplicate', dataset: { act: 'dup', index: String(i) } }, '+'),
         h('button', { type: 'button', class: 'icon', title: 'Delete', dataset: { act: 'del', index: String(i) } }, '×')));
@@ -346,7 +399,7 @@ export class Editor {
         { key: 'range_rate_mps', label: 'Range rate', unit: 'm/s', def: 0 },
         { key: 'velocity_spread_mps', label: 'Velocity spread', unit: 'm/s rms', def: 0 }];
     return h('div', { class: 'detail' },
-      h('div', { class: 'detail-head' }, `Target “${t.id}” · ${t.kind}`),
+      h('div', { class: 'detail-head' }, `Target “${t.id}” · ${kindTitle[t.kind]}`),
       h('div', { class: 'err block', dataset: { errFor: base } }),
       h('div', { class: 'grid' }, fds.map((fd) => this.field(s, base, { scale: 1, type: 'num', ...fd }))));
   }
@@ -354,36 +407,54 @@ export class Editor {
   renderTargets(s, full) {
     const root = this.roots.targets;
     const targets = s.targets || [];
-    const active = document.activeElement;
-    if (!full && root.contains(active) && active.dataset && active.dataset.path) {
-      this.syncValues(root, s); // typing in the table: keep the input
+    if (!full) {
+      // Same shape: only values change. Rebuilding the table would lose
+      // the field being typed in and costs a layout on every drag step.
+      this.syncValues(root, s);
       this.updateDots();
+      const t = targets[this.selected];
+      const head = root.querySelector('.detail-head');
+      if (t && head) head.textContent = `Target “${t.id}” · ${kindTitle[t.kind]}`;
+      for (const input of $$('input.id', root)) input.title = input.value;
       return;
     }
+    const kinds = [...new Set(targets.map((t) => t.kind))];
+    this.mixedKinds = kinds.length > 1;
+    const one = kinds.length === 1 ? kinds[0] : null;
+    const head = (name, unit, title) => h('th', { title }, h('span', { class: 'th-name' }, name), h('span', { class: 'th-unit' }, unit));
     root.replaceChildren(
       h('table', { class: 'targets' },
         h('thead', {}, h('tr', {},
-          h('th', {}, ''), h('th', {}, 'id'), h('th', {}, 'kind'), h('th', {}, 'range m'),
-          h('th', {}, 'level dB'), h('th', {}, 'rate m/s'), h('th', {}, ''))),
+          h('th', {}, ''), head('Target', '', 'Target id'), head('Kind', '', 'point, extended (ext.) or volume (vol.)'),
+          head('Range', '(m)', 'Range of a point target, near edge of an extended or volume target, in metres'),
+          one ? head(levelShort[one], `(${levelUnit[one]})`, `${levelName[one]} in ${levelUnit[one]}`)
+            : head('Level', '(per row)', 'RCS of a point target (dBsm), RCS per metre of an extended one (dBsm/m), reflectivity of a volume (dBZ)'),
+          head('Rate', '(m/s)', 'Range rate in metres per second; negative: closing'), h('th', {}, ''))),
         h('tbody', {}, targets.map((t, i) => this.targetRow(t, i)))),
       h('div', { class: 'row-actions' },
         h('button', { type: 'button', dataset: { act: 'add' } }, '+ Add target'),
-        h('span', { class: 'muted small' }, 'Drag a marker on the profile; wheel or ↑/↓ nudges the level.')),
+        h('span', { class: 'muted small' }, 'Drag a marker on the profile; the wheel over it, or ↑/↓ in a level field, nudges its level.')),
       h('div', { class: 'err block', dataset: { errFor: 'targets' } }),
       h('div', { class: 'detail-slot' }, this.targetDetail(s)));
   }
 
   // Report statuses for the dots of the target table.
   setReport(report) {
-    this.status = new Map(((report && report.targets) || []).map((t) => [t.id, t]));
+    this.reportTargets = (report && report.targets) || [];
+    this.status = new Map(this.reportTargets.map((t) => [t.id, t]));
     this.updateDots();
   }
 
+  // A row's status is the report's entry at the same index (ids can be
+  // duplicated or renamed while typing); when the plotted scene has a
+  // different number of targets, entries are matched by id instead.
   updateDots() {
     const targets = (this.store.scenario && this.store.scenario.targets) || [];
+    const byIndex = this.reportTargets.length === targets.length;
     $$('tr[data-row]', this.roots.targets).forEach((tr) => {
-      const t = targets[Number(tr.dataset.row)];
-      const rep = t && this.status.get(t.id);
+      const i = Number(tr.dataset.row);
+      const t = targets[i];
+      const rep = t && (byIndex ? this.reportTargets[i] : this.status.get(t.id));
       const dot = tr.querySelector('.dot');
       if (!dot) return;
       const st = rep ? rep.status : 'none';
@@ -394,8 +465,26 @@ export class Editor {
 
   // --- validation messages ---
 
+  setLocalError(path, msg) {
+    const had = this.localErrors.has(path);
+    if (msg) this.localErrors.set(path, msg);
+    else this.localErrors.delete(path);
+    this.showLocalError(path, msg);
+    if (had !== !!msg || msg) this.onLocalErrors();
+  }
+
   showLocalError(path, msg) {
     for (const el of $$(`[data-err-for="${CSS.escape(path)}"]`)) el.textContent = msg;
+    for (const el of $$(`[data-path="${CSS.escape(path)}"]`)) {
+      if (msg) el.setAttribute('aria-invalid', 'true');
+      else el.removeAttribute('aria-invalid');
+    }
+  }
+
+  // The first field whose text is not a value, as a sentence, or null.
+  localProblem() {
+    for (const [path, msg] of this.localErrors) return `${fieldName(path, this.store.scenario)}: ${msg}`;
+    return null;
   }
 
   // Show the server's field errors beside their fields; a path with no
@@ -410,16 +499,22 @@ export class Editor {
       while (path) {
         slots = $$(`[data-err-for="${CSS.escape(path)}"]`);
         if (slots.length) break;
-        path = path.replace(/(\.[^.[\]]*|\[\d+\])$/, '');
+        // Up one level; a top-level name ("version", an unknown field) has
+        // no parent, and its message goes to the page's own list.
+        const up = path.replace(/(\.[^.[\]]*|\[\d+\])$/, '');
+        path = up === path ? '' : up;
       }
       if (!slots.length) {
-        orphans.push(fe.path ? `${fe.path}: ${fe.message}` : fe.message);
+        orphans.push(describeFields([fe], this.store.scenario));
         continue;
       }
       const text = path === fe.path ? inUnits(fe.message, slots[0]) : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
       for (const slot of slots) {
         slot.textContent = slot.textContent ? `${slot.textContent}; ${text}` : text;
-        const input = slot.parentElement && slot.parentElement.querySelector('input, select, textarea');
+        // Outline the slot's own input only when the message is about it:
+        // a message that climbed to a parent's slot (a duplicate id shown
+        // in the target's form) must not outline another field there.
+        const input = path === fe.path && slot.parentElement && slot.parentElement.querySelector('input, select, textarea');
         if (input) input.setAttribute('aria-invalid', 'true');
       }
       for (const input of $$(`[data-path="${CSS.escape(fe.path)}"]`)) input.setAttribute('aria-invalid', 'true');
@@ -430,6 +525,7 @@ export class Editor {
   clearErrors() {
     for (const el of $$('[data-err-for]')) el.textContent = '';
     for (const el of $$('[aria-invalid]')) el.removeAttribute('aria-invalid');
+    for (const [path, msg] of this.localErrors) this.showLocalError(path, msg);
   }
 
   // The first panel holding an error, so the page can show that tab.
@@ -445,14 +541,19 @@ export class Editor {
 // 3e+11"); beside a field shown in another unit (GHz), restate the numbers
 // of such a message in that unit ("400 GHz is above the maximum 300 GHz").
 const rangeMessage = /^(-?[\d.]+(?:e[+-]?\d+)?) (is above the maximum|is below the minimum|must be above) (-?[\d.]+(?:e[+-]?\d+)?)(.*)$/;
+const physicalUnit = /^(m|m\/s|m\/s rms|dB|dBi|dBsm|dBsm\/m|dBZ|W|Hz|kHz|MHz|GHz|s|ms|µs|ns|°)$/;
 function inUnits(msg, slot) {
   const field = slot.parentElement;
   const input = field && field.querySelector('input[data-scale]');
   const unit = field && field.querySelector('.unit');
   const scale = input ? Number(input.dataset.scale) : 1;
   const m = rangeMessage.exec(msg);
-  if (!m || !unit || !(scale > 0) || scale === 1) return msg;
-  const show = (x) => `${Number((Number(x) / scale).toPrecision(6))} ${unit.textContent}`;
+  if (!m || !unit || !(scale > 0) || !physicalUnit.test(unit.textContent)) return msg;
+  const show = (x) => {
+    const v = Number(x) / scale;
+    if (unit.textContent === 'm' && Math.abs(v) >= 100000) return `${Number((v / 1000).toPrecision(6))} km`;
+    return `${Number(v.toPrecision(6))} ${unit.textContent}`;
+  };
   const rest = m[4].replace(/(above|at most) (-?[\d.]+(?:e[+-]?\d+)?)/g, (_, w, x) => `${w} ${show(x)}`);
   return `${show(m[1])} ${m[2]} ${show(m[3])}${rest}`;
 }

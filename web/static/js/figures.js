@@ -2,6 +2,7 @@
 // verdict, from the report, beside the pinned reference when there is one.
 
 import { h } from './dom.js';
+import { waveformKinds } from './schema.js';
 
 const fmt = (v, digits = 1) => (v === undefined || v === null || !Number.isFinite(v) ? '—' : v.toFixed(digits));
 // A probability of detection as the report's text gives it (scenarios.PdText).
@@ -17,7 +18,7 @@ const metres = (v) => (v === undefined || !Number.isFinite(v) ? '—' : v >= 100
 // Rows: label, getter, formatter, and whether larger is better (for the
 // comparison arrow).
 const waveformRows = [
-  ['Waveform', (w) => w.kind, (v) => v ?? '—'],
+  ['Waveform', (w) => w.kind, (v) => (v ? (waveformKinds[v] ? waveformKinds[v].label : v) : '—')],
   ['Pulse width τ', (w) => w.pulse_width_s, (v) => eng(v, 's')],
   ['Bandwidth B', (w) => w.bandwidth_hz, (v) => eng(v, 'Hz')],
   ['B·τ', (w) => w.time_bandwidth, (v) => fmt(v, 1)],
@@ -32,6 +33,13 @@ const waveformRows = [
   ['Doppler resolution', (w) => w.doppler_resolution_hz, (v) => eng(v, 'Hz')],
   ['Velocity resolution', (w) => w.velocity_resolution_mps, (v) => `${fmt(v, 2)} m/s`],
 ];
+
+// What the two SNR-like numbers on a card mean.
+const SNRHelp = 'SNR: the target’s expected peak after pulse compression, in dB above the noise.';
+const MarginHelp = 'Margin: how far that peak clears the detector’s threshold at its range, in dB; negative means it is missed (the threshold is raised by noise and by other echoes in the training cells).';
+const IntegratedHelp = 'Integrated: the SNR after adding up all pulses of the train coherently.';
+const PdHelp = 'Pd: how often the target is seen at the detector’s false-alarm rate, for its fluctuation model, in this scene (and alone, when other echoes lower it).';
+const NumbersHelp = 'SNR is the peak above noise after compression; margin is how far it clears the detection threshold (below 0: missed).';
 
 export function renderFigures(root, report, reference, computeMs) {
   if (!report) {
@@ -63,23 +71,26 @@ export function renderFigures(root, report, reference, computeMs) {
         h('span', { class: 'status' }, t.status.replace(/_/g, ' ')),
         rt && rt.status !== t.status ? h('span', { class: 'was' }, `pinned: ${rt.status.replace(/_/g, ' ')}`) : null),
       h('div', { class: 'tcard-nums' },
-        h('span', {}, `SNR ${fmt(t.snr_db)} dB`),
-        t.margin_db !== undefined ? h('span', {}, `margin ${t.margin_db >= 0 ? '+' : ''}${fmt(t.margin_db)} dB`) : null,
-        t.snr_integrated_db !== undefined ? h('span', {}, `integrated ${fmt(t.snr_integrated_db)} dB`) : null,
-        t.pd !== undefined ? h('span', { title: 'probability of detection at the scenario\'s Pfa' }, `Pd ${pdText(t.pd)}`
+        h('span', { title: SNRHelp }, `SNR ${fmt(t.snr_db)} dB`),
+        t.margin_db !== undefined ? h('span', { title: MarginHelp }, `margin ${t.margin_db >= 0 ? '+' : ''}${fmt(t.margin_db)} dB`) : null,
+        t.snr_integrated_db !== undefined ? h('span', { title: IntegratedHelp }, `integrated ${fmt(t.snr_integrated_db)} dB`) : null,
+        t.pd !== undefined ? h('span', { title: PdHelp }, `Pd ${pdText(t.pd)}`
           + (t.pd_alone !== undefined && pdText(t.pd_alone) !== pdText(t.pd) ? ` (alone ${pdText(t.pd_alone)})` : '')) : null,
         t.masked_by ? h('span', {}, `masked by ${t.masked_by}`) : null,
         t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null),
       h('div', { class: 'reason' }, t.reason || ''));
   });
 
-  root.replaceChildren(
+  // replaceChildren would write an absent part (null) as the text "null".
+  root.replaceChildren(...[
     h('h3', {}, 'Waveform'),
     table,
     h('h3', {}, 'Targets'),
+    (report.targets || []).length ? h('p', { class: 'muted small nums-help' }, NumbersHelp) : null,
     cards.length ? h('ul', { class: 'tcards' }, cards) : h('p', { class: 'muted' }, 'No targets in the scene.'),
     (report.warnings || []).length
       ? h('div', { class: 'warnings' }, h('h3', {}, 'Warnings'), h('ul', {}, report.warnings.map((m) => h('li', {}, m))))
       : null,
-    computeMs !== undefined ? h('p', { class: 'muted small' }, `computed in ${fmt(computeMs, 1)} ms`) : null);
+    computeMs !== undefined ? h('p', { class: 'muted small' }, `computed in ${fmt(computeMs, 1)} ms`) : null,
+  ].filter(Boolean));
 }

@@ -1,15 +1,19 @@
 // The workbench page: wires the scenario store, the editor, the plots, the
 // figures panel and the websocket session together.
 
-import { $, $$, download } from './dom.js';
+import { $, $$, download, h } from './dom.js';
 import { Editor } from './editor.js';
 import { renderFigures } from './figures.js';
 import { Plots, carryCharts } from './charts.js';
 import { Session } from './session.js';
-import { api, decodeLink, linkPart } from './share.js';
+import { HTTPError, api, decodeLink, linkPart, refusal } from './share.js';
 import { Store } from './store.js';
 import { initLibrary } from './library.js';
 import { initKeys } from './keys.js';
+import { Staleness } from './stale.js';
+import { initCopyLink } from './copylink.js';
+import { Story } from './story.js';
+import { fieldName } from './words.js';
 
 const DefaultDemo = 'harbour-skiff';
 
@@ -25,7 +29,26 @@ let lastErrorId = 0;
 let pinned = null;
 let shownLink = null; // encoded part of the link in the address bar
 let pushNextLink = false; // the next frame's link starts a new history entry
-let linkFallback = null; // scenario JSON to return to if a link's scenario is rejected
+const story = new Story($('.figures .fig-head'));
+
+// Which scene the plots show, against the editor's (see stale.js).
+const stale = new Staleness($('.plots'));
+let shownVersion = null; // store version of the plotted scene
+let errorVersion = null; // store version the server last refused, and why
+let errorText = null;
+const rejected = new Set(); // ids of refused scenario messages
+let connState = 'connecting';
+let wasLive = false; // reconnecting after a drop counts as offline
+function refreshStale() {
+  stale.update({
+    behind: shownVersion !== store.version,
+    invalid: editor.localProblem() || (errorVersion === store.version ? errorText : null),
+    offline: connState === 'offline' || (wasLive && connState !== 'live'),
+  });
+}
+editor.onLocalErrors = refreshStale;
+
+let openingLink = null; // the link being opened (one paste fires hashchange and popstate)
 
 // Measured latencies, edit send → new pixels, for the browser tests.
 const latencies = [];
@@ -51,7 +74,7 @@ const plots = new Plots({
   },
   hoverCard,
 });
-window.__pw = { store, editor, plots, session, frame: () => lastFrame };
+window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame };
 
 store.onChange((s, cause) => {
   editor.render(s);
@@ -59,7 +82,9 @@ store.onChange((s, cause) => {
     if (session.cell) session.sendCell(null);
     plots.clearCell();
   }
-  session.sendScenario(s, cause === 'link' ? 'link' : null);
+  session.sendScenario(s, cause === 'link' ? 'link' : null, store.version);
+  refreshStale();
+  story.render(s, lastFrame && lastFrame.report);
   $('#btn-undo').disabled = !store.undoStack.length;
   $('#btn-redo').disabled = !store.redoStack.length;
 });
@@ -85,6 +110,8 @@ function applyFrame() {
   pendingFrame = null;
   if (!f) return;
   lastFrame = f;
+  const shows = session.versionAt(f.id, rejected);
+  if (shows !== null) shownVersion = shows;
   const t0 = performance.now();
   plots.apply(f);
   const t1 = performance.now();
@@ -96,6 +123,8 @@ function applyFrame() {
     markTabs();
   }
   if (f.link) updateAddress(f.link);
+  refreshStale();
+  story.render(store.scenario, f.report);
   const sentAt = session.sent.get(f.id);
   const t2 = performance.now();
   performance.mark(`pw-apply-${f.id}`);
@@ -125,15 +154,8 @@ function updateAddress(link) {
 }
 
 function onError(msg) {
-  if (session.tagOf(msg.id) === 'link' && linkFallback !== null) {
-    const why = (msg.fields || []).map((f) => (f.path ? `${f.path}: ${f.message}` : f.message)).join('; ') || msg.error;
-    notice(`This share link holds a scenario that cannot be used (${why}). The current scene is kept.`, 'error');
-    store.load(JSON.parse(linkFallback), { record: false, cause: 'revert' });
-    store.undoStack.pop(); // the step that loaded the link
-    linkFallback = null;
-    restoreAddress();
-    return;
-  }
+  rejected.add(msg.id);
+  const v = session.versionOf(msg.id);
   lastErrorId = msg.id;
   const first = (msg.fields || [])[0];
   const m = first && first.path && first.path.match(/^targets\[(\d+)\]/);
@@ -142,6 +164,16 @@ function onError(msg) {
   if (!(msg.fields || []).length && msg.error) orphans.push(msg.error);
   $('#orphan-errors').textContent = orphans.join('\n');
   markTabs();
+  if (v !== null) {
+    // The banner on the plots names the field; the message is the one
+    // beside the field, in its units, when it has one.
+    const fe = (msg.fields || [])[0];
+    const slot = fe && fe.path && document.querySelector(`[data-err-for="${CSS.escape(fe.path)}"]`);
+    const said = slot && slot.textContent ? slot.textContent : fe && fe.message;
+    errorVersion = v;
+    errorText = fe ? (fe.path ? `${fieldName(fe.path, store.scenario)}: ${said}` : fe.message) : msg.error;
+    refreshStale();
+  }
   // Show the panel of the first error, unless the user is typing in the
   // editor: then the tabs only carry a mark.
   const panel = editor.errorPanel();
@@ -160,18 +192,29 @@ function markTabs() {
 function onStatus(state) {
   $('#conn').dataset.state = state;
   $('#conn-text').textContent = state;
+  connState = state;
+  if (state === 'live') wasLive = true;
+  refreshStale();
 }
 
 // --- notices, tabs, hover card ---
 
 // Information notices fade after a few seconds; errors stay until closed.
+// extra: an element shown under the text (the link to copy by hand).
 let noticeTimer = 0;
-function notice(text, kind = 'info') {
+function notice(text, kind = 'info', extra = null) {
   $('#notice-text').textContent = text;
+  let more = $('#notice-extra');
+  if (!more) {
+    more = h('div', { id: 'notice-extra', class: 'notice-extra' });
+    $('#notice-text').after(more);
+  }
+  more.replaceChildren(...(extra ? [extra] : []));
+  more.hidden = !extra;
   $('#notice').dataset.kind = kind;
   $('#notice').hidden = false;
   clearTimeout(noticeTimer);
-  if (kind !== 'error') noticeTimer = setTimeout(() => { $('#notice').hidden = true; }, 6000);
+  if (kind === 'info') noticeTimer = setTimeout(() => { $('#notice').hidden = true; }, 6000);
 }
 $('#notice-close').addEventListener('click', () => { $('#notice').hidden = true; });
 
@@ -211,19 +254,44 @@ function hoverCard(hit) {
 
 // --- links and history ---
 
-async function openLink(enc) {
-  let s;
+// A scene from outside (a link, a file) replaces the user's only once the
+// server accepts it; otherwise the page says why and keeps the scene.
+async function vetted(s, what) {
+  const kept = store.scenario ? 'The current scene is kept.' : 'The start scene is shown instead.';
   try {
-    s = await decodeLink(enc);
+    await api.check(s);
+    return true;
   } catch (e) {
-    notice(`This share link cannot be opened: ${e.message}. The current scene is kept.`, 'error');
-    if (!store.scenario) await loadDemo(DefaultDemo);
-    restoreAddress();
-    return;
+    if (e instanceof HTTPError && e.status >= 400 && e.status < 500) {
+      notice(`${what} holds a scenario that cannot be used: ${refusal(e, s)}. ${kept}`, 'error');
+    } else {
+      notice(`${what} could not be checked (${e.message}); is the Pulsewright server running? ${kept}`, 'error');
+    }
+    return false;
   }
-  shownLink = enc;
-  linkFallback = store.scenario ? JSON.stringify(store.scenario) : null;
-  store.load(s, { cause: 'link' });
+}
+
+async function openLink(enc) {
+  if (enc === openingLink) return;
+  openingLink = enc;
+  try {
+    let s;
+    try {
+      s = await decodeLink(enc);
+    } catch (e) {
+      notice(`This share link cannot be opened: ${e.message}. ${store.scenario ? 'The current scene is kept.' : 'The start scene is shown instead.'}`, 'error');
+      s = null;
+    }
+    if (!s || !(await vetted(s, 'This share link'))) {
+      if (!store.scenario) await loadStart();
+      restoreAddress();
+      return;
+    }
+    shownLink = enc;
+    store.load(s, { cause: 'link' });
+  } finally {
+    if (openingLink === enc) openingLink = null;
+  }
 }
 
 function restoreAddress() {
@@ -282,19 +350,10 @@ $('#btn-pin').addEventListener('click', () => {
   $('#btn-pin').textContent = pinned ? 'Unpin reference' : 'Pin reference';
   $('#btn-pin').setAttribute('aria-pressed', String(!!pinned));
   $('#pin-badge').hidden = !pinned;
-  session.sendScenario(store.scenario); // a fresh frame with (or without) the reference
+  session.sendScenario(store.scenario, null, store.version); // a fresh frame with (or without) the reference
 });
 
-$('#btn-share').addEventListener('click', async () => {
-  if (!lastFrame || !lastFrame.link) return;
-  const url = new URL(lastFrame.link, location.href).href;
-  try {
-    await navigator.clipboard.writeText(url);
-    notice('Share link copied. Anyone running Pulsewright can open it to see this exact scene.');
-  } catch {
-    notice(`Copy this link: ${url}`);
-  }
-});
+initCopyLink({ button: $('#btn-share'), frame: () => lastFrame, stale, store, notice });
 
 $('#btn-import').addEventListener('click', () => $('#file-import').click());
 $('#file-import').addEventListener('change', async (ev) => {
@@ -304,6 +363,7 @@ $('#file-import').addEventListener('change', async (ev) => {
   try {
     const s = JSON.parse(await file.text());
     if (!s || typeof s !== 'object' || Array.isArray(s)) throw new Error('not a JSON object');
+    if (!(await vetted(s, `The file ${file.name}`))) return;
     pushNextLink = true;
     store.load(s);
   } catch (e) {
@@ -323,7 +383,7 @@ for (const b of $$('[data-png]')) {
 initLibrary({ store, notice, onOpen: () => { pushNextLink = true; } });
 // The footer names the engine, as reports and exports do.
 api.version().then((v) => { $('#engine').textContent = v.text; }).catch(() => {});
-initKeys({ store, editor, lastFrame: () => lastFrame });
+initKeys({ store, editor, lastFrame: () => lastFrame, profile: $('#chart-profile') });
 
 // --- start ---
 
@@ -339,8 +399,8 @@ try {
 session.connect();
 const demosReady = fillDemos();
 const startLink = linkPart(location.hash);
-if (startLink !== null) {
-  openLink(startLink);
-} else {
-  demosReady.then((demos) => loadDemo((demos.find((d) => d.start) || {}).name || DefaultDemo));
+function loadStart() {
+  return demosReady.then((demos) => loadDemo((demos.find((d) => d.start) || {}).name || DefaultDemo));
 }
+if (startLink !== null) openLink(startLink);
+else loadStart();

@@ -127,20 +127,37 @@ export const detectorKinds = {
   fixed: { label: 'Fixed threshold', fields: ['pfa'] },
 };
 export const detectorFields = {
-  pfa: f('pfa', 'P_fa', 'per cell', 1, 'num', { def: 1e-6 }),
+  pfa: f('pfa', 'Pfa', 'per cell', 1, 'num', { def: 1e-6, sci: true }),
   guard_cells: f('guard_cells', 'Guard cells', 'each side', 1, 'int', { def: 2 }),
   training_cells: f('training_cells', 'Training cells', 'both sides', 1, 'int', { def: 16 }),
   rank: f('rank', 'Rank', '1-based', 1, 'int', { hint: '¾ of training' }),
 };
 
 export const targetKinds = ['point', 'extended', 'volume'];
-export const fluctuations = ['none', 'swerling1', 'swerling2', 'swerling3', 'swerling4'];
+export const fluctuations = [['none', 'none (steady)'], ['swerling1', 'Swerling 1'], ['swerling2', 'Swerling 2'], ['swerling3', 'Swerling 3'], ['swerling4', 'Swerling 4']];
+
+// Waveform kinds that are phase codes (mismatched filters apply to them).
+const phaseCodes = new Set(['barker', 'mps', 'mls', 'frank', 'p1', 'p2', 'p3', 'p4', 'zadoff_chu', 'phase_code']);
+export const isPhaseCode = (kind) => phaseCodes.has(kind);
+
+// A small or large number as people write it in scientific notation
+// ("1e-6", "2.5e-4"); ordinary numbers as they are.
+export function sciDisplay(v) {
+  if (typeof v !== 'number' || !Number.isFinite(v)) return toDisplay(v, 1);
+  const a = Math.abs(v);
+  if (a === 0 || (a >= 1e-3 && a < 1e6)) return toDisplay(v, 1);
+  return v.toExponential().replace(/\.?0+e/, 'e').replace('e+', 'e');
+}
 
 // The level field of a target kind and its unit.
 export function levelKey(kind) {
   return kind === 'extended' ? 'rcs_dbsm_per_m' : kind === 'volume' ? 'reflectivity_dbz' : 'rcs_dbsm';
 }
 export const levelUnit = { point: 'dBsm', extended: 'dBsm/m', volume: 'dBZ' };
+export const levelName = { point: 'RCS', extended: 'RCS per metre', volume: 'reflectivity' };
+export const levelShort = { point: 'RCS', extended: 'RCS/m', volume: 'Refl.' };
+export const kindShort = { point: 'point', extended: 'ext.', volume: 'vol.' };
+export const kindTitle = { point: 'point target', extended: 'extended target (spread in range)', volume: 'volume target (weather)' };
 
 // The near range of a target (its range for a point target).
 export function targetRange(t) {

@@ -21,6 +21,8 @@ export class Session {
     this.sent = new Map(); // edit id → performance.now() at send
     this.tag = null;
     this.tags = new Map(); // edit id → tag given to sendScenario
+    this.version = 0; // the page's version of this.scenario
+    this.versions = []; // [id, version] of the scenarios sent, oldest first
   }
 
   connect() {
@@ -55,11 +57,29 @@ export class Session {
 
   // Queue the scenario; it goes out on the next animation frame. A tag
   // (e.g. 'link') is remembered with the id it goes out under; see tagOf.
-  sendScenario(scenario, tag = null) {
+  sendScenario(scenario, tag = null, version = this.version) {
     this.scenario = scenario;
+    this.version = version;
     this.tag = tag;
     this.dirty.scenario = true;
     this.schedule();
+  }
+
+  // The version of the scene a frame with this id shows: that of the
+  // newest scenario sent up to the id that the server did not reject (a
+  // rejected scenario leaves the server on the one before).
+  versionAt(id, rejected) {
+    for (let i = this.versions.length - 1; i >= 0; i--) {
+      const [sid, v] = this.versions[i];
+      if (sid <= id && !rejected.has(sid)) return v;
+    }
+    return null;
+  }
+
+  // The version a scenario message carried.
+  versionOf(id) {
+    const e = this.versions.find(([sid]) => sid === id);
+    return e ? e[1] : null;
   }
 
   tagOf(id) {
@@ -115,6 +135,8 @@ export class Session {
       performance.mark(`pw-send-${id}`);
       this.sent.set(id, performance.now());
       if (this.sent.size > 500) this.sent.delete(this.sent.keys().next().value);
+      this.versions.push([id, this.version]);
+      if (this.versions.length > 500) this.versions.shift();
       if (this.tag) this.tags.set(id, this.tag);
       this.tag = null;
       ws.send(scenarioMsg(id, this.scenario));

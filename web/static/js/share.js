@@ -5,6 +5,8 @@
 // server gives each frame's link; the page only decodes links it is opened
 // with, using the browser's DecompressionStream.
 
+import { describeFields } from './words.js';
+
 const MaxDocumentBytes = 4 << 20;
 
 export class LinkError extends Error {}
@@ -112,6 +114,12 @@ export const api = {
   async demo(name) {
     return scenarioOf((await request('GET', `/api/v1/demos/${encodeURIComponent(name)}`)).data);
   },
+  // The server's verdict on a scenario before it replaces the user's:
+  // its share link ("/#s=…") when valid; an HTTPError (status 400, body
+  // {error, fields}) when not.
+  async check(scenario) {
+    return (await request('POST', '/api/v1/links', { body: scenario })).data.link;
+  },
   async saved() {
     return listOf((await request('GET', '/api/v1/scenarios')).data, 'scenarios');
   },
@@ -135,3 +143,11 @@ export const api = {
 };
 
 export const isConflict = (e) => e instanceof HTTPError && (e.status === 412 || e.status === 409);
+
+// The reasons of a refused scenario, one phrase per field: "colour: unknown
+// field; version: 2 is not supported …".
+export function refusal(e, scenario) {
+  const fields = (e && e.body && Array.isArray(e.body.fields)) ? e.body.fields : [];
+  const why = describeFields(fields, scenario);
+  return why || (e && e.message) || String(e);
+}

@@ -4,6 +4,7 @@
 
 const MaxHistory = 200;
 const CoalesceMs = 800; // repeated edits of one field within this merge into one undo step
+const NudgeCoalesceMs = 2000; // nudges of one level (wheel, arrow keys) within this form one step
 
 export class Store {
   constructor() {
@@ -13,6 +14,7 @@ export class Store {
     this.lastKey = null;
     this.lastTime = 0;
     this.listeners = new Set();
+    this.version = 0; // counts changes, so that a frame can be matched to the scene it shows
   }
 
   onChange(fn) {
@@ -20,6 +22,7 @@ export class Store {
   }
 
   emit(cause) {
+    this.version++;
     for (const fn of this.listeners) fn(this.scenario, cause);
   }
 
@@ -32,10 +35,13 @@ export class Store {
   }
 
   // Apply mutate(scenario) as one edit. Edits with the same key in quick
-  // succession (typing in one field, dragging one marker) form one undo step.
+  // succession (typing in one field, nudging one level) form one undo step;
+  // a drag ("drag:…" keys) is one step however slowly it goes, until seal().
   update(mutate, key = null) {
     const now = performance.now();
-    if (!(key && key === this.lastKey && now - this.lastTime < CoalesceMs)) this.push(key);
+    const span = key && key.startsWith('nudge:') ? NudgeCoalesceMs : CoalesceMs;
+    const same = key && key === this.lastKey && (now - this.lastTime < span || key.startsWith('drag:'));
+    if (!same) this.push(key);
     this.lastKey = key;
     this.lastTime = now;
     mutate(this.scenario);

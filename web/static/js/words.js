@@ -1,0 +1,61 @@
+// Words for people: the name of a scenario field ("pilot-boat's RCS"
+// rather than "targets[2].rcs_dbsm"), and messages that carry it.
+
+import { splitPath } from './dom.js';
+import { detectorFields, levelName, radarFields, waveformKinds, windowKinds } from './schema.js';
+
+const targetWords = {
+  id: 'id', kind: 'kind', range_m: 'range', range_start_m: 'near edge', range_stop_m: 'far edge',
+  rcs_dbsm: 'RCS', rcs_dbsm_per_m: levelName.extended, reflectivity_dbz: levelName.volume,
+  range_rate_mps: 'range rate', velocity_spread_mps: 'velocity spread', fluctuation: 'fluctuation',
+};
+const receiverWords = {
+  filter: 'compression filter', filter_length_factor: 'filter length', window: 'range weighting',
+  doppler_window: 'pulse-to-pulse weighting', detector: 'detector', mti: 'MTI canceller',
+};
+const topWords = { name: 'scene name', notes: 'notes', seed: 'noise seed', version: 'format version', radar: 'radar', waveform: 'waveform', receiver: 'receiver', targets: 'targets' };
+
+const labelOf = (fields, key) => {
+  const f = fields.find((x) => x.key === key);
+  return f ? f.label.toLowerCase().replace(/^p_fa$/, 'Pfa') : null;
+};
+
+// fieldName returns a reader's name for the field at a JSON path of the
+// scenario s; the path itself when it names nothing known.
+export function fieldName(path, s) {
+  const p = splitPath(path || '');
+  if (!p.length) return 'the scenario';
+  if (p[0] === 'targets' && typeof p[1] === 'number') {
+    const t = ((s && s.targets) || [])[p[1]];
+    const who = t && t.id ? `target “${t.id}”` : `target ${p[1] + 1}`;
+    if (p.length === 2) return who;
+    return `${who} ${targetWords[p[2]] || p.slice(2).join('.')}`;
+  }
+  if (p[0] === 'radar' && p.length === 2) return `radar ${labelOf(radarFields, p[1]) || p[1]}`;
+  if (p[0] === 'waveform' && p.length >= 2) {
+    if (p[1] === 'kind') return 'waveform kind';
+    const kind = waveformKinds[s && s.waveform && s.waveform.kind];
+    const name = kind && labelOf(kind.fields, p[1]);
+    return `waveform ${name || p.slice(1).join('.')}`;
+  }
+  if (p[0] === 'receiver' && p.length >= 2) {
+    const base = receiverWords[p[1]] || p[1];
+    if (p.length === 2) return base;
+    if (p[1] === 'detector') return `detector ${labelOf(Object.values(detectorFields), p[2]) || p[2]}`;
+    if (p[2] === 'kind') return `${base} kind`;
+    const win = s && s.receiver && s.receiver[p[1]];
+    const wk = win && windowKinds[win.kind];
+    return `${base} ${(wk && labelOf(wk.fields, p[2])) || p.slice(2).join('.')}`;
+  }
+  if (p.length === 1 && topWords[p[0]]) return topWords[p[0]];
+  return path;
+}
+
+// The server's field errors as one sentence for people.
+export function describeFields(fields, s) {
+  return (fields || []).map((f) => {
+    if (!f.path) return f.message;
+    const name = fieldName(f.path, s);
+    return name === f.path ? `${f.path}: ${f.message}` : `${name} (${f.path}): ${f.message}`;
+  }).join('; ');
+}
