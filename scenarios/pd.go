@@ -113,8 +113,8 @@ func (m *model) correlatedCells(k int) ([]float64, float64) {
 	return ev, dsp.CorrelatedCAMultiplier(m.s.Receiver.Detector.PFA, ev)
 }
 
-// pdAt returns the Pd of t at SNR snr against r times the nominal
-// threshold, for the correlated-cell case.
+// pdCorrelated returns the Pd of t at SNR snr against r times the
+// nominal threshold, for the correlated-cell case.
 func (t pdTest) pdCorrelated(snr, r float64) float64 {
 	return t.det.PdCorrelatedCA(snr, r*t.alpha, t.ev)
 }
@@ -211,10 +211,10 @@ func (m *model) pdFigures(g *tgt, v verdict, alone float64, train bool, out *Tar
 	if !ok {
 		return
 	}
-	if p, ok := t.pd(math.Max(v.threshold/v.noiseLevel, 1)); ok {
+	if p, ok := t.pd(math.Max(v.threshold/v.noiseLevel, 1)); ok && p >= 0 && p <= 1 {
 		out.Pd = &p
 	}
-	if p, ok := t.pd(math.Max(alone/v.noiseLevel, 1)); ok {
+	if p, ok := t.pd(math.Max(alone/v.noiseLevel, 1)); ok && p >= 0 && p <= 1 {
 		out.PdAlone = &p
 	}
 	if req, err := t.requiredSNR(m.s.Receiver.Detector.PdRequired); err == nil {
