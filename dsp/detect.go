@@ -96,6 +96,16 @@ type CFAR struct {
 	Rank  int          // ordered-statistic rank (1-based); 0 selects cell averaging
 	Rho   []complex128 // noise correlation by lag, ρ(0) = 1; nil for independent cells
 
+	// Variant selects greatest-of, smallest-of or censored averaging
+	// (cfarvariants.go); the zero value is CA, or OS when Rank > 0. The
+	// variants train on the ordered statistic's lattice of independent
+	// cells, so their closed forms hold at any oversampling.
+	Variant CFARVariant
+	Censor  int // Censored: largest training cells dropped, of Train (scaled to the cells used)
+
+	vc   variantCache
+	lead []bool
+
 	mult    map[int]float64
 	pattern map[string]float64
 	key     []byte
@@ -129,7 +139,7 @@ func (c *CFAR) Multiplier(n int) float64 {
 // uses: 1 for cell averaging or independent cells, otherwise
 // DecorrelationSpacing of Rho over the training span.
 func (c *CFAR) Spacing() int {
-	if c.Rank == 0 || c.Rho == nil {
+	if c.Rank == 0 && c.Variant == CellAveraging || c.Rho == nil {
 		return 1
 	}
 	if c.step == 0 {
@@ -220,6 +230,14 @@ func (c *CFAR) LevelValid(power []float64, valid []bool, k int) float64 {
 	if n == 0 {
 		return math.Inf(1)
 	}
+	if c.Variant != CellAveraging {
+		c.scratch, c.lead = c.scratch[:0], c.lead[:0]
+		for _, o := range c.offs {
+			c.scratch = append(c.scratch, power[k+o])
+			c.lead = append(c.lead, o < 0)
+		}
+		return c.vc.level(c.Variant, c.PFA, c.Censor, c.Train, c.scratch, c.lead)
+	}
 	if c.Rank == 0 {
 		s := 0.0
 		for _, o := range c.offs {
@@ -253,7 +271,7 @@ func (c *CFAR) ThresholdsValid(dst, power []float64, valid []bool) []float64 {
 	if len(dst) != n || valid != nil && len(valid) != n {
 		panic("dsp: CFAR destination length mismatch")
 	}
-	if c.Rank != 0 {
+	if c.Rank != 0 || c.Variant != CellAveraging {
 		for k := range power {
 			dst[k] = c.LevelValid(power, valid, k)
 		}

@@ -187,10 +187,17 @@ type CFAR2D struct {
 	GuardR, TrainR int // range guard cells each side, range training cells both sides together
 	GuardD, TrainD int // Doppler guard bins each side, Doppler training bins both sides together
 	Rank           int // ordered-statistic rank scaled to the cells present (see CFAR); 0 for cell averaging
-	RhoR           []complex128
-	DopplerCov     [][]complex128
+	// Variant and Censor as in CFAR (Censor of the whole window's cells).
+	// Greatest/smallest-of split the window into the cells nearer in
+	// range (A < 0, or A = 0 and B < 0) and the others.
+	Variant    CFARVariant
+	Censor     int
+	RhoR       []complex128
+	DopplerCov [][]complex128
 
 	c        CFAR
+	vc       variantCache
+	lead     []bool
 	cells2   []Cell2
 	pattern  map[string]float64
 	key      []byte
@@ -217,7 +224,7 @@ func (c *CFAR2D) Cells(valid func(k int) bool, k, d, nr, nd int) []Cell2 {
 	hr, hd := c.GuardR+c.TrainR/2, c.GuardD+c.TrainD/2
 	hd = min(hd, (nd-1)/2)
 	sr, sd := 1, 1
-	if c.Rank != 0 {
+	if c.Rank != 0 || c.Variant != CellAveraging {
 		sr, sd = c.sr, c.sd
 	}
 	cs := c.cells2[:0]
@@ -250,6 +257,13 @@ func (c *CFAR2D) LevelValid(p func(k, d int) float64, valid func(k int) bool, k,
 		vals = append(vals, p(k+q.A, ((d+q.B)%nd+nd)%nd))
 	}
 	c.c.scratch = vals
+	if c.Variant != CellAveraging {
+		c.lead = c.lead[:0]
+		for _, q := range cs {
+			c.lead = append(c.lead, q.A < 0 || q.A == 0 && q.B < 0)
+		}
+		return c.vc.level(c.Variant, c.PFA, c.Censor, c.cells(), vals, c.lead)
+	}
 	if c.Rank == 0 {
 		s := 0.0
 		for _, v := range vals {
@@ -327,7 +341,7 @@ func (c *CFAR2D) spacing(nd int) {
 		return
 	}
 	c.spacings, c.sr, c.sd = true, 1, 1
-	if c.Rank == 0 {
+	if c.Rank == 0 && c.Variant == CellAveraging {
 		return
 	}
 	if c.RhoR != nil {

@@ -153,6 +153,9 @@ func canonicalReceiver(r Receiver) ordered {
 		if det.Kind == DetectorOS {
 			od.put("rank", det.Rank, (3*det.TrainingCells+3)/4)
 		}
+		if det.Kind == DetectorCens {
+			od.put("censored_cells", det.CensoredCells, defaultCensored(det.TrainingCells))
+		}
 		if det.Kind != DetectorFixed {
 			od.put("doppler_guard_cells", det.DopplerGuardCells, dd.DopplerGuardCells)
 			od.put("doppler_training_cells", det.DopplerTrainingCells, dd.DopplerTrainingCells)

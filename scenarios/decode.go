@@ -119,6 +119,11 @@ func defaultReceiver() Receiver {
 // practice in radar specifications, no single source.
 const DefaultPdRequired = 0.9
 
+// defaultCensored is the censored CFAR's default: an eighth of the
+// training cells, at least one (common practice, no source: room for a
+// few interferers while keeping most cells).
+func defaultCensored(training int) int { return max(1, training/8) }
+
 func defaultDetector(kind string) Detector {
 	d := Detector{Kind: kind, PFA: 1e-6, PdRequired: DefaultPdRequired}
 	if kind != DetectorFixed {
@@ -129,6 +134,9 @@ func defaultDetector(kind string) Detector {
 	}
 	if kind == DetectorOS {
 		d.Rank = 12 // 3/4 of the training cells: common practice, no source
+	}
+	if kind == DetectorCens {
+		d.CensoredCells = defaultCensored(d.TrainingCells)
 	}
 	return d
 }

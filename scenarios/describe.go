@@ -62,6 +62,10 @@ func (d Detector) Describe() string {
 		return fmt.Sprintf("fixed threshold, Pfa %.3g", d.PFA)
 	case DetectorOS:
 		return fmt.Sprintf("OS-CFAR, Pfa %.3g, %d guard, %d training, rank %d", d.PFA, d.GuardCells, d.TrainingCells, d.Rank)
+	case DetectorGO, DetectorSO:
+		return fmt.Sprintf("%s, Pfa %.3g, %d guard, %d training cells", detectorName(d), d.PFA, d.GuardCells, d.TrainingCells)
+	case DetectorCens:
+		return fmt.Sprintf("censored CA-CFAR, Pfa %.3g, %d guard, %d training, %d largest dropped", d.PFA, d.GuardCells, d.TrainingCells, d.CensoredCells)
 	}
 	return fmt.Sprintf("CA-CFAR, Pfa %.3g, %d guard, %d training cells", d.PFA, d.GuardCells, d.TrainingCells)
 }

@@ -11,7 +11,7 @@ var (
 	waveformKinds = []string{KindRect, KindLFM, KindNLFM, KindBarker, KindMPS, KindMLS, KindFrank,
 		KindP1, KindP2, KindP3, KindP4, KindZadoffChu, KindCostas, KindPhaseCode, KindSamples}
 	windowKinds   = []string{WindowNone, WindowHann, WindowHamming, WindowBlackman, WindowBlackmanHarris, WindowTaylor, WindowChebyshev, WindowKaiser, WindowGaussian}
-	detectorKinds = []string{DetectorCA, DetectorOS, DetectorFixed}
+	detectorKinds = []string{DetectorCA, DetectorOS, DetectorGO, DetectorSO, DetectorCens, DetectorFixed}
 	targetKinds   = []string{TargetPoint, TargetExtended, TargetVolume}
 	fluctuations  = []string{FluctuationNone, "swerling1", "swerling2", "swerling3", "swerling4"}
 	filters       = []string{FilterMatched, FilterLeastSquares, FilterMinimax, FilterCustom}
@@ -52,6 +52,9 @@ var windowFields = map[string][]string{
 var detectorFields = map[string][]string{
 	DetectorCA:    {"pfa", "pd_required", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
 	DetectorOS:    {"pfa", "pd_required", "guard_cells", "training_cells", "rank", "doppler_guard_cells", "doppler_training_cells"},
+	DetectorGO:    {"pfa", "pd_required", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
+	DetectorSO:    {"pfa", "pd_required", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
+	DetectorCens:  {"pfa", "pd_required", "guard_cells", "training_cells", "censored_cells", "doppler_guard_cells", "doppler_training_cells"},
 	DetectorFixed: {"pfa", "pd_required"},
 }
 
@@ -308,6 +311,10 @@ func (o *object) decodeDetector(d *Detector) {
 		d.Rank = (3*d.TrainingCells + 3) / 4
 	}
 	o.int("rank", &d.Rank)
+	if kind == DetectorCens && !o.has("censored_cells") {
+		d.CensoredCells = defaultCensored(d.TrainingCells)
+	}
+	o.int("censored_cells", &d.CensoredCells)
 	o.int("doppler_guard_cells", &d.DopplerGuardCells)
 	o.int("doppler_training_cells", &d.DopplerTrainingCells)
 	o.finishKindOnly(kind, fields)

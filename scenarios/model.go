@@ -331,7 +331,7 @@ func (m *model) checkSampling() {
 	if m.s.Waveform.Kind == KindCostas && m.fs < 2*B {
 		m.warn("costas hops span %s; sample at twice that or more to avoid aliasing the outer hops", hz(B))
 	}
-	if d := m.s.Receiver.Detector; (d.Kind == DetectorCA || d.Kind == DetectorOS) && float64(d.GuardCells+1) < m.fs/B {
+	if d := m.s.Receiver.Detector; d.Kind != DetectorFixed && float64(d.GuardCells+1) < m.fs/B {
 		m.warn("the CFAR's %d guard cells do not cover the main lobe, about %.0f samples to the null on each side at %.1f samples per 1/B: a target's own main lobe enters its training cells and masks it (self-masking); use at least %d guard cells", d.GuardCells, m.fs/B, m.fs/B, int(math.Ceil(m.fs/B))-1)
 	}
 	if start := m.s.Radar.WindowStartM; start > 0 && start < C*m.tau/2 {

@@ -44,6 +44,7 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 	d := m.s.Receiver.Detector
 	det := dsp.Detector{Pfa: d.PFA, Pulses: 1, Integration: dsp.Coherent, Swerling: sw}
 	switch d.Kind {
+	case DetectorFixed:
 	case DetectorCA:
 		det.CFARCells = v.cells
 	case DetectorOS:
@@ -56,6 +57,9 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 			}
 			det.OSRank = min(max(det.OSRank, 1), v.cells)
 		}
+	default:
+		// Greatest-of, smallest-of and censored CFARs: no series here yet.
+		return pdTest{}, false
 	}
 	if d.Kind != DetectorFixed && v.cells == 0 {
 		return pdTest{}, false

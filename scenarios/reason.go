@@ -15,6 +15,12 @@ func detectorName(d Detector) string {
 		return "CA-CFAR"
 	case DetectorOS:
 		return "OS-CFAR"
+	case DetectorGO:
+		return "GO-CFAR"
+	case DetectorSO:
+		return "SO-CFAR"
+	case DetectorCens:
+		return "censored CA-CFAR"
 	}
 	return "fixed"
 }
@@ -280,9 +286,49 @@ func candidates(s *Scenario, j int, v verdict) []candidate {
 		fewerCells(d, 2), fewerCells(d, 4),
 	}
 	if v.culprit >= 0 && s.Targets[v.culprit].Kind != TargetPoint {
+		if edge := clutterEdge(s.Targets[j], s.Targets[v.culprit]); edge != "" {
+			// A target in front of (or behind) a clutter edge: the
+			// smallest-of CFAR averages only the half away from the
+			// clutter (Hansen & Sawyers 1980; Weiss 1982). It trains on
+			// independent cells, so it may need a wider window to keep
+			// enough of them.
+			cf = append([]candidate{smallestOf(d, 1, edge), smallestOf(d, 2, edge), smallestOf(d, 4, edge)}, cf...)
+		}
 		return append(cf, c...)
 	}
 	return append(c, cf...)
+}
+
+// clutterEdge returns which side of point target t the distributed
+// culprit u lies wholly on ("behind" it, farther in range, or "in front
+// of" it), or "" when t is inside it or t is itself distributed.
+func clutterEdge(t, u Target) string {
+	if t.Kind != TargetPoint {
+		return ""
+	}
+	switch {
+	case u.RangeStartM > t.RangeM:
+		return "behind"
+	case u.RangeStopM < t.RangeM:
+		return "in front of"
+	}
+	return ""
+}
+
+// smallestOf returns the candidate of an SO-CFAR with k times the training
+// cells (at most 512), the textbook detector for a target beside a
+// clutter edge.
+func smallestOf(d Detector, k int, edge string) candidate {
+	n := min(d.TrainingCells*k, 512)
+	n -= n % 2
+	return candidate{fmt.Sprintf("An SO-CFAR detector with %d training cells (it averages only the half of them away from the clutter %s the target)", n, edge), func(t *Scenario) bool {
+		if d.Kind == DetectorSO && n == d.TrainingCells || d.Kind == DetectorFixed {
+			return false
+		}
+		t.Receiver.Detector = Detector{Kind: DetectorSO, PFA: d.PFA, PdRequired: d.PdRequired, GuardCells: d.GuardCells, TrainingCells: n,
+			DopplerGuardCells: d.DopplerGuardCells, DopplerTrainingCells: d.DopplerTrainingCells}
+		return true
+	}}
 }
 
 // fewerCells returns the candidate of a CFAR with 1/k of the training

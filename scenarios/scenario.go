@@ -202,6 +202,9 @@ type Window struct {
 const (
 	DetectorCA    = "ca_cfar"
 	DetectorOS    = "os_cfar"
+	DetectorGO    = "go_cfar"       // greatest-of the two half means
+	DetectorSO    = "so_cfar"       // smallest-of the two half means
+	DetectorCens  = "censored_cfar" // mean after dropping the largest training cells
 	DetectorFixed = "fixed"
 )
 
@@ -217,6 +220,7 @@ type Detector struct {
 	GuardCells    int     `json:"guard_cells,omitempty"`    // CFAR: cells skipped on each side of the cell under test
 	TrainingCells int     `json:"training_cells,omitempty"` // CFAR: reference cells, both sides together
 	Rank          int     `json:"rank,omitempty"`           // os_cfar: 1-based rank of the ordered training cell used
+	CensoredCells int     `json:"censored_cells,omitempty"` // censored_cfar: largest training cells dropped, both sides together
 	// Extensions for range–Doppler maps (pulses > 1): Doppler bins.
 	DopplerGuardCells    int `json:"doppler_guard_cells,omitempty"`    // CFAR: guard bins on each side in Doppler
 	DopplerTrainingCells int `json:"doppler_training_cells,omitempty"` // CFAR: training bins in Doppler, both sides together

@@ -35,17 +35,31 @@ func (v *verdict) margin() *float64 {
 	return &m
 }
 
+// cfarVariant maps a detector kind to dsp's averaging variant.
+func cfarVariant(kind string) dsp.CFARVariant {
+	switch kind {
+	case DetectorGO:
+		return dsp.GreatestOf
+	case DetectorSO:
+		return dsp.SmallestOf
+	case DetectorCens:
+		return dsp.Censored
+	}
+	return dsp.CellAveraging
+}
+
 // detector returns the CFAR plan of the scenario, or nil for a fixed
 // threshold. The plan knows the noise correlation between gates, so its
 // multipliers hold the false-alarm probability at any oversampling; it is
 // kept for the model's lifetime, with the multipliers it has solved.
 func (m *model) detector() *dsp.CFAR {
 	d := m.s.Receiver.Detector
-	if d.Kind != DetectorCA && d.Kind != DetectorOS {
+	if d.Kind == DetectorFixed {
 		return nil
 	}
 	if m.cfar == nil {
-		m.cfar = &dsp.CFAR{PFA: d.PFA, Guard: d.GuardCells, Train: d.TrainingCells, Rho: m.noiseCorrelation()}
+		m.cfar = &dsp.CFAR{PFA: d.PFA, Guard: d.GuardCells, Train: d.TrainingCells, Rho: m.noiseCorrelation(),
+			Variant: cfarVariant(d.Kind), Censor: d.CensoredCells}
 		if d.Kind == DetectorOS {
 			m.cfar.Rank = d.Rank
 		}

@@ -145,7 +145,10 @@ func (tr *train) cfar() *dsp.CFAR2D {
 		return nil
 	}
 	c := &dsp.CFAR2D{PFA: d.PFA, GuardR: d.GuardCells, TrainR: d.TrainingCells, GuardD: d.DopplerGuardCells, TrainD: d.DopplerTrainingCells,
-		RhoR: tr.m.noiseCorrelation(), DopplerCov: tr.plan.NoiseCovariance()}
+		RhoR: tr.m.noiseCorrelation(), DopplerCov: tr.plan.NoiseCovariance(), Variant: cfarVariant(d.Kind)}
+	if d.Kind == DetectorCens {
+		c.Censor = int(math.Round(float64(d.CensoredCells) / float64(d.TrainingCells) * float64(c2DCells(c))))
+	}
 	if d.Kind == DetectorOS {
 		c.Rank = 1 + int(math.Round(float64(d.Rank-1)/float64(d.TrainingCells)*float64(c2DCells(c))))
 	}

@@ -273,6 +273,9 @@ func (s *Scenario) validateReceiver(c checker) {
 	if d.Kind == DetectorOS && !c.errs.has(p+"training_cells") {
 		c.intBetween(p+"rank", d.Rank, 1, d.TrainingCells)
 	}
+	if d.Kind == DetectorCens && !c.errs.has(p+"training_cells") {
+		c.intBetween(p+"censored_cells", d.CensoredCells, 1, d.TrainingCells-1)
+	}
 	c.intBetween(p+"doppler_guard_cells", d.DopplerGuardCells, 0, 16)
 	if c.intBetween(p+"doppler_training_cells", d.DopplerTrainingCells, 0, 64) && d.DopplerTrainingCells%2 != 0 {
 		c.errs.add(p+"doppler_training_cells", "%d is odd; training bins count both sides together, so it must be even", d.DopplerTrainingCells)

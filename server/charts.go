@@ -107,12 +107,25 @@ type seriesJSON struct {
 	// Progressive 0 draws a series in one go: the server sends screen
 	// resolution, and progressive drawing would spread it over frames.
 	Progressive *int `json:"progressive,omitempty"`
+	// Fields go-echarts lacks or nests (labels.go); at this depth they
+	// win over SingleSeries' embedded ones of the same name.
+	EndLabel    map[string]any `json:"endLabel,omitempty"`
+	LabelLayout map[string]any `json:"labelLayout,omitempty"`
+	MarkArea    map[string]any `json:"markArea,omitempty"`
+	Z           int            `json:"z,omitempty"`
+}
+
+// seriesExtra holds a series' fields that seriesJSON adds.
+type seriesExtra struct {
+	EndLabel, LabelLayout, MarkArea map[string]any
+	Z                               int
 }
 
 // builder assembles one line chart with go-echarts.
 type builder struct {
-	line *charts.Line
-	data []seriesData
+	line  *charts.Line
+	data  []seriesData
+	extra map[string]seriesExtra // by series id
 }
 
 func newBuilder(xName, yName string, yMin any) *builder {
@@ -120,13 +133,16 @@ func newBuilder(xName, yName string, yMin any) *builder {
 	c.Colors = []string{colourProfile, colourClean, colourThreshold, colourNoise, colourReference}
 	c.SetGlobalOptions(
 		charts.WithAnimation(false),
-		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Top: "2", Left: "64", ItemWidth: 18, ItemHeight: 10}),
+		// One row of legend, paged when the plot is narrow: a second row
+		// would sit on the plot.
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Type: "scroll", Top: "2", Left: "64", Right: "8", ItemWidth: 18, ItemHeight: 10,
+			TextStyle: &opts.TextStyle{FontSize: 11}}),
 		charts.WithGridOpts(opts.Grid{Left: strconv.Itoa(gridLeft), Right: "18", Top: "30", Bottom: "62"}),
 		charts.WithXAxisOpts(opts.XAxis{Type: "value", Name: xName, NameLocation: "middle", NameGap: 24, Min: "dataMin", Max: "dataMax",
 			AxisLabel: &opts.AxisLabel{ShowMinLabel: opts.Bool(false), ShowMaxLabel: opts.Bool(false)}}),
 		charts.WithYAxisOpts(opts.YAxis{Type: "value", Name: yName, NameLocation: "middle", NameGap: gridLeft - 16, Min: yMin}),
 	)
-	return &builder{line: c}
+	return &builder{line: c, extra: map[string]seriesExtra{}}
 }
 
 // gridLeft is the room left of a plot for the y labels and the y name
@@ -181,7 +197,8 @@ func (b *builder) spliceSeries(name, key string, opt map[string]any) chartOut {
 	series := make([]seriesJSON, len(ms))
 	for i, s := range ms {
 		s.Data = nil
-		series[i] = seriesJSON{SingleSeries: s, Data: placeholder(i)}
+		x := b.extra[s.Id]
+		series[i] = seriesJSON{SingleSeries: s, Data: placeholder(i), EndLabel: x.EndLabel, LabelLayout: x.LabelLayout, MarkArea: x.MarkArea, Z: x.Z}
 	}
 	opt["series"] = series
 	return b.splice(name, key, opt)
@@ -241,7 +258,9 @@ func ampSeries(g grid, y func(k int) float64, sp span) []byte {
 func echoChart(res *scenarios.Result, vw view) chartOut {
 	e := res.Series.Echo
 	g := windowGrid(&res.Series, len(e))
-	sp := plan(g, vw.rangeM, vw.width)
+	// The echo shares the lower left pane with the range–Doppler map, so
+	// it is as wide as map_px (about half the profile's width otherwise).
+	sp := plan(g, vw.rangeM, plotColumns(echoWidth(vw)))
 	b := newBuilder("range (m)", "amplitude (noise rms = 1)", nil)
 	thin := opts.LineStyle{Width: 1}
 	b.add(SeriesI, "I", colourI, ampSeries(g, func(k int) float64 { return real(e[k]) }, sp), thin)
@@ -261,7 +280,7 @@ const profileYMin = -20.0
 func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOut {
 	s := &res.Series
 	g := windowGrid(s, len(s.ProfileDB))
-	sp := plan(g, vw.rangeM, vw.width)
+	sp := plan(g, vw.rangeM, plotColumns(vw.width))
 	b := newBuilder("range (m)", "dB re output noise", profileYMin)
 	profileName, cleanName := "profile", "noise-free"
 	if s.RangeDoppler != nil {
@@ -281,13 +300,16 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 	if ref != nil {
 		rs := &ref.Series
 		rg := windowGrid(rs, len(rs.ProfileDB))
-		b.add(SeriesReference, "pinned", colourReference, dbSeries(rg, rs.ProfileDB, plan(rg, vw.rangeM, vw.width)), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
+		b.add(SeriesReference, "pinned", colourReference, dbSeries(rg, rs.ProfileDB, plan(rg, vw.rangeM, plotColumns(vw.width))), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
 		key += "+ref"
 	}
+	key += annotate(b, res, g)
 	b.line.AddSeries("targets", nil,
 		charts.WithSeriesId(SeriesMarkers),
 		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.Type = "scatter"; s.SymbolSize = 11 }),
+		charts.WithLabelOpts(markerLabel),
 	)
+	b.extra[SeriesMarkers] = seriesExtra{LabelLayout: map[string]any{"hideOverlap": true}, Z: 5}
 	marks, err := json.Marshal(markers(res, g.x0, last))
 	if err != nil {
 		panic("server: markers not encodable: " + err.Error()) // every number in them is clamped
@@ -302,6 +324,7 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 // beside it, and its expected peak SNR.
 type marker struct {
 	Value     [2]float64     `json:"value"`
+	Name      string         `json:"name"` // the label on the plot
 	ID        string         `json:"id"`
 	Status    string         `json:"status"`
 	Reason    string         `json:"reason"`
@@ -324,6 +347,7 @@ func markers(res *scenarios.Result, lo, hi float64) []marker {
 		}
 		out = append(out, marker{
 			Value:     [2]float64{math.Min(math.Max(at, lo), hi), clampDB(t.SNRDB)},
+			Name:      t.ID,
 			ID:        t.ID,
 			Status:    t.Status,
 			Reason:    t.Reason,
@@ -354,24 +378,30 @@ func responseChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartO
 	yMin := responseYMin(pslr)
 	b := newBuilder("range from peak (m)", "dB re peak", yMin)
 	b.line.YAxisList[0].Max = 0.0
-	b.add(SeriesResponse, "response", colourProfile, responseSeries(&res.Series.Response, vw.width), opts.LineStyle{Width: 1.2})
-	key := fmt.Sprintf("response/1/%g", yMin)
+	near := responseNear(res)
+	b.add(SeriesResponse, "response", colourProfile, responseSeries(&res.Series.Response, vw.width, near), opts.LineStyle{Width: 1.2})
+	key := fmt.Sprintf("response/2/%g", yMin)
 	if ref != nil {
-		b.add(SeriesReference, "pinned", colourReference, responseSeries(&ref.Series.Response, vw.width), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
+		b.add(SeriesReference, "pinned", colourReference, responseSeries(&ref.Series.Response, vw.width, near), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
 		key += "+ref"
 	}
-	out := b.build(ChartResponse, key)
+	out := b.buildZoomed(ChartResponse, key, near)
 	out.static = true
 	return out
 }
 
-func responseSeries(r *scenarios.Response, width int) []byte {
+func responseSeries(r *scenarios.Response, width int, near *[2]float64) []byte {
 	n := min(len(r.RangeM), len(r.DB))
 	if n == 0 {
 		return []byte("[]")
 	}
 	g := grid{n: n, xs: r.RangeM[:n]}
-	return dbSeries(g, r.DB, plan(g, nil, width))
+	if n > 1 && r.RangeM[n-1] > r.RangeM[0] {
+		// A uniform axis (as scenarios makes it): every sample near the
+		// main lobe, an outline beyond.
+		g = grid{x0: r.RangeM[0], dx: (r.RangeM[n-1] - r.RangeM[0]) / float64(n-1), n: n}
+	}
+	return dbSeries(g, r.DB, plan(g, near, width))
 }
 
 // roundAll returns v·scale rounded to 1/per, as axis labels.

@@ -142,7 +142,7 @@ func TestChartOptions(t *testing.T) {
 			for _, se := range opt.Series {
 				ids = append(ids, se.ID)
 			}
-			if got := strings.Join(ids, ","); got != "profile,clean,threshold,noise,reference,markers" {
+			if got := strings.Join(ids, ","); got != "profile,clean,threshold,noise,reference,masking,markers" {
 				t.Errorf("profile series %s", got)
 			}
 			var marks []marker

@@ -35,6 +35,9 @@ type evalCache struct {
 	ambKey string     // the waveform and sample rate the surface is of
 	amb    []chartOut // the surface and its cuts; nil when there is none
 
+	waveKey string     // the waveform, receiver and sample rate the designer's charts are of
+	wave    []chartOut // the designer's charts (wavecharts.go); nil when there are none
+
 	statics map[string]chartOut // the last static chart of each name
 	version int                 // counts static chart versions
 }
@@ -182,7 +185,11 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 		return nil, err
 	}
 	f := &frame{id: w.id, report: c.report, link: c.link, charts: c.settle(buildCharts(c.res, c.pinRes, w.view))}
+	if err := ss.wavePlots(ctx, c); err != nil {
+		return nil, err
+	}
 	f.charts = append(f.charts, c.amb...)
+	f.charts = append(f.charts, c.wave...)
 	if c.pin != nil {
 		f.reference = c.pinRept
 	}

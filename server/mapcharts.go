@@ -203,8 +203,8 @@ func twoCuts(name, key string, plots [2]cutPlot) chartOut {
 		charts.WithAnimation(false),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(false)}),
 		charts.WithGridOpts(
-			opts.Grid{Left: strconv.Itoa(gridLeft), Right: "53%", Top: "26", Bottom: "40"},
-			opts.Grid{Left: cutsRightLeft, Right: "12", Top: "26", Bottom: "40"}),
+			opts.Grid{Left: strconv.Itoa(gridLeft), Right: "53%", Top: "40", Bottom: "40"},
+			opts.Grid{Left: cutsRightLeft, Right: "12", Top: "40", Bottom: "40"}),
 	)
 	c.XAxisList = nil
 	c.YAxisList = nil
@@ -233,6 +233,7 @@ func twoCuts(name, key string, plots [2]cutPlot) chartOut {
 	b.line.Validate()
 	opt := b.line.JSON()
 	opt["title"] = titles
+	opt["legend"] = cutsLegends(plots)
 	opt["tooltip"] = tooltipJSON("axis")
 	return b.spliceSeries(name, key, opt)
 }

@@ -146,7 +146,7 @@ func rdmapChart(res *scenarios.Result, vw view) (chartOut, bool) {
 	}
 	more := []heatSeries{{id: SeriesMarkers, name: "targets", data: marks, opts: []charts.SeriesOpts{
 		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.SymbolSize = 13 }),
-		charts.WithLabelOpts(opts.Label{Show: opts.Bool(true), Position: "right", Formatter: "{b}", FontSize: 10, Color: "#1f2a30"}),
+		charts.WithLabelOpts(mapLabel),
 	}}}
 	key := fmt.Sprintf("rdmap/1/%d-%d/%dx%d/%g-%g", l.lo, l.hi, l.cols, l.rows, vmin, vmax)
 	if vw.cell != nil {

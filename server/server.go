@@ -79,7 +79,7 @@ type Config struct {
 	SessionIdle time.Duration
 	// StarveAfter bounds how long new edits may keep cancelling a
 	// session's computation in flight (see session.cancelBefore); default
-	// 250 ms.
+	// 50 ms.
 	StarveAfter time.Duration
 	StartDemo   string // the demo the page opens on; default scenarios.DefaultDemo
 	// SessionEvaluator, when set, makes each websocket session its own
@@ -99,6 +99,7 @@ type Server struct {
 	hosts  map[string]struct{} // host names accepted besides IP literals and localhost
 	up     websocket.Upgrader
 	ambs   chartCache // ambiguity charts by waveform
+	waves  chartCache // the designer's charts by waveform and receiver
 	adm    *admission // compute slots and memory budget, shared by REST and sessions
 
 	ctx    context.Context // cancelled by Close: ends the sessions

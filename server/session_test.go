@@ -110,7 +110,7 @@ func TestSessionEdits(t *testing.T) {
 		}
 	}
 
-	for _, name := range []string{ChartAmbiguity, ChartAmbiguityCuts} {
+	for _, name := range []string{ChartAmbiguity, ChartAmbiguityCuts, ChartPulse, ChartFilter} {
 		if _, ok := m.Charts[name]; !ok {
 			t.Errorf("no %s in the first frame", name)
 		}
@@ -119,7 +119,7 @@ func TestSessionEdits(t *testing.T) {
 	// the waveform changed, so its response and surface come whole.
 	sendScenario(t, c, 2, mustDemoJSON(t, "rocky-coast"))
 	m = next(t, c, 2)
-	for _, name := range []string{ChartResponse, ChartAmbiguity, ChartAmbiguityCuts} {
+	for _, name := range []string{ChartResponse, ChartAmbiguity, ChartAmbiguityCuts, ChartPulse, ChartFilter} {
 		if !m.Charts[name].Replace {
 			t.Errorf("chart %s of a new waveform: replace false", name)
 		}

@@ -51,6 +51,13 @@ func TestMain(m *testing.M) {
 // browser, started on first use with a fresh profile.
 func mustBrowser(t *testing.T) context.Context {
 	t.Helper()
+	return mustBrowserFor(t, 60*time.Second)
+}
+
+// mustBrowserFor is mustBrowser with a tab that lives for d: the
+// measurements over every demo need longer on a busy machine.
+func mustBrowserFor(t *testing.T, d time.Duration) context.Context {
+	t.Helper()
 	if _, err := os.Stat(chromium); err != nil {
 		if os.Getenv("PULSEWRIGHT_REQUIRE_BROWSER") == "1" {
 			t.Fatalf("chromium is required (PULSEWRIGHT_REQUIRE_BROWSER=1) but %s is missing", chromium)
@@ -94,7 +101,7 @@ func mustBrowser(t *testing.T) context.Context {
 		t.Fatalf("start chromium: %v", browserErr)
 	}
 	ctx, cancel := chromedp.NewContext(browserCtx)
-	ctx, cancelT := context.WithTimeout(ctx, 60*time.Second)
+	ctx, cancelT := context.WithTimeout(ctx, d)
 	t.Cleanup(func() {
 		cancelT()
 		cancel()
@@ -334,7 +341,7 @@ func TestEditLatency(t *testing.T) {
 	if testing.Short() {
 		t.Skip("latency measurement skipped in -short")
 	}
-	ctx := mustBrowser(t)
+	ctx := mustBrowserFor(t, 8*time.Minute)
 	base := mustServer(t)
 	openPage(t, ctx, base)
 	demos := eval[[]string](t, ctx, `fetch('/api/v1/demos').then((r) => r.json()).then((d) => d.map((x) => x.name))`)
@@ -347,7 +354,7 @@ func TestEditLatency(t *testing.T) {
 	scenes = append(scenes, scene{"64k-samples", `fetch('/api/v1/demos/harbour-skiff').then((r) => r.json()).then((s) => {
 		s.radar.sample_rate_hz = 20e6; s.radar.pri_s = 4e-3; s.radar.window_start_m = 3500;
 		s.radar.window_stop_m = 3500 + 65535 * 299792458 / 2 / 20e6; return s; })`})
-	const edits = 12
+	const edits = 20
 	for _, sc := range scenes {
 		eval[bool](t, ctx, `(async () => { const s = await `+sc.load+`; window.__pw.store.load(s); return true; })()`)
 		waitFor(t, ctx, sc.name+" loaded", `window.__pw.frame() && window.__pw.frame().id >= window.__pw.session.nextId - 1 && window.__pw.frame().report.scenario === window.__pw.store.scenario.name`)
@@ -359,12 +366,13 @@ func TestEditLatency(t *testing.T) {
 			waitFor(t, ctx, "repaint", fmt.Sprintf(`window.__pwLatencies.length >= %d`, i+1))
 		}
 		lat := eval[[]struct {
-			MS        float64 `json:"ms"`
-			ComputeMS float64 `json:"compute_ms"`
-			WaitMS    float64 `json:"wait_ms"`
-			PageMS    float64 `json:"page_ms"`
-			ChartsMS  float64 `json:"charts_ms"`
-			PanelMS   float64 `json:"panel_ms"`
+			MS        float64  `json:"ms"`
+			ComputeMS float64  `json:"compute_ms"`
+			WaitMS    float64  `json:"wait_ms"`
+			PageMS    float64  `json:"page_ms"`
+			ChartsMS  float64  `json:"charts_ms"`
+			PanelMS   float64  `json:"panel_ms"`
+			Held      []string `json:"held"`
 		}](t, ctx, `window.__pwLatencies`)
 		if len(lat) == 0 {
 			t.Errorf("%s: no latencies recorded", sc.name)
@@ -372,18 +380,22 @@ func TestEditLatency(t *testing.T) {
 		}
 		long := eval[[]float64](t, ctx, `window.__pwLongTasks`)
 		var ms, comp, wait, page, chartsMS, panelMS []float64
+		held := 0
 		for _, l := range lat {
+			if len(l.Held) > 0 {
+				held++
+			}
 			ms, comp, wait, page = append(ms, l.MS), append(comp, l.ComputeMS), append(wait, l.WaitMS), append(page, l.PageMS)
 			chartsMS, panelMS = append(chartsMS, l.ChartsMS), append(panelMS, l.PanelMS)
 		}
-		t.Logf("%-16s %2d edits  send→paint median %5.0f ms, p90 %5.0f, max %5.0f | server compute %4.0f | send→arrival %4.0f | arrival→paint %4.0f (medians) | long tasks %d, max %.0f ms",
-			sc.name, len(ms), median(ms), quantile(ms, 0.9), slices.Max(ms), median(comp), median(wait), median(page), len(long), maxOr0(long))
+		t.Logf("%-16s %2d edits  send→paint median %5.0f ms, p95 %5.0f, max %5.0f | server compute %4.0f | send→arrival %4.0f | arrival→paint %4.0f (medians) | long tasks %d, max %.0f ms",
+			sc.name, len(ms), median(ms), quantile(ms, 0.95), slices.Max(ms), median(comp), median(wait), median(page), len(long), maxOr0(long))
 		perChart := eval[map[string][]float64](t, ctx, `window.__pwChartMs`)
 		var parts []string
 		for _, name := range slices.Sorted(maps.Keys(perChart)) {
 			parts = append(parts, fmt.Sprintf("%s %.0f", name, median(perChart[name])))
 		}
-		t.Logf("%-16s page: charts %.0f ms, panels %.0f ms; setOption per chart: %s (medians)", "", median(chartsMS), median(panelMS), strings.Join(parts, ", "))
+		t.Logf("%-16s page: charts %.0f ms, panels %.0f ms; setOption per chart: %s (medians); %d of %d pictures had a plot other than the profile held back ≤ 100 ms", "", median(chartsMS), median(panelMS), strings.Join(parts, ", "), held, len(lat))
 		shot(t, ctx, sc.name)
 	}
 }

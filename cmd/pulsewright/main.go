@@ -45,6 +45,10 @@ Usage:
                  [--ref-range-m R --ref-snr-db S] [--csv] [--html FILE.html]
                                      Pd against SNR per pulse (or against range, R⁴ law,
                                      from a reference point) and the SNR a required Pd needs
+  pulsewright blindzones --pri T1,T2,… --tau S --carrier HZ [--pulses N1,N2,…] [--m M]
+                     [--range MIN:MAX] [--rate V] [--cells 100x40] [--format table|csv|html] [-o FILE]
+                                     map where a PRF schedule is blind (eclipsed or at a
+                                     blind speed) in range × range rate, and what M-of-N sees
   pulsewright demos                  list the built-in scenarios
   pulsewright import FILE --into SCENARIO [--as waveform|filter] [--rate HZ] [--bandwidth HZ]
                                      write a recorded pulse (SigMF cf32_le or CSV) into a
@@ -105,6 +109,8 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.pd(args)
 	case "demos":
 		err = env.demos(args)
+	case "blindzones":
+		err = env.blindzones(args)
 	case "serve":
 		err = env.serve(args)
 	case "import":

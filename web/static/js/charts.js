@@ -7,6 +7,7 @@ import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
+const SecondaryMs = 100; // plots other than the profile redraw at most this often while frames stream
 const WheelGestureMs = 3000; // ms: wheel events this close, with the pointer still, form one gesture
 
 const chartMs = {};
@@ -74,7 +75,9 @@ export class Plots {
     this.wavelength = wavelength;
     this.drag = null;
     this.lastView = null;
-    this.pending = {}; // chart name → options held back while its pane is hidden
+    this.pending = {}; // chart name → options held back (its pane is hidden, or it was drawn just now)
+    this.drawnAt = {}; // chart name → when it was last drawn (performance.now)
+    this.timers = {}; // chart name → timer that draws what it holds back
     this.cats = {}; // heat map name → {x, y}: the cell centres of its category axes
     this.train = false;
 
@@ -111,20 +114,52 @@ export class Plots {
   applyOne(name, entry) {
     if (!entry || !entry.option || !this.charts[name]) return;
     if (this.hidden(name)) {
-      // A full option supersedes what came before it; of the data-only
-      // merges after it, only the newest matters.
-      const q = this.pending[name] || [];
-      if (entry.replace) this.pending[name] = [entry];
-      else if (q.length && !q[q.length - 1].replace) q[q.length - 1] = entry;
-      else this.pending[name] = [...q, entry];
+      this.hold(name, entry);
       return;
     }
+    // While frames stream in (a drag, a held key), the profile follows
+    // every frame and the other plots at most every SecondaryMs: each
+    // setOption re-lays out a whole chart, whatever changed.
+    if (name !== 'profile' && !entry.replace) {
+      const wait = (this.drawnAt[name] || -Infinity) + SecondaryMs - performance.now();
+      if (wait > 0 || this.timers[name]) {
+        this.hold(name, entry);
+        if (!this.timers[name]) this.timers[name] = setTimeout(() => this.flush(name), Math.max(wait, 0));
+        return;
+      }
+    }
+    this.flush(name);
     this.setOption(name, entry);
+  }
+
+  // The shown charts whose newest options wait for their redraw timer.
+  held() {
+    return Object.keys(this.timers).filter((k) => this.timers[k] && !this.hidden(k));
+  }
+
+  // Keep an option for later. A full option supersedes what came before
+  // it; of the data-only merges after it, only the newest matters.
+  hold(name, entry) {
+    const q = this.pending[name] || [];
+    if (entry.replace) this.pending[name] = [entry];
+    else if (q.length && !q[q.length - 1].replace) q[q.length - 1] = entry;
+    else this.pending[name] = [...q, entry];
+  }
+
+  // Draw what chart name holds back, unless its pane is hidden.
+  flush(name) {
+    clearTimeout(this.timers[name]);
+    this.timers[name] = 0;
+    if (this.hidden(name)) return;
+    const q = this.pending[name] || [];
+    this.pending[name] = [];
+    for (const entry of q) this.setOption(name, entry);
   }
 
   setOption(name, entry) {
     const chart = this.charts[name];
     const t0 = performance.now();
+    this.drawnAt[name] = t0;
     if (entry.replace) spaceAxisLabels(entry.option, chart.getWidth());
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     // Paint now, inside this animation frame, instead of waiting for the
@@ -152,8 +187,7 @@ export class Plots {
     for (const b of fig.querySelectorAll('[data-show]')) b.setAttribute('aria-selected', String(b === tab));
     for (const p of fig.querySelectorAll('.pane')) p.classList.toggle('on', p.dataset.pane === name);
     fig.querySelector('button.png').dataset.png = name;
-    for (const entry of this.pending[name] || []) this.setOption(name, entry);
-    this.pending[name] = [];
+    this.flush(name);
   }
 
   selected(fig) {
@@ -318,10 +352,12 @@ export class Plots {
         ev.stopPropagation();
         if (!this.drag.moved && Math.abs(px - this.drag.startX) < 2) return;
         this.drag.moved = true;
-        const r = this.rangeAt(px);
-        if (r !== null) this.onDrag(this.drag.id, r);
-        this.guide(px);
-        this.hoverCard(null);
+        // Moves come faster than frames: handle the newest once per frame.
+        this.drag.px = px;
+        if (!this.drag.queued) {
+          this.drag.queued = true;
+          requestAnimationFrame(() => this.dragStep());
+        }
         return;
       }
       const m = this.hit(px, py);
@@ -331,6 +367,7 @@ export class Plots {
     const end = (ev) => {
       if (!this.drag || ev.pointerId !== this.drag.pointerId) return;
       ev.stopPropagation();
+      if (this.drag.queued) this.dragStep(); // the last position counts
       this.drag = null;
       this.guide(null);
       this.onDragEnd();
@@ -359,6 +396,18 @@ export class Plots {
     }, { capture: true, passive: false });
   }
 
+  // One step of a drag, at most once per animation frame: the target
+  // moves to the newest pointer position.
+  dragStep() {
+    const d = this.drag;
+    if (!d || !d.queued) return;
+    d.queued = false;
+    const r = this.rangeAt(d.px);
+    if (r !== null) this.onDrag(d.id, r);
+    this.guide(d.px);
+    this.hoverCard(null);
+  }
+
   // Draw (px) or remove (null) the vertical guide shown while dragging: a
   // page element over the chart, so that a drag step does not redraw it.
   guide(px) {
@@ -385,7 +434,8 @@ export class Plots {
   profileCSV() {
     const opt = this.charts.profile.getOption();
     const xData = opt.xAxis && opt.xAxis[0] && opt.xAxis[0].data;
-    const cols = (opt.series || []).filter((s) => s.type === 'line' && Array.isArray(s.data));
+    // The annotations (masking segments, blind range) are not series of the profile.
+    const cols = (opt.series || []).filter((s) => s.type === 'line' && Array.isArray(s.data) && s.id !== 'masking' && s.id !== 'blind');
     const rows = new Map();
     cols.forEach((s, ci) => {
       s.data.forEach((d, i) => {

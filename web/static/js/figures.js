@@ -77,7 +77,9 @@ export function renderFigures(root, report, reference, computeMs) {
         t.pd !== undefined ? h('span', { title: PdHelp }, `Pd ${pdText(t.pd)}`
           + (t.pd_alone !== undefined && pdText(t.pd_alone) !== pdText(t.pd) ? ` (alone ${pdText(t.pd_alone)})` : '')) : null,
         t.masked_by ? h('span', {}, `masked by ${t.masked_by}`) : null,
-        t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null),
+        t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null,
+        t.doppler_hz ? h('span', { class: 'dop', title: 'Doppler shift of the echo, and the shift of its compressed peak in range (range–Doppler coupling)' },
+          `Doppler ${t.doppler_hz > 0 ? '+' : ''}${eng(t.doppler_hz, 'Hz')} · peak shift ${t.range_shift_m > 0 ? '+' : ''}${fmt(t.range_shift_m, 2)} m`) : null),
       h('div', { class: 'reason' }, t.reason || ''));
   });
 

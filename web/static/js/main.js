@@ -10,6 +10,8 @@ import { HTTPError, api, decodeLink, linkPart, refusal } from './share.js';
 import { Store } from './store.js';
 import { initLibrary } from './library.js';
 import { initKeys } from './keys.js';
+import { initFocus } from './focus.js';
+import { printablePNG } from './export.js';
 import { Staleness } from './stale.js';
 import { initCopyLink } from './copylink.js';
 import { Story } from './story.js';
@@ -58,6 +60,7 @@ const session = new Session({ onFrame, onError, onStatus });
 const plots = new Plots({
   profile: $('#chart-profile'), echo: $('#chart-echo'), response: $('#chart-response'), ambiguity: $('#chart-ambiguity'),
   ambcuts: $('#chart-ambcuts'), rdmap: $('#chart-rdmap'), rdcuts: $('#chart-rdcuts'),
+  pulse: $('#chart-pulse'), filter: $('#chart-filter'),
 }, {
   onView: (range, width, mapWidth) => session.sendView(range, width, mapWidth),
   onDrag: (id, r) => editor.moveTo(id, r),
@@ -74,7 +77,8 @@ const plots = new Plots({
   },
   hoverCard,
 });
-window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame };
+const focusUI = initFocus({ plots, frame: () => lastFrame });
+window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, focus: focusUI.focus };
 
 store.onChange((s, cause) => {
   editor.render(s);
@@ -98,8 +102,42 @@ function onFrame(msg) {
   if (pendingFrame) msg.charts = carryCharts(pendingFrame.charts || {}, msg.charts || {});
   pendingFrame = msg;
   if (applyScheduled) return;
+  // The first frame since the last paint is drawn at once (its pixels go
+  // out with the next vsync); frames that follow within the same frame
+  // time wait for the next animation frame, and only the newest is drawn.
+  if (performance.now() - lastApplyAt > 16) {
+    applyFrame();
+    return;
+  }
   applyScheduled = true;
   requestAnimationFrame(applyFrame);
+}
+let lastApplyAt = -Infinity;
+
+// The editor's status marks and the figures panel follow the frames, but
+// while frames stream in (a drag) at most every PanelMs: rebuilding the
+// panel costs as much as a chart, and the plots are what the hand follows.
+// The newest frame's panels are always drawn.
+const PanelMs = 100;
+let panelsAt = -Infinity;
+let panelTimer = 0;
+let panelFrame = null;
+function panels(f) {
+  panelFrame = f;
+  if (panelTimer) return;
+  const wait = panelsAt + PanelMs - performance.now();
+  if (wait <= 0) {
+    drawPanels();
+    return;
+  }
+  panelTimer = setTimeout(drawPanels, wait);
+}
+function drawPanels() {
+  panelTimer = 0;
+  const f = panelFrame;
+  panelsAt = performance.now();
+  editor.setReport(f.report);
+  renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms);
 }
 
 // Apply the newest frame in one animation frame; older unapplied frames
@@ -113,10 +151,11 @@ function applyFrame() {
   const shows = session.versionAt(f.id, rejected);
   if (shows !== null) shownVersion = shows;
   const t0 = performance.now();
+  lastApplyAt = t0;
   plots.apply(f);
+  focusUI.refresh();
   const t1 = performance.now();
-  editor.setReport(f.report);
-  renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms);
+  panels(f);
   if (session.sent.has(f.id) && f.id > lastErrorId) {
     editor.clearErrors();
     $('#orphan-errors').textContent = '';
@@ -137,7 +176,7 @@ function applyFrame() {
       // which charts_ms went to the charts' setOption and panel_ms to the
       // editor and figures panels.
       latencies.push({ id: f.id, ms: m.duration, compute_ms: f.compute_ms, wait_ms: f.arrivedAt - sentAt, page_ms: performance.now() - f.arrivedAt,
-        charts_ms: t1 - t0, panel_ms: t2 - t1 });
+        charts_ms: t1 - t0, panel_ms: t2 - t1, held: plots.held(), panels_held: !!panelTimer });
       if (latencies.length > 1000) latencies.shift();
     }
   });
@@ -376,8 +415,15 @@ $('#btn-export').addEventListener('click', () => {
   download(`${fileStem()}.json`, JSON.stringify(store.scenario, null, 2) + '\n', 'application/json');
 });
 $('#btn-csv').addEventListener('click', () => download(`${fileStem()}-profile.csv`, plots.profileCSV(), 'text/csv'));
+// PNG: a printable picture of the shown plot, titled, without the slider.
+const plotTitle = (name) => ($(`.plot-head [data-show="${name}"]`) || $('.plot-label')).textContent.trim();
 for (const b of $$('[data-png]')) {
-  b.addEventListener('click', () => download(`${fileStem()}-${b.dataset.png}.png`, plots.png(b.dataset.png)));
+  b.addEventListener('click', async () => {
+    const name = b.dataset.png;
+    const title = (store.scenario && store.scenario.name) || 'Untitled scene';
+    const when = new Date().toISOString().slice(0, 16).replace('T', ' ');
+    download(`${fileStem()}-${name}.png`, await printablePNG(plots.charts[name], { title, subtitle: `${plotTitle(name)} · Pulsewright · ${when} UTC` }));
+  });
 }
 
 initLibrary({ store, notice, onOpen: () => { pushNextLink = true; } });

@@ -124,6 +124,9 @@ export const windowKinds = {
 export const detectorKinds = {
   ca_cfar: { label: 'Cell-averaging CFAR', fields: ['pfa', 'guard_cells', 'training_cells'] },
   os_cfar: { label: 'Ordered-statistic CFAR', fields: ['pfa', 'guard_cells', 'training_cells', 'rank'] },
+  go_cfar: { label: 'Greatest-of CFAR (clutter edges)', fields: ['pfa', 'guard_cells', 'training_cells'] },
+  so_cfar: { label: 'Smallest-of CFAR (targets beside clutter)', fields: ['pfa', 'guard_cells', 'training_cells'] },
+  censored_cfar: { label: 'Censored cell-averaging CFAR', fields: ['pfa', 'guard_cells', 'training_cells', 'censored_cells'] },
   fixed: { label: 'Fixed threshold', fields: ['pfa'] },
 };
 export const detectorFields = {
@@ -131,6 +134,7 @@ export const detectorFields = {
   guard_cells: f('guard_cells', 'Guard cells', 'each side', 1, 'int', { def: 2 }),
   training_cells: f('training_cells', 'Training cells', 'both sides', 1, 'int', { def: 16 }),
   rank: f('rank', 'Rank', '1-based', 1, 'int', { hint: '¾ of training' }),
+  censored_cells: f('censored_cells', 'Censored cells', 'largest dropped', 1, 'int', { hint: '⅛ of training' }),
 };
 
 export const targetKinds = ['point', 'extended', 'volume'];

@@ -1,0 +1,108 @@
+package main
+
+import (
+	"fmt"
+	"io"
+	"strconv"
+	"strings"
+
+	"github.com/pulsewright/pulsewright/scenarios"
+)
+
+// blindzones prints the blind-zones map of a PRF schedule given on the
+// command line.
+func (e *env) blindzones(args []string) error {
+	fs := newFlags("blindzones", e)
+	pri := fs.String("pri", "", "PRIs of the schedule's CPIs, s, comma-separated (1e-3,1.1e-3)")
+	pulses := fs.String("pulses", "16", "pulses per CPI: one count, or one per PRI, comma-separated")
+	tau := fs.Float64("tau", 0, "transmitted pulse width, s")
+	carrier := fs.Float64("carrier", 0, "carrier frequency, Hz")
+	m := fs.Int("m", 0, "CPIs that must see a target (M-of-N); 0: all")
+	rng := fs.String("range", "", "ranges to map, MIN:MAX in m (default 0 to the longest PRI's unambiguous range × 2)")
+	rate := fs.Float64("rate", 0, "range rates to map, ± this many m/s (default the first blind speed of the schedule, or 1000)")
+	cells := fs.String("cells", "100x40", "map size, RANGExRATE cells")
+	eclipse := fs.Float64("eclipse", 0.5, "a target is eclipsed when this fraction of its echo or more overlaps a transmit pulse")
+	format := fs.String("format", "table", "output: table (characters), csv (one row per cell) or html (a self-contained page)")
+	out := fs.String("o", "", "write to this file instead of standard output")
+	pos, err := parseFlags(fs, args)
+	if err != nil {
+		return err
+	}
+	if len(pos) > 0 {
+		return usageError{fmt.Sprintf("blindzones takes no positional argument (got %q); the schedule is given with --pri and --pulses", pos[0])}
+	}
+	if *format != "table" && *format != "csv" && *format != "html" {
+		return usageError{fmt.Sprintf("--format %q is not table, csv or html", *format)}
+	}
+	spec := scenarios.BlindZoneSpec{PulseS: *tau, CarrierHz: *carrier, M: *m, RateMaxMPS: *rate, EclipseFraction: *eclipse}
+	if spec.PRIs, err = floatList("--pri", *pri); err != nil {
+		return err
+	}
+	p, err := floatList("--pulses", *pulses)
+	if err != nil {
+		return err
+	}
+	for _, v := range p {
+		if v != float64(int(v)) {
+			return usageError{fmt.Sprintf("--pulses: %g is not a whole number", v)}
+		}
+		spec.Pulses = append(spec.Pulses, int(v))
+	}
+	if _, err := fmt.Sscanf(*cells, "%dx%d", &spec.RangeCells, &spec.RateCells); err != nil {
+		return usageError{fmt.Sprintf("--cells %q is not RANGExRATE (100x40)", *cells)}
+	}
+	if *rng == "" {
+		longest := 0.0
+		for _, v := range spec.PRIs {
+			longest = max(longest, v)
+		}
+		spec.RangeMinM, spec.RangeMaxM = 0, 2*299792458*longest/2
+	} else {
+		lo, hi, ok := strings.Cut(*rng, ":")
+		a, err1 := strconv.ParseFloat(lo, 64)
+		b, err2 := strconv.ParseFloat(hi, 64)
+		if !ok || err1 != nil || err2 != nil {
+			return usageError{fmt.Sprintf("--range %q is not MIN:MAX in m", *rng)}
+		}
+		spec.RangeMinM, spec.RangeMaxM = a, b
+	}
+	if *rate == 0 {
+		spec.RateMaxMPS = 1000
+	}
+	if *eclipse == 0 {
+		return usageError{"--eclipse 0 would mark every range eclipsed; give a fraction in (0, 1]"}
+	}
+	b, err := scenarios.BlindZones(spec)
+	if err != nil {
+		return err
+	}
+	write := func(w io.Writer) error {
+		switch *format {
+		case "csv":
+			return b.WriteCSV(w)
+		case "html":
+			return b.WriteHTML(w)
+		}
+		return b.WriteText(w)
+	}
+	if *out != "" {
+		return writeFile(*out, write)
+	}
+	return write(e.stdout)
+}
+
+// floatList parses a comma-separated list of numbers.
+func floatList(flag, s string) ([]float64, error) {
+	if strings.TrimSpace(s) == "" {
+		return nil, usageError{flag + " is required"}
+	}
+	var out []float64
+	for _, f := range strings.Split(s, ",") {
+		v, err := strconv.ParseFloat(strings.TrimSpace(f), 64)
+		if err != nil {
+			return nil, usageError{fmt.Sprintf("%s: %q is not a number", flag, f)}
+		}
+		out = append(out, v)
+	}
+	return out, nil
+}
