@@ -145,6 +145,7 @@ func canonicalReceiver(r Receiver) ordered {
 		det, dd := r.Detector, defaultDetector(r.Detector.Kind)
 		od := ordered{{"kind", det.Kind}}
 		od.put("pfa", det.PFA, dd.PFA)
+		od.put("pd_required", det.PdRequired, dd.PdRequired)
 		if det.Kind != DetectorFixed {
 			od.put("guard_cells", det.GuardCells, dd.GuardCells)
 			od.put("training_cells", det.TrainingCells, dd.TrainingCells)

@@ -115,13 +115,17 @@ func defaultReceiver() Receiver {
 	}
 }
 
+// DefaultPdRequired is the default receiver.detector.pd_required: common
+// practice in radar specifications, no single source.
+const DefaultPdRequired = 0.9
+
 // defaultCensored is the censored CFAR's default: an eighth of the
 // training cells, at least one (common practice, no source: room for a
 // few interferers while keeping most cells).
 func defaultCensored(training int) int { return max(1, training/8) }
 
 func defaultDetector(kind string) Detector {
-	d := Detector{Kind: kind, PFA: 1e-6}
+	d := Detector{Kind: kind, PFA: 1e-6, PdRequired: DefaultPdRequired}
 	if kind != DetectorFixed {
 		d.GuardCells = 2
 		d.TrainingCells = 16

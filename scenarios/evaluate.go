@@ -218,6 +218,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 			m.warn("target %s: its Doppler shift of %s is outside the receiver's band of ±%s (sample rate %s): %s", g.t.ID, hz(g.fd), hz(m.fs/2), hz(m.fs), bandWords(g))
 		}
 		tr.SNRDB = sc.snrDB(g, tr.RangeM, fig, d.lossDB)
+		m.pdFigures(g, v, v.alone, sc.train != nil, &tr)
 		if v.culprit >= 0 {
 			tr.MaskedBy = sc.targets[v.culprit].t.ID
 		}

@@ -50,12 +50,12 @@ var windowFields = map[string][]string{
 }
 
 var detectorFields = map[string][]string{
-	DetectorCA:    {"pfa", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
-	DetectorOS:    {"pfa", "guard_cells", "training_cells", "rank", "doppler_guard_cells", "doppler_training_cells"},
-	DetectorGO:    {"pfa", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
-	DetectorSO:    {"pfa", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
-	DetectorCens:  {"pfa", "guard_cells", "training_cells", "censored_cells", "doppler_guard_cells", "doppler_training_cells"},
-	DetectorFixed: {"pfa"},
+	DetectorCA:    {"pfa", "pd_required", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
+	DetectorOS:    {"pfa", "pd_required", "guard_cells", "training_cells", "rank", "doppler_guard_cells", "doppler_training_cells"},
+	DetectorGO:    {"pfa", "pd_required", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
+	DetectorSO:    {"pfa", "pd_required", "guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells"},
+	DetectorCens:  {"pfa", "pd_required", "guard_cells", "training_cells", "censored_cells", "doppler_guard_cells", "doppler_training_cells"},
+	DetectorFixed: {"pfa", "pd_required"},
 }
 
 var targetFields = map[string][]string{
@@ -304,6 +304,7 @@ func (o *object) decodeDetector(d *Detector) {
 	}
 	*d = defaultDetector(kind)
 	o.float("pfa", &d.PFA)
+	o.float("pd_required", &d.PdRequired)
 	o.int("guard_cells", &d.GuardCells)
 	o.int("training_cells", &d.TrainingCells)
 	if kind == DetectorOS && !o.has("rank") {

@@ -280,7 +280,7 @@ func candidates(s *Scenario, j int, v verdict) []candidate {
 			if d.Kind != DetectorCA {
 				return false
 			}
-			t.Receiver.Detector = Detector{Kind: DetectorOS, PFA: d.PFA, GuardCells: d.GuardCells, TrainingCells: d.TrainingCells, Rank: (3*d.TrainingCells + 3) / 4}
+			t.Receiver.Detector = Detector{Kind: DetectorOS, PFA: d.PFA, PdRequired: d.PdRequired, GuardCells: d.GuardCells, TrainingCells: d.TrainingCells, Rank: (3*d.TrainingCells + 3) / 4}
 			return true
 		}},
 		fewerCells(d, 2), fewerCells(d, 4),
@@ -325,7 +325,7 @@ func smallestOf(d Detector, k int, edge string) candidate {
 		if d.Kind == DetectorSO && n == d.TrainingCells || d.Kind == DetectorFixed {
 			return false
 		}
-		t.Receiver.Detector = Detector{Kind: DetectorSO, PFA: d.PFA, GuardCells: d.GuardCells, TrainingCells: n,
+		t.Receiver.Detector = Detector{Kind: DetectorSO, PFA: d.PFA, PdRequired: d.PdRequired, GuardCells: d.GuardCells, TrainingCells: n,
 			DopplerGuardCells: d.DopplerGuardCells, DopplerTrainingCells: d.DopplerTrainingCells}
 		return true
 	}}

@@ -210,8 +210,13 @@ const (
 
 // Detector sets the detection threshold. Cells are range samples.
 type Detector struct {
-	Kind          string  `json:"kind"`
-	PFA           float64 `json:"pfa"`                      // probability of false alarm per cell
+	Kind string  `json:"kind"`
+	PFA  float64 `json:"pfa"` // probability of false alarm per cell
+	// PdRequired is the probability of detection a target must reach
+	// (0.01 … 0.9999; default 0.9, common practice in radar
+	// specifications, no single source). Reported against as
+	// snr_required_db and pd_margin_db.
+	PdRequired    float64 `json:"pd_required,omitempty"`
 	GuardCells    int     `json:"guard_cells,omitempty"`    // CFAR: cells skipped on each side of the cell under test
 	TrainingCells int     `json:"training_cells,omitempty"` // CFAR: reference cells, both sides together
 	Rank          int     `json:"rank,omitempty"`           // os_cfar: 1-based rank of the ordered training cell used

@@ -19,6 +19,7 @@ type verdict struct {
 	byCell     bool    // masked by power at its very cell (sidelobe or mainlobe) rather than through the CFAR
 	cells      int     // training cells used at the peak cell
 	unblanked  float64 // the peak of its echo without blanking (same units as peak), 0 when not blanked
+	alone      float64 // detector threshold with only the target itself in its training cells
 }
 
 // margin returns the peak over the threshold in dB, or nil when the target
@@ -95,6 +96,7 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 			v.cells = len(cf.Cells(nil, v.peakK, sc.m.n, sc.m.processed))
 		}
 		v.sceneLevel = sc.level(cf, v.peakK, func(i int) float64 { return sc.total[i] })
+		v.alone = sc.level(cf, v.peakK, g.resp.at)
 		v.cell = others(v.peakK)
 		v.threshold = math.Max(v.sceneLevel, v.cell)
 	}

@@ -259,7 +259,10 @@ func (s *Scenario) validateReceiver(c checker) {
 	if c.errs.has("receiver.detector") || c.errs.has(p+"kind") {
 		return
 	}
-	c.between(p+"pfa", d.PFA, 1e-15, 0.1)
+	okPfa := c.between(p+"pfa", d.PFA, 1e-15, 0.1)
+	if c.between(p+"pd_required", d.PdRequired, 0.01, 0.9999) && okPfa && d.PdRequired <= d.PFA {
+		c.errs.add(p+"pd_required", "%g is not above pfa (%g): a required Pd must exceed the false-alarm probability; valid range max(pfa, 0.01) … 0.9999", d.PdRequired, d.PFA)
+	}
 	if d.Kind == DetectorFixed {
 		return
 	}

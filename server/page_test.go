@@ -84,7 +84,7 @@ func TestReportPageSelfContained(t *testing.T) {
 			t.Errorf("page matches %s", re)
 		}
 	}
-	for _, want := range []string{"skiff", "masked by tanker", "Caution.", "#s=abc", "PSLR", "Taylor window"} {
+	for _, want := range []string{"skiff", "masked by tanker", "Caution.", "#s=abc", "PSLR", "Taylor window", `<th class="num">Pd</th>`, "(alone "} {
 		if !strings.Contains(page, want) {
 			t.Errorf("page lacks %q", want)
 		}

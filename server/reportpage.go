@@ -69,7 +69,7 @@ type reportData struct {
 }
 
 type targetRow struct {
-	ID, Status, Colour, Range, SNR, Margin, Reason string
+	ID, Status, Colour, Range, SNR, Margin, Pd, Reason string
 }
 
 func sceneRows(s *scenarios.Scenario) [][2]string {
@@ -126,7 +126,14 @@ func targetRows(r *scenarios.Report) []targetRow {
 			Range:  fixed(t.RangeM, 1),
 			SNR:    fixed(t.SNRDB, 1),
 			Margin: "—",
+			Pd:     "—",
 			Reason: t.Reason,
+		}
+		if t.Pd != nil {
+			row.Pd = scenarios.PdText(*t.Pd)
+			if t.PdAlone != nil && scenarios.PdText(*t.PdAlone) != row.Pd {
+				row.Pd += " (alone " + scenarios.PdText(*t.PdAlone) + ")"
+			}
 		}
 		if t.MaskedBy != "" {
 			row.Status += " by " + t.MaskedBy
@@ -258,9 +265,9 @@ var reportTmpl = template.Must(template.New("report").Parse(`<!DOCTYPE html>
 {{end}}
 <h2>Targets</h2>
 <table>
-<tr><th>Target</th><th>Status</th><th class="num">Range (m)</th><th class="num">SNR (dB)</th><th class="num">Margin (dB)</th><th>Why</th></tr>
-{{range .Targets}}<tr><td><b>{{.ID}}</b></td><td><span class="status" style="background:{{.Colour}}">{{.Status}}</span></td><td class="num">{{.Range}}</td><td class="num">{{.SNR}}</td><td class="num">{{.Margin}}</td><td>{{.Reason}}</td></tr>
-{{else}}<tr><td colspan="6">No targets in this scene.</td></tr>{{end}}
+<tr><th>Target</th><th>Status</th><th class="num">Range (m)</th><th class="num">SNR (dB)</th><th class="num">Margin (dB)</th><th class="num">Pd</th><th>Why</th></tr>
+{{range .Targets}}<tr><td><b>{{.ID}}</b></td><td><span class="status" style="background:{{.Colour}}">{{.Status}}</span></td><td class="num">{{.Range}}</td><td class="num">{{.SNR}}</td><td class="num">{{.Margin}}</td><td class="num">{{.Pd}}</td><td>{{.Reason}}</td></tr>
+{{else}}<tr><td colspan="7">No targets in this scene.</td></tr>{{end}}
 </table>
 {{range .Warnings}}<p class="warn">⚠ {{.}}</p>{{end}}
 

@@ -54,22 +54,33 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 	tw.Flush()
 	fmt.Fprintln(w)
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "ID\tRANGE m\tSNR dB\tDOPPLER Hz\tDOP LOSS dB\tSHIFT m\tMARGIN dB\tSTATUS\t")
+	fmt.Fprintln(tw, "ID\tRANGE m\tSNR dB\tDOPPLER Hz\tDOP LOSS dB\tSHIFT m\tMARGIN dB\tPD\tPD MARGIN dB\tSTATUS\t")
 	for _, t := range r.Targets {
-		margin := "—"
+		margin, pd, pdMargin := "—", "—", "—"
 		if t.MarginDB != nil {
 			margin = fx(*t.MarginDB, 1)
+		}
+		if t.Pd != nil {
+			pd = scenarios.PdText(*t.Pd)
+		}
+		if t.PdMarginDB != nil {
+			pdMargin = fx(*t.PdMarginDB, 1)
 		}
 		status := t.Status
 		if t.MaskedBy != "" {
 			status += " by " + t.MaskedBy
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", t.ID, fx(t.RangeM, 1), fx(t.SNRDB, 1), fx(t.DopplerHz, 0), fx(t.DopplerLossDB, 2), fx(t.RangeShiftM, 2), margin, status)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", t.ID, fx(t.RangeM, 1), fx(t.SNRDB, 1), fx(t.DopplerHz, 0), fx(t.DopplerLossDB, 2), fx(t.RangeShiftM, 2), margin, pd, pdMargin, status)
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
 	for _, t := range r.Targets {
 		fmt.Fprintf(w, "%s: %s\n", t.ID, t.Reason)
+	}
+	for _, t := range r.Targets {
+		if line := pdLine(t); line != "" {
+			fmt.Fprintf(w, "%s: %s\n", t.ID, line)
+		}
 	}
 	for _, warn := range r.Warnings {
 		fmt.Fprintf(w, "warning: %s\n", warn)
@@ -90,4 +101,20 @@ func fx(v float64, prec int) string {
 		return strings.TrimPrefix(t, "-")
 	}
 	return t
+}
+
+// pdLine is a target's probability of detection in words, or "" when the
+// report has none.
+func pdLine(t scenarios.TargetReport) string {
+	if t.Pd == nil {
+		return ""
+	}
+	line := "Pd " + scenarios.PdText(*t.Pd)
+	if t.PdAlone != nil && scenarios.PdText(*t.PdAlone) != scenarios.PdText(*t.Pd) {
+		line += " in the scene, " + scenarios.PdText(*t.PdAlone) + " alone"
+	}
+	if t.SNRRequiredDB != nil && t.PdMarginDB != nil {
+		line += fmt.Sprintf("; the required Pd needs %s dB at its cell, margin %s dB", fx(*t.SNRRequiredDB, 1), fx(*t.PdMarginDB, 1))
+	}
+	return line + "."
 }

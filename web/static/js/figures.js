@@ -5,6 +5,8 @@ import { h } from './dom.js';
 import { waveformKinds } from './schema.js';
 
 const fmt = (v, digits = 1) => (v === undefined || v === null || !Number.isFinite(v) ? '—' : v.toFixed(digits));
+// A probability of detection as the report's text gives it (scenarios.PdText).
+const pdText = (p) => (p >= 0.9995 ? '> 0.999' : p < 0.0005 ? '< 0.001' : p.toFixed(3));
 const eng = (v, unit) => {
   if (v === undefined || v === null || !Number.isFinite(v)) return '—';
   const a = Math.abs(v);
@@ -36,6 +38,7 @@ const waveformRows = [
 const SNRHelp = 'SNR: the target’s expected peak after pulse compression, in dB above the noise.';
 const MarginHelp = 'Margin: how far that peak clears the detector’s threshold at its range, in dB; negative means it is missed (the threshold is raised by noise and by other echoes in the training cells).';
 const IntegratedHelp = 'Integrated: the SNR after adding up all pulses of the train coherently.';
+const PdHelp = 'Pd: how often the target is seen at the detector’s false-alarm rate, for its fluctuation model, in this scene (and alone, when other echoes lower it).';
 const NumbersHelp = 'SNR is the peak above noise after compression; margin is how far it clears the detection threshold (below 0: missed).';
 
 export function renderFigures(root, report, reference, computeMs) {
@@ -71,6 +74,8 @@ export function renderFigures(root, report, reference, computeMs) {
         h('span', { title: SNRHelp }, `SNR ${fmt(t.snr_db)} dB`),
         t.margin_db !== undefined ? h('span', { title: MarginHelp }, `margin ${t.margin_db >= 0 ? '+' : ''}${fmt(t.margin_db)} dB`) : null,
         t.snr_integrated_db !== undefined ? h('span', { title: IntegratedHelp }, `integrated ${fmt(t.snr_integrated_db)} dB`) : null,
+        t.pd !== undefined ? h('span', { title: PdHelp }, `Pd ${pdText(t.pd)}`
+          + (t.pd_alone !== undefined && pdText(t.pd_alone) !== pdText(t.pd) ? ` (alone ${pdText(t.pd_alone)})` : '')) : null,
         t.masked_by ? h('span', {}, `masked by ${t.masked_by}`) : null,
         t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null,
         t.doppler_hz ? h('span', { class: 'dop', title: 'Doppler shift of the echo, and the shift of its compressed peak in range (range–Doppler coupling)' },

@@ -1,0 +1,260 @@
+package scenarios
+
+import (
+	"fmt"
+	"math"
+	"math/cmplx"
+	"strconv"
+
+	"github.com/pulsewright/pulsewright/dsp"
+)
+
+// Probability of detection of a point target in the scene
+// (docs/detection-probability.md §6). The tested SNR is the target's own
+// noise-free power at its peak cell over the noise there (verdict.peak):
+// the single-pulse SNR after every stated loss, straddle included, or on
+// a range–Doppler map the integrated SNR of a coherent train.
+
+// pdTest is the dsp detector that models one target's test, and the SNR
+// (linear, at the tested cell) it is fed.
+type pdTest struct {
+	det dsp.Detector
+	snr float64
+	// ev, when set, are the eigenvalues of the covariance of the
+	// correlated CA-CFAR training cells (unit diagonal), and alpha the
+	// multiplier on their mean that holds Pfa; the cell under test is
+	// independent of them (docs/detection-probability.md §7).
+	ev    []float64
+	alpha float64
+}
+
+// pdTestFor returns the test of a target of fluctuation fluct whose
+// verdict is v, or false when no closed form applies: distributed targets,
+// no peak, no training cell, and Swerling 2 and 4 targets on a
+// range–Doppler map (their echo decorrelates within the train; left to
+// the Monte Carlo command).
+func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
+	if g.t.Kind != TargetPoint || v.peakK < 0 || !(v.peak > 0) || math.IsInf(v.peak, 0) {
+		return pdTest{}, false
+	}
+	sw := swerling(g.t.Fluctuation)
+	if train && (sw == dsp.Swerling2 || sw == dsp.Swerling4) {
+		return pdTest{}, false
+	}
+	d := m.s.Receiver.Detector
+	det := dsp.Detector{Pfa: d.PFA, Pulses: 1, Integration: dsp.Coherent, Swerling: sw}
+	switch d.Kind {
+	case DetectorFixed:
+	case DetectorCA:
+		det.CFARCells = v.cells
+	case DetectorOS:
+		det.CFARCells = v.cells
+		if v.cells > 0 {
+			if train {
+				det.OSRank = 1 + int(math.Round(float64(d.Rank-1)/float64(d.TrainingCells)*float64(v.cells)))
+			} else {
+				det.OSRank = int(math.Round(float64(d.Rank) * float64(v.cells) / float64(d.TrainingCells)))
+			}
+			det.OSRank = min(max(det.OSRank, 1), v.cells)
+		}
+	default:
+		// Greatest-of, smallest-of and censored CFARs: no series here yet.
+		return pdTest{}, false
+	}
+	if d.Kind != DetectorFixed && v.cells == 0 {
+		return pdTest{}, false
+	}
+	if det.Validate() != nil {
+		return pdTest{}, false
+	}
+	t := pdTest{det: det, snr: v.peak}
+	if d.Kind == DetectorCA && !train {
+		t.ev, t.alpha = m.correlatedCells(v.peakK)
+	}
+	return t, true
+}
+
+// correlatedCells returns the eigenvalues of the noise covariance of the
+// CA-CFAR training cells used at gate k and the multiplier that holds Pfa
+// for them, when those cells are correlated with one another but not with
+// the cell under test (every training offset beyond the noise correlation);
+// otherwise nil.
+func (m *model) correlatedCells(k int) ([]float64, float64) {
+	rho := m.noiseCorrelation()
+	cf := m.detector()
+	offs := cf.Cells(nil, k, m.n, m.processed)
+	if len(offs) == 0 || len(rho) < 2 {
+		return nil, 0
+	}
+	corr := false
+	for i, a := range offs {
+		if a > -len(rho) && a < len(rho) {
+			return nil, 0 // the cell under test shares noise with a training cell
+		}
+		if i > 0 && a-offs[i-1] < len(rho) {
+			corr = true
+		}
+	}
+	if !corr {
+		return nil, 0
+	}
+	lag := func(l int) complex128 {
+		switch {
+		case l >= len(rho) || -l >= len(rho):
+			return 0
+		case l < 0:
+			return cmplx.Conj(rho[-l])
+		}
+		return rho[l]
+	}
+	ev := dsp.HermitianEigenvalues(len(offs), func(i, j int) complex128 { return lag(offs[j] - offs[i]) })
+	if ev == nil {
+		return nil, 0
+	}
+	for i, e := range ev {
+		ev[i] = max(e, 0) // rounding below zero
+	}
+	return ev, dsp.CorrelatedCAMultiplier(m.s.Receiver.Detector.PFA, ev)
+}
+
+// pdCorrelated returns the Pd of t at SNR snr against r times the
+// nominal threshold, for the correlated-cell case.
+func (t pdTest) pdCorrelated(snr, r float64) float64 {
+	return t.det.PdCorrelatedCA(snr, r*t.alpha, t.ev)
+}
+
+// requiredSNR returns the SNR (linear) at which t reaches pd against noise
+// alone.
+func (t pdTest) requiredSNR(pd float64) (float64, error) {
+	if t.ev == nil {
+		return t.det.RequiredSNR(pd)
+	}
+	lo, hi := -60.0, 200.0
+	if t.pdCorrelated(dsp.FromDB(hi), 1) < pd {
+		return 0, fmt.Errorf("Pd %g needs more than %g dB", pd, hi)
+	}
+	for hi-lo > 1e-9 {
+		mid := (lo + hi) / 2
+		if t.pdCorrelated(dsp.FromDB(mid), 1) < pd {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return dsp.FromDB((lo + hi) / 2), nil
+}
+
+// logPfaRaised returns the natural log of the false-alarm probability of
+// t's detector when its threshold multiplier is r ≥ 1 times the nominal
+// one, with independent exponential reference cells.
+func (t pdTest) logPfaRaised(r float64) float64 {
+	d := t.det
+	m := float64(d.CFARCells)
+	switch {
+	case d.CFARCells == 0:
+		return r * math.Log(d.Pfa) // exp(−r·T), T = −ln Pfa
+	case d.OSRank > 0:
+		a := dsp.OSMultiplier(d.Pfa, d.CFARCells, d.OSRank)
+		return math.Log(dsp.OSPfa(r*a, d.CFARCells, d.OSRank))
+	}
+	c := math.Expm1(-math.Log(d.Pfa) / m) // multiplier on the reference sum
+	return -m * math.Log1p(r*c)
+}
+
+// pdBelow is the Pd reported as 0: a target whose Pd against a raised
+// threshold is below it even at the smallest false-alarm probability the
+// series reaches.
+const pdBelow = 1e-9
+
+// pd returns t's Pd against a threshold raised r ≥ 1 times above the one
+// the detector sets against noise alone (the scene's extra power in the
+// training cells, or a neighbour's power at the cell). The raised
+// threshold is the nominal one of a detector of smaller Pfa, so Pd is the
+// exact series at that Pfa. ok is false when the series cannot reach the
+// raised threshold and Pd is not below pdBelow there.
+func (t pdTest) pd(r float64) (float64, bool) {
+	if !(r >= 1) || math.IsInf(r, 1) {
+		return 0, false
+	}
+	if t.ev != nil {
+		return t.pdCorrelated(t.snr, r), true
+	}
+	d := t.det
+	if d.CFARCells == 0 && r > 1 {
+		return knownNoisePd(d.Swerling, t.snr, -r*math.Log(d.Pfa)), true
+	}
+	if r > 1 {
+		lp := t.logPfaRaised(r)
+		d.Pfa = math.Exp(lp)
+		if lp < math.Log(1e-300) || d.Validate() != nil {
+			// Beyond the series: an upper bound at a reachable Pfa
+			// above the true one.
+			for _, p := range []float64{1e-300, 1e-200, 1e-100, 1e-50, 1e-30, 1e-20, 1e-15, 1e-12} {
+				d.Pfa = p
+				if p >= math.Exp(lp) && d.Validate() == nil {
+					if d.Pd(t.snr) < pdBelow {
+						return 0, true
+					}
+					break
+				}
+			}
+			return 0, false
+		}
+	}
+	return d.Pd(t.snr), true
+}
+
+// pdFigures sets pd, pd_alone, snr_required_db and pd_margin_db of a
+// point target with verdict v; alone is the threshold of its cell with
+// the other targets removed (its own sidelobes kept).
+func (m *model) pdFigures(g *tgt, v verdict, alone float64, train bool, out *TargetReport) {
+	if v.status == StatusOutOfWindow || g.rejected || !(v.noiseLevel > 0) {
+		return
+	}
+	t, ok := m.pdTestFor(g, v, train)
+	if !ok {
+		return
+	}
+	if p, ok := t.pd(math.Max(v.threshold/v.noiseLevel, 1)); ok && p >= 0 && p <= 1 {
+		out.Pd = &p
+	}
+	if p, ok := t.pd(math.Max(alone/v.noiseLevel, 1)); ok && p >= 0 && p <= 1 {
+		out.PdAlone = &p
+	}
+	if req, err := t.requiredSNR(m.s.Receiver.Detector.PdRequired); err == nil {
+		rdb := dsp.DB(req)
+		mdb := dsp.DB(t.snr) - rdb
+		if !math.IsInf(rdb, 0) && !math.IsNaN(rdb) && !math.IsInf(mdb, 0) && !math.IsNaN(mdb) {
+			out.SNRRequiredDB, out.PdMarginDB = &rdb, &mdb
+		}
+	}
+}
+
+// PdText formats a probability of detection for people: three decimals,
+// "> 0.999" and "< 0.001" at the ends (never a rounded 1 or 0).
+func PdText(p float64) string {
+	switch {
+	case p >= 0.9995:
+		return "> 0.999"
+	case p < 0.0005:
+		return "< 0.001"
+	}
+	return strconv.FormatFloat(p, 'f', 3, 64)
+}
+
+// knownNoisePd returns the Pd of one square-law test of a target of SNR
+// chi (linear) against the threshold T in units of the noise power, for
+// any threshold (no Pfa to underflow): steady, Q_1(√(2χ), √(2T)) (Marcum);
+// Swerling 1 and 2, exp(−T/(1+χ)); Swerling 3 and 4,
+// exp(−T/(1+χ/2))·(1 + (χ/2)·T/(1+χ/2)²) (Richards, Fundamentals of Radar
+// Signal Processing, 2nd ed., §6.3 and Table 6.1, one pulse).
+func knownNoisePd(swerling int, chi, T float64) float64 {
+	switch swerling {
+	case dsp.Swerling1, dsp.Swerling2:
+		return math.Exp(-T / (1 + chi))
+	case dsp.Swerling3, dsp.Swerling4:
+		x := chi / 2
+		return math.Exp(-T/(1+x)) * (1 + x*T/((1+x)*(1+x)))
+	}
+	return dsp.MarcumQ(1, math.Sqrt(2*chi), math.Sqrt(2*T))
+}
