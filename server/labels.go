@@ -81,7 +81,8 @@ type maskingItem struct {
 // lie in the window, a segment from the masker's peak to the masked
 // target's range at the noise-free profile's level there (the masker's
 // response plus the target's own), labelled "<masker>'s response masks
-// <target>".
+// <target>". A target masked by its own response gets no segment: its
+// card and reason say so.
 func maskingData(res *scenarios.Result, g grid) []byte {
 	s := &res.Series
 	last := g.x(max(g.n-1, 0))
@@ -93,7 +94,7 @@ func maskingData(res *scenarios.Result, g grid) []byte {
 	var items []maskingItem
 	for _, t := range res.Report.Targets {
 		m, ok := byID[t.MaskedBy]
-		if t.Status != scenarios.StatusMasked || !ok || !in(t.RangeM) || !in(m.RangeM) || len(s.CleanDB) == 0 {
+		if t.Status != scenarios.StatusMasked || !ok || t.MaskedBy == t.ID || !in(t.RangeM) || !in(m.RangeM) || len(s.CleanDB) == 0 {
 			continue
 		}
 		k := min(g.index(t.RangeM), len(s.CleanDB)-1)
