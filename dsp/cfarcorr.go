@@ -136,22 +136,7 @@ func CorrelatedCAMultiplier(pfa float64, lambda []float64) float64 {
 	if !pos {
 		panic("dsp: correlated CA multiplier needs a positive eigenvalue")
 	}
-	lo, hi := 1e-12, 1.0
-	for CorrelatedCAPfa(hi, lambda) > pfa {
-		hi *= 2
-	}
-	for range 200 {
-		mid := math.Sqrt(lo * hi)
-		if CorrelatedCAPfa(mid, lambda) > pfa {
-			lo = mid
-		} else {
-			hi = mid
-		}
-		if hi-lo <= 1e-12*hi {
-			break
-		}
-	}
-	return math.Sqrt(lo * hi)
+	return solvePfa(pfa, func(a float64) float64 { return CorrelatedCAPfa(a, lambda) })
 }
 
 // EffectiveCells returns N²/Σ_ij |R_ij|² for the n×n correlation matrix r:

@@ -48,22 +48,7 @@ func OSMultiplier(pfa float64, n, k int) float64 {
 	if k < 1 || k > n {
 		panic("dsp: ordered-statistic rank out of range")
 	}
-	lo, hi := 1e-12, 1.0
-	for OSPfa(hi, n, k) > pfa {
-		hi *= 2
-	}
-	for range 200 {
-		mid := math.Sqrt(lo * hi)
-		if OSPfa(mid, n, k) > pfa {
-			lo = mid
-		} else {
-			hi = mid
-		}
-		if hi-lo <= 1e-12*hi {
-			break
-		}
-	}
-	return math.Sqrt(lo * hi)
+	return solvePfa(pfa, func(a float64) float64 { return OSPfa(a, n, k) })
 }
 
 func checkPFA(pfa float64, n int) {
