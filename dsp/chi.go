@@ -215,25 +215,7 @@ func (c *Chi) sampledFigures() ChiFigures {
 	}
 	f := ChiFigures{Peak: peak, PeakDelay: (pos - c.lag0) * c.step, EnergyU: c.eu, EnergyH: c.eh}
 	f.MismatchLossDB = math.Max(0, 10*math.Log10(c.eu*c.eh/(peak*peak)))
-	lo, hi := ip, ip
-	for lo > 0 && mag[lo-1] < mag[lo] {
-		lo--
-	}
-	for hi < len(mag)-1 && mag[hi+1] < mag[hi] {
-		hi++
-	}
-	var side, main, sideMax float64
-	iSide := -1
-	for i, v := range mag {
-		if i >= lo && i <= hi {
-			main += v * v
-			continue
-		}
-		side += v * v
-		if v > sideMax {
-			sideMax, iSide = v, i
-		}
-	}
+	_, _, main, side, sideMax, iSide := splitLobes(mag, ip)
 	r := response{mag: mag}
 	f.Mainlobe3dB = (r.cross(ip, +1, peak/math.Sqrt2) - r.cross(ip, -1, peak/math.Sqrt2)) * c.step
 	if iSide >= 0 {

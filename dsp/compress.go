@@ -88,25 +88,7 @@ func (r response) figures(pulse, ref []complex128, lead int, fs, bandwidth float
 	mag := r.mag
 	ip := argmax(mag)
 	peakPos, peak := r.refine(ip)
-	lo, hi := ip, ip
-	for lo > 0 && mag[lo-1] < mag[lo] {
-		lo--
-	}
-	for hi < len(mag)-1 && mag[hi+1] < mag[hi] {
-		hi++
-	}
-	var side, main, sideMax float64
-	iSide := -1
-	for i, v := range mag {
-		if i >= lo && i <= hi {
-			main += v * v
-			continue
-		}
-		side += v * v
-		if v > sideMax {
-			sideMax, iSide = v, i
-		}
-	}
+	lo, hi, main, side, sideMax, iSide := splitLobes(mag, ip)
 	if iSide >= 0 {
 		_, sideMax = r.refine(iSide)
 		fig.PSLRDB = 20 * math.Log10(sideMax/peak)
@@ -287,4 +269,31 @@ func interpolate(z []complex128, up int) []complex128 {
 		out[i] *= inv
 	}
 	return out
+}
+
+// splitLobes divides a response magnitude mag (linear, not squared) at its
+// peak index ip into the main lobe, which runs from ip down to the first
+// local minimum on each side, [lo, hi], and the sidelobes outside it. It
+// returns the main lobe's bounds, the sums of mag² over the main lobe and
+// over the sidelobes, and the highest sidelobe sample sideMax at index
+// iSide (−1 and 0 when there is no sidelobe).
+func splitLobes(mag []float64, ip int) (lo, hi int, main, side, sideMax float64, iSide int) {
+	lo, hi, iSide = ip, ip, -1
+	for lo > 0 && mag[lo-1] < mag[lo] {
+		lo--
+	}
+	for hi < len(mag)-1 && mag[hi+1] < mag[hi] {
+		hi++
+	}
+	for i, v := range mag {
+		if i >= lo && i <= hi {
+			main += v * v
+			continue
+		}
+		side += v * v
+		if v > sideMax {
+			sideMax, iSide = v, i
+		}
+	}
+	return lo, hi, main, side, sideMax, iSide
 }
