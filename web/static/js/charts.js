@@ -5,6 +5,7 @@
 
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
+import { axisPatch, axisUnits, format, restate, signed } from './units.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
 const SecondaryMs = 100; // plots other than the profile redraw at most this often while frames stream
@@ -160,7 +161,10 @@ export class Plots {
     const chart = this.charts[name];
     const t0 = performance.now();
     this.drawnAt[name] = t0;
-    if (entry.replace) spaceAxisLabels(entry.option, chart.getWidth());
+    if (entry.replace) {
+      spaceAxisLabels(entry.option, chart.getWidth());
+      axisUnits(entry.option);
+    }
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     // Paint now, inside this animation frame, instead of waiting for the
     // renderer's own loop to notice on the next one.
@@ -210,6 +214,15 @@ export class Plots {
     if (this.selected(document.getElementById('panel-right')) === 'rdcuts') this.select('response');
   }
 
+  // Redraw the range and range-rate axes of every drawn chart in the
+  // units now chosen (units.js); options held back get them when drawn.
+  applyUnits() {
+    for (const chart of Object.values(this.charts)) {
+      const o = chart.getOption();
+      if (o && (o.xAxis || o.yAxis)) chart.setOption(axisPatch(o));
+    }
+  }
+
   // Forget the selected map cell: the cuts pane goes back to its hint.
   clearCell() {
     this.charts.rdcuts.clear();
@@ -235,11 +248,11 @@ export class Plots {
       const v = c.y[p.data[1]];
       const lambda = this.wavelength();
       const fd = lambda > 0 ? (-2 * v) / lambda : NaN;
-      return `${num(r, 1)} m · ${num(v, 1)} m/s · ${num(fd, 0)} Hz\n${num(p.data[2], 1)} dB re noise`;
+      return `${format('range', r, 1)} · ${signed(v, 1)} · ${num(fd, 0)} Hz\n${num(p.data[2], 1)} dB re noise`;
     }
     if (p.seriesId === 'markers' && p.data) {
       const d = p.data;
-      return `${plain(d.id)} · ${String(d.status).replace(/_/g, ' ')}\n${num(d.value[0], 1)} m · ${num(d.value[1], 1)} m/s\n${wrap(d.reason || '')}`;
+      return `${plain(d.id)} · ${String(d.status).replace(/_/g, ' ')}\n${format('range', d.value[0], 1)} · ${signed(d.value[1], 1)}\n${wrap(restate(d.reason || ''))}`;
     }
     return 'selected cell: its cuts are in the “Map cuts” tab';
   }
@@ -247,7 +260,7 @@ export class Plots {
   ambiguityTip(p) {
     if (!Array.isArray(p.data)) return '';
     const c = this.cats.ambiguity;
-    return `delay ${num(c.x[p.data[0]], 1)} m · Doppler ${num(c.y[p.data[1]], 3)} kHz\n${num(p.data[2], 1)} dB re peak`;
+    return `delay ${format('range', c.x[p.data[0]], 1)} · Doppler ${num(c.y[p.data[1]], 3)} kHz\n${num(p.data[2], 1)} dB re peak`;
   }
 
   // A click in the map asks for cuts through that cell.

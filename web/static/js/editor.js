@@ -8,6 +8,7 @@ import {
   newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
 } from './schema.js';
 import { describeFields, fieldName } from './words.js';
+import { fieldText, notValue, parse, rangeError, restate, unitLabel, units } from './units.js';
 
 export class Editor {
   // roots: {targets, radar, pulse, receive, scene} elements.
@@ -51,6 +52,7 @@ export class Editor {
       const nums = parts.map((p) => fromDisplay(p, 1, false));
       return nums.some((n) => Number.isNaN(n)) ? NaN : nums;
     }
+    if (el.dataset.qty) return parse(el.dataset.qty, el.value);
     return fromDisplay(el.value, Number(el.dataset.scale || 1), type === 'int');
   }
 
@@ -62,7 +64,7 @@ export class Editor {
     if (typeof v === 'number' && Number.isNaN(v) || Array.isArray(v) && v.some(Number.isNaN)) {
       this.setLocalError(path, el.dataset.type === 'phases'
         ? `“${el.value.trim()}” is not a list of numbers (degrees, separated by commas or spaces)`
-        : `“${el.value.trim()}” is not a number`);
+        : el.dataset.qty ? notValue(el.dataset.qty, el.value) : `“${el.value.trim()}” is not a number`);
       return;
     }
     this.setLocalError(path, '');
@@ -245,7 +247,7 @@ export class Editor {
         continue;
       }
       const text = el.dataset.type === 'phases' ? (v || []).join(', ')
-        : el.dataset.sci ? sciDisplay(v) : toDisplay(v, Number(el.dataset.scale || 1));
+        : el.dataset.qty ? fieldText(el.dataset.qty, v) : el.dataset.sci ? sciDisplay(v) : toDisplay(v, Number(el.dataset.scale || 1));
       if (el.value !== text) {
         el.value = text;
         if (this.localErrors.has(el.dataset.path)) this.setLocalError(el.dataset.path, '');
@@ -255,6 +257,7 @@ export class Editor {
 
   // A labelled input for field fd of the object at base.
   field(s, base, fd) {
+    if (fd.qty) fd = { ...fd, unit: unitLabel(fd.qty), hint: fd.hint || (fd.def !== undefined ? fieldText(fd.qty, fd.def) : '') };
     const path = base ? `${base}.${fd.key}` : fd.key;
     const v = getPath(s, path);
     const hint = fd.hint || (fd.def !== undefined ? toDisplay(fd.def, fd.scale) : '');
@@ -278,6 +281,10 @@ export class Editor {
         placeholder: fd.sci && fd.def !== undefined ? sciDisplay(fd.def) : hint, value: fd.sci ? sciDisplay(v) : toDisplay(v, fd.scale),
       });
       if (fd.sci) input.dataset.sci = '1';
+      if (fd.qty) {
+        input.dataset.qty = fd.qty;
+        input.value = fieldText(fd.qty, v);
+      }
     }
     input.id = `f-${path.replace(/[^\w]/g, '_')}`;
     return h('div', { class: fd.wide ? 'field wide' : 'field' },
@@ -353,9 +360,9 @@ export class Editor {
 
   targetRow(t, i) {
     const lk = levelKey(t.kind);
-    const num = (key, scale = 1, cls = '') => h('input', {
-      type: 'text', inputmode: 'decimal', autocomplete: 'off', class: cls, value: toDisplay(t[key], scale),
-      dataset: { path: `targets[${i}].${key}`, type: 'num', scale: String(scale), optional: '1' },
+    const num = (key, qty = '') => h('input', {
+      type: 'text', inputmode: 'decimal', autocomplete: 'off', value: qty ? fieldText(qty, t[key]) : toDisplay(t[key], 1),
+      dataset: { path: `targets[${i}].${key}`, type: 'num', scale: '1', optional: '1', qty: qty || undefined },
       'aria-label': `${t.id} ${key}`,
     });
     const rep = this.reportTargets.length === (this.store.scenario.targets || []).length ? this.reportTargets[i] : this.status.get(t.id);
@@ -364,12 +371,12 @@ export class Editor {
     level.dataset.level = String(i);
     level.title = `${levelName[t.kind]} in ${levelUnit[t.kind]}: wheel, or ↑/↓ while this field has the focus, nudges it by 1 dB (Shift: 0.1 dB)`;
     level.setAttribute('aria-label', `${t.id} ${levelName[t.kind]} (${levelUnit[t.kind]})`);
-    const range = num(t.kind === 'point' ? 'range_m' : 'range_start_m');
-    range.setAttribute('aria-label', `${t.id} ${t.kind === 'point' ? 'range' : 'near edge'} (m)`);
-    range.title = t.kind === 'point' ? 'Range, m' : 'Near edge of the target, m (the far edge is in the form below)';
-    const rate = num('range_rate_mps');
-    rate.setAttribute('aria-label', `${t.id} range rate (m/s)`);
-    rate.title = 'Range rate, m/s (negative: closing)';
+    const range = num(t.kind === 'point' ? 'range_m' : 'range_start_m', 'range');
+    range.setAttribute('aria-label', `${t.id} ${t.kind === 'point' ? 'range' : 'near edge'} (${unitLabel('range')})`);
+    range.title = t.kind === 'point' ? `Range, ${unitLabel('range')}` : `Near edge of the target, ${unitLabel('range')} (the far edge is in the form below)`;
+    const rate = num('range_rate_mps', 'rate');
+    rate.setAttribute('aria-label', `${t.id} range rate (${unitLabel('rate')})`);
+    rate.title = `Range rate, ${unitLabel('rate')}`;
     return h('tr', { class: i === this.selected ? 'sel' : '', dataset: { row: String(i) } },
       h('td', {}, h('span', { class: `dot st-${st || 'none'}`, title: st ? st.replace('_', ' ') : 'not evaluated' })),
       h('td', {}, h('input', { type: 'text', class: 'id', value: t.id, autocomplete: 'off', spellcheck: 'false', title: t.id,
@@ -391,13 +398,13 @@ export class Editor {
     if (!t) return h('p', { class: 'muted' }, 'No targets. Add one to start.');
     const base = `targets[${i}]`;
     const fds = t.kind === 'point'
-      ? [{ key: 'range_m', label: 'Range', unit: 'm' }, { key: 'rcs_dbsm', label: 'RCS', unit: 'dBsm' },
-        { key: 'range_rate_mps', label: 'Range rate', unit: 'm/s', def: 0 },
+      ? [{ key: 'range_m', label: 'Range', qty: 'range' }, { key: 'rcs_dbsm', label: 'RCS', unit: 'dBsm' },
+        { key: 'range_rate_mps', label: 'Range rate', qty: 'rate', def: 0 },
         { key: 'fluctuation', label: 'Fluctuation', type: 'select', options: fluctuations, def: 'none' }]
-      : [{ key: 'range_start_m', label: 'Near edge', unit: 'm' }, { key: 'range_stop_m', label: 'Far edge', unit: 'm' },
+      : [{ key: 'range_start_m', label: 'Near edge', qty: 'range' }, { key: 'range_stop_m', label: 'Far edge', qty: 'range' },
         { key: levelKey(t.kind), label: t.kind === 'extended' ? 'RCS per metre' : 'Reflectivity', unit: levelUnit[t.kind] },
-        { key: 'range_rate_mps', label: 'Range rate', unit: 'm/s', def: 0 },
-        { key: 'velocity_spread_mps', label: 'Velocity spread', unit: 'm/s rms', def: 0 }];
+        { key: 'range_rate_mps', label: 'Range rate', qty: 'rate', def: 0 },
+        { key: 'velocity_spread_mps', label: 'Velocity spread (rms)', qty: 'speed', def: 0 }];
     return h('div', { class: 'detail' },
       h('div', { class: 'detail-head' }, `Target “${t.id}” · ${kindTitle[t.kind]}`),
       h('div', { class: 'err block', dataset: { errFor: base } }),
@@ -426,10 +433,10 @@ export class Editor {
       h('table', { class: 'targets' },
         h('thead', {}, h('tr', {},
           h('th', {}, ''), head('Target', '', 'Target id'), head('Kind', '', 'point, extended (ext.) or volume (vol.)'),
-          head('Range', '(m)', 'Range of a point target, near edge of an extended or volume target, in metres'),
+          head('Range', `(${unitLabel('range')})`, `Range of a point target, near edge of an extended or volume target, in ${unitLabel('range')}`),
           one ? head(levelShort[one], `(${levelUnit[one]})`, `${levelName[one]} in ${levelUnit[one]}`)
             : head('Level', '(per row)', 'RCS of a point target (dBsm), RCS per metre of an extended one (dBsm/m), reflectivity of a volume (dBZ)'),
-          head('Rate', '(m/s)', 'Range rate in metres per second; negative: closing'), h('th', {}, ''))),
+          head('Rate', `(${unitLabel('rate')})`, `Range rate in ${unitLabel('rate')}: positive when the range ${units().rate === 'closing' ? 'shrinks' : 'grows'}`), h('th', {}, ''))),
         h('tbody', {}, targets.map((t, i) => this.targetRow(t, i)))),
       h('div', { class: 'row-actions' },
         h('button', { type: 'button', dataset: { act: 'add' } }, '+ Add target'),
@@ -459,7 +466,7 @@ export class Editor {
       if (!dot) return;
       const st = rep ? rep.status : 'none';
       dot.className = `dot st-${st}`;
-      dot.title = rep ? `${st.replace('_', ' ')}: ${rep.reason}` : 'not evaluated';
+      dot.title = rep ? `${st.replace('_', ' ')}: ${restate(rep.reason)}` : 'not evaluated';
     });
   }
 
@@ -508,7 +515,8 @@ export class Editor {
         orphans.push(describeFields([fe], this.store.scenario));
         continue;
       }
-      const text = path === fe.path ? inUnits(fe.message, slots[0]) : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
+      const qin = path === fe.path && $$(`[data-path="${CSS.escape(fe.path)}"][data-qty]`)[0];
+      const text = qin ? rangeError(qin.dataset.qty, fe.message) : path === fe.path ? inUnits(fe.message, slots[0]) : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
       for (const slot of slots) {
         slot.textContent = slot.textContent ? `${slot.textContent}; ${text}` : text;
         // Outline the slot's own input only when the message is about it:

@@ -16,6 +16,8 @@ import { Staleness } from './stale.js';
 import { initCopyLink } from './copylink.js';
 import { Story } from './story.js';
 import { fieldName } from './words.js';
+import { onUnits, restate } from './units.js';
+import { initUnitsPick } from './unitspick.js';
 
 const DefaultDemo = 'harbour-skiff';
 
@@ -279,7 +281,7 @@ function hoverCard(hit) {
   nums.textContent = `SNR ${t.snr_db.toFixed(1)} dB` + (t.margin_db !== undefined ? ` · margin ${t.margin_db.toFixed(1)} dB` : '')
     + (t.masked_by ? ` · masked by ${t.masked_by}` : '');
   const reason = document.createElement('div');
-  reason.textContent = t.reason;
+  reason.textContent = restate(t.reason);
   const tip = document.createElement('div');
   tip.className = 'hc-tip';
   tip.textContent = 'drag to move · wheel to change RCS';
@@ -430,6 +432,16 @@ initLibrary({ store, notice, onOpen: () => { pushNextLink = true; } });
 // The footer names the engine, as reports and exports do.
 api.version().then((v) => { $('#engine').textContent = v.text; }).catch(() => {});
 initKeys({ store, editor, lastFrame: () => lastFrame, profile: $('#chart-profile') });
+
+// Units: the editor, the panels and the plots' axes follow a new choice.
+initUnitsPick($('#conn'));
+onUnits(() => {
+  editor.shape = '';
+  if (store.scenario) editor.render(store.scenario);
+  if (panelFrame) drawPanels();
+  plots.applyUnits();
+  refreshStale();
+});
 
 // --- start ---
 

@@ -18,8 +18,8 @@ export const radarFields = [
   f('sample_rate_hz', 'Sample rate', 'MHz', 1e6, 'num', { hint: '2 × B' }),
   f('pri_s', 'PRI', 'µs', 1e-6, 'num', { def: 1e-3 }),
   f('pulses', 'Pulses', '', 1, 'int', { def: 1 }),
-  f('window_start_m', 'Window start', 'm', 1, 'num', { def: 0 }),
-  f('window_stop_m', 'Window stop', 'm', 1, 'num', { hint: 'c·PRI/2' }),
+  f('window_start_m', 'Window start', 'm', 1, 'num', { def: 0, qty: 'range' }),
+  f('window_stop_m', 'Window stop', 'm', 1, 'num', { hint: 'c·PRI/2', qty: 'range' }),
   f('beamwidth_az_deg', 'Beamwidth az', '°', 1, 'num', { def: 2 }),
   f('beamwidth_el_deg', 'Beamwidth el', '°', 1, 'num', { def: 2 }),
 ];
