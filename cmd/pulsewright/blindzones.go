@@ -18,12 +18,13 @@ func (e *env) blindzones(args []string) error {
 	tau := fs.Float64("tau", 0, "transmitted pulse width, s")
 	carrier := fs.Float64("carrier", 0, "carrier frequency, Hz")
 	m := fs.Int("m", 0, "CPIs that must see a target (M-of-N); 0: all")
-	rng := fs.String("range", "", "ranges to map, MIN:MAX in m (default 0 to the longest PRI's unambiguous range × 2)")
-	rate := fs.Float64("rate", 0, "range rates to map, ± this many m/s (default the first blind speed of the schedule, or 1000)")
+	rng := fs.String("range", "", "ranges to map, MIN:MAX in m, or in the --units range unit (default 0 to the longest PRI's unambiguous range × 2)")
+	rate := fs.String("rate", "", "range rates to map, ± this many m/s, or in the --units speed unit (default 1000 m/s)")
 	cells := fs.String("cells", "100x40", "map size, RANGExRATE cells")
 	eclipse := fs.Float64("eclipse", 0.5, "a target is eclipsed when this fraction of its echo or more overlaps a transmit pulse")
 	format := fs.String("format", "table", "output: table (characters), csv (one row per cell) or html (a self-contained page)")
 	out := fs.String("o", "", "write to this file instead of standard output")
+	unitsText := unitsFlag(fs)
 	pos, err := parseFlags(fs, args)
 	if err != nil {
 		return err
@@ -34,7 +35,18 @@ func (e *env) blindzones(args []string) error {
 	if *format != "table" && *format != "csv" && *format != "html" {
 		return usageError{fmt.Sprintf("--format %q is not table, csv or html", *format)}
 	}
-	spec := scenarios.BlindZoneSpec{PulseS: *tau, CarrierHz: *carrier, M: *m, RateMaxMPS: *rate, EclipseFraction: *eclipse}
+	u, err := parseUnitsFlag(*unitsText, *format == "table", "it applies to --format table; csv and html keep SI")
+	if err != nil {
+		return err
+	}
+	spec := scenarios.BlindZoneSpec{PulseS: *tau, CarrierHz: *carrier, M: *m, EclipseFraction: *eclipse}
+	if *rate != "" {
+		v, err := u.Parse(scenarios.QSpeed, *rate)
+		if err != nil {
+			return usageError{fmt.Sprintf("--rate: %v", err)}
+		}
+		spec.RateMaxMPS = v
+	}
 	if spec.PRIs, err = floatList("--pri", *pri); err != nil {
 		return err
 	}
@@ -59,14 +71,14 @@ func (e *env) blindzones(args []string) error {
 		spec.RangeMinM, spec.RangeMaxM = 0, 2*299792458*longest/2
 	} else {
 		lo, hi, ok := strings.Cut(*rng, ":")
-		a, err1 := strconv.ParseFloat(lo, 64)
-		b, err2 := strconv.ParseFloat(hi, 64)
+		a, err1 := u.Parse(scenarios.QRange, lo)
+		b, err2 := u.Parse(scenarios.QRange, hi)
 		if !ok || err1 != nil || err2 != nil {
-			return usageError{fmt.Sprintf("--range %q is not MIN:MAX in m", *rng)}
+			return usageError{fmt.Sprintf("--range %q is not MIN:MAX in %s", *rng, u.Range)}
 		}
 		spec.RangeMinM, spec.RangeMaxM = a, b
 	}
-	if *rate == 0 {
+	if *rate == "" {
 		spec.RateMaxMPS = 1000
 	}
 	if *eclipse == 0 {
@@ -83,7 +95,7 @@ func (e *env) blindzones(args []string) error {
 		case "html":
 			return b.WriteHTML(w)
 		}
-		return b.WriteText(w)
+		return b.WriteTextIn(w, u)
 	}
 	if *out != "" {
 		return writeFile(*out, write)
