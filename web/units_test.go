@@ -1,10 +1,13 @@
 package web_test
 
 import (
+	"context"
+	"fmt"
 	"strings"
 	"testing"
 
 	"github.com/chromedp/chromedp"
+	"github.com/chromedp/chromedp/kb"
 )
 
 // The units control, with real key and mouse events: the page shows and
@@ -14,6 +17,17 @@ import (
 // Monaco 1929; BIPM SI Brochure, 9th ed., Table 8) and 1 kt = 1852/3600
 // m/s (the same sources).
 
+// pickDown chooses an option of one of the units lists with the
+// keyboard: the focus on the list, then ↓ n times.
+func pickDown(t *testing.T, ctx context.Context, list string, n int) {
+	t.Helper()
+	sel := fmt.Sprintf(`select[data-units=%q]`, list)
+	do(t, ctx, chromedp.Focus(chromedp.CSS(sel)))
+	for range n {
+		do(t, ctx, chromedp.KeyEvent(kb.ArrowDown))
+	}
+}
+
 func TestUnitsNauticalRoundTrip(t *testing.T) {
 	ctx := mustBrowser(t)
 	url := mustServer(t)
@@ -21,21 +35,34 @@ func TestUnitsNauticalRoundTrip(t *testing.T) {
 
 	// Open the control with a click and choose nmi and kt with the keyboard.
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#units-pick summary`)))
-	do(t, ctx, chromedp.Focus(chromedp.CSS(`select[data-units="range"]`)), chromedp.SendKeys(chromedp.CSS(`select[data-units="range"]`), "nmi"))
-	do(t, ctx, chromedp.Focus(chromedp.CSS(`select[data-units="speed"]`)), chromedp.SendKeys(chromedp.CSS(`select[data-units="speed"]`), "kt"))
-	waitFor(t, ctx, "the table in nmi and kt", `document.querySelector('table.targets thead').textContent.includes('(nmi)') && document.querySelector('table.targets thead').textContent.includes('(kt, opening +)')`)
+	pickDown(t, ctx, "range", 2) // m, km, nmi
+	pickDown(t, ctx, "speed", 2) // m/s, km/h, kt
+	waitFor(t, ctx, "the table in nmi and kt", `document.querySelector('table.targets thead').textContent.includes('(nmi)') && document.querySelector('table.targets thead').textContent.includes('Rate(kt)')`)
 	shot(t, ctx, "picked")
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#figures`))) // closes the control
 
-	// The skiff at 6300 m shows as 6300/1852 nmi (12 significant digits).
+	// The skiff at 6300 m shows as 6300/1852 nmi: 7 significant digits in
+	// the table, 12 in the selected target's form.
 	const skiffRange = `tr[data-row="1"] input[data-path="targets[1].range_m"]`
 	const skiffRate = `tr[data-row="1"] input[data-path="targets[1].range_rate_mps"]`
-	if got := eval[string](t, ctx, `document.querySelector('`+skiffRange+`').value`); got != "3.40172786177" {
-		t.Errorf("skiff range field = %q, want 3.40172786177 (6300 m / 1852)", got)
+	if got := eval[string](t, ctx, `document.querySelector('`+skiffRange+`').value`); got != "3.401728" {
+		t.Errorf("skiff range cell = %q, want 3.401728 (6300 m / 1852)", got)
 	}
 	// −2 m/s is −2·3600/1852 kt.
-	if got := eval[string](t, ctx, `document.querySelector('`+skiffRate+`').value`); got != "-3.88768898488" {
-		t.Errorf("skiff rate field = %q, want -3.88768898488 (−2 m/s · 3600/1852)", got)
+	if got := eval[string](t, ctx, `document.querySelector('`+skiffRate+`').value`); got != "-3.887689" {
+		t.Errorf("skiff rate cell = %q, want -3.887689 (−2 m/s · 3600/1852)", got)
+	}
+	do(t, ctx, chromedp.Click(chromedp.CSS(`tr[data-row="1"] .kind`)), chromedp.KeyEvent(kb.Escape))
+	waitFor(t, ctx, "the skiff's form", `document.querySelector('.detail-head').textContent.includes('skiff')`)
+	if got := eval[string](t, ctx, `document.querySelector('#f-targets_1__range_m').value`); got != "3.40172786177" {
+		t.Errorf("skiff range field = %q, want 3.40172786177", got)
+	}
+	// The profile's ticks are round in nmi: 2, 2.5, … 4.5 nmi over the
+	// window 3500–9000 m (1.89–4.86 nmi).
+	ticks := eval[[]string](t, ctx, `(() => { const c = window.__pw.plots.charts.profile; const a = c.getModel().getComponent('xAxis', 0);
+		return (a.option.axisLabel.customValues || []).map((v) => a.option.axisLabel.formatter(v)); })()`)
+	if strings.Join(ticks, " ") != "2 2.5 3 3.5 4 4.5" {
+		t.Errorf("profile ticks = %q, want 2 … 4.5 nmi by 0.5", ticks)
 	}
 
 	// Typed in nmi, held in metres exactly: 3.55 nmi = 6574.6 m.
@@ -77,7 +104,7 @@ func TestUnitsNauticalRoundTrip(t *testing.T) {
 
 	// Closing positive: the same scenario, the rate field's sign flips.
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#units-pick summary`)))
-	do(t, ctx, chromedp.Focus(chromedp.CSS(`select[data-units="rate"]`)), chromedp.SendKeys(chromedp.CSS(`select[data-units="rate"]`), "positive when closing"))
+	pickDown(t, ctx, "rate", 1) // opening, closing
 	waitFor(t, ctx, "the rate field closing positive", `document.querySelector('`+skiffRate+`').value === '10'`)
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#figures`)))
 	typeInto(t, ctx, skiffRate, "12")
@@ -90,8 +117,8 @@ func TestUnitsNauticalRoundTrip(t *testing.T) {
 	link := eval[string](t, ctx, `location.href`)
 	do(t, ctx, chromedp.Reload())
 	waitFor(t, ctx, "the page again", `window.__pw && window.__pw.frame() && window.__pw.frame().report`)
-	if head := eval[string](t, ctx, `document.querySelector('table.targets thead').textContent`); !strings.Contains(head, "(nmi)") || !strings.Contains(head, "(kt, closing +)") {
-		t.Errorf("after a reload the table heads read %q, want nmi and kt, closing +", head)
+	if head := eval[string](t, ctx, `document.querySelector('table.targets thead').textContent`); !strings.Contains(head, "(nmi)") || !strings.Contains(head, "Closing(kt)") {
+		t.Errorf("after a reload the table heads read %q, want nmi and closing kt", head)
 	}
 	if got := eval[string](t, ctx, `JSON.stringify(window.__pw.store.scenario)`); got != want {
 		t.Errorf("after a reload the scenario is\n%s\nwant\n%s", got, want)
@@ -109,8 +136,39 @@ func TestUnitsNauticalRoundTrip(t *testing.T) {
 	if got := eval[string](t, cctx, `document.querySelector('`+skiffRange+`').value`); got != "6574.6" {
 		t.Errorf("the colleague's skiff range field = %q, want 6574.6 (m)", got)
 	}
-	if got := eval[string](t, cctx, `document.querySelector('`+skiffRate+`').value`); got != "-6.17333333333" {
-		t.Errorf("the colleague's skiff rate field = %q, want -6.17333333333 (m/s, opening +)", got)
+	if got := eval[string](t, cctx, `document.querySelector('`+skiffRate+`').value`); got != "-6.173333" {
+		t.Errorf("the colleague's skiff rate cell = %q, want -6.173333 (m/s, opening +)", got)
 	}
 	shot(t, cctx, "colleague")
+}
+
+// TestUnitsModuleExact checks the page's own conversions (units.js)
+// against the exact definitions: 1 nmi = 1852 m (International
+// Hydrographic Conference 1929; BIPM SI Brochure, 9th ed., Table 8),
+// 1 kt = 1852/3600 m/s (the same), 1 km/h = 1000/3600 m/s, 1 ft = 0.3048 m
+// (international yard and pound agreement, 1959). A typed decimal is
+// converted exactly and rounded once: "12.3" nmi is the double nearest to
+// 22779.6 m, where 12.3 × 1852 in floating point is 22779.600000000002.
+func TestUnitsModuleExact(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	got := eval[[]string](t, ctx, `import('/js/units.js').then((u) => {
+		const N = { range: 'nmi', speed: 'kt', height: 'ft', rate: 'opening' };
+		const C = { range: 'km', speed: 'km/h', height: 'm', rate: 'closing' };
+		const cases = [
+			[u.parse('range', '1', N), 1852], [u.parse('range', '12.3', N), 22779.6], [u.parse('range', '0.1', N), 185.2],
+			[u.parse('range', '12.5', N), 23150], [u.parse('range', '2 km', N), 2000], [u.parse('range', '3 NM', C), 5556],
+			[u.parse('speed', '1', N), 1852 / 3600], [u.parse('speed', '10', N), 18520 / 3600], [u.parse('speed', '3.6', C), 1],
+			[u.parse('rate', '10', N), 18520 / 3600], [u.parse('rate', '3.6', C), -1], [u.parse('rate', '-36', C), 10],
+			[u.parse('height', '1', N), 0.3048], [u.parse('height', '1000', N), 304.8], [u.parse('height', '10000', N), 3048],
+			[u.toUser('range', 1852 * 7, N), 7], [u.toUser('height', 3048, N), 10000], [u.toUser('rate', 1, C), -3.6],
+			[u.fieldText('range', 22779.6, 12, N), '12.3'], [u.fieldText('speed', 18520 / 3600, 12, N), '10'],
+			[String(u.parse('range', '12x', N)), 'NaN'], [String(u.parse('range', '1e', N)), 'NaN'], [String(u.parse('speed', '5 m', N)), 'NaN'],
+			[String(u.parse('range', '', N)), 'undefined'],
+		];
+		return cases.map(([a, b], i) => (a === b ? '' : i + ': ' + a + ' != ' + b)).filter(Boolean);
+	})`)
+	for _, g := range got {
+		t.Errorf("units.js case %s", g)
+	}
 }

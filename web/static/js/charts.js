@@ -5,7 +5,7 @@
 
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
-import { axisPatch, axisUnits, format, restate, signed } from './units.js';
+import { axisPatch, axisUnits, format, niceTicks, restate, signed } from './units.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
 const SecondaryMs = 100; // plots other than the profile redraw at most this often while frames stream
@@ -88,6 +88,7 @@ export class Plots {
     echarts.connect('pw-range');
 
     this.charts.profile.on('datazoom', () => this.viewChanged());
+    for (const c of Object.values(this.charts)) c.on('datazoom', () => niceTicks(c));
     const ro = new ResizeObserver(() => {
       for (const c of Object.values(this.charts)) c.resize();
       this.viewChanged();
@@ -166,6 +167,7 @@ export class Plots {
       axisUnits(entry.option);
     }
     chart.setOption(entry.option, { notMerge: !!entry.replace });
+    niceTicks(chart); // round ticks in the user's units; a no-op while they hold
     // Paint now, inside this animation frame, instead of waiting for the
     // renderer's own loop to notice on the next one.
     chart.getZr().flush();
@@ -219,7 +221,10 @@ export class Plots {
   applyUnits() {
     for (const chart of Object.values(this.charts)) {
       const o = chart.getOption();
-      if (o && (o.xAxis || o.yAxis)) chart.setOption(axisPatch(o));
+      if (o && (o.xAxis || o.yAxis)) {
+        chart.setOption(axisPatch(o));
+        niceTicks(chart);
+      }
     }
   }
 

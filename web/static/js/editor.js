@@ -8,7 +8,7 @@ import {
   newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
 } from './schema.js';
 import { describeFields, fieldName } from './words.js';
-import { fieldText, notValue, parse, rangeError, restate, unitLabel, units } from './units.js';
+import { fieldText, notValue, parse, rangeError, restate, unit, unitLabel, units } from './units.js';
 
 export class Editor {
   // roots: {targets, radar, pulse, receive, scene} elements.
@@ -247,7 +247,7 @@ export class Editor {
         continue;
       }
       const text = el.dataset.type === 'phases' ? (v || []).join(', ')
-        : el.dataset.qty ? fieldText(el.dataset.qty, v) : el.dataset.sci ? sciDisplay(v) : toDisplay(v, Number(el.dataset.scale || 1));
+        : el.dataset.qty ? fieldText(el.dataset.qty, v, Number(el.dataset.digits) || 12) : el.dataset.sci ? sciDisplay(v) : toDisplay(v, Number(el.dataset.scale || 1));
       if (el.value !== text) {
         el.value = text;
         if (this.localErrors.has(el.dataset.path)) this.setLocalError(el.dataset.path, '');
@@ -361,8 +361,9 @@ export class Editor {
   targetRow(t, i) {
     const lk = levelKey(t.kind);
     const num = (key, qty = '') => h('input', {
-      type: 'text', inputmode: 'decimal', autocomplete: 'off', value: qty ? fieldText(qty, t[key]) : toDisplay(t[key], 1),
-      dataset: { path: `targets[${i}].${key}`, type: 'num', scale: '1', optional: '1', qty: qty || undefined },
+      type: 'text', inputmode: 'decimal', autocomplete: 'off', value: qty ? fieldText(qty, t[key], 7) : toDisplay(t[key], 1),
+      // The table's narrow cells show 7 digits; the form below shows all.
+      dataset: { path: `targets[${i}].${key}`, type: 'num', scale: '1', optional: '1', qty: qty || undefined, digits: qty ? '7' : undefined },
       'aria-label': `${t.id} ${key}`,
     });
     const rep = this.reportTargets.length === (this.store.scenario.targets || []).length ? this.reportTargets[i] : this.status.get(t.id);
@@ -436,7 +437,7 @@ export class Editor {
           head('Range', `(${unitLabel('range')})`, `Range of a point target, near edge of an extended or volume target, in ${unitLabel('range')}`),
           one ? head(levelShort[one], `(${levelUnit[one]})`, `${levelName[one]} in ${levelUnit[one]}`)
             : head('Level', '(per row)', 'RCS of a point target (dBsm), RCS per metre of an extended one (dBsm/m), reflectivity of a volume (dBZ)'),
-          head('Rate', `(${unitLabel('rate')})`, `Range rate in ${unitLabel('rate')}: positive when the range ${units().rate === 'closing' ? 'shrinks' : 'grows'}`), h('th', {}, ''))),
+          head(units().rate === 'closing' ? 'Closing' : 'Rate', `(${unit('rate')})`, `Range rate in ${unit('rate')}, positive when ${units().rate === 'closing' ? 'closing (the range shrinks)' : 'opening (the range grows)'}`), h('th', {}, ''))),
         h('tbody', {}, targets.map((t, i) => this.targetRow(t, i)))),
       h('div', { class: 'row-actions' },
         h('button', { type: 'button', dataset: { act: 'add' } }, '+ Add target'),

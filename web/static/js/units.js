@@ -168,12 +168,13 @@ export function notValue(q, text, p = prefs) {
 }
 
 // fieldText is an SI value as an editor field shows it: the user's unit,
-// up to 12 significant digits, no unit symbol.
-export function fieldText(q, si, p = prefs) {
+// up to `digits` significant digits (12: a value typed in that unit
+// reads back as typed), no unit symbol.
+export function fieldText(q, si, digits = 12, p = prefs) {
   if (si === undefined || si === null || si === '') return '';
   if (typeof si !== 'number') return String(si);
   const v = toUser(q, si, p);
-  return Number.isFinite(v) ? String(Number(v.toPrecision(12)) || 0) : '';
+  return Number.isFinite(v) ? String(Number(v.toPrecision(digits)) || 0) : '';
 }
 
 // digits is how many decimals a value of quantity q in unit u needs to
@@ -235,9 +236,11 @@ export function restate(text, p = prefs) {
     let v = Number(digits);
     if (u === 'km') v *= 1000;
     if (u === 'm/s') {
+      if (p.speed === 'm/s' && p.rate === FileConvention) return all;
       if (sg === '+' || sg === '-' || sg === '\u2212') return signed((sg === '+' ? 1 : -1) * v, decimals, p);
       return `${sg}${format('speed', v, decimals, p)}`;
     }
+    if (p.range === 'm') return all; // the server's own choice between m and km stays
     return `${sg}${format('range', v, u === 'km' ? Math.max(0, decimals - 3) : decimals, p)}`;
   });
 }
@@ -284,6 +287,11 @@ export function axisUnits(option, p = prefs) {
     if (!m) continue;
     const q = m[2] === 'm' ? 'range' : 'rate';
     ax.siName = name;
+    ax.unitsQty = q;
+    if (!('siShowMin' in ax)) {
+      ax.siShowMin = (ax.axisLabel || {}).showMinLabel ?? null;
+      ax.siShowMax = (ax.axisLabel || {}).showMaxLabel ?? null;
+    }
     ax.name = `${m[1]} (${unitLabel(q, p)})`;
     const f = (v) => tick(q, v, p);
     ax.axisLabel = { ...(ax.axisLabel || {}), formatter: f };
@@ -299,4 +307,67 @@ export function axisPatch(current, p = prefs) {
   const o = { title: copy(current.title), xAxis: copy(current.xAxis), yAxis: copy(current.yAxis) };
   axisUnits(o, p);
   return o;
+}
+
+// niceValues returns round values of quantity q in the user's unit
+// (1, 2 or 5 × 10ⁿ apart, about n of them) between the SI values a and
+// b, as SI values.
+export function niceValues(q, a, b, n, p = prefs) {
+  let lo = toUser(q, a, p);
+  let hi = toUser(q, b, p);
+  if (lo > hi) [lo, hi] = [hi, lo];
+  if (!(hi > lo) || !Number.isFinite(lo) || !Number.isFinite(hi)) return [];
+  const raw = (hi - lo) / Math.max(1, n);
+  const mag = 10 ** Math.floor(Math.log10(raw));
+  // The 1-2-5 step nearest to raw (in ratio), smaller while fewer than
+  // three ticks would fit.
+  const steps = [0.5, 1, 2, 5, 10].map((k) => k * mag);
+  let i = steps.reduce((best, x, j) => (Math.abs(Math.log(x / raw)) < Math.abs(Math.log(steps[best] / raw)) ? j : best), 1);
+  const ticks = (step) => {
+    const out = [];
+    for (let k = Math.ceil(lo / step - 1e-9); k * step <= hi + step * 1e-9 && out.length < 60; k++) out.push(Number((k * step).toPrecision(12)));
+    return out;
+  };
+  let vals = ticks(steps[i]);
+  while (vals.length < 3 && i > 0) vals = ticks(steps[--i]);
+  return vals.map((v) => fromUser(q, v, p));
+}
+
+// niceTicks puts the ticks of a drawn chart's range and range-rate axes
+// on round values of the user's unit (the server's ticks are round in
+// SI: 5000 m is 2.6998 nmi). It changes the chart only when the ticks
+// change (a zoom, a new extent), and not at all in SI units.
+export function niceTicks(chart, p = prefs) {
+  const model = chart.getModel && chart.getModel();
+  if (!model) return;
+  const patch = {};
+  let changed = false;
+  for (const dim of ['xAxis', 'yAxis']) {
+    const list = [];
+    for (let i = 0; ; i++) {
+      const c = model.getComponent(dim, i);
+      if (!c) break;
+      const q = c.option.unitsQty;
+      const [num, den] = q ? ratio(q, p) : [1n, 1n];
+      if (!q || !c.axis || num === den) {
+        const had = c.option.axisLabel && c.option.axisLabel.customValues;
+        list.push(had ? { axisLabel: { customValues: null, showMinLabel: c.option.siShowMin, showMaxLabel: c.option.siShowMax }, axisTick: { customValues: null } } : {});
+        changed = changed || !!had;
+        continue;
+      }
+      const [a, b] = c.axis.scale.getExtent();
+      const n = c.option.splitNumber || 5;
+      const vals = niceValues(q, a, b, n, p);
+      const old = (c.option.axisLabel && c.option.axisLabel.customValues) || [];
+      if (vals.length === old.length && vals.every((v, k) => v === old[k])) {
+        list.push({});
+        continue;
+      }
+      changed = true;
+      // Round ticks may sit at the ends too: their labels show.
+      list.push({ axisLabel: { customValues: vals, showMinLabel: true, showMaxLabel: true }, axisTick: { customValues: vals } });
+    }
+    patch[dim] = list;
+  }
+  if (changed) chart.setOption(patch);
 }
