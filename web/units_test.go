@@ -3,6 +3,7 @@ package web_test
 import (
 	"context"
 	"fmt"
+	"math"
 	"strings"
 	"testing"
 
@@ -171,4 +172,67 @@ func TestUnitsModuleExact(t *testing.T) {
 	for _, g := range got {
 		t.Errorf("units.js case %s", g)
 	}
+}
+
+// A pulse train in km and km/h, closing positive: the range–Doppler map's
+// axes are named and ticked in those units, its tooltip and the cuts'
+// titles restated, while the map's data stay in SI.
+func TestUnitsPulseTrain(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#units-pick summary`)))
+	pickDown(t, ctx, "range", 1) // km
+	pickDown(t, ctx, "speed", 1) // km/h
+	pickDown(t, ctx, "rate", 1)  // closing
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#figures`)))
+	loadDemo(t, ctx, "hill-clutter-doppler")
+	waitFor(t, ctx, "the map drawn", `(() => { const o = window.__pw.plots.charts.rdmap.getOption();
+		return o.series && o.series.length >= 2 && o.series[0].data.length > 100; })()`)
+	names := eval[[]string](t, ctx, `(() => { const o = window.__pw.plots.charts.rdmap.getOption(); return [o.xAxis[1].name, o.yAxis[1].name]; })()`)
+	if names[0] != "range (km)" || names[1] != "closing rate (km/h)" {
+		t.Errorf("map axes %q, want range (km) and closing rate (km/h)", names)
+	}
+	// Closing positive runs the rate axis downwards-negative: the value
+	// axis and the heat map's category axis are both inverted, and back
+	// when the convention is changed back (checked at the end).
+	inv := `(() => { const o = window.__pw.plots.charts.rdmap.getOption(); return o.yAxis.map((a) => !!a.inverse).join(','); })()`
+	if got := eval[string](t, ctx, inv); got != "true,true" {
+		t.Errorf("map y axes inverse = %s, want true,true", got)
+	}
+	// Ticks: round km/h, and each label is minus the value in km/h of its
+	// SI position (closing positive): v m/s is −3.6·v km/h.
+	type tick struct {
+		V     float64 `json:"v"`
+		Label string  `json:"label"`
+	}
+	ticks := eval[[]tick](t, ctx, `(() => { const a = window.__pw.plots.charts.rdmap.getModel().getComponent('yAxis', 1);
+		return (a.option.axisLabel.customValues || []).map((v) => ({v, label: a.option.axisLabel.formatter(v)})); })()`)
+	if len(ticks) < 3 {
+		t.Fatalf("map rate ticks %v, want round km/h ticks", ticks)
+	}
+	for _, tk := range ticks {
+		want := -3.6 * tk.V
+		var got float64
+		if _, err := fmt.Sscan(tk.Label, &got); err != nil || math.Abs(got-want) > 1e-9*math.Max(1, math.Abs(want)) || math.Abs(got-math.Round(got/10)*10) > 1e-9 {
+			t.Errorf("tick at %v m/s labelled %q, want %g km/h (a multiple of 10)", tk.V, tk.Label, want)
+		}
+	}
+	// The helicopter closes at about 25 m/s: its marker's tooltip says +90 km/h.
+	tip := eval[string](t, ctx, `(() => { const p = window.__pw.plots; const m = p.charts.rdmap.getOption().series.find((s) => s.id === 'markers').data.find((d) => d.id === 'helicopter');
+		return p.mapTip({seriesId: 'markers', data: m}); })()`)
+	if !strings.Contains(tip, " km · +") || !strings.Contains(tip, " km/h\n") {
+		t.Errorf("helicopter tooltip %q, want km and a positive (closing) km/h", tip)
+	}
+	// Cuts through a cell: the titles read in km and km/h.
+	do(t, ctx, chromedp.Evaluate[chromedp.Void](`window.__pw.session.sendCell({range_m: 7000, range_rate_mps: -25})`))
+	do(t, ctx, chromedp.Evaluate[chromedp.Void](`window.__pw.plots.select('rdcuts')`))
+	waitFor(t, ctx, "the cuts", `(() => { const o = window.__pw.plots.charts.rdcuts.getOption(); return o && o.title && o.title.length === 2; })()`)
+	titles := eval[[]string](t, ctx, `window.__pw.plots.charts.rdcuts.getOption().title.map((x) => x.text)`)
+	if !strings.Contains(titles[0], "km/h") || strings.Contains(titles[0], "m/s") || !strings.Contains(titles[1], " km") {
+		t.Errorf("cut titles %q, want km/h and km", titles)
+	}
+	shot(t, ctx, "")
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#units-pick summary`)))
+	do(t, ctx, chromedp.Focus(chromedp.CSS(`select[data-units="rate"]`)), chromedp.KeyEvent(kb.ArrowUp)) // opening
+	waitFor(t, ctx, "the map's axes upright again", inv+` === 'false,false' && window.__pw.plots.charts.rdmap.getOption().yAxis[1].name === 'range rate (km/h)'`)
 }

@@ -292,12 +292,36 @@ export function axisUnits(option, p = prefs) {
       ax.siShowMin = (ax.axisLabel || {}).showMinLabel ?? null;
       ax.siShowMax = (ax.axisLabel || {}).showMaxLabel ?? null;
     }
-    ax.name = `${m[1]} (${unitLabel(q, p)})`;
+    // "range rate (kt)" positive opening, as the file; "closing rate (kt)"
+    // positive closing.
+    const stem = q === 'rate' && p.rate === 'closing' ? m[1].replace(/^range rate$/, 'closing rate') : m[1];
+    ax.name = `${stem} (${q === 'rate' && stem === m[1] && p.rate === 'closing' ? unitLabel(q, p) : unit(q, p)})`;
+    // Closing positive: the rate axis runs the other way, so that up (or
+    // right) is still positive; a heat map's hidden category axis on the
+    // same grid turns with it, or its cells would not match the ticks.
+    if (q === 'rate') {
+      if (!('siInverse' in ax)) ax.siInverse = !!ax.inverse;
+      const flip = (sign(q, p) < 0) !== ax.siInverse;
+      ax.inverse = flip;
+      for (const other of [option.xAxis || [], option.yAxis || []].flat()) {
+        if (!other || other.type !== 'category' || (other.gridIndex || 0) !== (ax.gridIndex || 0)) continue;
+        if (!sameDim(option, ax, other)) continue;
+        if (!('siInverse' in other)) other.siInverse = !!other.inverse;
+        other.inverse = (sign(q, p) < 0) !== other.siInverse;
+      }
+    }
     const f = (v) => tick(q, v, p);
     ax.axisLabel = { ...(ax.axisLabel || {}), formatter: f };
     ax.axisPointer = { ...(ax.axisPointer || {}), label: { ...((ax.axisPointer || {}).label || {}), formatter: (o) => tick(q, o.value, p) } };
   }
   return option;
+}
+
+// sameDim reports whether axes a and b are both x axes or both y axes of
+// option.
+function sameDim(option, a, b) {
+  const xs = [option.xAxis || []].flat();
+  return xs.includes(a) === xs.includes(b);
 }
 
 // axisPatch is the merge that re-applies axisUnits to a drawn chart's
