@@ -6,6 +6,7 @@ import (
 	"math"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/chromedp/chromedp"
 	"github.com/chromedp/chromedp/kb"
@@ -30,7 +31,7 @@ func pickDown(t *testing.T, ctx context.Context, list string, n int) {
 }
 
 func TestUnitsNauticalRoundTrip(t *testing.T) {
-	ctx := mustBrowser(t)
+	ctx := mustBrowserFor(t, 180*time.Second) // many edits, a reload and a second browser
 	url := mustServer(t)
 	openPage(t, ctx, url)
 
@@ -178,7 +179,7 @@ func TestUnitsModuleExact(t *testing.T) {
 // axes are named and ticked in those units, its tooltip and the cuts'
 // titles restated, while the map's data stay in SI.
 func TestUnitsPulseTrain(t *testing.T) {
-	ctx := mustBrowser(t)
+	ctx := mustBrowserFor(t, 120*time.Second)
 	openPage(t, ctx, mustServer(t))
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#units-pick summary`)))
 	pickDown(t, ctx, "range", 1) // km
