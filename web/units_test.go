@@ -167,6 +167,7 @@ func TestUnitsModuleExact(t *testing.T) {
 			[u.fieldText('range', 22779.6, 12, N), '12.3'], [u.fieldText('speed', 18520 / 3600, 12, N), '10'],
 			[String(u.parse('range', '12x', N)), 'NaN'], [String(u.parse('range', '1e', N)), 'NaN'], [String(u.parse('speed', '5 m', N)), 'NaN'],
 			[String(u.parse('range', '', N)), 'undefined'],
+			[u.qtyOf('antenna_height_m', 'm'), 'height'], [u.qtyOf('height_m', 'm'), 'height'], [u.qtyOf('range_m', 'm'), ''],
 		];
 		return cases.map(([a, b], i) => (a === b ? '' : i + ': ' + a + ' != ' + b)).filter(Boolean);
 	})`)

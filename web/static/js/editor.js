@@ -8,7 +8,7 @@ import {
   newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
 } from './schema.js';
 import { describeFields, fieldName } from './words.js';
-import { fieldText, notValue, parse, rangeError, restate, unit, unitLabel, units } from './units.js';
+import { fieldText, notValue, parse, qtyOf, rangeError, restate, unit, unitLabel, units } from './units.js';
 
 export class Editor {
   // roots: {targets, radar, pulse, receive, scene} elements.
@@ -257,6 +257,7 @@ export class Editor {
 
   // A labelled input for field fd of the object at base.
   field(s, base, fd) {
+    if (!fd.qty && qtyOf(fd.key, fd.unit)) fd = { ...fd, qty: qtyOf(fd.key, fd.unit) };
     if (fd.qty) fd = { ...fd, unit: unitLabel(fd.qty), hint: fd.hint || (fd.def !== undefined ? fieldText(fd.qty, fd.def) : '') };
     const path = base ? `${base}.${fd.key}` : fd.key;
     const v = getPath(s, path);

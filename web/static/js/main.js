@@ -440,6 +440,7 @@ onUnits(() => {
   if (store.scenario) editor.render(store.scenario);
   if (panelFrame) drawPanels();
   plots.applyUnits();
+  story.render(store.scenario, lastFrame && lastFrame.report);
   refreshStale();
 });
 

@@ -161,6 +161,14 @@ export function parse(q, text, p = prefs) {
   return sign(q, p) * v === 0 ? 0 : sign(q, p) * v;
 }
 
+// qtyOf is the quantity of an editor field that does not name one: a
+// field in metres whose key ends in "height_m" (radar.antenna_height_m, a
+// target's height_m) is a height, so such fields follow the units without
+// a change to their schema entry; other fields none.
+export function qtyOf(key, unitText) {
+  return unitText === 'm' && /(^|_)height_m$/.test(key || '') ? 'height' : '';
+}
+
 // notValue is the message for text that parse refused.
 export function notValue(q, text, p = prefs) {
   const kind = q === 'rate' ? 'speed' : q;
