@@ -61,6 +61,12 @@ Usage:
 SCENARIO is a file path, - for standard input, a share link (a whole URL or
 just its #s= part), or demo:NAME for a built-in scene.
 
+--units U on check, eval --format text, pd (table) and blindzones (table)
+prints ranges, speeds and range rates in other units, e.g. --units km,kt
+or --units nautical,closing: a system (si, metric, nautical), units (m, km,
+nmi, m/s, km/h, kt, ft) and a range-rate sign (opening or closing
+positive). Files, links, JSON, CSV and HTML stay SI. See docs/units.md.
+
 PATH is a JSON path into the scenario: receiver.window.sidelobe_db,
 targets[1].range_m or targets[skiff].rcs_dbsm. PATH=VALUE sets a fixed
 value (receiver.window.kind=taylor), PATH=V1,V2 a list.

@@ -194,8 +194,10 @@ function updateAddress(link) {
   shownLink = enc;
 }
 
+let lastErrorFields = null; // the server's field errors shown now, for a change of units
 function onError(msg) {
   rejected.add(msg.id);
+  lastErrorFields = msg.fields || null;
   const v = session.versionOf(msg.id);
   lastErrorId = msg.id;
   const first = (msg.fields || [])[0];
@@ -438,6 +440,8 @@ initUnitsPick($('#conn'));
 onUnits(() => {
   editor.shape = '';
   if (store.scenario) editor.render(store.scenario);
+  // The refusal of the current scene, restated beside its fields.
+  if (errorVersion === store.version && lastErrorFields) editor.showErrors(lastErrorFields);
   if (panelFrame) drawPanels();
   plots.applyUnits();
   story.render(store.scenario, lastFrame && lastFrame.report);
