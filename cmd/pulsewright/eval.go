@@ -62,6 +62,9 @@ func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units) erro
 	}
 	fmt.Fprintf(tw, "resolution\t%s at −3 dB, mismatch loss %s dB\n", u.Format(scenarios.QRange, wf.Mainlobe3dBM, 2), fx(wf.MismatchLossDB, 2))
 	fmt.Fprintf(tw, "sampling\tstraddle loss %s dB worst, %s dB mean at this sample rate\n", fx(wf.StraddleLossMaxDB, 2), fx(wf.StraddleLossMeanDB, 2))
+	if !u.IsSI() {
+		fmt.Fprintf(tw, "units\tranges in %s, speeds in %s, range rates positive when %s (files and JSON: m, m/s, positive when opening)\n", u.Range, u.Speed, u.Rate)
+	}
 	fmt.Fprintf(tw, "ranges\tblind %s, unambiguous %s, unambiguous velocity ±%s\n", u.Format(scenarios.QRange, wf.BlindRangeM, 0), u.Format(scenarios.QRange, wf.UnambiguousRangeM, 0), u.Format(scenarios.QSpeed, wf.UnambiguousVelocityMPS, 2))
 	tw.Flush()
 	fmt.Fprintln(w)

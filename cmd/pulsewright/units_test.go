@@ -24,6 +24,15 @@ func TestEvalTextUnits(t *testing.T) {
 			t.Errorf("eval --units nautical lacks %q:\n%s", want, out)
 		}
 	}
+	if !strings.Contains(out, "units       ranges in nmi, speeds in kt, range rates positive when closing") {
+		t.Errorf("eval --units nautical,closing does not say its units:\n%s", out)
+	}
+	// Reasons restated: the helicopter closes at 25 m/s (−25 m/s in the
+	// file), 25·3600/1852 = 48.596 kt, positive when closing.
+	code, out, errs = runCmd(t, "", "eval", "demo:hill-clutter-doppler", "--format", "text", "--units", "nautical,closing")
+	if code != 0 || !strings.Contains(out, "Doppler saves it: at +48.6 kt it sits") || strings.Count(out, "m/s") != 1 { // only in the units line
+		t.Errorf("hill-clutter in knots: exit %d, %s\n%s", code, errs, out)
+	}
 	// SI by default: the same report as before --units existed.
 	_, si, _ := runCmd(t, "", "eval", "demo:harbour-skiff", "--format", "text")
 	for _, want := range []string{"RANGE m", "6300.0", "unambiguous velocity ±39.82 m/s"} {
