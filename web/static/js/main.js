@@ -441,7 +441,12 @@ onUnits(() => {
   editor.shape = '';
   if (store.scenario) editor.render(store.scenario);
   // The refusal of the current scene, restated beside its fields.
-  if (errorVersion === store.version && lastErrorFields) editor.showErrors(lastErrorFields);
+  if (errorVersion === store.version && lastErrorFields) {
+    editor.showErrors(lastErrorFields);
+    const fe = lastErrorFields[0];
+    const slot = fe && fe.path && document.querySelector(`[data-err-for="${CSS.escape(fe.path)}"]`);
+    if (slot && slot.textContent) errorText = `${fieldName(fe.path, store.scenario)}: ${slot.textContent}`;
+  }
   if (panelFrame) drawPanels();
   plots.applyUnits();
   story.render(store.scenario, lastFrame && lastFrame.report);

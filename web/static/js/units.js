@@ -275,7 +275,7 @@ const tidy = (v) => String(Number(v.toPrecision(6)) || 0);
 
 // --- charts: axes named "… (m)" or "… (m/s)" by the server ---
 
-const axisName = /^(.*) \((m|m\/s)\)$/;
+const axisName = /^(.*) \((m|m\/s)\)$|^(m|m\/s)$/; // "range (m)"; a bare "m" (the Doppler tolerance's range shift)
 
 // axisUnits rewrites, in a chart option about to be applied whole, the
 // names, tick labels and pointer labels of its range and range-rate axes
@@ -291,8 +291,9 @@ export function axisUnits(option, p = prefs) {
   for (const ax of [option.xAxis || [], option.yAxis || []].flat()) {
     if (!ax || ax.type !== 'value') continue;
     const name = ax.siName || ax.name;
-    const m = typeof name === 'string' && axisName.exec(name);
-    if (!m) continue;
+    const hit = typeof name === 'string' && axisName.exec(name);
+    if (!hit) continue;
+    const m = hit[3] ? [hit[0], '', hit[3]] : hit;
     const q = m[2] === 'm' ? 'range' : 'rate';
     ax.siName = name;
     ax.unitsQty = q;
@@ -303,7 +304,8 @@ export function axisUnits(option, p = prefs) {
     // "range rate (kt)" positive opening, as the file; "closing rate (kt)"
     // positive closing.
     const stem = q === 'rate' && p.rate === 'closing' ? m[1].replace(/^range rate$/, 'closing rate') : m[1];
-    ax.name = `${stem} (${q === 'rate' && stem === m[1] && p.rate === 'closing' ? unitLabel(q, p) : unit(q, p)})`;
+    const u = q === 'rate' && stem === m[1] && p.rate === 'closing' ? unitLabel(q, p) : unit(q, p);
+    ax.name = stem ? `${stem} (${u})` : u;
     // Closing positive: the rate axis runs the other way, so that up (or
     // right) is still positive; a heat map's hidden category axis on the
     // same grid turns with it, or its cells would not match the ticks.
