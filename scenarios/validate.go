@@ -34,9 +34,9 @@ func (c checker) between(path string, v, lo, hi float64) bool {
 	case math.IsNaN(v):
 		c.errs.add(path, "NaN is not a number; valid range %g … %g", lo, hi)
 	case v < lo:
-		c.errs.add(path, "%g is below the minimum %g", v, lo)
+		c.errs.add(path, "%g is below the minimum %g (valid range %g … %g)", v, lo, lo, hi)
 	case v > hi:
-		c.errs.add(path, "%g is above the maximum %g", v, hi)
+		c.errs.add(path, "%g is above the maximum %g (valid range %g … %g)", v, hi, lo, hi)
 	default:
 		return true
 	}
@@ -51,7 +51,7 @@ func (c checker) above(path string, v, lo, hi float64) bool {
 	case !(v > lo):
 		c.errs.add(path, "%g must be above %g (valid range: above %g, at most %g)", v, lo, lo, hi)
 	case v > hi:
-		c.errs.add(path, "%g is above the maximum %g", v, hi)
+		c.errs.add(path, "%g is above the maximum %g (valid range: above %g, at most %g)", v, hi, lo, hi)
 	default:
 		return true
 	}

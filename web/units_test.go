@@ -89,13 +89,13 @@ func TestUnitsNauticalRoundTrip(t *testing.T) {
 	}
 	// A value out of range: the server's message restated in nmi.
 	typeInto(t, ctx, skiffRange, "99999")
-	waitFor(t, ctx, "the range error in nmi", `(document.querySelector('[data-err-for="targets[1].range_m"]') || {}).textContent.includes('99999 nmi is above the maximum 53995.7 nmi')`)
+	waitFor(t, ctx, "the range error in nmi", `(document.querySelector('[data-err-for="targets[1].range_m"]') || {}).textContent.includes('99999 nmi is above the maximum 53995.7 nmi (valid range 0 … 53995.7 nmi)')`)
 	shot(t, ctx, "error")
 	// A change of units restates the standing refusal: 99999 nmi is
 	// 185198.148 km, the maximum 1e8 m is 100000 km.
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#units-pick summary`)))
 	do(t, ctx, chromedp.Focus(chromedp.CSS(`select[data-units="range"]`)), chromedp.KeyEvent(kb.ArrowUp)) // km
-	waitFor(t, ctx, "the range error in km", `(document.querySelector('[data-err-for="targets[1].range_m"]') || {}).textContent.includes('185198 km is above the maximum 100000 km')`)
+	waitFor(t, ctx, "the range error in km", `(document.querySelector('[data-err-for="targets[1].range_m"]') || {}).textContent.includes('185198.148 km is above the maximum 100000 km (valid range 0 … 100000 km)')`)
 	do(t, ctx, chromedp.KeyEvent(kb.ArrowDown)) // nmi again
 	waitFor(t, ctx, "nmi again", `document.querySelector('table.targets thead').textContent.includes('(nmi)')`)
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#figures`)))

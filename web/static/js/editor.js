@@ -518,7 +518,7 @@ export class Editor {
         continue;
       }
       const qin = path === fe.path && $$(`[data-path="${CSS.escape(fe.path)}"][data-qty]`)[0];
-      const text = qin ? rangeError(qin.dataset.qty, fe.message) : path === fe.path ? inUnits(fe.message, slots[0]) : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
+      const text = qin ? rangeError(qin.dataset.qty, fe.message, getPath(this.store.scenario, fe.path)) : path === fe.path ? inUnits(fe.message, slots[0]) : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
       for (const slot of slots) {
         slot.textContent = slot.textContent ? `${slot.textContent}; ${text}` : text;
         // Outline the slot's own input only when the message is about it:
@@ -564,6 +564,6 @@ function inUnits(msg, slot) {
     if (unit.textContent === 'm' && Math.abs(v) >= 100000) return `${Number((v / 1000).toPrecision(6))} km`;
     return `${Number(v.toPrecision(6))} ${unit.textContent}`;
   };
-  const rest = m[4].replace(/(above|at most) (-?[\d.]+(?:e[+-]?\d+)?)/g, (_, w, x) => `${w} ${show(x)}`);
+  const rest = m[4].replace(/(above|at most|range|…) (-?[\d.]+(?:e[+-]?\d+)?)/g, (_, w, x) => `${w} ${show(x)}`);
   return `${show(m[1])} ${m[2]} ${show(m[3])}${rest}`;
 }

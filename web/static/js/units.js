@@ -259,17 +259,33 @@ export function restate(text, p = prefs) {
 // maximum 3e+11 …"); rangeError restates it in the field's unit and
 // convention, where a closing-positive rate swaps above and below.
 const rangeMessage = /^(-?[\d.]+(?:e[+-]?\d+)?) (is above the maximum|is below the minimum|must be above) (-?[\d.]+(?:e[+-]?\d+)?)(.*)$/;
-export function rangeError(q, msg, p = prefs) {
+// exact, when given, is the field's value in SI: the message's own copy
+// has 6 significant digits, which in another unit would read 99998.9 nmi
+// for the 99999 typed.
+export function rangeError(q, msg, exact, p = prefs) {
   const m = rangeMessage.exec(msg);
   if (!m) return restate(msg, p);
   const show = (x) => `${tidy(toUser(q, Number(x), p))} ${unit(q, p)}`;
+  const value = typeof exact === 'number' && Math.abs(exact - Number(m[1])) <= 1e-5 * Math.abs(exact)
+    ? `${Number(toUser(q, exact, p).toPrecision(12))} ${unit(q, p)}` : show(m[1]);
   let words = m[2];
   if (sign(q, p) < 0) {
     words = { 'is above the maximum': 'is below the minimum', 'is below the minimum': 'is above the maximum', 'must be above': 'must be below' }[words];
   }
-  const rest = m[4].replace(/(above|below|at most|at least) (-?[\d.]+(?:e[+-]?\d+)?)/g, (_, w, x) => `${w} ${show(x)}`);
+  // "(valid range lo … hi)": both ends, in ascending order once the
+  // sign has turned; "(valid range: above lo, at most hi)" likewise.
+  const num = '(-?[\\d.]+(?:e[+-]?\\d+)?)';
+  let rest = m[4].replace(new RegExp(`valid range ${num} … ${num}`), (_, a, b) => {
+    const [x, y] = [toUser(q, Number(a), p), toUser(q, Number(b), p)].sort((i, j) => i - j);
+    return `valid range ${tidy(x)} … ${tidy(y)} ${unit(q, p)}`;
+  });
+  if (sign(q, p) < 0) {
+    rest = rest.replace(new RegExp(`above ${num}, at most ${num}`), (_, a, b) => `at least ${show(b)}, below ${show(a)}`);
+  } else {
+    rest = rest.replace(/(above|below|at most|at least) (-?[\d.]+(?:e[+-]?\d+)?)/g, (_, w, x) => `${w} ${show(x)}`);
+  }
   const conv = q === 'rate' && p.rate !== FileConvention ? ` (range rate ${p.rate} positive)` : '';
-  return `${show(m[1])} ${words} ${show(m[3])}${rest}${conv}`;
+  return `${value} ${words} ${show(m[3])}${rest}${conv}`;
 }
 const tidy = (v) => String(Number(v.toPrecision(6)) || 0);
 
