@@ -227,6 +227,12 @@ func TestUnitsPulseTrain(t *testing.T) {
 			t.Errorf("tick at %v m/s labelled %q, want %g km/h (a multiple of 10)", tk.V, tk.Label, want)
 		}
 	}
+	// A zoom keeps round ticks: 6.1–6.9 km shows ticks a round fraction of
+	// a km apart (0.1 or 0.2 km), at least three of them.
+	do(t, ctx, chromedp.Evaluate[chromedp.Void](`window.__pw.plots.charts.profile.dispatchAction({type: 'dataZoom', dataZoomIndex: 0, startValue: 6100, endValue: 6900})`))
+	waitFor(t, ctx, "round ticks in the zoom", `(() => { const a = window.__pw.plots.charts.profile.getModel().getComponent('xAxis', 0);
+		const v = a.option.axisLabel.customValues || []; const [lo, hi] = a.axis.scale.getExtent();
+		return v.length >= 3 && v.every((x) => x >= lo - 1e-6 && x <= hi + 1e-6 && Math.abs(x / 100 - Math.round(x / 100)) < 1e-9); })()`)
 	// The helicopter closes at about 25 m/s: its marker's tooltip says +90 km/h.
 	tip := eval[string](t, ctx, `(() => { const p = window.__pw.plots; const m = p.charts.rdmap.getOption().series.find((s) => s.id === 'markers').data.find((d) => d.id === 'helicopter');
 		return p.mapTip({seriesId: 'markers', data: m}); })()`)
