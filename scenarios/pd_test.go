@@ -11,7 +11,7 @@ import (
 
 // pdScene evaluates one point target of the given fluctuation at 6 km in
 // lfmScene's radar, with its RCS tuned (two evaluations) so that the SNR
-// the Pd test sees at its cell (snr_required_db + pd_margin_db) is snrDB.
+// the Pd test sees at its cell (snr_required_db + margin_db) is snrDB.
 func pdScene(t *testing.T, window, detector, fluct string, snrDB float64) TargetReport {
 	t.Helper()
 	rcs := rcsFor(snrDB, 6000)
@@ -19,10 +19,10 @@ func pdScene(t *testing.T, window, detector, fluct string, snrDB float64) Target
 	for range 2 {
 		b, _ := json.Marshal(map[string]any{"id": "a", "kind": "point", "range_m": 6000, "rcs_dbsm": rcs, "fluctuation": fluct})
 		tr = target(mustEvaluate(t, mustDecode(t, lfmScene(window, detector, string(b)))), "a")
-		if tr.SNRRequiredDB == nil || tr.PdMarginDB == nil || tr.Pd == nil || tr.PdAlone == nil {
+		if tr.SNRRequiredDB == nil || tr.MarginDB == nil || tr.Pd == nil || tr.PdAlone == nil {
 			t.Fatalf("%s %s: Pd fields missing: %+v", detector, fluct, tr)
 		}
-		rcs += snrDB - (*tr.SNRRequiredDB + *tr.PdMarginDB)
+		rcs += snrDB - (*tr.SNRRequiredDB + *tr.MarginDB)
 	}
 	return tr
 }
@@ -94,14 +94,14 @@ func TestPdFluctuationMatters(t *testing.T) {
 func TestPdCorrelatedCells(t *testing.T) {
 	scene := func(snr float64) TargetReport {
 		b, _ := json.Marshal(map[string]any{"id": "a", "kind": "point", "range_m": 6000, "rcs_dbsm": snr, "fluctuation": "swerling1"})
-		doc := `{"version":1,"radar":{"peak_power_w":1000,"sample_rate_hz":2e7,"pri_s":2e-4,"window_start_m":3000,"window_stop_m":12000},
+		doc := `{"version":2,"radar":{"peak_power_w":1000,"sample_rate_hz":2e7,"pri_s":2e-4,"window_start_m":3000,"window_stop_m":12000},
 			"waveform":{"kind":"barker","length":13,"chip_s":1e-7},
 			"receiver":{"window":{"kind":"none"},"detector":{"kind":"ca_cfar","pfa":1e-6,"guard_cells":30,"training_cells":16}},
 			"targets":[` + string(b) + `]}`
 		return target(mustEvaluate(t, mustDecode(t, doc)), "a")
 	}
 	tr := scene(0)
-	if tr.SNRRequiredDB == nil || tr.PdMarginDB == nil {
+	if tr.SNRRequiredDB == nil || tr.MarginDB == nil {
 		t.Fatalf("Pd fields missing: %+v", tr)
 	}
 	req := *tr.SNRRequiredDB
@@ -110,7 +110,7 @@ func TestPdCorrelatedCells(t *testing.T) {
 		t.Errorf("Swerling 1, 16 correlated cells: snr_required_db %.3f, want between 23.15 and 25.41 dB", req)
 	}
 	// Place the target at the required SNR (the RCS moves the SNR dB for dB).
-	tr = scene(req - (req + *tr.PdMarginDB))
+	tr = scene(req - (req + *tr.MarginDB))
 	if tr.Pd == nil || math.Abs(*tr.Pd-0.9) > 0.003 {
 		t.Errorf("at the required SNR: pd %v, want 0.9", tr.Pd)
 	}
@@ -133,13 +133,13 @@ func TestPdMaskedAndTrain(t *testing.T) {
 	}
 	doc := strings.Replace(lfmScene(`{"kind":"none"}`, fixed, pointJSON("a", r0, rcsFor(0, r0))), `"pri_s":2e-4`, `"pri_s":2e-4,"pulses":16`, 1)
 	a := target(mustEvaluate(t, mustDecode(t, doc)), "a")
-	if a.SNRIntegratedDB == nil || a.SNRRequiredDB == nil || a.PdMarginDB == nil || a.Pd == nil {
+	if a.SNRIntegratedDB == nil || a.SNRRequiredDB == nil || a.MarginDB == nil || a.Pd == nil {
 		t.Fatalf("train: fields missing: %+v", a)
 	}
 	if math.Abs(*a.SNRRequiredDB-13.18) > 0.006 {
 		t.Errorf("train: snr_required_db %.4f, want 13.18", *a.SNRRequiredDB)
 	}
-	if cell := *a.SNRRequiredDB + *a.PdMarginDB; cell > *a.SNRIntegratedDB+1e-9 || cell < *a.SNRIntegratedDB-1 {
+	if cell := *a.SNRRequiredDB + *a.MarginDB; cell > *a.SNRIntegratedDB+1e-9 || cell < *a.SNRIntegratedDB-1 {
 		t.Errorf("train: tested SNR %.3f dB, snr_integrated_db %.3f dB", cell, *a.SNRIntegratedDB)
 	}
 }
