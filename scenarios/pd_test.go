@@ -160,3 +160,43 @@ func TestKnownNoisePd(t *testing.T) {
 		}
 	}
 }
+
+// TestStatusOnPd checks that statuses follow Pd at pd_required 0.9 (fixed
+// threshold, Pfa 1e-6, one pulse, known noise: T = −ln 1e-6 = 11.40 dB
+// over the noise), with published values:
+//   - a Swerling 1 target whose peak is 4 dB over the threshold (15.40 dB)
+//     has Pd = Pfa^(1/(1+SNR)) = 0.679 (DiFranco & Rubin, Radar Detection,
+//     1968; Richards, Fundamentals of Radar Signal Processing, 2nd ed.,
+//     §6.3): it clears the threshold, yet is too weak for Pd 0.9;
+//   - a steady target is at the Pd 0.9 boundary at 13.18 dB (numerical
+//     Marcum Q, Richards eq. 6.79): too weak at 13.16 dB, detected at
+//     13.20 dB;
+//   - with the signal power equal to the threshold (11.40 dB), Pd is 0.54
+//     for a steady target and 0.39 for a Swerling 1 target (the same
+//     sources), and both are too weak.
+func TestStatusOnPd(t *testing.T) {
+	fixed := `{"kind":"fixed","pfa":1e-6}`
+	thr := dsp.DB(-math.Log(1e-6))
+	for _, c := range []struct {
+		name, fluct string
+		snr, pd     float64
+		status      string
+	}{
+		{"Swerling 1, 4 dB over the threshold", "swerling1", thr + 4, 0.679, StatusTooWeak},
+		{"steady just under 13.18 dB", "none", 13.16, 0.8985, StatusTooWeak},
+		{"steady just over 13.18 dB", "none", 13.20, 0.9015, StatusDetected},
+		{"steady at the threshold", "none", thr, 0.54, StatusTooWeak},
+		{"Swerling 1 at the threshold", "swerling1", thr, 0.39, StatusTooWeak},
+	} {
+		tr := pdScene(t, `{"kind":"none"}`, fixed, c.fluct, c.snr)
+		if tr.Status != c.status || tr.DecidedOn != "pd" || math.Abs(*tr.Pd-c.pd) > 0.005 {
+			t.Errorf("%s: %s on %q, pd %.4f (want %s, %.3f): %s", c.name, tr.Status, tr.DecidedOn, *tr.Pd, c.status, c.pd, tr.Reason)
+		}
+		if c.fluct == "swerling1" && c.snr > thr && (tr.ThresholdMarginDB == nil || math.Abs(*tr.ThresholdMarginDB-4) > 0.01) {
+			t.Errorf("%s: threshold margin %v, want 4 dB", c.name, tr.ThresholdMarginDB)
+		}
+		if c.status == StatusTooWeak && !strings.Contains(tr.Reason, "Too weak") {
+			t.Errorf("%s: reason %q", c.name, tr.Reason)
+		}
+	}
+}
