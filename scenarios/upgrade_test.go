@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"math"
 	"os"
 	"strings"
 	"testing"
@@ -107,5 +108,74 @@ func TestUpgradeChain(t *testing.T) {
 	cur, err := decodeWith([]byte(`{"version":2,"waveform":{"kind":"rect","pulse_width_s":1e-6}}`), ups)
 	if err != nil || cur.ReadVersion != 0 || cur.Upgraded != nil {
 		t.Errorf("current document: %v, read %d, notes %q", err, cur.ReadVersion, cur.Upgraded)
+	}
+}
+
+// TestVersion1VerdictChange: a version 1 file and link whose Swerling 1
+// dinghy clears the fixed threshold by 4 dB (version 1: detected) but has
+// Pd = Pfa^(1/(1+SNR)) = 0.679 < 0.9 (DiFranco & Rubin; Richards §6.3),
+// so version 2 calls it too_weak. Both read, and the change is named in
+// the report's warnings and in UpgradeNotes: target, old and new verdict;
+// the wall, detected under both rules, is not named.
+func TestVersion1VerdictChange(t *testing.T) {
+	dir := "testdata/formats/v1/"
+	file, err := os.ReadFile(dir + "marina.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	link, err := os.ReadFile(dir + "marina.link")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := os.ReadFile(dir + "marina.canonical.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	fromFile, err := Decode(file)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fromLink, err := ParseLink(strings.TrimSpace(string(link)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name, s := range map[string]*Scenario{"file": fromFile, "link": fromLink} {
+		if got, _ := Canonical(s); !bytes.Equal(got, bytes.TrimSpace(want)) {
+			t.Errorf("%s: canonical form\n%s\nwant\n%s", name, got, want)
+		}
+		notes, err := UpgradeNotes(context.Background(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		const change = "target dinghy: read from a format version 1 document, whose rules called it detected; version 2 calls it too_weak: Pd 0.679 in the scene against the required 0.9"
+		if len(notes) != 2 || !strings.Contains(notes[1], change) {
+			t.Errorf("%s: upgrade notes %q", name, notes)
+		}
+		rep, err := Analyse(context.Background(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var changes []string
+		for _, w := range rep.Warnings {
+			if strings.Contains(w, v1Marker) {
+				changes = append(changes, w)
+			}
+		}
+		if len(changes) != 1 || !strings.Contains(changes[0], change) {
+			t.Errorf("%s: verdict changes %q", name, changes)
+		}
+		d := target(&Result{Report: *rep}, "dinghy")
+		if d.Status != StatusTooWeak || d.ThresholdMarginDB == nil || math.Abs(*d.ThresholdMarginDB-4) > 0.05 {
+			t.Errorf("%s: dinghy %s, threshold margin %v", name, d.Status, d.ThresholdMarginDB)
+		}
+	}
+	// The same scenario written in version 2 carries no such warning.
+	canon, _ := Canonical(fromFile)
+	cur, err := Decode(canon)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if notes, _ := UpgradeNotes(context.Background(), cur); notes != nil {
+		t.Errorf("a version 2 document has upgrade notes: %q", notes)
 	}
 }
