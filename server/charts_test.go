@@ -211,3 +211,35 @@ func BenchmarkFakeEval(b *testing.B) {
 		plausibleResult(d.Scenario)
 	}
 }
+
+// TestFoldedMarker: the long-pulse-blind demo's airliner at 210 km lies
+// beyond the 149.9 km unambiguous range; its echo folds to an apparent
+// 60.1 km, inside the window. Its marker is drawn there (not clamped at the
+// window's edge), with the folded status's own shape and colour.
+func TestFoldedMarker(t *testing.T) {
+	d, err := scenarios.LoadDemo("long-pulse-blind")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := scenarios.Evaluate(context.Background(), d.Scenario)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lo := res.Series.RangeM0
+	hi := lo + float64(len(res.Series.ProfileDB)-1)*res.Series.RangeStepM
+	for _, m := range markers(res, lo, hi) {
+		if m.ID != "airliner-far" {
+			continue
+		}
+		ru := res.Report.Waveform.UnambiguousRangeM
+		want := 210000 - ru
+		if m.Status != scenarios.StatusFolded || math.Abs(m.Value[0]-want) > 1 || m.Value[0] <= lo || m.Value[0] >= hi {
+			t.Errorf("folded airliner: %s at %.0f m, want folded at %.0f m (window %.0f–%.0f m)", m.Status, m.Value[0], want, lo, hi)
+		}
+		if m.Symbol != statusStyle[scenarios.StatusFolded].symbol || m.Symbol == statusStyle[scenarios.StatusOutOfWindow].symbol {
+			t.Errorf("folded airliner drawn as %q", m.Symbol)
+		}
+		return
+	}
+	t.Fatal("no marker for airliner-far")
+}

@@ -7,7 +7,7 @@ import {
   convertTarget, detectorFields, isPhaseCode, sciDisplay, kindShort, kindTitle, levelName, levelShort, detectorKinds, fluctuations, fromDisplay, levelKey, levelUnit,
   newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
 } from './schema.js';
-import { describeFields, fieldName } from './words.js';
+import { describeFields, fieldName, pdText, statusHelp, statusLabel } from './words.js';
 
 export class Editor {
   // roots: {targets, radar, pulse, receive, scene} elements.
@@ -371,7 +371,7 @@ export class Editor {
     rate.setAttribute('aria-label', `${t.id} range rate (m/s)`);
     rate.title = 'Range rate, m/s (negative: closing)';
     return h('tr', { class: i === this.selected ? 'sel' : '', dataset: { row: String(i) } },
-      h('td', {}, h('span', { class: `dot st-${st || 'none'}`, title: st ? st.replace('_', ' ') : 'not evaluated' })),
+      h('td', {}, h('span', { class: `dot st-${st || 'none'}`, title: st ? statusHelp(st) : 'not evaluated' })),
       h('td', {}, h('input', { type: 'text', class: 'id', value: t.id, autocomplete: 'off', spellcheck: 'false', title: t.id,
         dataset: { path: `targets[${i}].id`, type: 'text' }, 'aria-label': 'target id' })),
       h('td', {}, h('select', { class: 'kind', dataset: { action: 'target-kind', index: String(i), path: `targets[${i}].kind`, type: 'kind' }, 'aria-label': `${t.id} kind`, title: kindTitle[t.kind] },
@@ -459,7 +459,7 @@ export class Editor {
       if (!dot) return;
       const st = rep ? rep.status : 'none';
       dot.className = `dot st-${st}`;
-      dot.title = rep ? `${st.replace('_', ' ')}: ${rep.reason}` : 'not evaluated';
+      dot.title = rep ? `${statusLabel(st)}${rep.pd !== undefined ? ` (Pd ${pdText(rep.pd)})` : ''}: ${rep.reason}` : 'not evaluated';
     });
   }
 
