@@ -38,6 +38,8 @@ func TestPdOnCardsAndRequiredPd(t *testing.T) {
 		t.Errorf("skiff %s at Pd 0.7, want still masked (Pd 0.004)", st)
 	}
 	shot(t, ctx, "pd-required")
+	eval[bool](t, ctx, card+`.scrollIntoView({block: 'center'}) || true`)
+	shot(t, ctx, "cards")
 
 	jsLoad(t, ctx, `fetch('/api/v1/demos/long-pulse-blind').then((r) => r.json())`)
 	waitFor(t, ctx, "the folded airliner", jsTarget+`('airliner-far').status === 'folded'`)

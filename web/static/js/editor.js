@@ -9,6 +9,16 @@ import {
 } from './schema.js';
 import { describeFields, fieldName, pdText, statusHelp, statusLabel } from './words.js';
 
+// setField writes a form field into the scenario. A detector field of a
+// scene that left the detector to its default writes the default kind
+// too, since the form shows it.
+function setField(s, path, v) {
+  if (path.startsWith('receiver.detector.') && !(s.receiver && s.receiver.detector && s.receiver.detector.kind)) {
+    setPath(s, 'receiver.detector.kind', 'ca_cfar');
+  }
+  setPath(s, path, v);
+}
+
 export class Editor {
   // roots: {targets, radar, pulse, receive, scene} elements.
   constructor(roots, store) {
@@ -67,7 +77,7 @@ export class Editor {
     }
     this.setLocalError(path, '');
     this.store.update((s) => {
-      setPath(s, path, v);
+      setField(s, path, v);
       // A phase code is given by phases or by a +/− string, not both: the
       // one being typed replaces the other.
       if (v !== undefined && path === 'waveform.phases_deg') delete s.waveform.binary;
@@ -98,13 +108,14 @@ export class Editor {
         const old = s.receiver.detector || {};
         const d = { kind: v };
         if (old.pfa !== undefined) d.pfa = old.pfa;
+        if (old.pd_required !== undefined) d.pd_required = old.pd_required;
         s.receiver.detector = d;
       });
     } else if (action === 'target-kind') {
       const i = Number(el.dataset.index);
       this.store.update((s) => { s.targets[i] = convertTarget(s.targets[i], v); });
     } else if (el.dataset.path) {
-      this.store.update((s) => setPath(s, el.dataset.path, this.value(el)));
+      this.store.update((s) => setField(s, el.dataset.path, this.value(el)));
     }
   }
 
@@ -231,7 +242,7 @@ export class Editor {
   shapeOf(s) {
     const t = s.targets || [];
     const rx = s.receiver || {};
-    return JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, rx.detector && rx.detector.kind,
+    return JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, (rx.detector && rx.detector.kind) || 'ca_cfar',
       rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected]);
   }
 
