@@ -128,3 +128,23 @@ func TestVersionCommand(t *testing.T) {
 		t.Errorf("version --format xml: exit %d", code)
 	}
 }
+
+// TestCheckVersion1NamesVerdictChange: checking a version 1 file prints
+// the upgrade note and names the target whose verdict the version 2 rules
+// change (a Swerling 1 dinghy 4 dB over a fixed threshold: detected in
+// version 1, too weak at Pd 0.679 < 0.9 in version 2).
+func TestCheckVersion1NamesVerdictChange(t *testing.T) {
+	code, out, errs := runCmd(t, "", "check", "../../scenarios/testdata/formats/v1/marina.json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"read as format version 2 from version 1", "statuses are now decided on the probability of detection",
+		"target dinghy: read from a format version 1 document, whose rules called it detected; version 2 calls it too_weak: Pd 0.679"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("check output lacks %q:\n%s", want, out)
+		}
+	}
+	if strings.Contains(out, "target wall") {
+		t.Errorf("the wall's verdict did not change:\n%s", out)
+	}
+}
