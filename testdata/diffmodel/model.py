@@ -1002,10 +1002,12 @@ def os_alpha(n, r, pfa):
 #     alpha from prod 1/(1 + alpha lambda_j / M) = pfa;
 #   OS-CFAR: x = r alpha X_(k), the k-th smallest of N unit exponentials,
 #     alpha from Rohling's Pfa (os_alpha).
-# Integrals by scipy.integrate.quad; the correlated case in closed form
-# (hypoexponential Z, the MGF of X) with mpmath at 60 digits.
+# Averages over X by Simpson's rule (scipy) of the reference's CDF
+# (gamma, binomial); the correlated case in closed form (hypoexponential
+# Z, the MGF of X) with mpmath at 60 digits.
 
-from scipy import integrate, stats
+from scipy import integrate, optimize, stats
+from scipy.special import gammainc, i0e
 import mpmath
 
 
@@ -1026,27 +1028,30 @@ def pd_fixed(chi, pfa, r=1.0):
     return marcum_q1(chi, r * -math.log(pfa))
 
 
-def _expect(pdf, x_of, chi, lo, hi):
-    """E over the reference z (density pdf on [lo, hi]) of P(X > x_of(z))."""
-    f = lambda z: marcum_q1(chi, x_of(z)) * pdf(z)
-    v, _ = integrate.quad(f, lo, hi, limit=400, epsabs=1e-12, epsrel=1e-10)
-    return min(max(v, 0.0), 1.0)
+def _over_x(chi, G):
+    """E over the test statistic X of G(X) = P(threshold < X): X has the
+    density exp(-(x + chi)) I0(2 sqrt(x chi)); in u = sqrt(x) that is
+    2u exp(-(u - sqrt chi)^2) i0e(2 u sqrt chi), a bump of unit width,
+    integrated by Simpson's rule over sqrt(chi) +- 10."""
+    sc = math.sqrt(chi)
+    u = np.linspace(max(0.0, sc - 10), sc + 10, 4001)
+    w = 2 * u * np.exp(-(u - sc) ** 2) * i0e(2 * u * sc)
+    v = integrate.simpson(w * G(u * u), x=u)
+    return min(max(float(v), 0.0), 1.0)
 
 
 def pd_ca(chi, pfa, m, r=1.0):
-    alpha = m * (pfa ** (-1.0 / m) - 1)
-    a = r * alpha / m
-    g = stats.gamma(m)
-    lo, hi = g.ppf(1e-15), g.isf(1e-15)
-    return _expect(g.pdf, lambda z: a * z, chi, lo, hi)
+    """The reference Z ~ Gamma(M): P(a Z < x) = P(M, x/a), the regularized
+    lower incomplete gamma (scipy.special.gammainc)."""
+    a = r * (pfa ** (-1.0 / m) - 1)  # r alpha / M
+    return _over_x(chi, lambda x: gammainc(m, x / a))
 
 
 def pd_os(chi, pfa, n, k, r=1.0):
-    alpha = os_alpha(n, k, pfa)
-    logc = math.lgamma(n + 1) - math.lgamma(k) - math.lgamma(n - k + 1)
-    pdf = lambda x: math.exp(logc + (k - 1) * math.log(-math.expm1(-x)) - x * (n - k + 1)) if x > 0 else 0.0
-    # the k-th order statistic lies well inside [1e-9, 60]
-    return _expect(pdf, lambda x: r * alpha * x, chi, 1e-12, 60.0 / max(n - k + 1, 1) + 5)
+    """P(r alpha X_(k) < x): the k-th smallest of n unit exponentials is
+    below y when at least k of them are, a binomial tail in 1 - e^-y."""
+    a = r * os_alpha(n, k, pfa)
+    return _over_x(chi, lambda x: stats.binom.sf(k - 1, n, -np.expm1(-x / a)))
 
 
 def corr_alpha(pfa, lam):
@@ -1082,19 +1087,12 @@ def pd_corr(chi, pfa, lam, r=1.0):
 
 
 def required_snr(pd_of, req):
-    """SNR (linear) at which pd_of(chi) = req, by bisection in dB."""
-    lo, hi = -60.0, 200.0
-    if pd_of(10 ** (hi / 10)) < req:
+    """SNR (linear) at which pd_of(chi) = req (brentq on dB), or None
+    beyond 200 dB."""
+    g = lambda d: pd_of(10 ** (d / 10)) - req
+    if g(200.0) < 0:
         return None
-    for _ in range(80):
-        mid = (lo + hi) / 2
-        if pd_of(10 ** (mid / 10)) < req:
-            lo = mid
-        else:
-            hi = mid
-    return 10 ** ((lo + hi) / 2 / 10)
-
-
+    return 10 ** (optimize.brentq(g, -30.0, 200.0, xtol=1e-7) / 10)
 
 
 def band_limited(wave, fs, nraw, t0, delta, amp, fd):
