@@ -3,12 +3,14 @@ package server
 import (
 	"context"
 	"encoding/json"
+	"io/fs"
 	"math"
 	"strconv"
 	"strings"
 	"testing"
 
 	"github.com/pulsewright/pulsewright/scenarios"
+	"github.com/pulsewright/pulsewright/web"
 )
 
 func TestDecimateKeepsPeaks(t *testing.T) {
@@ -242,4 +244,35 @@ func TestFoldedMarker(t *testing.T) {
 		return
 	}
 	t.Fatal("no marker for airliner-far")
+}
+
+// TestStatusMarksMatchPage: every status of the report has one colour and
+// marker shape on the plots (statusStyle), and the page's stylesheet gives
+// its cards and dots the same colour (--st-STATUS) and a dot rule.
+func TestStatusMarksMatchPage(t *testing.T) {
+	css, err := fs.ReadFile(web.FS(), "css/app.css")
+	if err != nil {
+		t.Fatal(err)
+	}
+	shapes := map[string]string{}
+	for _, st := range scenarios.Statuses {
+		s, ok := statusStyle[st]
+		if !ok {
+			t.Errorf("status %s has no plot style", st)
+			continue
+		}
+		if other, dup := shapes[s.symbol]; dup {
+			t.Errorf("statuses %s and %s share the marker %q", st, other, s.symbol)
+		}
+		shapes[s.symbol] = st
+		if !strings.Contains(string(css), "--st-"+st+": "+s.colour+";") {
+			t.Errorf("css/app.css lacks --st-%s: %s; (the plot's colour)", st, s.colour)
+		}
+		if !strings.Contains(string(css), ".dot.st-"+st+" ") {
+			t.Errorf("css/app.css has no dot for %s", st)
+		}
+	}
+	if len(statusStyle) != len(scenarios.Statuses) {
+		t.Errorf("%d plot styles for %d statuses", len(statusStyle), len(scenarios.Statuses))
+	}
 }
