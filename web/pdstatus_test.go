@@ -2,6 +2,7 @@ package web_test
 
 import (
 	"math"
+	"os"
 	"strings"
 	"testing"
 
@@ -17,7 +18,8 @@ import (
 // sits where its ghost appears (60.1 km), not at the window's edge.
 func TestPdOnCardsAndRequiredPd(t *testing.T) {
 	ctx := mustBrowser(t)
-	openPage(t, ctx, mustServer(t))
+	base := mustServer(t)
+	openPage(t, ctx, base)
 	waitFor(t, ctx, "the pilot boat masked", jsTarget+`('pilot-boat').status === 'masked'`)
 	card := `document.querySelector('.tcard[data-target="pilot-boat"]')`
 	waitFor(t, ctx, "the pilot boat's card", card+` && `+card+`.textContent.includes('Pd 0.722')`)
@@ -38,7 +40,7 @@ func TestPdOnCardsAndRequiredPd(t *testing.T) {
 		t.Errorf("skiff %s at Pd 0.7, want still masked (Pd 0.004)", st)
 	}
 	shot(t, ctx, "pd-required")
-	eval[bool](t, ctx, card+`.scrollIntoView({block: 'center'}) || true`)
+	eval[bool](t, ctx, `(() => { `+card+`.scrollIntoView({block: 'center'}); return true; })()`)
 	shot(t, ctx, "cards")
 
 	jsLoad(t, ctx, `fetch('/api/v1/demos/long-pulse-blind').then((r) => r.json())`)
@@ -54,4 +56,18 @@ func TestPdOnCardsAndRequiredPd(t *testing.T) {
 		t.Errorf("folded card status %q", txt)
 	}
 	shot(t, ctx, "folded")
+
+	// A version 1 link opens, and the figures panel's warnings name the
+	// dinghy, detected under version 1's rules and too weak under version 2's.
+	link, err := os.ReadFile("../scenarios/testdata/formats/v1/marina.link")
+	if err != nil {
+		t.Fatal(err)
+	}
+	tab, cancel := chromedp.NewContext(ctx)
+	defer cancel()
+	openPage(t, tab, base+strings.TrimSpace(string(link)))
+	waitFor(t, tab, "the version 1 scene", jsTarget+`('dinghy') && `+jsTarget+`('dinghy').status === 'too_weak'`)
+	waitFor(t, tab, "the verdict change in the warnings", `document.querySelector('.warnings').innerText.includes('target dinghy: read from a format version 1 document, whose rules called it detected; version 2 calls it too_weak')`)
+	eval[bool](t, tab, `(() => { document.querySelector('.warnings').scrollIntoView({block: 'center'}); return true; })()`)
+	shot(t, tab, "version1-link")
 }
