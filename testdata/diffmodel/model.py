@@ -1004,7 +1004,7 @@ def os_alpha(n, r, pfa):
 #     alpha from Rohling's Pfa (os_alpha).
 # Averages over X by Simpson's rule (scipy) of the reference's CDF
 # (gamma, binomial); the correlated case in closed form (hypoexponential
-# Z, the MGF of X) with mpmath at 60 digits.
+# Z, the MGF of X) with mpmath at 250 digits.
 
 from scipy import integrate, optimize, stats
 from scipy.special import gammainc, i0e
@@ -1072,9 +1072,12 @@ def corr_alpha(pfa, lam):
 def pd_corr(chi, pfa, lam, r=1.0):
     m = len(lam)
     alpha = corr_alpha(pfa, lam)
-    a = mpmath.mpf(r * alpha / m)
-    with mpmath.workdps(60):
-        ls = [mpmath.mpf(l) for l in lam if l > 1e-12]
+    # Repeated eigenvalues (a covariance with identical blocks) have no
+    # partial fractions: spread them by 1e-7 relative (Pd moves by about
+    # that much) and carry 250 digits through the cancellation.
+    with mpmath.workdps(250):
+        a = mpmath.mpf(r * alpha / m)
+        ls = [mpmath.mpf(l) * (1 + mpmath.mpf(1e-7) * j) for j, l in enumerate(sorted(x for x in lam if x > 1e-12))]
         out = mpmath.mpf(0)
         for j, lj in enumerate(ls):
             c = mpmath.mpf(1)
