@@ -272,7 +272,4 @@ func TestStatusMarksMatchPage(t *testing.T) {
 			t.Errorf("css/app.css has no dot for %s", st)
 		}
 	}
-	if len(statusStyle) != len(scenarios.Statuses) {
-		t.Errorf("%d plot styles for %d statuses", len(statusStyle), len(scenarios.Statuses))
-	}
 }
