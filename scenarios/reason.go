@@ -197,14 +197,15 @@ func (sc *scene) maskedPd(v verdict, tr TargetReport, self bool) string {
 		return ""
 	}
 	req := sc.m.s.Receiver.Detector.PdRequired
-	in := "not computed (the threshold there is beyond the Pd series; its peak is under it)"
-	if v.sceneOK {
-		in = PdText(v.pdScene)
+	alone := fmt.Sprintf("%s with noise alone", PdText(v.pdNoise))
+	if !self && tr.PdAlone != nil && *tr.PdAlone >= req {
+		alone = fmt.Sprintf("%s alone", PdText(*tr.PdAlone))
 	}
-	if self || tr.PdAlone == nil || *tr.PdAlone < req {
-		return fmt.Sprintf(" Its Pd is %s in the scene, against %s with noise alone; %g is required.", in, PdText(v.pdNoise), req)
+	if !v.sceneOK {
+		// The raised threshold is beyond the series; its peak is under it.
+		return fmt.Sprintf(" In the scene its Pd is too small for the series to reach (the threshold is raised that far), against %s; %g is required.", alone, req)
 	}
-	return fmt.Sprintf(" Its Pd is %s in the scene, against %s alone; %g is required.", in, PdText(*tr.PdAlone), req)
+	return fmt.Sprintf(" Its Pd is %s in the scene, against %s; %g is required.", PdText(v.pdScene), alone, req)
 }
 
 // whichPulse names the transmit pulse that eclipses a point target.
