@@ -10,6 +10,8 @@ import (
 
 	"github.com/chromedp/chromedp"
 	"github.com/chromedp/chromedp/kb"
+
+	"github.com/pulsewright/pulsewright/scenarios"
 )
 
 // The units control, with real key and mouse events: the page shows and
@@ -251,4 +253,26 @@ func TestUnitsPulseTrain(t *testing.T) {
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#units-pick summary`)))
 	do(t, ctx, chromedp.Focus(chromedp.CSS(`select[data-units="rate"]`)), chromedp.KeyEvent(kb.ArrowUp)) // opening
 	waitFor(t, ctx, "the map's axes upright again", inv+` === 'false,false' && window.__pw.plots.charts.rdmap.getOption().yAxis[1].name === 'range rate (km/h)'`)
+}
+
+// The page's restatement of the engine's sentences (units.js restate)
+// agrees with the command line's (scenarios.Units.Restate), sentence by
+// sentence, for each choice of units.
+func TestUnitsRestateAgrees(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	sentences := []string{
+		"only 3.2 m apart, inside the 87.8 m resolution, at 12.34 km",
+		"Doppler saves it: at -5.0 m/s it sits 3 Doppler bins from ridge (+12.0 m/s), which masks it in a single pulse.",
+		"They share its Doppler (0 bin apart at +0.0 m/s); blind speed 30.0 m/s; ±39.82 m/s",
+		"10 dBsm at 3 ms, 20 µs, 5 m² and 10 MHz; the echo from 9999.0 m folds to 1234.5 m",
+	}
+	for _, u := range []scenarios.Units{{Range: "nmi", Speed: "kt", Height: "ft", Rate: "closing"}, {Range: "km", Speed: "km/h", Height: "m", Rate: "opening"}, {Range: "m", Speed: "kt", Height: "m", Rate: "closing"}, scenarios.SIUnits()} {
+		for _, text := range sentences {
+			js := eval[string](t, ctx, fmt.Sprintf(`import('/js/units.js').then((m) => m.restate(%q, {range: %q, speed: %q, height: %q, rate: %q}))`, text, u.Range, u.Speed, u.Height, u.Rate))
+			if goText := u.Restate(text); js != goText {
+				t.Errorf("%v: %q\n page %q\n  cli %q", u, text, js, goText)
+			}
+		}
+	}
 }
