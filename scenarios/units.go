@@ -233,7 +233,7 @@ func (u Units) ToSI(q string, v float64) float64 {
 func (u Units) Parse(q, text string) (float64, error) {
 	t := strings.TrimSpace(strings.Replace(text, "−", "-", 1))
 	x, ok := new(big.Rat).SetString(t)
-	if !ok || strings.ContainsAny(t, "/xXpP_") {
+	if !ok || strings.ContainsAny(t, "/xXpPbBoO_") { // plain decimals only: no fractions, hex, binary or octal
 		return 0, fmt.Errorf("%q is not a number in %s", text, u.Unit(q))
 	}
 	r := u.ratio(q)

@@ -70,7 +70,7 @@ func TestUnitsExactDefinitions(t *testing.T) {
 			t.Errorf("Parse(%s, %q) = %.17g, %v; want %.17g", c.q, c.text, got, err, c.want)
 		}
 	}
-	for _, text := range []string{"12x", "1/2", "", "0x10", "Inf", "1e400"} {
+	for _, text := range []string{"12x", "1/2", "", "0x10", "0b11", "0o7", "1_000", "Inf", "1e400"} {
 		if v, err := nmi.Parse(QRange, text); err == nil {
 			t.Errorf("Parse(range, %q) = %v, want an error", text, v)
 		}
