@@ -21,6 +21,9 @@ type Report struct {
 	Waveform WaveformReport `json:"waveform"`
 	Targets  []TargetReport `json:"targets"`
 	Warnings []string       `json:"warnings"`
+	// The detector's false-alarm rate and the scene's clutter (clutter.go).
+	FalseAlarms *FalseAlarms    `json:"false_alarms,omitempty"`
+	Clutter     *ClutterSummary `json:"clutter,omitempty"`
 	// Engine names the build that computed the report. It is filled in
 	// when the report is encoded (see MarshalJSON) if it is nil.
 	Engine *EngineInfo `json:"engine,omitempty"`
@@ -74,6 +77,7 @@ type TargetReport struct {
 	PdAlone       *float64 `json:"pd_alone,omitempty"`        // with the other targets removed
 	SNRRequiredDB *float64 `json:"snr_required_db,omitempty"` // tested SNR that pd_required needs against noise alone
 	PdMarginDB    *float64 `json:"pd_margin_db,omitempty"`    // tested SNR − snr_required_db
+	ClutterFigures
 }
 
 // Result is a report with the series the page plots.
