@@ -136,7 +136,6 @@ func surface(t *testing.T, radarExtra, level string, start, stop float64) *Resul
 
 func ftoa(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
-
 func TestSurfacePatchInReport(t *testing.T) {
 	// σ⁰ = −20 dB, θ = 1°, c/2B = 15 m: σ_c = 14.18 dBsm at 10 km
 	// (Skolnik, Introduction to Radar Systems, low-grazing-angle surface
