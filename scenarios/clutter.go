@@ -276,9 +276,10 @@ func (sc *scene) dominant(k, d int) int {
 // §10): the processed cells where the noise-free scene power reaches the
 // detector's level with the whole scene in its training cells, and the
 // clutter object that puts the most power there is the one that breaks
-// through. Only cells whose power reaches −ln(pfa) are tested: no
-// detector's expected level against noise is lower (Jensen's
-// inequality on Pfa = E[exp(−level)]), and scene power only raises it.
+// through. On a range–Doppler map only cells whose scene power exceeds
+// the noise power (1) are tested, and the scene level only where the
+// power reaches the level against noise alone (scene power only raises
+// a level).
 func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 	m := sc.m
 	cs := &clutterScene{cells: make([]int, len(sc.targets)), gates: make([][]int, len(sc.targets))}
@@ -288,18 +289,17 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 	if !cs.any {
 		return cs
 	}
-	floor := -math.Log(m.s.Receiver.Detector.PFA)
 	if sc.train == nil {
 		var th []float64
 		for k := range m.n {
-			if !m.processed[k] || sc.total[k] < floor {
+			if !m.processed[k] {
 				continue
 			}
 			j := sc.dominant(k, -1)
 			if j < 0 || !sc.targets[j].t.IsClutter() {
 				continue
 			}
-			level := floor
+			level := dsp.FixedMultiplier(m.s.Receiver.Detector.PFA)
 			if cf != nil {
 				if th == nil {
 					p := make([]float64, m.n)
@@ -333,14 +333,14 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 		crossed := make(map[int]bool)
 		for d := range nb {
 			s := scenePow(k, d)
-			if s < floor {
+			if s <= 1 {
 				continue
 			}
 			j := sc.dominant(k, d)
 			if j < 0 || !sc.targets[j].t.IsClutter() {
 				continue
 			}
-			if s >= tr.level(cf2, k, d, scenePow) {
+			if s >= tr.level(cf2, k, d, func(int, int) float64 { return 0 }) && s >= tr.level(cf2, k, d, scenePow) {
 				cs.cells[j]++
 				crossed[j] = true
 			}
