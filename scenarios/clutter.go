@@ -41,6 +41,7 @@ const (
 	MaxAntennaHeightM = 1e5   // m
 	MaxBreakSpans     = 64    // breakthrough spans listed per clutter object
 	lowGrazingDeg     = 10.0  // above it the pulse-limited patch overstates clutter (warning)
+	minCNR            = 1e-10 // clutter power re noise below which a cell holds no clutter (−100 dB, the dB floor; FFT rounding leaves about 1e-16 of the peak)
 	minSigma0DB       = -100. // dB, sigma0_db and gamma_db
 	maxSigma0DB       = 30.   // dB
 )
@@ -409,7 +410,7 @@ func (sc *scene) clutterFigures(cs *clutterScene, j int, single, v verdict, bin 
 		skip = -1 // its own power is clutter too
 	}
 	if k := single.peakK; k >= 0 {
-		if c := sc.clutterAt(k, skip); c > 0 {
+		if c := sc.clutterAt(k, skip); c > minCNR {
 			out.CNRDB = dbPtr(c)
 			if !g.t.IsClutter() && single.peak > 0 {
 				out.SCRDB = dbPtr(single.peak / c)
@@ -417,7 +418,7 @@ func (sc *scene) clutterFigures(cs *clutterScene, j int, single, v verdict, bin 
 		}
 	}
 	if sc.train != nil && v.peakK >= 0 && bin >= 0 {
-		if c := sc.clutterMapAt(v.peakK, bin, skip); c > 0 {
+		if c := sc.clutterMapAt(v.peakK, bin, skip); c > minCNR {
 			out.CNRIntegratedDB = dbPtr(c)
 			if !g.t.IsClutter() && v.peak > 0 {
 				out.SCRIntegratedDB = dbPtr(v.peak / c)
@@ -524,7 +525,7 @@ func (sc *scene) clutterSummary(cs *clutterScene) *ClutterSummary {
 			best, bk = c, k
 		}
 	}
-	if bk >= 0 {
+	if bk >= 0 && best > minCNR {
 		out.CNRPeakDB = dbPtr(best)
 		r := m.rangeOf(float64(bk))
 		out.CNRPeakRangeM = &r
@@ -539,7 +540,7 @@ func (sc *scene) clutterSummary(cs *clutterScene) *ClutterSummary {
 				best = math.Max(best, sc.clutterMapAt(k, d, -1))
 			}
 		}
-		if best > 0 {
+		if best > minCNR {
 			out.CNRPeakIntegratedDB = dbPtr(best)
 		}
 	}
