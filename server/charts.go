@@ -59,6 +59,7 @@ var statusStyle = map[string]struct{ colour, symbol string }{
 	scenarios.StatusBelowNoise:  {"#7b8389", "emptyCircle"},
 	scenarios.StatusEclipsed:    {"#6d3fc0", "triangle"},
 	scenarios.StatusOutOfWindow: {"#1b6aa5", "rect"},
+	scenarios.StatusClutter:     {"#8b5e3c", "roundRect"},
 }
 
 // chartOut is one chart of a frame: its full option, and the series data
@@ -304,6 +305,7 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 		key += "+ref"
 	}
 	key += annotate(b, res, g)
+	key += breakthroughMarks(b, res, g)
 	b.line.AddSeries("targets", nil,
 		charts.WithSeriesId(SeriesMarkers),
 		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.Type = "scatter"; s.SymbolSize = 11 }),

@@ -106,6 +106,7 @@ var statusColour = map[string]string{
 	"below_noise":   "#6b7280",
 	"eclipsed":      "#7c3aed",
 	"out_of_window": "#0e7490",
+	"clutter":       "#8b5e3c",
 }
 
 // minMaxPairs reduces y[k] at x0 + k·dx to at most 2·buckets points, keeping
