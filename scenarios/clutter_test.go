@@ -276,3 +276,52 @@ func TestClutterInputErrors(t *testing.T) {
 		}
 	}
 }
+
+func TestClutterOnMap(t *testing.T) {
+	// A ridge alone under a fixed threshold, 32 pulses: the map's
+	// breakthrough cells are the cells of the expected map at or above
+	// −ln(pfa) (the plotted noise-free map, float32 dB: ±0.001 dB).
+	doc := `{"version": 1, "seed": 29,
+	 "radar": {"carrier_hz": 9.5e9, "peak_power_w": 400, "antenna_gain_dbi": 32, "system_loss_db": 5, "pri_s": 1e-4, "pulses": 32, "window_start_m": 3000, "window_stop_m": 12000},
+	 "waveform": {"kind": "lfm", "pulse_width_s": 1e-5, "bandwidth_hz": 5e6},
+	 "receiver": {"window": {"kind": "taylor"}, "doppler_window": {"kind": "chebyshev", "sidelobe_db": -60}, "detector": {"kind": "fixed", "pfa": 1e-6}},
+	 "targets": [{"id": "ridge", "kind": "extended", "range_start_m": 6000, "range_stop_m": 8000, "rcs_dbsm_per_m": -12, "velocity_spread_mps": 0.3}]}`
+	res := mustEvaluate(t, mustDecode(t, doc))
+	r := target(res, "ridge")
+	if r.Status != StatusClutter || r.Breakthrough == nil || r.Breakthrough.Cells == 0 {
+		t.Fatalf("ridge: %s %+v", r.Status, r.Breakthrough)
+	}
+	th := 10 * math.Log10(-math.Log(1e-6))
+	lo, hi := 0, 0
+	for _, row := range res.Series.RangeDoppler.CleanDB {
+		for k, v := range row {
+			if !(res.Series.CleanDB[k] > dbFloor) {
+				continue // unprocessed gate
+			}
+			if float64(v) >= th+1e-3 {
+				lo++
+			}
+			if float64(v) >= th-1e-3 {
+				hi++
+			}
+		}
+	}
+	if c := r.Breakthrough.Cells; c < lo || c > hi {
+		t.Errorf("map breakthrough %d cells, the expected map crosses at %d…%d", c, lo, hi)
+	}
+	if r.CNRIntegratedDB == nil || res.Report.Clutter.CNRPeakIntegratedDB == nil || *r.CNRIntegratedDB > *res.Report.Clutter.CNRPeakIntegratedDB+1e-9 {
+		t.Errorf("map CNR %v, peak %v", r.CNRIntegratedDB, res.Report.Clutter.CNRPeakIntegratedDB)
+	}
+	// The hill demo: the helicopter stands clear of the ridge in Doppler
+	// (map SCR far above its single-pulse SCR), the jet on a blind speed
+	// does not.
+	d, err := LoadDemo("hill-clutter-doppler")
+	if err != nil {
+		t.Fatal(err)
+	}
+	h := mustEvaluate(t, d.Scenario)
+	heli, jet := target(h, "helicopter"), target(h, "jet")
+	if *heli.SCRIntegratedDB < *heli.SCRDB+40 || *jet.SCRIntegratedDB > *jet.SCRDB+3 {
+		t.Errorf("helicopter SCR %.1f → map %.1f dB; jet %.1f → %.1f dB", *heli.SCRDB, *heli.SCRIntegratedDB, *jet.SCRDB, *jet.SCRIntegratedDB)
+	}
+}
