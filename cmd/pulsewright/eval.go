@@ -82,6 +82,7 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 			fmt.Fprintf(w, "%s: %s\n", t.ID, line)
 		}
 	}
+	writeClutterText(w, r)
 	for _, warn := range r.Warnings {
 		fmt.Fprintf(w, "warning: %s\n", warn)
 	}
