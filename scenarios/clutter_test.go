@@ -325,3 +325,36 @@ func TestClutterOnMap(t *testing.T) {
 		t.Errorf("helicopter SCR %.1f → map %.1f dB; jet %.1f → %.1f dB", *heli.SCRDB, *heli.SCRIntegratedDB, *jet.SCRDB, *jet.SCRIntegratedDB)
 	}
 }
+
+// TestSeaDemoStory checks the sea-clutter demo's notes: under the fixed
+// threshold the sea breaks through out to about 3.3 km and the kayak
+// stands about 13 dB above it; under a CA-CFAR nothing breaks through,
+// the kayak is masked by the sea and the trawler is still detected; the
+// sea sinks below the noise beyond about 6 km.
+func TestSeaDemoStory(t *testing.T) {
+	d, err := LoadDemo("sea-clutter-mast")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res := mustEvaluate(t, d.Scenario)
+	sea, kayak := target(res, "sea"), target(res, "kayak")
+	b := sea.Breakthrough
+	if b == nil || b.Cells < 250 || b.Cells > 350 || b.Spans[len(b.Spans)-1].StopM < 3000 || b.Spans[len(b.Spans)-1].StopM > 3600 {
+		t.Errorf("fixed threshold: breakthrough %+v, want some 300 gates out to about 3.3 km", b)
+	}
+	if kayak.SCRDB == nil || math.Abs(*kayak.SCRDB-13) > 1 {
+		t.Errorf("kayak SCR %v, want about 13 dB", kayak.SCRDB)
+	}
+	for _, r := range []float64{5800, 7000} {
+		p := cellPower(res, r) // the sea alone there: no target near
+		if (r < 6000) != (p > 0) {
+			t.Errorf("sea at %.0f m: %.1f dB re noise; the notes say it sinks below the noise beyond about 6 km", r, p)
+		}
+	}
+	d.Scenario.Receiver.Detector = defaultDetector(DetectorCA)
+	res = mustEvaluate(t, d.Scenario)
+	sea, kayak, trawler := target(res, "sea"), target(res, "kayak"), target(res, "trawler")
+	if sea.Breakthrough == nil || sea.Breakthrough.Cells != 0 || kayak.Status != StatusMasked || kayak.MaskedBy != "sea" || trawler.Status != StatusDetected {
+		t.Errorf("ca_cfar: sea %d cells, kayak %s by %q, trawler %s; want 0, masked by sea, detected", sea.Breakthrough.Cells, kayak.Status, kayak.MaskedBy, trawler.Status)
+	}
+}

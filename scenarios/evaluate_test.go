@@ -244,6 +244,7 @@ func TestDemosTeach(t *testing.T) {
 		"long-pulse-blind":     {"drone": StatusEclipsed, "airliner": StatusDetected, "airliner-far": StatusOutOfWindow},
 		"rocky-coast":          {"patrol-boat": StatusDetected, "buoy": StatusMasked, "shoreline": StatusClutter},
 		"hill-clutter-doppler": {"helicopter": StatusDetected, "jet": StatusMasked, "ridge": StatusClutter, "car": StatusDetected},
+		"sea-clutter-mast":     {"sea": StatusClutter, "kayak": StatusDetected, "trawler": StatusDetected},
 	}
 	for name, ids := range want {
 		d, err := LoadDemo(name)
