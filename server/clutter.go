@@ -59,7 +59,7 @@ func breakthroughMarks(b *builder, res *scenarios.Result, g grid) string {
 	b.extra[SeriesBreakthrough] = seriesExtra{MarkArea: map[string]any{
 		"silent":    true,
 		"itemStyle": map[string]any{"color": colourBreakthrough, "opacity": 0.2},
-		"label":     map[string]any{"show": true, "position": "insideTop", "color": "#92400e", "fontSize": 11},
+		"label":     map[string]any{"show": true, "position": "insideBottom", "color": "#92400e", "fontSize": 11}, // markers label the top
 		"data":      areas,
 	}}
 	return "+bt" + strconv.FormatUint(h.Sum64(), 36)
