@@ -27,6 +27,10 @@ const StatusClutter = "clutter"
 
 var roles = []string{RoleClutter, RoleTarget}
 
+// clutterChange is why a version 1 scenario's extended or volume target
+// changes verdict in version 2 (the upgrade's note, upgrade.go).
+const clutterChange = ": extended and volume targets are clutter by default in version 2 (role \"clutter\"): never reported as detected, the cells where it crosses the threshold are false alarms; set its role to \"target\" to judge it as version 1 did"
+
 // Ways of giving an extended target's reflectivity (Target.Level).
 const (
 	LevelPerMetre = "rcs_dbsm_per_m"

@@ -277,7 +277,7 @@ def clutter_scene(sc):
                 if o["Pstar"] >= T:
                     st = "detected"
                 elif o["Pstar"] < level(k, np.zeros(n)):
-                    st = "below_noise"
+                    st = "too_weak"  # version 1: below_noise
                 else:
                     st = "masked"
             rec["status"] = st
