@@ -358,3 +358,19 @@ func TestSeaDemoStory(t *testing.T) {
 		t.Errorf("ca_cfar: sea %d cells, kayak %s by %q, trawler %s; want 0, masked by sea, detected", sea.Breakthrough.Cells, kayak.Status, kayak.MaskedBy, trawler.Status)
 	}
 }
+
+// TestSquallDemoRainBreaksThroughFixed checks the squall-line demo's
+// notes: the CFAR holds the rain, a fixed threshold lets it break through.
+func TestSquallDemoRainBreaksThroughFixed(t *testing.T) {
+	d, err := LoadDemo("squall-line")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if b := target(mustEvaluate(t, d.Scenario), "rain-band").Breakthrough; b == nil || b.Cells != 0 {
+		t.Errorf("CFAR: rain breakthrough %+v, want none", b)
+	}
+	d.Scenario.Receiver.Detector = defaultDetector(DetectorFixed)
+	if b := target(mustEvaluate(t, d.Scenario), "rain-band").Breakthrough; b == nil || b.Cells == 0 {
+		t.Errorf("fixed threshold: rain breakthrough %+v, want some", b)
+	}
+}
