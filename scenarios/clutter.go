@@ -27,6 +27,28 @@ const StatusClutter = "clutter"
 
 var roles = []string{RoleClutter, RoleTarget}
 
+// roleNotes is the upgrade step of the clutter role (version 1 to 2): one
+// note naming the extended and volume targets of a version 1 document,
+// which read with the new default role, clutter. The evaluation then warns
+// for each whose verdict changes (clutterChange).
+func roleNotes(doc map[string]any) []string {
+	ts, _ := doc["targets"].([]any)
+	var ids []string
+	for _, x := range ts {
+		t, _ := x.(map[string]any)
+		kind, _ := t["kind"].(string)
+		if _, has := t["role"]; has || (kind != TargetExtended && kind != TargetVolume) {
+			continue
+		}
+		id, _ := t["id"].(string)
+		ids = append(ids, id)
+	}
+	if len(ids) == 0 {
+		return nil
+	}
+	return []string{fmt.Sprintf("extended and volume targets now have a role, clutter by default: %s read as clutter, never reported as detected, with the cells where they cross the threshold reported as false alarms; give one role \"target\" to judge it as before", strings.Join(ids, ", "))}
+}
+
 // clutterChange is why a version 1 scenario's extended or volume target
 // changes verdict in version 2 (the upgrade's note, upgrade.go).
 const clutterChange = ": extended and volume targets are clutter by default in version 2 (role \"clutter\"): never reported as detected, the cells where it crosses the threshold are false alarms; set its role to \"target\" to judge it as version 1 did"

@@ -1,6 +1,7 @@
 package scenarios
 
 import (
+	"context"
 	"math"
 	"strconv"
 	"strings"
@@ -372,5 +373,33 @@ func TestSquallDemoRainBreaksThroughFixed(t *testing.T) {
 	d.Scenario.Receiver.Detector = defaultDetector(DetectorFixed)
 	if b := target(mustEvaluate(t, d.Scenario), "rain-band").Breakthrough; b == nil || b.Cells == 0 {
 		t.Errorf("fixed threshold: rain breakthrough %+v, want some", b)
+	}
+}
+
+// TestUpgradeRoleNote: a version 1 document's extended and volume targets
+// read as clutter; the upgrade names them and the evaluation says, for
+// each whose verdict changes, that it is now clutter and why.
+func TestUpgradeRoleNote(t *testing.T) {
+	doc := `{"version": 1, "waveform": {"kind": "lfm", "pulse_width_s": 1e-5, "bandwidth_hz": 2e6},
+	 "radar": {"carrier_hz": 5.6e9, "peak_power_w": 2000, "antenna_gain_dbi": 34, "pri_s": 2e-4, "window_start_m": 3000, "window_stop_m": 14000},
+	 "receiver": {"detector": {"kind": "fixed"}},
+	 "targets": [{"id": "rain", "kind": "volume", "range_start_m": 8000, "range_stop_m": 10000, "reflectivity_dbz": 40},
+	  {"id": "chaff", "kind": "extended", "range_start_m": 11000, "range_stop_m": 11500, "rcs_dbsm_per_m": -10, "role": "target"}]}`
+	s := mustDecode(t, doc)
+	if s.Targets[0].Role != RoleClutter || s.Targets[1].Role != RoleTarget {
+		t.Fatalf("roles %q %q, want clutter (the new default) and target", s.Targets[0].Role, s.Targets[1].Role)
+	}
+	notes, err := UpgradeNotes(context.Background(), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	all := strings.Join(notes, "\n")
+	if !strings.Contains(all, "clutter by default: rain read as clutter") || strings.Contains(all, "chaff read") {
+		t.Errorf("upgrade notes do not name rain alone:\n%s", all)
+	}
+	// Version 1 rules called the rain detected (a fixed threshold); now it
+	// is clutter, and the warning says why.
+	if !strings.Contains(all, "target rain: read from a format version 1 document, whose rules called it detected; version 2 calls it clutter: extended and volume targets are clutter by default") {
+		t.Errorf("no verdict-change note for the rain:\n%s", all)
 	}
 }

@@ -50,7 +50,8 @@ func upgrade1(doc map[string]any) ([]string, error) {
 			}
 		}
 	}
-	return []string{fmt.Sprintf("statuses are now decided on the probability of detection at receiver.detector.pd_required (%s) rather than on the noise-free peak against the threshold; below_noise is now called too_weak, and a folded echo inside the window is folded rather than out_of_window", req)}, nil
+	notes := []string{fmt.Sprintf("statuses are now decided on the probability of detection at receiver.detector.pd_required (%s) rather than on the noise-free peak against the threshold; below_noise is now called too_weak, and a folded echo inside the window is folded rather than out_of_window", req)}
+	return append(notes, roleNotes(doc)...), nil
 }
 
 // UpgradeNotes returns what a user should hear of a scenario read from an
