@@ -7,6 +7,7 @@ import (
 	"io"
 	"os"
 	"path/filepath"
+	"strings"
 
 	"github.com/pulsewright/pulsewright/scenarios"
 )
@@ -26,6 +27,9 @@ func (e *env) merge(args []string) error {
 	}
 	if len(pos) == 0 {
 		return usageError{"merge needs the shard outputs: pulsewright merge SHARD… [--out FILE]"}
+	}
+	if pos, err = expandPatterns(pos); err != nil {
+		return err
 	}
 	if *out != "" {
 		for _, p := range pos {
@@ -81,6 +85,33 @@ func readShardFile(name string) (shardFile, error) {
 	f := shardFile{engine: string(engine) + "\n", body: body}
 	f.part = scenarios.ShardPart{Name: name, Engine: string(engine), Stamp: st}
 	return f, nil
+}
+
+// expandPatterns expands the arguments that hold *, ? or [ and name no
+// file, as a shell would (where there is none: a container, or Windows),
+// each pattern's matches sorted. A pattern that matches nothing is an
+// error.
+func expandPatterns(args []string) ([]string, error) {
+	var out []string
+	for _, a := range args {
+		if !strings.ContainsAny(a, "*?[") {
+			out = append(out, a)
+			continue
+		}
+		if _, err := os.Stat(a); err == nil {
+			out = append(out, a)
+			continue
+		}
+		m, err := filepath.Glob(a)
+		if err != nil {
+			return nil, usageError{fmt.Sprintf("merge: pattern %q: %v", a, err)}
+		}
+		if len(m) == 0 {
+			return nil, fmt.Errorf("merge: pattern %q matches no file: %w", a, scenarios.ErrInvalid)
+		}
+		out = append(out, m...)
+	}
+	return out, nil
 }
 
 // sameFile reports whether a and b name one file (or one path, when

@@ -238,7 +238,14 @@ func TestMergeRefuses(t *testing.T) {
 	if code, _, errs := runCmd(t, "", "merge"); code != exitInvalid || !strings.Contains(errs, "merge needs the shard outputs") {
 		t.Errorf("no inputs: exit %d %q", code, errs)
 	}
-	code, stdout, errs := runCmd(t, "", "merge", a1, a0)
+	code, stdout, errs := runCmd(t, "", "merge", filepath.Join(dir, "a[01].csv")) // merge expands patterns itself
+	if code != exitOK {
+		t.Errorf("merge a[01].csv: exit %d %q", code, errs)
+	}
+	if code, _, errs := runCmd(t, "", "merge", filepath.Join(dir, "zz*.csv")); code != exitInvalid || !strings.Contains(errs, "matches no file") {
+		t.Errorf("merge zz*.csv: exit %d %q", code, errs)
+	}
+	code, stdout, errs = runCmd(t, "", "merge", a1, a0)
 	wantWhole, _ := os.ReadFile(whole)
 	if code != exitOK || stdout != string(wantWhole) {
 		t.Errorf("merge a1 a0: exit %d %q\n%s\nwant\n%s", code, errs, stdout, wantWhole)
@@ -289,5 +296,58 @@ func TestSweepShardFlag(t *testing.T) {
 		if code != exitInvalid || !strings.Contains(errs, "cannot be combined with --shard") {
 			t.Errorf("%v with --shard: exit %d %q", extra, code, errs)
 		}
+	}
+}
+
+// TestSlurmScripts runs deploy/slurm/shard.sbatch as the three tasks of a
+// job array would (SLURM_ARRAY_TASK_ID 0…2, run here one after the
+// other with bash), then merge.sbatch: the merged file is the unsharded
+// sweep's. A task id outside 0…N−1 is refused.
+func TestSlurmScripts(t *testing.T) {
+	if _, err := exec.LookPath("bash"); err != nil {
+		t.Skip("bash is not installed")
+	}
+	dir := t.TempDir()
+	whole := wholeSweep(t, dir, shardGrid)
+	sbatch := func(script string, task string, args ...string) (int, string) {
+		path, err := filepath.Abs("../../deploy/slurm/" + script)
+		if err != nil {
+			t.Fatal(err)
+		}
+		cmd := exec.Command("bash", append([]string{path}, args...)...)
+		cmd.Dir = dir
+		cmd.Env = append(os.Environ(), "PULSEWRIGHT="+os.Args[0], "PULSEWRIGHT_TEST_ARGV=1", "SLURM_CPUS_PER_TASK=1", "OUT_DIR=out")
+		if task != "" {
+			cmd.Env = append(cmd.Env, "SLURM_ARRAY_TASK_ID="+task)
+		}
+		b, err := cmd.CombinedOutput()
+		if ee, ok := err.(*exec.ExitError); ok {
+			return ee.ExitCode(), string(b)
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		return 0, string(b)
+	}
+	for k := range 3 {
+		if code, out := sbatch("shard.sbatch", strconv.Itoa(k), append([]string{"3", "sweep"}, shardGrid...)...); code != 0 {
+			t.Fatalf("task %d: exit %d: %s", k, code, out)
+		}
+	}
+	if code, out := sbatch("merge.sbatch", "", "3"); code != 0 {
+		t.Fatalf("merge: exit %d: %s", code, out)
+	}
+	got, err := os.ReadFile(filepath.Join(dir, "out", "merged.csv"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !bytes.Equal(got, whole) {
+		t.Fatalf("merged differs from the unsharded sweep:\n%s\nwant\n%s", got, whole)
+	}
+	if code, out := sbatch("shard.sbatch", "3", append([]string{"3", "sweep"}, shardGrid...)...); code != 2 || !strings.Contains(out, "array task 3 is outside shards 0…2") {
+		t.Errorf("task 3 of 3: exit %d %q", code, out)
+	}
+	if code, out := sbatch("shard.sbatch", "", append([]string{"3", "sweep"}, shardGrid...)...); code != 2 || !strings.Contains(out, "not a job array task") {
+		t.Errorf("no task id: exit %d %q", code, out)
 	}
 }
