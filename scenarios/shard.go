@@ -72,6 +72,18 @@ func (s Shard) Len(n int) int {
 // Item returns the index of the shard's j-th item (j from 0): K + j·N.
 func (s Shard) Item(j int) int { return s.K + j*s.N }
 
+// Block returns the shard's part of 0…n−1 in the other partition, in
+// blocks: the contiguous items first … first+count−1, first = ⌊K·n/N⌋
+// and first+count = ⌊(K+1)·n/N⌋ (block lengths differ by at most one).
+// It suits work whose items all cost the same and whose results add up
+// in any order, such as counts over a range of Monte Carlo trials (a
+// trial's seed is drawn from its index, never from the shard). n must be
+// at most 2⁶³⁄MaxShards so that K·n cannot overflow.
+func (s Shard) Block(n int) (first, count int) {
+	first = s.K * n / s.N
+	return first, (s.K+1)*n/s.N - first
+}
+
 // Owner returns the shard of N that owns item i, and the item's position
 // within it.
 func Owner(i, n int) (k, j int) { return i % n, i / n }

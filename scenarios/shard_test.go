@@ -43,6 +43,27 @@ func TestShardPartition(t *testing.T) {
 	}
 }
 
+// TestShardBlocks: the blocks of shards 0…N−1 tile 0…n−1 in order,
+// their lengths differ by at most one.
+func TestShardBlocks(t *testing.T) {
+	for _, n := range []int{0, 1, 5, 10, 97, 1000, 100000000} {
+		for _, N := range []int{1, 2, 3, 7, 13, 1000} {
+			next, lo, hi := 0, n, 0
+			for K := range N {
+				first, count := Shard{K, N}.Block(n)
+				if first != next || count < 0 {
+					t.Fatalf("n %d, shard %d/%d: block %d+%d, want it to start at %d", n, K, N, first, count, next)
+				}
+				next += count
+				lo, hi = min(lo, count), max(hi, count)
+			}
+			if next != n || hi-lo > 1 {
+				t.Errorf("n %d, N %d: blocks end at %d, lengths %d…%d", n, N, next, lo, hi)
+			}
+		}
+	}
+}
+
 func TestParseShard(t *testing.T) {
 	for _, c := range []struct {
 		in   string
