@@ -121,16 +121,23 @@ func (g *Grid) Hash() string {
 	return Hash(b)
 }
 
+// UnknownBuild is the Build of a stamp whose program could not read its
+// own executable; merge then relies on the engine line alone.
+const UnknownBuild = "unknown"
+
 // ShardStamp is what a shard's output says about itself, on the comment
 // line that follows the engine's (docs/report-format.md, "Shards"):
 //
-//	# shard 2/7 of sweep · 120 points · scenario sha256:… · grid sha256:…
+//	# shard 2/7 of sweep · 120 points · scenario sha256:… · grid sha256:… · build sha256:…
 //
 // Command names the command that wrote it, Unit what it counts (points,
 // trials) and Total how many the whole run has. Scenario and Grid are
 // hashes (ScenarioHash, Grid.Hash); for a command other than sweep, Grid
 // identifies whatever besides the scenario fixes the work (its axes,
-// trial counts, options).
+// trial counts, options). Build identifies the program's executable (the
+// hash of its file, or UnknownBuild): the engine line of a build that
+// records no version or commit (a "devel" build, such as an image built
+// without its repository's history) cannot tell two such builds apart.
 type ShardStamp struct {
 	Shard    Shard
 	Command  string
@@ -138,11 +145,12 @@ type ShardStamp struct {
 	Unit     string
 	Scenario string
 	Grid     string
+	Build    string
 }
 
 // String renders the stamp without the leading "# " or a newline.
 func (s ShardStamp) String() string {
-	return fmt.Sprintf("shard %s of %s · %d %s · scenario %s · grid %s", s.Shard, s.Command, s.Total, s.Unit, s.Scenario, s.Grid)
+	return fmt.Sprintf("shard %s of %s · %d %s · scenario %s · grid %s · build %s", s.Shard, s.Command, s.Total, s.Unit, s.Scenario, s.Grid, s.Build)
 }
 
 // Line returns the stamp as a comment line, ending in a newline.
@@ -157,11 +165,11 @@ func ParseShardStamp(line string) (ShardStamp, error) {
 	}
 	rest, ok := strings.CutPrefix(line, "# shard ")
 	if !ok {
-		return ShardStamp{}, bad(`want "# shard K/N of COMMAND · TOTAL UNIT · scenario HASH · grid HASH"`)
+		return ShardStamp{}, bad(`want "# shard K/N of COMMAND · TOTAL UNIT · scenario HASH · grid HASH · build HASH"`)
 	}
 	parts := strings.Split(rest, " · ")
-	if len(parts) != 4 {
-		return ShardStamp{}, bad(fmt.Sprintf("%d parts separated by \" · \", want 4", len(parts)))
+	if len(parts) != 5 {
+		return ShardStamp{}, bad(fmt.Sprintf("%d parts separated by \" · \", want 5", len(parts)))
 	}
 	var st ShardStamp
 	kn, cmd, ok := strings.Cut(parts[0], " of ")
@@ -185,6 +193,9 @@ func ParseShardStamp(line string) (ShardStamp, error) {
 	if st.Grid, ok = strings.CutPrefix(parts[3], "grid "); !ok || !strings.HasPrefix(st.Grid, "sha256:") {
 		return ShardStamp{}, bad(fmt.Sprintf("%q is not \"grid sha256:…\"", parts[3]))
 	}
+	if st.Build, ok = strings.CutPrefix(parts[4], "build "); !ok || st.Build == "" {
+		return ShardStamp{}, bad(fmt.Sprintf("%q is not \"build sha256:…\"", parts[4]))
+	}
 	return st, nil
 }
 
@@ -202,9 +213,10 @@ type ShardPart struct {
 // CheckShards checks that parts are exactly the N shards of one run and
 // returns them in shard order. It refuses, with an error wrapping
 // ErrInvalid:
-//   - parts of different commands, engines, scenarios or grids (each
-//     compared with the first part, naming both files and both values),
-//     or of different N or totals;
+//   - parts of different commands, engines, scenarios, grids or builds
+//     (each compared with the first part, naming both files and both
+//     values; an UnknownBuild is not compared), or of different N or
+//     totals;
 //   - a shard given twice, shards missing, and shards that hold fewer
 //     items than they own (interrupted), all listed by index with the
 //     --shard option that re-runs them.
@@ -229,6 +241,8 @@ func CheckShards(parts []ShardPart) ([]ShardPart, error) {
 			return nil, differ("scenarios", a.Scenario, b.Scenario)
 		case a.Grid != b.Grid || a.Total != b.Total || a.Unit != b.Unit:
 			return nil, differ("grids", fmt.Sprintf("%s, %d %s", a.Grid, a.Total, a.Unit), fmt.Sprintf("%s, %d %s", b.Grid, b.Total, b.Unit))
+		case a.Build != b.Build && a.Build != UnknownBuild && b.Build != UnknownBuild:
+			return nil, differ("builds of the program", a.Build, b.Build+"; the engine lines agree, but the executables differ: run every shard with one binary or image")
 		case a.Shard.N != b.Shard.N:
 			return nil, differ("shard counts", "shard "+a.Shard.String(), "shard "+b.Shard.String())
 		}

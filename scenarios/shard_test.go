@@ -94,7 +94,7 @@ func TestParseShard(t *testing.T) {
 }
 
 func TestShardStampRoundTrip(t *testing.T) {
-	st := ShardStamp{Shard{2, 7}, "sweep", 120, "points", Hash([]byte("a")), Hash([]byte("b"))}
+	st := ShardStamp{Shard{2, 7}, "sweep", 120, "points", Hash([]byte("a")), Hash([]byte("b")), Hash([]byte("c"))}
 	line := st.Line()
 	if !strings.HasPrefix(line, "# shard 2/7 of sweep · 120 points · scenario sha256:ca978112ca1bbdca") || !strings.HasSuffix(line, "\n") {
 		t.Errorf("line %q", line) // sha256("a") = ca978112…, as Python's hashlib.sha256 gives
@@ -105,11 +105,12 @@ func TestShardStampRoundTrip(t *testing.T) {
 	}
 	for _, bad := range []string{
 		"# pulsewright devel",
-		"# shard 2/7 of sweep · 120 points · scenario sha256:x",
-		"# shard 7/7 of sweep · 120 points · scenario sha256:x · grid sha256:y",
-		"# shard 2/7 sweep · 120 points · scenario sha256:x · grid sha256:y",
-		"# shard 2/7 of sweep · many points · scenario sha256:x · grid sha256:y",
-		"# shard 2/7 of sweep · 120 points · scenario md5:x · grid sha256:y",
+		"# shard 2/7 of sweep · 120 points · scenario sha256:x · grid sha256:y",
+		"# shard 7/7 of sweep · 120 points · scenario sha256:x · grid sha256:y · build sha256:z",
+		"# shard 2/7 sweep · 120 points · scenario sha256:x · grid sha256:y · build sha256:z",
+		"# shard 2/7 of sweep · many points · scenario sha256:x · grid sha256:y · build sha256:z",
+		"# shard 2/7 of sweep · 120 points · scenario md5:x · grid sha256:y · build sha256:z",
+		"# shard 2/7 of sweep · 120 points · scenario sha256:x · grid sha256:y · sha256:z",
 	} {
 		if _, err := ParseShardStamp(bad); err == nil || !errors.Is(err, ErrInvalid) {
 			t.Errorf("%q: %v", bad, err)
@@ -158,7 +159,7 @@ func TestScenarioAndGridHash(t *testing.T) {
 // them.
 func TestCheckShards(t *testing.T) {
 	stamp := func(k, n int) ShardStamp {
-		return ShardStamp{Shard{k, n}, "sweep", 10, "points", "sha256:s", "sha256:g"}
+		return ShardStamp{Shard{k, n}, "sweep", 10, "points", "sha256:s", "sha256:g", "sha256:b"}
 	}
 	part := func(name string, k, n int) ShardPart {
 		st := stamp(k, n)
@@ -190,6 +191,10 @@ func TestCheckShards(t *testing.T) {
 		f(&ps[i])
 		return ps
 	}
+	// An unknown build is not compared: the engine lines decide.
+	if _, err := CheckShards(mod(1, func(p *ShardPart) { p.Stamp.Build = UnknownBuild })); err != nil {
+		t.Errorf("an unknown build: %v", err)
+	}
 	for _, c := range []struct {
 		parts []ShardPart
 		want  string
@@ -200,6 +205,7 @@ func TestCheckShards(t *testing.T) {
 		{mod(2, func(p *ShardPart) { p.Stamp.Total = 11 }), "different grids"},
 		{mod(1, func(p *ShardPart) { p.Engine = "# pulsewright v2" }), "c and a are shards of different engine versions (# pulsewright devel and # pulsewright v2)"},
 		{mod(1, func(p *ShardPart) { p.Stamp.Command = "trials" }), "different commands (sweep and trials)"},
+		{mod(1, func(p *ShardPart) { p.Stamp.Build = "sha256:c" }), "c and a are shards of different builds of the program (sha256:b and sha256:c; the engine lines agree, but the executables differ"},
 		{mod(1, func(p *ShardPart) { p.Stamp.Shard = Shard{0, 4} }), "different shard counts (shard 2/3 and shard 0/4)"},
 		{mod(1, func(p *ShardPart) { p.Stamp.Shard.K = 2 }), "shard 2/3 is given 2 times (c, a); give each shard once; shard 0 of 0…2 is missing; run it with --shard 0/3"},
 		{mod(0, func(p *ShardPart) { p.Done = 1 }), "c (shard 2/3) holds 1 of its 3 points (interrupted?); re-run it with --shard 2/3"},

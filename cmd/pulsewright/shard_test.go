@@ -7,6 +7,7 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -191,6 +192,11 @@ func TestMergeRefuses(t *testing.T) {
 	_, rest, _ := bytes.Cut(data, []byte("\n"))
 	engine1 := filepath.Join(dir, "engine1.csv")
 	os.WriteFile(engine1, append([]byte("# pulsewright v9.9.9 (commit 0123456789ab) · scenario format 1 · report format 1\n"), rest...), 0o644)
+	// Another executable with the same engine line (two devel builds).
+	lines0 := strings.SplitAfter(string(data), "\n")
+	build1 := filepath.Join(dir, "build1.csv")
+	stampLine := regexp.MustCompile(`build sha256:[0-9a-f]{64}`).ReplaceAllString(lines0[1], "build sha256:"+strings.Repeat("0", 64))
+	os.WriteFile(build1, []byte(lines0[0]+stampLine+strings.Join(lines0[2:], "")), 0o644)
 	cut := filepath.Join(dir, "cut.csv")
 	os.WriteFile(cut, data[:len(data)-5], 0o644)
 	noRows := filepath.Join(dir, "norows.csv")
@@ -206,6 +212,7 @@ func TestMergeRefuses(t *testing.T) {
 		{"scenario", []string{a0, scen1}, "a0.csv and " + scen1 + " are shards of different scenarios (sha256:"},
 		{"grid", []string{a0, grid1}, "are shards of different grids (sha256:"},
 		{"engine", []string{a0, engine1}, "are shards of different engine versions (# pulsewright devel · scenario format"},
+		{"build", []string{a0, build1}, "are shards of different builds of the program (sha256:"},
 		{"shard count", []string{a0, b2}, "are shards of different shard counts (shard 0/2 and shard 2/3)"},
 		{"twice", []string{a0, a1, a0}, "shard 0/2 is given 2 times (" + a0 + ", " + a0 + "); give each shard once"},
 		{"missing", []string{b0}, "2 shards of 0…2 are missing (1, 2); run them with --shard 1/3, --shard 2/3"},

@@ -2,13 +2,16 @@ package main
 
 import (
 	"context"
+	"crypto/sha256"
 	"encoding/csv"
+	"encoding/hex"
 	"errors"
 	"fmt"
 	"io"
 	"os"
 	"runtime"
 	"strings"
+	"sync"
 	"time"
 
 	"github.com/pulsewright/pulsewright/scenarios"
@@ -201,8 +204,28 @@ func sweepStamp(g *scenarios.Grid, sh scenarios.Shard) (*scenarios.ShardStamp, e
 	if err != nil {
 		return nil, fmt.Errorf("sweep: %w", err)
 	}
-	return &scenarios.ShardStamp{Shard: sh, Command: "sweep", Total: total, Unit: "points", Scenario: h, Grid: g.Hash()}, nil
+	return &scenarios.ShardStamp{Shard: sh, Command: "sweep", Total: total, Unit: "points", Scenario: h, Grid: g.Hash(), Build: buildHash()}, nil
 }
+
+// buildHash identifies the running executable by the hash of its file
+// (scenarios.ShardStamp.Build), scenarios.UnknownBuild when it cannot be
+// read.
+var buildHash = sync.OnceValue(func() string {
+	exe, err := os.Executable()
+	if err != nil {
+		return scenarios.UnknownBuild
+	}
+	f, err := os.Open(exe)
+	if err != nil {
+		return scenarios.UnknownBuild
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return scenarios.UnknownBuild
+	}
+	return "sha256:" + hex.EncodeToString(h.Sum(nil))
+})
 
 func newSweepWriter(w io.Writer, g *scenarios.Grid, ids []string) *sweepWriter {
 	trains := g.Base.Radar.Pulses > 1
