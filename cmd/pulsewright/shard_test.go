@@ -10,7 +10,9 @@ import (
 	"regexp"
 	"strconv"
 	"strings"
+	"syscall"
 	"testing"
+	"time"
 
 	"github.com/pulsewright/pulsewright/scenarios"
 )
@@ -356,5 +358,58 @@ func TestSlurmScripts(t *testing.T) {
 	}
 	if code, out := sbatch("shard.sbatch", "", append([]string{"3", "sweep"}, shardGrid...)...); code != 2 || !strings.Contains(out, "not a job array task") {
 		t.Errorf("no task id: exit %d %q", code, out)
+	}
+}
+
+// TestShardRunnerStopped sends SIGTERM to the local runner while its three
+// shards run: it stops them all and exits 130; each shard keeps the rows
+// it finished, and merge names every shard as interrupted with the
+// --shard that re-runs it. (TestShardInterruptedRerun re-runs one.)
+func TestShardRunnerStopped(t *testing.T) {
+	if _, err := exec.LookPath("bash"); err != nil {
+		t.Skip("bash is not installed")
+	}
+	d := t.TempDir()
+	script, _ := filepath.Abs("../../deploy/local/run-shards.sh")
+	cmd := exec.Command("bash", script, "-n", "3", "-d", d, "--", "sweep", "demo:harbour-skiff", "--set", "seed=1:30000:1")
+	cmd.Env = append(os.Environ(), "PULSEWRIGHT="+os.Args[0], "PULSEWRIGHT_TEST_ARGV=1")
+	var errb bytes.Buffer
+	cmd.Stderr = &errb
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	deadline := time.Now().Add(60 * time.Second)
+	for {
+		tmps, _ := filepath.Glob(filepath.Join(d, ".shard-*-of-3.csv.*.tmp"))
+		big := 0
+		for _, f := range tmps {
+			if fi, err := os.Stat(f); err == nil && fi.Size() > 2000 {
+				big++
+			}
+		}
+		if big == 3 {
+			break
+		}
+		if time.Now().After(deadline) {
+			cmd.Process.Kill()
+			t.Fatalf("the shards wrote no rows in 60 s; %s", errb.String())
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+	cmd.Process.Signal(syscall.SIGTERM)
+	err := cmd.Wait()
+	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != exitInterrupted || !strings.Contains(errb.String(), "interrupted; stopping 3 shard(s)") {
+		t.Fatalf("runner: %v, %q; want exit %d", err, errb.String(), exitInterrupted)
+	}
+	files, _ := filepath.Glob(filepath.Join(d, "shard-*-of-3.csv"))
+	if len(files) != 3 {
+		t.Fatalf("shard files %v", files)
+	}
+	code, _, errs := runCmd(t, "", append([]string{"merge"}, files...)...)
+	for k := range 3 {
+		want := fmt.Sprintf("of its 10000 points (interrupted?); re-run it with --shard %d/3", k)
+		if code != exitInvalid || !strings.Contains(errs, want) {
+			t.Errorf("merge: exit %d %q; want %q", code, errs, want)
+		}
 	}
 }

@@ -19,7 +19,7 @@
 # writes DIR/shard-K-of-N.csv and its messages to DIR/shard-K-of-N.log.
 # When a shard fails the script says which, leaves the others' outputs in
 # place and exits 1 without merging; run it again with --only K.
-# Ctrl-C stops every shard (each keeps the rows it finished; merge refuses
+# Ctrl-C or SIGTERM stops every shard (each keeps the rows it finished; merge refuses
 # such a shard as interrupted until it is re-run).
 #
 # Exit status: 0 merged; 1 a shard or the merge failed; 2 usage;
