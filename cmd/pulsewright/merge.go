@@ -114,19 +114,6 @@ func expandPatterns(args []string) ([]string, error) {
 	return out, nil
 }
 
-// sameFile reports whether a and b name one file (or one path, when
-// either does not exist).
-func sameFile(a, b string) bool {
-	fa, ea := os.Stat(a)
-	fb, eb := os.Stat(b)
-	if ea == nil && eb == nil {
-		return os.SameFile(fa, fb)
-	}
-	aa, e1 := filepath.Abs(a)
-	ab, e2 := filepath.Abs(b)
-	return e1 == nil && e2 == nil && aa == ab
-}
-
 // sweepShard is a sweep shard's CSV split into its header line and its
 // rows, each the exact bytes written (newline included), so that the
 // merge reproduces them byte for byte.
