@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/csv"
+	"errors"
 	"fmt"
 	"io"
 	"os"
@@ -135,6 +136,11 @@ func splitSweepCSV(name string, body []byte) (sweepShard, error) {
 			break
 		}
 		if err != nil {
+			var pe *csv.ParseError
+			if errors.As(err, &pe) { // count the two comment lines
+				pe.StartLine += 2
+				pe.Line += 2
+			}
 			return sweepShard{}, fmt.Errorf("merge: %s: %w (a damaged shard: re-run it): %w", name, err, scenarios.ErrInvalid)
 		}
 		off := r.InputOffset()
@@ -166,10 +172,6 @@ func (e *env) mergeSweep(files []shardFile, out, failIf string) error {
 		if err != nil {
 			return err
 		}
-		if i > 0 && !bytes.Equal(s.head, shards[0].head) {
-			return fmt.Errorf("merge: %s and %s have different columns (%s and %s): %w",
-				files[0].part.Name, f.part.Name, scenarios.Clip(string(bytes.TrimSpace(shards[0].head)), 200), scenarios.Clip(string(bytes.TrimSpace(s.head)), 200), scenarios.ErrInvalid)
-		}
 		shards[i] = s
 		parts[i] = f.part
 		parts[i].Done = len(s.rows)
@@ -177,6 +179,13 @@ func (e *env) mergeSweep(files []shardFile, out, failIf string) error {
 	ordered, err := scenarios.CheckShards(parts)
 	if err != nil {
 		return err
+	}
+	// One scenario and grid make one header; a file edited by hand may not.
+	for i, s := range shards[1:] {
+		if !bytes.Equal(s.head, shards[0].head) {
+			return fmt.Errorf("merge: %s and %s have different columns (%s and %s): %w",
+				files[0].part.Name, files[i+1].part.Name, scenarios.Clip(string(bytes.TrimSpace(shards[0].head)), 200), scenarios.Clip(string(bytes.TrimSpace(s.head)), 200), scenarios.ErrInvalid)
+		}
 	}
 	byK := make([]*sweepShard, len(ordered))
 	for i, f := range files {
