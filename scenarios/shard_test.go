@@ -263,3 +263,21 @@ func TestRunShard(t *testing.T) {
 		t.Errorf("shard 3/3: %v", err)
 	}
 }
+
+// The points of a 10-point grid in 3 shards: round robin for a sweep,
+// blocks for counts that add up.
+func ExampleShard() {
+	for k := range 3 {
+		sh := Shard{K: k, N: 3}
+		var items []int
+		for j := range sh.Len(10) {
+			items = append(items, sh.Item(j))
+		}
+		first, count := sh.Block(10)
+		fmt.Printf("shard %v: items %v, block %d…%d\n", sh, items, first, first+count-1)
+	}
+	// Output:
+	// shard 0/3: items [0 3 6 9], block 0…2
+	// shard 1/3: items [1 4 7], block 3…5
+	// shard 2/3: items [2 5 8], block 6…9
+}
