@@ -9,6 +9,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -126,9 +127,15 @@ func TestKubernetesManifests(t *testing.T) {
 	if !strings.HasPrefix(scen, mounts["scenario"]+"/") {
 		t.Errorf("%s: scenario %q is not under the mounted ConfigMap %q", f, scen, mounts["scenario"])
 	}
+	for _, r := range at(t, f, sweep, "spec", "podFailurePolicy", "rules").([]any) {
+		checkKnown(t, f, "PodFailurePolicyRule", r)
+	}
 	for name, m := range map[string]map[string]any{"sweep-job.yaml": sweep, "merge-job.yaml": merge} {
+		checkKnown(t, name, "JobSpec", at(t, name, m, "spec"))
 		spec := at(t, name, m, "spec", "template", "spec").(map[string]any)
+		checkKnown(t, name, "PodSpec", spec)
 		c := at(t, name, spec, "containers", 0).(map[string]any)
+		checkKnown(t, name, "Container", c)
 		if cmd := strs(t, name, at(t, name, c, "command")); len(cmd) != 1 || cmd[0] != "/pulsewright" {
 			t.Errorf("%s: command %q, want [/pulsewright] (the Dockerfile's binary)", name, cmd)
 		}
@@ -162,6 +169,40 @@ func TestKubernetesManifests(t *testing.T) {
 	}
 	if !regexp.MustCompile(`COPY --from=build /out/pulsewright /pulsewright`).Match(df) || !strings.Contains(string(df), "USER nonroot") {
 		t.Errorf("the Dockerfile no longer installs /pulsewright run as nonroot; update the manifests")
+	}
+}
+
+// known lists fields of the Kubernetes objects the manifests use
+// (batch/v1 JobSpec, core/v1 PodSpec and Container, Kubernetes 1.31;
+// from memory of the API reference, and not every PodSpec field), so
+// that a misspelt field, which the API server would reject or drop,
+// fails here. A real field missing from a list fails too: add it.
+var known = map[string][]string{
+	"JobSpec": {"activeDeadlineSeconds", "backoffLimit", "backoffLimitPerIndex", "completionMode", "completions", "managedBy",
+		"manualSelector", "maxFailedIndexes", "parallelism", "podFailurePolicy", "podReplacementPolicy", "selector",
+		"successPolicy", "suspend", "template", "ttlSecondsAfterFinished"},
+	"PodSpec": {"activeDeadlineSeconds", "affinity", "automountServiceAccountToken", "containers", "dnsPolicy", "enableServiceLinks",
+		"hostname", "imagePullSecrets", "initContainers", "nodeName", "nodeSelector", "priorityClassName", "restartPolicy",
+		"schedulerName", "securityContext", "serviceAccountName", "subdomain", "terminationGracePeriodSeconds", "tolerations",
+		"topologySpreadConstraints", "volumes"},
+	"Container": {"args", "command", "env", "envFrom", "image", "imagePullPolicy", "lifecycle", "livenessProbe", "name", "ports",
+		"readinessProbe", "resources", "securityContext", "startupProbe", "stdin", "terminationMessagePath",
+		"terminationMessagePolicy", "tty", "volumeDevices", "volumeMounts", "workingDir"},
+	"PodFailurePolicyRule": {"action", "onExitCodes", "onPodConditions"},
+}
+
+// checkKnown fails the test for any key of m that kind does not have.
+func checkKnown(t *testing.T, file, kind string, m any) {
+	t.Helper()
+	mm, ok := m.(map[string]any)
+	if !ok {
+		t.Errorf("%s: %s is not a mapping", file, kind)
+		return
+	}
+	for k := range mm {
+		if !slices.Contains(known[kind], k) {
+			t.Errorf("%s: %s has no field %q", file, kind, k)
+		}
 	}
 }
 
