@@ -84,6 +84,13 @@ func (s Shard) Block(n int) (first, count int) {
 	return first, (s.K+1)*n/s.N - first
 }
 
+// BlockLen returns the count of Block(n): how many items the shard owns
+// in the partition in blocks (for CheckShards).
+func (s Shard) BlockLen(n int) int {
+	_, c := s.Block(n)
+	return c
+}
+
 // Owner returns the shard of N that owns item i, and the item's position
 // within it.
 func Owner(i, n int) (k, j int) { return i % n, i / n }
@@ -202,7 +209,7 @@ func ParseShardStamp(line string) (ShardStamp, error) {
 // ShardPart is one shard output given to a merge: its name (a file name,
 // for messages), the engine comment line it opens with, its stamp, and
 // how many of its items it holds (an interrupted shard holds fewer than
-// Stamp.Shard.Len(Stamp.Total)).
+// it owns).
 type ShardPart struct {
 	Name   string
 	Engine string
@@ -211,8 +218,9 @@ type ShardPart struct {
 }
 
 // CheckShards checks that parts are exactly the N shards of one run and
-// returns them in shard order. It refuses, with an error wrapping
-// ErrInvalid:
+// returns them in shard order. owns says how many of the run's items a
+// shard owns: Shard.Len for the round-robin partition (a sweep), or the
+// count of Shard.Block. It refuses, with an error wrapping ErrInvalid:
 //   - parts of different commands, engines, scenarios, grids or builds
 //     (each compared with the first part, naming both files and both
 //     values; an UnknownBuild is not compared), or of different N or
@@ -220,7 +228,7 @@ type ShardPart struct {
 //   - a shard given twice, shards missing, and shards that hold fewer
 //     items than they own (interrupted), all listed by index with the
 //     --shard option that re-runs them.
-func CheckShards(parts []ShardPart) ([]ShardPart, error) {
+func CheckShards(parts []ShardPart, owns func(Shard, int) int) ([]ShardPart, error) {
 	if len(parts) == 0 {
 		return nil, fmt.Errorf("merge: no shard outputs given: %w", ErrInvalid)
 	}
@@ -269,7 +277,7 @@ func CheckShards(parts []ShardPart) ([]ShardPart, error) {
 			continue
 		}
 		p := ps[0]
-		if want := p.Stamp.Shard.Len(a.Total); p.Done != want {
+		if want := owns(p.Stamp.Shard, a.Total); p.Done != want {
 			problems = append(problems, fmt.Sprintf("%s (shard %d/%d) holds %d of its %d %s (interrupted?); re-run it with --shard %d/%d",
 				p.Name, k, n, p.Done, want, a.Unit, k, n))
 		}

@@ -166,7 +166,7 @@ func TestCheckShards(t *testing.T) {
 		return ShardPart{Name: name, Engine: "# pulsewright devel", Stamp: st, Done: st.Shard.Len(st.Total)}
 	}
 	good := []ShardPart{part("c", 2, 3), part("a", 0, 3), part("b", 1, 3)}
-	got, err := CheckShards(good)
+	got, err := CheckShards(good, Shard.Len)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -177,12 +177,16 @@ func TestCheckShards(t *testing.T) {
 	if !slices.Equal(names, []string{"a", "b", "c"}) {
 		t.Errorf("order %v", names)
 	}
+	// In blocks, shard 2/3 of 10 owns 4 items (6…9), not 3.
+	if _, err := CheckShards(good, Shard.BlockLen); err == nil || !strings.Contains(err.Error(), "c (shard 2/3) holds 3 of its 4 points") {
+		t.Errorf("blocks: %v", err)
+	}
 	// More shards than items: the empty ones hold 0 of 0.
 	var many []ShardPart
 	for k := range 13 {
 		many = append(many, part(fmt.Sprint(k), k, 13))
 	}
-	if _, err := CheckShards(many); err != nil {
+	if _, err := CheckShards(many, Shard.Len); err != nil {
 		t.Errorf("13 shards of 10 points: %v", err)
 	}
 
@@ -192,7 +196,7 @@ func TestCheckShards(t *testing.T) {
 		return ps
 	}
 	// An unknown build is not compared: the engine lines decide.
-	if _, err := CheckShards(mod(1, func(p *ShardPart) { p.Stamp.Build = UnknownBuild })); err != nil {
+	if _, err := CheckShards(mod(1, func(p *ShardPart) { p.Stamp.Build = UnknownBuild }), Shard.Len); err != nil {
 		t.Errorf("an unknown build: %v", err)
 	}
 	for _, c := range []struct {
@@ -212,7 +216,7 @@ func TestCheckShards(t *testing.T) {
 		{mod(0, func(p *ShardPart) { p.Done = 4 }), "holds 4 of its 3 points"},
 		{good[:1], "2 shards of 0…2 are missing (0, 1); run them with --shard 0/3, --shard 1/3"},
 	} {
-		_, err := CheckShards(c.parts)
+		_, err := CheckShards(c.parts, Shard.Len)
 		if err == nil || !errors.Is(err, ErrInvalid) || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("error %v; want %q", err, c.want)
 		}

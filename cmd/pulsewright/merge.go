@@ -176,7 +176,7 @@ func (e *env) mergeSweep(files []shardFile, out, failIf string) error {
 		parts[i] = f.part
 		parts[i].Done = len(s.rows)
 	}
-	ordered, err := scenarios.CheckShards(parts)
+	ordered, err := scenarios.CheckShards(parts, scenarios.Shard.Len)
 	if err != nil {
 		return err
 	}
