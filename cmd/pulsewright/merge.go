@@ -47,8 +47,15 @@ func (e *env) merge(args []string) error {
 		}
 		files = append(files, f)
 	}
-	// Each command's merge checks the set with scenarios.CheckShards,
-	// which refuses shards of different commands.
+	// Shards of different commands are refused before their bodies are
+	// read; each command's merge then checks the set with
+	// scenarios.CheckShards.
+	for _, f := range files[1:] {
+		if f.part.Stamp.Command != files[0].part.Stamp.Command {
+			return fmt.Errorf("merge: %s and %s are shards of different commands (%s and %s); merge only the shards of one run: %w",
+				files[0].part.Name, f.part.Name, files[0].part.Stamp.Command, f.part.Stamp.Command, scenarios.ErrInvalid)
+		}
+	}
 	switch cmd := files[0].part.Stamp.Command; cmd {
 	case "sweep":
 		return e.mergeSweep(files, *out, *failIf)
