@@ -38,7 +38,7 @@ type TrialSummary struct {
 // where the report has no Pd.
 type TrialTarget struct {
 	ID         string   `json:"id"`
-	Status     string   `json:"status"`             // the report's status
+	Status     string   `json:"status"`                   // the report's status
 	TestedM    *float64 `json:"tested_range_m,omitempty"` // range of the tested cell, m
 	Detections int64    `json:"detections"`
 	Pd         *float64 `json:"pd,omitempty"`      // empirical, detections / trials
@@ -52,8 +52,8 @@ type TrialTarget struct {
 // TrialFalseAlarms counts threshold crossings of the noise-only cells.
 type TrialFalseAlarms struct {
 	Count    int64    `json:"count"`
-	Cells    int64    `json:"cells"`    // noise-only cells tested over all trials
-	Expected float64  `json:"expected"` // pfa × cells
+	Cells    int64    `json:"cells"`               // noise-only cells tested over all trials
+	Expected float64  `json:"expected"`            // pfa × cells
 	Rate     *float64 `json:"rate,omitempty"`      // count / cells
 	RateLow  *float64 `json:"rate_low,omitempty"`  // interval bounds of the rate
 	RateHigh *float64 `json:"rate_high,omitempty"` //
