@@ -84,7 +84,7 @@ func (e *env) trials(args []string) error {
 	eng := scenarios.RunningEngine()
 	sum.Engine = &eng
 	if counts.Trials > 0 {
-		fmt.Fprintf(e.stderr, "pulsewright: %d trials in %.1f s (%.0f trials/s on %d workers)\n",
+		fmt.Fprintf(e.stderr, "pulsewright: %d trials in %.1f s (%.0f trials/s, %d at once)\n",
 			counts.Trials, elapsed.Seconds(), float64(counts.Trials)/elapsed.Seconds(), jobs)
 	}
 	write := func(w io.Writer) error {
@@ -134,11 +134,11 @@ func writeTrialsText(w io.Writer, s scenarios.TrialSummary) error {
 			at = fx(*t.TestedM, 1)
 		}
 		if t.Pd != nil {
-			pd = fmtPd(*t.Pd)
-			ci = fmt.Sprintf("%s … %s", fmtPd(*t.PdLow), fmtPd(*t.PdHigh))
+			pd = prob(*t.Pd)
+			ci = fmt.Sprintf("%s … %s", prob(*t.PdLow), prob(*t.PdHigh))
 		}
 		if t.PdAnalytic != nil {
-			an = fmtPd(*t.PdAnalytic)
+			an = prob(*t.PdAnalytic)
 		}
 		if t.Inside != nil {
 			in = map[bool]string{true: "yes", false: "no"}[*t.Inside]
@@ -198,3 +198,7 @@ func writeTrialsCSV(w io.Writer, s scenarios.TrialSummary) error {
 	c.Flush()
 	return c.Error()
 }
+
+// prob prints a probability to four decimals: the resolution of a few
+// thousand trials.
+func prob(p float64) string { return strconv.FormatFloat(p, 'f', 4, 64) }
