@@ -52,6 +52,7 @@ type Trials struct {
 	sc     *scene
 	report *Report
 	cells  [][2]int // per target: range gate and Doppler bin of its test; gate −1 when it has none
+	tested []float64 // per target: its own noise-free power at that cell, re noise (the SNR its Pd test sees)
 	quiet  []bool   // per range gate: noise only, its training cells too (false-alarm count)
 	nQuiet int      // quiet cells per trial (gates, or gates × Doppler bins)
 }
@@ -113,7 +114,7 @@ func NewTrials(ctx context.Context, s *Scenario) (*Trials, error) {
 		return nil, err
 	}
 	m.noiseCorrelation() // filled once here: workers share it read-only
-	t := &Trials{s: s, m: m, sc: sc, report: rep, cells: make([][2]int, len(sc.targets))}
+	t := &Trials{s: s, m: m, sc: sc, report: rep, cells: make([][2]int, len(sc.targets)), tested: make([]float64, len(sc.targets))}
 	for j, g := range sc.targets {
 		t.cells[j] = [2]int{-1, -1}
 		if rep.Targets[j].Status == StatusOutOfWindow || g.rejected {
@@ -121,10 +122,10 @@ func NewTrials(ctx context.Context, s *Scenario) (*Trials, error) {
 		}
 		if sc.train != nil {
 			if k, d, p := sc.train.peak(j); k >= 0 && p > 0 {
-				t.cells[j] = [2]int{k, d}
+				t.cells[j], t.tested[j] = [2]int{k, d}, p
 			}
 		} else if k, p := g.resp.peakIn(m.processed); k >= 0 && p > 0 {
-			t.cells[j] = [2]int{k, 0}
+			t.cells[j], t.tested[j] = [2]int{k, 0}, p
 		}
 	}
 	t.findQuiet()
@@ -142,6 +143,17 @@ func (t *Trials) TestedGate(j int) (float64, bool) {
 		return 0, false
 	}
 	return t.m.rangeOf(float64(k)), true
+}
+
+// TestedSNRDB returns the SNR (dB) target j's test sees at its cell: its
+// own noise-free power there over the noise (the single-pulse SNR after
+// every loss, or the integrated SNR on a range–Doppler map), and false
+// when it has no cell.
+func (t *Trials) TestedSNRDB(j int) (float64, bool) {
+	if t.cells[j][0] < 0 {
+		return 0, false
+	}
+	return dsp.DB(t.tested[j]), true
 }
 
 // findQuiet marks the range gates whose cell and training cells hold the

@@ -30,12 +30,10 @@ type mcTarget struct {
 	snrDB     float64
 }
 
-// tunedScene returns the scenario doc(targets JSON) with each target's RCS
-// tuned (two evaluations of the report under tuneDet, a detector that
-// reports Pd) so that the SNR its Pd test sees at its cell
-// (snr_required_db + pd_margin_db) is its snrDB. The tested SNR does not
-// depend on the detector, so det may be one without an analytic Pd.
-func tunedScene(t *testing.T, doc func(det, targets string) string, tuneDet, det string, tg []mcTarget) *Scenario {
+// tunedScene returns the scenario doc(det, targets JSON) with each
+// target's RCS tuned (three passes) so that the SNR its Pd test sees at
+// its cell is its snrDB.
+func tunedScene(t *testing.T, doc func(det, targets string) string, det string, tg []mcTarget) *Scenario {
 	t.Helper()
 	rcs := make([]float64, len(tg))
 	for i := range tg {
@@ -50,16 +48,16 @@ func tunedScene(t *testing.T, doc func(det, targets string) string, tuneDet, det
 		return strings.Join(parts, ",")
 	}
 	for range 3 {
-		rep, err := Analyse(context.Background(), mustDecode(t, doc(tuneDet, js())))
+		tr, err := NewTrials(context.Background(), mustDecode(t, doc(det, js())))
 		if err != nil {
 			t.Fatal(err)
 		}
 		for i, g := range tg {
-			r := rep.Targets[i]
-			if r.SNRRequiredDB == nil || r.PdMarginDB == nil {
-				t.Fatalf("target %s: no Pd fields to tune on: %+v", g.id, r)
+			db, ok := tr.TestedSNRDB(i)
+			if !ok {
+				t.Fatalf("target %s has no tested cell", g.id)
 			}
-			rcs[i] += g.snrDB - (*r.SNRRequiredDB + *r.PdMarginDB)
+			rcs[i] += g.snrDB - db
 		}
 	}
 	return mustDecode(t, doc(det, js()))
@@ -122,7 +120,7 @@ func TestTrialsClosedFormsKnownNoise(t *testing.T) {
 		{"sw3", "swerling3", 9500, 16},
 		{"sw4", "swerling4", 11500, 19},
 	}
-	s := tunedScene(t, lfmDoc, fixed, fixed, tg)
+	s := tunedScene(t, lfmDoc, fixed, tg)
 	const n = 2000
 	tr, c := runTrials(t, s, n)
 	T := -math.Log(1e-6)
@@ -157,7 +155,7 @@ func TestTrialsClosedFormsKnownNoise(t *testing.T) {
 // ncx2 as above) would fall outside it.
 func TestTrialsCatchOneDB(t *testing.T) {
 	fixed := `{"kind":"fixed","pfa":1e-6}`
-	s := tunedScene(t, lfmDoc, fixed, fixed, []mcTarget{{"steady", "none", 6000, 12}})
+	s := tunedScene(t, lfmDoc, fixed, []mcTarget{{"steady", "none", 6000, 12}})
 	const n = 2000
 	_, c := runTrials(t, s, n)
 	for _, wrong := range []float64{0.4440412605795588, 0.8744407275413658} {
@@ -179,7 +177,7 @@ func TestTrialsCatchOneDB(t *testing.T) {
 func TestTrialsCACFARSwerling1(t *testing.T) {
 	ca := `{"kind":"ca_cfar","pfa":1e-6,"guard_cells":13,"training_cells":16}`
 	tg := []mcTarget{{"a", "swerling1", 9950, 23.15}, {"b", "swerling1", 20000, 18}, {"c", "none", 29900, 15}}
-	s := tunedScene(t, barkerScene, ca, ca, tg)
+	s := tunedScene(t, barkerScene, ca, tg)
 	const n = 2000
 	tr, c := runTrials(t, s, n)
 	N := 16.0
@@ -304,13 +302,12 @@ func TestTrialsCFARVariants(t *testing.T) {
 		n   = 2000
 		pfa = 1e-6
 	)
-	ca := `{"kind":"ca_cfar","pfa":1e-6,"guard_cells":13,"training_cells":16}`
 	tg := []mcTarget{{"sw1", "swerling1", 9950, 20}, {"steady", "none", 20000, 14}}
 	T := -math.Log(pfa)
 	known := dsp.MarcumQ(1, math.Sqrt(2*dsp.FromDB(14)), math.Sqrt(2*T)) // scipy ncx2.sf: 0.9721 at 14 dB
 	for _, kind := range []string{"go_cfar", "so_cfar", "censored_cfar", "os_cfar"} {
 		det := `{"kind":"` + kind + `","pfa":1e-6,"guard_cells":13,"training_cells":16}`
-		s := tunedScene(t, barkerScene, ca, det, tg)
+		s := tunedScene(t, barkerScene, det, tg)
 		tr, c := runTrials(t, s, n)
 		cf := tr.m.detector()
 		k := tr.cells[0][0]
@@ -381,7 +378,7 @@ func TestTrialsMaskingCFAR(t *testing.T) {
 		fluct  string
 	}{{13, "swerling1"}, {16, "swerling1"}, {16, "none"}} {
 		tg := []mcTarget{{"strong", "none", 9950, c.strong}, {"weak", c.fluct, 9950 + 16*150, 20}}
-		s := tunedScene(t, barkerScene, det, det, tg)
+		s := tunedScene(t, barkerScene, det, tg)
 		tr, cnt := runTrials(t, s, n)
 		r := tr.Report().Targets[1]
 		if r.Pd == nil || r.PdAlone == nil || !(*r.PdAlone-*r.Pd > 0.1) {
@@ -411,7 +408,7 @@ func TestTrialsCoherentNeighbour(t *testing.T) {
 	pd := map[float64]float64{}
 	for _, off := range []float64{3.47, 3.6} {
 		tg := []mcTarget{{"strong", "none", 6000, 30}, {"weak", "none", 6000 + off*res, 14}}
-		s := tunedScene(t, lfmDoc, fixed, fixed, tg)
+		s := tunedScene(t, lfmDoc, fixed, tg)
 		tr, c := runTrials(t, s, n)
 		pd[off] = float64(c.Detections[1]) / n
 		t.Logf("weak target %.2f cells from a 30 dB one: trials %.4f, analytic %s", off, pd[off], optPd(tr.Report().Targets[1].Pd))
@@ -438,7 +435,7 @@ func TestTrialsPulseTrains(t *testing.T) {
 		return strings.Replace(barkerScene(det, targets), `"pri_s":5e-4`, `"pri_s":5e-4,"pulses":16`, 1)
 	}
 	base := []mcTarget{{"a", "swerling1", 9950, 14}, {"b", "swerling3", 20000, 14}, {"c", "none", 29900, 14}}
-	s := tunedScene(t, doc, fixed, fixed, base)
+	s := tunedScene(t, doc, fixed, base)
 	const n = 600
 	tr1, c1 := runTrials(t, s, n)
 	for j, r := range tr1.Report().Targets {

@@ -40,6 +40,7 @@ type TrialTarget struct {
 	ID         string   `json:"id"`
 	Status     string   `json:"status"`                   // the report's status
 	TestedM    *float64 `json:"tested_range_m,omitempty"` // range of the tested cell, m
+	TestedSNR  *float64 `json:"tested_snr_db,omitempty"`  // the target's own noise-free SNR there, dB
 	Detections int64    `json:"detections"`
 	Pd         *float64 `json:"pd,omitempty"`      // empirical, detections / trials
 	PdLow      *float64 `json:"pd_low,omitempty"`  // interval bounds
@@ -77,6 +78,9 @@ func (t *Trials) Summarise(c TrialCounts, requested int) TrialSummary {
 		}
 		if rm, ok := t.TestedGate(j); ok {
 			tt.TestedM = &rm
+			if db, ok := t.TestedSNRDB(j); ok && !math.IsInf(db, 0) {
+				tt.TestedSNR = &db
+			}
 			if c.Trials > 0 {
 				p := float64(tt.Detections) / float64(c.Trials)
 				lo, hi := dsp.ClopperPearson(tt.Detections, int64(c.Trials), TrialConfidence)

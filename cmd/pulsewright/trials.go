@@ -127,11 +127,14 @@ func writeTrialsText(w io.Writer, s scenarios.TrialSummary) error {
 	fmt.Fprintf(w, "Pd: detections / trials at each target's tested cell, %g %% exact binomial interval (Clopper–Pearson 1934); analytic Pd from the report (Pfa %g)\n\n",
 		100*s.Confidence, s.Pfa)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "ID\tSTATUS\tTESTED AT m\tDETECTIONS\tPD\t95 % INTERVAL\tANALYTIC PD\tINSIDE\t")
+	fmt.Fprintln(tw, "ID\tSTATUS\tTESTED AT m\tSNR dB\tDETECTIONS\tPD\t95 % INTERVAL\tANALYTIC PD\tINSIDE\t")
 	for _, t := range s.Targets {
-		at, pd, ci, an, in := "—", "—", "—", "—", "—"
+		at, snr, pd, ci, an, in := "—", "—", "—", "—", "—", "—"
 		if t.TestedM != nil {
 			at = fx(*t.TestedM, 1)
+		}
+		if t.TestedSNR != nil {
+			snr = fx(*t.TestedSNR, 2)
 		}
 		if t.Pd != nil {
 			pd = prob(*t.Pd)
@@ -147,7 +150,7 @@ func writeTrialsText(w io.Writer, s scenarios.TrialSummary) error {
 		if t.TestedM != nil {
 			det = fmt.Sprintf("%d/%d", t.Detections, s.Trials)
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", t.ID, t.Status, at, det, pd, ci, an, in)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", t.ID, t.Status, at, snr, det, pd, ci, an, in)
 	}
 	if err := tw.Flush(); err != nil {
 		return err
@@ -162,7 +165,7 @@ func writeTrialsText(w io.Writer, s scenarios.TrialSummary) error {
 }
 
 // writeTrialsCSV writes one row per target and one for the false alarms:
-// what, id, status, tested_range_m, count, of (trials or cells), rate
+// what, id, status, tested_range_m, tested_snr_db, count, of (trials or cells), rate
 // (empirical Pd or false-alarm rate), low, high, expected (analytic Pd or
 // Pfa), inside.
 func writeTrialsCSV(w io.Writer, s scenarios.TrialSummary) error {
@@ -170,7 +173,7 @@ func writeTrialsCSV(w io.Writer, s scenarios.TrialSummary) error {
 		return err
 	}
 	c := csv.NewWriter(w)
-	c.Write([]string{"what", "id", "status", "tested_range_m", "count", "of", "rate", "low", "high", "expected", "inside"})
+	c.Write([]string{"what", "id", "status", "tested_range_m", "tested_snr_db", "count", "of", "rate", "low", "high", "expected", "inside"})
 	opt := func(v *float64, prec int) string {
 		if v == nil {
 			return ""
@@ -188,12 +191,12 @@ func writeTrialsCSV(w io.Writer, s scenarios.TrialSummary) error {
 		if t.TestedM != nil {
 			of = strconv.Itoa(s.Trials)
 		}
-		c.Write([]string{"target", t.ID, t.Status, opt(t.TestedM, 10), strconv.FormatInt(t.Detections, 10), of,
+		c.Write([]string{"target", t.ID, t.Status, opt(t.TestedM, 10), opt(t.TestedSNR, 6), strconv.FormatInt(t.Detections, 10), of,
 			opt(t.Pd, 8), opt(t.PdLow, 8), opt(t.PdHigh, 8), opt(t.PdAnalytic, 8), yes(t.Inside)})
 	}
 	fa := s.FalseAlarms
 	pfa := s.Pfa
-	c.Write([]string{"false_alarms", "", "", "", strconv.FormatInt(fa.Count, 10), strconv.FormatInt(fa.Cells, 10),
+	c.Write([]string{"false_alarms", "", "", "", "", strconv.FormatInt(fa.Count, 10), strconv.FormatInt(fa.Cells, 10),
 		opt(fa.Rate, 8), opt(fa.RateLow, 8), opt(fa.RateHigh, 8), opt(&pfa, 8), yes(fa.Inside)})
 	c.Flush()
 	return c.Error()

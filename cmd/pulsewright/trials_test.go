@@ -58,7 +58,7 @@ func TestTrialsCommandFormats(t *testing.T) {
 	if err != nil || len(rows) != 4 || rows[0][0] != "what" || rows[3][0] != "false_alarms" {
 		t.Fatalf("csv rows %v, %v", rows, err)
 	}
-	if rows[1][4] != itoa(sum.Targets[0].Detections) || rows[3][4] != itoa(sum.FalseAlarms.Count) {
+	if rows[1][5] != itoa(sum.Targets[0].Detections) || rows[3][5] != itoa(sum.FalseAlarms.Count) {
 		t.Errorf("csv counts %v differ from the json run's %+v", rows, sum)
 	}
 	code, out, _ = runCmd(t, trialScene, "trials", "-", "-n", "400")
