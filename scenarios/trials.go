@@ -51,10 +51,10 @@ type Trials struct {
 	m      *model
 	sc     *scene
 	report *Report
-	cells  [][2]int // per target: range gate and Doppler bin of its test; gate −1 when it has none
+	cells  [][2]int  // per target: range gate and Doppler bin of its test; gate −1 when it has none
 	tested []float64 // per target: its own noise-free power at that cell, re noise (the SNR its Pd test sees)
-	quiet  []bool   // per range gate: noise only, its training cells too (false-alarm count)
-	nQuiet int      // quiet cells per trial (gates, or gates × Doppler bins)
+	quiet  []bool    // per range gate: noise only, its training cells too (false-alarm count)
+	nQuiet int       // quiet cells per trial (gates, or gates × Doppler bins)
 }
 
 // TrialCounts are the raw counts of trials First … First+Trials−1. Counts
