@@ -219,6 +219,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		}
 		tr.SNRDB = sc.snrDB(g, tr.RangeM, fig, d.lossDB)
 		m.pdFigures(g, v, v.alone, sc.train != nil, &tr)
+		detectionRangeOf(g, v, &tr)
 		if v.culprit >= 0 {
 			tr.MaskedBy = sc.targets[v.culprit].t.ID
 		}

@@ -74,6 +74,10 @@ type TargetReport struct {
 	PdAlone       *float64 `json:"pd_alone,omitempty"`        // with the other targets removed
 	SNRRequiredDB *float64 `json:"snr_required_db,omitempty"` // tested SNR that pd_required needs against noise alone
 	PdMarginDB    *float64 `json:"pd_margin_db,omitempty"`    // tested SNR − snr_required_db
+	// DetectionRangeM is the range at which the tested SNR falls to
+	// snr_required_db by the R⁴ law from the target's range (its RCS
+	// kept; docs/detection-probability.md §10). Added in version 2.
+	DetectionRangeM *float64 `json:"detection_range_m,omitempty"`
 }
 
 // Result is a report with the series the page plots.
