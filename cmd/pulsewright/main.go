@@ -50,6 +50,10 @@ Usage:
                                      Monte Carlo: N noisy realisations through the engine; each
                                      target's empirical Pd (95 % interval) beside the analytic Pd,
                                      and the false alarms counted against Pfa × cells
+  pulsewright coverage SCENARIO --target ID [--from M --to M] [--points 200] [--by range|snr]
+                     [--format table|csv|html] [-o FILE]
+                                     Pd curves of one target: against range (moved through the
+                                     window, RCS kept) and against SNR; its detection range
   pulsewright blindzones --pri T1,T2,… --tau S --carrier HZ [--pulses N1,N2,…] [--m M]
                      [--range MIN:MAX] [--rate V] [--cells 100x40] [--format table|csv|html] [-o FILE]
                                      map where a PRF schedule is blind (eclipsed or at a
@@ -114,6 +118,8 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.pd(args)
 	case "trials":
 		err = env.trials(args)
+	case "coverage":
+		err = env.coverage(args)
 	case "demos":
 		err = env.demos(args)
 	case "blindzones":
