@@ -8,7 +8,7 @@ import (
 	"github.com/pulsewright/pulsewright/dsp"
 )
 
-// Pd curves of one target (docs/detection-probability.md §10): Pd against
+// Pd curves of one target (docs/detection-probability.md §9): Pd against
 // the SNR its test sees, for the scene's detector and the target's
 // fluctuation and integration, and Pd against range, the target moved
 // through the receive window with its RCS kept.

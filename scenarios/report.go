@@ -76,7 +76,7 @@ type TargetReport struct {
 	PdMarginDB    *float64 `json:"pd_margin_db,omitempty"`    // tested SNR − snr_required_db
 	// DetectionRangeM is the range at which the tested SNR falls to
 	// snr_required_db by the R⁴ law from the target's range (its RCS
-	// kept; docs/detection-probability.md §10). Added in version 2.
+	// kept; docs/detection-probability.md §9). Added in version 2.
 	DetectionRangeM *float64 `json:"detection_range_m,omitempty"`
 }
 

@@ -10,7 +10,7 @@ import (
 	"github.com/pulsewright/pulsewright/dsp"
 )
 
-// Monte Carlo trials (docs/detection-probability.md §9): N noisy
+// Monte Carlo trials (docs/detection-probability.md §8): N noisy
 // realisations of a scenario through the evaluation's own synthesis,
 // compression and detector, each with new thermal noise and new
 // fluctuation draws, counted against the analytic Pd of the report.

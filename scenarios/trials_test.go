@@ -399,7 +399,7 @@ func TestTrialsMaskingCFAR(t *testing.T) {
 // target from a sidelobe that adds in phase (it is always seen) to one
 // that cancels it (it is almost never seen). The report's Pd adds the
 // two as powers and gives about the same figure for both places
-// (docs/detection-probability.md §9: where the relative phase of two
+// (docs/detection-probability.md §8: where the relative phase of two
 // echoes in one cell is not fixed look to look, the truth lies between).
 func TestTrialsCoherentNeighbour(t *testing.T) {
 	fixed := `{"kind":"fixed","pfa":1e-6}`

@@ -13,7 +13,7 @@ const TrialConfidence = 0.95
 // TrialSummary is the result of a Monte Carlo run: each target's empirical
 // Pd with its exact binomial interval beside the analytic Pd, and the
 // false alarms of the noise-only cells against the expected number
-// (docs/detection-probability.md §9, "Output").
+// (docs/detection-probability.md §8, "Output").
 type TrialSummary struct {
 	Scenario   string  `json:"scenario"`
 	Seed       int64   `json:"seed"`

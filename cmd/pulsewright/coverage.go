@@ -12,7 +12,7 @@ import (
 )
 
 // coverage runs "pulsewright coverage": the Pd curves of one target
-// (docs/detection-probability.md §10).
+// (docs/detection-probability.md §9).
 func (e *env) coverage(args []string) error {
 	fs := newFlags("coverage", e)
 	id := fs.String("target", "", "id of the target (a point target) whose curves to draw (required)")

@@ -20,7 +20,7 @@ const maxTrialTime = 7 * 24 * time.Hour
 
 // trials runs "pulsewright trials": Monte Carlo realisations of a scenario
 // and each target's empirical Pd beside the analytic one
-// (docs/detection-probability.md §9).
+// (docs/detection-probability.md §8).
 func (e *env) trials(args []string) error {
 	fs := newFlags("trials", e)
 	n := fs.Int("n", 1000, fmt.Sprintf("trials to run, 1 … %d", scenarios.MaxTrials))
