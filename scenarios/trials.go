@@ -25,6 +25,11 @@ import (
 // MaxTrials bounds the trials of one run.
 const MaxTrials = 10_000_000
 
+// trialMemory bounds the memory the workers of a run may hold at once:
+// each holds one evaluation's buffers (EstimateCost), so a long pulse
+// train runs on fewer workers than processors.
+const trialMemory = 2 << 30
+
 // quietPower is the noise-free scene power (re noise) below which a cell
 // counts as noise only for the false-alarm count: −30 dB changes a
 // cell's false-alarm probability by well under 1 %.
@@ -132,6 +137,20 @@ func NewTrials(ctx context.Context, s *Scenario) (*Trials, error) {
 	return t, nil
 }
 
+// Workers returns how many workers a run of t uses when want are asked
+// for (0: one per processor): fewer when their buffers together would
+// exceed 2 GiB, with the reason in words ("" when none are taken away).
+func (t *Trials) Workers(want int) (int, string) {
+	if want <= 0 {
+		want = runtime.GOMAXPROCS(0)
+	}
+	per := max(EstimateCost(t.s).Bytes, 1)
+	if fit := int(max(trialMemory/per, 1)); fit < want {
+		return fit, fmt.Sprintf("%d at once, not %d: each needs about %d MB and a run keeps to %d MB", fit, want, per>>20, trialMemory>>20)
+	}
+	return want, ""
+}
+
 // Report returns the analytic report of the scenario (as Analyse).
 func (t *Trials) Report() *Report { return t.report }
 
@@ -224,9 +243,7 @@ func (t *Trials) Run(ctx context.Context, first, count, workers int, progress fu
 	if first < 0 || count < 0 || count > MaxTrials || first > math.MaxInt-count {
 		return TrialCounts{}, fmt.Errorf("trials %d … %d: want 0 ≤ first and 0 ≤ count ≤ %d: %w", first, first+count-1, MaxTrials, ErrInvalid)
 	}
-	if workers <= 0 {
-		workers = runtime.GOMAXPROCS(0)
-	}
+	workers, _ = t.Workers(workers)
 	workers = max(min(workers, count), 1)
 	var (
 		mu      sync.Mutex

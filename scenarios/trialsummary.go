@@ -1,6 +1,8 @@
 package scenarios
 
 import (
+	"crypto/sha256"
+	"fmt"
 	"math"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -15,16 +17,19 @@ const TrialConfidence = 0.95
 // false alarms of the noise-only cells against the expected number
 // (docs/detection-probability.md §8, "Output").
 type TrialSummary struct {
-	Scenario   string  `json:"scenario"`
-	Seed       int64   `json:"seed"`
-	FirstTrial int     `json:"first_trial"`
-	Trials     int     `json:"trials"`
-	Requested  int     `json:"trials_requested"`
-	Complete   bool    `json:"complete"`
-	Interval   string  `json:"interval"`   // "clopper-pearson"
-	Confidence float64 `json:"confidence"` // 0.95
-	Pfa        float64 `json:"pfa"`
-	PdRequired float64 `json:"pd_required"`
+	Scenario string `json:"scenario"`
+	// ScenarioSHA256 is the SHA-256 (hex) of the scenario's canonical
+	// JSON: runs to be added must share it.
+	ScenarioSHA256 string  `json:"scenario_sha256"`
+	Seed           int64   `json:"seed"`
+	FirstTrial     int     `json:"first_trial"`
+	Trials         int     `json:"trials"`
+	Requested      int     `json:"trials_requested"`
+	Complete       bool    `json:"complete"`
+	Interval       string  `json:"interval"`   // "clopper-pearson"
+	Confidence     float64 `json:"confidence"` // 0.95
+	Pfa            float64 `json:"pfa"`
+	PdRequired     float64 `json:"pd_required"`
 
 	Targets     []TrialTarget    `json:"targets"`
 	FalseAlarms TrialFalseAlarms `json:"false_alarms"`
@@ -70,6 +75,9 @@ func (t *Trials) Summarise(c TrialCounts, requested int) TrialSummary {
 		Scenario: t.s.Name, Seed: t.s.Seed, FirstTrial: c.First, Trials: c.Trials, Requested: requested,
 		Complete: c.Trials >= requested, Interval: "clopper-pearson", Confidence: TrialConfidence,
 		Pfa: d.PFA, PdRequired: d.PdRequired, Counts: c,
+	}
+	if b, err := Canonical(t.s); err == nil {
+		s.ScenarioSHA256 = fmt.Sprintf("%x", sha256.Sum256(b))
 	}
 	for j, r := range t.report.Targets {
 		tt := TrialTarget{ID: r.ID, Status: r.Status, PdAnalytic: r.Pd}

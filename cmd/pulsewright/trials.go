@@ -7,7 +7,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"runtime"
 	"strconv"
 	"text/tabwriter"
 	"time"
@@ -63,8 +62,9 @@ func (e *env) trials(args []string) error {
 		}
 		return fmt.Errorf("prepare trials: %w", err)
 	}
-	if jobs == 0 {
-		jobs = runtime.GOMAXPROCS(0)
+	jobs, why := t.Workers(jobs)
+	if why != "" {
+		fmt.Fprintf(e.stderr, "pulsewright: trials run %s\n", why)
 	}
 	ctx := e.ctx
 	if *limit > 0 {
