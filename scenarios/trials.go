@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"math/cmplx"
 	"runtime"
 	"sync"
 
@@ -60,6 +61,24 @@ type Trials struct {
 	tested []float64 // per target: its own noise-free power at that cell, re noise (the SNR its Pd test sees)
 	quiet  []bool    // per range gate: noise only, its training cells too (false-alarm count)
 	nQuiet int       // quiet cells per trial (gates, or gates × Doppler bins)
+	// randomPhase draws each point echo's carrier phase anew per trial
+	// (SetRandomPhase).
+	randomPhase bool
+}
+
+// SetRandomPhase makes every trial draw each point target's carrier phase
+// uniformly (a stream of its own per target and trial) instead of the
+// phase its range gives: echoes that share a cell then add with a random
+// relative phase, as they do from look to look when the targets move by
+// fractions of a wavelength. Trial i is then no longer the engine's window
+// for its seed. Single pulses only: a pulse train's phase follows each
+// target's motion from pulse to pulse. Call it before Run.
+func (t *Trials) SetRandomPhase(on bool) error {
+	if on && t.sc.train != nil {
+		return fmt.Errorf("random phase: radar.pulses is %d; it applies to single pulses, whose echoes keep no phase history: %w", t.s.Radar.Pulses, ErrInvalid)
+	}
+	t.randomPhase = on
+	return nil
 }
 
 // TrialCounts are the raw counts of trials First … First+Trials−1. Counts
@@ -331,6 +350,14 @@ func (t *Trials) newWorker() *trialWorker {
 		return w
 	}
 	w.cf = w.m.detector()
+	if t.randomPhase {
+		// Targets of its own, whose phases it sets per trial.
+		w.sc.targets = make([]*tgt, len(t.sc.targets))
+		for j, g := range t.sc.targets {
+			c := *g
+			w.sc.targets[j] = &c
+		}
+	}
 	w.p = make([]float64, t.m.n)
 	w.th = make([]float64, t.m.n)
 	return w
@@ -345,6 +372,11 @@ func (w *trialWorker) trial(i int, c *TrialCounts) {
 		return
 	}
 	m := &w.m
+	if w.t.randomPhase {
+		for _, g := range w.sc.targets {
+			g.phase = cmplx.Rect(1, 2*math.Pi*streamOf(w.s.Seed, g.t.ID, 0x9a5e).Float64())
+		}
+	}
 	ser := w.sc.window(1)
 	for k, db := range ser.ProfileDB {
 		w.p[k] = dsp.FromDB(db)

@@ -30,6 +30,8 @@ type TrialSummary struct {
 	Confidence     float64 `json:"confidence"` // 0.95
 	Pfa            float64 `json:"pfa"`
 	PdRequired     float64 `json:"pd_required"`
+	// RandomPhase: each trial drew the point echoes' carrier phases.
+	RandomPhase bool `json:"random_phase,omitempty"`
 
 	Targets     []TrialTarget    `json:"targets"`
 	FalseAlarms TrialFalseAlarms `json:"false_alarms"`
@@ -74,7 +76,7 @@ func (t *Trials) Summarise(c TrialCounts, requested int) TrialSummary {
 	s := TrialSummary{
 		Scenario: t.s.Name, Seed: t.s.Seed, FirstTrial: c.First, Trials: c.Trials, Requested: requested,
 		Complete: c.Trials >= requested, Interval: "clopper-pearson", Confidence: TrialConfidence,
-		Pfa: d.PFA, PdRequired: d.PdRequired, Counts: c,
+		Pfa: d.PFA, PdRequired: d.PdRequired, Counts: c, RandomPhase: t.randomPhase,
 	}
 	if b, err := Canonical(t.s); err == nil {
 		s.ScenarioSHA256 = fmt.Sprintf("%x", sha256.Sum256(b))

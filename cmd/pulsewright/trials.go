@@ -29,6 +29,7 @@ func (e *env) trials(args []string) error {
 	fs.IntVar(&jobs, "jobs", 0, "same as -j")
 	format := fs.String("format", "text", "output format: text, json or csv")
 	out := fs.String("o", "", "write to this file instead of standard output")
+	randomPhase := fs.Bool("random-phase", false, "draw each point echo's carrier phase per trial (single pulses): echoes sharing a cell add with a random relative phase")
 	limit := fs.Duration("time-limit", 0, "stop after this long (e.g. 90s, 10m) and write the trials done; 0: no limit")
 	pos, err := parseFlags(fs, args)
 	if err != nil {
@@ -61,6 +62,9 @@ func (e *env) trials(args []string) error {
 			return statusError{exitInterrupted, "trials interrupted while preparing the scene; nothing written"}
 		}
 		return fmt.Errorf("prepare trials: %w", err)
+	}
+	if err := t.SetRandomPhase(*randomPhase); err != nil {
+		return err
 	}
 	jobs, why := t.Workers(jobs)
 	if why != "" {
@@ -121,6 +125,9 @@ func (e *env) trials(args []string) error {
 // writeTrialsText prints a summary as a table a person reads.
 func writeTrialsText(w io.Writer, s scenarios.TrialSummary) error {
 	fmt.Fprintf(w, "%s: %d Monte Carlo trials (trials %d … %d of seed %d)\n", s.Scenario, s.Trials, s.FirstTrial, s.FirstTrial+s.Trials-1, s.Seed)
+	if s.RandomPhase {
+		fmt.Fprintln(w, "carrier phases drawn per trial (--random-phase)")
+	}
 	if !s.Complete {
 		fmt.Fprintf(w, "stopped early: %d of the %d trials asked for\n", s.Trials, s.Requested)
 	}

@@ -94,6 +94,18 @@ func TestTrialsCommandErrors(t *testing.T) {
 			t.Errorf("%v: exit %d, stdout %q, stderr %q; want %d and %q", c.args, code, out, errs, exitInvalid, c.want)
 		}
 	}
+	train := strings.Replace(trialScene, `"pri_s":5e-4`, `"pri_s":5e-4,"pulses":4`, 1)
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"--random-phase"}, "random phase: radar.pulses is 4; it applies to single pulses"},
+	} {
+		code, out, errs := runCmd(t, train, append([]string{"trials", "-"}, c.args...)...)
+		if code != exitInvalid || out != "" || !strings.Contains(errs, c.want) {
+			t.Errorf("%v: exit %d, stdout %q, stderr %q; want %d and %q", c.args, code, out, errs, exitInvalid, c.want)
+		}
+	}
 }
 
 // TestTrialsCommandStops: an interrupt and the time limit both stop the
