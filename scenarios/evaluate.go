@@ -219,7 +219,6 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		}
 		tr.SNRDB = sc.snrDB(g, tr.RangeM, fig, d.lossDB)
 		m.pdFigures(g, v, v.alone, sc.train != nil, &tr)
-		detectionRangeOf(g, v, &tr)
 		if v.culprit >= 0 {
 			tr.MaskedBy = sc.targets[v.culprit].t.ID
 		}
@@ -244,6 +243,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 				m.warn("target %s at %s is outside the receive window %s–%s", g.t.ID, km(g.t.RangeM), km(m.s.Radar.WindowStartM), km(m.s.Radar.WindowStopM))
 			}
 		}
+		detectionRangeOf(g, v, &tr)
 		out[j] = tr
 	}
 	return out

@@ -68,16 +68,16 @@ type TargetReport struct {
 	// do not apply.
 	EclipsingLossDB *float64 `json:"eclipsing_loss_db,omitempty"` // point target partly inside a transmit interval
 	BandLossDB      *float64 `json:"band_loss_db,omitempty"`      // point target with |Doppler| ≥ fs/2: energy outside the receiver's band
+	// DetectionRangeM is the range at which the tested SNR falls to
+	// snr_required_db by the R⁴ law from the target's range (its RCS
+	// kept; docs/detection-probability.md §9). Added in version 2.
+	DetectionRangeM *float64 `json:"detection_range_m,omitempty"`
 	// Probability of detection (docs/detection-probability.md §6), point
 	// targets only; omitted where no closed form applies.
 	Pd            *float64 `json:"pd,omitempty"`              // in the scene, at the scenario's pfa
 	PdAlone       *float64 `json:"pd_alone,omitempty"`        // with the other targets removed
 	SNRRequiredDB *float64 `json:"snr_required_db,omitempty"` // tested SNR that pd_required needs against noise alone
 	PdMarginDB    *float64 `json:"pd_margin_db,omitempty"`    // tested SNR − snr_required_db
-	// DetectionRangeM is the range at which the tested SNR falls to
-	// snr_required_db by the R⁴ law from the target's range (its RCS
-	// kept; docs/detection-probability.md §9). Added in version 2.
-	DetectionRangeM *float64 `json:"detection_range_m,omitempty"`
 }
 
 // Result is a report with the series the page plots.

@@ -11,12 +11,12 @@ import { Store } from './store.js';
 import { initLibrary } from './library.js';
 import { initKeys } from './keys.js';
 import { initFocus } from './focus.js';
+import { initPdCurves } from './pdcurves.js';
 import { printablePNG } from './export.js';
 import { Staleness } from './stale.js';
 import { initCopyLink } from './copylink.js';
 import { Story } from './story.js';
 import { fieldName } from './words.js';
-import { initPdCurves } from './pdcurves.js';
 
 const DefaultDemo = 'harbour-skiff';
 
