@@ -18,18 +18,18 @@ const TrialConfidence = 0.95
 // (docs/detection-probability.md §8, "Output").
 type TrialSummary struct {
 	Scenario string `json:"scenario"`
-	// ScenarioSHA256 is the SHA-256 (hex) of the scenario's canonical
-	// JSON: runs to be added must share it.
-	ScenarioSHA256 string  `json:"scenario_sha256"`
-	Seed           int64   `json:"seed"`
-	FirstTrial     int     `json:"first_trial"`
-	Trials         int     `json:"trials"`
-	Requested      int     `json:"trials_requested"`
-	Complete       bool    `json:"complete"`
-	Interval       string  `json:"interval"`   // "clopper-pearson"
-	Confidence     float64 `json:"confidence"` // 0.95
-	Pfa            float64 `json:"pfa"`
-	PdRequired     float64 `json:"pd_required"`
+	// ScenarioHash is "sha256:" and the hexadecimal SHA-256 of the
+	// scenario's canonical JSON: runs to be added must share it.
+	ScenarioHash string  `json:"scenario_hash"`
+	Seed         int64   `json:"seed"`
+	FirstTrial   int     `json:"first_trial"`
+	Trials       int     `json:"trials"`
+	Requested    int     `json:"trials_requested"`
+	Complete     bool    `json:"complete"`
+	Interval     string  `json:"interval"`   // "clopper-pearson"
+	Confidence   float64 `json:"confidence"` // 0.95
+	Pfa          float64 `json:"pfa"`
+	PdRequired   float64 `json:"pd_required"`
 	// RandomPhase: each trial drew the point echoes' carrier phases.
 	RandomPhase bool `json:"random_phase,omitempty"`
 
@@ -79,7 +79,7 @@ func (t *Trials) Summarise(c TrialCounts, requested int) TrialSummary {
 		Pfa: d.PFA, PdRequired: d.PdRequired, Counts: c, RandomPhase: t.randomPhase,
 	}
 	if b, err := Canonical(t.s); err == nil {
-		s.ScenarioSHA256 = fmt.Sprintf("%x", sha256.Sum256(b))
+		s.ScenarioHash = fmt.Sprintf("sha256:%x", sha256.Sum256(b))
 	}
 	for j, r := range t.report.Targets {
 		tt := TrialTarget{ID: r.ID, Status: r.Status, PdAnalytic: r.Pd}
