@@ -28,6 +28,10 @@ func TestCoverageCommand(t *testing.T) {
 	if b, err := os.ReadFile(f); err != nil || !strings.Contains(string(b), `"pd-range"`) || !strings.Contains(string(b), "Caution") {
 		t.Errorf("html page: %v, %d bytes", err, len(b))
 	}
+	// The text report names each target's detection range.
+	if code, out, _ := runCmd(t, trialScene, "eval", "-", "--format", "text"); code != 0 || !strings.Contains(out, "steady: detection range for its RCS ") {
+		t.Errorf("eval text: exit %d\n%s", code, out)
+	}
 	for _, c := range []struct {
 		args []string
 		want string
