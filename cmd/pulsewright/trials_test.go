@@ -6,9 +6,11 @@ import (
 	"encoding/csv"
 	"encoding/json"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strconv"
 	"strings"
+	"syscall"
 	"testing"
 	"time"
 
@@ -125,5 +127,42 @@ func TestTrialsCommandStops(t *testing.T) {
 	code, outS, errs := runCmd(t, trialScene, "trials", "-", "-n", "10000000", "--time-limit", "300ms")
 	if code != exitFailure || !strings.Contains(errs, "stopped at the time limit of 300ms") || !strings.Contains(outS, "stopped early") {
 		t.Fatalf("time limit: exit %d, stderr %q, out %q", code, errs, outS)
+	}
+}
+
+// TestTrialsSigint runs a long Monte Carlo run in a process of its own,
+// sends it SIGINT, and checks that it stops within seconds with exit 130,
+// writes the trials done and says how many.
+func TestTrialsSigint(t *testing.T) {
+	out := filepath.Join(t.TempDir(), "trials.json")
+	args := []string{"trials", "-", "-n", "10000000", "--format", "json", "-o", out}
+	cmd := exec.Command(os.Args[0], "-test.run=^$")
+	cmd.Env = append(os.Environ(), "PULSEWRIGHT_TEST_RUN="+strings.Join(args, "\n"))
+	cmd.Stdin = strings.NewReader(trialScene)
+	var errb bytes.Buffer
+	cmd.Stderr = &errb
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	time.Sleep(1500 * time.Millisecond)
+	sent := time.Now()
+	cmd.Process.Signal(syscall.SIGINT)
+	err := cmd.Wait()
+	if el := time.Since(sent); el > 3*time.Second {
+		t.Errorf("stopped %v after SIGINT", el)
+	}
+	if ee, ok := err.(*exec.ExitError); !ok || ee.ExitCode() != exitInterrupted {
+		t.Fatalf("exit: %v, stderr %q; want %d", err, errb.String(), exitInterrupted)
+	}
+	b, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var sum scenarios.TrialSummary
+	if err := json.Unmarshal(b, &sum); err != nil || sum.Complete || sum.Trials < 1 {
+		t.Fatalf("summary %+v, %v", sum, err)
+	}
+	if want := "trials interrupted: " + strconv.Itoa(sum.Trials) + " of 10000000 trials (trials 0 … "; !strings.Contains(errb.String(), want) {
+		t.Errorf("stderr %q, want %q", errb.String(), want)
 	}
 }
