@@ -298,7 +298,8 @@ func (u Units) Signed(v float64, decimals int) string {
 // km, a speed in m/s. The engine writes a range rate with an explicit
 // sign ("%+.1f m/s") and an unsigned speed (a spread, a blind speed)
 // without one.
-var siInText = regexp.MustCompile(`([+\-−±]?)(\d+(?:\.\d+)?(?:e[+-]?\d+)?) ?(km|m/s|m)`)
+// A span "1000–2000 m" is one unit for both ends.
+var siInText = regexp.MustCompile(`([+\-−±]?)(?:(\d+(?:\.\d+)?)–)?(\d+(?:\.\d+)?(?:e[+-]?\d+)?) ?(km|m/s|m)`)
 
 // Restate rewrites the SI numbers of a sentence the engine wrote (a
 // reason, a warning) in u, keeping their precision; a signed range rate
@@ -319,15 +320,26 @@ func (u Units) Restate(s string) string {
 				continue // part of a longer token
 			}
 		}
-		sg, digits, unit := s[m[2]:m[3]], s[m[4]:m[5]], s[m[6]:m[7]]
+		sg, digits, unit := s[m[2]:m[3]], s[m[6]:m[7]], s[m[8]:m[9]]
 		v, err := strconv.ParseFloat(digits, 64)
 		if err != nil {
 			continue
 		}
-		decimals := 0
-		if _, frac, ok := strings.Cut(strings.SplitN(digits, "e", 2)[0], "."); ok {
-			decimals = len(frac)
+		if m[4] >= 0 { // a span: both ends in the range unit
+			if unit == "m/s" || u.Range == "m" {
+				continue
+			}
+			a, _ := strconv.ParseFloat(s[m[4]:m[5]], 64)
+			k, d := 1.0, len(fracDigits(digits))
+			if unit == "km" {
+				k, d = 1000, max(d-3, 0)
+			}
+			sb.WriteString(s[last:m[0]])
+			sb.WriteString(sg + u.Number(QRange, a*k, d) + "–" + u.Format(QRange, v*k, d))
+			last = end
+			continue
 		}
+		decimals := len(fracDigits(digits))
 		var out string
 		switch unit {
 		case "m/s":
@@ -372,4 +384,11 @@ func (u Units) distance(v float64) string {
 		t = strings.TrimRight(strings.TrimRight(t, "0"), ".")
 	}
 	return t + " " + u.Range
+}
+
+// fracDigits returns the decimals of a number written as "12.34" or
+// "1.5e3" ("34", "5").
+func fracDigits(digits string) string {
+	_, frac, _ := strings.Cut(strings.SplitN(digits, "e", 2)[0], ".")
+	return frac
 }

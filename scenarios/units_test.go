@@ -160,6 +160,10 @@ func TestUnitsFormatAndRestate(t *testing.T) {
 	if got := u.Restate(in); got != want {
 		t.Errorf("Restate:\n got %s\nwant %s", got, want)
 	}
+	// A span takes the unit once, for both ends: 1852–3704 m is 1–2 nmi.
+	if got := u.Restate("cells over 1852–3704 m and 12.3–12.9 km"); got != "cells over 1.0000–2.0000 nmi and 6.6415–6.9654 nmi" {
+		t.Errorf("Restate spans = %q", got)
+	}
 	if got := SIUnits().Restate(in); got != in {
 		t.Errorf("Restate in SI changed the text: %s", got)
 	}

@@ -266,6 +266,7 @@ func TestUnitsRestateAgrees(t *testing.T) {
 		"Doppler saves it: at -5.0 m/s it sits 3 Doppler bins from ridge (+12.0 m/s), which masks it in a single pulse.",
 		"They share its Doppler (0 bin apart at +0.0 m/s); blind speed 30.0 m/s; ±39.82 m/s",
 		"10 dBsm at 3 ms, 20 µs, 5 m² and 10 MHz; the echo from 9999.0 m folds to 1234.5 m",
+		"sea: 3 false-alarm cells over 1852–3704 m, 12.3–12.9 km; x5 m and 1.5e3 m",
 	}
 	for _, u := range []scenarios.Units{{Range: "nmi", Speed: "kt", Height: "ft", Rate: "closing"}, {Range: "km", Speed: "km/h", Height: "m", Rate: "opening"}, {Range: "m", Speed: "kt", Height: "m", Rate: "closing"}, scenarios.SIUnits()} {
 		for _, text := range sentences {

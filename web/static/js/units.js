@@ -232,15 +232,21 @@ export function tick(q, si, p = prefs) {
 // range or distance in m or km, a speed in m/s. A range rate is written
 // with an explicit sign ("%+.1f m/s"); an unsigned speed (a spread, a
 // blind speed) has none. "±" and "m/s rms" keep their meaning.
-const siInText = /([+\-\u2212±]?)(\d+(?:\.\d+)?(?:e[+-]?\d+)?)\s?(km|m\/s|m)(?![\w/²³])/g;
+const siInText = /(?<![\w.])([+\-\u2212±]?)(?:(\d+(?:\.\d+)?)–)?(\d+(?:\.\d+)?(?:e[+-]?\d+)?) ?(km|m\/s|m)(?![\w/²³])/g; // "1000–2000 m": one unit for both ends
 
 // restate rewrites the SI numbers of a sentence written by the server
 // in the user's units; it returns the text unchanged when the user's
 // units are SI.
 export function restate(text, p = prefs) {
   if (typeof text !== 'string' || (p.range === 'm' && p.speed === 'm/s' && p.rate === FileConvention)) return text;
-  return text.replace(siInText, (all, sg, digits, u) => {
-    const decimals = (digits.split('.')[1] || '').length;
+  return text.replace(siInText, (all, sg, from, digits, u) => {
+    const decimals = (digits.split('e')[0].split('.')[1] || '').length;
+    if (from !== undefined) { // a span: both ends in the range unit
+      if (u === 'm/s' || p.range === 'm') return all;
+      const k = u === 'km' ? 1000 : 1;
+      const d = u === 'km' ? Math.max(0, decimals - 3) : decimals;
+      return `${sg}${number('range', Number(from) * k, d, p)}–${format('range', Number(digits) * k, d, p)}`;
+    }
     let v = Number(digits);
     if (u === 'km') v *= 1000;
     if (u === 'm/s') {
