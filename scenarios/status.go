@@ -29,7 +29,7 @@ type verdict struct {
 	pdScene float64 // Pd against the scene's threshold at the cell; valid when sceneOK
 	sceneOK bool
 	raise   float64 // the scene's threshold over the noise-only one (≥ 1)
-	rule    string // "pd" or "threshold": what decided a detected, masked, too_weak or eclipsed-by-loss status
+	rule    string  // "pd" or "threshold": what decided a detected, masked, too_weak or eclipsed-by-loss status
 }
 
 // Rules that decide a status (TargetReport.DecidedOn).
