@@ -21,7 +21,6 @@ import (
 
 const mcConf = 0.99
 
-
 // mcTarget is a point target whose tested SNR is tuned to snrDB.
 type mcTarget struct {
 	id, fluct string
