@@ -90,6 +90,9 @@ func (s *Scenario) canonicalRadar() ordered {
 	o.put("window_stop_m", r.WindowStopM, C*r.PRIS/2)
 	o.put("beamwidth_az_deg", r.BeamwidthAzDeg, d.BeamwidthAzDeg)
 	o.put("beamwidth_el_deg", r.BeamwidthElDeg, d.BeamwidthElDeg)
+	if r.Schedule != nil {
+		o = append(o, member{"schedule", canonicalSchedule(r)})
+	}
 	return o
 }
 

@@ -89,6 +89,14 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 		}
 	}
 	res.Report.Warnings = append([]string{}, m.warnings...)
+	if s.Radar.Schedule != nil {
+		if res.Report.Schedule, res.CPISeries, err = e.schedule(ctx, s, m, true); err != nil {
+			return nil, err
+		}
+		if len(res.CPISeries) > 0 && res.CPISeries[0] != nil {
+			res.CPISeries[0] = &res.Series // the first CPI's map, already simulated
+		}
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -116,6 +124,11 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	rep := &Report{Version: ReportVersion, Scenario: s.Name, Waveform: m.waveformReport()}
 	rep.Targets = sc.targetReports(ctx, m, false)
 	rep.Warnings = append([]string{}, m.warnings...)
+	if s.Radar.Schedule != nil {
+		if rep.Schedule, _, err = e.schedule(ctx, s, m, false); err != nil {
+			return nil, err
+		}
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}

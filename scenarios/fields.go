@@ -18,7 +18,7 @@ var (
 	sweeps        = []string{"up", "down"}
 
 	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "view"}
-	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg"}
+	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg", "schedule"}
 	receiverFields = []string{"filter", "filter_length_factor", "taps", "window", "detector", "doppler_window", "mti"}
 	mtis           = []string{MTINone, MTITwoPulse, MTIThreePulse}
 )
@@ -81,6 +81,9 @@ func (o *object) decodeRadar(r *Radar) {
 	}
 	o.float("beamwidth_az_deg", &r.BeamwidthAzDeg)
 	o.float("beamwidth_el_deg", &r.BeamwidthElDeg)
+	if c, ok := o.child("schedule"); ok {
+		c.decodeSchedule(r)
+	}
 	o.finish(radarFields...)
 }
 

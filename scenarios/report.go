@@ -21,6 +21,9 @@ type Report struct {
 	Waveform WaveformReport `json:"waveform"`
 	Targets  []TargetReport `json:"targets"`
 	Warnings []string       `json:"warnings"`
+	// Schedule is the evaluation of every CPI of radar.schedule and their
+	// M-of-N combination; nil without a schedule.
+	Schedule *ScheduleReport `json:"schedule,omitempty"`
 	// Engine names the build that computed the report. It is filled in
 	// when the report is encoded (see MarshalJSON) if it is nil.
 	Engine *EngineInfo `json:"engine,omitempty"`
@@ -80,6 +83,10 @@ type TargetReport struct {
 type Result struct {
 	Report Report
 	Series Series
+	// CPISeries holds, with radar.schedule, the plot series of every CPI
+	// of more than one pulse (its range–Doppler map), nil for the others;
+	// index 0 is the first CPI, whose series are Series.
+	CPISeries []*Series
 }
 
 // Series are the plot data of one evaluation over the receive window, one

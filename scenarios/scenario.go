@@ -70,6 +70,9 @@ type Radar struct {
 	WindowStopM    float64 `json:"window_stop_m"`    // last range of the receive window, m
 	BeamwidthAzDeg float64 `json:"beamwidth_az_deg"` // 3-dB azimuth beamwidth, degrees
 	BeamwidthElDeg float64 `json:"beamwidth_el_deg"` // 3-dB elevation beamwidth, degrees
+	// Schedule holds the CPIs after this one (a PRF schedule, added in
+	// format version 2); nil for a single CPI.
+	Schedule *Schedule `json:"schedule,omitempty"`
 }
 
 // Waveform kinds.

@@ -85,6 +85,10 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 	for _, warn := range r.Warnings {
 		fmt.Fprintf(w, "warning: %s\n", warn)
 	}
+	if r.Schedule != nil {
+		fmt.Fprintln(w)
+		writeScheduleText(w, r.Schedule)
+	}
 	eng := scenarios.RunningEngine()
 	if r.Engine != nil {
 		eng = *r.Engine

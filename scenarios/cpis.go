@@ -1,0 +1,296 @@
+package scenarios
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"github.com/pulsewright/pulsewright/dsp"
+)
+
+// ScheduleReport is the evaluation of every CPI of a PRF schedule and
+// their combination (docs/report-format.md, "PRF schedules"; added in
+// version 2). The report's targets and plots are those of the first CPI.
+type ScheduleReport struct {
+	N int `json:"n"` // CPIs
+	M int `json:"m"` // CPIs that must detect a target
+	// UnambiguousRangeM is the schedule's combined unambiguous range
+	// c·lcm(PRI_i)/2, omitted when the PRIs have no common grid.
+	UnambiguousRangeM *float64 `json:"unambiguous_range_m,omitempty"`
+	// FirstBlindSpeedMPS is the first range rate blind in every CPI,
+	// λ/(2Δ), omitted when a CPI has no Doppler processing or the PRIs no
+	// common grid.
+	FirstBlindSpeedMPS *float64         `json:"first_blind_speed_mps,omitempty"`
+	CPIs               []CPIReport      `json:"cpis"`
+	Targets            []ScheduleTarget `json:"targets"`
+}
+
+// CPIReport is one CPI of a schedule.
+type CPIReport struct {
+	PRIS              float64     `json:"pri_s"`
+	Pulses            int         `json:"pulses"`
+	UnambiguousRangeM float64     `json:"unambiguous_range_m"`
+	BlindSpeedMPS     float64     `json:"blind_speed_mps"` // λ/(2·PRI)
+	Targets           []CPITarget `json:"targets"`
+	Warnings          []string    `json:"warnings"`
+}
+
+// CPITarget is one target as one CPI sees it. An echo folded from
+// beyond the CPI's unambiguous range is judged where it appears.
+type CPITarget struct {
+	ID       string   `json:"id"`
+	Status   string   `json:"status"`
+	Detected bool     `json:"detected"`
+	MarginDB *float64 `json:"margin_db,omitempty"`
+	Pd       *float64 `json:"pd,omitempty"`
+	// ApparentRangeM is the range gate where its echo peaks (point
+	// targets inside the window): the folded range, moved by range–Doppler
+	// coupling.
+	ApparentRangeM       *float64 `json:"apparent_range_m,omitempty"`
+	Folds                int      `json:"folds"`
+	ApparentRangeRateMPS *float64 `json:"apparent_range_rate_mps,omitempty"` // CPIs of more than one pulse: the Doppler bin's range rate
+	BlindSpeed           *bool    `json:"blind_speed,omitempty"`
+	Reason               string   `json:"reason"`
+}
+
+// ScheduleTarget is one target's combined verdict.
+type ScheduleTarget struct {
+	ID         string `json:"id"`
+	DetectedIn int    `json:"detected_in"` // CPIs that detect it
+	Detected   bool   `json:"detected"`    // detected_in ≥ m
+	// Pd is the probability that at least m CPIs detect it, each CPI
+	// with its own Pd and independent of the others; omitted when a CPI
+	// has no Pd.
+	Pd *float64 `json:"pd,omitempty"`
+	// RangeResolved: the apparent ranges of the detecting CPIs unfold to
+	// one range within the combined unambiguous range (RangeM).
+	RangeResolved bool     `json:"range_resolved"`
+	RangeM        *float64 `json:"range_m,omitempty"`
+	// RangeRateResolved: the apparent range rates unfold to one range
+	// rate (RangeRateMPS).
+	RangeRateResolved bool     `json:"range_rate_resolved"`
+	RangeRateMPS      *float64 `json:"range_rate_mps,omitempty"`
+	Reason            string   `json:"reason"`
+}
+
+// maxUnfoldRangeM bounds the unfolding of ranges for PRIs without a
+// common grid: the format's largest target range.
+const maxUnfoldRangeM = 1e8
+
+// schedule evaluates every CPI of a scenario with a schedule. base is the
+// model of the first CPI (its pulse and reference are reused). With maps,
+// it also returns the range–Doppler series of every CPI of more than one
+// pulse (nil for single-pulse CPIs; index 0 holds an empty placeholder
+// for the first CPI, whose series the caller computes).
+func (e *Engine) schedule(ctx context.Context, s *Scenario, base *model, maps bool) (*ScheduleReport, []*Series, error) {
+	sched := s.Radar.Schedule
+	n := sched.N()
+	rep := &ScheduleReport{N: n, M: sched.M}
+	lambda := s.Radar.Wavelength()
+	pris := make([]float64, n)
+	var series []*Series
+	if maps {
+		series = make([]*Series, n)
+	}
+	type seen struct {
+		apparent, rate float64
+		hasRate        bool
+		rateTol        float64
+	}
+	obs := make([][]*seen, len(s.Targets)) // obs[j][k]: CPI k's measurement of target j, nil when not detected
+	pds := make([][]float64, len(s.Targets))
+	pdOK := make([]bool, len(s.Targets))
+	for j := range pdOK {
+		obs[j] = make([]*seen, n)
+		pdOK[j] = true
+	}
+	allDoppler := true
+	for k := range n {
+		if err := ctx.Err(); err != nil {
+			return nil, nil, err
+		}
+		t := s.cpiScenario(k)
+		r := t.Radar
+		pris[k] = r.PRIS
+		allDoppler = allDoppler && r.Pulses > 1
+		m, err := newModel(t, base)
+		if err != nil {
+			return nil, nil, fmt.Errorf("CPI %d: %w", k+1, err)
+		}
+		sc, err := newScene(ctx, m)
+		if err != nil {
+			return nil, nil, err
+		}
+		sc.ghosts = true
+		trs := sc.targetReports(ctx, m, false)
+		if err := ctx.Err(); err != nil {
+			return nil, nil, err
+		}
+		cr := CPIReport{PRIS: r.PRIS, Pulses: r.Pulses, UnambiguousRangeM: dsp.UnambiguousRange(r.PRIS), BlindSpeedMPS: dsp.BlindSpeed(r.PRIS, lambda),
+			Warnings: append([]string{}, m.warnings...)}
+		gate := C / (2 * m.fs)
+		for j, tr := range trs {
+			g := sc.targets[j]
+			ct := CPITarget{ID: tr.ID, Status: tr.Status, Detected: tr.Status == StatusDetected, MarginDB: tr.MarginDB, Pd: tr.Pd,
+				BlindSpeed: tr.BlindSpeed, Reason: tr.Reason}
+			if g.t.Kind == TargetPoint {
+				ct.Folds = g.folds
+				if a := g.apparent + tr.RangeShiftM; a >= r.WindowStartM && a <= r.WindowStopM {
+					// The gate the echo peaks in: the measured range.
+					q := r.WindowStartM + gate*math.Round((a-r.WindowStartM)/gate)
+					ct.ApparentRangeM = &q
+				}
+				if ct.Folds > 0 {
+					ct.Reason += fmt.Sprintf(" Its echo from %s folds %d time(s) by the %s unambiguous range.", km(g.rangeM), g.folds, km(m.unambM))
+				}
+			}
+			var rt *float64
+			var rateTol float64
+			if sc.train != nil && tr.ApparentRangeRateMPS != nil {
+				// The Doppler bin's range rate: the measured one.
+				nb := float64(sc.train.plan.Bins())
+				w := lambda / (2 * r.PRIS * nb)
+				q := tidy(w * math.Round(*tr.ApparentRangeRateMPS/w))
+				rt, rateTol = &q, w/2
+				ct.ApparentRangeRateMPS = rt
+			}
+			if tr.Pd == nil {
+				pdOK[j] = false
+			} else {
+				pds[j] = append(pds[j], *tr.Pd)
+			}
+			if ct.Detected && ct.ApparentRangeM != nil {
+				o := &seen{apparent: *ct.ApparentRangeM, rateTol: rateTol}
+				if rt != nil {
+					o.rate, o.hasRate = *rt, true
+				}
+				obs[j][k] = o
+			}
+			cr.Targets = append(cr.Targets, ct)
+		}
+		rep.CPIs = append(rep.CPIs, cr)
+		switch {
+		case maps && sc.train != nil && k == 0:
+			series[0] = &Series{} // the caller's own series: simulated once
+		case maps && sc.train != nil:
+			ser, err := sc.train.series(ctx)
+			if err != nil {
+				return nil, nil, err
+			}
+			series[k] = &ser
+		}
+	}
+	grid := dsp.NewSchedule(pris...)
+	maxR := maxUnfoldRangeM
+	if ru := grid.UnambiguousRange(); !math.IsInf(ru, 0) {
+		rep.UnambiguousRangeM = &ru
+		maxR = math.Min(ru, maxR)
+	}
+	maxV := maxRangeRate
+	if v := grid.FirstBlindSpeed(lambda); allDoppler && !math.IsInf(v, 0) {
+		rep.FirstBlindSpeedMPS = &v
+		maxV = math.Min(v/2, maxV)
+	}
+	gate := C / (2 * base.fs)
+	for j, t := range s.Targets {
+		st := ScheduleTarget{ID: t.ID}
+		var ranges, rperiods, rates, vperiods, vtols []float64
+		var where []string
+		for k, o := range obs[j] {
+			if o == nil {
+				continue
+			}
+			st.DetectedIn++
+			ranges = append(ranges, o.apparent)
+			rperiods = append(rperiods, dsp.UnambiguousRange(pris[k]))
+			where = append(where, fmt.Sprintf("%s in CPI %d", km(o.apparent), k+1))
+			if o.hasRate {
+				rates = append(rates, o.rate)
+				vperiods = append(vperiods, dsp.BlindSpeed(pris[k], lambda))
+				vtols = append(vtols, o.rateTol)
+			}
+		}
+		st.Detected = st.DetectedIn >= sched.M
+		if pdOK[j] && len(pds[j]) == n {
+			p := dsp.AtLeast(pds[j], sched.M)
+			st.Pd = &p
+		}
+		var why []string
+		missed := lostIn(rep.CPIs, j)
+		verdict := fmt.Sprintf("%d of %d CPIs detect it, %d-of-%d %s", st.DetectedIn, n, sched.M, n, map[bool]string{true: "detects it", false: "misses it"}[st.Detected])
+		if missed != "" {
+			verdict += " (" + missed + ")"
+		}
+		why = append(why, verdict+".")
+		if t.Kind == TargetPoint && len(ranges) > 0 {
+			// Two gates: each measured range lies within half a gate of
+			// the echo's peak.
+			c := dsp.Unfold(ranges, rperiods, 0, maxR, gate, false)
+			if len(c) == 1 {
+				st.RangeResolved, st.RangeM = true, &c[0]
+				why = append(why, fmt.Sprintf("Its range unfolds to %s from %s.", km(c[0]), strings.Join(where, ", ")))
+			} else {
+				why = append(why, fmt.Sprintf("Its range is not resolved: %s %s.", strings.Join(where, ", "), candidateWords(len(where), len(c), "range", "below "+km(maxR))))
+			}
+			if len(rates) > 0 {
+				tol := 0.0
+				sort.Float64s(vtols)
+				tol = vtols[len(vtols)-1]
+				if len(vtols) > 1 {
+					tol += vtols[len(vtols)-2]
+				}
+				v := dsp.Unfold(rates, vperiods, -maxV, maxV, tol, true)
+				if len(v) == 1 {
+					st.RangeRateResolved, st.RangeRateMPS = true, &v[0]
+					why = append(why, fmt.Sprintf("Its range rate unfolds to %.1f m/s.", v[0]))
+				} else {
+					why = append(why, fmt.Sprintf("Its range rate is not resolved: %s.", candidateWords(len(rates), len(v), "range rate", fmt.Sprintf("within ±%.0f m/s", maxV))))
+				}
+			}
+		}
+		st.Reason = strings.Join(why, " ")
+		rep.Targets = append(rep.Targets, st)
+	}
+	return rep, series, nil
+}
+
+// maxRangeRate is the format's largest range rate, m/s: velocities unfold
+// within ±maxRangeRate at most.
+const maxRangeRate = 1e4
+
+// candidateWords says how many values the measurements (count of them)
+// fit: "fits 15 ranges below 269.81 km".
+func candidateWords(measurements, n int, what, within string) string {
+	verb := "fit"
+	if measurements == 1 {
+		verb = "fits"
+	}
+	w := ""
+	if within != "" {
+		w = " " + within
+	}
+	if n == 0 {
+		return fmt.Sprintf("%s no single %s%s (the measurements disagree)", verb, what, w)
+	}
+	return fmt.Sprintf("%s %d %ss%s", verb, n, what, w)
+}
+
+// lostIn names the CPIs that do not detect target j and why, in a few
+// words: "CPI 2 eclipsed, CPI 3 at a blind speed".
+func lostIn(cpis []CPIReport, j int) string {
+	var out []string
+	for k, c := range cpis {
+		t := c.Targets[j]
+		if t.Detected {
+			continue
+		}
+		w := t.Status
+		if t.BlindSpeed != nil && *t.BlindSpeed {
+			w = "at a blind speed"
+		}
+		out = append(out, fmt.Sprintf("CPI %d %s", k+1, strings.ReplaceAll(w, "_", " ")))
+	}
+	return strings.Join(out, ", ")
+}
