@@ -68,23 +68,30 @@ type ScheduleTarget struct {
 	// one range within the combined unambiguous range (RangeM).
 	RangeResolved bool     `json:"range_resolved"`
 	RangeM        *float64 `json:"range_m,omitempty"`
+	// RangeUnambiguousM is the combined unambiguous range of the CPIs
+	// that detect it (two or more): its range unfolds within [0, this).
+	RangeUnambiguousM *float64 `json:"range_unambiguous_m,omitempty"`
 	// RangeRateResolved: the apparent range rates unfold to one range
 	// rate (RangeRateMPS).
 	RangeRateResolved bool     `json:"range_rate_resolved"`
 	RangeRateMPS      *float64 `json:"range_rate_mps,omitempty"`
-	Reason            string   `json:"reason"`
+	// RangeRateUnambiguousMPS: the range rates unfold within ± this, half
+	// the first speed blind in every CPI of more than one pulse that
+	// detects it (two or more), at most 10⁴ m/s.
+	RangeRateUnambiguousMPS *float64 `json:"range_rate_unambiguous_mps,omitempty"`
+	Reason                  string   `json:"reason"`
 }
 
 // maxUnfoldRangeM bounds the unfolding of ranges for PRIs without a
 // common grid: the format's largest target range.
 const maxUnfoldRangeM = 1e8
 
-// schedule evaluates every CPI of a scenario with a schedule. base is the
+// evalSchedule evaluates every CPI of a scenario with a schedule. base is the
 // model of the first CPI (its pulse and reference are reused). With maps,
 // it also returns the range–Doppler series of every CPI of more than one
 // pulse (nil for single-pulse CPIs; index 0 holds an empty placeholder
 // for the first CPI, whose series the caller computes).
-func (e *Engine) schedule(ctx context.Context, s *Scenario, base *model, maps bool) (*ScheduleReport, []*Series, error) {
+func evalSchedule(ctx context.Context, s *Scenario, base *model, maps bool) (*ScheduleReport, []*Series, error) {
 	sched := s.Radar.Schedule
 	n := sched.N()
 	rep := &ScheduleReport{N: n, M: sched.M}
@@ -183,20 +190,16 @@ func (e *Engine) schedule(ctx context.Context, s *Scenario, base *model, maps bo
 		}
 	}
 	grid := dsp.NewSchedule(pris...)
-	maxR := maxUnfoldRangeM
 	if ru := grid.UnambiguousRange(); !math.IsInf(ru, 0) {
 		rep.UnambiguousRangeM = &ru
-		maxR = math.Min(ru, maxR)
 	}
-	maxV := maxRangeRate
 	if v := grid.FirstBlindSpeed(lambda); allDoppler && !math.IsInf(v, 0) {
 		rep.FirstBlindSpeedMPS = &v
-		maxV = math.Min(v/2, maxV)
 	}
 	gate := C / (2 * base.fs)
 	for j, t := range s.Targets {
 		st := ScheduleTarget{ID: t.ID}
-		var ranges, rperiods, rates, vperiods, vtols []float64
+		var ranges, rperiods, rpris, rates, vperiods, vpris, vtols []float64
 		var where []string
 		for k, o := range obs[j] {
 			if o == nil {
@@ -205,10 +208,12 @@ func (e *Engine) schedule(ctx context.Context, s *Scenario, base *model, maps bo
 			st.DetectedIn++
 			ranges = append(ranges, o.apparent)
 			rperiods = append(rperiods, dsp.UnambiguousRange(pris[k]))
+			rpris = append(rpris, pris[k])
 			where = append(where, fmt.Sprintf("%s in CPI %d", km(o.apparent), k+1))
 			if o.hasRate {
 				rates = append(rates, o.rate)
 				vperiods = append(vperiods, dsp.BlindSpeed(pris[k], lambda))
+				vpris = append(vpris, pris[k])
 				vtols = append(vtols, o.rateTol)
 			}
 		}
@@ -224,30 +229,34 @@ func (e *Engine) schedule(ctx context.Context, s *Scenario, base *model, maps bo
 			verdict += " (" + missed + ")"
 		}
 		why = append(why, verdict+".")
-		if t.Kind == TargetPoint && len(ranges) > 0 {
-			// Two gates: each measured range lies within half a gate of
-			// the echo's peak.
-			c := dsp.Unfold(ranges, rperiods, 0, maxR, gate, false)
+		if t.Kind == TargetPoint && len(ranges) == 1 {
+			why = append(why, fmt.Sprintf("One CPI alone cannot resolve its range (%s, folded by multiples of %s) or its range rate.", where[0], km(rperiods[0])))
+		}
+		if t.Kind == TargetPoint && len(ranges) > 1 {
+			// Within the combined unambiguous range of the CPIs that
+			// detect it; each measured range lies within half a gate of
+			// the echo's peak, so two agree within a gate.
+			lim := math.Min(dsp.NewSchedule(rpris...).UnambiguousRange(), maxUnfoldRangeM)
+			st.RangeUnambiguousM = &lim
+			c := dsp.Unfold(ranges, rperiods, 0, lim, gate, false)
 			if len(c) == 1 {
 				st.RangeResolved, st.RangeM = true, &c[0]
-				why = append(why, fmt.Sprintf("Its range unfolds to %s from %s.", km(c[0]), strings.Join(where, ", ")))
+				why = append(why, fmt.Sprintf("Its range unfolds to %s from %s (unambiguous together up to %s).", km(c[0]), strings.Join(where, ", "), km(lim)))
 			} else {
-				why = append(why, fmt.Sprintf("Its range is not resolved: %s %s.", strings.Join(where, ", "), candidateWords(len(where), len(c), "range", "below "+km(maxR))))
+				why = append(why, fmt.Sprintf("Its range is not resolved: %s %s.", strings.Join(where, ", "), candidateWords(len(where), len(c), "range", "below "+km(lim))))
 			}
-			if len(rates) > 0 {
-				tol := 0.0
-				sort.Float64s(vtols)
-				tol = vtols[len(vtols)-1]
-				if len(vtols) > 1 {
-					tol += vtols[len(vtols)-2]
-				}
-				v := dsp.Unfold(rates, vperiods, -maxV, maxV, tol, true)
-				if len(v) == 1 {
-					st.RangeRateResolved, st.RangeRateMPS = true, &v[0]
-					why = append(why, fmt.Sprintf("Its range rate unfolds to %.1f m/s.", v[0]))
-				} else {
-					why = append(why, fmt.Sprintf("Its range rate is not resolved: %s.", candidateWords(len(rates), len(v), "range rate", fmt.Sprintf("within ±%.0f m/s", maxV))))
-				}
+		}
+		if t.Kind == TargetPoint && len(rates) > 1 {
+			sort.Float64s(vtols)
+			tol := vtols[len(vtols)-1] + vtols[len(vtols)-2]
+			lim := math.Min(dsp.NewSchedule(vpris...).FirstBlindSpeed(lambda)/2, maxRangeRate)
+			st.RangeRateUnambiguousMPS = &lim
+			v := dsp.Unfold(rates, vperiods, -lim, lim, tol, true)
+			if len(v) == 1 {
+				st.RangeRateResolved, st.RangeRateMPS = true, &v[0]
+				why = append(why, fmt.Sprintf("Its range rate unfolds to %.1f m/s (unambiguous together within ±%.0f m/s).", v[0], lim))
+			} else {
+				why = append(why, fmt.Sprintf("Its range rate is not resolved: %s.", candidateWords(len(rates), len(v), "range rate", fmt.Sprintf("within ±%.0f m/s", lim))))
 			}
 		}
 		st.Reason = strings.Join(why, " ")

@@ -90,7 +90,7 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	}
 	res.Report.Warnings = append([]string{}, m.warnings...)
 	if s.Radar.Schedule != nil {
-		if res.Report.Schedule, res.CPISeries, err = e.schedule(ctx, s, m, true); err != nil {
+		if res.Report.Schedule, res.CPISeries, err = evalSchedule(ctx, s, m, true); err != nil {
 			return nil, err
 		}
 		if len(res.CPISeries) > 0 && res.CPISeries[0] != nil {
@@ -125,7 +125,7 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	rep.Targets = sc.targetReports(ctx, m, false)
 	rep.Warnings = append([]string{}, m.warnings...)
 	if s.Radar.Schedule != nil {
-		if rep.Schedule, _, err = e.schedule(ctx, s, m, false); err != nil {
+		if rep.Schedule, _, err = evalSchedule(ctx, s, m, false); err != nil {
 			return nil, err
 		}
 	}
@@ -199,6 +199,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		cf2 = sc.train.cfar()
 		budget = 0 // changes are verified on single pulses only
 	}
+	schedBudget := scheduleBudget(m)
 	out := make([]TargetReport, len(sc.targets))
 	for j, g := range sc.targets {
 		v := sc.judge(j, cf)
@@ -244,8 +245,15 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		if sc.train != nil {
 			sc.train.report(j, v, single, bin, &tr)
 		}
+		hinted := false
 		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && budget > 0 && ctx.Err() == nil {
 			if hint := suggestFix(ctx, m, j, v, &budget); hint != "" {
+				tr.Reason += " " + hint
+				hinted = true
+			}
+		}
+		if cause := sc.scheduleCause(j, &tr); suggest && !hinted && cause != "" && schedBudget > 0 && ctx.Err() == nil {
+			if hint := suggestSchedule(ctx, m, sc, j, cause, &schedBudget); hint != "" {
 				tr.Reason += " " + hint
 			}
 		}

@@ -160,7 +160,7 @@ func TestScheduleBlindSpeedAndPd(t *testing.T) {
 }
 
 func TestNoScheduleNoScheduleReport(t *testing.T) {
-	d, err := LoadDemo("long-pulse-blind")
+	d, err := LoadDemo("closing-jet")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -174,5 +174,48 @@ func TestNoScheduleNoScheduleReport(t *testing.T) {
 	b, _ := json.Marshal(rep)
 	if strings.Contains(string(b), `"schedule"`) {
 		t.Errorf("report JSON names a schedule")
+	}
+}
+
+// TestScheduleSuggestions: a target one PRI loses gets a verified extra
+// CPI in its reason, and the suggested schedule does detect it.
+func TestScheduleSuggestions(t *testing.T) {
+	for _, c := range []struct {
+		demo, id, want string
+		schedule       map[string]any
+	}{
+		{"hill-clutter-doppler", "jet", "Adding a second CPI at PRI 120 µs (32 pulses), detecting 1-of-2", map[string]any{"cpis": []any{map[string]any{"pri_s": 1.2e-4}}, "m": 1}},
+		{"long-pulse-blind", "airliner-far", "Adding a second CPI at PRI 1.1 ms (1 pulse), detecting 2-of-2", map[string]any{"cpis": []any{map[string]any{"pri_s": 1.1e-3}}, "m": 2}},
+	} {
+		d, err := LoadDemo(c.demo)
+		if err != nil {
+			t.Fatal(err)
+		}
+		d.Scenario.Radar.Schedule = nil // the demo's own schedule is the remedy
+		res, err := Evaluate(context.Background(), d.Scenario)
+		if err != nil {
+			t.Fatal(err)
+		}
+		j := -1
+		for i, tr := range res.Report.Targets {
+			if tr.ID == c.id {
+				j = i
+			}
+		}
+		if j < 0 || !strings.Contains(res.Report.Targets[j].Reason, c.want) {
+			t.Errorf("%s %s: reason %q, want …%s…", c.demo, c.id, res.Report.Targets[max(j, 0)].Reason, c.want)
+			continue
+		}
+		s, err := Decode(withSchedule(t, c.demo, c.schedule))
+		if err != nil {
+			t.Fatal(err)
+		}
+		rep, err := Analyse(context.Background(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !rep.Schedule.Targets[j].Detected {
+			t.Errorf("%s: the suggested schedule misses %s: %+v", c.demo, c.id, rep.Schedule.Targets[j])
+		}
 	}
 }

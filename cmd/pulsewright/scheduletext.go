@@ -34,6 +34,10 @@ func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport) {
 	}
 	head = append(head, "SEEN", fmt.Sprintf("%d-OF-%d", s.M, s.N), "PD", "RANGE km", "RATE m/s")
 	fmt.Fprintln(tw, strings.Join(head, "\t")+"\t")
+	doppler := false
+	for _, c := range s.CPIs {
+		doppler = doppler || c.Pulses > 1
+	}
 	for j, t := range s.Targets {
 		row := []string{t.ID}
 		for _, c := range s.CPIs {
@@ -57,6 +61,8 @@ func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport) {
 		}
 		if t.RangeRateMPS != nil {
 			rate = fx(*t.RangeRateMPS, 1)
+		} else if !doppler {
+			rate = "—" // no CPI measures Doppler
 		}
 		row = append(row, fmt.Sprintf("%d/%d", t.DetectedIn, s.N), verdict, pd, rng, rate)
 		fmt.Fprintln(tw, strings.Join(row, "\t")+"\t")
