@@ -184,7 +184,7 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 	if err := ss.ambiguity(ctx, c); err != nil {
 		return nil, err
 	}
-	f := &frame{id: w.id, report: c.report, link: c.link, charts: c.settle(buildCharts(c.res, c.pinRes, w.view))}
+	f := &frame{id: w.id, report: c.report, link: c.link, charts: c.settle(append(buildCharts(c.res, c.pinRes, w.view), scheduleCharts(c.scn, c.res, w.view)...))}
 	if err := ss.wavePlots(ctx, c); err != nil {
 		return nil, err
 	}

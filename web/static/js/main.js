@@ -78,7 +78,10 @@ const plots = new Plots({
   hoverCard,
 });
 const focusUI = initFocus({ plots, frame: () => lastFrame });
-window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, focus: focusUI.focus };
+// Modules that add panels of their own (schedule.js) see each frame
+// before the plots apply it.
+const frameHooks = [];
+window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, focus: focusUI.focus, onFrame: (fn) => frameHooks.push(fn) };
 
 store.onChange((s, cause) => {
   editor.render(s);
@@ -152,6 +155,7 @@ function applyFrame() {
   if (shows !== null) shownVersion = shows;
   const t0 = performance.now();
   lastApplyAt = t0;
+  for (const fn of frameHooks) fn(f);
   plots.apply(f);
   focusUI.refresh();
   const t1 = performance.now();
