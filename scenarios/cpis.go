@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 
@@ -199,7 +200,7 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model, maps bool) (*Sc
 	gate := C / (2 * base.fs)
 	for j, t := range s.Targets {
 		st := ScheduleTarget{ID: t.ID}
-		var ranges, rperiods, rpris, rates, vperiods, vpris, vtols []float64
+		var ranges, rpris, rates, vpris, vtols []float64
 		var where []string
 		for k, o := range obs[j] {
 			if o == nil {
@@ -207,12 +208,10 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model, maps bool) (*Sc
 			}
 			st.DetectedIn++
 			ranges = append(ranges, o.apparent)
-			rperiods = append(rperiods, dsp.UnambiguousRange(pris[k]))
 			rpris = append(rpris, pris[k])
 			where = append(where, fmt.Sprintf("%s in CPI %d", km(o.apparent), k+1))
 			if o.hasRate {
 				rates = append(rates, o.rate)
-				vperiods = append(vperiods, dsp.BlindSpeed(pris[k], lambda))
 				vpris = append(vpris, pris[k])
 				vtols = append(vtols, o.rateTol)
 			}
@@ -230,15 +229,14 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model, maps bool) (*Sc
 		}
 		why = append(why, verdict+".")
 		if t.Kind == TargetPoint && len(ranges) == 1 {
-			why = append(why, fmt.Sprintf("One CPI alone cannot resolve its range (%s, folded by multiples of %s) or its range rate.", where[0], km(rperiods[0])))
+			why = append(why, fmt.Sprintf("One CPI alone cannot resolve its range (%s, folded by multiples of %s) or its range rate.", where[0], km(dsp.UnambiguousRange(rpris[0]))))
 		}
 		if t.Kind == TargetPoint && len(ranges) > 1 {
 			// Within the combined unambiguous range of the CPIs that
 			// detect it; each measured range lies within half a gate of
 			// the echo's peak, so two agree within a gate.
-			lim := math.Min(dsp.NewSchedule(rpris...).UnambiguousRange(), maxUnfoldRangeM)
+			c, lim := unfoldRanges(ranges, rpris, gate)
 			st.RangeUnambiguousM = &lim
-			c := dsp.Unfold(ranges, rperiods, 0, lim, gate, false)
 			if len(c) == 1 {
 				st.RangeResolved, st.RangeM = true, &c[0]
 				why = append(why, fmt.Sprintf("Its range unfolds to %s from %s (unambiguous together up to %s).", km(c[0]), strings.Join(where, ", "), km(lim)))
@@ -247,11 +245,8 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model, maps bool) (*Sc
 			}
 		}
 		if t.Kind == TargetPoint && len(rates) > 1 {
-			sort.Float64s(vtols)
-			tol := vtols[len(vtols)-1] + vtols[len(vtols)-2]
-			lim := math.Min(dsp.NewSchedule(vpris...).FirstBlindSpeed(lambda)/2, maxRangeRate)
+			v, lim := unfoldRates(rates, vpris, vtols, lambda)
 			st.RangeRateUnambiguousMPS = &lim
-			v := dsp.Unfold(rates, vperiods, -lim, lim, tol, true)
 			if len(v) == 1 {
 				st.RangeRateResolved, st.RangeRateMPS = true, &v[0]
 				why = append(why, fmt.Sprintf("Its range rate unfolds to %.1f m/s (unambiguous together within ±%.0f m/s).", v[0], lim))
@@ -263,6 +258,47 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model, maps bool) (*Sc
 		rep.Targets = append(rep.Targets, st)
 	}
 	return rep, series, nil
+}
+
+// unfoldRanges returns the ranges (m) that fold to every measured
+// apparent range (m, on gates of gate m) with the PRIs (s) of the CPIs
+// that measured them, within one gate (and 10⁻⁹ of it for rounding), in
+// [0, lim): lim is their
+// combined unambiguous range, at most maxUnfoldRangeM (docs/detection.md
+// §10).
+func unfoldRanges(apparent, pris []float64, gate float64) (candidates []float64, lim float64) {
+	lim = math.Min(dsp.NewSchedule(pris...).UnambiguousRange(), maxUnfoldRangeM)
+	periods := make([]float64, len(pris))
+	for i, p := range pris {
+		periods[i] = dsp.UnambiguousRange(p)
+	}
+	// A gate plus rounding: two measurements a whole gate apart agree.
+	c := dsp.Unfold(apparent, periods, 0, lim, gate*(1+1e-9), false)
+	// [0, lim): a candidate at lim is the one at 0 again.
+	for len(c) > 0 && c[len(c)-1] >= lim-gate/2 {
+		c = c[:len(c)-1]
+	}
+	return c, lim
+}
+
+// unfoldRates returns the range rates (m/s) that fold to every measured
+// apparent range rate (m/s, each within tols[i] of the truth) with the
+// PRIs (s) that measured them, within the sum of the two largest tols, in
+// [−lim, lim]: lim is half their first common blind speed λ/(2Δ), at most
+// maxRangeRate.
+func unfoldRates(apparent, pris, tols []float64, lambda float64) (candidates []float64, lim float64) {
+	lim = math.Min(dsp.NewSchedule(pris...).FirstBlindSpeed(lambda)/2, maxRangeRate)
+	periods := make([]float64, len(pris))
+	for i, p := range pris {
+		periods[i] = dsp.BlindSpeed(p, lambda)
+	}
+	t := slices.Clone(tols)
+	sort.Float64s(t)
+	tol := t[len(t)-1]
+	if len(t) > 1 {
+		tol += t[len(t)-2]
+	}
+	return dsp.Unfold(apparent, periods, -lim, lim, tol, true), lim
 }
 
 // maxRangeRate is the format's largest range rate, m/s: velocities unfold
