@@ -219,3 +219,28 @@ func TestScheduleSuggestions(t *testing.T) {
 		}
 	}
 }
+
+// TestScheduleFirstBlindSpeed: PRIs of 100 µs and 125 µs at 9.5 GHz
+// (Δ = 25 µs, n = 4 and 5) are blind together first at λ/(2Δ) = 631.1
+// m/s, (4 + 5)/2 = 4.5 times the 140.2 m/s blind speed of the mean PRI
+// 112.5 µs (Skolnik, Introduction to Radar Systems, 3rd ed., ch. 3,
+// staggered PRFs; recomputed: λ = c/9.5 GHz = 31.557 mm, 31.557 mm /
+// 50 µs = 631.15 m/s).
+func TestScheduleFirstBlindSpeed(t *testing.T) {
+	s, err := Decode(withSchedule(t, "hill-clutter-doppler", map[string]any{"cpis": []any{map[string]any{"pri_s": 1.25e-4}}}))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := Analyse(context.Background(), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	v := rep.Schedule.FirstBlindSpeedMPS
+	if v == nil || math.Abs(*v-631.15) > 0.05 {
+		t.Errorf("first blind speed %v, want 631.15 m/s", v)
+	}
+	mean := s.Radar.Wavelength() / (2 * 112.5e-6)
+	if math.Abs(*v/mean-4.5) > 1e-9 {
+		t.Errorf("ratio to the mean PRI's blind speed %.6f, want 4.5", *v/mean)
+	}
+}

@@ -22,6 +22,10 @@ func TestScheduleTabsAndEditor(t *testing.T) {
 	waitFor(t, ctx, "the schedule in the report", `!!window.__pw.frame().report.schedule`)
 	waitFor(t, ctx, "the schedule tabs", `!document.querySelector('[data-show="blindzones"]').hidden`)
 
+	// The verdicts under the story: the jet, blind in CPI 1, is detected 2-of-3.
+	if txt := eval[string](t, ctx, `document.querySelector('.sched-story').textContent`); !strings.Contains(txt, "jet detected, 2 of 3 CPIs · unfolds to 7.65 km, -157.8 m/s") {
+		t.Errorf("schedule verdicts %q", txt)
+	}
 	// Blind zones: a real click on the tab.
 	do(t, ctx, chromedp.Click(chromedp.CSS(`[data-show="blindzones"]`)))
 	waitFor(t, ctx, "the blind-zones map drawn", `(() => { const o = window.__pw.plots.charts.blindzones.getOption();
@@ -100,4 +104,21 @@ func TestScheduleTabsAndEditor(t *testing.T) {
 	// Start one again from the button.
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#ed-schedule [data-act="start"]`)))
 	waitFor(t, ctx, "a schedule started", `(() => { const s = window.__pw.frame().report.schedule; return s && s.n === 2; })()`)
+}
+
+// The long-pulse demo's ghost at 60.10 km is unfolded by its second CPI:
+// the verdicts name the true 210 km.
+func TestScheduleUnfoldsGhostOnPage(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	loadDemo(t, ctx, "long-pulse-blind")
+	waitFor(t, ctx, "the verdicts", `/airliner-far detected, 2 of 2 CPIs · unfolds to 210.00 km/.test(document.querySelector('.sched-story').textContent)`)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`[data-show="blindzones"]`)))
+	waitFor(t, ctx, "the blind-zones map drawn", `(() => { const o = window.__pw.plots.charts.blindzones.getOption();
+		return o.series && o.series[1].data.length === 4; })()`)
+	// Single-pulse CPIs have no map: the CPI maps pane says so.
+	do(t, ctx, chromedp.Click(chromedp.CSS(`[data-show="cpimaps"]`)))
+	waitFor(t, ctx, "the no-map hint", `/no range–Doppler map/.test(document.querySelector('#cpimaps').textContent)`)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`[data-show="blindzones"]`)))
+	shot(t, ctx, "")
 }

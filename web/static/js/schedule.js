@@ -259,6 +259,7 @@ onFrame((f) => {
   report = f.report || null;
   const sr = report && report.schedule;
   setTabs(!!sr);
+  renderVerdicts(sr);
   if (!sr) return;
   const shown = new Set();
   for (const name of Object.keys(f.charts || {})) {
@@ -279,6 +280,29 @@ onFrame((f) => {
     hint.textContent = 'No CPI of this schedule has more than one pulse: there is no range–Doppler map to show.';
   } else if (hint) hint.remove();
 });
+
+// The schedule's verdicts in the figures panel, after the scene's story:
+// one line per target with its M-of-N verdict and what the unfolding
+// found; the full reason on hover.
+const verdicts = h('section', { class: 'sched-story', 'aria-label': 'PRF schedule', hidden: true });
+$('.figures .fig-head').before(verdicts);
+
+function renderVerdicts(sr) {
+  verdicts.hidden = !sr;
+  if (!sr) return;
+  const head = [`PRF schedule · ${sr.n} CPIs · ${sr.m}-of-${sr.n}`];
+  if (sr.unambiguous_range_m !== undefined) head.push(`unambiguous to ${num(sr.unambiguous_range_m / 1000, 1)} km`);
+  const rows = sr.targets.map((t) => {
+    const found = [];
+    if (t.range_m !== undefined) found.push(`${num(t.range_m / 1000, 2)} km`);
+    if (t.range_rate_mps !== undefined) found.push(`${num(t.range_rate_mps, 1)} m/s`);
+    return h('li', { class: t.detected ? 'ok' : 'miss', title: t.reason },
+      h('span', { class: 'mark' }, t.detected ? '✓' : '✗'), ' ', h('b', {}, t.id),
+      ` ${t.detected ? 'detected' : 'missed'}, ${t.detected_in} of ${sr.n} CPIs`,
+      found.length ? ` · unfolds to ${found.join(', ')}` : '');
+  });
+  verdicts.replaceChildren(h('h3', {}, head.join(' · ')), h('ul', {}, rows));
+}
 
 // One line over the blind-zones map: the rule, the combined unambiguous
 // range and each target's count of detecting CPIs.
