@@ -83,25 +83,58 @@ type ScheduleTarget struct {
 	Reason                  string   `json:"reason"`
 }
 
+// ScheduleMaps fills in res.CPISeries, the range–Doppler series of every
+// CPI of more than one pulse of a scenario with radar.schedule, res being
+// Evaluate's result for s (the first CPI's series are res.Series). The
+// maps cost a pulse-train simulation per CPI, so Evaluate leaves them to
+// callers that show them. A scenario without a schedule leaves res as it
+// is.
+func ScheduleMaps(ctx context.Context, s *Scenario, res *Result) error {
+	if s.Radar.Schedule == nil {
+		return nil
+	}
+	out := make([]*Series, s.Radar.Schedule.N())
+	if res.Series.RangeDoppler != nil {
+		out[0] = &res.Series
+	}
+	var prev *model
+	for k := 1; k < len(out); k++ {
+		t := s.cpiScenario(k)
+		if t.Radar.Pulses <= 1 {
+			continue
+		}
+		m, err := newModel(t, prev)
+		if err != nil {
+			return fmt.Errorf("CPI %d: %w", k+1, err)
+		}
+		prev = m
+		sc, err := newScene(ctx, m)
+		if err != nil {
+			return err
+		}
+		sc.ghosts = true
+		ser, err := sc.train.series(ctx)
+		if err != nil {
+			return err
+		}
+		out[k] = &ser
+	}
+	res.CPISeries = out
+	return nil
+}
+
 // maxUnfoldRangeM bounds the unfolding of ranges for PRIs without a
 // common grid: the format's largest target range.
 const maxUnfoldRangeM = 1e8
 
-// evalSchedule evaluates every CPI of a scenario with a schedule. base is the
-// model of the first CPI (its pulse and reference are reused). With maps,
-// it also returns the range–Doppler series of every CPI of more than one
-// pulse (nil for single-pulse CPIs; index 0 holds an empty placeholder
-// for the first CPI, whose series the caller computes).
-func evalSchedule(ctx context.Context, s *Scenario, base *model, maps bool) (*ScheduleReport, []*Series, error) {
+// evalSchedule evaluates every CPI of a scenario with a schedule. base is
+// the model of the first CPI (its pulse and reference are reused).
+func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleReport, error) {
 	sched := s.Radar.Schedule
 	n := sched.N()
 	rep := &ScheduleReport{N: n, M: sched.M}
 	lambda := s.Radar.Wavelength()
 	pris := make([]float64, n)
-	var series []*Series
-	if maps {
-		series = make([]*Series, n)
-	}
 	type seen struct {
 		apparent, rate float64
 		hasRate        bool
@@ -117,7 +150,7 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model, maps bool) (*Sc
 	allDoppler := true
 	for k := range n {
 		if err := ctx.Err(); err != nil {
-			return nil, nil, err
+			return nil, err
 		}
 		t := s.cpiScenario(k)
 		r := t.Radar
@@ -125,16 +158,16 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model, maps bool) (*Sc
 		allDoppler = allDoppler && r.Pulses > 1
 		m, err := newModel(t, base)
 		if err != nil {
-			return nil, nil, fmt.Errorf("CPI %d: %w", k+1, err)
+			return nil, fmt.Errorf("CPI %d: %w", k+1, err)
 		}
 		sc, err := newScene(ctx, m)
 		if err != nil {
-			return nil, nil, err
+			return nil, err
 		}
 		sc.ghosts = true
 		trs := sc.targetReports(ctx, m, false)
 		if err := ctx.Err(); err != nil {
-			return nil, nil, err
+			return nil, err
 		}
 		cr := CPIReport{PRIS: r.PRIS, Pulses: r.Pulses, UnambiguousRangeM: dsp.UnambiguousRange(r.PRIS), BlindSpeedMPS: dsp.BlindSpeed(r.PRIS, lambda),
 			Warnings: append([]string{}, m.warnings...)}
@@ -179,16 +212,6 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model, maps bool) (*Sc
 			cr.Targets = append(cr.Targets, ct)
 		}
 		rep.CPIs = append(rep.CPIs, cr)
-		switch {
-		case maps && sc.train != nil && k == 0:
-			series[0] = &Series{} // the caller's own series: simulated once
-		case maps && sc.train != nil:
-			ser, err := sc.train.series(ctx)
-			if err != nil {
-				return nil, nil, err
-			}
-			series[k] = &ser
-		}
 	}
 	grid := dsp.NewSchedule(pris...)
 	if ru := grid.UnambiguousRange(); !math.IsInf(ru, 0) {
@@ -257,7 +280,7 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model, maps bool) (*Sc
 		st.Reason = strings.Join(why, " ")
 		rep.Targets = append(rep.Targets, st)
 	}
-	return rep, series, nil
+	return rep, nil
 }
 
 // unfoldRanges returns the ranges (m) that fold to every measured

@@ -86,7 +86,7 @@ func suggestSchedule(ctx context.Context, base *model, sc *scene, j int, cause s
 			continue
 		}
 		*budget--
-		rep, _, err := evalSchedule(ctx, t, base, false)
+		rep, err := evalSchedule(ctx, t, base)
 		if err != nil {
 			return ""
 		}

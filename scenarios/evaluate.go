@@ -90,11 +90,8 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	}
 	res.Report.Warnings = append([]string{}, m.warnings...)
 	if s.Radar.Schedule != nil {
-		if res.Report.Schedule, res.CPISeries, err = evalSchedule(ctx, s, m, true); err != nil {
+		if res.Report.Schedule, err = evalSchedule(ctx, s, m); err != nil {
 			return nil, err
-		}
-		if len(res.CPISeries) > 0 && res.CPISeries[0] != nil {
-			res.CPISeries[0] = &res.Series // the first CPI's map, already simulated
 		}
 	}
 	if err := ctx.Err(); err != nil {
@@ -125,7 +122,7 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	rep.Targets = sc.targetReports(ctx, m, false)
 	rep.Warnings = append([]string{}, m.warnings...)
 	if s.Radar.Schedule != nil {
-		if rep.Schedule, _, err = evalSchedule(ctx, s, m, false); err != nil {
+		if rep.Schedule, err = evalSchedule(ctx, s, m); err != nil {
 			return nil, err
 		}
 	}

@@ -83,9 +83,10 @@ type TargetReport struct {
 type Result struct {
 	Report Report
 	Series Series
-	// CPISeries holds, with radar.schedule, the plot series of every CPI
-	// of more than one pulse (its range–Doppler map), nil for the others;
-	// index 0 is the first CPI, whose series are Series.
+	// CPISeries holds, when ScheduleMaps filled it in, the plot series of
+	// every CPI of radar.schedule of more than one pulse (its
+	// range–Doppler map), nil for the others; index 0 is the first CPI,
+	// whose series are Series.
 	CPISeries []*Series
 }
 

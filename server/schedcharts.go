@@ -40,7 +40,9 @@ var (
 	bzSeen   = []string{"#2b6a8f", "#6aa9a4", "#a9cfc0", "#d7e8dc", "#f4f4ee"}
 )
 
-// scheduleCharts returns the schedule's charts, none without a schedule.
+// scheduleCharts returns the schedule's charts, none without a schedule:
+// the blind-zones map, and the CPI maps while the page shows them (vw.cpiMaps)
+// and res holds them (scenarios.ScheduleMaps).
 func scheduleCharts(sc *scenarios.Scenario, res *scenarios.Result, vw view) []chartOut {
 	sr := res.Report.Schedule
 	if sr == nil || sc == nil || sc.Radar.Schedule == nil {
@@ -50,7 +52,11 @@ func scheduleCharts(sc *scenarios.Scenario, res *scenarios.Result, vw view) []ch
 	if c, ok := blindZonesChart(sc, sr); ok {
 		out = append(out, c)
 	}
-	// Each CPI's map over its whole window, at about half the map's width.
+	if !vw.cpiMaps {
+		return out // the page does not show the CPI maps
+	}
+	// Each CPI's map over its whole window, at about two thirds of the
+	// map's width.
 	mv := view{width: vw.width, mapWidth: max(vw.mapWidth*2/3, 200)}
 	for k, s := range res.CPISeries {
 		if s == nil || s.RangeDoppler == nil || k >= len(sr.CPIs) {

@@ -22,7 +22,14 @@ func TestScheduleCharts(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	cs := scheduleCharts(d.Scenario, res, view{width: 900, mapWidth: 300})
+	// Without the CPI maps tab: the blind-zones map alone.
+	if cs := scheduleCharts(d.Scenario, res, view{width: 900, mapWidth: 300}); len(cs) != 1 || cs[0].name != ChartBlindZones {
+		t.Errorf("without cpi_maps: %d charts, want the blind-zones map alone", len(cs))
+	}
+	if err := scenarios.ScheduleMaps(context.Background(), d.Scenario, res); err != nil {
+		t.Fatal(err)
+	}
+	cs := scheduleCharts(d.Scenario, res, view{width: 900, mapWidth: 300, cpiMaps: true})
 	names := map[string]chartOut{}
 	for _, c := range cs {
 		names[c.name] = c

@@ -7,7 +7,7 @@
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { $, $$, h } from './dom.js';
 
-const { store, plots, onFrame } = window.__pw;
+const { store, plots, session, onFrame } = window.__pw;
 const MaxCPIs = 16; // scenarios.MaxCPIs: the radar's own CPI and 15 more
 const root = $('#ed-schedule');
 const mapsPane = $('#cpimaps');
@@ -253,6 +253,7 @@ function setTabs(on) {
   const left = document.getElementById('panel-left');
   const sel = plots.selected(left);
   if (sel === 'blindzones' || sel === 'cpimaps') plots.select(plots.train ? 'rdmap' : 'echo');
+  session.showCPIMaps(false);
 }
 
 onFrame((f) => {
@@ -314,6 +315,11 @@ function summary(sr) {
   const el = $('#sched-sum');
   el.textContent = `${parts.join(' · ')} — ${ts.join(', ')}`;
   el.title = sr.targets.map((t) => `${t.id}: ${t.reason}`).join('\n');
+}
+
+// The server sends the CPI maps while their tab shows.
+for (const b of $$('#panel-left .plot-head [data-show]')) {
+  b.addEventListener('click', () => session.showCPIMaps(plots.selected($('#panel-left')) === 'cpimaps'));
 }
 
 // Showing the CPI maps draws what they held back while hidden.
