@@ -34,8 +34,8 @@ func (sc *scene) scheduleCause(j int, tr *TargetReport) string {
 	switch {
 	case tr.BlindSpeed != nil && *tr.BlindSpeed:
 		return "blind"
-	case tr.Status == StatusOutOfWindow && g.folds > 0:
-		return "folded"
+	case g.folds > 0 && tr.Status != StatusEclipsed:
+		return "folded" // a status of its own or out of the window, by format version
 	case tr.Status == StatusEclipsed && g.rangeM > C*sc.m.tau/2:
 		return "eclipsed"
 	}

