@@ -112,7 +112,6 @@ func ScheduleMaps(ctx context.Context, s *Scenario, res *Result) error {
 		if err != nil {
 			return err
 		}
-		sc.ghosts = true
 		ser, err := sc.train.series(ctx)
 		if err != nil {
 			return err
@@ -164,7 +163,16 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 		if err != nil {
 			return nil, err
 		}
-		sc.ghosts = true
+		// A point echo folded from beyond the CPI's unambiguous range is
+		// judged where it appears in the window, as a detection at its
+		// apparent range that the schedule then unfolds: the scene forgets
+		// the fold while it judges.
+		folds := make([]int, len(sc.targets))
+		for j, g := range sc.targets {
+			if folds[j] = g.folds; g.t.Kind == TargetPoint {
+				g.folds = 0
+			}
+		}
 		trs := sc.targetReports(ctx, m, false)
 		if err := ctx.Err(); err != nil {
 			return nil, err
@@ -177,14 +185,14 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 			ct := CPITarget{ID: tr.ID, Status: tr.Status, Detected: tr.Status == StatusDetected, MarginDB: tr.MarginDB, Pd: tr.Pd,
 				BlindSpeed: tr.BlindSpeed, Reason: tr.Reason}
 			if g.t.Kind == TargetPoint {
-				ct.Folds = g.folds
+				ct.Folds = folds[j]
 				if a := g.apparent + tr.RangeShiftM; a >= r.WindowStartM && a <= r.WindowStopM {
 					// The gate the echo peaks in: the measured range.
 					q := r.WindowStartM + gate*math.Round((a-r.WindowStartM)/gate)
 					ct.ApparentRangeM = &q
 				}
 				if ct.Folds > 0 {
-					ct.Reason += fmt.Sprintf(" Its echo from %s folds %d time(s) by the %s unambiguous range.", km(g.rangeM), g.folds, km(m.unambM))
+					ct.Reason += fmt.Sprintf(" Its echo from %s folds %d time(s) by the %s unambiguous range.", km(g.rangeM), ct.Folds, km(m.unambM))
 				}
 			}
 			var rt *float64

@@ -69,11 +69,6 @@ type scene struct {
 	// responses are computed on those samples only.
 	reachLo, reachHi int
 	partial          bool
-	// ghosts: a point echo folded from beyond the unambiguous range is
-	// judged where it appears in the window, as a detection at its
-	// apparent range, rather than out of the window (a CPI of a PRF
-	// schedule, whose folds the schedule resolves).
-	ghosts bool
 }
 
 // reaches reports whether a response over window samples [lo, hi) is

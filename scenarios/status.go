@@ -138,7 +138,7 @@ func (sc *scene) decide(g *tgt, v *verdict) string {
 func (sc *scene) outOfWindow(g *tgt) bool {
 	r := sc.m.s.Radar
 	if g.t.Kind == TargetPoint {
-		return (g.folds > 0 && !sc.ghosts) || g.apparent < r.WindowStartM || g.apparent > r.WindowStopM
+		return g.folds > 0 || g.apparent < r.WindowStartM || g.apparent > r.WindowStopM
 	}
 	return g.t.RangeStartM >= sc.m.unambM || g.t.RangeStopM < r.WindowStartM || g.t.RangeStartM > r.WindowStopM
 }
