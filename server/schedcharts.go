@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"strconv"
+	"strings"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 
@@ -189,4 +190,62 @@ func bzMarkers(sc *scenarios.Scenario, sr *scenarios.ScheduleReport, h heat) []b
 			Reason: st.Reason, Symbol: style.symbol, ItemStyle: map[string]any{"color": "rgba(255,255,255,0.6)", "borderColor": style.colour, "borderWidth": 2}})
 	}
 	return out
+}
+
+// scheduleData is the HTML report's PRF schedule table.
+type scheduleData struct {
+	Head, Rule string
+	CPIs       []string // column heads: "CPI 1 (1 ms × 1)"
+	Rows       []scheduleRow
+}
+
+type scheduleRow struct {
+	ID                                     string
+	Cells                                  []string // status per CPI, with the apparent range where detected
+	Seen, Verdict, Pd, Range, Rate, Reason string
+}
+
+// scheduleTable lays out a report's schedule for the HTML report; nil
+// without one.
+func scheduleTable(sr *scenarios.ScheduleReport) *scheduleData {
+	if sr == nil {
+		return nil
+	}
+	d := &scheduleData{Rule: fmt.Sprintf("%d-of-%d", sr.M, sr.N)}
+	head := []string{fmt.Sprintf("%d CPIs, a target detected when %d of them detect it", sr.N, sr.M)}
+	if sr.UnambiguousRangeM != nil {
+		head = append(head, fmt.Sprintf("combined unambiguous range %.2f km", *sr.UnambiguousRangeM/1000))
+	}
+	if sr.FirstBlindSpeedMPS != nil {
+		head = append(head, fmt.Sprintf("first speed blind in every CPI %.1f m/s", *sr.FirstBlindSpeedMPS))
+	}
+	d.Head = strings.Join(head, "; ") + "."
+	for k, c := range sr.CPIs {
+		d.CPIs = append(d.CPIs, fmt.Sprintf("CPI %d (%s × %d)", k+1, scenarios.SI(c.PRIS, "s"), c.Pulses))
+	}
+	for j, t := range sr.Targets {
+		row := scheduleRow{ID: t.ID, Seen: fmt.Sprintf("%d/%d", t.DetectedIn, sr.N), Verdict: "missed", Pd: "—", Range: "—", Rate: "—", Reason: t.Reason}
+		if t.Detected {
+			row.Verdict = "detected"
+		}
+		if t.Pd != nil {
+			row.Pd = scenarios.PdText(*t.Pd)
+		}
+		if t.RangeM != nil {
+			row.Range = fixed(*t.RangeM/1000, 2)
+		}
+		if t.RangeRateMPS != nil {
+			row.Rate = fixed(*t.RangeRateMPS, 1)
+		}
+		for _, c := range sr.CPIs {
+			ct := c.Targets[j]
+			cell := strings.ReplaceAll(ct.Status, "_", " ")
+			if ct.Detected && ct.ApparentRangeM != nil {
+				cell += fmt.Sprintf(" at %.2f km", *ct.ApparentRangeM/1000)
+			}
+			row.Cells = append(row.Cells, cell)
+		}
+		d.Rows = append(d.Rows, row)
+	}
+	return d
 }

@@ -3,6 +3,7 @@ package server
 import (
 	"context"
 	"encoding/json"
+	"strings"
 	"testing"
 
 	"github.com/pulsewright/pulsewright/scenarios"
@@ -87,5 +88,30 @@ func TestScheduleCharts(t *testing.T) {
 	}
 	if cs := scheduleCharts(d.Scenario, res, view{width: 900}); len(cs) != 0 {
 		t.Errorf("%d schedule charts without a schedule", len(cs))
+	}
+}
+
+// TestReportPageSchedule: the HTML report of the long-pulse demo has the
+// schedule's table, the airliner seen at 60.11 km and 45.12 km (the gates
+// nearest 60.10 and 45.11 km, moved by its range–Doppler shift) and
+// unfolded to 210.00 km.
+func TestReportPageSchedule(t *testing.T) {
+	d, err := scenarios.LoadDemo("long-pulse-blind")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := scenarios.Evaluate(context.Background(), d.Scenario)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b strings.Builder
+	if err := WriteReportPage(&b, d.Scenario, res, "/#s=x"); err != nil {
+		t.Fatal(err)
+	}
+	for _, want := range []string{"<h2>PRF schedule</h2>", "combined unambiguous range 1648.86 km", "<th>CPI 2 (1.1 ms × 1)</th>",
+		"detected at 60.11 km", "detected at 45.12 km", `<td class="num">210.00</td>`} {
+		if !strings.Contains(b.String(), want) {
+			t.Errorf("report page lacks %q", want)
+		}
 	}
 }
