@@ -140,6 +140,7 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 		rateTol        float64
 	}
 	obs := make([][]*seen, len(s.Targets)) // obs[j][k]: CPI k's measurement of target j, nil when not detected
+	detected := make([]int, len(s.Targets)) // CPIs that detect target j
 	pds := make([][]float64, len(s.Targets))
 	pdOK := make([]bool, len(s.Targets))
 	for j := range pdOK {
@@ -210,6 +211,9 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 			} else {
 				pds[j] = append(pds[j], *tr.Pd)
 			}
+			if ct.Detected {
+				detected[j]++
+			}
 			if ct.Detected && ct.ApparentRangeM != nil {
 				o := &seen{apparent: *ct.ApparentRangeM, rateTol: rateTol}
 				if rt != nil {
@@ -237,7 +241,6 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 			if o == nil {
 				continue
 			}
-			st.DetectedIn++
 			ranges = append(ranges, o.apparent)
 			rpris = append(rpris, pris[k])
 			where = append(where, fmt.Sprintf("%s in CPI %d", km(o.apparent), k+1))
@@ -247,6 +250,7 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 				vtols = append(vtols, o.rateTol)
 			}
 		}
+		st.DetectedIn = detected[j]
 		st.Detected = st.DetectedIn >= sched.M
 		if pdOK[j] && len(pds[j]) == n {
 			p := dsp.AtLeast(pds[j], sched.M)
