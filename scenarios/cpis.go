@@ -139,7 +139,7 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 		hasRate        bool
 		rateTol        float64
 	}
-	obs := make([][]*seen, len(s.Targets)) // obs[j][k]: CPI k's measurement of target j, nil when not detected
+	obs := make([][]*seen, len(s.Targets))  // obs[j][k]: CPI k's measurement of target j, nil when not detected
 	detected := make([]int, len(s.Targets)) // CPIs that detect target j
 	pds := make([][]float64, len(s.Targets))
 	pdOK := make([]bool, len(s.Targets))
