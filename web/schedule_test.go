@@ -78,6 +78,19 @@ func TestScheduleTabsAndEditor(t *testing.T) {
 	typeInto(t, ctx, `#ed-schedule [data-sched="radar.schedule.m"]`, "1")
 	waitFor(t, ctx, "1-of-2 detects the jet", `(() => { const s = window.__pw.frame().report.schedule;
 		return s.m === 1 && s.targets.find((t) => t.id === 'jet').detected; })()`)
+	// Text that is not a number stays in its field with its message, the
+	// scene keeps the last good PRI, and the message outlives the frame of
+	// another edit.
+	typeInto(t, ctx, `#ed-schedule [data-sched="radar.schedule.cpis[0].pri_s"]`, "12x")
+	waitFor(t, ctx, "the local message", `/is not a number/.test(document.querySelector('[data-err-for="radar.schedule.cpis[0].pri_s"]').textContent)`)
+	typeInto(t, ctx, `#ed-schedule [data-sched="radar.schedule.m"]`, "2")
+	waitFor(t, ctx, "m = 2 evaluated", `window.__pw.frame().report.schedule.m === 2`)
+	if !eval[bool](t, ctx, `/is not a number/.test(document.querySelector('[data-err-for="radar.schedule.cpis[0].pri_s"]').textContent)
+		&& window.__pw.store.scenario.radar.schedule.cpis[0].pri_s === 1.25e-4`) {
+		t.Error("the message of text that is not a number went with another edit's frame, or the scene took the bad text")
+	}
+	typeInto(t, ctx, `#ed-schedule [data-sched="radar.schedule.m"]`, "1")
+	waitFor(t, ctx, "m = 1 again", `window.__pw.frame().report.schedule.m === 1`)
 	// A bad PRI is refused beside its field; the scene keeps the last good one.
 	typeInto(t, ctx, `#ed-schedule [data-sched="radar.schedule.cpis[0].pri_s"]`, "5")
 	waitFor(t, ctx, "the refusal beside the field", `/must be above/.test(document.querySelector('[data-err-for="radar.schedule.cpis[0].pri_s"]').textContent)`)

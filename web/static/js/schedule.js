@@ -256,7 +256,19 @@ function setTabs(on) {
   session.showCPIMaps(false);
 }
 
+// The page clears every field message when a frame is accepted; a
+// schedule field whose text is still not a number keeps its own.
+function reshowLocal() {
+  for (const [path, msg] of localErrors) {
+    const slot = $(`[data-err-for="${CSS.escape(path)}"]`, root);
+    if (slot && !slot.textContent) slot.textContent = msg;
+    const input = $(`[data-sched="${CSS.escape(path)}"]`, root);
+    if (input) input.setAttribute('aria-invalid', 'true');
+  }
+}
+
 onFrame((f) => {
+  queueMicrotask(reshowLocal); // after the page has applied the frame
   report = f.report || null;
   const sr = report && report.schedule;
   setTabs(!!sr);
