@@ -3,6 +3,7 @@ package web_test
 import (
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/chromedp/chromedp"
 )
@@ -13,7 +14,7 @@ import (
 // CPIs and changes a PRI and M with real clicks and keys, each edit
 // re-evaluated by the server.
 func TestScheduleTabsAndEditor(t *testing.T) {
-	ctx := mustBrowser(t)
+	ctx := mustBrowserFor(t, 4*time.Minute)
 	openPage(t, ctx, mustServer(t))
 	if eval[bool](t, ctx, `!document.querySelector('[data-show="blindzones"]').hidden`) {
 		t.Error("the blind-zones tab shows for a scene without a schedule")
@@ -79,23 +80,24 @@ func TestScheduleTabsAndEditor(t *testing.T) {
 	waitFor(t, ctx, "1-of-2 detects the jet", `(() => { const s = window.__pw.frame().report.schedule;
 		return s.m === 1 && s.targets.find((t) => t.id === 'jet').detected; })()`)
 	// Text that is not a number stays in its field with its message, the
-	// scene keeps the last good PRI, and the message outlives the frame of
-	// another edit.
+	// scene keeps the last number typed (12 µs: keys arrive one by one),
+	// and the message outlives the frame of another edit.
 	typeInto(t, ctx, `#ed-schedule [data-sched="radar.schedule.cpis[0].pri_s"]`, "12x")
 	waitFor(t, ctx, "the local message", `/is not a number/.test(document.querySelector('[data-err-for="radar.schedule.cpis[0].pri_s"]').textContent)`)
 	typeInto(t, ctx, `#ed-schedule [data-sched="radar.schedule.m"]`, "2")
 	waitFor(t, ctx, "m = 2 evaluated", `window.__pw.frame().report.schedule.m === 2`)
 	if !eval[bool](t, ctx, `/is not a number/.test(document.querySelector('[data-err-for="radar.schedule.cpis[0].pri_s"]').textContent)
-		&& window.__pw.store.scenario.radar.schedule.cpis[0].pri_s === 1.25e-4`) {
+		&& window.__pw.store.scenario.radar.schedule.cpis[0].pri_s === 1.2e-5`) {
 		t.Error("the message of text that is not a number went with another edit's frame, or the scene took the bad text")
 	}
 	typeInto(t, ctx, `#ed-schedule [data-sched="radar.schedule.m"]`, "1")
 	waitFor(t, ctx, "m = 1 again", `window.__pw.frame().report.schedule.m === 1`)
-	// A bad PRI is refused beside its field; the scene keeps the last good one.
+	// A PRI below the 10 µs pulse is refused beside its field; the plots
+	// keep the last accepted one (12 µs).
 	typeInto(t, ctx, `#ed-schedule [data-sched="radar.schedule.cpis[0].pri_s"]`, "5")
 	waitFor(t, ctx, "the refusal beside the field", `/must be above/.test(document.querySelector('[data-err-for="radar.schedule.cpis[0].pri_s"]').textContent)`)
-	if got := eval[float64](t, ctx, `window.__pw.frame().report.schedule.cpis[1].pri_s`); got != 1.25e-4 {
-		t.Errorf("after a refused PRI the plotted CPI 2 has PRI %g, want the last good 125 µs", got)
+	if got := eval[float64](t, ctx, `window.__pw.frame().report.schedule.cpis[1].pri_s`); got != 1.2e-5 {
+		t.Errorf("after a refused PRI the plotted CPI 2 has PRI %g, want the last accepted 12 µs", got)
 	}
 	typeInto(t, ctx, `#ed-schedule [data-sched="radar.schedule.cpis[0].pri_s"]`, "140")
 	waitFor(t, ctx, "the new PRI evaluated", `window.__pw.frame().report.schedule.cpis[1].pri_s === 1.4e-4`)
