@@ -256,6 +256,11 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 			p := dsp.AtLeast(pds[j], sched.M)
 			st.Pd = &p
 		}
+		if t.IsClutter() {
+			st.Reason = "Clutter, not a target: no CPI detects it as one; it enters every CPI's scene and may mask the targets there."
+			rep.Targets = append(rep.Targets, st)
+			continue
+		}
 		var why []string
 		missed := lostIn(rep.CPIs, j)
 		verdict := fmt.Sprintf("%d of %d CPIs detect it, %d-of-%d %s", st.DetectedIn, n, sched.M, n, map[bool]string{true: "detects it", false: "misses it"}[st.Detected])
@@ -300,7 +305,7 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 // that measured them, within one gate (and 10⁻⁹ of it for rounding), in
 // [0, lim): lim is their
 // combined unambiguous range, at most maxUnfoldRangeM (docs/detection.md
-// §10).
+// §11).
 func unfoldRanges(apparent, pris []float64, gate float64) (candidates []float64, lim float64) {
 	lim = math.Min(dsp.NewSchedule(pris...).UnambiguousRange(), maxUnfoldRangeM)
 	periods := make([]float64, len(pris))

@@ -88,6 +88,7 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 			return nil, err
 		}
 	}
+	res.Report.FalseAlarms, res.Report.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	res.Report.Warnings = append([]string{}, m.warnings...)
 	if s.Radar.Schedule != nil {
 		if res.Report.Schedule, err = evalSchedule(ctx, s, m); err != nil {
@@ -120,6 +121,7 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	}
 	rep := &Report{Version: ReportVersion, Scenario: s.Name, Waveform: m.waveformReport()}
 	rep.Targets = sc.targetReports(ctx, m, false)
+	rep.FalseAlarms, rep.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	rep.Warnings = append([]string{}, m.warnings...)
 	if s.Radar.Schedule != nil {
 		if rep.Schedule, err = evalSchedule(ctx, s, m); err != nil {
@@ -198,6 +200,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 	}
 	schedBudget := scheduleBudget(m)
 	out := make([]TargetReport, len(sc.targets))
+	sc.clutter = sc.analyseClutter(cf, cf2)
 	for j, g := range sc.targets {
 		v := sc.judge(j, cf)
 		single := v
@@ -205,15 +208,17 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		if sc.train != nil {
 			v, bin = sc.train.judge(j, cf2)
 		}
+		clutterVerdict(g, &v)
 		d := m.doppler(g.fd)
 		tr := TargetReport{
-			ID:            g.t.ID,
-			RangeM:        g.rangeM,
-			DopplerHz:     g.fd + 0, // never −0
-			DopplerLossDB: d.lossDB,
-			RangeShiftM:   d.shift * C / 2,
-			Status:        v.status,
-			MarginDB:      v.margin(),
+			ID:                g.t.ID,
+			RangeM:            g.rangeM,
+			DopplerHz:         g.fd + 0, // never −0
+			DopplerLossDB:     d.lossDB,
+			RangeShiftM:       d.shift * C / 2,
+			Status:            v.status,
+			ThresholdMarginDB: v.margin(),
+			DecidedOn:         v.rule,
 		}
 		if g.t.Kind != TargetPoint && v.peakK >= 0 {
 			tr.RangeM = m.rangeOf(float64(v.peakK))
@@ -229,12 +234,18 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 			m.warn("target %s: its Doppler shift of %s is outside the receiver's band of ±%s (sample rate %s): %s", g.t.ID, hz(g.fd), hz(m.fs/2), hz(m.fs), bandWords(g))
 		}
 		tr.SNRDB = sc.snrDB(g, tr.RangeM, fig, d.lossDB)
-		m.pdFigures(g, v, v.alone, sc.train != nil, &tr)
+		m.pdFigures(v, v.alone, &tr)
 		if v.culprit >= 0 {
 			tr.MaskedBy = sc.targets[v.culprit].t.ID
 		}
-		tr.Reason = sc.reason(g, v, tr, cf)
-		if v.status == StatusBelowNoise || v.status == StatusMasked {
+		sc.clutterFigures(sc.clutter, j, single, v, bin, &tr)
+		if v.status == StatusClutter {
+			tr.MarginDB, tr.ThresholdMarginDB, tr.DecidedOn = nil, nil, ""
+			tr.Reason = sc.clutterReason(g, tr)
+		} else {
+			tr.Reason = sc.reason(g, v, tr, cf)
+		}
+		if v.status == StatusTooWeak || v.status == StatusMasked {
 			if d.lossDB >= 1 {
 				tr.Reason += fmt.Sprintf(" Its Doppler shift of %s costs %.1f dB of compressed peak.", hz(math.Abs(g.fd)), d.lossDB)
 			}
@@ -243,7 +254,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 			sc.train.report(j, v, single, bin, &tr)
 		}
 		hinted := false
-		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && budget > 0 && ctx.Err() == nil {
+		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && v.status != StatusFolded && v.status != StatusClutter && budget > 0 && ctx.Err() == nil {
 			if hint := suggestFix(ctx, m, j, v, &budget); hint != "" {
 				tr.Reason += " " + hint
 				hinted = true
@@ -254,7 +265,12 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 				tr.Reason += " " + hint
 			}
 		}
-		if tr.Status == StatusOutOfWindow && g.t.Kind == TargetPoint {
+		if m.s.ReadVersion == 1 {
+			if old := v.v1Status(g); old != v1Name(v.status) || v.status == StatusFolded {
+				m.warn("target %s: %s", g.t.ID, verdictChange(old, v, tr, m.s.Receiver.Detector.PdRequired))
+			}
+		}
+		if (tr.Status == StatusOutOfWindow || tr.Status == StatusFolded) && g.t.Kind == TargetPoint {
 			if g.folds > 0 {
 				m.warn("target %s at %s is beyond the unambiguous range %s and folds to an apparent %s", g.t.ID, km(g.t.RangeM), km(m.unambM), km(g.apparent))
 			} else {
@@ -276,11 +292,8 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.ChiFigures, dopLoss float
 	switch g.t.Kind {
 	case TargetPoint:
 		sigma = dsp.FromDB(g.t.RCSDBsm)
-	case TargetExtended:
-		sigma = dsp.FromDB(g.t.RCSDBsmPerM) * C / (2 * m.s.Waveform.Bandwidth())
-	case TargetVolume:
-		az, el := r.BeamwidthAzDeg*math.Pi/180, r.BeamwidthElDeg*math.Pi/180
-		sigma = dsp.VolumeReflectivity(g.t.ReflectivityDBZ, m.lambda) * dsp.BeamArea(rangeM, az, el) * C / (2 * m.s.Waveform.Bandwidth())
+	default:
+		sigma = m.perMetre(g.t, rangeM) * C / (2 * m.s.Waveform.Bandwidth())
 	}
 	if rangeM <= 0 {
 		return dbFloor

@@ -14,7 +14,7 @@ import (
 func randomScenario(r *rand.Rand) *Scenario {
 	pick := func(xs []string) string { return xs[r.IntN(len(xs))] }
 	u := func(lo, hi float64) float64 { return lo + (hi-lo)*r.Float64() }
-	s := &Scenario{Version: 1, Seed: r.Int64N(MaxSeed), Radar: defaultRadar(), Receiver: defaultReceiver()}
+	s := &Scenario{Version: Version, Seed: r.Int64N(MaxSeed), Radar: defaultRadar(), Receiver: defaultReceiver()}
 	if r.IntN(2) == 0 {
 		s.Name = "scene ✓ " + string(rune('A'+r.IntN(26)))
 		s.Notes = "notes with \"quotes\" and\nnew lines"
@@ -75,6 +75,7 @@ func randomScenario(r *rand.Rand) *Scenario {
 		s.Radar.PeakPowerW = u(1, 1e6)
 		s.Radar.Pulses = 1 + r.IntN(4)
 		s.Radar.BeamwidthAzDeg = u(0.5, 5)
+		s.Radar.AntennaHeightM = u(1, 500)
 	}
 	s.Radar.SampleRateHz = w.Bandwidth() * []float64{2, 2, 3.5, 1}[r.IntN(4)]
 	s.Radar.PRIS = w.PulseWidth() * u(3, 20)
@@ -123,10 +124,21 @@ func randomScenario(r *rand.Rand) *Scenario {
 		case TargetExtended:
 			t.RangeStartM, t.RCSDBsmPerM = u(0, 5e4), u(-40, 0)
 			t.RangeStopM = t.RangeStartM + u(1, 3000)
+			switch r.IntN(3) {
+			case 1:
+				t.RCSDBsmPerM, t.Level, t.Sigma0DB = 0, LevelSigma0, u(-50, 0)
+			case 2:
+				if s.Radar.AntennaHeightM > 0 {
+					t.RCSDBsmPerM, t.Level, t.GammaDB = 0, LevelGamma, u(-30, 0)
+				}
+			}
 		case TargetVolume:
 			t.RangeStartM, t.ReflectivityDBZ = u(0, 5e4), u(0, 60)
 			t.RangeStopM = t.RangeStartM + u(1, 3000)
 			t.VelocitySpreadMPS = u(0, 5)
+		}
+		if t.Kind != TargetPoint {
+			t.Role = pick(roles)
 		}
 		s.Targets = append(s.Targets, t)
 	}
@@ -215,14 +227,14 @@ func checkRoundTrip(t *testing.T, s *Scenario) {
 // TestCanonicalOmitsDefaults checks the canonical form of a minimal
 // scenario against the format document: defaults omitted, order kept.
 func TestCanonicalOmitsDefaults(t *testing.T) {
-	in := `{"waveform":{"bandwidth_hz":1e6,"kind":"lfm","pulse_width_s":1e-5,"sweep":"up"},"seed":1,"version":1,
+	in := `{"waveform":{"bandwidth_hz":1e6,"kind":"lfm","pulse_width_s":1e-5,"sweep":"up"},"seed":1,"version":2,
 		"receiver":{"filter":"matched","window":{"kind":"none"},"detector":{"kind":"ca_cfar","pfa":1e-6}},"view":{}}`
 	s, err := Decode([]byte(in))
 	if err != nil {
 		t.Fatal(err)
 	}
 	got, _ := Canonical(s)
-	want := `{"version":1,"waveform":{"kind":"lfm","pulse_width_s":0.00001,"bandwidth_hz":1000000}}`
+	want := `{"version":2,"waveform":{"kind":"lfm","pulse_width_s":0.00001,"bandwidth_hz":1000000}}`
 	if string(got) != want {
 		t.Fatalf("canonical:\n got %s\nwant %s", got, want)
 	}

@@ -11,7 +11,7 @@ import (
 
 // Independent check of the schedule's unfolding and M-of-N rule against
 // testdata/schedule/cases.json, written by testdata/schedule/gen.py from
-// docs/detection.md §10 alone: ranges in exact integer arithmetic on the
+// docs/detection.md §11 alone: ranges in exact integer arithmetic on the
 // gate grid (the true range found by its own Chinese-remainder solver is
 // among the candidates), range rates in floating point, and the M-of-N
 // probability by enumerating every outcome.

@@ -99,6 +99,9 @@ func (s *Scenario) validateRadar(c checker, waveOK bool) {
 	c.intBetween("radar.pulses", r.Pulses, 1, 1024)
 	c.between("radar.beamwidth_az_deg", r.BeamwidthAzDeg, 0.1, 90)
 	c.between("radar.beamwidth_el_deg", r.BeamwidthElDeg, 0.1, 90)
+	if r.AntennaHeightM != 0 {
+		c.above("radar.antenna_height_m", r.AntennaHeightM, 0, MaxAntennaHeightM)
+	}
 	c.between("radar.window_start_m", r.WindowStartM, 0, 1e8)
 	if !c.errs.has("radar.window_start_m") {
 		c.above("radar.window_stop_m", r.WindowStopM, r.WindowStartM, 1e8)
@@ -333,11 +336,7 @@ func (s *Scenario) validateTargets(c checker) {
 				c.above(p+"range_stop_m", t.RangeStopM, t.RangeStartM, 1e8)
 			}
 			c.between(p+"velocity_spread_mps", t.VelocitySpreadMPS, 0, 1000)
-			if t.Kind == TargetExtended {
-				c.between(p+"rcs_dbsm_per_m", t.RCSDBsmPerM, -150, 60)
-			} else {
-				c.between(p+"reflectivity_dbz", t.ReflectivityDBZ, -40, 80)
-			}
+			s.validateDistributed(c, p, t)
 		}
 	}
 }

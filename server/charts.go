@@ -56,9 +56,11 @@ var statusStyle = map[string]struct{ colour, symbol string }{
 	// (web/static/css: --st-* and .dot).
 	scenarios.StatusDetected:    {"#2f7d3a", "circle"},
 	scenarios.StatusMasked:      {"#c2410c", "diamond"},
-	scenarios.StatusBelowNoise:  {"#7b8389", "emptyCircle"},
+	scenarios.StatusTooWeak:     {"#7b8389", "emptyCircle"},
 	scenarios.StatusEclipsed:    {"#6d3fc0", "triangle"},
+	scenarios.StatusFolded:      {"#a16207", "pin"},
 	scenarios.StatusOutOfWindow: {"#1b6aa5", "rect"},
+	scenarios.StatusClutter:     {"#8b5e3c", "roundRect"},
 }
 
 // chartOut is one chart of a frame: its full option, and the series data
@@ -307,6 +309,7 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 		key += "+ref"
 	}
 	key += annotate(b, res, g)
+	key += breakthroughMarks(b, res, g)
 	b.line.AddSeries("targets", nil,
 		charts.WithSeriesId(SeriesMarkers),
 		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.Type = "scatter"; s.SymbolSize = 11 }),
@@ -341,7 +344,7 @@ func markers(res *scenarios.Result, lo, hi float64) []marker {
 	for _, t := range res.Report.Targets {
 		st, ok := statusStyle[t.Status]
 		if !ok {
-			st = statusStyle[scenarios.StatusBelowNoise]
+			st = statusStyle[scenarios.StatusTooWeak]
 		}
 		x := clampAmp(t.RangeM)
 		at := x

@@ -35,7 +35,11 @@ Usage:
   pulsewright eval SCENARIO          print the report JSON (--format text for a table)
   pulsewright sweep SCENARIO --set PATH=START:STOP:STEP [--set …] [--out FILE.csv]
                      [--html FILE.html] [--fail-if-masked ID] [--jobs N]
-                                     evaluate a grid of variants; one CSV row per point
+                     [--shard K/N]   evaluate a grid of variants; one CSV row per point
+                                     (--shard: only points i with i mod N = K, for merge)
+  pulsewright merge SHARD.csv… [--out FILE.csv] [--fail-if-masked ID]
+                                     join the shards of one sweep into the unsharded CSV;
+                                     refuses shards of other scenarios, grids or engines
   pulsewright report SCENARIO -o FILE.html
                                      write a self-contained HTML report for a customer
   pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
@@ -66,7 +70,7 @@ targets[1].range_m or targets[skiff].rcs_dbsm. PATH=VALUE sets a fixed
 value (receiver.window.kind=taylor), PATH=V1,V2 a list.
 
 Exit status: 0 success, 1 I/O or internal error, 2 invalid scenario or usage,
-3 sweep --fail-if-masked target never detected, 130 interrupted (the rows
+3 sweep or merge --fail-if-masked target never detected, 130 interrupted (the rows
 done are written).
 `
 
@@ -87,7 +91,7 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 	// and goes raw unless it lands on a terminal, and the progress bar
 	// writes to the raw standard error.
 	out := stdout
-	if cmd != "sweep" || isTerminal(stdout) {
+	if (cmd != "sweep" && cmd != "merge") || isTerminal(stdout) {
 		out = newTermSafe(stdout)
 	}
 	env := &env{ctx: ctx, stdin: stdin, stdout: out, stderr: newTermSafe(stderr), rawStderr: stderr}
@@ -101,6 +105,8 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.eval(args)
 	case "sweep":
 		err = env.sweep(args)
+	case "merge":
+		err = env.merge(args)
 	case "report":
 		err = env.report(args)
 	case "export":

@@ -52,6 +52,10 @@ func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport) {
 		if t.Detected {
 			verdict = "detected"
 		}
+		clutter := true
+		for _, c := range s.CPIs {
+			clutter = clutter && c.Targets[j].Status == scenarios.StatusClutter
+		}
 		pd, rng, rate := "—", "unresolved", "unresolved"
 		if t.Pd != nil {
 			pd = scenarios.PdText(*t.Pd)
@@ -63,6 +67,9 @@ func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport) {
 			rate = fx(*t.RangeRateMPS, 1)
 		} else if !doppler {
 			rate = "—" // no CPI measures Doppler
+		}
+		if clutter { // not a target: nothing to detect or unfold
+			verdict, rng, rate = "clutter", "—", "—"
 		}
 		row = append(row, fmt.Sprintf("%d/%d", t.DetectedIn, s.N), verdict, pd, rng, rate)
 		fmt.Fprintln(tw, strings.Join(row, "\t")+"\t")

@@ -1,7 +1,7 @@
 #!/usr/bin/python3
 """Independent check of PRF-schedule unfolding and M-of-N detection.
 
-Written from docs/detection.md §10 (not from the Go code): for random
+Written from docs/detection.md §11 (not from the Go code): for random
 schedules it computes
 
 * the unfolded ranges: the folds a_1 + i*R_1 of the first detecting CPI

@@ -305,7 +305,8 @@ function renderVerdicts(sr) {
   if (!sr) return;
   const head = [`PRF schedule · ${sr.n} CPIs · ${sr.m}-of-${sr.n}`];
   if (sr.unambiguous_range_m !== undefined) head.push(`unambiguous to ${num(sr.unambiguous_range_m / 1000, 1)} km`);
-  const rows = sr.targets.map((t) => {
+  const clutter = new Set((report.targets || []).filter((t) => t.status === 'clutter').map((t) => t.id));
+  const rows = sr.targets.filter((t) => !clutter.has(t.id)).map((t) => {
     const found = [];
     if (t.range_m !== undefined) found.push(`${num(t.range_m / 1000, 2)} km`);
     if (t.range_rate_mps !== undefined) found.push(`${num(t.range_rate_mps, 1)} m/s`);
@@ -323,7 +324,8 @@ function summary(sr) {
   const parts = [`${sr.n} CPIs, ${sr.m}-of-${sr.n}`];
   if (sr.unambiguous_range_m !== undefined) parts.push(`unambiguous to ${num(sr.unambiguous_range_m / 1000, 1)} km`);
   if (sr.first_blind_speed_mps !== undefined) parts.push(`first common blind speed ${num(sr.first_blind_speed_mps, 1)} m/s`);
-  const ts = sr.targets.map((t) => `${t.id} ${t.detected ? '✓' : '✗'} ${t.detected_in}/${sr.n}`);
+  const clutter = new Set(((report && report.targets) || []).filter((t) => t.status === 'clutter').map((t) => t.id));
+  const ts = sr.targets.filter((t) => !clutter.has(t.id)).map((t) => `${t.id} ${t.detected ? '✓' : '✗'} ${t.detected_in}/${sr.n}`);
   const el = $('#sched-sum');
   el.textContent = `${parts.join(' · ')} — ${ts.join(', ')}`;
   el.title = sr.targets.map((t) => `${t.id}: ${t.reason}`).join('\n');
