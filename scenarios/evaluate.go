@@ -277,6 +277,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 				m.warn("target %s at %s is outside the receive window %s–%s", g.t.ID, km(g.t.RangeM), km(m.s.Radar.WindowStartM), km(m.s.Radar.WindowStopM))
 			}
 		}
+		detectionRangeOf(g, v, &tr)
 		out[j] = tr
 	}
 	return out

@@ -84,6 +84,10 @@ type TargetReport struct {
 	// do not apply.
 	EclipsingLossDB *float64 `json:"eclipsing_loss_db,omitempty"` // point target partly inside a transmit interval
 	BandLossDB      *float64 `json:"band_loss_db,omitempty"`      // point target with |Doppler| ≥ fs/2: energy outside the receiver's band
+	// DetectionRangeM is the range at which the tested SNR falls to
+	// snr_required_db by the R⁴ law from the target's range (its RCS
+	// kept; docs/detection-probability.md §9). Added in version 2.
+	DetectionRangeM *float64 `json:"detection_range_m,omitempty"`
 	// Probability of detection (docs/detection-probability.md §6), point
 	// targets only; omitted where no closed form applies.
 	Pd            *float64 `json:"pd,omitempty"`              // in the scene, at the scenario's pfa

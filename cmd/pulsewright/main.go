@@ -49,6 +49,15 @@ Usage:
                  [--ref-range-m R --ref-snr-db S] [--csv] [--html FILE.html]
                                      Pd against SNR per pulse (or against range, R⁴ law,
                                      from a reference point) and the SNR a required Pd needs
+  pulsewright trials SCENARIO [-n 1000] [-j N] [--first I] [--format text|json|csv] [-o FILE]
+                     [--time-limit 10m]
+                                     Monte Carlo: N noisy realisations through the engine; each
+                                     target's empirical Pd (95 % interval) beside the analytic Pd,
+                                     and the false alarms counted against Pfa × cells
+  pulsewright coverage SCENARIO --target ID [--from M --to M] [--points 200] [--by range|snr]
+                     [--format table|csv|html] [-o FILE]
+                                     Pd curves of one target: against range (moved through the
+                                     window, RCS kept) and against SNR; its detection range
   pulsewright blindzones --pri T1,T2,… --tau S --carrier HZ [--pulses N1,N2,…] [--m M]
                      [--range MIN:MAX] [--rate V] [--cells 100x40] [--format table|csv|html] [-o FILE]
                                      map where a PRF schedule is blind (eclipsed or at a
@@ -71,7 +80,7 @@ value (receiver.window.kind=taylor), PATH=V1,V2 a list.
 
 Exit status: 0 success, 1 I/O or internal error, 2 invalid scenario or usage,
 3 sweep or merge --fail-if-masked target never detected, 130 interrupted (the rows
-done are written).
+or trials done are written).
 `
 
 func main() {
@@ -113,6 +122,10 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.export(args)
 	case "pd":
 		err = env.pd(args)
+	case "trials":
+		err = env.trials(args)
+	case "coverage":
+		err = env.coverage(args)
 	case "demos":
 		err = env.demos(args)
 	case "blindzones":
