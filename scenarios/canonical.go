@@ -91,6 +91,9 @@ func (s *Scenario) canonicalRadar() ordered {
 	o.put("beamwidth_az_deg", r.BeamwidthAzDeg, d.BeamwidthAzDeg)
 	o.put("beamwidth_el_deg", r.BeamwidthElDeg, d.BeamwidthElDeg)
 	o.put("antenna_height_m", r.AntennaHeightM, 0.0)
+	if r.Schedule != nil {
+		o = append(o, member{"schedule", canonicalSchedule(r)})
+	}
 	return o
 }
 

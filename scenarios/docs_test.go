@@ -143,6 +143,8 @@ func TestScenarioFormatDocumentsEveryField(t *testing.T) {
 	sameSet(t, "radar", firstNames(t, table("fields: radar")), radarFields)
 	sameSet(t, "receiver", firstNames(t, table("fields: receiver")), receiverFields)
 	sameSet(t, "receiver.taps", firstNames(t, table("fields: taps")), tapsFields)
+	sameSet(t, "radar.schedule", firstNames(t, table("fields: schedule")), scheduleFields)
+	sameSet(t, "radar.schedule.cpis", firstNames(t, table("fields: cpi")), cpiFields)
 
 	kinds := []struct {
 		name   string
@@ -199,6 +201,10 @@ func TestReportFormatDocumentsEveryField(t *testing.T) {
 		{"report: waveform", reflect.TypeFor[WaveformReport]()},
 		{"report: target", reflect.TypeFor[TargetReport]()},
 		{"report: engine", reflect.TypeFor[EngineInfo]()},
+		{"report: schedule", reflect.TypeFor[ScheduleReport]()},
+		{"report: cpi", reflect.TypeFor[CPIReport]()},
+		{"report: cpitarget", reflect.TypeFor[CPITarget]()},
+		{"report: scheduletarget", reflect.TypeFor[ScheduleTarget]()},
 		{"report: false_alarms", reflect.TypeFor[FalseAlarms]()},
 		{"report: clutter", reflect.TypeFor[ClutterSummary]()},
 		{"report: breakthrough", reflect.TypeFor[Breakthrough]()},

@@ -90,6 +90,11 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	}
 	res.Report.FalseAlarms, res.Report.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	res.Report.Warnings = append([]string{}, m.warnings...)
+	if s.Radar.Schedule != nil {
+		if res.Report.Schedule, err = evalSchedule(ctx, s, m); err != nil {
+			return nil, err
+		}
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -118,6 +123,11 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	rep.Targets = sc.targetReports(ctx, m, false)
 	rep.FalseAlarms, rep.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	rep.Warnings = append([]string{}, m.warnings...)
+	if s.Radar.Schedule != nil {
+		if rep.Schedule, err = evalSchedule(ctx, s, m); err != nil {
+			return nil, err
+		}
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -188,6 +198,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		cf2 = sc.train.cfar()
 		budget = 0 // changes are verified on single pulses only
 	}
+	schedBudget := scheduleBudget(m)
 	out := make([]TargetReport, len(sc.targets))
 	sc.clutter = sc.analyseClutter(cf, cf2)
 	for j, g := range sc.targets {
@@ -242,8 +253,15 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		if sc.train != nil {
 			sc.train.report(j, v, single, bin, &tr)
 		}
+		hinted := false
 		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && v.status != StatusFolded && v.status != StatusClutter && budget > 0 && ctx.Err() == nil {
 			if hint := suggestFix(ctx, m, j, v, &budget); hint != "" {
+				tr.Reason += " " + hint
+				hinted = true
+			}
+		}
+		if cause := sc.scheduleCause(j, &tr); suggest && !hinted && cause != "" && schedBudget > 0 && ctx.Err() == nil {
+			if hint := suggestSchedule(ctx, m, sc, j, cause, &schedBudget); hint != "" {
 				tr.Reason += " " + hint
 			}
 		}

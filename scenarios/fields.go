@@ -18,7 +18,7 @@ var (
 	sweeps        = []string{"up", "down"}
 
 	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "view"}
-	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg", "antenna_height_m"}
+	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg", "antenna_height_m", "schedule"}
 	receiverFields = []string{"filter", "filter_length_factor", "taps", "window", "detector", "doppler_window", "mti"}
 	mtis           = []string{MTINone, MTITwoPulse, MTIThreePulse}
 )
@@ -83,6 +83,9 @@ func (o *object) decodeRadar(r *Radar) {
 	o.float("beamwidth_el_deg", &r.BeamwidthElDeg)
 	if o.float("antenna_height_m", &r.AntennaHeightM) && r.AntennaHeightM == 0 {
 		o.errs.add(o.sub("antenna_height_m"), "0 is not valid: must be above 0 m, at most 100000 m (leave it out for no surface geometry)")
+	}
+	if c, ok := o.child("schedule"); ok {
+		c.decodeSchedule(r)
 	}
 	o.finish(radarFields...)
 }

@@ -26,6 +26,9 @@ type Report struct {
 	Waveform WaveformReport `json:"waveform"`
 	Targets  []TargetReport `json:"targets"`
 	Warnings []string       `json:"warnings"`
+	// Schedule is the evaluation of every CPI of radar.schedule and their
+	// M-of-N combination; nil without a schedule.
+	Schedule *ScheduleReport `json:"schedule,omitempty"`
 	// The detector's false-alarm rate and the scene's clutter (clutter.go).
 	FalseAlarms *FalseAlarms    `json:"false_alarms,omitempty"`
 	Clutter     *ClutterSummary `json:"clutter,omitempty"`
@@ -102,6 +105,11 @@ type TargetReport struct {
 type Result struct {
 	Report Report
 	Series Series
+	// CPISeries holds, when ScheduleMaps filled it in, the plot series of
+	// every CPI of radar.schedule of more than one pulse (its
+	// range–Doppler map), nil for the others; index 0 is the first CPI,
+	// whose series are Series.
+	CPISeries []*Series
 }
 
 // Series are the plot data of one evaluation over the receive window, one

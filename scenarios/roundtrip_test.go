@@ -104,6 +104,18 @@ func randomScenario(r *rand.Rand) *Scenario {
 			s.Receiver.Detector.DopplerTrainingCells = 2 * r.IntN(5)
 		}
 	}
+	if r.IntN(4) == 0 {
+		sc := &Schedule{}
+		for range 1 + r.IntN(3) {
+			c := CPI{PRIS: s.Radar.PRIS * u(0.8, 1.3), Pulses: s.Radar.Pulses}
+			if r.IntN(2) == 0 {
+				c.Pulses += r.IntN(3)
+			}
+			sc.CPIs = append(sc.CPIs, c)
+		}
+		sc.M = 1 + r.IntN(sc.N())
+		s.Radar.Schedule = sc
+	}
 	for i := range r.IntN(6) {
 		t := Target{ID: "t" + string(rune('a'+i)), Kind: pick(targetKinds), RangeRateMPS: math.Round(u(-300, 300))}
 		switch t.Kind {

@@ -73,6 +73,9 @@ type Radar struct {
 	// AntennaHeightM is the antenna's height above the surface, m; 0 when
 	// absent (no surface geometry: no grazing angle, no horizon).
 	AntennaHeightM float64 `json:"antenna_height_m,omitempty"`
+	// Schedule holds the CPIs after this one (a PRF schedule, added in
+	// format version 2); nil for a single CPI.
+	Schedule *Schedule `json:"schedule,omitempty"`
 }
 
 // Waveform kinds.

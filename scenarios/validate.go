@@ -83,6 +83,7 @@ func (s *Scenario) validate(errs *errList) {
 	}
 	waveOK := s.validateWaveform(c)
 	s.validateRadar(c, waveOK)
+	s.validateSchedule(c, waveOK)
 	s.validateReceiver(c)
 	s.validateTaps(c)
 	s.validateTargets(c)

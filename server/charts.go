@@ -239,6 +239,9 @@ type view struct {
 	cell   *cell       // the map cell to cut through; nil: none
 	// mapWidth is the range–Doppler map's width, px; 0: a third of width.
 	mapWidth int
+	// cpiMaps: the page shows a PRF schedule's CPI maps, so frames carry
+	// them (they cost a pulse-train simulation per CPI).
+	cpiMaps bool
 }
 
 // windowGrid is the range axis of a result's series.

@@ -40,6 +40,8 @@ type evalCache struct {
 
 	statics map[string]chartOut // the last static chart of each name
 	version int                 // counts static chart versions
+
+	mapsOf *scenarios.Result // the result whose CPISeries ScheduleMaps filled in
 }
 
 // compute evaluates the newest state the reader posted and puts its frame
@@ -184,7 +186,10 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 	if err := ss.ambiguity(ctx, c); err != nil {
 		return nil, err
 	}
-	f := &frame{id: w.id, report: c.report, link: c.link, charts: c.settle(buildCharts(c.res, c.pinRes, w.view))}
+	if err := ss.scheduleMaps(ctx, w, c); err != nil {
+		return nil, err
+	}
+	f := &frame{id: w.id, report: c.report, link: c.link, charts: c.settle(append(buildCharts(c.res, c.pinRes, w.view), scheduleCharts(c.scn, c.res, w.view)...))}
 	if err := ss.wavePlots(ctx, c); err != nil {
 		return nil, err
 	}
@@ -195,6 +200,24 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 	}
 	f.computeMS = math.Round(float64(time.Since(start).Microseconds())/10) / 100
 	return f, nil
+}
+
+// scheduleMaps simulates the CPI maps of the last good scenario's PRF
+// schedule when the page shows them and its result lacks them, within the
+// memory the scenario's cost estimate reserves for them.
+func (ss *session) scheduleMaps(ctx context.Context, w want, c *evalCache) error {
+	if !w.view.cpiMaps || c.scn == nil || c.scn.Radar.Schedule == nil || c.res == nil || c.mapsOf == c.res {
+		return nil
+	}
+	res := c.res
+	_, err := ss.srv.admitted(ctx, c.scn, true, func(ctx context.Context, s *scenarios.Scenario) (*scenarios.Result, error) {
+		return res, scenarios.ScheduleMaps(ctx, s, res)
+	})
+	if err != nil {
+		return &editError{id: w.scn.id, err: err}
+	}
+	c.mapsOf = res
+	return nil
 }
 
 // settle gives each static chart a key that names its data: the previous

@@ -1,6 +1,7 @@
 package main
 
 import (
+	"flag"
 	"fmt"
 	"io"
 	"strconv"
@@ -29,8 +30,8 @@ func (e *env) blindzones(args []string) error {
 	if err != nil {
 		return err
 	}
-	if len(pos) > 0 {
-		return usageError{fmt.Sprintf("blindzones takes no positional argument (got %q); the schedule is given with --pri and --pulses", pos[0])}
+	if len(pos) > 1 {
+		return usageError{fmt.Sprintf("blindzones takes at most one SCENARIO, got %d arguments", len(pos))}
 	}
 	if *format != "table" && *format != "csv" && *format != "html" {
 		return usageError{fmt.Sprintf("--format %q is not table, csv or html", *format)}
@@ -47,18 +48,39 @@ func (e *env) blindzones(args []string) error {
 		}
 		spec.RateMaxMPS = v
 	}
-	if spec.PRIs, err = floatList("--pri", *pri); err != nil {
-		return err
-	}
-	p, err := floatList("--pulses", *pulses)
-	if err != nil {
-		return err
-	}
-	for _, v := range p {
-		if v != float64(int(v)) {
-			return usageError{fmt.Sprintf("--pulses: %g is not a whole number", v)}
+	if len(pos) == 1 {
+		// The scenario's schedule (or its one CPI), pulse and carrier.
+		for _, f := range []string{"pri", "pulses", "tau", "carrier", "m"} {
+			if set(fs, f) {
+				return usageError{fmt.Sprintf("--%s is taken from the scenario %s; give a scenario or the schedule's flags, not both", f, pos[0])}
+			}
 		}
-		spec.Pulses = append(spec.Pulses, int(v))
+		s, err := e.loadScenario(pos[0])
+		if err != nil {
+			return err
+		}
+		spec.PulseS, spec.CarrierHz = s.Waveform.PulseWidth(), s.Radar.CarrierHz
+		spec.PRIs, spec.Pulses = []float64{s.Radar.PRIS}, []int{s.Radar.Pulses}
+		if sc := s.Radar.Schedule; sc != nil {
+			for _, c := range sc.CPIs {
+				spec.PRIs, spec.Pulses = append(spec.PRIs, c.PRIS), append(spec.Pulses, c.Pulses)
+			}
+			spec.M = sc.M
+		}
+	} else {
+		if spec.PRIs, err = floatList("--pri", *pri); err != nil {
+			return err
+		}
+		p, err := floatList("--pulses", *pulses)
+		if err != nil {
+			return err
+		}
+		for _, v := range p {
+			if v != float64(int(v)) {
+				return usageError{fmt.Sprintf("--pulses: %g is not a whole number", v)}
+			}
+			spec.Pulses = append(spec.Pulses, int(v))
+		}
 	}
 	if _, err := fmt.Sscanf(*cells, "%dx%d", &spec.RangeCells, &spec.RateCells); err != nil {
 		return usageError{fmt.Sprintf("--cells %q is not RANGExRATE (100x40)", *cells)}
@@ -117,4 +139,11 @@ func floatList(flag, s string) ([]float64, error) {
 		out = append(out, v)
 	}
 	return out, nil
+}
+
+// set reports whether flag name was given on the command line.
+func set(fs *flag.FlagSet, name string) bool {
+	found := false
+	fs.Visit(func(f *flag.Flag) { found = found || f.Name == name })
+	return found
 }

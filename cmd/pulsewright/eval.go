@@ -109,6 +109,10 @@ func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units) erro
 	for _, warn := range r.Warnings {
 		fmt.Fprintf(w, "warning: %s\n", u.Restate(warn))
 	}
+	if r.Schedule != nil {
+		fmt.Fprintln(w)
+		writeScheduleText(w, r.Schedule)
+	}
 	eng := scenarios.RunningEngine()
 	if r.Engine != nil {
 		eng = *r.Engine

@@ -80,6 +80,7 @@ export class Plots {
     this.drawnAt = {}; // chart name → when it was last drawn (performance.now)
     this.timers = {}; // chart name → timer that draws what it holds back
     this.cats = {}; // heat map name → {x, y}: the cell centres of its category axes
+    this.decorators = {}; // chart name → fn(option): tooltips of charts added by other modules (schedule.js)
     this.train = false;
 
     // Echo and profile share the range axis: zooming one zooms the other.
@@ -181,6 +182,7 @@ export class Plots {
   }
 
   hidden(name) {
+    if (!this.els[name]) return true; // a pane without a chart of that name (the CPI maps)
     const pane = this.els[name].closest('.pane');
     return !!pane && !pane.classList.contains('on');
   }
@@ -238,6 +240,7 @@ export class Plots {
   // Tooltips of the heat maps, made here (the page runs under a strict
   // CSP, so options carry no functions).
   decorate(name, option) {
+    if (this.decorators[name]) return this.decorators[name](option);
     if (name !== 'rdmap' && name !== 'ambiguity') return;
     const x = option.xAxis && option.xAxis[0] && option.xAxis[0].data;
     const y = option.yAxis && option.yAxis[0] && option.yAxis[0].data;

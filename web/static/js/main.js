@@ -82,7 +82,10 @@ const plots = new Plots({
 });
 const focusUI = initFocus({ plots, frame: () => lastFrame });
 const pdCurves = initPdCurves({ plots, scenario: () => store.scenario });
-window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, focus: focusUI.focus };
+// Modules that add panels of their own (schedule.js) see each frame
+// before the plots apply it.
+const frameHooks = [];
+window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, focus: focusUI.focus, onFrame: (fn) => frameHooks.push(fn) };
 
 store.onChange((s, cause) => {
   editor.render(s);
@@ -156,6 +159,7 @@ function applyFrame() {
   if (shows !== null) shownVersion = shows;
   const t0 = performance.now();
   lastApplyAt = t0;
+  for (const fn of frameHooks) fn(f);
   plots.apply(f);
   focusUI.refresh();
   pdCurves.refresh(f);
