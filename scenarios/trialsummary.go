@@ -74,40 +74,56 @@ type TrialFalseAlarms struct {
 func (t *Trials) Summarise(c TrialCounts, requested int) TrialSummary {
 	d := t.s.Receiver.Detector
 	s := TrialSummary{
-		Scenario: t.s.Name, Seed: t.s.Seed, FirstTrial: c.First, Trials: c.Trials, Requested: requested,
-		Complete: c.Trials >= requested, Interval: "clopper-pearson", Confidence: TrialConfidence,
-		Pfa: d.PFA, PdRequired: d.PdRequired, Counts: c, RandomPhase: t.randomPhase,
+		Scenario: t.s.Name, Seed: t.s.Seed, Interval: "clopper-pearson", Confidence: TrialConfidence,
+		Pfa: d.PFA, PdRequired: d.PdRequired, RandomPhase: t.randomPhase,
 	}
 	if b, err := Canonical(t.s); err == nil {
 		s.ScenarioHash = fmt.Sprintf("sha256:%x", sha256.Sum256(b))
 	}
 	for j, r := range t.report.Targets {
 		tt := TrialTarget{ID: r.ID, Status: r.Status, PdAnalytic: r.Pd}
-		if j < len(c.Detections) {
-			tt.Detections = c.Detections[j]
-		}
 		if rm, ok := t.TestedGate(j); ok {
 			tt.TestedM = &rm
 			if db, ok := t.TestedSNRDB(j); ok && !math.IsInf(db, 0) {
 				tt.TestedSNR = &db
 			}
-			if c.Trials > 0 {
-				p := float64(tt.Detections) / float64(c.Trials)
-				lo, hi := dsp.ClopperPearson(tt.Detections, int64(c.Trials), TrialConfidence)
-				tt.Pd, tt.PdLow, tt.PdHigh = &p, &lo, &hi
-				if r.Pd != nil {
-					in := *r.Pd >= lo && *r.Pd <= hi
-					tt.Inside = &in
-				}
-			}
 		}
 		s.Targets = append(s.Targets, tt)
 	}
-	fa := TrialFalseAlarms{Count: c.FalseAlarms, Cells: c.NoiseCells, Expected: d.PFA * float64(c.NoiseCells)}
+	return s.WithCounts(c, requested)
+}
+
+// WithCounts returns the summary s with its counts replaced by c (a run
+// of requested trials): the trial range, each target's detections, Pd
+// and interval, and the false alarms are recomputed from c; what the
+// scenario alone decides (statuses, tested cells, analytic Pd, Pfa) is
+// kept. merge sums the counts of a run's shards and calls it on one
+// shard's summary, so the intervals come from the summed counts.
+func (s TrialSummary) WithCounts(c TrialCounts, requested int) TrialSummary {
+	s.FirstTrial, s.Trials, s.Requested, s.Complete, s.Counts = c.First, c.Trials, requested, c.Trials >= requested, c
+	targets := make([]TrialTarget, len(s.Targets))
+	for j, tt := range s.Targets {
+		tt.Detections, tt.Pd, tt.PdLow, tt.PdHigh, tt.Inside = 0, nil, nil, nil, nil
+		if j < len(c.Detections) {
+			tt.Detections = c.Detections[j]
+		}
+		if tt.TestedM != nil && c.Trials > 0 {
+			p := float64(tt.Detections) / float64(c.Trials)
+			lo, hi := dsp.ClopperPearson(tt.Detections, int64(c.Trials), TrialConfidence)
+			tt.Pd, tt.PdLow, tt.PdHigh = &p, &lo, &hi
+			if tt.PdAnalytic != nil {
+				in := *tt.PdAnalytic >= lo && *tt.PdAnalytic <= hi
+				tt.Inside = &in
+			}
+		}
+		targets[j] = tt
+	}
+	s.Targets = targets
+	fa := TrialFalseAlarms{Count: c.FalseAlarms, Cells: c.NoiseCells, Expected: s.Pfa * float64(c.NoiseCells)}
 	if c.NoiseCells > 0 {
 		r := float64(c.FalseAlarms) / float64(c.NoiseCells)
 		lo, hi := dsp.ClopperPearson(c.FalseAlarms, c.NoiseCells, TrialConfidence)
-		in := d.PFA >= lo && d.PFA <= hi
+		in := s.Pfa >= lo && s.Pfa <= hi
 		fa.Rate, fa.RateLow, fa.RateHigh, fa.Inside = &r, &lo, &hi, &in
 	}
 	if math.IsInf(fa.Expected, 0) || math.IsNaN(fa.Expected) {

@@ -37,9 +37,10 @@ Usage:
                      [--html FILE.html] [--fail-if-masked ID] [--jobs N]
                      [--shard K/N]   evaluate a grid of variants; one CSV row per point
                                      (--shard: only points i with i mod N = K, for merge)
-  pulsewright merge SHARD.csv… [--out FILE.csv] [--fail-if-masked ID]
-                                     join the shards of one sweep into the unsharded CSV;
-                                     refuses shards of other scenarios, grids or engines
+  pulsewright merge SHARD.csv… [--out FILE.csv] [--fail-if-masked ID] [--format F]
+                                     join the shards of one sweep (or trials run) into the
+                                     unsharded output; refuses shards of other scenarios,
+                                     grids or engines
   pulsewright report SCENARIO -o FILE.html
                                      write a self-contained HTML report for a customer
   pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
@@ -49,7 +50,7 @@ Usage:
                  [--ref-range-m R --ref-snr-db S] [--csv] [--html FILE.html]
                                      Pd against SNR per pulse (or against range, R⁴ law,
                                      from a reference point) and the SNR a required Pd needs
-  pulsewright trials SCENARIO [-n 1000] [-j N] [--first I] [--format text|json|csv] [-o FILE]
+  pulsewright trials SCENARIO [-n 1000] [-j N] [--first I] [--format text|json|csv] [-o FILE] [--shard K/N]
                      [--time-limit 10m]
                                      Monte Carlo: N noisy realisations through the engine; each
                                      target's empirical Pd (95 % interval) beside the analytic Pd,

@@ -3,6 +3,7 @@ package main
 import (
 	"bytes"
 	"encoding/csv"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
@@ -22,6 +23,7 @@ func (e *env) merge(args []string) error {
 	fs := newFlags("merge", e)
 	out := fs.String("out", "", "write the merged output to this file instead of standard output")
 	failIf := fs.String("fail-if-masked", "", "sweep: exit 3 when the target with this id is detected at no point of the merged grid")
+	format := fs.String("format", "text", "trials: output format, text, json or csv")
 	pos, err := parseFlags(fs, args)
 	if err != nil {
 		return err
@@ -59,8 +61,13 @@ func (e *env) merge(args []string) error {
 	switch cmd := files[0].part.Stamp.Command; cmd {
 	case "sweep":
 		return e.mergeSweep(files, *out, *failIf)
+	case "trials":
+		if *format != "text" && *format != "json" && *format != "csv" {
+			return usageError{fmt.Sprintf("--format %q is not text, json or csv", *format)}
+		}
+		return e.mergeTrials(files, *out, *format)
 	default:
-		return fmt.Errorf("merge: %s is a shard of %q, which merge does not know (it joins sweep shards): %w", files[0].part.Name, cmd, scenarios.ErrInvalid)
+		return fmt.Errorf("merge: %s is a shard of %q, which merge does not know (it joins sweep and trials shards): %w", files[0].part.Name, cmd, scenarios.ErrInvalid)
 	}
 }
 
@@ -244,6 +251,49 @@ func (e *env) mergeSweep(files []shardFile, out, failIf string) error {
 	}
 	if failIf != "" && !detected {
 		return statusError{exitMasked, fmt.Sprintf("target %s is not detected at any of the %d points", failIf, st.Total)}
+	}
+	return nil
+}
+
+// mergeTrials sums the counts of trials shards (blocks of consecutive
+// trials, scenarios.Shard.Block) and writes the summary of the whole run,
+// its intervals recomputed from the summed counts: what trials -n TOTAL
+// writes in that format.
+func (e *env) mergeTrials(files []shardFile, out, format string) error {
+	sums := make([]scenarios.TrialSummary, len(files))
+	parts := make([]scenarios.ShardPart, len(files))
+	for i, f := range files {
+		dec := json.NewDecoder(bytes.NewReader(f.body))
+		dec.DisallowUnknownFields()
+		if err := dec.Decode(&sums[i]); err != nil {
+			return fmt.Errorf("merge: %s: the trials summary after the shard line: %v (a damaged shard: re-run it): %w", f.part.Name, err, scenarios.ErrInvalid)
+		}
+		parts[i] = f.part
+		parts[i].Done = sums[i].Counts.Trials
+	}
+	ordered, err := scenarios.CheckShards(parts, scenarios.Shard.BlockLen)
+	if err != nil {
+		return err
+	}
+	byName := map[string]int{}
+	for i, f := range files {
+		byName[f.part.Name] = i
+	}
+	var total scenarios.TrialCounts
+	total.Detections = make([]int64, len(sums[0].Counts.Detections))
+	for _, p := range ordered {
+		if err := total.Add(sums[byName[p.Name]].Counts); err != nil {
+			return fmt.Errorf("merge: %s: %v: %w", p.Name, err, scenarios.ErrInvalid)
+		}
+	}
+	sum := sums[byName[ordered[0].Name]].WithCounts(total, ordered[0].Stamp.Total)
+	write := func(w io.Writer) error { return writeTrials(w, format, sum) }
+	if out == "" {
+		if err := write(e.stdout); err != nil {
+			return fmt.Errorf("merge: %w", err)
+		}
+	} else if err := writeFile(out, write); err != nil {
+		return fmt.Errorf("merge: %w", err)
 	}
 	return nil
 }

@@ -29,6 +29,8 @@ func (e *env) trials(args []string) error {
 	fs.IntVar(&jobs, "jobs", 0, "same as -j")
 	format := fs.String("format", "text", "output format: text, json or csv")
 	out := fs.String("o", "", "write to this file instead of standard output")
+	fs.StringVar(out, "out", "", "same as -o")
+	shardFlag := fs.String("shard", "", "K/N: run only block K of N of the trials (a shard file for merge)")
 	randomPhase := fs.Bool("random-phase", false, "draw each point echo's carrier phase per trial (single pulses): echoes sharing a cell add with a random relative phase")
 	limit := fs.Duration("time-limit", 0, "stop after this long (e.g. 90s, 10m) and write the trials done; 0: no limit")
 	pos, err := parseFlags(fs, args)
@@ -46,6 +48,16 @@ func (e *env) trials(args []string) error {
 		return usageError{fmt.Sprintf("--format %q is not text, json or csv", *format)}
 	case *limit < 0 || *limit > maxTrialTime:
 		return usageError{fmt.Sprintf("--time-limit %v out of range: want 0 (none) … %v", *limit, maxTrialTime)}
+	}
+	shard := scenarios.Whole
+	sharded := *shardFlag != ""
+	if sharded {
+		if shard, err = scenarios.ParseShard("--shard", *shardFlag); err != nil {
+			return err
+		}
+		if *format != "text" {
+			return usageError{"--format and --shard: a shard writes the file merge reads; give --format to merge"}
+		}
 	}
 	if len(pos) == 1 {
 		if err := checkOutputs(pos[0], map[string]string{"-o": *out}); err != nil {
@@ -76,15 +88,18 @@ func (e *env) trials(args []string) error {
 		ctx, cancel = context.WithTimeout(ctx, *limit)
 		defer cancel()
 	}
-	bar := newProgress(e.rawStderr, *n)
+	// A shard runs its block of the trials; trial i's seed depends on i
+	// alone, so the shards' counts add up to the unsharded run's.
+	bf, bn := shard.Block(*n)
+	bar := newProgress(e.rawStderr, bn)
 	start := time.Now()
-	counts, runErr := t.Run(ctx, *first, *n, jobs, func(int) { bar.step() })
+	counts, runErr := t.Run(ctx, *first+bf, bn, jobs, func(int) { bar.step() })
 	elapsed := time.Since(start)
 	bar.done()
 	if runErr != nil && !errors.Is(runErr, context.Canceled) && !errors.Is(runErr, context.DeadlineExceeded) {
 		return runErr
 	}
-	sum := t.Summarise(counts, *n)
+	sum := t.Summarise(counts, bn)
 	eng := scenarios.RunningEngine()
 	sum.Engine = &eng
 	if counts.Trials > 0 {
@@ -92,15 +107,10 @@ func (e *env) trials(args []string) error {
 			counts.Trials, elapsed.Seconds(), float64(counts.Trials)/elapsed.Seconds(), jobs)
 	}
 	write := func(w io.Writer) error {
-		switch *format {
-		case "json":
-			enc := json.NewEncoder(w)
-			enc.SetIndent("", "  ")
-			return enc.Encode(sum)
-		case "csv":
-			return writeTrialsCSV(w, sum)
+		if sharded {
+			return writeTrialsShard(w, s, *first, *n, shard, sum)
 		}
-		return writeTrialsText(w, sum)
+		return writeTrials(w, *format, sum)
 	}
 	if *out != "" {
 		if err := writeFile(*out, write); err != nil {
@@ -109,9 +119,9 @@ func (e *env) trials(args []string) error {
 	} else if err := write(e.stdout); err != nil {
 		return err
 	}
-	done := fmt.Sprintf("%d of %d trials (trials %d … %d) written", counts.Trials, *n, counts.First, counts.First+counts.Trials-1)
+	done := fmt.Sprintf("%d of %d trials (trials %d … %d) written", counts.Trials, bn, counts.First, counts.First+counts.Trials-1)
 	if counts.Trials == 0 {
-		done = fmt.Sprintf("none of %d trials done; nothing counted", *n)
+		done = fmt.Sprintf("none of %d trials done; nothing counted", bn)
 	}
 	switch {
 	case e.ctx.Err() != nil:
@@ -212,3 +222,42 @@ func writeTrialsCSV(w io.Writer, s scenarios.TrialSummary) error {
 // prob prints a probability to four decimals: the resolution of a few
 // thousand trials.
 func prob(p float64) string { return strconv.FormatFloat(p, 'f', 4, 64) }
+
+// trialsStamp identifies shard sh of n trials from first of scenario s
+// (with or without --random-phase, which changes every trial).
+func trialsStamp(s *scenarios.Scenario, first, n int, randomPhase bool, sh scenarios.Shard) (scenarios.ShardStamp, error) {
+	h, err := scenarios.ScenarioHash(s)
+	if err != nil {
+		return scenarios.ShardStamp{}, err
+	}
+	run, _ := json.Marshal(map[string]any{"first_trial": first, "trials": n, "random_phase": randomPhase})
+	return scenarios.ShardStamp{Shard: sh, Command: "trials", Total: n, Unit: "trials", Scenario: h, Grid: scenarios.Hash(run), Build: buildHash()}, nil
+}
+
+// writeTrialsShard writes a trials shard file: the engine line, the shard
+// line, then the shard's summary as JSON (its counts are what merge sums).
+func writeTrialsShard(w io.Writer, s *scenarios.Scenario, first, n int, sh scenarios.Shard, sum scenarios.TrialSummary) error {
+	st, err := trialsStamp(s, first, n, sum.RandomPhase, sh)
+	if err != nil {
+		return err
+	}
+	if _, err := io.WriteString(w, scenarios.CSVComment()+st.Line()); err != nil {
+		return err
+	}
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	return enc.Encode(sum)
+}
+
+// writeTrials writes a summary in a format of trials --format.
+func writeTrials(w io.Writer, format string, sum scenarios.TrialSummary) error {
+	switch format {
+	case "json":
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", "  ")
+		return enc.Encode(sum)
+	case "csv":
+		return writeTrialsCSV(w, sum)
+	}
+	return writeTrialsText(w, sum)
+}
