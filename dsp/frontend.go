@@ -129,32 +129,47 @@ func (p PhaseNoise) EchoBand(f1, f2, T float64) float64 {
 	return sum + acc*h/3
 }
 
-// PhaseNoiseProcess fills dst with one realisation of a real stationary
-// Gaussian phase process (rad) sampled at fs (Hz), whose two-sided
-// spectrum is given by band(f1, f2), the power (rad²) of one side's
-// offsets f1 … f2: bin k of a len(dst)-point DFT (spacing fs/len(dst))
-// gets the variance band assigns to its width on its side, and bin 0 the
-// band within half a bin of zero on both sides. The process is periodic
-// over len(dst) samples. len(dst) must be a size the package's FFT takes
-// (factors 2, 3, 5); draws come from rng. It returns dst.
-func PhaseNoiseProcess(dst []float64, fs float64, band func(f1, f2 float64) float64, rng *rand.Rand) []float64 {
+// PhaseNoiseBins returns the variance (rad²) of each bin of an n-point
+// DFT at sample rate fs (Hz) for a real stationary phase process whose
+// two-sided spectrum is given by band(f1, f2), the power (rad²) of one
+// side's offsets f1 … f2 (Hz): bin k (0 < k < n/2, spacing fs/n) gets the
+// power of its width on its side, bin 0 the power within half a bin of
+// zero on both sides, and bin n/2 (n even) half a bin on each side. Bins
+// above n/2 mirror those below. The result feeds PhaseNoiseDraw.
+func PhaseNoiseBins(n int, fs float64, band func(f1, f2 float64) float64) []float64 {
+	v := make([]float64, n/2+1)
+	df := fs / float64(n)
+	for k := range v {
+		switch {
+		case k == 0:
+			v[k] = 2 * band(0, df/2)
+		case 2*k == n:
+			v[k] = 2 * band((float64(k)-0.5)*df, float64(k)*df)
+		default:
+			v[k] = band((float64(k)-0.5)*df, (float64(k)+0.5)*df)
+		}
+	}
+	return v
+}
+
+// PhaseNoiseDraw fills dst with one realisation (rad) of the real
+// Gaussian process whose per-bin variances PhaseNoiseBins gave for
+// n = len(dst): a Hermitian spectrum of independent Gaussian bins with
+// those variances, inverse transformed, so the realisation is periodic
+// over len(dst) samples and its variance is the bins' total. len(dst)
+// must have no prime factor but 2, 3 and 5 and match bins
+// (len(bins) = len(dst)/2 + 1); it panics otherwise. Draws come from rng.
+// It returns dst.
+func PhaseNoiseDraw(dst, bins []float64, rng *rand.Rand) []float64 {
 	n := len(dst)
 	if n == 0 {
 		return dst
 	}
-	df := fs / float64(n)
+	if len(bins) != n/2+1 {
+		panic("dsp: PhaseNoiseDraw bins length mismatch")
+	}
 	spec := make([]complex128, n)
-	// Hermitian spectrum: X[k] and X[n−k] conjugate, so the inverse is real.
-	for k := 0; k <= n/2; k++ {
-		var v float64
-		switch {
-		case k == 0:
-			v = 2 * band(0, df/2)
-		case 2*k == n:
-			v = 2 * band((float64(k)-0.5)*df, float64(k)*df)
-		default:
-			v = band((float64(k)-0.5)*df, (float64(k)+0.5)*df)
-		}
+	for k, v := range bins {
 		if !(v > 0) {
 			continue
 		}
@@ -162,18 +177,23 @@ func PhaseNoiseProcess(dst []float64, fs float64, band func(f1, f2 float64) floa
 			spec[k] = complex(math.Sqrt(v)*rng.NormFloat64(), 0)
 			continue
 		}
-		// A real sequence with E|x|² per bin pair v on each side.
+		// Bins k and n−k conjugate, so the inverse is real; the pair
+		// carries variance 2·v, v on each side.
 		z := complex(rng.NormFloat64(), rng.NormFloat64()) * complex(math.Sqrt(v/2), 0)
 		spec[k] = z
 		spec[n-k] = complex(real(z), -imag(z))
 	}
-	// x[i] = Σ_k X[k]·exp(+j2πki/n): each bin contributes variance v.
+	// x[i] = Σ_k X[k]·exp(+j2πki/n).
 	newFFTPlan(n).inverse(spec, make([]complex128, n))
 	for i := range dst {
 		dst[i] = real(spec[i])
 	}
 	return dst
 }
+
+// FFTLen returns the smallest length ≥ n whose prime factors are 2, 3
+// and 5: a length PhaseNoiseDraw and the correlators take.
+func FFTLen(n int) int { return fftSize(n) }
 
 // ADC is an analog-to-digital converter on both I and Q: Bits bits per
 // channel over ±FullScale (the amplitude a full-scale tone reaches on each

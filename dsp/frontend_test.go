@@ -101,12 +101,12 @@ func TestPhaseNoiseProcessVariance(t *testing.T) {
 	g := readFrontendGolden(t)
 	p := PhaseNoise{OffsetHz: g.Profile.OffsetHz, DBcHz: g.Profile.DBcHz}
 	const n, fs, recs = 4096, 20e6, 400
-	band := func(f1, f2 float64) float64 { return p.Integral(f1, f2) }
+	bins := PhaseNoiseBins(n, fs, p.Integral)
 	rng := rand.New(rand.NewPCG(1, 1))
 	x := make([]float64, n)
 	var v float64
 	for range recs {
-		PhaseNoiseProcess(x, fs, band, rng)
+		PhaseNoiseDraw(x, bins, rng)
 		for _, s := range x {
 			v += s * s
 		}

@@ -69,6 +69,9 @@ func (s *Scenario) canonical() ordered {
 		}
 		o = append(o, member{"targets", ts})
 	}
+	if f := canonicalFrontEnd(s.FrontEnd); len(f) > 0 {
+		o = append(o, member{"front_end", f})
+	}
 	if len(s.View) > 0 {
 		o = append(o, member{"view", s.View})
 	}

@@ -80,6 +80,9 @@ func decodeWith(data []byte, upgrades map[int]upgrade) (*Scenario, error) {
 		o.decodeReceiver(&s.Receiver)
 	}
 	top.targets(&s.Targets)
+	if o, ok := top.child("front_end"); ok {
+		o.decodeFrontEnd(&s.FrontEnd)
+	}
 	top.view(&s.View)
 	top.finish(topFields...)
 	s.fillDerived(&errs)

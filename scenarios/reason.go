@@ -78,6 +78,13 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		by = other.t.ID
 	}
 	clear := dsp.DB(v.peak / v.noiseLevel)
+	if v.cause != "" {
+		return sc.impairmentReason(g, v, det) + sc.lossWords(g)
+	}
+	clipped := ""
+	if other != nil && other != g && other.overDB > 0 {
+		clipped = fmt.Sprintf(" %s's echo is clipped by the ADC (%.1f dB over full scale), which raises its compressed sidelobes.", by, other.overDB)
+	}
 	if v.byCell {
 		what := "range sidelobe"
 		if other != nil && g.t.Kind == TargetPoint && other.t.Kind == TargetPoint {
@@ -89,7 +96,7 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 			what = "clutter in the same cell"
 		}
 		return fmt.Sprintf("Masked by %s: its %s puts %.1f dB more power into %s's cell than %s's own peak, which would clear the noise-only threshold by %.1f dB.",
-			by, what, dsp.DB(v.cell/v.peak), id, id, clear)
+			by, what, dsp.DB(v.cell/v.peak), id, id, clear) + clipped
 	}
 	cells := fmt.Sprintf("%d training cells", v.cells)
 	if sc.train != nil && sc.train.cfar() != nil {
@@ -104,7 +111,7 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 			det, cells, dsp.DB(v.threshold/v.peak), clear) + sc.lossWords(g)
 	}
 	return fmt.Sprintf("Masked by %s through the %s: its echo in the %s lifts the threshold %.1f dB above %s's peak, which would clear the noise-only threshold by %.1f dB.",
-		by, det, cells, dsp.DB(v.threshold/v.peak), id, clear) + sc.lossWords(g)
+		by, det, cells, dsp.DB(v.threshold/v.peak), id, clear) + clipped + sc.lossWords(g)
 }
 
 // whichPulse names the transmit pulse that eclipses a point target.
@@ -125,7 +132,7 @@ func (sc *scene) lossWords(g *tgt) string {
 	if g.outOfBand && !g.rejected && g.t.Kind == TargetPoint {
 		out += fmt.Sprintf(" Its Doppler shift of %s lies outside the receiver's band of ±%s: %.1f dB of its echo's energy is rejected.", hz(g.fd), hz(sc.m.fs/2), g.bandLossDB)
 	}
-	return out
+	return out + sc.frontWords(g)
 }
 
 // resolution returns the mainlobe half-width between nulls as a range, m:

@@ -69,6 +69,8 @@ type scene struct {
 	// responses are computed on those samples only.
 	reachLo, reachHi int
 	partial          bool
+	fe               *frontEnd
+	extras           []extra // impairments' power (impair.go)
 }
 
 // reaches reports whether a response over window samples [lo, hi) is
@@ -99,6 +101,13 @@ type tgt struct {
 	resp       response
 	density    []float64
 	dlo        int
+	// Front end (front_end): the STC's loss at its range, dB; how far its
+	// noise-free echo peaks over the ADC's full scale (dB, 0 when not
+	// clipped) and the compressed peak that costs, dB; its echo's phase
+	// variance from offsets below PRF/2 (rad², lost from its coherent
+	// Doppler peak) and over all offsets, dB.
+	stcLossDB, overDB, clipLossDB float64
+	slowVar, skirtVarDB           float64
 }
 
 func streamOf(seed int64, id string, salt uint64) *rand.Rand {
@@ -119,7 +128,7 @@ func newScene(ctx context.Context, m *model) (*scene, error) {
 // training cells there; the rest keep an empty response, so sc.total is
 // exact on those cells only. Used to verify suggested changes.
 func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
-	sc := &scene{m: m, total: make([]float64, m.n), reachHi: m.n}
+	sc := &scene{m: m, total: make([]float64, m.n), reachHi: m.n, fe: newFrontEnd(m)}
 	sc.targets = make([]*tgt, len(m.s.Targets))
 	lp := &localPlan{m: m}
 	order := make([]int, 0, len(m.s.Targets))
@@ -139,7 +148,7 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 		g := &tgt{t: t, fd: -2 * t.RangeRateMPS / m.lambda}
 		switch t.Kind {
 		case TargetPoint:
-			sc.point(g, lp)
+			sc.point(i, g, lp)
 		default:
 			if err := sc.distributed(ctx, g, lp); err != nil {
 				return nil, err
@@ -161,6 +170,7 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 			}
 		}
 	}
+	sc.receiverExtras()
 	if m.s.Radar.Pulses > 1 && focus < 0 { // suggestions are checked on single pulses
 		sc.train = newTrain(m, sc)
 	}
@@ -200,7 +210,7 @@ func (lp *localPlan) ensure() {
 
 // point places a point target's echo at exact fractional delay and
 // compresses it alone.
-func (sc *scene) point(g *tgt, lp *localPlan) {
+func (sc *scene) point(j int, g *tgt, lp *localPlan) {
 	m := sc.m
 	g.rangeM = g.t.RangeM
 	g.apparent, g.folds = m.fold(g.t.RangeM)
@@ -260,6 +270,11 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 		if k := b + i; k < 0 || k >= m.recLen {
 			lp.x[i] = 0
 		}
+	}
+	var pre, lin []complex128
+	if sc.fe.on {
+		pre, lin = sc.pointShape(g, lp, b)
+		defer func() { sc.pointExtras(j, g, lp, b, pre, lin) }()
 	}
 	e0 := energy(lp.x)
 	if lp.u == nil {

@@ -86,6 +86,7 @@ func (s *Scenario) validate(errs *errList) {
 	s.validateReceiver(c)
 	s.validateTaps(c)
 	s.validateTargets(c)
+	s.validateFrontEnd(c)
 }
 
 func (s *Scenario) validateRadar(c checker, waveOK bool) {
