@@ -43,7 +43,7 @@ const (
 	maxPhaseNoisePoints = 32
 	// maxEchoPhaseVar is the largest phase variance (rad²) the
 	// small-angle skirt model is used for: about −10 dBc.
-	maxEchoPhaseVar = 0.1
+	maxEchoPhaseVar    = 0.1
 	defaultSTCExponent = 4
 )
 

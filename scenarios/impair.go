@@ -160,7 +160,7 @@ func (sc *scene) pointShape(g *tgt, lp *localPlan, b int) (pre, lin []complex128
 	fe, m := sc.fe, sc.m
 	fe.stcShape(m, lp.x, b)
 	if fe.stc {
-		g.stcLossDB = -dsp.DB(fe.spec.stcGain(m.rangeOf(g.delay*m.fs)))
+		g.stcLossDB = -dsp.DB(fe.spec.stcGain(m.rangeOf(g.delay * m.fs)))
 	}
 	if fe.iq || fe.pnOn {
 		pre = append([]complex128(nil), lp.x...)

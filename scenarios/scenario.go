@@ -45,7 +45,7 @@ type Scenario struct {
 	Waveform Waveform        `json:"waveform"`
 	Receiver Receiver        `json:"receiver"`
 	Targets  []Target        `json:"targets"`
-	FrontEnd FrontEnd        `json:"front_end"` // optional impairments (added in version 2)
+	FrontEnd FrontEnd        `json:"front_end"`      // optional impairments (added in version 2)
 	View     json.RawMessage `json:"view,omitempty"` // compact JSON object, nil when empty
 
 	// ReadVersion is the format version of the document the scenario was
