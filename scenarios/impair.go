@@ -127,26 +127,33 @@ func (fe *frontEnd) skirtCells(fs, T float64) (edges, w []float64) {
 }
 
 // slowTones returns the pulse-to-pulse phase noise of an echo delayed T s
-// as tones either side of its Doppler: offsets below PRF/2 on a
-// logarithmic grid, and their total variance.
-func (fe *frontEnd) slowTones(fd, pri, T float64) ([]tone, float64) {
-	const cells = 24
+// over np pulses as tones either side of its Doppler, and their total
+// variance: offsets below PRF/2 in cells a quarter of a Doppler bin
+// wide (1/(4·np·PRI)), the first of them on a logarithmic grid, each
+// cell's power at its centre.
+func (fe *frontEnd) slowTones(fd, pri, T float64, np int) ([]tone, float64) {
+	const logCells = 16
 	hi := fe.prfHalf
-	lo := hi * 1e-4
+	step := 1 / (4 * float64(np) * pri)
 	var out []tone
 	total := 0.0
-	add := func(a, b float64) {
+	add := func(a, b, fc float64) {
 		w := fe.pn.EchoBand(a, b, T)
 		if !(w > 0) {
 			return
 		}
-		fc := math.Sqrt(math.Max(a, lo/10) * b)
 		out = append(out, tone{(fd + fc) * pri, w}, tone{(fd - fc) * pri, w})
 		total += 2 * w
 	}
-	add(0, lo)
-	for i := range cells {
-		add(lo*math.Pow(hi/lo, float64(i)/cells), lo*math.Pow(hi/lo, float64(i+1)/cells))
+	lo := step * 1e-4
+	add(0, lo, lo/2)
+	for i := range logCells {
+		a, b := lo*math.Pow(step/lo, float64(i)/logCells), lo*math.Pow(step/lo, float64(i+1)/logCells)
+		add(a, b, math.Sqrt(a*b))
+	}
+	for a := step; a < hi; a += step {
+		b := math.Min(a+step, hi)
+		add(a, b, (a+b)/2)
 	}
 	return out, total
 }
@@ -245,7 +252,7 @@ func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 	var slow []tone
 	slowVar := 0.0
 	if m.s.Radar.Pulses > 1 {
-		slow, slowVar = fe.slowTones(g.fd, m.s.Radar.PRIS, T)
+		slow, slowVar = fe.slowTones(g.fd, m.s.Radar.PRIS, T, m.s.Radar.Pulses)
 	}
 	if g.amp == 0 || (fast+slowVar)*g.amp*g.amp*m.noiseGain < fe.skirtMin {
 		return
@@ -394,7 +401,10 @@ func (fe *frontEnd) newPNEcho(m *model, g *tgt, np int, seed int64) *pnEcho {
 		return fe.pn.EchoBand(math.Max(f1, fe.prfHalf), math.Max(f2, fe.prfHalf), T)
 	})
 	if np > 1 {
-		ns := dsp.FFTLen(np)
+		// A record four times the interval, so that its lines fall a
+		// quarter of a Doppler bin apart as the analysis's cells do
+		// (a record of np pulses alone would put every line on a bin).
+		ns := dsp.FFTLen(4 * np)
 		bins := dsp.PhaseNoiseBins(ns, 1/m.s.Radar.PRIS, func(f1, f2 float64) float64 {
 			return fe.pn.EchoBand(math.Min(f1, fe.prfHalf), math.Min(f2, fe.prfHalf), T)
 		})
