@@ -143,6 +143,7 @@ func TestScenarioFormatDocumentsEveryField(t *testing.T) {
 	sameSet(t, "radar", firstNames(t, table("fields: radar")), radarFields)
 	sameSet(t, "receiver", firstNames(t, table("fields: receiver")), receiverFields)
 	sameSet(t, "receiver.taps", firstNames(t, table("fields: taps")), tapsFields)
+	sameSet(t, "front_end", firstNames(t, table("fields: frontend")), frontEndFields)
 
 	kinds := []struct {
 		name   string

@@ -58,7 +58,7 @@ func TestPhaseNoiseSkirtMasks(t *testing.T) {
 }
 
 // TestPhaseNoiseAnalysisMatchesSimulation: the noise-free analysis's skirt
-// (the second-order formula ∫S(f)|χ(t, f)|²df, docs/detection.md §11)
+// (the second-order formula ∫S(f)|χ(t, f)|²df, docs/detection.md §10)
 // against the simulated echo, whose samples are multiplied by
 // exp(jψ(t)) with ψ drawn from the same spectrum: the mean over seeds of
 // the simulated power, noise included, next to a strong target equals
