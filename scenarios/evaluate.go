@@ -279,6 +279,7 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.ChiFigures, dopLoss float
 	if g.outOfBand && g.t.Kind == TargetPoint {
 		v -= g.bandLossDB
 	}
+	v -= g.stcLossDB // the STC's attenuation at its range (front_end)
 	return math.Max(v, dbFloor)
 }
 

@@ -165,10 +165,20 @@ func (fe *frontEnd) slowTones(fd, pri, T float64, np int) ([]tone, float64) {
 // (nil when the ADC does not clip it).
 func (sc *scene) pointShape(g *tgt, lp *localPlan, b int) (pre, lin []complex128) {
 	fe, m := sc.fe, sc.m
-	fe.stcShape(m, lp.x, b)
 	if fe.stc {
-		g.stcLossDB = -dsp.DB(fe.spec.stcGain(m.rangeOf(g.delay * m.fs)))
+		// The loss of the compressed peak: the echo's amplitude gain
+		// averaged with its power as weight (exact for a matched filter).
+		var e, eg float64
+		for i, v := range lp.x {
+			p := real(v)*real(v) + imag(v)*imag(v)
+			e += p
+			eg += p * math.Sqrt(fe.spec.stcGain(m.rangeOf(float64(b+i))))
+		}
+		if e > 0 && eg > 0 {
+			g.stcLossDB = -20 * math.Log10(eg/e)
+		}
 	}
+	fe.stcShape(m, lp.x, b)
 	if fe.iq || fe.pnOn {
 		pre = append([]complex128(nil), lp.x...)
 	}
@@ -481,4 +491,92 @@ func (sc *scene) impairmentReason(g *tgt, v verdict, det string) string {
 	}
 	return fmt.Sprintf("Masked by %s through the %s: it lifts the threshold %.1f dB above %s's peak, which would clear the noise-only threshold by %.1f dB.",
 		what, det, dsp.DB(v.threshold/v.peak), id, clear)
+}
+
+// densityShape returns a distributed target's density (window samples
+// lo…) after the STC and the I/Q gain |μ|².
+func (fe *frontEnd) densityShape(m *model, density []float64, lo int) []float64 {
+	out := append([]float64(nil), density...)
+	mu2 := real(fe.mu)*real(fe.mu) + imag(fe.mu)*imag(fe.mu)
+	for i := range out {
+		out[i] *= mu2 * fe.spec.stcGain(m.rangeOf(float64(lo+i)))
+	}
+	return out
+}
+
+// distributedExtras adds a distributed target's I/Q image and
+// phase-noise skirt: its density through the kernels of the image
+// (the conjugate pulse at −f_d, scaled |ν|²) and of each offset cell,
+// with the round trip of its mid-range for the range correlation.
+func (sc *scene) distributedExtras(j int, g *tgt, lp *localPlan, density []float64, lo int) {
+	m, fe := sc.m, sc.fe
+	mu2 := real(fe.mu)*real(fe.mu) + imag(fe.mu)*imag(fe.mu)
+	if fe.iq && mu2 > 0 {
+		nu2 := real(fe.nu)*real(fe.nu) + imag(fe.nu)*imag(fe.nu)
+		kern := sc.kernel(lp, -g.fd, true)
+		for i := range kern {
+			kern[i] *= nu2 / mu2
+		}
+		sc.addExtra(extra{owner: j, cause: causeImage, resp: sc.convolveDensity(density, lo, kern), tones: []tone{{-g.fd * m.s.Radar.PRIS, 1}}})
+	}
+	if !fe.pnOn {
+		return
+	}
+	T := (g.t.RangeStartM + g.t.RangeStopM) / C
+	edges, w := fe.skirtCells(m.fs, T)
+	fast := 0.0
+	for _, v := range w {
+		fast += 2 * v
+	}
+	var slow []tone
+	slowVar := 0.0
+	if m.s.Radar.Pulses > 1 {
+		slow, slowVar = fe.slowTones(g.fd, m.s.Radar.PRIS, T, m.s.Radar.Pulses)
+	}
+	_, peak := g.resp.peak()
+	if (fast+slowVar)*peak < fe.skirtMin {
+		return
+	}
+	var sk []float64
+	shapeW := 0.0
+	for i, v := range w {
+		if !(v > 0) {
+			continue
+		}
+		if edges[i+1] <= 1/(20*m.tau) {
+			shapeW += 2 * v
+			continue
+		}
+		fc := math.Sqrt(edges[i] * edges[i+1])
+		for _, sgn := range []float64{1, -1} {
+			fd := g.fd + sgn*fc
+			if math.Abs(fd) >= m.fs/2 {
+				continue
+			}
+			kern := sc.kernel(lp, fd, false)
+			if sk == nil {
+				sk = make([]float64, len(kern))
+			}
+			for l, p := range kern {
+				sk[l] += v * p
+			}
+		}
+	}
+	r := response{lo: g.resp.lo, pow: make([]float64, len(g.resp.pow))}
+	if sk != nil {
+		r = sc.convolveDensity(density, lo, sk)
+	}
+	for k, p := range g.resp.pow {
+		if kk := g.resp.lo + k - r.lo; kk >= 0 && kk < len(r.pow) {
+			r.pow[kk] += shapeW * p
+		}
+		g.resp.pow[k] = p * (1 - fast)
+	}
+	g.slowVar = slowVar
+	sc.addExtra(extra{owner: j, cause: causeSkirt, resp: r, flat: 1})
+	if len(slow) > 0 {
+		own := response{lo: g.resp.lo, pow: append([]float64(nil), g.resp.pow...)}
+		sc.addExtra(extra{owner: j, cause: causeSkirt, resp: own, tones: slow})
+	}
+	g.skirtVarDB = dsp.DB(fast + slowVar)
 }

@@ -150,7 +150,7 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 		case TargetPoint:
 			sc.point(i, g, lp)
 		default:
-			if err := sc.distributed(ctx, g, lp); err != nil {
+			if err := sc.distributed(ctx, i, g, lp); err != nil {
 				return nil, err
 			}
 		}
@@ -353,7 +353,7 @@ func (sc *scene) blank(x []complex128, b int) {
 // distributed computes the expected power density of an extended or volume
 // target on the window grid (its scatterers summed per sample) and the
 // expected compressed power: density convolved with |response kernel|².
-func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
+func (sc *scene) distributed(ctx context.Context, j int, g *tgt, lp *localPlan) error {
 	m := sc.m
 	r := m.s.Radar
 	g.rangeM = g.t.RangeStartM
@@ -425,20 +425,52 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 		return nil
 	}
 	// Response kernel |r(l)|² of the Doppler-shifted pulse, l = −len(ref)+1 … len(pulse)−1.
+	kern := sc.kernel(lp, g.fd, false)
+	shaped := g.density
+	if sc.fe.on {
+		shaped = sc.fe.densityShape(m, g.density, lo)
+	}
+	g.resp = sc.convolveDensity(shaped, lo, kern)
+	if sc.fe.on {
+		sc.distributedExtras(j, g, lp, shaped, lo)
+	}
+	return nil
+}
+
+// kernel returns the response kernel |r(l)|² (noise units) of the pulse
+// shifted by fd Hz (its complex conjugate with conj): y[j] is the
+// response at lag j + lead − len(ref) from the echo's start.
+func (sc *scene) kernel(lp *localPlan, fd float64, conj bool) []float64 {
+	m := sc.m
 	lp.ensure()
 	clear(lp.x)
-	dsp.AddEcho(lp.x, m.wave, m.fs, float64(len(m.ref))/m.fs, 1, g.fd)
+	dsp.AddEcho(lp.x, m.wave, m.fs, float64(len(m.ref))/m.fs, 1, fd)
+	if conj {
+		for i, v := range lp.x {
+			lp.x[i] = cmplx.Conj(v)
+		}
+	}
 	lp.c.Apply(lp.y, lp.x)
-	// y[j] is the response at lag j + lead − len(ref) from the echo's start.
 	kern := make([]float64, len(lp.y))
 	for j, v := range lp.y {
 		kern[j] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
 	}
+	return kern
+}
+
+// convolveDensity returns the expected compressed power of a density on
+// window samples lo… through a kernel from kernel.
+func (sc *scene) convolveDensity(density []float64, lo int, kern []float64) response {
+	m := sc.m
+	hi := lo + len(density) - 1
 	off := len(m.ref) - m.lead
 	outLo, outHi := max(lo-off, 0), min(hi+len(kern)-off, m.n)
+	if outHi <= outLo {
+		return response{}
+	}
 	pow := make([]float64, outHi-outLo)
-	if len(g.density)*len(kern) <= 1<<15 { // beyond, the FFT is cheaper
-		for i, q := range g.density {
+	if len(density)*len(kern) <= 1<<15 { // beyond, the FFT is cheaper
+		for i, q := range density {
 			if q == 0 {
 				continue
 			}
@@ -449,10 +481,9 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 			}
 		}
 	} else {
-		convolveFFT(pow, outLo, g.density, lo, kern, off)
+		convolveFFT(pow, outLo, density, lo, kern, off)
 	}
-	g.resp = response{lo: outLo, pow: pow}
-	return nil
+	return response{lo: outLo, pow: pow}
 }
 
 // convolveFFT adds Σ_i q[i]·kern[k−(qlo+i)+off] to dst[k−dlo] by FFT

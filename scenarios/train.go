@@ -93,6 +93,11 @@ func newTrain(m *model, sc *scene) *train {
 				gain[d] /= wsum
 			}
 		}
+		if g.t.Kind != TargetPoint {
+			for d := range gain {
+				gain[d] *= 1 - g.slowVar
+			}
+		}
 		tr.gain = append(tr.gain, gain)
 	}
 	tr.extraGain()
