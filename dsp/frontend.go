@@ -219,6 +219,42 @@ func (a ADC) NoisePower() float64 { d := a.Step(); return d * d / 6 }
 // (Kester, MT-001).
 func (a ADC) SQNRDB() float64 { return DB(1.5 * math.Exp2(2*float64(a.Bits))) }
 
+// GaussianNoise returns, for a zero-mean Gaussian input of standard
+// deviation sigma on one channel, the quantiser's Bussgang decomposition
+// Q(x) = gain·x + d with d uncorrelated with x: gain = E[x·Q(x)]/σ², and
+// the power of d re gain²·σ², ratio = E[Q(x)²]/(gain²·σ²) − 1, the
+// quantisation noise as a fraction of the input noise, seen through the
+// same gain as small signals. When the input spans many steps,
+// gain → 1 and ratio → Δ²/(12σ²), the uniform model; when σ is below a
+// step, the mid-rise levels ±Δ/2 dominate and the ratio grows. Both are
+// exact sums over the levels of E[·] under the normal law; an input
+// beyond full scale counts as clipped to the outermost level.
+func (a ADC) GaussianNoise(sigma float64) (gain, ratio float64) {
+	d := a.Step()
+	top := math.Exp2(float64(a.Bits-1)) - 0.5 // outermost level, steps
+	pdf := func(x float64) float64 { return math.Exp(-x*x/2) / math.Sqrt(2*math.Pi) }
+	cdf := func(x float64) float64 { return 0.5 * math.Erfc(-x/math.Sqrt2) }
+	// Level l (in steps) covers [l−½, l+½)·Δ, the outermost ones to ±∞;
+	// by symmetry sum the positive side and double.
+	var exq, eq2 float64
+	lmax := math.Min(top, math.Ceil(12*sigma/d)+0.5)
+	for l := 0.5; l <= lmax; l++ {
+		lo, hi := (l-0.5)*d/sigma, (l+0.5)*d/sigma
+		if l >= top || l >= lmax {
+			hi = math.Inf(1)
+		}
+		p := cdf(hi) - cdf(lo)
+		m := sigma * (pdf(lo) - pdf(hi)) // E[x·1{x in the interval}]
+		exq += 2 * l * d * m
+		eq2 += 2 * l * d * l * d * p
+	}
+	gain = exq / (sigma * sigma)
+	if !(gain > 0) {
+		return 0, math.Inf(1)
+	}
+	return gain, eq2/(gain*gain*sigma*sigma) - 1
+}
+
 // Apply quantises x into dst (dst may be x; nil allocates) and returns
 // dst and the number of samples with a channel beyond full scale.
 func (a ADC) Apply(dst, x []complex128) ([]complex128, int) {

@@ -1,7 +1,9 @@
 package scenarios
 
 import (
+	"errors"
 	"math"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -193,5 +195,170 @@ func TestSTCAttenuation(t *testing.T) {
 	}
 	if g := dsp.DB(dsp.STCGain(1000, 1000, 10000, 4)); math.Abs(g+40) > 1e-9 {
 		t.Errorf("STC at 1 km: %.3f dB, want −40", g)
+	}
+}
+
+// TestADCQuantisationMasks: an 8-bit converter with full scale 60 dB over
+// the thermal noise has a step Δ = 2·10³/2⁸ = 7.8 noise units, far
+// coarser than the noise (rms 0.71 per channel): every noise sample lands
+// on ±Δ/2, a sign detector, and the quantisation noise seen through the
+// quantiser's gain is π/2 − 1 of the thermal noise (+1.96 dB, the
+// hard-limiting loss 2/π; exact sum in dsp.ADC.GaussianNoise, checked
+// against scipy quad), not the uniform model's Δ²/6, which holds only when
+// the noise spans several steps (Kester, Analog Devices MT-001). A CA-CFAR
+// rises with it and a target about 1 dB over its threshold is masked, the
+// reason naming the quantisation noise. The simulated record's noise floor
+// rises by the same amount: mean |x|² of the raw samples 1 + ratio within
+// 0.1 dB.
+func TestADCQuantisationMasks(t *testing.T) {
+	ca := `{"kind":"ca_cfar","pfa":1e-6,"guard_cells":8,"training_cells":32}`
+	doc := lfmScene(`{"kind":"none"}`, ca, pointJSON("far", 8000, rcsFor(16.9, 8000)))
+	if f := target(mustEvaluate(t, mustDecode(t, doc)), "far"); f.Status != StatusDetected || *f.MarginDB > 1.9 {
+		t.Fatalf("without the ADC: %s, margin %.2f dB (want detected under 1.9 dB)", f.Status, *f.MarginDB)
+	}
+	res := mustEvaluate(t, mustDecode(t, withFrontEnd(doc, `{"adc_bits":8,"adc_full_scale_db":60}`)))
+	f := target(res, "far")
+	if f.Status != StatusMasked || !strings.Contains(f.Reason, "quantisation noise") {
+		t.Errorf("with the ADC: %s: %s", f.Status, f.Reason)
+	}
+	_, q := dsp.ADC{Bits: 8, FullScale: 1e3}.GaussianNoise(math.Sqrt(0.5))
+	if math.Abs(q-(math.Pi/2-1)) > 1e-6 {
+		t.Fatalf("ratio %.6f, want π/2 − 1", q)
+	}
+	var p float64
+	for _, v := range res.Series.Echo {
+		p += real(v)*real(v) + imag(v)*imag(v)
+	}
+	p /= float64(len(res.Series.Echo))
+	t.Logf("raw power %.3f dB, 1 + ratio %.3f dB", dsp.DB(p), dsp.DB(1+q))
+	if e := dsp.DB(p) - dsp.DB(1+q); math.Abs(e) > 0.1 {
+		t.Errorf("simulated raw power %.2f dB, 1 + ratio = %.2f dB", dsp.DB(p), dsp.DB(1+q))
+	}
+}
+
+// TestADCClipping: an echo 6 dB over full scale is clipped in the
+// analysis before compression: its compressed peak falls by what
+// clipping the same samples and compressing them costs (computed here
+// with dsp's ADC and correlator on the sampled chirp, checked against
+// numpy in dsp's TestADCClipSidelobes), and its reason says it is clipped.
+func TestADCClipping(t *testing.T) {
+	step := C / (2 * 4e7)
+	r := 3000 + 800*step // on a sample: no fractional delay
+	doc := lfmScene(`{"kind":"none"}`, `{"kind":"fixed","pfa":1e-6}`, pointJSON("big", r, rcsFor(90, r)))
+	base := mustEvaluate(t, mustDecode(t, doc))
+	res := mustEvaluate(t, mustDecode(t, withFrontEnd(doc, `{"adc_bits":16,"adc_full_scale_db":58}`)))
+	peak := func(r *Result) float64 {
+		p := -1e9
+		for _, v := range r.Series.CleanDB {
+			p = math.Max(p, v)
+		}
+		return p
+	}
+	// The same echo here: per-sample power 90 dB − 10·log10(400 samples).
+	ref := dsp.Sample(nil, dsp.LFM{Width: 1e-5, Band: 1e7}, 4e7, 0)
+	a := math.Sqrt(dsp.FromDB(90) / float64(len(ref)))
+	x := make([]complex128, 3*len(ref))
+	for i, v := range ref {
+		x[len(ref)+i] = v * complex(a, 0)
+	}
+	pk := func(y []complex128) float64 {
+		m := 0.0
+		for _, v := range y {
+			m = math.Max(m, real(v)*real(v)+imag(v)*imag(v))
+		}
+		return m
+	}
+	lin := pk(dsp.NewCorrelator(ref, len(x)).Apply(nil, x))
+	cl, _ := dsp.ADC{Bits: 16, FullScale: math.Sqrt(dsp.FromDB(58))}.Clip(nil, x)
+	want := dsp.DB(lin / pk(dsp.NewCorrelator(ref, len(x)).Apply(nil, cl)))
+	got := peak(base) - peak(res)
+	t.Logf("clipping 6 dB over full scale costs %.3f dB of compressed peak (direct %.3f dB)", got, want)
+	if math.Abs(got-want) > 0.05 {
+		t.Errorf("compressed peak falls %.3f dB, clipping the samples directly gives %.3f dB", got, want)
+	}
+	if b := target(res, "big"); !strings.Contains(b.Reason, "clipped by the ADC") {
+		t.Errorf("reason: %s", b.Reason)
+	}
+}
+
+// TestIQImageMasks: with 0.1 dB and 1° of quadrature error (image
+// rejection 39.6 dB by (1 + 2g·cos φ + g²)/(1 − 2g·cos φ + g²), the
+// standard formula; checked against numpy in dsp's TestIQImageRejection)
+// a Barker-13 train's strong echo at +8 Doppler bins puts its image on
+// a target 45 dB weaker at −8 bins, which it masks; the ideal receiver
+// detects it. (A real code's conjugate is itself, so its image
+// compresses.)
+func TestIQImageMasks(t *testing.T) {
+	lambda := C / 9.5e9
+	rate := -lambda / 2 * 8 / (32 * 1e-4)
+	doc := trainScene(`{"kind":"blackman_harris"}`, "none", movingJSON("tanker", 6000, rcsFor(70, 6000), rate), movingJSON("skiff", 6000, rcsFor(25, 6000), -rate))
+	doc = strings.Replace(doc, `"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e7}`, `"waveform":{"kind":"barker","length":13,"chip_s":1e-7}`, 1)
+	if st := target(mustEvaluate(t, mustDecode(t, doc)), "skiff").Status; st != StatusDetected {
+		t.Fatalf("ideal receiver: skiff %s", st)
+	}
+	res := mustEvaluate(t, mustDecode(t, withFrontEnd(doc, `{"iq_gain_db":0.1,"iq_phase_deg":1}`)))
+	sk := target(res, "skiff")
+	if sk.Status != StatusMasked || sk.MaskedBy != "tanker" || !strings.Contains(sk.Reason, "tanker's I/Q image") || !strings.Contains(sk.Reason, "39.6 dB") {
+		t.Errorf("skiff %s by %q: %s", sk.Status, sk.MaskedBy, sk.Reason)
+	}
+}
+
+// TestFrontEndErrors: bad front_end values are rejected with the field,
+// the value and the valid range.
+func TestFrontEndErrors(t *testing.T) {
+	base := lfmScene(`{"kind":"none"}`, "", pointJSON("a", 6000, 0))
+	for _, c := range []struct{ fe, path, words string }{
+		{`{"adc_bits":30,"adc_full_scale_db":40}`, "front_end.adc_bits", "30 is outside the valid range 1 … 24"},
+		{`{"adc_bits":12}`, "front_end.adc_full_scale_db", "required with adc_bits"},
+		{`{"adc_full_scale_db":40}`, "front_end.adc_full_scale_db", "given without adc_bits"},
+		{`{"iq_phase_deg":60}`, "front_end.iq_phase_deg", "60 is above the maximum 45"},
+		{`{"phase_noise_offsets_hz":[1000,100],"phase_noise_dbc_hz":[-80,-90]}`, "front_end.phase_noise_offsets_hz[1]", "not above the offset before it"},
+		{`{"phase_noise_offsets_hz":[1000],"phase_noise_dbc_hz":[-80,-90]}`, "front_end.phase_noise_dbc_hz", "2 levels for 1 offsets"},
+		{`{"phase_noise_offsets_hz":[1000],"phase_noise_dbc_hz":[-60]}`, "front_end.phase_noise_dbc_hz", "at most 0.1 rad²"},
+		{`{"stc_start_m":5000,"stc_stop_m":1000}`, "front_end.stc_stop_m", "must be above 5000"},
+		{`{"stc_exponent":4}`, "front_end.stc_exponent", "given without"},
+		{`{"stc_start_m":1000,"stc_stop_m":9000,"stc_exponent":12}`, "front_end.stc_exponent", "12 is above the maximum 8"},
+		{`{"bits":12}`, "front_end.bits", "unknown field"},
+	} {
+		_, err := Decode([]byte(withFrontEnd(base, c.fe)))
+		var ve *ValidationError
+		if !errors.As(err, &ve) {
+			t.Errorf("%s: %v", c.fe, err)
+			continue
+		}
+		found := false
+		for _, f := range ve.Fields {
+			if f.Path == c.path && strings.Contains(f.Message, c.words) {
+				found = true
+			}
+		}
+		if !found {
+			t.Errorf("%s: want %s: …%s…, got %v", c.fe, c.path, c.words, ve.Fields)
+		}
+	}
+}
+
+// TestFrontEndCanonicalRoundTrip: a scenario with every impairment
+// survives Canonical and Decode unchanged, and the defaults stay out.
+func TestFrontEndCanonicalRoundTrip(t *testing.T) {
+	doc := withFrontEnd(lfmScene(`{"kind":"none"}`, "", pointJSON("a", 6000, 0)),
+		`{"phase_noise_offsets_hz":[1000,100000],"phase_noise_dbc_hz":[-90,-130],"adc_bits":12,"adc_full_scale_db":50,"iq_gain_db":0.1,"iq_phase_deg":1,"dc_offset_db":-3,"stc_start_m":1000,"stc_stop_m":9000}`)
+	s := mustDecode(t, doc)
+	b, err := Canonical(s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if strings.Contains(string(b), "stc_exponent") {
+		t.Errorf("the default exponent is written: %s", b)
+	}
+	s2 := mustDecode(t, string(b))
+	b2, _ := Canonical(s2)
+	if string(b) != string(b2) || !reflect.DeepEqual(s.FrontEnd, s2.FrontEnd) {
+		t.Errorf("round trip:\n%s\n%s", b, b2)
+	}
+	// Without front_end nothing is written.
+	b, _ = Canonical(mustDecode(t, lfmScene(`{"kind":"none"}`, "", pointJSON("a", 6000, 0))))
+	if strings.Contains(string(b), "front_end") {
+		t.Errorf("an ideal receiver writes front_end: %s", b)
 	}
 }

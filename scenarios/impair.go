@@ -45,6 +45,8 @@ type frontEnd struct {
 	iq       bool
 	adc      dsp.ADC
 	adcOn    bool
+	adcGain  float64 // the quantiser's small-signal gain on the thermal noise (Bussgang)
+	adcRatio float64 // its quantisation noise re the thermal noise, seen through that gain
 	dc       complex128
 	dcOn     bool
 	stc      bool
@@ -65,6 +67,11 @@ func newFrontEnd(m *model) *frontEnd {
 	}
 	if f.ADCBits > 0 {
 		fe.adcOn, fe.adc = true, f.adc()
+		// Thermal noise has power 1 per complex sample: σ² = ½ per channel.
+		fe.adcGain, fe.adcRatio = fe.adc.GaussianNoise(math.Sqrt(0.5))
+		if d := fe.adc.Step(); d > 1 {
+			m.warn("the ADC's step (%.3g re the thermal noise's rms per channel, %.2f) is coarser than the noise: quantisation adds %.1f dB to the noise floor; lower adc_full_scale_db or add bits", d, math.Sqrt(0.5), dsp.DB(1+fe.adcRatio))
+		}
 	}
 	if f.DCOffsetDB != nil {
 		fe.dcOn, fe.dc = true, complex(math.Sqrt(dsp.FromDB(*f.DCOffsetDB)), 0)
@@ -102,6 +109,13 @@ func (fe *frontEnd) receive(x []complex128) int {
 	}
 	if fe.adcOn {
 		_, n := fe.adc.Apply(x, x)
+		// Digital gain back to the thermal noise's scale, so plots keep
+		// their meaning (a receiver calibrates its noise level).
+		if fe.adcGain > 0 {
+			for i := range x {
+				x[i] /= complex(fe.adcGain, 0)
+			}
+		}
 		return n
 	}
 	return 0
@@ -318,7 +332,7 @@ func (sc *scene) receiverExtras() {
 	m, fe := sc.m, sc.fe
 	if fe.adcOn {
 		r := response{lo: 0, pow: make([]float64, m.n)}
-		q := fe.adc.NoisePower()
+		q := fe.adcRatio
 		for k := range r.pow {
 			r.pow[k] = q
 		}
@@ -470,7 +484,7 @@ func (sc *scene) impairmentReason(g *tgt, v verdict, det string) string {
 	switch {
 	case v.culprit < 0 && v.cause == causeQuantise:
 		what = fmt.Sprintf("the ADC's quantisation noise (%d bits, full scale %.0f dB over thermal noise: a floor %.1f dB re thermal noise)",
-			fe.spec.ADCBits, fe.spec.ADCFullScaleDB, dsp.DB(fe.adc.NoisePower()))
+			fe.spec.ADCBits, fe.spec.ADCFullScaleDB, dsp.DB(fe.adcRatio))
 	case v.culprit < 0 && v.cause == causeDC:
 		what = fmt.Sprintf("the receiver's DC offset (%.0f dB re thermal noise per sample)", *fe.spec.DCOffsetDB)
 	case v.culprit < 0:

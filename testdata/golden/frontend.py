@@ -23,6 +23,11 @@ iq: a complex tone exp(j 2 pi k0 i / N) through y = I + j g (Q cos p - I sin p),
   g = 10**(gain_db/20); the image rejection read off numpy's FFT, bins
   +k0 and -k0, and the closed form (1 + 2 g cos p + g^2)/(1 - 2 g cos p + g^2).
 
+quantiser: a mid-rise quantiser (levels (i + 1/2) step, step =
+  2 full_scale / 2^bits, clipped to the outermost) of a zero-mean Gaussian
+  input: the Bussgang gain E[x Q(x)]/sigma^2 and the noise ratio
+  E[Q^2]/(gain^2 sigma^2) - 1, by quad over each level's interval.
+
 Run: cd testdata/golden && /usr/bin/python3 frontend.py
 """
 import json
@@ -95,9 +100,30 @@ def iq_case(gain_db, phase_deg, n=1000, k0=100):
     return {"gain_db": gain_db, "phase_deg": phase_deg, "irr_fft_db": measured, "irr_formula_db": formula}
 
 
+def gaussian_quantiser(bits, full_scale, sigma):
+    """Mid-rise quantiser, levels (i + 1/2) step, clipped to the outermost,
+    of a N(0, sigma^2) input: E[x Q(x)] / sigma^2 and
+    E[Q^2] / (gain^2 sigma^2) - 1, by quad over each level's interval."""
+    step = 2 * full_scale / 2 ** bits
+    top = 2 ** (bits - 1) - 0.5
+    f = lambda x: math.exp(-x * x / (2 * sigma * sigma)) / (sigma * math.sqrt(2 * math.pi))
+    exq = eq2 = 0.0
+    l = 0.5
+    while l <= top:
+        lo = (l - 0.5) * step
+        hi = math.inf if l == top else (l + 0.5) * step
+        if lo > 40 * sigma:
+            break
+        exq += 2 * l * step * integrate.quad(lambda x: x * f(x), lo, hi)[0]
+        eq2 += 2 * (l * step) ** 2 * integrate.quad(f, lo, hi)[0]
+        l += 1
+    gain = exq / sigma ** 2
+    return {"bits": bits, "full_scale": full_scale, "sigma": sigma, "gain": gain, "ratio": eq2 / (gain * gain * sigma * sigma) - 1}
+
+
 def main():
     out = {"numpy": np.__version__, "scipy": scipy.__version__, "profile": PROFILE,
-           "integral": [], "echo_band": [], "clip": [], "iq": []}
+           "integral": [], "echo_band": [], "clip": [], "iq": [], "quantiser": []}
     for f1, f2 in [(0, 5e6), (100, 2e7), (5e3, 5e4), (0, 1e3)]:
         out["integral"].append({"f1": f1, "f2": f2, "value": integral(f1, f2)})
     for f1, f2, T in [(0, 5e6, 2 * 10e3 / 299792458.0), (0, 5e6, 2 * 1e3 / 299792458.0), (500, 1e6, 2 * 30e3 / 299792458.0)]:
@@ -106,6 +132,9 @@ def main():
         out["clip"].append(clip_case(10e-6, 5e6, 10e6, drive))
     for gdb, pdeg in [(0.1, 1.0), (0.5, 3.0), (0.0, 0.5)]:
         out["iq"].append(iq_case(gdb, pdeg))
+    s = math.sqrt(0.5)
+    for bits, fsc in [(8, 1000.0), (8, 100.0), (12, 100.0), (4, 3.0), (10, 2.0)]:
+        out["quantiser"].append(gaussian_quantiser(bits, fsc, s))
     with open("frontend.json", "w") as f:
         json.dump(out, f, indent=1)
         f.write("\n")
