@@ -8,6 +8,7 @@ import {
   newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
 } from './schema.js';
 import { describeFields, fieldName } from './words.js';
+import { frontEndBlock } from './frontend.js';
 
 export class Editor {
   // roots: {targets, radar, pulse, receive, scene} elements.
@@ -61,7 +62,7 @@ export class Editor {
     const v = this.value(el);
     if (typeof v === 'number' && Number.isNaN(v) || Array.isArray(v) && v.some(Number.isNaN)) {
       this.setLocalError(path, el.dataset.type === 'phases'
-        ? `“${el.value.trim()}” is not a list of numbers (degrees, separated by commas or spaces)`
+        ? `“${el.value.trim()}” is not a list of numbers (separated by commas or spaces)`
         : `“${el.value.trim()}” is not a number`);
       return;
     }
@@ -270,7 +271,7 @@ export class Editor {
     } else if (fd.type === 'notes') {
       input = h('textarea', { rows: 4, dataset: { path, type: 'notes' }, placeholder: fd.hint || '', value: v || '', spellcheck: 'true' });
     } else if (fd.type === 'phases') {
-      input = h('textarea', { rows: 2, dataset: { path, type: 'phases' }, placeholder: '0, 180, 90 …', value: (v || []).join(', ') });
+      input = h('textarea', { rows: 2, dataset: { path, type: 'phases' }, placeholder: fd.hint || '0, 180, 90 …', value: (v || []).join(', ') });
     } else {
       input = h('input', {
         type: 'text', inputmode: fd.type === 'text' ? 'text' : 'decimal', autocomplete: 'off', spellcheck: 'false',
@@ -348,7 +349,8 @@ export class Editor {
       h('div', { class: 'sub' },
         this.kindSelect('Detector', 'detector-kind', detectorKinds, dkind, 'receiver.detector.kind'),
         h('div', { class: 'grid' }, detectorKinds[dkind].fields.map((k) => this.field(s, 'receiver.detector', detectorFields[k])))),
-      this.windowBlock(s, 'Pulse-to-pulse weighting (pulses > 1)', 'receiver.doppler_window', 'hann'));
+      this.windowBlock(s, 'Pulse-to-pulse weighting (pulses > 1)', 'receiver.doppler_window', 'hann'),
+      frontEndBlock(this, s));
   }
 
   targetRow(t, i) {

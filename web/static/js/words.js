@@ -2,7 +2,7 @@
 // rather than "targets[2].rcs_dbsm"), and messages that carry it.
 
 import { splitPath } from './dom.js';
-import { detectorFields, levelName, radarFields, waveformKinds, windowKinds } from './schema.js';
+import { detectorFields, frontEndGroups, levelName, radarFields, waveformKinds, windowKinds } from './schema.js';
 
 const targetWords = {
   id: 'id', kind: 'kind', range_m: 'range', range_start_m: 'near edge', range_stop_m: 'far edge',
@@ -13,7 +13,7 @@ const receiverWords = {
   filter: 'compression filter', filter_length_factor: 'filter length', window: 'range weighting',
   doppler_window: 'pulse-to-pulse weighting', detector: 'detector', mti: 'MTI canceller',
 };
-const topWords = { name: 'scene name', notes: 'notes', seed: 'noise seed', version: 'format version', radar: 'radar', waveform: 'waveform', receiver: 'receiver', targets: 'targets' };
+const topWords = { name: 'scene name', notes: 'notes', seed: 'noise seed', version: 'format version', radar: 'radar', waveform: 'waveform', receiver: 'receiver', targets: 'targets', front_end: 'front end' };
 
 const labelOf = (fields, key) => {
   const f = fields.find((x) => x.key === key);
@@ -46,6 +46,10 @@ export function fieldName(path, s) {
     const win = s && s.receiver && s.receiver[p[1]];
     const wk = win && windowKinds[win.kind];
     return `${base} ${(wk && labelOf(wk.fields, p[2])) || p.slice(2).join('.')}`;
+  }
+  if (p[0] === 'front_end' && p.length >= 2) {
+    const g = frontEndGroups.find((x) => x.fields.some((fd) => fd.key === p[1]));
+    return g ? `${g.title} ${labelOf(g.fields, p[1])}` : `front end ${p.slice(1).join('.')}`;
   }
   if (p.length === 1 && topWords[p[0]]) return topWords[p[0]];
   return path;
