@@ -358,6 +358,16 @@ func (q IQImbalance) Apply(dst, x []complex128) []complex128 {
 	return dst
 }
 
+// RadarHorizon returns the distance (m) at which a ray from an antenna h1
+// metres above a smooth sphere of radius ae (m) grazes the surface on its
+// way to a point h2 metres above it: √(2·ae·h1 + h1²) + √(2·ae·h2 + h2²),
+// the sum of each height's distance to the horizon. On the 4/3 Earth
+// (ae = 4/3 · 6371 km, standard refraction) this is about
+// 4.12·(√h1 + √h2) km with heights in metres: 22.2 km for 10 m and 5 m.
+func RadarHorizon(h1, h2, ae float64) float64 {
+	return math.Sqrt(2*ae*h1+h1*h1) + math.Sqrt(2*ae*h2+h2*h2)
+}
+
 // STCGain returns the power gain (≤ 1) of a sensitivity time control
 // with law R^exponent between start and stop (m, 0 < start < stop):
 // (R/stop)^exponent for start ≤ R ≤ stop, (start/stop)^exponent nearer,

@@ -93,6 +93,7 @@ func (s *Scenario) canonicalRadar() ordered {
 	o.put("window_stop_m", r.WindowStopM, C*r.PRIS/2)
 	o.put("beamwidth_az_deg", r.BeamwidthAzDeg, d.BeamwidthAzDeg)
 	o.put("beamwidth_el_deg", r.BeamwidthElDeg, d.BeamwidthElDeg)
+	o.put("antenna_height_m", r.AntennaHeightM, 0.0)
 	return o
 }
 
@@ -202,6 +203,8 @@ func canonicalTarget(t Target) ordered {
 			o.put(f, t.RangeRateMPS, 0.0)
 		case "fluctuation":
 			o.put(f, t.Fluctuation, FluctuationNone)
+		case "height_m":
+			o.put(f, t.HeightM, 0.0)
 		case "range_start_m":
 			o.put(f, t.RangeStartM, nil)
 		case "range_stop_m":

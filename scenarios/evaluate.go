@@ -231,7 +231,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		if sc.train != nil {
 			sc.train.report(j, v, single, bin, &tr)
 		}
-		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && budget > 0 && ctx.Err() == nil {
+		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && v.status != StatusBelowHorizon && budget > 0 && ctx.Err() == nil {
 			if hint := suggestFix(ctx, m, j, v, &budget); hint != "" {
 				tr.Reason += " " + hint
 			}
@@ -273,7 +273,7 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.ChiFigures, dopLoss float
 	if l, ok := g.eclipseLossDB(m.processed); ok {
 		v -= l
 	}
-	if g.rejected {
+	if g.rejected || g.hidden {
 		return dbFloor
 	}
 	if g.outOfBand && g.t.Kind == TargetPoint {

@@ -362,3 +362,45 @@ func TestFrontEndCanonicalRoundTrip(t *testing.T) {
 		t.Errorf("an ideal receiver writes front_end: %s", b)
 	}
 }
+
+// TestRadarHorizon: on the 4/3 Earth the radar horizon of a 10 m antenna
+// and a 5 m target is 4.12·(√10 + √5) = 22.24 km (the rule of thumb
+// d = 4.12·√h km, h in m; common practice, e.g. Skolnik, Introduction to
+// Radar Systems, from memory); the exact sum of √(2·a_e·h + h²) with
+// a_e = 4/3 · 6371 km agrees within 0.1 %. A target just beyond it is
+// below_horizon with no echo, just inside it is detected; without
+// radar.antenna_height_m there is no horizon.
+func TestRadarHorizon(t *testing.T) {
+	d := dsp.RadarHorizon(10, 5, earthRadius43)
+	if want := 4.12 * (math.Sqrt(10) + math.Sqrt(5)) * 1e3; math.Abs(d/want-1) > 1e-3 {
+		t.Errorf("horizon %.1f m, rule of thumb %.1f m", d, want)
+	}
+	if math.Abs(d-22.2e3) > 100 { // the issue rounds to 22.2 km
+		t.Errorf("horizon %.1f m, want 22.2 km", d)
+	}
+	scene := func(radar string, r float64) *Result {
+		doc := `{"version":1,"radar":{` + radar + `"peak_power_w":1e5,"sample_rate_hz":2e6,"pri_s":3e-4,"window_start_m":15000,"window_stop_m":30000},
+			"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e6},
+			"targets":[{"id":"boat","kind":"point","range_m":` + fmtFloat(r) + `,"rcs_dbsm":20,"height_m":5}]}`
+		return mustEvaluate(t, mustDecode(t, doc))
+	}
+	near := target(scene(`"antenna_height_m":10,`, d-200), "boat")
+	if near.Status != StatusDetected {
+		t.Errorf("200 m inside the horizon: %s (%s)", near.Status, near.Reason)
+	}
+	far := scene(`"antenna_height_m":10,`, d+200)
+	b := target(far, "boat")
+	if b.Status != StatusBelowHorizon || !strings.Contains(b.Reason, "22.2") {
+		t.Errorf("200 m beyond the horizon: %s (%s)", b.Status, b.Reason)
+	}
+	peak := -1e9
+	for _, v := range far.Series.CleanDB {
+		peak = math.Max(peak, v)
+	}
+	if peak > dbFloor {
+		t.Errorf("a target below the horizon leaves %.1f dB in the noise-free profile", peak)
+	}
+	if st := target(scene("", d+200), "boat").Status; st != StatusDetected {
+		t.Errorf("without an antenna height: %s", st)
+	}
+}

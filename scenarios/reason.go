@@ -33,6 +33,8 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 	det := detectorName(m.s.Receiver.Detector)
 	id := g.t.ID
 	switch v.status {
+	case StatusBelowHorizon:
+		return sc.horizonReason(g)
 	case StatusDetected:
 		return fmt.Sprintf("Detected: its peak, %.1f dB above noise, clears the %s threshold by %.1f dB.", dsp.DB(v.peak), det, *tr.MarginDB) + sc.lossWords(g)
 	case StatusOutOfWindow:

@@ -71,6 +71,9 @@ type Radar struct {
 	WindowStopM    float64 `json:"window_stop_m"`    // last range of the receive window, m
 	BeamwidthAzDeg float64 `json:"beamwidth_az_deg"` // 3-dB azimuth beamwidth, degrees
 	BeamwidthElDeg float64 `json:"beamwidth_el_deg"` // 3-dB elevation beamwidth, degrees
+	// AntennaHeightM is the antenna's height above the surface, m; 0 when
+	// absent (no surface geometry: no grazing angle, no horizon).
+	AntennaHeightM float64 `json:"antenna_height_m,omitempty"`
 }
 
 // Waveform kinds.
@@ -250,6 +253,7 @@ type Target struct {
 	RangeRateMPS      float64 `json:"range_rate_mps,omitempty"`      // m/s, > 0 receding
 	VelocitySpreadMPS float64 `json:"velocity_spread_mps,omitempty"` // extended, volume: rms spread, m/s
 	Fluctuation       string  `json:"fluctuation,omitempty"`         // point: none, swerling1 … swerling4
+	HeightM           float64 `json:"height_m,omitempty"`            // point: height above the surface, m (default 0)
 }
 
 // Wavelength returns λ = c / carrier, m.

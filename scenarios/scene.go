@@ -108,6 +108,7 @@ type tgt struct {
 	// Doppler peak) and over all offsets, dB.
 	stcLossDB, overDB, clipLossDB float64
 	slowVar, skirtVarDB           float64
+	hidden                        bool // point: beyond the radar horizon (horizon.go)
 }
 
 func streamOf(seed int64, id string, salt uint64) *rand.Rand {
@@ -218,6 +219,9 @@ func (sc *scene) point(j int, g *tgt, lp *localPlan) {
 	r := sc.m.s.Radar
 	if g.t.RangeM <= 0 {
 		return // at the antenna: no meaningful echo
+	}
+	if g.hidden = m.beyondHorizon(g.t); g.hidden {
+		return // hidden by the Earth's curvature: no echo
 	}
 	pr := dsp.ReceivedPower(r.PeakPowerW, dsp.FromDB(r.AntennaGainDBi), m.lambda, sigma, g.t.RangeM, dsp.FromDB(r.SystemLossDB))
 	g.amp = math.Sqrt(pr / m.noiseW)

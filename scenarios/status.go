@@ -111,6 +111,8 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 // measured, in the order of docs/detection.md §6, and returns it.
 func (sc *scene) decide(g *tgt, v *verdict) string {
 	switch {
+	case g.hidden:
+		v.status = StatusBelowHorizon
 	case sc.outOfWindow(g):
 		v.status = StatusOutOfWindow
 	case g.t.Kind == TargetPoint && g.blankTouched && (g.received <= 0 || v.peakK < 0 || v.peak <= 0):

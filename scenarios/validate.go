@@ -99,6 +99,9 @@ func (s *Scenario) validateRadar(c checker, waveOK bool) {
 	c.intBetween("radar.pulses", r.Pulses, 1, 1024)
 	c.between("radar.beamwidth_az_deg", r.BeamwidthAzDeg, 0.1, 90)
 	c.between("radar.beamwidth_el_deg", r.BeamwidthElDeg, 0.1, 90)
+	if r.AntennaHeightM != 0 {
+		c.above("radar.antenna_height_m", r.AntennaHeightM, 0, maxHeightM)
+	}
 	c.between("radar.window_start_m", r.WindowStartM, 0, 1e8)
 	if !c.errs.has("radar.window_start_m") {
 		c.above("radar.window_stop_m", r.WindowStopM, r.WindowStartM, 1e8)
@@ -327,6 +330,7 @@ func (s *Scenario) validateTargets(c checker) {
 		case TargetPoint:
 			c.between(p+"range_m", t.RangeM, 0, 1e8)
 			c.between(p+"rcs_dbsm", t.RCSDBsm, -100, 100)
+			c.between(p+"height_m", t.HeightM, 0, maxHeightM)
 		default:
 			c.between(p+"range_start_m", t.RangeStartM, 0, 1e8)
 			if !c.errs.has(p + "range_start_m") {

@@ -59,6 +59,8 @@ var statusStyle = map[string]struct{ colour, symbol string }{
 	scenarios.StatusBelowNoise:  {"#7b8389", "emptyCircle"},
 	scenarios.StatusEclipsed:    {"#6d3fc0", "triangle"},
 	scenarios.StatusOutOfWindow: {"#1b6aa5", "rect"},
+	// Hidden by the Earth's curvature (front-end helper; css/frontend.css).
+	scenarios.StatusBelowHorizon: {"#8a6d3b", "pin"},
 }
 
 // chartOut is one chart of a frame: its full option, and the series data

@@ -395,7 +395,8 @@ export class Editor {
     const fds = t.kind === 'point'
       ? [{ key: 'range_m', label: 'Range', unit: 'm' }, { key: 'rcs_dbsm', label: 'RCS', unit: 'dBsm' },
         { key: 'range_rate_mps', label: 'Range rate', unit: 'm/s', def: 0 },
-        { key: 'fluctuation', label: 'Fluctuation', type: 'select', options: fluctuations, def: 'none' }]
+        { key: 'fluctuation', label: 'Fluctuation', type: 'select', options: fluctuations, def: 'none' },
+        { key: 'height_m', label: 'Height', unit: 'm', def: 0 }]
       : [{ key: 'range_start_m', label: 'Near edge', unit: 'm' }, { key: 'range_stop_m', label: 'Far edge', unit: 'm' },
         { key: levelKey(t.kind), label: t.kind === 'extended' ? 'RCS per metre' : 'Reflectivity', unit: levelUnit[t.kind] },
         { key: 'range_rate_mps', label: 'Range rate', unit: 'm/s', def: 0 },

@@ -22,6 +22,7 @@ export const radarFields = [
   f('window_stop_m', 'Window stop', 'm', 1, 'num', { hint: 'c·PRI/2' }),
   f('beamwidth_az_deg', 'Beamwidth az', '°', 1, 'num', { def: 2 }),
   f('beamwidth_el_deg', 'Beamwidth el', '°', 1, 'num', { def: 2 }),
+  f('antenna_height_m', 'Antenna height', 'm', 1, 'num', { hint: 'none' }),
 ];
 
 const chip = f('chip_s', 'Chip length', 'µs', 1e-6);

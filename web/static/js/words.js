@@ -7,7 +7,7 @@ import { detectorFields, frontEndGroups, levelName, radarFields, waveformKinds, 
 const targetWords = {
   id: 'id', kind: 'kind', range_m: 'range', range_start_m: 'near edge', range_stop_m: 'far edge',
   rcs_dbsm: 'RCS', rcs_dbsm_per_m: levelName.extended, reflectivity_dbz: levelName.volume,
-  range_rate_mps: 'range rate', velocity_spread_mps: 'velocity spread', fluctuation: 'fluctuation',
+  range_rate_mps: 'range rate', velocity_spread_mps: 'velocity spread', fluctuation: 'fluctuation', height_m: 'height',
 };
 const receiverWords = {
   filter: 'compression filter', filter_length_factor: 'filter length', window: 'range weighting',
