@@ -303,3 +303,34 @@ func TestADCGaussianNoise(t *testing.T) {
 		t.Errorf("fine steps: ratio %.6g, Δ²/12 = %.6g", r, d*d/12)
 	}
 }
+
+func TestRainCoefficients(t *testing.T) {
+	// ITU-R P.838-2 (2003) Table 1 as printed: at a table frequency the
+	// values come back exactly; γ = k·R^α (eq. 1). 10 GHz, horizontal,
+	// 10 mm/h: 0.01006·10^1.2747 = 0.1895 dB/km (arithmetic).
+	k, a, ok := RainCoefficients(10, false)
+	if !ok || k != 0.01006 || a != 1.2747 {
+		t.Fatalf("10 GHz H: %v %v %v", k, a, ok)
+	}
+	if g := RainAttenuation(k, a, 10); math.Abs(g-0.01006*math.Pow(10, 1.2747)) > 1e-12 || math.Abs(g-0.1895) > 5e-4 {
+		t.Errorf("γ = %.5f dB/km", g)
+	}
+	if k, a, _ := RainCoefficients(35, true); k != 0.2341 || a != 0.9630 {
+		t.Errorf("35 GHz V: %v %v", k, a)
+	}
+	// Between rows: log k and α linear in log f (CCIR Rec. 838, 1992).
+	k, a, _ = RainCoefficients(9.5, false)
+	u := math.Log(9.5/9) / math.Log(10.0/9)
+	if wk := math.Exp(math.Log(0.006916) + u*(math.Log(0.01006)-math.Log(0.006916))); math.Abs(k/wk-1) > 1e-12 {
+		t.Errorf("9.5 GHz k %.6g, want %.6g", k, wk)
+	}
+	if wa := 1.3044 + u*(1.2747-1.3044); math.Abs(a-wa) > 1e-12 {
+		t.Errorf("9.5 GHz α %.6g, want %.6g", a, wa)
+	}
+	if _, _, ok := RainCoefficients(0.5, false); ok {
+		t.Error("0.5 GHz is outside the table")
+	}
+	if _, _, ok := RainCoefficients(60, false); ok {
+		t.Error("60 GHz is outside the table as read")
+	}
+}
