@@ -72,6 +72,9 @@ func (s *Scenario) canonical() ordered {
 	if f := canonicalFrontEnd(s.FrontEnd); len(f) > 0 {
 		o = append(o, member{"front_end", f})
 	}
+	if p := canonicalPropagation(s.Propagation); len(p) > 0 {
+		o = append(o, member{"propagation", p})
+	}
 	if len(s.View) > 0 {
 		o = append(o, member{"view", s.View})
 	}

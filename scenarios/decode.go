@@ -83,6 +83,10 @@ func decodeWith(data []byte, upgrades map[int]upgrade) (*Scenario, error) {
 	if o, ok := top.child("front_end"); ok {
 		o.decodeFrontEnd(&s.FrontEnd)
 	}
+	s.Propagation = Propagation{RainStopM: maxRainStopM, RainPolarisation: "horizontal"}
+	if o, ok := top.child("propagation"); ok {
+		o.decodePropagation(&s.Propagation)
+	}
 	top.view(&s.View)
 	top.finish(topFields...)
 	s.fillDerived(&errs)

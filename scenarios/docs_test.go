@@ -144,6 +144,7 @@ func TestScenarioFormatDocumentsEveryField(t *testing.T) {
 	sameSet(t, "receiver", firstNames(t, table("fields: receiver")), receiverFields)
 	sameSet(t, "receiver.taps", firstNames(t, table("fields: taps")), tapsFields)
 	sameSet(t, "front_end", firstNames(t, table("fields: frontend")), frontEndFields)
+	sameSet(t, "propagation", firstNames(t, table("fields: propagation")), propagationFields)
 
 	kinds := []struct {
 		name   string

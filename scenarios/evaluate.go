@@ -280,6 +280,11 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.ChiFigures, dopLoss float
 		v -= g.bandLossDB
 	}
 	v -= g.stcLossDB // the STC's attenuation at its range (front_end)
+	if g.t.Kind == TargetPoint {
+		v -= g.rainLossDB
+	} else {
+		v -= m.rainLossDB(rangeM)
+	}
 	return math.Max(v, dbFloor)
 }
 

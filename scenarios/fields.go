@@ -17,7 +17,7 @@ var (
 	filters       = []string{FilterMatched, FilterLeastSquares, FilterMinimax, FilterCustom}
 	sweeps        = []string{"up", "down"}
 
-	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "front_end", "view"}
+	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "front_end", "propagation", "view"}
 	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg", "antenna_height_m"}
 	receiverFields = []string{"filter", "filter_length_factor", "taps", "window", "detector", "doppler_window", "mti"}
 	mtis           = []string{MTINone, MTITwoPulse, MTIThreePulse}

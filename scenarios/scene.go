@@ -108,7 +108,8 @@ type tgt struct {
 	// Doppler peak) and over all offsets, dB.
 	stcLossDB, overDB, clipLossDB float64
 	slowVar, skirtVarDB           float64
-	hidden                        bool // point: beyond the radar horizon (horizon.go)
+	hidden                        bool    // point: beyond the radar horizon (horizon.go)
+	rainLossDB                    float64 // point: two-way rain attenuation at its range, dB
 }
 
 func streamOf(seed int64, id string, salt uint64) *rand.Rand {
@@ -224,7 +225,8 @@ func (sc *scene) point(j int, g *tgt, lp *localPlan) {
 		return // hidden by the Earth's curvature: no echo
 	}
 	pr := dsp.ReceivedPower(r.PeakPowerW, dsp.FromDB(r.AntennaGainDBi), m.lambda, sigma, g.t.RangeM, dsp.FromDB(r.SystemLossDB))
-	g.amp = math.Sqrt(pr / m.noiseW)
+	g.rainLossDB = m.rainLossDB(g.t.RangeM)
+	g.amp = math.Sqrt(pr / m.noiseW * dsp.FromDB(-g.rainLossDB))
 	g.phase = cmplx.Rect(1, -4*math.Pi*math.Mod(g.t.RangeM/m.lambda, 1))
 	start := 2 * g.apparent / C // echo leading edge after the transmit edge, s
 	g.delay = start - m.t0
@@ -401,6 +403,7 @@ func (sc *scene) distributed(ctx context.Context, j int, g *tgt, lp *localPlan) 
 		return nil
 	}
 	density := make([]float64, khi-klo+1) // density[k−klo]: only the samples the folds touch
+	rainG := m.rainGamma()
 	lo, hi := m.n, -1
 	for f := first; f <= last; f++ {
 		base, ka, kb, ok := span(f)
@@ -414,7 +417,7 @@ func (sc *scene) distributed(ctx context.Context, j int, g *tgt, lp *localPlan) 
 			if s1 <= s0 || !m.processed[k] || rk <= 0 {
 				continue
 			}
-			density[k-klo] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4)
+			density[k-klo] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4) * dsp.FromDB(-m.rainLoss(rk, rainG))
 			lo, hi = min(lo, k), max(hi, k)
 		}
 		if err := ctx.Err(); err != nil {

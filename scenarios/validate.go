@@ -87,6 +87,7 @@ func (s *Scenario) validate(errs *errList) {
 	s.validateTaps(c)
 	s.validateTargets(c)
 	s.validateFrontEnd(c)
+	s.validatePropagation(c)
 }
 
 func (s *Scenario) validateRadar(c checker, waveOK bool) {

@@ -9,8 +9,8 @@ import (
 // TestFrontEndSection: the receive form's own "Front end" section opens,
 // an ADC's bits alone get the server's error beside the full-scale field,
 // and with both the scenario carries front_end, the frame's report warns
-// that the step is coarser than the noise, and the phase-noise lists
-// reach the scenario as arrays.
+// that the step is coarser than the noise, the phase-noise lists reach
+// the scenario as arrays, and a rain rate puts the rain in the reasons.
 func TestFrontEndSection(t *testing.T) {
 	ctx := mustBrowser(t)
 	openPage(t, ctx, mustServer(t))
@@ -38,6 +38,9 @@ func TestFrontEndSection(t *testing.T) {
 	if open := eval[bool](t, ctx, `document.querySelector('details.frontend').open`); !open {
 		t.Error("the section closed")
 	}
+	// Rain on the path: the reasons name it.
+	typeInto(t, ctx, `input[data-path="propagation.rain_rate_mm_h"]`, "10")
+	waitFor(t, ctx, "the rain in the reasons", `(window.__pw.frame().report.targets || []).some((t) => t.reason.includes('Rain of 10 mm/h'))`)
 	do(t, ctx, chromedp.Evaluate[chromedp.Void](`document.querySelector('details.frontend').scrollIntoView()`))
 	shot(t, ctx, "")
 }

@@ -13,7 +13,7 @@ const receiverWords = {
   filter: 'compression filter', filter_length_factor: 'filter length', window: 'range weighting',
   doppler_window: 'pulse-to-pulse weighting', detector: 'detector', mti: 'MTI canceller',
 };
-const topWords = { name: 'scene name', notes: 'notes', seed: 'noise seed', version: 'format version', radar: 'radar', waveform: 'waveform', receiver: 'receiver', targets: 'targets', front_end: 'front end' };
+const topWords = { name: 'scene name', notes: 'notes', seed: 'noise seed', version: 'format version', radar: 'radar', waveform: 'waveform', receiver: 'receiver', targets: 'targets', front_end: 'front end', propagation: 'propagation' };
 
 const labelOf = (fields, key) => {
   const f = fields.find((x) => x.key === key);
@@ -47,8 +47,8 @@ export function fieldName(path, s) {
     const wk = win && windowKinds[win.kind];
     return `${base} ${(wk && labelOf(wk.fields, p[2])) || p.slice(2).join('.')}`;
   }
-  if (p[0] === 'front_end' && p.length >= 2) {
-    const g = frontEndGroups.find((x) => x.fields.some((fd) => fd.key === p[1]));
+  if ((p[0] === 'front_end' || p[0] === 'propagation') && p.length >= 2) {
+    const g = frontEndGroups.find((x) => (x.base || 'front_end') === p[0] && x.fields.some((fd) => fd.key === p[1]));
     return g ? `${g.title} ${labelOf(g.fields, p[1])}` : `front end ${p.slice(1).join('.')}`;
   }
   if (p.length === 1 && topWords[p[0]]) return topWords[p[0]];
