@@ -71,6 +71,20 @@ func RainCoefficients(fGHz float64, vertical bool) (k, alpha float64, ok bool) {
 	return k, alpha, true
 }
 
+// FlatSeaFactor returns the one-way pattern-propagation factor F of a
+// point h2 metres above a flat, perfectly reflecting sea (reflection
+// coefficient −1, the smooth sea at low grazing angle) seen from an
+// antenna h1 metres high at range r (m), wavelength lambda (m): the
+// direct ray and the reflected one differ by 2·h1·h2/r in path, so
+// F = |1 − exp(−j2π·2h1h2/(λr))| = 2·|sin(2π·h1·h2/(λ·r))| (the flat-earth
+// two-ray model of radar texts, from memory). F is 2 at the lobe peaks
+// (r = 4h1h2/(λ(2n+1))) and 0 at the nulls; the echo's power scales by
+// F⁴ (both ways). Beyond the last peak F ≈ 4π·h1·h2/(λ·r), so the echo
+// falls as r⁻⁸.
+func FlatSeaFactor(h1, h2, r, lambda float64) float64 {
+	return 2 * math.Abs(math.Sin(2*math.Pi*h1*h2/(lambda*r)))
+}
+
 // RainAttenuation returns the specific attenuation γ = k·R^α in dB/km
 // for a rain rate R (mm/h).
 func RainAttenuation(k, alpha, rate float64) float64 { return k * math.Pow(rate, alpha) }

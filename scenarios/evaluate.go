@@ -282,6 +282,9 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.ChiFigures, dopLoss float
 	v -= g.stcLossDB // the STC's attenuation at its range (front_end)
 	if g.t.Kind == TargetPoint {
 		v -= g.rainLossDB
+		if g.multipath {
+			v += g.multipathDB
+		}
 	} else {
 		v -= m.rainLossDB(rangeM)
 	}

@@ -446,3 +446,37 @@ func TestRainAttenuation(t *testing.T) {
 		t.Errorf("stop without rate: %v", err)
 	}
 }
+
+// TestFlatSeaMultipath: over a flat sea (reflection coefficient −1) the
+// one-way factor is F = 2·|sin(2π·h1·h2/(λ·R))| (the flat-earth two-ray
+// model, from memory): at the first lobe peak R = 4·h1·h2/λ the echo
+// gains F⁴ = 16 (+12.04 dB), at the null R = 2·h1·h2/λ it vanishes.
+func TestFlatSeaMultipath(t *testing.T) {
+	lambda := C / 9.5e9
+	h1, h2 := 10.0, 5.0
+	peakR, nullR := 4*h1*h2/lambda, 2*h1*h2/lambda
+	if f := dsp.FlatSeaFactor(h1, h2, peakR, lambda); math.Abs(f-2) > 1e-12 {
+		t.Fatalf("F at the lobe peak %.6f", f)
+	}
+	scene := func(prop string, r float64) TargetReport {
+		doc := `{"version":1,"radar":{"antenna_height_m":10,"peak_power_w":1e4,"sample_rate_hz":2e6,"pri_s":1e-4,"window_start_m":2000,"window_stop_m":14000},
+			"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e6},` + prop + `
+			"targets":[{"id":"mast","kind":"point","range_m":` + fmtFloat(r) + `,"rcs_dbsm":10,"height_m":5}]}`
+		return target(mustEvaluate(t, mustDecode(t, doc)), "mast")
+	}
+	free, sea := scene("", peakR), scene(`"propagation":{"multipath":"flat_sea"},`, peakR)
+	if d := sea.SNRDB - free.SNRDB; math.Abs(d-40*math.Log10(2)) > 1e-6 {
+		t.Errorf("lobe peak: snr_db gains %.4f dB, want 12.04", d)
+	}
+	if !strings.Contains(sea.Reason, "gains 12.0 dB") {
+		t.Errorf("reason: %s", sea.Reason)
+	}
+	null := scene(`"propagation":{"multipath":"flat_sea"},`, nullR)
+	if null.Status == StatusDetected || !strings.Contains(null.Reason, "cancels its echo") {
+		t.Errorf("null: %s: %s", null.Status, null.Reason)
+	}
+	_, err := Decode([]byte(`{"version":1,"waveform":{"kind":"rect","pulse_width_s":1e-6},"propagation":{"multipath":"flat_sea"}}`))
+	if err == nil || !strings.Contains(err.Error(), "propagation.multipath: flat_sea needs radar.antenna_height_m") {
+		t.Errorf("without antenna height: %v", err)
+	}
+}

@@ -53,11 +53,13 @@ type Propagation struct {
 	RainStartM       float64 `json:"rain_start_m,omitempty"`      // m, near edge of the rain (default 0)
 	RainStopM        float64 `json:"rain_stop_m,omitempty"`       // m, far edge (default: unbounded)
 	RainPolarisation string  `json:"rain_polarisation,omitempty"` // horizontal (default) or vertical
+	Multipath        string  `json:"multipath,omitempty"`         // none (default) or flat_sea
 }
 
 var (
-	propagationFields = []string{"rain_rate_mm_h", "rain_start_m", "rain_stop_m", "rain_polarisation"}
+	propagationFields = []string{"rain_rate_mm_h", "rain_start_m", "rain_stop_m", "rain_polarisation", "multipath"}
 	polarisations     = []string{"horizontal", "vertical"}
+	multipaths        = []string{"none", "flat_sea"}
 )
 
 func (o *object) decodePropagation(p *Propagation) {
@@ -76,6 +78,10 @@ func (o *object) decodePropagation(p *Propagation) {
 			}
 		}
 	}
+	p.Multipath = "none"
+	if o.str("multipath", &p.Multipath) {
+		o.oneOf("multipath", p.Multipath, multipaths)
+	}
 	o.finish(propagationFields...)
 }
 
@@ -85,6 +91,9 @@ const maxRainStopM = 1e8
 
 func (s *Scenario) validatePropagation(c checker) {
 	p := s.Propagation
+	if p.Multipath == "flat_sea" && s.Radar.AntennaHeightM == 0 && !c.errs.has("radar.antenna_height_m") {
+		c.errs.add("propagation.multipath", "flat_sea needs radar.antenna_height_m (above 0, at most 100000 m): the reflected ray's path comes from the antenna's and the targets' heights")
+	}
 	if p.RainRateMMH == 0 && !c.errs.has("propagation.rain_rate_mm_h") {
 		return
 	}
@@ -102,13 +111,43 @@ func (s *Scenario) validatePropagation(c checker) {
 func canonicalPropagation(p Propagation) ordered {
 	var o ordered
 	if p.RainRateMMH == 0 {
+		o.put("multipath", p.Multipath, "none")
 		return o
 	}
 	o = append(o, member{"rain_rate_mm_h", p.RainRateMMH})
 	o.put("rain_start_m", p.RainStartM, 0.0)
 	o.put("rain_stop_m", p.RainStopM, maxRainStopM)
 	o.put("rain_polarisation", p.RainPolarisation, "horizontal")
+	o.put("multipath", p.Multipath, "none")
 	return o
+}
+
+// multipathDB returns a point target's two-way multipath gain over a flat
+// sea, dB (40·log10 F; negative is a loss), and false when the option is
+// off. F = 0 (a null, or a target on the surface) gives −Inf.
+func (m *model) multipathDB(t Target) (float64, bool) {
+	if m.s.Propagation.Multipath != "flat_sea" || t.Kind != TargetPoint || m.s.Radar.AntennaHeightM <= 0 || t.RangeM <= 0 {
+		return 0, false
+	}
+	f := dsp.FlatSeaFactor(m.s.Radar.AntennaHeightM, t.HeightM, t.RangeM, m.lambda)
+	return 40 * math.Log10(f), true
+}
+
+func (m *model) multipathWords(g *tgt) string {
+	if !g.multipath {
+		return ""
+	}
+	if math.IsInf(g.multipathDB, -1) || g.multipathDB < dbFloor {
+		return fmt.Sprintf(" Multipath over the flat sea cancels its echo: the sea's reflection arrives in antiphase with the direct ray (antenna %.0f m, target %.0f m high).", m.s.Radar.AntennaHeightM, g.t.HeightM)
+	}
+	if math.Abs(g.multipathDB) < 0.05 {
+		return ""
+	}
+	what := "gains"
+	if g.multipathDB < 0 {
+		what = "loses"
+	}
+	return fmt.Sprintf(" Multipath over the flat sea: its echo %s %.1f dB (two-way pattern-propagation factor F⁴, antenna %.0f m, target %.0f m high).", what, math.Abs(g.multipathDB), m.s.Radar.AntennaHeightM, g.t.HeightM)
 }
 
 // rainLossDB returns the two-way rain attenuation (dB) of an echo from

@@ -147,11 +147,14 @@ func randomScenario(r *rand.Rand) *Scenario {
 		f.STCStartM = u(1, 5000)
 		f.STCStopM, f.STCExponent = f.STCStartM+u(1, 2e4), float64(1+r.IntN(8))
 	}
-	s.Propagation = Propagation{RainStopM: maxRainStopM, RainPolarisation: "horizontal"}
+	s.Propagation = Propagation{RainStopM: maxRainStopM, RainPolarisation: "horizontal", Multipath: "none"}
 	if r.IntN(3) == 0 {
 		s.Radar.CarrierHz = u(1e9, 5e10)
-		s.Propagation = Propagation{RainRateMMH: u(0.1, 100), RainStartM: u(0, 1e4), RainPolarisation: pick(polarisations)}
+		s.Propagation = Propagation{RainRateMMH: u(0.1, 100), RainStartM: u(0, 1e4), RainPolarisation: pick(polarisations), Multipath: "none"}
 		s.Propagation.RainStopM = s.Propagation.RainStartM + u(1, 1e5)
+	}
+	if s.Radar.AntennaHeightM > 0 && r.IntN(2) == 0 {
+		s.Propagation.Multipath = "flat_sea"
 	}
 	return s
 }

@@ -110,6 +110,8 @@ type tgt struct {
 	slowVar, skirtVarDB           float64
 	hidden                        bool    // point: beyond the radar horizon (horizon.go)
 	rainLossDB                    float64 // point: two-way rain attenuation at its range, dB
+	multipathDB                   float64 // point: two-way multipath gain over a flat sea, dB (may be −Inf)
+	multipath                     bool
 }
 
 func streamOf(seed int64, id string, salt uint64) *rand.Rand {
@@ -227,6 +229,9 @@ func (sc *scene) point(j int, g *tgt, lp *localPlan) {
 	pr := dsp.ReceivedPower(r.PeakPowerW, dsp.FromDB(r.AntennaGainDBi), m.lambda, sigma, g.t.RangeM, dsp.FromDB(r.SystemLossDB))
 	g.rainLossDB = m.rainLossDB(g.t.RangeM)
 	g.amp = math.Sqrt(pr / m.noiseW * dsp.FromDB(-g.rainLossDB))
+	if g.multipathDB, g.multipath = m.multipathDB(g.t); g.multipath {
+		g.amp *= math.Pow(10, math.Max(g.multipathDB, -400)/20)
+	}
 	g.phase = cmplx.Rect(1, -4*math.Pi*math.Mod(g.t.RangeM/m.lambda, 1))
 	start := 2 * g.apparent / C // echo leading edge after the transmit edge, s
 	g.delay = start - m.t0

@@ -248,12 +248,14 @@ export const frontEndGroups = [
     ],
   },
   {
-    // propagation (added in version 2): rain on the path, ITU-R P.838-2.
-    title: 'Rain on the path', base: 'propagation', fields: [
+    // propagation (added in version 2): rain on the path (ITU-R P.838-2)
+    // and multipath over a flat sea (needs the radar's antenna height).
+    title: 'Path: rain and sea multipath', base: 'propagation', fields: [
       f('rain_rate_mm_h', 'Rain rate', 'mm/h', 1, 'num', { hint: 'none' }),
       f('rain_polarisation', 'Polarisation', '', 1, 'select', { options: ['horizontal', 'vertical'], def: 'horizontal' }),
       f('rain_start_m', 'From', 'm', 1, 'num', { def: 0 }),
       f('rain_stop_m', 'To', 'm', 1, 'num', { hint: 'whole path' }),
+      f('multipath', 'Multipath', '', 1, 'select', { options: [['none', 'none'], ['flat_sea', 'flat sea']], def: 'none' }),
     ],
   },
 ];
