@@ -1,6 +1,7 @@
 package scenarios
 
 import (
+	"context"
 	"errors"
 	"math"
 	"reflect"
@@ -478,5 +479,24 @@ func TestFlatSeaMultipath(t *testing.T) {
 	_, err := Decode([]byte(`{"version":1,"waveform":{"kind":"rect","pulse_width_s":1e-6},"propagation":{"multipath":"flat_sea"}}`))
 	if err == nil || !strings.Contains(err.Error(), "propagation.multipath: flat_sea needs radar.antenna_height_m") {
 		t.Errorf("without antenna height: %v", err)
+	}
+}
+
+// BenchmarkEvaluateFrontEnd: the 32-pulse two-target scene with and
+// without a phase-noise profile and an ADC (the skirts' cost).
+func BenchmarkEvaluateFrontEnd(b *testing.B) {
+	for _, c := range []struct{ name, fe string }{
+		{"ideal", ""},
+		{"phase-noise+adc", `{"phase_noise_offsets_hz":[100,3000,30000],"phase_noise_dbc_hz":[-70.5,-70.5,-130],"adc_bits":12,"adc_full_scale_db":50}`},
+	} {
+		b.Run(c.name, func(b *testing.B) {
+			s := mustDecode(b, pnScene(c.fe))
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := Evaluate(context.Background(), s); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
 	}
 }
