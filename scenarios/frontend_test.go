@@ -213,7 +213,7 @@ func TestSTCAttenuation(t *testing.T) {
 // 0.1 dB.
 func TestADCQuantisationMasks(t *testing.T) {
 	ca := `{"kind":"ca_cfar","pfa":1e-6,"guard_cells":8,"training_cells":32}`
-	doc := lfmScene(`{"kind":"none"}`, ca, pointJSON("far", 8000, rcsFor(16.9, 8000)))
+	doc := lfmScene(`{"kind":"none"}`, ca, pointJSON("far", 8000, rcsFor(16.0, 8000)))
 	if f := target(mustEvaluate(t, mustDecode(t, doc)), "far"); f.Status != StatusDetected || *f.MarginDB > 1.9 {
 		t.Fatalf("without the ADC: %s, margin %.2f dB (want detected under 1.9 dB)", f.Status, *f.MarginDB)
 	}
@@ -380,7 +380,7 @@ func TestRadarHorizon(t *testing.T) {
 		t.Errorf("horizon %.1f m, want 22.2 km", d)
 	}
 	scene := func(radar string, r float64) *Result {
-		doc := `{"version":1,"radar":{` + radar + `"peak_power_w":1e5,"sample_rate_hz":2e6,"pri_s":3e-4,"window_start_m":15000,"window_stop_m":30000},
+		doc := `{"version":2,"radar":{` + radar + `"peak_power_w":1e5,"sample_rate_hz":2e6,"pri_s":3e-4,"window_start_m":15000,"window_stop_m":30000},
 			"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e6},
 			"targets":[{"id":"boat","kind":"point","range_m":` + fmtFloat(r) + `,"rcs_dbsm":20,"height_m":5}]}`
 		return mustEvaluate(t, mustDecode(t, doc))
@@ -460,7 +460,7 @@ func TestFlatSeaMultipath(t *testing.T) {
 		t.Fatalf("F at the lobe peak %.6f", f)
 	}
 	scene := func(prop string, r float64) TargetReport {
-		doc := `{"version":1,"radar":{"antenna_height_m":10,"peak_power_w":1e4,"sample_rate_hz":2e6,"pri_s":1e-4,"window_start_m":2000,"window_stop_m":14000},
+		doc := `{"version":2,"radar":{"antenna_height_m":10,"peak_power_w":1e4,"sample_rate_hz":2e6,"pri_s":1e-4,"window_start_m":2000,"window_stop_m":14000},
 			"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e6},` + prop + `
 			"targets":[{"id":"mast","kind":"point","range_m":` + fmtFloat(r) + `,"rcs_dbsm":10,"height_m":5}]}`
 		return target(mustEvaluate(t, mustDecode(t, doc)), "mast")
@@ -476,7 +476,7 @@ func TestFlatSeaMultipath(t *testing.T) {
 	if null.Status == StatusDetected || !strings.Contains(null.Reason, "cancels its echo") {
 		t.Errorf("null: %s: %s", null.Status, null.Reason)
 	}
-	_, err := Decode([]byte(`{"version":1,"waveform":{"kind":"rect","pulse_width_s":1e-6},"propagation":{"multipath":"flat_sea"}}`))
+	_, err := Decode([]byte(`{"version":2,"waveform":{"kind":"rect","pulse_width_s":1e-6},"propagation":{"multipath":"flat_sea"}}`))
 	if err == nil || !strings.Contains(err.Error(), "propagation.multipath: flat_sea needs radar.antenna_height_m") {
 		t.Errorf("without antenna height: %v", err)
 	}

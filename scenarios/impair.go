@@ -500,11 +500,15 @@ func (sc *scene) impairmentReason(g *tgt, v verdict, det string) string {
 		}
 	}
 	if v.byCell || v.cell >= v.sceneLevel {
-		return fmt.Sprintf("Masked by %s: it puts %.1f dB more power into %s's cell than %s's own peak, which would clear the noise-only threshold by %.1f dB.",
-			what, dsp.DB(v.cell/v.peak), id, id, clear)
+		if v.cell >= v.peak {
+			return fmt.Sprintf("Masked by %s: it puts %.1f dB more power into %s's cell than %s's own peak, which would clear the noise-only threshold by %.1f dB.",
+				what, dsp.DB(v.cell/v.peak), id, id, clear)
+		}
+		return fmt.Sprintf("Masked by %s: it puts power only %.1f dB under %s's own peak into %s's cell, which lifts the threshold there.",
+			what, dsp.DB(v.peak/v.cell), id, id)
 	}
-	return fmt.Sprintf("Masked by %s through the %s: it lifts the threshold %.1f dB above %s's peak, which would clear the noise-only threshold by %.1f dB.",
-		what, det, dsp.DB(v.threshold/v.peak), id, clear)
+	return fmt.Sprintf("Masked by %s through the %s: it lifts the threshold %s %s's peak, which would clear the noise-only threshold by %.1f dB.",
+		what, det, lift(v), id, clear)
 }
 
 // densityShape returns a distributed target's density (window samples

@@ -204,18 +204,31 @@ func (t pdTest) pd(r float64) (float64, bool) {
 	return d.Pd(t.snr), true
 }
 
-// pdFigures sets pd, pd_alone, snr_required_db and pd_margin_db of a
-// point target with verdict v; alone is the threshold of its cell with
-// the other targets removed (its own sidelobes kept).
-func (m *model) pdFigures(g *tgt, v verdict, alone float64, train bool, out *TargetReport) {
-	if v.status == StatusOutOfWindow || g.rejected || !(v.noiseLevel > 0) {
-		return
-	}
-	t, ok := m.pdTestFor(g, v, train)
+// withSNR returns t for a target of SNR snr (linear) at the same cell.
+func (t pdTest) withSNR(snr float64) pdTest {
+	t.snr = snr
+	return t
+}
+
+// pdAt is pd with 0 where the series cannot reach the raised threshold.
+func (t pdTest) pdAt(r float64) float64 {
+	p, ok := t.pd(r)
 	if !ok {
+		return 0
+	}
+	return p
+}
+
+// pdFigures sets pd, pd_alone, snr_required_db and margin_db of a point
+// target with verdict v (its Pd test and Pd in the scene set by decide);
+// alone is the threshold of its cell with the other targets removed (its
+// own sidelobes kept).
+func (m *model) pdFigures(v verdict, alone float64, out *TargetReport) {
+	if !v.hasPd {
 		return
 	}
-	if p, ok := t.pd(math.Max(v.threshold/v.noiseLevel, 1)); ok && p >= 0 && p <= 1 {
+	t := v.test
+	if p := v.pdScene; v.sceneOK && p >= 0 && p <= 1 {
 		out.Pd = &p
 	}
 	if p, ok := t.pd(math.Max(alone/v.noiseLevel, 1)); ok && p >= 0 && p <= 1 {
@@ -225,7 +238,7 @@ func (m *model) pdFigures(g *tgt, v verdict, alone float64, train bool, out *Tar
 		rdb := dsp.DB(req)
 		mdb := dsp.DB(t.snr) - rdb
 		if !math.IsInf(rdb, 0) && !math.IsNaN(rdb) && !math.IsInf(mdb, 0) && !math.IsNaN(mdb) {
-			out.SNRRequiredDB, out.PdMarginDB = &rdb, &mdb
+			out.SNRRequiredDB, out.MarginDB = &rdb, &mdb
 		}
 	}
 }

@@ -54,13 +54,13 @@ const (
 var statusStyle = map[string]struct{ colour, symbol string }{
 	// The page's cards and table use the same colours and shapes
 	// (web/static/css: --st-* and .dot).
-	scenarios.StatusDetected:    {"#2f7d3a", "circle"},
-	scenarios.StatusMasked:      {"#c2410c", "diamond"},
-	scenarios.StatusBelowNoise:  {"#7b8389", "emptyCircle"},
-	scenarios.StatusEclipsed:    {"#6d3fc0", "triangle"},
-	scenarios.StatusOutOfWindow: {"#1b6aa5", "rect"},
-	// Hidden by the Earth's curvature (front-end helper; css/frontend.css).
-	scenarios.StatusBelowHorizon: {"#8a6d3b", "pin"},
+	scenarios.StatusDetected:     {"#2f7d3a", "circle"},
+	scenarios.StatusMasked:       {"#c2410c", "diamond"},
+	scenarios.StatusTooWeak:      {"#7b8389", "emptyCircle"},
+	scenarios.StatusEclipsed:     {"#6d3fc0", "triangle"},
+	scenarios.StatusFolded:       {"#a16207", "pin"},
+	scenarios.StatusOutOfWindow:  {"#1b6aa5", "rect"},
+	scenarios.StatusBelowHorizon: {"#0f766e", "arrow"}, // hidden by the Earth's curvature
 }
 
 // chartOut is one chart of a frame: its full option, and the series data
@@ -340,7 +340,7 @@ func markers(res *scenarios.Result, lo, hi float64) []marker {
 	for _, t := range res.Report.Targets {
 		st, ok := statusStyle[t.Status]
 		if !ok {
-			st = statusStyle[scenarios.StatusBelowNoise]
+			st = statusStyle[scenarios.StatusTooWeak]
 		}
 		x := clampAmp(t.RangeM)
 		at := x
