@@ -294,6 +294,11 @@ func TestDiffModel(t *testing.T) {
 					if !cmp || f == "eclipsing_loss_db" && wx > 100 {
 						continue
 					}
+					// Beyond 100 dB of eclipsing loss the peak left is
+					// rounding: so is its SNR over snr_required_db.
+					if el, _ := want["eclipsing_loss_db"].(float64); f == "margin_db" && el > 100 {
+						continue
+					}
 					// Beyond 3 dB of Doppler loss the ambiguity cut of a
 					// short pulse breaks into near-equal humps: where the
 					// peak sits is ill-conditioned (README.md).
