@@ -212,8 +212,14 @@ func canonicalTarget(t Target) ordered {
 			o.put(f, t.RangeStartM, nil)
 		case "range_stop_m":
 			o.put(f, t.RangeStopM, nil)
-		case "rcs_dbsm_per_m":
-			o.put(f, t.RCSDBsmPerM, nil)
+		case "rcs_dbsm_per_m", "sigma0_db", "gamma_db":
+			if t.levelField() == f {
+				o.put(f, t.levelValue(), nil)
+			}
+		case "role":
+			if t.Role == RoleTarget {
+				o.put(f, t.Role, nil)
+			}
 		case "reflectivity_dbz":
 			o.put(f, t.ReflectivityDBZ, nil)
 		case "velocity_spread_mps":

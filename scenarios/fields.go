@@ -60,8 +60,8 @@ var detectorFields = map[string][]string{
 
 var targetFields = map[string][]string{
 	TargetPoint:    {"range_m", "rcs_dbsm", "range_rate_mps", "fluctuation", "height_m"},
-	TargetExtended: {"range_start_m", "range_stop_m", "rcs_dbsm_per_m", "range_rate_mps", "velocity_spread_mps"},
-	TargetVolume:   {"range_start_m", "range_stop_m", "reflectivity_dbz", "range_rate_mps", "velocity_spread_mps"},
+	TargetExtended: {"range_start_m", "range_stop_m", "rcs_dbsm_per_m", "sigma0_db", "gamma_db", "range_rate_mps", "velocity_spread_mps", "role"},
+	TargetVolume:   {"range_start_m", "range_stop_m", "reflectivity_dbz", "range_rate_mps", "velocity_spread_mps", "role"},
 }
 
 func (o *object) decodeRadar(r *Radar) {
@@ -372,13 +372,16 @@ func (o *object) decodeTarget(t *Target) {
 		o.require("range_stop_m", "the far edge in m")
 		o.float("range_stop_m", &t.RangeStopM)
 		if t.Kind == TargetExtended {
-			o.require("rcs_dbsm_per_m", "the RCS per metre of range in dBsm")
-			o.float("rcs_dbsm_per_m", &t.RCSDBsmPerM)
+			o.surfaceLevel(t)
 		} else {
 			o.require("reflectivity_dbz", "the reflectivity factor in dBZ")
 			o.float("reflectivity_dbz", &t.ReflectivityDBZ)
 		}
 		o.float("velocity_spread_mps", &t.VelocitySpreadMPS)
+		t.Role = RoleClutter
+		if o.str("role", &t.Role) {
+			o.oneOf("role", t.Role, roles)
+		}
 	}
 	o.float("range_rate_mps", &t.RangeRateMPS)
 	o.used["id"] = true

@@ -10,7 +10,7 @@ import (
 // FrontEnd holds the receiver's and oscillator's impairments (added in
 // format version 2, all optional): each is off when its fields are absent,
 // so a scenario without front_end keeps its meaning. Docs:
-// docs/scenario-format.md, "front_end"; docs/detection.md §10.
+// docs/scenario-format.md, "front_end"; docs/detection.md §11.
 type FrontEnd struct {
 	// Phase noise of the one oscillator that drives the transmitter and
 	// serves as the receiver's local oscillator: single-sideband L(f) in

@@ -61,7 +61,7 @@ func TestPhaseNoiseSkirtMasks(t *testing.T) {
 }
 
 // TestPhaseNoiseAnalysisMatchesSimulation: the noise-free analysis's skirt
-// (the second-order formula ∫S(f)|χ(t, f)|²df, docs/detection.md §10)
+// (the second-order formula ∫S(f)|χ(t, f)|²df, docs/detection.md §11)
 // against the simulated echo, whose samples are multiplied by
 // exp(jψ(t)) with ψ drawn from the same spectrum: the mean over seeds of
 // the simulated power, noise included, next to a strong target equals
@@ -372,7 +372,7 @@ func TestFrontEndCanonicalRoundTrip(t *testing.T) {
 // below_horizon with no echo, just inside it is detected; without
 // radar.antenna_height_m there is no horizon.
 func TestRadarHorizon(t *testing.T) {
-	d := dsp.RadarHorizon(10, 5, earthRadius43)
+	d := dsp.RadarHorizon(10, 5, dsp.EffectiveEarthRadius)
 	if want := 4.12 * (math.Sqrt(10) + math.Sqrt(5)) * 1e3; math.Abs(d/want-1) > 1e-3 {
 		t.Errorf("horizon %.1f m, rule of thumb %.1f m", d, want)
 	}

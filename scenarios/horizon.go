@@ -9,17 +9,12 @@ import (
 
 // StatusBelowHorizon is the status of a point target hidden by the
 // Earth's curvature: beyond the radar horizon of the antenna's height
-// and its own (docs/detection.md §11).
+// and its own (docs/detection.md §12).
 const StatusBelowHorizon = "below_horizon"
 
-// earthRadius43 is the radius of the 4/3 Earth, m: standard atmospheric
-// refraction bends rays as if the Earth's radius (6371 km, mean) were 4/3
-// larger (common practice; the 4/3-Earth model of radar texts, e.g.
-// Skolnik, Introduction to Radar Systems, from memory).
-const earthRadius43 = 4.0 / 3.0 * 6371e3
-
-// maxHeightM bounds radar.antenna_height_m and a target's height_m, m.
-const maxHeightM = 1e5
+// maxHeightM bounds a target's height_m, m (as MaxAntennaHeightM the
+// antenna's).
+const maxHeightM = MaxAntennaHeightM
 
 // horizon returns the radar horizon for a point target (m) and whether
 // it applies (radar.antenna_height_m given).
@@ -28,7 +23,7 @@ func (m *model) horizon(t Target) (float64, bool) {
 	if h <= 0 || t.Kind != TargetPoint {
 		return 0, false
 	}
-	return dsp.RadarHorizon(h, t.HeightM, earthRadius43), true
+	return dsp.RadarHorizon(h, t.HeightM, dsp.EffectiveEarthRadius), true
 }
 
 // beyondHorizon reports whether a point target lies beyond the horizon.
@@ -47,7 +42,7 @@ func (sc *scene) horizonReason(g *tgt) string {
 // Propagation is the path between the radar and the scene (added in
 // format version 2, optional): rain over a stretch of range. Without it
 // the path is free space. Docs: docs/scenario-format.md "propagation",
-// docs/detection.md §11.
+// docs/detection.md §12.
 type Propagation struct {
 	RainRateMMH      float64 `json:"rain_rate_mm_h,omitempty"`    // mm/h; 0: no rain
 	RainStartM       float64 `json:"rain_start_m,omitempty"`      // m, near edge of the rain (default 0)

@@ -8,7 +8,7 @@ import (
 	"github.com/pulsewright/pulsewright/dsp"
 )
 
-// Receiver front-end impairments (front_end, docs/detection.md §10) in
+// Receiver front-end impairments (front_end, docs/detection.md §11) in
 // the noise-free analysis and the simulated echo.
 
 // extra is power an impairment adds to the noise-free scene: a target's
@@ -262,7 +262,7 @@ func (sc *scene) localResponse(lp *localPlan, x []complex128, b int) response {
 
 // pointSkirt adds point target j's phase-noise skirt: for each offset
 // cell above PRF/2 (fast time), the echo shifted by that offset and
-// compressed, weighted by the cell's power (docs/detection.md §10), and,
+// compressed, weighted by the cell's power (docs/detection.md §11), and,
 // for pulse trains, the offsets below PRF/2 as Doppler tones on its own
 // response. Its own response loses the skirt's share of power.
 func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {

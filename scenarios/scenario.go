@@ -255,7 +255,16 @@ type Target struct {
 	RangeRateMPS      float64 `json:"range_rate_mps,omitempty"`      // m/s, > 0 receding
 	VelocitySpreadMPS float64 `json:"velocity_spread_mps,omitempty"` // extended, volume: rms spread, m/s
 	Fluctuation       string  `json:"fluctuation,omitempty"`         // point: none, swerling1 … swerling4
-	HeightM           float64 `json:"height_m,omitempty"`            // point: height above the surface, m (default 0)
+	// Surface reflectivity of an extended target (clutter.go): Level says
+	// which of RCSDBsmPerM, Sigma0DB and GammaDB is given ("" is
+	// rcs_dbsm_per_m).
+	Sigma0DB float64 `json:"sigma0_db,omitempty"` // extended: σ⁰, dB m²/m²
+	GammaDB  float64 `json:"gamma_db,omitempty"`  // extended: γ of σ⁰ = γ·sin ψ, dB
+	Level    string  `json:"-"`
+	// Role is "clutter" or "target" for extended and volume targets
+	// (clutter.go; "" reads as clutter), "" for point targets.
+	Role    string  `json:"role,omitempty"`
+	HeightM float64 `json:"height_m,omitempty"` // point: height above the surface, m (default 0)
 }
 
 // Wavelength returns λ = c / carrier, m.

@@ -101,7 +101,7 @@ func (s *Scenario) validateRadar(c checker, waveOK bool) {
 	c.between("radar.beamwidth_az_deg", r.BeamwidthAzDeg, 0.1, 90)
 	c.between("radar.beamwidth_el_deg", r.BeamwidthElDeg, 0.1, 90)
 	if r.AntennaHeightM != 0 {
-		c.above("radar.antenna_height_m", r.AntennaHeightM, 0, maxHeightM)
+		c.above("radar.antenna_height_m", r.AntennaHeightM, 0, MaxAntennaHeightM)
 	}
 	c.between("radar.window_start_m", r.WindowStartM, 0, 1e8)
 	if !c.errs.has("radar.window_start_m") {
@@ -338,11 +338,7 @@ func (s *Scenario) validateTargets(c checker) {
 				c.above(p+"range_stop_m", t.RangeStopM, t.RangeStartM, 1e8)
 			}
 			c.between(p+"velocity_spread_mps", t.VelocitySpreadMPS, 0, 1000)
-			if t.Kind == TargetExtended {
-				c.between(p+"rcs_dbsm_per_m", t.RCSDBsmPerM, -150, 60)
-			} else {
-				c.between(p+"reflectivity_dbz", t.ReflectivityDBZ, -40, 80)
-			}
+			s.validateDistributed(c, p, t)
 		}
 	}
 }

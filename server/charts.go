@@ -60,6 +60,7 @@ var statusStyle = map[string]struct{ colour, symbol string }{
 	scenarios.StatusEclipsed:     {"#6d3fc0", "triangle"},
 	scenarios.StatusFolded:       {"#a16207", "pin"},
 	scenarios.StatusOutOfWindow:  {"#1b6aa5", "rect"},
+	scenarios.StatusClutter:      {"#8b5e3c", "roundRect"},
 	scenarios.StatusBelowHorizon: {"#0f766e", "arrow"}, // hidden by the Earth's curvature
 }
 
@@ -306,6 +307,7 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 		key += "+ref"
 	}
 	key += annotate(b, res, g)
+	key += breakthroughMarks(b, res, g)
 	b.line.AddSeries("targets", nil,
 		charts.WithSeriesId(SeriesMarkers),
 		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.Type = "scatter"; s.SymbolSize = 11 }),

@@ -82,6 +82,13 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 			fmt.Fprintf(w, "%s: %s\n", t.ID, line)
 		}
 	}
+	writeClutterText(w, r)
+	for _, t := range r.Targets {
+		if t.DetectionRangeM != nil {
+			fmt.Fprintf(w, "%s: detection range for its RCS %s (where its SNR falls to the %s dB the required Pd needs, R⁴ law).\n",
+				t.ID, scenarios.SI(*t.DetectionRangeM, "m"), fx(*t.SNRRequiredDB, 1))
+		}
+	}
 	for _, warn := range r.Warnings {
 		fmt.Fprintf(w, "warning: %s\n", warn)
 	}

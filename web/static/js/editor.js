@@ -4,10 +4,11 @@
 
 import { $$, getPath, h, setPath } from './dom.js';
 import {
-  convertTarget, detectorFields, isPhaseCode, sciDisplay, kindShort, kindTitle, levelName, levelShort, detectorKinds, fluctuations, fromDisplay, levelKey, levelUnit,
+  convertTarget, detectorFields, isPhaseCode, sciDisplay, kindShort, kindTitle, detectorKinds, fluctuations, fromDisplay, levelKey,
   newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
 } from './schema.js';
 import { describeFields, fieldName, pdText, statusHelp, statusLabel } from './words.js';
+import { clutterFields, levelOf } from './clutter.js';
 import { frontEndBlock } from './frontend.js';
 
 // setField writes a form field into the scenario. A detector field of a
@@ -190,7 +191,7 @@ export class Editor {
   nudge(i, dB) {
     const t = (this.store.scenario.targets || [])[i];
     if (!t) return;
-    const key = levelKey(t.kind);
+    const key = levelKey(t.kind, t);
     this.store.update((s) => {
       const v = (s.targets[i][key] ?? 0) + dB;
       s.targets[i][key] = Math.round(v * 10) / 10;
@@ -244,7 +245,7 @@ export class Editor {
     const t = s.targets || [];
     const rx = s.receiver || {};
     return JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, (rx.detector && rx.detector.kind) || 'ca_cfar',
-      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected]);
+      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => `${x.kind}:${levelKey(x.kind, x)}`), this.selected]);
   }
 
   syncValues(root, s) {
@@ -365,7 +366,8 @@ export class Editor {
   }
 
   targetRow(t, i) {
-    const lk = levelKey(t.kind);
+    const lk = levelKey(t.kind, t);
+    const lv = levelOf(t);
     const num = (key, scale = 1, cls = '') => h('input', {
       type: 'text', inputmode: 'decimal', autocomplete: 'off', class: cls, value: toDisplay(t[key], scale),
       dataset: { path: `targets[${i}].${key}`, type: 'num', scale: String(scale), optional: '1' },
@@ -375,8 +377,8 @@ export class Editor {
     const st = rep ? rep.status : '';
     const level = num(lk);
     level.dataset.level = String(i);
-    level.title = `${levelName[t.kind]} in ${levelUnit[t.kind]}: wheel, or ↑/↓ while this field has the focus, nudges it by 1 dB (Shift: 0.1 dB)`;
-    level.setAttribute('aria-label', `${t.id} ${levelName[t.kind]} (${levelUnit[t.kind]})`);
+    level.title = `${lv.name} in ${lv.unit}: wheel, or ↑/↓ while this field has the focus, nudges it by 1 dB (Shift: 0.1 dB)`;
+    level.setAttribute('aria-label', `${t.id} ${lv.name} (${lv.unit})`);
     const range = num(t.kind === 'point' ? 'range_m' : 'range_start_m');
     range.setAttribute('aria-label', `${t.id} ${t.kind === 'point' ? 'range' : 'near edge'} (m)`);
     range.title = t.kind === 'point' ? 'Range, m' : 'Near edge of the target, m (the far edge is in the form below)';
@@ -390,7 +392,7 @@ export class Editor {
       h('td', {}, h('select', { class: 'kind', dataset: { action: 'target-kind', index: String(i), path: `targets[${i}].kind`, type: 'kind' }, 'aria-label': `${t.id} kind`, title: kindTitle[t.kind] },
         targetKinds.map((k) => h('option', { value: k, selected: k === t.kind, title: kindTitle[k] }, kindShort[k])))),
       h('td', {}, range),
-      h('td', { class: this.mixedKinds ? 'with-unit' : '' }, level, this.mixedKinds ? h('span', { class: 'cell-unit' }, levelUnit[t.kind]) : null),
+      h('td', { class: this.mixedKinds ? 'with-unit' : '' }, level, this.mixedKinds ? h('span', { class: 'cell-unit' }, lv.unit) : null),
       h('td', {}, rate),
       h('td', { class: 'acts' },
         h('button', { type: 'button', class: 'icon', title: 'Duplicate', dataset: { act: 'dup', index: String(i) } }, '+'),
@@ -409,13 +411,13 @@ export class Editor {
         { key: 'fluctuation', label: 'Fluctuation', type: 'select', options: fluctuations, def: 'none' },
         { key: 'height_m', label: 'Height', unit: 'm', def: 0 }]
       : [{ key: 'range_start_m', label: 'Near edge', unit: 'm' }, { key: 'range_stop_m', label: 'Far edge', unit: 'm' },
-        { key: levelKey(t.kind), label: t.kind === 'extended' ? 'RCS per metre' : 'Reflectivity', unit: levelUnit[t.kind] },
+        { key: levelKey(t.kind, t), label: levelOf(t).short === 'Refl.' ? 'Reflectivity' : levelOf(t).name, unit: levelOf(t).unit },
         { key: 'range_rate_mps', label: 'Range rate', unit: 'm/s', def: 0 },
         { key: 'velocity_spread_mps', label: 'Velocity spread', unit: 'm/s rms', def: 0 }];
     return h('div', { class: 'detail' },
       h('div', { class: 'detail-head' }, `Target “${t.id}” · ${kindTitle[t.kind]}`),
       h('div', { class: 'err block', dataset: { errFor: base } }),
-      h('div', { class: 'grid' }, fds.map((fd) => this.field(s, base, { scale: 1, type: 'num', ...fd }))));
+      h('div', { class: 'grid' }, fds.map((fd) => this.field(s, base, { scale: 1, type: 'num', ...fd })), clutterFields(this, s, i, t)));
   }
 
   renderTargets(s, full) {
@@ -432,16 +434,16 @@ export class Editor {
       for (const input of $$('input.id', root)) input.title = input.value;
       return;
     }
-    const kinds = [...new Set(targets.map((t) => t.kind))];
+    const kinds = [...new Set(targets.map((t) => levelOf(t).unit))];
     this.mixedKinds = kinds.length > 1;
-    const one = kinds.length === 1 ? kinds[0] : null;
+    const one = kinds.length === 1 ? levelOf(targets[0]) : null;
     const head = (name, unit, title) => h('th', { title }, h('span', { class: 'th-name' }, name), h('span', { class: 'th-unit' }, unit));
     root.replaceChildren(
       h('table', { class: 'targets' },
         h('thead', {}, h('tr', {},
           h('th', {}, ''), head('Target', '', 'Target id'), head('Kind', '', 'point, extended (ext.) or volume (vol.)'),
           head('Range', '(m)', 'Range of a point target, near edge of an extended or volume target, in metres'),
-          one ? head(levelShort[one], `(${levelUnit[one]})`, `${levelName[one]} in ${levelUnit[one]}`)
+          one ? head(one.short, `(${one.unit})`, `${one.name} in ${one.unit}`)
             : head('Level', '(per row)', 'RCS of a point target (dBsm), RCS per metre of an extended one (dBsm/m), reflectivity of a volume (dBZ)'),
           head('Rate', '(m/s)', 'Range rate in metres per second; negative: closing'), h('th', {}, ''))),
         h('tbody', {}, targets.map((t, i) => this.targetRow(t, i)))),

@@ -3,6 +3,7 @@
 
 import { h } from './dom.js';
 import { waveformKinds } from './schema.js';
+import { clutterNums, clutterSummary } from './clutter.js';
 import { pdText, statusHelp, statusLabel } from './words.js';
 
 const fmt = (v, digits = 1) => (v === undefined || v === null || !Number.isFinite(v) ? '—' : v.toFixed(digits));
@@ -80,7 +81,8 @@ export function renderFigures(root, report, reference, computeMs) {
         t.masked_by ? h('span', {}, `masked by ${t.masked_by}`) : null,
         t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null,
         t.doppler_hz ? h('span', { class: 'dop', title: 'Doppler shift of the echo, and the shift of its compressed peak in range (range–Doppler coupling)' },
-          `Doppler ${t.doppler_hz > 0 ? '+' : ''}${eng(t.doppler_hz, 'Hz')} · peak shift ${t.range_shift_m > 0 ? '+' : ''}${fmt(t.range_shift_m, 2)} m`) : null),
+          `Doppler ${t.doppler_hz > 0 ? '+' : ''}${eng(t.doppler_hz, 'Hz')} · peak shift ${t.range_shift_m > 0 ? '+' : ''}${fmt(t.range_shift_m, 2)} m`) : null,
+        ...clutterNums(t)),
       h('div', { class: 'reason' }, t.reason || ''));
   });
 
@@ -91,6 +93,7 @@ export function renderFigures(root, report, reference, computeMs) {
     h('h3', {}, 'Targets'),
     (report.targets || []).length ? h('p', { class: 'muted small nums-help' }, NumbersHelp) : null,
     cards.length ? h('ul', { class: 'tcards' }, cards) : h('p', { class: 'muted' }, 'No targets in the scene.'),
+    clutterSummary(report),
     (report.warnings || []).length
       ? h('div', { class: 'warnings' }, h('h3', {}, 'Warnings'), h('ul', {}, report.warnings.map((m) => h('li', {}, m))))
       : null,

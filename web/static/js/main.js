@@ -11,6 +11,7 @@ import { Store } from './store.js';
 import { initLibrary } from './library.js';
 import { initKeys } from './keys.js';
 import { initFocus } from './focus.js';
+import { initPdCurves } from './pdcurves.js';
 import { printablePNG } from './export.js';
 import { Staleness } from './stale.js';
 import { initCopyLink } from './copylink.js';
@@ -60,7 +61,7 @@ const session = new Session({ onFrame, onError, onStatus });
 const plots = new Plots({
   profile: $('#chart-profile'), echo: $('#chart-echo'), response: $('#chart-response'), ambiguity: $('#chart-ambiguity'),
   ambcuts: $('#chart-ambcuts'), rdmap: $('#chart-rdmap'), rdcuts: $('#chart-rdcuts'),
-  pulse: $('#chart-pulse'), filter: $('#chart-filter'),
+  pulse: $('#chart-pulse'), filter: $('#chart-filter'), pdcurves: $('#chart-pdcurves'),
 }, {
   onView: (range, width, mapWidth) => session.sendView(range, width, mapWidth),
   onDrag: (id, r) => editor.moveTo(id, r),
@@ -78,6 +79,7 @@ const plots = new Plots({
   hoverCard,
 });
 const focusUI = initFocus({ plots, frame: () => lastFrame });
+const pdCurves = initPdCurves({ plots, scenario: () => store.scenario });
 window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, focus: focusUI.focus };
 
 store.onChange((s, cause) => {
@@ -154,6 +156,7 @@ function applyFrame() {
   lastApplyAt = t0;
   plots.apply(f);
   focusUI.refresh();
+  pdCurves.refresh(f);
   const t1 = performance.now();
   panels(f);
   if (session.sent.has(f.id) && f.id > lastErrorId) {

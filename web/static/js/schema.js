@@ -7,6 +7,8 @@ export const C = 299792458;
 
 // A field: path relative to its object, label, unit, scale, type
 // ('num' | 'int' | 'text' | 'select'), options, default shown as a hint.
+import { surfaceKey } from './clutter.js';
+
 const f = (key, label, unit = '', scale = 1, type = 'num', extra = {}) => ({ key, label, unit, scale, type, ...extra });
 
 export const radarFields = [
@@ -156,8 +158,10 @@ export function sciDisplay(v) {
   return v.toExponential().replace(/\.?0+e/, 'e').replace('e+', 'e');
 }
 
-// The level field of a target kind and its unit.
-export function levelKey(kind) {
+// The level field of a target kind and its unit; an extended target t
+// may give σ⁰ or γ instead of its RCS per metre (clutter.js).
+export function levelKey(kind, t) {
+  if (kind === 'extended' && t) return surfaceKey(t);
   return kind === 'extended' ? 'rcs_dbsm_per_m' : kind === 'volume' ? 'reflectivity_dbz' : 'rcs_dbsm';
 }
 export const levelUnit = { point: 'dBsm', extended: 'dBsm/m', volume: 'dBZ' };
