@@ -3,7 +3,6 @@ package scenarios
 import (
 	"context"
 	"math"
-	"strconv"
 	"strings"
 	"testing"
 
@@ -134,8 +133,6 @@ func surface(t *testing.T, radarExtra, level string, start, stop float64) *Resul
 	 "targets": [{"id": "sea", "kind": "extended", "range_start_m": ` + ftoa(start) + `, "range_stop_m": ` + ftoa(stop) + `, ` + level + `}]}`
 	return mustEvaluate(t, mustDecode(t, doc))
 }
-
-func ftoa(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
 
 func TestSurfacePatchInReport(t *testing.T) {
 	// σ⁰ = −20 dB, θ = 1°, c/2B = 15 m: σ_c = 14.18 dBsm at 10 km

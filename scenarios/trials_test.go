@@ -21,8 +21,6 @@ import (
 
 const mcConf = 0.99
 
-func ftoa(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
-
 // mcTarget is a point target whose tested SNR is tuned to snrDB.
 type mcTarget struct {
 	id, fluct string
