@@ -69,6 +69,12 @@ func (s *Scenario) canonical() ordered {
 		}
 		o = append(o, member{"targets", ts})
 	}
+	if f := canonicalFrontEnd(s.FrontEnd); len(f) > 0 {
+		o = append(o, member{"front_end", f})
+	}
+	if p := canonicalPropagation(s.Propagation); len(p) > 0 {
+		o = append(o, member{"propagation", p})
+	}
 	if len(s.View) > 0 {
 		o = append(o, member{"view", s.View})
 	}
@@ -203,6 +209,8 @@ func canonicalTarget(t Target) ordered {
 			o.put(f, t.RangeRateMPS, 0.0)
 		case "fluctuation":
 			o.put(f, t.Fluctuation, FluctuationNone)
+		case "height_m":
+			o.put(f, t.HeightM, 0.0)
 		case "range_start_m":
 			o.put(f, t.RangeStartM, nil)
 		case "range_stop_m":

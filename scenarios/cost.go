@@ -122,6 +122,23 @@ func EstimateCost(s *Scenario) Cost {
 	if points > 0 {
 		add("targets", fmt.Sprintf("%d point targets", len(s.Targets)-nDist), float64(costPerPoint)*points)
 	}
+	if f := s.FrontEnd; f.Any() {
+		// The impairments' extra responses (impair.go): a floor per window
+		// sample for the ADC, a compressed constant for the DC offset, and
+		// up to three responses per target for its skirt and image (an
+		// estimate by analogy with the targets' own terms, not calibrated).
+		var b float64
+		if f.ADCBits > 0 {
+			b += 8 * float64(n)
+		}
+		if f.DCOffsetDB != nil {
+			b += 8*float64(n) + float64(costPerFFTPoint)*float64(nfft)
+		}
+		if f.PhaseNoise() || f.IQ() {
+			b += 3 * (float64(costPerPoint)*points + float64(costPerSpread)*spread)
+		}
+		add("front_end", "the front end's skirts, images and floors", b)
+	}
 	sort.SliceStable(c.Drivers, func(i, j int) bool { return c.Drivers[i].Bytes > c.Drivers[j].Bytes })
 	c.Bytes = costBase
 	for _, d := range c.Drivers {

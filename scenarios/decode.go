@@ -80,6 +80,13 @@ func decodeWith(data []byte, upgrades map[int]upgrade) (*Scenario, error) {
 		o.decodeReceiver(&s.Receiver)
 	}
 	top.targets(&s.Targets)
+	if o, ok := top.child("front_end"); ok {
+		o.decodeFrontEnd(&s.FrontEnd)
+	}
+	s.Propagation = Propagation{RainStopM: maxRainStopM, RainPolarisation: "horizontal", Multipath: "none"}
+	if o, ok := top.child("propagation"); ok {
+		o.decodePropagation(&s.Propagation)
+	}
 	top.view(&s.View)
 	top.finish(topFields...)
 	s.fillDerived(&errs)

@@ -145,6 +145,8 @@ func TestScenarioFormatDocumentsEveryField(t *testing.T) {
 	sameSet(t, "receiver.taps", firstNames(t, table("fields: taps")), tapsFields)
 	sameSet(t, "radar.schedule", firstNames(t, table("fields: schedule")), scheduleFields)
 	sameSet(t, "radar.schedule.cpis", firstNames(t, table("fields: cpi")), cpiFields)
+	sameSet(t, "front_end", firstNames(t, table("fields: frontend")), frontEndFields)
+	sameSet(t, "propagation", firstNames(t, table("fields: propagation")), propagationFields)
 
 	kinds := []struct {
 		name   string

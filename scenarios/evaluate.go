@@ -254,7 +254,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 			sc.train.report(j, v, single, bin, &tr)
 		}
 		hinted := false
-		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && v.status != StatusFolded && v.status != StatusClutter && budget > 0 && ctx.Err() == nil {
+		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && v.status != StatusFolded && v.status != StatusClutter && v.status != StatusBelowHorizon && budget > 0 && ctx.Err() == nil {
 			if hint := suggestFix(ctx, m, j, v, &budget); hint != "" {
 				tr.Reason += " " + hint
 				hinted = true
@@ -305,11 +305,20 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.ChiFigures, dopLoss float
 	if l, ok := g.eclipseLossDB(m.processed); ok {
 		v -= l
 	}
-	if g.rejected {
+	if g.rejected || g.hidden {
 		return dbFloor
 	}
 	if g.outOfBand && g.t.Kind == TargetPoint {
 		v -= g.bandLossDB
+	}
+	v -= g.stcLossDB // the STC's attenuation at its range (front_end)
+	if g.t.Kind == TargetPoint {
+		v -= g.rainLossDB
+		if g.multipath {
+			v += g.multipathDB
+		}
+	} else {
+		v -= m.rainLossDB(rangeM)
 	}
 	return math.Max(v, dbFloor)
 }
@@ -331,19 +340,28 @@ func (sc *scene) window(workers int) Series {
 	x := make([]complex128, m.recLen+m.lead)
 	echo := x[m.lead:]
 	for _, g := range sc.targets {
+		pn := sc.fe.newPNEcho(m, g, 1, m.s.Seed)
 		switch {
 		case g.t.Kind == TargetPoint && g.amp > 0:
 			rng := streamOf(m.s.Seed, g.t.ID, 0x5157)
 			amp := g.amp * math.Sqrt(dsp.SwerlingRCS(rng, 1, swerling(g.t.Fluctuation)))
-			m.addPointEcho(echo, g.delay, complex(amp, 0)*g.phase, g.fd)
+			if pn != nil {
+				m.addPointEchoPN(echo, pn, g.t.ID, 0, g.delay, complex(amp, 0)*g.phase, g.fd)
+			} else {
+				m.addPointEcho(echo, g.delay, complex(amp, 0)*g.phase, g.fd)
+			}
 		case g.density != nil:
-			sc.newClutterField(g).add(echo, 0)
+			f := sc.newClutterField(g)
+			f.pn = pn
+			f.add(echo, 0)
 		}
 	}
+	sc.fe.stcShape(m, echo, 0)
 	noise := streamOf(m.s.Seed, "", 0x4e01)
 	for i := range echo {
 		echo[i] += dsp.ComplexNormal(noise)
 	}
+	sc.fe.receive(echo)
 	sc.blank(echo, 0)
 	// x holds lead zeros, then the echo: an echo at window sample d peaks at y[d].
 	if m.winCorr == nil || m.winCorr.Len() != len(x) {
@@ -448,6 +466,7 @@ type clutterField struct {
 	rev  []complex128 // the time-reversed conjugate pulse: correlating with it convolves
 	corr *dsp.Correlator
 	x, y []complex128
+	pn   *pnEcho // phase noise, nil when none
 }
 
 func (sc *scene) newClutterField(g *tgt) *clutterField {
@@ -501,12 +520,20 @@ func (f *clutterField) add(echo []complex128, p int) {
 	// y[t] = Σ_i ρ[i]·pulse[t−i]: the echo at window sample dlo + t. The
 	// mean Doppler advances the carrier phase by 2π·f_d·PRI per pulse.
 	t0 := float64(p) * m.s.Radar.PRIS
+	var psi []float64
+	if f.pn != nil {
+		psi = f.pn.phases(m.s.Seed, f.g.t.ID, p)
+	}
 	for t := 0; t < len(f.rho)+np; t++ {
 		k := f.g.dlo + t
 		if k >= len(echo) {
 			break
 		}
-		echo[k] += f.y[t] * cmplx.Rect(1, 2*math.Pi*f.g.fd*(float64(k)/m.fs+t0))
+		ph := 2 * math.Pi * f.g.fd * (float64(k)/m.fs + t0)
+		if psi != nil && t < len(psi) {
+			ph += psi[t]
+		}
+		echo[k] += f.y[t] * cmplx.Rect(1, ph)
 	}
 }
 

@@ -17,7 +17,7 @@ var (
 	filters       = []string{FilterMatched, FilterLeastSquares, FilterMinimax, FilterCustom}
 	sweeps        = []string{"up", "down"}
 
-	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "view"}
+	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "front_end", "propagation", "view"}
 	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg", "antenna_height_m", "schedule"}
 	receiverFields = []string{"filter", "filter_length_factor", "taps", "window", "detector", "doppler_window", "mti"}
 	mtis           = []string{MTINone, MTITwoPulse, MTIThreePulse}
@@ -59,7 +59,7 @@ var detectorFields = map[string][]string{
 }
 
 var targetFields = map[string][]string{
-	TargetPoint:    {"range_m", "rcs_dbsm", "range_rate_mps", "fluctuation"},
+	TargetPoint:    {"range_m", "rcs_dbsm", "range_rate_mps", "fluctuation", "height_m"},
 	TargetExtended: {"range_start_m", "range_stop_m", "rcs_dbsm_per_m", "sigma0_db", "gamma_db", "range_rate_mps", "velocity_spread_mps", "role"},
 	TargetVolume:   {"range_start_m", "range_stop_m", "reflectivity_dbz", "range_rate_mps", "velocity_spread_mps", "role"},
 }
@@ -368,6 +368,7 @@ func (o *object) decodeTarget(t *Target) {
 		if o.str("fluctuation", &t.Fluctuation) {
 			o.oneOf("fluctuation", t.Fluctuation, fluctuations)
 		}
+		o.float("height_m", &t.HeightM)
 	default:
 		o.require("range_start_m", "the near edge in m")
 		o.float("range_start_m", &t.RangeStartM)

@@ -33,6 +33,8 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 	det := detectorName(m.s.Receiver.Detector)
 	req := m.s.Receiver.Detector.PdRequired
 	switch v.status {
+	case StatusBelowHorizon:
+		return sc.horizonReason(g)
 	case StatusDetected:
 		if v.rule == rulePd {
 			return fmt.Sprintf("Detected: %s; its peak, %.1f dB above noise, clears the %s threshold by %.1f dB.", sc.pdWords(g, v, tr, true), dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold)) + sc.lossWords(g)
@@ -146,6 +148,13 @@ func (sc *scene) maskedReason(g *tgt, v verdict, tr TargetReport) string {
 		by = other.t.ID
 	}
 	clear := dsp.DB(v.peak / v.noiseLevel)
+	if v.cause != "" {
+		return sc.impairmentReason(g, v, det) + sc.maskedPd(v, tr, false) + sc.lossWords(g)
+	}
+	clipped := ""
+	if other != nil && other != g && other.overDB > 0 {
+		clipped = fmt.Sprintf(" %s's echo is clipped by the ADC (%.1f dB over full scale), which raises its compressed sidelobes.", by, other.overDB)
+	}
 	if v.byCell {
 		what := "range sidelobe"
 		if other != nil && g.t.Kind == TargetPoint && other.t.Kind == TargetPoint {
@@ -158,10 +167,10 @@ func (sc *scene) maskedReason(g *tgt, v verdict, tr TargetReport) string {
 		}
 		if v.cell >= v.peak {
 			return fmt.Sprintf("Masked by %s: its %s puts %.1f dB more power into %s's cell than %s's own peak, which would clear the noise-only threshold by %.1f dB.",
-				by, what, dsp.DB(v.cell/v.peak), id, id, clear) + sc.maskedPd(v, tr, other == g)
+				by, what, dsp.DB(v.cell/v.peak), id, id, clear) + clipped + sc.maskedPd(v, tr, other == g)
 		}
 		return fmt.Sprintf("Masked by %s: its %s puts power only %.1f dB under %s's own peak into %s's cell, which lifts the threshold there.",
-			by, what, dsp.DB(v.peak/v.cell), id, id) + sc.maskedPd(v, tr, other == g)
+			by, what, dsp.DB(v.peak/v.cell), id, id) + clipped + sc.maskedPd(v, tr, other == g)
 	}
 	cells := fmt.Sprintf("%d training cells", v.cells)
 	if sc.train != nil && sc.train.cfar() != nil {
@@ -176,7 +185,7 @@ func (sc *scene) maskedReason(g *tgt, v verdict, tr TargetReport) string {
 			det, cells, lift(v), clear) + sc.maskedPd(v, tr, true) + sc.lossWords(g)
 	}
 	return fmt.Sprintf("Masked by %s through the %s: its echo in the %s lifts the threshold %s %s's peak, which would clear the noise-only threshold by %.1f dB.",
-		by, det, cells, lift(v), id, clear) + sc.maskedPd(v, tr, false) + sc.lossWords(g)
+		by, det, cells, lift(v), id, clear) + clipped + sc.maskedPd(v, tr, false) + sc.lossWords(g)
 }
 
 // lift says where the scene's threshold sits against a masked target's
@@ -226,7 +235,7 @@ func (sc *scene) lossWords(g *tgt) string {
 	if g.outOfBand && !g.rejected && g.t.Kind == TargetPoint {
 		out += fmt.Sprintf(" Its Doppler shift of %s lies outside the receiver's band of ±%s: %.1f dB of its echo's energy is rejected.", hz(g.fd), hz(sc.m.fs/2), g.bandLossDB)
 	}
-	return out
+	return out + sc.frontWords(g) + sc.m.rainWords(g) + sc.m.multipathWords(g)
 }
 
 // resolution returns the mainlobe half-width between nulls as a range, m:

@@ -15,7 +15,7 @@ const (
 )
 
 // Statuses lists every status in the order the page's legend shows them.
-var Statuses = []string{StatusDetected, StatusMasked, StatusTooWeak, StatusEclipsed, StatusFolded, StatusOutOfWindow, StatusClutter}
+var Statuses = []string{StatusDetected, StatusMasked, StatusTooWeak, StatusEclipsed, StatusFolded, StatusOutOfWindow, StatusClutter, StatusBelowHorizon}
 
 // Report is what the tool concludes about one scenario: the report format
 // of docs/report-format.md, version 2. A quantity that does not

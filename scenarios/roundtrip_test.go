@@ -121,6 +121,9 @@ func randomScenario(r *rand.Rand) *Scenario {
 		switch t.Kind {
 		case TargetPoint:
 			t.RangeM, t.RCSDBsm, t.Fluctuation = u(0, 5e4), u(-20, 40), pick(fluctuations)
+			if r.IntN(3) == 0 {
+				t.HeightM = u(0, 100)
+			}
 		case TargetExtended:
 			t.RangeStartM, t.RCSDBsmPerM = u(0, 5e4), u(-40, 0)
 			t.RangeStopM = t.RangeStartM + u(1, 3000)
@@ -144,6 +147,38 @@ func randomScenario(r *rand.Rand) *Scenario {
 	}
 	if r.IntN(4) == 0 {
 		s.View = json.RawMessage(`{"zoom":[1,2],"plots":{"raw":true}}`)
+	}
+	// Format version 2's optional additions: antenna height, front end,
+	// propagation.
+	if r.IntN(3) == 0 {
+		s.Radar.AntennaHeightM = u(1, 100)
+	}
+	f := &s.FrontEnd
+	if r.IntN(3) == 0 {
+		f.PhaseNoiseOffsetsHz, f.PhaseNoiseDBcHz = []float64{1e3, u(2e3, 1e6)}, []float64{u(-110, -90), u(-160, -130)}
+	}
+	if r.IntN(3) == 0 {
+		f.ADCBits, f.ADCFullScaleDB = 1+r.IntN(24), u(0, 100)
+	}
+	if r.IntN(3) == 0 {
+		f.IQGainDB, f.IQPhaseDeg = u(-1, 1), u(-5, 5)
+	}
+	if r.IntN(4) == 0 {
+		dc := u(-60, 10)
+		f.DCOffsetDB = &dc
+	}
+	if r.IntN(3) == 0 {
+		f.STCStartM = u(1, 5000)
+		f.STCStopM, f.STCExponent = f.STCStartM+u(1, 2e4), float64(1+r.IntN(8))
+	}
+	s.Propagation = Propagation{RainStopM: maxRainStopM, RainPolarisation: "horizontal", Multipath: "none"}
+	if r.IntN(3) == 0 {
+		s.Radar.CarrierHz = u(1e9, 5e10)
+		s.Propagation = Propagation{RainRateMMH: u(0.1, 100), RainStartM: u(0, 1e4), RainPolarisation: pick(polarisations), Multipath: "none"}
+		s.Propagation.RainStopM = s.Propagation.RainStartM + u(1, 1e5)
+	}
+	if s.Radar.AntennaHeightM > 0 && r.IntN(2) == 0 {
+		s.Propagation.Multipath = "flat_sea"
 	}
 	return s
 }

@@ -37,15 +37,18 @@ const (
 // processing, targets and seed. After Decode every default is filled in, so
 // each field holds the value in force.
 type Scenario struct {
-	Version  int             `json:"version"`
-	Name     string          `json:"name"`
-	Notes    string          `json:"notes"`
-	Seed     int64           `json:"seed"`
-	Radar    Radar           `json:"radar"`
-	Waveform Waveform        `json:"waveform"`
-	Receiver Receiver        `json:"receiver"`
-	Targets  []Target        `json:"targets"`
-	View     json.RawMessage `json:"view,omitempty"` // compact JSON object, nil when empty
+	Version  int      `json:"version"`
+	Name     string   `json:"name"`
+	Notes    string   `json:"notes"`
+	Seed     int64    `json:"seed"`
+	Radar    Radar    `json:"radar"`
+	Waveform Waveform `json:"waveform"`
+	Receiver Receiver `json:"receiver"`
+	Targets  []Target `json:"targets"`
+	FrontEnd FrontEnd `json:"front_end"` // optional impairments (added in version 2)
+	// Propagation is the path (added in version 2): rain.
+	Propagation Propagation     `json:"propagation"`
+	View        json.RawMessage `json:"view,omitempty"` // compact JSON object, nil when empty
 
 	// ReadVersion is the format version of the document the scenario was
 	// read from when it was older than Version (0 otherwise), and Upgraded
@@ -263,7 +266,8 @@ type Target struct {
 	Level    string  `json:"-"`
 	// Role is "clutter" or "target" for extended and volume targets
 	// (clutter.go; "" reads as clutter), "" for point targets.
-	Role string `json:"role,omitempty"`
+	Role    string  `json:"role,omitempty"`
+	HeightM float64 `json:"height_m,omitempty"` // point: height above the surface, m (default 0)
 }
 
 // Wavelength returns λ = c / carrier, m.

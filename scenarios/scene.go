@@ -70,6 +70,8 @@ type scene struct {
 	// responses are computed on those samples only.
 	reachLo, reachHi int
 	partial          bool
+	fe               *frontEnd
+	extras           []extra // impairments' power (impair.go)
 }
 
 // reaches reports whether a response over window samples [lo, hi) is
@@ -100,6 +102,17 @@ type tgt struct {
 	resp       response
 	density    []float64
 	dlo        int
+	// Front end (front_end): the STC's loss at its range, dB; how far its
+	// noise-free echo peaks over the ADC's full scale (dB, 0 when not
+	// clipped) and the compressed peak that costs, dB; its echo's phase
+	// variance from offsets below PRF/2 (rad², lost from its coherent
+	// Doppler peak) and over all offsets, dB.
+	stcLossDB, overDB, clipLossDB float64
+	slowVar, skirtVarDB           float64
+	hidden                        bool    // point: beyond the radar horizon (horizon.go)
+	rainLossDB                    float64 // point: two-way rain attenuation at its range, dB
+	multipathDB                   float64 // point: two-way multipath gain over a flat sea, dB (may be −Inf)
+	multipath                     bool
 }
 
 func streamOf(seed int64, id string, salt uint64) *rand.Rand {
@@ -120,7 +133,7 @@ func newScene(ctx context.Context, m *model) (*scene, error) {
 // training cells there; the rest keep an empty response, so sc.total is
 // exact on those cells only. Used to verify suggested changes.
 func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
-	sc := &scene{m: m, total: make([]float64, m.n), reachHi: m.n}
+	sc := &scene{m: m, total: make([]float64, m.n), reachHi: m.n, fe: newFrontEnd(m)}
 	sc.targets = make([]*tgt, len(m.s.Targets))
 	lp := &localPlan{m: m}
 	order := make([]int, 0, len(m.s.Targets))
@@ -140,9 +153,9 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 		g := &tgt{t: t, fd: -2 * t.RangeRateMPS / m.lambda}
 		switch t.Kind {
 		case TargetPoint:
-			sc.point(g, lp)
+			sc.point(i, g, lp)
 		default:
-			if err := sc.distributed(ctx, g, lp); err != nil {
+			if err := sc.distributed(ctx, i, g, lp); err != nil {
 				return nil, err
 			}
 		}
@@ -162,6 +175,7 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 			}
 		}
 	}
+	sc.receiverExtras()
 	if m.s.Radar.Pulses > 1 && focus < 0 { // suggestions are checked on single pulses
 		sc.train = newTrain(m, sc)
 	}
@@ -201,7 +215,7 @@ func (lp *localPlan) ensure() {
 
 // point places a point target's echo at exact fractional delay and
 // compresses it alone.
-func (sc *scene) point(g *tgt, lp *localPlan) {
+func (sc *scene) point(j int, g *tgt, lp *localPlan) {
 	m := sc.m
 	g.rangeM = g.t.RangeM
 	g.apparent, g.folds = m.fold(g.t.RangeM)
@@ -210,8 +224,15 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 	if g.t.RangeM <= 0 {
 		return // at the antenna: no meaningful echo
 	}
+	if g.hidden = m.beyondHorizon(g.t); g.hidden {
+		return // hidden by the Earth's curvature: no echo
+	}
 	pr := dsp.ReceivedPower(r.PeakPowerW, dsp.FromDB(r.AntennaGainDBi), m.lambda, sigma, g.t.RangeM, dsp.FromDB(r.SystemLossDB))
-	g.amp = math.Sqrt(pr / m.noiseW)
+	g.rainLossDB = m.rainLossDB(g.t.RangeM)
+	g.amp = math.Sqrt(pr / m.noiseW * dsp.FromDB(-g.rainLossDB))
+	if g.multipathDB, g.multipath = m.multipathDB(g.t); g.multipath {
+		g.amp *= math.Pow(10, math.Max(g.multipathDB, -400)/20)
+	}
 	g.phase = cmplx.Rect(1, -4*math.Pi*math.Mod(g.t.RangeM/m.lambda, 1))
 	start := 2 * g.apparent / C // echo leading edge after the transmit edge, s
 	g.delay = start - m.t0
@@ -261,6 +282,11 @@ func (sc *scene) point(g *tgt, lp *localPlan) {
 		if k := b + i; k < 0 || k >= m.recLen {
 			lp.x[i] = 0
 		}
+	}
+	var pre, lin []complex128
+	if sc.fe.on {
+		pre, lin = sc.pointShape(g, lp, b)
+		defer func() { sc.pointExtras(j, g, lp, b, pre, lin) }()
 	}
 	e0 := energy(lp.x)
 	if lp.u == nil {
@@ -339,7 +365,7 @@ func (sc *scene) blank(x []complex128, b int) {
 // distributed computes the expected power density of an extended or volume
 // target on the window grid (its scatterers summed per sample) and the
 // expected compressed power: density convolved with |response kernel|².
-func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
+func (sc *scene) distributed(ctx context.Context, j int, g *tgt, lp *localPlan) error {
 	m := sc.m
 	r := m.s.Radar
 	g.rangeM = g.t.RangeStartM
@@ -378,6 +404,7 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 		return nil
 	}
 	density := make([]float64, khi-klo+1) // density[k−klo]: only the samples the folds touch
+	rainG := m.rainGamma()
 	lo, hi := m.n, -1
 	for f := first; f <= last; f++ {
 		base, ka, kb, ok := span(f)
@@ -391,7 +418,7 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 			if s1 <= s0 || !m.processed[k] || rk <= 0 {
 				continue
 			}
-			density[k-klo] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4)
+			density[k-klo] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4) * dsp.FromDB(-m.rainLoss(rk, rainG))
 			lo, hi = min(lo, k), max(hi, k)
 		}
 		if err := ctx.Err(); err != nil {
@@ -406,20 +433,52 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 		return nil
 	}
 	// Response kernel |r(l)|² of the Doppler-shifted pulse, l = −len(ref)+1 … len(pulse)−1.
+	kern := sc.kernel(lp, g.fd, false)
+	shaped := g.density
+	if sc.fe.on {
+		shaped = sc.fe.densityShape(m, g.density, lo)
+	}
+	g.resp = sc.convolveDensity(shaped, lo, kern)
+	if sc.fe.on {
+		sc.distributedExtras(j, g, lp, shaped, lo)
+	}
+	return nil
+}
+
+// kernel returns the response kernel |r(l)|² (noise units) of the pulse
+// shifted by fd Hz (its complex conjugate with conj): y[j] is the
+// response at lag j + lead − len(ref) from the echo's start.
+func (sc *scene) kernel(lp *localPlan, fd float64, conj bool) []float64 {
+	m := sc.m
 	lp.ensure()
 	clear(lp.x)
-	dsp.AddEcho(lp.x, m.wave, m.fs, float64(len(m.ref))/m.fs, 1, g.fd)
+	dsp.AddEcho(lp.x, m.wave, m.fs, float64(len(m.ref))/m.fs, 1, fd)
+	if conj {
+		for i, v := range lp.x {
+			lp.x[i] = cmplx.Conj(v)
+		}
+	}
 	lp.c.Apply(lp.y, lp.x)
-	// y[j] is the response at lag j + lead − len(ref) from the echo's start.
 	kern := make([]float64, len(lp.y))
 	for j, v := range lp.y {
 		kern[j] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
 	}
+	return kern
+}
+
+// convolveDensity returns the expected compressed power of a density on
+// window samples lo… through a kernel from kernel.
+func (sc *scene) convolveDensity(density []float64, lo int, kern []float64) response {
+	m := sc.m
+	hi := lo + len(density) - 1
 	off := len(m.ref) - m.lead
 	outLo, outHi := max(lo-off, 0), min(hi+len(kern)-off, m.n)
+	if outHi <= outLo {
+		return response{}
+	}
 	pow := make([]float64, outHi-outLo)
-	if len(g.density)*len(kern) <= 1<<15 { // beyond, the FFT is cheaper
-		for i, q := range g.density {
+	if len(density)*len(kern) <= 1<<15 { // beyond, the FFT is cheaper
+		for i, q := range density {
 			if q == 0 {
 				continue
 			}
@@ -430,10 +489,9 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 			}
 		}
 	} else {
-		convolveFFT(pow, outLo, g.density, lo, kern, off)
+		convolveFFT(pow, outLo, density, lo, kern, off)
 	}
-	g.resp = response{lo: outLo, pow: pow}
-	return nil
+	return response{lo: outLo, pow: pow}
 }
 
 // convolveFFT adds Σ_i q[i]·kern[k−(qlo+i)+off] to dst[k−dlo] by FFT

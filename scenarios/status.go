@@ -16,6 +16,7 @@ type verdict struct {
 	cell       float64 // power the rest of the scene puts into the peak cell
 	threshold  float64 // max(sceneLevel, cell)
 	culprit    int     // index of the target that masks it, -1 if none
+	cause      string  // what of the culprit masks it: "" for its response, else an impairment (causeSkirt, …); with culprit −1, the receiver's own
 	byCell     bool    // masked by power at its very cell (sidelobe or mainlobe) rather than through the CFAR
 	cells      int     // training cells used at the peak cell
 	unblanked  float64 // the peak of its echo without blanking (same units as peak), 0 when not blanked
@@ -105,7 +106,7 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 	v := verdict{culprit: -1}
 	v.peakK, v.peak = g.resp.peakIn(sc.m.processed)
 	v.unblanked = g.unblankedPeak
-	others := func(i int) float64 { return math.Max(sc.total[i]-g.resp.at(i), 0) }
+	others := func(i int) float64 { return math.Max(sc.total[i]-sc.ownAt(j, i), 0) }
 	if v.peakK >= 0 {
 		v.noiseLevel = sc.level(cf, v.peakK, func(int) float64 { return 0 })
 		if cf != nil {
@@ -117,7 +118,7 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 		v.threshold = math.Max(v.sceneLevel, v.cell)
 	}
 	if sc.decide(g, &v, false) == StatusMasked {
-		v.culprit = sc.culprit(j, v, cf)
+		v.culprit, v.cause = sc.culprit(j, v, cf)
 	}
 	return v
 }
@@ -177,6 +178,8 @@ func (sc *scene) decide(g *tgt, v *verdict, train bool) string {
 // wholly, too_weak for an echo the receiver's band rejects), or "".
 func (sc *scene) windowStatus(g *tgt, v *verdict) string {
 	switch {
+	case g.hidden:
+		return StatusBelowHorizon // beyond the radar horizon (horizon.go)
 	case sc.outOfWindow(g):
 		return StatusOutOfWindow
 	case g.t.Kind == TargetPoint && g.folds > 0:
@@ -272,28 +275,55 @@ func (sc *scene) inBlind(g *tgt) bool {
 // masks target j (docs/detection.md §7): by cell, the power the others
 // put at its peak cell; through the CFAR, the power each target, itself
 // included, puts into the training cells actually used. Ties go to the
-// first target; -1 when nothing contributes.
-func (sc *scene) culprit(j int, v verdict, cf *dsp.CFAR) int {
-	best, bi := 0.0, -1
+// first target; -1 when nothing contributes. An impairment's power
+// (impair.go) competes on its own: when it contributes most, the result
+// is its owner (-1 for the receiver) and its cause.
+func (sc *scene) culprit(j int, v verdict, cf *dsp.CFAR) (int, string) {
+	type source struct {
+		owner int
+		cause string
+	}
+	sum := map[source]float64{}
 	var offs []int
 	if !v.byCell && cf != nil {
 		offs = cf.Cells(nil, v.peakK, sc.m.n, sc.m.processed)
 	}
-	for i, g := range sc.targets {
-		var c float64
+	measure := func(r *response) float64 {
 		if v.byCell || cf == nil {
-			if i == j {
-				continue
-			}
-			c = g.resp.at(v.peakK)
-		} else {
-			for _, o := range offs {
-				c += g.resp.at(v.peakK + o)
-			}
+			return r.at(v.peakK)
 		}
-		if c > best {
-			best, bi = c, i
+		c := 0.0
+		for _, o := range offs {
+			c += r.at(v.peakK + o)
+		}
+		return c
+	}
+	best, bi, cause := 0.0, -1, ""
+	for i, g := range sc.targets {
+		if i == j && (v.byCell || cf == nil) {
+			continue
+		}
+		if c := measure(&g.resp); c > best {
+			best, bi, cause = c, i, ""
 		}
 	}
-	return bi
+	// Extras sum per owner and cause (a skirt's fast and slow parts).
+	var order []source
+	for i := range sc.extras {
+		e := &sc.extras[i]
+		if e.owner == j && (v.byCell || cf == nil) {
+			continue
+		}
+		k := source{e.owner, e.cause}
+		if _, ok := sum[k]; !ok {
+			order = append(order, k)
+		}
+		sum[k] += measure(&e.resp)
+	}
+	for _, k := range order {
+		if c := sum[k]; c > best {
+			best, bi, cause = c, k.owner, k.cause
+		}
+	}
+	return bi, cause
 }

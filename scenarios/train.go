@@ -68,7 +68,7 @@ func newTrain(m *model, sc *scene) *train {
 			c := coherentFraction(g.t.Fluctuation)
 			tone := tr.plan.ToneResponse(nil, fdT)
 			for d := range gain {
-				gain[d] = c*tone[d] + (1-c)*tr.incoherent()
+				gain[d] = (c*tone[d] + (1-c)*tr.incoherent()) * (1 - g.slowVar)
 			}
 		default:
 			// Gaussian Doppler spectrum of rms width 2σv/λ, as 33 tones.
@@ -93,8 +93,14 @@ func newTrain(m *model, sc *scene) *train {
 				gain[d] /= wsum
 			}
 		}
+		if g.t.Kind != TargetPoint {
+			for d := range gain {
+				gain[d] *= 1 - g.slowVar
+			}
+		}
 		tr.gain = append(tr.gain, gain)
 	}
+	tr.extraGain()
 	for j, g := range sc.targets {
 		if g.t.Kind != TargetPoint {
 			continue
@@ -186,11 +192,25 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 				s += tr.power(i, kk, dd)
 			}
 		}
+		for i := range sc.extras {
+			if sc.extras[i].owner != j {
+				s += tr.extraPower(i, kk, dd)
+			}
+		}
+		return s
+	}
+	own := func(kk, dd int) float64 {
+		s := tr.power(j, kk, dd)
+		for i := range sc.extras {
+			if sc.extras[i].owner == j {
+				s += tr.extraPower(i, kk, dd)
+			}
+		}
 		return s
 	}
 	if k >= 0 {
 		v.noiseLevel = tr.level(cf, k, d, func(int, int) float64 { return 0 })
-		v.sceneLevel = tr.level(cf, k, d, func(kk, dd int) float64 { return others(kk, dd) + tr.power(j, kk, dd) })
+		v.sceneLevel = tr.level(cf, k, d, func(kk, dd int) float64 { return others(kk, dd) + own(kk, dd) })
 		v.cell = others(k, d)
 		v.threshold = math.Max(v.sceneLevel, v.cell)
 		v.alone = tr.level(cf, k, d, func(kk, dd int) float64 { return tr.power(j, kk, dd) })
@@ -224,7 +244,37 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 				}
 			}
 			if c > best {
-				best, v.culprit = c, i
+				best, v.culprit, v.cause = c, i, ""
+			}
+		}
+		type source struct {
+			owner int
+			cause string
+		}
+		sum := map[source]float64{}
+		var order []source
+		for i := range sc.extras {
+			e := &sc.extras[i]
+			if e.owner == j && (v.byCell || cf == nil) {
+				continue
+			}
+			var c float64
+			if v.byCell || cf == nil {
+				c = tr.extraPower(i, k, d)
+			} else {
+				for _, q := range cells {
+					c += tr.extraPower(i, k+q.A, ((d+q.B)%nb+nb)%nb)
+				}
+			}
+			s := source{e.owner, e.cause}
+			if _, ok := sum[s]; !ok {
+				order = append(order, s)
+			}
+			sum[s] += c
+		}
+		for _, s := range order {
+			if sum[s] > best {
+				best, v.culprit, v.cause = sum[s], s.owner, s.cause
 			}
 		}
 	}
@@ -263,9 +313,14 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 		}
 	}
 	fields := make([]*clutterField, len(targets))
+	pns := make([]*pnEcho, len(targets))
 	for j, g := range targets {
 		if g.density != nil {
 			fields[j] = tr.sc.newClutterField(g)
+		}
+		pns[j] = tr.sc.fe.newPNEcho(m, g, np, m.s.Seed)
+		if fields[j] != nil {
+			fields[j].pn = pns[j]
 		}
 	}
 	cube := make([]complex128, np*n) // cube[p*n+k]
@@ -295,15 +350,21 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 					app, _ := m.fold(rp)
 					ph := cmplx.Rect(1, -4*math.Pi*math.Mod(rp/m.lambda, 1))
 					a := g.amp * math.Pow(g.t.RangeM/rp, 2) * amps[p][j]
-					m.addPointEcho(echo, 2*app/C-m.t0, complex(a, 0)*ph, g.fd)
+					if pns[j] != nil {
+						m.addPointEchoPN(echo, pns[j], g.t.ID, p, 2*app/C-m.t0, complex(a, 0)*ph, g.fd)
+					} else {
+						m.addPointEcho(echo, 2*app/C-m.t0, complex(a, 0)*ph, g.fd)
+					}
 				case own[j] != nil:
 					own[j].add(echo, p)
 				}
 			}
+			tr.sc.fe.stcShape(m, echo, 0)
 			noise := streamOf(m.s.Seed, "", 0x4e01+uint64(p)<<24)
 			for i := range echo {
 				echo[i] += dsp.ComplexNormal(noise)
 			}
+			tr.sc.fe.receive(echo)
 			tr.sc.blank(echo, 0)
 			if p == 0 {
 				copy(echo0, echo[:n])
@@ -358,6 +419,15 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 			k := g.resp.lo + i
 			for d := range nb {
 				lin[d][k] += float32(pw * tr.gain[j][d])
+			}
+		}
+	}
+	for i := range tr.sc.extras {
+		e := &tr.sc.extras[i]
+		for q, pw := range e.resp.pow {
+			k := e.resp.lo + q
+			for d := range nb {
+				lin[d][k] += float32(pw * e.gain[d])
 			}
 		}
 	}

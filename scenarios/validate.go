@@ -87,6 +87,8 @@ func (s *Scenario) validate(errs *errList) {
 	s.validateReceiver(c)
 	s.validateTaps(c)
 	s.validateTargets(c)
+	s.validateFrontEnd(c)
+	s.validatePropagation(c)
 }
 
 func (s *Scenario) validateRadar(c checker, waveOK bool) {
@@ -330,6 +332,7 @@ func (s *Scenario) validateTargets(c checker) {
 		case TargetPoint:
 			c.between(p+"range_m", t.RangeM, 0, 1e8)
 			c.between(p+"rcs_dbsm", t.RCSDBsm, -100, 100)
+			c.between(p+"height_m", t.HeightM, 0, maxHeightM)
 		default:
 			c.between(p+"range_start_m", t.RangeStartM, 0, 1e8)
 			if !c.errs.has(p + "range_start_m") {

@@ -54,13 +54,14 @@ const (
 var statusStyle = map[string]struct{ colour, symbol string }{
 	// The page's cards and table use the same colours and shapes
 	// (web/static/css: --st-* and .dot).
-	scenarios.StatusDetected:    {"#2f7d3a", "circle"},
-	scenarios.StatusMasked:      {"#c2410c", "diamond"},
-	scenarios.StatusTooWeak:     {"#7b8389", "emptyCircle"},
-	scenarios.StatusEclipsed:    {"#6d3fc0", "triangle"},
-	scenarios.StatusFolded:      {"#a16207", "pin"},
-	scenarios.StatusOutOfWindow: {"#1b6aa5", "rect"},
-	scenarios.StatusClutter:     {"#8b5e3c", "roundRect"},
+	scenarios.StatusDetected:     {"#2f7d3a", "circle"},
+	scenarios.StatusMasked:       {"#c2410c", "diamond"},
+	scenarios.StatusTooWeak:      {"#7b8389", "emptyCircle"},
+	scenarios.StatusEclipsed:     {"#6d3fc0", "triangle"},
+	scenarios.StatusFolded:       {"#a16207", "pin"},
+	scenarios.StatusOutOfWindow:  {"#1b6aa5", "rect"},
+	scenarios.StatusClutter:      {"#8b5e3c", "roundRect"},
+	scenarios.StatusBelowHorizon: {"#0f766e", "arrow"}, // hidden by the Earth's curvature
 }
 
 // chartOut is one chart of a frame: its full option, and the series data

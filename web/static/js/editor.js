@@ -10,6 +10,7 @@ import {
 import { describeFields, fieldName, pdText, statusHelp, statusLabel } from './words.js';
 import { clutterFields, levelOf } from './clutter.js';
 import { fieldText, notValue, parse, qtyOf, rangeError, restate, unit, unitLabel, units } from './units.js';
+import { frontEndBlock } from './frontend.js';
 
 // setField writes a form field into the scenario. A detector field of a
 // scene that left the detector to its default writes the default kind
@@ -286,7 +287,7 @@ export class Editor {
     } else if (fd.type === 'notes') {
       input = h('textarea', { rows: 4, dataset: { path, type: 'notes' }, placeholder: fd.hint || '', value: v || '', spellcheck: 'true' });
     } else if (fd.type === 'phases') {
-      input = h('textarea', { rows: 2, dataset: { path, type: 'phases' }, placeholder: '0, 180, 90 …', value: (v || []).join(', ') });
+      input = h('textarea', { rows: 2, dataset: { path, type: 'phases' }, placeholder: fd.hint || '0, 180, 90 …', value: (v || []).join(', ') });
     } else {
       input = h('input', {
         type: 'text', inputmode: fd.type === 'text' ? 'text' : 'decimal', autocomplete: 'off', spellcheck: 'false',
@@ -368,7 +369,8 @@ export class Editor {
       h('div', { class: 'sub' },
         this.kindSelect('Detector', 'detector-kind', detectorKinds, dkind, 'receiver.detector.kind'),
         h('div', { class: 'grid' }, detectorKinds[dkind].fields.map((k) => this.field(s, 'receiver.detector', detectorFields[k])))),
-      this.windowBlock(s, 'Pulse-to-pulse weighting (pulses > 1)', 'receiver.doppler_window', 'hann'));
+      this.windowBlock(s, 'Pulse-to-pulse weighting (pulses > 1)', 'receiver.doppler_window', 'hann'),
+      frontEndBlock(this, s));
   }
 
   targetRow(t, i) {
@@ -415,7 +417,8 @@ export class Editor {
     const fds = t.kind === 'point'
       ? [{ key: 'range_m', label: 'Range', qty: 'range' }, { key: 'rcs_dbsm', label: 'RCS', unit: 'dBsm' },
         { key: 'range_rate_mps', label: 'Range rate', qty: 'rate', def: 0 },
-        { key: 'fluctuation', label: 'Fluctuation', type: 'select', options: fluctuations, def: 'none' }]
+        { key: 'fluctuation', label: 'Fluctuation', type: 'select', options: fluctuations, def: 'none' },
+        { key: 'height_m', label: 'Height', qty: 'height', def: 0 }]
       : [{ key: 'range_start_m', label: 'Near edge', qty: 'range' }, { key: 'range_stop_m', label: 'Far edge', qty: 'range' },
         { key: levelKey(t.kind, t), label: levelOf(t).short === 'Refl.' ? 'Reflectivity' : levelOf(t).name, unit: levelOf(t).unit },
         { key: 'range_rate_mps', label: 'Range rate', qty: 'rate', def: 0 },

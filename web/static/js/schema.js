@@ -222,3 +222,46 @@ export function fromDisplay(text, scale, isInt) {
   if (isInt) return n;
   return Number((n * scale).toPrecision(15));
 }
+
+// front_end (added in version 2; docs/scenario-format.md): impairments of
+// the oscillator and the receiver, each off while its fields are empty.
+// Grouped for the editor's own collapsible section (frontend.js).
+export const frontEndGroups = [
+  {
+    title: 'Oscillator phase noise', fields: [
+      f('phase_noise_offsets_hz', 'Offsets', 'Hz', 1, 'phases', { wide: true, hint: '1e3, 1e5, 1e7' }),
+      f('phase_noise_dbc_hz', 'Levels L(f)', 'dBc/Hz', 1, 'phases', { wide: true, hint: '-90, -120, -140' }),
+    ],
+  },
+  {
+    title: 'ADC', fields: [
+      f('adc_bits', 'Bits', 'per channel', 1, 'int', { hint: 'none' }),
+      f('adc_full_scale_db', 'Full scale', 'dB re noise', 1, 'num', { hint: 'with bits' }),
+    ],
+  },
+  {
+    title: 'I/Q error and DC', fields: [
+      f('iq_gain_db', 'Q gain re I', 'dB', 1, 'num', { def: 0 }),
+      f('iq_phase_deg', 'Q phase error', '°', 1, 'num', { def: 0 }),
+      f('dc_offset_db', 'DC offset', 'dB re noise', 1, 'num', { hint: 'none' }),
+    ],
+  },
+  {
+    title: 'Sensitivity time control', fields: [
+      f('stc_start_m', 'Start', 'm', 1, 'num', { hint: 'none' }),
+      f('stc_stop_m', 'Stop', 'm', 1, 'num', { hint: 'none' }),
+      f('stc_exponent', 'Law R^n, n', '', 1, 'num', { def: 4 }),
+    ],
+  },
+  {
+    // propagation (added in version 2): rain on the path (ITU-R P.838-2)
+    // and multipath over a flat sea (needs the radar's antenna height).
+    title: 'Path: rain and sea multipath', base: 'propagation', fields: [
+      f('rain_rate_mm_h', 'Rain rate', 'mm/h', 1, 'num', { hint: 'none' }),
+      f('rain_polarisation', 'Polarisation', '', 1, 'select', { options: ['horizontal', 'vertical'], def: 'horizontal' }),
+      f('rain_start_m', 'From', 'm', 1, 'num', { def: 0 }),
+      f('rain_stop_m', 'To', 'm', 1, 'num', { hint: 'whole path' }),
+      f('multipath', 'Multipath', '', 1, 'select', { options: [['none', 'none'], ['flat_sea', 'flat sea']], def: 'none' }),
+    ],
+  },
+];

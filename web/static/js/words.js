@@ -2,19 +2,19 @@
 // rather than "targets[2].rcs_dbsm"), and messages that carry it.
 
 import { splitPath } from './dom.js';
-import { detectorFields, levelName, radarFields, waveformKinds, windowKinds } from './schema.js';
+import { detectorFields, frontEndGroups, levelName, radarFields, waveformKinds, windowKinds } from './schema.js';
 
 const targetWords = {
   id: 'id', kind: 'kind', range_m: 'range', range_start_m: 'near edge', range_stop_m: 'far edge',
   rcs_dbsm: 'RCS', rcs_dbsm_per_m: levelName.extended, reflectivity_dbz: levelName.volume,
-  range_rate_mps: 'range rate', velocity_spread_mps: 'velocity spread', fluctuation: 'fluctuation',
+  range_rate_mps: 'range rate', velocity_spread_mps: 'velocity spread', fluctuation: 'fluctuation', height_m: 'height',
   sigma0_db: 'σ⁰', gamma_db: 'γ', role: 'role',
 };
 const receiverWords = {
   filter: 'compression filter', filter_length_factor: 'filter length', window: 'range weighting',
   doppler_window: 'pulse-to-pulse weighting', detector: 'detector', mti: 'MTI canceller',
 };
-const topWords = { name: 'scene name', notes: 'notes', seed: 'noise seed', version: 'format version', radar: 'radar', waveform: 'waveform', receiver: 'receiver', targets: 'targets' };
+const topWords = { name: 'scene name', notes: 'notes', seed: 'noise seed', version: 'format version', radar: 'radar', waveform: 'waveform', receiver: 'receiver', targets: 'targets', front_end: 'front end', propagation: 'propagation' };
 
 // Target statuses of the report (docs/report-format.md, "Statuses"): a
 // short label, and a line saying what it means, for cards, dots and the
@@ -28,6 +28,7 @@ export const statusWords = {
   folded: ['folded', 'beyond the unambiguous range: its echo comes back after the next pulse and shows as a false target at the wrong, nearer range'],
   out_of_window: ['out of window', 'its echo is not in the receive window'],
   clutter: ['clutter', 'sea, land, rain or chaff: never a detection; where it crosses the threshold it gives false alarms (its role can be set to target)'],
+  below_horizon: ['below the horizon', 'beyond the radar horizon of the antenna\'s and its own height: the Earth\'s curvature hides it'],
 };
 
 // pdText writes a probability of detection as the report's text does
@@ -71,6 +72,10 @@ export function fieldName(path, s) {
     const win = s && s.receiver && s.receiver[p[1]];
     const wk = win && windowKinds[win.kind];
     return `${base} ${(wk && labelOf(wk.fields, p[2])) || p.slice(2).join('.')}`;
+  }
+  if ((p[0] === 'front_end' || p[0] === 'propagation') && p.length >= 2) {
+    const g = frontEndGroups.find((x) => (x.base || 'front_end') === p[0] && x.fields.some((fd) => fd.key === p[1]));
+    return g ? `${g.title} ${labelOf(g.fields, p[1])}` : `front end ${p.slice(1).join('.')}`;
   }
   if (p.length === 1 && topWords[p[0]]) return topWords[p[0]];
   return path;
