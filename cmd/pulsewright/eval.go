@@ -103,7 +103,7 @@ func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units) erro
 	for _, t := range r.Targets {
 		if t.DetectionRangeM != nil {
 			fmt.Fprintf(w, "%s: detection range for its RCS %s (where its SNR falls to the %s dB the required Pd needs, R⁴ law).\n",
-				t.ID, scenarios.SI(*t.DetectionRangeM, "m"), fx(*t.SNRRequiredDB, 1))
+				t.ID, siOr(u, *t.DetectionRangeM), fx(*t.SNRRequiredDB, 1))
 		}
 	}
 	for _, warn := range r.Warnings {
@@ -111,7 +111,7 @@ func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units) erro
 	}
 	if r.Schedule != nil {
 		fmt.Fprintln(w)
-		writeScheduleText(w, r.Schedule)
+		writeScheduleText(w, r.Schedule, u)
 	}
 	eng := scenarios.RunningEngine()
 	if r.Engine != nil {
@@ -145,4 +145,13 @@ func pdLine(t scenarios.TargetReport) string {
 		line += fmt.Sprintf("; the required Pd needs %s dB at its cell, margin %s dB", fx(*t.SNRRequiredDB, 1), fx(*t.MarginDB, 1))
 	}
 	return line + "."
+}
+
+// siOr formats a range in metres with an SI prefix ("17.09 km") in SI,
+// else in the user's range unit.
+func siOr(u scenarios.Units, m float64) string {
+	if u.Range == "m" {
+		return scenarios.SI(m, "m")
+	}
+	return u.Format(scenarios.QRange, m, 0)
 }

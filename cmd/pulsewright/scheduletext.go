@@ -12,18 +12,18 @@ import (
 // writeScheduleText prints a PRF schedule's per-CPI and combined results:
 // one line per CPI, one table of the verdicts of every CPI and the M-of-N
 // verdict with the unfolded range and range rate, then the reasons.
-func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport) {
+func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport, u scenarios.Units) {
 	fmt.Fprintf(w, "PRF schedule: %d CPIs, %d-of-%d", s.N, s.M, s.N)
 	if s.UnambiguousRangeM != nil {
-		fmt.Fprintf(w, ", combined unambiguous range %.2f km", *s.UnambiguousRangeM/1000)
+		fmt.Fprintf(w, ", combined unambiguous range %s", kmText(u, *s.UnambiguousRangeM))
 	}
 	if s.FirstBlindSpeedMPS != nil {
-		fmt.Fprintf(w, ", first speed blind in every CPI %.1f m/s", *s.FirstBlindSpeedMPS)
+		fmt.Fprintf(w, ", first speed blind in every CPI %s", u.Format(scenarios.QSpeed, *s.FirstBlindSpeedMPS, 1))
 	}
 	fmt.Fprintln(w)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	for k, c := range s.CPIs {
-		fmt.Fprintf(tw, "CPI %d\tPRI %s\t%d pulses\tunambiguous %.2f km\tblind speed %.1f m/s\n", k+1, scenarios.SI(c.PRIS, "s"), c.Pulses, c.UnambiguousRangeM/1000, c.BlindSpeedMPS)
+		fmt.Fprintf(tw, "CPI %d\tPRI %s\t%d pulses\tunambiguous %s\tblind speed %s\n", k+1, scenarios.SI(c.PRIS, "s"), c.Pulses, kmText(u, c.UnambiguousRangeM), u.Format(scenarios.QSpeed, c.BlindSpeedMPS, 1))
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
@@ -32,7 +32,7 @@ func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport) {
 	for k := range s.CPIs {
 		head = append(head, fmt.Sprintf("CPI %d", k+1))
 	}
-	head = append(head, "SEEN", fmt.Sprintf("%d-OF-%d", s.M, s.N), "PD", "RANGE km", "RATE m/s")
+	head = append(head, "SEEN", fmt.Sprintf("%d-OF-%d", s.M, s.N), "PD", "RANGE "+kmUnit(u), "RATE "+u.Speed)
 	fmt.Fprintln(tw, strings.Join(head, "\t")+"\t")
 	doppler := false
 	for _, c := range s.CPIs {
@@ -44,7 +44,7 @@ func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport) {
 			ct := c.Targets[j]
 			cell := ct.Status
 			if ct.ApparentRangeM != nil && ct.Detected {
-				cell = fmt.Sprintf("%s @ %.2f km", ct.Status, *ct.ApparentRangeM/1000)
+				cell = fmt.Sprintf("%s @ %s", ct.Status, kmText(u, *ct.ApparentRangeM))
 			}
 			row = append(row, cell)
 		}
@@ -61,10 +61,10 @@ func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport) {
 			pd = scenarios.PdText(*t.Pd)
 		}
 		if t.RangeM != nil {
-			rng = fx(*t.RangeM/1000, 2)
+			rng = strings.TrimSuffix(kmText(u, *t.RangeM), " "+kmUnit(u))
 		}
 		if t.RangeRateMPS != nil {
-			rate = fx(*t.RangeRateMPS, 1)
+			rate = u.Number(scenarios.QRate, *t.RangeRateMPS, 1)
 		} else if !doppler {
 			rate = "—" // no CPI measures Doppler
 		}
@@ -77,11 +77,28 @@ func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport) {
 	tw.Flush()
 	fmt.Fprintln(w)
 	for _, t := range s.Targets {
-		fmt.Fprintf(w, "%s (schedule): %s\n", t.ID, t.Reason)
+		fmt.Fprintf(w, "%s (schedule): %s\n", t.ID, u.Restate(t.Reason))
 	}
 	for k, c := range s.CPIs {
 		for _, warn := range c.Warnings {
-			fmt.Fprintf(w, "warning (CPI %d): %s\n", k+1, warn)
+			fmt.Fprintf(w, "warning (CPI %d): %s\n", k+1, u.Restate(warn))
 		}
 	}
+}
+
+// kmUnit is the unit the schedule's ranges are printed in: km in SI (a
+// schedule's ranges run to hundreds of km), else the user's range unit.
+func kmUnit(u scenarios.Units) string {
+	if u.Range == "m" {
+		return "km"
+	}
+	return u.Range
+}
+
+// kmText formats a range in metres in kmUnit(u): "60.11 km", "32.4568 nmi".
+func kmText(u scenarios.Units, m float64) string {
+	if u.Range == "m" {
+		return fx(m/1000, 2) + " km"
+	}
+	return u.Format(scenarios.QRange, m, 0)
 }
