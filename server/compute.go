@@ -114,10 +114,10 @@ func (ss *session) release(c *evalCache) {
 func (ss *session) run(ctx context.Context, w want, c *evalCache) (*frame, bool, error) {
 	runCtx, cancel := context.WithCancel(ctx)
 	defer cancel()
-	ss.setRun(w.gen, cancel)
+	ss.setRun(w.gen, cancel, false)
 	f, err := ss.evaluate(runCtx, w, c)
 	stale := runCtx.Err() != nil
-	ss.setRun(0, nil)
+	ss.setRun(0, nil, !stale && err == nil)
 	return f, stale, err
 }
 

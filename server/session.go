@@ -87,10 +87,13 @@ type session struct {
 	frames mailbox[*frame]
 	errs   mailbox[*errorMsg]
 
-	mu        sync.Mutex // guards runGen, runCancel and lastFrame
+	mu        sync.Mutex // guards runGen, runCancel, runStart, lastRun, recheck and lastFrame
 	runGen    uint64
 	runCancel context.CancelFunc
-	lastFrame time.Time // when compute last put a frame
+	runStart  time.Time     // when the running computation started
+	lastRun   time.Duration // how long the last computation that finished took; 0: none yet
+	recheck   *time.Timer   // cancels a computation that outlives its expected end
+	lastFrame time.Time     // when compute last put a frame
 
 	releases atomic.Int64 // times the idle session dropped its buffers (tests)
 }
@@ -261,20 +264,43 @@ func rejection(id int64, err error) *errorMsg {
 	return m
 }
 
+// finishShort is how near its expected end a computation must be for a
+// newer edit to let it finish rather than cancel it: its frame is a
+// picture a few ms old, while a cancel throws the work away and the page
+// waits for a whole new computation. Expected from the session's last
+// computation; one that outlives that is cancelled then.
+const finishShort = 50 * time.Millisecond
+
 // cancelBefore cancels the running computation if it serves a state older
-// than gen, unless the page has waited Config.StarveAfter for a frame.
+// than gen, unless the page has waited Config.StarveAfter for a frame or
+// the computation is expected to end within finishShort.
 func (ss *session) cancelBefore(gen uint64) {
 	ss.mu.Lock()
 	defer ss.mu.Unlock()
-	if ss.runCancel != nil && ss.runGen < gen && time.Since(ss.lastFrame) < ss.srv.cfg.StarveAfter {
-		ss.runCancel()
-		ss.runCancel = nil
+	if ss.runCancel == nil || ss.runGen >= gen || time.Since(ss.lastFrame) >= ss.srv.cfg.StarveAfter {
+		return
 	}
+	if left := ss.lastRun - time.Since(ss.runStart); ss.lastRun > 0 && left >= 0 && left < finishShort {
+		// Look again just after its expected end.
+		if ss.recheck != nil {
+			ss.recheck.Stop()
+		}
+		ss.recheck = time.AfterFunc(left+time.Millisecond, func() { ss.cancelBefore(gen) })
+		return
+	}
+	ss.runCancel()
+	ss.runCancel = nil
 }
 
-func (ss *session) setRun(gen uint64, cancel context.CancelFunc) {
+// setRun records the computation that starts (cancel non-nil) or the end
+// of the running one, and how long it took when it finished uncancelled.
+func (ss *session) setRun(gen uint64, cancel context.CancelFunc, finished bool) {
 	ss.mu.Lock()
-	ss.runGen, ss.runCancel = gen, cancel
+	now := time.Now()
+	if cancel == nil && finished {
+		ss.lastRun = now.Sub(ss.runStart)
+	}
+	ss.runGen, ss.runCancel, ss.runStart = gen, cancel, now
 	ss.mu.Unlock()
 }
 

@@ -78,6 +78,7 @@ export class Plots {
     this.pending = {}; // chart name → options held back (its pane is hidden, or it was drawn just now)
     this.drawnAt = {}; // chart name → when it was last drawn (performance.now)
     this.timers = {}; // chart name → timer that draws what it holds back
+    this.deferred = new Set(); // chart names to draw once the profile's new pixels are out
     this.cats = {}; // heat map name → {x, y}: the cell centres of its category axes
     this.train = false;
 
@@ -117,19 +118,31 @@ export class Plots {
       this.hold(name, entry);
       return;
     }
-    // While frames stream in (a drag, a held key), the profile follows
-    // every frame and the other plots at most every SecondaryMs: each
-    // setOption re-lays out a whole chart, whatever changed.
-    if (name !== 'profile' && !entry.replace) {
-      const wait = (this.drawnAt[name] || -Infinity) + SecondaryMs - performance.now();
-      if (wait > 0 || this.timers[name]) {
-        this.hold(name, entry);
-        if (!this.timers[name]) this.timers[name] = setTimeout(() => this.flush(name), Math.max(wait, 0));
-        return;
-      }
+    // The profile is drawn at once; the other plots after the profile's
+    // new pixels are on screen (flushDeferred, called by the page after
+    // the paint), so that the plot the hand follows is not kept waiting
+    // by the others. While frames stream in (a drag, a held key), the
+    // other plots redraw at most every SecondaryMs: each setOption
+    // re-lays out a whole chart, whatever changed.
+    if (name !== 'profile') {
+      this.hold(name, entry);
+      const wait = entry.replace ? 0 : (this.drawnAt[name] || -Infinity) + SecondaryMs - performance.now();
+      if (this.timers[name]) return;
+      if (wait > 0) this.timers[name] = setTimeout(() => this.flush(name), wait);
+      else this.deferred.add(name);
+      return;
     }
     this.flush(name);
     this.setOption(name, entry);
+  }
+
+  // Draw the plots held back until after the profile's paint; true when
+  // there were any.
+  flushDeferred() {
+    const names = [...this.deferred];
+    this.deferred.clear();
+    for (const name of names) if (!this.timers[name]) this.flush(name);
+    return names.length > 0;
   }
 
   // The shown charts whose newest options wait for their redraw timer.

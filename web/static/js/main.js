@@ -78,9 +78,10 @@ const plots = new Plots({
   hoverCard,
 });
 const focusUI = initFocus({ plots, frame: () => lastFrame });
-window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, focus: focusUI.focus };
+window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, settled: () => settledId, focus: focusUI.focus };
 
 store.onChange((s, cause) => {
+  session.noteEdit();
   editor.render(s);
   if (cause === 'load' || cause === 'link') { // a new scene: its own cuts
     if (session.cell) session.sendCell(null);
@@ -113,6 +114,7 @@ function onFrame(msg) {
   requestAnimationFrame(applyFrame);
 }
 let lastApplyAt = -Infinity;
+let settledId = null; // the newest frame whose plots, panels and story are all drawn
 
 // The editor's status marks and the figures panel follow the frames, but
 // while frames stream in (a drag) at most every PanelMs: rebuilding the
@@ -140,8 +142,25 @@ function drawPanels() {
   renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms);
 }
 
+// afterPaint runs fn once the next animation frame's pixels are out: a
+// task posted from the frame's requestAnimationFrame callback runs after
+// that frame's style, layout and paint.
+const paintChannel = new MessageChannel();
+const afterPaintQueue = [];
+paintChannel.port1.onmessage = () => {
+  const fns = afterPaintQueue.splice(0);
+  for (const fn of fns) fn();
+};
+function afterPaint(fn) {
+  requestAnimationFrame(() => {
+    afterPaintQueue.push(fn);
+    paintChannel.port2.postMessage(0);
+  });
+}
+
 // Apply the newest frame in one animation frame; older unapplied frames
-// are skipped.
+// are skipped. The profile is drawn first; the other plots, the panels,
+// the story and the address bar follow once its pixels are on screen.
 function applyFrame() {
   applyScheduled = false;
   const f = pendingFrame;
@@ -155,31 +174,67 @@ function applyFrame() {
   plots.apply(f);
   focusUI.refresh();
   const t1 = performance.now();
-  panels(f);
   if (session.sent.has(f.id) && f.id > lastErrorId) {
     editor.clearErrors();
     $('#orphan-errors').textContent = '';
     markTabs();
   }
-  if (f.link) updateAddress(f.link);
   refreshStale();
-  story.render(store.scenario, f.report);
   const sentAt = session.sent.get(f.id);
   const t2 = performance.now();
   performance.mark(`pw-apply-${f.id}`);
-  requestAnimationFrame(() => {
+  afterPaint(() => {
     performance.mark(`pw-paint-${f.id}`);
-    if (sentAt !== undefined) {
-      const m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
-      // ms: send → new pixels; wait_ms: send → the frame's arrival (server
-      // and network); page_ms: arrival → new pixels (parse excluded), of
-      // which charts_ms went to the charts' setOption and panel_ms to the
-      // editor and figures panels.
-      latencies.push({ id: f.id, ms: m.duration, compute_ms: f.compute_ms, wait_ms: f.arrivedAt - sentAt, page_ms: performance.now() - f.arrivedAt,
-        charts_ms: t1 - t0, panel_ms: t2 - t1, held: plots.held(), panels_held: !!panelTimer });
-      if (latencies.length > 1000) latencies.shift();
-    }
+    const t3 = performance.now();
+    // The rest of the frame, after the profile's paint.
+    const rest = plots.flushDeferred();
+    panels(f);
+    story.render(store.scenario, f.report);
+    if (f.link) addressSoon(f.link);
+    const t4 = performance.now();
+    settledId = f.id;
+    if (sentAt === undefined) return;
+    const m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
+    const editAt = session.editedAt.get(f.id);
+    // ms: send → the profile's new pixels; edit_ms: the edit (the store's
+    // change) → the same pixels; wait_ms: send → the frame's arrival
+    // (server, network, and the page's main thread being busy);
+    // parse_ms: JSON.parse of the frame; page_ms: arrival → pixels, of
+    // which charts_ms went to the profile's setOption and panel_ms to
+    // the marks; rest_ms: the other plots, panels and story after the
+    // paint, and all_ms: send → the end of those.
+    const entry = {
+      id: f.id, ms: m.duration, edit_ms: editAt !== undefined ? t3 - editAt : m.duration, compute_ms: f.compute_ms,
+      wait_ms: f.arrivedAt - sentAt, parse_ms: f.parseMs, page_ms: t3 - f.arrivedAt,
+      charts_ms: t1 - t0, panel_ms: t2 - t1, rest_ms: t4 - t3, all_ms: t4 - sentAt, rest_charts: rest,
+      held: plots.held(), panels_held: !!panelTimer,
+    };
+    latencies.push(entry);
+    if (latencies.length > 1000) latencies.shift();
   });
+}
+
+// The address bar follows the shown scene's link, but at most every
+// AddressMs while frames stream in: history.replaceState with a long URL
+// costs the main thread tens of ms on a busy machine.
+const AddressMs = 400;
+let addressAt = -Infinity;
+let addressTimer = 0;
+let addressLink = null;
+function addressSoon(link) {
+  addressLink = link;
+  if (addressTimer) return;
+  const wait = addressAt + AddressMs - performance.now();
+  if (wait <= 0) {
+    addressNow();
+    return;
+  }
+  addressTimer = setTimeout(addressNow, wait);
+}
+function addressNow() {
+  addressTimer = 0;
+  addressAt = performance.now();
+  updateAddress(addressLink);
 }
 
 function updateAddress(link) {
