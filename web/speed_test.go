@@ -56,6 +56,11 @@ func TestDragRate(t *testing.T) {
 			time.Sleep(16 * time.Millisecond)
 		}
 		t1 := eval[float64](t, ctx, `performance.now()`)
+		// While the button is still down the profile's data is drawn by
+		// the page's fast layer (fastlayer.js), not by the chart.
+		if eval[bool](t, ctx, `window.__pw.plots.fast.active`) {
+			shot(t, ctx, d+"-dragging")
+		}
 		mouse(t, ctx, chromedp.MouseReleased, x, y, chromedp.ButtonLeft, chromedp.ClickCount(1))
 		cpu1, load1 := cpuNow(t, ctx), loadAvg()
 		lat := eval[[]latency](t, ctx, `window.__pwLatencies.slice()`)

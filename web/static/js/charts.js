@@ -5,13 +5,21 @@
 
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
+import { FastLayer, layerSeries, tooltipAbove } from './fastlayer.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
 const SecondaryMs = 100; // plots other than the profile redraw at most this often while frames stream
+const DragSecondaryMs = 250; // … and this often while a marker is dragged
 const WheelGestureMs = 3000; // ms: wheel events this close, with the pointer still, form one gesture
+// While frames stream, the profile's data is drawn by a FastLayer; the
+// chart itself takes the newest data once no frame came for SettleMs (or
+// when a drag ends).
+const SettleMs = 150;
 
 const chartMs = {};
 window.__pwChartMs = chartMs;
+const fastMs = {}; // time per fast-layer drawing, ms, by chart
+window.__pwFastMs = fastMs;
 
 // Tooltips are drawn in the canvas (renderMode 'richText': an HTML
 // tooltip would need inline styles, which the CSP refuses). Text from the
@@ -59,7 +67,7 @@ export function carryCharts(older, newer) {
 export class Plots {
   // els: chart name → container element; a container inside a tab pane
   // (.pane) is drawn only while its pane shows.
-  constructor(els, { onView, onDrag, onDragEnd, onSelect, onNudge, onCell, hoverCard, wavelength }) {
+  constructor(els, { onView, onDrag, onDragEnd, onSelect, onNudge, onCell, hoverCard, wavelength, onSettle }) {
     this.charts = {};
     for (const [name, el] of Object.entries(els)) this.charts[name] = echarts.init(el, null, { renderer: 'canvas' });
     this.els = els;
@@ -73,6 +81,10 @@ export class Plots {
     this.onCell = onCell;
     this.hoverCard = hoverCard;
     this.wavelength = wavelength;
+    this.onSettle = onSettle || (() => {});
+    this.fast = new FastLayer(this.charts.profile);
+    tooltipAbove(this.charts.profile);
+    this.settleTimer = 0;
     this.drag = null;
     this.lastView = null;
     this.pending = {}; // chart name → options held back (its pane is hidden, or it was drawn just now)
@@ -118,6 +130,20 @@ export class Plots {
       this.hold(name, entry);
       return;
     }
+    // The profile's data merges are drawn by the fast layer at once; the
+    // chart takes them when the frames rest (settle).
+    if (name === 'profile' && !entry.replace && this.fast.ready()) {
+      const t0 = performance.now();
+      this.hold(name, entry);
+      if (this.fast.draw(entry.option)) {
+        this.cacheMarkers(entry.option);
+        const ms = (fastMs.profile = fastMs.profile || []);
+        ms.push(performance.now() - t0);
+        if (ms.length > 100) ms.shift();
+        this.settleSoon();
+        return;
+      }
+    }
     // The profile is drawn at once; the other plots after the profile's
     // new pixels are on screen (flushDeferred, called by the page after
     // the paint), so that the plot the hand follows is not kept waiting
@@ -126,7 +152,8 @@ export class Plots {
     // re-lays out a whole chart, whatever changed.
     if (name !== 'profile') {
       this.hold(name, entry);
-      const wait = entry.replace ? 0 : (this.drawnAt[name] || -Infinity) + SecondaryMs - performance.now();
+      const every = this.drag ? DragSecondaryMs : SecondaryMs;
+      const wait = entry.replace ? 0 : (this.drawnAt[name] || -Infinity) + every - performance.now();
       if (this.timers[name]) return;
       if (wait > 0) this.timers[name] = setTimeout(() => this.flush(name), wait);
       else this.deferred.add(name);
@@ -134,6 +161,29 @@ export class Plots {
     }
     this.flush(name);
     this.setOption(name, entry);
+  }
+
+  // Give the profile chart its newest data SettleMs after the last frame,
+  // or when the drag in progress ends.
+  settleSoon() {
+    clearTimeout(this.settleTimer);
+    this.settleTimer = setTimeout(() => this.settle(), SettleMs);
+  }
+
+  settle() {
+    clearTimeout(this.settleTimer);
+    this.settleTimer = 0;
+    if (this.drag) return; // the drag's end settles
+    if (this.fast.active) {
+      this.flush('profile');
+      this.fast.end();
+    }
+    this.onSettle();
+  }
+
+  // Whether the profile chart is behind the fast layer.
+  unsettled() {
+    return this.fast.active || !!this.settleTimer;
   }
 
   // Draw the plots held back until after the profile's paint; true when
@@ -174,6 +224,10 @@ export class Plots {
     const t0 = performance.now();
     this.drawnAt[name] = t0;
     if (entry.replace) spaceAxisLabels(entry.option, chart.getWidth());
+    if (name === 'profile' && entry.replace) {
+      this.fast.setStyles(entry.option);
+      layerSeries(entry.option);
+    }
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     // Paint now, inside this animation frame, instead of waiting for the
     // renderer's own loop to notice on the next one.
@@ -384,7 +438,14 @@ export class Plots {
       this.drag = null;
       this.guide(null);
       this.onDragEnd();
+      if (this.fast.active) this.settleSoon();
     };
+    // ECharts listens to mouse events (on the chart and, while a button is
+    // down, on the document), not pointer events: while a marker is
+    // dragged, its hover, tooltip and axis pointer sit still.
+    window.addEventListener('mousemove', (ev) => {
+      if (this.drag) ev.stopPropagation();
+    }, true);
     el.addEventListener('pointerup', end, true);
     el.addEventListener('pointercancel', end, true);
     el.addEventListener('pointerleave', () => this.hoverCard(null));

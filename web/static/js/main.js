@@ -64,7 +64,10 @@ const plots = new Plots({
 }, {
   onView: (range, width, mapWidth) => session.sendView(range, width, mapWidth),
   onDrag: (id, r) => editor.moveTo(id, r),
-  onDragEnd: () => store.seal(),
+  onDragEnd: () => {
+    store.seal();
+    if (formsTimer) renderForms();
+  },
   onSelect: (id) => editor.selectId(id),
   onNudge: (id, dB) => {
     const i = (store.scenario.targets || []).findIndex((t) => t.id === id);
@@ -76,20 +79,35 @@ const plots = new Plots({
     return f > 0 ? 299792458 / f : NaN;
   },
   hoverCard,
+  onSettle: () => settle(),
 });
 const focusUI = initFocus({ plots, frame: () => lastFrame });
 window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, settled: () => settledId, focus: focusUI.focus };
 
+// While a marker is dragged, the editor's forms and the story follow the
+// scene at most every FormsMs: re-rendering them on every step of the
+// drag cost more than drawing the plot. The drag's end renders them.
+const FormsMs = 100;
+let formsTimer = 0;
+let formsAt = -Infinity;
+function renderForms() {
+  clearTimeout(formsTimer);
+  formsTimer = 0;
+  formsAt = performance.now();
+  editor.render(store.scenario);
+  story.render(store.scenario, lastFrame && lastFrame.report);
+}
+
 store.onChange((s, cause) => {
   session.noteEdit();
-  editor.render(s);
+  if (cause !== 'edit' || !plots.drag) renderForms();
+  else if (!formsTimer) formsTimer = setTimeout(renderForms, Math.max(0, formsAt + FormsMs - performance.now()));
   if (cause === 'load' || cause === 'link') { // a new scene: its own cuts
     if (session.cell) session.sendCell(null);
     plots.clearCell();
   }
   session.sendScenario(s, cause === 'link' ? 'link' : null, store.version);
   refreshStale();
-  story.render(s, lastFrame && lastFrame.report);
   $('#btn-undo').disabled = !store.undoStack.length;
   $('#btn-redo').disabled = !store.redoStack.length;
 });
@@ -115,19 +133,26 @@ function onFrame(msg) {
 }
 let lastApplyAt = -Infinity;
 let settledId = null; // the newest frame whose plots, panels and story are all drawn
+let paintedId = null; // the newest frame whose after-paint work ran
+// A frame is settled once its after-paint work ran and the profile chart
+// itself (not only the fast layer) shows it.
+function settle() {
+  if (lastFrame && paintedId === lastFrame.id && !plots.unsettled()) settledId = lastFrame.id;
+}
 
 // The editor's status marks and the figures panel follow the frames, but
 // while frames stream in (a drag) at most every PanelMs: rebuilding the
 // panel costs as much as a chart, and the plots are what the hand follows.
 // The newest frame's panels are always drawn.
 const PanelMs = 100;
+const DragPanelMs = 250; // while a marker is dragged
 let panelsAt = -Infinity;
 let panelTimer = 0;
 let panelFrame = null;
 function panels(f) {
   panelFrame = f;
   if (panelTimer) return;
-  const wait = panelsAt + PanelMs - performance.now();
+  const wait = panelsAt + (plots.drag ? DragPanelMs : PanelMs) - performance.now();
   if (wait <= 0) {
     drawPanels();
     return;
@@ -192,7 +217,8 @@ function applyFrame() {
     story.render(store.scenario, f.report);
     if (f.link) addressSoon(f.link);
     const t4 = performance.now();
-    settledId = f.id;
+    paintedId = f.id;
+    settle();
     if (sentAt === undefined) return;
     const m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
     const editAt = session.editedAt.get(f.id);
@@ -204,6 +230,7 @@ function applyFrame() {
     // the marks; rest_ms: the other plots, panels and story after the
     // paint, and all_ms: send → the end of those.
     const entry = {
+      fast: plots.fast.active,
       id: f.id, ms: m.duration, edit_ms: editAt !== undefined ? t3 - editAt : m.duration, compute_ms: f.compute_ms,
       wait_ms: f.arrivedAt - sentAt, parse_ms: f.parseMs, page_ms: t3 - f.arrivedAt,
       charts_ms: t1 - t0, panel_ms: t2 - t1, rest_ms: t4 - t3, all_ms: t4 - sentAt, rest_charts: rest,
