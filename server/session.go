@@ -31,14 +31,18 @@ type mailbox[T any] struct{ ch chan T }
 
 func newMailbox[T any]() mailbox[T] { return mailbox[T]{ch: make(chan T, 1)} }
 
-func (m mailbox[T]) put(v T) { // never blocks; replaces an unread value
+func (m mailbox[T]) put(v T) { m.swap(v) } // never blocks; replaces an unread value
+
+// swap is put, returning the unread value it replaced, if any.
+func (m mailbox[T]) swap(v T) (old T, replaced bool) {
 	for {
 		select {
 		case m.ch <- v:
-			return
+			return old, replaced
 		default:
 			select {
-			case <-m.ch:
+			case old = <-m.ch:
+				replaced = true
 			default:
 			}
 		}
@@ -73,6 +77,7 @@ type frame struct {
 	link      []byte // encoded link string
 	charts    []chartOut
 	computeMS float64
+	frameStore
 }
 
 // session is one websocket connection: readLoop is the only reader,
@@ -86,6 +91,8 @@ type session struct {
 	work   mailbox[want]
 	frames mailbox[*frame]
 	errs   mailbox[*errorMsg]
+	free   chan *frame // frames the writer has sent, for compute to fill again
+	out    []byte      // the writer's encoding buffer
 
 	mu        sync.Mutex // guards runGen, runCancel, runStart, lastRun, recheck and lastFrame
 	runGen    uint64
@@ -136,6 +143,7 @@ func (s *Server) handleWS(w http.ResponseWriter, r *http.Request) {
 		work:   newMailbox[want](),
 		frames: newMailbox[*frame](),
 		errs:   newMailbox[*errorMsg](),
+		free:   make(chan *frame, 2),
 	}
 	if s.cfg.SessionEvaluator != nil {
 		sess.eval = s.cfg.SessionEvaluator()

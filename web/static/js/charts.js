@@ -82,8 +82,13 @@ export class Plots {
     this.hoverCard = hoverCard;
     this.wavelength = wavelength;
     this.onSettle = onSettle || (() => {});
-    this.fast = new FastLayer(this.charts.profile);
-    tooltipAbove(this.charts.profile);
+    // The line charts that follow every frame of a drag get a fast layer.
+    this.fasts = {};
+    for (const name of ['profile', 'echo']) {
+      this.fasts[name] = new FastLayer(this.charts[name]);
+      tooltipAbove(this.charts[name]);
+    }
+    this.fast = this.fasts.profile;
     this.settleTimer = 0;
     this.drag = null;
     this.lastView = null;
@@ -130,14 +135,15 @@ export class Plots {
       this.hold(name, entry);
       return;
     }
-    // The profile's data merges are drawn by the fast layer at once; the
-    // chart takes them when the frames rest (settle).
-    if (name === 'profile' && !entry.replace && this.fast.ready()) {
+    // The profile's and the echo's data merges are drawn by their fast
+    // layers at once; the charts take them when the frames rest (settle).
+    const fast = this.fasts[name];
+    if (fast && !entry.replace && fast.ready()) {
       const t0 = performance.now();
       this.hold(name, entry);
-      if (this.fast.draw(entry.option)) {
-        this.cacheMarkers(entry.option);
-        const ms = (fastMs.profile = fastMs.profile || []);
+      if (fast.draw(entry.option)) {
+        if (name === 'profile') this.cacheMarkers(entry.option);
+        const ms = (fastMs[name] = fastMs[name] || []);
         ms.push(performance.now() - t0);
         if (ms.length > 100) ms.shift();
         this.settleSoon();
@@ -174,16 +180,17 @@ export class Plots {
     clearTimeout(this.settleTimer);
     this.settleTimer = 0;
     if (this.drag) return; // the drag's end settles
-    if (this.fast.active) {
-      this.flush('profile');
-      this.fast.end();
+    for (const [name, fast] of Object.entries(this.fasts)) {
+      if (!fast.active) continue;
+      this.flush(name);
+      fast.end();
     }
     this.onSettle();
   }
 
-  // Whether the profile chart is behind the fast layer.
+  // Whether a chart is behind its fast layer.
   unsettled() {
-    return this.fast.active || !!this.settleTimer;
+    return Object.values(this.fasts).some((f) => f.active) || !!this.settleTimer;
   }
 
   // Draw the plots held back until after the profile's paint; true when
@@ -224,8 +231,8 @@ export class Plots {
     const t0 = performance.now();
     this.drawnAt[name] = t0;
     if (entry.replace) spaceAxisLabels(entry.option, chart.getWidth());
-    if (name === 'profile' && entry.replace) {
-      this.fast.setStyles(entry.option);
+    if (this.fasts[name] && entry.replace) {
+      this.fasts[name].setStyles(entry.option);
       layerSeries(entry.option);
     }
     chart.setOption(entry.option, { notMerge: !!entry.replace });
@@ -438,7 +445,7 @@ export class Plots {
       this.drag = null;
       this.guide(null);
       this.onDragEnd();
-      if (this.fast.active) this.settleSoon();
+      if (this.unsettled()) this.settleSoon();
     };
     // ECharts listens to mouse events (on the chart and, while a button is
     // down, on the document), not pointer events: while a marker is

@@ -1,4 +1,5 @@
-// A light drawing layer of our own over the profile plot, for frames that
+// A light drawing layer of our own over a line chart (the profile and the
+// echo), for frames that
 // stream in (a marker dragged, a level nudged with the wheel or the keys,
 // a value typed). ECharts re-lays out and repaints a whole chart on every
 // setOption, data-only merges included: axes and their labels, legend,
@@ -181,7 +182,6 @@ export class FastLayer {
     g.strokeStyle = st.colour;
     g.lineWidth = st.width;
     g.setLineDash(st.dash ? st.dash.map((d) => d * Math.max(st.width, 1)) : []);
-    g.lineJoin = 'round';
     g.beginPath();
     let pen = false;
     let last = null;

@@ -137,7 +137,7 @@ let paintedId = null; // the newest frame whose after-paint work ran
 // A frame is settled once its after-paint work ran and the profile chart
 // itself (not only the fast layer) shows it.
 function settle() {
-  if (lastFrame && paintedId === lastFrame.id && !plots.unsettled()) settledId = lastFrame.id;
+  if (lastFrame && paintedId === lastFrame.id && !plots.unsettled() && !addressTimer) settledId = lastFrame.id;
 }
 
 // The editor's status marks and the figures panel follow the frames, but
@@ -230,7 +230,7 @@ function applyFrame() {
     // the marks; rest_ms: the other plots, panels and story after the
     // paint, and all_ms: send → the end of those.
     const entry = {
-      fast: plots.fast.active,
+      fast: plots.unsettled(),
       id: f.id, ms: m.duration, edit_ms: editAt !== undefined ? t3 - editAt : m.duration, compute_ms: f.compute_ms,
       wait_ms: f.arrivedAt - sentAt, parse_ms: f.parseMs, page_ms: t3 - f.arrivedAt,
       charts_ms: t1 - t0, panel_ms: t2 - t1, rest_ms: t4 - t3, all_ms: t4 - sentAt, rest_charts: rest,
@@ -241,27 +241,21 @@ function applyFrame() {
   });
 }
 
-// The address bar follows the shown scene's link, but at most every
-// AddressMs while frames stream in: history.replaceState with a long URL
-// costs the main thread tens of ms on a busy machine.
-const AddressMs = 400;
-let addressAt = -Infinity;
+// The address bar follows the shown scene's link once frames rest for
+// AddressMs: history.replaceState with a long URL costs the main thread
+// 40–60 ms a call on a busy machine, so a drag must not pay it per frame.
+const AddressMs = 300;
 let addressTimer = 0;
 let addressLink = null;
 function addressSoon(link) {
   addressLink = link;
-  if (addressTimer) return;
-  const wait = addressAt + AddressMs - performance.now();
-  if (wait <= 0) {
-    addressNow();
-    return;
-  }
-  addressTimer = setTimeout(addressNow, wait);
+  clearTimeout(addressTimer);
+  addressTimer = setTimeout(addressNow, AddressMs);
 }
 function addressNow() {
   addressTimer = 0;
-  addressAt = performance.now();
   updateAddress(addressLink);
+  settle();
 }
 
 function updateAddress(link) {
