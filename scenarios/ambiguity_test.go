@@ -10,7 +10,7 @@ import (
 // the zero-delay cut of a constant-envelope pulse, |sinc(νT)|: νT = 0.5 →
 // −3.922 dB (Richards 2014, eq. 4.53).
 func TestAmbiguitySurface(t *testing.T) {
-	s := mustDecode(t, `{"version":1,"radar":{"sample_rate_hz":4e6},"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`)
+	s := mustDecode(t, `{"version":2,"radar":{"sample_rate_hz":4e6},"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`)
 	a, err := Ambiguity(context.Background(), s, 101, 33)
 	if err != nil {
 		t.Fatal(err)
@@ -53,7 +53,7 @@ func TestAmbiguitySurface(t *testing.T) {
 // from the peak, where the triangular main lobe 13(1 − |Δ|/T) is at
 // 20·log10(1 − 0.127) = −1.18 dB).
 func TestAmbiguityNoFalseNulls(t *testing.T) {
-	s := mustDecode(t, `{"version":1,"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`)
+	s := mustDecode(t, `{"version":2,"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`)
 	a, err := Ambiguity(context.Background(), s, 512, 9)
 	if err != nil {
 		t.Fatal(err)

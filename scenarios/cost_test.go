@@ -56,7 +56,7 @@ func costScene(t *testing.T, fs, stopM, tau float64, pulses, T int, kind string)
 			tg = append(tg, fmt.Sprintf(`{"id":"t%d","kind":"point","range_m":%g,"rcs_dbsm":-40}`, i, 5000+(stopM-5000)*float64(i+1)/float64(T+1)))
 		}
 	}
-	doc := fmt.Sprintf(`{"version":1,"radar":{"sample_rate_hz":%g,"pri_s":0.2,"pulses":%d,"window_start_m":5000,"window_stop_m":%g},"waveform":{"kind":"lfm","pulse_width_s":%g,"bandwidth_hz":%g},"targets":[%s]}`,
+	doc := fmt.Sprintf(`{"version":2,"radar":{"sample_rate_hz":%g,"pri_s":0.2,"pulses":%d,"window_start_m":5000,"window_stop_m":%g},"waveform":{"kind":"lfm","pulse_width_s":%g,"bandwidth_hz":%g},"targets":[%s]}`,
 		fs, pulses, stopM, tau, fs/2, strings.Join(tg, ","))
 	s, err := Decode([]byte(doc))
 	if err != nil {

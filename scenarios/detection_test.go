@@ -12,7 +12,7 @@ import (
 // radarScene builds a scenario from its radar, waveform and receiver
 // objects and its targets (JSON).
 func radarScene(radar, waveform, receiver string, targets ...string) string {
-	return `{"version":1,"radar":` + radar + `,"waveform":` + waveform + `,"receiver":` + receiver + `,"targets":[` + strings.Join(targets, ",") + `]}`
+	return `{"version":2,"radar":` + radar + `,"waveform":` + waveform + `,"receiver":` + receiver + `,"targets":[` + strings.Join(targets, ",") + `]}`
 }
 
 func pointRate(id string, r, rcs, rate float64) string {
@@ -37,8 +37,8 @@ func TestWindowEndNotTruncated(t *testing.T) {
 	wave := `{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e7}`
 	res := mustEvaluate(t, mustDecode(t, radarScene(radar, wave, det, pointJSON("a", 11995, rcsFor(37, 11995)))))
 	edge := target(res, "a")
-	if edge.Status != StatusDetected || edge.MarginDB == nil || *edge.MarginDB < 3 {
-		t.Fatalf("at the window's end: %s (%v): %s", edge.Status, edge.MarginDB, edge.Reason)
+	if edge.Status != StatusDetected || edge.ThresholdMarginDB == nil || *edge.ThresholdMarginDB < 3 {
+		t.Fatalf("at the window's end: %s (%v): %s", edge.Status, edge.ThresholdMarginDB, edge.Reason)
 	}
 	// Its noise-free peak is its SNR less the Taylor window's mismatch
 	// loss (about 0.9 dB) and at most 0.3 dB of straddle at 4 samples
@@ -71,7 +71,7 @@ func TestNextPulseEclipsing(t *testing.T) {
 	if a.Status != StatusDetected || a.EclipsingLossDB == nil || math.Abs(*a.EclipsingLossDB-1.94) > 0.1 || !strings.Contains(a.Reason, "next pulse") {
 		t.Errorf("a (80 %% heard): %s, loss %v: %s", a.Status, a.EclipsingLossDB, a.Reason)
 	}
-	if b.Status != StatusEclipsed || !strings.Contains(b.Reason, "next pulse") || b.MarginDB != nil {
+	if b.Status != StatusEclipsed || !strings.Contains(b.Reason, "next pulse") || b.ThresholdMarginDB != nil {
 		t.Errorf("b (7 %% heard): %s: %s", b.Status, b.Reason)
 	}
 	// snr_db states the loss.
@@ -155,8 +155,8 @@ func TestBlankedGatesDoNotTrain(t *testing.T) {
 	if e := target(res, "eclipsed"); e.Status != StatusEclipsed {
 		t.Fatalf("eclipsed target: %s: %s", e.Status, e.Reason)
 	}
-	if alone.Status != StatusDetected || with.Status != StatusDetected || math.Abs(*with.MarginDB-*alone.MarginDB) > 3 {
-		t.Fatalf("neighbour alone %s (%v dB), beside the eclipsed target %s (%v dB): %s", alone.Status, *alone.MarginDB, with.Status, *with.MarginDB, with.Reason)
+	if alone.Status != StatusDetected || with.Status != StatusDetected || math.Abs(*with.ThresholdMarginDB-*alone.ThresholdMarginDB) > 3 {
+		t.Fatalf("neighbour alone %s (%v dB), beside the eclipsed target %s (%v dB): %s", alone.Status, *alone.ThresholdMarginDB, with.Status, *with.ThresholdMarginDB, with.Reason)
 	}
 	end := int(math.Ceil(1e-5 * 4e7))
 	for k := 0; k < end; k++ {
@@ -186,8 +186,8 @@ func TestOneCFARComputation(t *testing.T) {
 		}
 	}
 	plotted := s.CleanDB[best] - s.ThresholdDB[best]
-	if tk.MarginDB == nil || math.Abs(*tk.MarginDB-plotted) > 0.05 {
-		t.Fatalf("tanker: reported margin %v, plotted %.2f dB", tk.MarginDB, plotted)
+	if tk.ThresholdMarginDB == nil || math.Abs(*tk.ThresholdMarginDB-plotted) > 0.05 {
+		t.Fatalf("tanker: reported threshold margin %v, plotted %.2f dB", tk.ThresholdMarginDB, plotted)
 	}
 }
 
@@ -244,7 +244,7 @@ func TestFalseAlarmsOversampledScene(t *testing.T) {
 	} {
 		alarms, trials := 0, 0
 		for seed := range 6 {
-			doc := fmt.Sprintf(`{"version":1,"seed":%d,"radar":{"peak_power_w":1000,"sample_rate_hz":4e7,"pri_s":2e-3,"window_start_m":3000,"window_stop_m":240000},
+			doc := fmt.Sprintf(`{"version":2,"seed":%d,"radar":{"peak_power_w":1000,"sample_rate_hz":4e7,"pri_s":2e-3,"window_start_m":3000,"window_stop_m":240000},
 				"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e7},"receiver":{"window":{"kind":"hamming"},"detector":%s},"targets":[]}`, seed+1, det)
 			sc := mustDecode(t, doc)
 			s := mustEvaluate(t, sc).Series

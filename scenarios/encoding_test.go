@@ -11,7 +11,7 @@ import (
 // alone would accept the BOM as an error about an invalid character and
 // replace bad bytes with U+FFFD silently.
 func TestDecodeEncoding(t *testing.T) {
-	good := `{"version":1,"name":"ok","waveform":{"kind":"barker","length":13,"chip_s":1e-6},"targets":[{"id":"a","kind":"point","range_m":5000,"rcs_dbsm":0},{"id":"b","kind":"point","range_m":6000,"rcs_dbsm":0}]}`
+	good := `{"version":2,"name":"ok","waveform":{"kind":"barker","length":13,"chip_s":1e-6},"targets":[{"id":"a","kind":"point","range_m":5000,"rcs_dbsm":0},{"id":"b","kind":"point","range_m":6000,"rcs_dbsm":0}]}`
 	if _, err := Decode([]byte(good)); err != nil {
 		t.Fatal(err)
 	}
@@ -44,7 +44,7 @@ func TestLongNamesClipped(t *testing.T) {
 	if err := ValidName(long); err == nil || len(err.Error()) > 300 || !strings.Contains(err.Error(), "5000 characters") {
 		t.Errorf("ValidName: %.400v", err)
 	}
-	_, err := Decode([]byte(`{"version":1,"` + long + `":1,"waveform":{"kind":"` + long + `"}}`))
+	_, err := Decode([]byte(`{"version":2,"` + long + `":1,"waveform":{"kind":"` + long + `"}}`))
 	if err == nil || len(err.Error()) > 1500 {
 		t.Errorf("Decode echoes %d bytes: %.300v", len(err.Error()), err)
 	}

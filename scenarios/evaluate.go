@@ -196,13 +196,14 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		}
 		d := m.doppler(g.fd)
 		tr := TargetReport{
-			ID:            g.t.ID,
-			RangeM:        g.rangeM,
-			DopplerHz:     g.fd + 0, // never −0
-			DopplerLossDB: d.lossDB,
-			RangeShiftM:   d.shift * C / 2,
-			Status:        v.status,
-			MarginDB:      v.margin(),
+			ID:                g.t.ID,
+			RangeM:            g.rangeM,
+			DopplerHz:         g.fd + 0, // never −0
+			DopplerLossDB:     d.lossDB,
+			RangeShiftM:       d.shift * C / 2,
+			Status:            v.status,
+			ThresholdMarginDB: v.margin(),
+			DecidedOn:         v.rule,
 		}
 		if g.t.Kind != TargetPoint && v.peakK >= 0 {
 			tr.RangeM = m.rangeOf(float64(v.peakK))
@@ -218,12 +219,12 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 			m.warn("target %s: its Doppler shift of %s is outside the receiver's band of ±%s (sample rate %s): %s", g.t.ID, hz(g.fd), hz(m.fs/2), hz(m.fs), bandWords(g))
 		}
 		tr.SNRDB = sc.snrDB(g, tr.RangeM, fig, d.lossDB)
-		m.pdFigures(g, v, v.alone, sc.train != nil, &tr)
+		m.pdFigures(v, v.alone, &tr)
 		if v.culprit >= 0 {
 			tr.MaskedBy = sc.targets[v.culprit].t.ID
 		}
 		tr.Reason = sc.reason(g, v, tr, cf)
-		if v.status == StatusBelowNoise || v.status == StatusMasked {
+		if v.status == StatusTooWeak || v.status == StatusMasked {
 			if d.lossDB >= 1 {
 				tr.Reason += fmt.Sprintf(" Its Doppler shift of %s costs %.1f dB of compressed peak.", hz(math.Abs(g.fd)), d.lossDB)
 			}
@@ -231,12 +232,17 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		if sc.train != nil {
 			sc.train.report(j, v, single, bin, &tr)
 		}
-		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && budget > 0 && ctx.Err() == nil {
+		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && v.status != StatusFolded && budget > 0 && ctx.Err() == nil {
 			if hint := suggestFix(ctx, m, j, v, &budget); hint != "" {
 				tr.Reason += " " + hint
 			}
 		}
-		if tr.Status == StatusOutOfWindow && g.t.Kind == TargetPoint {
+		if m.s.ReadVersion == 1 {
+			if old := v.v1Status(g); old != v1Name(v.status) || v.status == StatusFolded {
+				m.warn("target %s: %s", g.t.ID, verdictChange(old, v, tr, m.s.Receiver.Detector.PdRequired))
+			}
+		}
+		if (tr.Status == StatusOutOfWindow || tr.Status == StatusFolded) && g.t.Kind == TargetPoint {
 			if g.folds > 0 {
 				m.warn("target %s at %s is beyond the unambiguous range %s and folds to an apparent %s", g.t.ID, km(g.t.RangeM), km(m.unambM), km(g.apparent))
 			} else {

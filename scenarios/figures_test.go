@@ -22,7 +22,7 @@ func waveformOf(t *testing.T, doc string) WaveformReport {
 func TestFiguresIndependentOfRate(t *testing.T) {
 	wantW := 2 * (1 - 1/math.Sqrt2) * 1e-6 * C / 2
 	for _, spc := range []float64{1, 1.5, 2, 2.5, 3, 4, 8} {
-		doc := fmt.Sprintf(`{"version":1,"radar":{"sample_rate_hz":%g},"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`, spc*1e6)
+		doc := fmt.Sprintf(`{"version":2,"radar":{"sample_rate_hz":%g},"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`, spc*1e6)
 		w := waveformOf(t, doc)
 		if math.Abs(pslrOf(w)-20*math.Log10(1.0/13)) > 0.005 {
 			t.Errorf("%g samples/chip: PSLR %.3f dB, want −22.28", spc, pslrOf(w))
@@ -62,9 +62,9 @@ func TestFiguresReproducers(t *testing.T) {
 	}
 	for _, c := range cases {
 		for _, rate := range []string{"", `,"radar":{"sample_rate_hz":RATE}`} {
-			doc := `{"version":1,"waveform":` + c.wave + rate + `}`
+			doc := `{"version":2,"waveform":` + c.wave + rate + `}`
 			if rate != "" { // 1.5 samples per 1/B: a rate the old figures got wrong
-				b := mustDecode(t, `{"version":1,"waveform":`+c.wave+`}`).Waveform.Bandwidth()
+				b := mustDecode(t, `{"version":2,"waveform":`+c.wave+`}`).Waveform.Bandwidth()
 				doc = strings.Replace(doc, "RATE", fmt.Sprintf("%g", 1.5*b), 1)
 			}
 			w := waveformOf(t, doc)
@@ -88,7 +88,7 @@ func TestNoSidelobes(t *testing.T) {
 		`{"kind":"lfm","pulse_width_s":1e-6,"bandwidth_hz":3e6},"receiver":{"window":{"kind":"hann"}}`,
 		`{"kind":"lfm","pulse_width_s":1e-6,"bandwidth_hz":2e6},"receiver":{"window":{"kind":"blackman"}}`,
 	} {
-		w := waveformOf(t, `{"version":1,"waveform":`+wave+`}`)
+		w := waveformOf(t, `{"version":2,"waveform":`+wave+`}`)
 		if w.PSLRDB != nil || w.ISLRDB != nil {
 			t.Errorf("%s: PSLR %v ISLR %v, want both left out", wave, w.PSLRDB, w.ISLRDB)
 		}
@@ -104,7 +104,7 @@ func TestDopplerContinuous(t *testing.T) {
 	fd := 0.1 * B
 	vr := -fd * C / (2 * carrier) // closing: negative range rate
 	for _, spc := range []float64{1, 1.5, 2, 4} {
-		doc := fmt.Sprintf(`{"version":1,"radar":{"carrier_hz":%g,"sample_rate_hz":%g,"pri_s":1e-3,"window_start_m":20000,"window_stop_m":60000},
+		doc := fmt.Sprintf(`{"version":2,"radar":{"carrier_hz":%g,"sample_rate_hz":%g,"pri_s":1e-3,"window_start_m":20000,"window_stop_m":60000},
 			"waveform":{"kind":"lfm","pulse_width_s":%g,"bandwidth_hz":%g},
 			"targets":[{"id":"a","kind":"point","range_m":40000,"rcs_dbsm":10,"range_rate_mps":%g}]}`, carrier, spc*B, tau, B, vr)
 		tr := mustEvaluate(t, mustDecode(t, doc)).Report.Targets[0]
@@ -123,7 +123,7 @@ func TestDopplerContinuous(t *testing.T) {
 // at −16.5 dB or fail with a singular matrix at 2 samples per chip.
 func TestMinimaxScenario(t *testing.T) {
 	for _, spc := range []float64{1, 2, 2.5, 4} {
-		doc := fmt.Sprintf(`{"version":1,"radar":{"sample_rate_hz":%g},"waveform":{"kind":"barker","length":3,"chip_s":1e-6},"receiver":{"filter":"minimax","filter_length_factor":2}}`, spc*1e6)
+		doc := fmt.Sprintf(`{"version":2,"radar":{"sample_rate_hz":%g},"waveform":{"kind":"barker","length":3,"chip_s":1e-6},"receiver":{"filter":"minimax","filter_length_factor":2}}`, spc*1e6)
 		if w := waveformOf(t, doc); math.Abs(pslrOf(w)+19.554) > 0.02 {
 			t.Errorf("%g samples/chip: PSLR %.3f dB, want −19.55", spc, pslrOf(w))
 		}

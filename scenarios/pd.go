@@ -26,6 +26,9 @@ type pdTest struct {
 	// independent of them (docs/detection-probability.md §7).
 	ev    []float64
 	alpha float64
+	// beyond is set for a steady target behind a CFAR whose multiplier
+	// dsp's series does not accept: Pd is then pdBeyond's average.
+	beyond bool
 }
 
 // pdTestFor returns the test of a target of fluctuation fluct whose
@@ -64,10 +67,16 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 	if d.Kind != DetectorFixed && v.cells == 0 {
 		return pdTest{}, false
 	}
-	if det.Validate() != nil {
-		return pdTest{}, false
-	}
 	t := pdTest{det: det, snr: v.peak}
+	if det.Validate() != nil {
+		// Too few training cells for the series: a steady target's Pd
+		// is still the average of pdavg.go.
+		if sw != dsp.SwerlingNone || det.CFARCells == 0 || det.Swerling != dsp.SwerlingNone {
+			return pdTest{}, false
+		}
+		t.beyond = true
+		return t, true
+	}
 	if d.Kind == DetectorCA && !train {
 		t.ev, t.alpha = m.correlatedCells(v.peakK)
 	}
@@ -126,16 +135,27 @@ func (t pdTest) pdCorrelated(snr, r float64) float64 {
 // requiredSNR returns the SNR (linear) at which t reaches pd against noise
 // alone.
 func (t pdTest) requiredSNR(pd float64) (float64, error) {
-	if t.ev == nil {
+	if t.ev == nil && !t.beyond {
 		return t.det.RequiredSNR(pd)
 	}
+	at := func(snr float64) float64 {
+		if t.beyond {
+			p, _ := t.pdBeyond(snr, 1)
+			return p
+		}
+		return t.pdCorrelated(snr, 1)
+	}
 	lo, hi := -60.0, 200.0
-	if t.pdCorrelated(dsp.FromDB(hi), 1) < pd {
+	if at(dsp.FromDB(hi)) < pd {
 		return 0, fmt.Errorf("Pd %g needs more than %g dB", pd, hi)
 	}
-	for hi-lo > 1e-9 {
+	eps := 1e-9
+	if t.beyond {
+		eps = 1e-5 // each step integrates: 35 steps
+	}
+	for hi-lo > eps {
 		mid := (lo + hi) / 2
-		if t.pdCorrelated(dsp.FromDB(mid), 1) < pd {
+		if at(dsp.FromDB(mid)) < pd {
 			lo = mid
 		} else {
 			hi = mid
@@ -176,6 +196,9 @@ func (t pdTest) pd(r float64) (float64, bool) {
 	if !(r >= 1) || math.IsInf(r, 1) {
 		return 0, false
 	}
+	if t.beyond {
+		return t.pdBeyond(t.snr, r)
+	}
 	if t.ev != nil {
 		return t.pdCorrelated(t.snr, r), true
 	}
@@ -187,8 +210,12 @@ func (t pdTest) pd(r float64) (float64, bool) {
 		lp := t.logPfaRaised(r)
 		d.Pfa = math.Exp(lp)
 		if lp < math.Log(1e-300) || d.Validate() != nil {
-			// Beyond the series: an upper bound at a reachable Pfa
-			// above the true one.
+			// Beyond the series: a steady target's Pd by pdavg.go;
+			// otherwise an upper bound at a reachable Pfa above the
+			// true one.
+			if p, ok := t.pdBeyond(t.snr, r); ok {
+				return p, true
+			}
 			for _, p := range []float64{1e-300, 1e-200, 1e-100, 1e-50, 1e-30, 1e-20, 1e-15, 1e-12} {
 				d.Pfa = p
 				if p >= math.Exp(lp) && d.Validate() == nil {
@@ -204,18 +231,31 @@ func (t pdTest) pd(r float64) (float64, bool) {
 	return d.Pd(t.snr), true
 }
 
-// pdFigures sets pd, pd_alone, snr_required_db and pd_margin_db of a
-// point target with verdict v; alone is the threshold of its cell with
-// the other targets removed (its own sidelobes kept).
-func (m *model) pdFigures(g *tgt, v verdict, alone float64, train bool, out *TargetReport) {
-	if v.status == StatusOutOfWindow || g.rejected || !(v.noiseLevel > 0) {
-		return
-	}
-	t, ok := m.pdTestFor(g, v, train)
+// withSNR returns t for a target of SNR snr (linear) at the same cell.
+func (t pdTest) withSNR(snr float64) pdTest {
+	t.snr = snr
+	return t
+}
+
+// pdAt is pd with 0 where the series cannot reach the raised threshold.
+func (t pdTest) pdAt(r float64) float64 {
+	p, ok := t.pd(r)
 	if !ok {
+		return 0
+	}
+	return p
+}
+
+// pdFigures sets pd, pd_alone, snr_required_db and margin_db of a point
+// target with verdict v (its Pd test and Pd in the scene set by decide);
+// alone is the threshold of its cell with the other targets removed (its
+// own sidelobes kept).
+func (m *model) pdFigures(v verdict, alone float64, out *TargetReport) {
+	if !v.hasPd {
 		return
 	}
-	if p, ok := t.pd(math.Max(v.threshold/v.noiseLevel, 1)); ok && p >= 0 && p <= 1 {
+	t := v.test
+	if p := v.pdScene; v.sceneOK && p >= 0 && p <= 1 {
 		out.Pd = &p
 	}
 	if p, ok := t.pd(math.Max(alone/v.noiseLevel, 1)); ok && p >= 0 && p <= 1 {
@@ -225,7 +265,7 @@ func (m *model) pdFigures(g *tgt, v verdict, alone float64, train bool, out *Tar
 		rdb := dsp.DB(req)
 		mdb := dsp.DB(t.snr) - rdb
 		if !math.IsInf(rdb, 0) && !math.IsNaN(rdb) && !math.IsInf(mdb, 0) && !math.IsNaN(mdb) {
-			out.SNRRequiredDB, out.PdMarginDB = &rdb, &mdb
+			out.SNRRequiredDB, out.MarginDB = &rdb, &mdb
 		}
 	}
 }

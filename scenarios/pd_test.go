@@ -11,7 +11,7 @@ import (
 
 // pdScene evaluates one point target of the given fluctuation at 6 km in
 // lfmScene's radar, with its RCS tuned (two evaluations) so that the SNR
-// the Pd test sees at its cell (snr_required_db + pd_margin_db) is snrDB.
+// the Pd test sees at its cell (snr_required_db + margin_db) is snrDB.
 func pdScene(t *testing.T, window, detector, fluct string, snrDB float64) TargetReport {
 	t.Helper()
 	rcs := rcsFor(snrDB, 6000)
@@ -19,10 +19,10 @@ func pdScene(t *testing.T, window, detector, fluct string, snrDB float64) Target
 	for range 2 {
 		b, _ := json.Marshal(map[string]any{"id": "a", "kind": "point", "range_m": 6000, "rcs_dbsm": rcs, "fluctuation": fluct})
 		tr = target(mustEvaluate(t, mustDecode(t, lfmScene(window, detector, string(b)))), "a")
-		if tr.SNRRequiredDB == nil || tr.PdMarginDB == nil || tr.Pd == nil || tr.PdAlone == nil {
+		if tr.SNRRequiredDB == nil || tr.MarginDB == nil || tr.Pd == nil || tr.PdAlone == nil {
 			t.Fatalf("%s %s: Pd fields missing: %+v", detector, fluct, tr)
 		}
-		rcs += snrDB - (*tr.SNRRequiredDB + *tr.PdMarginDB)
+		rcs += snrDB - (*tr.SNRRequiredDB + *tr.MarginDB)
 	}
 	return tr
 }
@@ -94,14 +94,14 @@ func TestPdFluctuationMatters(t *testing.T) {
 func TestPdCorrelatedCells(t *testing.T) {
 	scene := func(snr float64) TargetReport {
 		b, _ := json.Marshal(map[string]any{"id": "a", "kind": "point", "range_m": 6000, "rcs_dbsm": snr, "fluctuation": "swerling1"})
-		doc := `{"version":1,"radar":{"peak_power_w":1000,"sample_rate_hz":2e7,"pri_s":2e-4,"window_start_m":3000,"window_stop_m":12000},
+		doc := `{"version":2,"radar":{"peak_power_w":1000,"sample_rate_hz":2e7,"pri_s":2e-4,"window_start_m":3000,"window_stop_m":12000},
 			"waveform":{"kind":"barker","length":13,"chip_s":1e-7},
 			"receiver":{"window":{"kind":"none"},"detector":{"kind":"ca_cfar","pfa":1e-6,"guard_cells":30,"training_cells":16}},
 			"targets":[` + string(b) + `]}`
 		return target(mustEvaluate(t, mustDecode(t, doc)), "a")
 	}
 	tr := scene(0)
-	if tr.SNRRequiredDB == nil || tr.PdMarginDB == nil {
+	if tr.SNRRequiredDB == nil || tr.MarginDB == nil {
 		t.Fatalf("Pd fields missing: %+v", tr)
 	}
 	req := *tr.SNRRequiredDB
@@ -110,7 +110,7 @@ func TestPdCorrelatedCells(t *testing.T) {
 		t.Errorf("Swerling 1, 16 correlated cells: snr_required_db %.3f, want between 23.15 and 25.41 dB", req)
 	}
 	// Place the target at the required SNR (the RCS moves the SNR dB for dB).
-	tr = scene(req - (req + *tr.PdMarginDB))
+	tr = scene(req - (req + *tr.MarginDB))
 	if tr.Pd == nil || math.Abs(*tr.Pd-0.9) > 0.003 {
 		t.Errorf("at the required SNR: pd %v, want 0.9", tr.Pd)
 	}
@@ -133,13 +133,13 @@ func TestPdMaskedAndTrain(t *testing.T) {
 	}
 	doc := strings.Replace(lfmScene(`{"kind":"none"}`, fixed, pointJSON("a", r0, rcsFor(0, r0))), `"pri_s":2e-4`, `"pri_s":2e-4,"pulses":16`, 1)
 	a := target(mustEvaluate(t, mustDecode(t, doc)), "a")
-	if a.SNRIntegratedDB == nil || a.SNRRequiredDB == nil || a.PdMarginDB == nil || a.Pd == nil {
+	if a.SNRIntegratedDB == nil || a.SNRRequiredDB == nil || a.MarginDB == nil || a.Pd == nil {
 		t.Fatalf("train: fields missing: %+v", a)
 	}
 	if math.Abs(*a.SNRRequiredDB-13.18) > 0.006 {
 		t.Errorf("train: snr_required_db %.4f, want 13.18", *a.SNRRequiredDB)
 	}
-	if cell := *a.SNRRequiredDB + *a.PdMarginDB; cell > *a.SNRIntegratedDB+1e-9 || cell < *a.SNRIntegratedDB-1 {
+	if cell := *a.SNRRequiredDB + *a.MarginDB; cell > *a.SNRIntegratedDB+1e-9 || cell < *a.SNRIntegratedDB-1 {
 		t.Errorf("train: tested SNR %.3f dB, snr_integrated_db %.3f dB", cell, *a.SNRIntegratedDB)
 	}
 }
@@ -157,6 +157,46 @@ func TestKnownNoisePd(t *testing.T) {
 					t.Errorf("Swerling %d, SNR %g, Pfa %g: %.12g, series %.12g", sw, chi, pfa, got, want)
 				}
 			}
+		}
+	}
+}
+
+// TestStatusOnPd checks that statuses follow Pd at pd_required 0.9 (fixed
+// threshold, Pfa 1e-6, one pulse, known noise: T = −ln 1e-6 = 11.40 dB
+// over the noise), with published values:
+//   - a Swerling 1 target whose peak is 4 dB over the threshold (15.40 dB)
+//     has Pd = Pfa^(1/(1+SNR)) = 0.679 (DiFranco & Rubin, Radar Detection,
+//     1968; Richards, Fundamentals of Radar Signal Processing, 2nd ed.,
+//     §6.3): it clears the threshold, yet is too weak for Pd 0.9;
+//   - a steady target is at the Pd 0.9 boundary at 13.18 dB (numerical
+//     Marcum Q, Richards eq. 6.79): too weak at 13.16 dB, detected at
+//     13.20 dB;
+//   - with the signal power equal to the threshold (11.40 dB), Pd is 0.54
+//     for a steady target and 0.39 for a Swerling 1 target (the same
+//     sources), and both are too weak.
+func TestStatusOnPd(t *testing.T) {
+	fixed := `{"kind":"fixed","pfa":1e-6}`
+	thr := dsp.DB(-math.Log(1e-6))
+	for _, c := range []struct {
+		name, fluct string
+		snr, pd     float64
+		status      string
+	}{
+		{"Swerling 1, 4 dB over the threshold", "swerling1", thr + 4, 0.679, StatusTooWeak},
+		{"steady just under 13.18 dB", "none", 13.16, 0.8985, StatusTooWeak},
+		{"steady just over 13.18 dB", "none", 13.20, 0.9015, StatusDetected},
+		{"steady at the threshold", "none", thr, 0.54, StatusTooWeak},
+		{"Swerling 1 at the threshold", "swerling1", thr, 0.39, StatusTooWeak},
+	} {
+		tr := pdScene(t, `{"kind":"none"}`, fixed, c.fluct, c.snr)
+		if tr.Status != c.status || tr.DecidedOn != "pd" || math.Abs(*tr.Pd-c.pd) > 0.005 {
+			t.Errorf("%s: %s on %q, pd %.4f (want %s, %.3f): %s", c.name, tr.Status, tr.DecidedOn, *tr.Pd, c.status, c.pd, tr.Reason)
+		}
+		if c.fluct == "swerling1" && c.snr > thr && (tr.ThresholdMarginDB == nil || math.Abs(*tr.ThresholdMarginDB-4) > 0.01) {
+			t.Errorf("%s: threshold margin %v, want 4 dB", c.name, tr.ThresholdMarginDB)
+		}
+		if c.status == StatusTooWeak && !strings.Contains(tr.Reason, "Too weak") {
+			t.Errorf("%s: reason %q", c.name, tr.Reason)
 		}
 	}
 }

@@ -31,17 +31,22 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 	m := sc.m
 	r := m.s.Radar
 	det := detectorName(m.s.Receiver.Detector)
-	id := g.t.ID
+	req := m.s.Receiver.Detector.PdRequired
 	switch v.status {
 	case StatusDetected:
-		return fmt.Sprintf("Detected: its peak, %.1f dB above noise, clears the %s threshold by %.1f dB.", dsp.DB(v.peak), det, *tr.MarginDB) + sc.lossWords(g)
+		if v.rule == rulePd {
+			return fmt.Sprintf("Detected: %s; its peak, %.1f dB above noise, clears the %s threshold by %.1f dB.", sc.pdWords(g, v, tr, true), dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold)) + sc.lossWords(g)
+		}
+		return fmt.Sprintf("Detected: its peak, %.1f dB above noise, clears the %s threshold by %.1f dB (%s).", dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold), noPdWords(g, m.s.Receiver.Detector)) + sc.lossWords(g)
+	case StatusFolded:
+		out := fmt.Sprintf("Folded: it lies beyond the unambiguous range of %s, so the echo from %s arrives after the next pulse and shows at an apparent %s, inside the window, where it looks like a target at that range.", km(m.unambM), km(g.rangeM), km(g.apparent))
+		if v.hasPd && v.sceneOK {
+			out += fmt.Sprintf(" That false target is seen with Pd %s.", PdText(v.pdScene))
+		}
+		return out
 	case StatusOutOfWindow:
 		if g.t.Kind == TargetPoint && g.folds > 0 {
-			where := "outside the receive window"
-			if g.apparent >= r.WindowStartM && g.apparent <= r.WindowStopM {
-				where = "inside the window, where it looks like a target at that range"
-			}
-			return fmt.Sprintf("Beyond the unambiguous range of %s: the echo from %s arrives after the next pulse and folds to an apparent %s, %s.", km(m.unambM), km(g.rangeM), km(g.apparent), where)
+			return fmt.Sprintf("Beyond the unambiguous range of %s: the echo from %s arrives after the next pulse and folds to an apparent %s, outside the receive window.", km(m.unambM), km(g.rangeM), km(g.apparent))
 		}
 		if g.t.Kind != TargetPoint && g.t.RangeStartM >= m.unambM {
 			return fmt.Sprintf("Beyond the unambiguous range of %s: its echoes fold back by %d PRI(s) and appear nearer than they are.", km(m.unambM), g.folds)
@@ -60,16 +65,79 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 			return fmt.Sprintf("Eclipsed: at %s, inside the %s blind range of the %s pulse, none of its response reaches a processed range gate (the receiver is blanked while transmitting); %.0f %% of its echo is heard.", km(g.apparent), km(blind), sec(m.tau), 100*g.received)
 		}
 		l, _ := g.eclipseLossDB(sc.m.processed)
+		if v.rule == rulePd {
+			pd := v.pdNoise
+			if v.sceneOK {
+				pd = v.pdScene
+			}
+			return fmt.Sprintf("Eclipsed: only %.0f %% of its echo is heard, the rest arrives while %s is transmitted; the %.1f dB lost leaves it Pd %s, under the required %g, while without that loss it would reach Pd %s against noise alone.", 100*g.received, which, l, PdText(pd), req, PdText(v.test.withSNR(v.unblanked).pdAt(1)))
+		}
 		return fmt.Sprintf("Eclipsed: only %.0f %% of its echo is heard, the rest arrives while %s is transmitted; the %.1f dB lost leaves its peak on the processed range gates %.1f dB under the %s threshold, while without that loss it would clear the threshold against noise alone by %.1f dB.", 100*g.received, which, l, -dsp.DB(v.peak/v.threshold), det, dsp.DB(v.unblanked/v.noiseLevel))
-	case StatusBelowNoise:
+	case StatusTooWeak:
 		if g.rejected {
-			return fmt.Sprintf("Below noise: its Doppler shift of %s lies outside the receiver's band of ±%s, which rejects its echo entirely.", hz(g.fd), hz(m.fs/2))
+			return fmt.Sprintf("Too weak: its Doppler shift of %s lies outside the receiver's band of ±%s, which rejects its echo entirely.", hz(g.fd), hz(m.fs/2))
 		}
 		if math.IsInf(v.noiseLevel, 1) {
-			return fmt.Sprintf("Below noise: its peak is %.1f dB above noise, but the %s has no training cells around it in this receive window, so it cannot detect there; widen the window or use fewer training cells.", dsp.DB(v.peak), det) + sc.lossWords(g)
+			return fmt.Sprintf("Too weak: its peak is %.1f dB above noise, but the %s has no training cells around it in this receive window, so it cannot detect there; widen the window or use fewer training cells.", dsp.DB(v.peak), det) + sc.lossWords(g)
 		}
-		return fmt.Sprintf("Below noise: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone.", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel)) + sc.lossWords(g)
+		if v.rule == rulePd {
+			return fmt.Sprintf("Too weak: even against noise alone %s.", sc.pdWords(g, v, tr, false)) + sc.lossWords(g)
+		}
+		return fmt.Sprintf("Too weak: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone (%s).", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel), noPdWords(g, m.s.Receiver.Detector)) + sc.lossWords(g)
 	}
+	return sc.maskedReason(g, v, tr)
+}
+
+// pdWords states a target's Pd against the required one, and its tested
+// SNR against the SNR that needs: "Pd 0.962 against the required 0.9 ...".
+// In the scene when scene is true (detected), else against noise alone.
+func (sc *scene) pdWords(g *tgt, v verdict, tr TargetReport, scene bool) string {
+	req := sc.m.s.Receiver.Detector.PdRequired
+	pd := v.pdNoise
+	if scene && v.sceneOK {
+		pd = v.pdScene
+	}
+	verb := "reaches"
+	if pd < req {
+		verb = "falls short of"
+	}
+	out := fmt.Sprintf("its Pd of %s %s the required %g", PdText(pd), verb, req)
+	if tr.SNRRequiredDB != nil && tr.MarginDB != nil {
+		what := "over"
+		if *tr.MarginDB < 0 {
+			what = "under"
+		}
+		out += fmt.Sprintf(" (its %.1f dB SNR at the cell is %.1f dB %s the %.1f dB a %s target needs for that with the %s detector at Pfa %g)",
+			dsp.DB(v.test.snr), math.Abs(*tr.MarginDB), what, *tr.SNRRequiredDB, fluctuationWords(g.t.Fluctuation), detectorName(sc.m.s.Receiver.Detector), sc.m.s.Receiver.Detector.PFA)
+	}
+	return out
+}
+
+// fluctuationWords names a fluctuation model for a sentence.
+func fluctuationWords(f string) string {
+	switch f {
+	case "", FluctuationNone:
+		return "steady"
+	}
+	return "Swerling " + f[len(f)-1:]
+}
+
+// noPdWords says why the threshold rather than Pd decided a status.
+func noPdWords(g *tgt, d Detector) string {
+	switch {
+	case g.t.Kind != TargetPoint:
+		return "an extended or volume return has no Pd here, so its noise-free peak against the threshold decides"
+	case d.Kind == DetectorGO || d.Kind == DetectorSO || d.Kind == DetectorCens:
+		return "no Pd series for the " + detectorName(d) + " yet, so the noise-free peak against the threshold decides"
+	}
+	return "no closed-form Pd applies here, so the noise-free peak against the threshold decides"
+}
+
+// maskedReason writes the reason of a masked target.
+func (sc *scene) maskedReason(g *tgt, v verdict, tr TargetReport) string {
+	m := sc.m
+	det := detectorName(m.s.Receiver.Detector)
+	id := g.t.ID
 	// Masked.
 	by := "the rest of the scene"
 	var other *tgt
@@ -88,23 +156,56 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		} else if other != nil && other.t.Kind != TargetPoint && g.t.Kind == TargetPoint && g.apparent >= other.t.RangeStartM && g.apparent <= other.t.RangeStopM {
 			what = "clutter in the same cell"
 		}
-		return fmt.Sprintf("Masked by %s: its %s puts %.1f dB more power into %s's cell than %s's own peak, which would clear the noise-only threshold by %.1f dB.",
-			by, what, dsp.DB(v.cell/v.peak), id, id, clear)
+		if v.cell >= v.peak {
+			return fmt.Sprintf("Masked by %s: its %s puts %.1f dB more power into %s's cell than %s's own peak, which would clear the noise-only threshold by %.1f dB.",
+				by, what, dsp.DB(v.cell/v.peak), id, id, clear) + sc.maskedPd(v, tr, other == g)
+		}
+		return fmt.Sprintf("Masked by %s: its %s puts power only %.1f dB under %s's own peak into %s's cell, which lifts the threshold there.",
+			by, what, dsp.DB(v.peak/v.cell), id, id) + sc.maskedPd(v, tr, other == g)
 	}
 	cells := fmt.Sprintf("%d training cells", v.cells)
 	if sc.train != nil && sc.train.cfar() != nil {
 		cells = fmt.Sprintf("%d training cells around it on the range–Doppler map", v.cells)
 	}
 	if other == g && g.t.Kind != TargetPoint {
-		return fmt.Sprintf("Masked by itself: its own return, spread over its extent, fills the %s's %s and lifts the threshold %.1f dB above its strongest cell, which would clear the noise-only threshold by %.1f dB; a cell-averaging detector does not single out a return wider than its training window.",
-			det, cells, dsp.DB(v.threshold/v.peak), clear)
+		return fmt.Sprintf("Masked by itself: its own return, spread over its extent, fills the %s's %s and lifts the threshold %s its strongest cell, which would clear the noise-only threshold by %.1f dB; a cell-averaging detector does not single out a return wider than its training window.",
+			det, cells, lift(v), clear)
 	}
 	if other == g {
-		return fmt.Sprintf("Masked by its own range sidelobes: its own response fills the %s's %s and lifts the threshold %.1f dB above its peak, which would clear the noise-only threshold by %.1f dB.",
-			det, cells, dsp.DB(v.threshold/v.peak), clear) + sc.lossWords(g)
+		return fmt.Sprintf("Masked by its own range sidelobes: its own response fills the %s's %s and lifts the threshold %s its peak, which would clear the noise-only threshold by %.1f dB.",
+			det, cells, lift(v), clear) + sc.maskedPd(v, tr, true) + sc.lossWords(g)
 	}
-	return fmt.Sprintf("Masked by %s through the %s: its echo in the %s lifts the threshold %.1f dB above %s's peak, which would clear the noise-only threshold by %.1f dB.",
-		by, det, cells, dsp.DB(v.threshold/v.peak), id, clear) + sc.lossWords(g)
+	return fmt.Sprintf("Masked by %s through the %s: its echo in the %s lifts the threshold %s %s's peak, which would clear the noise-only threshold by %.1f dB.",
+		by, det, cells, lift(v), id, clear) + sc.maskedPd(v, tr, false) + sc.lossWords(g)
+}
+
+// lift says where the scene's threshold sits against a masked target's
+// peak: "4.2 dB above" or, when Pd rather than the threshold decides, "to
+// 1.3 dB under".
+func lift(v verdict) string {
+	if v.threshold >= v.peak {
+		return fmt.Sprintf("%.1f dB above", dsp.DB(v.threshold/v.peak))
+	}
+	return fmt.Sprintf("to %.1f dB under", dsp.DB(v.peak/v.threshold))
+}
+
+// maskedPd compares a masked target's Pd in the scene with its Pd alone
+// (with the other targets removed), or against noise alone when it masks
+// itself: the sentence that makes it masked rather than too weak.
+func (sc *scene) maskedPd(v verdict, tr TargetReport, self bool) string {
+	if v.rule != rulePd {
+		return ""
+	}
+	req := sc.m.s.Receiver.Detector.PdRequired
+	alone := fmt.Sprintf("%s with noise alone", PdText(v.pdNoise))
+	if !self && tr.PdAlone != nil && *tr.PdAlone >= req {
+		alone = fmt.Sprintf("%s alone", PdText(*tr.PdAlone))
+	}
+	if !v.sceneOK {
+		// The raised threshold is beyond the series; its peak is under it.
+		return fmt.Sprintf(" In the scene its Pd is too small for the series to reach (the threshold is raised that far), against %s; %g is required.", alone, req)
+	}
+	return fmt.Sprintf(" Its Pd is %s in the scene, against %s; %g is required.", PdText(v.pdScene), alone, req)
 }
 
 // whichPulse names the transmit pulse that eclipses a point target.
@@ -176,7 +277,10 @@ func suggestFix(ctx context.Context, base *model, j int, v verdict, budget *int)
 			return ""
 		}
 		if w := sc.judge(j, m.detector()); w.status == StatusDetected {
-			return fmt.Sprintf("%s would detect it with %.1f dB margin.", c.text, *w.margin())
+			if w.rule == rulePd && w.sceneOK {
+				return fmt.Sprintf("%s would detect it with Pd %s.", c.text, PdText(w.pdScene))
+			}
+			return fmt.Sprintf("%s would detect it with %.1f dB margin over the threshold.", c.text, *w.margin())
 		}
 	}
 	return ""
@@ -230,8 +334,8 @@ func candidates(s *Scenario, j int, v verdict) []candidate {
 			{fmt.Sprintf("A pulse half as long (%s, blind range %s)", sec(w.PulseWidth()/2), km(C*w.PulseWidth()/4)), scale(0.5)},
 			{fmt.Sprintf("A pulse a quarter as long (%s, blind range %s)", sec(w.PulseWidth()/4), km(C*w.PulseWidth()/8)), scale(0.25)},
 		}
-	case StatusBelowNoise:
-		c := []candidate{{longer(2), scale(2)}, {longer(4), scale(4)}}
+	case StatusTooWeak:
+		c := []candidate{{longer(2), scale(2)}, {longer(4), scale(4)}, {longer(8), scale(8)}}
 		if w.IsPhaseCode() || w.Kind == KindCostas {
 			// A Doppler-tolerant pulse of the same length and band.
 			c = append([]candidate{{fmt.Sprintf("An LFM of the same length and bandwidth (%s, %s), which tolerates Doppler,", sec(w.PulseWidth()), hz(w.Bandwidth())), func(t *Scenario) bool {

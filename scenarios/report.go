@@ -1,19 +1,24 @@
 package scenarios
 
 // ReportVersion is the version of the report format.
-const ReportVersion = 1
+const ReportVersion = 2
 
-// Target statuses (report-format.md).
+// Target statuses (docs/report-format.md; decided by scene.decide,
+// docs/detection.md §6).
 const (
-	StatusDetected    = "detected"
-	StatusMasked      = "masked"
-	StatusBelowNoise  = "below_noise"
-	StatusEclipsed    = "eclipsed"
-	StatusOutOfWindow = "out_of_window"
+	StatusDetected    = "detected"      // Pd ≥ detector.pd_required
+	StatusMasked      = "masked"        // Pd < pd_required, but against noise alone it reaches it
+	StatusTooWeak     = "too_weak"      // Pd < pd_required even against noise alone (version 1: below_noise)
+	StatusEclipsed    = "eclipsed"      // lost to blanking while the radar transmits
+	StatusOutOfWindow = "out_of_window" // its echo is not in the receive window
+	StatusFolded      = "folded"        // a second-time-around echo inside the window, at the wrong range
 )
 
+// Statuses lists every status in the order the page's legend shows them.
+var Statuses = []string{StatusDetected, StatusMasked, StatusTooWeak, StatusEclipsed, StatusFolded, StatusOutOfWindow}
+
 // Report is what the tool concludes about one scenario: the report format
-// of docs/report-format.md, version 1. A quantity that does not
+// of docs/report-format.md, version 2. A quantity that does not
 // apply is a nil pointer and is left out of the JSON.
 type Report struct {
 	Version  int            `json:"version"`
@@ -51,15 +56,20 @@ type WaveformReport struct {
 
 // TargetReport says whether one target is seen, and why.
 type TargetReport struct {
-	ID                   string   `json:"id"`
-	RangeM               float64  `json:"range_m"`
-	SNRDB                float64  `json:"snr_db"`
-	DopplerHz            float64  `json:"doppler_hz"`
-	DopplerLossDB        float64  `json:"doppler_loss_db"`
-	RangeShiftM          float64  `json:"range_shift_m"`
-	Status               string   `json:"status"`
-	MaskedBy             string   `json:"masked_by,omitempty"`
+	ID            string  `json:"id"`
+	RangeM        float64 `json:"range_m"`
+	SNRDB         float64 `json:"snr_db"`
+	DopplerHz     float64 `json:"doppler_hz"`
+	DopplerLossDB float64 `json:"doppler_loss_db"`
+	RangeShiftM   float64 `json:"range_shift_m"`
+	Status        string  `json:"status"`
+	MaskedBy      string  `json:"masked_by,omitempty"`
+	// MarginDB is the tested SNR over snr_required_db (≥ 0: against
+	// noise alone the target reaches pd_required); omitted where no Pd is
+	// computed. ThresholdMarginDB is its expected (noise-free) peak over
+	// the threshold at its cell, dB (version 1's margin_db).
 	MarginDB             *float64 `json:"margin_db,omitempty"`
+	ThresholdMarginDB    *float64 `json:"threshold_margin_db,omitempty"`
 	Reason               string   `json:"reason"`
 	SNRIntegratedDB      *float64 `json:"snr_integrated_db,omitempty"`       // pulse trains only
 	ApparentRangeRateMPS *float64 `json:"apparent_range_rate_mps,omitempty"` // pulse trains only
@@ -73,7 +83,11 @@ type TargetReport struct {
 	Pd            *float64 `json:"pd,omitempty"`              // in the scene, at the scenario's pfa
 	PdAlone       *float64 `json:"pd_alone,omitempty"`        // with the other targets removed
 	SNRRequiredDB *float64 `json:"snr_required_db,omitempty"` // tested SNR that pd_required needs against noise alone
-	PdMarginDB    *float64 `json:"pd_margin_db,omitempty"`    // tested SNR − snr_required_db
+	// DecidedOn says what decided the status: "pd" (Pd against
+	// pd_required) or "threshold" (the noise-free peak against the
+	// threshold, where no Pd series applies); omitted for statuses that
+	// neither decides (out_of_window, folded, wholly eclipsed).
+	DecidedOn string `json:"decided_on,omitempty"`
 }
 
 // Result is a report with the series the page plots.

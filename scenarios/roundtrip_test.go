@@ -14,7 +14,7 @@ import (
 func randomScenario(r *rand.Rand) *Scenario {
 	pick := func(xs []string) string { return xs[r.IntN(len(xs))] }
 	u := func(lo, hi float64) float64 { return lo + (hi-lo)*r.Float64() }
-	s := &Scenario{Version: 1, Seed: r.Int64N(MaxSeed), Radar: defaultRadar(), Receiver: defaultReceiver()}
+	s := &Scenario{Version: Version, Seed: r.Int64N(MaxSeed), Radar: defaultRadar(), Receiver: defaultReceiver()}
 	if r.IntN(2) == 0 {
 		s.Name = "scene ✓ " + string(rune('A'+r.IntN(26)))
 		s.Notes = "notes with \"quotes\" and\nnew lines"
@@ -203,14 +203,14 @@ func checkRoundTrip(t *testing.T, s *Scenario) {
 // TestCanonicalOmitsDefaults checks the canonical form of a minimal
 // scenario against the format document: defaults omitted, order kept.
 func TestCanonicalOmitsDefaults(t *testing.T) {
-	in := `{"waveform":{"bandwidth_hz":1e6,"kind":"lfm","pulse_width_s":1e-5,"sweep":"up"},"seed":1,"version":1,
+	in := `{"waveform":{"bandwidth_hz":1e6,"kind":"lfm","pulse_width_s":1e-5,"sweep":"up"},"seed":1,"version":2,
 		"receiver":{"filter":"matched","window":{"kind":"none"},"detector":{"kind":"ca_cfar","pfa":1e-6}},"view":{}}`
 	s, err := Decode([]byte(in))
 	if err != nil {
 		t.Fatal(err)
 	}
 	got, _ := Canonical(s)
-	want := `{"version":1,"waveform":{"kind":"lfm","pulse_width_s":0.00001,"bandwidth_hz":1000000}}`
+	want := `{"version":2,"waveform":{"kind":"lfm","pulse_width_s":0.00001,"bandwidth_hz":1000000}}`
 	if string(got) != want {
 		t.Fatalf("canonical:\n got %s\nwant %s", got, want)
 	}

@@ -14,7 +14,7 @@ const (
 )
 
 // Version is the scenario format version this package reads and writes.
-const Version = 1
+const Version = 2
 
 // Limits that guard memory and time. Each is checked before the memory it
 // bounds is allocated.

@@ -236,7 +236,7 @@ func TestSigMFHarbour(t *testing.T) {
 // the documented scaling says E|n|² = 1. With N samples the mean of |n|²
 // (exponential, unit mean) has standard deviation 1/√N; allow 5σ.
 func TestSigMFNoiseScaling(t *testing.T) {
-	s, err := Decode([]byte(`{"version":1,"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":5e6},"radar":{"window_start_m":2000,"window_stop_m":30000}}`))
+	s, err := Decode([]byte(`{"version":2,"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":5e6},"radar":{"window_start_m":2000,"window_stop_m":30000}}`))
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -264,7 +264,7 @@ func TestSigMFNoiseScaling(t *testing.T) {
 func TestEchoGatesFold(t *testing.T) {
 	// A point beyond c·PRI/2 = 29 979 m folds: at 31 000 m it appears at
 	// 1021 m, (1021 − 0)·2/c·20 MHz = 136.2 samples into the window.
-	s, err := Decode([]byte(`{"version":1,"radar":{"pri_s":2e-4},"waveform":{"kind":"lfm","pulse_width_s":1e-6,"bandwidth_hz":1e7},
+	s, err := Decode([]byte(`{"version":2,"radar":{"pri_s":2e-4},"waveform":{"kind":"lfm","pulse_width_s":1e-6,"bandwidth_hz":1e7},
 		"targets":[{"id":"far","kind":"point","range_m":31000,"rcs_dbsm":10},{"id":"sea","kind":"extended","range_start_m":500,"range_stop_m":800,"rcs_dbsm_per_m":-20}]}`))
 	if err != nil {
 		t.Fatal(err)

@@ -20,12 +20,27 @@ type verdict struct {
 	cells      int     // training cells used at the peak cell
 	unblanked  float64 // the peak of its echo without blanking (same units as peak), 0 when not blanked
 	alone      float64 // detector threshold with only the target itself in its training cells
+
+	// Probabilities of detection (docs/detection.md §6), set by decide
+	// when a closed form applies (hasPd).
+	hasPd   bool
+	test    pdTest  // the target's test at its peak cell
+	pdNoise float64 // Pd against the detector's threshold with noise alone
+	pdScene float64 // Pd against the scene's threshold at the cell; valid when sceneOK
+	sceneOK bool
+	rule    string // "pd" or "threshold": what decided a detected, masked, too_weak or eclipsed-by-loss status
 }
 
-// margin returns the peak over the threshold in dB, or nil when the target
-// has no peak in the window.
+// Rules that decide a status (TargetReport.DecidedOn).
+const (
+	rulePd        = "pd"
+	ruleThreshold = "threshold"
+)
+
+// margin returns the peak over the threshold in dB (the report's
+// threshold_margin_db), or nil when the target has no peak in the window.
 func (v *verdict) margin() *float64 {
-	if v.peakK < 0 || v.peak <= 0 || v.status == StatusEclipsed || v.status == StatusOutOfWindow || math.IsInf(v.threshold, 1) {
+	if v.peakK < 0 || v.peak <= 0 || v.status == StatusEclipsed || v.status == StatusOutOfWindow || v.status == StatusFolded || math.IsInf(v.threshold, 1) {
 		return nil
 	}
 	m := dsp.DB(v.peak / v.threshold)
@@ -100,45 +115,132 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 		v.cell = others(v.peakK)
 		v.threshold = math.Max(v.sceneLevel, v.cell)
 	}
-	if sc.decide(g, &v) == StatusMasked {
+	if sc.decide(g, &v, false) == StatusMasked {
 		v.culprit = sc.culprit(j, v, cf)
 	}
 	return v
 }
 
 // decide sets the status of a verdict whose peak and thresholds are
-// measured, in the order of docs/detection.md §6, and returns it.
-func (sc *scene) decide(g *tgt, v *verdict) string {
-	switch {
-	case sc.outOfWindow(g):
-		v.status = StatusOutOfWindow
-	case g.t.Kind == TargetPoint && g.blankTouched && (g.received <= 0 || v.peakK < 0 || v.peak <= 0):
-		v.status = StatusEclipsed // wholly eclipsed
-	case g.t.Kind != TargetPoint && sc.inBlind(g):
-		v.status = StatusEclipsed
-	case g.rejected:
-		v.status = StatusBelowNoise // wholly outside the receiver's band
-	case v.peakK < 0 || v.peak <= 0:
-		v.status = StatusOutOfWindow
-	case v.peak >= v.threshold:
-		v.status = StatusDetected
-	case g.blankTouched && v.unblanked >= v.noiseLevel:
-		v.status = StatusEclipsed // the eclipsing loss decides
-	case v.peak < v.noiseLevel:
-		v.status = StatusBelowNoise
-	default:
-		v.status = StatusMasked
+// measured, in the order of docs/detection.md §6, and returns it. This is
+// the one place where statuses are decided, for single pulses and (train)
+// range–Doppler maps alike.
+//
+// Window and blanking come first (out_of_window, folded, wholly
+// eclipsed). Then, where a closed form gives the target's Pd (a point
+// target behind a fixed, CA or OS detector; v.hasPd), the status is
+// decided on Pd at detector.pd_required: detected when Pd in the scene
+// reaches it; eclipsed when blanking cost it and the unblanked echo would
+// reach it against noise alone; too_weak when even against noise alone
+// it does not; masked otherwise. Elsewhere the noise-free peak against
+// the threshold decides, as in format version 1.
+func (sc *scene) decide(g *tgt, v *verdict, train bool) string {
+	v.status = sc.windowStatus(g, v)
+	if v.status == StatusFolded && v.peakK >= 0 && v.peak > 0 {
+		sc.probabilities(g, v, train) // how often its ghost is seen
+	}
+	if v.status != "" {
+		return v.status
+	}
+	req := sc.m.s.Receiver.Detector.PdRequired
+	sc.probabilities(g, v, train)
+	if v.hasPd {
+		v.rule = rulePd
+		detected := v.peak >= v.threshold // beyond the series: the threshold decides
+		if v.sceneOK {
+			detected = v.pdScene >= req
+		}
+		switch {
+		case detected:
+			v.status = StatusDetected
+		case g.blankTouched && v.unblanked > 0 && v.test.withSNR(v.unblanked).pdAt(1) >= req:
+			v.status = StatusEclipsed // the eclipsing loss decides
+		case v.pdNoise < req:
+			v.status = StatusTooWeak
+		default:
+			v.status = StatusMasked
+			v.byCell = v.cell >= v.sceneLevel
+		}
+		return v.status
+	}
+	v.rule = ruleThreshold
+	v.status = thresholdStatus(g, v)
+	if v.status == StatusMasked {
 		v.byCell = v.cell >= v.sceneLevel
 	}
 	return v.status
 }
 
-// outOfWindow reports whether a target's echo folds from beyond the
-// unambiguous range or peaks outside the receive window.
+// windowStatus returns the status that the receive window and blanking
+// decide before any detector does (out_of_window, folded, eclipsed
+// wholly, too_weak for an echo the receiver's band rejects), or "".
+func (sc *scene) windowStatus(g *tgt, v *verdict) string {
+	switch {
+	case sc.outOfWindow(g):
+		return StatusOutOfWindow
+	case g.t.Kind == TargetPoint && g.folds > 0:
+		return StatusFolded // its apparent range is inside the window
+	case g.t.Kind == TargetPoint && g.blankTouched && (g.received <= 0 || v.peakK < 0 || v.peak <= 0):
+		return StatusEclipsed // wholly eclipsed
+	case g.t.Kind != TargetPoint && sc.inBlind(g):
+		return StatusEclipsed
+	case g.rejected:
+		return StatusTooWeak // wholly outside the receiver's band
+	case v.peakK < 0 || v.peak <= 0:
+		return StatusOutOfWindow
+	}
+	return ""
+}
+
+// thresholdStatus is the rule of format version 1, for a verdict that
+// windowStatus left undecided: the noise-free peak against the threshold
+// at its cell (v1's below_noise is too_weak).
+func thresholdStatus(g *tgt, v *verdict) string {
+	switch {
+	case v.peak >= v.threshold:
+		return StatusDetected
+	case g.blankTouched && v.unblanked >= v.noiseLevel:
+		return StatusEclipsed // the eclipsing loss decides
+	case v.peak < v.noiseLevel:
+		return StatusTooWeak
+	}
+	return StatusMasked
+}
+
+// probabilities sets the verdict's Pd figures when a closed form applies
+// to the target's test (pdTestFor).
+func (sc *scene) probabilities(g *tgt, v *verdict, train bool) {
+	if g.rejected || !(v.noiseLevel > 0) || math.IsInf(v.noiseLevel, 1) {
+		return
+	}
+	t, ok := sc.m.pdTestFor(g, *v, train)
+	if !ok {
+		return
+	}
+	pn, ok := t.pd(1)
+	if !ok {
+		return
+	}
+	v.hasPd, v.test, v.pdNoise = true, t, pn
+	v.pdScene, v.sceneOK = t.pd(math.Max(v.threshold/v.noiseLevel, 1))
+}
+
+// v1Status is the status format version 1 gave this verdict, in version
+// 1's names (v1Name): the threshold rule where a detector decides.
+func (v *verdict) v1Status(g *tgt) string {
+	if v.rule == "" {
+		return v1Name(v.status)
+	}
+	return v1Name(thresholdStatus(g, v))
+}
+
+// outOfWindow reports whether a point target's echo peaks outside the
+// receive window (at its apparent range, folded or not), or a distributed
+// target lies beyond the unambiguous range or wholly outside the window.
 func (sc *scene) outOfWindow(g *tgt) bool {
 	r := sc.m.s.Radar
 	if g.t.Kind == TargetPoint {
-		return g.folds > 0 || g.apparent < r.WindowStartM || g.apparent > r.WindowStopM
+		return g.apparent < r.WindowStartM || g.apparent > r.WindowStopM // a folded echo inside it is folded
 	}
 	return g.t.RangeStartM >= sc.m.unambM || g.t.RangeStopM < r.WindowStartM || g.t.RangeStartM > r.WindowStopM
 }

@@ -61,7 +61,7 @@ func TestSweepTaylorUnmasksSkiff(t *testing.T) {
 			t.Fatalf("point %d emitted at position %d", p.Index, i)
 		}
 		sk := targetByID(p.Report, "skiff")
-		t.Logf("sll %s: skiff %s margin %.2f dB, pslr %.2f, loss %.2f", g.Axes[1].Label(p.Values[1]), sk.Status, *sk.MarginDB, pslrOf(p.Report.Waveform), p.Report.Waveform.MismatchLossDB)
+		t.Logf("sll %s: skiff %s margin %.2f dB, pslr %.2f, loss %.2f", g.Axes[1].Label(p.Values[1]), sk.Status, *sk.ThresholdMarginDB, pslrOf(p.Report.Waveform), p.Report.Waveform.MismatchLossDB)
 	}
 	first, last := targetByID(got[0].Report, "skiff"), targetByID(got[5].Report, "skiff")
 	if first.Status != StatusMasked || last.Status != StatusDetected {
@@ -96,7 +96,7 @@ func TestSweepSequentialEqualsParallel(t *testing.T) {
 		dst *[]float64
 	}{{1, &seq}, {3, &par}} {
 		if err := g.Run(context.Background(), run.w, func(p Point) error {
-			*run.dst = append(*run.dst, *targetByID(p.Report, "skiff").MarginDB)
+			*run.dst = append(*run.dst, *targetByID(p.Report, "skiff").ThresholdMarginDB)
 			return nil
 		}); err != nil {
 			t.Fatal(err)

@@ -204,7 +204,7 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 		pu *= v.peak / p0
 	}
 	v.unblanked = pu
-	if sc.decide(g, &v) == StatusMasked {
+	if sc.decide(g, &v, true) == StatusMasked {
 		best := 0.0
 		var cells []dsp.Cell2
 		if !v.byCell && cf != nil {

@@ -106,7 +106,7 @@ func TestBlindSpeed(t *testing.T) {
 	if math.Abs(*a.ApparentRangeRateMPS) > 1e-6 {
 		t.Errorf("apparent range rate %v, want 0", *a.ApparentRangeRateMPS)
 	}
-	if a.Status != StatusBelowNoise || !strings.Contains(a.Reason, "Blind speed") {
+	if a.Status != StatusTooWeak || !strings.Contains(a.Reason, "Blind speed") {
 		t.Errorf("status %s: %s", a.Status, a.Reason)
 	}
 	if m := res.Series.RangeDoppler; m == nil || len(m.DB) != 31 || len(m.DB[0]) != len(res.Series.ProfileDB) {

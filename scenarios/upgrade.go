@@ -1,6 +1,7 @@
 package scenarios
 
 import (
+	"context"
 	"encoding/json"
 	"fmt"
 	"sort"
@@ -28,8 +29,58 @@ import (
 type upgrade func(doc map[string]any) (notes []string, err error)
 
 // formatUpgrades maps each older version v to its upgrade to v+1.
-// Version 1 is the first version, so there are none yet.
-var formatUpgrades = map[int]upgrade{}
+var formatUpgrades = map[int]upgrade{1: upgrade1}
+
+// upgrade1 reads a version 1 scenario as version 2. No field of a
+// scenario changed name or meaning; what changed is how the report
+// decides statuses (docs/scenario-format.md, "Versions and older
+// documents"): on Pd at receiver.detector.pd_required (0.9 unless set)
+// rather than on the noise-free peak against the threshold, with
+// below_noise renamed too_weak and a folded echo inside the window
+// reported as folded. A scenario carries no status, so there is none to
+// map here; the evaluation of a scenario read from version 1 names each
+// target whose verdict the new rules change (report warnings, and
+// UpgradeNotes).
+func upgrade1(doc map[string]any) ([]string, error) {
+	req := "0.9, the default"
+	if r, ok := doc["receiver"].(map[string]any); ok {
+		if d, ok := r["detector"].(map[string]any); ok {
+			if v, ok := d["pd_required"].(json.Number); ok {
+				req = v.String()
+			}
+		}
+	}
+	return []string{fmt.Sprintf("statuses are now decided on the probability of detection at receiver.detector.pd_required (%s) rather than on the noise-free peak against the threshold; below_noise is now called too_weak, and a folded echo inside the window is folded rather than out_of_window", req)}, nil
+}
+
+// UpgradeNotes returns what a user should hear of a scenario read from an
+// older format version: its upgrade notes (Scenario.Upgraded) and, for a
+// version 1 document, one sentence per target whose status the version 2
+// rules decide differently, naming the target, its old and its new
+// verdict. It analyses the scenario (without plot series) only when the
+// document was of version 1; nil for a current document.
+func UpgradeNotes(ctx context.Context, s *Scenario) ([]string, error) {
+	if s.ReadVersion == 0 {
+		return nil, nil
+	}
+	notes := append([]string(nil), s.Upgraded...)
+	if s.ReadVersion != 1 {
+		return notes, nil
+	}
+	rep, err := Analyse(ctx, s)
+	if err != nil {
+		return notes, err
+	}
+	for _, w := range rep.Warnings {
+		if strings.Contains(w, v1Marker) {
+			notes = append(notes, w)
+		}
+	}
+	return notes, nil
+}
+
+// v1Marker is the words that open every verdict-change warning.
+const v1Marker = "read from a format version 1 document"
 
 // supportedVersions returns the versions that Decode reads with these
 // upgrades, ascending: Version and every v whose chain of upgrades reaches
@@ -80,4 +131,31 @@ func upgradeDocument(data []byte, from int, upgrades map[int]upgrade) ([]byte, [
 		return nil, nil, err
 	}
 	return out, notes, nil
+}
+
+// v1Names maps the statuses that format version 2 renamed or split to
+// their version 1 names.
+var v1Names = map[string]string{StatusTooWeak: "below_noise", StatusFolded: "out_of_window"}
+
+// v1Name returns the version 1 name of a status.
+func v1Name(status string) string {
+	if n, ok := v1Names[status]; ok {
+		return n
+	}
+	return status
+}
+
+// verdictChange is the warning for a target of a scenario read from a
+// format version 1 document whose verdict version 2 decides differently.
+func verdictChange(old string, v verdict, tr TargetReport, req float64) string {
+	why := ""
+	switch {
+	case v.status == StatusFolded:
+		why = ": a folded echo inside the window now has a status of its own"
+	case v.rule == rulePd && v.sceneOK:
+		why = fmt.Sprintf(": Pd %s in the scene against the required %g (version 1 compared the noise-free peak with the threshold)", PdText(v.pdScene), req)
+	case v.rule == rulePd:
+		why = fmt.Sprintf(": Pd %s against noise alone, required %g (version 1 compared the noise-free peak with the threshold)", PdText(v.pdNoise), req)
+	}
+	return fmt.Sprintf("%s, whose rules called it %s; version 2 calls it %s%s.", v1Marker, old, tr.Status, why)
 }

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"errors"
+	"math"
 	"os"
 	"strings"
 	"testing"
@@ -13,8 +14,10 @@ import (
 // saved them, readable by every later engine: both decode, to the same
 // scenario, whose canonical form (written in the current version) is the
 // committed one, and the verdicts are the ones the scene was built for.
-// When the format moves to version 2, the canonical file is regenerated
-// in version 2 and this test then checks the upgrade path.
+// The canonical file is written in version 2, so this test checks the
+// upgrade path (upgrade1); the kayak, below_noise in version 1, is
+// too_weak in version 2, the same verdict under its new name, so no
+// verdict change is reported.
 func TestReadsVersion1(t *testing.T) {
 	dir := "testdata/formats/v1/"
 	file, err := os.ReadFile(dir + "estuary.json")
@@ -38,6 +41,9 @@ func TestReadsVersion1(t *testing.T) {
 		t.Fatalf("version 1 link: %v", err)
 	}
 	for name, s := range map[string]*Scenario{"file": fromFile, "link": fromLink} {
+		if s.ReadVersion != 1 || len(s.Upgraded) != 1 || !strings.Contains(s.Upgraded[0], "pd_required (0.9, the default)") {
+			t.Errorf("%s: read version %d, notes %q", name, s.ReadVersion, s.Upgraded)
+		}
 		got, err := Canonical(s)
 		if err != nil {
 			t.Fatal(err)
@@ -50,22 +56,23 @@ func TestReadsVersion1(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	statuses := map[string]string{"ferry": StatusDetected, "buoy": StatusOutOfWindow, "kayak": StatusBelowNoise}
+	statuses := map[string]string{"ferry": StatusDetected, "buoy": StatusOutOfWindow, "kayak": StatusTooWeak}
 	for _, tr := range res.Report.Targets {
 		if tr.Status != statuses[tr.ID] {
 			t.Errorf("%s: %s, want %s (%s)", tr.ID, tr.Status, statuses[tr.ID], tr.Reason)
 		}
 	}
+	for _, w := range res.Report.Warnings {
+		if strings.Contains(w, v1Marker) {
+			t.Errorf("a verdict change where none is: %s", w)
+		}
+	}
 }
 
 // TestUpgradeChain runs the machinery that reads older versions with a
-// made-up version 0 whose receive window ended at "window_end_m" and whose
-// status name for targets hidden by others was "hidden". The real
-// upgrades (formatUpgrades) are written the same way.
+// made-up version 0 whose receive window ended at "window_end_m", below
+// the real version 1 (read through upgrade1).
 func TestUpgradeChain(t *testing.T) {
-	if Version != 1 {
-		t.Skip("the made-up version 0 sits just below version 1")
-	}
 	ups := map[int]upgrade{0: func(doc map[string]any) ([]string, error) {
 		r, _ := doc["radar"].(map[string]any)
 		if v, ok := r["window_end_m"]; ok {
@@ -74,13 +81,13 @@ func TestUpgradeChain(t *testing.T) {
 			return []string{"radar.window_end_m is now radar.window_stop_m"}, nil
 		}
 		return nil, nil
-	}}
+	}, 1: upgrade1}
 	old := []byte(`{"version":0,"radar":{"window_end_m":9000},"waveform":{"kind":"rect","pulse_width_s":1e-6}}`)
 	s, err := decodeWith(old, ups)
 	if err != nil {
 		t.Fatalf("version 0 with an upgrade: %v", err)
 	}
-	if s.Version != Version || s.ReadVersion != 0 || s.Radar.WindowStopM != 9000 || len(s.Upgraded) != 1 {
+	if s.Version != Version || s.ReadVersion != 0 || s.Radar.WindowStopM != 9000 || len(s.Upgraded) != 2 {
 		t.Errorf("upgraded: version %d, read %d, window_stop_m %g, notes %q", s.Version, s.ReadVersion, s.Radar.WindowStopM, s.Upgraded)
 	}
 	// Errors in an upgraded document name the current fields.
@@ -91,15 +98,84 @@ func TestUpgradeChain(t *testing.T) {
 	// Without the upgrade, version 0 is refused with the list of versions.
 	_, err = Decode(old)
 	var verr *ValidationError
-	if !errors.As(err, &verr) || !strings.Contains(err.Error(), "0 is not supported (supported versions: 1)") {
+	if !errors.As(err, &verr) || !strings.Contains(err.Error(), "0 is not supported (supported versions: 1, 2)") {
 		t.Errorf("version 0 without an upgrade: %v", err)
 	}
-	if got := joinInts(supportedVersions(ups)); got != "0, 1" {
-		t.Errorf("supported versions %q, want \"0, 1\"", got)
+	if got := joinInts(supportedVersions(ups)); got != "0, 1, 2" {
+		t.Errorf("supported versions %q, want \"0, 1, 2\"", got)
 	}
 	// A current document is not marked as upgraded.
-	cur, err := decodeWith([]byte(`{"version":1,"waveform":{"kind":"rect","pulse_width_s":1e-6}}`), ups)
+	cur, err := decodeWith([]byte(`{"version":2,"waveform":{"kind":"rect","pulse_width_s":1e-6}}`), ups)
 	if err != nil || cur.ReadVersion != 0 || cur.Upgraded != nil {
 		t.Errorf("current document: %v, read %d, notes %q", err, cur.ReadVersion, cur.Upgraded)
+	}
+}
+
+// TestVersion1VerdictChange: a version 1 file and link whose Swerling 1
+// dinghy clears the fixed threshold by 4 dB (version 1: detected) but has
+// Pd = Pfa^(1/(1+SNR)) = 0.679 < 0.9 (DiFranco & Rubin; Richards §6.3),
+// so version 2 calls it too_weak. Both read, and the change is named in
+// the report's warnings and in UpgradeNotes: target, old and new verdict;
+// the wall, detected under both rules, is not named.
+func TestVersion1VerdictChange(t *testing.T) {
+	dir := "testdata/formats/v1/"
+	file, err := os.ReadFile(dir + "marina.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	link, err := os.ReadFile(dir + "marina.link")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := os.ReadFile(dir + "marina.canonical.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	fromFile, err := Decode(file)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fromLink, err := ParseLink(strings.TrimSpace(string(link)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for name, s := range map[string]*Scenario{"file": fromFile, "link": fromLink} {
+		if got, _ := Canonical(s); !bytes.Equal(got, bytes.TrimSpace(want)) {
+			t.Errorf("%s: canonical form\n%s\nwant\n%s", name, got, want)
+		}
+		notes, err := UpgradeNotes(context.Background(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		const change = "target dinghy: read from a format version 1 document, whose rules called it detected; version 2 calls it too_weak: Pd 0.679 in the scene against the required 0.9"
+		if len(notes) != 2 || !strings.Contains(notes[1], change) {
+			t.Errorf("%s: upgrade notes %q", name, notes)
+		}
+		rep, err := Analyse(context.Background(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var changes []string
+		for _, w := range rep.Warnings {
+			if strings.Contains(w, v1Marker) {
+				changes = append(changes, w)
+			}
+		}
+		if len(changes) != 1 || !strings.Contains(changes[0], change) {
+			t.Errorf("%s: verdict changes %q", name, changes)
+		}
+		d := target(&Result{Report: *rep}, "dinghy")
+		if d.Status != StatusTooWeak || d.ThresholdMarginDB == nil || math.Abs(*d.ThresholdMarginDB-4) > 0.05 {
+			t.Errorf("%s: dinghy %s, threshold margin %v", name, d.Status, d.ThresholdMarginDB)
+		}
+	}
+	// The same scenario written in version 2 carries no such warning.
+	canon, _ := Canonical(fromFile)
+	cur, err := Decode(canon)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if notes, _ := UpgradeNotes(context.Background(), cur); notes != nil {
+		t.Errorf("a version 2 document has upgrade notes: %q", notes)
 	}
 }

@@ -14,7 +14,7 @@ func TestEngineFromBuild(t *testing.T) {
 		want EngineInfo
 		str  string
 	}{
-		{"no build info", nil, EngineInfo{Version: "devel"}, "pulsewright devel · scenario format 1 · report format 1"},
+		{"no build info", nil, EngineInfo{Version: "devel"}, "pulsewright devel · scenario format 2 · report format 2"},
 		{"go test", &debug.BuildInfo{Main: debug.Module{Version: "(devel)"}}, EngineInfo{Version: "devel"}, "pulsewright devel · "},
 		{"release", &debug.BuildInfo{Main: debug.Module{Version: "v1.4.0"}, Settings: []debug.BuildSetting{
 			{Key: "vcs.revision", Value: "4bca754b1a2c3d4e5f60718293a4b5c6d7e8f901"}, {Key: "vcs.modified", Value: "false"}}},
@@ -39,7 +39,7 @@ func TestEngineFromBuild(t *testing.T) {
 // TestReportNamesEngine: every encoded report carries the engine, and a
 // report decoded from JSON keeps the engine it was written with.
 func TestReportNamesEngine(t *testing.T) {
-	res := mustEvaluate(t, mustDecode(t, `{"version":1,"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`))
+	res := mustEvaluate(t, mustDecode(t, `{"version":2,"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`))
 	b, err := json.Marshal(res.Report)
 	if err != nil {
 		t.Fatal(err)

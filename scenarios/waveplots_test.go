@@ -18,7 +18,7 @@ func waveScene(t testing.TB, waveform string, fs float64, receiver string) *Scen
 	if receiver == "" {
 		receiver = `{}`
 	}
-	return mustDecode(t, fmt.Sprintf(`{"version":1,"radar":{"peak_power_w":1000,"sample_rate_hz":%g,"pri_s":1e-3,"window_start_m":20000,"window_stop_m":30000},
+	return mustDecode(t, fmt.Sprintf(`{"version":2,"radar":{"peak_power_w":1000,"sample_rate_hz":%g,"pri_s":1e-3,"window_start_m":20000,"window_stop_m":30000},
 		"waveform":%s,"receiver":%s,"targets":[]}`, fs, waveform, receiver))
 }
 

@@ -22,7 +22,7 @@ func heavyScenario() string {
 	for i := range scenarios.MaxTargets {
 		tg = append(tg, fmt.Sprintf(`{"id":"c%d","kind":"extended","range_start_m":6000,"range_stop_m":7000000,"rcs_dbsm_per_m":-30}`, i))
 	}
-	return `{"version":1,"name":"heavy","radar":{"sample_rate_hz":2e7,"pri_s":0.1,"window_start_m":5000,"window_stop_m":7000000},` +
+	return `{"version":2,"name":"heavy","radar":{"sample_rate_hz":2e7,"pri_s":0.1,"window_start_m":5000,"window_stop_m":7000000},` +
 		`"waveform":{"kind":"lfm","pulse_width_s":2e-5,"bandwidth_hz":1e7},"targets":[` + strings.Join(tg, ",") + `]}`
 }
 
@@ -164,7 +164,7 @@ func TestRealEvaluationHonoursDeadline(t *testing.T) {
 	for i := range 24 {
 		tg = append(tg, fmt.Sprintf(`{"id":"c%d","kind":"extended","range_start_m":6000,"range_stop_m":900000,"rcs_dbsm_per_m":-30}`, i))
 	}
-	doc := `{"version":1,"radar":{"sample_rate_hz":2e7,"pri_s":0.1,"window_start_m":5000,"window_stop_m":900000},` +
+	doc := `{"version":2,"radar":{"sample_rate_hz":2e7,"pri_s":0.1,"window_start_m":5000,"window_stop_m":900000},` +
 		`"waveform":{"kind":"lfm","pulse_width_s":2e-5,"bandwidth_hz":1e7},"targets":[` + strings.Join(tg, ",") + `]}`
 	s, err := New(Config{DataDir: t.TempDir(), EvalTimeout: 300 * time.Millisecond}, testLogger(t), scenarios.Evaluate)
 	if err != nil {

@@ -26,8 +26,8 @@ func TestRoutes(t *testing.T) {
 	eval := &fakeEval{}
 	_, ts := mustServer(t, eval, nil)
 	demo := mustDemoJSON(t, "harbour-skiff")
-	invalid := `{"version":1,"waveform":{"kind":"barker","length":6,"chip_s":1e-6}}`
-	huge := `{"version":1,"notes":"` + strings.Repeat("x", scenarios.MaxDocumentBytes) + `"}`
+	invalid := `{"version":2,"waveform":{"kind":"barker","length":6,"chip_s":1e-6}}`
+	huge := `{"version":2,"notes":"` + strings.Repeat("x", scenarios.MaxDocumentBytes) + `"}`
 	tests := []struct {
 		name, method, path, body string
 		hdr                      []string
@@ -35,7 +35,7 @@ func TestRoutes(t *testing.T) {
 		want                     string // substring of the body
 	}{
 		{"health", "GET", "/healthz", "", nil, 200, `"engine":{"version":"`},
-		{"version", "GET", "/api/v1/version", "", nil, 200, `"scenario_format":1,"report_format":1,"text":"pulsewright `},
+		{"version", "GET", "/api/v1/version", "", nil, 200, `"scenario_format":2,"report_format":2,"text":"pulsewright `},
 		{"evaluate names its engine", "POST", "/api/v1/evaluate", demo, nil, 200, `"engine":{"version":`},
 		{"evaluate", "POST", "/api/v1/evaluate", demo, nil, 200, `"scenario":"Harbour approach`},
 		{"evaluate invalid", "POST", "/api/v1/evaluate", invalid, nil, 400, `"path":"waveform.length"`},
@@ -46,7 +46,7 @@ func TestRoutes(t *testing.T) {
 		{"links", "POST", "/api/v1/links", demo, nil, 200, `"link":"/#s=`},
 		{"links invalid", "POST", "/api/v1/links", invalid, nil, 400, `not a Barker length`},
 		{"demos", "GET", "/api/v1/demos", "", nil, 200, `"name":"harbour-skiff"`},
-		{"demo canonical", "GET", "/api/v1/demos/rocky-coast", "", nil, 200, `{"version":1,"name":"Patrol boat`},
+		{"demo canonical", "GET", "/api/v1/demos/rocky-coast", "", nil, 200, `{"version":2,"name":"Patrol boat`},
 		{"demo full", "GET", "/api/v1/demos/rocky-coast?form=full", "", nil, 200, `"sample_rate_hz":10000000`},
 		{"demo bad form", "GET", "/api/v1/demos/rocky-coast?form=xml", "", nil, 400, `want canonical or full`},
 		{"demo missing", "GET", "/api/v1/demos/nope", "", nil, 404, `known: closing-jet`},
@@ -181,8 +181,8 @@ func TestSavedScenarios(t *testing.T) {
 		{"PUT", "/api/v1/scenarios/" + strings.Repeat("n", 65), demo, nil, 400, "longer than 64"},
 		{"GET", "/api/v1/scenarios/a%5Cb", "", nil, 400, "may hold only"},
 		{"PUT", "/api/v1/scenarios/ok", demo, []string{"Content-Type", "application/x-www-form-urlencoded"}, 415, "must be JSON"},
-		{"PUT", "/api/v1/scenarios/ok", `{"version":1,"waveform":{"kind":"lfm"}}`, nil, 400, `"path":"waveform.pulse_width_s"`},
-		{"PUT", "/api/v1/scenarios/ok", `{"version":1,"notes":"` + strings.Repeat("y", scenarios.MaxDocumentBytes) + `"}`, nil, 413, "larger than"},
+		{"PUT", "/api/v1/scenarios/ok", `{"version":2,"waveform":{"kind":"lfm"}}`, nil, 400, `"path":"waveform.pulse_width_s"`},
+		{"PUT", "/api/v1/scenarios/ok", `{"version":2,"notes":"` + strings.Repeat("y", scenarios.MaxDocumentBytes) + `"}`, nil, 413, "larger than"},
 		{"POST", "/api/v1/scenarios/ok", demo, nil, 405, "not allowed"},
 	} {
 		resp, body := testRequest(t, ts, tt.method, tt.path, tt.body, tt.hdr...)

@@ -56,8 +56,9 @@ var statusStyle = map[string]struct{ colour, symbol string }{
 	// (web/static/css: --st-* and .dot).
 	scenarios.StatusDetected:    {"#2f7d3a", "circle"},
 	scenarios.StatusMasked:      {"#c2410c", "diamond"},
-	scenarios.StatusBelowNoise:  {"#7b8389", "emptyCircle"},
+	scenarios.StatusTooWeak:     {"#7b8389", "emptyCircle"},
 	scenarios.StatusEclipsed:    {"#6d3fc0", "triangle"},
+	scenarios.StatusFolded:      {"#a16207", "pin"},
 	scenarios.StatusOutOfWindow: {"#1b6aa5", "rect"},
 }
 

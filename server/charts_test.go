@@ -3,12 +3,14 @@ package server
 import (
 	"context"
 	"encoding/json"
+	"io/fs"
 	"math"
 	"strconv"
 	"strings"
 	"testing"
 
 	"github.com/pulsewright/pulsewright/scenarios"
+	"github.com/pulsewright/pulsewright/web"
 )
 
 func TestDecimateKeepsPeaks(t *testing.T) {
@@ -209,5 +211,65 @@ func BenchmarkFakeEval(b *testing.B) {
 	d, _ := scenarios.LoadDemo("long-pulse-blind")
 	for b.Loop() {
 		plausibleResult(d.Scenario)
+	}
+}
+
+// TestFoldedMarker: the long-pulse-blind demo's airliner at 210 km lies
+// beyond the 149.9 km unambiguous range; its echo folds to an apparent
+// 60.1 km, inside the window. Its marker is drawn there (not clamped at the
+// window's edge), with the folded status's own shape and colour.
+func TestFoldedMarker(t *testing.T) {
+	d, err := scenarios.LoadDemo("long-pulse-blind")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := scenarios.Evaluate(context.Background(), d.Scenario)
+	if err != nil {
+		t.Fatal(err)
+	}
+	lo := res.Series.RangeM0
+	hi := lo + float64(len(res.Series.ProfileDB)-1)*res.Series.RangeStepM
+	for _, m := range markers(res, lo, hi) {
+		if m.ID != "airliner-far" {
+			continue
+		}
+		ru := res.Report.Waveform.UnambiguousRangeM
+		want := 210000 - ru
+		if m.Status != scenarios.StatusFolded || math.Abs(m.Value[0]-want) > 1 || m.Value[0] <= lo || m.Value[0] >= hi {
+			t.Errorf("folded airliner: %s at %.0f m, want folded at %.0f m (window %.0f–%.0f m)", m.Status, m.Value[0], want, lo, hi)
+		}
+		if m.Symbol != statusStyle[scenarios.StatusFolded].symbol || m.Symbol == statusStyle[scenarios.StatusOutOfWindow].symbol {
+			t.Errorf("folded airliner drawn as %q", m.Symbol)
+		}
+		return
+	}
+	t.Fatal("no marker for airliner-far")
+}
+
+// TestStatusMarksMatchPage: every status of the report has one colour and
+// marker shape on the plots (statusStyle), and the page's stylesheet gives
+// its cards and dots the same colour (--st-STATUS) and a dot rule.
+func TestStatusMarksMatchPage(t *testing.T) {
+	css, err := fs.ReadFile(web.FS(), "css/app.css")
+	if err != nil {
+		t.Fatal(err)
+	}
+	shapes := map[string]string{}
+	for _, st := range scenarios.Statuses {
+		s, ok := statusStyle[st]
+		if !ok {
+			t.Errorf("status %s has no plot style", st)
+			continue
+		}
+		if other, dup := shapes[s.symbol]; dup {
+			t.Errorf("statuses %s and %s share the marker %q", st, other, s.symbol)
+		}
+		shapes[s.symbol] = st
+		if !strings.Contains(string(css), "--st-"+st+": "+s.colour+";") {
+			t.Errorf("css/app.css lacks --st-%s: %s; (the plot's colour)", st, s.colour)
+		}
+		if !strings.Contains(string(css), ".dot.st-"+st+" ") {
+			t.Errorf("css/app.css has no dot for %s", st)
+		}
 	}
 }

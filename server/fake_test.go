@@ -65,7 +65,7 @@ func plausibleResult(s *scenarios.Scenario) *scenarios.Result {
 		snr := 40 + t.RCSDBsm - 40*math.Log10(max(r, 100)/1e4)
 		status := scenarios.StatusDetected
 		if snr < 13 {
-			status = scenarios.StatusBelowNoise
+			status = scenarios.StatusTooWeak
 		}
 		res.Report.Targets = append(res.Report.Targets, scenarios.TargetReport{ID: t.ID, RangeM: r, SNRDB: snr, Status: status, Reason: "made up by the test's fake evaluator"})
 		p := math.Pow(10, snr/10)

@@ -295,7 +295,7 @@ func appendMarkers(b []byte, res *scenarios.Result, lo, hi float64) []byte {
 		}
 		st, ok := statusStyle[t.Status]
 		if !ok {
-			st = statusStyle[scenarios.StatusBelowNoise]
+			st = statusStyle[scenarios.StatusTooWeak]
 		}
 		x := clampAmp(t.RangeM)
 		at := x

@@ -103,8 +103,9 @@ document.body.dataset.charts = 'ready';
 var statusColour = map[string]string{
 	"detected":      "#1b7f3b",
 	"masked":        "#c2410c",
-	"below_noise":   "#6b7280",
+	"too_weak":      "#6b7280",
 	"eclipsed":      "#7c3aed",
+	"folded":        "#a16207",
 	"out_of_window": "#0e7490",
 }
 

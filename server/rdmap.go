@@ -184,7 +184,7 @@ func rdMarkers(res *scenarios.Result, l *rdLayout) []rdMarker {
 		}
 		st, ok := statusStyle[t.Status]
 		if !ok {
-			st = statusStyle[scenarios.StatusBelowNoise]
+			st = statusStyle[scenarios.StatusTooWeak]
 		}
 		r := t.RangeM
 		if unamb > 0 && r >= unamb {

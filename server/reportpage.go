@@ -121,7 +121,7 @@ func targetRows(r *scenarios.Report) []targetRow {
 	for i, t := range r.Targets {
 		row := targetRow{
 			ID:     t.ID,
-			Status: t.Status,
+			Status: strings.ReplaceAll(t.Status, "_", " "),
 			Colour: statusColour[t.Status],
 			Range:  fixed(t.RangeM, 1),
 			SNR:    fixed(t.SNRDB, 1),
@@ -273,7 +273,7 @@ var reportTmpl = template.Must(template.New("report").Parse(`<!DOCTYPE html>
 
 {{range .Charts}}<div class="chart" id="{{.ID}}" style="height:{{.Height}}px"></div>
 {{end}}
-<p class="notes">SNR is the expected single-pulse SNR at the compression filter's output; the margin is the target's noise-free peak over the detection threshold at its cell (positive: detected). Profiles are drawn from per-pixel minimum and maximum, so no peak is lost.</p>
+<p class="notes">SNR is the expected single-pulse SNR at the compression filter's output; Pd is how often the target is seen at the detector's false-alarm rate; a target is detected when its Pd reaches the required Pd. The margin is its SNR at its cell over the SNR the required Pd needs against noise alone (negative: too weak even alone). Profiles are drawn from per-pixel minimum and maximum, so no peak is lost.</p>
 
 <div class="grid2">
 <section>

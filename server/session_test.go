@@ -151,12 +151,12 @@ func TestSessionEdits(t *testing.T) {
 	}
 
 	// A bad edit is answered with its problems; the session lives on.
-	sendScenario(t, c, 13, `{"version":1,"waveform":{"kind":"barker","length":6,"chip_s":1e-6}}`)
+	sendScenario(t, c, 13, `{"version":2,"waveform":{"kind":"barker","length":6,"chip_s":1e-6}}`)
 	m = next(t, c, 13)
 	if m.Type != MsgError || len(m.Fields) != 1 || m.Fields[0].Path != "waveform.length" {
 		t.Fatalf("bad edit: %+v", m)
 	}
-	send(t, c, MsgPin, 14, `,"scenario":{"version":1}`)
+	send(t, c, MsgPin, 14, `,"scenario":{"version":2}`)
 	if m = next(t, c, 14); m.Type != MsgError || m.Error != "invalid pinned scenario" || len(m.Fields) == 0 {
 		t.Fatalf("bad pin: %+v", m)
 	}
@@ -227,12 +227,12 @@ func TestSessionCancelsStale(t *testing.T) {
 	// speed: here every new edit must cancel the one in flight.
 	_, ts := mustServer(t, eval, func(c *Config) { c.StarveAfter = time.Minute })
 	c := mustDial(t, ts, nil)
-	sendScenario(t, c, 0, `{"version":1,"name":"first","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
+	sendScenario(t, c, 0, `{"version":2,"name":"first","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
 	<-started
 	next(t, c, 0) // edits cancel computations only while frames flow (starveAfter)
-	sendScenario(t, c, 1, `{"version":1,"name":"slow","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
+	sendScenario(t, c, 1, `{"version":2,"name":"slow","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
 	<-started
-	sendScenario(t, c, 2, `{"version":1,"name":"quick","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
+	sendScenario(t, c, 2, `{"version":2,"name":"quick","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
 	m := next(t, c, 2)
 	if m.Type != MsgFrame || m.Report.Scenario != "quick" || cancelled.Load() != 1 {
 		t.Fatalf("frame %+v, cancelled %d", m, cancelled.Load())
@@ -258,12 +258,12 @@ func TestSessionStarvation(t *testing.T) {
 	}}
 	_, ts := mustServer(t, eval, func(c *Config) { c.StarveAfter = time.Nanosecond })
 	c := mustDial(t, ts, nil)
-	sendScenario(t, c, 0, `{"version":1,"name":"first","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
+	sendScenario(t, c, 0, `{"version":2,"name":"first","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
 	<-started
 	next(t, c, 0)
-	sendScenario(t, c, 1, `{"version":1,"name":"slow","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
+	sendScenario(t, c, 1, `{"version":2,"name":"slow","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
 	<-started
-	sendScenario(t, c, 2, `{"version":1,"name":"quick","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
+	sendScenario(t, c, 2, `{"version":2,"name":"quick","waveform":{"kind":"p4","length":16,"chip_s":1e-7}}`)
 	time.Sleep(20 * time.Millisecond) // let the reader hand the edit over; a cancel would end "slow" now
 	close(release)
 	if m := next(t, c, 1); m.Report.Scenario != "slow" {
@@ -308,7 +308,7 @@ func TestSessionShutdown(t *testing.T) {
 func TestSessionReadLimit(t *testing.T) {
 	_, ts := mustServer(t, nil, nil)
 	c := mustDial(t, ts, nil)
-	big := `{"type":"scenario","id":1,"scenario":{"version":1,"notes":"` + strings.Repeat("z", maxMessage) + `"}}`
+	big := `{"type":"scenario","id":1,"scenario":{"version":2,"notes":"` + strings.Repeat("z", maxMessage) + `"}}`
 	c.WriteMessage(websocket.TextMessage, []byte(big))
 	c.SetReadDeadline(time.Now().Add(5 * time.Second))
 	_, _, err := c.ReadMessage()

@@ -76,8 +76,8 @@ func WriteSweepPage(w io.Writer, base *scenarios.Scenario, g *scenarios.Grid, pt
 		}
 		for _, t := range p.Report.Targets {
 			var y any // null: no margin (out of window)
-			if t.MarginDB != nil {
-				y = round4(*t.MarginDB)
+			if t.ThresholdMarginDB != nil {
+				y = round4(*t.ThresholdMarginDB)
 			}
 			l := find(&margins, t.ID+suffix)
 			l.data = append(l.data, [2]any{xval(p), y})
@@ -169,7 +169,7 @@ var sweepTmpl = template.Must(template.New("sweep").Parse(`<!DOCTYPE html>
 </header>
 {{range .Charts}}<div class="chart" id="{{.ID}}" style="height:{{.Height}}px"></div>
 {{end}}
-<p class="notes">A target is detected where its margin is at or above 0 dB. Missing points are targets outside the receive window.</p>
+<p class="notes">A target's expected peak clears the threshold where this margin is at or above 0 dB; whether it is detected is decided on its probability of detection against the required one (the report's status). Missing points are targets outside the receive window.</p>
 <div class="caution"><b>Caution.</b> {{.Caution}}</div>
 <footer>Made with Pulsewright: <span class="engine">{{.Engine}}</span>.</footer>
 </main>

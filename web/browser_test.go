@@ -230,7 +230,7 @@ func TestPageLoadsWithPlots(t *testing.T) {
 		t.Errorf("footer caution missing: %q", txt)
 	}
 	// The footer names the engine, from GET /api/v1/version.
-	waitFor(t, ctx, "the engine in the footer", `/^pulsewright .* · scenario format 1 · report format 1$/.test(document.querySelector('#engine').textContent)`)
+	waitFor(t, ctx, "the engine in the footer", `/^pulsewright .* · scenario format 2 · report format 2$/.test(document.querySelector('#engine').textContent)`)
 	shot(t, ctx, "")
 }
 

@@ -112,7 +112,7 @@ func TestWordsAndUnits(t *testing.T) {
 	shot(t, ctx, "phases")
 	// No identifiers on screen; the card numbers are explained.
 	text := eval[string](t, ctx, `document.body.innerText`)
-	for _, id := range []string{"least_squares", "swerling1", "ca_cfar", "below_noise", "P_fa", "phase_code"} {
+	for _, id := range []string{"least_squares", "swerling1", "ca_cfar", "below_noise", "too_weak", "out_of_window", "P_fa", "phase_code"} {
 		if strings.Contains(text, id) {
 			t.Errorf("the page shows the identifier %q", id)
 		}

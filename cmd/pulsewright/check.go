@@ -47,7 +47,11 @@ func (e *env) check(args []string) error {
 	}
 	if s.ReadVersion != 0 {
 		fmt.Fprintf(e.stdout, "read as format version %d from version %d\n", s.Version, s.ReadVersion)
-		for _, n := range s.Upgraded {
+		notes, err := scenarios.UpgradeNotes(e.ctx, s)
+		if err != nil {
+			return err
+		}
+		for _, n := range notes {
 			fmt.Fprintf(e.stdout, "  %s\n", n)
 		}
 	}

@@ -54,23 +54,23 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 	tw.Flush()
 	fmt.Fprintln(w)
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "ID\tRANGE m\tSNR dB\tDOPPLER Hz\tDOP LOSS dB\tSHIFT m\tMARGIN dB\tPD\tPD MARGIN dB\tSTATUS\t")
+	fmt.Fprintln(tw, "ID\tRANGE m\tSNR dB\tDOPPLER Hz\tDOP LOSS dB\tSHIFT m\tPD\tMARGIN dB\tTHR MARGIN dB\tSTATUS\t")
 	for _, t := range r.Targets {
-		margin, pd, pdMargin := "—", "—", "—"
-		if t.MarginDB != nil {
-			margin = fx(*t.MarginDB, 1)
+		thrMargin, pd, margin := "—", "—", "—"
+		if t.ThresholdMarginDB != nil {
+			thrMargin = fx(*t.ThresholdMarginDB, 1)
 		}
 		if t.Pd != nil {
 			pd = scenarios.PdText(*t.Pd)
 		}
-		if t.PdMarginDB != nil {
-			pdMargin = fx(*t.PdMarginDB, 1)
+		if t.MarginDB != nil {
+			margin = fx(*t.MarginDB, 1)
 		}
 		status := t.Status
 		if t.MaskedBy != "" {
 			status += " by " + t.MaskedBy
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", t.ID, fx(t.RangeM, 1), fx(t.SNRDB, 1), fx(t.DopplerHz, 0), fx(t.DopplerLossDB, 2), fx(t.RangeShiftM, 2), margin, pd, pdMargin, status)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", t.ID, fx(t.RangeM, 1), fx(t.SNRDB, 1), fx(t.DopplerHz, 0), fx(t.DopplerLossDB, 2), fx(t.RangeShiftM, 2), pd, margin, thrMargin, status)
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
@@ -113,8 +113,8 @@ func pdLine(t scenarios.TargetReport) string {
 	if t.PdAlone != nil && scenarios.PdText(*t.PdAlone) != scenarios.PdText(*t.Pd) {
 		line += " in the scene, " + scenarios.PdText(*t.PdAlone) + " alone"
 	}
-	if t.SNRRequiredDB != nil && t.PdMarginDB != nil {
-		line += fmt.Sprintf("; the required Pd needs %s dB at its cell, margin %s dB", fx(*t.SNRRequiredDB, 1), fx(*t.PdMarginDB, 1))
+	if t.SNRRequiredDB != nil && t.MarginDB != nil {
+		line += fmt.Sprintf("; the required Pd needs %s dB at its cell, margin %s dB", fx(*t.SNRRequiredDB, 1), fx(*t.MarginDB, 1))
 	}
 	return line + "."
 }

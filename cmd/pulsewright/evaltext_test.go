@@ -31,7 +31,7 @@ func TestReportTextShowsPd(t *testing.T) {
 		t.Fatal(err)
 	}
 	out := b.String()
-	for _, want := range []string{"PD MARGIN dB", "skiff: Pd ", " alone; the required Pd needs"} {
+	for _, want := range []string{"THR MARGIN dB", "skiff: Pd ", " alone; the required Pd needs", "masked by tanker"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("text report lacks %q:\n%s", want, out)
 		}

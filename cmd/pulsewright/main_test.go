@@ -24,7 +24,7 @@ func runCmd(t *testing.T, stdin string, args ...string) (int, string, string) {
 func TestCheckForms(t *testing.T) {
 	dir := t.TempDir()
 	file := filepath.Join(dir, "s.json")
-	doc := `{"version":1,"name":"file scene","waveform":{"kind":"p4","length":64,"chip_s":1e-7}}`
+	doc := `{"version":2,"name":"file scene","waveform":{"kind":"p4","length":64,"chip_s":1e-7}}`
 	if err := os.WriteFile(file, []byte(doc), 0o644); err != nil {
 		t.Fatal(err)
 	}
@@ -43,14 +43,14 @@ func TestCheckForms(t *testing.T) {
 		if code != 0 {
 			t.Fatalf("check %q: exit %d, %s", ref, code, errs)
 		}
-		if !strings.HasPrefix(out, "valid") || !strings.Contains(out, "canonical  {\"version\":1") {
+		if !strings.HasPrefix(out, "valid") || !strings.Contains(out, "canonical  {\"version\":2") {
 			t.Fatalf("check %q summary:\n%s", ref, out)
 		}
 	}
 }
 
 func TestCheckInvalid(t *testing.T) {
-	code, out, errs := runCmd(t, `{"version":1,"waveform":{"kind":"lfm","pulse_width_s":-1,"bandwidth_hz":1e6},"seed":-2}`, "check", "-")
+	code, out, errs := runCmd(t, `{"version":2,"waveform":{"kind":"lfm","pulse_width_s":-1,"bandwidth_hz":1e6},"seed":-2}`, "check", "-")
 	if code != exitInvalid {
 		t.Fatalf("exit %d, want %d", code, exitInvalid)
 	}
@@ -95,7 +95,7 @@ func TestDemosList(t *testing.T) {
 // TestCheckHostileInputFast feeds a stream that claims a gigabyte and a
 // deeply nested document; both must be refused with bounded allocation.
 func TestCheckHostileInput(t *testing.T) {
-	deep := `{"version":1,"view":` + strings.Repeat("[", 200000) + strings.Repeat("]", 200000) + "}"
+	deep := `{"version":2,"view":` + strings.Repeat("[", 200000) + strings.Repeat("]", 200000) + "}"
 	for name, in := range map[string]string{
 		"1 GB claim": strings.Repeat(" ", 5<<20) + "{}",
 		"deep":       deep,
@@ -116,7 +116,7 @@ func TestCheckHostileInput(t *testing.T) {
 // report's engine object as JSON.
 func TestVersionCommand(t *testing.T) {
 	code, out, stderr := runCmd(t, "", "version")
-	if code != exitOK || !strings.HasPrefix(out, "pulsewright ") || !strings.Contains(out, "scenario format 1 · report format 1") {
+	if code != exitOK || !strings.HasPrefix(out, "pulsewright ") || !strings.Contains(out, "scenario format 2 · report format 2") {
 		t.Errorf("version: exit %d, %q %s", code, out, stderr)
 	}
 	code, out, _ = runCmd(t, "", "version", "--format", "json")
@@ -126,5 +126,25 @@ func TestVersionCommand(t *testing.T) {
 	}
 	if code, _, _ := runCmd(t, "", "version", "--format", "xml"); code != exitInvalid {
 		t.Errorf("version --format xml: exit %d", code)
+	}
+}
+
+// TestCheckVersion1NamesVerdictChange: checking a version 1 file prints
+// the upgrade note and names the target whose verdict the version 2 rules
+// change (a Swerling 1 dinghy 4 dB over a fixed threshold: detected in
+// version 1, too weak at Pd 0.679 < 0.9 in version 2).
+func TestCheckVersion1NamesVerdictChange(t *testing.T) {
+	code, out, errs := runCmd(t, "", "check", "../../scenarios/testdata/formats/v1/marina.json")
+	if code != 0 {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"read as format version 2 from version 1", "statuses are now decided on the probability of detection",
+		"target dinghy: read from a format version 1 document, whose rules called it detected; version 2 calls it too_weak: Pd 0.679"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("check output lacks %q:\n%s", want, out)
+		}
+	}
+	if strings.Contains(out, "target wall") {
+		t.Errorf("the wall's verdict did not change:\n%s", out)
 	}
 }

@@ -183,7 +183,7 @@ func (s *sweepWriter) header() error {
 	}
 	h = append(h, "pslr_db", "islr_db", "mainlobe_3db_m", "mismatch_loss_db", "straddle_loss_max_db", "straddle_loss_mean_db")
 	for _, id := range s.ids {
-		h = append(h, id+".status", id+".snr_db", id+".margin_db")
+		h = append(h, id+".status", id+".snr_db", id+".pd", id+".margin_db", id+".threshold_margin_db")
 		if s.trains {
 			h = append(h, id+".snr_integrated_db", id+".apparent_range_rate_mps")
 		}
@@ -202,13 +202,12 @@ func (s *sweepWriter) row(p scenarios.Point) error {
 	r = append(r, optFig(wf.PSLRDB), optFig(wf.ISLRDB), num(wf.Mainlobe3dBM), num(wf.MismatchLossDB), num(wf.StraddleLossMaxDB), num(wf.StraddleLossMeanDB))
 	for _, id := range s.ids {
 		t := findTarget(p.Report, id)
-		switch {
-		case t == nil:
-			r = append(r, "", "", "")
-		case t.MarginDB == nil:
-			r = append(r, t.Status, num(t.SNRDB), "")
-		default:
-			r = append(r, t.Status, num(t.SNRDB), num(*t.MarginDB))
+		if t == nil {
+			r = append(r, "", "", "", "", "")
+		} else {
+			r = append(r, t.Status, num(t.SNRDB), optNum(t, func(t *scenarios.TargetReport) *float64 { return t.Pd }),
+				optNum(t, func(t *scenarios.TargetReport) *float64 { return t.MarginDB }),
+				optNum(t, func(t *scenarios.TargetReport) *float64 { return t.ThresholdMarginDB }))
 		}
 		if s.trains {
 			r = append(r, optNum(t, func(t *scenarios.TargetReport) *float64 { return t.SNRIntegratedDB }),

@@ -75,7 +75,8 @@ func TestSweepTaylorCSV(t *testing.T) {
 	}
 	head := strings.SplitN(string(data), "\n", 2)[0]
 	want := "receiver.window.kind,receiver.window.sidelobe_db,pslr_db,islr_db,mainlobe_3db_m,mismatch_loss_db,straddle_loss_max_db,straddle_loss_mean_db," +
-		"tanker.status,tanker.snr_db,tanker.margin_db,skiff.status,skiff.snr_db,skiff.margin_db,pilot-boat.status,pilot-boat.snr_db,pilot-boat.margin_db"
+		"tanker.status,tanker.snr_db,tanker.pd,tanker.margin_db,tanker.threshold_margin_db,skiff.status,skiff.snr_db,skiff.pd,skiff.margin_db,skiff.threshold_margin_db," +
+		"pilot-boat.status,pilot-boat.snr_db,pilot-boat.pd,pilot-boat.margin_db,pilot-boat.threshold_margin_db"
 	if head != want {
 		t.Fatalf("header\n%s\nwant\n%s", head, want)
 	}
@@ -88,9 +89,9 @@ func TestSweepTaylorCSV(t *testing.T) {
 		if got, want := r["receiver.window.sidelobe_db"], strconv.Itoa(-20-5*i); got != want {
 			t.Errorf("row %d: sidelobe %s, want %s (grid order)", i, got, want)
 		}
-		m, _ := strconv.ParseFloat(r["skiff.margin_db"], 64)
+		m, _ := strconv.ParseFloat(r["skiff.threshold_margin_db"], 64)
 		if m <= prev {
-			t.Errorf("row %d: skiff margin %v not above %v", i, m, prev)
+			t.Errorf("row %d: skiff threshold margin %v not above %v", i, m, prev)
 		}
 		prev = m
 		if r["tanker.status"] != "detected" {

@@ -26,7 +26,7 @@ func hasControls(s string) bool {
 // messages print no raw control characters, and the JSON still decodes
 // to the same name.
 func TestTerminalOutputSanitised(t *testing.T) {
-	doc := `{"version":1,"name":` + jsonString(hostile) + `,"waveform":{"kind":"barker","length":13,"chip_s":1e-6},"targets":[{"id":"t1","kind":"point","range_m":3000,"rcs_dbsm":0}]}`
+	doc := `{"version":2,"name":` + jsonString(hostile) + `,"waveform":{"kind":"barker","length":13,"chip_s":1e-6},"targets":[{"id":"t1","kind":"point","range_m":3000,"rcs_dbsm":0}]}`
 	for _, args := range [][]string{{"check", "-"}, {"eval", "-", "--format", "text"}, {"eval", "-"}} {
 		code, out, errs := runCmd(t, doc, args...)
 		if code != exitOK {
@@ -47,7 +47,7 @@ func TestTerminalOutputSanitised(t *testing.T) {
 			}
 		}
 	}
-	bad := `{"version":1,` + jsonString(hostile) + `:1,"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`
+	bad := `{"version":2,` + jsonString(hostile) + `:1,"waveform":{"kind":"barker","length":13,"chip_s":1e-6}}`
 	code, _, errs := runCmd(t, bad, "check", "-")
 	if code != exitInvalid || hasControls(errs) || !strings.Contains(errs, "unknown field") {
 		t.Errorf("error message: exit %d %q", code, errs)

@@ -70,7 +70,7 @@ func randomScenarioDoc(r *rand.Rand) string {
 	for i := range r.IntN(4) {
 		targets = append(targets, fmt.Sprintf(`{"id":"t%d","kind":"point","range_m":%g,"rcs_dbsm":%g,"range_rate_mps":%g}`, i, u(0, 30000), u(-20, 40), u(-3000, 3000)))
 	}
-	return fmt.Sprintf(`{"version":1,"name":"random","radar":{"sample_rate_hz":SPB,"pri_s":3e-4,"window_start_m":%g,"window_stop_m":30000},
+	return fmt.Sprintf(`{"version":2,"name":"random","radar":{"sample_rate_hz":SPB,"pri_s":3e-4,"window_start_m":%g,"window_stop_m":30000},
 		"waveform":%s,"receiver":{"filter":%q,"filter_length_factor":%d,"window":{"kind":%q}},"targets":[%s]}`,
 		math.Round(u(0, 5000)), wave, filter, 1+r.IntN(3), window, strings.Join(targets, ",")) + "\x00" + fmt.Sprint(spb)
 }

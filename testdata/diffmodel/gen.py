@@ -185,7 +185,7 @@ def waveform_case(rng, i):
     start = float(round(blind + 1000 + rng.uniform(0, 2000)))
     rng_t = float(round(start + 300 + rng.uniform(0, 1000), 2))
     stop = float(round(rng_t + 300 + blind))
-    sc = {"version": 1, "name": f"wave-{i:03d}",
+    sc = {"version": 2, "name": f"wave-{i:03d}",
           "radar": {"carrier_hz": carrier, "sample_rate_hz": fs, "pri_s": 2e-4 if blind < 1e4 else 1e-3,
                     "window_start_m": start, "window_stop_m": stop},
           "waveform": w}
@@ -271,7 +271,7 @@ def scene_case(rng, i):
              "peak_power_w": float(f"{10 ** rng.uniform(0, 4):.3g}")}
     if stop is not None:
         radar["window_stop_m"] = stop
-    sc = {"version": 1, "name": f"scene-{i:03d}", "radar": radar, "waveform": w, "receiver": rx,
+    sc = {"version": 2, "name": f"scene-{i:03d}", "radar": radar, "waveform": w, "receiver": rx,
           "targets": targets}
     return sc
 
@@ -296,7 +296,7 @@ def band_cases(rng, count=12):
             rr = float(f"{-fd * (C / 9.5e9) / 2:.6g}")
             targets.append({"id": f"b{j}", "kind": "point", "range_m": float(round(start + rng.uniform(2000, 18000), 1)),
                             "rcs_dbsm": float(round(rng.uniform(0, 30), 1)), "range_rate_mps": rr})
-        sc = {"version": 1, "name": f"band-{i:03d}",
+        sc = {"version": 2, "name": f"band-{i:03d}",
               "radar": {"sample_rate_hz": fs, "pri_s": 1e-3, "window_start_m": start, "window_stop_m": start + 20000},
               "waveform": w, "receiver": {"detector": {"kind": ["fixed", "ca_cfar", "os_cfar"][i % 3]}},
               "targets": targets}
@@ -306,7 +306,7 @@ def band_cases(rng, count=12):
 
 def issue_cases():
     """The reproducers of issue 12, as scenarios."""
-    base = {"version": 1}
+    base = {"version": 2}
     out = []
 
     def add(name, w, rx=None, radar=None, targets=None):
@@ -406,6 +406,29 @@ def self_check():
     sig = np.sinc((o[None, :] - o[:, None]) / 2)
     assert abs(model.ca_alpha_cut(sig, 1e-6) - 28.325) < 0.001
     assert abs(model.ca_alpha_cut(sig, 1e-3) - 9.772) < 0.001
+    # Pd of a steady target, one pulse, Pfa 1e-6: 0.9 at 13.18 dB (numerical
+    # Marcum Q; Richards, Fundamentals of Radar Signal Processing, 2nd ed.,
+    # eq. 6.79) and 0.54 when the signal power equals the threshold
+    db = lambda x: 10 * math.log10(x)
+    assert abs(db(model.required_snr(lambda c: model.pd_fixed(c, 1e-6), 0.9)) - 13.18) < 0.005
+    assert abs(model.pd_fixed(-math.log(1e-6), 1e-6) - 0.54) < 0.005
+    # CA-CFAR with M independent cells: the Swerling 1 closed form
+    # Pd = (1 + alpha/M/(1 + SNR))^-M (Richards eq. 6.137) is the mean of
+    # the steady Pd over the target's exponential power; check pd_ca's
+    # integration on it (M = 16, 20 dB: 0.806)
+    sw1 = lambda chi, m, pfa: (1 + (pfa ** (-1 / m) - 1) / (1 + chi)) ** -m
+    steady_avg = integrate_sw1(lambda c: model.pd_ca(c, 1e-6, 16), 100.0)
+    assert abs(steady_avg - sw1(100.0, 16, 1e-6)) < 2e-4, steady_avg
+    # the correlated-cell form with equal eigenvalues is the CA form
+    assert abs(model.pd_corr(30.0, 1e-6, [1 + 1e-3 * i for i in range(16)]) - model.pd_ca(30.0, 1e-6, 16)) < 2e-3
+
+
+def integrate_sw1(pd_steady, mean_snr):
+    """The Pd of a Swerling 1 target of mean SNR mean_snr from a steady
+    Pd: its mean over an exponential SNR (scipy quad)."""
+    from scipy import integrate
+    v, _ = integrate.quad(lambda s: pd_steady(s) * math.exp(-s / mean_snr) / mean_snr, 0, 40 * mean_snr, limit=200)
+    return v
 
 
 def main():

@@ -916,6 +916,7 @@ def detector_defaults(rx):
     d = dict(rx.get("detector", {"kind": "ca_cfar"}))
     k = d.get("kind", "ca_cfar")
     d.setdefault("pfa", 1e-6)
+    d.setdefault("pd_required", 0.9)  # common practice, no source (docs/scenario-format.md)
     if k != "fixed":
         d.setdefault("guard_cells", 2)
         d.setdefault("training_cells", 16)
@@ -982,6 +983,119 @@ def os_alpha(n, r, pfa):
         else:
             hi = mid
     return math.sqrt(lo * hi)
+
+
+# ------------------------------------------------ probability of detection
+#
+# docs/detection-probability.md §7 and docs/detection.md §6, for steady
+# (non-fluctuating) point targets, the only kind the cases hold. One
+# square-law test of the target (SNR chi at its cell, unit noise): X =
+# |sqrt(chi) + n|^2, n ~ CN(0, 1), so P(X > x) = Q_1(sqrt(2 chi), sqrt(2 x)),
+# the non-central chi-square with 2 degrees of freedom (scipy's ncx2). The
+# threshold is r times the detector's nominal one (r = the scene's
+# threshold over the noise-only one, >= 1):
+#   fixed: x = r T, T = -ln pfa;
+#   CA-CFAR, M cells treated as independent: x = (r alpha / M) Z,
+#     Z ~ Gamma(M, 1), alpha = M (pfa^(-1/M) - 1);
+#   CA-CFAR, correlated cells independent of the cell under test: Z =
+#     sum lambda_j E_j over the eigenvalues of the cells' covariance and
+#     alpha from prod 1/(1 + alpha lambda_j / M) = pfa;
+#   OS-CFAR: x = r alpha X_(k), the k-th smallest of N unit exponentials,
+#     alpha from Rohling's Pfa (os_alpha).
+# Averages over X by Simpson's rule (scipy) of the reference's CDF
+# (gamma, binomial); the correlated case in closed form (hypoexponential
+# Z, the MGF of X) with mpmath at 250 digits.
+
+from scipy import integrate, optimize, stats
+from scipy.special import gammainc, i0e
+import mpmath
+
+
+def marcum_q1(chi, x):
+    """P(X > x) = Q_1(sqrt(2 chi), sqrt(2 x)): scipy's ncx2 survival
+    function, or beyond a = sqrt(2 chi) = 1000 (where boost's series
+    gives up) the normal limit 0.5 erfc((b - a)/sqrt 2), whose error is
+    O(1/a)."""
+    if chi <= 0:
+        return math.exp(-x)
+    if chi > 5e5:
+        a, b = math.sqrt(2 * chi), math.sqrt(2 * x)
+        return 0.5 * math.erfc((b - a) / math.sqrt(2))
+    return float(stats.ncx2.sf(2 * x, 2, 2 * chi))
+
+
+def pd_fixed(chi, pfa, r=1.0):
+    return marcum_q1(chi, r * -math.log(pfa))
+
+
+def _over_x(chi, G):
+    """E over the test statistic X of G(X) = P(threshold < X): X has the
+    density exp(-(x + chi)) I0(2 sqrt(x chi)); in u = sqrt(x) that is
+    2u exp(-(u - sqrt chi)^2) i0e(2 u sqrt chi), a bump of unit width,
+    integrated by Simpson's rule over sqrt(chi) +- 10."""
+    sc = math.sqrt(chi)
+    u = np.linspace(max(0.0, sc - 10), sc + 10, 4001)
+    w = 2 * u * np.exp(-(u - sc) ** 2) * i0e(2 * u * sc)
+    v = integrate.simpson(w * G(u * u), x=u)
+    return min(max(float(v), 0.0), 1.0)
+
+
+def pd_ca(chi, pfa, m, r=1.0):
+    """The reference Z ~ Gamma(M): P(a Z < x) = P(M, x/a), the regularized
+    lower incomplete gamma (scipy.special.gammainc)."""
+    a = r * (pfa ** (-1.0 / m) - 1)  # r alpha / M
+    return _over_x(chi, lambda x: gammainc(m, x / a))
+
+
+def pd_os(chi, pfa, n, k, r=1.0):
+    """P(r alpha X_(k) < x): the k-th smallest of n unit exponentials is
+    below y when at least k of them are, a binomial tail in 1 - e^-y."""
+    a = r * os_alpha(n, k, pfa)
+    return _over_x(chi, lambda x: stats.binom.sf(k - 1, n, -np.expm1(-x / a)))
+
+
+def corr_alpha(pfa, lam):
+    m = len(lam)
+    f = lambda a: -sum(math.log1p(a * l / m) for l in lam) - math.log(pfa)
+    lo, hi = 1e-12, 1.0
+    while f(hi) > 0:
+        hi *= 2
+    for _ in range(200):
+        mid = math.sqrt(lo * hi)
+        if f(mid) > 0:
+            lo = mid
+        else:
+            hi = mid
+    return math.sqrt(lo * hi)
+
+
+def pd_corr(chi, pfa, lam, r=1.0):
+    m = len(lam)
+    alpha = corr_alpha(pfa, lam)
+    # Repeated eigenvalues (a covariance with identical blocks) have no
+    # partial fractions: spread them by 1e-7 relative (Pd moves by about
+    # that much) and carry 250 digits through the cancellation.
+    with mpmath.workdps(250):
+        a = mpmath.mpf(r * alpha / m)
+        ls = [mpmath.mpf(l) * (1 + mpmath.mpf(1e-7) * j) for j, l in enumerate(sorted(x for x in lam if x > 1e-12))]
+        out = mpmath.mpf(0)
+        for j, lj in enumerate(ls):
+            c = mpmath.mpf(1)
+            for k, lk in enumerate(ls):
+                if k != j:
+                    c *= lj / (lj - lk)
+            sj = 1 / (a * lj)
+            out += c * (1 - mpmath.exp(-sj * chi / (1 + sj)) / (1 + sj))
+        return min(max(float(out), 0.0), 1.0)
+
+
+def required_snr(pd_of, req):
+    """SNR (linear) at which pd_of(chi) = req (brentq on dB), or None
+    beyond 200 dB."""
+    g = lambda d: pd_of(10 ** (d / 10)) - req
+    if g(200.0) < 0:
+        return None
+    return 10 ** (optimize.brentq(g, -30.0, 200.0, xtol=1e-7) / 10)
 
 
 def band_limited(wave, fs, nraw, t0, delta, amp, fd):
@@ -1170,22 +1284,74 @@ def scene(sc):
             rec["band_loss_db"] = band_db
         margin = 10 * math.log10(Pstar / T) if Pstar > 0 and math.isfinite(T) else None
         touched = d["nb"] > 0
-        if d["folds"] > 0 or not (ws <= d["Ra"] <= we):
+        req = det["pd_required"]
+        # Pd of the target's test (docs/detection.md §6; point targets
+        # behind fixed, CA and OS detectors with at least one training
+        # cell), as a function of its SNR chi and the raise r >= 1
+        pdf = None
+        sceneok = lambda r: True
+        if not rejected and Pstar > 0 and math.isfinite(Lnoise) and Lnoise > 0:
+            if kind == "fixed":
+                pdf = lambda chi, r=1.0: pd_fixed(chi, pfa, r)
+            elif kind == "ca_cfar" and offs:
+                M = len(offs)
+                Lr = min(2 * (det["guard_cells"] + det["training_cells"] // 2) + 1, L)
+                far = all(abs(o) >= Lr for o in offs)
+                near = any(b - a < Lr for a, b in zip(offs, offs[1:]))
+                if far and near and Lr >= 2:
+                    o = np.array(offs)
+                    R = rho(o[None, :] - o[:, None])
+                    lam = [max(float(e), 0.0) for e in np.linalg.eigvalsh((R + R.conj().T) / 2)]
+                    pdf = lambda chi, r=1.0, lam=lam: pd_corr(chi, pfa, lam, r)
+                else:
+                    pdf = lambda chi, r=1.0, M=M: pd_ca(chi, pfa, M, r)
+                    cc = pfa ** (-1.0 / M) - 1
+                    sceneok = lambda r, M=M, cc=cc: -M * math.log1p(r * cc) >= math.log(1e-300)
+            elif kind == "os_cfar" and offs:
+                N = len(offs)
+                kk = min(max(int(math.floor(det["rank"] * N / det["training_cells"] + 0.5)), 1), N)
+                pdf = lambda chi, r=1.0, N=N, kk=kk: pd_os(chi, pfa, N, kk, r)
+                a0 = os_alpha(N, kk, pfa)
+                sceneok = lambda r, N=N, kk=kk, a0=a0: sum(math.log((N - i) / (N - i + r * a0)) for i in range(kk)) >= math.log(1e-300)
+        infold = d["folds"] > 0 and ws <= d["Ra"] <= we
+        rule = None
+        pd_noise = pd_scene = None
+        if pdf is not None:
+            rr = max(T / Lnoise, 1.0)
+            pd_noise = pdf(Pstar)
+            pd_scene = pdf(Pstar, rr) if sceneok(rr) else None
+        if not (ws <= d["Ra"] <= we):
             st = "out_of_window"
+        elif infold:
+            st = "folded"
         elif touched and (d["nb"] == d["nin"] or Pstar == 0):
             st = "eclipsed"
         elif rejected:
-            st = "below_noise"
+            st = "too_weak"
         elif Pstar == 0:
             st = "out_of_window"
-        elif Pstar >= T:
-            st = "detected"
-        elif touched and d["Pustar"] >= Lnoise:
-            st = "eclipsed"
-        elif Pstar < Lnoise:
-            st = "below_noise"
+        elif pdf is not None:
+            rule = "pd"
+            detected = pd_scene >= req if pd_scene is not None else Pstar >= T
+            if detected:
+                st = "detected"
+            elif touched and d["Pustar"] > 0 and pdf(d["Pustar"]) >= req:
+                st = "eclipsed"
+            elif pd_noise < req:
+                st = "too_weak"
+            else:
+                st = "masked"
         else:
-            st = "masked"
+            rule = "threshold"
+            if Pstar >= T:
+                st = "detected"
+            elif touched and d["Pustar"] >= Lnoise:
+                st = "eclipsed"
+            elif Pstar < Lnoise:
+                st = "too_weak"
+            else:
+                st = "masked"
+        if st == "masked":
             if Cc >= Lk:
                 contrib = [e["P"][k] if i != j else -1 for i, e in enumerate(targets)]
             else:
@@ -1196,8 +1362,17 @@ def scene(sc):
                 rec["masked_by"] = targets[best]["t"]["id"]
             rec["_masked_via"] = "cell" if Cc >= Lk else "cfar"
         rec["status"] = st
-        if st not in ("eclipsed", "out_of_window") and margin is not None:
-            rec["margin_db"] = margin
+        if rule is not None:
+            rec["decided_on"] = rule
+        if st not in ("eclipsed", "out_of_window", "folded") and margin is not None:
+            rec["threshold_margin_db"] = margin
+        if pdf is not None and (rule is not None or st == "folded"):
+            if pd_scene is not None:
+                rec["pd"] = pd_scene
+            chi_req = required_snr(pdf, req)
+            if chi_req is not None:
+                rec["snr_required_db"] = 10 * math.log10(chi_req)
+                rec["margin_db"] = 10 * math.log10(Pstar) - rec["snr_required_db"]
         rec["_peak_gate"] = k
         rec["_P_db"] = 10 * math.log10(Pstar) if Pstar > 0 else None
         rec["_level_db"] = 10 * math.log10(Lk) if math.isfinite(Lk) else None

@@ -7,7 +7,17 @@ import {
   convertTarget, detectorFields, isPhaseCode, sciDisplay, kindShort, kindTitle, levelName, levelShort, detectorKinds, fluctuations, fromDisplay, levelKey, levelUnit,
   newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
 } from './schema.js';
-import { describeFields, fieldName } from './words.js';
+import { describeFields, fieldName, pdText, statusHelp, statusLabel } from './words.js';
+
+// setField writes a form field into the scenario. A detector field of a
+// scene that left the detector to its default writes the default kind
+// too, since the form shows it.
+function setField(s, path, v) {
+  if (path.startsWith('receiver.detector.') && !(s.receiver && s.receiver.detector && s.receiver.detector.kind)) {
+    setPath(s, 'receiver.detector.kind', 'ca_cfar');
+  }
+  setPath(s, path, v);
+}
 
 export class Editor {
   // roots: {targets, radar, pulse, receive, scene} elements.
@@ -67,7 +77,7 @@ export class Editor {
     }
     this.setLocalError(path, '');
     this.store.update((s) => {
-      setPath(s, path, v);
+      setField(s, path, v);
       // A phase code is given by phases or by a +/− string, not both: the
       // one being typed replaces the other.
       if (v !== undefined && path === 'waveform.phases_deg') delete s.waveform.binary;
@@ -98,13 +108,14 @@ export class Editor {
         const old = s.receiver.detector || {};
         const d = { kind: v };
         if (old.pfa !== undefined) d.pfa = old.pfa;
+        if (old.pd_required !== undefined) d.pd_required = old.pd_required;
         s.receiver.detector = d;
       });
     } else if (action === 'target-kind') {
       const i = Number(el.dataset.index);
       this.store.update((s) => { s.targets[i] = convertTarget(s.targets[i], v); });
     } else if (el.dataset.path) {
-      this.store.update((s) => setPath(s, el.dataset.path, this.value(el)));
+      this.store.update((s) => setField(s, el.dataset.path, this.value(el)));
     }
   }
 
@@ -231,7 +242,7 @@ export class Editor {
   shapeOf(s) {
     const t = s.targets || [];
     const rx = s.receiver || {};
-    return JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, rx.detector && rx.detector.kind,
+    return JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, (rx.detector && rx.detector.kind) || 'ca_cfar',
       rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected]);
   }
 
@@ -371,7 +382,7 @@ export class Editor {
     rate.setAttribute('aria-label', `${t.id} range rate (m/s)`);
     rate.title = 'Range rate, m/s (negative: closing)';
     return h('tr', { class: i === this.selected ? 'sel' : '', dataset: { row: String(i) } },
-      h('td', {}, h('span', { class: `dot st-${st || 'none'}`, title: st ? st.replace('_', ' ') : 'not evaluated' })),
+      h('td', {}, h('span', { class: `dot st-${st || 'none'}`, title: st ? statusHelp(st) : 'not evaluated' })),
       h('td', {}, h('input', { type: 'text', class: 'id', value: t.id, autocomplete: 'off', spellcheck: 'false', title: t.id,
         dataset: { path: `targets[${i}].id`, type: 'text' }, 'aria-label': 'target id' })),
       h('td', {}, h('select', { class: 'kind', dataset: { action: 'target-kind', index: String(i), path: `targets[${i}].kind`, type: 'kind' }, 'aria-label': `${t.id} kind`, title: kindTitle[t.kind] },
@@ -459,7 +470,7 @@ export class Editor {
       if (!dot) return;
       const st = rep ? rep.status : 'none';
       dot.className = `dot st-${st}`;
-      dot.title = rep ? `${st.replace('_', ' ')}: ${rep.reason}` : 'not evaluated';
+      dot.title = rep ? `${statusLabel(st)}${rep.pd !== undefined ? ` (Pd ${pdText(rep.pd)})` : ''}: ${rep.reason}` : 'not evaluated';
     });
   }
 

@@ -3,10 +3,9 @@
 
 import { h } from './dom.js';
 import { waveformKinds } from './schema.js';
+import { pdText, statusHelp, statusLabel } from './words.js';
 
 const fmt = (v, digits = 1) => (v === undefined || v === null || !Number.isFinite(v) ? '—' : v.toFixed(digits));
-// A probability of detection as the report's text gives it (scenarios.PdText).
-const pdText = (p) => (p >= 0.9995 ? '> 0.999' : p < 0.0005 ? '< 0.001' : p.toFixed(3));
 const eng = (v, unit) => {
   if (v === undefined || v === null || !Number.isFinite(v)) return '—';
   const a = Math.abs(v);
@@ -36,10 +35,11 @@ const waveformRows = [
 
 // What the two SNR-like numbers on a card mean.
 const SNRHelp = 'SNR: the target’s expected peak after pulse compression, in dB above the noise.';
-const MarginHelp = 'Margin: how far that peak clears the detector’s threshold at its range, in dB; negative means it is missed (the threshold is raised by noise and by other echoes in the training cells).';
+const MarginHelp = 'Margin: how far its SNR at the cell is above what the required Pd needs against noise alone, in dB; negative means it is too weak even alone.';
+const ThresholdHelp = 'Over threshold: how far the expected peak clears the detector’s threshold at its range (raised by other echoes in the training cells), in dB. Clearing it is not enough: a fluctuating target needs more to be seen on most looks.';
 const IntegratedHelp = 'Integrated: the SNR after adding up all pulses of the train coherently.';
-const PdHelp = 'Pd: how often the target is seen at the detector’s false-alarm rate, for its fluctuation model, in this scene (and alone, when other echoes lower it).';
-const NumbersHelp = 'SNR is the peak above noise after compression; margin is how far it clears the detection threshold (below 0: missed).';
+const PdHelp = 'Pd: how often the target is seen at the detector’s false-alarm rate, for its fluctuation model, in this scene (and alone, when other echoes lower it). The status compares it with the required Pd.';
+const NumbersHelp = 'Pd is how often a target is seen; it is detected when Pd reaches the required Pd. SNR is the peak above noise after compression; margin is the SNR over what the required Pd needs (below 0: too weak even alone).';
 
 export function renderFigures(root, report, reference, computeMs) {
   if (!report) {
@@ -68,14 +68,15 @@ export function renderFigures(root, report, reference, computeMs) {
       h('div', { class: 'tcard-head' },
         h('span', { class: `dot st-${t.status}` }),
         h('b', {}, t.id),
-        h('span', { class: 'status' }, t.status.replace(/_/g, ' ')),
-        rt && rt.status !== t.status ? h('span', { class: 'was' }, `pinned: ${rt.status.replace(/_/g, ' ')}`) : null),
+        h('span', { class: 'status', title: statusHelp(t.status) }, statusLabel(t.status)),
+        rt && rt.status !== t.status ? h('span', { class: 'was' }, `pinned: ${statusLabel(rt.status)}`) : null),
       h('div', { class: 'tcard-nums' },
+        t.pd !== undefined ? h('b', { class: 'pd', title: PdHelp }, `Pd ${pdText(t.pd)}`
+          + (t.pd_alone !== undefined && pdText(t.pd_alone) !== pdText(t.pd) ? ` (alone ${pdText(t.pd_alone)})` : '')) : null,
         h('span', { title: SNRHelp }, `SNR ${fmt(t.snr_db)} dB`),
         t.margin_db !== undefined ? h('span', { title: MarginHelp }, `margin ${t.margin_db >= 0 ? '+' : ''}${fmt(t.margin_db)} dB`) : null,
+        t.threshold_margin_db !== undefined ? h('span', { title: ThresholdHelp }, `over threshold ${t.threshold_margin_db >= 0 ? '+' : ''}${fmt(t.threshold_margin_db)} dB`) : null,
         t.snr_integrated_db !== undefined ? h('span', { title: IntegratedHelp }, `integrated ${fmt(t.snr_integrated_db)} dB`) : null,
-        t.pd !== undefined ? h('span', { title: PdHelp }, `Pd ${pdText(t.pd)}`
-          + (t.pd_alone !== undefined && pdText(t.pd_alone) !== pdText(t.pd) ? ` (alone ${pdText(t.pd_alone)})` : '')) : null,
         t.masked_by ? h('span', {}, `masked by ${t.masked_by}`) : null,
         t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null,
         t.doppler_hz ? h('span', { class: 'dop', title: 'Doppler shift of the echo, and the shift of its compressed peak in range (range–Doppler coupling)' },

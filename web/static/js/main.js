@@ -15,7 +15,7 @@ import { printablePNG } from './export.js';
 import { Staleness } from './stale.js';
 import { initCopyLink } from './copylink.js';
 import { Story } from './story.js';
-import { fieldName } from './words.js';
+import { fieldName, pdText, statusLabel } from './words.js';
 
 const DefaultDemo = 'harbour-skiff';
 
@@ -349,10 +349,11 @@ function hoverCard(hit) {
   card.replaceChildren();
   const head = document.createElement('div');
   head.className = `hc-head st-${t.status}`;
-  head.textContent = `${t.id} · ${t.status.replace(/_/g, ' ')}`;
+  head.textContent = `${t.id} · ${statusLabel(t.status)}`;
   const nums = document.createElement('div');
   nums.className = 'hc-nums';
-  nums.textContent = `SNR ${t.snr_db.toFixed(1)} dB` + (t.margin_db !== undefined ? ` · margin ${t.margin_db.toFixed(1)} dB` : '')
+  nums.textContent = (t.pd !== undefined ? `Pd ${pdText(t.pd)}${t.status === 'masked' && t.pd_alone !== undefined ? ` (alone ${pdText(t.pd_alone)})` : ''} · ` : '')
+    + `SNR ${t.snr_db.toFixed(1)} dB` + (t.margin_db !== undefined ? ` · margin ${t.margin_db.toFixed(1)} dB` : '')
     + (t.masked_by ? ` · masked by ${t.masked_by}` : '');
   const reason = document.createElement('div');
   reason.textContent = t.reason;

@@ -24,7 +24,7 @@ export const SeriesReference = 'reference';
 export const SeriesMarkers = 'markers';
 
 // Target statuses of the report format.
-export const Statuses = ['detected', 'masked', 'below_noise', 'eclipsed', 'out_of_window'];
+export const Statuses = ['detected', 'masked', 'too_weak', 'eclipsed', 'folded', 'out_of_window'];
 
 export function scenarioMsg(id, scenario) {
   return JSON.stringify({ type: MsgScenario, id, scenario });

@@ -1,4 +1,4 @@
-// The scenario format (docs/scenario-format.md, version 1) as the
+// The scenario format (docs/scenario-format.md, version 2) as the
 // editor needs it: kinds, the fields of each kind, display units and
 // defaults. Values are stored in SI as the format has them; `scale` is the
 // size of one display unit in SI (1e-6 shows seconds as µs).
@@ -122,15 +122,17 @@ export const windowKinds = {
 };
 
 export const detectorKinds = {
-  ca_cfar: { label: 'Cell-averaging CFAR', fields: ['pfa', 'guard_cells', 'training_cells'] },
-  os_cfar: { label: 'Ordered-statistic CFAR', fields: ['pfa', 'guard_cells', 'training_cells', 'rank'] },
-  go_cfar: { label: 'Greatest-of CFAR (clutter edges)', fields: ['pfa', 'guard_cells', 'training_cells'] },
-  so_cfar: { label: 'Smallest-of CFAR (targets beside clutter)', fields: ['pfa', 'guard_cells', 'training_cells'] },
-  censored_cfar: { label: 'Censored cell-averaging CFAR', fields: ['pfa', 'guard_cells', 'training_cells', 'censored_cells'] },
-  fixed: { label: 'Fixed threshold', fields: ['pfa'] },
+  ca_cfar: { label: 'Cell-averaging CFAR', fields: ['pfa', 'pd_required', 'guard_cells', 'training_cells'] },
+  os_cfar: { label: 'Ordered-statistic CFAR', fields: ['pfa', 'pd_required', 'guard_cells', 'training_cells', 'rank'] },
+  go_cfar: { label: 'Greatest-of CFAR (clutter edges)', fields: ['pfa', 'pd_required', 'guard_cells', 'training_cells'] },
+  so_cfar: { label: 'Smallest-of CFAR (targets beside clutter)', fields: ['pfa', 'pd_required', 'guard_cells', 'training_cells'] },
+  censored_cfar: { label: 'Censored cell-averaging CFAR', fields: ['pfa', 'pd_required', 'guard_cells', 'training_cells', 'censored_cells'] },
+  fixed: { label: 'Fixed threshold', fields: ['pfa', 'pd_required'] },
 };
 export const detectorFields = {
   pfa: f('pfa', 'Pfa', 'per cell', 1, 'num', { def: 1e-6, sci: true }),
+  // Statuses are decided on Pd at this value (docs/detection.md §6).
+  pd_required: f('pd_required', 'Required Pd', 'to detect', 1, 'num', { def: 0.9 }),
   guard_cells: f('guard_cells', 'Guard cells', 'each side', 1, 'int', { def: 2 }),
   training_cells: f('training_cells', 'Training cells', 'both sides', 1, 'int', { def: 16 }),
   rank: f('rank', 'Rank', '1-based', 1, 'int', { hint: '¾ of training' }),

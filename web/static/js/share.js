@@ -9,6 +9,9 @@ import { describeFields } from './words.js';
 
 const MaxDocumentBytes = 4 << 20;
 
+// The scenario format versions a link may hold (scenarios.supportedVersions).
+export const ScenarioVersions = [1, 2];
+
 export class LinkError extends Error {}
 
 // The encoded part of a location hash, or null when it is not a link.
@@ -60,7 +63,9 @@ export async function decodeLink(enc) {
     throw new LinkError('the link does not hold a JSON scenario');
   }
   if (!s || typeof s !== 'object' || Array.isArray(s)) throw new LinkError('the link does not hold a scenario object');
-  if (s.version !== 1) throw new LinkError(`the link holds scenario format version ${JSON.stringify(s.version)}; this page reads version 1`);
+  // Version 1 links are read too: the server upgrades them, and the
+  // report's warnings name any verdict the version 2 rules change.
+  if (!ScenarioVersions.includes(s.version)) throw new LinkError(`the link holds scenario format version ${JSON.stringify(s.version)}; this page reads versions ${ScenarioVersions.join(' and ')}`);
   return s;
 }
 

@@ -41,7 +41,7 @@ export class Story {
     for (const t of masked) {
       parts.push(h('div', { class: 'story-masked', role: 'note', dataset: { target: t.id } },
         h('div', { class: 'story-masked-head' }, h('span', { class: 'dot st-masked', 'aria-hidden': 'true' }),
-          h('b', {}, t.id), ` is hidden${t.masked_by ? ` by ${t.masked_by}` : ''}`),
+          h('b', {}, t.id), ` is hidden${t.masked_by === t.id ? ' by its own sidelobes' : t.masked_by ? ` by ${t.masked_by}` : ''}`),
         h('p', {}, t.reason || '')));
     }
     this.root.replaceChildren(...parts);

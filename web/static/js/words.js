@@ -15,9 +15,32 @@ const receiverWords = {
 };
 const topWords = { name: 'scene name', notes: 'notes', seed: 'noise seed', version: 'format version', radar: 'radar', waveform: 'waveform', receiver: 'receiver', targets: 'targets' };
 
+// Target statuses of the report (docs/report-format.md, "Statuses"): a
+// short label, and a line saying what it means, for cards, dots and the
+// hover card. Their marks share one colour and shape per status with the
+// plots (server/charts.go statusStyle, css --st-*).
+export const statusWords = {
+  detected: ['detected', 'seen on at least the required share of looks (Pd ≥ the required Pd)'],
+  masked: ['masked', 'strong enough alone, but another echo (or its own sidelobes) raises the threshold so it is seen too rarely'],
+  too_weak: ['too weak', 'too weak to be seen often enough even with nothing else in the scene'],
+  eclipsed: ['eclipsed', 'its echo arrives, wholly or enough of it, while the radar transmits'],
+  folded: ['folded', 'beyond the unambiguous range: its echo comes back after the next pulse and shows as a false target at the wrong, nearer range'],
+  out_of_window: ['out of window', 'its echo is not in the receive window'],
+};
+
+// pdText writes a probability of detection as the report's text does
+// (scenarios.PdText): three decimals, "> 0.999" and "< 0.001" at the ends.
+export const pdText = (p) => (p >= 0.9995 ? '> 0.999' : p < 0.0005 ? '< 0.001' : p.toFixed(3));
+
+// statusLabel returns the words for a status ("too weak").
+export const statusLabel = (st) => (statusWords[st] ? statusWords[st][0] : String(st || '').replace(/_/g, ' '));
+
+// statusHelp returns what a status means, for a title.
+export const statusHelp = (st) => (statusWords[st] ? `${statusWords[st][0]}: ${statusWords[st][1]}` : statusLabel(st));
+
 const labelOf = (fields, key) => {
   const f = fields.find((x) => x.key === key);
-  return f ? f.label.toLowerCase().replace(/^p_fa$/, 'Pfa') : null;
+  return f ? f.label.toLowerCase().replace(/^p_fa$/, 'Pfa').replace(/\bpd\b/, 'Pd') : null;
 };
 
 // fieldName returns a reader's name for the field at a JSON path of the
