@@ -198,3 +198,12 @@ func TestFrameAllocs(t *testing.T) {
 		}
 	}
 }
+
+// markers decodes the markers series as appendMarkers encodes it.
+func markers(res *scenarios.Result, lo, hi float64) []marker {
+	var out []marker
+	if err := json.Unmarshal(appendMarkers(nil, res, lo, hi), &out); err != nil {
+		panic("markers are not JSON: " + err.Error())
+	}
+	return out
+}
