@@ -11,9 +11,9 @@ const HitPx = 9; // how near the pointer must be to a marker, px
 const SecondaryMs = 100; // plots other than the profile redraw at most this often while frames stream
 const DragSecondaryMs = 250; // … and this often while a marker is dragged
 const WheelGestureMs = 3000; // ms: wheel events this close, with the pointer still, form one gesture
-// While frames stream, the profile's data is drawn by a FastLayer; the
-// chart itself takes the newest data once no frame came for SettleMs (or
-// when a drag ends).
+// While frames stream, the profile's and the echo's data are drawn by a
+// FastLayer each; the charts themselves take the newest data once no frame
+// came for SettleMs (or when a drag ends).
 const SettleMs = 150;
 
 const chartMs = {};
@@ -169,8 +169,8 @@ export class Plots {
     this.setOption(name, entry);
   }
 
-  // Give the profile chart its newest data SettleMs after the last frame,
-  // or when the drag in progress ends.
+  // Give the charts behind a fast layer their newest data SettleMs after
+  // the last frame, or when the drag in progress ends.
   settleSoon() {
     clearTimeout(this.settleTimer);
     this.settleTimer = setTimeout(() => this.settle(), SettleMs);
