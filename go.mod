@@ -11,4 +11,7 @@ require (
 	gonum.org/v1/gonum v0.17.0
 )
 
-require github.com/go-json-experiment/json v0.0.0-20260213210345-44df1a37e875 // indirect
+require (
+	github.com/go-json-experiment/json v0.0.0-20260213210345-44df1a37e875 // indirect
+	gopkg.in/yaml.v3 v3.0.1 // indirect
+)

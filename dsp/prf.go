@@ -243,3 +243,38 @@ func Unfold(apparent, period []float64, lo, hi, tol float64, centred bool) []flo
 	}
 	return out
 }
+
+// AtLeast returns the probability that at least m of len(p) independent
+// events occur, event i with probability p[i] (each in [0, 1]): the
+// detection probability of an M-of-N rule over N independent looks (the
+// Poisson binomial tail; with equal p it is the binomial sum
+// Σ_{k=m}^{N} C(N,k)·p^k·(1−p)^(N−k), Richards, Fundamentals of Radar
+// Signal Processing, 2nd ed., §6, binary integration). It returns 1 for
+// m ≤ 0 and 0 for m > len(p). The sum runs by the recursion over events
+// on the count distribution, O(N²), without forming binomial
+// coefficients. It panics if a probability lies outside [0, 1].
+func AtLeast(p []float64, m int) float64 {
+	if m <= 0 {
+		return 1
+	}
+	if m > len(p) {
+		return 0
+	}
+	// q[k]: probability of exactly k events among those seen so far.
+	q := make([]float64, len(p)+1)
+	q[0] = 1
+	for i, pi := range p {
+		if !(pi >= 0 && pi <= 1) {
+			panic("dsp: AtLeast probability outside [0, 1]")
+		}
+		for k := i + 1; k >= 1; k-- {
+			q[k] = q[k]*(1-pi) + q[k-1]*pi
+		}
+		q[0] *= 1 - pi
+	}
+	s := 0.0
+	for k := m; k <= len(p); k++ {
+		s += q[k]
+	}
+	return math.Min(math.Max(s, 0), 1)
+}

@@ -143,3 +143,53 @@ func TestCommonPeriodIncommensurate(t *testing.T) {
 		t.Error("incommensurate schedule: want +Inf combined range and blind speed")
 	}
 }
+
+// TestAtLeast checks the M-of-N probability against the binomial tail of
+// scipy.stats.binom.sf(M−1, N, p) (scipy 1.10.1: 3-of-8 at 0.6 →
+// 0.95019264, 2-of-3 at 0.9 → 0.972, 1-of-2 at 0.5 → 0.75) and, for
+// unequal probabilities, against enumerating every outcome.
+func TestAtLeast(t *testing.T) {
+	rep := func(p float64, n int) []float64 {
+		out := make([]float64, n)
+		for i := range out {
+			out[i] = p
+		}
+		return out
+	}
+	for _, c := range []struct {
+		p    []float64
+		m    int
+		want float64
+	}{
+		{rep(0.6, 8), 3, 0.95019264},
+		{rep(0.9, 3), 2, 0.972},
+		{rep(0.5, 2), 1, 0.75},
+		{rep(0.5, 2), 0, 1},
+		{rep(0.5, 2), 3, 0},
+	} {
+		if got := AtLeast(c.p, c.m); math.Abs(got-c.want) > 1e-12 {
+			t.Errorf("AtLeast(%v, %d) = %.10g, want %.10g", c.p, c.m, got, c.want)
+		}
+	}
+	p := []float64{0.1, 0.95, 0.5, 0.7, 0.33}
+	for m := 0; m <= len(p)+1; m++ {
+		want := 0.0
+		for mask := range 1 << len(p) {
+			pr, k := 1.0, 0
+			for i, pi := range p {
+				if mask&(1<<i) != 0 {
+					pr *= pi
+					k++
+				} else {
+					pr *= 1 - pi
+				}
+			}
+			if k >= m {
+				want += pr
+			}
+		}
+		if got := AtLeast(p, m); math.Abs(got-want) > 1e-12 {
+			t.Errorf("AtLeast(%v, %d) = %.12g, enumeration %.12g", p, m, got, want)
+		}
+	}
+}

@@ -220,8 +220,8 @@ func (b *BlindZoneMap) DetectedFraction() float64 {
 	return float64(ok) / float64(n)
 }
 
-// summary writes the schedule's header lines.
-func (b *BlindZoneMap) summary(w io.Writer, prefix string) {
+// summary writes the schedule's header lines, in u.
+func (b *BlindZoneMap) summary(w io.Writer, prefix string, u Units) {
 	s := b.Spec
 	lambda := C / s.CarrierHz
 	for k, p := range s.PRIs {
@@ -229,13 +229,13 @@ func (b *BlindZoneMap) summary(w io.Writer, prefix string) {
 		if len(s.Pulses) > 1 {
 			n = s.Pulses[k]
 		}
-		fmt.Fprintf(w, "%sCPI %d: PRI %s, %d pulses, unambiguous range %s, blind speed %.1f m/s\n", prefix, k+1, sec(p), n, km(dsp.UnambiguousRange(p)), dsp.BlindSpeed(p, lambda))
+		fmt.Fprintf(w, "%sCPI %d: PRI %s, %d pulses, unambiguous range %s, blind speed %s\n", prefix, k+1, sec(p), n, u.distance(dsp.UnambiguousRange(p)), u.Format(QSpeed, dsp.BlindSpeed(p, lambda), 1))
 	}
 	if b.UnambiguousRangeM > 0 {
-		fmt.Fprintf(w, "%scombined unambiguous range %s\n", prefix, km(b.UnambiguousRangeM))
+		fmt.Fprintf(w, "%scombined unambiguous range %s\n", prefix, u.distance(b.UnambiguousRangeM))
 	}
 	if b.FirstBlindMPS > 0 {
-		fmt.Fprintf(w, "%sfirst speed blind in every CPI %.1f m/s\n", prefix, b.FirstBlindMPS)
+		fmt.Fprintf(w, "%sfirst speed blind in every CPI %s\n", prefix, u.Format(QSpeed, b.FirstBlindMPS, 1))
 	}
 	fmt.Fprintf(w, "%s%d-of-%d sees %.1f %% of the map (eclipsed: %.0f %% or more of the echo under a transmit pulse; blind: in the zero-Doppler bin)\n",
 		prefix, b.M, len(s.PRIs), 100*b.DetectedFraction(), 100*s.EclipseFraction)
@@ -246,12 +246,18 @@ func (b *BlindZoneMap) summary(w io.Writer, prefix string) {
 // see it (1–9, + for more); '.' when fewer than M see it (missed) and ' '
 // when every CPI does.
 func (b *BlindZoneMap) WriteText(w io.Writer) error {
+	return b.WriteTextIn(w, SIUnits())
+}
+
+// WriteTextIn is WriteText with ranges, speeds and range rates in u.
+func (b *BlindZoneMap) WriteTextIn(w io.Writer, u Units) error {
 	var sb strings.Builder
-	b.summary(&sb, "")
-	fmt.Fprintf(&sb, "\nrows: range rate %.0f … %.0f m/s (top: receding); columns: range %s … %s\n", b.Rates[len(b.Rates)-1], b.Rates[0], km(b.Spec.RangeMinM), km(b.Spec.RangeMaxM))
+	b.summary(&sb, "", u)
+	fmt.Fprintf(&sb, "\nrows: range rate %s … %s %s (top: receding); columns: range %s … %s\n",
+		u.Number(QRate, b.Rates[len(b.Rates)-1], 0), u.Number(QRate, b.Rates[0], 0), u.Label(QRate), u.distance(b.Spec.RangeMinM), u.distance(b.Spec.RangeMaxM))
 	fmt.Fprintf(&sb, "cell: number of CPIs that see it; blank: all %d; '.': fewer than %d (missed)\n\n", len(b.Spec.PRIs), b.M)
 	for i := len(b.Rates) - 1; i >= 0; i-- {
-		fmt.Fprintf(&sb, "%8.1f |", b.Rates[i])
+		fmt.Fprintf(&sb, "%8s |", u.Number(QRate, b.Rates[i], 1))
 		for j := range b.Ranges {
 			sb.WriteByte(b.glyph(i, j))
 		}
@@ -309,7 +315,7 @@ func (b *BlindZoneMap) WriteHTML(w io.Writer) error {
 		".k td{width:auto;height:auto;padding:2px 8px}th{font-weight:normal;text-align:right;padding-right:6px;font-size:11px}</style></head><body>\n")
 	sb.WriteString("<h1>Blind zones of a PRF schedule</h1>\n<pre>")
 	var hdr strings.Builder
-	b.summary(&hdr, "")
+	b.summary(&hdr, "", SIUnits())
 	sb.WriteString(html.EscapeString(hdr.String()))
 	sb.WriteString("</pre>\n")
 	colour := func(seen int) string {

@@ -90,6 +90,10 @@ func (s *Scenario) canonicalRadar() ordered {
 	o.put("window_stop_m", r.WindowStopM, C*r.PRIS/2)
 	o.put("beamwidth_az_deg", r.BeamwidthAzDeg, d.BeamwidthAzDeg)
 	o.put("beamwidth_el_deg", r.BeamwidthElDeg, d.BeamwidthElDeg)
+	o.put("antenna_height_m", r.AntennaHeightM, 0.0)
+	if r.Schedule != nil {
+		o = append(o, member{"schedule", canonicalSchedule(r)})
+	}
 	return o
 }
 
@@ -203,8 +207,14 @@ func canonicalTarget(t Target) ordered {
 			o.put(f, t.RangeStartM, nil)
 		case "range_stop_m":
 			o.put(f, t.RangeStopM, nil)
-		case "rcs_dbsm_per_m":
-			o.put(f, t.RCSDBsmPerM, nil)
+		case "rcs_dbsm_per_m", "sigma0_db", "gamma_db":
+			if t.levelField() == f {
+				o.put(f, t.levelValue(), nil)
+			}
+		case "role":
+			if t.Role == RoleTarget {
+				o.put(f, t.Role, nil)
+			}
 		case "reflectivity_dbz":
 			o.put(f, t.ReflectivityDBZ, nil)
 		case "velocity_spread_mps":

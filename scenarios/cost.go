@@ -79,6 +79,17 @@ func EstimateCost(s *Scenario) Cost {
 		add("radar.pulses", fmt.Sprintf("%d pulses × %d window samples", p, n),
 			float64(costPerCell)*float64(p)*float64(n))
 	}
+	if sc := s.Radar.Schedule; sc != nil {
+		// Every later CPI of more than one pulse keeps its own maps
+		// (Result.CPISeries) while the next is simulated.
+		cells := 0.0
+		for k := 1; k < sc.N(); k++ {
+			if c := s.cpiScenario(k); c.Radar.Pulses > 1 {
+				cells += float64(c.Radar.Pulses) * float64(c.WindowSamples())
+			}
+		}
+		add("radar.schedule", fmt.Sprintf("range–Doppler maps of %d more CPIs", sc.N()-1), float64(costPerCell)*cells)
+	}
 	nDist := 0
 	for _, t := range s.Targets {
 		if t.Kind != TargetPoint {

@@ -20,7 +20,7 @@ import (
 // other.
 
 var (
-	docMarker = regexp.MustCompile(`^<!-- (fields|kinds|report): ([a-z]+) -->$`)
+	docMarker = regexp.MustCompile(`^<!-- (fields|kinds|report): ([a-z_]+) -->$`)
 	backticks = regexp.MustCompile("`([^`]+)`")
 )
 
@@ -143,6 +143,8 @@ func TestScenarioFormatDocumentsEveryField(t *testing.T) {
 	sameSet(t, "radar", firstNames(t, table("fields: radar")), radarFields)
 	sameSet(t, "receiver", firstNames(t, table("fields: receiver")), receiverFields)
 	sameSet(t, "receiver.taps", firstNames(t, table("fields: taps")), tapsFields)
+	sameSet(t, "radar.schedule", firstNames(t, table("fields: schedule")), scheduleFields)
+	sameSet(t, "radar.schedule.cpis", firstNames(t, table("fields: cpi")), cpiFields)
 
 	kinds := []struct {
 		name   string
@@ -176,6 +178,10 @@ func TestScenarioFormatDocumentsEveryField(t *testing.T) {
 func jsonNames(typ reflect.Type) []string {
 	var out []string
 	for i := range typ.NumField() {
+		if f := typ.Field(i); f.Anonymous && f.Tag.Get("json") == "" {
+			out = append(out, jsonNames(f.Type)...) // embedded: its fields are inlined
+			continue
+		}
 		tag := typ.Field(i).Tag.Get("json")
 		name, _, _ := strings.Cut(tag, ",")
 		if name != "" && name != "-" {
@@ -195,6 +201,13 @@ func TestReportFormatDocumentsEveryField(t *testing.T) {
 		{"report: waveform", reflect.TypeFor[WaveformReport]()},
 		{"report: target", reflect.TypeFor[TargetReport]()},
 		{"report: engine", reflect.TypeFor[EngineInfo]()},
+		{"report: schedule", reflect.TypeFor[ScheduleReport]()},
+		{"report: cpi", reflect.TypeFor[CPIReport]()},
+		{"report: cpitarget", reflect.TypeFor[CPITarget]()},
+		{"report: scheduletarget", reflect.TypeFor[ScheduleTarget]()},
+		{"report: false_alarms", reflect.TypeFor[FalseAlarms]()},
+		{"report: clutter", reflect.TypeFor[ClutterSummary]()},
+		{"report: breakthrough", reflect.TypeFor[Breakthrough]()},
 	} {
 		rows, ok := tables[c.key]
 		if !ok {

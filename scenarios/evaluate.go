@@ -88,7 +88,13 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 			return nil, err
 		}
 	}
+	res.Report.FalseAlarms, res.Report.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	res.Report.Warnings = append([]string{}, m.warnings...)
+	if s.Radar.Schedule != nil {
+		if res.Report.Schedule, err = evalSchedule(ctx, s, m); err != nil {
+			return nil, err
+		}
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -115,7 +121,13 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	}
 	rep := &Report{Version: ReportVersion, Scenario: s.Name, Waveform: m.waveformReport()}
 	rep.Targets = sc.targetReports(ctx, m, false)
+	rep.FalseAlarms, rep.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	rep.Warnings = append([]string{}, m.warnings...)
+	if s.Radar.Schedule != nil {
+		if rep.Schedule, err = evalSchedule(ctx, s, m); err != nil {
+			return nil, err
+		}
+	}
 	if err := ctx.Err(); err != nil {
 		return nil, err
 	}
@@ -186,7 +198,9 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		cf2 = sc.train.cfar()
 		budget = 0 // changes are verified on single pulses only
 	}
+	schedBudget := scheduleBudget(m)
 	out := make([]TargetReport, len(sc.targets))
+	sc.clutter = sc.analyseClutter(cf, cf2)
 	for j, g := range sc.targets {
 		v := sc.judge(j, cf)
 		single := v
@@ -194,6 +208,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		if sc.train != nil {
 			v, bin = sc.train.judge(j, cf2)
 		}
+		clutterVerdict(g, &v)
 		d := m.doppler(g.fd)
 		tr := TargetReport{
 			ID:                g.t.ID,
@@ -223,7 +238,13 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		if v.culprit >= 0 {
 			tr.MaskedBy = sc.targets[v.culprit].t.ID
 		}
-		tr.Reason = sc.reason(g, v, tr, cf)
+		sc.clutterFigures(sc.clutter, j, single, v, bin, &tr)
+		if v.status == StatusClutter {
+			tr.MarginDB, tr.ThresholdMarginDB, tr.DecidedOn = nil, nil, ""
+			tr.Reason = sc.clutterReason(g, tr)
+		} else {
+			tr.Reason = sc.reason(g, v, tr, cf)
+		}
 		if v.status == StatusTooWeak || v.status == StatusMasked {
 			if d.lossDB >= 1 {
 				tr.Reason += fmt.Sprintf(" Its Doppler shift of %s costs %.1f dB of compressed peak.", hz(math.Abs(g.fd)), d.lossDB)
@@ -232,8 +253,15 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		if sc.train != nil {
 			sc.train.report(j, v, single, bin, &tr)
 		}
-		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && v.status != StatusFolded && budget > 0 && ctx.Err() == nil {
+		hinted := false
+		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && v.status != StatusFolded && v.status != StatusClutter && budget > 0 && ctx.Err() == nil {
 			if hint := suggestFix(ctx, m, j, v, &budget); hint != "" {
+				tr.Reason += " " + hint
+				hinted = true
+			}
+		}
+		if cause := sc.scheduleCause(j, &tr); suggest && !hinted && cause != "" && schedBudget > 0 && ctx.Err() == nil {
+			if hint := suggestSchedule(ctx, m, sc, j, cause, &schedBudget); hint != "" {
 				tr.Reason += " " + hint
 			}
 		}
@@ -249,6 +277,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 				m.warn("target %s at %s is outside the receive window %s–%s", g.t.ID, km(g.t.RangeM), km(m.s.Radar.WindowStartM), km(m.s.Radar.WindowStopM))
 			}
 		}
+		detectionRangeOf(g, v, &tr)
 		out[j] = tr
 	}
 	return out
@@ -264,11 +293,8 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.ChiFigures, dopLoss float
 	switch g.t.Kind {
 	case TargetPoint:
 		sigma = dsp.FromDB(g.t.RCSDBsm)
-	case TargetExtended:
-		sigma = dsp.FromDB(g.t.RCSDBsmPerM) * C / (2 * m.s.Waveform.Bandwidth())
-	case TargetVolume:
-		az, el := r.BeamwidthAzDeg*math.Pi/180, r.BeamwidthElDeg*math.Pi/180
-		sigma = dsp.VolumeReflectivity(g.t.ReflectivityDBZ, m.lambda) * dsp.BeamArea(rangeM, az, el) * C / (2 * m.s.Waveform.Bandwidth())
+	default:
+		sigma = m.perMetre(g.t, rangeM) * C / (2 * m.s.Waveform.Bandwidth())
 	}
 	if rangeM <= 0 {
 		return dbFloor

@@ -18,7 +18,7 @@ var (
 	sweeps        = []string{"up", "down"}
 
 	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "view"}
-	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg"}
+	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg", "antenna_height_m", "schedule"}
 	receiverFields = []string{"filter", "filter_length_factor", "taps", "window", "detector", "doppler_window", "mti"}
 	mtis           = []string{MTINone, MTITwoPulse, MTIThreePulse}
 )
@@ -60,8 +60,8 @@ var detectorFields = map[string][]string{
 
 var targetFields = map[string][]string{
 	TargetPoint:    {"range_m", "rcs_dbsm", "range_rate_mps", "fluctuation"},
-	TargetExtended: {"range_start_m", "range_stop_m", "rcs_dbsm_per_m", "range_rate_mps", "velocity_spread_mps"},
-	TargetVolume:   {"range_start_m", "range_stop_m", "reflectivity_dbz", "range_rate_mps", "velocity_spread_mps"},
+	TargetExtended: {"range_start_m", "range_stop_m", "rcs_dbsm_per_m", "sigma0_db", "gamma_db", "range_rate_mps", "velocity_spread_mps", "role"},
+	TargetVolume:   {"range_start_m", "range_stop_m", "reflectivity_dbz", "range_rate_mps", "velocity_spread_mps", "role"},
 }
 
 func (o *object) decodeRadar(r *Radar) {
@@ -81,6 +81,12 @@ func (o *object) decodeRadar(r *Radar) {
 	}
 	o.float("beamwidth_az_deg", &r.BeamwidthAzDeg)
 	o.float("beamwidth_el_deg", &r.BeamwidthElDeg)
+	if o.float("antenna_height_m", &r.AntennaHeightM) && r.AntennaHeightM == 0 {
+		o.errs.add(o.sub("antenna_height_m"), "0 is not valid: must be above 0 m, at most 100000 m (leave it out for no surface geometry)")
+	}
+	if c, ok := o.child("schedule"); ok {
+		c.decodeSchedule(r)
+	}
 	o.finish(radarFields...)
 }
 
@@ -368,13 +374,16 @@ func (o *object) decodeTarget(t *Target) {
 		o.require("range_stop_m", "the far edge in m")
 		o.float("range_stop_m", &t.RangeStopM)
 		if t.Kind == TargetExtended {
-			o.require("rcs_dbsm_per_m", "the RCS per metre of range in dBsm")
-			o.float("rcs_dbsm_per_m", &t.RCSDBsmPerM)
+			o.surfaceLevel(t)
 		} else {
 			o.require("reflectivity_dbz", "the reflectivity factor in dBZ")
 			o.float("reflectivity_dbz", &t.ReflectivityDBZ)
 		}
 		o.float("velocity_spread_mps", &t.VelocitySpreadMPS)
+		t.Role = RoleClutter
+		if o.str("role", &t.Role) {
+			o.oneOf("role", t.Role, roles)
+		}
 	}
 	o.float("range_rate_mps", &t.RangeRateMPS)
 	o.used["id"] = true

@@ -258,8 +258,17 @@ func (m *model) pdFigures(v verdict, alone float64, out *TargetReport) {
 	if p := v.pdScene; v.sceneOK && p >= 0 && p <= 1 {
 		out.Pd = &p
 	}
-	if p, ok := t.pd(math.Max(alone/v.noiseLevel, 1)); ok && p >= 0 && p <= 1 {
+	switch ra := math.Max(alone/v.noiseLevel, 1); {
+	case ra == v.raise && v.sceneOK:
+		p := v.pdScene // nothing else raises its threshold: the same test
 		out.PdAlone = &p
+	case ra == 1:
+		p := v.pdNoise
+		out.PdAlone = &p
+	default:
+		if p, ok := t.pd(ra); ok && p >= 0 && p <= 1 {
+			out.PdAlone = &p
+		}
 	}
 	if req, err := t.requiredSNR(m.s.Receiver.Detector.PdRequired); err == nil {
 		rdb := dsp.DB(req)

@@ -289,6 +289,7 @@ func suggestFix(ctx context.Context, base *model, j int, v verdict, budget *int)
 func (s *Scenario) clone() *Scenario {
 	t := *s
 	t.Targets = append([]Target(nil), s.Targets...)
+	t.Radar.Schedule = s.Radar.Schedule.clone()
 	t.Waveform.PhasesDeg = append([]float64(nil), s.Waveform.PhasesDeg...)
 	if s.Waveform.PhasesDeg == nil {
 		t.Waveform.PhasesDeg = nil

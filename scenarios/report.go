@@ -15,7 +15,7 @@ const (
 )
 
 // Statuses lists every status in the order the page's legend shows them.
-var Statuses = []string{StatusDetected, StatusMasked, StatusTooWeak, StatusEclipsed, StatusFolded, StatusOutOfWindow}
+var Statuses = []string{StatusDetected, StatusMasked, StatusTooWeak, StatusEclipsed, StatusFolded, StatusOutOfWindow, StatusClutter}
 
 // Report is what the tool concludes about one scenario: the report format
 // of docs/report-format.md, version 2. A quantity that does not
@@ -26,6 +26,12 @@ type Report struct {
 	Waveform WaveformReport `json:"waveform"`
 	Targets  []TargetReport `json:"targets"`
 	Warnings []string       `json:"warnings"`
+	// Schedule is the evaluation of every CPI of radar.schedule and their
+	// M-of-N combination; nil without a schedule.
+	Schedule *ScheduleReport `json:"schedule,omitempty"`
+	// The detector's false-alarm rate and the scene's clutter (clutter.go).
+	FalseAlarms *FalseAlarms    `json:"false_alarms,omitempty"`
+	Clutter     *ClutterSummary `json:"clutter,omitempty"`
 	// Engine names the build that computed the report. It is filled in
 	// when the report is encoded (see MarshalJSON) if it is nil.
 	Engine *EngineInfo `json:"engine,omitempty"`
@@ -78,6 +84,10 @@ type TargetReport struct {
 	// do not apply.
 	EclipsingLossDB *float64 `json:"eclipsing_loss_db,omitempty"` // point target partly inside a transmit interval
 	BandLossDB      *float64 `json:"band_loss_db,omitempty"`      // point target with |Doppler| ≥ fs/2: energy outside the receiver's band
+	// DetectionRangeM is the range at which the tested SNR falls to
+	// snr_required_db by the R⁴ law from the target's range (its RCS
+	// kept; docs/detection-probability.md §9). Added in version 2.
+	DetectionRangeM *float64 `json:"detection_range_m,omitempty"`
 	// Probability of detection (docs/detection-probability.md §6), point
 	// targets only; omitted where no closed form applies.
 	Pd            *float64 `json:"pd,omitempty"`              // in the scene, at the scenario's pfa
@@ -88,12 +98,18 @@ type TargetReport struct {
 	// threshold, where no Pd series applies); omitted for statuses that
 	// neither decides (out_of_window, folded, wholly eclipsed).
 	DecidedOn string `json:"decided_on,omitempty"`
+	ClutterFigures
 }
 
 // Result is a report with the series the page plots.
 type Result struct {
 	Report Report
 	Series Series
+	// CPISeries holds, when ScheduleMaps filled it in, the plot series of
+	// every CPI of radar.schedule of more than one pulse (its
+	// range–Doppler map), nil for the others; index 0 is the first CPI,
+	// whose series are Series.
+	CPISeries []*Series
 }
 
 // Series are the plot data of one evaluation over the receive window, one

@@ -75,6 +75,7 @@ func randomScenario(r *rand.Rand) *Scenario {
 		s.Radar.PeakPowerW = u(1, 1e6)
 		s.Radar.Pulses = 1 + r.IntN(4)
 		s.Radar.BeamwidthAzDeg = u(0.5, 5)
+		s.Radar.AntennaHeightM = u(1, 500)
 	}
 	s.Radar.SampleRateHz = w.Bandwidth() * []float64{2, 2, 3.5, 1}[r.IntN(4)]
 	s.Radar.PRIS = w.PulseWidth() * u(3, 20)
@@ -103,6 +104,18 @@ func randomScenario(r *rand.Rand) *Scenario {
 			s.Receiver.Detector.DopplerTrainingCells = 2 * r.IntN(5)
 		}
 	}
+	if r.IntN(4) == 0 {
+		sc := &Schedule{}
+		for range 1 + r.IntN(3) {
+			c := CPI{PRIS: s.Radar.PRIS * u(0.8, 1.3), Pulses: s.Radar.Pulses}
+			if r.IntN(2) == 0 {
+				c.Pulses += r.IntN(3)
+			}
+			sc.CPIs = append(sc.CPIs, c)
+		}
+		sc.M = 1 + r.IntN(sc.N())
+		s.Radar.Schedule = sc
+	}
 	for i := range r.IntN(6) {
 		t := Target{ID: "t" + string(rune('a'+i)), Kind: pick(targetKinds), RangeRateMPS: math.Round(u(-300, 300))}
 		switch t.Kind {
@@ -111,10 +124,21 @@ func randomScenario(r *rand.Rand) *Scenario {
 		case TargetExtended:
 			t.RangeStartM, t.RCSDBsmPerM = u(0, 5e4), u(-40, 0)
 			t.RangeStopM = t.RangeStartM + u(1, 3000)
+			switch r.IntN(3) {
+			case 1:
+				t.RCSDBsmPerM, t.Level, t.Sigma0DB = 0, LevelSigma0, u(-50, 0)
+			case 2:
+				if s.Radar.AntennaHeightM > 0 {
+					t.RCSDBsmPerM, t.Level, t.GammaDB = 0, LevelGamma, u(-30, 0)
+				}
+			}
 		case TargetVolume:
 			t.RangeStartM, t.ReflectivityDBZ = u(0, 5e4), u(0, 60)
 			t.RangeStopM = t.RangeStartM + u(1, 3000)
 			t.VelocitySpreadMPS = u(0, 5)
+		}
+		if t.Kind != TargetPoint {
+			t.Role = pick(roles)
 		}
 		s.Targets = append(s.Targets, t)
 	}

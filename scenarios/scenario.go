@@ -70,6 +70,12 @@ type Radar struct {
 	WindowStopM    float64 `json:"window_stop_m"`    // last range of the receive window, m
 	BeamwidthAzDeg float64 `json:"beamwidth_az_deg"` // 3-dB azimuth beamwidth, degrees
 	BeamwidthElDeg float64 `json:"beamwidth_el_deg"` // 3-dB elevation beamwidth, degrees
+	// AntennaHeightM is the antenna's height above the surface, m; 0 when
+	// absent (no surface geometry: no grazing angle, no horizon).
+	AntennaHeightM float64 `json:"antenna_height_m,omitempty"`
+	// Schedule holds the CPIs after this one (a PRF schedule, added in
+	// format version 2); nil for a single CPI.
+	Schedule *Schedule `json:"schedule,omitempty"`
 }
 
 // Waveform kinds.
@@ -249,6 +255,15 @@ type Target struct {
 	RangeRateMPS      float64 `json:"range_rate_mps,omitempty"`      // m/s, > 0 receding
 	VelocitySpreadMPS float64 `json:"velocity_spread_mps,omitempty"` // extended, volume: rms spread, m/s
 	Fluctuation       string  `json:"fluctuation,omitempty"`         // point: none, swerling1 … swerling4
+	// Surface reflectivity of an extended target (clutter.go): Level says
+	// which of RCSDBsmPerM, Sigma0DB and GammaDB is given ("" is
+	// rcs_dbsm_per_m).
+	Sigma0DB float64 `json:"sigma0_db,omitempty"` // extended: σ⁰, dB m²/m²
+	GammaDB  float64 `json:"gamma_db,omitempty"`  // extended: γ of σ⁰ = γ·sin ψ, dB
+	Level    string  `json:"-"`
+	// Role is "clutter" or "target" for extended and volume targets
+	// (clutter.go; "" reads as clutter), "" for point targets.
+	Role string `json:"role,omitempty"`
 }
 
 // Wavelength returns λ = c / carrier, m.

@@ -63,6 +63,7 @@ type scene struct {
 	targets []*tgt
 	total   []float64 // Σ of every target's power per window sample
 	train   *train    // slow-time processing when radar.pulses > 1
+	clutter *clutterScene
 	// reachLo, reachHi bound the window samples whose power is needed:
 	// a target whose response cannot reach [reachLo, reachHi) keeps an
 	// empty response (see newSceneFor). With partial, point targets'
@@ -344,13 +345,8 @@ func (sc *scene) distributed(ctx context.Context, g *tgt, lp *localPlan) error {
 	g.rangeM = g.t.RangeStartM
 	g.apparent, g.folds = m.fold(g.t.RangeStartM)
 	dr := C / (2 * m.fs) // range per sample, m
-	az, el := r.BeamwidthAzDeg*math.Pi/180, r.BeamwidthElDeg*math.Pi/180
-	perMetre := func(R float64) float64 {
-		if g.t.Kind == TargetExtended {
-			return dsp.FromDB(g.t.RCSDBsmPerM)
-		}
-		return dsp.VolumeReflectivity(g.t.ReflectivityDBZ, m.lambda) * dsp.BeamArea(R, az, el)
-	}
+	perMetre := func(R float64) float64 { return m.perMetre(g.t, R) }
+	m.surfaceWarnings(g.t)
 	k0 := 1 / m.noiseW * r.PeakPowerW * math.Pow(dsp.FromDB(r.AntennaGainDBi), 2) * m.lambda * m.lambda /
 		(math.Pow(4*math.Pi, 3) * dsp.FromDB(r.SystemLossDB))
 	first := int(math.Floor(g.t.RangeStartM / m.unambM))

@@ -28,7 +28,8 @@ type verdict struct {
 	pdNoise float64 // Pd against the detector's threshold with noise alone
 	pdScene float64 // Pd against the scene's threshold at the cell; valid when sceneOK
 	sceneOK bool
-	rule    string // "pd" or "threshold": what decided a detected, masked, too_weak or eclipsed-by-loss status
+	raise   float64 // the scene's threshold over the noise-only one (≥ 1)
+	rule    string  // "pd" or "threshold": what decided a detected, masked, too_weak or eclipsed-by-loss status
 }
 
 // Rules that decide a status (TargetReport.DecidedOn).
@@ -222,7 +223,12 @@ func (sc *scene) probabilities(g *tgt, v *verdict, train bool) {
 		return
 	}
 	v.hasPd, v.test, v.pdNoise = true, t, pn
-	v.pdScene, v.sceneOK = t.pd(math.Max(v.threshold/v.noiseLevel, 1))
+	v.raise = math.Max(v.threshold/v.noiseLevel, 1)
+	if v.raise == 1 {
+		v.pdScene, v.sceneOK = pn, true // the series is costly for strong targets: once
+		return
+	}
+	v.pdScene, v.sceneOK = t.pd(v.raise)
 }
 
 // v1Status is the status format version 1 gave this verdict, in version

@@ -260,16 +260,31 @@ type Point struct {
 // precede the first missing one, and returns ctx.Err(). An error from
 // emit stops the run and is returned.
 func (g *Grid) Run(ctx context.Context, workers int, emit func(Point) error) error {
+	return g.RunShard(ctx, Whole, workers, emit)
+}
+
+// RunShard is Run for the points of one shard (Shard: points i with
+// i mod N = K), emitted in grid order. Each point is the grid's point i
+// whatever the shard (its scenario, seed included, depends on i alone),
+// so the N shards together emit exactly the points of Run. The whole grid
+// is validated, in every shard, so that all shards of an invalid grid
+// fail alike; a shard that owns no point (N larger than the grid) emits
+// nothing.
+func (g *Grid) RunShard(ctx context.Context, sh Shard, workers int, emit func(Point) error) error {
 	if err := g.Validate(ctx); err != nil {
 		return err
 	}
-	n, _ := g.Count()
+	total, _ := g.Count()
+	if sh.N < 1 || sh.K < 0 || sh.K >= sh.N {
+		return fmt.Errorf("sweep shard %d/%d: K must be in 0…N−1 and N at least 1: %w", sh.K, sh.N, ErrInvalid)
+	}
+	n := sh.Len(total) // this shard's points; the j-th is point sh.Item(j)
 	workers = max(1, min(workers, n))
 	ctx, cancel := context.WithCancel(ctx)
 	defer cancel()
 
 	type done struct {
-		i   int
+		i   int // position within the shard
 		rep *Report
 		err error
 	}
@@ -281,14 +296,15 @@ func (g *Grid) Run(ctx context.Context, workers int, emit func(Point) error) err
 		go func() {
 			defer wg.Done()
 			var e Engine
-			for i := range jobs {
+			for j := range jobs {
+				i := sh.Item(j)
 				s, err := g.Scenario(i)
 				var rep *Report
 				if err == nil {
 					rep, err = e.Analyse(ctx, s)
 				}
 				select {
-				case results <- done{i, rep, err}:
+				case results <- done{j, rep, err}:
 				case <-ctx.Done():
 					return
 				}
@@ -297,9 +313,9 @@ func (g *Grid) Run(ctx context.Context, workers int, emit func(Point) error) err
 	}
 	go func() {
 		defer close(jobs)
-		for i := range n {
+		for j := range n {
 			select {
-			case jobs <- i:
+			case jobs <- j:
 			case <-ctx.Done():
 				return
 			}
@@ -323,7 +339,7 @@ func (g *Grid) Run(ctx context.Context, workers int, emit func(Point) error) err
 			}
 			runErr = d.err
 			if !strings.HasPrefix(d.err.Error(), "sweep point") {
-				runErr = fmt.Errorf("sweep point %s: %w", g.describe(g.Index(d.i)), d.err)
+				runErr = fmt.Errorf("sweep point %s: %w", g.describe(g.Index(sh.Item(d.i))), d.err)
 			}
 			cancel()
 			continue
@@ -335,7 +351,8 @@ func (g *Grid) Run(ctx context.Context, workers int, emit func(Point) error) err
 				break
 			}
 			delete(pending, next)
-			if err := emit(Point{Index: next, Values: g.Index(next), Report: rep}); err != nil {
+			i := sh.Item(next)
+			if err := emit(Point{Index: i, Values: g.Index(i), Report: rep}); err != nil {
 				runErr = err
 				cancel()
 				break

@@ -425,12 +425,12 @@ func (tr *train) report(j int, v, single verdict, bin int, out *TargetReport) {
 	case v.status == StatusDetected && single.status == StatusMasked && single.culprit >= 0:
 		o := tr.sc.targets[single.culprit]
 		_, od, _ := tr.peak(single.culprit)
-		out.Reason += fmt.Sprintf(" Doppler saves it: at %.1f m/s it sits %d Doppler bins from %s (%.1f m/s), which masks it in a single pulse.",
+		out.Reason += fmt.Sprintf(" Doppler saves it: at %+.1f m/s it sits %d Doppler bins from %s (%+.1f m/s), which masks it in a single pulse.",
 			rate, binDistance(bin, od, tr.plan.Bins()), o.t.ID, tidy(-tr.binHz(od)*m.lambda/2))
 	case v.status == StatusMasked && v.culprit >= 0:
 		_, od, _ := tr.peak(v.culprit)
 		if dd := binDistance(bin, od, tr.plan.Bins()); dd <= 1 {
-			out.Reason += fmt.Sprintf(" They share its Doppler (%d bin apart at %.1f m/s), so Doppler processing cannot separate them.", dd, rate)
+			out.Reason += fmt.Sprintf(" They share its Doppler (%d bin apart at %+.1f m/s), so Doppler processing cannot separate them.", dd, rate)
 		}
 	}
 }

@@ -50,7 +50,8 @@ func upgrade1(doc map[string]any) ([]string, error) {
 			}
 		}
 	}
-	return []string{fmt.Sprintf("statuses are now decided on the probability of detection at receiver.detector.pd_required (%s) rather than on the noise-free peak against the threshold; below_noise is now called too_weak, and a folded echo inside the window is folded rather than out_of_window", req)}, nil
+	notes := []string{fmt.Sprintf("statuses are now decided on the probability of detection at receiver.detector.pd_required (%s) rather than on the noise-free peak against the threshold; below_noise is now called too_weak, and a folded echo inside the window is folded rather than out_of_window", req)}
+	return append(notes, roleNotes(doc)...), nil
 }
 
 // UpgradeNotes returns what a user should hear of a scenario read from an
@@ -152,6 +153,8 @@ func verdictChange(old string, v verdict, tr TargetReport, req float64) string {
 	switch {
 	case v.status == StatusFolded:
 		why = ": a folded echo inside the window now has a status of its own"
+	case v.status == StatusClutter:
+		why = clutterChange
 	case v.rule == rulePd && v.sceneOK:
 		why = fmt.Sprintf(": Pd %s in the scene against the required %g (version 1 compared the noise-free peak with the threshold)", PdText(v.pdScene), req)
 	case v.rule == rulePd:

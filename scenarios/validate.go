@@ -34,9 +34,9 @@ func (c checker) between(path string, v, lo, hi float64) bool {
 	case math.IsNaN(v):
 		c.errs.add(path, "NaN is not a number; valid range %g … %g", lo, hi)
 	case v < lo:
-		c.errs.add(path, "%g is below the minimum %g", v, lo)
+		c.errs.add(path, "%g is below the minimum %g (valid range %g … %g)", v, lo, lo, hi)
 	case v > hi:
-		c.errs.add(path, "%g is above the maximum %g", v, hi)
+		c.errs.add(path, "%g is above the maximum %g (valid range %g … %g)", v, hi, lo, hi)
 	default:
 		return true
 	}
@@ -51,7 +51,7 @@ func (c checker) above(path string, v, lo, hi float64) bool {
 	case !(v > lo):
 		c.errs.add(path, "%g must be above %g (valid range: above %g, at most %g)", v, lo, lo, hi)
 	case v > hi:
-		c.errs.add(path, "%g is above the maximum %g", v, hi)
+		c.errs.add(path, "%g is above the maximum %g (valid range: above %g, at most %g)", v, hi, lo, hi)
 	default:
 		return true
 	}
@@ -83,6 +83,7 @@ func (s *Scenario) validate(errs *errList) {
 	}
 	waveOK := s.validateWaveform(c)
 	s.validateRadar(c, waveOK)
+	s.validateSchedule(c, waveOK)
 	s.validateReceiver(c)
 	s.validateTaps(c)
 	s.validateTargets(c)
@@ -98,6 +99,9 @@ func (s *Scenario) validateRadar(c checker, waveOK bool) {
 	c.intBetween("radar.pulses", r.Pulses, 1, 1024)
 	c.between("radar.beamwidth_az_deg", r.BeamwidthAzDeg, 0.1, 90)
 	c.between("radar.beamwidth_el_deg", r.BeamwidthElDeg, 0.1, 90)
+	if r.AntennaHeightM != 0 {
+		c.above("radar.antenna_height_m", r.AntennaHeightM, 0, MaxAntennaHeightM)
+	}
 	c.between("radar.window_start_m", r.WindowStartM, 0, 1e8)
 	if !c.errs.has("radar.window_start_m") {
 		c.above("radar.window_stop_m", r.WindowStopM, r.WindowStartM, 1e8)
@@ -332,11 +336,7 @@ func (s *Scenario) validateTargets(c checker) {
 				c.above(p+"range_stop_m", t.RangeStopM, t.RangeStartM, 1e8)
 			}
 			c.between(p+"velocity_spread_mps", t.VelocitySpreadMPS, 0, 1000)
-			if t.Kind == TargetExtended {
-				c.between(p+"rcs_dbsm_per_m", t.RCSDBsmPerM, -150, 60)
-			} else {
-				c.between(p+"reflectivity_dbz", t.ReflectivityDBZ, -40, 80)
-			}
+			s.validateDistributed(c, p, t)
 		}
 	}
 }

@@ -60,6 +60,7 @@ var statusStyle = map[string]struct{ colour, symbol string }{
 	scenarios.StatusEclipsed:    {"#6d3fc0", "triangle"},
 	scenarios.StatusFolded:      {"#a16207", "pin"},
 	scenarios.StatusOutOfWindow: {"#1b6aa5", "rect"},
+	scenarios.StatusClutter:     {"#8b5e3c", "roundRect"},
 }
 
 // chartOut is one chart of a frame: its full option, and the series data
@@ -238,6 +239,9 @@ type view struct {
 	cell   *cell       // the map cell to cut through; nil: none
 	// mapWidth is the range–Doppler map's width, px; 0: a third of width.
 	mapWidth int
+	// cpiMaps: the page shows a PRF schedule's CPI maps, so frames carry
+	// them (they cost a pulse-train simulation per CPI).
+	cpiMaps bool
 }
 
 // windowGrid is the range axis of a result's series.
@@ -300,7 +304,7 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 		b.add(SeriesReference, "pinned", colourReference, dbSeries(rg, rs.ProfileDB, plan(rg, vw.rangeM, plotColumns(vw.width))), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
 	}
 	annotate(b, res, g)
-	key := string(appendProfileKey(nil, res, ref))
+	key := string(appendProfileKey(nil, res, ref)) + breakthroughMarks(b, res, g)
 	b.line.AddSeries("targets", nil,
 		charts.WithSeriesId(SeriesMarkers),
 		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.Type = "scatter"; s.SymbolSize = 11 }),

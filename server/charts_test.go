@@ -250,9 +250,19 @@ func TestFoldedMarker(t *testing.T) {
 // marker shape on the plots (statusStyle), and the page's stylesheet gives
 // its cards and dots the same colour (--st-STATUS) and a dot rule.
 func TestStatusMarksMatchPage(t *testing.T) {
-	css, err := fs.ReadFile(web.FS(), "css/app.css")
-	if err != nil {
-		t.Fatal(err)
+	// Every stylesheet of the page: a status added by a feature keeps its
+	// rules in that feature's own file (clutter.css).
+	sheets, err := fs.Glob(web.FS(), "css/*.css")
+	if err != nil || len(sheets) == 0 {
+		t.Fatalf("stylesheets: %v %v", sheets, err)
+	}
+	var css []byte
+	for _, name := range sheets {
+		b, err := fs.ReadFile(web.FS(), name)
+		if err != nil {
+			t.Fatal(err)
+		}
+		css = append(css, b...)
 	}
 	shapes := map[string]string{}
 	for _, st := range scenarios.Statuses {
@@ -266,10 +276,10 @@ func TestStatusMarksMatchPage(t *testing.T) {
 		}
 		shapes[s.symbol] = st
 		if !strings.Contains(string(css), "--st-"+st+": "+s.colour+";") {
-			t.Errorf("css/app.css lacks --st-%s: %s; (the plot's colour)", st, s.colour)
+			t.Errorf("no stylesheet sets --st-%s: %s; (the plot's colour)", st, s.colour)
 		}
 		if !strings.Contains(string(css), ".dot.st-"+st+" ") {
-			t.Errorf("css/app.css has no dot for %s", st)
+			t.Errorf("no stylesheet has a dot for %s", st)
 		}
 	}
 }

@@ -49,6 +49,7 @@ type evalCache struct {
 	scratch         points              // a series being decimated
 	respBuf         []byte              // the response chart's inputs, encoded, …
 	respLast        []byte              // … and those of the one the page holds
+	mapsOf          *scenarios.Result   // the result whose CPISeries ScheduleMaps filled in
 }
 
 // compute evaluates the newest state the reader posted and puts its frame
@@ -196,6 +197,9 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 	if err := ss.ambiguity(ctx, c); err != nil {
 		return nil, err
 	}
+	if err := ss.scheduleMaps(ctx, w, c); err != nil {
+		return nil, err
+	}
 	if err := ss.wavePlots(ctx, c); err != nil {
 		return nil, err
 	}
@@ -228,6 +232,24 @@ func (ss *session) recycle(f *frame) {
 	case ss.free <- f:
 	default:
 	}
+}
+
+// scheduleMaps simulates the CPI maps of the last good scenario's PRF
+// schedule when the page shows them and its result lacks them, within the
+// memory the scenario's cost estimate reserves for them.
+func (ss *session) scheduleMaps(ctx context.Context, w want, c *evalCache) error {
+	if !w.view.cpiMaps || c.scn == nil || c.scn.Radar.Schedule == nil || c.res == nil || c.mapsOf == c.res {
+		return nil
+	}
+	res := c.res
+	_, err := ss.srv.admitted(ctx, c.scn, true, func(ctx context.Context, s *scenarios.Scenario) (*scenarios.Result, error) {
+		return res, scenarios.ScheduleMaps(ctx, s, res)
+	})
+	if err != nil {
+		return &editError{id: w.scn.id, err: err}
+	}
+	c.mapsOf = res
+	return nil
 }
 
 // settle gives each static chart a key that names its data: the previous

@@ -40,8 +40,10 @@ func (c *evalCache) chartsOf(f *frame, res, ref *scenarios.Result, vw view, pend
 	f.charts = f.charts[:0]
 	f.buf, f.refs, f.store = f.buf[:0], f.refs[:0], f.store[:0]
 
+	// Clutter breakthrough areas name their spans in the key: such a
+	// profile is built whole.
 	c.keyBuf = appendProfileKey(c.keyBuf[:0], res, ref)
-	if key, ok := c.held(ChartProfile, c.keyBuf, pending); ok {
+	if key, ok := c.held(ChartProfile, c.keyBuf, pending); ok && !hasBreakthrough(res) {
 		c.appendProfileData(f, res, ref, vw, key)
 	} else {
 		f.charts = append(f.charts, profileChart(res, ref, vw))
@@ -58,6 +60,7 @@ func (c *evalCache) chartsOf(f *frame, res, ref *scenarios.Result, vw view, pend
 	if cut, ok := rdCutsChart(res, vw); ok {
 		f.charts = append(f.charts, cut)
 	}
+	f.charts = append(f.charts, c.settle(scheduleCharts(c.scn, res, vw))...)
 	// The data slices point into buf and store, which have stopped
 	// growing; a chart's series are consecutive in refs.
 	for _, r := range f.refs {
@@ -432,4 +435,15 @@ func appendStringRune(b []byte, r rune) []byte {
 		return append(b, `\ufffd`...)
 	}
 	return utf8.AppendRune(b, r)
+}
+
+// hasBreakthrough says whether a target of res has clutter breakthrough
+// spans (breakthroughMarks shades them).
+func hasBreakthrough(res *scenarios.Result) bool {
+	for _, t := range res.Report.Targets {
+		if t.Breakthrough != nil {
+			return true
+		}
+	}
+	return false
 }

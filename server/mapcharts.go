@@ -76,6 +76,9 @@ type heat struct {
 	vmin, vmax     float64
 	colours        []string
 	cells          []byte
+	// pieces, when set, make the colour legend piecewise: one
+	// {"value", "label", "color"} per value the cells take.
+	pieces []map[string]any
 }
 
 // heatChart makes the option of a heat map; more adds series on the
@@ -106,6 +109,10 @@ func heatChart(name, key string, h heat, more ...heatSeries) chartOut {
 	c.Validate()
 	opt := c.JSON()
 	opt["visualMap"] = []visualMapJSON{{VisualMap: vm, Min: h.vmin, Max: h.vmax, ItemW: 12}}
+	if h.pieces != nil {
+		opt["visualMap"] = []map[string]any{{"type": "piecewise", "dimension": 2, "pieces": h.pieces, "orient": "vertical", "right": 2, "top": "middle",
+			"itemWidth": 12, "itemHeight": 10, "textStyle": map[string]any{"fontSize": 10}}}
+	}
 	opt["tooltip"] = tooltipJSON("item")
 	// Blank cells show the grid's background: the bottom colour.
 	opt["grid"] = []map[string]any{{"left": gridLeft, "right": 62, "top": 12, "bottom": 40, "show": true,

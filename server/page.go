@@ -107,6 +107,7 @@ var statusColour = map[string]string{
 	"eclipsed":      "#7c3aed",
 	"folded":        "#a16207",
 	"out_of_window": "#0e7490",
+	"clutter":       "#8b5e3c",
 }
 
 // minMaxPairs reduces y[k] at x0 + k·dx to at most 2·buckets points, keeping

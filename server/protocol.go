@@ -13,7 +13,7 @@ import (
 // Client → server message types.
 const (
 	MsgScenario = "scenario" // {id, scenario}: a new edit, latest wins
-	MsgView     = "view"     // {id, range_m: [a, b] | null, width_px, map_px?}
+	MsgView     = "view"     // {id, range_m: [a, b] | null, width_px, map_px?, cpi_maps?}
 	MsgPin      = "pin"      // {id, scenario | null}: compare against a pinned scenario
 	MsgCell     = "cell"     // {id, cell: {range_m, range_rate_mps} | null}: cuts through the range–Doppler map
 )
@@ -39,6 +39,7 @@ type inMsg struct {
 	RangeM   *[2]float64     `json:"range_m"`
 	WidthPx  int             `json:"width_px"`
 	MapPx    int             `json:"map_px"`
+	CPIMaps  bool            `json:"cpi_maps"` // view: send the maps of a PRF schedule's CPIs
 	Cell     *cellMsg        `json:"cell"`
 }
 

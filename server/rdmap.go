@@ -238,7 +238,7 @@ func rdCutsChart(res *scenarios.Result, vw view) (chartOut, bool) {
 	rate := rd.RangeRateMPS[bin]
 	key := fmt.Sprintf("rdcuts/1/%d/%d", bin, k)
 	return twoCuts(ChartRDCuts, key, [2]cutPlot{
-		{title: fmt.Sprintf("at %.1f m/s (%.0f Hz)", noNegZero(rate), noNegZero(rd.DopplerHz[bin])), xName: "range (m)", yName: "dB re noise", yMin: profileYMin,
+		{title: fmt.Sprintf("at %+.1f m/s (%.0f Hz)", noNegZero(rate), noNegZero(rd.DopplerHz[bin])), xName: "range (m)", yName: "dB re noise", yMin: profileYMin,
 			lines: []cutLine{
 				{SeriesRangeCut, "map", colourProfile, rangeCut, 1.2},
 				{SeriesRangeClean, "noise-free", colourClean, rangeClean, 1}}},

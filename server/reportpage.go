@@ -43,6 +43,7 @@ func WriteReportPage(w io.Writer, s *scenarios.Scenario, res *scenarios.Result, 
 		Figures:  figureRows(rep),
 		Targets:  targetRows(rep),
 		Warnings: rep.Warnings,
+		Schedule: scheduleTable(rep.Schedule),
 		Link:     link,
 		Caution:  caution,
 		Style:    template.CSS(pageStyle),
@@ -62,6 +63,7 @@ type reportData struct {
 	Scene, Figures [][2]string
 	Targets        []targetRow
 	Warnings       []string
+	Schedule       *scheduleData // nil without radar.schedule
 	Link, Caution  string
 	Style          template.CSS
 	Charts         []pageChart
@@ -270,7 +272,13 @@ var reportTmpl = template.Must(template.New("report").Parse(`<!DOCTYPE html>
 {{else}}<tr><td colspan="7">No targets in this scene.</td></tr>{{end}}
 </table>
 {{range .Warnings}}<p class="warn">⚠ {{.}}</p>{{end}}
-
+{{with .Schedule}}<h2>PRF schedule</h2>
+<p>{{.Head}}</p>
+<table>
+<tr><th>Target</th>{{range .CPIs}}<th>{{.}}</th>{{end}}<th class="num">Seen</th><th>{{.Rule}}</th><th class="num">Pd</th><th class="num">Range (km)</th><th class="num">Range rate (m/s)</th><th>Why</th></tr>
+{{range .Rows}}<tr><td><b>{{.ID}}</b></td>{{range .Cells}}<td>{{.}}</td>{{end}}<td class="num">{{.Seen}}</td><td>{{.Verdict}}</td><td class="num">{{.Pd}}</td><td class="num">{{.Range}}</td><td class="num">{{.Rate}}</td><td>{{.Reason}}</td></tr>
+{{end}}</table>
+{{end}}
 {{range .Charts}}<div class="chart" id="{{.ID}}" style="height:{{.Height}}px"></div>
 {{end}}
 <p class="notes">SNR is the expected single-pulse SNR at the compression filter's output; Pd is how often the target is seen at the detector's false-alarm rate; a target is detected when its Pd reaches the required Pd. The margin is its SNR at its cell over the SNR the required Pd needs against noise alone (negative: too weak even alone). Profiles are drawn from per-pixel minimum and maximum, so no peak is lost.</p>

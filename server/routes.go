@@ -31,6 +31,8 @@ func (s *Server) Handler() http.Handler {
 		r.Post("/evaluate", s.handleEvaluate)
 		// POST /links: scenario in, {"link": "/#s=…"} out.
 		r.Post("/links", s.handleLink)
+		// POST /coverage?target=ID[&points=N]: scenario in, {coverage, option} out (the Pd curves of one target).
+		r.Post("/coverage", s.handleCoverage)
 
 		// GET /demos: the built-in scenes, [{name, title, summary, start}].
 		r.Get("/demos", s.handleDemos)

@@ -235,6 +235,7 @@ func apply(st want, data []byte) (want, bool, error) {
 		if m.MapPx != 0 {
 			st.view.mapWidth = min(max(m.MapPx, minWidthPx), maxWidthPx)
 		}
+		st.view.cpiMaps = m.CPIMaps
 		return st, false, nil
 	case MsgCell:
 		st.view.cell = nil

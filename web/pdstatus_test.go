@@ -5,6 +5,7 @@ import (
 	"os"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/chromedp/chromedp"
 )
@@ -17,7 +18,7 @@ import (
 // scene's far airliner is folded: its card says so and its marker, a pin,
 // sits where its ghost appears (60.1 km), not at the window's edge.
 func TestPdOnCardsAndRequiredPd(t *testing.T) {
-	ctx := mustBrowser(t)
+	ctx := mustBrowserFor(t, 3*time.Minute) // three scenes, two tabs
 	base := mustServer(t)
 	openPage(t, ctx, base)
 	waitFor(t, ctx, "the pilot boat masked", jsTarget+`('pilot-boat').status === 'masked'`)

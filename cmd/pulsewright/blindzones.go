@@ -1,6 +1,7 @@
 package main
 
 import (
+	"flag"
 	"fmt"
 	"io"
 	"strconv"
@@ -18,35 +19,68 @@ func (e *env) blindzones(args []string) error {
 	tau := fs.Float64("tau", 0, "transmitted pulse width, s")
 	carrier := fs.Float64("carrier", 0, "carrier frequency, Hz")
 	m := fs.Int("m", 0, "CPIs that must see a target (M-of-N); 0: all")
-	rng := fs.String("range", "", "ranges to map, MIN:MAX in m (default 0 to the longest PRI's unambiguous range × 2)")
-	rate := fs.Float64("rate", 0, "range rates to map, ± this many m/s (default the first blind speed of the schedule, or 1000)")
+	rng := fs.String("range", "", "ranges to map, MIN:MAX in m, or in the --units range unit (default 0 to the longest PRI's unambiguous range × 2)")
+	rate := fs.String("rate", "", "range rates to map, ± this many m/s, or in the --units speed unit (default 1000 m/s)")
 	cells := fs.String("cells", "100x40", "map size, RANGExRATE cells")
 	eclipse := fs.Float64("eclipse", 0.5, "a target is eclipsed when this fraction of its echo or more overlaps a transmit pulse")
 	format := fs.String("format", "table", "output: table (characters), csv (one row per cell) or html (a self-contained page)")
 	out := fs.String("o", "", "write to this file instead of standard output")
+	unitsText := unitsFlag(fs)
 	pos, err := parseFlags(fs, args)
 	if err != nil {
 		return err
 	}
-	if len(pos) > 0 {
-		return usageError{fmt.Sprintf("blindzones takes no positional argument (got %q); the schedule is given with --pri and --pulses", pos[0])}
+	if len(pos) > 1 {
+		return usageError{fmt.Sprintf("blindzones takes at most one SCENARIO, got %d arguments", len(pos))}
 	}
 	if *format != "table" && *format != "csv" && *format != "html" {
 		return usageError{fmt.Sprintf("--format %q is not table, csv or html", *format)}
 	}
-	spec := scenarios.BlindZoneSpec{PulseS: *tau, CarrierHz: *carrier, M: *m, RateMaxMPS: *rate, EclipseFraction: *eclipse}
-	if spec.PRIs, err = floatList("--pri", *pri); err != nil {
-		return err
-	}
-	p, err := floatList("--pulses", *pulses)
+	u, err := parseUnitsFlag(*unitsText, *format == "table", "it applies to --format table; csv and html keep SI")
 	if err != nil {
 		return err
 	}
-	for _, v := range p {
-		if v != float64(int(v)) {
-			return usageError{fmt.Sprintf("--pulses: %g is not a whole number", v)}
+	spec := scenarios.BlindZoneSpec{PulseS: *tau, CarrierHz: *carrier, M: *m, EclipseFraction: *eclipse}
+	if *rate != "" {
+		v, err := u.Parse(scenarios.QSpeed, *rate)
+		if err != nil {
+			return usageError{fmt.Sprintf("--rate: %v", err)}
 		}
-		spec.Pulses = append(spec.Pulses, int(v))
+		spec.RateMaxMPS = v
+	}
+	if len(pos) == 1 {
+		// The scenario's schedule (or its one CPI), pulse and carrier.
+		for _, f := range []string{"pri", "pulses", "tau", "carrier", "m"} {
+			if set(fs, f) {
+				return usageError{fmt.Sprintf("--%s is taken from the scenario %s; give a scenario or the schedule's flags, not both", f, pos[0])}
+			}
+		}
+		s, err := e.loadScenario(pos[0])
+		if err != nil {
+			return err
+		}
+		spec.PulseS, spec.CarrierHz = s.Waveform.PulseWidth(), s.Radar.CarrierHz
+		spec.PRIs, spec.Pulses = []float64{s.Radar.PRIS}, []int{s.Radar.Pulses}
+		if sc := s.Radar.Schedule; sc != nil {
+			for _, c := range sc.CPIs {
+				spec.PRIs, spec.Pulses = append(spec.PRIs, c.PRIS), append(spec.Pulses, c.Pulses)
+			}
+			spec.M = sc.M
+		}
+	} else {
+		if spec.PRIs, err = floatList("--pri", *pri); err != nil {
+			return err
+		}
+		p, err := floatList("--pulses", *pulses)
+		if err != nil {
+			return err
+		}
+		for _, v := range p {
+			if v != float64(int(v)) {
+				return usageError{fmt.Sprintf("--pulses: %g is not a whole number", v)}
+			}
+			spec.Pulses = append(spec.Pulses, int(v))
+		}
 	}
 	if _, err := fmt.Sscanf(*cells, "%dx%d", &spec.RangeCells, &spec.RateCells); err != nil {
 		return usageError{fmt.Sprintf("--cells %q is not RANGExRATE (100x40)", *cells)}
@@ -59,14 +93,14 @@ func (e *env) blindzones(args []string) error {
 		spec.RangeMinM, spec.RangeMaxM = 0, 2*299792458*longest/2
 	} else {
 		lo, hi, ok := strings.Cut(*rng, ":")
-		a, err1 := strconv.ParseFloat(lo, 64)
-		b, err2 := strconv.ParseFloat(hi, 64)
+		a, err1 := u.Parse(scenarios.QRange, lo)
+		b, err2 := u.Parse(scenarios.QRange, hi)
 		if !ok || err1 != nil || err2 != nil {
-			return usageError{fmt.Sprintf("--range %q is not MIN:MAX in m", *rng)}
+			return usageError{fmt.Sprintf("--range %q is not MIN:MAX in %s", *rng, u.Range)}
 		}
 		spec.RangeMinM, spec.RangeMaxM = a, b
 	}
-	if *rate == 0 {
+	if *rate == "" {
 		spec.RateMaxMPS = 1000
 	}
 	if *eclipse == 0 {
@@ -83,7 +117,7 @@ func (e *env) blindzones(args []string) error {
 		case "html":
 			return b.WriteHTML(w)
 		}
-		return b.WriteText(w)
+		return b.WriteTextIn(w, u)
 	}
 	if *out != "" {
 		return writeFile(*out, write)
@@ -105,4 +139,11 @@ func floatList(flag, s string) ([]float64, error) {
 		out = append(out, v)
 	}
 	return out, nil
+}
+
+// set reports whether flag name was given on the command line.
+func set(fs *flag.FlagSet, name string) bool {
+	found := false
+	fs.Visit(func(f *flag.Flag) { found = found || f.Name == name })
+	return found
 }

@@ -39,3 +39,19 @@ func TestBlindZonesCommand(t *testing.T) {
 		}
 	}
 }
+
+// TestBlindZonesOfScenario: a scenario gives the schedule, pulse and
+// carrier (the hill demo: 100, 125 and 85 µs, 2-of-3, a 5 µs grid, so
+// λ/(2·5 µs) = 3155.7 m/s at 9.5 GHz); its flags are refused beside it.
+func TestBlindZonesOfScenario(t *testing.T) {
+	code, out, errs := runCmd(t, "", "blindzones", "--cells", "20x8", "demo:hill-clutter-doppler")
+	for _, want := range []string{"CPI 3: PRI 85 µs, 32 pulses", "first speed blind in every CPI 3155.7 m/s", "2-of-3 sees"} {
+		if code != 0 || !strings.Contains(out, want) {
+			t.Errorf("exit %d, stderr %q: output lacks %q:\n%s", code, errs, want, out)
+		}
+	}
+	code, _, errs = runCmd(t, "", "blindzones", "--m", "1", "demo:hill-clutter-doppler")
+	if code != 2 || !strings.Contains(errs, "--m is taken from the scenario") {
+		t.Errorf("exit %d, stderr %q", code, errs)
+	}
+}

@@ -37,7 +37,12 @@ func parseFlags(fs *flag.FlagSet, args []string) ([]string, error) {
 
 func (e *env) check(args []string) error {
 	fs := newFlags("check", e)
+	unitsText := unitsFlag(fs)
 	pos, err := parseFlags(fs, args)
+	if err != nil {
+		return err
+	}
+	u, err := parseUnitsFlag(*unitsText, true, "")
 	if err != nil {
 		return err
 	}
@@ -55,11 +60,12 @@ func (e *env) check(args []string) error {
 			fmt.Fprintf(e.stdout, "  %s\n", n)
 		}
 	}
-	return writeSummary(e.stdout, s)
+	return writeSummaryIn(e.stdout, s, u)
 }
 
-// writeSummary prints the short canonical summary of a valid scenario.
-func writeSummary(w io.Writer, s *scenarios.Scenario) error {
+// writeSummaryIn prints the short canonical summary of a valid scenario,
+// the receive window in u's range unit; the canonical JSON keeps SI.
+func writeSummaryIn(w io.Writer, s *scenarios.Scenario, u scenarios.Units) error {
 	canon, err := scenarios.Canonical(s)
 	if err != nil {
 		return err
@@ -73,7 +79,8 @@ func writeSummary(w io.Writer, s *scenarios.Scenario) error {
 	fmt.Fprintf(tw, "valid\t%s\n", name)
 	fmt.Fprintf(tw, "waveform\t%s, B·τ %.4g\n", wf.Describe(), wf.PulseWidth()*wf.Bandwidth())
 	fmt.Fprintf(tw, "radar\t%s, %s peak, %.4g dBi, NF %.3g dB, loss %.3g dB\n", scenarios.SI(r.CarrierHz, "Hz"), scenarios.SI(r.PeakPowerW, "W"), r.AntennaGainDBi, r.NoiseFigureDB, r.SystemLossDB)
-	fmt.Fprintf(tw, "timing\tfs %s, PRI %s, %d pulse(s), window %.6g–%.6g m (%d samples)\n", scenarios.SI(r.SampleRateHz, "Hz"), scenarios.SI(r.PRIS, "s"), r.Pulses, r.WindowStartM, r.WindowStopM, s.WindowSamples())
+	fmt.Fprintf(tw, "timing\tfs %s, PRI %s, %d pulse(s), window %.6g–%.6g %s (%d samples)\n", scenarios.SI(r.SampleRateHz, "Hz"), scenarios.SI(r.PRIS, "s"), r.Pulses,
+		u.FromSI(scenarios.QRange, r.WindowStartM), u.FromSI(scenarios.QRange, r.WindowStopM), u.Range, s.WindowSamples())
 	fmt.Fprintf(tw, "receiver\t%s filter, window %s, %s\n", rx.Filter, rx.Window.Describe(), rx.Detector.Describe())
 	fmt.Fprintf(tw, "targets\t%s\n", scenarios.DescribeTargets(s.Targets))
 	fmt.Fprintf(tw, "seed\t%d\n", s.Seed)

@@ -14,12 +14,17 @@ import (
 func (e *env) eval(args []string) error {
 	fs := newFlags("eval", e)
 	format := fs.String("format", "json", "output format: json (the report format) or text (a readable table)")
+	unitsFlag := unitsFlag(fs)
 	pos, err := parseFlags(fs, args)
 	if err != nil {
 		return err
 	}
 	if *format != "json" && *format != "text" {
 		return usageError{fmt.Sprintf("--format %q is not json or text", *format)}
+	}
+	u, err := parseUnitsFlag(*unitsFlag, *format == "text", "it applies to --format text; the JSON report keeps SI")
+	if err != nil {
+		return err
 	}
 	s, err := e.oneScenario("eval", pos)
 	if err != nil {
@@ -30,15 +35,22 @@ func (e *env) eval(args []string) error {
 		return fmt.Errorf("evaluate: %w", err)
 	}
 	if *format == "text" {
-		return writeReportText(e.stdout, &res.Report)
+		return writeReportTextIn(e.stdout, &res.Report, u)
 	}
 	enc := json.NewEncoder(e.stdout)
 	enc.SetIndent("", "  ")
 	return enc.Encode(res.Report)
 }
 
-// writeReportText prints a report as a table a person reads in a terminal.
+// writeReportText prints a report as a table a person reads in a terminal,
+// in SI.
 func writeReportText(w io.Writer, r *scenarios.Report) error {
+	return writeReportTextIn(w, r, scenarios.SIUnits())
+}
+
+// writeReportTextIn is writeReportText with ranges, speeds and range rates
+// in u (reasons and warnings restated).
+func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units) error {
 	wf := r.Waveform
 	fmt.Fprintf(w, "%s\n\n", r.Scenario)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
@@ -48,13 +60,16 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 	} else {
 		fmt.Fprintf(tw, "sidelobes\tno sidelobes (the response falls monotonically from its peak)\n")
 	}
-	fmt.Fprintf(tw, "resolution\t%s m at −3 dB, mismatch loss %s dB\n", fx(wf.Mainlobe3dBM, 2), fx(wf.MismatchLossDB, 2))
+	fmt.Fprintf(tw, "resolution\t%s at −3 dB, mismatch loss %s dB\n", u.Format(scenarios.QRange, wf.Mainlobe3dBM, 2), fx(wf.MismatchLossDB, 2))
 	fmt.Fprintf(tw, "sampling\tstraddle loss %s dB worst, %s dB mean at this sample rate\n", fx(wf.StraddleLossMaxDB, 2), fx(wf.StraddleLossMeanDB, 2))
-	fmt.Fprintf(tw, "ranges\tblind %.0f m, unambiguous %.0f m, unambiguous velocity ±%.2f m/s\n", wf.BlindRangeM, wf.UnambiguousRangeM, wf.UnambiguousVelocityMPS)
+	if !u.IsSI() {
+		fmt.Fprintf(tw, "units\tranges in %s, speeds in %s, range rates positive when %s (files and JSON: m, m/s, positive when opening)\n", u.Range, u.Speed, u.Rate)
+	}
+	fmt.Fprintf(tw, "ranges\tblind %s, unambiguous %s, unambiguous velocity ±%s\n", u.Format(scenarios.QRange, wf.BlindRangeM, 0), u.Format(scenarios.QRange, wf.UnambiguousRangeM, 0), u.Format(scenarios.QSpeed, wf.UnambiguousVelocityMPS, 2))
 	tw.Flush()
 	fmt.Fprintln(w)
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "ID\tRANGE m\tSNR dB\tDOPPLER Hz\tDOP LOSS dB\tSHIFT m\tPD\tMARGIN dB\tTHR MARGIN dB\tSTATUS\t")
+	fmt.Fprintf(tw, "ID\tRANGE %s\tSNR dB\tDOPPLER Hz\tDOP LOSS dB\tSHIFT %s\tPD\tMARGIN dB\tTHR MARGIN dB\tSTATUS\t\n", u.Range, u.Range)
 	for _, t := range r.Targets {
 		thrMargin, pd, margin := "—", "—", "—"
 		if t.ThresholdMarginDB != nil {
@@ -70,20 +85,33 @@ func writeReportText(w io.Writer, r *scenarios.Report) error {
 		if t.MaskedBy != "" {
 			status += " by " + t.MaskedBy
 		}
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", t.ID, fx(t.RangeM, 1), fx(t.SNRDB, 1), fx(t.DopplerHz, 0), fx(t.DopplerLossDB, 2), fx(t.RangeShiftM, 2), pd, margin, thrMargin, status)
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", t.ID, u.Number(scenarios.QRange, t.RangeM, 1), fx(t.SNRDB, 1), fx(t.DopplerHz, 0), fx(t.DopplerLossDB, 2), u.Number(scenarios.QRange, t.RangeShiftM, 2), pd, margin, thrMargin, status)
 	}
 	tw.Flush()
 	fmt.Fprintln(w)
 	for _, t := range r.Targets {
-		fmt.Fprintf(w, "%s: %s\n", t.ID, t.Reason)
+		fmt.Fprintf(w, "%s: %s\n", t.ID, u.Restate(t.Reason))
 	}
 	for _, t := range r.Targets {
 		if line := pdLine(t); line != "" {
 			fmt.Fprintf(w, "%s: %s\n", t.ID, line)
 		}
 	}
+	var clutter strings.Builder // its ranges restated in u
+	writeClutterText(&clutter, r)
+	io.WriteString(w, u.Restate(clutter.String()))
+	for _, t := range r.Targets {
+		if t.DetectionRangeM != nil {
+			fmt.Fprintf(w, "%s: detection range for its RCS %s (where its SNR falls to the %s dB the required Pd needs, R⁴ law).\n",
+				t.ID, scenarios.SI(*t.DetectionRangeM, "m"), fx(*t.SNRRequiredDB, 1))
+		}
+	}
 	for _, warn := range r.Warnings {
-		fmt.Fprintf(w, "warning: %s\n", warn)
+		fmt.Fprintf(w, "warning: %s\n", u.Restate(warn))
+	}
+	if r.Schedule != nil {
+		fmt.Fprintln(w)
+		writeScheduleText(w, r.Schedule)
 	}
 	eng := scenarios.RunningEngine()
 	if r.Engine != nil {

@@ -35,7 +35,11 @@ Usage:
   pulsewright eval SCENARIO          print the report JSON (--format text for a table)
   pulsewright sweep SCENARIO --set PATH=START:STOP:STEP [--set …] [--out FILE.csv]
                      [--html FILE.html] [--fail-if-masked ID] [--jobs N]
-                                     evaluate a grid of variants; one CSV row per point
+                     [--shard K/N]   evaluate a grid of variants; one CSV row per point
+                                     (--shard: only points i with i mod N = K, for merge)
+  pulsewright merge SHARD.csv… [--out FILE.csv] [--fail-if-masked ID]
+                                     join the shards of one sweep into the unsharded CSV;
+                                     refuses shards of other scenarios, grids or engines
   pulsewright report SCENARIO -o FILE.html
                                      write a self-contained HTML report for a customer
   pulsewright export SCENARIO [--sigmf BASE] [--csv FILE]
@@ -45,6 +49,15 @@ Usage:
                  [--ref-range-m R --ref-snr-db S] [--csv] [--html FILE.html]
                                      Pd against SNR per pulse (or against range, R⁴ law,
                                      from a reference point) and the SNR a required Pd needs
+  pulsewright trials SCENARIO [-n 1000] [-j N] [--first I] [--format text|json|csv] [-o FILE]
+                     [--time-limit 10m]
+                                     Monte Carlo: N noisy realisations through the engine; each
+                                     target's empirical Pd (95 % interval) beside the analytic Pd,
+                                     and the false alarms counted against Pfa × cells
+  pulsewright coverage SCENARIO --target ID [--from M --to M] [--points 200] [--by range|snr]
+                     [--format table|csv|html] [-o FILE]
+                                     Pd curves of one target: against range (moved through the
+                                     window, RCS kept) and against SNR; its detection range
   pulsewright blindzones --pri T1,T2,… --tau S --carrier HZ [--pulses N1,N2,…] [--m M]
                      [--range MIN:MAX] [--rate V] [--cells 100x40] [--format table|csv|html] [-o FILE]
                                      map where a PRF schedule is blind (eclipsed or at a
@@ -61,13 +74,19 @@ Usage:
 SCENARIO is a file path, - for standard input, a share link (a whole URL or
 just its #s= part), or demo:NAME for a built-in scene.
 
+--units U on check, eval --format text, pd (table) and blindzones (table)
+prints ranges, speeds and range rates in other units, e.g. --units km,kt
+or --units nautical,closing: a system (si, metric, nautical), units (m, km,
+nmi, m/s, km/h, kt, ft) and a range-rate sign (opening or closing
+positive). Files, links, JSON, CSV and HTML stay SI. See docs/units.md.
+
 PATH is a JSON path into the scenario: receiver.window.sidelobe_db,
 targets[1].range_m or targets[skiff].rcs_dbsm. PATH=VALUE sets a fixed
 value (receiver.window.kind=taylor), PATH=V1,V2 a list.
 
 Exit status: 0 success, 1 I/O or internal error, 2 invalid scenario or usage,
-3 sweep --fail-if-masked target never detected, 130 interrupted (the rows
-done are written).
+3 sweep or merge --fail-if-masked target never detected, 130 interrupted (the rows
+or trials done are written).
 `
 
 func main() {
@@ -87,7 +106,7 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 	// and goes raw unless it lands on a terminal, and the progress bar
 	// writes to the raw standard error.
 	out := stdout
-	if cmd != "sweep" || isTerminal(stdout) {
+	if (cmd != "sweep" && cmd != "merge") || isTerminal(stdout) {
 		out = newTermSafe(stdout)
 	}
 	env := &env{ctx: ctx, stdin: stdin, stdout: out, stderr: newTermSafe(stderr), rawStderr: stderr}
@@ -101,12 +120,18 @@ func run(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.
 		err = env.eval(args)
 	case "sweep":
 		err = env.sweep(args)
+	case "merge":
+		err = env.merge(args)
 	case "report":
 		err = env.report(args)
 	case "export":
 		err = env.export(args)
 	case "pd":
 		err = env.pd(args)
+	case "trials":
+		err = env.trials(args)
+	case "coverage":
+		err = env.coverage(args)
 	case "demos":
 		err = env.demos(args)
 	case "blindzones":

@@ -85,16 +85,7 @@ func explainIO(err error) error {
 // read (ref, when it is a file) or each other. Empty outputs are unset
 // flags.
 func checkOutputs(ref string, outs map[string]string) error {
-	same := func(a, b string) bool {
-		fa, ea := os.Stat(a)
-		fb, eb := os.Stat(b)
-		if ea == nil && eb == nil {
-			return os.SameFile(fa, fb)
-		}
-		aa, e1 := filepath.Abs(a)
-		ab, e2 := filepath.Abs(b)
-		return e1 == nil && e2 == nil && aa == ab
-	}
+	same := sameFile
 	isFile := ref != "-" && !strings.HasPrefix(ref, "demo:") && !scenarios.IsLink(ref)
 	seen := map[string]string{}
 	for flag, path := range outs {
@@ -112,4 +103,17 @@ func checkOutputs(ref string, outs map[string]string) error {
 		seen[flag] = path
 	}
 	return nil
+}
+
+// sameFile reports whether a and b name one file (or one path, when
+// either does not exist).
+func sameFile(a, b string) bool {
+	fa, ea := os.Stat(a)
+	fb, eb := os.Stat(b)
+	if ea == nil && eb == nil {
+		return os.SameFile(fa, fb)
+	}
+	aa, e1 := filepath.Abs(a)
+	ab, e2 := filepath.Abs(b)
+	return e1 == nil && e2 == nil && aa == ab
 }

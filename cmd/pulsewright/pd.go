@@ -10,6 +10,7 @@ import (
 	"text/tabwriter"
 
 	"github.com/pulsewright/pulsewright/dsp"
+	"github.com/pulsewright/pulsewright/scenarios"
 	"github.com/pulsewright/pulsewright/server"
 )
 
@@ -27,6 +28,7 @@ type pdArgs struct {
 	refSNR     float64 // dB
 	csv        bool
 	html       string
+	units      scenarios.Units // of the table's ranges (the CSV and HTML keep SI)
 }
 
 func (e *env) pd(args []string) error {
@@ -95,18 +97,18 @@ func (e *env) pd(args []string) error {
 	default:
 		fmt.Fprintln(e.stdout, title)
 		for _, l := range lines {
-			fmt.Fprintln(e.stdout, l)
+			fmt.Fprintln(e.stdout, a.units.Restate(l))
 		}
 		fmt.Fprintln(e.stdout)
 		tw := tabwriter.NewWriter(e.stdout, 0, 0, 2, ' ', tabwriter.AlignRight)
 		if a.byRange {
-			fmt.Fprintln(tw, "range (m)\tSNR (dB)\tPd\t")
+			fmt.Fprintf(tw, "range (%s)\tSNR (dB)\tPd\t\n", a.units.Range)
 		} else {
 			fmt.Fprintln(tw, "SNR (dB)\tPd\t")
 		}
 		for _, r := range rows {
 			if a.byRange {
-				fmt.Fprintf(tw, "%.1f\t%.2f\t%s\t\n", r.x, r.snrDB, fmtPd(r.pd))
+				fmt.Fprintf(tw, "%s\t%.2f\t%s\t\n", a.units.Number(scenarios.QRange, r.x, 1), r.snrDB, fmtPd(r.pd))
 			} else {
 				fmt.Fprintf(tw, "%.2f\t%s\t\n", r.snrDB, fmtPd(r.pd))
 			}
@@ -150,6 +152,7 @@ func (e *env) parsePd(args []string) (*pdArgs, error) {
 	refSNR := fs.Float64("ref-snr-db", math.NaN(), "SNR per pulse (dB) at --ref-range-m")
 	asCSV := fs.Bool("csv", false, "write CSV instead of a table")
 	html := fs.String("html", "", "also write a self-contained HTML page with the curve")
+	unitsText := unitsFlag(fs)
 	pos, err := parseFlags(fs, args)
 	if err != nil {
 		return nil, err
@@ -161,6 +164,9 @@ func (e *env) parsePd(args []string) (*pdArgs, error) {
 		return usageError{fmt.Sprintf("--%s %v out of range: want %s", flag, v, want)}
 	}
 	a := &pdArgs{pdRequired: *pdReq, csv: *asCSV, html: *html}
+	if a.units, err = parseUnitsFlag(*unitsText, !*asCSV, "it applies to the table; --csv keeps SI"); err != nil {
+		return nil, err
+	}
 	a.det = dsp.Detector{Pfa: *pfa, Pulses: *pulses, Swerling: *swerling, CFARCells: *cells, OSRank: *rank}
 	switch *integ {
 	case "noncoherent":

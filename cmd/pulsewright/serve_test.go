@@ -29,7 +29,17 @@ import (
 //
 // With PULSEWRIGHT_TEST_RUN set (arguments separated by newlines), it
 // runs that command line as main does, signals included.
+//
+// With PULSEWRIGHT_TEST_ARGV=1, it runs its own command line as main
+// does: the sharding tests give this binary to deploy/local/run-shards.sh
+// as the program.
 func TestMain(m *testing.M) {
+	if os.Getenv("PULSEWRIGHT_TEST_ARGV") == "1" {
+		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
+		code := run(ctx, os.Args[1:], os.Stdin, os.Stdout, os.Stderr)
+		stop()
+		os.Exit(code)
+	}
 	if args := os.Getenv("PULSEWRIGHT_TEST_RUN"); args != "" {
 		ctx, stop := signal.NotifyContext(context.Background(), os.Interrupt, syscall.SIGTERM)
 		code := run(ctx, strings.Split(args, "\n"), os.Stdin, os.Stdout, os.Stderr)

@@ -2,13 +2,16 @@ package main
 
 import (
 	"context"
+	"crypto/sha256"
 	"encoding/csv"
+	"encoding/hex"
 	"errors"
 	"fmt"
 	"io"
 	"os"
 	"runtime"
 	"strings"
+	"sync"
 	"time"
 
 	"github.com/pulsewright/pulsewright/scenarios"
@@ -29,6 +32,7 @@ func (e *env) sweep(args []string) error {
 	html := fs.String("html", "", "also write a self-contained HTML page of margin against the swept value")
 	failIf := fs.String("fail-if-masked", "", "exit 3 when the target with this id is detected at no point")
 	jobs := fs.Int("jobs", 0, "points evaluated at once (0: one per core)")
+	shardFlag := fs.String("shard", "", "K/N: compute only shard K of N (points i with i mod N = K); join the shards with merge")
 	pos, err := parseFlags(fs, args)
 	if err != nil {
 		return err
@@ -38,6 +42,21 @@ func (e *env) sweep(args []string) error {
 	}
 	if *jobs < 0 {
 		return usageError{fmt.Sprintf("--jobs %d is negative", *jobs)}
+	}
+	var shard *scenarios.Shard
+	if *shardFlag != "" {
+		sh, err := scenarios.ParseShard("--shard", *shardFlag)
+		if err != nil {
+			return err
+		}
+		shard = &sh
+		// Both decide on the whole grid, which one shard does not see.
+		if *html != "" {
+			return usageError{"--html draws the whole grid and cannot be combined with --shard; merge the shards' CSV files"}
+		}
+		if *failIf != "" {
+			return usageError{"--fail-if-masked decides on the whole grid and cannot be combined with --shard; give it to merge instead"}
+		}
 	}
 	// The grid is counted, with overflow checks, before anything else.
 	if _, err := scenarios.CountAxes(sets); err != nil {
@@ -90,6 +109,11 @@ func (e *env) sweep(args []string) error {
 		w = outF
 	}
 	sw := newSweepWriter(w, g, ids)
+	if shard != nil {
+		if sw.stamp, err = sweepStamp(g, *shard); err != nil {
+			return err
+		}
+	}
 	if err := sw.header(); err != nil {
 		return fmt.Errorf("write csv: %w", err)
 	}
@@ -97,10 +121,15 @@ func (e *env) sweep(args []string) error {
 	if workers == 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	bar := newProgress(e.rawStderr, n)
+	sh := scenarios.Whole
+	if shard != nil {
+		sh = *shard
+	}
+	mine := sh.Len(n)
+	bar := newProgress(e.rawStderr, mine)
 	var points []scenarios.Point
 	detected := false
-	runErr := g.Run(e.ctx, workers, func(p scenarios.Point) error {
+	runErr := g.RunShard(e.ctx, sh, workers, func(p scenarios.Point) error {
 		points = append(points, p)
 		if t := findTarget(p.Report, *failIf); t != nil && t.Status == scenarios.StatusDetected {
 			detected = true
@@ -126,7 +155,7 @@ func (e *env) sweep(args []string) error {
 	}
 	switch {
 	case interrupted:
-		return statusError{exitInterrupted, fmt.Sprintf("sweep interrupted: %d of %d points written", len(points), n)}
+		return statusError{exitInterrupted, fmt.Sprintf("sweep interrupted: %d of %d points written", len(points), mine)}
 	case runErr != nil:
 		return runErr
 	case *failIf != "" && !detected:
@@ -161,7 +190,42 @@ type sweepWriter struct {
 	g      *scenarios.Grid
 	ids    []string
 	trains bool // pulse trains: add each target's integrated SNR and apparent range rate
+	// stamp, when not nil, is the shard line written after the engine's.
+	stamp *scenarios.ShardStamp
 }
+
+// sweepStamp identifies shard sh of the grid g for merge.
+func sweepStamp(g *scenarios.Grid, sh scenarios.Shard) (*scenarios.ShardStamp, error) {
+	total, err := g.Count()
+	if err != nil {
+		return nil, err
+	}
+	h, err := scenarios.ScenarioHash(g.Base)
+	if err != nil {
+		return nil, fmt.Errorf("sweep: %w", err)
+	}
+	return &scenarios.ShardStamp{Shard: sh, Command: "sweep", Total: total, Unit: "points", Scenario: h, Grid: g.Hash(), Build: buildHash()}, nil
+}
+
+// buildHash identifies the running executable by the hash of its file
+// (scenarios.ShardStamp.Build), scenarios.UnknownBuild when it cannot be
+// read.
+var buildHash = sync.OnceValue(func() string {
+	exe, err := os.Executable()
+	if err != nil {
+		return scenarios.UnknownBuild
+	}
+	f, err := os.Open(exe)
+	if err != nil {
+		return scenarios.UnknownBuild
+	}
+	defer f.Close()
+	h := sha256.New()
+	if _, err := io.Copy(h, f); err != nil {
+		return scenarios.UnknownBuild
+	}
+	return "sha256:" + hex.EncodeToString(h.Sum(nil))
+})
 
 func newSweepWriter(w io.Writer, g *scenarios.Grid, ids []string) *sweepWriter {
 	trains := g.Base.Radar.Pulses > 1
@@ -176,6 +240,11 @@ func newSweepWriter(w io.Writer, g *scenarios.Grid, ids []string) *sweepWriter {
 func (s *sweepWriter) header() error {
 	if _, err := io.WriteString(s.w, scenarios.CSVComment()); err != nil {
 		return err
+	}
+	if s.stamp != nil {
+		if _, err := io.WriteString(s.w, s.stamp.Line()); err != nil {
+			return err
+		}
 	}
 	var h []string
 	for _, a := range s.g.Axes {

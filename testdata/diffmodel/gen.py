@@ -17,6 +17,7 @@ import time
 import numpy as np
 import scipy
 
+import clutter
 import model
 
 SEED = 20261202
@@ -431,7 +432,36 @@ def integrate_sw1(pd_steady, mean_snr):
     return v
 
 
+N_CLUTTER = 48
+
+
+def clutter_expect(sc):
+    wf, ts, rep = clutter.clutter_scene(sc)
+    return {"waveform": wf, "targets": ts, **rep}
+
+
+def write_clutter():
+    """The clutter cases (clutter.json): their own seed and file, so that
+    `gen.py clutter` regenerates them alone."""
+    clutter.check()
+    rng = np.random.default_rng(SEED + 15)
+    t0 = time.time()
+    cases = []
+    for i in range(N_CLUTTER):
+        sc = clutter.clutter_case(rng, i)
+        cases.append({"scenario": sc, "expected": clutter_expect(sc)})
+    out = {"generator": "testdata/diffmodel/gen.py (clutter.py)", "seed": SEED + 15, "numpy": np.__version__,
+           "scipy": scipy.__version__, "cases": cases}
+    with open("clutter.json", "w") as f:
+        json.dump(out, f, separators=(",", ":"))
+        f.write("\n")
+    print(len(cases), "clutter cases in %.0f s" % (time.time() - t0), file=sys.stderr)
+
+
 def main():
+    if sys.argv[1:] == ["clutter"]:
+        write_clutter()
+        return
     self_check()
     rng = np.random.default_rng(SEED)
     cases = []
@@ -453,6 +483,8 @@ def main():
         json.dump(out, f, separators=(",", ":"))
         f.write("\n")
     print(len(cases), "cases in %.0f s" % (time.time() - t0), file=sys.stderr)
+    if not only:
+        write_clutter()
 
 
 if __name__ == "__main__":

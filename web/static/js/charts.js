@@ -6,6 +6,7 @@
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
 import { FastLayer, layerSeries, tooltipAbove } from './fastlayer.js';
+import { axisPatch, axisUnits, format, niceTicks, restate, signed } from './units.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
 const SecondaryMs = 100; // plots other than the profile redraw at most this often while frames stream
@@ -97,6 +98,7 @@ export class Plots {
     this.timers = {}; // chart name → timer that draws what it holds back
     this.deferred = new Set(); // chart names to draw once the profile's new pixels are out
     this.cats = {}; // heat map name → {x, y}: the cell centres of its category axes
+    this.decorators = {}; // chart name → fn(option): tooltips of charts added by other modules (schedule.js)
     this.train = false;
 
     // Echo and profile share the range axis: zooming one zooms the other.
@@ -105,6 +107,7 @@ export class Plots {
     echarts.connect('pw-range');
 
     this.charts.profile.on('datazoom', () => this.viewChanged());
+    for (const c of Object.values(this.charts)) c.on('datazoom', () => niceTicks(c));
     const ro = new ResizeObserver(() => {
       for (const c of Object.values(this.charts)) c.resize();
       this.viewChanged();
@@ -230,12 +233,16 @@ export class Plots {
     const chart = this.charts[name];
     const t0 = performance.now();
     this.drawnAt[name] = t0;
-    if (entry.replace) spaceAxisLabels(entry.option, chart.getWidth());
+    if (entry.replace) {
+      spaceAxisLabels(entry.option, chart.getWidth());
+      axisUnits(entry.option);
+    }
     if (this.fasts[name] && entry.replace) {
       this.fasts[name].setStyles(entry.option);
       layerSeries(entry.option);
     }
     chart.setOption(entry.option, { notMerge: !!entry.replace });
+    niceTicks(chart); // round ticks in the user's units; a no-op while they hold
     // Paint now, inside this animation frame, instead of waiting for the
     // renderer's own loop to notice on the next one.
     chart.getZr().flush();
@@ -249,6 +256,7 @@ export class Plots {
   }
 
   hidden(name) {
+    if (!this.els[name]) return true; // a pane without a chart of that name (the CPI maps)
     const pane = this.els[name].closest('.pane');
     return !!pane && !pane.classList.contains('on');
   }
@@ -284,6 +292,18 @@ export class Plots {
     if (this.selected(document.getElementById('panel-right')) === 'rdcuts') this.select('response');
   }
 
+  // Redraw the range and range-rate axes of every drawn chart in the
+  // units now chosen (units.js); options held back get them when drawn.
+  applyUnits() {
+    for (const chart of Object.values(this.charts)) {
+      const o = chart.getOption();
+      if (o && (o.xAxis || o.yAxis)) {
+        chart.setOption(axisPatch(o));
+        niceTicks(chart);
+      }
+    }
+  }
+
   // Forget the selected map cell: the cuts pane goes back to its hint.
   clearCell() {
     this.charts.rdcuts.clear();
@@ -294,6 +314,7 @@ export class Plots {
   // Tooltips of the heat maps, made here (the page runs under a strict
   // CSP, so options carry no functions).
   decorate(name, option) {
+    if (this.decorators[name]) return this.decorators[name](option);
     if (name !== 'rdmap' && name !== 'ambiguity') return;
     const x = option.xAxis && option.xAxis[0] && option.xAxis[0].data;
     const y = option.yAxis && option.yAxis[0] && option.yAxis[0].data;
@@ -309,11 +330,11 @@ export class Plots {
       const v = c.y[p.data[1]];
       const lambda = this.wavelength();
       const fd = lambda > 0 ? (-2 * v) / lambda : NaN;
-      return `${num(r, 1)} m · ${num(v, 1)} m/s · ${num(fd, 0)} Hz\n${num(p.data[2], 1)} dB re noise`;
+      return `${format('range', r, 1)} · ${signed(v, 1)} · ${num(fd, 0)} Hz\n${num(p.data[2], 1)} dB re noise`;
     }
     if (p.seriesId === 'markers' && p.data) {
       const d = p.data;
-      return `${plain(d.id)} · ${String(d.status).replace(/_/g, ' ')}\n${num(d.value[0], 1)} m · ${num(d.value[1], 1)} m/s\n${wrap(d.reason || '')}`;
+      return `${plain(d.id)} · ${String(d.status).replace(/_/g, ' ')}\n${format('range', d.value[0], 1)} · ${signed(d.value[1], 1)}\n${wrap(restate(d.reason || ''))}`;
     }
     return 'selected cell: its cuts are in the “Map cuts” tab';
   }
@@ -321,7 +342,7 @@ export class Plots {
   ambiguityTip(p) {
     if (!Array.isArray(p.data)) return '';
     const c = this.cats.ambiguity;
-    return `delay ${num(c.x[p.data[0]], 1)} m · Doppler ${num(c.y[p.data[1]], 3)} kHz\n${num(p.data[2], 1)} dB re peak`;
+    return `delay ${format('range', c.x[p.data[0]], 1)} · Doppler ${num(c.y[p.data[1]], 3)} kHz\n${num(p.data[2], 1)} dB re peak`;
   }
 
   // A click in the map asks for cuts through that cell.

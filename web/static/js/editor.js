@@ -4,10 +4,12 @@
 
 import { $$, getPath, h, setPath } from './dom.js';
 import {
-  convertTarget, detectorFields, isPhaseCode, sciDisplay, kindShort, kindTitle, levelName, levelShort, detectorKinds, fluctuations, fromDisplay, levelKey, levelUnit,
+  convertTarget, detectorFields, isPhaseCode, sciDisplay, kindShort, kindTitle, detectorKinds, fluctuations, fromDisplay, levelKey,
   newWaveform, radarFields, targetKinds, toDisplay, uniqueId, waveformKinds, windowKinds,
 } from './schema.js';
 import { describeFields, fieldName, pdText, statusHelp, statusLabel } from './words.js';
+import { clutterFields, levelOf } from './clutter.js';
+import { fieldText, notValue, parse, qtyOf, rangeError, restate, unit, unitLabel, units } from './units.js';
 
 // setField writes a form field into the scenario. A detector field of a
 // scene that left the detector to its default writes the default kind
@@ -61,6 +63,7 @@ export class Editor {
       const nums = parts.map((p) => fromDisplay(p, 1, false));
       return nums.some((n) => Number.isNaN(n)) ? NaN : nums;
     }
+    if (el.dataset.qty) return parse(el.dataset.qty, el.value);
     return fromDisplay(el.value, Number(el.dataset.scale || 1), type === 'int');
   }
 
@@ -72,7 +75,7 @@ export class Editor {
     if (typeof v === 'number' && Number.isNaN(v) || Array.isArray(v) && v.some(Number.isNaN)) {
       this.setLocalError(path, el.dataset.type === 'phases'
         ? `“${el.value.trim()}” is not a list of numbers (degrees, separated by commas or spaces)`
-        : `“${el.value.trim()}” is not a number`);
+        : el.dataset.qty ? notValue(el.dataset.qty, el.value) : `“${el.value.trim()}” is not a number`);
       return;
     }
     this.setLocalError(path, '');
@@ -189,7 +192,7 @@ export class Editor {
   nudge(i, dB) {
     const t = (this.store.scenario.targets || [])[i];
     if (!t) return;
-    const key = levelKey(t.kind);
+    const key = levelKey(t.kind, t);
     this.store.update((s) => {
       const v = (s.targets[i][key] ?? 0) + dB;
       s.targets[i][key] = Math.round(v * 10) / 10;
@@ -243,7 +246,7 @@ export class Editor {
     const t = s.targets || [];
     const rx = s.receiver || {};
     return JSON.stringify([s.waveform && s.waveform.kind, rx.window && rx.window.kind, (rx.detector && rx.detector.kind) || 'ca_cfar',
-      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => x.kind), this.selected]);
+      rx.doppler_window && rx.doppler_window.kind, rx.filter, t.map((x) => `${x.kind}:${levelKey(x.kind, x)}`), this.selected]);
   }
 
   syncValues(root, s) {
@@ -256,7 +259,7 @@ export class Editor {
         continue;
       }
       const text = el.dataset.type === 'phases' ? (v || []).join(', ')
-        : el.dataset.sci ? sciDisplay(v) : toDisplay(v, Number(el.dataset.scale || 1));
+        : el.dataset.qty ? fieldText(el.dataset.qty, v, Number(el.dataset.digits) || 12) : el.dataset.sci ? sciDisplay(v) : toDisplay(v, Number(el.dataset.scale || 1));
       if (el.value !== text) {
         el.value = text;
         if (this.localErrors.has(el.dataset.path)) this.setLocalError(el.dataset.path, '');
@@ -266,6 +269,8 @@ export class Editor {
 
   // A labelled input for field fd of the object at base.
   field(s, base, fd) {
+    if (!fd.qty && qtyOf(fd.key, fd.unit)) fd = { ...fd, qty: qtyOf(fd.key, fd.unit) };
+    if (fd.qty) fd = { ...fd, unit: unitLabel(fd.qty), hint: fd.hint || (fd.def !== undefined ? fieldText(fd.qty, fd.def) : '') };
     const path = base ? `${base}.${fd.key}` : fd.key;
     const v = getPath(s, path);
     const hint = fd.hint || (fd.def !== undefined ? toDisplay(fd.def, fd.scale) : '');
@@ -289,6 +294,10 @@ export class Editor {
         placeholder: fd.sci && fd.def !== undefined ? sciDisplay(fd.def) : hint, value: fd.sci ? sciDisplay(v) : toDisplay(v, fd.scale),
       });
       if (fd.sci) input.dataset.sci = '1';
+      if (fd.qty) {
+        input.dataset.qty = fd.qty;
+        input.value = fieldText(fd.qty, v);
+      }
     }
     input.id = `f-${path.replace(/[^\w]/g, '_')}`;
     return h('div', { class: fd.wide ? 'field wide' : 'field' },
@@ -363,24 +372,26 @@ export class Editor {
   }
 
   targetRow(t, i) {
-    const lk = levelKey(t.kind);
-    const num = (key, scale = 1, cls = '') => h('input', {
-      type: 'text', inputmode: 'decimal', autocomplete: 'off', class: cls, value: toDisplay(t[key], scale),
-      dataset: { path: `targets[${i}].${key}`, type: 'num', scale: String(scale), optional: '1' },
+    const lk = levelKey(t.kind, t);
+    const lv = levelOf(t);
+    const num = (key, qty = '') => h('input', {
+      type: 'text', inputmode: 'decimal', autocomplete: 'off', value: qty ? fieldText(qty, t[key], 7) : toDisplay(t[key], 1),
+      // The table's narrow cells show 7 digits; the form below shows all.
+      dataset: { path: `targets[${i}].${key}`, type: 'num', scale: '1', optional: '1', qty: qty || undefined, digits: qty ? '7' : undefined },
       'aria-label': `${t.id} ${key}`,
     });
     const rep = this.reportTargets.length === (this.store.scenario.targets || []).length ? this.reportTargets[i] : this.status.get(t.id);
     const st = rep ? rep.status : '';
     const level = num(lk);
     level.dataset.level = String(i);
-    level.title = `${levelName[t.kind]} in ${levelUnit[t.kind]}: wheel, or ↑/↓ while this field has the focus, nudges it by 1 dB (Shift: 0.1 dB)`;
-    level.setAttribute('aria-label', `${t.id} ${levelName[t.kind]} (${levelUnit[t.kind]})`);
-    const range = num(t.kind === 'point' ? 'range_m' : 'range_start_m');
-    range.setAttribute('aria-label', `${t.id} ${t.kind === 'point' ? 'range' : 'near edge'} (m)`);
-    range.title = t.kind === 'point' ? 'Range, m' : 'Near edge of the target, m (the far edge is in the form below)';
-    const rate = num('range_rate_mps');
-    rate.setAttribute('aria-label', `${t.id} range rate (m/s)`);
-    rate.title = 'Range rate, m/s (negative: closing)';
+    level.title = `${lv.name} in ${lv.unit}: wheel, or ↑/↓ while this field has the focus, nudges it by 1 dB (Shift: 0.1 dB)`;
+    level.setAttribute('aria-label', `${t.id} ${lv.name} (${lv.unit})`);
+    const range = num(t.kind === 'point' ? 'range_m' : 'range_start_m', 'range');
+    range.setAttribute('aria-label', `${t.id} ${t.kind === 'point' ? 'range' : 'near edge'} (${unitLabel('range')})`);
+    range.title = t.kind === 'point' ? `Range, ${unitLabel('range')}` : `Near edge of the target, ${unitLabel('range')} (the far edge is in the form below)`;
+    const rate = num('range_rate_mps', 'rate');
+    rate.setAttribute('aria-label', `${t.id} range rate (${unitLabel('rate')})`);
+    rate.title = `Range rate, ${unitLabel('rate')}`;
     return h('tr', { class: i === this.selected ? 'sel' : '', dataset: { row: String(i) } },
       h('td', {}, h('span', { class: `dot st-${st || 'none'}`, title: st ? statusHelp(st) : 'not evaluated' })),
       h('td', {}, h('input', { type: 'text', class: 'id', value: t.id, autocomplete: 'off', spellcheck: 'false', title: t.id,
@@ -388,7 +399,7 @@ export class Editor {
       h('td', {}, h('select', { class: 'kind', dataset: { action: 'target-kind', index: String(i), path: `targets[${i}].kind`, type: 'kind' }, 'aria-label': `${t.id} kind`, title: kindTitle[t.kind] },
         targetKinds.map((k) => h('option', { value: k, selected: k === t.kind, title: kindTitle[k] }, kindShort[k])))),
       h('td', {}, range),
-      h('td', { class: this.mixedKinds ? 'with-unit' : '' }, level, this.mixedKinds ? h('span', { class: 'cell-unit' }, levelUnit[t.kind]) : null),
+      h('td', { class: this.mixedKinds ? 'with-unit' : '' }, level, this.mixedKinds ? h('span', { class: 'cell-unit' }, lv.unit) : null),
       h('td', {}, rate),
       h('td', { class: 'acts' },
         h('button', { type: 'button', class: 'icon', title: 'Duplicate', dataset: { act: 'dup', index: String(i) } }, '+'),
@@ -402,17 +413,17 @@ export class Editor {
     if (!t) return h('p', { class: 'muted' }, 'No targets. Add one to start.');
     const base = `targets[${i}]`;
     const fds = t.kind === 'point'
-      ? [{ key: 'range_m', label: 'Range', unit: 'm' }, { key: 'rcs_dbsm', label: 'RCS', unit: 'dBsm' },
-        { key: 'range_rate_mps', label: 'Range rate', unit: 'm/s', def: 0 },
+      ? [{ key: 'range_m', label: 'Range', qty: 'range' }, { key: 'rcs_dbsm', label: 'RCS', unit: 'dBsm' },
+        { key: 'range_rate_mps', label: 'Range rate', qty: 'rate', def: 0 },
         { key: 'fluctuation', label: 'Fluctuation', type: 'select', options: fluctuations, def: 'none' }]
-      : [{ key: 'range_start_m', label: 'Near edge', unit: 'm' }, { key: 'range_stop_m', label: 'Far edge', unit: 'm' },
-        { key: levelKey(t.kind), label: t.kind === 'extended' ? 'RCS per metre' : 'Reflectivity', unit: levelUnit[t.kind] },
-        { key: 'range_rate_mps', label: 'Range rate', unit: 'm/s', def: 0 },
-        { key: 'velocity_spread_mps', label: 'Velocity spread', unit: 'm/s rms', def: 0 }];
+      : [{ key: 'range_start_m', label: 'Near edge', qty: 'range' }, { key: 'range_stop_m', label: 'Far edge', qty: 'range' },
+        { key: levelKey(t.kind, t), label: levelOf(t).short === 'Refl.' ? 'Reflectivity' : levelOf(t).name, unit: levelOf(t).unit },
+        { key: 'range_rate_mps', label: 'Range rate', qty: 'rate', def: 0 },
+        { key: 'velocity_spread_mps', label: 'Velocity spread (rms)', qty: 'speed', def: 0 }];
     return h('div', { class: 'detail' },
       h('div', { class: 'detail-head' }, `Target “${t.id}” · ${kindTitle[t.kind]}`),
       h('div', { class: 'err block', dataset: { errFor: base } }),
-      h('div', { class: 'grid' }, fds.map((fd) => this.field(s, base, { scale: 1, type: 'num', ...fd }))));
+      h('div', { class: 'grid' }, fds.map((fd) => this.field(s, base, { scale: 1, type: 'num', ...fd })), clutterFields(this, s, i, t)));
   }
 
   renderTargets(s, full) {
@@ -429,18 +440,18 @@ export class Editor {
       for (const input of $$('input.id', root)) input.title = input.value;
       return;
     }
-    const kinds = [...new Set(targets.map((t) => t.kind))];
+    const kinds = [...new Set(targets.map((t) => levelOf(t).unit))];
     this.mixedKinds = kinds.length > 1;
-    const one = kinds.length === 1 ? kinds[0] : null;
+    const one = kinds.length === 1 ? levelOf(targets[0]) : null;
     const head = (name, unit, title) => h('th', { title }, h('span', { class: 'th-name' }, name), h('span', { class: 'th-unit' }, unit));
     root.replaceChildren(
       h('table', { class: 'targets' },
         h('thead', {}, h('tr', {},
           h('th', {}, ''), head('Target', '', 'Target id'), head('Kind', '', 'point, extended (ext.) or volume (vol.)'),
-          head('Range', '(m)', 'Range of a point target, near edge of an extended or volume target, in metres'),
-          one ? head(levelShort[one], `(${levelUnit[one]})`, `${levelName[one]} in ${levelUnit[one]}`)
+          head('Range', `(${unitLabel('range')})`, `Range of a point target, near edge of an extended or volume target, in ${unitLabel('range')}`),
+          one ? head(one.short, `(${one.unit})`, `${one.name} in ${one.unit}`)
             : head('Level', '(per row)', 'RCS of a point target (dBsm), RCS per metre of an extended one (dBsm/m), reflectivity of a volume (dBZ)'),
-          head('Rate', '(m/s)', 'Range rate in metres per second; negative: closing'), h('th', {}, ''))),
+          head(units().rate === 'closing' ? 'Closing' : 'Rate', `(${unit('rate')})`, `Range rate in ${unit('rate')}, positive when ${units().rate === 'closing' ? 'closing (the range shrinks)' : 'opening (the range grows)'}`), h('th', {}, ''))),
         h('tbody', {}, targets.map((t, i) => this.targetRow(t, i)))),
       h('div', { class: 'row-actions' },
         h('button', { type: 'button', dataset: { act: 'add' } }, '+ Add target'),
@@ -470,7 +481,7 @@ export class Editor {
       if (!dot) return;
       const st = rep ? rep.status : 'none';
       dot.className = `dot st-${st}`;
-      dot.title = rep ? `${statusLabel(st)}${rep.pd !== undefined ? ` (Pd ${pdText(rep.pd)})` : ''}: ${rep.reason}` : 'not evaluated';
+      dot.title = rep ? `${statusLabel(st)}${rep.pd !== undefined ? ` (Pd ${pdText(rep.pd)})` : ''}: ${restate(rep.reason)}` : 'not evaluated';
     });
   }
 
@@ -519,7 +530,8 @@ export class Editor {
         orphans.push(describeFields([fe], this.store.scenario));
         continue;
       }
-      const text = path === fe.path ? inUnits(fe.message, slots[0]) : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
+      const qin = path === fe.path && $$(`[data-path="${CSS.escape(fe.path)}"][data-qty]`)[0];
+      const text = qin ? rangeError(qin.dataset.qty, fe.message, getPath(this.store.scenario, fe.path)) : path === fe.path ? inUnits(fe.message, slots[0]) : `${fe.path.slice(path.length).replace(/^\./, '')}: ${fe.message}`;
       for (const slot of slots) {
         slot.textContent = slot.textContent ? `${slot.textContent}; ${text}` : text;
         // Outline the slot's own input only when the message is about it:
@@ -565,6 +577,6 @@ function inUnits(msg, slot) {
     if (unit.textContent === 'm' && Math.abs(v) >= 100000) return `${Number((v / 1000).toPrecision(6))} km`;
     return `${Number(v.toPrecision(6))} ${unit.textContent}`;
   };
-  const rest = m[4].replace(/(above|at most) (-?[\d.]+(?:e[+-]?\d+)?)/g, (_, w, x) => `${w} ${show(x)}`);
+  const rest = m[4].replace(/(above|at most|range|…) (-?[\d.]+(?:e[+-]?\d+)?)/g, (_, w, x) => `${w} ${show(x)}`);
   return `${show(m[1])} ${m[2]} ${show(m[3])}${rest}`;
 }

@@ -3,7 +3,9 @@
 
 import { h } from './dom.js';
 import { waveformKinds } from './schema.js';
+import { clutterNums, clutterSummary } from './clutter.js';
 import { pdText, statusHelp, statusLabel } from './words.js';
+import { format, restate, unit } from './units.js';
 
 const fmt = (v, digits = 1) => (v === undefined || v === null || !Number.isFinite(v) ? '—' : v.toFixed(digits));
 const eng = (v, unit) => {
@@ -12,7 +14,9 @@ const eng = (v, unit) => {
   const [s, p] = a >= 1e9 ? [1e9, 'G'] : a >= 1e6 ? [1e6, 'M'] : a >= 1e3 ? [1e3, 'k'] : a >= 1 || a === 0 ? [1, ''] : a >= 1e-3 ? [1e-3, 'm'] : a >= 1e-6 ? [1e-6, 'µ'] : [1e-9, 'n'];
   return `${Number((v / s).toPrecision(4))} ${p}${unit}`;
 };
-const metres = (v) => (v === undefined || !Number.isFinite(v) ? '—' : v >= 10000 ? `${(v / 1000).toFixed(2)} km` : `${v.toFixed(v < 10 ? 2 : 1)} m`);
+// A range in the user's unit (units.js); in metres, km from 10 km up.
+const metres = (v) => (v === undefined || !Number.isFinite(v) ? '—'
+  : unit('range') === 'm' && v >= 10000 ? `${(v / 1000).toFixed(2)} km` : format('range', v, v < 10 ? 2 : 1));
 
 // Rows: label, getter, formatter, and whether larger is better (for the
 // comparison arrow).
@@ -28,9 +32,9 @@ const waveformRows = [
   ['Mismatch loss', (w) => w.mismatch_loss_db, (v) => `${fmt(v, 2)} dB`, false],
   ['Blind range', (w) => w.blind_range_m, metres, false],
   ['Unambiguous range', (w) => w.unambiguous_range_m, metres, true],
-  ['Unambiguous velocity', (w) => w.unambiguous_velocity_mps, (v) => `±${fmt(v)} m/s`, true],
+  ['Unambiguous velocity', (w) => w.unambiguous_velocity_mps, (v) => `±${format('speed', v, 1)}`, true],
   ['Doppler resolution', (w) => w.doppler_resolution_hz, (v) => eng(v, 'Hz')],
-  ['Velocity resolution', (w) => w.velocity_resolution_mps, (v) => `${fmt(v, 2)} m/s`],
+  ['Velocity resolution', (w) => w.velocity_resolution_mps, (v) => format('speed', v, 2)],
 ];
 
 // What the two SNR-like numbers on a card mean.
@@ -80,8 +84,9 @@ export function renderFigures(root, report, reference, computeMs) {
         t.masked_by ? h('span', {}, `masked by ${t.masked_by}`) : null,
         t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null,
         t.doppler_hz ? h('span', { class: 'dop', title: 'Doppler shift of the echo, and the shift of its compressed peak in range (range–Doppler coupling)' },
-          `Doppler ${t.doppler_hz > 0 ? '+' : ''}${eng(t.doppler_hz, 'Hz')} · peak shift ${t.range_shift_m > 0 ? '+' : ''}${fmt(t.range_shift_m, 2)} m`) : null),
-      h('div', { class: 'reason' }, t.reason || ''));
+          `Doppler ${t.doppler_hz > 0 ? '+' : ''}${eng(t.doppler_hz, 'Hz')} · peak shift ${t.range_shift_m > 0 ? '+' : ''}${format('range', t.range_shift_m, 2)}`) : null,
+        ...clutterNums(t)),
+      h('div', { class: 'reason' }, restate(t.reason || '')));
   });
 
   // replaceChildren would write an absent part (null) as the text "null".
@@ -91,8 +96,9 @@ export function renderFigures(root, report, reference, computeMs) {
     h('h3', {}, 'Targets'),
     (report.targets || []).length ? h('p', { class: 'muted small nums-help' }, NumbersHelp) : null,
     cards.length ? h('ul', { class: 'tcards' }, cards) : h('p', { class: 'muted' }, 'No targets in the scene.'),
+    clutterSummary(report),
     (report.warnings || []).length
-      ? h('div', { class: 'warnings' }, h('h3', {}, 'Warnings'), h('ul', {}, report.warnings.map((m) => h('li', {}, m))))
+      ? h('div', { class: 'warnings' }, h('h3', {}, 'Warnings'), h('ul', {}, report.warnings.map((m) => h('li', {}, restate(m)))))
       : null,
     computeMs !== undefined ? h('p', { class: 'muted small' }, `computed in ${fmt(computeMs, 1)} ms`) : null,
   ].filter(Boolean));

@@ -11,11 +11,14 @@ import { Store } from './store.js';
 import { initLibrary } from './library.js';
 import { initKeys } from './keys.js';
 import { initFocus } from './focus.js';
+import { initPdCurves } from './pdcurves.js';
 import { printablePNG } from './export.js';
 import { Staleness } from './stale.js';
 import { initCopyLink } from './copylink.js';
 import { Story } from './story.js';
 import { fieldName, pdText, statusLabel } from './words.js';
+import { onUnits, restate } from './units.js';
+import { initUnitsPick } from './unitspick.js';
 
 const DefaultDemo = 'harbour-skiff';
 
@@ -60,7 +63,7 @@ const session = new Session({ onFrame, onError, onStatus });
 const plots = new Plots({
   profile: $('#chart-profile'), echo: $('#chart-echo'), response: $('#chart-response'), ambiguity: $('#chart-ambiguity'),
   ambcuts: $('#chart-ambcuts'), rdmap: $('#chart-rdmap'), rdcuts: $('#chart-rdcuts'),
-  pulse: $('#chart-pulse'), filter: $('#chart-filter'),
+  pulse: $('#chart-pulse'), filter: $('#chart-filter'), pdcurves: $('#chart-pdcurves'),
 }, {
   onView: (range, width, mapWidth) => session.sendView(range, width, mapWidth),
   onDrag: (id, r) => editor.moveTo(id, r),
@@ -82,7 +85,11 @@ const plots = new Plots({
   onSettle: () => settle(),
 });
 const focusUI = initFocus({ plots, frame: () => lastFrame });
-window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, settled: () => settledId, focus: focusUI.focus };
+const pdCurves = initPdCurves({ plots, scenario: () => store.scenario });
+// Modules that add panels of their own (schedule.js) see each frame
+// before the plots apply it.
+const frameHooks = [];
+window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, settled: () => settledId, focus: focusUI.focus, onFrame: (fn) => frameHooks.push(fn) };
 
 // While a marker is dragged, the editor's forms and the story follow the
 // scene at most every FormsMs: re-rendering them on every step of the
@@ -196,8 +203,10 @@ function applyFrame() {
   if (shows !== null) shownVersion = shows;
   const t0 = performance.now();
   lastApplyAt = t0;
+  for (const fn of frameHooks) fn(f);
   plots.apply(f);
   focusUI.refresh();
+  pdCurves.refresh(f);
   const t1 = performance.now();
   if (session.sent.has(f.id) && f.id > lastErrorId) {
     editor.clearErrors();
@@ -268,8 +277,10 @@ function updateAddress(link) {
   shownLink = enc;
 }
 
+let lastErrorFields = null; // the server's field errors shown now, for a change of units
 function onError(msg) {
   rejected.add(msg.id);
+  lastErrorFields = msg.fields || null;
   const v = session.versionOf(msg.id);
   lastErrorId = msg.id;
   const first = (msg.fields || [])[0];
@@ -356,7 +367,7 @@ function hoverCard(hit) {
     + `SNR ${t.snr_db.toFixed(1)} dB` + (t.margin_db !== undefined ? ` · margin ${t.margin_db.toFixed(1)} dB` : '')
     + (t.masked_by ? ` · masked by ${t.masked_by}` : '');
   const reason = document.createElement('div');
-  reason.textContent = t.reason;
+  reason.textContent = restate(t.reason);
   const tip = document.createElement('div');
   tip.className = 'hc-tip';
   tip.textContent = 'drag to move · wheel to change RCS';
@@ -507,6 +518,24 @@ initLibrary({ store, notice, onOpen: () => { pushNextLink = true; } });
 // The footer names the engine, as reports and exports do.
 api.version().then((v) => { $('#engine').textContent = v.text; }).catch(() => {});
 initKeys({ store, editor, lastFrame: () => lastFrame, profile: $('#chart-profile') });
+
+// Units: the editor, the panels and the plots' axes follow a new choice.
+initUnitsPick($('#conn'));
+onUnits(() => {
+  editor.shape = '';
+  if (store.scenario) editor.render(store.scenario);
+  // The refusal of the current scene, restated beside its fields.
+  if (errorVersion === store.version && lastErrorFields) {
+    editor.showErrors(lastErrorFields);
+    const fe = lastErrorFields[0];
+    const slot = fe && fe.path && document.querySelector(`[data-err-for="${CSS.escape(fe.path)}"]`);
+    if (slot && slot.textContent) errorText = `${fieldName(fe.path, store.scenario)}: ${slot.textContent}`;
+  }
+  if (panelFrame) drawPanels();
+  plots.applyUnits();
+  story.render(store.scenario, lastFrame && lastFrame.report);
+  refreshStale();
+});
 
 // --- start ---
 

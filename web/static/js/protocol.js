@@ -4,7 +4,7 @@
 
 // Client → server message types.
 export const MsgScenario = 'scenario'; // {id, scenario}: a new edit, latest wins
-export const MsgView = 'view'; // {id, range_m: [a, b] | null, width_px, map_px}
+export const MsgView = 'view'; // {id, range_m: [a, b] | null, width_px, map_px, cpi_maps}
 export const MsgPin = 'pin'; // {id, scenario | null}: compare against a pinned scenario
 export const MsgCell = 'cell'; // {id, cell: {range_m, range_rate_mps} | null}: cuts through the range–Doppler map
 
@@ -24,14 +24,14 @@ export const SeriesReference = 'reference';
 export const SeriesMarkers = 'markers';
 
 // Target statuses of the report format.
-export const Statuses = ['detected', 'masked', 'too_weak', 'eclipsed', 'folded', 'out_of_window'];
+export const Statuses = ['detected', 'masked', 'too_weak', 'eclipsed', 'folded', 'out_of_window', 'clutter'];
 
 export function scenarioMsg(id, scenario) {
   return JSON.stringify({ type: MsgScenario, id, scenario });
 }
 
-export function viewMsg(id, rangeM, widthPx, mapPx) {
-  return JSON.stringify({ type: MsgView, id, range_m: rangeM, width_px: Math.round(widthPx), map_px: Math.round(mapPx || 0) });
+export function viewMsg(id, rangeM, widthPx, mapPx, cpiMaps = false) {
+  return JSON.stringify({ type: MsgView, id, range_m: rangeM, width_px: Math.round(widthPx), map_px: Math.round(mapPx || 0), cpi_maps: !!cpiMaps });
 }
 
 export function pinMsg(id, scenario) {

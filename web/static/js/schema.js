@@ -7,6 +7,8 @@ export const C = 299792458;
 
 // A field: path relative to its object, label, unit, scale, type
 // ('num' | 'int' | 'text' | 'select'), options, default shown as a hint.
+import { surfaceKey } from './clutter.js';
+
 const f = (key, label, unit = '', scale = 1, type = 'num', extra = {}) => ({ key, label, unit, scale, type, ...extra });
 
 export const radarFields = [
@@ -18,10 +20,11 @@ export const radarFields = [
   f('sample_rate_hz', 'Sample rate', 'MHz', 1e6, 'num', { hint: '2 × B' }),
   f('pri_s', 'PRI', 'µs', 1e-6, 'num', { def: 1e-3 }),
   f('pulses', 'Pulses', '', 1, 'int', { def: 1 }),
-  f('window_start_m', 'Window start', 'm', 1, 'num', { def: 0 }),
-  f('window_stop_m', 'Window stop', 'm', 1, 'num', { hint: 'c·PRI/2' }),
+  f('window_start_m', 'Window start', 'm', 1, 'num', { def: 0, qty: 'range' }),
+  f('window_stop_m', 'Window stop', 'm', 1, 'num', { hint: 'c·PRI/2', qty: 'range' }),
   f('beamwidth_az_deg', 'Beamwidth az', '°', 1, 'num', { def: 2 }),
   f('beamwidth_el_deg', 'Beamwidth el', '°', 1, 'num', { def: 2 }),
+  f('antenna_height_m', 'Antenna height', 'm', 1, 'num', { hint: 'none' }),
 ];
 
 const chip = f('chip_s', 'Chip length', 'µs', 1e-6);
@@ -155,8 +158,10 @@ export function sciDisplay(v) {
   return v.toExponential().replace(/\.?0+e/, 'e').replace('e+', 'e');
 }
 
-// The level field of a target kind and its unit.
-export function levelKey(kind) {
+// The level field of a target kind and its unit; an extended target t
+// may give σ⁰ or γ instead of its RCS per metre (clutter.js).
+export function levelKey(kind, t) {
+  if (kind === 'extended' && t) return surfaceKey(t);
   return kind === 'extended' ? 'rcs_dbsm_per_m' : kind === 'volume' ? 'reflectivity_dbz' : 'rcs_dbsm';
 }
 export const levelUnit = { point: 'dBsm', extended: 'dBsm/m', volume: 'dBZ' };

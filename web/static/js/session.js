@@ -103,6 +103,15 @@ export class Session {
     this.schedule();
   }
 
+  // Whether the page shows a PRF schedule's CPI maps (schedule.js): the
+  // server simulates and sends them only then.
+  showCPIMaps(on) {
+    if (this.cpiMaps === on) return;
+    this.cpiMaps = on;
+    this.dirty.view = true;
+    this.schedule();
+  }
+
   sendCell(cell) {
     this.cell = cell;
     this.dirty.cell = true;
@@ -130,7 +139,7 @@ export class Session {
     // The view and the pin go first, so that the edit's frame uses them.
     if (this.dirty.view) {
       this.dirty.view = false;
-      ws.send(viewMsg(this.nextId++, this.view.range, this.view.width, this.view.mapWidth));
+      ws.send(viewMsg(this.nextId++, this.view.range, this.view.width, this.view.mapWidth, this.cpiMaps));
     }
     if (this.dirty.cell) {
       this.dirty.cell = false;

@@ -3,6 +3,7 @@
 // link) and, most prominently, why each masked target is not seen.
 
 import { h } from './dom.js';
+import { restate, units } from './units.js';
 
 const LongNotes = 600; // characters
 
@@ -21,7 +22,7 @@ export class Story {
     const name = (scenario && scenario.name) || '';
     const notes = (scenario && scenario.notes) || '';
     const masked = ((report && report.targets) || []).filter((t) => t.status === 'masked');
-    const key = JSON.stringify([name, notes, masked.map((t) => [t.id, t.masked_by, t.reason]), this.open]);
+    const key = JSON.stringify([name, notes, masked.map((t) => [t.id, t.masked_by, t.reason]), this.open, units()]);
     if (key === this.key) return;
     this.key = key;
     const parts = [h('h2', { class: 'story-name', title: name }, name || 'Untitled scene')];
@@ -42,7 +43,7 @@ export class Story {
       parts.push(h('div', { class: 'story-masked', role: 'note', dataset: { target: t.id } },
         h('div', { class: 'story-masked-head' }, h('span', { class: 'dot st-masked', 'aria-hidden': 'true' }),
           h('b', {}, t.id), ` is hidden${t.masked_by === t.id ? ' by its own sidelobes' : t.masked_by ? ` by ${t.masked_by}` : ''}`),
-        h('p', {}, t.reason || '')));
+        h('p', {}, restate(t.reason || ''))));
     }
     this.root.replaceChildren(...parts);
   }

@@ -8,6 +8,7 @@ const targetWords = {
   id: 'id', kind: 'kind', range_m: 'range', range_start_m: 'near edge', range_stop_m: 'far edge',
   rcs_dbsm: 'RCS', rcs_dbsm_per_m: levelName.extended, reflectivity_dbz: levelName.volume,
   range_rate_mps: 'range rate', velocity_spread_mps: 'velocity spread', fluctuation: 'fluctuation',
+  sigma0_db: 'σ⁰', gamma_db: 'γ', role: 'role',
 };
 const receiverWords = {
   filter: 'compression filter', filter_length_factor: 'filter length', window: 'range weighting',
@@ -26,6 +27,7 @@ export const statusWords = {
   eclipsed: ['eclipsed', 'its echo arrives, wholly or enough of it, while the radar transmits'],
   folded: ['folded', 'beyond the unambiguous range: its echo comes back after the next pulse and shows as a false target at the wrong, nearer range'],
   out_of_window: ['out of window', 'its echo is not in the receive window'],
+  clutter: ['clutter', 'sea, land, rain or chaff: never a detection; where it crosses the threshold it gives false alarms (its role can be set to target)'],
 };
 
 // pdText writes a probability of detection as the report's text does
