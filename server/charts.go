@@ -272,7 +272,7 @@ func echoChart(res *scenarios.Result, vw view) chartOut {
 	b.add(SeriesI, "I", colourI, ampSeries(g, func(k int) float64 { return real(e[k]) }, sp), thin)
 	b.add(SeriesQ, "Q", colourQ, ampSeries(g, func(k int) float64 { return imag(e[k]) }, sp), thin)
 	b.add(SeriesMagnitude, "magnitude", colourMagnitude, ampSeries(g, func(k int) float64 { return cmplx.Abs(e[k]) }, sp), opts.LineStyle{Width: 1.5})
-	return b.build(ChartEcho, "echo/1")
+	return b.build(ChartEcho, echoKey)
 }
 
 // profileYMin is the bottom of the profile plot, dB re output noise: the
@@ -299,71 +299,21 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 	b.add(SeriesThreshold, "threshold", colourThreshold, dbSeries(windowGrid(s, len(s.ThresholdDB)), s.ThresholdDB, sp), opts.LineStyle{Width: 1.2, Type: "dashed"})
 	last := g.x(max(g.n-1, 0))
 	b.add(SeriesNoise, "noise floor", colourNoise, points{g.x0, clampDB(s.NoiseDB), last, clampDB(s.NoiseDB)}.appendJSON(nil, dbDecimals), opts.LineStyle{Width: 1, Type: "dotted"})
-	key := "profile/1"
-	if s.RangeDoppler != nil {
-		key += "+map"
-	}
 	if ref != nil {
 		rs := &ref.Series
 		rg := windowGrid(rs, len(rs.ProfileDB))
 		b.add(SeriesReference, "pinned", colourReference, dbSeries(rg, rs.ProfileDB, plan(rg, vw.rangeM, plotColumns(vw.width))), opts.LineStyle{Width: 1, Opacity: opts.Float(0.8)})
-		key += "+ref"
 	}
-	key += annotate(b, res, g)
-	key += breakthroughMarks(b, res, g)
+	annotate(b, res, g)
+	key := string(appendProfileKey(nil, res, ref)) + breakthroughMarks(b, res, g)
 	b.line.AddSeries("targets", nil,
 		charts.WithSeriesId(SeriesMarkers),
 		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.Type = "scatter"; s.SymbolSize = 11 }),
 		charts.WithLabelOpts(markerLabel),
 	)
 	b.extra[SeriesMarkers] = seriesExtra{LabelLayout: map[string]any{"hideOverlap": true}, Z: 5}
-	marks, err := json.Marshal(markers(res, g.x0, last))
-	if err != nil {
-		panic("server: markers not encodable: " + err.Error()) // every number in them is clamped
-	}
-	b.data = append(b.data, seriesData{id: SeriesMarkers, data: marks})
+	b.data = append(b.data, seriesData{id: SeriesMarkers, data: appendMarkers(nil, res, g.x0, last)})
 	return b.build(ChartProfile, key)
-}
-
-// marker is one target on the profile: where its echo appears (a point
-// target beyond the unambiguous range at its folded, apparent range;
-// otherwise its range clamped into the window), with the true range
-// beside it, and its expected peak SNR.
-type marker struct {
-	Value     [2]float64     `json:"value"`
-	Name      string         `json:"name"` // the label on the plot
-	ID        string         `json:"id"`
-	Status    string         `json:"status"`
-	Reason    string         `json:"reason"`
-	RangeM    float64        `json:"range_m"`
-	Symbol    string         `json:"symbol"`
-	ItemStyle map[string]any `json:"itemStyle"`
-}
-
-func markers(res *scenarios.Result, lo, hi float64) []marker {
-	out := make([]marker, 0, len(res.Report.Targets))
-	for _, t := range res.Report.Targets {
-		st, ok := statusStyle[t.Status]
-		if !ok {
-			st = statusStyle[scenarios.StatusTooWeak]
-		}
-		x := clampAmp(t.RangeM)
-		at := x
-		if ru := res.Report.Waveform.UnambiguousRangeM; ru > 0 && x >= ru {
-			at = x - math.Floor(x/ru)*ru // where the folded echo appears
-		}
-		out = append(out, marker{
-			Value:     [2]float64{math.Min(math.Max(at, lo), hi), clampDB(t.SNRDB)},
-			Name:      t.ID,
-			ID:        t.ID,
-			Status:    t.Status,
-			Reason:    t.Reason,
-			RangeM:    x,
-			Symbol:    st.symbol,
-			ItemStyle: map[string]any{"color": st.colour, "borderColor": st.colour},
-		})
-	}
-	return out
 }
 
 // responseYMin puts the bottom of the response plot 20 dB under the

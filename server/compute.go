@@ -6,7 +6,9 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"log/slog"
 	"math"
+	"slices"
 	"strconv"
 	"sync"
 	"time"
@@ -41,7 +43,13 @@ type evalCache struct {
 	statics map[string]chartOut // the last static chart of each name
 	version int                 // counts static chart versions
 
-	mapsOf *scenarios.Result // the result whose CPISeries ScheduleMaps filled in
+	ambScn, waveScn *scenarios.Scenario // the scenario c.amb and c.wave are of
+	lastPut         map[string]string   // chart name → key of the last frame given to the writer
+	keyBuf          []byte              // a chart key being compared
+	scratch         points              // a series being decimated
+	respBuf         []byte              // the response chart's inputs, encoded, …
+	respLast        []byte              // … and those of the one the page holds
+	mapsOf          *scenarios.Result   // the result whose CPISeries ScheduleMaps filled in
 }
 
 // compute evaluates the newest state the reader posted and puts its frame
@@ -89,7 +97,10 @@ func (ss *session) compute(ctx context.Context) {
 		case err != nil:
 			ss.errs.put(ss.evalError(err))
 		case f != nil:
-			ss.frames.put(f)
+			cache.put(f)
+			if old, ok := ss.frames.swap(f); ok {
+				ss.recycle(old)
+			}
 			ss.framed()
 		}
 	}
@@ -116,10 +127,10 @@ func (ss *session) release(c *evalCache) {
 func (ss *session) run(ctx context.Context, w want, c *evalCache) (*frame, bool, error) {
 	runCtx, cancel := context.WithCancel(ctx)
 	defer cancel()
-	ss.setRun(w.gen, cancel)
+	ss.setRun(w.gen, cancel, false)
 	f, err := ss.evaluate(runCtx, w, c)
 	stale := runCtx.Err() != nil
-	ss.setRun(0, nil)
+	ss.setRun(0, nil, !stale && err == nil)
 	return f, stale, err
 }
 
@@ -189,10 +200,12 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 	if err := ss.scheduleMaps(ctx, w, c); err != nil {
 		return nil, err
 	}
-	f := &frame{id: w.id, report: c.report, link: c.link, charts: c.settle(append(buildCharts(c.res, c.pinRes, w.view), scheduleCharts(c.scn, c.res, w.view)...))}
 	if err := ss.wavePlots(ctx, c); err != nil {
 		return nil, err
 	}
+	f := ss.newFrame()
+	f.id, f.report, f.link, f.reference = w.id, c.report, c.link, nil
+	c.chartsOf(f, c.res, c.pinRes, w.view, len(ss.frames.ch) > 0)
 	f.charts = append(f.charts, c.amb...)
 	f.charts = append(f.charts, c.wave...)
 	if c.pin != nil {
@@ -200,6 +213,25 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 	}
 	f.computeMS = math.Round(float64(time.Since(start).Microseconds())/10) / 100
 	return f, nil
+}
+
+// newFrame returns a frame the writer has sent, to be filled again, or a
+// new one.
+func (ss *session) newFrame() *frame {
+	select {
+	case f := <-ss.free:
+		return f
+	default:
+		return &frame{}
+	}
+}
+
+// recycle hands a frame that will not be sent again back to compute.
+func (ss *session) recycle(f *frame) {
+	select {
+	case ss.free <- f:
+	default:
+	}
 }
 
 // scheduleMaps simulates the CPI maps of the last good scenario's PRF
@@ -246,12 +278,16 @@ func (c *evalCache) settle(cs []chartOut) []chartOut {
 // computing it. A surface that cannot be computed is logged and left
 // out; only cancellation is an error.
 func (ss *session) ambiguity(ctx context.Context, c *evalCache) error {
+	if c.scn == c.ambScn {
+		return nil
+	}
 	w, err := json.Marshal(c.scn.Waveform)
 	if err != nil {
 		return err
 	}
 	key := string(w) + "@" + strconv.FormatFloat(c.scn.Radar.SampleRateHz, 'g', -1, 64)
 	if key == c.ambKey {
+		c.ambScn = c.scn
 		return nil
 	}
 	ch, ok := ss.srv.ambs.get(key)
@@ -273,7 +309,7 @@ func (ss *session) ambiguity(ctx context.Context, c *evalCache) error {
 		}
 		ss.srv.ambs.put(key, ch)
 	}
-	c.amb, c.ambKey = ch, key
+	c.amb, c.ambKey, c.ambScn = ch, key, c.scn
 	return nil
 }
 
@@ -369,11 +405,19 @@ func (ss *session) evalError(err error) *errorMsg {
 // The bytes are assembled by hand around pieces encoded earlier, in the
 // shape of frameMsg, so that the plot data is not scanned again.
 func (f *frame) encode(sent map[string]string) []byte {
+	return f.appendTo(nil, sent)
+}
+
+// appendTo is encode appending to b.
+func (f *frame) appendTo(b []byte, sent map[string]string) []byte {
 	size := len(f.report) + len(f.reference) + len(f.link) + 128
 	for _, c := range f.charts {
 		size += len(c.option) + 64
+		for _, d := range c.data {
+			size += len(d.data) + 32
+		}
 	}
-	b := make([]byte, 0, size)
+	b = slices.Grow(b, size)
 	b = append(b, `{"type":"frame","id":`...)
 	b = strconv.AppendInt(b, f.id, 10)
 	b = append(b, `,"report":`...)
@@ -433,14 +477,18 @@ func (ss *session) writeLoop(ctx context.Context) {
 			ss.conn.WriteControl(websocket.CloseMessage, websocket.FormatCloseMessage(code, text), time.Now().Add(writeWait))
 			return
 		case f := <-ss.frames.ch:
-			if err := ss.writeBytes(f.encode(sent)); err != nil {
+			ss.out = f.appendTo(ss.out[:0], sent)
+			if err := ss.writeBytes(ss.out); err != nil {
 				return
 			}
 			for _, c := range f.charts {
 				sent[c.name] = c.key
 			}
 			lastFrame = f.id
-			ss.log.Debug("frame", "id", f.id, "compute_ms", f.computeMS)
+			if ss.log.Enabled(ctx, slog.LevelDebug) {
+				ss.log.Debug("frame", "id", f.id, "compute_ms", f.computeMS)
+			}
+			ss.recycle(f)
 		case e := <-ss.errs.ch:
 			if e.ID < lastFrame {
 				continue // a newer edit was shown already

@@ -154,11 +154,19 @@ func plan(g grid, view *[2]float64, width int) span {
 // decimate returns the min/max decimation of y on grid g for span sp,
 // with value clamped by clamp.
 func decimate(g grid, y func(k int) float64, sp span) points {
-	n := g.n
-	if n == 0 {
+	if g.n == 0 {
 		return points{}
 	}
-	out := make(points, 0, 8*sp.columns+8)
+	return decimateInto(make(points, 0, 8*sp.columns+8), g, y, sp)
+}
+
+// decimateInto is decimate appending to out, which it returns: with out's
+// capacity reused, nothing is allocated.
+func decimateInto(out points, g grid, y func(k int) float64, sp span) points {
+	n := g.n
+	if n == 0 {
+		return out
+	}
 	// Outside the zoom, columns are as wide as a pixel of the whole window.
 	outer := max(1, n/max(1, sp.columns))
 	out = minmax(out, g, y, 0, sp.lo, outer)

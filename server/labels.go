@@ -4,7 +4,6 @@ import (
 	"encoding/json"
 	"maps"
 	"math"
-	"strconv"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
@@ -32,16 +31,13 @@ const (
 var markerLabel = opts.Label{Show: opts.Bool(true), Position: "top", Formatter: "{b}", FontSize: 11, Color: "#25292e"}
 
 // annotate adds the threshold's end label and the blind-range and masking
-// series to a profile plot on grid g, and returns the part of the chart
-// key they fix (the blind range is a mark area, sent with the full option).
-func annotate(b *builder, res *scenarios.Result, g grid) string {
+// series to a profile plot on grid g (the blind range is a mark area, sent
+// with the full option: appendProfileKey names it).
+func annotate(b *builder, res *scenarios.Result, g grid) {
 	b.extra[SeriesThreshold] = seriesExtra{EndLabel: map[string]any{
 		"show": true, "formatter": "threshold", "color": colourThreshold, "fontSize": 11,
 		"offset": []int{-62, -9}}} // inside the plot, above the line's end
-	key := ""
-	last := g.x(max(g.n-1, 0))
-	if blind := res.Report.Waveform.BlindRangeM; blind > g.x0 && g.n > 0 {
-		end := math.Min(blind, last)
+	if end, ok := blindEnd(res); ok {
 		b.line.AddSeries("blind range", nil,
 			charts.WithSeriesId(SeriesBlind),
 			charts.WithItemStyleOpts(opts.ItemStyle{Color: colourBlind}),
@@ -52,9 +48,8 @@ func annotate(b *builder, res *scenarios.Result, g grid) string {
 			"silent":    true,
 			"itemStyle": map[string]any{"color": colourBlind, "opacity": 0.22},
 			"label":     map[string]any{"show": true, "position": "insideBottom", "color": "#4b535c", "fontSize": 11},
-			"data":      [][2]map[string]any{{{"name": "blind range", "xAxis": round2(g.x0)}, {"xAxis": round2(end)}}},
+			"data":      [][2]map[string]any{{{"name": "blind range", "xAxis": round2(g.x0)}, {"xAxis": end}}},
 		}}
-		key += "+blind" + strconv.FormatFloat(round2(end), 'f', -1, 64)
 	}
 	b.line.AddSeries("masking", nil,
 		charts.WithSeriesId(SeriesMasking),
@@ -63,56 +58,19 @@ func annotate(b *builder, res *scenarios.Result, g grid) string {
 		// A line's labels hang on its symbols: shown, but a pixel wide.
 		charts.WithLineChartOpts(opts.LineChart{ShowSymbol: opts.Bool(true), SymbolSize: 1}),
 	)
-	b.data = append(b.data, seriesData{id: SeriesMasking, data: maskingData(res, g)})
+	b.data = append(b.data, seriesData{id: SeriesMasking, data: appendMasking(nil, res, g)})
 	b.extra[SeriesMasking] = seriesExtra{Z: 4}
-	return key
 }
 
 func round2(v float64) float64 { return math.Round(clampAmp(v)*100) / 100 }
 
-// maskingItem is one end of a masking segment; the masked end carries a
-// label, and a null value breaks the line between segments.
-type maskingItem struct {
-	Value [2]any         `json:"value"`
-	Label map[string]any `json:"label,omitempty"`
-}
-
-// maskingData is, for each masked target whose masker is named and both
-// lie in the window, a segment from the masker's peak to the masked
-// target's range at the noise-free profile's level there (the masker's
-// response plus the target's own), labelled "<masker>'s response masks
-// <target>". A target masked by its own response gets no segment: its
-// card and reason say so.
-func maskingData(res *scenarios.Result, g grid) []byte {
-	s := &res.Series
-	last := g.x(max(g.n-1, 0))
-	in := func(r float64) bool { return r >= g.x0 && r <= last }
-	byID := map[string]scenarios.TargetReport{}
-	for _, t := range res.Report.Targets {
-		byID[t.ID] = t
-	}
-	var items []maskingItem
-	for _, t := range res.Report.Targets {
-		m, ok := byID[t.MaskedBy]
-		if t.Status != scenarios.StatusMasked || !ok || t.MaskedBy == t.ID || !in(t.RangeM) || !in(m.RangeM) || len(s.CleanDB) == 0 {
-			continue
-		}
-		k := min(g.index(t.RangeM), len(s.CleanDB)-1)
-		if len(items) > 0 {
-			items = append(items, maskingItem{Value: [2]any{round2(t.RangeM), nil}})
-		}
-		items = append(items,
-			maskingItem{Value: [2]any{round2(m.RangeM), math.Round(clampDB(m.SNRDB)*100) / 100}},
-			maskingItem{Value: [2]any{round2(t.RangeM), math.Round(clampDB(s.CleanDB[k])*100) / 100},
-				Label: map[string]any{"show": true, "position": "right", "distance": 10, "color": colourMasking, "fontSize": 11, "fontWeight": "bold",
-					"backgroundColor": "rgba(255,255,255,0.85)", "borderRadius": 3,
-					"formatter": plainLabel(m.ID) + "'s response masks " + plainLabel(t.ID)}})
-	}
-	if items == nil {
-		return []byte("[]")
-	}
-	return mustJSON(items)
-}
+// The masking series' data (appendMasking): for each masked target whose
+// masker is named and both lie in the window, a segment from the masker's
+// peak to the masked target's range at the noise-free profile's level
+// there (the masker's response plus the target's own), its masked end
+// labelled "<masker>'s response masks <target>"; a null value breaks the
+// line between segments. A target masked by its own response gets no
+// segment: its card and reason say so.
 
 // plainLabel keeps a scenario's text from being read as a label template
 // ({a}, {b}, … and rich-text markup).
@@ -168,16 +126,24 @@ const responseNearLobes = 12
 // responseNear is the range span, m, the Response plot opens on; nil when
 // the report has no main-lobe width.
 func responseNear(res *scenarios.Result) *[2]float64 {
+	if near, ok := responseNearSpan(res); ok {
+		return &near
+	}
+	return nil
+}
+
+// responseNearSpan is responseNear as a value, and whether there is one.
+func responseNearSpan(res *scenarios.Result) ([2]float64, bool) {
 	w := res.Report.Waveform.Mainlobe3dBM
 	r := res.Series.Response.RangeM
 	if !(w > 0) || math.IsInf(w, 0) || len(r) < 2 {
-		return nil
+		return [2]float64{}, false
 	}
 	half := responseNearLobes * w
 	if half >= r[len(r)-1] && -half <= r[0] {
-		return nil // the whole response is near
+		return [2]float64{}, false // the whole response is near
 	}
-	return &[2]float64{round2(-half), round2(half)}
+	return [2]float64{round2(-half), round2(half)}, true
 }
 
 // buildZoomed is build with the zoom opened on near (nil: everything).

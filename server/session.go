@@ -31,14 +31,18 @@ type mailbox[T any] struct{ ch chan T }
 
 func newMailbox[T any]() mailbox[T] { return mailbox[T]{ch: make(chan T, 1)} }
 
-func (m mailbox[T]) put(v T) { // never blocks; replaces an unread value
+func (m mailbox[T]) put(v T) { m.swap(v) } // never blocks; replaces an unread value
+
+// swap is put, returning the unread value it replaced, if any.
+func (m mailbox[T]) swap(v T) (old T, replaced bool) {
 	for {
 		select {
 		case m.ch <- v:
-			return
+			return old, replaced
 		default:
 			select {
-			case <-m.ch:
+			case old = <-m.ch:
+				replaced = true
 			default:
 			}
 		}
@@ -73,6 +77,7 @@ type frame struct {
 	link      []byte // encoded link string
 	charts    []chartOut
 	computeMS float64
+	frameStore
 }
 
 // session is one websocket connection: readLoop is the only reader,
@@ -86,11 +91,16 @@ type session struct {
 	work   mailbox[want]
 	frames mailbox[*frame]
 	errs   mailbox[*errorMsg]
+	free   chan *frame // frames the writer has sent, for compute to fill again
+	out    []byte      // the writer's encoding buffer
 
-	mu        sync.Mutex // guards runGen, runCancel and lastFrame
+	mu        sync.Mutex // guards runGen, runCancel, runStart, lastRun, recheck and lastFrame
 	runGen    uint64
 	runCancel context.CancelFunc
-	lastFrame time.Time // when compute last put a frame
+	runStart  time.Time     // when the running computation started
+	lastRun   time.Duration // how long the last computation that finished took; 0: none yet
+	recheck   *time.Timer   // cancels a computation that outlives its expected end
+	lastFrame time.Time     // when compute last put a frame
 
 	releases atomic.Int64 // times the idle session dropped its buffers (tests)
 }
@@ -133,6 +143,7 @@ func (s *Server) handleWS(w http.ResponseWriter, r *http.Request) {
 		work:   newMailbox[want](),
 		frames: newMailbox[*frame](),
 		errs:   newMailbox[*errorMsg](),
+		free:   make(chan *frame, 2),
 	}
 	if s.cfg.SessionEvaluator != nil {
 		sess.eval = s.cfg.SessionEvaluator()
@@ -262,20 +273,43 @@ func rejection(id int64, err error) *errorMsg {
 	return m
 }
 
+// finishShort is how near its expected end a computation must be for a
+// newer edit to let it finish rather than cancel it: its frame is a
+// picture a few ms old, while a cancel throws the work away and the page
+// waits for a whole new computation. Expected from the session's last
+// computation; one that outlives that is cancelled then.
+const finishShort = 50 * time.Millisecond
+
 // cancelBefore cancels the running computation if it serves a state older
-// than gen, unless the page has waited Config.StarveAfter for a frame.
+// than gen, unless the page has waited Config.StarveAfter for a frame or
+// the computation is expected to end within finishShort.
 func (ss *session) cancelBefore(gen uint64) {
 	ss.mu.Lock()
 	defer ss.mu.Unlock()
-	if ss.runCancel != nil && ss.runGen < gen && time.Since(ss.lastFrame) < ss.srv.cfg.StarveAfter {
-		ss.runCancel()
-		ss.runCancel = nil
+	if ss.runCancel == nil || ss.runGen >= gen || time.Since(ss.lastFrame) >= ss.srv.cfg.StarveAfter {
+		return
 	}
+	if left := ss.lastRun - time.Since(ss.runStart); ss.lastRun > 0 && left >= 0 && left < finishShort {
+		// Look again just after its expected end.
+		if ss.recheck != nil {
+			ss.recheck.Stop()
+		}
+		ss.recheck = time.AfterFunc(left+time.Millisecond, func() { ss.cancelBefore(gen) })
+		return
+	}
+	ss.runCancel()
+	ss.runCancel = nil
 }
 
-func (ss *session) setRun(gen uint64, cancel context.CancelFunc) {
+// setRun records the computation that starts (cancel non-nil) or the end
+// of the running one, and how long it took when it finished uncancelled.
+func (ss *session) setRun(gen uint64, cancel context.CancelFunc, finished bool) {
 	ss.mu.Lock()
-	ss.runGen, ss.runCancel = gen, cancel
+	now := time.Now()
+	if cancel == nil && finished {
+		ss.lastRun = now.Sub(ss.runStart)
+	}
+	ss.runGen, ss.runCancel, ss.runStart = gen, cancel, now
 	ss.mu.Unlock()
 }
 

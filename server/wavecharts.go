@@ -235,6 +235,9 @@ func siHz(v float64) string {
 // computing them. Charts that cannot be computed are logged and left out;
 // only cancellation is an error.
 func (ss *session) wavePlots(ctx context.Context, c *evalCache) error {
+	if c.scn == c.waveScn {
+		return nil
+	}
 	w, err := json.Marshal(c.scn.Waveform)
 	if err != nil {
 		return err
@@ -245,6 +248,7 @@ func (ss *session) wavePlots(ctx context.Context, c *evalCache) error {
 	}
 	key := string(w) + "|" + string(rx) + "@" + strconv.FormatFloat(c.scn.Radar.SampleRateHz, 'g', -1, 64)
 	if key == c.waveKey {
+		c.waveScn = c.scn
 		return nil
 	}
 	ch, ok := ss.srv.waves.get(key)
@@ -265,6 +269,6 @@ func (ss *session) wavePlots(ctx context.Context, c *evalCache) error {
 		}
 		ss.srv.waves.put(key, ch)
 	}
-	c.wave, c.waveKey = ch, key
+	c.wave, c.waveKey, c.waveScn = ch, key, c.scn
 	return nil
 }

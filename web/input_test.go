@@ -73,8 +73,10 @@ func markerPx(t *testing.T, ctx context.Context, id string) []float64 {
 	return eval[[]float64](t, ctx, fmt.Sprintf(`(() => { const m = %s(%q); return window.__pw.plots.charts.profile.convertToPixel({seriesId: 'markers'}, m.value); })()`, jsMarker, id))
 }
 
-// fresh is a JS condition: the newest edit's frame is shown.
-const fresh = `(window.__pw.frame() && window.__pw.frame().id >= window.__pw.session.nextId - 1)`
+// fresh is a JS condition: the newest edit's frame is shown, on every
+// plot and panel (the page draws the profile first and the rest after
+// its paint).
+const fresh = `(window.__pw.frame() && window.__pw.frame().id >= window.__pw.session.nextId - 1 && window.__pw.settled() === window.__pw.frame().id)`
 
 func TestDragMarkerMovesTarget(t *testing.T) {
 	ctx := mustBrowser(t)

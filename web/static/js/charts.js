@@ -5,14 +5,22 @@
 
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
+import { FastLayer, layerSeries, tooltipAbove } from './fastlayer.js';
 import { axisPatch, axisUnits, format, niceTicks, restate, signed } from './units.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
 const SecondaryMs = 100; // plots other than the profile redraw at most this often while frames stream
+const DragSecondaryMs = 250; // … and this often while a marker is dragged
 const WheelGestureMs = 3000; // ms: wheel events this close, with the pointer still, form one gesture
+// While frames stream, the profile's and the echo's data are drawn by a
+// FastLayer each; the charts themselves take the newest data once no frame
+// came for SettleMs (or when a drag ends).
+const SettleMs = 150;
 
 const chartMs = {};
 window.__pwChartMs = chartMs;
+const fastMs = {}; // time per fast-layer drawing, ms, by chart
+window.__pwFastMs = fastMs;
 
 // Tooltips are drawn in the canvas (renderMode 'richText': an HTML
 // tooltip would need inline styles, which the CSP refuses). Text from the
@@ -60,7 +68,7 @@ export function carryCharts(older, newer) {
 export class Plots {
   // els: chart name → container element; a container inside a tab pane
   // (.pane) is drawn only while its pane shows.
-  constructor(els, { onView, onDrag, onDragEnd, onSelect, onNudge, onCell, hoverCard, wavelength }) {
+  constructor(els, { onView, onDrag, onDragEnd, onSelect, onNudge, onCell, hoverCard, wavelength, onSettle }) {
     this.charts = {};
     for (const [name, el] of Object.entries(els)) this.charts[name] = echarts.init(el, null, { renderer: 'canvas' });
     this.els = els;
@@ -74,11 +82,21 @@ export class Plots {
     this.onCell = onCell;
     this.hoverCard = hoverCard;
     this.wavelength = wavelength;
+    this.onSettle = onSettle || (() => {});
+    // The line charts that follow every frame of a drag get a fast layer.
+    this.fasts = {};
+    for (const name of ['profile', 'echo']) {
+      this.fasts[name] = new FastLayer(this.charts[name]);
+      tooltipAbove(this.charts[name]);
+    }
+    this.fast = this.fasts.profile;
+    this.settleTimer = 0;
     this.drag = null;
     this.lastView = null;
     this.pending = {}; // chart name → options held back (its pane is hidden, or it was drawn just now)
     this.drawnAt = {}; // chart name → when it was last drawn (performance.now)
     this.timers = {}; // chart name → timer that draws what it holds back
+    this.deferred = new Set(); // chart names to draw once the profile's new pixels are out
     this.cats = {}; // heat map name → {x, y}: the cell centres of its category axes
     this.decorators = {}; // chart name → fn(option): tooltips of charts added by other modules (schedule.js)
     this.train = false;
@@ -120,19 +138,71 @@ export class Plots {
       this.hold(name, entry);
       return;
     }
-    // While frames stream in (a drag, a held key), the profile follows
-    // every frame and the other plots at most every SecondaryMs: each
-    // setOption re-lays out a whole chart, whatever changed.
-    if (name !== 'profile' && !entry.replace) {
-      const wait = (this.drawnAt[name] || -Infinity) + SecondaryMs - performance.now();
-      if (wait > 0 || this.timers[name]) {
-        this.hold(name, entry);
-        if (!this.timers[name]) this.timers[name] = setTimeout(() => this.flush(name), Math.max(wait, 0));
+    // The profile's and the echo's data merges are drawn by their fast
+    // layers at once; the charts take them when the frames rest (settle).
+    const fast = this.fasts[name];
+    if (fast && !entry.replace && fast.ready()) {
+      const t0 = performance.now();
+      this.hold(name, entry);
+      if (fast.draw(entry.option)) {
+        if (name === 'profile') this.cacheMarkers(entry.option);
+        const ms = (fastMs[name] = fastMs[name] || []);
+        ms.push(performance.now() - t0);
+        if (ms.length > 100) ms.shift();
+        this.settleSoon();
         return;
       }
     }
+    // The profile is drawn at once; the other plots after the profile's
+    // new pixels are on screen (flushDeferred, called by the page after
+    // the paint), so that the plot the hand follows is not kept waiting
+    // by the others. While frames stream in (a drag, a held key), the
+    // other plots redraw at most every SecondaryMs: each setOption
+    // re-lays out a whole chart, whatever changed.
+    if (name !== 'profile') {
+      this.hold(name, entry);
+      const every = this.drag ? DragSecondaryMs : SecondaryMs;
+      const wait = entry.replace ? 0 : (this.drawnAt[name] || -Infinity) + every - performance.now();
+      if (this.timers[name]) return;
+      if (wait > 0) this.timers[name] = setTimeout(() => this.flush(name), wait);
+      else this.deferred.add(name);
+      return;
+    }
     this.flush(name);
     this.setOption(name, entry);
+  }
+
+  // Give the charts behind a fast layer their newest data SettleMs after
+  // the last frame, or when the drag in progress ends.
+  settleSoon() {
+    clearTimeout(this.settleTimer);
+    this.settleTimer = setTimeout(() => this.settle(), SettleMs);
+  }
+
+  settle() {
+    clearTimeout(this.settleTimer);
+    this.settleTimer = 0;
+    if (this.drag) return; // the drag's end settles
+    for (const [name, fast] of Object.entries(this.fasts)) {
+      if (!fast.active) continue;
+      this.flush(name);
+      fast.end();
+    }
+    this.onSettle();
+  }
+
+  // Whether a chart is behind its fast layer.
+  unsettled() {
+    return Object.values(this.fasts).some((f) => f.active) || !!this.settleTimer;
+  }
+
+  // Draw the plots held back until after the profile's paint; true when
+  // there were any.
+  flushDeferred() {
+    const names = [...this.deferred];
+    this.deferred.clear();
+    for (const name of names) if (!this.timers[name]) this.flush(name);
+    return names.length > 0;
   }
 
   // The shown charts whose newest options wait for their redraw timer.
@@ -166,6 +236,10 @@ export class Plots {
     if (entry.replace) {
       spaceAxisLabels(entry.option, chart.getWidth());
       axisUnits(entry.option);
+    }
+    if (this.fasts[name] && entry.replace) {
+      this.fasts[name].setStyles(entry.option);
+      layerSeries(entry.option);
     }
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     niceTicks(chart); // round ticks in the user's units; a no-op while they hold
@@ -392,7 +466,14 @@ export class Plots {
       this.drag = null;
       this.guide(null);
       this.onDragEnd();
+      if (this.unsettled()) this.settleSoon();
     };
+    // ECharts listens to mouse events (on the chart and, while a button is
+    // down, on the document), not pointer events: while a marker is
+    // dragged, its hover, tooltip and axis pointer sit still.
+    window.addEventListener('mousemove', (ev) => {
+      if (this.drag) ev.stopPropagation();
+    }, true);
     el.addEventListener('pointerup', end, true);
     el.addEventListener('pointercancel', end, true);
     el.addEventListener('pointerleave', () => this.hoverCard(null));

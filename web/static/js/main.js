@@ -67,7 +67,10 @@ const plots = new Plots({
 }, {
   onView: (range, width, mapWidth) => session.sendView(range, width, mapWidth),
   onDrag: (id, r) => editor.moveTo(id, r),
-  onDragEnd: () => store.seal(),
+  onDragEnd: () => {
+    store.seal();
+    if (formsTimer) renderForms();
+  },
   onSelect: (id) => editor.selectId(id),
   onNudge: (id, dB) => {
     const i = (store.scenario.targets || []).findIndex((t) => t.id === id);
@@ -79,23 +82,39 @@ const plots = new Plots({
     return f > 0 ? 299792458 / f : NaN;
   },
   hoverCard,
+  onSettle: () => settle(),
 });
 const focusUI = initFocus({ plots, frame: () => lastFrame });
 const pdCurves = initPdCurves({ plots, scenario: () => store.scenario });
 // Modules that add panels of their own (schedule.js) see each frame
 // before the plots apply it.
 const frameHooks = [];
-window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, focus: focusUI.focus, onFrame: (fn) => frameHooks.push(fn) };
+window.__pw = { store, editor, plots, session, stale, frame: () => lastFrame, settled: () => settledId, focus: focusUI.focus, onFrame: (fn) => frameHooks.push(fn) };
+
+// While a marker is dragged, the editor's forms and the story follow the
+// scene at most every FormsMs: re-rendering them on every step of the
+// drag cost more than drawing the plot. The drag's end renders them.
+const FormsMs = 100;
+let formsTimer = 0;
+let formsAt = -Infinity;
+function renderForms() {
+  clearTimeout(formsTimer);
+  formsTimer = 0;
+  formsAt = performance.now();
+  editor.render(store.scenario);
+  story.render(store.scenario, lastFrame && lastFrame.report);
+}
 
 store.onChange((s, cause) => {
-  editor.render(s);
+  session.noteEdit();
+  if (cause !== 'edit' || !plots.drag) renderForms();
+  else if (!formsTimer) formsTimer = setTimeout(renderForms, Math.max(0, formsAt + FormsMs - performance.now()));
   if (cause === 'load' || cause === 'link') { // a new scene: its own cuts
     if (session.cell) session.sendCell(null);
     plots.clearCell();
   }
   session.sendScenario(s, cause === 'link' ? 'link' : null, store.version);
   refreshStale();
-  story.render(s, lastFrame && lastFrame.report);
   $('#btn-undo').disabled = !store.undoStack.length;
   $('#btn-redo').disabled = !store.redoStack.length;
 });
@@ -120,19 +139,27 @@ function onFrame(msg) {
   requestAnimationFrame(applyFrame);
 }
 let lastApplyAt = -Infinity;
+let settledId = null; // the newest frame whose plots, panels and story are all drawn
+let paintedId = null; // the newest frame whose after-paint work ran
+// A frame is settled once its after-paint work ran and the profile chart
+// itself (not only the fast layer) shows it.
+function settle() {
+  if (lastFrame && paintedId === lastFrame.id && !plots.unsettled() && !addressTimer) settledId = lastFrame.id;
+}
 
 // The editor's status marks and the figures panel follow the frames, but
 // while frames stream in (a drag) at most every PanelMs: rebuilding the
 // panel costs as much as a chart, and the plots are what the hand follows.
 // The newest frame's panels are always drawn.
 const PanelMs = 100;
+const DragPanelMs = 250; // while a marker is dragged
 let panelsAt = -Infinity;
 let panelTimer = 0;
 let panelFrame = null;
 function panels(f) {
   panelFrame = f;
   if (panelTimer) return;
-  const wait = panelsAt + PanelMs - performance.now();
+  const wait = panelsAt + (plots.drag ? DragPanelMs : PanelMs) - performance.now();
   if (wait <= 0) {
     drawPanels();
     return;
@@ -147,8 +174,25 @@ function drawPanels() {
   renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms);
 }
 
+// afterPaint runs fn once the next animation frame's pixels are out: a
+// task posted from the frame's requestAnimationFrame callback runs after
+// that frame's style, layout and paint.
+const paintChannel = new MessageChannel();
+const afterPaintQueue = [];
+paintChannel.port1.onmessage = () => {
+  const fns = afterPaintQueue.splice(0);
+  for (const fn of fns) fn();
+};
+function afterPaint(fn) {
+  requestAnimationFrame(() => {
+    afterPaintQueue.push(fn);
+    paintChannel.port2.postMessage(0);
+  });
+}
+
 // Apply the newest frame in one animation frame; older unapplied frames
-// are skipped.
+// are skipped. The profile is drawn first; the other plots, the panels,
+// the story and the address bar follow once its pixels are on screen.
 function applyFrame() {
   applyScheduled = false;
   const f = pendingFrame;
@@ -164,31 +208,63 @@ function applyFrame() {
   focusUI.refresh();
   pdCurves.refresh(f);
   const t1 = performance.now();
-  panels(f);
   if (session.sent.has(f.id) && f.id > lastErrorId) {
     editor.clearErrors();
     $('#orphan-errors').textContent = '';
     markTabs();
   }
-  if (f.link) updateAddress(f.link);
   refreshStale();
-  story.render(store.scenario, f.report);
   const sentAt = session.sent.get(f.id);
   const t2 = performance.now();
   performance.mark(`pw-apply-${f.id}`);
-  requestAnimationFrame(() => {
+  afterPaint(() => {
     performance.mark(`pw-paint-${f.id}`);
-    if (sentAt !== undefined) {
-      const m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
-      // ms: send → new pixels; wait_ms: send → the frame's arrival (server
-      // and network); page_ms: arrival → new pixels (parse excluded), of
-      // which charts_ms went to the charts' setOption and panel_ms to the
-      // editor and figures panels.
-      latencies.push({ id: f.id, ms: m.duration, compute_ms: f.compute_ms, wait_ms: f.arrivedAt - sentAt, page_ms: performance.now() - f.arrivedAt,
-        charts_ms: t1 - t0, panel_ms: t2 - t1, held: plots.held(), panels_held: !!panelTimer });
-      if (latencies.length > 1000) latencies.shift();
-    }
+    const t3 = performance.now();
+    // The rest of the frame, after the profile's paint.
+    const rest = plots.flushDeferred();
+    panels(f);
+    story.render(store.scenario, f.report);
+    if (f.link) addressSoon(f.link);
+    const t4 = performance.now();
+    paintedId = f.id;
+    settle();
+    if (sentAt === undefined) return;
+    const m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
+    const editAt = session.editedAt.get(f.id);
+    // ms: send → the profile's new pixels; edit_ms: the edit (the store's
+    // change) → the same pixels; wait_ms: send → the frame's arrival
+    // (server, network, and the page's main thread being busy);
+    // parse_ms: JSON.parse of the frame; page_ms: arrival → pixels, of
+    // which charts_ms went to the profile's setOption and panel_ms to
+    // the marks; rest_ms: the other plots, panels and story after the
+    // paint, and all_ms: send → the end of those.
+    const entry = {
+      fast: plots.unsettled(),
+      id: f.id, ms: m.duration, edit_ms: editAt !== undefined ? t3 - editAt : m.duration, compute_ms: f.compute_ms,
+      wait_ms: f.arrivedAt - sentAt, parse_ms: f.parseMs, page_ms: t3 - f.arrivedAt,
+      charts_ms: t1 - t0, panel_ms: t2 - t1, rest_ms: t4 - t3, all_ms: t4 - sentAt, rest_charts: rest,
+      held: plots.held(), panels_held: !!panelTimer,
+    };
+    latencies.push(entry);
+    if (latencies.length > 1000) latencies.shift();
   });
+}
+
+// The address bar follows the shown scene's link once frames rest for
+// AddressMs: history.replaceState with a long URL costs the main thread
+// 40–60 ms a call on a busy machine, so a drag must not pay it per frame.
+const AddressMs = 300;
+let addressTimer = 0;
+let addressLink = null;
+function addressSoon(link) {
+  addressLink = link;
+  clearTimeout(addressTimer);
+  addressTimer = setTimeout(addressNow, AddressMs);
+}
+function addressNow() {
+  addressTimer = 0;
+  updateAddress(addressLink);
+  settle();
 }
 
 function updateAddress(link) {

@@ -19,6 +19,8 @@ export class Session {
     this.scheduled = false;
     this.retry = 250;
     this.sent = new Map(); // edit id → performance.now() at send
+    this.editedAt = new Map(); // edit id → performance.now() of the oldest edit it carries
+    this.editAt = null; // when the oldest unsent edit was made
     this.tag = null;
     this.tags = new Map(); // edit id → tag given to sendScenario
     this.version = 0; // the page's version of this.scenario
@@ -38,12 +40,14 @@ export class Session {
     };
     ws.onmessage = (ev) => {
       let msg;
+      const t0 = performance.now();
       try {
         msg = JSON.parse(ev.data);
       } catch {
         return;
       }
-      msg.arrivedAt = performance.now();
+      msg.arrivedAt = t0;
+      msg.parseMs = performance.now() - t0;
       if (msg.type === MsgFrame) this.onFrame(msg);
       else if (msg.type === MsgError) this.onError(msg);
     };
@@ -55,11 +59,18 @@ export class Session {
     };
   }
 
+  // Note that the scenario changed now (before the page re-renders its
+  // editor), so that edit_ms counts from the change; see sendScenario.
+  noteEdit() {
+    if (this.editAt === null) this.editAt = performance.now();
+  }
+
   // Queue the scenario; it goes out on the next animation frame. A tag
   // (e.g. 'link') is remembered with the id it goes out under; see tagOf.
   sendScenario(scenario, tag = null, version = this.version) {
     this.scenario = scenario;
     this.version = version;
+    if (this.editAt === null) this.editAt = performance.now();
     this.tag = tag;
     this.dirty.scenario = true;
     this.schedule();
@@ -144,6 +155,9 @@ export class Session {
       performance.mark(`pw-send-${id}`);
       this.sent.set(id, performance.now());
       if (this.sent.size > 500) this.sent.delete(this.sent.keys().next().value);
+      this.editedAt.set(id, this.editAt === null ? performance.now() : this.editAt);
+      this.editAt = null;
+      if (this.editedAt.size > 500) this.editedAt.delete(this.editedAt.keys().next().value);
       this.versions.push([id, this.version]);
       if (this.versions.length > 500) this.versions.shift();
       if (this.tag) this.tags.set(id, this.tag);

@@ -1,0 +1,276 @@
+// A light drawing layer of our own over a line chart (the profile and the
+// echo), for frames that
+// stream in (a marker dragged, a level nudged with the wheel or the keys,
+// a value typed). ECharts re-lays out and repaints a whole chart on every
+// setOption, data-only merges included: axes and their labels, legend,
+// zoom slider, tooltip pointer, 10 ms on a quiet machine and 40–140 ms on
+// a busy one. So while frames stream, the chart's data series (drawn on
+// their own canvas layer, zlevel FastZ) are hidden and each frame's data
+// is drawn here instead, on the chart's axes as they stand, in about a
+// millisecond. When the frames rest, the chart takes the newest data and
+// this layer clears (Plots.settle).
+//
+// What it draws: the line series with their colour, width, dash and
+// opacity; the masking segments and their labels; the threshold's end
+// label; the target markers with their status shapes and names. Values
+// beyond the axes as they stood are clipped to the plot area until the
+// chart settles and rescales.
+
+// The zlevel of the series this layer stands in for. The blind range (a
+// mark area, fixed while targets move) stays with the axes on level 0.
+export const FastZ = 1;
+
+// Series that stay on level 0.
+const Fixed = new Set(['blind']);
+
+const Font = '11px sans-serif';
+const BoldFont = 'bold 11px sans-serif';
+
+// Dash patterns of ECharts' line types, in line widths.
+const dashes = { dashed: [4, 4], dotted: [1, 2] };
+
+// Put the data series of a full profile option on level FastZ.
+export function layerSeries(option) {
+  for (const s of [option.series || []].flat()) {
+    if (s && !Fixed.has(s.id)) s.zlevel = FastZ;
+  }
+}
+
+// The tooltip's text is added to the renderer directly, on level 0; it
+// must stay above the series' level.
+export function tooltipAbove(chart) {
+  const zr = chart.getZr();
+  const add = zr.add.bind(zr);
+  zr.add = (el) => {
+    if (el && el.type === 'text') el.zlevel = FastZ + 1;
+    return add(el);
+  };
+}
+
+export class FastLayer {
+  constructor(chart) {
+    this.chart = chart;
+    this.canvas = document.createElement('canvas');
+    this.canvas.className = 'fast-layer';
+    this.canvas.hidden = true;
+    // Over the chart's own canvases, under the drag guide (z-index 3).
+    Object.assign(this.canvas.style, { position: 'absolute', left: '0', top: '0', pointerEvents: 'none', zIndex: '2' });
+    chart.getDom().append(this.canvas);
+    this.styles = new Map(); // series id → how it is drawn
+    this.data = new Map(); // series id → its newest data
+    this.active = false;
+  }
+
+  // Learn the series' looks from a full option; a drawing in progress
+  // ends (the full option is about to be drawn by the chart).
+  setStyles(option) {
+    this.end();
+    this.styles.clear();
+    this.data.clear();
+    for (const s of [option.series || []].flat()) {
+      if (!s || !s.id || Fixed.has(s.id)) continue;
+      const ls = s.lineStyle || {};
+      const is = s.itemStyle || {};
+      this.styles.set(s.id, {
+        type: s.type,
+        name: s.name,
+        colour: ls.color || is.color || '#333',
+        width: ls.width ?? 2,
+        dash: dashes[ls.type] || null,
+        opacity: ls.opacity ?? 1,
+        size: s.symbolSize || 10,
+        label: s.label && s.label.show ? s.label : null,
+        endLabel: s.endLabel && s.endLabel.show ? s.endLabel : null,
+      });
+      if (Array.isArray(s.data)) this.data.set(s.id, s.data);
+    }
+  }
+
+  // Whether the layer can stand in for the chart: it knows the series
+  // and the chart has drawn them on their own level.
+  ready() {
+    return this.styles.size > 0 && !!this.layer();
+  }
+
+  layer() {
+    const painter = this.chart.getZr().painter;
+    const layers = painter && painter.getLayers ? painter.getLayers() : null;
+    return layers && layers[FastZ] ? layers[FastZ] : null;
+  }
+
+  // Draw a data-only merge {series: [{id, data}, …]}.
+  draw(option) {
+    for (const s of [option.series || []].flat()) {
+      if (s && this.styles.has(s.id) && Array.isArray(s.data)) this.data.set(s.id, s.data);
+    }
+    const map = this.mapping();
+    if (!map) return false;
+    if (!this.active) {
+      this.active = true;
+      this.canvas.hidden = false;
+    }
+    const layer = this.layer();
+    if (layer && layer.dom) layer.dom.style.visibility = 'hidden';
+    this.paint(map);
+    return true;
+  }
+
+  // Stop standing in: show the chart's own series again (the caller has
+  // just given the chart the newest data) and clear.
+  end() {
+    if (!this.active) return;
+    this.active = false;
+    const layer = this.layer();
+    if (layer && layer.dom) layer.dom.style.visibility = '';
+    this.canvas.hidden = true;
+  }
+
+  // data → pixel, from the axes as the chart last laid them out.
+  mapping() {
+    const model = this.chart.getModel();
+    const xa = model && model.getComponent('xAxis', 0);
+    const ya = model && model.getComponent('yAxis', 0);
+    if (!xa || !xa.axis || !ya || !ya.axis) return null;
+    const [x0, x1] = xa.axis.scale.getExtent();
+    const [y0, y1] = ya.axis.scale.getExtent();
+    const p0 = this.chart.convertToPixel({ xAxisIndex: 0, yAxisIndex: 0 }, [x0, y0]);
+    const p1 = this.chart.convertToPixel({ xAxisIndex: 0, yAxisIndex: 0 }, [x1, y1]);
+    if (!p0 || !p1 || !(x1 > x0) || !(y1 > y0) || ![...p0, ...p1].every(Number.isFinite)) return null;
+    const kx = (p1[0] - p0[0]) / (x1 - x0);
+    const ky = (p1[1] - p0[1]) / (y1 - y0);
+    return {
+      x: (v) => p0[0] + (v - x0) * kx,
+      y: (v) => p0[1] + (v - y0) * ky,
+      rect: { x: Math.min(p0[0], p1[0]), y: Math.min(p0[1], p1[1]), w: Math.abs(p1[0] - p0[0]), h: Math.abs(p1[1] - p0[1]) },
+    };
+  }
+
+  paint(map) {
+    const w = this.chart.getWidth();
+    const h = this.chart.getHeight();
+    const dpr = window.devicePixelRatio || 1;
+    const c = this.canvas;
+    if (c.width !== Math.round(w * dpr) || c.height !== Math.round(h * dpr)) {
+      c.width = Math.round(w * dpr);
+      c.height = Math.round(h * dpr);
+      c.style.width = `${w}px`;
+      c.style.height = `${h}px`;
+    }
+    const g = c.getContext('2d');
+    g.setTransform(dpr, 0, 0, dpr, 0, 0);
+    g.clearRect(0, 0, w, h);
+    const legend = this.chart.getModel().getComponent('legend', 0);
+    const shown = (st) => !legend || !legend.isSelected || !st.name || legend.isSelected(st.name);
+    const labels = [];
+    g.save();
+    g.beginPath();
+    g.rect(map.rect.x, map.rect.y, map.rect.w, map.rect.h);
+    g.clip();
+    for (const [id, st] of this.styles) {
+      const data = this.data.get(id);
+      if (!data || !shown(st)) continue;
+      if (st.type === 'line') this.line(g, map, st, data, labels);
+      else if (st.type === 'scatter') this.markers(g, map, st, data, labels);
+    }
+    g.restore();
+    for (const l of labels) text(g, l);
+  }
+
+  line(g, map, st, data, labels) {
+    g.save();
+    g.globalAlpha = st.opacity;
+    g.strokeStyle = st.colour;
+    g.lineWidth = st.width;
+    g.setLineDash(st.dash ? st.dash.map((d) => d * Math.max(st.width, 1)) : []);
+    g.beginPath();
+    let pen = false;
+    let last = null;
+    for (const d of data) {
+      const v = Array.isArray(d) ? d : d && d.value;
+      if (!v || v[0] === null || v[1] === null || v[0] === undefined || v[1] === undefined) {
+        pen = false;
+        continue;
+      }
+      const px = map.x(v[0]);
+      const py = map.y(v[1]);
+      if (pen) g.lineTo(px, py);
+      else g.moveTo(px, py);
+      pen = true;
+      last = [px, py];
+      if (d && d.label && d.label.show && d.label.formatter) {
+        labels.push({ x: px + (d.label.distance ?? 5), y: py, text: d.label.formatter, colour: d.label.color || st.colour,
+          font: d.label.fontWeight === 'bold' ? BoldFont : Font, align: 'left', base: 'middle', plate: d.label.backgroundColor });
+      }
+    }
+    g.stroke();
+    g.restore();
+    if (st.endLabel && last) {
+      const off = st.endLabel.offset || [0, 0];
+      labels.push({ x: last[0] + 5 + off[0], y: last[1] + off[1], text: String(st.endLabel.formatter || st.name), colour: st.endLabel.color || st.colour,
+        font: Font, align: 'left', base: 'middle' });
+    }
+  }
+
+  markers(g, map, st, data, labels) {
+    const r = st.size / 2;
+    for (const d of data) {
+      const v = Array.isArray(d) ? d : d && d.value;
+      if (!v || !Number.isFinite(v[0]) || !Number.isFinite(v[1])) continue;
+      const px = map.x(v[0]);
+      const py = map.y(v[1]);
+      const colour = (d.itemStyle && d.itemStyle.color) || st.colour;
+      symbol(g, d.symbol || 'circle', px, py, r, colour);
+      if (st.label && d.name) {
+        labels.push({ x: px, y: py - r - 5, text: String(d.name), colour: st.label.color || '#25292e', font: Font, align: 'center', base: 'bottom' });
+      }
+    }
+  }
+}
+
+function symbol(g, kind, x, y, r, colour) {
+  g.beginPath();
+  switch (kind) {
+    case 'diamond':
+      g.moveTo(x, y - r);
+      g.lineTo(x + r, y);
+      g.lineTo(x, y + r);
+      g.lineTo(x - r, y);
+      g.closePath();
+      break;
+    case 'triangle':
+      g.moveTo(x, y - r);
+      g.lineTo(x + r, y + r);
+      g.lineTo(x - r, y + r);
+      g.closePath();
+      break;
+    case 'rect':
+      g.rect(x - r, y - r, 2 * r, 2 * r);
+      break;
+    default:
+      g.arc(x, y, kind === 'emptyCircle' ? r - 1 : r, 0, 2 * Math.PI);
+  }
+  if (kind === 'emptyCircle') {
+    g.fillStyle = '#fff';
+    g.fill();
+    g.lineWidth = 2;
+    g.strokeStyle = colour;
+    g.stroke();
+    return;
+  }
+  g.fillStyle = colour;
+  g.fill();
+}
+
+function text(g, l) {
+  g.font = l.font;
+  g.textAlign = l.align;
+  g.textBaseline = l.base;
+  if (l.plate) {
+    const w = g.measureText(l.text).width;
+    const x = l.align === 'center' ? l.x - w / 2 : l.x;
+    g.fillStyle = l.plate;
+    g.fillRect(x - 3, l.y - 8, w + 6, 16);
+  }
+  g.fillStyle = l.colour;
+  g.fillText(l.text, l.x, l.y);
+}
