@@ -149,9 +149,10 @@ func TestStatusMarksAgree(t *testing.T) {
 		const rgb = (c) => { const d = document.createElement('div'); d.style.color = c; document.body.append(d); const v = getComputedStyle(d).color; d.remove(); return v; };
 		const shape = (el) => { const s = getComputedStyle(el);
 			if (s.clipPath.startsWith('polygon')) return 'triangle';
-			if (s.transform !== 'none') return 'diamond';
+			if (s.transform !== 'none') return s.borderRadius.startsWith('50% 50% 50% 0') ? 'pin' : 'diamond';
 			if (s.backgroundColor === 'rgba(0, 0, 0, 0)') return 'emptyCircle';
-			return s.borderRadius === '50%' ? 'circle' : 'rect'; };
+			if (s.borderRadius === '50%') return 'circle';
+			return s.borderRadius === '0px' || s.borderRadius === '' ? 'rect' : 'roundRect'; };
 		const colour = (el) => { const s = getComputedStyle(el); return s.backgroundColor === 'rgba(0, 0, 0, 0)' ? s.borderTopColor : s.backgroundColor; };
 		const ms = window.__pw.plots.charts.profile.getOption().series.find((s) => s.id === 'markers').data;
 		const out = [];
