@@ -49,8 +49,9 @@ func TestTargetTableShowsWholeValues(t *testing.T) {
 			}
 			// Each row's level unit is that of its kind: in the header when
 			// every target is of one kind, beside the value otherwise.
-			units := eval[[]string](t, ctx, `(() => { const ks = window.__pw.store.scenario.targets.map((t) => t.kind);
-				const unit = {point: 'dBsm', extended: 'dBsm/m', volume: 'dBZ'};
+			// An extended target given by σ⁰ or γ shows dB (m²/m²).
+			units := eval[[]string](t, ctx, `(() => { const ks = window.__pw.store.scenario.targets.map((t) => t.kind === 'extended' && (t.sigma0_db !== undefined || t.gamma_db !== undefined) ? 'surface' : t.kind);
+				const unit = {point: 'dBsm', extended: 'dBsm/m', surface: 'dB', volume: 'dBZ'};
 				const head = document.querySelector('#ed-targets table.targets th:nth-child(5)').textContent;
 				return ks.map((k, i) => { const cell = document.querySelectorAll('#ed-targets tr[data-row] td:nth-child(5)')[i];
 					const u = cell.querySelector('.cell-unit');
@@ -169,6 +170,11 @@ func TestStatusMarksAgree(t *testing.T) {
 	seen := map[string]bool{}
 	for _, d := range demos {
 		loadDemo(t, ctx, d)
+		// The chart library draws the frame's markers after the page's
+		// own fast layer: wait until the plot holds this demo's targets.
+		waitFor(t, ctx, d+" markers on the profile", `(() => { const f = window.__pw.frame(); const s = window.__pw.plots.charts.profile.getOption().series.find((s) => s.id === 'markers');
+			return !!s && s.data.map((m) => m.id).join() === f.report.targets.map((t) => t.id).join() &&
+				document.querySelectorAll('.tcard[data-target]').length === f.report.targets.length; })()`)
 		for _, p := range eval[[]string](t, ctx, jsCheck) {
 			t.Errorf("%s: %s", d, p)
 		}
