@@ -59,9 +59,8 @@ func TestClutterOnPage(t *testing.T) {
 	do(t, ctx, chromedp.Click(chromedp.CSS(`.tabs [data-tab="radar"]`)))
 	typeInto(t, ctx, `input[data-path="radar.antenna_height_m"]`, "100") // horizon 41 km, beyond the new target at 22 km
 	waitFor(t, ctx, "the γ surface evaluated", jsTarget+`('target') && `+jsTarget+`('target').grazing_deg > 0`)
-	if g := eval[string](t, ctx, `document.querySelector('.tcard[data-target="target"]').textContent`); !strings.Contains(g, "σ⁰") || !strings.Contains(g, "ψ") {
-		t.Errorf("the surface's card lacks σ⁰ and ψ: %q", g)
-	}
+	// The cards follow the plots after their paint: wait for them.
+	waitFor(t, ctx, "the surface's card with σ⁰ and ψ", `(() => { const c = document.querySelector('.tcard[data-target="target"]'); return !!c && c.textContent.includes('σ⁰') && c.textContent.includes('ψ'); })()`)
 	shot(t, ctx, "gamma")
 	do(t, ctx, chromedp.ScrollIntoView(chromedp.CSS(`.clutter-sum`)))
 	shot(t, ctx, "cards")
