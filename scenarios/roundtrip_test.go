@@ -171,11 +171,15 @@ func randomScenario(r *rand.Rand) *Scenario {
 		f.STCStartM = u(1, 5000)
 		f.STCStopM, f.STCExponent = f.STCStartM+u(1, 2e4), float64(1+r.IntN(8))
 	}
-	s.Propagation = Propagation{RainStopM: maxRainStopM, RainPolarisation: "horizontal", Multipath: "none"}
+	s.Propagation = defaultPropagation()
 	if r.IntN(3) == 0 {
 		s.Radar.CarrierHz = u(1e9, 5e10)
-		s.Propagation = Propagation{RainRateMMH: u(0.1, 100), RainStartM: u(0, 1e4), RainPolarisation: pick(polarisations), Multipath: "none"}
+		s.Propagation.RainRateMMH, s.Propagation.RainStartM, s.Propagation.RainPolarisation = u(0.1, 100), u(0, 1e4), pick(polarisations)
 		s.Propagation.RainStopM = s.Propagation.RainStartM + u(1, 1e5)
+	}
+	if s.Radar.CarrierHz >= 1e9 && r.IntN(3) == 0 {
+		s.Propagation.Gas = GasP676
+		s.Propagation.AirTemperatureC, s.Propagation.AirPressureHPa, s.Propagation.WaterVapourGM3 = u(-40, 40), u(500, 1050), u(0, 20)
 	}
 	if s.Radar.AntennaHeightM > 0 && r.IntN(2) == 0 {
 		s.Propagation.Multipath = "flat_sea"

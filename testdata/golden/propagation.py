@@ -13,6 +13,8 @@ gas: the specific attenuation of dry air (gamma_o) and water vapour
   formulas on a grid of frequencies and atmospheres. The line tables are
   those of the ITU-Rpy library (github.com/inigodelportillo/ITU-Rpy,
   itur/data/676/v11_lines_oxygen.txt and v13_lines_water_vapour.txt).
+default_air: the total gamma (dB/km) for the scenario's default air,
+  15 C, 1013.25 hPa total (dry-air pressure 1013.25 - e) and 7.5 g/m3.
 itu_validation: the ITU's own check values for the same model (ITU-R
   Study Group 3 validation examples, CG-3M3J-13-ValEx-Rev5_1.xlsx, sheet
   ITURP676-13_gamma, as reproduced in ITU-Rpy's
@@ -185,6 +187,15 @@ for p, rho, t in ATMOSPHERES:
         go, gw = gas(f, p, rho, t)
         cases.append({"f_ghz": f, "p_hpa": p, "rho_g_m3": rho, "t_k": t, "gamma_o": go, "gamma_w": gw})
 
+# The scenario's default air (propagation.gas): 15 C, a total pressure of
+# 1013.25 hPa and 7.5 g/m3, so a dry-air pressure of 1013.25 - e.
+air = []
+for f in [3.0, 10.0, 35.0, 94.0]:
+    t = 288.15
+    e = 7.5 * t / 216.7
+    go, gw = gas(f, 1013.25 - e, 7.5, t)
+    air.append({"f_ghz": f, "total_hpa": 1013.25, "e_hpa": e, "rho_g_m3": 7.5, "t_k": t, "gamma_db_km": go + gw})
+
 NRL = {"H": (-73.0, 20.781, 7.351, 25.65, 0.0054), "V": (-50.796, 25.93, 0.7093, 21.588, 0.00211)}
 
 
@@ -237,6 +248,6 @@ for pol, table in (("H", HH), ("V", VV)):
 assert round(dev["H"]["mean_abs_dev_db"], 2) == 2.64 and round(dev["V"]["mean_abs_dev_db"], 2) == 2.54, dev
 
 json.dump({"generator": "testdata/golden/propagation.py", "python": sys.version.split()[0],
-           "gas": cases, "itu_validation": itu, "sea": seacases, "nathanson": nathanson,
+           "gas": cases, "itu_validation": itu, "default_air": air, "sea": seacases, "nathanson": nathanson,
            "nathanson_deviation": dev}, open("propagation.json", "w"), indent=1)
 print("gas cases", len(cases), "ITU checks", len(itu), "sea cases", len(seacases), "Nathanson points", len(nathanson), dev)
