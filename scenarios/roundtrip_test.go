@@ -127,12 +127,20 @@ func randomScenario(r *rand.Rand) *Scenario {
 		case TargetExtended:
 			t.RangeStartM, t.RCSDBsmPerM = u(0, 5e4), u(-40, 0)
 			t.RangeStopM = t.RangeStartM + u(1, 3000)
-			switch r.IntN(3) {
+			switch r.IntN(4) {
 			case 1:
 				t.RCSDBsmPerM, t.Level, t.Sigma0DB = 0, LevelSigma0, u(-50, 0)
 			case 2:
 				if s.Radar.AntennaHeightM > 0 {
 					t.RCSDBsmPerM, t.Level, t.GammaDB = 0, LevelGamma, u(-30, 0)
+				}
+			case 3:
+				// The NRL sea model: inside its span of grazing angles.
+				if h := s.Radar.AntennaHeightM; h > 0 && s.Radar.CarrierHz >= 0.5e9 && s.Radar.CarrierHz <= 35e9 {
+					near, far := seaGrazingSpan(h)
+					t.RCSDBsmPerM, t.Level, t.SeaState, t.Polarisation = 0, LevelSeaState, float64(r.IntN(7)), pick(seaPolarisations)
+					t.RangeStartM = near + u(0, 1)*(far-near)/2
+					t.RangeStopM = t.RangeStartM + u(0, 1)*(far-t.RangeStartM)
 				}
 			}
 		case TargetVolume:
