@@ -131,3 +131,20 @@ func TestGasCanonicalAndErrors(t *testing.T) {
 		}
 	}
 }
+
+// TestGasOnClutter: the air attenuates distributed echoes per range
+// sample: a sea's clutter power at 2 km and 4 km falls by 2·γ·r, γ =
+// 0.01399 dB/km at 10 GHz in the default air (golden file).
+func TestGasOnClutter(t *testing.T) {
+	doc := seaDoc(`"sea_state": 3`, 1500, 8000)
+	free := mustEvaluate(t, mustDecode(t, doc))
+	air := mustEvaluate(t, mustDecode(t, strings.Replace(doc, `"targets":`, `"propagation": {"gas": "itu_p676"}, "targets":`, 1)))
+	g := defaultAirGamma(t, 10)
+	for _, r := range []float64{2000, 4000} {
+		p0, at := gatePower(free, r)
+		p1, _ := gatePower(air, r)
+		if want := 2 * g * at / 1000; math.Abs(p0-p1-want) > 0.002 {
+			t.Errorf("clutter at %.0f m falls %.4f dB, want %.4f", at, p0-p1, want)
+		}
+	}
+}
