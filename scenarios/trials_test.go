@@ -449,6 +449,17 @@ func TestTrialsCoherentNeighbour(t *testing.T) {
 		if !ok {
 			t.Errorf("random phase, %.2f cells: phase-averaged Pd %.4f outside the trials' [%.4f, %.4f]", off, want, lo, hi)
 		}
+		// The report's Pd is that average (pdcell.go), inside the same
+		// interval, and the target is masked by the strong one's sidelobe.
+		rep := tr.Report().Targets[1]
+		if rep.Pd == nil || math.Abs(*rep.Pd-want) > 1e-4 {
+			t.Errorf("random phase, %.2f cells: report Pd %s, want the phase average %.4f", off, optPd(rep.Pd), want)
+		} else if ok, lo, hi := inside(*rep.Pd, c.Detections[1], n); !ok {
+			t.Errorf("random phase, %.2f cells: report Pd %.4f outside the trials' [%.4f, %.4f]", off, *rep.Pd, lo, hi)
+		}
+		if rep.Status != StatusMasked || rep.MaskedBy != "strong" || !strings.Contains(rep.Reason, "carrier phase") {
+			t.Errorf("random phase, %.2f cells: want masked by strong's sidelobe in its cell, got %s by %q: %s", off, rep.Status, rep.MaskedBy, rep.Reason)
+		}
 	}
 }
 
