@@ -4,8 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-
-	"gonum.org/v1/gonum/mathext"
 )
 
 // Pd of a cell that holds several echoes (docs/detection-probability.md
@@ -44,9 +42,9 @@ import (
 // reference; each further phasor's phase is integrated by the trapezoid
 // rule over [0, π] (the integrand is even and 2π-periodic in it, so the
 // rule converges geometrically), doubling until two estimates agree to
-// CellTolerance; a Swerling 3/4 power by the midpoint rule on its
-// probability u (|a|² = mean/2·P⁻¹(2, u)), tripling the points until two
-// estimates agree. At most MaxCellDims such integrals are nested; the
+// CellTolerance; a Swerling 3/4 power q (in units of half its mean, of
+// density q·e^−q) by the trapezoid rule in t = ln q, halving the step
+// until two estimates agree. At most MaxCellDims such integrals are nested; the
 // weakest phasors beyond that are treated as Gaussian (their power added
 // to v), which the central limit theorem makes the right limit for many
 // echoes of random phase, and which is exact for their mean power.
@@ -155,25 +153,31 @@ func (c *cellInt) at(i int, re, im float64) float64 {
 	if e.Swerling == SwerlingNone {
 		return c.phase(i, re, im, math.Sqrt(e.Power))
 	}
-	// Swerling 3/4: |a|² = (mean/2)·q, q ~ Gamma(2, 1), by the midpoint
-	// rule on u = P(2, q), tripling the points (the old midpoints stay).
+	// Swerling 3/4: |a|² = (mean/2)·q, q ~ Gamma(2, 1) of density
+	// q·e^−q. With q = e^t the integrand q²·e^−q·h decays like e^(2t) and
+	// exp(−e^t) at the two ends, so the trapezoid rule in t over
+	// [tLo, tHi] converges geometrically; the step halves until two
+	// estimates agree.
 	theta := e.Power / 2
-	g := func(u float64) float64 { return c.phase(i, re, im, math.Sqrt(theta*mathext.GammaIncRegInv(2, u))) }
-	n := 9
-	sum := 0.0
-	for k := range n {
-		sum += g((float64(k) + 0.5) / float64(n))
+	g := func(t float64) float64 {
+		q := math.Exp(t)
+		return q * q * math.Exp(-q) * c.phase(i, re, im, math.Sqrt(theta*q))
 	}
-	est := sum / float64(n)
-	for 3*n <= maxCellPoints {
-		// The new points of the 3n-point rule: the thirds either side of
-		// each old midpoint.
-		m := 3 * n
-		for k := range n {
-			sum += g((3*float64(k)+0.5)/float64(m)) + g((3*float64(k)+2.5)/float64(m))
+	const tLo, tHi = -21.0, 4.65 // q from 7.6e-10 (weight below 1e-18) to 105 (e^−105)
+	n := 64
+	step := (tHi - tLo) / float64(n)
+	sum := (g(tLo) + g(tHi)) / 2
+	for k := 1; k < n; k++ {
+		sum += g(tLo + float64(k)*step)
+	}
+	est := sum * step
+	for 2*n <= maxCellPoints {
+		for k := 1; k < 2*n; k += 2 {
+			sum += g(tLo + float64(k)*step/2)
 		}
-		n = m
-		next := sum / float64(n)
+		n *= 2
+		step /= 2
+		next := sum * step
 		if math.Abs(next-est) < CellTolerance {
 			return next
 		}

@@ -42,7 +42,7 @@ type verdict struct {
 	pdOwn      float64
 	pdCross    float64 // the probability that the cell crosses, echoes in it included
 	inCellUsed bool
-	rule    string  // "pd" or "threshold": what decided a detected, masked, too_weak or eclipsed-by-loss status
+	rule       string // "pd" or "threshold": what decided a detected, masked, too_weak or eclipsed-by-loss status
 }
 
 // Rules that decide a status (TargetReport.DecidedOn).
