@@ -203,7 +203,7 @@ func inCellWords(v verdict) string {
 		return fmt.Sprintf(" The rest of the scene puts %.1f dB (re noise) into its cell, under the threshold; added with a carrier phase that changes from look to look, it lowers its Pd from %s to %s.",
 			dsp.DB(v.cell), PdText(v.pdOwn), PdText(v.pdCross))
 	}
-	return fmt.Sprintf(" The rest of the scene puts %.1f dB (re noise) into its cell, under the threshold, which makes the cell cross with Pd %s; the report credits the target only with its own %s.",
+	return fmt.Sprintf(" The rest of the scene puts %.1f dB (re noise) into its cell, under the threshold; added with a carrier phase that changes from look to look, it makes the cell cross with Pd %s, but the status credits the target only with its own %s.",
 		dsp.DB(v.cell), PdText(v.pdCross), PdText(v.pdOwn))
 }
 

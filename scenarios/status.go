@@ -33,11 +33,11 @@ type verdict struct {
 
 	// Echoes sharing the tested cell (pdcell.go): what the rest of the
 	// scene puts into it, each with its law. Where that power lies below
-	// the detector's level (inCellApplies), pdCross is the Pd of the sum
-	// over uniform phases, pdOwn the target's Pd against the same level
-	// without them, and pdScene the smaller of the two (echoes that make
-	// the cell cross more often are not credited to the target);
-	// inCellUsed says so.
+	// the detector's level (inCellApplies), pdScene (= pdCross) is the Pd
+	// of the sum over uniform phases, pdOwn the target's Pd against the
+	// same level without them, and the status is decided on the smaller
+	// of the two (echoes that make the cell cross more often are not
+	// credited to the target); inCellUsed says so.
 	inCell     []dsp.CellEcho
 	pdOwn      float64
 	pdCross    float64 // the probability that the cell crosses, echoes in it included
@@ -164,7 +164,7 @@ func (sc *scene) decide(g *tgt, v *verdict, train bool) string {
 		v.rule = rulePd
 		detected := v.peak >= v.threshold // beyond the series: the threshold decides
 		if v.sceneOK {
-			detected = v.pdScene >= req
+			detected = v.pdStatus() >= req
 		}
 		switch {
 		case detected:
@@ -178,7 +178,7 @@ func (sc *scene) decide(g *tgt, v *verdict, train bool) string {
 			// By its cell when the neighbours' power there decides: above
 			// the detector's level, or below it but adding to the echo
 			// lowers a Pd that the raised level alone would leave.
-			v.byCell = v.cell >= v.sceneLevel || (v.inCellUsed && v.pdOwn >= req)
+			v.byCell = v.cell >= v.sceneLevel || (v.inCellUsed && v.pdOwn >= req && v.pdCross < req)
 		}
 		return v.status
 	}
@@ -188,6 +188,16 @@ func (sc *scene) decide(g *tgt, v *verdict, train bool) string {
 		v.byCell = v.cell >= v.sceneLevel
 	}
 	return v.status
+}
+
+// pdStatus is the Pd the status is decided on: Pd in the scene, or with
+// echoes in the cell the smaller of the cell's crossing probability and
+// the target's own Pd without them.
+func (v *verdict) pdStatus() float64 {
+	if v.inCellUsed {
+		return math.Min(v.pdCross, v.pdOwn)
+	}
+	return v.pdScene
 }
 
 // windowStatus returns the status that the receive window and blanking
@@ -254,7 +264,7 @@ func (sc *scene) probabilities(g *tgt, v *verdict, train bool) {
 		}
 		if ok {
 			if p, ok2 := t.pdInCell(v.inCell, v.raise); ok2 {
-				v.pdScene, v.pdOwn, v.pdCross, v.sceneOK, v.inCellUsed = math.Min(p, own), own, p, true, true
+				v.pdScene, v.pdOwn, v.pdCross, v.sceneOK, v.inCellUsed = p, own, p, true, true
 				return
 			}
 		}

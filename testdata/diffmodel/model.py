@@ -1344,18 +1344,20 @@ def scene(sc):
         rule = None
         pd_noise = pd_scene = None
         in_cell = False
+        pd_status = None
         if pdf is not None:
             rr = max(T / Lnoise, 1.0)
             pd_noise = pdf(Pstar)
             pd_scene = pdf(Pstar, rr) if sceneok(rr) else None
             if 0 < Cc < Lk and math.isfinite(Lk) and sceneok(rr):
                 # the others' power in the cell, under the level, adds to
-                # the echo (detection-probability.md §7): pd = min(the
-                # crossing probability of the sum, the target's own Pd)
+                # the echo (detection-probability.md §7): pd = the crossing
+                # probability of the sum; the status is decided on the
+                # smaller of it and the target's own Pd
                 pd_own = pd_scene
-                cross = pd_in_cell(pdf, [Pstar] + [e["P"][k] for i, e in enumerate(targets) if i != j], rr)
-                pd_scene = min(cross, pd_own)
-                in_cell = pd_own >= req
+                pd_scene = pd_in_cell(pdf, [Pstar] + [e["P"][k] for i, e in enumerate(targets) if i != j], rr)
+                pd_status = min(pd_scene, pd_own)
+                in_cell = pd_own >= req and pd_scene < req
         if not (ws <= d["Ra"] <= we):
             st = "out_of_window"
         elif infold:
@@ -1368,7 +1370,9 @@ def scene(sc):
             st = "out_of_window"
         elif pdf is not None:
             rule = "pd"
-            detected = pd_scene >= req if pd_scene is not None else Pstar >= T
+            if pd_status is None:
+                pd_status = pd_scene
+            detected = pd_status >= req if pd_status is not None else Pstar >= T
             if detected:
                 st = "detected"
             elif touched and d["Pustar"] > 0 and pdf(d["Pustar"]) >= req:
