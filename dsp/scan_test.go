@@ -182,3 +182,38 @@ func ExampleBeamShape_BeamShapeLoss() {
 	fmt.Printf("coherent %.2f dB, noncoherent %.2f dB\n", DB(coh), DB(non))
 	// Output: coherent 1.83 dB, noncoherent 1.67 dB
 }
+
+// TestModulatedTone: the peak of a scan-modulated tone on the Doppler map
+// falls by the coherent scan loss with the plan's own window weights (the
+// definition of CoherentScanLoss applied to the DFT at the tone's bin).
+func TestModulatedTone(t *testing.T) {
+	const n = 16
+	a := GaussianBeam.ScanGains(nil, n, 0.1)
+	for _, w := range []Window{nil, Hann{}} {
+		plan := NewSlowTimePlan(n, MTINone, w)
+		fdT := plan.BinFrequency(5)
+		ref := plan.ToneResponse(nil, fdT)
+		mod := plan.ModulatedToneResponse(nil, fdT, a)
+		var coef []float64
+		if w != nil {
+			coef = w.Coefficients(make([]float64, n))
+		}
+		if got, want := ref[5]/mod[5], CoherentScanLoss(a, coef); math.Abs(got/want-1) > 1e-12 {
+			t.Errorf("window %v: peak ratio %.12f, coherent scan loss %.12f", w, got, want)
+		}
+		ones := make([]float64, n)
+		for i := range ones {
+			ones[i] = 1
+		}
+		if f := plan.FlatResponse(ones); math.Abs(f-1) > 1e-12 {
+			t.Errorf("window %v: flat response of unit pulses %g, want 1", w, f)
+		}
+		pw := make([]float64, n)
+		for i, v := range a {
+			pw[i] = v * v
+		}
+		if f, want := plan.FlatResponse(pw), 1/NoncoherentScanLoss(a); w == nil && math.Abs(f/want-1) > 1e-12 {
+			t.Errorf("no window: flat response %g, want Σa²/n = %g", f, want)
+		}
+	}
+}
