@@ -380,11 +380,17 @@ func (tr *train) extraGain() {
 	for i := range tr.sc.extras {
 		e := &tr.sc.extras[i]
 		e.gain = make([]float64, nb)
+		var a []float64 // the scan's modulation of a point target's echo
+		flat := e.flat
+		if tr.scanA != nil && e.owner >= 0 && tr.sc.targets[e.owner].t.Kind == TargetPoint {
+			a = tr.scanA
+			flat *= tr.plan.FlatResponse(tr.scanPow)
+		}
 		for d := range e.gain {
-			e.gain[d] = e.flat
+			e.gain[d] = flat
 		}
 		for _, t := range e.tones {
-			tr.plan.ToneResponse(tmp, t.fdT)
+			tr.plan.ModulatedToneResponse(tmp, t.fdT, a)
 			for d, v := range tmp {
 				e.gain[d] += t.w * v
 			}

@@ -176,6 +176,9 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 		}
 	}
 	sc.receiverExtras()
+	if focus < 0 {
+		m.scanWarnings()
+	}
 	if m.s.Radar.Pulses > 1 && focus < 0 { // suggestions are checked on single pulses
 		sc.train = newTrain(m, sc)
 	}
