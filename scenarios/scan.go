@@ -284,7 +284,7 @@ func (tr *train) scanWords(j int, out *TargetReport) string {
 	s := fmt.Sprintf(" The scan costs %.1f dB: the beam moves %.2f beamwidths during the %d-pulse CPI (%.1f hits per scan), so the CPI sees the target off the beam's peak.",
 		l, float64(r.Pulses)*r.scanStep(), r.Pulses, dsp.HitsPerScan(r.scanBeamwidthDeg(), r.Scan.RateDegS, r.PRIS))
 	if float64(r.Pulses)*r.PRIS > r.dwellS() {
-		s += " The CPI is longer than the dwell: fewer pulses, or a slower scan, would keep it inside the beam."
+		s += fmt.Sprintf(" The CPI is longer than the %s dwell: its outer pulses fall beyond the beam's half-power points.", seconds(r.dwellS()))
 	}
 	if out.Status != StatusDetected && out.Status != StatusClutter {
 		switch {

@@ -171,7 +171,7 @@ func TestScanLossDecides(t *testing.T) {
 	if stare.Status != StatusDetected || scan.Status == StatusDetected {
 		t.Fatalf("staring %s (margin %.2f), scanning %s", stare.Status, *stare.MarginDB, scan.Status)
 	}
-	if !strings.Contains(scan.Reason, "The scan loss decides") || !strings.Contains(scan.Reason, "The CPI is longer than the dwell") {
+	if !strings.Contains(scan.Reason, "The scan loss decides") || !strings.Contains(scan.Reason, "The CPI is longer than the 8 ms dwell") {
 		t.Errorf("reason: %s", scan.Reason)
 	}
 	if d := *stare.MarginDB - *scan.MarginDB; math.Abs(d-*scan.ScanLossDB) > 1e-6 {
@@ -272,5 +272,25 @@ func TestScanSchedule(t *testing.T) {
 	}
 	if hasWarning(res, "the schedule's") {
 		t.Errorf("20 ms of CPIs fit a 20 ms dwell: %q", res.Report.Warnings)
+	}
+}
+
+// TestScanTrials: the Monte Carlo trials simulate each pulse through the
+// moving beam and detect on the noisy map; their detection rate agrees
+// with the analytic Pd of the pattern-weighted expected map (a CPI of two
+// beamwidths: 2.3 dB of scan loss), within the Clopper–Pearson interval.
+func TestScanTrials(t *testing.T) {
+	base := target(mustEvaluate(t, mustDecode(t, scanScene(`, "scan": {"rate_deg_s": 250}`, 0))), "jet")
+	s := mustDecode(t, scanScene(`, "scan": {"rate_deg_s": 250}`, -*base.MarginDB-0.7))
+	const n = 600
+	tr, c := runTrials(t, s, n)
+	r := tr.Report().Targets[0]
+	if r.Pd == nil || r.ScanLossDB == nil || *r.ScanLossDB < 2 {
+		t.Fatalf("report %+v", r)
+	}
+	ok, lo, hi := inside(*r.Pd, c.Detections[0], n)
+	t.Logf("scan loss %.2f dB: analytic Pd %.4f, trials %.4f [%.4f, %.4f]", *r.ScanLossDB, *r.Pd, float64(c.Detections[0])/n, lo, hi)
+	if !ok {
+		t.Errorf("analytic Pd %.4f outside the trials' [%.4f, %.4f]", *r.Pd, lo, hi)
 	}
 }
