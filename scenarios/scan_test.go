@@ -252,6 +252,13 @@ func TestScanCanonical(t *testing.T) {
 	if *s2.Radar.Scan != *s.Radar.Scan {
 		t.Errorf("round trip %+v → %+v", s.Radar.Scan, s2.Radar.Scan)
 	}
+	// Sweeps set it by path, and create it on a staring scene.
+	for _, doc := range []string{scanScene(`, "scan": {"rate_deg_s": 60}`, 10), scanScene("", 10)} {
+		s3, err := With(mustDecode(t, doc), Assignment{Path: "radar.scan.rate_deg_s", Value: []byte("120")})
+		if err != nil || s3.Radar.Scan == nil || s3.Radar.Scan.RateDegS != 120 || s3.Radar.Scan.Pattern != PatternGaussian {
+			t.Errorf("With radar.scan.rate_deg_s: %+v, %v", s3, err)
+		}
+	}
 }
 
 // TestScanSchedule: each CPI of a schedule has its own hits per scan and
