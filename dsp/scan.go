@@ -94,9 +94,19 @@ func (b BeamShape) ScanGains(dst []float64, n int, step float64) []float64 {
 	if dst == nil {
 		dst = make([]float64, n)
 	}
-	c := float64(len(dst)-1) / 2
+	return b.ScanGainsFrom(dst, -float64(len(dst)-1)/2*step, step)
+}
+
+// ScanGainsFrom fills dst with the two-way voltage gains f(u_k)² of pulses
+// at u_k = u0 + k·step beamwidths and returns it: a train placed anywhere
+// on the beam (ScanGains centres it). It panics if u0 or step is not
+// finite.
+func (b BeamShape) ScanGainsFrom(dst []float64, u0, step float64) []float64 {
+	if math.IsInf(u0, 0) || math.IsNaN(u0) || math.IsInf(step, 0) || math.IsNaN(step) {
+		panic("dsp: scan offsets must be finite")
+	}
 	for k := range dst {
-		f := b.Voltage((float64(k) - c) * step)
+		f := b.Voltage(u0 + float64(k)*step)
 		dst[k] = f * f
 	}
 	return dst

@@ -19,6 +19,12 @@ type scanGolden struct {
 		NoncoherentDB  float64  `json:"noncoherent_db"`
 		CoherentHannDB *float64 `json:"coherent_hann_db"`
 	}
+	Offset []struct {
+		Shape          string
+		N              int
+		Step, U0       float64
+		CoherentHannDB float64 `json:"coherent_hann_db"`
+	}
 	Dense []struct {
 		Shape         string
 		NoncoherentDB float64 `json:"noncoherent_db"`
@@ -94,6 +100,18 @@ func TestScanLossGolden(t *testing.T) {
 	}
 }
 
+// TestScanLossOffsetGolden: trains placed off the beam's peak, pulse k at
+// u0 + k·step, Hann weights, against scan.json's "offset" cases.
+func TestScanLossOffsetGolden(t *testing.T) {
+	for _, c := range readScanGolden(t).Offset {
+		a := beamByName(c.Shape).ScanGainsFrom(make([]float64, c.N), c.U0, c.Step)
+		w := Hann{}.Coefficients(make([]float64, c.N))
+		if got := DB(CoherentScanLoss(a, w)); math.Abs(got-c.CoherentHannDB) > 1e-9 {
+			t.Errorf("%s n=%d step=%g u0=%g: %.12f dB, golden %.12f", c.Shape, c.N, c.Step, c.U0, got, c.CoherentHannDB)
+		}
+	}
+}
+
 // TestBeamShapeLossDense: with many hits inside the 3-dB beamwidth the
 // losses reach the integrals of the golden file (scipy.integrate.quad) and
 // the closed forms of BeamShapeLoss's doc; the Gaussian beam's noncoherent
@@ -141,6 +159,29 @@ func TestNoncoherentScanLossPd(t *testing.T) {
 		if got := DB(NoncoherentScanLoss(a)); math.Abs(got-c.LossDB) > 1e-6 {
 			t.Errorf("%s n=%d step=%g: loss %.8f dB, ncx2 gives %.8f", c.Shape, c.N, c.Step, got, c.LossDB)
 		}
+	}
+}
+
+// TestScanGainsFrom: a train shifted by half its length loses more than
+// the centred one; shifted by 0 from its centred start it is ScanGains.
+func TestScanGainsFrom(t *testing.T) {
+	const n, step = 16, 0.1
+	c := GaussianBeam.ScanGains(nil, n, step)
+	same := GaussianBeam.ScanGainsFrom(make([]float64, n), -7.5*step, step)
+	for k := range c {
+		if c[k] != same[k] {
+			t.Fatalf("pulse %d: %g != %g", k, c[k], same[k])
+		}
+	}
+	off := GaussianBeam.ScanGainsFrom(make([]float64, n), -7.5*step+0.8, step)
+	// The sum of a Gaussian over a shifted train: each gain carries the
+	// factor exp(−4 ln2·((u+s)² − u²)); check pulse 0 by the formula.
+	u := -7.5*step + 0.8
+	if want := math.Exp(-4 * math.Ln2 * u * u); math.Abs(off[0]-want) > 1e-15 {
+		t.Errorf("pulse 0 at u=%g: %g, want %g", u, off[0], want)
+	}
+	if CoherentScanLoss(off, nil) <= CoherentScanLoss(c, nil) {
+		t.Error("an off-centre train loses no more than the centred one")
 	}
 }
 

@@ -153,6 +153,11 @@ type ScanReport struct {
 	// Doppler window, at a bin centre without MTI (the per-target
 	// scan_loss_db is read off its own map). Omitted for a single pulse.
 	CPILossDB *float64 `json:"cpi_loss_db,omitempty"`
+	// CPILossOffsetDB is the same CPI's loss with its centre half a CPI
+	// (P·δ/2) off the beam's peak: back-to-back CPIs, the target midway
+	// between two CPIs' centres, the better of the two at its worst.
+	// Reported, not applied. Omitted for a single pulse.
+	CPILossOffsetDB *float64 `json:"cpi_loss_offset_db,omitempty"`
 	// BeamShapeLoss…DB: the loss of integrating the hits per scan (rounded,
 	// at least 1) inside the 3-dB beamwidth against as many at the peak,
 	// coherently with uniform weights and noncoherently (exact for steady
@@ -178,13 +183,14 @@ type ScanCPI struct {
 }
 
 // cpiLossDB returns the coherent scan loss of radar r's CPI as the
-// Doppler processing weights it (window, no MTI, bin centre), or nil for a
-// single pulse.
-func cpiLossDB(r Radar, dw Window) *float64 {
+// Doppler processing weights it (window, no MTI, bin centre), its centre
+// off beamwidths from the beam's peak, or nil for a single pulse.
+func cpiLossDB(r Radar, dw Window, off float64) *float64 {
 	if r.Pulses < 2 {
 		return nil
 	}
-	a := beamShape(r.Scan.Pattern).ScanGains(nil, r.Pulses, r.scanStep())
+	step := r.scanStep()
+	a := beamShape(r.Scan.Pattern).ScanGainsFrom(make([]float64, r.Pulses), off-float64(r.Pulses-1)/2*step, step)
 	var w []float64
 	if win := dspWindow(dw); win != nil {
 		w = win.Coefficients(make([]float64, r.Pulses))
@@ -213,7 +219,8 @@ func scanReport(s *Scenario) *ScanReport {
 	}
 	rep.CPIBeamwidths = rep.CPIS / rep.DwellS
 	rep.CPIExceedsDwell = rep.CPIS > rep.DwellS
-	rep.CPILossDB = cpiLossDB(r, s.Receiver.DopplerWindow)
+	rep.CPILossDB = cpiLossDB(r, s.Receiver.DopplerWindow, 0)
+	rep.CPILossOffsetDB = cpiLossDB(r, s.Receiver.DopplerWindow, float64(r.Pulses)*r.scanStep()/2)
 	n := max(1, int(math.Round(rep.HitsPerScan)))
 	n = min(n, dsp.MaxPulses)
 	coh, non := shape.BeamShapeLoss(n)
@@ -225,7 +232,7 @@ func scanReport(s *Scenario) *ScanReport {
 			cr := t.Radar
 			c := ScanCPI{HitsPerScan: dsp.HitsPerScan(cr.scanBeamwidthDeg(), cr.Scan.RateDegS, cr.PRIS), CPIS: float64(cr.Pulses) * cr.PRIS}
 			c.CPIExceedsDwell = c.CPIS > rep.DwellS
-			c.CPILossDB = cpiLossDB(cr, s.Receiver.DopplerWindow)
+			c.CPILossDB = cpiLossDB(cr, s.Receiver.DopplerWindow, 0)
 			total += c.CPIS
 			rep.CPIs = append(rep.CPIs, c)
 		}

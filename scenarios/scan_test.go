@@ -74,6 +74,11 @@ func TestScanLossOnMap(t *testing.T) {
 	if sr == nil || sr.CPILossDB == nil || math.Abs(*sr.CPILossDB-want) > 1e-9 {
 		t.Fatalf("scan report %+v, want cpi_loss_db %.6f", sr, want)
 	}
+	// Half a CPI (one beamwidth) off the peak: 16.66 dB, the golden file's
+	// first "offset" case (scan.py).
+	if sr.CPILossOffsetDB == nil || math.Abs(*sr.CPILossOffsetDB-16.657080143083505) > 1e-9 {
+		t.Errorf("cpi_loss_offset_db %v, golden 16.6571", sr.CPILossOffsetDB)
+	}
 	// 2°/(250°/s) = 8 ms dwell, 8 hits; the 16 ms CPI spans 2 beamwidths.
 	if math.Abs(sr.HitsPerScan-8) > 1e-12 || math.Abs(sr.DwellS-8e-3) > 1e-15 || !sr.CPIExceedsDwell || math.Abs(sr.CPIBeamwidths-2) > 1e-12 {
 		t.Errorf("hits %g, dwell %g, exceeds %v, beamwidths %g; want 8, 8 ms, true, 2", sr.HitsPerScan, sr.DwellS, sr.CPIExceedsDwell, sr.CPIBeamwidths)

@@ -24,7 +24,10 @@ func writeScanText(w io.Writer, r *scenarios.Report) {
 	}
 	line += "); "
 	if s.CPILossDB != nil {
-		line += fmt.Sprintf("the %s CPI spans %.2f beamwidths and loses %s dB", scenarios.SI(s.CPIS, "s"), s.CPIBeamwidths, fx(*s.CPILossDB, 2))
+		line += fmt.Sprintf("the %s CPI spans %.2f beamwidths and loses %s dB centred on the target", scenarios.SI(s.CPIS, "s"), s.CPIBeamwidths, fx(*s.CPILossDB, 2))
+		if s.CPILossOffsetDB != nil {
+			line += fmt.Sprintf(" (%s dB half a CPI off)", fx(*s.CPILossOffsetDB, 2))
+		}
 		if s.CPIExceedsDwell {
 			line += ", longer than the dwell"
 		}

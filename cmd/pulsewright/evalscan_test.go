@@ -29,7 +29,7 @@ func TestReportTextShowsScan(t *testing.T) {
 		t.Fatal(err)
 	}
 	out := b.String()
-	for _, want := range []string{"scan: 8.0 hits per scan (gaussian beam scanning in azimuth, dwell 8 ms, one turn 1.44 s)", "spans 2.00 beamwidths and loses 2.26 dB, longer than the dwell", "beam-shape loss", "scan loss on the map: jet 2.26 dB"} {
+	for _, want := range []string{"scan: 8.0 hits per scan (gaussian beam scanning in azimuth, dwell 8 ms, one turn 1.44 s)", "spans 2.00 beamwidths and loses 2.26 dB centred on the target (16.66 dB half a CPI off), longer than the dwell", "beam-shape loss", "scan loss on the map: jet 2.26 dB"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("text report lacks %q:\n%s", want, out)
 		}

@@ -11,6 +11,7 @@ two-way voltage gains a_k = f(u_k)^2, u_k = (k - (n-1)/2) step.
   coherent_db     10 log10((sum w)^2 / (sum w a)^2), w uniform or a
                   symmetric Hann window (scipy.signal.windows.hann(n, sym=True))
   noncoherent_db  10 log10(n / sum a^2)
+offset: trains starting at u0 (pulse k at u0 + k step), Hann weights.
 dense: the limits over the 3-dB beamwidth by scipy.integrate.quad:
   noncoherent -10 log10(int_{-1/2}^{1/2} f^4 du), coherent
   -20 log10(int_{-1/2}^{1/2} f^2 du).
@@ -60,6 +61,15 @@ for shape in ("gaussian", "sinc"):
             c["coherent_hann_db"] = db(w.sum() ** 2 / (w * a).sum() ** 2)
         cases.append(c)
 
+# Trains placed off centre: pulse k at u0 + k step (the scenario's CPI half
+# a CPI off the beam's peak), Hann weights.
+offset = []
+for shape, n, step, shift in [("gaussian", 16, 0.125, 1.0), ("gaussian", 16, 0.1, 0.8), ("sinc", 16, 0.1, 0.8)]:
+    u0 = shift - (n - 1) / 2 * step
+    a = np.array([f(shape, u0 + k * step) ** 2 for k in range(n)])
+    w = signal.windows.hann(n, sym=True)
+    offset.append({"shape": shape, "n": n, "step": step, "u0": u0, "coherent_hann_db": db(w.sum() ** 2 / (w * a).sum() ** 2)})
+
 dense = []
 for shape in ("gaussian", "sinc"):
     p4 = integrate.quad(lambda u: f(shape, u) ** 4, -0.5, 0.5, epsabs=1e-14, epsrel=1e-13)[0]
@@ -90,7 +100,7 @@ for shape, n, step in [("gaussian", 10, 0.1), ("gaussian", 16, 0.125), ("sinc", 
     pdcases.append({"shape": shape, "n": n, "step": step, "pfa": 1e-6, "pd": 0.9, "loss_db": db(chi / chi0)})
 
 out = {"script": "scan.py", "numpy": np.__version__, "scipy": scipy.__version__, "sinc_k": K,
-       "cases": cases, "dense": dense, "noncoherent_pd": pdcases}
+       "cases": cases, "offset": offset, "dense": dense, "noncoherent_pd": pdcases}
 with open("scan.json", "w") as fh:
     json.dump(out, fh, indent=1)
     fh.write("\n")

@@ -163,7 +163,8 @@ function renderStory(rep) {
   ];
   if (sr.cpi_loss_db !== undefined) {
     lines.push(h('li', { class: sr.cpi_exceeds_dwell ? 'scan-cpi warn' : 'scan-cpi', title: 'The CPI’s pulses centred on the beam’s peak, weighted by the two-way pattern and the Doppler window: the loss of the peak on the range–Doppler map.' },
-      `CPI ${secs(sr.cpi_s)} spans ${num(sr.cpi_beamwidths, 2)} beamwidths: scan loss ${num(sr.cpi_loss_db, 2)} dB`, sr.cpi_exceeds_dwell ? ' — longer than the dwell' : ''));
+      `CPI ${secs(sr.cpi_s)} spans ${num(sr.cpi_beamwidths, 2)} beamwidths: scan loss ${num(sr.cpi_loss_db, 2)} dB centred`,
+      sr.cpi_loss_offset_db !== undefined ? `, ${num(sr.cpi_loss_offset_db, 2)} dB half a CPI off` : '', sr.cpi_exceeds_dwell ? ' — longer than the dwell' : ''));
   } else {
     lines.push(h('li', { class: 'scan-cpi' }, 'One pulse at the beam’s peak: no scan loss'));
   }
