@@ -109,13 +109,27 @@ func (r Radar) dwellS() float64 { return r.scanBeamwidthDeg() / r.Scan.RateDegS 
 
 // scanGains returns the two-way voltage gain of each pulse of the CPI on a
 // point target (the CPI centred on the beam's peak), or nil without a scan
-// or with one pulse (at the peak: gain 1).
+// or with one pulse (at the peak: gain 1). Pulse p is transmitted at
+// p·PRI; the beam points at the target midway between the first pulse and
+// the last, and at t from then it is θ̇·t/θ beamwidths off.
 func (m *model) scanGains() []float64 {
 	r := m.s.Radar
 	if r.Scan == nil || r.Pulses < 2 {
 		return nil
 	}
-	return beamShape(r.Scan.Pattern).ScanGains(make([]float64, r.Pulses), r.Pulses, r.scanStep())
+	shape := beamShape(r.Scan.Pattern)
+	times := make([]float64, r.Pulses)
+	for p := range times {
+		times[p] = float64(p) * r.PRIS
+	}
+	mid := (times[0] + times[len(times)-1]) / 2
+	per := r.Scan.RateDegS / r.scanBeamwidthDeg() // beamwidths per second
+	a := make([]float64, len(times))
+	for p, t := range times {
+		f := shape.Voltage((t - mid) * per)
+		a[p] = f * f
+	}
+	return a
 }
 
 // clutterWidth returns the azimuth width (rad) of the surface clutter
