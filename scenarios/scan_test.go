@@ -205,6 +205,13 @@ func TestScanClutterPatch(t *testing.T) {
 			t.Errorf("%q: σ_c at 10 km %.4f dBsm, want %.4f", c.extra, got, c.want)
 		}
 	}
+	// A sea given by sea_state is weighted alike.
+	doc := seaDoc(`"sea_state": 3`, 1500, 8000)
+	a := target(mustEvaluate(t, mustDecode(t, doc)), "sea")
+	b := target(mustEvaluate(t, mustDecode(t, strings.Replace(doc, `"window_stop_m": 9000`, `"window_stop_m": 9000, "scan": {"rate_deg_s": 60}`, 1))), "sea")
+	if a.RangeM != b.RangeM || math.Abs(*a.CellRCSDBsm-*b.CellRCSDBsm-1.2339) > 1e-3 {
+		t.Errorf("sea_state cell %.4f dBsm at %.0f m, with a scan %.4f at %.0f m: want 1.2339 dB less", *a.CellRCSDBsm, a.RangeM, *b.CellRCSDBsm, b.RangeM)
+	}
 	// The rectangular patch to four places: 0.01·10⁴·(π/180)·15 m².
 	if want := dsp.DB(0.01 * 1e4 * math.Pi / 180 * 15); math.Abs(want-14.1797) > 1e-4 {
 		t.Errorf("rectangular patch %.5f dBsm", want)
