@@ -221,6 +221,7 @@ func (sc *scene) pointExtras(j int, g *tgt, lp *localPlan, b int, pre, lin []com
 	fe := sc.fe
 	if lin != nil {
 		r := sc.localResponse(lp, lin, b)
+		g.unclipped = r
 		_, p0 := r.peak()
 		if _, p := g.resp.peak(); p > 0 && p0 > 0 {
 			g.clipLossDB = math.Max(dsp.DB(p0/p), 0)

@@ -113,6 +113,9 @@ type tgt struct {
 	rainLossDB                    float64 // point: two-way rain attenuation at its range, dB
 	multipathDB                   float64 // point: two-way multipath gain over a flat sea, dB (may be −Inf)
 	multipath                     bool
+	// Point: its response had the ADC not clipped its echo (empty when
+	// not clipped), for the dynamic-range view (floors.go).
+	unclipped response
 }
 
 func streamOf(seed int64, id string, salt uint64) *rand.Rand {

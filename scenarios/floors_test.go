@@ -1,0 +1,166 @@
+package scenarios
+
+import (
+	"errors"
+	"math"
+	"strings"
+	"testing"
+)
+
+func mustFloors(t *testing.T, res *Result, target, row string) *Floors {
+	t.Helper()
+	f, err := res.Floors(target, row)
+	if err != nil {
+		t.Fatalf("floors: %v", err)
+	}
+	return f
+}
+
+func (f *Floors) curve(id string) []float64 {
+	for _, c := range f.Curves {
+		if c.ID == id {
+			return c.DB
+		}
+	}
+	return nil
+}
+
+func (f *Floors) mark(id string) FloorMark {
+	for _, m := range f.Marks {
+		if m.ID == id {
+			return m
+		}
+	}
+	return FloorMark{}
+}
+
+// gate returns the window sample of range r on the floors' grid.
+func (f *Floors) gate(r float64) int { return int(math.Round((r - f.RangeM0) / f.RangeStepM)) }
+
+// TestFloorsPhaseNoiseSkirt: the issue's check (TestPhaseNoiseSkirtMasks
+// sets it up: a phase-noise floor of about −50 dBc over the skiff's
+// Doppler cell, range correlation after Budge & Burt, Proc. IEEE
+// Southeastcon 1993, formula from memory) seen in the dynamic-range
+// view: with the tanker selected (the strongest target, so also the
+// default), the curves follow the skiff's Doppler row, the tanker's
+// skirt there is the highest floor at the skiff's range, above the
+// tanker's own response (its Doppler sidelobes) and above the skiff's
+// peak, and the skiff's mark names the skirt. The ideal receiver's view
+// has no skirt and the skiff clears every floor.
+func TestFloorsPhaseNoiseSkirt(t *testing.T) {
+	const fe = `{"phase_noise_offsets_hz":[100,3000,30000],"phase_noise_dbc_hz":[-70.5,-70.5,-130]}`
+	res := mustEvaluate(t, mustDecode(t, pnScene(fe)))
+	f := mustFloors(t, res, "", "")
+	if f.Target != "tanker" || f.RowTarget != "skiff" || f.Row < 0 {
+		t.Fatalf("selected %q, row %d through %q; want tanker, the skiff's row", f.Target, f.Row, f.RowTarget)
+	}
+	sk := f.mark("skiff")
+	if sk.Floor != FloorSkirt || !sk.Hidden || !sk.OnRow || sk.Status != StatusMasked {
+		t.Errorf("skiff's mark: %+v, want hidden by the skirt", sk)
+	}
+	k := f.gate(sk.RangeM)
+	skirt, resp := f.curve(FloorSkirt), f.curve(FloorResponse)
+	if skirt == nil || resp == nil {
+		t.Fatalf("curves %v lack the skirt or the response", f.Curves)
+	}
+	t.Logf("at the skiff: skirt %.1f dB, tanker's response %.1f dB, skiff's peak %.1f dB, threshold %.1f dB, tanker's peak %.1f dB",
+		skirt[k], resp[k], sk.PeakDB, f.curve(FloorThreshold)[k], f.PeakDB)
+	if !(skirt[k] > resp[k] && skirt[k] > sk.PeakDB && skirt[k] > 0) {
+		t.Errorf("at the skiff the skirt (%.1f dB) is not above the response (%.1f dB), the skiff (%.1f dB) and noise", skirt[k], resp[k], sk.PeakDB)
+	}
+	if math.Abs(sk.FloorDB-skirt[k]) > 1e-9 {
+		t.Errorf("mark's floor %.3f dB, curve there %.3f dB", sk.FloorDB, skirt[k])
+	}
+	// The skirt re the tanker's map peak: −50 dBc over one Doppler bin,
+	// seen through the Doppler filter's noise bandwidth, 2.00 bins for the
+	// 4-term Blackman-Harris window (+3.0 dB; Harris, Proc. IEEE 66(1),
+	// 1978, Table I), within 1 dB (the profile is not flat over the
+	// filter's 8-bin main lobe).
+	if d := skirt[k] - f.PeakDB; math.Abs(d-(-50+3.0)) > 1 {
+		t.Errorf("skirt %.2f dB re the tanker's peak, want −50 + 3.0 dB within 1 dB", d)
+	}
+
+	ideal := mustFloors(t, mustEvaluate(t, mustDecode(t, pnScene(""))), "tanker", "skiff")
+	if ideal.curve(FloorSkirt) != nil {
+		t.Errorf("the ideal receiver has a skirt")
+	}
+	if m := ideal.mark("skiff"); m.Hidden || m.Status != StatusDetected || m.PeakDB <= m.FloorDB {
+		t.Errorf("ideal receiver: skiff's mark %+v", m)
+	}
+}
+
+// TestFloorsQuantisation: an 8-bit converter 60 dB over thermal noise
+// (TestADCQuantisationMasks: a sign detector, quantisation noise π/2 − 1
+// of the thermal noise, the hard-limiting loss; Kester, Analog Devices
+// MT-001 for the uniform model it departs from) masks a weak target
+// through the CA-CFAR; with a strong target selected, the weak one's mark
+// names the ADC's floor, the quantisation curve sits at
+// 10·log10(π/2 − 1) = −2.43 dB and the engine's reason names the same.
+func TestFloorsQuantisation(t *testing.T) {
+	ca := `{"kind":"ca_cfar","pfa":1e-6,"guard_cells":8,"training_cells":32}`
+	doc := lfmScene(`{"kind":"none"}`, ca, pointJSON("big", 4000, rcsFor(60, 4000)), pointJSON("far", 8000, rcsFor(16.0, 8000)))
+	res := mustEvaluate(t, mustDecode(t, withFrontEnd(doc, `{"adc_bits":8,"adc_full_scale_db":60}`)))
+	far := target(res, "far")
+	if far.Status != StatusMasked || !strings.Contains(far.Reason, "quantisation noise") {
+		t.Fatalf("far %s: %s", far.Status, far.Reason)
+	}
+	f := mustFloors(t, res, "", "")
+	if f.Target != "big" || f.Row != -1 {
+		t.Fatalf("selected %q row %d", f.Target, f.Row)
+	}
+	m := f.mark("far")
+	if m.Floor != FloorQuantise || !m.Hidden {
+		t.Errorf("far's mark %+v, want hidden by the quantisation floor", m)
+	}
+	q := f.curve(FloorQuantise)
+	if q == nil {
+		t.Fatal("no quantisation curve")
+	}
+	want := 10 * math.Log10(math.Pi/2-1)
+	if k := f.gate(8000); math.Abs(q[k]-want) > 1e-6 || math.Abs(m.FloorDB-want) > 1e-6 {
+		t.Errorf("quantisation floor %.4f dB (mark %.4f dB), want %.4f", q[k], m.FloorDB, want)
+	}
+}
+
+// TestFloorsSidelobe: TestMaskingBySidelobe's weak target on the third
+// range sidelobe of an unweighted LFM (sinc sidelobes, textbook result,
+// common practice, no source) is hidden by the strong target's response;
+// the response curve at its range equals the engine's rest-of-scene power
+// at its cell.
+func TestFloorsSidelobe(t *testing.T) {
+	const r0 = 6000.0
+	weakR := r0 + 3.47*C/(2*1e7)
+	doc := lfmScene(`{"kind":"none"}`, `{"kind":"fixed","pfa":1e-6}`, pointJSON("strong", r0, rcsFor(60, r0)), pointJSON("weak", weakR, rcsFor(35, weakR)))
+	res := mustEvaluate(t, mustDecode(t, doc))
+	f := mustFloors(t, res, "strong", "")
+	m := f.mark("weak")
+	if m.Floor != FloorResponse || !m.Hidden {
+		t.Errorf("weak's mark %+v, want hidden by strong's response", m)
+	}
+	if k := f.gate(m.RangeM); !(f.curve(FloorResponse)[k] > m.PeakDB) {
+		t.Errorf("response %.1f dB at the weak target's %.1f dB peak", f.curve(FloorResponse)[k], m.PeakDB)
+	}
+	// Selecting the weak one: the strong target is not hidden, its floor
+	// is the highest at its cell (the weak one's response or noise).
+	f = mustFloors(t, res, "weak", "")
+	if s := f.mark("strong"); s.Hidden || s.Status != StatusDetected || s.PeakDB < 59 {
+		t.Errorf("strong's mark with weak selected: %+v", s)
+	}
+}
+
+// TestFloorsErrors: an unknown target or row is refused with its value
+// and the valid ids; a result without a scene says so.
+func TestFloorsErrors(t *testing.T) {
+	res := mustEvaluate(t, mustDecode(t, lfmScene(`{"kind":"none"}`, "", pointJSON("a", 6000, 0), pointJSON("b", 7000, 0))))
+	_, err := res.Floors("zz", "")
+	if err == nil || !errors.Is(err, ErrInvalid) || !strings.Contains(err.Error(), `target "zz"`) || !strings.Contains(err.Error(), "a, b") {
+		t.Errorf("unknown target: %v", err)
+	}
+	if _, err := (&Result{}).Floors("", ""); err == nil || !errors.Is(err, ErrInvalid) {
+		t.Errorf("no scene: %v", err)
+	}
+	f := mustFloors(t, res, "b", "zz") // single pulse: no row to choose
+	if f.Row != -1 {
+		t.Errorf("single pulse row %d", f.Row)
+	}
+}
