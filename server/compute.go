@@ -206,6 +206,11 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 	f := ss.newFrame()
 	f.id, f.report, f.link, f.reference = w.id, c.report, c.link, nil
 	c.chartsOf(f, c.res, c.pinRes, w.view, len(ss.frames.ch) > 0)
+	if ch, ok, err := floorsChart(c.res, w.view); err != nil {
+		ss.log.Debug("floors", "id", w.id, "err", err)
+	} else if ok {
+		f.charts = append(f.charts, ch)
+	}
 	f.charts = append(f.charts, c.amb...)
 	f.charts = append(f.charts, c.wave...)
 	if c.pin != nil {
