@@ -24,6 +24,7 @@ const (
 	FloorQuantise  = "quantisation" // the ADC's quantisation noise
 	FloorDC        = "dc"           // the receiver's DC offset
 	FloorOthers    = "others"       // the rest of the scene: the other targets, clutter and their impairments
+	FloorOwn       = "own"          // a marked target's own response (it masks itself through the CFAR)
 	FloorThermal   = "thermal"      // thermal noise, 0 dB
 	FloorThreshold = "threshold"    // the detection threshold
 )
@@ -45,8 +46,9 @@ type FloorMark struct {
 	Status string  // its status in the report
 	// Floor names what hides it when it is masked (the engine's masked_by
 	// and cause: FloorResponse, FloorSkirt or FloorImage of the selected
-	// target, FloorQuantise or FloorDC of the receiver, FloorOthers for
-	// anything else, then Source names it) or too weak (FloorThermal);
+	// target, FloorQuantise or FloorDC of the receiver, FloorOwn when it
+	// masks itself, FloorOthers for anything else, then Source names it)
+	// or too weak (FloorThermal);
 	// for any other status, the highest floor at its cell, thermal noise
 	// included. FloorDB is that floor's power at its cell, dB re output
 	// noise.
@@ -189,6 +191,9 @@ func (r *Result) Floors(target, row string) (*Floors, error) {
 		case verdicts[j] != nil:
 			v := verdicts[j]
 			mk.Floor, mk.Hidden = fv.name(v.culprit, v.cause), true
+			if v.culprit == j {
+				mk.Floor = FloorOwn
+			}
 			if mk.Floor == FloorOthers && v.culprit >= 0 {
 				mk.Source = ids[v.culprit]
 				if v.cause != "" {
@@ -204,6 +209,9 @@ func (r *Result) Floors(target, row string) (*Floors, error) {
 					best, mk.Floor = parts[id], id
 				}
 			}
+		}
+		if mk.Floor == FloorOwn {
+			parts[FloorOwn] = fv.power(j, k, d)
 		}
 		mk.FloorDB = toDB(parts[mk.Floor])
 		_ = g

@@ -38,6 +38,7 @@ var floorStyle = map[string]struct {
 	scenarios.FloorQuantise:  {"#138a72", opts.LineStyle{Width: 1.4, Type: "dashed"}},
 	scenarios.FloorDC:        {"#a0740b", opts.LineStyle{Width: 1.2, Type: "dashed"}},
 	scenarios.FloorOthers:    {"#a9b3bd", opts.LineStyle{Width: 1}},
+	scenarios.FloorOwn:       {"#6b5b95", opts.LineStyle{Width: 1}},
 	scenarios.FloorThermal:   {colourNoise, opts.LineStyle{Width: 1.2, Type: "dotted"}},
 	scenarios.FloorThreshold: {colourThreshold, opts.LineStyle{Width: 1.2, Type: "dashed"}},
 }
@@ -50,6 +51,7 @@ var floorWords = map[string]string{
 	scenarios.FloorQuantise:  "ADC quantisation",
 	scenarios.FloorDC:        "DC offset",
 	scenarios.FloorOthers:    "rest of the scene",
+	scenarios.FloorOwn:       "its own response",
 	scenarios.FloorThermal:   "thermal noise",
 	scenarios.FloorUnclipped: "unclipped response",
 }
@@ -201,6 +203,8 @@ func markItem(m scenarios.FloorMark, f *scenarios.Floors) map[string]any {
 	switch {
 	case m.Hidden && m.Floor == scenarios.FloorThermal:
 		tip = fmt.Sprintf("%s: %s, its peak %.1f dB is too weak for thermal noise", m.ID, statusWords(m.Status), m.PeakDB)
+	case m.Hidden && m.Floor == scenarios.FloorOwn:
+		tip = fmt.Sprintf("%s: %s by its own response, which fills the detector's training cells (its peak %.1f dB)", m.ID, statusWords(m.Status), m.PeakDB)
 	case m.Hidden && m.Floor == scenarios.FloorOthers && m.Source != "":
 		tip = fmt.Sprintf("%s: %s, hidden by %s (%.1f dB at its cell; its peak %.1f dB)", m.ID, statusWords(m.Status), m.Source, m.FloorDB, m.PeakDB)
 	case m.Hidden && m.Floor == scenarios.FloorQuantise, m.Hidden && m.Floor == scenarios.FloorDC:

@@ -27,7 +27,8 @@ type floorsOption struct {
 // merges while its structure holds; the harbour demo's view names the
 // tanker (the strongest target) and marks the skiff as hidden by its
 // response (the demo's story: its range sidelobes fill the skiff's CFAR
-// cells), which is the engine's masked_by.
+// cells), which is the engine's masked_by; the pilot boat, which masks
+// itself through the CFAR, is marked with its own response.
 func TestSessionFloors(t *testing.T) {
 	s, err := New(Config{DataDir: t.TempDir(), SessionEvaluator: func() Evaluator { return new(scenarios.Engine).Evaluate }}, testLogger(t), scenarios.Evaluate)
 	if err != nil {
@@ -56,7 +57,7 @@ func TestSessionFloors(t *testing.T) {
 	for _, s := range opt.Series {
 		ids = append(ids, s.ID)
 	}
-	for _, want := range []string{"floor-response", "floor-others", "floor-thermal", "floor-threshold", "marks-response"} {
+	for _, want := range []string{"floor-response", "floor-others", "floor-thermal", "floor-threshold", "marks-response", "marks-own"} {
 		if !slices.Contains(ids, want) {
 			t.Errorf("series %v lack %s", ids, want)
 		}
