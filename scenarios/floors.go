@@ -8,7 +8,7 @@ import (
 	"github.com/pulsewright/pulsewright/dsp"
 )
 
-// The dynamic-range view (docs/detection.md §14): for one target, the
+// The dynamic-range view (docs/detection.md §15): for one target, the
 // noise-free floors its echo and the receiver lay against range, in the
 // range profile's units (dB re the thermal noise power at the
 // compression filter's output), read from the same noise-free scene the

@@ -13,7 +13,7 @@ import (
 )
 
 // The Floors tab (web/static/js/floors.js): the dynamic-range view of one
-// target (scenarios.Result.Floors, docs/detection.md §14), sent while the
+// target (scenarios.Result.Floors, docs/detection.md §15), sent while the
 // page shows the tab (a floors message) and left out of frames
 // otherwise, so that it costs nothing then.
 

@@ -1,6 +1,6 @@
 #!/usr/bin/python3
 """Golden curves for the dynamic-range view (scenarios/floors.go,
-docs/detection.md section 14), computed here from the definitions,
+docs/detection.md section 15), computed here from the definitions,
 independently of the Go code.
 
 Every case is a whole scenario (written out below as JSON, read by

@@ -1,5 +1,5 @@
 // The "Floors" tab of the lower right plot: the dynamic-range view of one
-// target (docs/detection.md §14) — its response, phase-noise skirt and
+// target (docs/detection.md §15) — its response, phase-noise skirt and
 // I/Q image, the ADC's and DC floors, the rest of the scene, thermal
 // noise and the threshold against range, and each other target marked in
 // the colour of the floor that hides it. The option is built on the
