@@ -266,6 +266,16 @@ func (sc *scene) localResponse(lp *localPlan, x []complex128, b int) response {
 // compressed, weighted by the cell's power (docs/detection.md §12), and,
 // for pulse trains, the offsets below PRF/2 as Doppler tones on its own
 // response. Its own response loses the skirt's share of power.
+//
+// The fast part is split into a white floor and the rest: the density
+// ρ of the top cell (the far-out floor) over every offset in the band,
+// which Parseval's theorem gives exactly in one correlation,
+// ρ·fs·Σ_n |x[n]|²·|h[n−k]|², less its share below the first compressed
+// cell (ρ·2·f_lo times the response) and beyond the band; then each cell's
+// power above that floor, compressed at offsets at most 1/(2τ) apart (a
+// Doppler step of 1/τ moves an LFM's response by one resolution cell,
+// so wider cells would land as separate lumps), at most
+// maxSkirtCompressions of them.
 func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 	m, fe := sc.m, sc.fe
 	T := 2 * g.t.RangeM / C
@@ -283,40 +293,91 @@ func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 		return
 	}
 	sk := response{lo: g.resp.lo, pow: make([]float64, len(g.resp.pow))}
-	shapeW := 0.0
 	x := make([]complex128, len(lp.x))
-	for i, v := range w {
-		if !(v > 0) {
-			continue
+	// echo fills x with the echo shifted by fd Hz (dsp.AddEcho's sampled
+	// Doppler, which wraps beyond ±fs/2), as the receiver records it.
+	echo := func(fd float64) {
+		clear(x)
+		dsp.AddEcho(x, m.wave, m.fs, g.delay-float64(b)/m.fs, complex(g.amp, 0)*g.phase*fe.mu, fd)
+		for i := range x {
+			if k := b + i; k < 0 || k >= m.recLen {
+				x[i] = 0
+			}
 		}
-		fc := math.Sqrt(edges[i] * edges[i+1])
+		fe.stcShape(m, x, b)
+	}
+	add := func(fd, weight float64) {
+		echo(fd)
+		r := sc.localResponse(lp, x, b)
+		for k, p := range r.pow {
+			if kk := r.lo + k - sk.lo; kk >= 0 && kk < len(sk.pow) {
+				sk.pow[kk] += weight * p
+			}
+		}
+	}
+	shapeW, rho, fLo := 0.0, 0.0, -1.0
+	if n := len(w); n > 0 && edges[n] > edges[n-1] {
+		rho = w[n-1] / (edges[n] - edges[n-1])
+	}
+	for i := range w {
 		if edges[i+1] <= 1/(20*m.tau) {
-			shapeW += 2 * v // offsets this close leave the compressed shape unchanged
+			shapeW += 2 * w[i] // offsets this close leave the compressed shape unchanged
+		} else if fLo < 0 {
+			fLo = edges[i]
+		}
+	}
+	if fLo >= 0 && rho > 0 {
+		// The white floor over the band: |x|² correlated with |h|².
+		echo(g.fd)
+		sc.blank(x, b)
+		for i, v := range x {
+			x[i] = complex(real(v)*real(v)+imag(v)*imag(v), 0)
+		}
+		y := sc.powerCorrelator(len(x)).Apply(nil, x)
+		for k := range sk.pow {
+			if i := sk.lo + k - b - m.lead; i >= 0 && i < len(y) {
+				sk.pow[k] += rho * m.fs * math.Max(real(y[i]), 0) / m.noiseGain
+			}
+		}
+		// Less the offsets under the first compressed cell, which keep the
+		// response's shape, and those past the band's far edge (−fs/2 − f_d
+		// … −fs/2 for f_d > 0), which the profile does not reach.
+		for k, p := range g.resp.pow {
+			sk.pow[k] -= rho * 2 * fLo * p
+		}
+		if g.fd != 0 {
+			add(math.Copysign(m.fs/2, -g.fd)+g.fd/2, -rho*math.Abs(g.fd))
+		}
+	}
+	// Each cell's power above the floor, on offsets at most 1/(2τ) apart.
+	budget := maxSkirtCompressions
+	for i, v := range w {
+		a, bb := edges[i], edges[i+1]
+		if bb <= 1/(20*m.tau) || !(v > 0) {
 			continue
 		}
-		for _, sgn := range []float64{1, -1} {
-			fd := g.fd + sgn*fc
-			if math.Abs(fd) >= m.fs/2 {
-				continue // outside the receiver's band
+		if rest := v - rho*(bb-a); math.Abs(rest) < 1e-4*fast/2 {
+			continue // the floor holds this cell
+		}
+		parts := max(1, min(int(math.Ceil((bb-a)*2*m.tau)), budget/2))
+		budget -= parts
+		for q := range parts {
+			lo, hi := a+(bb-a)*float64(q)/float64(parts), a+(bb-a)*float64(q+1)/float64(parts)
+			fc := math.Sqrt(lo * hi)
+			if parts > 1 {
+				fc = (lo + hi) / 2
 			}
-			clear(x)
-			m.addEcho(x, g.delay-float64(b)/m.fs, complex(g.amp, 0)*g.phase*fe.mu, fd)
-			for i := range x {
-				if k := b + i; k < 0 || k >= m.recLen {
-					x[i] = 0
+			rest := fe.pn.EchoBand(lo, hi, T) - rho*(hi-lo)
+			for _, sgn := range []float64{1, -1} {
+				if math.Abs(g.fd+sgn*fc) >= m.fs/2 {
+					continue // outside the receiver's band (the floor left it out too)
 				}
-			}
-			fe.stcShape(m, x, b)
-			r := sc.localResponse(lp, x, b)
-			for k, p := range r.pow {
-				if kk := r.lo + k - sk.lo; kk >= 0 && kk < len(sk.pow) {
-					sk.pow[kk] += v * p
-				}
+				add(g.fd+sgn*fc, rest)
 			}
 		}
 	}
 	for k, p := range g.resp.pow {
-		sk.pow[k] += shapeW * p
+		sk.pow[k] = math.Max(sk.pow[k]+shapeW*p, 0)
 		g.resp.pow[k] = p * (1 - fast)
 	}
 	g.slowVar = slowVar
@@ -326,6 +387,23 @@ func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 		sc.addExtra(extra{owner: j, cause: causeSkirt, resp: own, tones: slow})
 	}
 	g.skirtVarDB = dsp.DB(fast + slowVar)
+}
+
+// maxSkirtCompressions bounds the compressions of one point target's
+// skirt cells (both sides), beyond its white floor.
+const maxSkirtCompressions = 512
+
+// powerCorrelator returns a correlator of length n with |ref|² as its
+// reference, kept for the scene.
+func (sc *scene) powerCorrelator(n int) *dsp.Correlator {
+	if sc.powCorr == nil || sc.powCorrN != n {
+		h := make([]complex128, len(sc.m.ref))
+		for i, v := range sc.m.ref {
+			h[i] = complex(real(v)*real(v)+imag(v)*imag(v), 0)
+		}
+		sc.powCorr, sc.powCorrN = dsp.NewCorrelator(h, n), n
+	}
+	return sc.powCorr
 }
 
 // receiverExtras adds the quantisation noise and the DC offset.

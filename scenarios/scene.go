@@ -72,6 +72,10 @@ type scene struct {
 	partial          bool
 	fe               *frontEnd
 	extras           []extra // impairments' power (impair.go)
+	// powCorr correlates |echo|² with |ref|² (powCorrN samples): the
+	// white floor of phase-noise skirts (impair.go).
+	powCorr  *dsp.Correlator
+	powCorrN int
 }
 
 // reaches reports whether a response over window samples [lo, hi) is

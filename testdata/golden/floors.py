@@ -28,8 +28,10 @@ skirt: the phase-noise skirt of one echo for a piecewise profile L(f)
   S(f) = L(f) 4 sin^2(pi f T) (T = 2R/c: one oscillator transmits and
   receives; range correlation) on both sides of the carrier, for offsets
   from PRF/2 to fs/2 (a single pulse's fast-time noise), integrated with
-  the trapezoid rule on 240 points per decade (not the engine's 8 cells
-  per decade); offsets where fd + f leaves the band +-fs/2 are dropped.
+  the trapezoid rule on 240 points per decade and at least 16 points per
+  period 1/T of the 4 sin^2 factor (the engine's cells are an eighth of a
+  decade, and it takes that factor's mean, 2, above 8/T); offsets where
+  fd + f leaves the band +-fs/2 are dropped.
 quantisation: the ADC's floor: a mid-rise quantiser (levels (i + 1/2) step,
   step = 2 A / 2^bits, beyond +-A the outermost level) on thermal noise of
   variance 1/2 per channel, split as Q(x) = g x + d (Bussgang): the floor
@@ -126,7 +128,11 @@ def case_skirt():
     T = 2 * r / C
     a2 = amp2(RADAR, fs, rcs, r)
     lo, hi = 1 / (2 * RADAR["pri_s"]), fs / 2
-    f = np.logspace(math.log10(lo), math.log10(hi), int(round(math.log10(hi / lo) * 240)) + 1)
+    # 240 points per decade, and at least 16 per period 1/T of 4 sin^2.
+    f = [lo]
+    while f[-1] < hi:
+        f.append(min(hi, f[-1] + min(f[-1] * (10 ** (1 / 240) - 1), 1 / (16 * T))))
+    f = np.array(f)
     s = 10 ** (level(profile, f) / 10) * 4 * np.sin(math.pi * f * T) ** 2
     w = np.zeros_like(f)  # trapezoid weights
     w[1:] += np.diff(f) / 2
