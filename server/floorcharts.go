@@ -142,7 +142,7 @@ func floorsChart(res *scenarios.Result, vw view) (chartOut, bool, error) {
 	b.extra["floor-"+scenarios.FloorThreshold] = seriesExtra{EndLabel: map[string]any{
 		"show": true, "formatter": "threshold", "color": colourThreshold, "fontSize": 11, "offset": []int{-62, -9}}}
 	b.line.SetGlobalOptions(charts.WithTitleOpts(opts.Title{Title: floorsTitle(f), Left: "64", Top: "0",
-		TitleStyle: &opts.TextStyle{FontSize: 12, Color: "#25292e"}}),
+		TitleStyle: &opts.TextStyle{FontSize: 11, Color: "#25292e"}}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Type: "scroll", Top: "20", Left: "64", Right: "8", ItemWidth: 18, ItemHeight: 10,
 			TextStyle: &opts.TextStyle{FontSize: 11}}),
 		charts.WithGridOpts(opts.Grid{Left: fmt.Sprint(gridLeft), Right: "18", Top: "50", Bottom: "62"}))
@@ -228,11 +228,11 @@ func statusWords(s string) string { return strings.ReplaceAll(s, "_", " ") }
 
 // floorsTitle names the selected target and, for a pulse train, the row.
 func floorsTitle(f *scenarios.Floors) string {
-	t := fmt.Sprintf("Floors of %s (peak %.1f dB)", plainLabel(f.Target), f.PeakDB)
+	t := plainLabel(f.Target)
 	if f.Row >= 0 {
-		t += fmt.Sprintf(" on the map row at %+.1f m/s", f.RowRateMPS)
+		t += fmt.Sprintf(" · map row %+.1f m/s", f.RowRateMPS)
 		if f.RowTarget != f.Target {
-			t += " through " + plainLabel(f.RowTarget)
+			t += " (" + plainLabel(f.RowTarget) + ")"
 		}
 	}
 	return t

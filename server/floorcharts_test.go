@@ -120,3 +120,19 @@ func keysOf(m testMsg) []string {
 	slices.Sort(out)
 	return out
 }
+
+// TestMaskWords: the profile's masking label names the impairment the
+// reason names (the Floors tab and the label agree).
+func TestMaskWords(t *testing.T) {
+	for _, c := range []struct{ reason, id, want string }{
+		{"Masked by tanker's phase-noise skirt (its echo's …", "tanker", "'s phase-noise skirt masks "},
+		{"Masked by tanker's I/Q image (image rejection …", "tanker", "'s I/Q image masks "},
+		{"Masked by tanker through the CA-CFAR: …", "tanker", "'s response masks "},
+		{"Masked by tank's phase-noise skirt", "tanker", "'s response masks "},
+		{"", "tanker", "'s response masks "},
+	} {
+		if got := maskWords(c.reason, c.id); got != c.want {
+			t.Errorf("maskWords(%q, %q) = %q, want %q", c.reason, c.id, got, c.want)
+		}
+	}
+}

@@ -1,12 +1,16 @@
 package web_test
 
 import (
+	"fmt"
 	"strconv"
 	"strings"
 	"testing"
 
 	"github.com/chromedp/chromedp"
 	"github.com/chromedp/chromedp/kb"
+
+	"github.com/pulsewright/pulsewright/dsp"
+	"github.com/pulsewright/pulsewright/scenarios"
 )
 
 // JavaScript that reads the Floors chart's settled state: its title and
@@ -76,4 +80,38 @@ func contains(v []string, s string) bool {
 		}
 	}
 	return false
+}
+
+// The issue's case on the page: a 32-pulse train with a tanker 55 dB over
+// a skiff in its range gate, 8 Doppler bins away, and a phase-noise
+// profile of about −50 dBc over the skiff's Doppler cell (the scene of
+// scenarios' TestPhaseNoiseSkirtMasks). The Floors tab, open when the
+// scene loads, follows the skiff's map row and marks it hidden by the
+// tanker's phase-noise skirt.
+func TestFloorsTabPhaseNoise(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	do(t, ctx, chromedp.Click(chromedp.CSS(`.plot-head [data-show="floors"]`)))
+	waitFor(t, ctx, "the demo's floors", `(() => { const f = `+jsFloors+`; return f && f.title.includes('tanker'); })()`)
+	lambda := scenarios.C / 9.5e9
+	rate := -lambda / 2 * 8 / (32 * 1e-4)
+	rcs := func(snr, r float64) float64 {
+		return snr - dsp.DB(dsp.RadarSNR(1000, 1e-5, dsp.FromDB(30), lambda, 1, r, dsp.FromDB(3), dsp.FromDB(3)))
+	}
+	scene := fmt.Sprintf(`{"version":2,"name":"phase-noise skirt","radar":{"peak_power_w":1000,"sample_rate_hz":4e7,"pri_s":1e-4,"pulses":32,"window_start_m":3000,"window_stop_m":9000},
+		"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e7},
+		"receiver":{"mti":"none","doppler_window":{"kind":"blackman_harris"},"window":{"kind":"none"},"detector":{"kind":"fixed","pfa":1e-6}},
+		"front_end":{"phase_noise_offsets_hz":[100,3000,30000],"phase_noise_dbc_hz":[-70.5,-70.5,-130]},
+		"targets":[{"id":"tanker","kind":"point","range_m":6000,"rcs_dbsm":%g},{"id":"skiff","kind":"point","range_m":6000,"rcs_dbsm":%g,"range_rate_mps":%g}]}`,
+		rcs(70, 6000), rcs(15, 6000), rate)
+	eval[bool](t, ctx, `(() => { window.__pw.store.load(`+scene+`); return true; })()`)
+	waitFor(t, ctx, "the skirt hiding the skiff", `(() => { const f = `+jsFloors+`; return f && f.title.includes('(skiff)') && f.marks.skiff === 'skirt:hidden'; })()`)
+	st := eval[floorsState](t, ctx, jsFloors)
+	if !contains(st.Series, "floor-skirt") || !contains(st.Series, "marks-skirt") {
+		t.Errorf("series %v", st.Series)
+	}
+	if r := eval[string](t, ctx, jsTarget+`('skiff').reason`); !strings.Contains(r, "tanker's phase-noise skirt") {
+		t.Errorf("the skiff's reason does not name the skirt: %s", r)
+	}
+	shot(t, ctx, "")
 }

@@ -27,8 +27,8 @@ const shown = () => pane.classList.contains('on');
 function ask() {
   session.sendFloors(shown() ? { target: chosen } : null);
   note.textContent = chosen
-    ? `Floors of ${chosen}, the target selected in the table.`
-    : 'Floors of the strongest target; select a row of the target table to choose another.';
+    ? `Floors of ${chosen}, selected in the target table`
+    : 'Floors of the strongest target · a row of the target table picks another';
 }
 
 // Tabs of the lower right plot: ask while this one shows, stop otherwise.
