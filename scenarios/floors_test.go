@@ -164,3 +164,39 @@ func TestFloorsErrors(t *testing.T) {
 		t.Errorf("single pulse row %d", f.Row)
 	}
 }
+
+// BenchmarkFloors: the view of the harbour demo's tanker (single pulse)
+// and of the phase-noise train's tanker, from an evaluation already made
+// (what a frame costs while the Floors tab shows).
+func BenchmarkFloors(b *testing.B) {
+	d, err := LoadDemo("harbour-skiff")
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, c := range []struct {
+		name string
+		s    *Scenario
+	}{
+		{"harbour", d.Scenario},
+		{"train", mustDecode(b, pnScene(`{"phase_noise_offsets_hz":[100,3000,30000],"phase_noise_dbc_hz":[-70.5,-70.5,-130]}`))},
+	} {
+		res := mustEvaluate(b, c.s)
+		b.Run(c.name, func(b *testing.B) {
+			b.ReportAllocs()
+			for b.Loop() {
+				if _, err := res.Floors("", ""); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkEvaluatePhaseNoise: a whole evaluation of the phase-noise
+// train (its skirts included).
+func BenchmarkEvaluatePhaseNoise(b *testing.B) {
+	s := mustDecode(b, pnScene(`{"phase_noise_offsets_hz":[100,3000,30000],"phase_noise_dbc_hz":[-70.5,-70.5,-130]}`))
+	for b.Loop() {
+		mustEvaluate(b, s)
+	}
+}

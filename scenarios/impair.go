@@ -391,7 +391,7 @@ func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 
 // maxSkirtCompressions bounds the compressions of one point target's
 // skirt cells (both sides), beyond its white floor.
-const maxSkirtCompressions = 512
+const maxSkirtCompressions = 256
 
 // powerCorrelator returns a correlator of length n with |ref|² as its
 // reference, kept for the scene.
