@@ -3,6 +3,7 @@ package scenarios
 import (
 	"errors"
 	"math"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -199,4 +200,59 @@ func BenchmarkEvaluatePhaseNoise(b *testing.B) {
 	for b.Loop() {
 		mustEvaluate(b, s)
 	}
+}
+
+// TestFloorsClipping: TestADCClipping's echo, 6 dB over the ADC's full
+// scale (its loss checked there against dsp's clipper and correlator):
+// the view draws the response as clipped and, beside it, the unclipped
+// one, whose peak is higher by the loss the reason states, while the
+// clipped response's far sidelobes rise above the unclipped ones (the
+// saturation's harmonics do not compress).
+func TestFloorsClipping(t *testing.T) {
+	step := C / (2 * 4e7)
+	r := 3000 + 800*step
+	doc := lfmScene(`{"kind":"none"}`, `{"kind":"fixed","pfa":1e-6}`, pointJSON("big", r, rcsFor(90, r)))
+	res := mustEvaluate(t, mustDecode(t, withFrontEnd(doc, `{"adc_bits":16,"adc_full_scale_db":58}`)))
+	f := mustFloors(t, res, "big", "")
+	resp, lin := f.curve(FloorResponse), f.curve(FloorUnclipped)
+	if lin == nil {
+		t.Fatal("no unclipped curve")
+	}
+	top := func(v []float64) float64 {
+		m := -1e9
+		for _, x := range v {
+			m = math.Max(m, x)
+		}
+		return m
+	}
+	loss := top(lin) - top(resp)
+	reason := target(res, "big").Reason
+	t.Logf("clipping costs %.2f dB of peak: %s", loss, reason)
+	if !strings.Contains(reason, "costs "+strconv.FormatFloat(loss, 'f', 1, 64)+" dB of compressed peak") {
+		t.Errorf("peak loss %.2f dB, the reason says otherwise: %s", loss, reason)
+	}
+	// The far sidelobes, 30 … 390 samples (0.75 … 9.75 µs) from the peak
+	// on both sides, summed, re each response's own peak.
+	far := func(v []float64) float64 {
+		k0, sum := f.gate(r), 0.0
+		for d := 30; d < 390; d++ {
+			sum += math.Pow(10, v[k0+d]/10) + math.Pow(10, v[k0-d]/10)
+		}
+		return 10*math.Log10(sum) - top(v)
+	}
+	t.Logf("far sidelobes re peak: clipped %.2f dB, unclipped %.2f dB", far(resp), far(lin))
+	if !(far(resp) > far(lin)) {
+		t.Errorf("far sidelobes re peak: clipped %.2f dB, unclipped %.2f dB", far(resp), far(lin))
+	}
+	if clean := unclippedNone(t); clean {
+		t.Error("an unclipped echo has an unclipped curve")
+	}
+}
+
+// unclippedNone reports whether a scene whose echo stays under full
+// scale still draws an unclipped curve.
+func unclippedNone(t *testing.T) bool {
+	doc := lfmScene(`{"kind":"none"}`, "", pointJSON("a", 6000, rcsFor(40, 6000)))
+	f := mustFloors(t, mustEvaluate(t, mustDecode(t, withFrontEnd(doc, `{"adc_bits":16,"adc_full_scale_db":58}`))), "a", "")
+	return f.curve(FloorUnclipped) != nil
 }
