@@ -256,3 +256,43 @@ func unclippedNone(t *testing.T) bool {
 	f := mustFloors(t, mustEvaluate(t, mustDecode(t, withFrontEnd(doc, `{"adc_bits":16,"adc_full_scale_db":58}`))), "a", "")
 	return f.curve(FloorUnclipped) != nil
 }
+
+// TestFloorsImage: TestIQImageMasks's scene (0.1 dB and 1° of quadrature
+// error, image rejection 39.6 dB by the standard formula; Barker 13 train,
+// tanker at +8 Doppler bins, skiff 45 dB weaker at −8): the view of the
+// tanker follows the skiff's row, where the tanker's image is the highest
+// floor and the skiff's mark names it; with a DC offset added, the DC
+// curve appears, flat in range away from the blanked gates.
+func TestFloorsImage(t *testing.T) {
+	lambda := C / 9.5e9
+	rate := -lambda / 2 * 8 / (32 * 1e-4)
+	doc := trainScene(`{"kind":"blackman_harris"}`, "none", movingJSON("tanker", 6000, rcsFor(70, 6000), rate), movingJSON("skiff", 6000, rcsFor(25, 6000), -rate))
+	doc = strings.Replace(doc, `"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e7}`, `"waveform":{"kind":"barker","length":13,"chip_s":1e-7}`, 1)
+	res := mustEvaluate(t, mustDecode(t, withFrontEnd(doc, `{"iq_gain_db":0.1,"iq_phase_deg":1,"dc_offset_db":10}`)))
+	if sk := target(res, "skiff"); sk.Status != StatusMasked || !strings.Contains(sk.Reason, "tanker's I/Q image") {
+		t.Fatalf("skiff %s: %s", sk.Status, sk.Reason)
+	}
+	f := mustFloors(t, res, "tanker", "")
+	if f.RowTarget != "skiff" {
+		t.Errorf("row through %q", f.RowTarget)
+	}
+	m := f.mark("skiff")
+	if m.Floor != FloorImage || !m.Hidden {
+		t.Errorf("skiff's mark %+v", m)
+	}
+	k := f.gate(m.RangeM)
+	img, resp := f.curve(FloorImage), f.curve(FloorResponse)
+	t.Logf("at the skiff: image %.1f dB, tanker's response %.1f dB, skiff %.1f dB", img[k], resp[k], m.PeakDB)
+	if !(img[k] > resp[k] && img[k] > m.PeakDB) {
+		t.Errorf("image %.1f dB, response %.1f dB, skiff %.1f dB", img[k], resp[k], m.PeakDB)
+	}
+	// The image re the tanker's peak on its own row: −39.6 dB (the image
+	// rejection), within 0.1 dB: a real code's conjugate compresses alike.
+	own := mustFloors(t, res, "tanker", "tanker")
+	if d := img[k] - own.PeakDB; math.Abs(d+39.6) > 0.1 {
+		t.Errorf("image %.2f dB re the tanker's peak, want −39.6", d)
+	}
+	if f.curve(FloorDC) == nil {
+		t.Error("no DC curve")
+	}
+}
