@@ -185,8 +185,8 @@ func floorsNear(f *scenarios.Floors, g grid) *[2]float64 {
 }
 
 // markItem is one mark's data item: its place, its status's symbol, its
-// floor's colour (filled when that floor hides it, hollow otherwise) and
-// a tooltip line.
+// floor's colour (filled when that floor hides it, hollow otherwise;
+// faint when it lies off the plotted map row) and a tooltip line.
 func markItem(m scenarios.FloorMark, f *scenarios.Floors) map[string]any {
 	st, ok := statusStyle[m.Status]
 	if !ok {
@@ -215,7 +215,8 @@ func markItem(m scenarios.FloorMark, f *scenarios.Floors) map[string]any {
 		tip = fmt.Sprintf("%s: %s, its peak %.1f dB over the highest floor at its cell, %s at %.1f dB", m.ID, statusWords(m.Status), m.PeakDB, floorWords[m.Floor], m.FloorDB)
 	}
 	if f.Row >= 0 && !m.OnRow {
-		tip += fmt.Sprintf(" — at %+.1f m/s, off the plotted row", m.RateMPS)
+		tip += fmt.Sprintf(" — at %+.1f m/s, off the plotted row (its floor is read on its own row)", m.RateMPS)
+		style["opacity"] = 0.45
 	}
 	return map[string]any{
 		"value": []float64{round2(m.RangeM), math.Round(clampDB(m.PeakDB)*100) / 100},

@@ -114,4 +114,10 @@ func TestFloorsTabPhaseNoise(t *testing.T) {
 		t.Errorf("the skiff's reason does not name the skirt: %s", r)
 	}
 	shot(t, ctx, "")
+
+	// The tanker's own row, picked with the keyboard in the row list: its
+	// zero-Doppler row, where the skiff's mark is off the plotted row.
+	do(t, ctx, chromedp.Focus(chromedp.CSS(`#floors-row`)), chromedp.KeyEvent("t"))
+	waitFor(t, ctx, "the tanker's row", `(() => { const f = `+jsFloors+`; return f && f.title.includes('+0.0 m/s') && !f.title.includes('(skiff)'); })()`)
+	shot(t, ctx, "own-row")
 }

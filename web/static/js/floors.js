@@ -10,10 +10,11 @@
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { $, $$ } from './dom.js';
 
-const { store, editor, plots, session } = window.__pw;
+const { store, editor, plots, session, onFrame } = window.__pw;
 const pane = $('.pane[data-pane="floors"]');
 const el = $('#chart-floors');
 const note = $('#floors-note');
+const rowPick = $('#floors-row');
 
 plots.charts.floors = echarts.init(el, null, { renderer: 'canvas' });
 plots.els.floors = el;
@@ -25,7 +26,7 @@ let chosen = ''; // the target chosen in the table; '' until then: the strongest
 const shown = () => pane.classList.contains('on');
 
 function ask() {
-  session.sendFloors(shown() ? { target: chosen } : null);
+  session.sendFloors(shown() ? { target: chosen, row: rowPick.value } : null);
   note.textContent = chosen
     ? `Floors of ${chosen}, selected in the target table`
     : 'Floors of the strongest target · a row of the target table picks another';
@@ -49,7 +50,24 @@ editor.selectHooks.push((i) => {
 store.onChange((s, cause) => {
   if (cause !== 'load' && cause !== 'link') return;
   chosen = '';
+  rowPick.value = '';
   if (shown()) ask();
+});
+
+// Pulse trains: the map row the curves follow, through a target's peak
+// ("auto": the engine's choice, the first target the selected one masks).
+rowPick.addEventListener('change', () => { if (shown()) ask(); });
+onFrame((f) => {
+  const report = f && f.report;
+  const train = !!(report && report.waveform && report.waveform.doppler_resolution_hz !== undefined);
+  rowPick.closest('label').hidden = !train;
+  const ids = ((report && report.targets) || []).map((t) => t.id);
+  const have = [...rowPick.options].slice(1).map((o) => o.value);
+  if (ids.join('\u0000') !== have.join('\u0000')) {
+    const keep = rowPick.value;
+    rowPick.replaceChildren(new Option('auto', ''), ...ids.map((id) => new Option(id, id)));
+    rowPick.value = ids.includes(keep) ? keep : '';
+  }
 });
 
 const plain = (v) => String(v).replace(/[{}|]/g, '');
