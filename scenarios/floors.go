@@ -220,6 +220,11 @@ func (r *Result) Floors(target, row string) (*Floors, error) {
 	return out, nil
 }
 
+// DropScene lets go of the noise-free scene (and the model it holds)
+// that Floors reads, for a result kept only for its report and plots:
+// Floors then returns an error.
+func (r *Result) DropScene() { r.sc = nil }
+
 // floorOrder lists the floors that compete at a cell; ties go to the
 // first.
 var floorOrder = []string{FloorResponse, FloorSkirt, FloorImage, FloorQuantise, FloorDC, FloorOthers, FloorThermal}

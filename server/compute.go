@@ -189,6 +189,9 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 		if err != nil {
 			return nil, &editError{w.pin.id, true, fmt.Errorf("pinned scenario: %w", err)}
 		}
+		if res != nil {
+			res.DropScene()
+		}
 		c.pinRes = res
 	}
 	if c.res == nil {
@@ -377,6 +380,9 @@ func (ss *session) takePin(ctx context.Context, p edit, c *evalCache) error {
 	}
 	if err != nil {
 		return &editError{p.id, true, fmt.Errorf("pinned scenario: %w", err)}
+	}
+	if res != nil {
+		res.DropScene() // the Floors tab reads the edited scene, never the pin
 	}
 	report, err := json.Marshal(&res.Report)
 	if err != nil {
