@@ -139,8 +139,12 @@ func floorsChart(res *scenarios.Result, vw view) (chartOut, bool, error) {
 		b.extra[sid] = seriesExtra{LabelLayout: map[string]any{"hideOverlap": true}, Z: 5}
 		key += "/" + sid
 	}
-	b.extra["floor-"+scenarios.FloorThreshold] = seriesExtra{EndLabel: map[string]any{
-		"show": true, "formatter": "threshold", "color": colourThreshold, "fontSize": 11, "offset": []int{-62, -9}}}
+	// The level curves named at their right ends, inside the plot.
+	for id, words := range map[string]string{scenarios.FloorThreshold: "threshold", scenarios.FloorThermal: "thermal noise",
+		scenarios.FloorQuantise: "quantisation", scenarios.FloorDC: "DC offset"} {
+		b.extra["floor-"+id] = seriesExtra{EndLabel: map[string]any{
+			"show": true, "formatter": words, "color": floorStyle[id].colour, "fontSize": 11, "offset": []int{-8 - 6*len(words), -9}}}
+	}
 	b.line.SetGlobalOptions(charts.WithTitleOpts(opts.Title{Title: floorsTitle(f), Left: "64", Top: "0",
 		TitleStyle: &opts.TextStyle{FontSize: 11, Color: "#25292e"}}),
 		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Type: "scroll", Top: "20", Left: "64", Right: "8", ItemWidth: 18, ItemHeight: 10,
@@ -229,7 +233,7 @@ func statusWords(s string) string { return strings.ReplaceAll(s, "_", " ") }
 
 // floorsTitle names the selected target and, for a pulse train, the row.
 func floorsTitle(f *scenarios.Floors) string {
-	t := plainLabel(f.Target)
+	t := "Floors of " + plainLabel(f.Target)
 	if f.Row >= 0 {
 		t += fmt.Sprintf(" · map row %+.1f m/s", f.RowRateMPS)
 		if f.RowTarget != f.Target {
