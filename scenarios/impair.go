@@ -315,18 +315,8 @@ func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 			}
 		}
 	}
-	shapeW, rho, fLo := 0.0, 0.0, -1.0
-	if n := len(w); n > 0 && edges[n] > edges[n-1] {
-		rho = w[n-1] / (edges[n] - edges[n-1])
-	}
-	for i := range w {
-		if edges[i+1] <= 1/(20*m.tau) {
-			shapeW += 2 * w[i] // offsets this close leave the compressed shape unchanged
-		} else if fLo < 0 {
-			fLo = edges[i]
-		}
-	}
-	if fLo >= 0 && rho > 0 {
+	shapeW, rho, fLo, terms := fe.skirtTerms(edges, w, g.fd, m.fs, m.tau, T)
+	if rho > 0 {
 		// The white floor over the band: |x|² correlated with |h|².
 		echo(g.fd)
 		sc.blank(x, b)
@@ -340,41 +330,13 @@ func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 			}
 		}
 		// Less the offsets under the first compressed cell, which keep the
-		// response's shape, and those past the band's far edge (−fs/2 − f_d
-		// … −fs/2 for f_d > 0), which the profile does not reach.
+		// response's shape.
 		for k, p := range g.resp.pow {
 			sk.pow[k] -= rho * 2 * fLo * p
 		}
-		if g.fd != 0 {
-			add(math.Copysign(m.fs/2, -g.fd)+g.fd/2, -rho*math.Abs(g.fd))
-		}
 	}
-	// Each cell's power above the floor, on offsets at most 1/(2τ) apart.
-	budget := maxSkirtCompressions
-	for i, v := range w {
-		a, bb := edges[i], edges[i+1]
-		if bb <= 1/(20*m.tau) || !(v > 0) {
-			continue
-		}
-		if rest := v - rho*(bb-a); math.Abs(rest) < 1e-4*fast/2 {
-			continue // the floor holds this cell
-		}
-		parts := max(1, min(int(math.Ceil((bb-a)*2*m.tau)), budget/2))
-		budget -= parts
-		for q := range parts {
-			lo, hi := a+(bb-a)*float64(q)/float64(parts), a+(bb-a)*float64(q+1)/float64(parts)
-			fc := math.Sqrt(lo * hi)
-			if parts > 1 {
-				fc = (lo + hi) / 2
-			}
-			rest := fe.pn.EchoBand(lo, hi, T) - rho*(hi-lo)
-			for _, sgn := range []float64{1, -1} {
-				if math.Abs(g.fd+sgn*fc) >= m.fs/2 {
-					continue // outside the receiver's band (the floor left it out too)
-				}
-				add(g.fd+sgn*fc, rest)
-			}
-		}
+	for _, t := range terms {
+		add(t.fd, t.w)
 	}
 	for k, p := range g.resp.pow {
 		sk.pow[k] = math.Max(sk.pow[k]+shapeW*p, 0)
@@ -389,7 +351,7 @@ func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 	g.skirtVarDB = dsp.DB(fast + slowVar)
 }
 
-// maxSkirtCompressions bounds the compressions of one point target's
+// maxSkirtCompressions bounds the compressions of one target's
 // skirt cells (both sides), beyond its white floor.
 const maxSkirtCompressions = 256
 
@@ -404,6 +366,67 @@ func (sc *scene) powerCorrelator(n int) *dsp.Correlator {
 		sc.powCorr, sc.powCorrN = dsp.NewCorrelator(h, n), n
 	}
 	return sc.powCorr
+}
+
+// skirtTerm is one compression of a skirt: the echo at Doppler fd (Hz,
+// sampled, so beyond ±fs/2 it wraps) weighted by w (a fraction of the
+// carrier's power; negative to take out what the white floor counted).
+type skirtTerm struct{ fd, w float64 }
+
+// skirtTerms splits the fast-time skirt of an echo at Doppler fd (cells
+// edges, one side's power w from skirtCells; T its round trip) as
+// docs/detection.md §12 does: shapeW, the power of the cells under
+// 1/(20τ), which keep the response's shape; the white floor's density ρ
+// (that of the top cell; 0 when there is no compressed cell), applied
+// over the whole band by the caller less ρ·2·f_lo of the response; and
+// the compressions: the white floor taken out past the band's far edge
+// (offsets −fs/2 − f_d … −fs/2 for f_d > 0, which the profile does not
+// reach), and each cell's power above the floor on offsets at most
+// 1/(2τ) apart, at most maxSkirtCompressions of them, skipping cells
+// within 10⁻⁴ of the skirt of the floor and offsets outside the band.
+func (fe *frontEnd) skirtTerms(edges, w []float64, fd, fs, tau, T float64) (shapeW, rho, fLo float64, terms []skirtTerm) {
+	fast := 0.0
+	fLo = -1
+	for i, v := range w {
+		fast += 2 * v
+		if edges[i+1] <= 1/(20*tau) {
+			shapeW += 2 * v
+		} else if fLo < 0 {
+			fLo = edges[i]
+		}
+	}
+	if n := len(w); n > 0 && edges[n] > edges[n-1] && fLo >= 0 {
+		rho = math.Max(w[n-1]/(edges[n]-edges[n-1]), 0)
+	}
+	if rho > 0 && fd != 0 {
+		terms = append(terms, skirtTerm{math.Copysign(fs/2, -fd) + fd/2, -rho * math.Abs(fd)})
+	}
+	budget := maxSkirtCompressions
+	for i, v := range w {
+		a, b := edges[i], edges[i+1]
+		if b <= 1/(20*tau) || !(v > 0) {
+			continue
+		}
+		if rest := v - rho*(b-a); math.Abs(rest) < 1e-4*fast/2 {
+			continue // the floor holds this cell
+		}
+		parts := max(1, min(int(math.Ceil((b-a)*2*tau)), budget/2))
+		budget -= parts
+		for q := range parts {
+			lo, hi := a+(b-a)*float64(q)/float64(parts), a+(b-a)*float64(q+1)/float64(parts)
+			fc := math.Sqrt(lo * hi)
+			if parts > 1 {
+				fc = (lo + hi) / 2
+			}
+			rest := fe.pn.EchoBand(lo, hi, T) - rho*(hi-lo)
+			for _, sgn := range []float64{1, -1} {
+				if math.Abs(fd+sgn*fc) < fs/2 { // outside the band: left out (the floor left it out too)
+					terms = append(terms, skirtTerm{fd + sgn*fc, rest})
+				}
+			}
+		}
+	}
+	return shapeW, rho, fLo, terms
 }
 
 // receiverExtras adds the quantisation noise and the DC offset.
@@ -634,29 +657,33 @@ func (sc *scene) distributedExtras(j int, g *tgt, lp *localPlan, density []float
 	if (fast+slowVar)*peak < fe.skirtMin {
 		return
 	}
+	// As a point target's (pointSkirt), through the kernels of its
+	// Doppler-shifted pulse: the white floor's kernel is |pulse|²
+	// correlated with |ref|².
+	shapeW, rho, fLo, terms := fe.skirtTerms(edges, w, g.fd, m.fs, m.tau, T)
 	var sk []float64
-	shapeW := 0.0
-	for i, v := range w {
-		if !(v > 0) {
-			continue
+	if rho > 0 {
+		lp.ensure()
+		clear(lp.x)
+		dsp.AddEcho(lp.x, m.wave, m.fs, float64(len(m.ref))/m.fs, 1, 0)
+		x := make([]complex128, len(lp.x))
+		for i, v := range lp.x {
+			x[i] = complex(real(v)*real(v)+imag(v)*imag(v), 0)
 		}
-		if edges[i+1] <= 1/(20*m.tau) {
-			shapeW += 2 * v
-			continue
+		y := sc.powerCorrelator(len(x)).Apply(nil, x)
+		own := sc.kernel(lp, g.fd, false)
+		sk = make([]float64, len(own))
+		for l := range sk {
+			sk[l] = rho*m.fs*math.Max(real(y[l]), 0)/m.noiseGain - rho*2*fLo*own[l]
 		}
-		fc := math.Sqrt(edges[i] * edges[i+1])
-		for _, sgn := range []float64{1, -1} {
-			fd := g.fd + sgn*fc
-			if math.Abs(fd) >= m.fs/2 {
-				continue
-			}
-			kern := sc.kernel(lp, fd, false)
-			if sk == nil {
-				sk = make([]float64, len(kern))
-			}
-			for l, p := range kern {
-				sk[l] += v * p
-			}
+	}
+	for _, t := range terms {
+		kern := sc.kernel(lp, t.fd, false)
+		if sk == nil {
+			sk = make([]float64, len(kern))
+		}
+		for l, p := range kern {
+			sk[l] += t.w * p
 		}
 	}
 	r := response{lo: g.resp.lo, pow: make([]float64, len(g.resp.pow))}
@@ -668,6 +695,9 @@ func (sc *scene) distributedExtras(j int, g *tgt, lp *localPlan, density []float
 			r.pow[kk] += shapeW * p
 		}
 		g.resp.pow[k] = p * (1 - fast)
+	}
+	for k, p := range r.pow {
+		r.pow[k] = math.Max(p, 0)
 	}
 	g.slowVar = slowVar
 	sc.addExtra(extra{owner: j, cause: causeSkirt, resp: r, flat: 1})
