@@ -66,7 +66,7 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 		// also uses this one's core once the reports are done.
 		go func() { window <- sc.window(min(2, runtime.GOMAXPROCS(0))) }()
 	}
-	res := &Result{}
+	res := &Result{sc: sc}
 	res.Report.Version = ReportVersion
 	res.Report.Scenario = s.Name
 	res.Report.Waveform = m.waveformReport()

@@ -118,6 +118,9 @@ type Result struct {
 	// range–Doppler map), nil for the others; index 0 is the first CPI,
 	// whose series are Series.
 	CPISeries []*Series
+	// sc is the noise-free scene the result was evaluated on, kept for
+	// the dynamic-range view (Floors); nil for results made otherwise.
+	sc *scene
 }
 
 // Series are the plot data of one evaluation over the receive window, one
