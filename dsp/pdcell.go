@@ -47,7 +47,10 @@ import (
 // until two estimates agree. At most MaxCellDims such integrals are nested; the
 // weakest phasors beyond that are treated as Gaussian (their power added
 // to v), which the central limit theorem makes the right limit for many
-// echoes of random phase, and which is exact for their mean power.
+// echoes of random phase, and which is exact for their mean power. With
+// steady phasors only, when the Pd at the smallest and the largest
+// resultant agree to CellTolerance their mean is returned without an
+// integral.
 
 // CellEcho is one echo's contribution to the tested cell.
 type CellEcho struct {
@@ -118,6 +121,31 @@ func PdInCell(echoes []CellEcho, pdSteady func(snr, scale float64) (float64, boo
 		c.ph[c.n] = e
 		c.n++
 		dims += need
+	}
+	// With steady phasors only, the resultant lies between |a₀ − Σaᵢ| and
+	// Σaᵢ and Pd grows with it: where the Pd at the two ends agree to
+	// CellTolerance (a strong target, a weak neighbour), no integral is
+	// needed.
+	if steady := c.n > 1; steady {
+		sum, rest := 0.0, 0.0
+		for i := range c.n {
+			if c.ph[i].Swerling != SwerlingNone {
+				steady = false
+			}
+			a := math.Sqrt(c.ph[i].Power)
+			sum += a
+			if i > 0 {
+				rest += a
+			}
+		}
+		if steady {
+			lo := math.Max(math.Sqrt(c.ph[0].Power)-rest, 0)
+			pl, ok1 := c.f(lo*lo/c.v, 1/c.v)
+			ph, ok2 := c.f(sum*sum/c.v, 1/c.v)
+			if ok1 && ok2 && ph-pl < CellTolerance && ph >= pl {
+				return math.Min(math.Max((pl+ph)/2, 0), 1), nil
+			}
+		}
 	}
 	p := c.at(0, 0, 0)
 	if c.failed {
