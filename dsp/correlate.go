@@ -23,9 +23,11 @@ import (
 type Correlator struct {
 	n, m    int
 	step    int            // outputs per block, L−m+1
-	fft     *fftPlan       // length L, shared read-only by the workers
-	spec    []complex128   // conj(FFT(h zero-padded to L)) / L
-	scratch [][]complex128 // one 2L buffer per worker
+	fft     *fftPlan       // length L, shared read-only by the workers (L not a power of two)
+	conv    *convPlan      // length L, when L is a power of two (fftconv.go)
+	l       int            // the FFT length L
+	spec    []complex128   // conj(FFT(h zero-padded to L)) / L, in conv's order with conv
+	scratch [][]complex128 // one buffer per worker: 2L points, or L with conv
 	wg      sync.WaitGroup
 	next    atomic.Int64 // next block to take, with several workers
 	// With several workers: the goroutine bodies, made once so that Apply
@@ -65,12 +67,21 @@ func newCorrelatorLen(ref []complex128, n, l, workers int) *Correlator {
 		n:    n,
 		m:    m,
 		step: l - m + 1,
-		fft:  newFFTPlan(l),
+		l:    l,
 		spec: make([]complex128, l),
 	}
+	if isPow2(l) {
+		c.conv = newConvPlan(l)
+	} else {
+		c.fft = newFFTPlan(l)
+	}
 	blocks := (n + c.step - 1) / c.step
+	size := 2 * l // the Stockham plan ping-pongs between two buffers
+	if c.conv != nil {
+		size = l // the power-of-two plan works in place
+	}
 	for range min(workers, blocks) {
-		c.scratch = append(c.scratch, make([]complex128, 2*l))
+		c.scratch = append(c.scratch, make([]complex128, size))
 	}
 	for i := 1; i < len(c.scratch); i++ {
 		c.workers = append(c.workers, func() {
@@ -79,7 +90,11 @@ func newCorrelatorLen(ref []complex128, n, l, workers int) *Correlator {
 		})
 	}
 	copy(c.spec, ref)
-	c.fft.transform(c.spec, c.scratch[0][:l])
+	if c.conv != nil {
+		c.conv.forward(c.spec)
+	} else {
+		c.fft.transform(c.spec, c.scratch[0][:l])
+	}
 	inv := 1 / float64(l)
 	for i, v := range c.spec {
 		c.spec[i] = complex(real(v)*inv, -imag(v)*inv)
@@ -194,7 +209,11 @@ func (c *Correlator) parallel(dst, x []complex128) {
 // whole block is transformed from where it lies in x; only the last,
 // zero-padded one is copied.
 func (c *Correlator) blocks(i int, dst, x []complex128) {
-	l := c.fft.n
+	if c.conv != nil {
+		c.convBlocks(i, dst, x)
+		return
+	}
+	l := c.l
 	s := c.scratch[i]
 	buf, work := s[:l], s[l:]
 	spec := c.spec[:l]
@@ -224,5 +243,30 @@ func (c *Correlator) blocks(i int, dst, x []complex128) {
 		for i, v := range z {
 			out[i] = complex(real(v), -imag(v))
 		}
+	}
+}
+
+// convBlocks is blocks on the power-of-two plan: each block's first
+// forward level reads x where it lies, and its last inverse level writes
+// the block's outputs straight into dst (fftconv.go).
+func (c *Correlator) convBlocks(i int, dst, x []complex128) {
+	l := c.l
+	buf := c.scratch[i][:l]
+	serial := len(c.scratch) == 1
+	for b := 0; ; b += c.step {
+		if !serial {
+			b = int(c.next.Add(1)-1) * c.step
+		}
+		if b >= c.n {
+			return
+		}
+		src := buf
+		if b+l <= c.n {
+			src = x[b : b+l]
+		} else {
+			k := copy(buf, x[b:])
+			clear(buf[k:])
+		}
+		c.conv.convolve(dst[b:min(b+c.step, c.n)], src, buf, c.spec)
 	}
 }

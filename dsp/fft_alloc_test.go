@@ -35,7 +35,7 @@ func TestCorrelatorApplyAllocs(t *testing.T) {
 			p := NewCorrelatorWorkers(randComplex(rnd, c.m), c.n, c.w)
 			x, dst := randComplex(rnd, c.n), make([]complex128, c.n)
 			if a := testing.AllocsPerRun(5, func() { p.Apply(dst, x) }); a != 0 {
-				t.Errorf("%v allocs per Apply, want 0 (FFT length %d, %d workers)", a, p.fft.n, len(p.scratch))
+				t.Errorf("%v allocs per Apply, want 0 (FFT length %d, %d workers)", a, p.l, len(p.scratch))
 			}
 		})
 	}

@@ -1,0 +1,359 @@
+package dsp
+
+import "math/bits"
+
+// convPlan is the FFT the Correlator multiplies spectra with when its block
+// length L is a power of two: an in-place decimation-in-frequency FFT
+// (radix-4 levels, and one radix-2 level at the bottom when L is an odd
+// power of two) that leaves the spectrum in digit-reversed order, and its
+// mirror image, a decimation-in-time inverse that takes the spectrum in that
+// order and gives the signal back in natural order. A correlation needs the
+// spectrum only to multiply it by another one in the same order, so no
+// reordering is ever done.
+//
+// Level i splits segments of lens[i] points into radix[i] segments of
+// lens[i]/radix[i] points, in place:
+//
+//	forward, k < q = lens[i]/r:  x[k+j·q] ← w^{j·k} · Σ_l x[k+l·q]·exp(−j2π·j·l/r)
+//	inverse:                     x[k+l·q] ← Σ_j conj(w^{j·k})·x[k+j·q]·exp(+j2π·j·l/r)
+//
+// with w = exp(−j2π/lens[i]). The transform runs depth first: once a
+// segment fits the leaf size (a core's L1 cache) its remaining forward
+// levels, the spectral product and its inverse levels all run before the
+// next segment is touched, so a long block goes through main memory twice
+// (its first forward level reads the input, its last inverse level writes
+// the output) instead of twice per level. The tables are read-only after
+// construction: one plan may serve several goroutines, each with its own
+// buffer.
+type convPlan struct {
+	n     int
+	radix []int          // radix of each level, from the whole length down
+	lens  []int          // segment length at each level
+	tw    [][]complex128 // tw[i][k·(r−1)+j−1] = w^{j·k}, k < lens[i]/r, 1 ≤ j < r
+	leaf  int            // first level whose segments fit convLeaf
+}
+
+// convLeaf is the segment length (points) below which the levels run
+// breadth first over the segment: 1 024 points are 16 KiB, half of a core's
+// L1 data cache, leaving room for the spectrum and the twiddles.
+const convLeaf = 1024
+
+// isPow2 reports whether n ≥ 1 is a power of two.
+func isPow2(n int) bool { return n >= 1 && n&(n-1) == 0 }
+
+// newConvPlan returns the plan for the power of two n ≥ 1. It panics for
+// any other n (a programmer error).
+func newConvPlan(n int) *convPlan {
+	if !isPow2(n) {
+		panic("dsp: conv fft length must be a power of two")
+	}
+	p := &convPlan{n: n}
+	lg := bits.TrailingZeros(uint(n))
+	for s := n; s > 1; {
+		r := 4
+		if lg%2 == 1 && s == 2 {
+			r = 2
+		}
+		p.radix = append(p.radix, r)
+		p.lens = append(p.lens, s)
+		s /= r
+	}
+	p.leaf = len(p.lens)
+	for i, s := range p.lens {
+		if s <= convLeaf {
+			p.leaf = i
+			break
+		}
+	}
+	if n == 1 {
+		return p
+	}
+	// The top level's table holds w_n^{j·k} for k < n/r, j < r; a lower
+	// level of length s needs w_s^{j·k} = w_n^{j·k·n/s}, k·n/s < n/r: a
+	// strided gather from the top table.
+	root := roots(n)
+	p.tw = make([][]complex128, len(p.lens))
+	r0 := p.radix[0]
+	top := make([]complex128, (n/r0)*(r0-1))
+	for k := range n / r0 {
+		for j := 1; j < r0; j++ {
+			top[k*(r0-1)+j-1] = root[j*k]
+		}
+	}
+	p.tw[0] = top
+	for i := 1; i < len(p.lens); i++ {
+		s, r := p.lens[i], p.radix[i]
+		if s == r {
+			continue // the bottom level: unit twiddles
+		}
+		t := make([]complex128, (s/r)*(r-1))
+		stride := n / s
+		for k := range s / r {
+			for j := 1; j < r; j++ {
+				// r = 4 here (only the bottom level may be radix 2), and r0 = 4.
+				t[k*(r-1)+j-1] = top[k*stride*(r0-1)+j-1]
+			}
+		}
+		p.tw[i] = t
+	}
+	return p
+}
+
+// forward replaces x (len n) by its DFT in the plan's digit-reversed order.
+func (p *convPlan) forward(x []complex128) {
+	if len(x) != p.n {
+		panic("dsp: conv fft buffer length mismatch")
+	}
+	if p.n > 1 {
+		p.fwdRec(x, 0)
+	}
+}
+
+func (p *convPlan) fwdRec(seg []complex128, lvl int) {
+	last := len(p.lens) - 1
+	if lvl >= p.leaf {
+		for i := lvl; i < last; i++ {
+			fwd4(seg, p.lens[i], p.tw[i])
+		}
+		if p.radix[last] == 4 {
+			bottom4(seg, nil)
+		} else {
+			bottom2(seg, nil)
+		}
+		return
+	}
+	fwd4(seg, len(seg), p.tw[lvl])
+	q := len(seg) / 4
+	for j := range 4 {
+		p.fwdRec(seg[j*q:(j+1)*q], lvl+1)
+	}
+}
+
+// convolve computes IDFT(DFT(src)·spec) where spec is in the plan's order:
+// the circular convolution of src with the sequence whose DFT is spec,
+// written into dst[:len(dst)] (len(dst) ≤ n), using buf (len n) as the
+// work space. src (len n) is only read; it may be buf.
+func (p *convPlan) convolve(dst, src, buf, spec []complex128) {
+	n := p.n
+	if len(src) != n || len(buf) != n || len(spec) != n || len(dst) > n {
+		panic("dsp: conv fft buffer length mismatch")
+	}
+	if n <= convLeaf || p.leaf == 0 {
+		if &src[0] != &buf[0] {
+			copy(buf, src)
+		}
+		p.convRec(buf, spec, 0)
+		copy(dst, buf)
+		return
+	}
+	// The top level reads src and writes buf; its inverse writes dst.
+	tw := p.tw[0]
+	fwd4From(buf, src, tw)
+	q := n / 4
+	for j := range 4 {
+		p.convRec(buf[j*q:(j+1)*q], spec[j*q:(j+1)*q], 1)
+	}
+	inv4To(dst, buf, tw)
+}
+
+// convRec runs the forward levels from lvl, the product by spec and the
+// inverse levels back to lvl, on seg (len lens[lvl]).
+func (p *convPlan) convRec(seg, spec []complex128, lvl int) {
+	if len(seg) == 1 {
+		seg[0] *= spec[0]
+		return
+	}
+	last := len(p.lens) - 1
+	if lvl >= p.leaf {
+		for i := lvl; i < last; i++ {
+			fwd4(seg, p.lens[i], p.tw[i])
+		}
+		if p.radix[last] == 4 {
+			bottom4(seg, spec)
+		} else {
+			bottom2(seg, spec)
+		}
+		for i := last - 1; i >= lvl; i-- {
+			inv4(seg, p.lens[i], p.tw[i])
+		}
+		return
+	}
+	fwd4(seg, len(seg), p.tw[lvl])
+	q := len(seg) / 4
+	for j := range 4 {
+		p.convRec(seg[j*q:(j+1)*q], spec[j*q:(j+1)*q], lvl+1)
+	}
+	inv4(seg, len(seg), p.tw[lvl])
+}
+
+// fwd4 runs a forward radix-4 level on every segment of s points of x.
+func fwd4(x []complex128, s int, tw []complex128) {
+	q := s / 4
+	tw = tw[:3*q]
+	for off := 0; off+s <= len(x); off += s {
+		seg := x[off : off+s : off+s]
+		x0, x1, x2, x3 := seg[:q], seg[q:2*q], seg[2*q:3*q], seg[3*q:]
+		x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
+		for k := range x0 {
+			w := tw[3*k : 3*k+3 : 3*k+3]
+			a0, a1, a2, a3 := x0[k], x1[k], x2[k], x3[k]
+			t0, t1 := a0+a2, a0-a2
+			t2, d := a1+a3, a1-a3
+			t3 := complex(imag(d), -real(d)) // −j·(a1−a3)
+			x0[k] = t0 + t2
+			x1[k] = (t1 + t3) * w[0]
+			x2[k] = (t0 - t2) * w[1]
+			x3[k] = (t1 - t3) * w[2]
+		}
+	}
+}
+
+// fwd4From is fwd4 on one segment (len(dst) points) read from src and
+// written to dst.
+func fwd4From(dst, src, tw []complex128) {
+	q := len(dst) / 4
+	tw = tw[:3*q]
+	x0, x1, x2, x3 := src[:q], src[q:2*q], src[2*q:3*q], src[3*q:4*q]
+	y0, y1, y2, y3 := dst[:q], dst[q:2*q], dst[2*q:3*q], dst[3*q:4*q]
+	x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
+	y0, y1, y2, y3 = y0[:len(x0)], y1[:len(x0)], y2[:len(x0)], y3[:len(x0)]
+	for k := range x0 {
+		w := tw[3*k : 3*k+3 : 3*k+3]
+		a0, a1, a2, a3 := x0[k], x1[k], x2[k], x3[k]
+		t0, t1 := a0+a2, a0-a2
+		t2, d := a1+a3, a1-a3
+		t3 := complex(imag(d), -real(d))
+		y0[k] = t0 + t2
+		y1[k] = (t1 + t3) * w[0]
+		y2[k] = (t0 - t2) * w[1]
+		y3[k] = (t1 - t3) * w[2]
+	}
+}
+
+// mulConj returns a·conj(w).
+func mulConj(a, w complex128) complex128 {
+	return complex(real(a)*real(w)+imag(a)*imag(w), imag(a)*real(w)-real(a)*imag(w))
+}
+
+// inv4 runs an inverse radix-4 level on every segment of s points of x.
+func inv4(x []complex128, s int, tw []complex128) {
+	q := s / 4
+	tw = tw[:3*q]
+	for off := 0; off+s <= len(x); off += s {
+		seg := x[off : off+s : off+s]
+		x0, x1, x2, x3 := seg[:q], seg[q:2*q], seg[2*q:3*q], seg[3*q:]
+		x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
+		for k := range x0 {
+			w := tw[3*k : 3*k+3 : 3*k+3]
+			b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
+			t0, t1 := b0+b2, b0-b2
+			t2, d := b1+b3, b1-b3
+			t3 := complex(-imag(d), real(d)) // +j·(b1−b3)
+			x0[k] = t0 + t2
+			x1[k] = t1 + t3
+			x2[k] = t0 - t2
+			x3[k] = t1 - t3
+		}
+	}
+}
+
+// inv4To is inv4 on one segment (len(src) points) whose outputs below
+// len(dst) are written to dst; the others are not computed.
+func inv4To(dst, src, tw []complex128) {
+	q := len(src) / 4
+	tw = tw[:3*q]
+	x0, x1, x2, x3 := src[:q], src[q:2*q], src[2*q:3*q], src[3*q:4*q]
+	x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
+	// Quarter j of the output is dst[j·q : j·q+q]; kj of its points are wanted.
+	var kq [4]int
+	for j := range kq {
+		kq[j] = min(max(len(dst)-j*q, 0), q)
+	}
+	// All four quarters wanted for k < kq[3], three for k < kq[2], …
+	if kq[3] > 0 {
+		inv4Full(dst[:3*q+kq[3]], x0, x1, x2, x3, tw)
+	}
+	for k := kq[3]; k < kq[0]; k++ {
+		w := tw[3*k : 3*k+3 : 3*k+3]
+		b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
+		t0, t1 := b0+b2, b0-b2
+		t2, d := b1+b3, b1-b3
+		t3 := complex(-imag(d), real(d))
+		dst[k] = t0 + t2
+		if k < kq[1] {
+			dst[q+k] = t1 + t3
+		}
+		if k < kq[2] {
+			dst[2*q+k] = t0 - t2
+		}
+	}
+}
+
+// inv4Full writes the four quarters' outputs for k < len(dst)−3q, where
+// q = len(x0).
+func inv4Full(dst, x0, x1, x2, x3, tw []complex128) {
+	q := len(x0)
+	y0, y1, y2, y3 := dst[:q], dst[q:2*q], dst[2*q:3*q], dst[3*q:]
+	x0, x1, x2, x3 = x0[:len(y3)], x1[:len(y3)], x2[:len(y3)], x3[:len(y3)]
+	y0, y1, y2 = y0[:len(y3)], y1[:len(y3)], y2[:len(y3)]
+	for k := range y3 {
+		w := tw[3*k : 3*k+3 : 3*k+3]
+		b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
+		t0, t1 := b0+b2, b0-b2
+		t2, d := b1+b3, b1-b3
+		t3 := complex(-imag(d), real(d))
+		y0[k] = t0 + t2
+		y1[k] = t1 + t3
+		y2[k] = t0 - t2
+		y3[k] = t1 - t3
+	}
+}
+
+// bottom4 runs the last forward level (segments of 4 points, unit
+// twiddles) on x, then, when spec is not nil, multiplies by spec and runs
+// the first inverse level.
+func bottom4(x, spec []complex128) {
+	if spec == nil {
+		for g := 0; g+4 <= len(x); g += 4 {
+			v := x[g : g+4 : g+4]
+			a0, a1, a2, a3 := v[0], v[1], v[2], v[3]
+			t0, t1 := a0+a2, a0-a2
+			t2, d := a1+a3, a1-a3
+			t3 := complex(imag(d), -real(d))
+			v[0], v[1], v[2], v[3] = t0+t2, t1+t3, t0-t2, t1-t3
+		}
+		return
+	}
+	spec = spec[:len(x)]
+	for g := 0; g+4 <= len(x); g += 4 {
+		v := x[g : g+4 : g+4]
+		h := spec[g : g+4 : g+4]
+		a0, a1, a2, a3 := v[0], v[1], v[2], v[3]
+		t0, t1 := a0+a2, a0-a2
+		t2, d := a1+a3, a1-a3
+		t3 := complex(imag(d), -real(d))
+		b0, b1, b2, b3 := (t0+t2)*h[0], (t1+t3)*h[1], (t0-t2)*h[2], (t1-t3)*h[3]
+		t0, t1 = b0+b2, b0-b2
+		t2, d = b1+b3, b1-b3
+		t3 = complex(-imag(d), real(d))
+		v[0], v[1], v[2], v[3] = t0+t2, t1+t3, t0-t2, t1-t3
+	}
+}
+
+// bottom2 is bottom4 for a last level of radix 2.
+func bottom2(x, spec []complex128) {
+	if spec == nil {
+		for g := 0; g+2 <= len(x); g += 2 {
+			v := x[g : g+2 : g+2]
+			v[0], v[1] = v[0]+v[1], v[0]-v[1]
+		}
+		return
+	}
+	spec = spec[:len(x)]
+	for g := 0; g+2 <= len(x); g += 2 {
+		v := x[g : g+2 : g+2]
+		h := spec[g : g+2 : g+2]
+		b0, b1 := (v[0]+v[1])*h[0], (v[0]-v[1])*h[1]
+		v[0], v[1] = b0+b1, b0-b1
+	}
+}
