@@ -1,6 +1,9 @@
 package dsp
 
-import "math/bits"
+import (
+	"math"
+	"math/bits"
+)
 
 // convPlan is the FFT the Correlator multiplies spectra with when its block
 // length L is a power of two: an in-place decimation-in-frequency FFT
@@ -68,25 +71,48 @@ func newConvPlan(n int) *convPlan {
 	if n == 1 {
 		return p
 	}
-	// The top level's table holds w_n^{j·k} for k < n/r, j < r; a lower
-	// level of length s needs w_s^{j·k} = w_n^{j·k·n/s}, k·n/s < n/r: a
-	// strided gather from the top table.
-	root := roots(n)
-	p.tw = make([][]complex128, len(p.lens))
+	// The top level's table holds w_n^{j·k} for k < n/r, j < r, each the
+	// product of two exactly rounded factors (as roots does, without its
+	// n-point table); a lower level of length s needs w_s^{j·k} =
+	// w_n^{j·k·n/s}, k·n/s < n/r: a strided gather from the top table. All
+	// tables share one allocation.
 	r0 := p.radix[0]
-	top := make([]complex128, (n/r0)*(r0-1))
-	for k := range n / r0 {
-		for j := 1; j < r0; j++ {
-			top[k*(r0-1)+j-1] = root[j*k]
+	size := (n / r0) * (r0 - 1)
+	for i := 1; i < len(p.lens); i++ {
+		if s, r := p.lens[i], p.radix[i]; s != r {
+			size += (s / r) * (r - 1)
 		}
 	}
+	all := make([]complex128, size)
+	top := all[:(n/r0)*(r0-1)]
+	all = all[len(top):]
+	b := int(math.Sqrt(float64(n))) + 1
+	ang := -2 * math.Pi / float64(n)
+	lo := make([]complex128, b)
+	for c := range lo {
+		sin, cos := math.Sincos(ang * float64(c))
+		lo[c] = complex(cos, sin)
+	}
+	hi := make([]complex128, (r0-1)*(n/r0)/b+1)
+	for a := range hi {
+		sin, cos := math.Sincos(ang * float64(a*b))
+		hi[a] = complex(cos, sin)
+	}
+	for k := range n / r0 {
+		for j := 1; j < r0; j++ {
+			e := j * k // < n
+			top[k*(r0-1)+j-1] = hi[e/b] * lo[e%b]
+		}
+	}
+	p.tw = make([][]complex128, len(p.lens))
 	p.tw[0] = top
 	for i := 1; i < len(p.lens); i++ {
 		s, r := p.lens[i], p.radix[i]
 		if s == r {
 			continue // the bottom level: unit twiddles
 		}
-		t := make([]complex128, (s/r)*(r-1))
+		t := all[:(s/r)*(r-1)]
+		all = all[len(t):]
 		stride := n / s
 		for k := range s / r {
 			for j := 1; j < r; j++ {
