@@ -115,13 +115,28 @@ func stageCost(radix int) float64 {
 	return 2.0 // radix 5
 }
 
-// fftCost models the time of one length-l transform plus half the
-// per-block copies (the spectral product rides on the inverse transform's
-// first pass; the copy out is about half a stage per transform), with a penalty
-// for lengths beyond 2¹⁴ whose buffers spill out of a core's cache
-// (BenchmarkFFTRadix: the time per point and stage grows about 17 % per
-// doubling from 2¹⁴ to 2²⁰ on the reference machine).
+// fftCost models the time of one block of length l (forward transform,
+// spectral product, inverse transform) in units of one radix-4 pass over
+// l points. A power of two runs on the depth-first in-place plan
+// (fftconv.go): one pass per level (radix 4, and one radix-2 level for
+// an odd power) and a quarter pass for the product and the block's
+// input and output, with a penalty of 3 % per doubling beyond 2¹⁴
+// (BenchmarkCorrelatorLen, CPU time per Apply: 1.2–1.3 ns per point and
+// pass at 2¹⁴–2¹⁷, 1.3–1.6 at 2¹⁸–2¹⁹). Other lengths run on the
+// Stockham plan (fft.go): per-radix stage costs plus half a stage for the
+// copies, with a penalty of 17 % per doubling beyond 2¹⁴, where its two
+// buffers spill out of a core's cache (BenchmarkFFTRadix; and
+// BenchmarkCorrelatorLen: 1.2 ns per unit at 15 360 points, 1.7–1.8 at
+// 196 608 and 327 680).
 func fftCost(l int) float64 {
+	lg := math.Log2(float64(l))
+	if isPow2(l) {
+		c := math.Ceil(lg/2) + 0.25
+		if lg > 14 {
+			c *= 1 + 0.03*(lg-14)
+		}
+		return c * float64(l)
+	}
 	c := 0.5
 	r := l
 	for r%4 == 0 {
@@ -134,8 +149,8 @@ func fftCost(l int) float64 {
 			r /= p
 		}
 	}
-	if l > 1<<14 {
-		c *= 1 + 0.17*(math.Log2(float64(l))-14)
+	if lg > 14 {
+		c *= 1 + 0.17*(lg-14)
 	}
 	return c * float64(l)
 }

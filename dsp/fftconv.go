@@ -30,10 +30,10 @@ import (
 // buffer.
 type convPlan struct {
 	n     int
-	radix []int          // radix of each level, from the whole length down
-	lens  []int          // segment length at each level
-	tw    [][]complex128 // tw[i][k·(r−1)+j−1] = w^{j·k}, k < lens[i]/r, 1 ≤ j < r
-	leaf  int            // first level whose segments fit convLeaf
+	radix []int             // radix of each level, from the whole length down
+	lens  []int             // segment length at each level
+	tw    [][][3]complex128 // tw[i][k][j−1] = w^{j·k}, k < lens[i]/4, 1 ≤ j < 4 (radix-4 levels above the bottom)
+	leaf  int               // first level whose segments fit convLeaf
 }
 
 // convLeaf is the segment length (points) below which the levels run
@@ -71,20 +71,22 @@ func newConvPlan(n int) *convPlan {
 	if n == 1 {
 		return p
 	}
-	// The top level's table holds w_n^{j·k} for k < n/r, j < r, each the
-	// product of two exactly rounded factors (as roots does, without its
-	// n-point table); a lower level of length s needs w_s^{j·k} =
-	// w_n^{j·k·n/s}, k·n/s < n/r: a strided gather from the top table. All
-	// tables share one allocation.
-	r0 := p.radix[0]
-	size := (n / r0) * (r0 - 1)
-	for i := 1; i < len(p.lens); i++ {
-		if s, r := p.lens[i], p.radix[i]; s != r {
-			size += (s / r) * (r - 1)
+	// Every level above the bottom is radix 4. The top level's table holds
+	// w_n^{j·k} for k < n/4, j < 4, each the product of two exactly rounded
+	// factors (as roots does, without its n-point table); a lower level of
+	// length s needs w_s^{j·k} = w_n^{j·k·n/s}, k·n/s < n/4: a strided
+	// gather from the top table. All tables share one allocation.
+	if n <= 4 {
+		return p // one level, the bottom: unit twiddles
+	}
+	size := 0
+	for i, l := range p.lens {
+		if l != p.radix[i] {
+			size += l / 4
 		}
 	}
-	all := make([]complex128, size)
-	top := all[:(n/r0)*(r0-1)]
+	all := make([][3]complex128, size)
+	top := all[:n/4]
 	all = all[len(top):]
 	b := int(math.Sqrt(float64(n))) + 1
 	ang := -2 * math.Pi / float64(n)
@@ -93,32 +95,29 @@ func newConvPlan(n int) *convPlan {
 		sin, cos := math.Sincos(ang * float64(c))
 		lo[c] = complex(cos, sin)
 	}
-	hi := make([]complex128, (r0-1)*(n/r0)/b+1)
+	hi := make([]complex128, 3*(n/4)/b+1)
 	for a := range hi {
 		sin, cos := math.Sincos(ang * float64(a*b))
 		hi[a] = complex(cos, sin)
 	}
-	for k := range n / r0 {
-		for j := 1; j < r0; j++ {
+	for k := range top {
+		for j := 1; j < 4; j++ {
 			e := j * k // < n
-			top[k*(r0-1)+j-1] = hi[e/b] * lo[e%b]
+			top[k][j-1] = hi[e/b] * lo[e%b]
 		}
 	}
-	p.tw = make([][]complex128, len(p.lens))
+	p.tw = make([][][3]complex128, len(p.lens))
 	p.tw[0] = top
 	for i := 1; i < len(p.lens); i++ {
-		s, r := p.lens[i], p.radix[i]
-		if s == r {
+		s := p.lens[i]
+		if s == p.radix[i] {
 			continue // the bottom level: unit twiddles
 		}
-		t := all[:(s/r)*(r-1)]
+		t := all[:s/4]
 		all = all[len(t):]
 		stride := n / s
-		for k := range s / r {
-			for j := 1; j < r; j++ {
-				// r = 4 here (only the bottom level may be radix 2), and r0 = 4.
-				t[k*(r-1)+j-1] = top[k*stride*(r0-1)+j-1]
-			}
+		for k := range t {
+			t[k] = top[k*stride]
 		}
 		p.tw[i] = t
 	}
@@ -213,15 +212,15 @@ func (p *convPlan) convRec(seg, spec []complex128, lvl int) {
 }
 
 // fwd4 runs a forward radix-4 level on every segment of s points of x.
-func fwd4(x []complex128, s int, tw []complex128) {
+func fwd4(x []complex128, s int, tw [][3]complex128) {
 	q := s / 4
-	tw = tw[:3*q]
+	tw = tw[:q]
 	for off := 0; off+s <= len(x); off += s {
 		seg := x[off : off+s : off+s]
 		x0, x1, x2, x3 := seg[:q], seg[q:2*q], seg[2*q:3*q], seg[3*q:]
 		x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
 		for k := range x0 {
-			w := tw[3*k : 3*k+3 : 3*k+3]
+			w := &tw[k]
 			a0, a1, a2, a3 := x0[k], x1[k], x2[k], x3[k]
 			t0, t1 := a0+a2, a0-a2
 			t2, d := a1+a3, a1-a3
@@ -236,15 +235,15 @@ func fwd4(x []complex128, s int, tw []complex128) {
 
 // fwd4From is fwd4 on one segment (len(dst) points) read from src and
 // written to dst.
-func fwd4From(dst, src, tw []complex128) {
+func fwd4From(dst, src []complex128, tw [][3]complex128) {
 	q := len(dst) / 4
-	tw = tw[:3*q]
+	tw = tw[:q]
 	x0, x1, x2, x3 := src[:q], src[q:2*q], src[2*q:3*q], src[3*q:4*q]
 	y0, y1, y2, y3 := dst[:q], dst[q:2*q], dst[2*q:3*q], dst[3*q:4*q]
 	x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
 	y0, y1, y2, y3 = y0[:len(x0)], y1[:len(x0)], y2[:len(x0)], y3[:len(x0)]
 	for k := range x0 {
-		w := tw[3*k : 3*k+3 : 3*k+3]
+		w := &tw[k]
 		a0, a1, a2, a3 := x0[k], x1[k], x2[k], x3[k]
 		t0, t1 := a0+a2, a0-a2
 		t2, d := a1+a3, a1-a3
@@ -262,15 +261,15 @@ func mulConj(a, w complex128) complex128 {
 }
 
 // inv4 runs an inverse radix-4 level on every segment of s points of x.
-func inv4(x []complex128, s int, tw []complex128) {
+func inv4(x []complex128, s int, tw [][3]complex128) {
 	q := s / 4
-	tw = tw[:3*q]
+	tw = tw[:q]
 	for off := 0; off+s <= len(x); off += s {
 		seg := x[off : off+s : off+s]
 		x0, x1, x2, x3 := seg[:q], seg[q:2*q], seg[2*q:3*q], seg[3*q:]
 		x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
 		for k := range x0 {
-			w := tw[3*k : 3*k+3 : 3*k+3]
+			w := &tw[k]
 			b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
 			t0, t1 := b0+b2, b0-b2
 			t2, d := b1+b3, b1-b3
@@ -285,9 +284,9 @@ func inv4(x []complex128, s int, tw []complex128) {
 
 // inv4To is inv4 on one segment (len(src) points) whose outputs below
 // len(dst) are written to dst; the others are not computed.
-func inv4To(dst, src, tw []complex128) {
+func inv4To(dst, src []complex128, tw [][3]complex128) {
 	q := len(src) / 4
-	tw = tw[:3*q]
+	tw = tw[:q]
 	x0, x1, x2, x3 := src[:q], src[q:2*q], src[2*q:3*q], src[3*q:4*q]
 	x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
 	// Quarter j of the output is dst[j·q : j·q+q]; kj of its points are wanted.
@@ -300,7 +299,7 @@ func inv4To(dst, src, tw []complex128) {
 		inv4Full(dst[:3*q+kq[3]], x0, x1, x2, x3, tw)
 	}
 	for k := kq[3]; k < kq[0]; k++ {
-		w := tw[3*k : 3*k+3 : 3*k+3]
+		w := &tw[k]
 		b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
 		t0, t1 := b0+b2, b0-b2
 		t2, d := b1+b3, b1-b3
@@ -317,13 +316,14 @@ func inv4To(dst, src, tw []complex128) {
 
 // inv4Full writes the four quarters' outputs for k < len(dst)−3q, where
 // q = len(x0).
-func inv4Full(dst, x0, x1, x2, x3, tw []complex128) {
+func inv4Full(dst, x0, x1, x2, x3 []complex128, tw [][3]complex128) {
 	q := len(x0)
 	y0, y1, y2, y3 := dst[:q], dst[q:2*q], dst[2*q:3*q], dst[3*q:]
 	x0, x1, x2, x3 = x0[:len(y3)], x1[:len(y3)], x2[:len(y3)], x3[:len(y3)]
 	y0, y1, y2 = y0[:len(y3)], y1[:len(y3)], y2[:len(y3)]
+	tw = tw[:len(y3)]
 	for k := range y3 {
-		w := tw[3*k : 3*k+3 : 3*k+3]
+		w := &tw[k]
 		b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
 		t0, t1 := b0+b2, b0-b2
 		t2, d := b1+b3, b1-b3
