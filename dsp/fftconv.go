@@ -224,11 +224,11 @@ func fwd4(x []complex128, s int, tw [][3]complex128) {
 			a0, a1, a2, a3 := x0[k], x1[k], x2[k], x3[k]
 			t0, t1 := a0+a2, a0-a2
 			t2, d := a1+a3, a1-a3
-			t3 := complex(imag(d), -real(d)) // −j·(a1−a3)
+			// t1 ∓ j·d written out by parts (no negation to compute).
 			x0[k] = t0 + t2
-			x1[k] = (t1 + t3) * w[0]
+			x1[k] = complex(real(t1)+imag(d), imag(t1)-real(d)) * w[0]
 			x2[k] = (t0 - t2) * w[1]
-			x3[k] = (t1 - t3) * w[2]
+			x3[k] = complex(real(t1)-imag(d), imag(t1)+real(d)) * w[2]
 		}
 	}
 }
@@ -247,11 +247,10 @@ func fwd4From(dst, src []complex128, tw [][3]complex128) {
 		a0, a1, a2, a3 := x0[k], x1[k], x2[k], x3[k]
 		t0, t1 := a0+a2, a0-a2
 		t2, d := a1+a3, a1-a3
-		t3 := complex(imag(d), -real(d))
 		y0[k] = t0 + t2
-		y1[k] = (t1 + t3) * w[0]
+		y1[k] = complex(real(t1)+imag(d), imag(t1)-real(d)) * w[0]
 		y2[k] = (t0 - t2) * w[1]
-		y3[k] = (t1 - t3) * w[2]
+		y3[k] = complex(real(t1)-imag(d), imag(t1)+real(d)) * w[2]
 	}
 }
 
@@ -273,11 +272,10 @@ func inv4(x []complex128, s int, tw [][3]complex128) {
 			b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
 			t0, t1 := b0+b2, b0-b2
 			t2, d := b1+b3, b1-b3
-			t3 := complex(-imag(d), real(d)) // +j·(b1−b3)
 			x0[k] = t0 + t2
-			x1[k] = t1 + t3
+			x1[k] = complex(real(t1)-imag(d), imag(t1)+real(d))
 			x2[k] = t0 - t2
-			x3[k] = t1 - t3
+			x3[k] = complex(real(t1)+imag(d), imag(t1)-real(d))
 		}
 	}
 }
@@ -303,10 +301,9 @@ func inv4To(dst, src []complex128, tw [][3]complex128) {
 		b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
 		t0, t1 := b0+b2, b0-b2
 		t2, d := b1+b3, b1-b3
-		t3 := complex(-imag(d), real(d))
 		dst[k] = t0 + t2
 		if k < kq[1] {
-			dst[q+k] = t1 + t3
+			dst[q+k] = complex(real(t1)-imag(d), imag(t1)+real(d))
 		}
 		if k < kq[2] {
 			dst[2*q+k] = t0 - t2
@@ -327,11 +324,10 @@ func inv4Full(dst, x0, x1, x2, x3 []complex128, tw [][3]complex128) {
 		b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
 		t0, t1 := b0+b2, b0-b2
 		t2, d := b1+b3, b1-b3
-		t3 := complex(-imag(d), real(d))
 		y0[k] = t0 + t2
-		y1[k] = t1 + t3
+		y1[k] = complex(real(t1)-imag(d), imag(t1)+real(d))
 		y2[k] = t0 - t2
-		y3[k] = t1 - t3
+		y3[k] = complex(real(t1)+imag(d), imag(t1)-real(d))
 	}
 }
 
@@ -345,8 +341,7 @@ func bottom4(x, spec []complex128) {
 			a0, a1, a2, a3 := v[0], v[1], v[2], v[3]
 			t0, t1 := a0+a2, a0-a2
 			t2, d := a1+a3, a1-a3
-			t3 := complex(imag(d), -real(d))
-			v[0], v[1], v[2], v[3] = t0+t2, t1+t3, t0-t2, t1-t3
+			v[0], v[1], v[2], v[3] = t0+t2, complex(real(t1)+imag(d), imag(t1)-real(d)), t0-t2, complex(real(t1)-imag(d), imag(t1)+real(d))
 		}
 		return
 	}
@@ -357,12 +352,10 @@ func bottom4(x, spec []complex128) {
 		a0, a1, a2, a3 := v[0], v[1], v[2], v[3]
 		t0, t1 := a0+a2, a0-a2
 		t2, d := a1+a3, a1-a3
-		t3 := complex(imag(d), -real(d))
-		b0, b1, b2, b3 := (t0+t2)*h[0], (t1+t3)*h[1], (t0-t2)*h[2], (t1-t3)*h[3]
+		b0, b1, b2, b3 := (t0+t2)*h[0], complex(real(t1)+imag(d), imag(t1)-real(d))*h[1], (t0-t2)*h[2], complex(real(t1)-imag(d), imag(t1)+real(d))*h[3]
 		t0, t1 = b0+b2, b0-b2
 		t2, d = b1+b3, b1-b3
-		t3 = complex(-imag(d), real(d))
-		v[0], v[1], v[2], v[3] = t0+t2, t1+t3, t0-t2, t1-t3
+		v[0], v[1], v[2], v[3] = t0+t2, complex(real(t1)-imag(d), imag(t1)+real(d)), t0-t2, complex(real(t1)+imag(d), imag(t1)-real(d))
 	}
 }
 
