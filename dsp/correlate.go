@@ -2,6 +2,7 @@ package dsp
 
 import (
 	"math"
+	"runtime"
 	"sync"
 	"sync/atomic"
 )
@@ -30,11 +31,27 @@ type Correlator struct {
 	scratch [][]complex128 // one buffer per worker: 2L points, or L with conv
 	wg      sync.WaitGroup
 	next    atomic.Int64 // next block to take, with several workers
+	par     int          // goroutines per Apply (1: Apply runs serially)
 	// With several workers: the goroutine bodies, made once so that Apply
 	// does not allocate, and the arguments of the Apply in progress.
 	workers []func()
 	dst, x  []complex128
+	// With conv, several workers and blocks mod workers = 1, the last
+	// block is shared by all workers (coopBlock): the blocks before it are
+	// taken whole (whole of them; all blocks otherwise).
+	coop    bool
+	whole   int
+	coopBuf []complex128 // the shared block's buffer (L points)
+	phase   [4]coopPhase // its phases' claimed and finished units
 }
+
+// coopPhase counts the units of one phase of the shared block that have
+// been claimed and finished.
+type coopPhase struct{ claim, done atomic.Int64 }
+
+// coopUnits is the number of pieces the shared block's copy, first
+// forward level and last inverse level are cut into.
+const coopUnits = 16
 
 // NewCorrelator returns a plan for windows of n samples (n ≥ 1) and the
 // reference ref (len(ref) ≥ 1), which is copied. It panics on empty
@@ -80,10 +97,17 @@ func newCorrelatorLen(ref []complex128, n, l, workers int) *Correlator {
 	if c.conv != nil {
 		size = l // the power-of-two plan works in place
 	}
-	for range min(workers, blocks) {
-		c.scratch = append(c.scratch, make([]complex128, size))
+	c.par, c.whole = min(workers, blocks), blocks
+	if shareLast(l, blocks, workers) {
+		c.coop, c.par, c.whole = true, workers, blocks-1
+		c.coopBuf = make([]complex128, l)
 	}
-	for i := 1; i < len(c.scratch); i++ {
+	if c.whole > 0 || c.conv == nil {
+		for range c.par {
+			c.scratch = append(c.scratch, make([]complex128, size))
+		}
+	}
+	for i := 1; i < c.par; i++ {
 		c.workers = append(c.workers, func() {
 			defer c.wg.Done()
 			c.blocks(i, c.dst, c.x)
@@ -171,8 +195,21 @@ func bestBlockLen(n, m, workers int) int {
 
 func blockCost(n, m, l, workers int) float64 {
 	blocks := (n + l - m) / (l - m + 1) // ceil(n / (l−m+1))
+	if shareLast(l, blocks, workers) {
+		// The last block is shared: each worker does 1/workers of it
+		// (and a little more for the waits between its phases).
+		return (float64(blocks-1)/float64(workers) + 1.1/float64(workers)) * fftCost(l)
+	}
 	perWorker := (blocks + workers - 1) / workers
 	return float64(perWorker) * fftCost(l)
+}
+
+// shareLast reports whether the last of the blocks of length l is shared
+// by the workers: with several workers, blocks mod workers = 1 (one block
+// would be left to a single worker), and a power-of-two l above the conv
+// plan's leaf size (its first level and its four quarters can be shared).
+func shareLast(l, blocks, workers int) bool {
+	return workers > 1 && blocks%workers == 1 && isPow2(l) && l > convLeaf
 }
 
 // Len returns n, the input and output length.
@@ -193,7 +230,7 @@ func (c *Correlator) Apply(dst, x []complex128) []complex128 {
 	} else if len(dst) != c.n {
 		panic("dsp: correlator destination length mismatch")
 	}
-	if len(c.scratch) == 1 {
+	if c.par == 1 {
 		c.blocks(0, dst, x)
 		return dst
 	}
@@ -206,6 +243,10 @@ func (c *Correlator) Apply(dst, x []complex128) []complex128 {
 // leaves its share to the others.
 func (c *Correlator) parallel(dst, x []complex128) {
 	c.next.Store(0)
+	for i := range c.phase {
+		c.phase[i].claim.Store(0)
+		c.phase[i].done.Store(0)
+	}
 	c.dst, c.x = dst, x
 	c.wg.Add(len(c.workers))
 	for _, f := range c.workers {
@@ -266,15 +307,19 @@ func (c *Correlator) blocks(i int, dst, x []complex128) {
 // the block's outputs straight into dst (fftconv.go).
 func (c *Correlator) convBlocks(i int, dst, x []complex128) {
 	l := c.l
-	buf := c.scratch[i][:l]
-	serial := len(c.scratch) == 1
-	for b := 0; ; b += c.step {
+	var buf []complex128
+	if c.whole > 0 {
+		buf = c.scratch[i][:l]
+	}
+	serial := c.par == 1
+	for k := 0; ; k++ {
 		if !serial {
-			b = int(c.next.Add(1)-1) * c.step
+			k = int(c.next.Add(1) - 1)
 		}
-		if b >= c.n {
-			return
+		if k >= c.whole {
+			break
 		}
+		b := k * c.step
 		src := buf
 		if b+l <= c.n {
 			src = x[b : b+l]
@@ -283,5 +328,55 @@ func (c *Correlator) convBlocks(i int, dst, x []complex128) {
 			clear(buf[k:])
 		}
 		c.conv.convolve(dst[b:min(b+c.step, c.n)], src, buf, c.spec)
+	}
+	if c.coop {
+		c.coopBlock(dst, x)
+	}
+}
+
+// coopBlock computes the last block with every worker: its copy into
+// coopBuf, its first forward level, its four quarters (each forward,
+// product and inverse, as in convolve) and its last inverse level into
+// dst, each phase cut into units that the workers claim in turn; a
+// worker waits (yielding) for the others to finish a phase before it
+// starts the next one, so a worker that waits for a core leaves its
+// share to the others.
+func (c *Correlator) coopBlock(dst, x []complex128) {
+	units := [4]int{coopUnits, coopUnits, 4, coopUnits}
+	for ph := range c.phase {
+		p := &c.phase[ph]
+		for {
+			u := int(p.claim.Add(1) - 1)
+			if u >= units[ph] {
+				break
+			}
+			c.coopUnit(ph, u, dst, x)
+			p.done.Add(1)
+		}
+		for p.done.Load() < int64(units[ph]) {
+			runtime.Gosched()
+		}
+	}
+}
+
+// coopUnit runs unit u of phase ph of the shared block.
+func (c *Correlator) coopUnit(ph, u int, dst, x []complex128) {
+	l, q := c.l, c.l/4
+	b := c.whole * c.step
+	buf := c.coopBuf
+	switch ph {
+	case 0: // copy x[b:] into the buffer, zero-padded
+		lo, hi := u*l/coopUnits, (u+1)*l/coopUnits
+		k := 0
+		if b+lo < c.n {
+			k = copy(buf[lo:hi], x[b+lo:min(b+hi, c.n)])
+		}
+		clear(buf[lo+k : hi])
+	case 1:
+		fwd4FromRange(buf, buf, c.conv.tw[0], u*q/coopUnits, (u+1)*q/coopUnits)
+	case 2:
+		c.conv.convRec(buf[u*q:(u+1)*q], c.spec[u*q:(u+1)*q], 1)
+	case 3:
+		inv4ToRange(dst[b:min(b+c.step, c.n)], buf, c.conv.tw[0], u*q/coopUnits, (u+1)*q/coopUnits)
 	}
 }

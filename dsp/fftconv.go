@@ -234,15 +234,20 @@ func fwd4(x []complex128, s int, tw [][3]complex128) {
 }
 
 // fwd4From is fwd4 on one segment (len(dst) points) read from src and
-// written to dst.
+// written to dst; src may be dst.
 func fwd4From(dst, src []complex128, tw [][3]complex128) {
+	fwd4FromRange(dst, src, tw, 0, len(dst)/4)
+}
+
+// fwd4FromRange is fwd4From for the butterflies k0 ≤ k < k1 only.
+func fwd4FromRange(dst, src []complex128, tw [][3]complex128, k0, k1 int) {
 	q := len(dst) / 4
-	tw = tw[:q]
-	x0, x1, x2, x3 := src[:q], src[q:2*q], src[2*q:3*q], src[3*q:4*q]
-	y0, y1, y2, y3 := dst[:q], dst[q:2*q], dst[2*q:3*q], dst[3*q:4*q]
-	x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
-	y0, y1, y2, y3 = y0[:len(x0)], y1[:len(x0)], y2[:len(x0)], y3[:len(x0)]
-	for k := range x0 {
+	tw = tw[k0:k1]
+	x0, x1, x2, x3 := src[k0:k1], src[q+k0:q+k1], src[2*q+k0:2*q+k1], src[3*q+k0:3*q+k1]
+	y0, y1, y2, y3 := dst[k0:k1], dst[q+k0:q+k1], dst[2*q+k0:2*q+k1], dst[3*q+k0:3*q+k1]
+	x0, x1, x2, x3 = x0[:len(tw)], x1[:len(tw)], x2[:len(tw)], x3[:len(tw)]
+	y0, y1, y2, y3 = y0[:len(tw)], y1[:len(tw)], y2[:len(tw)], y3[:len(tw)]
+	for k := range tw {
 		w := &tw[k]
 		a0, a1, a2, a3 := x0[k], x1[k], x2[k], x3[k]
 		t0, t1 := a0+a2, a0-a2
@@ -283,22 +288,25 @@ func inv4(x []complex128, s int, tw [][3]complex128) {
 // inv4To is inv4 on one segment (len(src) points) whose outputs below
 // len(dst) are written to dst; the others are not computed.
 func inv4To(dst, src []complex128, tw [][3]complex128) {
+	inv4ToRange(dst, src, tw, 0, len(src)/4)
+}
+
+// inv4ToRange is inv4To for the butterflies k0 ≤ k < k1 only.
+func inv4ToRange(dst, src []complex128, tw [][3]complex128, k0, k1 int) {
 	q := len(src) / 4
-	tw = tw[:q]
-	x0, x1, x2, x3 := src[:q], src[q:2*q], src[2*q:3*q], src[3*q:4*q]
-	x1, x2, x3 = x1[:len(x0)], x2[:len(x0)], x3[:len(x0)]
-	// Quarter j of the output is dst[j·q : j·q+q]; kj of its points are wanted.
+	// Quarter j of the output is dst[j·q : j·q+q]; kq[j] of its points are
+	// wanted: all four quarters for k < kq[3], three for k < kq[2], …
 	var kq [4]int
 	for j := range kq {
 		kq[j] = min(max(len(dst)-j*q, 0), q)
 	}
-	// All four quarters wanted for k < kq[3], three for k < kq[2], …
-	if kq[3] > 0 {
-		inv4Full(dst[:3*q+kq[3]], x0, x1, x2, x3, tw)
+	if e := min(k1, kq[3]); k0 < e {
+		inv4Full(dst[k0:e], dst[q+k0:q+e], dst[2*q+k0:2*q+e], dst[3*q+k0:3*q+e],
+			src[k0:e], src[q+k0:q+e], src[2*q+k0:2*q+e], src[3*q+k0:3*q+e], tw[k0:e])
 	}
-	for k := kq[3]; k < kq[0]; k++ {
+	for k := max(k0, kq[3]); k < min(k1, kq[0]); k++ {
 		w := &tw[k]
-		b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
+		b0, b1, b2, b3 := src[k], mulConj(src[q+k], w[0]), mulConj(src[2*q+k], w[1]), mulConj(src[3*q+k], w[2])
 		t0, t1 := b0+b2, b0-b2
 		t2, d := b1+b3, b1-b3
 		dst[k] = t0 + t2
@@ -311,15 +319,12 @@ func inv4To(dst, src []complex128, tw [][3]complex128) {
 	}
 }
 
-// inv4Full writes the four quarters' outputs for k < len(dst)−3q, where
-// q = len(x0).
-func inv4Full(dst, x0, x1, x2, x3 []complex128, tw [][3]complex128) {
-	q := len(x0)
-	y0, y1, y2, y3 := dst[:q], dst[q:2*q], dst[2*q:3*q], dst[3*q:]
-	x0, x1, x2, x3 = x0[:len(y3)], x1[:len(y3)], x2[:len(y3)], x3[:len(y3)]
-	y0, y1, y2 = y0[:len(y3)], y1[:len(y3)], y2[:len(y3)]
-	tw = tw[:len(y3)]
-	for k := range y3 {
+// inv4Full is the inverse radix-4 butterfly on x0…x3 into y0…y3 (all of
+// len(tw) points).
+func inv4Full(y0, y1, y2, y3, x0, x1, x2, x3 []complex128, tw [][3]complex128) {
+	x0, x1, x2, x3 = x0[:len(tw)], x1[:len(tw)], x2[:len(tw)], x3[:len(tw)]
+	y0, y1, y2, y3 = y0[:len(tw)], y1[:len(tw)], y2[:len(tw)], y3[:len(tw)]
+	for k := range tw {
 		w := &tw[k]
 		b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
 		t0, t1 := b0+b2, b0-b2

@@ -181,6 +181,10 @@ func TestCorrelatorConvLengths(t *testing.T) {
 	for _, c := range []struct{ n, m, l, w int }{
 		{20000, 3000, 8192, 1}, {20000, 3000, 8192, 2}, {30000, 1000, 2048, 2},
 		{40000, 2000, 32768, 1}, {40000, 2000, 65536, 1}, {5000, 5000, 16384, 1},
+		// The last block shared by the workers (blocks mod workers = 1):
+		// 29 blocks on 2, 3 blocks on 2, 4 on 3, a single block on 2 and 4.
+		{30000, 1000, 2048, 2}, {60000, 9000, 32768, 2}, {30000, 3000, 8192, 3},
+		{5000, 5000, 16384, 2}, {3000, 3000, 8192, 4},
 	} {
 		t.Run(fmt.Sprintf("n=%d/m=%d/L=%d/w=%d", c.n, c.m, c.l, c.w), func(t *testing.T) {
 			x, h := randComplex(rnd, c.n), randComplex(rnd, c.m)
@@ -188,6 +192,10 @@ func TestCorrelatorConvLengths(t *testing.T) {
 			p := newCorrelatorLen(h, c.n, c.l, c.w)
 			if p.conv == nil {
 				t.Fatal("power-of-two length without the conv plan")
+			}
+			blocks := (c.n + p.step - 1) / p.step
+			if want := c.w > 1 && blocks%c.w == 1; p.coop != want {
+				t.Fatalf("%d blocks on %d workers: shared last block %v, want %v", blocks, c.w, p.coop, want)
 			}
 			for range 2 {
 				if e := maxRelErr(p.Apply(nil, x), want); e > tol {
