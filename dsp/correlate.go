@@ -37,12 +37,12 @@ type Correlator struct {
 	workers []func()
 	dst, x  []complex128
 	// With conv, several workers and blocks mod workers = 1, the last
-	// block is shared by all workers (coopBlock): the blocks before it are
-	// taken whole (whole of them; all blocks otherwise).
-	coop    bool
-	whole   int
-	coopBuf []complex128 // the shared block's buffer (L points)
-	phase   [4]coopPhase // its phases' claimed and finished units
+	// block is shared by all workers (coopBlock), first, in worker 0's
+	// buffer; the blocks before it are then taken whole (whole of them;
+	// all blocks otherwise).
+	coop  bool
+	whole int
+	phase [3]coopPhase // the shared block's phases' claimed and finished units
 }
 
 // coopPhase counts the units of one phase of the shared block that have
@@ -100,12 +100,13 @@ func newCorrelatorLen(ref []complex128, n, l, workers int) *Correlator {
 	c.par, c.whole = min(workers, blocks), blocks
 	if shareLast(l, blocks, workers) {
 		c.coop, c.par, c.whole = true, workers, blocks-1
-		c.coopBuf = make([]complex128, l)
 	}
-	if c.whole > 0 || c.conv == nil {
-		for range c.par {
-			c.scratch = append(c.scratch, make([]complex128, size))
-		}
+	nbuf := c.par
+	if c.whole == 0 {
+		nbuf = 1 // the shared block's
+	}
+	for range nbuf {
+		c.scratch = append(c.scratch, make([]complex128, size))
 	}
 	for i := 1; i < c.par; i++ {
 		c.workers = append(c.workers, func() {
@@ -307,6 +308,9 @@ func (c *Correlator) blocks(i int, dst, x []complex128) {
 // the block's outputs straight into dst (fftconv.go).
 func (c *Correlator) convBlocks(i int, dst, x []complex128) {
 	l := c.l
+	if c.coop {
+		c.coopBlock(dst, x)
+	}
 	var buf []complex128
 	if c.whole > 0 {
 		buf = c.scratch[i][:l]
@@ -329,20 +333,18 @@ func (c *Correlator) convBlocks(i int, dst, x []complex128) {
 		}
 		c.conv.convolve(dst[b:min(b+c.step, c.n)], src, buf, c.spec)
 	}
-	if c.coop {
-		c.coopBlock(dst, x)
-	}
 }
 
-// coopBlock computes the last block with every worker: its copy into
-// coopBuf, its first forward level, its four quarters (each forward,
-// product and inverse, as in convolve) and its last inverse level into
-// dst, each phase cut into units that the workers claim in turn; a
-// worker waits (yielding) for the others to finish a phase before it
-// starts the next one, so a worker that waits for a core leaves its
-// share to the others.
+// coopBlock computes the last block with every worker, in worker 0's
+// buffer (no worker takes a whole block before the shared one is done):
+// its copy into the buffer with its first forward level, its four
+// quarters (each forward, product and inverse, as in convolve) and its
+// last inverse level into dst, each phase cut into units that the
+// workers claim in turn. A worker waits (yielding) for the others to
+// finish a phase before it starts the next one; a worker that waits for
+// a core leaves its share to the others.
 func (c *Correlator) coopBlock(dst, x []complex128) {
-	units := [4]int{coopUnits, coopUnits, 4, coopUnits}
+	units := [3]int{coopUnits, 4, coopUnits}
 	for ph := range c.phase {
 		p := &c.phase[ph]
 		for {
@@ -359,24 +361,30 @@ func (c *Correlator) coopBlock(dst, x []complex128) {
 	}
 }
 
-// coopUnit runs unit u of phase ph of the shared block.
+// coopUnit runs unit u of phase ph of the shared block: 0, the copy of
+// x[b:] (zero-padded) into the buffer and the first forward level, for
+// a range of butterflies (the four ranges of the buffer they read and
+// write); 1, quarter u; 2, the last inverse level for a range of
+// butterflies.
 func (c *Correlator) coopUnit(ph, u int, dst, x []complex128) {
 	l, q := c.l, c.l/4
 	b := c.whole * c.step
-	buf := c.coopBuf
+	buf := c.scratch[0][:l]
+	k0, k1 := u*q/coopUnits, (u+1)*q/coopUnits
 	switch ph {
-	case 0: // copy x[b:] into the buffer, zero-padded
-		lo, hi := u*l/coopUnits, (u+1)*l/coopUnits
-		k := 0
-		if b+lo < c.n {
-			k = copy(buf[lo:hi], x[b+lo:min(b+hi, c.n)])
+	case 0:
+		for j := range 4 {
+			lo, hi := j*q+k0, j*q+k1
+			k := 0
+			if b+lo < c.n {
+				k = copy(buf[lo:hi], x[b+lo:min(b+hi, c.n)])
+			}
+			clear(buf[lo+k : hi])
 		}
-		clear(buf[lo+k : hi])
+		fwd4FromRange(buf, buf, c.conv.tw[0], k0, k1)
 	case 1:
-		fwd4FromRange(buf, buf, c.conv.tw[0], u*q/coopUnits, (u+1)*q/coopUnits)
-	case 2:
 		c.conv.convRec(buf[u*q:(u+1)*q], c.spec[u*q:(u+1)*q], 1)
-	case 3:
-		inv4ToRange(dst[b:min(b+c.step, c.n)], buf, c.conv.tw[0], u*q/coopUnits, (u+1)*q/coopUnits)
+	case 2:
+		inv4ToRange(dst[b:min(b+c.step, c.n)], buf, c.conv.tw[0], k0, k1)
 	}
 }

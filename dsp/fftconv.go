@@ -100,10 +100,15 @@ func newConvPlan(n int) *convPlan {
 		sin, cos := math.Sincos(ang * float64(a*b))
 		hi[a] = complex(cos, sin)
 	}
+	// w^{j·k} = hi[a]·lo[c] with j·k = a·b + c, stepped without division.
+	var a, c [3]int
 	for k := range top {
-		for j := 1; j < 4; j++ {
-			e := j * k // < n
-			top[k][j-1] = hi[e/b] * lo[e%b]
+		for j := range 3 {
+			top[k][j] = hi[a[j]] * lo[c[j]]
+			if c[j] += j + 1; c[j] >= b {
+				c[j] -= b
+				a[j]++
+			}
 		}
 	}
 	p.tw = make([][][3]complex128, len(p.lens))
