@@ -14,13 +14,13 @@ import (
 //
 // with x taken as zero beyond its end (the package convention: an echo
 // whose leading edge is at sample d peaks at y[d]). It multiplies spectra
-// from the package's Stockham FFT (fft.go) at a length L whose prime
-// factors are 2, 3 and 5: one block of L ≥ n+m−1 when that is cheapest,
-// otherwise overlap-save blocks of L−m+1 outputs each, L chosen by a cost
-// model of that FFT (measured per radix, with a penalty for blocks that
-// overflow a core's cache). A Correlator owns its scratch space; Apply
-// does not allocate when dst is given, whatever its worker count. It is
-// not safe for concurrent use.
+// at a length L whose prime factors are 2, 3 and 5: one block of
+// L ≥ n+m−1 when that is cheapest, otherwise overlap-save blocks of
+// L−m+1 outputs each, L chosen by a cost model of the package's FFTs
+// (fftCost, measured). A power-of-two L runs on the in-place depth-first
+// plan (fftconv.go), others on the Stockham FFT (fft.go). A Correlator
+// owns its scratch space; Apply does not allocate when dst is given,
+// whatever its worker count. It is not safe for concurrent use.
 type Correlator struct {
 	n, m    int
 	step    int            // outputs per block, L−m+1

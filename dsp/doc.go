@@ -20,9 +20,12 @@
 // with x taken as zero beyond its end, so an echo whose leading edge is
 // at sample d peaks at y[d]. Fourier transforms are unnormalised, as in
 // gonum.org/v1/gonum/dsp/fourier. The correlation plans use the package's
-// own Stockham FFT (fft.go; lengths with prime factors 2, 3 and 5),
-// which is tested against gonum's to 1e-12 of the transform's norm and
-// runs several times faster.
+// own FFTs: a Stockham FFT (fft.go; lengths with prime factors 2, 3 and
+// 5) and, for the correlator's power-of-two blocks, an in-place
+// depth-first FFT that leaves the spectrum in digit-reversed order for
+// the product and its mirror inverse (fftconv.go). Both are tested
+// against numpy.fft and gonum's to 1e-12 of the transform's norm; they
+// run several times faster than gonum's.
 //
 // # Detection probability
 //
