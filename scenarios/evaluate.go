@@ -313,12 +313,12 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.ChiFigures, dopLoss float
 	}
 	v -= g.stcLossDB // the STC's attenuation at its range (front_end)
 	if g.t.Kind == TargetPoint {
-		v -= g.rainLossDB
+		v -= g.rainLossDB + g.gasLossDB
 		if g.multipath {
 			v += g.multipathDB
 		}
 	} else {
-		v -= m.rainLossDB(rangeM)
+		v -= m.rainLossDB(rangeM) + m.gasLossDB(rangeM)
 	}
 	return math.Max(v, dbFloor)
 }

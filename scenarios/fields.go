@@ -60,7 +60,7 @@ var detectorFields = map[string][]string{
 
 var targetFields = map[string][]string{
 	TargetPoint:    {"range_m", "rcs_dbsm", "range_rate_mps", "fluctuation", "height_m"},
-	TargetExtended: {"range_start_m", "range_stop_m", "rcs_dbsm_per_m", "sigma0_db", "gamma_db", "range_rate_mps", "velocity_spread_mps", "role"},
+	TargetExtended: {"range_start_m", "range_stop_m", "rcs_dbsm_per_m", "sigma0_db", "gamma_db", "sea_state", "polarisation", "range_rate_mps", "velocity_spread_mps", "role"},
 	TargetVolume:   {"range_start_m", "range_stop_m", "reflectivity_dbz", "range_rate_mps", "velocity_spread_mps", "role"},
 }
 

@@ -111,6 +111,7 @@ type tgt struct {
 	slowVar, skirtVarDB           float64
 	hidden                        bool    // point: beyond the radar horizon (horizon.go)
 	rainLossDB                    float64 // point: two-way rain attenuation at its range, dB
+	gasLossDB                     float64 // point: two-way gaseous attenuation at its range, dB
 	multipathDB                   float64 // point: two-way multipath gain over a flat sea, dB (may be −Inf)
 	multipath                     bool
 }
@@ -229,7 +230,8 @@ func (sc *scene) point(j int, g *tgt, lp *localPlan) {
 	}
 	pr := dsp.ReceivedPower(r.PeakPowerW, dsp.FromDB(r.AntennaGainDBi), m.lambda, sigma, g.t.RangeM, dsp.FromDB(r.SystemLossDB))
 	g.rainLossDB = m.rainLossDB(g.t.RangeM)
-	g.amp = math.Sqrt(pr / m.noiseW * dsp.FromDB(-g.rainLossDB))
+	g.gasLossDB = m.gasLossDB(g.t.RangeM)
+	g.amp = math.Sqrt(pr / m.noiseW * dsp.FromDB(-g.rainLossDB-g.gasLossDB))
 	if g.multipathDB, g.multipath = m.multipathDB(g.t); g.multipath {
 		g.amp *= math.Pow(10, math.Max(g.multipathDB, -400)/20)
 	}
@@ -418,7 +420,7 @@ func (sc *scene) distributed(ctx context.Context, j int, g *tgt, lp *localPlan) 
 			if s1 <= s0 || !m.processed[k] || rk <= 0 {
 				continue
 			}
-			density[k-klo] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4) * dsp.FromDB(-m.rainLoss(rk, rainG))
+			density[k-klo] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4) * dsp.FromDB(-m.rainLoss(rk, rainG)-m.gasLossDB(rk))
 			lo, hi = min(lo, k), max(hi, k)
 		}
 		if err := ctx.Err(); err != nil {

@@ -194,6 +194,7 @@ export class Editor {
     const t = (this.store.scenario.targets || [])[i];
     if (!t) return;
     const key = levelKey(t.kind, t);
+    if (key === 'sea_state') dB = Math.sign(dB); // whole sea states
     this.store.update((s) => {
       const v = (s.targets[i][key] ?? 0) + dB;
       s.targets[i][key] = Math.round(v * 10) / 10;
@@ -386,7 +387,8 @@ export class Editor {
     const st = rep ? rep.status : '';
     const level = num(lk);
     level.dataset.level = String(i);
-    level.title = `${lv.name} in ${lv.unit}: wheel, or ↑/↓ while this field has the focus, nudges it by 1 dB (Shift: 0.1 dB)`;
+    level.title = lk === 'sea_state' ? `${lv.name}, ${lv.unit}: wheel, or ↑/↓ while this field has the focus, steps it by one`
+      : `${lv.name} in ${lv.unit}: wheel, or ↑/↓ while this field has the focus, nudges it by 1 dB (Shift: 0.1 dB)`;
     level.setAttribute('aria-label', `${t.id} ${lv.name} (${lv.unit})`);
     const range = num(t.kind === 'point' ? 'range_m' : 'range_start_m', 'range');
     range.setAttribute('aria-label', `${t.id} ${t.kind === 'point' ? 'range' : 'near edge'} (${unitLabel('range')})`);
