@@ -74,8 +74,8 @@ func newConvPlan(n int) *convPlan {
 	// Every level above the bottom is radix 4. The top level's table holds
 	// w_n^{j·k} for k < n/4, j < 4, each the product of two exactly rounded
 	// factors (as roots does, without its n-point table); a lower level of
-	// length s needs w_s^{j·k} = w_n^{j·k·n/s}, k·n/s < n/4: a strided
-	// gather from the top table. All tables share one allocation.
+	// length s needs w_s^{j·k} = w_n^{j·k·n/s}, k·n/s < n/4: every fourth
+	// entry of the level above's table. All tables share one allocation.
 	if n <= 4 {
 		return p // one level, the bottom: unit twiddles
 	}
@@ -120,9 +120,9 @@ func newConvPlan(n int) *convPlan {
 		}
 		t := all[:s/4]
 		all = all[len(t):]
-		stride := n / s
+		prev := p.tw[i-1] // w_s^{j·k} = w_{4s}^{j·4k}: every fourth of the level above
 		for k := range t {
-			t[k] = top[k*stride]
+			t[k] = prev[4*k]
 		}
 		p.tw[i] = t
 	}
