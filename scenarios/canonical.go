@@ -100,6 +100,9 @@ func (s *Scenario) canonicalRadar() ordered {
 	if r.Schedule != nil {
 		o = append(o, member{"schedule", canonicalSchedule(r)})
 	}
+	if r.Scan != nil {
+		o = append(o, member{"scan", canonicalScan(r.Scan)})
+	}
 	return o
 }
 

@@ -183,7 +183,7 @@ func (m *model) perMetre(t Target, r float64) float64 {
 		if !ok {
 			return 0
 		}
-		return dsp.SurfacePatchRCS(s0, r, az, 1, psi)
+		return dsp.SurfacePatchRCS(s0, r, m.clutterWidth(), 1, psi)
 	}
 	return dsp.FromDB(t.RCSDBsmPerM)
 }

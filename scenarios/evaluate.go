@@ -66,7 +66,7 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 		// also uses this one's core once the reports are done.
 		go func() { window <- sc.window(min(2, runtime.GOMAXPROCS(0))) }()
 	}
-	res := &Result{}
+	res := &Result{sc: sc}
 	res.Report.Version = ReportVersion
 	res.Report.Scenario = s.Name
 	res.Report.Waveform = m.waveformReport()
@@ -90,6 +90,7 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	}
 	res.Report.FalseAlarms, res.Report.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	res.Report.Warnings = append([]string{}, m.warnings...)
+	res.Report.Scan = scanReport(s)
 	if s.Radar.Schedule != nil {
 		if res.Report.Schedule, err = evalSchedule(ctx, s, m); err != nil {
 			return nil, err
@@ -123,6 +124,7 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	rep.Targets = sc.targetReports(ctx, m, false)
 	rep.FalseAlarms, rep.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	rep.Warnings = append([]string{}, m.warnings...)
+	rep.Scan = scanReport(s)
 	if s.Radar.Schedule != nil {
 		if rep.Schedule, err = evalSchedule(ctx, s, m); err != nil {
 			return nil, err
@@ -252,6 +254,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		}
 		if sc.train != nil {
 			sc.train.report(j, v, single, bin, &tr)
+			tr.Reason += sc.train.scanWords(j, &tr)
 		}
 		hinted := false
 		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && v.status != StatusFolded && v.status != StatusClutter && v.status != StatusBelowHorizon && budget > 0 && ctx.Err() == nil {

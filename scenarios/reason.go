@@ -299,6 +299,7 @@ func (s *Scenario) clone() *Scenario {
 	t := *s
 	t.Targets = append([]Target(nil), s.Targets...)
 	t.Radar.Schedule = s.Radar.Schedule.clone()
+	t.Radar.Scan = s.Radar.Scan.clone()
 	t.Waveform.PhasesDeg = append([]float64(nil), s.Waveform.PhasesDeg...)
 	if s.Waveform.PhasesDeg == nil {
 		t.Waveform.PhasesDeg = nil

@@ -116,6 +116,9 @@ func randomScenario(r *rand.Rand) *Scenario {
 		sc.M = 1 + r.IntN(sc.N())
 		s.Radar.Schedule = sc
 	}
+	if r.IntN(4) == 0 {
+		s.Radar.Scan = &Scan{RateDegS: u(0.5, 720), Plane: pick(scanPlanes), Pattern: pick(scanPatterns)}
+	}
 	for i := range r.IntN(6) {
 		t := Target{ID: "t" + string(rune('a'+i)), Kind: pick(targetKinds), RangeRateMPS: math.Round(u(-300, 300))}
 		switch t.Kind {

@@ -79,6 +79,9 @@ type Radar struct {
 	// Schedule holds the CPIs after this one (a PRF schedule, added in
 	// format version 2); nil for a single CPI.
 	Schedule *Schedule `json:"schedule,omitempty"`
+	// Scan is the beam's scan (added in format version 2); nil for a
+	// staring beam.
+	Scan *Scan `json:"scan,omitempty"`
 }
 
 // Waveform kinds.

@@ -72,6 +72,10 @@ type scene struct {
 	partial          bool
 	fe               *frontEnd
 	extras           []extra // impairments' power (impair.go)
+	// powCorr correlates |echo|² with |ref|² (powCorrN samples): the
+	// white floor of phase-noise skirts (impair.go).
+	powCorr  *dsp.Correlator
+	powCorrN int
 }
 
 // reaches reports whether a response over window samples [lo, hi) is
@@ -114,6 +118,9 @@ type tgt struct {
 	gasLossDB                     float64 // point: two-way gaseous attenuation at its range, dB
 	multipathDB                   float64 // point: two-way multipath gain over a flat sea, dB (may be −Inf)
 	multipath                     bool
+	// Point: its response had the ADC not clipped its echo (empty when
+	// not clipped), for the dynamic-range view (floors.go).
+	unclipped response
 }
 
 func streamOf(seed int64, id string, salt uint64) *rand.Rand {
@@ -177,6 +184,9 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 		}
 	}
 	sc.receiverExtras()
+	if focus < 0 {
+		m.scanWarnings()
+	}
 	if m.s.Radar.Pulses > 1 && focus < 0 { // suggestions are checked on single pulses
 		sc.train = newTrain(m, sc)
 	}

@@ -28,6 +28,7 @@ export class Editor {
     this.roots = roots;
     this.store = store;
     this.selected = 0; // index of the selected target
+    this.selectHooks = []; // fn(i) called when the user selects target i
     this.status = new Map(); // target id → report entry
     this.reportTargets = []; // the report's entries, in scene order
     this.shape = '';
@@ -176,6 +177,7 @@ export class Editor {
   // Select target i: mark its row and show its detail form, leaving the
   // table (and any input being typed in) alone.
   select(i) {
+    for (const fn of this.selectHooks) fn(i); // floors.js: a choice, even of the row already selected
     if (i === this.selected) return;
     this.selected = i;
     for (const tr of $$('tr[data-row]', this.roots.targets)) tr.classList.toggle('sel', Number(tr.dataset.row) === i);
