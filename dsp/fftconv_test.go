@@ -205,3 +205,23 @@ func TestCorrelatorConvLengths(t *testing.T) {
 		})
 	}
 }
+
+func TestConvPlanPanics(t *testing.T) {
+	for _, n := range []int{0, 3, 12, 1000} {
+		func() {
+			defer func() {
+				if r, ok := recover().(string); !ok || r[:5] != "dsp: " {
+					t.Errorf("n=%d: panic %v, want a \"dsp: \" message", n, r)
+				}
+			}()
+			newConvPlan(n)
+		}()
+	}
+	p := newConvPlan(8)
+	defer func() {
+		if r, ok := recover().(string); !ok || r[:5] != "dsp: " {
+			t.Errorf("short buffer: panic %v, want a \"dsp: \" message", r)
+		}
+	}()
+	p.convolve(make([]complex128, 8), make([]complex128, 8), make([]complex128, 7), make([]complex128, 8))
+}
