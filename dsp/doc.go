@@ -45,8 +45,11 @@
 // goroutines, with one exception approved for speed: a plan made by
 // NewCorrelatorWorkers with more than one worker runs its overlap-save
 // blocks on that many goroutines, which live only inside Apply and share
-// only read-only tables and disjoint parts of the destination. Random draws take an explicit *rand.Rand so that results
-// are deterministic for a seed. Plans (types named …Plan or created by
+// only read-only tables and disjoint parts of the destination (and, when
+// they share the last block, disjoint parts of one buffer, phase by
+// phase; for one block length the result is the same to the last bit
+// whatever the worker count). Random draws take an explicit *rand.Rand so that results are
+// deterministic for a seed. Plans (types named …Plan or created by
 // New…) own scratch buffers, are reusable and are not safe for
 // concurrent use. Methods that fill a destination take it first and
 // allocate only when it is nil; a destination of the wrong length is a

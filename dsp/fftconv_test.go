@@ -225,3 +225,22 @@ func TestConvPlanPanics(t *testing.T) {
 	}()
 	p.convolve(make([]complex128, 8), make([]complex128, 8), make([]complex128, 7), make([]complex128, 8))
 }
+
+// For one block length, the result does not depend on the worker count
+// to the last bit, the shared last block included (the same operations
+// on the same numbers in any order of blocks and pieces).
+func TestCorrelatorWorkersBitExact(t *testing.T) {
+	rnd := rand.New(rand.NewPCG(14, 14))
+	for _, c := range []struct{ n, m, l int }{{30000, 1000, 2048}, {60000, 9000, 32768}, {5000, 5000, 16384}, {20000, 300, 1024}} {
+		x, h := randComplex(rnd, c.n), randComplex(rnd, c.m)
+		want := newCorrelatorLen(h, c.n, c.l, 1).Apply(nil, x)
+		for _, w := range []int{2, 3, 4} {
+			got := newCorrelatorLen(h, c.n, c.l, w).Apply(nil, x)
+			for i := range got {
+				if got[i] != want[i] {
+					t.Fatalf("n=%d m=%d L=%d, %d workers: y[%d] = %v, one worker %v", c.n, c.m, c.l, w, i, got[i], want[i])
+				}
+			}
+		}
+	}
+}
