@@ -37,7 +37,11 @@
 // Shnidman give the published approximations as cross-checks. SNR there is
 // always the mean SNR of one pulse; thresholds are in units of the noise
 // power of one pulse, and CFAR multipliers apply to the mean of the
-// reference cells (docs/detection-probability.md).
+// reference cells (docs/detection-probability.md). PdInCell gives the
+// probability that a cell holding several echoes (a target and a
+// neighbour's sidelobe, clutter) crosses any such detector's threshold,
+// their carrier phases uniform; VariantPd the Pd behind the greatest-of,
+// smallest-of and censored CFARs.
 //
 // # Purity
 //
