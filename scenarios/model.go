@@ -36,6 +36,7 @@ type model struct {
 	processed []bool   // per gate: its sample time lies in no transmit interval
 	cfar      *dsp.CFAR
 	rho       []complex128 // noise correlation of the reference by lag, up to the CFAR span
+	memo      *pdMemo      // detection probabilities, shared with the models that follow (pdmemo.go)
 }
 
 // dopFigure is the Doppler response of the reference at one Doppler shift.
@@ -158,6 +159,11 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 		n:      s.WindowSamples(),
 		t0:     2 * r.WindowStartM / C,
 		unambM: C * r.PRIS / 2,
+	}
+	if prev != nil {
+		m.memo = prev.memo
+	} else {
+		m.memo = new(pdMemo)
 	}
 	m.noiseW = dsp.NoisePower(dsp.FromDB(r.NoiseFigureDB), m.fs)
 	if sameWave && prev.fs == m.fs && sameTaps(s.Receiver.Taps, prev.s.Receiver.Taps) {

@@ -22,7 +22,7 @@ func dragSession(tb testing.TB) (*session, *evalCache) {
 }
 
 // dragEdits returns raw scenarios of demo name with its first target at
-// n ranges 2 m apart, as a drag sends them.
+// n ranges 0.25 m apart, as a drag sends them.
 func dragEdits(tb testing.TB, name string, n int) []json.RawMessage {
 	tb.Helper()
 	d, err := scenarios.LoadDemo(name)
@@ -39,7 +39,7 @@ func dragEdits(tb testing.TB, name string, n int) []json.RawMessage {
 		json.Unmarshal(raw, &m)
 		t := m["targets"].([]any)[0].(map[string]any)
 		if r, ok := t["range_m"].(float64); ok {
-			t["range_m"] = r + 2*float64(i%8)
+			t["range_m"] = r + 0.25*float64(i)
 		}
 		raw, _ = json.Marshal(m)
 		out = append(out, raw)
@@ -51,10 +51,15 @@ func dragEdits(tb testing.TB, name string, n int) []json.RawMessage {
 // the rest unchanged), from the raw scenario to the bytes for the
 // websocket, with the session's engine and caches warm.
 func BenchmarkDragFrame(b *testing.B) {
-	for _, name := range []string{"harbour-skiff", "rocky-coast", "hill-clutter-doppler"} {
+	demos, err := scenarios.Demos()
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, d := range demos {
+		name := d.Name
 		b.Run(name, func(b *testing.B) {
 			ss, c := dragSession(b)
-			edits := dragEdits(b, name, 8)
+			edits := dragEdits(b, name, 64) // every frame a new range: nothing repeats
 			sent := map[string]string{}
 			ctx := context.Background()
 			gen := uint64(0)
@@ -73,10 +78,12 @@ func BenchmarkDragFrame(b *testing.B) {
 			frameOf(0)
 			b.ReportAllocs()
 			i := 0
+			cpu0 := processCPU()
 			for b.Loop() {
 				i++
 				frameOf(i)
 			}
+			b.ReportMetric(float64(processCPU()-cpu0)/float64(b.N)/1e6, "cpu-ms/op")
 		})
 	}
 }
