@@ -50,6 +50,7 @@ type evalCache struct {
 	respBuf         []byte              // the response chart's inputs, encoded, …
 	respLast        []byte              // … and those of the one the page holds
 	mapsOf          *scenarios.Result   // the result whose CPISeries ScheduleMaps filled in
+	maps            mapScratch          // the heat maps' reused storage (mapframes.go)
 }
 
 // compute evaluates the newest state the reader posted and puts its frame
