@@ -3,6 +3,7 @@ package scenarios
 import (
 	"encoding/binary"
 	"math"
+	"slices"
 	"sync"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -53,6 +54,57 @@ type pdMemo struct {
 	evIDs  map[string]int32
 	evNext int32
 	keyBuf []byte
+	// cf2s are the range–Doppler detectors of the last evaluations (the
+	// pulse train's and each CPI's of a schedule), newest first, with
+	// the multipliers they have solved: solving them is a third of a
+	// pulse train's evaluation, and a drag changes none of them.
+	cf2s []*dsp.CFAR2D
+}
+
+// cf2Kept is the number of range–Doppler detectors a memo keeps.
+const cf2Kept = 8
+
+// cfar2 returns the detector kept from an earlier evaluation that is
+// the same as c (its settings, and the noise correlations in range and
+// Doppler equal value for value), with the multipliers it has solved, or
+// keeps c and returns it. The detector it returns is used by one
+// evaluation at a time (an Engine is not safe for concurrent use).
+func (p *pdMemo) cfar2(c *dsp.CFAR2D) *dsp.CFAR2D {
+	if p == nil || c == nil {
+		return c
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	for i, k := range p.cf2s {
+		if sameCFAR2D(k, c) {
+			copy(p.cf2s[1:i+1], p.cf2s[:i])
+			p.cf2s[0] = k
+			return k
+		}
+	}
+	if len(p.cf2s) < cf2Kept {
+		p.cf2s = append(p.cf2s, nil)
+	}
+	copy(p.cf2s[1:], p.cf2s)
+	p.cf2s[0] = c
+	return c
+}
+
+// sameCFAR2D says whether two detectors have the same settings and noise
+// correlations.
+func sameCFAR2D(a, b *dsp.CFAR2D) bool {
+	if a.PFA != b.PFA || a.GuardR != b.GuardR || a.TrainR != b.TrainR || a.GuardD != b.GuardD || a.TrainD != b.TrainD ||
+		a.Rank != b.Rank || a.Variant != b.Variant || a.Censor != b.Censor ||
+		!slices.Equal(a.RhoR, b.RhoR) || (a.RhoR == nil) != (b.RhoR == nil) ||
+		len(a.DopplerCov) != len(b.DopplerCov) || (a.DopplerCov == nil) != (b.DopplerCov == nil) {
+		return false
+	}
+	for i := range a.DopplerCov {
+		if !slices.Equal(a.DopplerCov[i], b.DopplerCov[i]) {
+			return false
+		}
+	}
+	return true
 }
 
 // evID returns the interned id of ev (exact bits), −1 for nil.

@@ -5,7 +5,11 @@ import (
 	"context"
 	"encoding/json"
 	"math/rand"
+	"reflect"
+	"slices"
 	"testing"
+
+	"github.com/pulsewright/pulsewright/dsp"
 )
 
 // randomEdit returns s (canonical JSON) with a few of the edits a user
@@ -179,5 +183,29 @@ func TestPdMemoHits(t *testing.T) {
 	}
 	if n := len(p.cur) + len(p.old); n > 2*pdMemoGen {
 		t.Errorf("memo holds %d results, bound %d", n, 2*pdMemoGen)
+	}
+}
+
+// TestSameCFAR2DKnowsEveryField: sameCFAR2D compares every exported
+// setting of dsp.CFAR2D; a new one must be added there, or the memo
+// would hand out a detector of other settings.
+func TestSameCFAR2DKnowsEveryField(t *testing.T) {
+	typ := reflect.TypeFor[dsp.CFAR2D]()
+	var names []string
+	for i := range typ.NumField() {
+		if f := typ.Field(i); f.IsExported() {
+			names = append(names, f.Name)
+		}
+	}
+	want := []string{"PFA", "GuardR", "TrainR", "GuardD", "TrainD", "Rank", "Variant", "Censor", "RhoR", "DopplerCov"}
+	if !slices.Equal(names, want) {
+		t.Errorf("dsp.CFAR2D's exported fields are %v; sameCFAR2D compares %v", names, want)
+	}
+	a := &dsp.CFAR2D{PFA: 1e-6, TrainR: 16, RhoR: []complex128{1, 0.5}}
+	b := *a
+	b.RhoR = []complex128{1, 0.25}
+	var p pdMemo
+	if p.cfar2(a) != a || p.cfar2(&b) != &b || p.cfar2(&dsp.CFAR2D{PFA: 1e-6, TrainR: 16, RhoR: []complex128{1, 0.5}}) != a {
+		t.Error("the memo does not tell detectors apart by their noise correlation, or does not keep them")
 	}
 }
