@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/cmplx"
 	"runtime"
+	"slices"
 	"sync"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -29,6 +30,11 @@ type train struct {
 	gain [][]float64 // gain[j][bin]: target j's power per bin for unit single-pulse power, re noise per bin
 	cf2  *dsp.CFAR2D // the map's detector, kept with the multipliers it has solved
 	cfOK bool
+	// radar.scan: each pulse's two-way voltage gain on a point target
+	// (nil: staring), its power, and each target's scan loss on the map,
+	// dB (nil: staring).
+	scanA, scanPow []float64
+	scanLoss       []float64
 }
 
 func mtiTaps(kind string) []float64 {
@@ -60,7 +66,14 @@ func newTrain(m *model, sc *scene) *train {
 	r := m.s.Radar
 	tr := &train{m: m, sc: sc, plan: dsp.NewSlowTimePlan(r.Pulses, mtiTaps(m.s.Receiver.MTI), dspWindow(m.s.Receiver.DopplerWindow))}
 	nb := tr.plan.Bins()
-	for _, g := range sc.targets {
+	if tr.scanA = m.scanGains(); tr.scanA != nil {
+		tr.scanPow = make([]float64, len(tr.scanA))
+		for i, a := range tr.scanA {
+			tr.scanPow[i] = a * a
+		}
+		tr.scanLoss = make([]float64, len(sc.targets))
+	}
+	for j, g := range sc.targets {
 		gain := make([]float64, nb)
 		fdT := g.fd * r.PRIS
 		switch {
@@ -69,6 +82,18 @@ func newTrain(m *model, sc *scene) *train {
 			tone := tr.plan.ToneResponse(nil, fdT)
 			for d := range gain {
 				gain[d] = (c*tone[d] + (1-c)*tr.incoherent()) * (1 - g.slowVar)
+			}
+			if tr.scanA != nil {
+				// The scan weights each pulse by the beam's two-way gain.
+				plain := slices.Max(gain)
+				mod := tr.plan.ModulatedToneResponse(tone, fdT, tr.scanA)
+				flat := tr.plan.FlatResponse(tr.scanPow)
+				for d := range gain {
+					gain[d] = (c*mod[d] + (1-c)*flat) * (1 - g.slowVar)
+				}
+				if peak := slices.Max(gain); peak > 0 && plain > 0 {
+					tr.scanLoss[j] = dsp.DB(plain / peak)
+				}
 			}
 		default:
 			// Gaussian Doppler spectrum of rms width 2σv/λ, as 33 tones.
@@ -312,6 +337,9 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 				a = math.Sqrt(dsp.SwerlingRCS(rng, 1, fl))
 			}
 			amps[p][j] = a
+			if tr.scanA != nil && g.t.Kind == TargetPoint {
+				amps[p][j] *= tr.scanA[p]
+			}
 		}
 	}
 	fields := make([]*clutterField, len(targets))
@@ -485,6 +513,10 @@ func (tr *train) report(j int, v, single verdict, bin int, out *TargetReport) {
 	if v.peakK >= 0 && v.peak > 0 {
 		snr := out.SNRDB + dsp.DB(tr.gain[j][bin])
 		out.SNRIntegratedDB = &snr
+	}
+	if tr.scanLoss != nil && g.t.Kind == TargetPoint {
+		l := tr.scanLoss[j]
+		out.ScanLossDB = &l
 	}
 	if blind {
 		what := "where stationary clutter sits"
