@@ -36,6 +36,9 @@ func Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 // Engine is not safe for concurrent use.
 type Engine struct {
 	last *model
+	// uncached turns the memo of detection probabilities off (pdmemo.go),
+	// for the test that compares memoised results with fresh ones.
+	uncached bool
 }
 
 // Evaluate is the package function Evaluate with reuse of the previous
@@ -44,6 +47,9 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	m, err := newModel(s, e.last)
 	if err != nil {
 		return nil, err
+	}
+	if e.uncached {
+		m.memo = nil
 	}
 	// The window's compression plan is kept across frames by the Engine
 	// alone: suggestions build models of their own and must not share it.
@@ -115,6 +121,9 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	m, err := newModel(s, e.last)
 	if err != nil {
 		return nil, err
+	}
+	if e.uncached {
+		m.memo = nil
 	}
 	sc, err := newScene(ctx, m)
 	if err != nil {

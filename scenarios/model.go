@@ -37,6 +37,7 @@ type model struct {
 	processed []bool   // per gate: its sample time lies in no transmit interval
 	cfar      *dsp.CFAR
 	rho       []complex128 // noise correlation of the reference by lag, up to the CFAR span
+	memo      *pdMemo      // detection probabilities, shared with the models that follow (pdmemo.go)
 }
 
 // dopFigure is the Doppler response of the reference at one Doppler shift.
@@ -159,6 +160,11 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 		n:      s.WindowSamples(),
 		t0:     2 * r.WindowStartM / C,
 		unambM: C * r.PRIS / 2,
+	}
+	if prev != nil {
+		m.memo = prev.memo
+	} else {
+		m.memo = new(pdMemo)
 	}
 	m.noiseW = dsp.NoisePower(dsp.FromDB(r.NoiseFigureDB), m.fs)
 	m.gasDBkm = s.Propagation.gasGamma(r.CarrierHz)

@@ -183,8 +183,10 @@ func (tr *train) cfar() *dsp.CFAR2D {
 	if d.Kind == DetectorOS {
 		c.Rank = 1 + int(math.Round(float64(d.Rank-1)/float64(d.TrainingCells)*float64(c2DCells(c))))
 	}
-	tr.cf2 = c
-	return c
+	// An equal detector of an earlier evaluation keeps the multipliers
+	// it has solved (pdmemo.go).
+	tr.cf2 = tr.m.memo.cfar2(c)
+	return tr.cf2
 }
 
 // valid reports whether range cell k is processed.

@@ -333,6 +333,8 @@ func (t *Trials) newWorker() *trialWorker {
 	w := &trialWorker{t: t, s: *t.s}
 	w.m = *t.m
 	w.m.s, w.m.cfar, w.m.winCorr, w.m.warnings = &w.s, nil, nil, nil
+	// Workers run at once: none shares the memo's detectors (pdmemo.go).
+	w.m.memo = nil
 	w.sc = *t.sc
 	w.sc.m = &w.m
 	if t.sc.train != nil {
