@@ -118,6 +118,9 @@ func (s *Scenario) validateRadar(c checker, waveOK bool) {
 		}
 	}
 	c.above("radar.pri_s", r.PRIS, tau, 1)
+	if !c.errs.has("radar.pulses") && !c.errs.has("radar.window_stop_m") {
+		c.validateStagger("radar.pri_stagger_s", r.PRIStaggerS, tau, r.Pulses, r.WindowStopM, true)
+	}
 	if c.errs.has("radar.sample_rate_hz") || c.errs.has("radar.window_stop_m") || c.errs.has("radar.window_start_m") || c.errs.has("radar.pulses") {
 		return
 	}
