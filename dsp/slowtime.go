@@ -155,7 +155,7 @@ func (p *SlowTimePlan) ToneResponse(dst []float64, fdT float64) []float64 {
 	}
 	x := make([]complex128, p.n)
 	for i := range x {
-		x[i] = p.toneAt(fdT, i)
+		x[i] = p.Tone(fdT, i)
 	}
 	y := p.Apply(nil, x)
 	for d, v := range y {

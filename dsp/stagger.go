@@ -105,9 +105,9 @@ func (p *SlowTimePlan) applyStaggered(dst []complex128) {
 	}
 }
 
-// toneAt returns the tone e^{j2π·fdT·t_i} at pulse i of the plan, fdT in
-// cycles per (mean) PRI.
-func (p *SlowTimePlan) toneAt(fdT float64, i int) complex128 {
+// Tone returns the unit tone e^{j2π·fdT·t_i} at pulse i of the plan, fdT
+// in cycles per (mean) PRI, t_i in PRIs (mean PRIs of a staggered plan).
+func (p *SlowTimePlan) Tone(fdT float64, i int) complex128 {
 	if p.times != nil {
 		return expj(2 * math.Pi * fdT * p.times[i])
 	}

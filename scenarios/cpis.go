@@ -30,12 +30,12 @@ type ScheduleReport struct {
 
 // CPIReport is one CPI of a schedule.
 type CPIReport struct {
-	PRIS              float64     `json:"pri_s"`
-	Pulses            int         `json:"pulses"`
+	PRIS   float64 `json:"pri_s"`
+	Pulses int     `json:"pulses"`
 	// PRIStaggerS: a staggered CPI's PRIs (pri_s is then the shortest),
 	// and MeanPRIS their mean (added in version 2).
-	PRIStaggerS []float64 `json:"pri_stagger_s,omitempty"`
-	MeanPRIS    *float64  `json:"mean_pri_s,omitempty"`
+	PRIStaggerS       []float64   `json:"pri_stagger_s,omitempty"`
+	MeanPRIS          *float64    `json:"mean_pri_s,omitempty"`
 	UnambiguousRangeM float64     `json:"unambiguous_range_m"`
 	BlindSpeedMPS     float64     `json:"blind_speed_mps"` // λ/(2·PRI); a stagger's λ/(2Δ)
 	Targets           []CPITarget `json:"targets"`

@@ -71,12 +71,12 @@ type Radar struct {
 	// PRIStaggerS lists the PRIs (s) the pulses use in turn, pulse to
 	// pulse (a staggered train, added in format version 2); nil for a
 	// uniform train.
-	PRIStaggerS []float64 `json:"pri_stagger_s,omitempty"`
-	Pulses         int     `json:"pulses"`           // pulses in one coherent processing interval
-	WindowStartM   float64 `json:"window_start_m"`   // first range of the receive window, m
-	WindowStopM    float64 `json:"window_stop_m"`    // last range of the receive window, m
-	BeamwidthAzDeg float64 `json:"beamwidth_az_deg"` // 3-dB azimuth beamwidth, degrees
-	BeamwidthElDeg float64 `json:"beamwidth_el_deg"` // 3-dB elevation beamwidth, degrees
+	PRIStaggerS    []float64 `json:"pri_stagger_s,omitempty"`
+	Pulses         int       `json:"pulses"`           // pulses in one coherent processing interval
+	WindowStartM   float64   `json:"window_start_m"`   // first range of the receive window, m
+	WindowStopM    float64   `json:"window_stop_m"`    // last range of the receive window, m
+	BeamwidthAzDeg float64   `json:"beamwidth_az_deg"` // 3-dB azimuth beamwidth, degrees
+	BeamwidthElDeg float64   `json:"beamwidth_el_deg"` // 3-dB elevation beamwidth, degrees
 	// AntennaHeightM is the antenna's height above the surface, m; 0 when
 	// absent (no surface geometry: no grazing angle, no horizon).
 	AntennaHeightM float64 `json:"antenna_height_m,omitempty"`
