@@ -91,7 +91,12 @@ func (s *Scenario) validateSchedule(c checker, waveOK bool) {
 	taps := map[string]int{MTITwoPulse: 2, MTIThreePulse: 3}[s.Receiver.MTI]
 	for i, cpi := range sc.CPIs {
 		p := fmt.Sprintf("radar.schedule.cpis[%d]", i)
-		priOK := waveOK && c.above(p+".pri_s", cpi.PRIS, s.Waveform.PulseWidth(), 1)
+		var priOK bool
+		if len(cpi.PRIStaggerS) > 0 { // checked one by one in validateStagger
+			priOK = waveOK && staggerInLimits(cpi.PRIStaggerS, s.Waveform.PulseWidth())
+		} else {
+			priOK = waveOK && c.above(p+".pri_s", cpi.PRIS, s.Waveform.PulseWidth(), 1)
+		}
 		n := 0
 		if sized && priOK {
 			// The CPI's own window (cpiScenario): its default stop follows its PRI.
@@ -100,7 +105,7 @@ func (s *Scenario) validateSchedule(c checker, waveOK bool) {
 				n = 0
 			}
 		}
-		if c.intBetween(p+".pulses", cpi.Pulses, 1, 1024) && priOK && !c.errs.has("radar.window_stop_m") {
+		if c.intBetween(p+".pulses", cpi.Pulses, 1, 1024) && !c.errs.has("radar.window_stop_m") {
 			c.validateStagger(p+".pri_stagger_s", cpi.PRIStaggerS, s.Waveform.PulseWidth(), cpi.Pulses, s.cpiScenario(i+1).Radar.WindowStopM, waveOK)
 		}
 		if c.intBetween(p+".pulses", cpi.Pulses, 1, 1024) {

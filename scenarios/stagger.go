@@ -128,6 +128,17 @@ func (c checker) validateStagger(path string, pattern []float64, tau float64, pu
 	}
 }
 
+// staggerInLimits reports whether every PRI of a pattern lies within
+// pri_s's limits: above tau, at most 1 s.
+func staggerInLimits(pattern []float64, tau float64) bool {
+	for _, T := range pattern {
+		if !(T > tau && T <= 1) {
+			return false
+		}
+	}
+	return true
+}
+
 // staggerWords names a stagger: "100 µs / 125 µs".
 func staggerWords(pattern []float64) string {
 	w := make([]string, len(pattern))
