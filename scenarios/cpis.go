@@ -286,6 +286,15 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 			verdict += " (" + missed + ")"
 		}
 		why = append(why, verdict+".")
+		var stag []string
+		for k, c := range rep.CPIs {
+			if c.PRIStaggerS != nil && c.Targets[j].Detected {
+				stag = append(stag, fmt.Sprint(k+1))
+			}
+		}
+		if t.Kind == TargetPoint && len(stag) > 0 {
+			why = append(why, fmt.Sprintf("Staggered CPI %s counts towards %d-of-%d but is not unfolded (its folded echoes land at a different range in each sweep).", strings.Join(stag, ", "), sched.M, n))
+		}
 		if t.Kind == TargetPoint && len(ranges) == 1 {
 			why = append(why, fmt.Sprintf("One CPI alone cannot resolve its range (%s, folded by multiples of %s) or its range rate.", where[0], km(dsp.UnambiguousRange(rpris[0]))))
 		}

@@ -274,3 +274,84 @@ func TestStaggerVelocityCurve(t *testing.T) {
 		}
 	}
 }
+
+// TestStaggerBlindZones: a staggered CPI of 100/125 µs (16 pulses, 1 µs
+// pulse, 9.5 GHz) is blind near multiples of λ/(2Δ) = 631.1 m/s only, not
+// at its PRIs' own blind speeds (157.8 and 126.2 m/s); a range where
+// every pulse's echo meets a later transmit pulse (c·225 µs/2, two PRIs
+// of the cycle) is eclipsed, and one where only the sweeps after a 100 µs
+// PRI are eclipsed (c·100 µs/2) loses half of the CPI's echo energy.
+func TestStaggerBlindZones(t *testing.T) {
+	spec := BlindZoneSpec{PRIs: []float64{100e-6}, Pulses: []int{16}, Staggers: [][]float64{{100e-6, 125e-6}}, PulseS: 1e-6, CarrierHz: 9.5e9,
+		RangeMinM: 0, RangeMaxM: 40000, RateMaxMPS: 700, RangeCells: 400, RateCells: 700}
+	b, err := BlindZones(spec)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(b.FirstBlindMPS-631.142) > 0.01 {
+		t.Errorf("first blind speed %.3f m/s, want 631.14", b.FirstBlindMPS)
+	}
+	row := func(v float64) int { return int(math.Floor((v + 700) / 2.0)) }
+	col := func(r float64) int { return int(math.Floor(r / 100)) }
+	for _, c := range []struct {
+		v     float64
+		blind bool
+	}{{0, true}, {157.8, false}, {126.2, false}, {300, false}, {631.1, true}, {-631.1, true}} {
+		if got := b.Blind[row(c.v)][0]&1 != 0; got != c.blind {
+			t.Errorf("%.1f m/s: blind %v, want %v", c.v, got, c.blind)
+		}
+	}
+	for _, c := range []struct {
+		r        float64
+		eclipsed bool
+	}{{C * 225e-6 / 2, true}, {C * 100e-6 / 2, true}, {10000, false}, {C * 112.5e-6 / 2, false}} {
+		if got := b.Eclipsed[row(300)][col(c.r)]&1 != 0; got != c.eclipsed {
+			t.Errorf("%.0f m: eclipsed %v, want %v", c.r, got, c.eclipsed)
+		}
+	}
+	if f := staggerEclipsedMax(C*100e-6/2, C*100e-6/2, []float64{100e-6, 125e-6}, 1e-6); math.Abs(f-0.5) > 1e-9 {
+		t.Errorf("echo at c·100 µs/2: %.3f of its energy eclipsed, want 0.5 (the sweeps after the 100 µs PRI)", f)
+	}
+	// A pattern of equal PRIs is the uniform train: the eclipsed fraction
+	// is EclipsedFraction's at every range.
+	for r := 0.0; r < 50000; r += 173 {
+		if a, b := staggerEclipsedMax(r, r, []float64{100e-6, 100e-6}, 7e-6), EclipsedFraction(r, 100e-6, 7e-6); math.Abs(a-b) > 1e-9 {
+			t.Fatalf("%.0f m: stagger of equal PRIs eclipses %.4f, uniform %.4f", r, a, b)
+		}
+	}
+}
+
+// TestStaggerInSchedule: a uniform 100 µs CPI and a staggered 100/125 µs
+// one, 1-of-2: the target at the 100 µs PRI's blind speed is lost in CPI 1
+// and found in CPI 2, so the schedule detects it; the CPI report names
+// the stagger and its blind speed λ/(2Δ); the staggered CPI is not
+// unfolded.
+func TestStaggerInSchedule(t *testing.T) {
+	s, err := Decode(staggerScene(map[string]any{"pri_stagger_s": nil, "pri_s": 100e-6,
+		"schedule": map[string]any{"cpis": []any{map[string]any{"pri_stagger_s": []any{100e-6, 125e-6}}}, "m": 1}}))
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := Analyse(context.Background(), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	sr := rep.Schedule
+	c2 := sr.CPIs[1]
+	if len(c2.PRIStaggerS) != 2 || c2.MeanPRIS == nil || *c2.MeanPRIS != 112.5e-6 || math.Abs(c2.BlindSpeedMPS-631.142) > 0.01 {
+		t.Errorf("CPI 2: stagger %v, mean %v, blind speed %.3f; want 100/125 µs, 112.5 µs, 631.14 m/s", c2.PRIStaggerS, c2.MeanPRIS, c2.BlindSpeedMPS)
+	}
+	if sr.CPIs[0].PRIStaggerS != nil || sr.CPIs[0].MeanPRIS != nil {
+		t.Errorf("CPI 1 is uniform, report %+v", sr.CPIs[0])
+	}
+	fast := sr.Targets[0]
+	if fast.ID != "fast" || fast.DetectedIn != 1 || !fast.Detected || sr.CPIs[0].Targets[0].Detected || !sr.CPIs[1].Targets[0].Detected {
+		t.Errorf("fast: detected in %d (%s)", fast.DetectedIn, fast.Reason)
+	}
+	if !strings.Contains(fast.Reason, "Staggered CPI 2 counts towards 1-of-2 but is not unfolded") {
+		t.Errorf("reason %q", fast.Reason)
+	}
+	if sr.FirstBlindSpeedMPS == nil || math.Abs(*sr.FirstBlindSpeedMPS-631.142) > 0.01 {
+		t.Errorf("schedule's first blind speed %v", sr.FirstBlindSpeedMPS)
+	}
+}

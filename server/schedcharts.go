@@ -92,7 +92,15 @@ func blindZonesChart(sc *scenarios.Scenario, sr *scenarios.ScheduleReport) (char
 	for _, c := range sr.CPIs {
 		spec.PRIs = append(spec.PRIs, c.PRIS)
 		spec.Pulses = append(spec.Pulses, c.Pulses)
+		if c.PRIStaggerS != nil && spec.Staggers == nil {
+			spec.Staggers = make([][]float64, len(sr.CPIs))
+		}
 		vb = math.Max(vb, c.BlindSpeedMPS)
+	}
+	for k, c := range sr.CPIs {
+		if spec.Staggers != nil {
+			spec.Staggers[k] = c.PRIStaggerS
+		}
 	}
 	// Ranges: the window and every target, with room; range rates: two
 	// blind speeds of the slowest-folding CPI and every target.
