@@ -16,15 +16,15 @@ import (
 // at a blind speed, in each coherent processing interval (CPI), and
 // whether M of the N CPIs still see it.
 type BlindZoneSpec struct {
-	PRIs      []float64 // s, one per CPI
-	Pulses    []int     // pulses per CPI (one value: the same for all)
+	PRIs   []float64 // s, one per CPI
+	Pulses []int     // pulses per CPI (one value: the same for all)
 	// Staggers holds each CPI's staggered PRIs (s; nil or an empty entry
 	// for a uniform CPI, whose PRI is PRIs[k]; PRIs[k] is then not used):
 	// nil when no CPI is staggered.
-	Staggers [][]float64
-	PulseS    float64   // transmitted pulse width τ, s
-	CarrierHz float64   // carrier, Hz (λ = c/f)
-	M         int       // CPIs that must see a target (M-of-N); 0: all
+	Staggers  [][]float64
+	PulseS    float64 // transmitted pulse width τ, s
+	CarrierHz float64 // carrier, Hz (λ = c/f)
+	M         int     // CPIs that must see a target (M-of-N); 0: all
 
 	RangeMinM, RangeMaxM float64 // mapped ranges, m
 	RateMaxMPS           float64 // mapped range rates −max … +max, m/s
@@ -183,8 +183,10 @@ func BlindZones(s BlindZoneSpec) (*BlindZoneMap, error) {
 			uniform = append(uniform, p)
 		}
 	}
-	if r := dsp.NewSchedule(uniform...).UnambiguousRange(); len(uniform) > 0 && !math.IsInf(r, 0) {
-		b.UnambiguousRangeM = r
+	if len(uniform) > 0 {
+		if r := dsp.NewSchedule(uniform...).UnambiguousRange(); !math.IsInf(r, 0) {
+			b.UnambiguousRangeM = r
+		}
 	}
 	if v := sched.FirstBlindSpeed(lambda); !math.IsInf(v, 0) {
 		b.FirstBlindMPS = v
