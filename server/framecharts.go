@@ -61,6 +61,13 @@ func (c *evalCache) chartsOf(f *frame, res, ref *scenarios.Result, vw view, pend
 		f.charts = append(f.charts, cut)
 	}
 	f.charts = append(f.charts, c.settle(scheduleCharts(c.scn, res, vw))...)
+	if k := velocityKey(c.scn); k != c.velKey {
+		c.velKey = k
+		c.velOut, c.velOK = velocityChart(c.scn)
+	}
+	if c.velOK {
+		f.charts = append(f.charts, c.settle([]chartOut{c.velOut})...)
+	}
 	// The data slices point into buf and store, which have stopped
 	// growing; a chart's series are consecutive in refs.
 	for _, r := range f.refs {
