@@ -5,6 +5,8 @@ import (
 	"encoding/json"
 	"errors"
 	"math"
+	"os"
+	"slices"
 	"strings"
 	"testing"
 
@@ -353,5 +355,67 @@ func TestStaggerInSchedule(t *testing.T) {
 	}
 	if sr.FirstBlindSpeedMPS == nil || math.Abs(*sr.FirstBlindSpeedMPS-631.142) > 0.01 {
 		t.Errorf("schedule's first blind speed %v", sr.FirstBlindSpeedMPS)
+	}
+}
+
+// TestStaggerGeometryGolden: the per-pulse geometry of staggered trains
+// against testdata/stagger/gen.py, which works by brute force over long
+// runs of transmit times: the eclipsed fraction of the echo over one
+// pattern cycle (the blind-zones map's), and the delays at which a
+// target's echoes land in each sweep's record (the simulation's).
+func TestStaggerGeometryGolden(t *testing.T) {
+	b, err := os.ReadFile("../testdata/stagger/cases.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var f struct {
+		Geometry []struct {
+			Pattern  []float64 `json:"pattern"`
+			Tau      float64   `json:"tau_s"`
+			Ranges   []float64 `json:"ranges_m"`
+			Eclipsed []float64 `json:"eclipsed_fraction"`
+			Record   []float64 `json:"record_s"`
+			Sweeps   []struct {
+				RangeM float64     `json:"range_m"`
+				Delays [][]float64 `json:"delays_s"`
+			} `json:"sweeps"`
+		} `json:"geometry"`
+	}
+	if err := json.Unmarshal(b, &f); err != nil {
+		t.Fatal(err)
+	}
+	if len(f.Geometry) == 0 {
+		t.Fatal("no geometry cases")
+	}
+	seen := 0 // echoes the golden file places in sweeps
+	for _, g := range f.Geometry {
+		for i, r := range g.Ranges {
+			if got := staggerEclipsedMax(r, r, g.Pattern, g.Tau); math.Abs(got-g.Eclipsed[i]) > 1e-9 {
+				t.Errorf("%v, τ %g, %.1f m: eclipsed %.9f, NumPy %.9f", g.Pattern, g.Tau, r, got, g.Eclipsed[i])
+			}
+		}
+		const fs = 1e9
+		m := &model{s: &Scenario{Radar: Radar{PRIS: slices.Min(g.Pattern), PRIStaggerS: g.Pattern}}, fs: fs, tau: g.Tau,
+			recLen: int(math.Round(g.Record[1] * fs))}
+		for _, sw := range g.Sweeps {
+			for p, want := range sw.Delays {
+				var got []float64
+				m.sweepEchoes(p, sw.RangeM, 0, func(_ int, _, d float64) { got = append(got, d) })
+				slices.Sort(got)
+				seen += len(want)
+				if len(got) != len(want) {
+					t.Errorf("%v, %.1f m, sweep %d: delays %v, NumPy %v", g.Pattern, sw.RangeM, p, got, want)
+					continue
+				}
+				for i := range got {
+					if math.Abs(got[i]-want[i]) > 1e-12 {
+						t.Errorf("%v, %.1f m, sweep %d: delay %g, NumPy %g", g.Pattern, sw.RangeM, p, got[i], want[i])
+					}
+				}
+			}
+		}
+	}
+	if seen < 100 {
+		t.Errorf("only %d echoes in the golden sweeps", seen)
 	}
 }

@@ -23,7 +23,11 @@ Go code):
   3rd ed., ch. 3, "staggered PRFs"; the section's page from memory:
   about p. 130).
 
-Writes cases.json, read by dsp/stagger_test.go. Run with Debian's
+It also writes the per-pulse geometry of staggered trains (eclipsed
+fraction over one pattern cycle, and the delays at which a target's echoes
+land in each sweep), by brute force over long runs of transmit times.
+
+Writes cases.json, read by dsp/stagger_test.go and scenarios/stagger_test.go. Run with Debian's
 /usr/bin/python3 (numpy, scipy):
 cd testdata/stagger && /usr/bin/python3 gen.py
 """
@@ -137,6 +141,63 @@ for c in CASES:
                              mean_response=mean, dip_db=dip, dip_mps=dip_at))
     print(f'{c["name"]}: first blind (scan) {vb:.3f} m/s, mean-PRI blind {lam / (2 * tb):.3f} m/s, '
           f'ratio {vb / (lam / (2 * tb)):.4f}, dip {dip:.2f} dB at {dip_at:.1f} m/s')
+
+
+# Per-pulse geometry of a staggered train, by brute force over a long run
+# of transmit times (no cyclic formula):
+# * eclipse: the mean over one pattern cycle of pulses p of the fraction
+#   of pulse p's echo (start t_p + 2R/c, length tau) under any transmit
+#   pulse [t_q, t_q + tau);
+# * sweeps: the delays after pulse p's edge, t_q + 2R/c - t_p for q <= p,
+#   of the echoes that land in [t_lo, t_hi) (sweep p's record).
+
+
+def long_times(pattern, before, after):
+    """t_q for q = -before*L .. after*L - 1, with t_0 = 0."""
+    L = len(pattern)
+    fwd = [0.0]
+    for q in range(after * L - 1):
+        fwd.append(fwd[-1] + pattern[q % L])
+    back = []
+    t = 0.0
+    for q in range(1, before * L + 1):
+        t -= pattern[(-q) % L]
+        back.append(t)
+    idx = list(range(-before * L, 0)) + list(range(after * L))
+    return dict(zip(idx, back[::-1] + fwd))
+
+
+rng = np.random.default_rng(20261202)
+geom = []
+for pattern, tau in [([100e-6, 125e-6], 13e-6), ([1.0e-3, 1.1e-3, 1.3e-3], 50e-6), ([80e-6, 96e-6, 88e-6, 104e-6], 5e-6)]:
+    L = len(pattern)
+    T = long_times(pattern, 400, 400)
+    ts = sorted(T.values())
+    ranges = [float(x) for x in rng.uniform(0, C * 6 * max(pattern) / 2, 60)]
+    # a few ranges exactly where an echo meets a transmit pulse
+    ranges += [C * (T[q] - T[0]) / 2 for q in range(1, 4)] + [C * (T[q] - T[1]) / 2 for q in range(2, 5)]
+    eclipse = []
+    for R in ranges:
+        lost = 0.0
+        for p in range(L):
+            st = T[p] + 2 * R / C
+            for tq in ts:
+                o = min(tq + tau, st + tau) - max(tq, st)
+                if o > 0:
+                    lost += o
+        eclipse.append(min(lost / (L * tau), 1.0))
+    t_lo, t_hi = -tau, min(pattern) + 2 * tau
+    sweeps = []
+    for R in ranges[:20]:
+        per = []
+        for p in range(3 * L):
+            d = sorted(T[q] + 2 * R / C - T[p] for q in T if q <= p and t_lo < T[q] + 2 * R / C - T[p] < t_hi)
+            per.append(d)
+        sweeps.append({"range_m": R, "delays_s": per})
+    geom.append({"pattern": pattern, "tau_s": tau, "ranges_m": ranges, "eclipsed_fraction": eclipse,
+                 "record_s": [t_lo, t_hi], "sweeps": sweeps})
+    print(f"geometry {pattern}: {len(ranges)} ranges, eclipsed fraction {min(eclipse):.3f} .. {max(eclipse):.3f}")
+out["geometry"] = geom
 
 with open("cases.json", "w") as f:
     json.dump(out, f, indent=1)
