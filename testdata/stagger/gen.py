@@ -13,7 +13,9 @@ Go code):
 * the window w (symmetric) over the M = N - l + 1 outputs, then the
   filter bank evaluated at the true times:
   Y_d = s * sum_q w_q y_q exp(-j 2 pi f_d t_{q+l-1} / Tbar), f_d = (d - M//2)/M
-  cycles per mean PRI Tbar, s = 1/sqrt(sum h^2 * sum w^2);
+  cycles per mean PRI Tbar, s = 1/sqrt(sum h^2 * sum w^2) (the document
+  takes its time origin at the first output, t_{l-1}; a common phase that
+  does not change |Y_d|);
 * velocity response: max over d of |Y_d|^2;
 * first true blind speed: found by SCANNING range rates for the first v > 0
   at which every pulse of one pattern cycle sees the phase of zero Doppler
