@@ -31,6 +31,17 @@ func (r Radar) pattern() []float64 {
 	return []float64{r.PRIS}
 }
 
+// blankPRI returns the PRI of the single-pulse scene's transmit blanking,
+// s: pri_s, or a stagger's longest PRI, the sweep that hears most of an
+// echo near the window's end (each sweep's own blanking weighs the map,
+// docs/detection.md §14).
+func (r Radar) blankPRI() float64 {
+	if r.Staggered() {
+		return slices.Max(r.PRIStaggerS)
+	}
+	return r.PRIS
+}
+
 // Staggered reports whether the radar's CPI has a PRI stagger.
 func (r Radar) Staggered() bool { return len(r.PRIStaggerS) > 0 }
 
