@@ -65,14 +65,16 @@ func (s *BlindZoneSpec) Validate() error {
 			l.add(fmt.Sprintf("stagger[%d]", k), "%d PRIs; give %d … %d", len(pat), MinStagger, MaxStagger)
 			continue
 		}
+		inRange := true
 		for i, p := range pat {
 			if !(p >= 1e-6 && p <= 1) {
 				l.add(fmt.Sprintf("stagger[%d][%d]", k, i), "%g is outside the valid range 1e-06 … 1 s", p)
+				inRange = false
 			} else if !(s.PulseS < p/2) && s.PulseS > 0 {
 				l.add(fmt.Sprintf("stagger[%d][%d]", k, i), "%g s must be above twice the pulse width %g s", p, s.PulseS)
 			}
 		}
-		if dsp.NewSchedule(pat...).Delta == 0 {
+		if inRange && dsp.NewSchedule(pat...).Delta == 0 {
 			l.add(fmt.Sprintf("stagger[%d]", k), "%v: the PRIs have no common step (each a whole multiple of it, at most 10000 times)", pat)
 		}
 	}

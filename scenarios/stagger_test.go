@@ -457,3 +457,24 @@ func TestStaggerEclipsePerSweep(t *testing.T) {
 		t.Errorf("simulated %.1f dB at the expected peak %.1f dB", stNoisy, st)
 	}
 }
+
+// TestStaggerBlindZoneSpecErrors: bad staggers in a blind-zones spec are
+// errors naming the CPI and PRI, never a panic.
+func TestStaggerBlindZoneSpecErrors(t *testing.T) {
+	base := BlindZoneSpec{PRIs: []float64{1e-4}, Pulses: []int{16}, PulseS: 1e-6, CarrierHz: 9.5e9, RangeMaxM: 4e4, RateMaxMPS: 700, RangeCells: 10, RateCells: 10}
+	for _, c := range []struct {
+		st    [][]float64
+		words string
+	}{
+		{[][]float64{{1e-4, -1}}, "stagger[0][1]: -1 is outside the valid range"},
+		{[][]float64{{1e-4}}, "stagger[0]: 1 PRIs; give 2 … 16"},
+		{[][]float64{{1e-4, 1e-4 * math.Sqrt2}}, "no common step"},
+		{[][]float64{{1e-4, 1.25e-4}, nil}, "2 staggers given for 1 CPIs"},
+	} {
+		s := base
+		s.Staggers = c.st
+		if _, err := BlindZones(s); err == nil || !strings.Contains(err.Error(), c.words) {
+			t.Errorf("%v: error %v, want …%s…", c.st, err, c.words)
+		}
+	}
+}
