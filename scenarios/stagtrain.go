@@ -176,9 +176,21 @@ func (tr *train) staggerGroups(j int, c float64) []staggerGroup {
 // groupPeak returns the strongest cell of point target j's groups on
 // processed gates.
 func (tr *train) groupPeak(j int) (k, d int, p float64) {
+	k, d, p, _ = tr.groupPeakOf(j)
+	return k, d, p
+}
+
+// peakGroup returns the index of the group holding target j's map peak,
+// or −1 when no processed gate holds its power.
+func (tr *train) peakGroup(j int) int {
+	_, _, _, i := tr.groupPeakOf(j)
+	return i
+}
+
+func (tr *train) groupPeakOf(j int) (k, d int, p float64, group int) {
 	resp := &tr.sc.targets[j].resp
-	k, d = -1, -1
-	for _, gr := range tr.groups[j] {
+	k, d, group = -1, -1, -1
+	for gi, gr := range tr.groups[j] {
 		gd, gm := 0, 0.0
 		for i, v := range gr.gain {
 			if v > gm {
@@ -191,11 +203,11 @@ func (tr *train) groupPeak(j int) (k, d int, p float64) {
 				continue
 			}
 			if q := pw * gm; q > p {
-				k, d, p = kk, gd, q
+				k, d, p, group = kk, gd, q, gi
 			}
 		}
 	}
-	return k, d, p
+	return k, d, p, group
 }
 
 // staggerBlind reports whether Doppler fd (Hz) falls on the zero-Doppler

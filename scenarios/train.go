@@ -74,12 +74,11 @@ func newTrain(m *model, sc *scene) *train {
 		fdT := g.fd * tr.T
 		switch {
 		case g.t.Kind == TargetPoint && tr.times != nil:
+			// gain[j]: the gain of the group its map peak belongs to (the
+			// integrated SNR's); power and peak use every group.
 			tr.groups[j] = tr.staggerGroups(j, coherentFraction(g.t.Fluctuation))
-			_, d, _ := tr.groupPeak(j)
-			for _, gr := range tr.groups[j] {
-				if d >= 0 && gr.gain[d] > gain[d] || d < 0 && len(gain) > 0 && gr.gain[0] > gain[0] {
-					copy(gain, gr.gain)
-				}
+			if i := tr.peakGroup(j); i >= 0 {
+				copy(gain, tr.groups[j][i].gain)
 			}
 		case g.t.Kind == TargetPoint:
 			c := coherentFraction(g.t.Fluctuation)
