@@ -164,6 +164,54 @@ func (p *SlowTimePlan) ToneResponse(dst []float64, fdT float64) []float64 {
 	return dst
 }
 
+// ModulatedToneResponse is ToneResponse for a tone whose amplitude
+// changes from pulse to pulse: pulse i carries a[i]·exp(j2π·fdT·i) (a of
+// length Pulses(); nil is ToneResponse). A beam scanning past a point
+// target modulates its echo so (ScanGains); the response then spreads
+// over more bins and its peak falls by the coherent scan loss. It panics
+// if a has the wrong length.
+func (p *SlowTimePlan) ModulatedToneResponse(dst []float64, fdT float64, a []float64) []float64 {
+	if a == nil {
+		return p.ToneResponse(dst, fdT)
+	}
+	if len(a) != p.n {
+		panic("dsp: slow-time modulation length mismatch")
+	}
+	if dst == nil {
+		dst = make([]float64, p.m)
+	}
+	x := make([]complex128, p.n)
+	for i := range x {
+		x[i] = complex(a[i], 0) * p.Tone(fdT, i)
+	}
+	y := p.Apply(nil, x)
+	for d, v := range y {
+		dst[d] = real(v)*real(v) + imag(v)*imag(v)
+	}
+	return dst
+}
+
+// FlatResponse returns the mean power per bin of a return that
+// decorrelates from pulse to pulse, pulse i of power s[i] (length
+// Pulses()), relative to the plan's noise power per bin:
+// Σ_q w_q²·Σ_i h_i²·s[q+L−1−i] / (Σw²·Σh²), 1 when every s[i] is 1. It
+// panics if s has the wrong length.
+func (p *SlowTimePlan) FlatResponse(s []float64) float64 {
+	if len(s) != p.n {
+		panic("dsp: slow-time power length mismatch")
+	}
+	l := len(p.taps)
+	sum := 0.0
+	for q := range p.m {
+		v := 0.0
+		for i, h := range p.taps {
+			v += h * h * s[q+l-1-i]
+		}
+		sum += p.w[q] * p.w[q] * v
+	}
+	return sum * p.scale * p.scale
+}
+
 // Bin returns the bin nearest to normalised Doppler frequency fdT, after
 // folding it into [−½, ½).
 func (p *SlowTimePlan) Bin(fdT float64) int {

@@ -9,7 +9,7 @@ import (
 
 // staggerCase is one record of testdata/stagger/cases.json, written by
 // testdata/stagger/gen.py (NumPy/SciPy, from the definitions in
-// docs/detection.md §14, not from this code).
+// docs/detection.md §16, not from this code).
 type staggerCase struct {
 	Name         string    `json:"name"`
 	Pattern      []float64 `json:"pattern"`

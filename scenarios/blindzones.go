@@ -178,7 +178,7 @@ func BlindZones(s BlindZoneSpec) (*BlindZoneMap, error) {
 	}
 	lambda := C / s.CarrierHz
 	sched := dsp.NewSchedule(s.allPRIs()...)
-	// Ranges unfold over the uniform CPIs only (detection.md §14).
+	// Ranges unfold over the uniform CPIs only (detection.md §16).
 	var uniform []float64
 	for k, p := range s.PRIs {
 		if s.stagger(k) == nil {
@@ -237,7 +237,7 @@ func BlindZones(s BlindZoneSpec) (*BlindZoneMap, error) {
 			half := vb / (2 * float64(pulses(k)))
 			if pat := s.stagger(k); pat != nil {
 				// Blind at multiples of λ/(2Δ), within half a Doppler bin
-				// of the mean PRI's filter bank (detection.md §14).
+				// of the mean PRI's filter bank (detection.md §16).
 				vb = staggerBlindSpeed(pat, lambda)
 				half = dsp.BlindSpeed(dsp.MeanPRI(pat), lambda) / (2 * float64(pulses(k)))
 			}

@@ -104,6 +104,9 @@ func (s *Scenario) canonicalRadar() ordered {
 	if r.Schedule != nil {
 		o = append(o, member{"schedule", canonicalSchedule(r)})
 	}
+	if r.Scan != nil {
+		o = append(o, member{"scan", canonicalScan(r.Scan)})
+	}
 	return o
 }
 
@@ -219,9 +222,13 @@ func canonicalTarget(t Target) ordered {
 			o.put(f, t.RangeStartM, nil)
 		case "range_stop_m":
 			o.put(f, t.RangeStopM, nil)
-		case "rcs_dbsm_per_m", "sigma0_db", "gamma_db":
+		case "rcs_dbsm_per_m", "sigma0_db", "gamma_db", "sea_state":
 			if t.levelField() == f {
 				o.put(f, t.levelValue(), nil)
+			}
+		case "polarisation":
+			if t.Level == LevelSeaState {
+				o.put(f, t.Polarisation, "horizontal")
 			}
 		case "role":
 			if t.Role == RoleTarget {

@@ -58,9 +58,10 @@ const (
 	LevelPerMetre = "rcs_dbsm_per_m"
 	LevelSigma0   = "sigma0_db"
 	LevelGamma    = "gamma_db"
+	LevelSeaState = "sea_state" // σ⁰ of the NRL sea model (sea.go)
 )
 
-var levelFields = []string{LevelPerMetre, LevelSigma0, LevelGamma}
+var levelFields = []string{LevelPerMetre, LevelSigma0, LevelGamma, LevelSeaState}
 
 // Limits of the surface inputs.
 const (
@@ -92,6 +93,8 @@ func (t Target) levelValue() float64 {
 		return t.Sigma0DB
 	case LevelGamma:
 		return t.GammaDB
+	case LevelSeaState:
+		return t.SeaState
 	}
 	return t.RCSDBsmPerM
 }
@@ -106,18 +109,19 @@ func (o *object) surfaceLevel(t *Target) {
 	}
 	switch len(given) {
 	case 0:
-		o.errs.add(o.sub(LevelPerMetre), "required: one of rcs_dbsm_per_m (RCS per metre of range, dBsm/m), sigma0_db (surface reflectivity σ⁰, dB m²/m²) or gamma_db (γ of σ⁰ = γ·sin ψ, dB)")
+		o.errs.add(o.sub(LevelPerMetre), "required: one of rcs_dbsm_per_m (RCS per metre of range, dBsm/m), sigma0_db (surface reflectivity σ⁰, dB m²/m²), gamma_db (γ of σ⁰ = γ·sin ψ, dB) or sea_state (0 … 6, σ⁰ of the NRL sea model)")
 	case 1:
 		t.Level = given[0]
 		if t.Level == LevelPerMetre {
 			t.Level = ""
 		}
 	default:
-		o.errs.add(o.sub(given[1]), "give one of rcs_dbsm_per_m, sigma0_db and gamma_db, not %s", strings.Join(given, " and "))
+		o.errs.add(o.sub(given[1]), "give one of rcs_dbsm_per_m, sigma0_db, gamma_db and sea_state, not %s", strings.Join(given, " and "))
 	}
 	o.float(LevelPerMetre, &t.RCSDBsmPerM)
 	o.float(LevelSigma0, &t.Sigma0DB)
 	o.float(LevelGamma, &t.GammaDB)
+	o.seaState(t)
 }
 
 // validateDistributed checks an extended or volume target's level and
@@ -132,6 +136,8 @@ func (s *Scenario) validateDistributed(c checker, p string, t Target) {
 		if c.between(p+LevelGamma, t.GammaDB, minSigma0DB, maxSigma0DB) && s.Radar.AntennaHeightM == 0 {
 			c.errs.add(p+LevelGamma, "needs radar.antenna_height_m (above 0, at most %g m): the grazing angle ψ of σ⁰ = γ·sin ψ comes from the antenna's height", MaxAntennaHeightM)
 		}
+	case t.Level == LevelSeaState:
+		s.validateSea(c, p, t)
 	case t.Level == "":
 		c.between(p+LevelPerMetre, t.RCSDBsmPerM, -150, 60)
 	default:
@@ -153,8 +159,11 @@ func (m *model) sigma0(t Target, r float64) (s0, psi float64, ok bool) {
 			return 0, 0, false
 		}
 	}
-	if t.Level == LevelGamma {
+	switch t.Level {
+	case LevelGamma:
 		return dsp.ConstantGammaSigma0(dsp.FromDB(t.GammaDB), psi), psi, true
+	case LevelSeaState:
+		return m.seaSigma0(t, psi), psi, true
 	}
 	return dsp.FromDB(t.Sigma0DB), psi, true
 }
@@ -169,12 +178,12 @@ func (m *model) perMetre(t Target, r float64) float64 {
 	switch {
 	case t.Kind == TargetVolume:
 		return dsp.VolumeReflectivity(t.ReflectivityDBZ, m.lambda) * dsp.BeamArea(r, az, el)
-	case t.Level == LevelSigma0 || t.Level == LevelGamma:
+	case t.surfaceModel():
 		s0, psi, ok := m.sigma0(t, r)
 		if !ok {
 			return 0
 		}
-		return dsp.SurfacePatchRCS(s0, r, az, 1, psi)
+		return dsp.SurfacePatchRCS(s0, r, m.clutterWidth(), 1, psi)
 	}
 	return dsp.FromDB(t.RCSDBsmPerM)
 }
@@ -183,7 +192,7 @@ func (m *model) perMetre(t Target, r float64) float64 {
 // partly beyond the horizon or at grazing angles where the pulse-limited
 // patch no longer holds.
 func (m *model) surfaceWarnings(t Target) {
-	if t.Kind != TargetExtended || (t.Level != LevelSigma0 && t.Level != LevelGamma) {
+	if t.Kind != TargetExtended || !t.surfaceModel() {
 		return
 	}
 	h := m.s.Radar.AntennaHeightM
@@ -419,7 +428,7 @@ func (sc *scene) clutterFigures(cs *clutterScene, j int, single, v verdict, bin 
 		}
 		if tr.RangeM > 0 {
 			out.CellRCSDBsm = dbPtr(m.perMetre(g.t, tr.RangeM) * C / (2 * m.s.Waveform.Bandwidth()))
-			if g.t.Level == LevelSigma0 || g.t.Level == LevelGamma {
+			if g.t.surfaceModel() {
 				if s0, psi, ok := m.sigma0(g.t, tr.RangeM); ok {
 					out.Sigma0DB = dbPtr(s0)
 					deg := psi * 180 / math.Pi

@@ -230,7 +230,7 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 			}
 			// A staggered CPI's measurements are not unfolded: its folded
 			// echoes land at a different range in each sweep, and its
-			// Doppler bins do not fold by one PRF (detection.md §14).
+			// Doppler bins do not fold by one PRF (detection.md §16).
 			if ct.Detected && ct.ApparentRangeM != nil && !r.Staggered() {
 				o := &seen{apparent: *ct.ApparentRangeM, rateTol: rateTol}
 				if rt != nil {

@@ -83,7 +83,7 @@ func decodeWith(data []byte, upgrades map[int]upgrade) (*Scenario, error) {
 	if o, ok := top.child("front_end"); ok {
 		o.decodeFrontEnd(&s.FrontEnd)
 	}
-	s.Propagation = Propagation{RainStopM: maxRainStopM, RainPolarisation: "horizontal", Multipath: "none"}
+	s.Propagation = defaultPropagation()
 	if o, ok := top.child("propagation"); ok {
 		o.decodePropagation(&s.Propagation)
 	}

@@ -145,6 +145,7 @@ func TestScenarioFormatDocumentsEveryField(t *testing.T) {
 	sameSet(t, "receiver.taps", firstNames(t, table("fields: taps")), tapsFields)
 	sameSet(t, "radar.schedule", firstNames(t, table("fields: schedule")), scheduleFields)
 	sameSet(t, "radar.schedule.cpis", firstNames(t, table("fields: cpi")), cpiFields)
+	sameSet(t, "radar.scan", firstNames(t, table("fields: scan")), scanFields)
 	sameSet(t, "front_end", firstNames(t, table("fields: frontend")), frontEndFields)
 	sameSet(t, "propagation", firstNames(t, table("fields: propagation")), propagationFields)
 
@@ -211,6 +212,8 @@ func TestReportFormatDocumentsEveryField(t *testing.T) {
 		{"report: false_alarms", reflect.TypeFor[FalseAlarms]()},
 		{"report: clutter", reflect.TypeFor[ClutterSummary]()},
 		{"report: breakthrough", reflect.TypeFor[Breakthrough]()},
+		{"report: scan", reflect.TypeFor[ScanReport]()},
+		{"report: scancpi", reflect.TypeFor[ScanCPI]()},
 	} {
 		rows, ok := tables[c.key]
 		if !ok {

@@ -66,7 +66,7 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 		// also uses this one's core once the reports are done.
 		go func() { window <- sc.window(min(2, runtime.GOMAXPROCS(0))) }()
 	}
-	res := &Result{}
+	res := &Result{sc: sc}
 	res.Report.Version = ReportVersion
 	res.Report.Scenario = s.Name
 	res.Report.Waveform = m.waveformReport()
@@ -91,6 +91,7 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	res.Report.FalseAlarms, res.Report.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	res.Report.Warnings = append([]string{}, m.warnings...)
 	res.Report.Stagger = staggerReport(s)
+	res.Report.Scan = scanReport(s)
 	if s.Radar.Schedule != nil {
 		if res.Report.Schedule, err = evalSchedule(ctx, s, m); err != nil {
 			return nil, err
@@ -125,6 +126,7 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	rep.FalseAlarms, rep.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	rep.Warnings = append([]string{}, m.warnings...)
 	rep.Stagger = staggerReport(s)
+	rep.Scan = scanReport(s)
 	if s.Radar.Schedule != nil {
 		if rep.Schedule, err = evalSchedule(ctx, s, m); err != nil {
 			return nil, err
@@ -254,6 +256,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 		}
 		if sc.train != nil {
 			sc.train.report(j, v, single, bin, &tr)
+			tr.Reason += sc.train.scanWords(j, &tr)
 		}
 		hinted := false
 		if suggest && v.status != StatusDetected && v.status != StatusOutOfWindow && v.status != StatusFolded && v.status != StatusClutter && v.status != StatusBelowHorizon && budget > 0 && ctx.Err() == nil {
@@ -315,12 +318,12 @@ func (sc *scene) snrDB(g *tgt, rangeM float64, fig dsp.ChiFigures, dopLoss float
 	}
 	v -= g.stcLossDB // the STC's attenuation at its range (front_end)
 	if g.t.Kind == TargetPoint {
-		v -= g.rainLossDB
+		v -= g.rainLossDB + g.gasLossDB
 		if g.multipath {
 			v += g.multipathDB
 		}
 	} else {
-		v -= m.rainLossDB(rangeM)
+		v -= m.rainLossDB(rangeM) + m.gasLossDB(rangeM)
 	}
 	return math.Max(v, dbFloor)
 }

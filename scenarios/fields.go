@@ -18,7 +18,7 @@ var (
 	sweeps        = []string{"up", "down"}
 
 	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "front_end", "propagation", "view"}
-	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pri_stagger_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg", "antenna_height_m", "schedule"}
+	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pri_stagger_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg", "antenna_height_m", "schedule", "scan"}
 	receiverFields = []string{"filter", "filter_length_factor", "taps", "window", "detector", "doppler_window", "mti"}
 	mtis           = []string{MTINone, MTITwoPulse, MTIThreePulse}
 )
@@ -60,7 +60,7 @@ var detectorFields = map[string][]string{
 
 var targetFields = map[string][]string{
 	TargetPoint:    {"range_m", "rcs_dbsm", "range_rate_mps", "fluctuation", "height_m"},
-	TargetExtended: {"range_start_m", "range_stop_m", "rcs_dbsm_per_m", "sigma0_db", "gamma_db", "range_rate_mps", "velocity_spread_mps", "role"},
+	TargetExtended: {"range_start_m", "range_stop_m", "rcs_dbsm_per_m", "sigma0_db", "gamma_db", "sea_state", "polarisation", "range_rate_mps", "velocity_spread_mps", "role"},
 	TargetVolume:   {"range_start_m", "range_stop_m", "reflectivity_dbz", "range_rate_mps", "velocity_spread_mps", "role"},
 }
 
@@ -87,6 +87,9 @@ func (o *object) decodeRadar(r *Radar) {
 	}
 	if c, ok := o.child("schedule"); ok {
 		c.decodeSchedule(r)
+	}
+	if c, ok := o.child("scan"); ok {
+		c.decodeScan(r)
 	}
 	o.finish(radarFields...)
 }

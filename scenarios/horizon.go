@@ -49,10 +49,16 @@ type Propagation struct {
 	RainStopM        float64 `json:"rain_stop_m,omitempty"`       // m, far edge (default: unbounded)
 	RainPolarisation string  `json:"rain_polarisation,omitempty"` // horizontal (default) or vertical
 	Multipath        string  `json:"multipath,omitempty"`         // none (default) or flat_sea
+	// Gaseous attenuation (gas.go): none (default) or itu_p676, and the
+	// air it is computed for.
+	Gas             string  `json:"gas,omitempty"`
+	AirTemperatureC float64 `json:"air_temperature_c,omitempty"` // °C (default 15)
+	AirPressureHPa  float64 `json:"air_pressure_hpa,omitempty"`  // hPa, total (default 1013.25)
+	WaterVapourGM3  float64 `json:"water_vapour_g_m3,omitempty"` // g/m³ (default 7.5)
 }
 
 var (
-	propagationFields = []string{"rain_rate_mm_h", "rain_start_m", "rain_stop_m", "rain_polarisation", "multipath"}
+	propagationFields = []string{"rain_rate_mm_h", "rain_start_m", "rain_stop_m", "rain_polarisation", "multipath", "gas", "air_temperature_c", "air_pressure_hpa", "water_vapour_g_m3"}
 	polarisations     = []string{"horizontal", "vertical"}
 	multipaths        = []string{"none", "flat_sea"}
 )
@@ -77,6 +83,7 @@ func (o *object) decodePropagation(p *Propagation) {
 	if o.str("multipath", &p.Multipath) {
 		o.oneOf("multipath", p.Multipath, multipaths)
 	}
+	o.decodeGas(p)
 	o.finish(propagationFields...)
 }
 
@@ -89,6 +96,7 @@ func (s *Scenario) validatePropagation(c checker) {
 	if p.Multipath == "flat_sea" && s.Radar.AntennaHeightM == 0 && !c.errs.has("radar.antenna_height_m") {
 		c.errs.add("propagation.multipath", "flat_sea needs radar.antenna_height_m (above 0, at most 100000 m): the reflected ray's path comes from the antenna's and the targets' heights")
 	}
+	s.validateGas(c)
 	if p.RainRateMMH == 0 && !c.errs.has("propagation.rain_rate_mm_h") {
 		return
 	}
@@ -105,16 +113,14 @@ func (s *Scenario) validatePropagation(c checker) {
 
 func canonicalPropagation(p Propagation) ordered {
 	var o ordered
-	if p.RainRateMMH == 0 {
-		o.put("multipath", p.Multipath, "none")
-		return o
+	if p.RainRateMMH != 0 {
+		o = append(o, member{"rain_rate_mm_h", p.RainRateMMH})
+		o.put("rain_start_m", p.RainStartM, 0.0)
+		o.put("rain_stop_m", p.RainStopM, maxRainStopM)
+		o.put("rain_polarisation", p.RainPolarisation, "horizontal")
 	}
-	o = append(o, member{"rain_rate_mm_h", p.RainRateMMH})
-	o.put("rain_start_m", p.RainStartM, 0.0)
-	o.put("rain_stop_m", p.RainStopM, maxRainStopM)
-	o.put("rain_polarisation", p.RainPolarisation, "horizontal")
 	o.put("multipath", p.Multipath, "none")
-	return o
+	return append(o, canonicalGas(p)...)
 }
 
 // multipathDB returns a point target's two-way multipath gain over a flat

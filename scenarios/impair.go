@@ -221,6 +221,7 @@ func (sc *scene) pointExtras(j int, g *tgt, lp *localPlan, b int, pre, lin []com
 	fe := sc.fe
 	if lin != nil {
 		r := sc.localResponse(lp, lin, b)
+		g.unclipped = r
 		_, p0 := r.peak()
 		if _, p := g.resp.peak(); p > 0 && p0 > 0 {
 			g.clipLossDB = math.Max(dsp.DB(p0/p), 0)
@@ -265,6 +266,16 @@ func (sc *scene) localResponse(lp *localPlan, x []complex128, b int) response {
 // compressed, weighted by the cell's power (docs/detection.md §12), and,
 // for pulse trains, the offsets below PRF/2 as Doppler tones on its own
 // response. Its own response loses the skirt's share of power.
+//
+// The fast part is split into a white floor and the rest: the density
+// ρ of the top cell (the far-out floor) over every offset in the band,
+// which Parseval's theorem gives exactly in one correlation,
+// ρ·fs·Σ_n |x[n]|²·|h[n−k]|², less its share below the first compressed
+// cell (ρ·2·f_lo times the response) and beyond the band; then each cell's
+// power above that floor, compressed at offsets at most 1/(2τ) apart (a
+// Doppler step of 1/τ moves an LFM's response by one resolution cell,
+// so wider cells would land as separate lumps), at most
+// maxSkirtCompressions of them.
 func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 	m, fe := sc.m, sc.fe
 	T := 2 * g.t.RangeM / C
@@ -282,40 +293,53 @@ func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 		return
 	}
 	sk := response{lo: g.resp.lo, pow: make([]float64, len(g.resp.pow))}
-	shapeW := 0.0
 	x := make([]complex128, len(lp.x))
-	for i, v := range w {
-		if !(v > 0) {
-			continue
-		}
-		fc := math.Sqrt(edges[i] * edges[i+1])
-		if edges[i+1] <= 1/(20*m.tau) {
-			shapeW += 2 * v // offsets this close leave the compressed shape unchanged
-			continue
-		}
-		for _, sgn := range []float64{1, -1} {
-			fd := g.fd + sgn*fc
-			if math.Abs(fd) >= m.fs/2 {
-				continue // outside the receiver's band
+	// echo fills x with the echo shifted by fd Hz (dsp.AddEcho's sampled
+	// Doppler, which wraps beyond ±fs/2), as the receiver records it.
+	echo := func(fd float64) {
+		clear(x)
+		dsp.AddEcho(x, m.wave, m.fs, g.delay-float64(b)/m.fs, complex(g.amp, 0)*g.phase*fe.mu, fd)
+		for i := range x {
+			if k := b + i; k < 0 || k >= m.recLen {
+				x[i] = 0
 			}
-			clear(x)
-			m.addEcho(x, g.delay-float64(b)/m.fs, complex(g.amp, 0)*g.phase*fe.mu, fd)
-			for i := range x {
-				if k := b + i; k < 0 || k >= m.recLen {
-					x[i] = 0
-				}
-			}
-			fe.stcShape(m, x, b)
-			r := sc.localResponse(lp, x, b)
-			for k, p := range r.pow {
-				if kk := r.lo + k - sk.lo; kk >= 0 && kk < len(sk.pow) {
-					sk.pow[kk] += v * p
-				}
+		}
+		fe.stcShape(m, x, b)
+	}
+	add := func(fd, weight float64) {
+		echo(fd)
+		r := sc.localResponse(lp, x, b)
+		for k, p := range r.pow {
+			if kk := r.lo + k - sk.lo; kk >= 0 && kk < len(sk.pow) {
+				sk.pow[kk] += weight * p
 			}
 		}
 	}
+	shapeW, rho, fLo, terms := fe.skirtTerms(edges, w, g.fd, m.fs, m.tau, T)
+	if rho > 0 {
+		// The white floor over the band: |x|² correlated with |h|².
+		echo(g.fd)
+		sc.blank(x, b)
+		for i, v := range x {
+			x[i] = complex(real(v)*real(v)+imag(v)*imag(v), 0)
+		}
+		y := sc.powerCorrelator(len(x)).Apply(nil, x)
+		for k := range sk.pow {
+			if i := sk.lo + k - b - m.lead; i >= 0 && i < len(y) {
+				sk.pow[k] += rho * m.fs * math.Max(real(y[i]), 0) / m.noiseGain
+			}
+		}
+		// Less the offsets under the first compressed cell, which keep the
+		// response's shape.
+		for k, p := range g.resp.pow {
+			sk.pow[k] -= rho * 2 * fLo * p
+		}
+	}
+	for _, t := range terms {
+		add(t.fd, t.w)
+	}
 	for k, p := range g.resp.pow {
-		sk.pow[k] += shapeW * p
+		sk.pow[k] = math.Max(sk.pow[k]+shapeW*p, 0)
 		g.resp.pow[k] = p * (1 - fast)
 	}
 	g.slowVar = slowVar
@@ -325,6 +349,84 @@ func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 		sc.addExtra(extra{owner: j, cause: causeSkirt, resp: own, tones: slow})
 	}
 	g.skirtVarDB = dsp.DB(fast + slowVar)
+}
+
+// maxSkirtCompressions bounds the compressions of one target's
+// skirt cells (both sides), beyond its white floor.
+const maxSkirtCompressions = 256
+
+// powerCorrelator returns a correlator of length n with |ref|² as its
+// reference, kept for the scene.
+func (sc *scene) powerCorrelator(n int) *dsp.Correlator {
+	if sc.powCorr == nil || sc.powCorrN != n {
+		h := make([]complex128, len(sc.m.ref))
+		for i, v := range sc.m.ref {
+			h[i] = complex(real(v)*real(v)+imag(v)*imag(v), 0)
+		}
+		sc.powCorr, sc.powCorrN = dsp.NewCorrelator(h, n), n
+	}
+	return sc.powCorr
+}
+
+// skirtTerm is one compression of a skirt: the echo at Doppler fd (Hz,
+// sampled, so beyond ±fs/2 it wraps) weighted by w (a fraction of the
+// carrier's power; negative to take out what the white floor counted).
+type skirtTerm struct{ fd, w float64 }
+
+// skirtTerms splits the fast-time skirt of an echo at Doppler fd (cells
+// edges, one side's power w from skirtCells; T its round trip) as
+// docs/detection.md §12 does: shapeW, the power of the cells under
+// 1/(20τ), which keep the response's shape; the white floor's density ρ
+// (that of the top cell; 0 when there is no compressed cell), applied
+// over the whole band by the caller less ρ·2·f_lo of the response; and
+// the compressions: the white floor taken out past the band's far edge
+// (offsets −fs/2 − f_d … −fs/2 for f_d > 0, which the profile does not
+// reach), and each cell's power above the floor on offsets at most
+// 1/(2τ) apart, at most maxSkirtCompressions of them, skipping cells
+// within 10⁻⁴ of the skirt of the floor and offsets outside the band.
+func (fe *frontEnd) skirtTerms(edges, w []float64, fd, fs, tau, T float64) (shapeW, rho, fLo float64, terms []skirtTerm) {
+	fast := 0.0
+	fLo = -1
+	for i, v := range w {
+		fast += 2 * v
+		if edges[i+1] <= 1/(20*tau) {
+			shapeW += 2 * v
+		} else if fLo < 0 {
+			fLo = edges[i]
+		}
+	}
+	if n := len(w); n > 0 && edges[n] > edges[n-1] && fLo >= 0 {
+		rho = math.Max(w[n-1]/(edges[n]-edges[n-1]), 0)
+	}
+	if rho > 0 && fd != 0 {
+		terms = append(terms, skirtTerm{math.Copysign(fs/2, -fd) + fd/2, -rho * math.Abs(fd)})
+	}
+	budget := maxSkirtCompressions
+	for i, v := range w {
+		a, b := edges[i], edges[i+1]
+		if b <= 1/(20*tau) || !(v > 0) {
+			continue
+		}
+		if rest := v - rho*(b-a); math.Abs(rest) < 1e-4*fast/2 {
+			continue // the floor holds this cell
+		}
+		parts := max(1, min(int(math.Ceil((b-a)*2*tau)), budget/2))
+		budget -= parts
+		for q := range parts {
+			lo, hi := a+(b-a)*float64(q)/float64(parts), a+(b-a)*float64(q+1)/float64(parts)
+			fc := math.Sqrt(lo * hi)
+			if parts > 1 {
+				fc = (lo + hi) / 2
+			}
+			rest := fe.pn.EchoBand(lo, hi, T) - rho*(hi-lo)
+			for _, sgn := range []float64{1, -1} {
+				if math.Abs(fd+sgn*fc) < fs/2 { // outside the band: left out (the floor left it out too)
+					terms = append(terms, skirtTerm{fd + sgn*fc, rest})
+				}
+			}
+		}
+	}
+	return shapeW, rho, fLo, terms
 }
 
 // receiverExtras adds the quantisation noise and the DC offset.
@@ -380,11 +482,17 @@ func (tr *train) extraGain() {
 	for i := range tr.sc.extras {
 		e := &tr.sc.extras[i]
 		e.gain = make([]float64, nb)
+		var a []float64 // the scan's modulation of a point target's echo
+		flat := e.flat
+		if tr.scanA != nil && e.owner >= 0 && tr.sc.targets[e.owner].t.Kind == TargetPoint {
+			a = tr.scanA
+			flat *= tr.plan.FlatResponse(tr.scanPow)
+		}
 		for d := range e.gain {
-			e.gain[d] = e.flat
+			e.gain[d] = flat
 		}
 		for _, t := range e.tones {
-			tr.plan.ToneResponse(tmp, t.fdT)
+			tr.plan.ModulatedToneResponse(tmp, t.fdT, a)
 			for d, v := range tmp {
 				e.gain[d] += t.w * v
 			}
@@ -555,29 +663,33 @@ func (sc *scene) distributedExtras(j int, g *tgt, lp *localPlan, density []float
 	if (fast+slowVar)*peak < fe.skirtMin {
 		return
 	}
+	// As a point target's (pointSkirt), through the kernels of its
+	// Doppler-shifted pulse: the white floor's kernel is |pulse|²
+	// correlated with |ref|².
+	shapeW, rho, fLo, terms := fe.skirtTerms(edges, w, g.fd, m.fs, m.tau, T)
 	var sk []float64
-	shapeW := 0.0
-	for i, v := range w {
-		if !(v > 0) {
-			continue
+	if rho > 0 {
+		lp.ensure()
+		clear(lp.x)
+		dsp.AddEcho(lp.x, m.wave, m.fs, float64(len(m.ref))/m.fs, 1, 0)
+		x := make([]complex128, len(lp.x))
+		for i, v := range lp.x {
+			x[i] = complex(real(v)*real(v)+imag(v)*imag(v), 0)
 		}
-		if edges[i+1] <= 1/(20*m.tau) {
-			shapeW += 2 * v
-			continue
+		y := sc.powerCorrelator(len(x)).Apply(nil, x)
+		own := sc.kernel(lp, g.fd, false)
+		sk = make([]float64, len(own))
+		for l := range sk {
+			sk[l] = rho*m.fs*math.Max(real(y[l]), 0)/m.noiseGain - rho*2*fLo*own[l]
 		}
-		fc := math.Sqrt(edges[i] * edges[i+1])
-		for _, sgn := range []float64{1, -1} {
-			fd := g.fd + sgn*fc
-			if math.Abs(fd) >= m.fs/2 {
-				continue
-			}
-			kern := sc.kernel(lp, fd, false)
-			if sk == nil {
-				sk = make([]float64, len(kern))
-			}
-			for l, p := range kern {
-				sk[l] += v * p
-			}
+	}
+	for _, t := range terms {
+		kern := sc.kernel(lp, t.fd, false)
+		if sk == nil {
+			sk = make([]float64, len(kern))
+		}
+		for l, p := range kern {
+			sk[l] += t.w * p
 		}
 	}
 	r := response{lo: g.resp.lo, pow: make([]float64, len(g.resp.pow))}
@@ -589,6 +701,9 @@ func (sc *scene) distributedExtras(j int, g *tgt, lp *localPlan, density []float
 			r.pow[kk] += shapeW * p
 		}
 		g.resp.pow[k] = p * (1 - fast)
+	}
+	for k, p := range r.pow {
+		r.pow[k] = math.Max(p, 0)
 	}
 	g.slowVar = slowVar
 	sc.addExtra(extra{owner: j, cause: causeSkirt, resp: r, flat: 1})

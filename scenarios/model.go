@@ -21,6 +21,7 @@ type model struct {
 	t0        float64      // time of window sample 0 after the leading edge, s
 	tau       float64      // pulse width, s
 	lambda    float64      // wavelength, m
+	gasDBkm   float64      // specific attenuation of the atmosphere's gases, dB/km (0 without propagation.gas)
 	noiseW    float64      // input noise power k·T0·F·fs, W
 	unambM    float64      // unambiguous range c·PRI/2, m
 	warnings  []string
@@ -160,6 +161,7 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 		unambM: C * r.PRIS / 2,
 	}
 	m.noiseW = dsp.NoisePower(dsp.FromDB(r.NoiseFigureDB), m.fs)
+	m.gasDBkm = s.Propagation.gasGamma(r.CarrierHz)
 	if sameWave && prev.fs == m.fs && sameTaps(s.Receiver.Taps, prev.s.Receiver.Taps) {
 		m.pulse = prev.pulse
 		rx, prx := s.Receiver, prev.s.Receiver

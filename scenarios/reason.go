@@ -236,7 +236,7 @@ func (sc *scene) lossWords(g *tgt) string {
 	if g.outOfBand && !g.rejected && g.t.Kind == TargetPoint {
 		out += fmt.Sprintf(" Its Doppler shift of %s lies outside the receiver's band of ±%s: %.1f dB of its echo's energy is rejected.", hz(g.fd), hz(sc.m.fs/2), g.bandLossDB)
 	}
-	return out + sc.frontWords(g) + sc.m.rainWords(g) + sc.m.multipathWords(g)
+	return out + sc.frontWords(g) + sc.m.rainWords(g) + sc.m.gasWords(g) + sc.m.multipathWords(g)
 }
 
 // resolution returns the mainlobe half-width between nulls as a range, m:
@@ -301,6 +301,7 @@ func (s *Scenario) clone() *Scenario {
 	t.Targets = append([]Target(nil), s.Targets...)
 	t.Radar.Schedule = s.Radar.Schedule.clone()
 	t.Radar.PRIStaggerS = slices.Clone(s.Radar.PRIStaggerS)
+	t.Radar.Scan = s.Radar.Scan.clone()
 	t.Waveform.PhasesDeg = append([]float64(nil), s.Waveform.PhasesDeg...)
 	if s.Waveform.PhasesDeg == nil {
 		t.Waveform.PhasesDeg = nil

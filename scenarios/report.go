@@ -32,6 +32,9 @@ type Report struct {
 	// Stagger describes the radar's own CPI's staggered PRI train (added
 	// in version 2); nil for a uniform train.
 	Stagger *StaggerReport `json:"stagger,omitempty"`
+	// Scan holds the figures of radar.scan (scan.go); nil for a staring
+	// beam. Added in version 2.
+	Scan *ScanReport `json:"scan,omitempty"`
 	// The detector's false-alarm rate and the scene's clutter (clutter.go).
 	FalseAlarms *FalseAlarms    `json:"false_alarms,omitempty"`
 	Clutter     *ClutterSummary `json:"clutter,omitempty"`
@@ -87,6 +90,11 @@ type TargetReport struct {
 	// do not apply.
 	EclipsingLossDB *float64 `json:"eclipsing_loss_db,omitempty"` // point target partly inside a transmit interval
 	BandLossDB      *float64 `json:"band_loss_db,omitempty"`      // point target with |Doppler| ≥ fs/2: energy outside the receiver's band
+	// ScanLossDB is the loss of a point target's peak on the range–Doppler
+	// map to the beam's scan (radar.scan, pulse trains): its peak with
+	// every pulse at the beam's peak over its peak with the pulses
+	// weighted by the two-way pattern. Added in version 2.
+	ScanLossDB *float64 `json:"scan_loss_db,omitempty"`
 	// DetectionRangeM is the range at which the tested SNR falls to
 	// snr_required_db by the R⁴ law from the target's range (its RCS
 	// kept; docs/detection-probability.md §9). Added in version 2.
@@ -113,6 +121,9 @@ type Result struct {
 	// range–Doppler map), nil for the others; index 0 is the first CPI,
 	// whose series are Series.
 	CPISeries []*Series
+	// sc is the noise-free scene the result was evaluated on, kept for
+	// the dynamic-range view (Floors); nil for results made otherwise.
+	sc *scene
 }
 
 // Series are the plot data of one evaluation over the receive window, one

@@ -129,6 +129,9 @@ func randomScenario(r *rand.Rand) *Scenario {
 		sc.M = 1 + r.IntN(sc.N())
 		s.Radar.Schedule = sc
 	}
+	if r.IntN(4) == 0 {
+		s.Radar.Scan = &Scan{RateDegS: u(0.5, 720), Plane: pick(scanPlanes), Pattern: pick(scanPatterns)}
+	}
 	for i := range r.IntN(6) {
 		t := Target{ID: "t" + string(rune('a'+i)), Kind: pick(targetKinds), RangeRateMPS: math.Round(u(-300, 300))}
 		switch t.Kind {
@@ -140,12 +143,20 @@ func randomScenario(r *rand.Rand) *Scenario {
 		case TargetExtended:
 			t.RangeStartM, t.RCSDBsmPerM = u(0, 5e4), u(-40, 0)
 			t.RangeStopM = t.RangeStartM + u(1, 3000)
-			switch r.IntN(3) {
+			switch r.IntN(4) {
 			case 1:
 				t.RCSDBsmPerM, t.Level, t.Sigma0DB = 0, LevelSigma0, u(-50, 0)
 			case 2:
 				if s.Radar.AntennaHeightM > 0 {
 					t.RCSDBsmPerM, t.Level, t.GammaDB = 0, LevelGamma, u(-30, 0)
+				}
+			case 3:
+				// The NRL sea model: inside its span of grazing angles.
+				if h := s.Radar.AntennaHeightM; h > 0 && s.Radar.CarrierHz >= 0.5e9 && s.Radar.CarrierHz <= 35e9 {
+					near, far := seaGrazingSpan(h)
+					t.RCSDBsmPerM, t.Level, t.SeaState, t.Polarisation = 0, LevelSeaState, float64(r.IntN(7)), pick(seaPolarisations)
+					t.RangeStartM = near + u(0, 1)*(far-near)/2
+					t.RangeStopM = t.RangeStartM + u(0, 1)*(far-t.RangeStartM)
 				}
 			}
 		case TargetVolume:
@@ -184,11 +195,15 @@ func randomScenario(r *rand.Rand) *Scenario {
 		f.STCStartM = u(1, 5000)
 		f.STCStopM, f.STCExponent = f.STCStartM+u(1, 2e4), float64(1+r.IntN(8))
 	}
-	s.Propagation = Propagation{RainStopM: maxRainStopM, RainPolarisation: "horizontal", Multipath: "none"}
+	s.Propagation = defaultPropagation()
 	if r.IntN(3) == 0 {
 		s.Radar.CarrierHz = u(1e9, 5e10)
-		s.Propagation = Propagation{RainRateMMH: u(0.1, 100), RainStartM: u(0, 1e4), RainPolarisation: pick(polarisations), Multipath: "none"}
+		s.Propagation.RainRateMMH, s.Propagation.RainStartM, s.Propagation.RainPolarisation = u(0.1, 100), u(0, 1e4), pick(polarisations)
 		s.Propagation.RainStopM = s.Propagation.RainStartM + u(1, 1e5)
+	}
+	if s.Radar.CarrierHz >= 1e9 && r.IntN(3) == 0 {
+		s.Propagation.Gas = GasP676
+		s.Propagation.AirTemperatureC, s.Propagation.AirPressureHPa, s.Propagation.WaterVapourGM3 = u(-40, 40), u(500, 1050), u(0, 20)
 	}
 	if s.Radar.AntennaHeightM > 0 && r.IntN(2) == 0 {
 		s.Propagation.Multipath = "flat_sea"

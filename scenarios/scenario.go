@@ -83,6 +83,9 @@ type Radar struct {
 	// Schedule holds the CPIs after this one (a PRF schedule, added in
 	// format version 2); nil for a single CPI.
 	Schedule *Schedule `json:"schedule,omitempty"`
+	// Scan is the beam's scan (added in format version 2); nil for a
+	// staring beam.
+	Scan *Scan `json:"scan,omitempty"`
 }
 
 // Waveform kinds.
@@ -267,7 +270,10 @@ type Target struct {
 	// rcs_dbsm_per_m).
 	Sigma0DB float64 `json:"sigma0_db,omitempty"` // extended: σ⁰, dB m²/m²
 	GammaDB  float64 `json:"gamma_db,omitempty"`  // extended: γ of σ⁰ = γ·sin ψ, dB
-	Level    string  `json:"-"`
+	SeaState float64 `json:"sea_state,omitempty"` // extended: sea state of the NRL sea model (sea.go)
+	// Polarisation of the NRL sea model: horizontal (default) or vertical.
+	Polarisation string `json:"polarisation,omitempty"`
+	Level        string `json:"-"`
 	// Role is "clutter" or "target" for extended and volume targets
 	// (clutter.go; "" reads as clutter), "" for point targets.
 	Role    string  `json:"role,omitempty"`

@@ -72,6 +72,10 @@ type scene struct {
 	partial          bool
 	fe               *frontEnd
 	extras           []extra // impairments' power (impair.go)
+	// powCorr correlates |echo|² with |ref|² (powCorrN samples): the
+	// white floor of phase-noise skirts (impair.go).
+	powCorr  *dsp.Correlator
+	powCorrN int
 }
 
 // reaches reports whether a response over window samples [lo, hi) is
@@ -111,8 +115,12 @@ type tgt struct {
 	slowVar, skirtVarDB           float64
 	hidden                        bool    // point: beyond the radar horizon (horizon.go)
 	rainLossDB                    float64 // point: two-way rain attenuation at its range, dB
+	gasLossDB                     float64 // point: two-way gaseous attenuation at its range, dB
 	multipathDB                   float64 // point: two-way multipath gain over a flat sea, dB (may be −Inf)
 	multipath                     bool
+	// Point: its response had the ADC not clipped its echo (empty when
+	// not clipped), for the dynamic-range view (floors.go).
+	unclipped response
 }
 
 func streamOf(seed int64, id string, salt uint64) *rand.Rand {
@@ -176,6 +184,9 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 		}
 	}
 	sc.receiverExtras()
+	if focus < 0 {
+		m.scanWarnings()
+	}
 	if m.s.Radar.Pulses > 1 && focus < 0 { // suggestions are checked on single pulses
 		sc.train = newTrain(m, sc)
 	}
@@ -229,7 +240,8 @@ func (sc *scene) point(j int, g *tgt, lp *localPlan) {
 	}
 	pr := dsp.ReceivedPower(r.PeakPowerW, dsp.FromDB(r.AntennaGainDBi), m.lambda, sigma, g.t.RangeM, dsp.FromDB(r.SystemLossDB))
 	g.rainLossDB = m.rainLossDB(g.t.RangeM)
-	g.amp = math.Sqrt(pr / m.noiseW * dsp.FromDB(-g.rainLossDB))
+	g.gasLossDB = m.gasLossDB(g.t.RangeM)
+	g.amp = math.Sqrt(pr / m.noiseW * dsp.FromDB(-g.rainLossDB-g.gasLossDB))
 	if g.multipathDB, g.multipath = m.multipathDB(g.t); g.multipath {
 		g.amp *= math.Pow(10, math.Max(g.multipathDB, -400)/20)
 	}
@@ -418,7 +430,7 @@ func (sc *scene) distributed(ctx context.Context, j int, g *tgt, lp *localPlan) 
 			if s1 <= s0 || !m.processed[k] || rk <= 0 {
 				continue
 			}
-			density[k-klo] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4) * dsp.FromDB(-m.rainLoss(rk, rainG))
+			density[k-klo] += k0 * perMetre(rk) * (s1 - s0) / math.Pow(rk, 4) * dsp.FromDB(-m.rainLoss(rk, rainG)-m.gasLossDB(rk))
 			lo, hi = min(lo, k), max(hi, k)
 		}
 		if err := ctx.Err(); err != nil {

@@ -12,7 +12,7 @@ import (
 
 // A staggered PRI train (added in format version 2): radar.pri_stagger_s
 // or a schedule CPI's pri_stagger_s lists the PRIs the CPI's pulses use in
-// turn, pulse to pulse (docs/scenario-format.md, docs/detection.md §14).
+// turn, pulse to pulse (docs/scenario-format.md, docs/detection.md §16).
 // pri_s is then the shortest of them, which the receive window and the
 // blanking follow.
 
@@ -34,7 +34,7 @@ func (r Radar) pattern() []float64 {
 // blankPRI returns the PRI of the single-pulse scene's transmit blanking,
 // s: pri_s, or a stagger's longest PRI, the sweep that hears most of an
 // echo near the window's end (each sweep's own blanking weighs the map,
-// docs/detection.md §14).
+// docs/detection.md §16).
 func (r Radar) blankPRI() float64 {
 	if r.Staggered() {
 		return slices.Max(r.PRIStaggerS)

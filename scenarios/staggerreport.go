@@ -20,7 +20,7 @@ type StaggerReport struct {
 	MeanPRIBlindSpeedMPS float64 `json:"mean_pri_blind_speed_mps"`
 	// DeepestDipDB is the velocity response's lowest point between the
 	// notches at 0 and at the first blind speed (dB re its mean over one
-	// period; detection.md §14), at DeepestDipMPS. Both are left out for
+	// period; detection.md §16), at DeepestDipMPS. Both are left out for
 	// CPIs of more than maxCurveBins Doppler bins.
 	DeepestDipDB  *float64 `json:"deepest_dip_db,omitempty"`
 	DeepestDipMPS *float64 `json:"deepest_dip_mps,omitempty"`

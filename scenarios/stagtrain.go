@@ -6,7 +6,7 @@ import (
 	"github.com/pulsewright/pulsewright/dsp"
 )
 
-// The slow-time side of a staggered CPI (docs/detection.md §14). Pulse p
+// The slow-time side of a staggered CPI (docs/detection.md §16). Pulse p
 // is sent at t_p (Radar.pulseTime); the pulses before the CPI continue
 // the pattern backwards, as a uniform train's folds assume its earlier
 // pulses. Sweep p listens from t_p; the transmit pulses it hears around
@@ -143,6 +143,9 @@ func (tr *train) staggerGroups(j int, c float64) []staggerGroup {
 			if heard0 > 0 {
 				a /= heard0
 			}
+			if tr.scanA != nil {
+				a *= tr.scanA[p] // the beam's two-way gain at pulse p
+			}
 			if amps[s] == nil {
 				amps[s] = make([]float64, np)
 				order = append(order, s)
@@ -212,7 +215,7 @@ func (tr *train) groupPeakOf(j int) (k, d int, p float64, group int) {
 
 // staggerBlind reports whether Doppler fd (Hz) falls on the zero-Doppler
 // filter of a staggered CPI only by folding: within half a bin of a
-// multiple of 1/Δ other than zero (docs/detection.md §14).
+// multiple of 1/Δ other than zero (docs/detection.md §16).
 func (tr *train) staggerBlind(fd float64) bool {
 	r := tr.m.s.Radar
 	s := dsp.NewSchedule(r.PRIStaggerS...)

@@ -6,6 +6,7 @@ import (
 	"math"
 	"math/cmplx"
 	"runtime"
+	"slices"
 	"sync"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -36,6 +37,11 @@ type train struct {
 	// groups[j]: point target j's echoes on a staggered CPI's map (nil
 	// otherwise, when gain[j] times its response is its map power).
 	groups [][]staggerGroup
+	// radar.scan: each pulse's two-way voltage gain on a point target
+	// (nil: staring), its power, and each target's scan loss on the map,
+	// dB (nil: staring).
+	scanA, scanPow []float64
+	scanLoss       []float64
 }
 
 func mtiTaps(kind string) []float64 {
@@ -69,6 +75,13 @@ func newTrain(m *model, sc *scene) *train {
 	tr.plan = tr.newPlan()
 	nb := tr.plan.Bins()
 	tr.groups = make([][]staggerGroup, len(sc.targets))
+	if tr.scanA = m.scanGains(); tr.scanA != nil {
+		tr.scanPow = make([]float64, len(tr.scanA))
+		for i, a := range tr.scanA {
+			tr.scanPow[i] = a * a
+		}
+		tr.scanLoss = make([]float64, len(sc.targets))
+	}
 	for j, g := range sc.targets {
 		gain := make([]float64, nb)
 		fdT := g.fd * tr.T
@@ -85,6 +98,18 @@ func newTrain(m *model, sc *scene) *train {
 			tone := tr.plan.ToneResponse(nil, fdT)
 			for d := range gain {
 				gain[d] = (c*tone[d] + (1-c)*tr.incoherent()) * (1 - g.slowVar)
+			}
+			if tr.scanA != nil {
+				// The scan weights each pulse by the beam's two-way gain.
+				plain := slices.Max(gain)
+				mod := tr.plan.ModulatedToneResponse(tone, fdT, tr.scanA)
+				flat := tr.plan.FlatResponse(tr.scanPow)
+				for d := range gain {
+					gain[d] = (c*mod[d] + (1-c)*flat) * (1 - g.slowVar)
+				}
+				if peak := slices.Max(gain); peak > 0 && plain > 0 {
+					tr.scanLoss[j] = dsp.DB(plain / peak)
+				}
 			}
 		default:
 			// Gaussian Doppler spectrum of rms width 2σv/λ, as 33 tones.
@@ -336,6 +361,9 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 				a = math.Sqrt(dsp.SwerlingRCS(rng, 1, fl))
 			}
 			amps[p][j] = a
+			if tr.scanA != nil && g.t.Kind == TargetPoint {
+				amps[p][j] *= tr.scanA[p]
+			}
 		}
 	}
 	fields := make([]*clutterField, len(targets))
@@ -543,6 +571,10 @@ func (tr *train) report(j int, v, single verdict, bin int, out *TargetReport) {
 	if v.peakK >= 0 && v.peak > 0 {
 		snr := out.SNRDB + dsp.DB(tr.gain[j][bin])
 		out.SNRIntegratedDB = &snr
+	}
+	if tr.scanLoss != nil && g.t.Kind == TargetPoint {
+		l := tr.scanLoss[j]
+		out.ScanLossDB = &l
 	}
 	if blind {
 		what := "where stationary clutter sits"

@@ -84,6 +84,7 @@ func (s *Scenario) validate(errs *errList) {
 	waveOK := s.validateWaveform(c)
 	s.validateRadar(c, waveOK)
 	s.validateSchedule(c, waveOK)
+	s.validateScan(c)
 	s.validateReceiver(c)
 	s.validateTaps(c)
 	s.validateTargets(c)

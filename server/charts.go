@@ -243,6 +243,8 @@ type view struct {
 	// cpiMaps: the page shows a PRF schedule's CPI maps, so frames carry
 	// them (they cost a pulse-train simulation per CPI).
 	cpiMaps bool
+	// floors: the page shows the Floors tab, for this target (floorcharts.go).
+	floors *floorsReq
 }
 
 // windowGrid is the range axis of a result's series.

@@ -195,6 +195,9 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 		if err != nil {
 			return nil, &editError{w.pin.id, true, fmt.Errorf("pinned scenario: %w", err)}
 		}
+		if res != nil {
+			res.DropScene()
+		}
 		c.pinRes = res
 	}
 	if c.res == nil {
@@ -212,6 +215,11 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 	f := ss.newFrame()
 	f.id, f.report, f.link, f.reference = w.id, c.report, c.link, nil
 	c.chartsOf(f, c.res, c.pinRes, w.view, len(ss.frames.ch) > 0)
+	if ch, ok, err := floorsChart(c.res, w.view); err != nil {
+		ss.log.Debug("floors", "id", w.id, "err", err)
+	} else if ok {
+		f.charts = append(f.charts, ch)
+	}
 	f.charts = append(f.charts, c.amb...)
 	f.charts = append(f.charts, c.wave...)
 	if c.pin != nil {
@@ -378,6 +386,9 @@ func (ss *session) takePin(ctx context.Context, p edit, c *evalCache) error {
 	}
 	if err != nil {
 		return &editError{p.id, true, fmt.Errorf("pinned scenario: %w", err)}
+	}
+	if res != nil {
+		res.DropScene() // the Floors tab reads the edited scene, never the pin
 	}
 	report, err := json.Marshal(&res.Report)
 	if err != nil {

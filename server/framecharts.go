@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/cmplx"
 	"strconv"
+	"strings"
 	"unicode/utf8"
 
 	"github.com/pulsewright/pulsewright/scenarios"
@@ -387,7 +388,7 @@ func appendMasking(b []byte, res *scenarios.Result, g grid) []byte {
 		b = append(b, `,"distance":10,"fontSize":11,"fontWeight":"bold","formatter":`...)
 		b = append(b, '"')
 		b = appendLabelRunes(b, m.ID)
-		b = append(b, "'s response masks "...)
+		b = append(b, maskWords(t.Reason, m.ID)...)
 		b = appendLabelRunes(b, t.ID)
 		b = append(b, `","position":"right","show":true}}`...)
 		items++
@@ -396,6 +397,24 @@ func appendMasking(b []byte, res *scenarios.Result, g grid) []byte {
 		return append(b[:start], "[]"...)
 	}
 	return append(b, ']')
+}
+
+// maskWords is what of masker id masks a target, by its reason (the
+// engine names an impairment there, docs/detection.md §12): "'s
+// phase-noise skirt masks ", "'s I/Q image masks " or "'s response
+// masks ". It does not allocate.
+func maskWords(reason, id string) string {
+	const by = "Masked by "
+	if !strings.HasPrefix(reason, by) || !strings.HasPrefix(reason[len(by):], id) {
+		return "'s response masks "
+	}
+	switch rest := reason[len(by)+len(id):]; {
+	case strings.HasPrefix(rest, "'s phase-noise skirt"):
+		return "'s phase-noise skirt masks "
+	case strings.HasPrefix(rest, "'s I/Q image"):
+		return "'s I/Q image masks "
+	}
+	return "'s response masks "
 }
 
 // appendLabelRunes appends plainLabel(s) inside a JSON string.

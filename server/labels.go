@@ -68,7 +68,8 @@ func round2(v float64) float64 { return math.Round(clampAmp(v)*100) / 100 }
 // masker is named and both lie in the window, a segment from the masker's
 // peak to the masked target's range at the noise-free profile's level
 // there (the masker's response plus the target's own), its masked end
-// labelled "<masker>'s response masks <target>"; a null value breaks the
+// labelled "<masker>'s response masks <target>" (or its "phase-noise
+// skirt" or "I/Q image" when the reason names one); a null value breaks the
 // line between segments. A target masked by its own response gets no
 // segment: its card and reason say so.
 

@@ -16,6 +16,7 @@ const (
 	MsgView     = "view"     // {id, range_m: [a, b] | null, width_px, map_px?, cpi_maps?}
 	MsgPin      = "pin"      // {id, scenario | null}: compare against a pinned scenario
 	MsgCell     = "cell"     // {id, cell: {range_m, range_rate_mps} | null}: cuts through the range–Doppler map
+	MsgFloors   = "floors"   // {id, floors: {target, row?} | null}: the Floors tab shows (a target's dynamic-range view) or not
 )
 
 // Server → client message types.
@@ -41,6 +42,15 @@ type inMsg struct {
 	MapPx    int             `json:"map_px"`
 	CPIMaps  bool            `json:"cpi_maps"` // view: send the maps of a PRF schedule's CPIs
 	Cell     *cellMsg        `json:"cell"`
+	Floors   *floorsMsg      `json:"floors"`
+}
+
+// floorsMsg asks for the dynamic-range view of a target: "" for the
+// strongest; row, for a pulse train, the target whose map row to follow
+// ("" lets the engine choose).
+type floorsMsg struct {
+	Target string `json:"target"`
+	Row    string `json:"row"`
 }
 
 // cellMsg is a place on the range–Doppler map.

@@ -96,11 +96,15 @@ func sceneRows(s *scenarios.Scenario) [][2]string {
 		{"Sample rate", scenarios.SI(r.SampleRateHz, "Hz")},
 		{"PRI, pulses", priText(r)},
 		{"Receive window", fmt.Sprintf("%.6g – %.6g m", r.WindowStartM, r.WindowStopM)},
+		{"Beamwidth (az × el)", fmt.Sprintf("%.3g° × %.3g°", r.BeamwidthAzDeg, r.BeamwidthElDeg)},
 		{"Waveform", wf.Describe()},
 		{"Compression filter", rx.Filter},
 		{"Weighting", rx.Window.Describe()},
 		{"Detector", rx.Detector.Describe()},
 		{"Seed", fmt.Sprint(s.Seed)},
+	}
+	if sc := r.Scan; sc != nil {
+		rows = append(rows, [2]string{"Scan", fmt.Sprintf("%.4g °/s in %s, %s beam", sc.RateDegS, sc.Plane, sc.Pattern)})
 	}
 	for _, t := range s.Targets {
 		rows = append(rows, [2]string{"Target " + t.ID, t.Describe()})
@@ -126,6 +130,13 @@ func figureRows(r *scenarios.Report) [][2]string {
 	}
 	if w.VelocityResolutionMPS != nil {
 		rows = append(rows, [2]string{"Range-rate resolution", fmt.Sprintf("%.3g m/s", *w.VelocityResolutionMPS)})
+	}
+	if sc := r.Scan; sc != nil {
+		rows = append(rows, [2]string{"Hits per scan N = θ·PRF/θ̇", fmt.Sprintf("%.1f (dwell %s)", sc.HitsPerScan, scenarios.SI(sc.DwellS, "s"))})
+		if sc.CPILossDB != nil {
+			rows = append(rows, [2]string{"Scan loss of the CPI", fmt.Sprintf("%s dB over %.2f beamwidths", fixed(*sc.CPILossDB, 2), sc.CPIBeamwidths)})
+		}
+		rows = append(rows, [2]string{"Beam-shape loss of the dwell, coherent / noncoherent", fixed(sc.BeamShapeLossCoherentDB, 2) + " dB / " + fixed(sc.BeamShapeLossNoncoherentDB, 2) + " dB"})
 	}
 	return rows
 }

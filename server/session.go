@@ -246,9 +246,21 @@ func apply(st want, data []byte) (want, bool, error) {
 			st.view.cell = &cell{rangeM: c.RangeM, rateMPS: c.RangeRateMPS}
 		}
 		return st, false, nil
+	case MsgFloors:
+		st.view.floors = nil
+		if f := m.Floors; f != nil {
+			if len(f.Target) > maxFloorsID || len(f.Row) > maxFloorsID {
+				return bad, false, fmt.Errorf("floors {target: %.40q…}: a target id is at most %d bytes: %w", f.Target, maxFloorsID, scenarios.ErrInvalid)
+			}
+			st.view.floors = &floorsReq{target: f.Target, row: f.Row}
+		}
+		return st, false, nil
 	}
-	return bad, false, fmt.Errorf("unknown message type %q (want %s, %s, %s or %s): %w", m.Type, MsgScenario, MsgView, MsgPin, MsgCell, scenarios.ErrInvalid)
+	return bad, false, fmt.Errorf("unknown message type %q (want %s, %s, %s, %s or %s): %w", m.Type, MsgScenario, MsgView, MsgPin, MsgCell, MsgFloors, scenarios.ErrInvalid)
 }
+
+// maxFloorsID bounds the target ids of a floors message, bytes.
+const maxFloorsID = 256
 
 func finite(v float64) bool { return !math.IsNaN(v) && !math.IsInf(v, 0) }
 

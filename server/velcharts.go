@@ -14,7 +14,7 @@ import (
 // or a schedule CPI's): each CPI's best-bin response against range rate,
 // dB re its mean, from 0 to 1.25 times the largest first blind speed,
 // with each stagger's first true blind speed λ/(2Δ) marked, and the
-// blind speeds of its PRIs alone as dashed marks (docs/detection.md §14).
+// blind speeds of its PRIs alone as dashed marks (docs/detection.md §16).
 // The page shows it under the schedule editor (web/static/js/stagger.js).
 
 // ChartVelocity is the velocity response chart's name; its series ids are

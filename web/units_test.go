@@ -136,10 +136,19 @@ func TestUnitsNauticalRoundTrip(t *testing.T) {
 		t.Errorf("after a reload the scenario is\n%s\nwant\n%s", got, want)
 	}
 
-	// A colleague with the page's defaults (a browser of their own) opens
-	// the link: the same scenario, shown in metres and m/s.
-	cctx, cancel := chromedp.NewContext(browserCtx, chromedp.WithNewBrowserContext())
-	defer cancel()
+	// A colleague with the page's defaults opens the link: the same
+	// scenario, shown in metres and m/s. The colleague's browser is this
+	// tab with its stored choices wiped, not a second browser context:
+	// creating a browser context while this tab is attached has tripped
+	// the race detector inside the browser-driver library.
+	cctx := ctx
+	do(t, cctx, chromedp.Navigate("about:blank"))
+	do(t, cctx, chromedp.Navigate(url))
+	waitFor(t, cctx, "the page before the wipe", `window.__pw && window.__pw.frame()`)
+	if n := eval[int](t, cctx, `(localStorage.clear(), localStorage.length)`); n != 0 {
+		t.Fatalf("localStorage holds %d items after clear", n)
+	}
+	do(t, cctx, chromedp.Navigate("about:blank"))
 	do(t, cctx, chromedp.Navigate(link))
 	waitFor(t, cctx, "the colleague's page", `window.__pw && window.__pw.frame() && window.__pw.frame().report && window.__pw.store.scenario.targets[1].range_m === 6574.6`)
 	if got := eval[string](t, cctx, `JSON.stringify(window.__pw.store.scenario)`); got != want {

@@ -22,13 +22,19 @@ func (e *env) coverage(args []string) error {
 	by := fs.String("by", "range", "the table or CSV: range (Pd against range) or snr (Pd against SNR)")
 	format := fs.String("format", "table", "output format: table, csv or html (both curves in a self-contained page)")
 	out := fs.String("o", "", "write to this file instead of standard output")
+	unitsText := unitsFlag(fs)
 	pos, err := parseFlags(fs, args)
 	if err != nil {
 		return err
 	}
-	switch {
-	case *format != "table" && *format != "csv" && *format != "html":
+	if *format != "table" && *format != "csv" && *format != "html" {
 		return usageError{fmt.Sprintf("--format %q is not table, csv or html", *format)}
+	}
+	u, err := parseUnitsFlag(*unitsText, *format == "table", "it applies to --format table; csv and html keep SI")
+	if err != nil {
+		return err
+	}
+	switch {
 	case *by != "range" && *by != "snr":
 		return usageError{fmt.Sprintf("--by %q is not range or snr", *by)}
 	case *points < 2 || *points > scenarios.MaxCurvePoints:
@@ -69,7 +75,7 @@ func (e *env) coverage(args []string) error {
 		case "csv":
 			return writeCoverageCSV(w, c, *by)
 		}
-		return writeCoverageTable(w, c, lines, *by)
+		return writeCoverageTable(w, c, lines, *by, u)
 	}
 	if *out != "" {
 		return writeFile(*out, write)
@@ -113,10 +119,12 @@ func optCell(v *float64, f func(float64) string) string {
 	return f(*v)
 }
 
-func writeCoverageTable(w io.Writer, c *scenarios.Coverage, lines []string, by string) error {
+// writeCoverageTable prints the summary and the table for people, ranges
+// in u's range unit (--from and --to are read in metres whatever u).
+func writeCoverageTable(w io.Writer, c *scenarios.Coverage, lines []string, by string, u scenarios.Units) error {
 	fmt.Fprintf(w, "%s\n", c.Scenario)
 	for _, l := range lines {
-		fmt.Fprintln(w, l)
+		fmt.Fprintln(w, u.Restate(l))
 	}
 	fmt.Fprintln(w)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
@@ -127,9 +135,9 @@ func writeCoverageTable(w io.Writer, c *scenarios.Coverage, lines []string, by s
 		}
 		return tw.Flush()
 	}
-	fmt.Fprintln(tw, "RANGE m\tSNR dB\tPD\tPD ALONE\tSTATUS\t")
+	fmt.Fprintf(tw, "RANGE %s\tSNR dB\tPD\tPD ALONE\tSTATUS\t\n", u.Range)
 	for _, p := range c.ByRange {
-		fmt.Fprintf(tw, "%.1f\t%s\t%s\t%s\t%s\t\n", p.RangeM, optCell(p.SNRDB, func(v float64) string { return fx(v, 2) }),
+		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t\n", u.Number(scenarios.QRange, p.RangeM, 1), optCell(p.SNRDB, func(v float64) string { return fx(v, 2) }),
 			optCell(p.Pd, prob), optCell(p.PdAlone, prob), p.Status)
 	}
 	return tw.Flush()

@@ -113,6 +113,7 @@ func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units) erro
 	var clutter strings.Builder // its ranges restated in u
 	writeClutterText(&clutter, r)
 	io.WriteString(w, u.Restate(clutter.String()))
+	writeScanText(w, r)
 	for _, t := range r.Targets {
 		if t.DetectionRangeM != nil {
 			fmt.Fprintf(w, "%s: detection range for its RCS %s (where its SNR falls to the %s dB the required Pd needs, R⁴ law).\n",

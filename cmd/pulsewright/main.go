@@ -51,12 +51,12 @@ Usage:
                                      Pd against SNR per pulse (or against range, R⁴ law,
                                      from a reference point) and the SNR a required Pd needs
   pulsewright trials SCENARIO [-n 1000] [-j N] [--first I] [--format text|json|csv] [-o FILE] [--shard K/N]
-                     [--time-limit 10m]
+                     [--time-limit 10m] [--units U]
                                      Monte Carlo: N noisy realisations through the engine; each
                                      target's empirical Pd (95 % interval) beside the analytic Pd,
                                      and the false alarms counted against Pfa × cells
   pulsewright coverage SCENARIO --target ID [--from M --to M] [--points 200] [--by range|snr]
-                     [--format table|csv|html] [-o FILE]
+                     [--format table|csv|html] [-o FILE] [--units U]
                                      Pd curves of one target: against range (moved through the
                                      window, RCS kept) and against SNR; its detection range
   pulsewright blindzones --pri T1,T2,… --tau S --carrier HZ [--pulses N1,N2,…] [--m M]
@@ -75,8 +75,8 @@ Usage:
 SCENARIO is a file path, - for standard input, a share link (a whole URL or
 just its #s= part), or demo:NAME for a built-in scene.
 
---units U on check, eval --format text, pd (table) and blindzones (table)
-prints ranges, speeds and range rates in other units, e.g. --units km,kt
+--units U on check, eval --format text, pd (table), blindzones (table),
+coverage (table) and trials (text) prints ranges, speeds and range rates in other units, e.g. --units km,kt
 or --units nautical,closing: a system (si, metric, nautical), units (m, km,
 nmi, m/s, km/h, kt, ft) and a range-rate sign (opening or closing
 positive). Files, links, JSON, CSV and HTML stay SI. See docs/units.md.

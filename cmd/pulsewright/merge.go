@@ -287,7 +287,7 @@ func (e *env) mergeTrials(files []shardFile, out, format string) error {
 		}
 	}
 	sum := sums[byName[ordered[0].Name]].WithCounts(total, ordered[0].Stamp.Total)
-	write := func(w io.Writer) error { return writeTrials(w, format, sum) }
+	write := func(w io.Writer) error { return writeTrials(w, format, sum, scenarios.SIUnits()) }
 	if out == "" {
 		if err := write(e.stdout); err != nil {
 			return fmt.Errorf("merge: %w", err)

@@ -33,6 +33,7 @@ func (e *env) trials(args []string) error {
 	shardFlag := fs.String("shard", "", "K/N: run only block K of N of the trials (a shard file for merge)")
 	randomPhase := fs.Bool("random-phase", false, "draw each point echo's carrier phase per trial (single pulses): echoes sharing a cell add with a random relative phase")
 	limit := fs.Duration("time-limit", 0, "stop after this long (e.g. 90s, 10m) and write the trials done; 0: no limit")
+	unitsText := unitsFlag(fs)
 	pos, err := parseFlags(fs, args)
 	if err != nil {
 		return err
@@ -48,6 +49,10 @@ func (e *env) trials(args []string) error {
 		return usageError{fmt.Sprintf("--format %q is not text, json or csv", *format)}
 	case *limit < 0 || *limit > maxTrialTime:
 		return usageError{fmt.Sprintf("--time-limit %v out of range: want 0 (none) … %v", *limit, maxTrialTime)}
+	}
+	u, err := parseUnitsFlag(*unitsText, *format == "text" && *shardFlag == "", "it applies to --format text; json, csv and shard files keep SI")
+	if err != nil {
+		return err
 	}
 	shard := scenarios.Whole
 	sharded := *shardFlag != ""
@@ -110,7 +115,7 @@ func (e *env) trials(args []string) error {
 		if sharded {
 			return writeTrialsShard(w, s, *first, *n, shard, sum)
 		}
-		return writeTrials(w, *format, sum)
+		return writeTrials(w, *format, sum, u)
 	}
 	if *out != "" {
 		if err := writeFile(*out, write); err != nil {
@@ -132,8 +137,9 @@ func (e *env) trials(args []string) error {
 	return nil
 }
 
-// writeTrialsText prints a summary as a table a person reads.
-func writeTrialsText(w io.Writer, s scenarios.TrialSummary) error {
+// writeTrialsText prints a summary as a table a person reads, ranges in
+// u's range unit.
+func writeTrialsText(w io.Writer, s scenarios.TrialSummary, u scenarios.Units) error {
 	fmt.Fprintf(w, "%s: %d Monte Carlo trials (trials %d … %d of seed %d)\n", s.Scenario, s.Trials, s.FirstTrial, s.FirstTrial+s.Trials-1, s.Seed)
 	if s.RandomPhase {
 		fmt.Fprintln(w, "carrier phases drawn per trial (--random-phase)")
@@ -144,11 +150,11 @@ func writeTrialsText(w io.Writer, s scenarios.TrialSummary) error {
 	fmt.Fprintf(w, "Pd: detections / trials at each target's tested cell, %g %% exact binomial interval (Clopper–Pearson 1934); analytic Pd from the report (Pfa %g)\n\n",
 		100*s.Confidence, s.Pfa)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
-	fmt.Fprintln(tw, "ID\tSTATUS\tTESTED AT m\tSNR dB\tDETECTIONS\tPD\t95 % INTERVAL\tANALYTIC PD\tINSIDE\t")
+	fmt.Fprintf(tw, "ID\tSTATUS\tTESTED AT %s\tSNR dB\tDETECTIONS\tPD\t95 %% INTERVAL\tANALYTIC PD\tINSIDE\t\n", u.Range)
 	for _, t := range s.Targets {
 		at, snr, pd, ci, an, in := "—", "—", "—", "—", "—", "—"
 		if t.TestedM != nil {
-			at = fx(*t.TestedM, 1)
+			at = u.Number(scenarios.QRange, *t.TestedM, 1)
 		}
 		if t.TestedSNR != nil {
 			snr = fx(*t.TestedSNR, 2)
@@ -249,8 +255,9 @@ func writeTrialsShard(w io.Writer, s *scenarios.Scenario, first, n int, sh scena
 	return enc.Encode(sum)
 }
 
-// writeTrials writes a summary in a format of trials --format.
-func writeTrials(w io.Writer, format string, sum scenarios.TrialSummary) error {
+// writeTrials writes a summary in a format of trials --format; the text
+// gives ranges in u (JSON and CSV keep SI).
+func writeTrials(w io.Writer, format string, sum scenarios.TrialSummary, u scenarios.Units) error {
 	switch format {
 	case "json":
 		enc := json.NewEncoder(w)
@@ -259,5 +266,5 @@ func writeTrials(w io.Writer, format string, sum scenarios.TrialSummary) error {
 	case "csv":
 		return writeTrialsCSV(w, sum)
 	}
-	return writeTrialsText(w, sum)
+	return writeTrialsText(w, sum, u)
 }

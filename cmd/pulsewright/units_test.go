@@ -2,6 +2,8 @@ package main
 
 import (
 	"encoding/json"
+	"math"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -123,5 +125,87 @@ func TestPdAndCheckUnits(t *testing.T) {
 	code, out, errs = runCmd(t, "", "check", "demo:harbour-skiff", "--units", "km")
 	if code != 0 || !strings.Contains(out, "window 3.5–9 km") || !strings.Contains(out, `"window_start_m":3500`) {
 		t.Errorf("check --units km: exit %d, %s\n%s", code, errs, out)
+	}
+}
+
+// coverage and trials print their ranges in --units like the others:
+// 30000 m = 30000/1852 = 16.198704… nmi (1 nmi = 1852 m, as above).
+func TestCoverageAndTrialsUnits(t *testing.T) {
+	code, nm, errs := runCmd(t, trialScene, "coverage", "-", "--target", "steady", "--from", "18520", "--to", "37040", "--points", "3", "--units", "nmi")
+	if code != 0 {
+		t.Fatalf("coverage --units nmi: exit %d: %s", code, errs)
+	}
+	for _, want := range []string{"target steady at 16.1987 nmi", "RANGE nmi"} {
+		if !strings.Contains(nm, want) {
+			t.Errorf("coverage --units nmi lacks %q:\n%s", want, nm)
+		}
+	}
+	_, si, _ := runCmd(t, trialScene, "coverage", "-", "--target", "steady", "--from", "18520", "--to", "37040", "--points", "3")
+	for _, want := range []string{"target steady at 30000 m", "RANGE m"} {
+		if !strings.Contains(si, want) {
+			t.Errorf("coverage in SI lacks %q:\n%s", want, si)
+		}
+	}
+	// The same rows (--from and --to stay in metres): the range column
+	// converted, the SNR, Pd and status columns unchanged.
+	rows := func(out string) (r [][]string) {
+		for _, l := range strings.Split(out, "\n") {
+			if f := strings.Fields(l); len(f) == 5 && f[4] != "STATUS" {
+				r = append(r, f)
+			}
+		}
+		return r
+	}
+	a, b := rows(nm), rows(si)
+	if len(a) == 0 || len(a) != len(b) {
+		t.Fatalf("coverage rows: %d in nmi, %d in m", len(a), len(b))
+	}
+	for i := range a {
+		x, err1 := strconv.ParseFloat(a[i][0], 64)
+		y, err2 := strconv.ParseFloat(b[i][0], 64)
+		if err1 != nil || err2 != nil || math.Abs(x*1852-y) > 0.1 || strings.Join(a[i][1:], " ") != strings.Join(b[i][1:], " ") {
+			t.Errorf("row %d: %v in nmi, %v in m", i, a[i], b[i])
+		}
+	}
+
+	code, out, errs := runCmd(t, trialScene, "trials", "-", "-n", "20", "-j", "1", "--units", "km")
+	if code != 0 || !strings.Contains(out, "TESTED AT km") || !strings.Contains(out, "95 % INTERVAL") {
+		t.Fatalf("trials --units km: exit %d, %s\n%s", code, errs, out)
+	}
+	_, outSI, _ := runCmd(t, trialScene, "trials", "-", "-n", "20", "-j", "1")
+	// The tested cell of the same trials, in m and in km.
+	tested := func(out, id string) string {
+		for _, l := range strings.Split(out, "\n") {
+			if f := strings.Fields(l); len(f) > 2 && f[0] == id {
+				return f[2]
+			}
+		}
+		return ""
+	}
+	m, err1 := strconv.ParseFloat(tested(outSI, "steady"), 64)
+	k, err2 := strconv.ParseFloat(tested(out, "steady"), 64)
+	if err1 != nil || err2 != nil || math.Abs(m/1000-k) > 1e-4 {
+		t.Errorf("tested range %q m vs %q km", tested(outSI, "steady"), tested(out, "steady"))
+	}
+
+	for _, c := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"coverage", "-", "--target", "steady", "--format", "csv", "--units", "nmi"}, `--units "nmi": it applies to --format table; csv and html keep SI`},
+		{[]string{"coverage", "-", "--target", "steady", "--units", "leagues"}, `--units "leagues": "leagues" is not a unit or system`},
+		{[]string{"trials", "-", "-n", "5", "--format", "json", "--units", "km"}, `--units "km": it applies to --format text; json, csv and shard files keep SI`},
+		{[]string{"trials", "-", "-n", "5", "--shard", "1/2", "--units", "km"}, `--units "km": it applies to --format text; json, csv and shard files keep SI`},
+	} {
+		code, _, errs := runCmd(t, trialScene, c.args...)
+		if code != 2 || !strings.Contains(errs, c.want) {
+			t.Errorf("%v: exit %d, stderr %q, want %q", c.args, code, errs, c.want)
+		}
+	}
+	// --units si is accepted everywhere, and JSON is unchanged by it.
+	_, j1, _ := runCmd(t, trialScene, "trials", "-", "-n", "5", "-j", "1", "--format", "json")
+	_, j2, _ := runCmd(t, trialScene, "trials", "-", "-n", "5", "-j", "1", "--format", "json", "--units", "si")
+	if j1 == "" || j1 != j2 {
+		t.Errorf("trials JSON differs with --units si")
 	}
 }

@@ -1,7 +1,7 @@
 #!/usr/bin/python3
 """Independent model of a staggered pulse train's blind speed and velocity response.
 
-Written from the definitions in docs/detection.md section 14 (not from the
+Written from the definitions in docs/detection.md section 16 (not from the
 Go code):
 
 * pulse p of a train whose PRIs cycle through a pattern T_0..T_{L-1} is sent

@@ -11,6 +11,7 @@ import { format, unit } from './units.js';
 export const surfaceForms = [
   ['sigma0_db', 'σ⁰, constant', 'dB', -30],
   ['gamma_db', 'γ, constant-γ (σ⁰ = γ·sin ψ)', 'dB', -15],
+  ['sea_state', 'Sea state (NRL sea model)', '0 … 6', 3],
   ['rcs_dbsm_per_m', 'RCS per metre (advanced)', 'dBsm/m', -20],
 ];
 
@@ -28,6 +29,7 @@ export function levelOf(t) {
   const k = surfaceKey(t);
   if (k === 'sigma0_db') return { key: k, name: 'σ⁰ (surface reflectivity)', unit: 'dB', short: 'σ⁰' };
   if (k === 'gamma_db') return { key: k, name: 'γ (constant-γ surface)', unit: 'dB', short: 'γ' };
+  if (k === 'sea_state') return { key: k, name: 'Sea state (NRL sea model)', unit: '0 … 6', short: 'Sea' };
   return { key: k, name: 'RCS per metre', unit: 'dBsm/m', short: 'RCS/m' };
 }
 
@@ -42,7 +44,7 @@ export function clutterFields(editor, s, i, t) {
   if (t.kind === 'extended') {
     const cur = surfaceKey(t);
     const id = `f-targets_${i}_surface`;
-    const sel = h('select', { id, class: 'surface-form', title: 'σ⁰ and γ take the grazing angle from the antenna height (Radar tab) on a 4/3 Earth; the patch is σ⁰·R·θaz·(c/2B)·sec ψ. RCS per metre is the same at every range.' },
+    const sel = h('select', { id, class: 'surface-form', title: 'σ⁰, γ and sea state take the grazing angle from the antenna height (Radar tab) on a 4/3 Earth; the patch is σ⁰·R·θaz·(c/2B)·sec ψ. A sea state takes σ⁰ from the NRL sea model (Gregers-Hansen & Mital 2012: 0.5 … 35 GHz, grazing 0.1 … 60°). RCS per metre is the same at every range.' },
       surfaceForms.map(([k, label]) => h('option', { value: k, selected: k === cur }, label)));
     sel.addEventListener('change', () => {
       const k = sel.value;
@@ -50,10 +52,14 @@ export function clutterFields(editor, s, i, t) {
       editor.store.update((sc) => {
         const x = sc.targets[i];
         for (const [f] of surfaceForms) delete x[f];
+        delete x.polarisation;
         x[k] = def;
       }, `surface:${i}`);
     });
     out.push(h('div', { class: 'field' }, h('label', { for: id }, 'Surface given by'), sel));
+    if (cur === 'sea_state') {
+      out.push(editor.field(s, base, { key: 'polarisation', label: 'Polarisation', unit: '', scale: 1, type: 'select', options: ['horizontal', 'vertical'], def: 'horizontal' }));
+    }
   }
   out.push(editor.field(s, base, { key: 'role', label: 'Role', unit: '', scale: 1, type: 'select', options: roleOptions, def: 'clutter' }));
   return out;

@@ -28,6 +28,7 @@ export class Editor {
     this.roots = roots;
     this.store = store;
     this.selected = 0; // index of the selected target
+    this.selectHooks = []; // fn(i) called when the user selects target i
     this.status = new Map(); // target id → report entry
     this.reportTargets = []; // the report's entries, in scene order
     this.shape = '';
@@ -176,6 +177,7 @@ export class Editor {
   // Select target i: mark its row and show its detail form, leaving the
   // table (and any input being typed in) alone.
   select(i) {
+    for (const fn of this.selectHooks) fn(i); // floors.js: a choice, even of the row already selected
     if (i === this.selected) return;
     this.selected = i;
     for (const tr of $$('tr[data-row]', this.roots.targets)) tr.classList.toggle('sel', Number(tr.dataset.row) === i);
@@ -194,6 +196,7 @@ export class Editor {
     const t = (this.store.scenario.targets || [])[i];
     if (!t) return;
     const key = levelKey(t.kind, t);
+    if (key === 'sea_state') dB = Math.sign(dB); // whole sea states
     this.store.update((s) => {
       const v = (s.targets[i][key] ?? 0) + dB;
       s.targets[i][key] = Math.round(v * 10) / 10;
@@ -386,7 +389,8 @@ export class Editor {
     const st = rep ? rep.status : '';
     const level = num(lk);
     level.dataset.level = String(i);
-    level.title = `${lv.name} in ${lv.unit}: wheel, or ↑/↓ while this field has the focus, nudges it by 1 dB (Shift: 0.1 dB)`;
+    level.title = lk === 'sea_state' ? `${lv.name}, ${lv.unit}: wheel, or ↑/↓ while this field has the focus, steps it by one`
+      : `${lv.name} in ${lv.unit}: wheel, or ↑/↓ while this field has the focus, nudges it by 1 dB (Shift: 0.1 dB)`;
     level.setAttribute('aria-label', `${t.id} ${lv.name} (${lv.unit})`);
     const range = num(t.kind === 'point' ? 'range_m' : 'range_start_m', 'range');
     range.setAttribute('aria-label', `${t.id} ${t.kind === 'point' ? 'range' : 'near edge'} (${unitLabel('range')})`);

@@ -10,7 +10,7 @@ export function frontEndBlock(editor, s) {
   const fe = s.front_end || {};
   const on = Object.keys(fe).length > 0 || Object.keys(s.propagation || {}).length > 0;
   const d = h('details', { class: 'sub frontend', open: editor.frontEndOpen ?? on },
-    h('summary', {}, 'Front end and path: phase noise, ADC, I/Q, STC, rain, multipath', on ? h('span', { class: 'fe-on' }, ' · on') : null),
+    h('summary', {}, 'Front end and path: phase noise, ADC, I/Q, STC, rain, multipath, air', on ? h('span', { class: 'fe-on' }, ' · on') : null),
     h('div', { class: 'err block', dataset: { errFor: 'front_end' } }),
     h('div', { class: 'err block', dataset: { errFor: 'propagation' } }),
     frontEndGroups.map((g) => h('div', { class: 'fe-group' },

@@ -7,6 +7,7 @@ export const MsgScenario = 'scenario'; // {id, scenario}: a new edit, latest win
 export const MsgView = 'view'; // {id, range_m: [a, b] | null, width_px, map_px, cpi_maps}
 export const MsgPin = 'pin'; // {id, scenario | null}: compare against a pinned scenario
 export const MsgCell = 'cell'; // {id, cell: {range_m, range_rate_mps} | null}: cuts through the range–Doppler map
+export const MsgFloors = 'floors'; // {id, floors: {target, row?} | null}: the Floors tab shows a target's dynamic-range view, or not
 
 // Server → client message types.
 export const MsgFrame = 'frame'; // {id, report, link, charts, reference?, compute_ms}
@@ -40,4 +41,8 @@ export function pinMsg(id, scenario) {
 
 export function cellMsg(id, cell) {
   return JSON.stringify({ type: MsgCell, id, cell });
+}
+
+export function floorsMsg(id, floors) {
+  return JSON.stringify({ type: MsgFloors, id, floors });
 }

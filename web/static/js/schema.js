@@ -264,4 +264,15 @@ export const frontEndGroups = [
       f('multipath', 'Multipath', '', 1, 'select', { options: [['none', 'none'], ['flat_sea', 'flat sea']], def: 'none' }),
     ],
   },
+  {
+    // propagation.gas (added in version 2): oxygen and water vapour on the
+    // path, ITU-R P.676-13 Annex 1, for the air given (defaults: 15 °C,
+    // 1013.25 hPa, 7.5 g/m³).
+    title: 'Path: air (oxygen, water vapour)', base: 'propagation', fields: [
+      f('gas', 'Gases', '', 1, 'select', { options: [['none', 'none'], ['itu_p676', 'ITU-R P.676']], def: 'none' }),
+      f('air_temperature_c', 'Temperature', '°C', 1, 'num', { def: 15 }),
+      f('air_pressure_hpa', 'Pressure', 'hPa', 1, 'num', { def: 1013.25 }),
+      f('water_vapour_g_m3', 'Water vapour', 'g/m³', 1, 'num', { def: 7.5 }),
+    ],
+  },
 ];

@@ -2,7 +2,7 @@
 // animation frame, latest wins), the view and the pin, and hands frames
 // and errors to the page. Reconnects with back-off and resends its state.
 
-import { MsgError, MsgFrame, cellMsg, pinMsg, scenarioMsg, viewMsg } from './protocol.js';
+import { MsgError, MsgFrame, cellMsg, floorsMsg, pinMsg, scenarioMsg, viewMsg } from './protocol.js';
 
 export class Session {
   constructor({ onFrame, onError, onStatus }) {
@@ -15,7 +15,8 @@ export class Session {
     this.pinned = null;
     this.view = { range: null, width: 800, mapWidth: 0 };
     this.cell = null; // the map cell to cut through
-    this.dirty = { scenario: false, view: false, pin: false, cell: false };
+    this.floors = null; // the Floors tab's request (floors.js), null while it is hidden
+    this.dirty = { scenario: false, view: false, pin: false, cell: false, floors: false };
     this.scheduled = false;
     this.retry = 250;
     this.sent = new Map(); // edit id → performance.now() at send
@@ -35,7 +36,7 @@ export class Session {
     ws.onopen = () => {
       this.retry = 250;
       this.onStatus('live');
-      this.dirty = { scenario: !!this.scenario, view: true, pin: !!this.pinned, cell: !!this.cell };
+      this.dirty = { scenario: !!this.scenario, view: true, pin: !!this.pinned, cell: !!this.cell, floors: !!this.floors };
       this.flush();
     };
     ws.onmessage = (ev) => {
@@ -118,6 +119,14 @@ export class Session {
     this.schedule();
   }
 
+  // The Floors tab's request: {target} while it shows, null otherwise.
+  sendFloors(floors) {
+    if (JSON.stringify(floors) === JSON.stringify(this.floors)) return;
+    this.floors = floors;
+    this.dirty.floors = true;
+    this.schedule();
+  }
+
   sendPin(scenario) {
     this.pinned = scenario;
     this.dirty.pin = true;
@@ -144,6 +153,10 @@ export class Session {
     if (this.dirty.cell) {
       this.dirty.cell = false;
       ws.send(cellMsg(this.nextId++, this.cell));
+    }
+    if (this.dirty.floors) {
+      this.dirty.floors = false;
+      ws.send(floorsMsg(this.nextId++, this.floors));
     }
     if (this.dirty.pin) {
       this.dirty.pin = false;

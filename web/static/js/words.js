@@ -8,7 +8,7 @@ const targetWords = {
   id: 'id', kind: 'kind', range_m: 'range', range_start_m: 'near edge', range_stop_m: 'far edge',
   rcs_dbsm: 'RCS', rcs_dbsm_per_m: levelName.extended, reflectivity_dbz: levelName.volume,
   range_rate_mps: 'range rate', velocity_spread_mps: 'velocity spread', fluctuation: 'fluctuation', height_m: 'height',
-  sigma0_db: 'σ⁰', gamma_db: 'γ', role: 'role',
+  sigma0_db: 'σ⁰', gamma_db: 'γ', sea_state: 'sea state', polarisation: 'polarisation', role: 'role',
 };
 const receiverWords = {
   filter: 'compression filter', filter_length_factor: 'filter length', window: 'range weighting',
