@@ -2,6 +2,7 @@ package dsp
 
 import (
 	"math"
+	"runtime"
 	"sync"
 	"sync/atomic"
 )
@@ -13,26 +14,44 @@ import (
 //
 // with x taken as zero beyond its end (the package convention: an echo
 // whose leading edge is at sample d peaks at y[d]). It multiplies spectra
-// from the package's Stockham FFT (fft.go) at a length L whose prime
-// factors are 2, 3 and 5: one block of L ≥ n+m−1 when that is cheapest,
-// otherwise overlap-save blocks of L−m+1 outputs each, L chosen by a cost
-// model of that FFT (measured per radix, with a penalty for blocks that
-// overflow a core's cache). A Correlator owns its scratch space; Apply
-// does not allocate when dst is given, whatever its worker count. It is
-// not safe for concurrent use.
+// at a length L whose prime factors are 2, 3 and 5: one block of
+// L ≥ n+m−1 when that is cheapest, otherwise overlap-save blocks of
+// L−m+1 outputs each, L chosen by a cost model of the package's FFTs
+// (fftCost, measured). A power-of-two L runs on the in-place depth-first
+// plan (fftconv.go), others on the Stockham FFT (fft.go). A Correlator
+// owns its scratch space; Apply does not allocate when dst is given,
+// whatever its worker count. It is not safe for concurrent use.
 type Correlator struct {
 	n, m    int
 	step    int            // outputs per block, L−m+1
-	fft     *fftPlan       // length L, shared read-only by the workers
-	spec    []complex128   // conj(FFT(h zero-padded to L)) / L
-	scratch [][]complex128 // one 2L buffer per worker
+	fft     *fftPlan       // length L, shared read-only by the workers (L not a power of two)
+	conv    *convPlan      // length L, when L is a power of two (fftconv.go)
+	l       int            // the FFT length L
+	spec    []complex128   // conj(FFT(h zero-padded to L)) / L, in conv's order with conv
+	scratch [][]complex128 // one buffer per worker: 2L points, or L with conv
 	wg      sync.WaitGroup
 	next    atomic.Int64 // next block to take, with several workers
+	par     int          // goroutines per Apply (1: Apply runs serially)
 	// With several workers: the goroutine bodies, made once so that Apply
 	// does not allocate, and the arguments of the Apply in progress.
 	workers []func()
 	dst, x  []complex128
+	// With conv, several workers and blocks mod workers = 1, the last
+	// block is shared by all workers (coopBlock), first, in worker 0's
+	// buffer; the blocks before it are then taken whole (whole of them;
+	// all blocks otherwise).
+	coop  bool
+	whole int
+	phase [3]coopPhase // the shared block's phases' claimed and finished units
 }
+
+// coopPhase counts the units of one phase of the shared block that have
+// been claimed and finished.
+type coopPhase struct{ claim, done atomic.Int64 }
+
+// coopUnits is the number of pieces the shared block's copy, first
+// forward level and last inverse level are cut into.
+const coopUnits = 16
 
 // NewCorrelator returns a plan for windows of n samples (n ≥ 1) and the
 // reference ref (len(ref) ≥ 1), which is copied. It panics on empty
@@ -65,21 +84,42 @@ func newCorrelatorLen(ref []complex128, n, l, workers int) *Correlator {
 		n:    n,
 		m:    m,
 		step: l - m + 1,
-		fft:  newFFTPlan(l),
+		l:    l,
 		spec: make([]complex128, l),
 	}
-	blocks := (n + c.step - 1) / c.step
-	for range min(workers, blocks) {
-		c.scratch = append(c.scratch, make([]complex128, 2*l))
+	if isPow2(l) {
+		c.conv = newConvPlan(l)
+	} else {
+		c.fft = newFFTPlan(l)
 	}
-	for i := 1; i < len(c.scratch); i++ {
+	blocks := (n + c.step - 1) / c.step
+	size := 2 * l // the Stockham plan ping-pongs between two buffers
+	if c.conv != nil {
+		size = l // the power-of-two plan works in place
+	}
+	c.par, c.whole = min(workers, blocks), blocks
+	if shareLast(l, blocks, workers) {
+		c.coop, c.par, c.whole = true, workers, blocks-1
+	}
+	nbuf := c.par
+	if c.whole == 0 {
+		nbuf = 1 // the shared block's
+	}
+	for range nbuf {
+		c.scratch = append(c.scratch, make([]complex128, size))
+	}
+	for i := 1; i < c.par; i++ {
 		c.workers = append(c.workers, func() {
 			defer c.wg.Done()
 			c.blocks(i, c.dst, c.x)
 		})
 	}
 	copy(c.spec, ref)
-	c.fft.transform(c.spec, c.scratch[0][:l])
+	if c.conv != nil {
+		c.conv.forward(c.spec)
+	} else {
+		c.fft.transform(c.spec, c.scratch[0][:l])
+	}
 	inv := 1 / float64(l)
 	for i, v := range c.spec {
 		c.spec[i] = complex(real(v)*inv, -imag(v)*inv)
@@ -100,13 +140,28 @@ func stageCost(radix int) float64 {
 	return 2.0 // radix 5
 }
 
-// fftCost models the time of one length-l transform plus half the
-// per-block copies (the spectral product rides on the inverse transform's
-// first pass; the copy out is about half a stage per transform), with a penalty
-// for lengths beyond 2¹⁴ whose buffers spill out of a core's cache
-// (BenchmarkFFTRadix: the time per point and stage grows about 17 % per
-// doubling from 2¹⁴ to 2²⁰ on the reference machine).
+// fftCost models the time of one block of length l (forward transform,
+// spectral product, inverse transform) in units of one radix-4 pass over
+// l points. A power of two runs on the depth-first in-place plan
+// (fftconv.go): one pass per level (radix 4, and one radix-2 level for
+// an odd power) and a quarter pass for the product and the block's
+// input and output, with a penalty of 3 % per doubling beyond 2¹⁴
+// (BenchmarkCorrelatorLen, CPU time per Apply: 1.2–1.3 ns per point and
+// pass at 2¹⁴–2¹⁷, 1.3–1.6 at 2¹⁸–2¹⁹). Other lengths run on the
+// Stockham plan (fft.go): per-radix stage costs plus half a stage for the
+// copies, with a penalty of 17 % per doubling beyond 2¹⁴, where its two
+// buffers spill out of a core's cache (BenchmarkFFTRadix; and
+// BenchmarkCorrelatorLen: 1.2 ns per unit at 15 360 points, 1.7–1.8 at
+// 196 608 and 327 680).
 func fftCost(l int) float64 {
+	lg := math.Log2(float64(l))
+	if isPow2(l) {
+		c := math.Ceil(lg/2) + 0.25
+		if lg > 14 {
+			c *= 1 + 0.03*(lg-14)
+		}
+		return c * float64(l)
+	}
 	c := 0.5
 	r := l
 	for r%4 == 0 {
@@ -119,8 +174,8 @@ func fftCost(l int) float64 {
 			r /= p
 		}
 	}
-	if l > 1<<14 {
-		c *= 1 + 0.17*(math.Log2(float64(l))-14)
+	if lg > 14 {
+		c *= 1 + 0.17*(lg-14)
 	}
 	return c * float64(l)
 }
@@ -141,8 +196,21 @@ func bestBlockLen(n, m, workers int) int {
 
 func blockCost(n, m, l, workers int) float64 {
 	blocks := (n + l - m) / (l - m + 1) // ceil(n / (l−m+1))
+	if shareLast(l, blocks, workers) {
+		// The last block is shared: each worker does 1/workers of it
+		// (and a little more for the waits between its phases).
+		return (float64(blocks-1)/float64(workers) + 1.1/float64(workers)) * fftCost(l)
+	}
 	perWorker := (blocks + workers - 1) / workers
 	return float64(perWorker) * fftCost(l)
+}
+
+// shareLast reports whether the last of the blocks of length l is shared
+// by the workers: with several workers, blocks mod workers = 1 (one block
+// would be left to a single worker), and a power-of-two l above the conv
+// plan's leaf size (its first level and its four quarters can be shared).
+func shareLast(l, blocks, workers int) bool {
+	return workers > 1 && blocks%workers == 1 && isPow2(l) && l > convLeaf
 }
 
 // Len returns n, the input and output length.
@@ -163,7 +231,7 @@ func (c *Correlator) Apply(dst, x []complex128) []complex128 {
 	} else if len(dst) != c.n {
 		panic("dsp: correlator destination length mismatch")
 	}
-	if len(c.scratch) == 1 {
+	if c.par == 1 {
 		c.blocks(0, dst, x)
 		return dst
 	}
@@ -176,6 +244,10 @@ func (c *Correlator) Apply(dst, x []complex128) []complex128 {
 // leaves its share to the others.
 func (c *Correlator) parallel(dst, x []complex128) {
 	c.next.Store(0)
+	for i := range c.phase {
+		c.phase[i].claim.Store(0)
+		c.phase[i].done.Store(0)
+	}
 	c.dst, c.x = dst, x
 	c.wg.Add(len(c.workers))
 	for _, f := range c.workers {
@@ -194,7 +266,11 @@ func (c *Correlator) parallel(dst, x []complex128) {
 // whole block is transformed from where it lies in x; only the last,
 // zero-padded one is copied.
 func (c *Correlator) blocks(i int, dst, x []complex128) {
-	l := c.fft.n
+	if c.conv != nil {
+		c.convBlocks(i, dst, x)
+		return
+	}
+	l := c.l
 	s := c.scratch[i]
 	buf, work := s[:l], s[l:]
 	spec := c.spec[:l]
@@ -224,5 +300,91 @@ func (c *Correlator) blocks(i int, dst, x []complex128) {
 		for i, v := range z {
 			out[i] = complex(real(v), -imag(v))
 		}
+	}
+}
+
+// convBlocks is blocks on the power-of-two plan: each block's first
+// forward level reads x where it lies, and its last inverse level writes
+// the block's outputs straight into dst (fftconv.go).
+func (c *Correlator) convBlocks(i int, dst, x []complex128) {
+	l := c.l
+	if c.coop {
+		c.coopBlock(dst, x)
+	}
+	var buf []complex128
+	if c.whole > 0 {
+		buf = c.scratch[i][:l]
+	}
+	serial := c.par == 1
+	for k := 0; ; k++ {
+		if !serial {
+			k = int(c.next.Add(1) - 1)
+		}
+		if k >= c.whole {
+			break
+		}
+		b := k * c.step
+		src := buf
+		if b+l <= c.n {
+			src = x[b : b+l]
+		} else {
+			k := copy(buf, x[b:])
+			clear(buf[k:])
+		}
+		c.conv.convolve(dst[b:min(b+c.step, c.n)], src, buf, c.spec)
+	}
+}
+
+// coopBlock computes the last block with every worker, in worker 0's
+// buffer (no worker takes a whole block before the shared one is done):
+// its copy into the buffer with its first forward level, its four
+// quarters (each forward, product and inverse, as in convolve) and its
+// last inverse level into dst, each phase cut into units that the
+// workers claim in turn. A worker waits (yielding) for the others to
+// finish a phase before it starts the next one; a worker that waits for
+// a core leaves its share to the others.
+func (c *Correlator) coopBlock(dst, x []complex128) {
+	units := [3]int{coopUnits, 4, coopUnits}
+	for ph := range c.phase {
+		p := &c.phase[ph]
+		for {
+			u := int(p.claim.Add(1) - 1)
+			if u >= units[ph] {
+				break
+			}
+			c.coopUnit(ph, u, dst, x)
+			p.done.Add(1)
+		}
+		for p.done.Load() < int64(units[ph]) {
+			runtime.Gosched()
+		}
+	}
+}
+
+// coopUnit runs unit u of phase ph of the shared block: 0, the copy of
+// x[b:] (zero-padded) into the buffer and the first forward level, for
+// a range of butterflies (the four ranges of the buffer they read and
+// write); 1, quarter u; 2, the last inverse level for a range of
+// butterflies.
+func (c *Correlator) coopUnit(ph, u int, dst, x []complex128) {
+	l, q := c.l, c.l/4
+	b := c.whole * c.step
+	buf := c.scratch[0][:l]
+	k0, k1 := u*q/coopUnits, (u+1)*q/coopUnits
+	switch ph {
+	case 0:
+		for j := range 4 {
+			lo, hi := j*q+k0, j*q+k1
+			k := 0
+			if b+lo < c.n {
+				k = copy(buf[lo:hi], x[b+lo:min(b+hi, c.n)])
+			}
+			clear(buf[lo+k : hi])
+		}
+		fwd4FromRange(buf, buf, c.conv.tw[0], k0, k1)
+	case 1:
+		c.conv.convRec(buf[u*q:(u+1)*q], c.spec[u*q:(u+1)*q], 1)
+	case 2:
+		inv4ToRange(dst[b:min(b+c.step, c.n)], buf, c.conv.tw[0], k0, k1)
 	}
 }

@@ -67,7 +67,7 @@ func TestCorrelatorDirect(t *testing.T) {
 			h[0] = 1e6 // the plan must hold its own copy
 			got := p.Apply(nil, x)
 			if e := maxRelErr(got, want); e > tol {
-				t.Errorf("max relative error %.3g > %v (FFT length %d)", e, tol, p.fft.n)
+				t.Errorf("max relative error %.3g > %v (FFT length %d)", e, tol, p.l)
 			}
 			again := p.Apply(got, x) // reuse of the destination and the plan
 			if e := maxRelErr(again, want); e > tol {
@@ -138,7 +138,7 @@ func TestCorrelatorWorkers(t *testing.T) {
 			}
 			for range 2 {
 				if e := maxRelErr(p.Apply(nil, x), want); e > tol {
-					t.Errorf("max relative error %.3g > %v (FFT length %d)", e, tol, p.fft.n)
+					t.Errorf("max relative error %.3g > %v (FFT length %d)", e, tol, p.l)
 				}
 			}
 		})
@@ -190,7 +190,7 @@ func BenchmarkCorrelator(b *testing.B) {
 			for b.Loop() {
 				p.Apply(dst, x)
 			}
-			b.ReportMetric(float64(p.fft.n), "fftlen")
+			b.ReportMetric(float64(p.l), "fftlen")
 			b.ReportMetric(float64((c.n+p.step-1)/p.step), "blocks")
 		})
 	}

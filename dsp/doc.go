@@ -20,9 +20,12 @@
 // with x taken as zero beyond its end, so an echo whose leading edge is
 // at sample d peaks at y[d]. Fourier transforms are unnormalised, as in
 // gonum.org/v1/gonum/dsp/fourier. The correlation plans use the package's
-// own Stockham FFT (fft.go; lengths with prime factors 2, 3 and 5),
-// which is tested against gonum's to 1e-12 of the transform's norm and
-// runs several times faster.
+// own FFTs: a Stockham FFT (fft.go; lengths with prime factors 2, 3 and
+// 5) and, for the correlator's power-of-two blocks, an in-place
+// depth-first FFT that leaves the spectrum in digit-reversed order for
+// the product and its mirror inverse (fftconv.go). Both are tested
+// against numpy.fft and gonum's to 1e-12 of the transform's norm; they
+// run several times faster than gonum's.
 //
 // # Detection probability
 //
@@ -42,8 +45,11 @@
 // goroutines, with one exception approved for speed: a plan made by
 // NewCorrelatorWorkers with more than one worker runs its overlap-save
 // blocks on that many goroutines, which live only inside Apply and share
-// only read-only tables and disjoint parts of the destination. Random draws take an explicit *rand.Rand so that results
-// are deterministic for a seed. Plans (types named …Plan or created by
+// only read-only tables and disjoint parts of the destination (and, when
+// they share the last block, disjoint parts of one buffer, phase by
+// phase; for one block length the result is the same to the last bit
+// whatever the worker count). Random draws take an explicit *rand.Rand so that results are
+// deterministic for a seed. Plans (types named …Plan or created by
 // New…) own scratch buffers, are reusable and are not safe for
 // concurrent use. Methods that fill a destination take it first and
 // allocate only when it is nil; a destination of the wrong length is a

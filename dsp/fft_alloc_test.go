@@ -35,8 +35,19 @@ func TestCorrelatorApplyAllocs(t *testing.T) {
 			p := NewCorrelatorWorkers(randComplex(rnd, c.m), c.n, c.w)
 			x, dst := randComplex(rnd, c.n), make([]complex128, c.n)
 			if a := testing.AllocsPerRun(5, func() { p.Apply(dst, x) }); a != 0 {
-				t.Errorf("%v allocs per Apply, want 0 (FFT length %d, %d workers)", a, p.fft.n, len(p.scratch))
+				t.Errorf("%v allocs per Apply, want 0 (FFT length %d, %d workers)", a, p.l, len(p.scratch))
 			}
 		})
+	}
+	// The last block shared by the workers (29 blocks on 2, 1 block on 2).
+	for _, c := range []struct{ n, m, l int }{{30000, 1000, 2048}, {5000, 5000, 16384}} {
+		p := newCorrelatorLen(randComplex(rnd, c.m), c.n, c.l, 2)
+		x, dst := randComplex(rnd, c.n), make([]complex128, c.n)
+		if !p.coop {
+			t.Fatalf("n=%d m=%d L=%d: the last block is not shared", c.n, c.m, c.l)
+		}
+		if a := testing.AllocsPerRun(5, func() { p.Apply(dst, x) }); a != 0 {
+			t.Errorf("n=%d m=%d L=%d, shared last block: %v allocs per Apply, want 0", c.n, c.m, c.l, a)
+		}
 	}
 }
