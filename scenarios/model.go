@@ -253,7 +253,7 @@ func sampleTaps(taps []complex128, lead int, chip, fs float64) ([]complex128, in
 // [⌈(q·PRI − t0)·fs⌉, ⌈(q·PRI + τ − t0)·fs⌉).
 func (m *model) record() {
 	m.recLen = m.n + max(len(m.ref)-1-m.lead, 0)
-	pri := m.s.Radar.PRIS
+	pri := m.s.Radar.blankPRI()
 	m.blanks = m.blanks[:0]
 	tEnd := m.t0 + float64(m.recLen)/m.fs
 	for q := max(math.Floor(m.t0/pri)-1, 0); q*pri < tEnd; q++ {
@@ -300,7 +300,7 @@ func (m *model) blanked(j int) bool {
 // start after the transmit edge (s) and lasts τ which falls outside every
 // transmit interval [q·PRI, q·PRI + τ).
 func (m *model) heardFraction(start float64) float64 {
-	pri, tau := m.s.Radar.PRIS, m.tau
+	pri, tau := m.s.Radar.blankPRI(), m.tau
 	lost := 0.0
 	for q := math.Floor(start/pri) - 1; q*pri < start+tau; q++ {
 		lo, hi := math.Max(q*pri, start), math.Min(q*pri+tau, start+tau)

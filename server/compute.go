@@ -34,6 +34,12 @@ type evalCache struct {
 	pinRes  *scenarios.Result
 	pinRept []byte
 
+	// The velocity response chart of the last staggered scenario, by
+	// velocityKey: rebuilt only when a stagger's inputs change.
+	velKey string
+	velOut chartOut
+	velOK  bool
+
 	ambKey string     // the waveform and sample rate the surface is of
 	amb    []chartOut // the surface and its cuts; nil when there is none
 

@@ -60,6 +60,13 @@ func (c *evalCache) chartsOf(f *frame, res, ref *scenarios.Result, vw view, pend
 	c.rdmapInto(f, ChartRDMap, 0, res, vw, pending)
 	c.rdCutsInto(f, res, vw, pending)
 	c.scheduleInto(f, c.scn, res, vw, pending)
+	if k := velocityKey(c.scn); k != c.velKey {
+		c.velKey = k
+		c.velOut, c.velOK = velocityChart(c.scn)
+	}
+	if c.velOK {
+		f.charts = append(f.charts, c.settle([]chartOut{c.velOut})...)
+	}
 	// The data slices point into buf and store, which have stopped
 	// growing; a chart's series are consecutive in refs.
 	for _, r := range f.refs {

@@ -190,11 +190,12 @@ func cpiResult(one, res *scenarios.Result, s *scenarios.Series, c *scenarios.CPI
 // schedule and the mapped extent stay the same: version names its cells
 // in the chart's key.
 type bzState struct {
-	spec    scenarios.BlindZoneSpec
-	bz      *scenarios.BlindZoneMap // nil: the schedule cannot be mapped
-	version int
-	pris    []float64 // scratch for the spec being compared
-	pulses  []int
+	spec     scenarios.BlindZoneSpec
+	bz       *scenarios.BlindZoneMap // nil: the schedule cannot be mapped
+	version  int
+	pris     []float64 // scratch for the spec being compared
+	pulses   []int
+	staggers [][]float64 // scratch: each CPI's stagger, pointing into the report
 }
 
 // blindZoneSpec returns the spec of the schedule's map (its slices in the
@@ -211,6 +212,17 @@ func (st *bzState) blindZoneSpec(sc *scenarios.Scenario, sr *scenarios.ScheduleR
 		vb = math.Max(vb, c.BlindSpeedMPS)
 	}
 	spec.PRIs, spec.Pulses = st.pris, st.pulses
+	// Staggered CPIs: their patterns (nil when every CPI is uniform).
+	st.staggers = st.staggers[:0]
+	for _, c := range sr.CPIs {
+		if c.PRIStaggerS != nil {
+			for _, c := range sr.CPIs {
+				st.staggers = append(st.staggers, c.PRIStaggerS)
+			}
+			spec.Staggers = st.staggers
+			break
+		}
+	}
 	// Ranges: the window and every target, with room; range rates: two
 	// blind speeds of the slowest-folding CPI and every target.
 	hiR := r.WindowStopM
@@ -226,7 +238,8 @@ func (st *bzState) blindZoneSpec(sc *scenarios.Scenario, sr *scenarios.ScheduleR
 
 // sameSpec says whether two blind-zone specs are the same.
 func sameSpec(a, b scenarios.BlindZoneSpec) bool {
-	return slices.Equal(a.PRIs, b.PRIs) && slices.Equal(a.Pulses, b.Pulses) && a.PulseS == b.PulseS && a.CarrierHz == b.CarrierHz &&
+	return slices.Equal(a.PRIs, b.PRIs) && slices.Equal(a.Pulses, b.Pulses) &&
+		(a.Staggers == nil) == (b.Staggers == nil) && slices.EqualFunc(a.Staggers, b.Staggers, slices.Equal[[]float64]) && a.PulseS == b.PulseS && a.CarrierHz == b.CarrierHz &&
 		a.M == b.M && a.RangeMinM == b.RangeMinM && a.RangeMaxM == b.RangeMaxM && a.RateMaxMPS == b.RateMaxMPS &&
 		a.RangeCells == b.RangeCells && a.RateCells == b.RateCells && a.EclipseFraction == b.EclipseFraction
 }
@@ -239,6 +252,13 @@ func (st *bzState) zones(sc *scenarios.Scenario, sr *scenarios.ScheduleReport, v
 		return st.bz, st.spec, st.version
 	}
 	spec.PRIs, spec.Pulses = slices.Clone(spec.PRIs), slices.Clone(spec.Pulses)
+	if spec.Staggers != nil {
+		st := make([][]float64, len(spec.Staggers))
+		for k, p := range spec.Staggers {
+			st[k] = slices.Clone(p)
+		}
+		spec.Staggers = st
+	}
 	bz, err := scenarios.BlindZones(spec)
 	if err != nil {
 		bz = nil // a schedule the map cannot draw (a PRI below 2τ): the report still stands

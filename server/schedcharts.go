@@ -211,6 +211,14 @@ func scheduleTable(sr *scenarios.ScheduleReport) *scheduleData {
 	}
 	d.Head = strings.Join(head, "; ") + "."
 	for k, c := range sr.CPIs {
+		if c.PRIStaggerS != nil {
+			pris := make([]string, len(c.PRIStaggerS))
+			for i, p := range c.PRIStaggerS {
+				pris[i] = scenarios.SI(p, "s")
+			}
+			d.CPIs = append(d.CPIs, fmt.Sprintf("CPI %d (stagger %s × %d, blind %.1f m/s)", k+1, strings.Join(pris, " / "), c.Pulses, c.BlindSpeedMPS))
+			continue
+		}
 		d.CPIs = append(d.CPIs, fmt.Sprintf("CPI %d (%s × %d)", k+1, scenarios.SI(c.PRIS, "s"), c.Pulses))
 	}
 	for j, t := range sr.Targets {
