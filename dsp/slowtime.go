@@ -49,6 +49,10 @@ type SlowTimePlan struct {
 	fast  *fftPlan
 	buf   []complex128
 	work  []complex128
+	// A staggered plan (NewStaggeredPlan): pulse times in mean PRIs and
+	// the M×M filter matrix, row d for bin d.
+	times []float64
+	dft   []complex128
 }
 
 // smooth235 reports whether n has no prime factor above 5.
@@ -124,6 +128,10 @@ func (p *SlowTimePlan) Apply(dst, x []complex128) []complex128 {
 		}
 		p.buf[q] = s * complex(p.w[q]*p.scale, 0)
 	}
+	if p.times != nil {
+		p.applyStaggered(dst)
+		return dst
+	}
 	if p.fast != nil {
 		p.fast.transform(p.buf, p.work)
 	} else {
@@ -137,7 +145,8 @@ func (p *SlowTimePlan) Apply(dst, x []complex128) []complex128 {
 
 // ToneResponse fills dst (Bins() values; nil allocates) with the power
 // in each bin of a unit-power tone at normalised Doppler frequency fdT
-// (cycles per pulse), relative to the plan's noise power per bin. A tone
+// (cycles per pulse; per mean PRI for a staggered plan, the tone sampled
+// at the true pulse times), relative to the plan's noise power per bin. A tone
 // that falls on a bin centre with no window and no MTI gives N there:
 // the coherent integration gain.
 func (p *SlowTimePlan) ToneResponse(dst []float64, fdT float64) []float64 {
@@ -146,7 +155,7 @@ func (p *SlowTimePlan) ToneResponse(dst []float64, fdT float64) []float64 {
 	}
 	x := make([]complex128, p.n)
 	for i := range x {
-		x[i] = expj(2 * math.Pi * fdT * float64(i))
+		x[i] = p.Tone(fdT, i)
 	}
 	y := p.Apply(nil, x)
 	for d, v := range y {
@@ -173,7 +182,7 @@ func (p *SlowTimePlan) ModulatedToneResponse(dst []float64, fdT float64, a []flo
 	}
 	x := make([]complex128, p.n)
 	for i := range x {
-		x[i] = complex(a[i], 0) * expj(2*math.Pi*fdT*float64(i))
+		x[i] = complex(a[i], 0) * p.Tone(fdT, i)
 	}
 	y := p.Apply(nil, x)
 	for d, v := range y {

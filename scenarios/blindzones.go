@@ -5,6 +5,7 @@ import (
 	"html"
 	"io"
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -15,11 +16,15 @@ import (
 // at a blind speed, in each coherent processing interval (CPI), and
 // whether M of the N CPIs still see it.
 type BlindZoneSpec struct {
-	PRIs      []float64 // s, one per CPI
-	Pulses    []int     // pulses per CPI (one value: the same for all)
-	PulseS    float64   // transmitted pulse width τ, s
-	CarrierHz float64   // carrier, Hz (λ = c/f)
-	M         int       // CPIs that must see a target (M-of-N); 0: all
+	PRIs   []float64 // s, one per CPI
+	Pulses []int     // pulses per CPI (one value: the same for all)
+	// Staggers holds each CPI's staggered PRIs (s; nil or an empty entry
+	// for a uniform CPI, whose PRI is PRIs[k]; PRIs[k] is then not used):
+	// nil when no CPI is staggered.
+	Staggers  [][]float64
+	PulseS    float64 // transmitted pulse width τ, s
+	CarrierHz float64 // carrier, Hz (λ = c/f)
+	M         int     // CPIs that must see a target (M-of-N); 0: all
 
 	RangeMinM, RangeMaxM float64 // mapped ranges, m
 	RateMaxMPS           float64 // mapped range rates −max … +max, m/s
@@ -47,6 +52,30 @@ func (s *BlindZoneSpec) Validate() error {
 			l.add(fmt.Sprintf("pri[%d]", i), "%g is outside the valid range 1e-06 … 1 s", p)
 		} else if !(s.PulseS < p/2) && s.PulseS > 0 {
 			l.add(fmt.Sprintf("pri[%d]", i), "%g s must be above twice the pulse width %g s", p, s.PulseS)
+		}
+	}
+	if s.Staggers != nil && len(s.Staggers) != len(s.PRIs) {
+		l.add("stagger", "%d staggers given for %d CPIs; give one per CPI (empty for a uniform one)", len(s.Staggers), len(s.PRIs))
+	}
+	for k, pat := range s.Staggers {
+		if len(pat) == 0 {
+			continue
+		}
+		if len(pat) < MinStagger || len(pat) > MaxStagger {
+			l.add(fmt.Sprintf("stagger[%d]", k), "%d PRIs; give %d … %d", len(pat), MinStagger, MaxStagger)
+			continue
+		}
+		inRange := true
+		for i, p := range pat {
+			if !(p >= 1e-6 && p <= 1) {
+				l.add(fmt.Sprintf("stagger[%d][%d]", k, i), "%g is outside the valid range 1e-06 … 1 s", p)
+				inRange = false
+			} else if !(s.PulseS < p/2) && s.PulseS > 0 {
+				l.add(fmt.Sprintf("stagger[%d][%d]", k, i), "%g s must be above twice the pulse width %g s", p, s.PulseS)
+			}
+		}
+		if inRange && dsp.NewSchedule(pat...).Delta == 0 {
+			l.add(fmt.Sprintf("stagger[%d]", k), "%v: the PRIs have no common step (each a whole multiple of it, at most 10000 times)", pat)
 		}
 	}
 	if len(s.Pulses) != 1 && len(s.Pulses) != len(s.PRIs) {
@@ -148,9 +177,18 @@ func BlindZones(s BlindZoneSpec) (*BlindZoneMap, error) {
 		b.M = len(s.PRIs)
 	}
 	lambda := C / s.CarrierHz
-	sched := dsp.NewSchedule(s.PRIs...)
-	if r := sched.UnambiguousRange(); !math.IsInf(r, 0) {
-		b.UnambiguousRangeM = r
+	sched := dsp.NewSchedule(s.allPRIs()...)
+	// Ranges unfold over the uniform CPIs only (detection.md §16).
+	var uniform []float64
+	for k, p := range s.PRIs {
+		if s.stagger(k) == nil {
+			uniform = append(uniform, p)
+		}
+	}
+	if len(uniform) > 0 {
+		if r := dsp.NewSchedule(uniform...).UnambiguousRange(); !math.IsInf(r, 0) {
+			b.UnambiguousRangeM = r
+		}
 	}
 	if v := sched.FirstBlindSpeed(lambda); !math.IsInf(v, 0) {
 		b.FirstBlindMPS = v
@@ -181,6 +219,12 @@ func BlindZones(s BlindZoneSpec) (*BlindZoneMap, error) {
 	w := (1 - s.EclipseFraction) * C * s.PulseS / 2
 	for j, r := range b.Ranges {
 		for k, p := range s.PRIs {
+			if pat := s.stagger(k); pat != nil {
+				if staggerEclipsedMax(r-dr/2, r+dr/2, pat, s.PulseS) >= s.EclipseFraction-1e-9 { // rounding of a peak
+					ecl[j] |= 1 << k
+				}
+				continue
+			}
 			if hit(r-dr/2, r+dr/2, dsp.UnambiguousRange(p), w) {
 				ecl[j] |= 1 << k
 			}
@@ -190,7 +234,14 @@ func BlindZones(s BlindZoneSpec) (*BlindZoneMap, error) {
 		var bl uint32
 		for k, p := range s.PRIs {
 			vb := dsp.BlindSpeed(p, lambda)
-			if pulses(k) > 1 && hit(v-dv/2, v+dv/2, vb, vb/(2*float64(pulses(k)))) {
+			half := vb / (2 * float64(pulses(k)))
+			if pat := s.stagger(k); pat != nil {
+				// Blind at multiples of λ/(2Δ), within half a Doppler bin
+				// of the mean PRI's filter bank (detection.md §16).
+				vb = staggerBlindSpeed(pat, lambda)
+				half = dsp.BlindSpeed(dsp.MeanPRI(pat), lambda) / (2 * float64(pulses(k)))
+			}
+			if pulses(k) > 1 && hit(v-dv/2, v+dv/2, vb, half) {
 				bl |= 1 << k
 			}
 		}
@@ -203,6 +254,82 @@ func BlindZones(s BlindZoneSpec) (*BlindZoneMap, error) {
 		b.Blind = append(b.Blind, brow)
 	}
 	return b, nil
+}
+
+// stagger returns CPI k's staggered PRIs, or nil for a uniform CPI.
+func (s *BlindZoneSpec) stagger(k int) []float64 {
+	if k < len(s.Staggers) && len(s.Staggers[k]) > 0 {
+		return s.Staggers[k]
+	}
+	return nil
+}
+
+// allPRIs returns every PRI of every CPI: the uniform CPIs' and each
+// staggered CPI's pattern.
+func (s *BlindZoneSpec) allPRIs() []float64 {
+	var out []float64
+	for k, p := range s.PRIs {
+		if pat := s.stagger(k); pat != nil {
+			out = append(out, pat...)
+		} else {
+			out = append(out, p)
+		}
+	}
+	return out
+}
+
+// staggerEclipsedMax returns the largest fraction, over true ranges in
+// [lo, hi] (m), of a staggered CPI's echo energy lost under transmit
+// pulses: the mean over one pattern cycle of pulses p of the overlap of
+// pulse p's echo, starting t_p + 2R/c, with every transmit pulse
+// [t_q, t_q + τ), over τ (each pulse's own sweep, the pattern continuing
+// both ways). Each overlap is a triangle in R peaked where the echo
+// starts with a transmit pulse, so the largest mean lies at such a peak
+// or at an end of the interval.
+func staggerEclipsedMax(lo, hi float64, pattern []float64, tau float64) float64 {
+	l := len(pattern)
+	cyc := 0.0
+	for _, T := range pattern {
+		cyc += T
+	}
+	at := func(q int) float64 { // t_q for any integer q
+		c, i := q/l, q%l
+		if i < 0 {
+			i += l
+			c--
+		}
+		t := float64(c) * cyc
+		for k := range i {
+			t += pattern[k]
+		}
+		return t
+	}
+	frac := func(r float64) float64 {
+		s := 0.0
+		for p := range l {
+			st := at(p) + 2*r/C
+			// Transmit pulses that can overlap [st, st+τ): t_q in (st−τ, st+τ).
+			q := p + l*int(math.Floor((st-tau-at(p))/cyc)) - l
+			for ; at(q) < st+tau; q++ {
+				if o := math.Min(at(q)+tau, st+tau) - math.Max(at(q), st); o > 0 {
+					s += o
+				}
+			}
+		}
+		return math.Min(s/(float64(l)*tau), 1)
+	}
+	best := math.Max(frac(lo), frac(hi))
+	for p := range l {
+		// Peaks: t_p + 2R/c = t_q for R in [lo, hi].
+		t0, t1 := at(p)+2*lo/C, at(p)+2*hi/C
+		q := p + l*int(math.Floor((t0-at(p))/cyc)) - l
+		for ; at(q) <= t1; q++ {
+			if t := at(q); t >= t0 {
+				best = math.Max(best, frac((t-at(p))*C/2))
+			}
+		}
+	}
+	return best
 }
 
 // DetectedFraction returns the fraction of map cells seen in at least M
@@ -228,6 +355,10 @@ func (b *BlindZoneMap) summary(w io.Writer, prefix string, u Units) {
 		n := s.Pulses[0]
 		if len(s.Pulses) > 1 {
 			n = s.Pulses[k]
+		}
+		if pat := s.stagger(k); pat != nil {
+			fmt.Fprintf(w, "%sCPI %d: stagger %s, %d pulses, unambiguous range %s (shortest PRI), first blind speed %s (λ/(2Δ), Δ %s)\n", prefix, k+1, staggerWords(pat), n, u.distance(dsp.UnambiguousRange(slices.Min(pat))), u.Format(QSpeed, staggerBlindSpeed(pat, lambda), 1), sec(dsp.NewSchedule(pat...).Delta))
+			continue
 		}
 		fmt.Fprintf(w, "%sCPI %d: PRI %s, %d pulses, unambiguous range %s, blind speed %s\n", prefix, k+1, sec(p), n, u.distance(dsp.UnambiguousRange(p)), u.Format(QSpeed, dsp.BlindSpeed(p, lambda), 1))
 	}

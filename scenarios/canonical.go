@@ -90,7 +90,11 @@ func (s *Scenario) canonicalRadar() ordered {
 	o.put("noise_figure_db", r.NoiseFigureDB, d.NoiseFigureDB)
 	o.put("system_loss_db", r.SystemLossDB, d.SystemLossDB)
 	o.put("sample_rate_hz", r.SampleRateHz, 2*s.Waveform.Bandwidth())
-	o.put("pri_s", r.PRIS, d.PRIS)
+	if r.Staggered() {
+		o = append(o, member{"pri_stagger_s", r.PRIStaggerS}) // pri_s: its shortest PRI
+	} else {
+		o.put("pri_s", r.PRIS, d.PRIS)
+	}
 	o.put("pulses", r.Pulses, d.Pulses)
 	o.put("window_start_m", r.WindowStartM, d.WindowStartM)
 	o.put("window_stop_m", r.WindowStopM, C*r.PRIS/2)

@@ -30,10 +30,14 @@ type ScheduleReport struct {
 
 // CPIReport is one CPI of a schedule.
 type CPIReport struct {
-	PRIS              float64     `json:"pri_s"`
-	Pulses            int         `json:"pulses"`
+	PRIS   float64 `json:"pri_s"`
+	Pulses int     `json:"pulses"`
+	// PRIStaggerS: a staggered CPI's PRIs (pri_s is then the shortest),
+	// and MeanPRIS their mean (added in version 2).
+	PRIStaggerS       []float64   `json:"pri_stagger_s,omitempty"`
+	MeanPRIS          *float64    `json:"mean_pri_s,omitempty"`
 	UnambiguousRangeM float64     `json:"unambiguous_range_m"`
-	BlindSpeedMPS     float64     `json:"blind_speed_mps"` // λ/(2·PRI)
+	BlindSpeedMPS     float64     `json:"blind_speed_mps"` // λ/(2·PRI); a stagger's λ/(2Δ)
 	Targets           []CPITarget `json:"targets"`
 	Warnings          []string    `json:"warnings"`
 }
@@ -134,6 +138,7 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 	rep := &ScheduleReport{N: n, M: sched.M}
 	lambda := s.Radar.Wavelength()
 	pris := make([]float64, n)
+	var gridPRIs, rangePRIs []float64 // every PRI of every CPI; the uniform CPIs' PRIs
 	type seen struct {
 		apparent, rate float64
 		hasRate        bool
@@ -155,6 +160,10 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 		t := s.cpiScenario(k)
 		r := t.Radar
 		pris[k] = r.PRIS
+		gridPRIs = append(gridPRIs, r.pattern()...)
+		if !r.Staggered() {
+			rangePRIs = append(rangePRIs, r.PRIS)
+		}
 		allDoppler = allDoppler && r.Pulses > 1
 		m, err := newModel(t, base)
 		if err != nil {
@@ -180,6 +189,11 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 		}
 		cr := CPIReport{PRIS: r.PRIS, Pulses: r.Pulses, UnambiguousRangeM: dsp.UnambiguousRange(r.PRIS), BlindSpeedMPS: dsp.BlindSpeed(r.PRIS, lambda),
 			Warnings: append([]string{}, m.warnings...)}
+		if r.Staggered() {
+			mean := r.slowPRI()
+			cr.PRIStaggerS, cr.MeanPRIS = r.PRIStaggerS, &mean
+			cr.BlindSpeedMPS = staggerBlindSpeed(r.PRIStaggerS, lambda)
+		}
 		gate := C / (2 * m.fs)
 		for j, tr := range trs {
 			g := sc.targets[j]
@@ -201,7 +215,7 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 			if sc.train != nil && tr.ApparentRangeRateMPS != nil {
 				// The Doppler bin's range rate: the measured one.
 				nb := float64(sc.train.plan.Bins())
-				w := lambda / (2 * r.PRIS * nb)
+				w := lambda / (2 * r.slowPRI() * nb)
 				q := tidy(w * math.Round(*tr.ApparentRangeRateMPS/w))
 				rt, rateTol = &q, w/2
 				ct.ApparentRangeRateMPS = rt
@@ -214,7 +228,10 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 			if ct.Detected {
 				detected[j]++
 			}
-			if ct.Detected && ct.ApparentRangeM != nil {
+			// A staggered CPI's measurements are not unfolded: its folded
+			// echoes land at a different range in each sweep, and its
+			// Doppler bins do not fold by one PRF (detection.md §16).
+			if ct.Detected && ct.ApparentRangeM != nil && !r.Staggered() {
 				o := &seen{apparent: *ct.ApparentRangeM, rateTol: rateTol}
 				if rt != nil {
 					o.rate, o.hasRate = *rt, true
@@ -225,11 +242,12 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 		}
 		rep.CPIs = append(rep.CPIs, cr)
 	}
-	grid := dsp.NewSchedule(pris...)
-	if ru := grid.UnambiguousRange(); !math.IsInf(ru, 0) {
-		rep.UnambiguousRangeM = &ru
+	if len(rangePRIs) > 0 {
+		if ru := dsp.NewSchedule(rangePRIs...).UnambiguousRange(); !math.IsInf(ru, 0) {
+			rep.UnambiguousRangeM = &ru
+		}
 	}
-	if v := grid.FirstBlindSpeed(lambda); allDoppler && !math.IsInf(v, 0) {
+	if v := dsp.NewSchedule(gridPRIs...).FirstBlindSpeed(lambda); allDoppler && !math.IsInf(v, 0) {
 		rep.FirstBlindSpeedMPS = &v
 	}
 	gate := C / (2 * base.fs)
@@ -268,6 +286,15 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 			verdict += " (" + missed + ")"
 		}
 		why = append(why, verdict+".")
+		var stag []string
+		for k, c := range rep.CPIs {
+			if c.PRIStaggerS != nil && c.Targets[j].Detected {
+				stag = append(stag, fmt.Sprint(k+1))
+			}
+		}
+		if t.Kind == TargetPoint && len(stag) > 0 {
+			why = append(why, fmt.Sprintf("Staggered CPI %s counts towards %d-of-%d but is not unfolded (its folded echoes land at a different range in each sweep).", strings.Join(stag, ", "), sched.M, n))
+		}
 		if t.Kind == TargetPoint && len(ranges) == 1 {
 			why = append(why, fmt.Sprintf("One CPI alone cannot resolve its range (%s, folded by multiples of %s) or its range rate.", where[0], km(dsp.UnambiguousRange(rpris[0]))))
 		}

@@ -115,7 +115,11 @@ func suggestSchedule(ctx context.Context, base *model, sc *scene, j int, cause s
 		return add + "."
 	}
 	// A PRF change alone: a PRI long enough to hold the folded target, or
-	// one of the PRIs above for a blind or eclipsed one.
+	// one of the PRIs above for a blind or eclipsed one. A staggered CPI
+	// keeps its pattern: no single PRI replaces it here.
+	if s.Radar.Staggered() {
+		return ""
+	}
 	if cause == "folded" {
 		p := niceSeconds(1.05 * 2 * g.rangeM / C)
 		tries = []float64{p}

@@ -205,6 +205,7 @@ func TestReportFormatDocumentsEveryField(t *testing.T) {
 		{"report: target", reflect.TypeFor[TargetReport]()},
 		{"report: engine", reflect.TypeFor[EngineInfo]()},
 		{"report: schedule", reflect.TypeFor[ScheduleReport]()},
+		{"report: stagger", reflect.TypeFor[StaggerReport]()},
 		{"report: cpi", reflect.TypeFor[CPIReport]()},
 		{"report: cpitarget", reflect.TypeFor[CPITarget]()},
 		{"report: scheduletarget", reflect.TypeFor[ScheduleTarget]()},

@@ -36,6 +36,9 @@ func Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 // Engine is not safe for concurrent use.
 type Engine struct {
 	last *model
+	// uncached turns the memo of detection probabilities off (pdmemo.go),
+	// for the test that compares memoised results with fresh ones.
+	uncached bool
 }
 
 // Evaluate is the package function Evaluate with reuse of the previous
@@ -44,6 +47,9 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	m, err := newModel(s, e.last)
 	if err != nil {
 		return nil, err
+	}
+	if e.uncached {
+		m.memo = nil
 	}
 	// The window's compression plan is kept across frames by the Engine
 	// alone: suggestions build models of their own and must not share it.
@@ -90,6 +96,7 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	}
 	res.Report.FalseAlarms, res.Report.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	res.Report.Warnings = append([]string{}, m.warnings...)
+	res.Report.Stagger = staggerReport(s)
 	res.Report.Scan = scanReport(s)
 	if s.Radar.Schedule != nil {
 		if res.Report.Schedule, err = evalSchedule(ctx, s, m); err != nil {
@@ -116,6 +123,9 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	if err != nil {
 		return nil, err
 	}
+	if e.uncached {
+		m.memo = nil
+	}
 	sc, err := newScene(ctx, m)
 	if err != nil {
 		return nil, err
@@ -124,6 +134,7 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	rep.Targets = sc.targetReports(ctx, m, false)
 	rep.FalseAlarms, rep.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	rep.Warnings = append([]string{}, m.warnings...)
+	rep.Stagger = staggerReport(s)
 	rep.Scan = scanReport(s)
 	if s.Radar.Schedule != nil {
 		if rep.Schedule, err = evalSchedule(ctx, s, m); err != nil {
@@ -161,14 +172,14 @@ func (m *model) waveformReport() WaveformReport {
 		StraddleLossMeanDB:     straddleMean,
 		BlindRangeM:            C * tau / 2,
 		UnambiguousRangeM:      C * r.PRIS / 2,
-		UnambiguousVelocityMPS: m.lambda / (4 * r.PRIS),
+		UnambiguousVelocityMPS: m.lambda / (4 * r.slowPRI()),
 	}
 	if fig.Sidelobes {
 		pslr, islr := fig.PSLRDB, fig.ISLRDB
 		rep.PSLRDB, rep.ISLRDB = &pslr, &islr
 	}
 	if r.Pulses > 1 {
-		dres := 1 / (float64(r.Pulses) * r.PRIS)
+		dres := 1 / (float64(r.Pulses) * r.slowPRI())
 		vres := dres * m.lambda / 2
 		rep.DopplerResolutionHz, rep.VelocityResolutionMPS = &dres, &vres
 	}
@@ -484,7 +495,7 @@ func (sc *scene) newClutterField(g *tgt) *clutterField {
 	if sd := g.t.VelocitySpreadMPS; sd > 0 {
 		vr := streamOf(m.s.Seed, g.t.ID, 0x5bead)
 		for i := range f.dphi {
-			f.dphi[i] = -4 * math.Pi * sd * vr.NormFloat64() * m.s.Radar.PRIS / m.lambda
+			f.dphi[i] = -4 * math.Pi * sd * vr.NormFloat64() * m.s.Radar.slowPRI() / m.lambda
 		}
 	}
 	rev := make([]complex128, np)
@@ -515,14 +526,17 @@ func (f *clutterField) add(echo []complex128, p int) {
 	clear(f.x)
 	for i, r := range f.rho {
 		if f.dphi[i] != 0 && p > 0 {
-			r *= cmplx.Rect(1, f.dphi[i]*float64(p))
+			r *= cmplx.Rect(1, f.dphi[i]*f.slow(p))
 		}
 		f.x[np-1+i] = r
 	}
 	f.corr.Apply(f.y, f.x)
 	// y[t] = Σ_i ρ[i]·pulse[t−i]: the echo at window sample dlo + t. The
 	// mean Doppler advances the carrier phase by 2π·f_d·PRI per pulse.
-	t0 := float64(p) * m.s.Radar.PRIS
+	t0 := m.s.Radar.pulseTime(p)
+	if !m.s.Radar.Staggered() {
+		t0 = float64(p) * m.s.Radar.PRIS
+	}
 	var psi []float64
 	if f.pn != nil {
 		psi = f.pn.phases(m.s.Seed, f.g.t.ID, p)

@@ -18,7 +18,7 @@ var (
 	sweeps        = []string{"up", "down"}
 
 	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "front_end", "propagation", "view"}
-	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg", "antenna_height_m", "schedule", "scan"}
+	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pri_stagger_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg", "antenna_height_m", "schedule", "scan"}
 	receiverFields = []string{"filter", "filter_length_factor", "taps", "window", "detector", "doppler_window", "mti"}
 	mtis           = []string{MTINone, MTITwoPulse, MTIThreePulse}
 )
@@ -73,7 +73,8 @@ func (o *object) decodeRadar(r *Radar) {
 	if o.float("sample_rate_hz", &r.SampleRateHz) && r.SampleRateHz == 0 {
 		o.errs.add(o.sub("sample_rate_hz"), "0 is not valid: must be at least the waveform bandwidth")
 	}
-	o.float("pri_s", &r.PRIS)
+	priGiven := o.float("pri_s", &r.PRIS)
+	o.decodeStagger(&r.PRIStaggerS, &r.PRIS, priGiven)
 	o.int("pulses", &r.Pulses)
 	o.float("window_start_m", &r.WindowStartM)
 	if o.float("window_stop_m", &r.WindowStopM) && r.WindowStopM == 0 {

@@ -16,6 +16,7 @@ func FuzzDecode(f *testing.F) {
 	f.Add([]byte(`{"version":2,"waveform":{"kind":"phase_code","binary":"+-+","chip_s":1e-6},"view":{"a":[1,{"b":null}]}}`))
 	f.Add([]byte(`{"version":2,"waveform":{"kind":"samples","sample_rate_hz":2e6,"bandwidth_hz":1e6,"i":[1,0.5,-1],"q":[0,1,0]},"receiver":{"filter":"custom","taps":{"amplitude":[1,1],"phase_deg":[0,90]}}}`))
 	f.Add([]byte(`{"version":2,"radar":{"pri_s":1e-3,"pulses":8,"schedule":{"cpis":[{"pri_s":1.1e-3},{"pri_s":9e-4,"pulses":4}],"m":2}},"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e6}}`))
+	f.Add([]byte(`{"version":2,"radar":{"pulses":8,"pri_stagger_s":[1e-4,1.25e-4],"schedule":{"cpis":[{"pri_stagger_s":[1.1e-4,1.3e-4,1.2e-4]}],"m":1}},"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e6}}`))
 	f.Add([]byte(`{"version":2,"radar":{"pri_s":1e-3,"pulses":8,"scan":{"rate_deg_s":60,"plane":"elevation","pattern":"sinc"}},"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e6}}`))
 	f.Fuzz(func(t *testing.T, data []byte) {
 		s, err := Decode(data)

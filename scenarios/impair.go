@@ -57,7 +57,7 @@ type frontEnd struct {
 
 func newFrontEnd(m *model) *frontEnd {
 	f := m.s.FrontEnd
-	fe := &frontEnd{spec: f, on: f.Any(), mu: 1, prfHalf: 1 / (2 * m.s.Radar.PRIS), skirtMin: 1e-4}
+	fe := &frontEnd{spec: f, on: f.Any(), mu: 1, prfHalf: 1 / (2 * m.s.Radar.slowPRI()), skirtMin: 1e-4}
 	if f.PhaseNoise() {
 		fe.pnOn, fe.pn = true, f.profile()
 	}
@@ -236,7 +236,7 @@ func (sc *scene) pointExtras(j int, g *tgt, lp *localPlan, b int, pre, lin []com
 		for i, v := range pre {
 			x[i] = fe.nu * cmplx.Conj(v)
 		}
-		sc.addExtra(extra{owner: j, cause: causeImage, resp: sc.localResponse(lp, x, b), tones: []tone{{-g.fd * m.s.Radar.PRIS, 1}}})
+		sc.addExtra(extra{owner: j, cause: causeImage, resp: sc.localResponse(lp, x, b), tones: []tone{{-g.fd * m.s.Radar.slowPRI(), 1}}})
 	}
 	if fe.pnOn {
 		sc.pointSkirt(j, g, lp, b)
@@ -287,7 +287,7 @@ func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 	var slow []tone
 	slowVar := 0.0
 	if m.s.Radar.Pulses > 1 {
-		slow, slowVar = fe.slowTones(g.fd, m.s.Radar.PRIS, T, m.s.Radar.Pulses)
+		slow, slowVar = fe.slowTones(g.fd, m.s.Radar.slowPRI(), T, m.s.Radar.Pulses)
 	}
 	if g.amp == 0 || (fast+slowVar)*g.amp*g.amp*m.noiseGain < fe.skirtMin {
 		return
@@ -537,7 +537,7 @@ func (fe *frontEnd) newPNEcho(m *model, g *tgt, np int, seed int64) *pnEcho {
 		// quarter of a Doppler bin apart as the analysis's cells do
 		// (a record of np pulses alone would put every line on a bin).
 		ns := dsp.FFTLen(4 * np)
-		bins := dsp.PhaseNoiseBins(ns, 1/m.s.Radar.PRIS, func(f1, f2 float64) float64 {
+		bins := dsp.PhaseNoiseBins(ns, 1/m.s.Radar.slowPRI(), func(f1, f2 float64) float64 {
 			return fe.pn.EchoBand(math.Min(f1, fe.prfHalf), math.Min(f2, fe.prfHalf), T)
 		})
 		p.slow = dsp.PhaseNoiseDraw(make([]float64, ns), bins, streamOf(seed, g.t.ID, 0x9e51))[:np]
@@ -643,7 +643,7 @@ func (sc *scene) distributedExtras(j int, g *tgt, lp *localPlan, density []float
 		for i := range kern {
 			kern[i] *= nu2 / mu2
 		}
-		sc.addExtra(extra{owner: j, cause: causeImage, resp: sc.convolveDensity(density, lo, kern), tones: []tone{{-g.fd * m.s.Radar.PRIS, 1}}})
+		sc.addExtra(extra{owner: j, cause: causeImage, resp: sc.convolveDensity(density, lo, kern), tones: []tone{{-g.fd * m.s.Radar.slowPRI(), 1}}})
 	}
 	if !fe.pnOn {
 		return
@@ -657,7 +657,7 @@ func (sc *scene) distributedExtras(j int, g *tgt, lp *localPlan, density []float
 	var slow []tone
 	slowVar := 0.0
 	if m.s.Radar.Pulses > 1 {
-		slow, slowVar = fe.slowTones(g.fd, m.s.Radar.PRIS, T, m.s.Radar.Pulses)
+		slow, slowVar = fe.slowTones(g.fd, m.s.Radar.slowPRI(), T, m.s.Radar.Pulses)
 	}
 	_, peak := g.resp.peak()
 	if (fast+slowVar)*peak < fe.skirtMin {

@@ -20,20 +20,38 @@ const maxLinkChars = MaxDocumentBytes/3*4 + 4
 // followed by base64url (no padding) of the raw DEFLATE compression of its
 // canonical JSON. Prepend the server's origin for an absolute link.
 func Link(s *Scenario) (string, error) {
+	return new(Linker).Link(s)
+}
+
+// Linker makes share links (Link) one after another, reusing its
+// compressor: a DEFLATE writer holds about a megabyte of tables, which a
+// session making a link per frame of a drag would otherwise allocate
+// every frame. The zero Linker is ready to use; it is not safe for
+// concurrent use.
+type Linker struct {
+	zw  *flate.Writer
+	buf bytes.Buffer
+}
+
+// Link is the package function Link.
+func (l *Linker) Link(s *Scenario) (string, error) {
 	data, err := Canonical(s)
 	if err != nil {
 		return "", fmt.Errorf("encode scenario: %w", err)
 	}
-	var buf bytes.Buffer
-	zw, err := flate.NewWriter(&buf, flate.BestCompression)
-	if err != nil {
+	l.buf.Reset()
+	if l.zw == nil {
+		if l.zw, err = flate.NewWriter(&l.buf, flate.BestCompression); err != nil {
+			return "", err
+		}
+	} else {
+		l.zw.Reset(&l.buf)
+	}
+	l.zw.Write(data)
+	if err := l.zw.Close(); err != nil {
 		return "", err
 	}
-	zw.Write(data)
-	if err := zw.Close(); err != nil {
-		return "", err
-	}
-	return "/" + LinkPrefix + base64.RawURLEncoding.EncodeToString(buf.Bytes()), nil
+	return "/" + LinkPrefix + base64.RawURLEncoding.EncodeToString(l.buf.Bytes()), nil
 }
 
 // IsLink reports whether ref looks like a share link: a URL or fragment

@@ -81,3 +81,28 @@ func mustDemo(t testing.TB) *Scenario {
 	}
 	return d.Scenario
 }
+
+// TestLinkerReuse: links made one after another by one Linker (its
+// compressor reset between them) are those Link makes afresh.
+func TestLinkerReuse(t *testing.T) {
+	demos, err := Demos()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var l Linker
+	for range 2 {
+		for _, d := range demos {
+			got, err := l.Link(d.Scenario)
+			if err != nil {
+				t.Fatal(err)
+			}
+			want, err := Link(d.Scenario)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if got != want {
+				t.Errorf("%s: reused linker gives %.60s…, fresh %.60s…", d.Name, got, want)
+			}
+		}
+	}
+}

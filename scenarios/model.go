@@ -37,6 +37,7 @@ type model struct {
 	processed []bool   // per gate: its sample time lies in no transmit interval
 	cfar      *dsp.CFAR
 	rho       []complex128 // noise correlation of the reference by lag, up to the CFAR span
+	memo      *pdMemo      // detection probabilities, shared with the models that follow (pdmemo.go)
 }
 
 // dopFigure is the Doppler response of the reference at one Doppler shift.
@@ -160,6 +161,11 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 		t0:     2 * r.WindowStartM / C,
 		unambM: C * r.PRIS / 2,
 	}
+	if prev != nil {
+		m.memo = prev.memo
+	} else {
+		m.memo = new(pdMemo)
+	}
 	m.noiseW = dsp.NoisePower(dsp.FromDB(r.NoiseFigureDB), m.fs)
 	m.gasDBkm = s.Propagation.gasGamma(r.CarrierHz)
 	if sameWave && prev.fs == m.fs && sameTaps(s.Receiver.Taps, prev.s.Receiver.Taps) {
@@ -247,7 +253,7 @@ func sampleTaps(taps []complex128, lead int, chip, fs float64) ([]complex128, in
 // [⌈(q·PRI − t0)·fs⌉, ⌈(q·PRI + τ − t0)·fs⌉).
 func (m *model) record() {
 	m.recLen = m.n + max(len(m.ref)-1-m.lead, 0)
-	pri := m.s.Radar.PRIS
+	pri := m.s.Radar.blankPRI()
 	m.blanks = m.blanks[:0]
 	tEnd := m.t0 + float64(m.recLen)/m.fs
 	for q := max(math.Floor(m.t0/pri)-1, 0); q*pri < tEnd; q++ {
@@ -294,7 +300,7 @@ func (m *model) blanked(j int) bool {
 // start after the transmit edge (s) and lasts τ which falls outside every
 // transmit interval [q·PRI, q·PRI + τ).
 func (m *model) heardFraction(start float64) float64 {
-	pri, tau := m.s.Radar.PRIS, m.tau
+	pri, tau := m.s.Radar.blankPRI(), m.tau
 	lost := 0.0
 	for q := math.Floor(start/pri) - 1; q*pri < start+tau; q++ {
 		lo, hi := math.Max(q*pri, start), math.Min(q*pri+tau, start+tau)

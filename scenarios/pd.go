@@ -29,6 +29,9 @@ type pdTest struct {
 	// beyond is set for a steady target behind a CFAR whose multiplier
 	// dsp's series does not accept: Pd is then pdBeyond's average.
 	beyond bool
+	// memo keeps pd's and requiredSNR's results across evaluations
+	// (pdmemo.go); nil computes them afresh.
+	memo *pdMemo
 }
 
 // pdTestFor returns the test of a target of fluctuation fluct whose
@@ -67,7 +70,7 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 	if d.Kind != DetectorFixed && v.cells == 0 {
 		return pdTest{}, false
 	}
-	t := pdTest{det: det, snr: v.peak}
+	t := pdTest{det: det, snr: v.peak, memo: m.memo}
 	if det.Validate() != nil {
 		// Too few training cells for the series: a steady target's Pd
 		// is still the average of pdavg.go.
@@ -135,6 +138,11 @@ func (t pdTest) pdCorrelated(snr, r float64) float64 {
 // requiredSNR returns the SNR (linear) at which t reaches pd against noise
 // alone.
 func (t pdTest) requiredSNR(pd float64) (float64, error) {
+	return t.memo.requiredSNR(t, pd)
+}
+
+// requiredSNRFresh is requiredSNR computed without the memo.
+func (t pdTest) requiredSNRFresh(pd float64) (float64, error) {
 	if t.ev == nil && !t.beyond {
 		return t.det.RequiredSNR(pd)
 	}
@@ -188,11 +196,17 @@ const pdBelow = 1e-9
 
 // pd returns t's Pd against a threshold r > 0 times the one
 // the detector sets against noise alone (the scene's extra power in the
-// training cells, or a neighbour's power at the cell). The raised
-// threshold is the nominal one of a detector of smaller Pfa, so Pd is the
+// training cells, or a neighbour's power at the cell; r < 1 where
+// pdInCell rescales the test). The scaled threshold is the nominal one of
+// a detector of another Pfa, so Pd is the
 // exact series at that Pfa. ok is false when the series cannot reach the
 // raised threshold and Pd is not below pdBelow there.
 func (t pdTest) pd(r float64) (float64, bool) {
+	return t.memo.pd(t, r)
+}
+
+// pdFresh is pd computed without the memo.
+func (t pdTest) pdFresh(r float64) (float64, bool) {
 	if !(r > 0) || math.IsInf(r, 1) {
 		return 0, false
 	}

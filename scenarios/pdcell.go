@@ -80,6 +80,7 @@ func (t pdTest) pdInCell(others []dsp.CellEcho, r float64) (float64, bool) {
 	echoes = append(echoes, others...)
 	steady := t
 	steady.det.Swerling = dsp.SwerlingNone
+	steady.memo = nil // dozens of phase points per call: not worth keeping (pdmemo.go)
 	p, err := dsp.PdInCell(echoes, func(x, s float64) (float64, bool) {
 		return steady.withSNR(x).pd(r * s)
 	})

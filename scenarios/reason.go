@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"slices"
 
 	"github.com/pulsewright/pulsewright/dsp"
 )
@@ -318,6 +319,7 @@ func (s *Scenario) clone() *Scenario {
 	t := *s
 	t.Targets = append([]Target(nil), s.Targets...)
 	t.Radar.Schedule = s.Radar.Schedule.clone()
+	t.Radar.PRIStaggerS = slices.Clone(s.Radar.PRIStaggerS)
 	t.Radar.Scan = s.Radar.Scan.clone()
 	t.Waveform.PhasesDeg = append([]float64(nil), s.Waveform.PhasesDeg...)
 	if s.Waveform.PhasesDeg == nil {

@@ -29,6 +29,9 @@ type Report struct {
 	// Schedule is the evaluation of every CPI of radar.schedule and their
 	// M-of-N combination; nil without a schedule.
 	Schedule *ScheduleReport `json:"schedule,omitempty"`
+	// Stagger describes the radar's own CPI's staggered PRI train (added
+	// in version 2); nil for a uniform train.
+	Stagger *StaggerReport `json:"stagger,omitempty"`
 	// Scan holds the figures of radar.scan (scan.go); nil for a staring
 	// beam. Added in version 2.
 	Scan *ScanReport `json:"scan,omitempty"`

@@ -84,6 +84,19 @@ func randomScenario(r *rand.Rand) *Scenario {
 	if r.IntN(3) == 0 {
 		s.Radar.WindowStopM = C * s.Radar.PRIS / 2
 	}
+	if r.IntN(5) == 0 {
+		// A stagger on a grid whose shortest PRI is pri_s, so the window
+		// above still ends within it.
+		d := s.Radar.PRIS / float64(4+r.IntN(5))
+		n0 := math.Round(s.Radar.PRIS / d)
+		s.Radar.PRIS = n0 * d
+		s.Radar.PRIStaggerS = []float64{s.Radar.PRIS}
+		for range 1 + r.IntN(3) {
+			s.Radar.PRIStaggerS = append(s.Radar.PRIStaggerS, (n0+float64(1+r.IntN(4)))*d)
+		}
+		s.Radar.Pulses = max(s.Radar.Pulses, 2)
+		s.Radar.WindowStopM = math.Min(s.Radar.WindowStopM, C*s.Radar.PRIS/2)
+	}
 	if r.IntN(2) == 0 {
 		s.Receiver.Window = defaultWindow(pick(windowKinds))
 		if s.Receiver.Window.Kind == WindowTaylor {

@@ -121,6 +121,9 @@ func (m *model) scanGains() []float64 {
 	times := make([]float64, r.Pulses)
 	for p := range times {
 		times[p] = float64(p) * r.PRIS
+		if r.Staggered() {
+			times[p] = r.pulseTime(p) // a stagger's true pulse times
+		}
 	}
 	mid := (times[0] + times[len(times)-1]) / 2
 	per := r.Scan.RateDegS / r.scanBeamwidthDeg() // beamwidths per second

@@ -67,12 +67,16 @@ type Radar struct {
 	NoiseFigureDB  float64 `json:"noise_figure_db"`  // receiver noise figure F, dB
 	SystemLossDB   float64 `json:"system_loss_db"`   // all other losses L_s, dB
 	SampleRateHz   float64 `json:"sample_rate_hz"`   // complex baseband rate, Hz; also the noise bandwidth
-	PRIS           float64 `json:"pri_s"`            // pulse repetition interval, s
-	Pulses         int     `json:"pulses"`           // pulses in one coherent processing interval
-	WindowStartM   float64 `json:"window_start_m"`   // first range of the receive window, m
-	WindowStopM    float64 `json:"window_stop_m"`    // last range of the receive window, m
-	BeamwidthAzDeg float64 `json:"beamwidth_az_deg"` // 3-dB azimuth beamwidth, degrees
-	BeamwidthElDeg float64 `json:"beamwidth_el_deg"` // 3-dB elevation beamwidth, degrees
+	PRIS           float64 `json:"pri_s"`            // pulse repetition interval, s (with a stagger: its shortest PRI)
+	// PRIStaggerS lists the PRIs (s) the pulses use in turn, pulse to
+	// pulse (a staggered train, added in format version 2); nil for a
+	// uniform train.
+	PRIStaggerS    []float64 `json:"pri_stagger_s,omitempty"`
+	Pulses         int       `json:"pulses"`           // pulses in one coherent processing interval
+	WindowStartM   float64   `json:"window_start_m"`   // first range of the receive window, m
+	WindowStopM    float64   `json:"window_stop_m"`    // last range of the receive window, m
+	BeamwidthAzDeg float64   `json:"beamwidth_az_deg"` // 3-dB azimuth beamwidth, degrees
+	BeamwidthElDeg float64   `json:"beamwidth_el_deg"` // 3-dB elevation beamwidth, degrees
 	// AntennaHeightM is the antenna's height above the surface, m; 0 when
 	// absent (no surface geometry: no grazing angle, no horizon).
 	AntennaHeightM float64 `json:"antenna_height_m,omitempty"`

@@ -17,8 +17,11 @@ type Schedule struct {
 
 // CPI is one coherent processing interval of a schedule.
 type CPI struct {
-	PRIS   float64 `json:"pri_s"`  // pulse repetition interval, s
+	PRIS   float64 `json:"pri_s"`  // pulse repetition interval, s (with a stagger: its shortest PRI)
 	Pulses int     `json:"pulses"` // pulses in the CPI; default radar.pulses
+	// PRIStaggerS lists the PRIs (s) the CPI's pulses use in turn
+	// (added in format version 2); nil for a uniform train.
+	PRIStaggerS []float64 `json:"pri_stagger_s,omitempty"`
 }
 
 // MaxCPIs bounds a schedule: N, the radar's own CPI included.
@@ -26,7 +29,7 @@ const MaxCPIs = 16
 
 var (
 	scheduleFields = []string{"cpis", "m"}
-	cpiFields      = []string{"pri_s", "pulses"}
+	cpiFields      = []string{"pri_s", "pri_stagger_s", "pulses"}
 )
 
 // N returns the number of CPIs, the radar's own included.
@@ -59,8 +62,11 @@ func (o *object) decodeSchedule(r *Radar) {
 		for i, raw := range rawElements(v) {
 			c := CPI{Pulses: r.Pulses}
 			if e, ok := newObject(fmt.Sprintf("%s[%d]", o.sub("cpis"), i), raw, o.errs); ok {
-				e.require("pri_s", "the pulse repetition interval in s")
-				e.float("pri_s", &c.PRIS)
+				if !e.has("pri_stagger_s") {
+					e.require("pri_s", "the pulse repetition interval in s (or pri_stagger_s, the PRIs of a stagger)")
+				}
+				given := e.float("pri_s", &c.PRIS)
+				e.decodeStagger(&c.PRIStaggerS, &c.PRIS, given)
 				e.int("pulses", &c.Pulses)
 				e.finish(cpiFields...)
 			}
@@ -85,7 +91,12 @@ func (s *Scenario) validateSchedule(c checker, waveOK bool) {
 	taps := map[string]int{MTITwoPulse: 2, MTIThreePulse: 3}[s.Receiver.MTI]
 	for i, cpi := range sc.CPIs {
 		p := fmt.Sprintf("radar.schedule.cpis[%d]", i)
-		priOK := waveOK && c.above(p+".pri_s", cpi.PRIS, s.Waveform.PulseWidth(), 1)
+		var priOK bool
+		if len(cpi.PRIStaggerS) > 0 { // checked one by one in validateStagger
+			priOK = waveOK && staggerInLimits(cpi.PRIStaggerS, s.Waveform.PulseWidth())
+		} else {
+			priOK = waveOK && c.above(p+".pri_s", cpi.PRIS, s.Waveform.PulseWidth(), 1)
+		}
 		n := 0
 		if sized && priOK {
 			// The CPI's own window (cpiScenario): its default stop follows its PRI.
@@ -93,6 +104,9 @@ func (s *Scenario) validateSchedule(c checker, waveOK bool) {
 				c.errs.add(p+".pri_s", "%g s gives this CPI a receive window of %d samples (window_stop_m follows each CPI's PRI by default); the limit is %d", cpi.PRIS, n, MaxWindowSamples)
 				n = 0
 			}
+		}
+		if c.intBetween(p+".pulses", cpi.Pulses, 1, 1024) && !c.errs.has("radar.window_stop_m") {
+			c.validateStagger(p+".pri_stagger_s", cpi.PRIStaggerS, s.Waveform.PulseWidth(), cpi.Pulses, s.cpiScenario(i+1).Radar.WindowStopM, waveOK)
 		}
 		if c.intBetween(p+".pulses", cpi.Pulses, 1, 1024) {
 			switch {
@@ -109,7 +123,11 @@ func canonicalSchedule(r Radar) ordered {
 	sc := r.Schedule
 	cpis := make([]ordered, len(sc.CPIs))
 	for i, c := range sc.CPIs {
-		cpis[i] = ordered{{"pri_s", c.PRIS}}
+		if len(c.PRIStaggerS) > 0 {
+			cpis[i] = ordered{{"pri_stagger_s", c.PRIStaggerS}}
+		} else {
+			cpis[i] = ordered{{"pri_s", c.PRIS}}
+		}
 		cpis[i].put("pulses", c.Pulses, r.Pulses)
 	}
 	o := ordered{{"cpis", cpis}}
@@ -132,6 +150,6 @@ func (s *Scenario) cpiScenario(k int) *Scenario {
 	if s.Radar.WindowStopM == C*s.Radar.PRIS/2 {
 		t.Radar.WindowStopM = C * c.PRIS / 2
 	}
-	t.Radar.PRIS, t.Radar.Pulses = c.PRIS, c.Pulses
+	t.Radar.PRIS, t.Radar.Pulses, t.Radar.PRIStaggerS = c.PRIS, c.Pulses, c.PRIStaggerS
 	return t
 }

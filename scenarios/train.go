@@ -30,6 +30,13 @@ type train struct {
 	gain [][]float64 // gain[j][bin]: target j's power per bin for unit single-pulse power, re noise per bin
 	cf2  *dsp.CFAR2D // the map's detector, kept with the multipliers it has solved
 	cfOK bool
+	// T is the slow-time unit, s: the PRI, or a stagger's mean PRI;
+	// times the pulse times in units of T for a stagger (nil: uniform).
+	T     float64
+	times []float64
+	// groups[j]: point target j's echoes on a staggered CPI's map (nil
+	// otherwise, when gain[j] times its response is its map power).
+	groups [][]staggerGroup
 	// radar.scan: each pulse's two-way voltage gain on a point target
 	// (nil: staring), its power, and each target's scan loss on the map,
 	// dB (nil: staring).
@@ -64,8 +71,10 @@ func coherentFraction(fluct string) float64 {
 
 func newTrain(m *model, sc *scene) *train {
 	r := m.s.Radar
-	tr := &train{m: m, sc: sc, plan: dsp.NewSlowTimePlan(r.Pulses, mtiTaps(m.s.Receiver.MTI), dspWindow(m.s.Receiver.DopplerWindow))}
+	tr := &train{m: m, sc: sc, T: r.slowPRI(), times: staggerTimes(r)}
+	tr.plan = tr.newPlan()
 	nb := tr.plan.Bins()
+	tr.groups = make([][]staggerGroup, len(sc.targets))
 	if tr.scanA = m.scanGains(); tr.scanA != nil {
 		tr.scanPow = make([]float64, len(tr.scanA))
 		for i, a := range tr.scanA {
@@ -75,8 +84,15 @@ func newTrain(m *model, sc *scene) *train {
 	}
 	for j, g := range sc.targets {
 		gain := make([]float64, nb)
-		fdT := g.fd * r.PRIS
+		fdT := g.fd * tr.T
 		switch {
+		case g.t.Kind == TargetPoint && tr.times != nil:
+			// gain[j]: the gain of the group its map peak belongs to (the
+			// integrated SNR's); power and peak use every group.
+			tr.groups[j] = tr.staggerGroups(j, coherentFraction(g.t.Fluctuation))
+			if i := tr.peakGroup(j); i >= 0 {
+				copy(gain, tr.groups[j][i].gain)
+			}
 		case g.t.Kind == TargetPoint:
 			c := coherentFraction(g.t.Fluctuation)
 			tone := tr.plan.ToneResponse(nil, fdT)
@@ -97,7 +113,7 @@ func newTrain(m *model, sc *scene) *train {
 			}
 		default:
 			// Gaussian Doppler spectrum of rms width 2σv/λ, as 33 tones.
-			sd := 2 * g.t.VelocitySpreadMPS / m.lambda * r.PRIS
+			sd := 2 * g.t.VelocitySpreadMPS / m.lambda * tr.T
 			if sd*float64(nb) < 0.05 {
 				tr.plan.ToneResponse(gain, fdT)
 				break
@@ -130,7 +146,7 @@ func newTrain(m *model, sc *scene) *train {
 		if g.t.Kind != TargetPoint {
 			continue
 		}
-		move := math.Abs(g.t.RangeRateMPS) * float64(r.Pulses) * r.PRIS
+		move := math.Abs(g.t.RangeRateMPS) * r.pulseTime(r.Pulses)
 		if move > m.resolution() {
 			m.warn("target %s moves %.1f m during the %d-pulse interval, more than the %.1f m resolution: its echo migrates across range cells and the map spreads it", g.t.ID, move, r.Pulses, m.resolution())
 		}
@@ -145,11 +161,21 @@ func (tr *train) incoherent() float64 { return 1 }
 
 // power returns target j's expected power at range cell k, Doppler bin d.
 func (tr *train) power(j, k, d int) float64 {
+	if gs := tr.groups[j]; gs != nil {
+		s := 0.0
+		for _, g := range gs {
+			s += tr.sc.targets[j].resp.at(k-g.shift) * g.gain[d]
+		}
+		return s
+	}
 	return tr.sc.targets[j].resp.at(k) * tr.gain[j][d]
 }
 
 // peak returns target j's peak cell on the map.
 func (tr *train) peak(j int) (k, d int, p float64) {
+	if tr.groups[j] != nil {
+		return tr.groupPeak(j)
+	}
 	k, pr := tr.sc.targets[j].resp.peakIn(tr.m.processed)
 	if k < 0 {
 		return -1, -1, 0
@@ -183,8 +209,10 @@ func (tr *train) cfar() *dsp.CFAR2D {
 	if d.Kind == DetectorOS {
 		c.Rank = 1 + int(math.Round(float64(d.Rank-1)/float64(d.TrainingCells)*float64(c2DCells(c))))
 	}
-	tr.cf2 = c
-	return c
+	// An equal detector of an earlier evaluation keeps the multipliers
+	// it has solved (pdmemo.go).
+	tr.cf2 = tr.m.memo.cfar2(c)
+	return tr.cf2
 }
 
 // valid reports whether range cell k is processed.
@@ -309,7 +337,7 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 }
 
 // binHz returns the Doppler frequency of bin d in Hz.
-func (tr *train) binHz(d int) float64 { return tr.plan.BinFrequency(d) / tr.m.s.Radar.PRIS }
+func (tr *train) binHz(d int) float64 { return tr.plan.BinFrequency(d) / tr.T }
 
 // simulate synthesises the pulses, compresses each, and forms the noisy
 // and the expected range–Doppler maps. Pulses, then range cells, are
@@ -372,6 +400,18 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 			t := float64(p) * r.PRIS
 			for j, g := range targets {
 				switch {
+				case g.t.Kind == TargetPoint && g.amp > 0 && tr.times != nil:
+					// A stagger: every echo of an earlier pulse that lands
+					// in this sweep, at its pulse's range and phase.
+					m.sweepEchoes(p, g.t.RangeM, g.t.RangeRateMPS, func(_ int, rq, delay float64) {
+						ph := cmplx.Rect(1, -4*math.Pi*math.Mod(rq/m.lambda, 1))
+						a := g.amp * math.Pow(g.t.RangeM/rq, 2) * amps[p][j]
+						if pns[j] != nil {
+							m.addPointEchoPN(echo, pns[j], g.t.ID, p, delay-m.t0, complex(a, 0)*ph, g.fd)
+						} else {
+							m.addPointEcho(echo, delay-m.t0, complex(a, 0)*ph, g.fd)
+						}
+					})
 				case g.t.Kind == TargetPoint && g.amp > 0:
 					rp := g.t.RangeM + g.t.RangeRateMPS*t
 					if rp <= 0 {
@@ -395,7 +435,11 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 				echo[i] += dsp.ComplexNormal(noise)
 			}
 			tr.sc.fe.receive(echo)
-			tr.sc.blank(echo, 0)
+			if tr.times != nil {
+				m.blankSweep(echo, p)
+			} else {
+				tr.sc.blank(echo, 0)
+			}
 			if p == 0 {
 				copy(echo0, echo[:n])
 			}
@@ -420,7 +464,7 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 	}
 	const chunk = 256
 	err = parallel(ctx, (n+chunk-1)/chunk, func(next func() (int, bool)) {
-		plan := dsp.NewSlowTimePlan(np, mtiTaps(m.s.Receiver.MTI), dspWindow(m.s.Receiver.DopplerWindow))
+		plan := tr.newPlan()
 		col := make([]complex128, np)
 		out := make([]complex128, nb)
 		block := make([]complex128, chunk*np) // block[i*np+p]: cell c·chunk+i, pulse p
@@ -445,6 +489,18 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 		return nil, nil, nil, err
 	}
 	for j, g := range targets {
+		if gs := tr.groups[j]; gs != nil {
+			for _, gr := range gs {
+				for i, pw := range g.resp.pow {
+					if k := g.resp.lo + i + gr.shift; k >= 0 && k < n {
+						for d := range nb {
+							lin[d][k] += float32(pw * gr.gain[d])
+						}
+					}
+				}
+			}
+			continue
+		}
 		for i, pw := range g.resp.pow {
 			k := g.resp.lo + i
 			for d := range nb {
@@ -503,12 +559,18 @@ func parallel(ctx context.Context, tasks int, work func(next func() (int, bool))
 func (tr *train) report(j int, v, single verdict, bin int, out *TargetReport) {
 	m, g := tr.m, tr.sc.targets[j]
 	r := m.s.Radar
-	prf := 1 / r.PRIS
-	fold := dsp.Fold(g.fd * r.PRIS)
+	prf := 1 / tr.T
+	fold := dsp.Fold(g.fd * tr.T)
 	rate := tidy(-fold * prf * m.lambda / 2)
 	out.ApparentRangeRateMPS = &rate
 	binW := 1 / float64(tr.plan.Bins())
-	blind := math.Abs(fold) < binW/2 && math.Abs(g.fd*r.PRIS) >= binW/2
+	blind := math.Abs(fold) < binW/2 && math.Abs(g.fd*tr.T) >= binW/2
+	if tr.times != nil {
+		// The filter bank at the true pulse times folds a Doppler onto
+		// zero only at multiples of 1/Δ; near a multiple of the mean PRF
+		// it leaks into the bins through the stagger's grating lobes.
+		blind = tr.staggerBlind(g.fd)
+	}
 	out.BlindSpeed = &blind
 	if v.peakK >= 0 && v.peak > 0 {
 		snr := out.SNRDB + dsp.DB(tr.gain[j][bin])
@@ -523,7 +585,12 @@ func (tr *train) report(j int, v, single verdict, bin int, out *TargetReport) {
 		if m.s.Receiver.MTI != MTINone {
 			what = "where the MTI canceller rejects it"
 		}
-		out.Reason += fmt.Sprintf(" Blind speed: its Doppler of %.0f Hz is a multiple of the %.0f Hz PRF, so it folds onto zero Doppler, %s.", g.fd, prf, what)
+		if tr.times != nil {
+			d := dsp.NewSchedule(r.PRIStaggerS...).Delta
+			out.Reason += fmt.Sprintf(" Blind speed of the stagger %s: its Doppler of %.0f Hz is a multiple of %.0f Hz (1/%s, the PRIs' common step), so every pulse sees it as at zero Doppler, %s.", staggerWords(r.PRIStaggerS), g.fd, 1/d, sec(d), what)
+		} else {
+			out.Reason += fmt.Sprintf(" Blind speed: its Doppler of %.0f Hz is a multiple of the %.0f Hz PRF, so it folds onto zero Doppler, %s.", g.fd, prf, what)
+		}
 	}
 	switch {
 	case v.status == StatusDetected && single.status == StatusMasked && single.culprit >= 0:

@@ -333,14 +333,15 @@ func (t *Trials) newWorker() *trialWorker {
 	w := &trialWorker{t: t, s: *t.s}
 	w.m = *t.m
 	w.m.s, w.m.cfar, w.m.winCorr, w.m.warnings = &w.s, nil, nil, nil
+	// Workers run at once: none shares the memo's detectors (pdmemo.go).
+	w.m.memo = nil
 	w.sc = *t.sc
 	w.sc.m = &w.m
 	if t.sc.train != nil {
 		w.tr = *t.sc.train
 		w.tr.m, w.tr.sc, w.tr.cf2, w.tr.cfOK = &w.m, &w.sc, nil, false
 		// A slow-time plan keeps scratch buffers: one of its own.
-		r := t.s.Radar
-		w.tr.plan = dsp.NewSlowTimePlan(r.Pulses, mtiTaps(t.s.Receiver.MTI), dspWindow(t.s.Receiver.DopplerWindow))
+		w.tr.plan = w.tr.newPlan()
 		w.sc.train = &w.tr
 		w.cf2 = w.tr.cfar()
 		w.pm = make([][]float64, w.tr.plan.Bins())

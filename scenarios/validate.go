@@ -118,7 +118,12 @@ func (s *Scenario) validateRadar(c checker, waveOK bool) {
 			c.errs.add("radar.sample_rate_hz", "%g Hz gives %.0f samples in the pulse; the limit is %d (lower the rate or shorten the pulse)", r.SampleRateHz, n, MaxPulseSamples)
 		}
 	}
-	c.above("radar.pri_s", r.PRIS, tau, 1)
+	if !r.Staggered() { // a stagger's PRIs are checked one by one
+		c.above("radar.pri_s", r.PRIS, tau, 1)
+	}
+	if !c.errs.has("radar.pulses") && !c.errs.has("radar.window_stop_m") {
+		c.validateStagger("radar.pri_stagger_s", r.PRIStaggerS, tau, r.Pulses, r.WindowStopM, true)
+	}
 	if c.errs.has("radar.sample_rate_hz") || c.errs.has("radar.window_stop_m") || c.errs.has("radar.window_start_m") || c.errs.has("radar.pulses") {
 		return
 	}

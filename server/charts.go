@@ -82,6 +82,9 @@ type chartOut struct {
 type seriesData struct {
 	id   string
 	data []byte
+	// field, when set, is the series option data holds instead of its
+	// data array (a mark area's {"data": …}).
+	field string
 }
 
 // appendMerge appends the data-only option {"series":[{"id","data"},…]},
@@ -94,7 +97,13 @@ func (c *chartOut) appendMerge(b []byte) []byte {
 		}
 		b = append(b, `{"id":`...)
 		b = strconv.AppendQuote(b, d.id)
-		b = append(b, `,"data":`...)
+		if d.field != "" {
+			b = append(b, `,"`...)
+			b = append(b, d.field...)
+			b = append(b, `":`...)
+		} else {
+			b = append(b, `,"data":`...)
+		}
 		b = append(b, d.data...)
 		b = append(b, '}')
 	}

@@ -1,9 +1,8 @@
 package server
 
 import (
-	"hash/fnv"
+	"encoding/json"
 	"math"
-	"strconv"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
@@ -13,21 +12,22 @@ import (
 
 // SeriesBreakthrough is the profile's series that shades, as a mark area,
 // the range spans where clutter crosses the threshold (false alarms,
-// docs/detection.md §10). It holds no data; its extent is part of the
-// chart key, so a frame whose spans change sends the full option.
+// docs/detection.md §10). It holds no data; the profile's key says only
+// whether it is there, and a data-only frame carries its mark area's
+// data (appendBreakthroughMerge).
 const SeriesBreakthrough = "breakthrough"
 
 const colourBreakthrough = "#d97706" // amber, drawn translucent
 
-// breakthroughMarks adds the breakthrough series when some clutter object
-// of the report breaks through inside the window, and returns its part
-// of the chart key. Each span is widened by half a gate on each side, so
-// a one-gate span shows; the first span of each object is labelled.
-func breakthroughMarks(b *builder, res *scenarios.Result, g grid) string {
+// appendAreas appends the breakthrough mark area's data: each span of a
+// clutter object breaking through inside the window, widened by half a
+// gate on each side so that a one-gate span shows, the first span of
+// each object labelled; encoded by hand so that nothing is allocated.
+// n is the number of areas.
+func appendAreas(b []byte, res *scenarios.Result, g grid) (_ []byte, n int) {
 	last := g.x(max(g.n-1, 0))
 	half := res.Series.RangeStepM / 2
-	var areas [][2]map[string]any
-	h := fnv.New64a()
+	b = append(b, '[')
 	for _, t := range res.Report.Targets {
 		if t.Breakthrough == nil {
 			continue
@@ -38,16 +38,58 @@ func breakthroughMarks(b *builder, res *scenarios.Result, g grid) string {
 			if z < a {
 				continue
 			}
-			from := map[string]any{"xAxis": round2(a)}
+			if n > 0 {
+				b = append(b, ',')
+			}
+			n++
+			b = append(b, "[{"...)
 			if first {
-				from["name"] = t.ID + ": false alarms"
+				b = append(b, `"name":"`...)
+				for _, r := range t.ID {
+					b = appendStringRune(b, r)
+				}
+				b = append(b, `: false alarms",`...)
 				first = false
 			}
-			areas = append(areas, [2]map[string]any{from, {"xAxis": round2(z)}})
-			h.Write([]byte(t.ID + strconv.FormatFloat(round2(a), 'f', -1, 64) + "-" + strconv.FormatFloat(round2(z), 'f', -1, 64) + ";"))
+			b = append(b, `"xAxis":`...)
+			b = appendNumber(b, round2(a))
+			b = append(b, `},{"xAxis":`...)
+			b = appendNumber(b, round2(z))
+			b = append(b, "}]"...)
 		}
 	}
-	if len(areas) == 0 {
+	return append(b, ']'), n
+}
+
+// hasAreas says whether res shades breakthrough areas in the window.
+func hasAreas(res *scenarios.Result, g grid) bool {
+	if !hasBreakthrough(res) {
+		return false
+	}
+	last := g.x(max(g.n-1, 0))
+	half := res.Series.RangeStepM / 2
+	for _, t := range res.Report.Targets {
+		if t.Breakthrough == nil {
+			continue
+		}
+		for _, sp := range t.Breakthrough.Spans {
+			if math.Min(sp.StopM+half, last) >= math.Max(sp.StartM-half, g.x0) {
+				return true
+			}
+		}
+	}
+	return false
+}
+
+// breakthroughKey is the profile key's part for the breakthrough areas.
+const breakthroughKey = "+bt"
+
+// breakthroughMarks adds the breakthrough series when some clutter object
+// of the report breaks through inside the window, and returns its part
+// of the chart key.
+func breakthroughMarks(b *builder, res *scenarios.Result, g grid) string {
+	areas, n := appendAreas(nil, res, g)
+	if n == 0 {
 		return ""
 	}
 	b.line.AddSeries("clutter breakthrough", nil,
@@ -60,7 +102,7 @@ func breakthroughMarks(b *builder, res *scenarios.Result, g grid) string {
 		"silent":    true,
 		"itemStyle": map[string]any{"color": colourBreakthrough, "opacity": 0.2},
 		"label":     map[string]any{"show": true, "position": "insideBottom", "color": "#92400e", "fontSize": 11}, // markers label the top
-		"data":      areas,
+		"data":      json.RawMessage(areas),
 	}}
-	return "+bt" + strconv.FormatUint(h.Sum64(), 36)
+	return breakthroughKey
 }

@@ -34,6 +34,12 @@ type evalCache struct {
 	pinRes  *scenarios.Result
 	pinRept []byte
 
+	// The velocity response chart of the last staggered scenario, by
+	// velocityKey: rebuilt only when a stagger's inputs change.
+	velKey string
+	velOut chartOut
+	velOK  bool
+
 	ambKey string     // the waveform and sample rate the surface is of
 	amb    []chartOut // the surface and its cuts; nil when there is none
 
@@ -50,6 +56,8 @@ type evalCache struct {
 	respBuf         []byte              // the response chart's inputs, encoded, …
 	respLast        []byte              // … and those of the one the page holds
 	mapsOf          *scenarios.Result   // the result whose CPISeries ScheduleMaps filled in
+	maps            mapScratch          // the heat maps' reused storage (mapframes.go)
+	linker          scenarios.Linker    // makes the share links, reusing its compressor
 }
 
 // compute evaluates the newest state the reader posted and puts its frame
@@ -165,7 +173,7 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 		if err != nil {
 			return nil, &editError{id: w.scn.id, err: fmt.Errorf("encode report: %w", err)}
 		}
-		link, err := scenarios.Link(sc)
+		link, err := c.linker.Link(sc)
 		if err != nil {
 			return nil, &editError{id: w.scn.id, err: err}
 		}

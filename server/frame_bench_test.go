@@ -1,8 +1,13 @@
 package server
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
+	"maps"
+	"math"
+	"slices"
+	"strings"
 	"testing"
 
 	"github.com/pulsewright/pulsewright/scenarios"
@@ -22,7 +27,7 @@ func dragSession(tb testing.TB) (*session, *evalCache) {
 }
 
 // dragEdits returns raw scenarios of demo name with its first target at
-// n ranges 2 m apart, as a drag sends them.
+// n ranges 0.25 m apart, as a drag sends them.
 func dragEdits(tb testing.TB, name string, n int) []json.RawMessage {
 	tb.Helper()
 	d, err := scenarios.LoadDemo(name)
@@ -39,7 +44,7 @@ func dragEdits(tb testing.TB, name string, n int) []json.RawMessage {
 		json.Unmarshal(raw, &m)
 		t := m["targets"].([]any)[0].(map[string]any)
 		if r, ok := t["range_m"].(float64); ok {
-			t["range_m"] = r + 2*float64(i%8)
+			t["range_m"] = r + 0.25*float64(i)
 		}
 		raw, _ = json.Marshal(m)
 		out = append(out, raw)
@@ -51,10 +56,15 @@ func dragEdits(tb testing.TB, name string, n int) []json.RawMessage {
 // the rest unchanged), from the raw scenario to the bytes for the
 // websocket, with the session's engine and caches warm.
 func BenchmarkDragFrame(b *testing.B) {
-	for _, name := range []string{"harbour-skiff", "rocky-coast", "hill-clutter-doppler"} {
+	demos, err := scenarios.Demos()
+	if err != nil {
+		b.Fatal(err)
+	}
+	for _, d := range demos {
+		name := d.Name
 		b.Run(name, func(b *testing.B) {
 			ss, c := dragSession(b)
-			edits := dragEdits(b, name, 8)
+			edits := dragEdits(b, name, 64) // every frame a new range: nothing repeats
 			sent := map[string]string{}
 			ctx := context.Background()
 			gen := uint64(0)
@@ -73,16 +83,56 @@ func BenchmarkDragFrame(b *testing.B) {
 			frameOf(0)
 			b.ReportAllocs()
 			i := 0
+			cpu0 := processCPU()
 			for b.Loop() {
 				i++
 				frameOf(i)
 			}
+			b.ReportMetric(float64(processCPU()-cpu0)/float64(b.N)/1e6, "cpu-ms/op")
 		})
 	}
 }
 
+// frameViews are the views a frame is built for in the tests: the whole
+// window; zoomed, with the map's cell selected and the CPI maps shown.
+func frameViews(res *scenarios.Result) []view {
+	g := windowGrid(&res.Series, len(res.Series.ProfileDB))
+	zoom := &[2]float64{g.x(g.n / 3), g.x(g.n / 2)}
+	vws := []view{{width: 1200, mapWidth: 560}, {width: 700, mapWidth: 500, rangeM: zoom, cpiMaps: true}}
+	if len(res.Report.Targets) > 0 {
+		t := res.Report.Targets[len(res.Report.Targets)-1]
+		rate := 0.0
+		if t.ApparentRangeRateMPS != nil {
+			rate = *t.ApparentRangeRateMPS
+		}
+		vws[1].cell = &cell{rangeM: math.Min(math.Max(t.RangeM, zoom[0]), zoom[1]), rateMPS: rate}
+	}
+	return vws
+}
+
+// wholeCharts returns every chart of a frame of res built whole, by name.
+func wholeCharts(scn *scenarios.Scenario, res, ref *scenarios.Result, vw view) map[string]chartOut {
+	whole := map[string]chartOut{ChartProfile: profileChart(res, ref, vw), ChartEcho: echoChart(res, vw)}
+	if m, ok := rdmapChart(res, vw); ok {
+		whole[m.name] = m
+	}
+	if c, ok := rdCutsChart(res, vw); ok {
+		whole[c.name] = c
+	}
+	for _, c := range scheduleCharts(scn, res, vw) {
+		whole[c.name] = c
+	}
+	return whole
+}
+
+// omitted are the series a data-only chart leaves out, by chart: the page
+// holds them (their data is named by the chart's key).
+var omitted = map[string]string{ChartBlindZones: SeriesZones}
+
 // TestFrameDataMatchesFullOption: the data-only path encodes each series
-// exactly as the whole chart carries it, for every demo, pinned or not,
+// exactly as the whole chart carries it, for every chart of every demo
+// (the profile with its breakthrough areas, the echo, the range–Doppler
+// map and its cuts, the blind zones and the CPI maps), pinned or not,
 // zoomed or not.
 func TestFrameDataMatchesFullOption(t *testing.T) {
 	demos, err := scenarios.Demos()
@@ -95,39 +145,58 @@ func TestFrameDataMatchesFullOption(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		g := windowGrid(&res.Series, len(res.Series.ProfileDB))
-		zoom := &[2]float64{g.x(g.n / 3), g.x(g.n / 2)}
+		if d.Scenario.Radar.Schedule != nil {
+			if err := scenarios.ScheduleMaps(ctx, d.Scenario, res); err != nil {
+				t.Fatal(err)
+			}
+		}
 		for _, ref := range []*scenarios.Result{nil, res} {
-			for _, vw := range []view{{width: 1200}, {width: 700, mapWidth: 500, rangeM: zoom}} {
-				c := &evalCache{}
+			for _, vw := range frameViews(res) {
+				c := &evalCache{scn: d.Scenario}
 				f := &frame{}
 				c.chartsOf(f, res, ref, vw, false)
 				c.put(f)
 				c.chartsOf(f, res, ref, vw, false) // now data only
-				whole := map[string]chartOut{ChartProfile: profileChart(res, ref, vw), ChartEcho: echoChart(res, vw)}
-				if hasBreakthrough(res) {
-					delete(whole, ChartProfile) // built whole: its key names the breakthrough spans
-				}
+				whole := wholeCharts(d.Scenario, res, ref, vw)
 				for _, ch := range f.charts {
 					w, ok := whole[ch.name]
-					if !ok || ch.option != nil && hasBreakthrough(res) && ch.name == ChartProfile {
-						continue
-					}
-					if ch.option != nil || ch.key != w.key {
-						t.Fatalf("%s %s: data-only chart has option %v, key %q (whole: %q)", d.Name, ch.name, ch.option != nil, ch.key, w.key)
-					}
-					if len(ch.data) != len(w.data) {
-						t.Fatalf("%s %s: %d series, whole chart %d", d.Name, ch.name, len(ch.data), len(w.data))
-					}
-					for i := range ch.data {
-						if ch.data[i].id != w.data[i].id || string(ch.data[i].data) != string(w.data[i].data) {
-							t.Errorf("%s %s series %s: data-only %.80s… whole %.80s…", d.Name, ch.name, ch.data[i].id, ch.data[i].data, w.data[i].data)
-						}
+					if !ok {
+						continue // the response: static, checked by its own tests
 					}
 					delete(whole, ch.name)
+					if ch.name == ChartBlindZones {
+						// The version of its cells is the cache's own.
+						w.key = w.key[:strings.LastIndexByte(w.key, '#')] + ch.key[strings.LastIndexByte(ch.key, '#'):]
+					}
+					if ch.option != nil || ch.key != w.key {
+						t.Errorf("%s %s: data-only chart has option %v, key %q (whole: %q)", d.Name, ch.name, ch.option != nil, ch.key, w.key)
+						continue
+					}
+					ids := map[string]bool{}
+					for _, sd := range ch.data {
+						ids[sd.id] = true
+						i := slices.IndexFunc(w.data, func(x seriesData) bool { return x.id == sd.id })
+						switch {
+						case i < 0:
+							t.Errorf("%s %s: series %s not in the whole chart", d.Name, ch.name, sd.id)
+						case sd.field != "":
+							// A mark area: its data as the whole option has it.
+							inner := bytes.TrimSuffix(bytes.TrimPrefix(sd.data, []byte(`{"data":`)), []byte("}"))
+							if !bytes.Contains(w.option, inner) {
+								t.Errorf("%s %s series %s: %s %.120s… not in the whole option", d.Name, ch.name, sd.id, sd.field, sd.data)
+							}
+						case string(sd.data) != string(w.data[i].data):
+							t.Errorf("%s %s series %s: data-only %.80s… whole %.80s…", d.Name, ch.name, sd.id, sd.data, w.data[i].data)
+						}
+					}
+					for _, wd := range w.data {
+						if !ids[wd.id] && omitted[ch.name] != wd.id {
+							t.Errorf("%s %s: series %s left out of the data-only chart", d.Name, ch.name, wd.id)
+						}
+					}
 				}
 				if len(whole) != 0 {
-					t.Errorf("%s: charts %v not built data-only", d.Name, whole)
+					t.Errorf("%s: charts %v not in the frame", d.Name, slices.Collect(maps.Keys(whole)))
 				}
 			}
 		}
@@ -137,16 +206,23 @@ func TestFrameDataMatchesFullOption(t *testing.T) {
 // TestFrameAllocs: once the page holds every chart's structure, a frame
 // of a drag (a target moved: a new evaluation, the same chart keys)
 // allocates nothing between the evaluation's result and the bytes for the
-// websocket: the cached surfaces and designer plots are looked up, the
-// series decimated and encoded into the frame's reused buffer, the
-// response recognised as the one the page holds, and the frame encoded
-// into the writer's reused buffer. (The evaluation itself, the report's
-// and link's encoding for a new scenario, allocate: see BenchmarkDragFrame.)
+// websocket, on every demo: the cached surfaces and designer plots are
+// looked up, the series, the range–Doppler map and its cuts, the
+// breakthrough areas, the blind zones' markers and the CPI maps decimated
+// and encoded into the frame's reused buffer, the response recognised as
+// the one the page holds, and the frame encoded into the writer's reused
+// buffer. (The evaluation itself, the report's and link's encoding for a
+// new scenario, allocate: see BenchmarkDragFrame.)
 func TestFrameAllocs(t *testing.T) {
 	if testing.Short() {
 		t.Skip("evaluates demos")
 	}
-	for _, name := range []string{"harbour-skiff", "rocky-coast", "long-pulse-blind"} {
+	demos, err := scenarios.Demos()
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, d := range demos {
+		name := d.Name
 		ss, c := dragSession(t)
 		ctx := context.Background()
 		edits := dragEdits(t, name, 2)
@@ -160,55 +236,56 @@ func TestFrameAllocs(t *testing.T) {
 			}
 			c.put(f)
 			ss.recycle(f)
+			if c.scn.Radar.Schedule != nil {
+				if err := scenarios.ScheduleMaps(ctx, c.scn, c.res); err != nil {
+					t.Fatal(err)
+				}
+			}
 			results = append(results, c.res)
 		}
-		if c.scn.Radar.Schedule != nil {
-			// A PRF schedule's charts are built whole every frame.
-			t.Logf("%s: PRF schedule, its charts built whole", name)
-			continue
-		}
-		if hasBreakthrough(c.res) {
-			// Its profile is built whole (the key names the breakthrough
-			// spans): not a steady state of this path.
-			t.Logf("%s: clutter breakthrough, profile built whole", name)
-			continue
-		}
-		sent := map[string]string{}
-		vw := view{width: 1200, mapWidth: 560}
-		i := 0
-		frameOnce := func() {
-			i++
-			res := results[i%len(results)]
-			if err := ss.ambiguity(ctx, c); err != nil {
-				t.Fatal(err)
+		for vi, vw := range frameViews(results[0]) {
+			sent := map[string]string{}
+			i := 0
+			frameOnce := func() {
+				i++
+				res := results[i%len(results)]
+				if err := ss.ambiguity(ctx, c); err != nil {
+					t.Fatal(err)
+				}
+				if err := ss.wavePlots(ctx, c); err != nil {
+					t.Fatal(err)
+				}
+				f := ss.newFrame()
+				f.id, f.report, f.link = int64(i), c.report, c.link
+				c.chartsOf(f, res, nil, vw, len(ss.frames.ch) > 0)
+				c.put(f)
+				ss.out = f.appendTo(ss.out[:0], sent)
+				for _, ch := range f.charts {
+					sent[ch.name] = ch.key
+				}
+				ss.recycle(f)
 			}
-			if err := ss.wavePlots(ctx, c); err != nil {
-				t.Fatal(err)
+			for range 3 { // the page takes the structures; buffers reach their size
+				frameOnce()
 			}
-			f := ss.newFrame()
-			f.id, f.report, f.link = int64(i), c.report, c.link
-			c.chartsOf(f, res, nil, vw, len(ss.frames.ch) > 0)
-			c.put(f)
-			ss.out = f.appendTo(ss.out[:0], sent)
-			for _, ch := range f.charts {
-				sent[ch.name] = ch.key
+			if a := testing.AllocsPerRun(20, frameOnce); a != 0 {
+				t.Errorf("%s view %d: %.1f allocations per frame in steady state, want 0", name, vi, a)
 			}
-			ss.recycle(f)
-		}
-		for range 3 { // the page takes the structures; buffers reach their size
-			frameOnce()
-		}
-		if a := testing.AllocsPerRun(20, frameOnce); a != 0 {
-			t.Errorf("%s: %.1f allocations per frame in steady state, want 0", name, a)
-		}
-		var m struct {
-			Charts map[string]chartMsg `json:"charts"`
-		}
-		if err := json.Unmarshal(ss.out, &m); err != nil {
-			t.Fatalf("%s: last frame is not JSON: %v", name, err)
-		}
-		if p, ok := m.Charts[ChartProfile]; !ok || p.Replace {
-			t.Errorf("%s: profile %+v, want a data-only merge", name, p)
+			var m struct {
+				Charts map[string]chartMsg `json:"charts"`
+			}
+			if err := json.Unmarshal(ss.out, &m); err != nil {
+				t.Fatalf("%s: last frame is not JSON: %v", name, err)
+			}
+			for n, ch := range m.Charts {
+				if ch.Replace {
+					t.Errorf("%s view %d: chart %s sent whole in steady state, want a data-only merge", name, vi, n)
+				}
+			}
+			if p, ok := m.Charts[ChartProfile]; !ok || p.Replace {
+				t.Errorf("%s: profile %+v, want a data-only merge", name, p)
+			}
+			t.Logf("%s view %d: %d charts, %d bytes a frame", name, vi, len(m.Charts), len(ss.out))
 		}
 	}
 }

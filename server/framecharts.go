@@ -23,6 +23,7 @@ import (
 type seriesRef struct {
 	chart  int    // index in frame.charts
 	id     string // series id
+	field  string // seriesData.field
 	lo, hi int
 }
 
@@ -41,10 +42,11 @@ func (c *evalCache) chartsOf(f *frame, res, ref *scenarios.Result, vw view, pend
 	f.charts = f.charts[:0]
 	f.buf, f.refs, f.store = f.buf[:0], f.refs[:0], f.store[:0]
 
-	// Clutter breakthrough areas name their spans in the key: such a
-	// profile is built whole.
 	c.keyBuf = appendProfileKey(c.keyBuf[:0], res, ref)
-	if key, ok := c.held(ChartProfile, c.keyBuf, pending); ok && !hasBreakthrough(res) {
+	if hasAreas(res, windowGrid(&res.Series, len(res.Series.ProfileDB))) {
+		c.keyBuf = append(c.keyBuf, breakthroughKey...)
+	}
+	if key, ok := c.held(ChartProfile, c.keyBuf, pending); ok {
 		c.appendProfileData(f, res, ref, vw, key)
 	} else {
 		f.charts = append(f.charts, profileChart(res, ref, vw))
@@ -55,17 +57,20 @@ func (c *evalCache) chartsOf(f *frame, res, ref *scenarios.Result, vw view, pend
 		f.charts = append(f.charts, echoChart(res, vw))
 	}
 	f.charts = append(f.charts, c.response(res, ref, vw))
-	if m, ok := rdmapChart(res, vw); ok {
-		f.charts = append(f.charts, m)
+	c.rdmapInto(f, ChartRDMap, 0, res, vw, pending)
+	c.rdCutsInto(f, res, vw, pending)
+	c.scheduleInto(f, c.scn, res, vw, pending)
+	if k := velocityKey(c.scn); k != c.velKey {
+		c.velKey = k
+		c.velOut, c.velOK = velocityChart(c.scn)
 	}
-	if cut, ok := rdCutsChart(res, vw); ok {
-		f.charts = append(f.charts, cut)
+	if c.velOK {
+		f.charts = append(f.charts, c.settle([]chartOut{c.velOut})...)
 	}
-	f.charts = append(f.charts, c.settle(scheduleCharts(c.scn, res, vw))...)
 	// The data slices point into buf and store, which have stopped
 	// growing; a chart's series are consecutive in refs.
 	for _, r := range f.refs {
-		f.store = append(f.store, seriesData{id: r.id, data: f.buf[r.lo:r.hi]})
+		f.store = append(f.store, seriesData{id: r.id, data: f.buf[r.lo:r.hi], field: r.field})
 	}
 	for i := 0; i < len(f.refs); {
 		j := i
@@ -184,6 +189,13 @@ func (c *evalCache) appendProfileData(f *frame, res, ref *scenarios.Result, vw v
 	lo = len(f.buf)
 	f.buf = appendMasking(f.buf, res, g)
 	f.series(ci, SeriesMasking, lo)
+	if hasAreas(res, g) {
+		lo = len(f.buf)
+		f.buf = append(f.buf, `{"data":`...)
+		f.buf, _ = appendAreas(f.buf, res, g)
+		f.buf = append(f.buf, '}')
+		f.refs = append(f.refs, seriesRef{chart: ci, id: SeriesBreakthrough, field: "markArea", lo: lo, hi: len(f.buf)})
+	}
 	lo = len(f.buf)
 	f.buf = appendMarkers(f.buf, res, g.x0, last)
 	f.series(ci, SeriesMarkers, lo)

@@ -139,11 +139,17 @@ type heatSeries struct {
 	opts     []charts.SeriesOpts
 }
 
-// appendCell appends one heat map cell [col,row,v].
+// appendCell appends one heat map cell [col,row,v] to an array that b,
+// holding only the array's cells, opens.
 func appendCell(b []byte, col, row int, v float64) []byte {
 	if len(b) > 1 {
 		b = append(b, ',')
 	}
+	return appendCellItem(b, col, row, v)
+}
+
+// appendCellItem appends one heat map cell [col,row,v].
+func appendCellItem(b []byte, col, row int, v float64) []byte {
 	b = append(b, '[')
 	b = strconv.AppendInt(b, int64(col), 10)
 	b = append(b, ',')

@@ -1,10 +1,10 @@
 package server
 
 import (
-	"encoding/json"
 	"fmt"
 	"math"
 	"slices"
+	"strconv"
 
 	"github.com/go-echarts/go-echarts/v2/charts"
 	"github.com/go-echarts/go-echarts/v2/opts"
@@ -22,33 +22,44 @@ type cell struct {
 
 // rdLayout reduces a range–Doppler map to the screen: range cells [lo,
 // hi) in cols columns, and the Doppler bins, in ascending range rate
-// (order), in rows rows of per bins.
+// (order), in rows rows of per bins. A layout is reused from frame to
+// frame (reset), so that laying out a map allocates nothing.
 type rdLayout struct {
-	rd               *scenarios.RangeDoppler
-	g                grid
-	lo, hi           int
-	cols, rows, per  int
-	order            []int // bins by ascending range rate
-	rate0, rateStep  float64
-	x0, x1, y0, y1   float64 // value axis bounds: the cells' outer edges
-	colStart, colEnd func(c int) int
+	rd              *scenarios.RangeDoppler
+	g               grid
+	lo, hi          int
+	cols, rows, per int
+	order           []int // bins by ascending range rate
+	rate0, rateStep float64
+	x0, x1, y0, y1  float64 // value axis bounds: the cells' outer edges
 }
 
 // newRDLayout lays out the map of res for a view, or returns nil when
 // res has no map.
 func newRDLayout(res *scenarios.Result, vw view) *rdLayout {
-	rd := res.Series.RangeDoppler
-	if rd == nil || len(rd.DB) == 0 || len(rd.DB[0]) == 0 || len(rd.RangeRateMPS) != len(rd.DB) {
+	l := &rdLayout{}
+	if !l.reset(res, vw) {
 		return nil
 	}
+	return l
+}
+
+// reset lays out the map of res for a view in l, reusing its storage;
+// false when res has no map.
+func (l *rdLayout) reset(res *scenarios.Result, vw view) bool {
+	rd := res.Series.RangeDoppler
+	if rd == nil || len(rd.DB) == 0 || len(rd.DB[0]) == 0 || len(rd.RangeRateMPS) != len(rd.DB) {
+		return false
+	}
 	nb, n := len(rd.DB), len(rd.DB[0])
-	l := &rdLayout{rd: rd, g: windowGrid(&res.Series, n)}
+	order := l.order[:0]
+	*l = rdLayout{rd: rd, g: windowGrid(&res.Series, n)}
 	sp := plan(l.g, vw.rangeM, vw.width)
 	l.lo, l.hi = sp.lo, sp.hi
-	l.order = make([]int, nb)
-	for d := range l.order {
-		l.order[d] = d
+	for d := range nb {
+		order = append(order, d)
 	}
+	l.order = order
 	slices.SortStableFunc(l.order, func(a, b int) int { return cmpFloat(rd.RangeRateMPS[a], rd.RangeRateMPS[b]) })
 	l.per = (nb + rdMaxRows - 1) / rdMaxRows
 	l.rows = (nb + l.per - 1) / l.per
@@ -57,9 +68,6 @@ func newRDLayout(res *scenarios.Result, vw view) *rdLayout {
 		px = vw.width / 3
 	}
 	l.cols = max(1, min(l.hi-l.lo, max(px/2, 32), rdMaxCells/l.rows))
-	span := l.hi - l.lo
-	l.colStart = func(c int) int { return l.lo + c*span/l.cols }
-	l.colEnd = func(c int) int { return l.lo + (c+1)*span/l.cols }
 	dx := l.g.dx
 	l.x0, l.x1 = l.g.x(l.lo)-dx/2, l.g.x(l.hi-1)+dx/2
 	l.rate0 = rd.RangeRateMPS[l.order[0]]
@@ -69,8 +77,13 @@ func newRDLayout(res *scenarios.Result, vw view) *rdLayout {
 	}
 	l.y0 = l.rate0 - l.rateStep/2
 	l.y1 = l.y0 + float64(l.rows*l.per)*l.rateStep
-	return l
+	return true
 }
+
+// colStart and colEnd are the range cells [colStart(c), colEnd(c)) of
+// screen column c.
+func (l *rdLayout) colStart(c int) int { return l.lo + c*(l.hi-l.lo)/l.cols }
+func (l *rdLayout) colEnd(c int) int   { return l.lo + (c+1)*(l.hi-l.lo)/l.cols }
 
 func cmpFloat(a, b float64) int {
 	switch {
@@ -102,6 +115,70 @@ func (l *rdLayout) held(c, r int) (v float32, bin, k int) {
 	return v, bin, k
 }
 
+// values fills vals (reused) with the max-held screen cells, row by row,
+// and returns it with the colour bounds: the top rounded up to 10 dB,
+// and rdSpanDB under it.
+func (l *rdLayout) values(vals []float32) (out []float32, vmin, vmax float64) {
+	vals = vals[:0]
+	top := float32(-math.MaxFloat32)
+	for r := range l.rows {
+		for c := range l.cols {
+			v, _, _ := l.held(c, r)
+			vals = append(vals, v)
+			top = max(top, v)
+		}
+	}
+	vmax = math.Max(10, 10*math.Ceil(clampDB(float64(top))/10))
+	vmin = math.Max(0, vmax-rdSpanDB)
+	return vals, vmin, vmax
+}
+
+// appendCells appends the heat map's cells [[col,row,dB],…], those in
+// the bottom rdBlank of the colour span left out.
+func (l *rdLayout) appendCells(b []byte, vals []float32, vmin, vmax float64) []byte {
+	start := len(b)
+	b = append(b, '[')
+	blank := vmin + rdBlank*(vmax-vmin)
+	for i, v := range vals {
+		if float64(v) > blank {
+			if len(b) > start+1 {
+				b = append(b, ',')
+			}
+			b = appendCellItem(b, i%l.cols, i/l.cols, float64(v))
+		}
+	}
+	return append(b, ']')
+}
+
+// appendKey appends the map's structure key: its layout and colour
+// bounds, and whether a cell is selected.
+func (l *rdLayout) appendKey(b []byte, vmin, vmax float64, selected bool) []byte {
+	b = append(b, "rdmap/1/"...)
+	b = strconv.AppendInt(b, int64(l.lo), 10)
+	b = append(b, '-')
+	b = strconv.AppendInt(b, int64(l.hi), 10)
+	b = append(b, '/')
+	b = strconv.AppendInt(b, int64(l.cols), 10)
+	b = append(b, 'x')
+	b = strconv.AppendInt(b, int64(l.rows), 10)
+	b = append(b, '/')
+	b = strconv.AppendFloat(b, vmin, 'g', -1, 64)
+	b = append(b, '-')
+	b = strconv.AppendFloat(b, vmax, 'g', -1, 64)
+	if selected {
+		b = append(b, "+cell"...)
+	}
+	return b
+}
+
+// appendSelected appends the selected cell's series data: the strongest
+// cell of the screen cell that holds c.
+func (l *rdLayout) appendSelected(b []byte, c cell) []byte {
+	bin, k := l.snap(c)
+	p := [2]float64{l.g.x(k), clampAmp(l.rd.RangeRateMPS[bin])}
+	return points(p[:]).appendJSON(b, 2)
+}
+
 // rdmapChart plots the range–Doppler map of a pulse train, reduced to
 // the screen, with each target's marker at its apparent range and range
 // rate, and the selected cell. ok is false when res has no map.
@@ -110,26 +187,8 @@ func rdmapChart(res *scenarios.Result, vw view) (chartOut, bool) {
 	if l == nil {
 		return chartOut{}, false
 	}
-	vals := make([]float32, l.rows*l.cols)
-	top := float32(-math.MaxFloat32)
-	for r := range l.rows {
-		for c := range l.cols {
-			v, _, _ := l.held(c, r)
-			vals[r*l.cols+c] = v
-			top = max(top, v)
-		}
-	}
-	vmax := math.Max(10, 10*math.Ceil(clampDB(float64(top))/10))
-	vmin := math.Max(0, vmax-rdSpanDB)
-	cells := make([]byte, 0, 16*len(vals)/2)
-	cells = append(cells, '[')
-	blank := vmin + rdBlank*(vmax-vmin)
-	for i, v := range vals {
-		if float64(v) > blank {
-			cells = appendCell(cells, i%l.cols, i/l.cols, float64(v))
-		}
-	}
-	cells = append(cells, ']')
+	vals, vmin, vmax := l.values(nil)
+	cells := l.appendCells(make([]byte, 0, 16*len(vals)/2), vals, vmin, vmax)
 	xCats := make([]float64, l.cols)
 	for c := range xCats {
 		xCats[c] = math.Round((l.g.x(l.colStart(c))+l.g.x(l.colEnd(c)-1))/2*10) / 10
@@ -140,28 +199,21 @@ func rdmapChart(res *scenarios.Result, vw view) (chartOut, bool) {
 	}
 	h := heat{xName: "range (m)", yName: "range rate (m/s)", x0: l.x0, x1: l.x1, y0: l.y0, y1: l.y1,
 		xCats: xCats, yCats: yCats, vmin: vmin, vmax: vmax, colours: rdColours, cells: cells}
-	marks, err := json.Marshal(rdMarkers(res, l))
-	if err != nil {
-		panic("server: map markers not encodable: " + err.Error()) // every number in them is clamped
-	}
-	more := []heatSeries{{id: SeriesMarkers, name: "targets", data: marks, opts: []charts.SeriesOpts{
+	more := []heatSeries{{id: SeriesMarkers, name: "targets", data: appendRDMarkers(nil, res, l), opts: []charts.SeriesOpts{
 		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.SymbolSize = 13 }),
 		charts.WithLabelOpts(mapLabel),
 	}}}
-	key := fmt.Sprintf("rdmap/1/%d-%d/%dx%d/%g-%g", l.lo, l.hi, l.cols, l.rows, vmin, vmax)
+	key := string(l.appendKey(nil, vmin, vmax, vw.cell != nil))
 	if vw.cell != nil {
-		bin, k := l.snap(*vw.cell)
-		at := points{l.g.x(k), clampAmp(l.rd.RangeRateMPS[bin])}.appendJSON(nil, 2)
-		more = append(more, heatSeries{id: SeriesCell, name: "selected cell", data: at, opts: []charts.SeriesOpts{
+		more = append(more, heatSeries{id: SeriesCell, name: "selected cell", data: l.appendSelected(nil, *vw.cell), opts: []charts.SeriesOpts{
 			charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.Symbol, s.SymbolSize = "rect", 14 }),
 			charts.WithItemStyleOpts(opts.ItemStyle{Color: "transparent", BorderColor: "#b4561d", BorderWidth: 2}),
 		}})
-		key += "+cell"
 	}
 	return heatChart(ChartRDMap, key, h, more...), true
 }
 
-// rdMarker is one target on the map.
+// rdMarker is one target on the map, as appendRDMarkers encodes it.
 type rdMarker struct {
 	Name      string         `json:"name"` // the label
 	Value     [2]float64     `json:"value"`
@@ -172,12 +224,14 @@ type rdMarker struct {
 	ItemStyle map[string]any `json:"itemStyle"`
 }
 
-// rdMarkers places each target at its apparent range (folded into the
-// unambiguous range, moved by range–Doppler coupling) and apparent range
-// rate, clamped into the map.
-func rdMarkers(res *scenarios.Result, l *rdLayout) []rdMarker {
+// appendRDMarkers appends the map's markers series: each target at its
+// apparent range (folded into the unambiguous range, moved by
+// range–Doppler coupling) and apparent range rate, clamped into the map;
+// encoded by hand so that nothing is allocated.
+func appendRDMarkers(b []byte, res *scenarios.Result, l *rdLayout) []byte {
 	unamb := res.Report.Waveform.UnambiguousRangeM
-	out := make([]rdMarker, 0, len(res.Report.Targets))
+	b = append(b, '[')
+	first := true
 	for _, t := range res.Report.Targets {
 		if t.ApparentRangeRateMPS == nil {
 			continue
@@ -193,10 +247,29 @@ func rdMarkers(res *scenarios.Result, l *rdLayout) []rdMarker {
 		r += t.RangeShiftM
 		x := math.Min(math.Max(clampAmp(r), l.x0), l.x1)
 		y := math.Min(math.Max(clampAmp(*t.ApparentRangeRateMPS), l.y0), l.y1)
-		out = append(out, rdMarker{Name: t.ID, Value: [2]float64{x, y}, ID: t.ID, Status: t.Status, Reason: t.Reason, Symbol: st.symbol,
-			ItemStyle: map[string]any{"color": "rgba(255,255,255,0.15)", "borderColor": st.colour, "borderWidth": 2}})
+		if !first {
+			b = append(b, ',')
+		}
+		first = false
+		b = append(b, `{"name":`...)
+		b = appendString(b, t.ID)
+		b = append(b, `,"value":[`...)
+		b = appendNumber(b, x)
+		b = append(b, ',')
+		b = appendNumber(b, y)
+		b = append(b, `],"id":`...)
+		b = appendString(b, t.ID)
+		b = append(b, `,"status":`...)
+		b = appendString(b, t.Status)
+		b = append(b, `,"reason":`...)
+		b = appendString(b, t.Reason)
+		b = append(b, `,"symbol":`...)
+		b = appendString(b, st.symbol)
+		b = append(b, `,"itemStyle":{"borderColor":`...)
+		b = appendString(b, st.colour)
+		b = append(b, `,"borderWidth":2,"color":"rgba(255,255,255,0.15)"}}`...)
 	}
-	return out
+	return append(b, ']')
 }
 
 // snap returns the bin and range cell of the strongest value in the

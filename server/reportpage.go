@@ -74,6 +74,18 @@ type targetRow struct {
 	ID, Status, Colour, Range, SNR, Margin, Pd, Reason string
 }
 
+// priText names the radar's PRI and pulses, or its stagger.
+func priText(r scenarios.Radar) string {
+	if !r.Staggered() {
+		return fmt.Sprintf("%s, %d", scenarios.SI(r.PRIS, "s"), r.Pulses)
+	}
+	p := make([]string, len(r.PRIStaggerS))
+	for i, v := range r.PRIStaggerS {
+		p[i] = scenarios.SI(v, "s")
+	}
+	return fmt.Sprintf("stagger %s in turn, %d", strings.Join(p, " / "), r.Pulses)
+}
+
 func sceneRows(s *scenarios.Scenario) [][2]string {
 	r, wf, rx := s.Radar, s.Waveform, s.Receiver
 	rows := [][2]string{
@@ -82,7 +94,7 @@ func sceneRows(s *scenarios.Scenario) [][2]string {
 		{"Antenna gain", fmt.Sprintf("%.4g dBi", r.AntennaGainDBi)},
 		{"Noise figure, losses", fmt.Sprintf("%.3g dB, %.3g dB", r.NoiseFigureDB, r.SystemLossDB)},
 		{"Sample rate", scenarios.SI(r.SampleRateHz, "Hz")},
-		{"PRI, pulses", fmt.Sprintf("%s, %d", scenarios.SI(r.PRIS, "s"), r.Pulses)},
+		{"PRI, pulses", priText(r)},
 		{"Receive window", fmt.Sprintf("%.6g – %.6g m", r.WindowStartM, r.WindowStopM)},
 		{"Beamwidth (az × el)", fmt.Sprintf("%.3g° × %.3g°", r.BeamwidthAzDeg, r.BeamwidthElDeg)},
 		{"Waveform", wf.Describe()},

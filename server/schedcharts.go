@@ -1,7 +1,6 @@
 package server
 
 import (
-	"encoding/json"
 	"fmt"
 	"math"
 	"strconv"
@@ -43,71 +42,40 @@ var (
 
 // scheduleCharts returns the schedule's charts, none without a schedule:
 // the blind-zones map, and the CPI maps while the page shows them (vw.cpiMaps)
-// and res holds them (scenarios.ScheduleMaps).
+// and res holds them (scenarios.ScheduleMaps). Frames build them with
+// scheduleInto (mapframes.go), the same charts.
 func scheduleCharts(sc *scenarios.Scenario, res *scenarios.Result, vw view) []chartOut {
-	sr := res.Report.Schedule
-	if sr == nil || sc == nil || sc.Radar.Schedule == nil {
-		return nil
-	}
-	var out []chartOut
-	if c, ok := blindZonesChart(sc, sr); ok {
-		out = append(out, c)
-	}
-	if !vw.cpiMaps {
-		return out // the page does not show the CPI maps
-	}
-	// Each CPI's map over its whole window, at about two thirds of the
-	// map's width.
-	mv := view{width: vw.width, mapWidth: max(vw.mapWidth*2/3, 200)}
-	for k, s := range res.CPISeries {
-		if s == nil || s.RangeDoppler == nil || k >= len(sr.CPIs) {
-			continue
-		}
-		c := sr.CPIs[k]
-		one := &scenarios.Result{Series: *s}
-		one.Report.Waveform.UnambiguousRangeM = c.UnambiguousRangeM
-		for j, t := range c.Targets {
-			tr := scenarios.TargetReport{ID: t.ID, Status: t.Status, Reason: t.Reason, ApparentRangeRateMPS: t.ApparentRangeRateMPS}
-			if j < len(res.Report.Targets) {
-				tr.RangeM, tr.RangeShiftM = res.Report.Targets[j].RangeM, res.Report.Targets[j].RangeShiftM
-			}
-			one.Report.Targets = append(one.Report.Targets, tr)
-		}
-		if m, ok := rdmapChart(one, mv); ok {
-			m.name = ChartCPIMap + strconv.Itoa(k+1)
-			m.key = fmt.Sprintf("cpi%d/%s", k+1, m.key)
-			out = append(out, m)
-		}
-	}
-	return out
+	var c evalCache
+	f := &frame{}
+	c.scheduleInto(f, sc, res, vw, false)
+	return f.charts
 }
 
-// blindZonesChart maps the schedule's blind zones over the ranges and
-// range rates of its targets and CPIs.
-func blindZonesChart(sc *scenarios.Scenario, sr *scenarios.ScheduleReport) (chartOut, bool) {
-	r := sc.Radar
-	spec := scenarios.BlindZoneSpec{PulseS: sc.Waveform.PulseWidth(), CarrierHz: r.CarrierHz, M: sr.M,
-		RangeCells: bzCols, RateCells: bzRows}
-	vb := 0.0
-	for _, c := range sr.CPIs {
-		spec.PRIs = append(spec.PRIs, c.PRIS)
-		spec.Pulses = append(spec.Pulses, c.Pulses)
-		vb = math.Max(vb, c.BlindSpeedMPS)
-	}
-	// Ranges: the window and every target, with room; range rates: two
-	// blind speeds of the slowest-folding CPI and every target.
-	hiR := r.WindowStopM
-	hiV := 2 * vb
-	for _, t := range sc.Targets {
-		hiR = math.Max(hiR, 1.15*math.Max(t.RangeM, t.RangeStopM))
-		hiV = math.Max(hiV, 1.25*math.Abs(t.RangeRateMPS))
-	}
-	spec.RangeMaxM = math.Min(hiR, 1e8)
-	spec.RateMaxMPS = math.Min(math.Max(hiV, 1), 1e4)
-	bz, err := scenarios.BlindZones(spec)
-	if err != nil {
-		return chartOut{}, false // a schedule the map cannot draw (a PRI below 2τ): the report still stands
-	}
+// bzHeat returns the bounds of the blind-zones map of spec, n CPIs:
+// range in km across, range rate up.
+func bzHeat(spec scenarios.BlindZoneSpec, n int) heat {
+	return heat{xName: "range (km)", yName: "range rate (m/s)", vmin: 0, vmax: float64(n),
+		x0: spec.RangeMinM / 1000, x1: spec.RangeMaxM / 1000, y0: -spec.RateMaxMPS, y1: spec.RateMaxMPS}
+}
+
+// appendBZKey appends the blind-zones map's key: its CPIs, rule and
+// extent, and the version of its cells (bzState).
+func appendBZKey(b []byte, n, m int, h heat, version int) []byte {
+	b = append(b, "blindzones/1/"...)
+	b = strconv.AppendInt(b, int64(n), 10)
+	b = append(b, '/')
+	b = strconv.AppendInt(b, int64(m), 10)
+	b = append(b, '/')
+	b = strconv.AppendFloat(b, h.x1, 'g', -1, 64)
+	b = append(b, '/')
+	b = strconv.AppendFloat(b, h.y1, 'g', -1, 64)
+	b = append(b, '#')
+	return strconv.AppendInt(b, int64(version), 10)
+}
+
+// blindZonesChartOf maps the schedule's blind zones bz (of spec) over the
+// ranges and range rates of its targets and CPIs.
+func blindZonesChartOf(sc *scenarios.Scenario, sr *scenarios.ScheduleReport, bz *scenarios.BlindZoneMap, spec scenarios.BlindZoneSpec, key string) chartOut {
 	n := len(spec.PRIs)
 	cells := []byte{'['}
 	for i := range bz.Rates {
@@ -122,19 +90,13 @@ func blindZonesChart(sc *scenarios.Scenario, sr *scenarios.ScheduleReport) (char
 	for j, v := range bz.Ranges {
 		km[j] = math.Round(v/10) / 100
 	}
-	rates := roundAll(bz.Rates, 0.1, 1)
-	h := heat{xName: "range (km)", yName: "range rate (m/s)", xCats: km, yCats: rates, vmin: 0, vmax: float64(n),
-		colours: []string{bzSeen[len(bzSeen)-1]}, cells: cells, pieces: bzPieces(n, sr.M)}
-	h.x0, h.x1 = spec.RangeMinM/1000, spec.RangeMaxM/1000
-	h.y0, h.y1 = -spec.RateMaxMPS, spec.RateMaxMPS
-	marks, err := json.Marshal(bzMarkers(sc, sr, h))
-	if err != nil {
-		panic("server: blind-zone markers not encodable: " + err.Error()) // every number is clamped
-	}
-	out := heatChart(SeriesZones, fmt.Sprintf("blindzones/1/%d/%d/%g/%g", n, sr.M, h.x1, h.y1), h, heatSeries{id: SeriesMarkers, name: "targets", data: marks,
+	h := bzHeat(spec, n)
+	h.xCats, h.yCats = km, roundAll(bz.Rates, 0.1, 1)
+	h.colours, h.cells, h.pieces = []string{bzSeen[len(bzSeen)-1]}, cells, bzPieces(n, sr.M)
+	out := heatChart(SeriesZones, key, h, heatSeries{id: SeriesMarkers, name: "targets", data: appendBZMarkers(nil, sc, sr, h),
 		opts: []charts.SeriesOpts{charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.SymbolSize = 13 }), charts.WithLabelOpts(mapLabel)}})
 	out.name = ChartBlindZones
-	return out, true
+	return out
 }
 
 // bzPieces are the map's legend: one piece per count of CPIs that see a
@@ -160,7 +122,8 @@ func bzPieces(n, m int) []map[string]any {
 	return out
 }
 
-// bzMarker is one target on the blind-zones map.
+// bzMarker is one target on the blind-zones map, as appendBZMarkers
+// encodes it.
 type bzMarker struct {
 	Name      string         `json:"name"`
 	Value     [2]float64     `json:"value"`
@@ -171,10 +134,12 @@ type bzMarker struct {
 	ItemStyle map[string]any `json:"itemStyle"`
 }
 
-// bzMarkers places each point target at its true range and range rate,
-// clamped into the map, marked by the schedule's verdict.
-func bzMarkers(sc *scenarios.Scenario, sr *scenarios.ScheduleReport, h heat) []bzMarker {
-	out := []bzMarker{}
+// appendBZMarkers appends the markers series: each point target at its
+// true range and range rate, clamped into the map, marked by the
+// schedule's verdict; encoded by hand so that nothing is allocated.
+func appendBZMarkers(b []byte, sc *scenarios.Scenario, sr *scenarios.ScheduleReport, h heat) []byte {
+	b = append(b, '[')
+	first := true
 	for j, t := range sc.Targets {
 		if t.Kind != scenarios.TargetPoint || j >= len(sr.Targets) {
 			continue
@@ -186,10 +151,35 @@ func bzMarkers(sc *scenarios.Scenario, sr *scenarios.ScheduleReport, h heat) []b
 		}
 		x := math.Min(math.Max(clampAmp(t.RangeM/1000), h.x0), h.x1)
 		y := math.Min(math.Max(clampAmp(t.RangeRateMPS), h.y0), h.y1)
-		out = append(out, bzMarker{Name: fmt.Sprintf("%s %d/%d", t.ID, st.DetectedIn, sr.N), Value: [2]float64{x, y}, ID: t.ID, Detected: st.Detected,
-			Reason: st.Reason, Symbol: style.symbol, ItemStyle: map[string]any{"color": "rgba(255,255,255,0.6)", "borderColor": style.colour, "borderWidth": 2}})
+		if !first {
+			b = append(b, ',')
+		}
+		first = false
+		b = append(b, `{"name":"`...)
+		for _, r := range t.ID {
+			b = appendStringRune(b, r)
+		}
+		b = append(b, ' ')
+		b = strconv.AppendInt(b, int64(st.DetectedIn), 10)
+		b = append(b, '/')
+		b = strconv.AppendInt(b, int64(sr.N), 10)
+		b = append(b, `","value":[`...)
+		b = appendNumber(b, x)
+		b = append(b, ',')
+		b = appendNumber(b, y)
+		b = append(b, `],"id":`...)
+		b = appendString(b, t.ID)
+		b = append(b, `,"detected":`...)
+		b = strconv.AppendBool(b, st.Detected)
+		b = append(b, `,"reason":`...)
+		b = appendString(b, st.Reason)
+		b = append(b, `,"symbol":`...)
+		b = appendString(b, style.symbol)
+		b = append(b, `,"itemStyle":{"borderColor":`...)
+		b = appendString(b, style.colour)
+		b = append(b, `,"borderWidth":2,"color":"rgba(255,255,255,0.6)"}}`...)
 	}
-	return out
+	return append(b, ']')
 }
 
 // scheduleData is the HTML report's PRF schedule table.
@@ -221,6 +211,14 @@ func scheduleTable(sr *scenarios.ScheduleReport) *scheduleData {
 	}
 	d.Head = strings.Join(head, "; ") + "."
 	for k, c := range sr.CPIs {
+		if c.PRIStaggerS != nil {
+			pris := make([]string, len(c.PRIStaggerS))
+			for i, p := range c.PRIStaggerS {
+				pris[i] = scenarios.SI(p, "s")
+			}
+			d.CPIs = append(d.CPIs, fmt.Sprintf("CPI %d (stagger %s × %d, blind %.1f m/s)", k+1, strings.Join(pris, " / "), c.Pulses, c.BlindSpeedMPS))
+			continue
+		}
 		d.CPIs = append(d.CPIs, fmt.Sprintf("CPI %d (%s × %d)", k+1, scenarios.SI(c.PRIS, "s"), c.Pulses))
 	}
 	for j, t := range sr.Targets {

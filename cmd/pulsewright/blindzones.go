@@ -61,11 +61,18 @@ func (e *env) blindzones(args []string) error {
 		}
 		spec.PulseS, spec.CarrierHz = s.Waveform.PulseWidth(), s.Radar.CarrierHz
 		spec.PRIs, spec.Pulses = []float64{s.Radar.PRIS}, []int{s.Radar.Pulses}
+		staggers := [][]float64{s.Radar.PRIStaggerS}
 		if sc := s.Radar.Schedule; sc != nil {
 			for _, c := range sc.CPIs {
 				spec.PRIs, spec.Pulses = append(spec.PRIs, c.PRIS), append(spec.Pulses, c.Pulses)
+				staggers = append(staggers, c.PRIStaggerS)
 			}
 			spec.M = sc.M
+		}
+		for _, p := range staggers {
+			if len(p) > 0 {
+				spec.Staggers = staggers
+			}
 		}
 	} else {
 		if spec.PRIs, err = floatList("--pri", *pri); err != nil {

@@ -79,7 +79,15 @@ func writeSummaryIn(w io.Writer, s *scenarios.Scenario, u scenarios.Units) error
 	fmt.Fprintf(tw, "valid\t%s\n", name)
 	fmt.Fprintf(tw, "waveform\t%s, B·τ %.4g\n", wf.Describe(), wf.PulseWidth()*wf.Bandwidth())
 	fmt.Fprintf(tw, "radar\t%s, %s peak, %.4g dBi, NF %.3g dB, loss %.3g dB\n", scenarios.SI(r.CarrierHz, "Hz"), scenarios.SI(r.PeakPowerW, "W"), r.AntennaGainDBi, r.NoiseFigureDB, r.SystemLossDB)
-	fmt.Fprintf(tw, "timing\tfs %s, PRI %s, %d pulse(s), window %.6g–%.6g %s (%d samples)\n", scenarios.SI(r.SampleRateHz, "Hz"), scenarios.SI(r.PRIS, "s"), r.Pulses,
+	pri := "PRI " + scenarios.SI(r.PRIS, "s")
+	if r.Staggered() {
+		p := make([]string, len(r.PRIStaggerS))
+		for i, v := range r.PRIStaggerS {
+			p[i] = scenarios.SI(v, "s")
+		}
+		pri = "PRIs " + strings.Join(p, " / ") + " in turn (stagger)"
+	}
+	fmt.Fprintf(tw, "timing\tfs %s, %s, %d pulse(s), window %.6g–%.6g %s (%d samples)\n", scenarios.SI(r.SampleRateHz, "Hz"), pri, r.Pulses,
 		u.FromSI(scenarios.QRange, r.WindowStartM), u.FromSI(scenarios.QRange, r.WindowStopM), u.Range, s.WindowSamples())
 	fmt.Fprintf(tw, "receiver\t%s filter, window %s, %s\n", rx.Filter, rx.Window.Describe(), rx.Detector.Describe())
 	fmt.Fprintf(tw, "targets\t%s\n", scenarios.DescribeTargets(s.Targets))

@@ -66,6 +66,19 @@ func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units) erro
 		fmt.Fprintf(tw, "units\tranges in %s, speeds in %s, range rates positive when %s (files and JSON: m, m/s, positive when opening)\n", u.Range, u.Speed, u.Rate)
 	}
 	fmt.Fprintf(tw, "ranges\tblind %s, unambiguous %s, unambiguous velocity ±%s\n", u.Format(scenarios.QRange, wf.BlindRangeM, 0), u.Format(scenarios.QRange, wf.UnambiguousRangeM, 0), u.Format(scenarios.QSpeed, wf.UnambiguousVelocityMPS, 2))
+	if st := r.Stagger; st != nil {
+		pris := make([]string, len(st.PRIS))
+		for i, p := range st.PRIS {
+			pris[i] = scenarios.SI(p, "s")
+		}
+		line := fmt.Sprintf("PRIs %s (mean %s, step Δ %s): first blind speed %s, %.2f × the mean PRI's %s",
+			strings.Join(pris, " / "), scenarios.SI(st.MeanPRIS, "s"), scenarios.SI(st.StepS, "s"), u.Format(scenarios.QSpeed, st.FirstBlindSpeedMPS, 1),
+			st.FirstBlindSpeedMPS/st.MeanPRIBlindSpeedMPS, u.Format(scenarios.QSpeed, st.MeanPRIBlindSpeedMPS, 1))
+		if st.DeepestDipDB != nil {
+			line += fmt.Sprintf("; deepest dip %s dB at %s", fx(*st.DeepestDipDB, 1), u.Format(scenarios.QSpeed, *st.DeepestDipMPS, 1))
+		}
+		fmt.Fprintf(tw, "stagger\t%s\n", line)
+	}
 	tw.Flush()
 	fmt.Fprintln(w)
 	tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)

@@ -23,6 +23,14 @@ func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport, u scenarios.Uni
 	fmt.Fprintln(w)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	for k, c := range s.CPIs {
+		if c.PRIStaggerS != nil {
+			pris := make([]string, len(c.PRIStaggerS))
+			for i, p := range c.PRIStaggerS {
+				pris[i] = scenarios.SI(p, "s")
+			}
+			fmt.Fprintf(tw, "CPI %d\tstagger %s\t%d pulses\tunambiguous %s\tfirst blind speed %s (stagger)\n", k+1, strings.Join(pris, " / "), c.Pulses, kmText(u, c.UnambiguousRangeM), u.Format(scenarios.QSpeed, c.BlindSpeedMPS, 1))
+			continue
+		}
 		fmt.Fprintf(tw, "CPI %d\tPRI %s\t%d pulses\tunambiguous %s\tblind speed %s\n", k+1, scenarios.SI(c.PRIS, "s"), c.Pulses, kmText(u, c.UnambiguousRangeM), u.Format(scenarios.QSpeed, c.BlindSpeedMPS, 1))
 	}
 	tw.Flush()

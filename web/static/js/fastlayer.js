@@ -16,12 +16,13 @@
 // beyond the axes as they stood are clipped to the plot area until the
 // chart settles and rescales.
 
-// The zlevel of the series this layer stands in for. The blind range (a
-// mark area, fixed while targets move) stays with the axes on level 0.
+// The zlevel of the series this layer stands in for. The blind range and
+// the clutter breakthrough areas (mark areas, which the chart takes when
+// the frames rest) stay with the axes on level 0.
 export const FastZ = 1;
 
 // Series that stay on level 0.
-const Fixed = new Set(['blind']);
+const Fixed = new Set(['blind', 'breakthrough']);
 
 const Font = '11px sans-serif';
 const BoldFont = 'bold 11px sans-serif';

@@ -2,6 +2,7 @@
 // verdict, from the report, beside the pinned reference when there is one.
 
 import { h } from './dom.js';
+import { morphChildren } from './morph.js';
 import { waveformKinds } from './schema.js';
 import { clutterNums, clutterSummary } from './clutter.js';
 import { pdText, statusHelp, statusLabel } from './words.js';
@@ -89,8 +90,8 @@ export function renderFigures(root, report, reference, computeMs) {
       h('div', { class: 'reason' }, restate(t.reason || '')));
   });
 
-  // replaceChildren would write an absent part (null) as the text "null".
-  root.replaceChildren(...[
+  // Updated in place (morph.js): only what changed reaches the document.
+  morphChildren(root, [
     h('h3', {}, 'Waveform'),
     table,
     h('h3', {}, 'Targets'),

@@ -29,6 +29,13 @@ const wrap = (text, width = 56) => {
 };
 // Seconds shown in µs, as the Radar form shows the PRI.
 const us = (s) => (Number.isFinite(s) ? String(Number((s * 1e6).toPrecision(6))) : '');
+// A staggered train's PRIs (pri_stagger_s) in µs, "100, 125".
+const staggerText = (v) => (Array.isArray(v) ? v.map(us).join(', ') : '');
+// The object a stagger path edits: the radar, or CPI i of the schedule.
+const staggerOwner = (s, path) => {
+  const m = /cpis\[(\d+)\]\.pri_stagger_s$/.exec(path);
+  return m ? s.radar.schedule.cpis[Number(m[1])] : s.radar;
+};
 
 // --- the schedule editor ---
 
@@ -60,6 +67,7 @@ function render(s) {
   }
   // Same structure: refresh the values of the fields not being edited.
   for (const el of $$('input[data-sched]', root)) {
+    if (el.dataset.sched.endsWith('.pri_s')) el.disabled = staggered(s, el.dataset.sched);
     if (el === document.activeElement || localErrors.has(el.dataset.sched)) continue;
     el.value = display(s, el.dataset.sched);
   }
@@ -68,10 +76,20 @@ function render(s) {
 }
 
 function ownText(r) {
-  return `PRI ${us(r.pri_s ?? 1e-3)} µs · ${r.pulses ?? 1} pulse${(r.pulses ?? 1) === 1 ? '' : 's'} (the Radar fields above)`;
+  const pri = Array.isArray(r.pri_stagger_s) ? `stagger ${staggerText(r.pri_stagger_s)} µs` : `PRI ${us(r.pri_s ?? 1e-3)} µs`;
+  return `${pri} · ${r.pulses ?? 1} pulse${(r.pulses ?? 1) === 1 ? '' : 's'} (the Radar fields above)`;
+}
+
+// Whether the CPI of a PRI field has a stagger (its PRI is then the
+// stagger's shortest, not edited here).
+function staggered(s, path) {
+  const m = /cpis\[(\d+)\]\.pri_s$/.exec(path);
+  const c = m && schedule(s) && schedule(s).cpis[Number(m[1])];
+  return !!(c && Array.isArray(c.pri_stagger_s));
 }
 
 function display(s, path) {
+  if (path.endsWith('pri_stagger_s')) return staggerText(staggerOwner(s, path).pri_stagger_s);
   const sc = schedule(s);
   if (!sc) return '';
   if (path === 'radar.schedule.m') return String(sc.m ?? 1 + sc.cpis.length);
@@ -92,18 +110,25 @@ function build(s) {
       ? 'Each CPI is evaluated with the same waveform and scene; a target counts as detected when M of the N CPIs detect it, and its range and range rate are unfolded across them.'
       : 'One CPI. Add CPIs at other PRIs to see past blind speeds and folded ranges (M-of-N).'));
   root.append(head);
+  // The radar's own CPI may be a staggered train (radar.pri_stagger_s).
+  const ownStagger = field('Stagger of CPI 1', 'radar.pri_stagger_s', display(s, 'radar.pri_stagger_s'), 'µs',
+    { placeholder: 'e.g. 100, 125', title: 'PRIs the pulses use in turn, µs, separated by commas (2 to 16); empty: one PRI' });
+  ownStagger.classList.add('stagger-own');
   if (!sc) {
+    root.append(ownStagger);
     root.append(h('button', { type: 'button', class: 'sched-add', dataset: { act: 'start' } }, '+ Add a CPI'));
     root.append(h('div', { class: 'err', dataset: { errFor: 'radar.schedule' } }));
     return;
   }
-  const rows = [h('div', { class: 'sched-row own' }, h('span', { class: 'sched-k' }, 'CPI 1'), h('span', { dataset: { own: '' } }, ownText(r)))];
+  const rows = [h('div', { class: 'sched-row own' }, h('span', { class: 'sched-k' }, 'CPI 1'), h('span', { dataset: { own: '' } }, ownText(r))), ownStagger];
   sc.cpis.forEach((c, i) => {
     const base = `radar.schedule.cpis[${i}]`;
     rows.push(h('div', { class: 'sched-row', dataset: { row: i } },
       h('span', { class: 'sched-k' }, `CPI ${i + 2}`),
-      field('PRI', `${base}.pri_s`, display(s, `${base}.pri_s`), 'µs'),
+      field('PRI', `${base}.pri_s`, display(s, `${base}.pri_s`), 'µs', { disabled: staggered(s, `${base}.pri_s`) }),
       field('Pulses', `${base}.pulses`, display(s, `${base}.pulses`), '', { placeholder: String(r.pulses ?? 1) }),
+      field('Stagger', `${base}.pri_stagger_s`, display(s, `${base}.pri_stagger_s`), 'µs',
+        { placeholder: 'none', title: 'PRIs the pulses use in turn, µs, separated by commas (2 to 16); empty: the PRI alone' }),
       h('button', { type: 'button', class: 'icon sched-del', title: `Remove CPI ${i + 2}`, 'aria-label': `Remove CPI ${i + 2}`, dataset: { act: 'remove', i } }, '✕'),
       h('div', { class: 'err sched-row-err', dataset: { errFor: base } })));
   });
@@ -153,6 +178,10 @@ root.addEventListener('input', (ev) => {
   const path = el.dataset && el.dataset.sched;
   if (!path) return;
   const text = el.value.trim();
+  if (path.endsWith('pri_stagger_s')) {
+    staggerInput(el, path, text);
+    return;
+  }
   const isPRI = path.endsWith('.pri_s');
   const v = Number(text);
   let msg = '';
@@ -184,6 +213,56 @@ root.addEventListener('input', (ev) => {
   }, `sched:${path}`);
 });
 root.addEventListener('focusout', () => store.seal());
+
+// The shortest PRI of the CPI of a stagger field in the last frame (the
+// last scene the server accepted), or 0.
+function acceptedShortest(path) {
+  const f = window.__pw.frame();
+  const rep = f && f.report;
+  if (!rep) return 0;
+  const m = /cpis\[(\d+)\]\.pri_stagger_s$/.exec(path);
+  if (m) {
+    const c = rep.schedule && rep.schedule.cpis[Number(m[1]) + 1];
+    return c ? c.pri_s : 0;
+  }
+  return rep.stagger ? Math.min(...rep.stagger.pri_s) : 0;
+}
+
+// A stagger field: PRIs in µs separated by commas or spaces. It sets
+// pri_stagger_s and pri_s (the shortest, as the format asks); empty
+// removes the stagger and keeps that PRI. Text that is not 2 to 16
+// numbers stays on the field and leaves the scene as it was.
+function staggerInput(el, path, text) {
+  const parts = text === '' ? [] : text.split(/[\s,;/]+/).filter((p) => p !== '');
+  const vals = parts.map(Number);
+  let msg = '';
+  const bad = parts.find((p, i) => !Number.isFinite(vals[i]));
+  if (bad !== undefined) msg = `“${bad}” is not a number`;
+  else if (parts.length === 1 || parts.length > 16) msg = `${parts.length} PRIs; give 2 … 16 (µs, separated by commas), or none`;
+  const slot = $(`[data-err-for="${CSS.escape(path)}"]`, root);
+  if (msg) {
+    localErrors.set(path, msg);
+    if (slot) slot.textContent = msg;
+    el.setAttribute('aria-invalid', 'true');
+    return;
+  }
+  localErrors.delete(path);
+  if (slot) slot.textContent = '';
+  el.removeAttribute('aria-invalid');
+  store.update((s) => {
+    s.radar = s.radar || {};
+    const o = staggerOwner(s, path);
+    if (!vals.length) {
+      // Back to one PRI: the shortest of the stagger last accepted.
+      const pri = acceptedShortest(path);
+      if (pri) o.pri_s = pri;
+      delete o.pri_stagger_s;
+      return;
+    }
+    o.pri_stagger_s = vals.map((v) => Number((v * 1e-6).toPrecision(12)));
+    o.pri_s = Math.min(...o.pri_stagger_s);
+  }, `sched:${path}`);
+}
 
 store.onChange((s) => render(s));
 if (store.scenario) render(store.scenario);
@@ -283,7 +362,8 @@ onFrame((f) => {
     const box = $(`[data-cpi="${i + 1}"]`, mapsPane);
     if (!box || c.pulses <= 1) return;
     shown.add(box);
-    $('figcaption', box).textContent = `CPI ${i + 1} · PRI ${us(c.pri_s)} µs · ${c.pulses} pulses · blind speed ${num(c.blind_speed_mps, 1)} m/s`;
+    const pri = c.pri_stagger_s ? `stagger ${staggerText(c.pri_stagger_s)} µs` : `PRI ${us(c.pri_s)} µs`;
+    $('figcaption', box).textContent = `CPI ${i + 1} · ${pri} · ${c.pulses} pulses · blind speed ${num(c.blind_speed_mps, 1)} m/s`;
   });
   for (const box of $$('.cpi-map', mapsPane)) box.hidden = !shown.has(box);
   summary(sr);
