@@ -453,7 +453,7 @@ func (sc *scene) clutterFigures(cs *clutterScene, j int, single, v verdict, bin 
 		}
 	}
 	if sc.train != nil && v.peakK >= 0 && bin >= 0 {
-		if c := sc.clutterMapAt(v.peakK, bin, skip); c > minCNR {
+		if c := sc.clutterMapAt(v.peakK, bin, skip) / sc.train.noise[bin]; c > minCNR {
 			out.CNRIntegratedDB = dbPtr(c)
 			if !g.t.IsClutter() && v.peak > 0 {
 				out.SCRIntegratedDB = dbPtr(v.peak / c)
