@@ -369,7 +369,7 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 		crossed := make(map[int]bool)
 		for d := range nb {
 			s := scenePow(k, d)
-			if s <= 1 {
+			if s <= tr.noise[d] { // under its own bin's noise (an MTI canceller's bins hold unequal noise)
 				continue
 			}
 			j := sc.dominant(k, d)
