@@ -321,18 +321,32 @@ func CAMultiplierWithCUT(pfa float64, n int, cov func(i, j int) complex128) floa
 
 // correlatedCAWithCUT returns the CA multiplier for n training cells with
 // the cell under test's own correlation to them: cov over indices 0 (the
-// cell under test) … n. Exact up to MaxExactCorrelatedCells training
-// cells (CAMultiplierWithCUT); beyond, Richards' formula for the training
-// cells' effective number N²/Σ|R_ij|², which ignores the cell under
-// test's correlation and so errs on the safe side (a lower Pfa: 0.87·Pfa
-// for 128 cells, 4 guard, a Hamming-weighted LFM at 4 samples per 1/B,
-// from the exact form).
+// cell under test) … n, in units of the cell under test's noise power
+// (cov(0, 0) = 1; a training cell may hold more or less noise than it, as
+// Doppler bins do behind an MTI canceller). Exact up to
+// MaxExactCorrelatedCells training cells (CAMultiplierWithCUT); beyond,
+// Richards' formula for the training sum's effective number of
+// independent cells, N_e = (Σ_i Σ_ii)²/Σ_ij |Σ_ij|² (the number of equal,
+// independent cells with the same mean and variance of the sum; N²/Σ|R_ij|²
+// for unit variances), scaled by the ratio of the cell under test's noise
+// to the training cells' mean noise:
+//
+//	α = (N / Σ_i Σ_ii) · N_e·(Pfa^(−1/N_e) − 1),
+//
+// exact for independent training cells of equal variance (then
+// Pfa = (1 + α·σ²/N)^(−N)). It ignores the cell under test's correlation
+// and so errs on the safe side (a lower Pfa: 0.87·Pfa for 128 cells, 4
+// guard, a Hamming-weighted LFM at 4 samples per 1/B, from the exact form).
 func correlatedCAWithCUT(pfa float64, n int, cov func(i, j int) complex128) float64 {
 	if n <= MaxExactCorrelatedCells {
 		if a := CAMultiplierWithCUT(pfa, n, cov); !math.IsNaN(a) {
 			return a
 		}
 	}
-	ne := EffectiveCells(n, func(i, j int) complex128 { return cov(i+1, j+1) })
-	return ne * (math.Pow(pfa, -1/ne) - 1)
+	tr := 0.0
+	for i := 1; i <= n; i++ {
+		tr += real(cov(i, i))
+	}
+	ne := EffectiveCells(n, func(i, j int) complex128 { return cov(i+1, j+1) }) * tr * tr / float64(n*n)
+	return float64(n) / tr * ne * (math.Pow(pfa, -1/ne) - 1)
 }

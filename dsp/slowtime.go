@@ -212,6 +212,36 @@ func (p *SlowTimePlan) FlatResponse(s []float64) float64 {
 	return sum * p.scale * p.scale
 }
 
+// FlatResponseBins fills dst (Bins() values; nil allocates) with the
+// power in each bin of a return that decorrelates from pulse to pulse,
+// pulse i of power s[i] (length Pulses()), relative to unit noise per
+// pulse: Σ_i s[i]·|A_{d,i}|², A the plan's linear map (MTI, window, DFT
+// or a stagger's filters, scaling), the diagonal of NoiseCovariance when
+// every s[i] is 1. Its mean over the bins is FlatResponse(s) on a uniform
+// train; behind an MTI canceller it follows the canceller's response
+// (MTIResponse) smoothed by the window, as noise does. It panics if s has
+// the wrong length.
+func (p *SlowTimePlan) FlatResponseBins(dst, s []float64) []float64 {
+	if len(s) != p.n {
+		panic("dsp: slow-time power length mismatch")
+	}
+	if dst == nil {
+		dst = make([]float64, p.m)
+	}
+	clear(dst)
+	e := make([]complex128, p.n)
+	y := make([]complex128, p.m)
+	for q := range p.n {
+		clear(e)
+		e[q] = 1
+		p.Apply(y, e)
+		for d, v := range y {
+			dst[d] += s[q] * (real(v)*real(v) + imag(v)*imag(v))
+		}
+	}
+	return dst
+}
+
 // Bin returns the bin nearest to normalised Doppler frequency fdT, after
 // folding it into [−½, ½).
 func (p *SlowTimePlan) Bin(fdT float64) int {

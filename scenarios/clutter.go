@@ -369,7 +369,7 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 		crossed := make(map[int]bool)
 		for d := range nb {
 			s := scenePow(k, d)
-			if s <= 1 {
+			if s <= tr.noise[d] { // under its own bin's noise (an MTI canceller's bins hold unequal noise)
 				continue
 			}
 			j := sc.dominant(k, d)
@@ -453,7 +453,7 @@ func (sc *scene) clutterFigures(cs *clutterScene, j int, single, v verdict, bin 
 		}
 	}
 	if sc.train != nil && v.peakK >= 0 && bin >= 0 {
-		if c := sc.clutterMapAt(v.peakK, bin, skip); c > minCNR {
+		if c := sc.clutterMapAt(v.peakK, bin, skip) / sc.train.noise[bin]; c > minCNR {
 			out.CNRIntegratedDB = dbPtr(c)
 			if !g.t.IsClutter() && v.peak > 0 {
 				out.SCRIntegratedDB = dbPtr(v.peak / c)

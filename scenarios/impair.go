@@ -483,13 +483,15 @@ func (tr *train) extraGain() {
 		e := &tr.sc.extras[i]
 		e.gain = make([]float64, nb)
 		var a []float64 // the scan's modulation of a point target's echo
-		flat := e.flat
+		// The decorrelating part spreads over the bins as noise does
+		// (tr.noise), or as the scan's pulse powers weight it.
+		flat := tr.noise
 		if tr.scanA != nil && e.owner >= 0 && tr.sc.targets[e.owner].t.Kind == TargetPoint {
 			a = tr.scanA
-			flat *= tr.plan.FlatResponse(tr.scanPow)
+			flat = tr.plan.FlatResponseBins(tmp, tr.scanPow)
 		}
 		for d := range e.gain {
-			e.gain[d] = flat
+			e.gain[d] = e.flat * flat[d]
 		}
 		for _, t := range e.tones {
 			tr.plan.ModulatedToneResponse(tmp, t.fdT, a)

@@ -157,19 +157,20 @@ func (tr *train) staggerGroups(j int, c float64) []staggerGroup {
 	fdT := g.fd * tr.T
 	x := make([]complex128, np)
 	y := make([]complex128, nb)
+	pows := make([]float64, np)
 	var out []staggerGroup
 	for _, s := range order {
 		a := amps[s]
-		pw := 0.0
 		for p := range np {
 			x[p] = complex(a[p], 0) * tr.plan.Tone(fdT, p)
-			pw += a[p] * a[p]
+			pows[p] = a[p] * a[p]
 		}
 		tr.plan.Apply(y, x)
+		flat := tr.plan.FlatResponseBins(nil, pows)
 		gain := make([]float64, nb)
 		for d, v := range y {
 			tone := real(v)*real(v) + imag(v)*imag(v)
-			gain[d] = (c*tone + (1-c)*tr.incoherent()*pw/float64(np)) * (1 - g.slowVar)
+			gain[d] = (c*tone + (1-c)*flat[d]) * (1 - g.slowVar)
 		}
 		out = append(out, staggerGroup{shift: s, gain: gain})
 	}

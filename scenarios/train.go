@@ -27,9 +27,15 @@ type train struct {
 	m    *model
 	sc   *scene
 	plan *dsp.SlowTimePlan
-	gain [][]float64 // gain[j][bin]: target j's power per bin for unit single-pulse power, re noise per bin
-	cf2  *dsp.CFAR2D // the map's detector, kept with the multipliers it has solved
-	cfOK bool
+	gain [][]float64 // gain[j][bin]: target j's power per bin for unit single-pulse power, re unit noise per pulse
+	// noise[bin]: the power per bin of white noise of unit power per
+	// pulse (the diagonal of plan.NoiseCovariance). Its mean over the
+	// bins is 1; it is 1 in every bin without an MTI canceller on a
+	// uniform train, and follows the canceller's |H(f)|²/Σh² with one
+	// (near zero at zero Doppler, about 2 at ±PRF/2 for two pulses).
+	noise []float64
+	cf2   *dsp.CFAR2D // the map's detector, kept with the multipliers it has solved
+	cfOK  bool
 	// T is the slow-time unit, s: the PRI, or a stagger's mean PRI;
 	// times the pulse times in units of T for a stagger (nil: uniform).
 	T     float64
@@ -74,6 +80,10 @@ func newTrain(m *model, sc *scene) *train {
 	tr := &train{m: m, sc: sc, T: r.slowPRI(), times: staggerTimes(r)}
 	tr.plan = tr.newPlan()
 	nb := tr.plan.Bins()
+	tr.noise = make([]float64, nb)
+	for d, row := range tr.plan.NoiseCovariance() {
+		tr.noise[d] = real(row[d])
+	}
 	tr.groups = make([][]staggerGroup, len(sc.targets))
 	if tr.scanA = m.scanGains(); tr.scanA != nil {
 		tr.scanPow = make([]float64, len(tr.scanA))
@@ -97,15 +107,15 @@ func newTrain(m *model, sc *scene) *train {
 			c := coherentFraction(g.t.Fluctuation)
 			tone := tr.plan.ToneResponse(nil, fdT)
 			for d := range gain {
-				gain[d] = (c*tone[d] + (1-c)*tr.incoherent()) * (1 - g.slowVar)
+				gain[d] = (c*tone[d] + (1-c)*tr.noise[d]) * (1 - g.slowVar)
 			}
 			if tr.scanA != nil {
 				// The scan weights each pulse by the beam's two-way gain.
 				plain := slices.Max(gain)
 				mod := tr.plan.ModulatedToneResponse(tone, fdT, tr.scanA)
-				flat := tr.plan.FlatResponse(tr.scanPow)
+				flat := tr.plan.FlatResponseBins(nil, tr.scanPow)
 				for d := range gain {
-					gain[d] = (c*mod[d] + (1-c)*flat) * (1 - g.slowVar)
+					gain[d] = (c*mod[d] + (1-c)*flat[d]) * (1 - g.slowVar)
 				}
 				if peak := slices.Max(gain); peak > 0 && plain > 0 {
 					tr.scanLoss[j] = dsp.DB(plain / peak)
@@ -154,10 +164,6 @@ func newTrain(m *model, sc *scene) *train {
 	}
 	return tr
 }
-
-// incoherent is the per-bin power of a unit-power return that decorrelates
-// from pulse to pulse: 1, since the plan keeps white noise at unit power.
-func (tr *train) incoherent() float64 { return 1 }
 
 // power returns target j's expected power at range cell k, Doppler bin d.
 func (tr *train) power(j, k, d int) float64 {
@@ -222,13 +228,18 @@ func c2DCells(c *dsp.CFAR2D) int {
 	return (2*(c.GuardR+c.TrainR/2)+1)*(2*(c.GuardD+c.TrainD/2)+1) - (2*c.GuardR+1)*(2*c.GuardD+1)
 }
 
-// level returns the map detector's threshold at (k, d) with extra power
-// p(k, d) on top of unit noise in the training cells.
+// level returns the map detector's threshold at (k, d), in units of unit
+// noise per pulse (the map's), with extra power p(k, d) on top of each
+// training cell's own noise, tr.noise of its bin. Behind an MTI canceller
+// the bins hold unequal noise: the training cells' expected power is
+// their bin's noise, not 1, and the CFAR's multiplier (CFAR2D) already
+// holds Pfa for the cell under test's own noise. A fixed threshold is
+// set for each Doppler bin's own noise, so that every bin keeps Pfa.
 func (tr *train) level(cf *dsp.CFAR2D, k, d int, p func(k, d int) float64) float64 {
 	if cf == nil {
-		return dsp.FixedMultiplier(tr.m.s.Receiver.Detector.PFA)
+		return dsp.FixedMultiplier(tr.m.s.Receiver.Detector.PFA) * tr.noise[d]
 	}
-	return cf.LevelValid(func(k, d int) float64 { return 1 + p(k, d) }, tr.valid, k, d, tr.m.n, tr.plan.Bins())
+	return cf.LevelValid(func(kk, dd int) float64 { return tr.noise[dd] + p(kk, dd) }, tr.valid, k, d, tr.m.n, tr.plan.Bins())
 }
 
 // judge decides target j's status on the range–Doppler map.
@@ -271,6 +282,17 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 		v.alone = tr.level(cf, k, d, func(kk, dd int) float64 { return tr.power(j, kk, dd) })
 		if cf != nil {
 			v.cells = len(cf.Cells(tr.valid, k, d, tr.m.n, tr.plan.Bins()))
+		}
+		// The verdict's powers are re the noise of the peak's own bin,
+		// so that its peak is the SNR the detector sees there (an MTI
+		// canceller scales a target and the noise of its bin alike).
+		if nz := tr.noise[d]; nz > 0 {
+			v.peak /= nz
+			v.noiseLevel /= nz
+			v.sceneLevel /= nz
+			v.cell /= nz
+			v.threshold /= nz
+			v.alone /= nz
 		}
 	}
 	// The eclipsing loss scales the target's map power as its range power.
@@ -573,7 +595,7 @@ func (tr *train) report(j int, v, single verdict, bin int, out *TargetReport) {
 	}
 	out.BlindSpeed = &blind
 	if v.peakK >= 0 && v.peak > 0 {
-		snr := out.SNRDB + dsp.DB(tr.gain[j][bin])
+		snr := out.SNRDB + dsp.DB(tr.gain[j][bin]/tr.noise[bin])
 		out.SNRIntegratedDB = &snr
 	}
 	if tr.scanLoss != nil && g.t.Kind == TargetPoint {

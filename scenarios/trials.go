@@ -146,7 +146,7 @@ func NewTrials(ctx context.Context, s *Scenario) (*Trials, error) {
 		}
 		if sc.train != nil {
 			if k, d, p := sc.train.peak(j); k >= 0 && p > 0 {
-				t.cells[j], t.tested[j] = [2]int{k, d}, p
+				t.cells[j], t.tested[j] = [2]int{k, d}, p/sc.train.noise[d] // re its bin's noise
 			}
 		} else if k, p := g.resp.peakIn(m.processed); k >= 0 && p > 0 {
 			t.cells[j], t.tested[j] = [2]int{k, 0}, p
@@ -423,7 +423,7 @@ func (w *trialWorker) mapTrial(c *TrialCounts) {
 	p := func(k, d int) float64 { return w.pm[d][k] }
 	fixed := dsp.FixedMultiplier(m.s.Receiver.Detector.PFA)
 	hit := func(k, d int) bool {
-		th := fixed
+		th := fixed * w.tr.noise[d] // a fixed threshold holds Pfa in each bin's own noise (train.level)
 		if w.cf2 != nil {
 			th = w.cf2.LevelValid(p, w.tr.valid, k, d, m.n, nb)
 		}
