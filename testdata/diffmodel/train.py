@@ -1,0 +1,572 @@
+#!/usr/bin/python3
+"""The pulse-train part of the independent model: uniform-PRI trains
+(`radar.pulses` > 1) of point targets, from docs/detection.md §9 (the
+slow-time plan, the expected range-Doppler map, the 2-D CFAR, the
+verdict read over the peak bin's noise), §6-7 (statuses, masked_by),
+§10 (the false-alarm rate of a map), docs/detection-probability.md §7
+(one test at the integrated SNR) and the report format's "Pulse trains"
+fields, never from the Go code.
+
+It reuses model.py's waveform, filter, sampling and Pd functions and
+writes its own scene, as clutter.py does.
+
+Slow time (docs/detection.md §9, §16 with equal PRIs, scenario-format.md
+"mti"): pulses x_0 .. x_{P-1} of one range gate; the binomial canceller
+h (none [1], two_pulse [1, -1], three_pulse [1, -2, 1]) gives
+y_q = sum_i h_i x_{q+l-1-i}, q = 0 .. M-1, M = P - l + 1; the Doppler
+window w (the symmetric M-point window; see README "Ambiguities"); the
+bank Y_d = s sum_q w_q y_q exp(-j 2 pi f_d q), f_d = (d - floor(M/2))/M
+cycles per PRI, s = 1/sqrt(sum h^2 sum w^2). Y = A x; the bins' noise
+covariance for white unit noise per pulse is C_d = A A^H, N(d) = C_d(d, d);
+a target's gain g(d) = |A t|^2 for its tone t_p = exp(j 2 pi f_D PRI p).
+"""
+import math
+
+import numpy as np
+import scipy.signal
+
+import model
+
+C = model.C
+MTI_TAPS = {"none": [1.0], "two_pulse": [1.0, -1.0], "three_pulse": [1.0, -2.0, 1.0]}
+
+
+class Plan:
+    """The slow-time plan of a uniform train."""
+
+    def __init__(self, pulses, mti, dwin):
+        h = np.array(MTI_TAPS[mti])
+        l = len(h)
+        M = pulses - l + 1
+        w = model.window_sym(dwin, M)
+        s = 1 / math.sqrt(np.sum(h ** 2) * np.sum(w ** 2))
+        fbin = (np.arange(M) - M // 2) / M
+        F = np.exp(-2j * math.pi * np.outer(fbin, np.arange(M))) * w[None, :] * s  # M x M (bins x MTI outputs)
+        H = np.zeros((M, pulses))  # MTI outputs x pulses
+        for q in range(M):
+            for i in range(l):
+                H[q, q + l - 1 - i] = h[i]
+        self.A = F @ H
+        self.M, self.P, self.h, self.w, self.s = M, pulses, h, w, s
+        self.Cd = self.A @ self.A.conj().T
+        self.N = np.real(np.diag(self.Cd)).copy()
+        self.fbin = fbin
+
+    def gain(self, fd_pri):
+        """|A t|^2 per bin for the unit tone of fd_pri cycles per PRI. The
+        canceller's output of a tone is the tone times H(f) = sum_i h_i
+        exp(-j 2 pi f i), periodic in f: computed at f - round(f), so that
+        a tone at a multiple of the PRF is cancelled exactly (H = sum h = 0),
+        as the canceller cancels it."""
+        f = fd_pri - round(fd_pri)
+        l = len(self.h)
+        Hf = np.sum(self.h * np.exp(-2j * math.pi * f * np.arange(l)))
+        q = np.arange(self.M)
+        y = np.exp(2j * math.pi * f * (q + l - 1)) * Hf  # MTI output q (its newest pulse q + l - 1)
+        fbin = (np.arange(self.M) - self.M // 2) / self.M
+        Y = (np.exp(-2j * math.pi * np.outer(fbin, q)) * (self.w * self.s)[None, :]) @ y
+        return np.abs(Y) ** 2
+
+
+def first_argmax(p, rel=1e-9):
+    """first index whose value is within rel of the maximum."""
+    mx = np.max(p)
+    if mx <= 0:
+        return int(np.argmax(p))
+    return int(np.argmax(p >= mx * (1 - rel)))
+
+
+def pd_sw1(chi, kind, pfa, r, M=None, N=None, kk=None):
+    """Swerling 1, one test (the coherent train's integrated SNR chi):
+    detection-probability.md §7 closed forms at the raised threshold r."""
+    if kind == "fixed":
+        return math.exp(-r * -math.log(pfa) / (1 + chi))
+    if kind == "ca_cfar":
+        c = pfa ** (-1.0 / M) - 1
+        return (1 + r * c / (1 + chi)) ** -M
+    a = r * model.os_alpha(N, kk, pfa) / (1 + chi)
+    return math.exp(sum(math.log((N - i) / (N - i + a)) for i in range(kk)))
+
+
+def train_scene(sc):
+    wf, wave, filt = model.waveform_figures(sc)
+    rx = sc.get("receiver", {})
+    rd = model.radar_defaults(sc, wave)
+    det = model.detector_defaults(rx)
+    if det["kind"] != "fixed":
+        det.setdefault("doppler_guard_cells", 1)
+        det.setdefault("doppler_training_cells", 4)
+    fs, pri, tau = rd["sample_rate_hz"], rd["pri_s"], wave.tau
+    pulses = rd["pulses"]
+    lam = C / rd["carrier_hz"]
+    plan = Plan(pulses, rx.get("mti", "none"), rx.get("doppler_window", {"kind": "hann"}))
+    M = plan.M
+    wf = {k: v for k, v in wf.items() if not k.startswith("_")}
+    wf["doppler_resolution_hz"] = 1 / (pulses * pri)
+    wf["velocity_resolution_mps"] = lam / 2 / (pulses * pri)
+
+    # ---- the single-pulse responses (docs/detection.md §1-3), as model.scene
+    ws, we = rd["window_start_m"], rd["window_stop_m"]
+    t0 = 2 * ws / C
+    n = int((we - ws) * 2 / C * fs) + 1
+    ref, lead = model.reference_at(wave, filt, fs)
+    L = len(ref)
+    G = float(np.sum(np.abs(ref) ** 2))
+    nraw = n + L - 1 - lead
+    jr = np.arange(nraw)
+    traw = t0 + jr / fs
+
+    def ceil9(x):
+        r = round(x)
+        return int(r) if abs(x - r) <= 1e-9 * max(1.0, abs(x)) else int(math.ceil(x))
+    blank = np.zeros(nraw, bool)
+    m = max(math.floor(t0 / pri) - 1, 0)
+    while m * pri < t0 + nraw / fs:
+        lo, hi = ceil9((m * pri - t0) * fs), ceil9((m * pri + tau - t0) * fs)
+        blank[max(lo, 0):max(min(hi, nraw), 0)] = True
+        m += 1
+    processed = ~blank[:n]
+
+    def compress(x):
+        xp = np.concatenate([np.zeros(lead, complex), x])
+        y = scipy.signal.correlate(xp, ref, "full", method="fft" if len(xp) * L > 1e6 else "direct")
+        return y[L - 1:L - 1 + n]
+
+    G0 = 10 ** (rd["antenna_gain_dbi"] / 10)
+    Fn = 10 ** (rd["noise_figure_db"] / 10)
+    Ls = 10 ** (rd["system_loss_db"] / 10)
+    runamb = C * pri / 2
+    objs = []
+    for t in sc.get("targets", []):
+        R = t["range_m"]
+        rr = t.get("range_rate_mps", 0.0)
+        fd = -2 * rr / lam
+        snr_eq = rd["peak_power_w"] * tau * G0 ** 2 * lam ** 2 * 10 ** (t["rcs_dbsm"] / 10) / (
+            (4 * math.pi) ** 3 * R ** 4 * model.KB * model.T0 * Fn * Ls)
+        folds = math.floor(R / runamb)
+        Ra = R - folds * runamb
+        delta = 2 * Ra / C - t0
+        amp = math.sqrt(snr_eq / (tau * fs))
+        x = model.sample_wave(wave, fs, jr, delta) * amp
+        inpulse = np.abs(x) > 0
+        x = x * np.exp(2j * math.pi * fd * traw)  # |fd| < fs/2 in these cases
+        Pu = np.abs(compress(x)) ** 2 / G
+        nb = int(np.count_nonzero(inpulse & blank))
+        nin = int(np.count_nonzero(inpulse))
+        P = np.abs(compress(np.where(blank, 0, x))) ** 2 / G
+        Pp = np.where(processed, P, -1.0)
+        k = first_argmax(Pp)
+        Pstar = max(P[k], 0.0) if processed[k] else 0.0
+        g = plan.gain(fd * pri)
+        d = first_argmax(g)  # ties: first bin (README "Ambiguities")
+        dl, shift = model.doppler_response(wave, filt, fd)
+        objs.append(dict(t=t, rr=rr, R=R, Ra=Ra, folds=folds, fd=fd, snr_eq=snr_eq, P=P, Pu=Pu, k=k, d=d, g=g,
+                         Pstar=Pstar, Pustar=float(Pu.max()), nb=nb, nin=nin, dl=dl, shift=shift))
+    # the expected map S(k, d) = sum_i P_i(k) g_i(d)
+    S = np.zeros((n, M))
+    for o in objs:
+        S += np.outer(o["P"], o["g"])
+
+    acf = scipy.signal.correlate(ref, ref, "full")
+
+    def rho(mm):
+        mm = np.asarray(mm)
+        out = np.zeros(mm.shape, complex)
+        ok = np.abs(mm) < L
+        out[ok] = np.conj(acf[L - 1 + mm[ok]]) / G
+        return out
+    kind, pfa = det["kind"], det["pfa"]
+    Nd = plan.N
+    Cn = plan.Cd / np.sqrt(np.outer(Nd, Nd))  # normalised bin correlation
+
+    # Doppler and range lattice spacings of the OS-CFAR (§5, §9)
+    if kind != "fixed":
+        g_, tr = det["guard_cells"], det["training_cells"]
+        dg, dtr = det["doppler_guard_cells"], det["doppler_training_cells"]
+        bmax = min(dg + dtr // 2, (M - 1) // 2)
+        sr = sd = 1
+        if kind == "os_cfar":
+            span = 2 * (g_ + tr // 2)
+            while sr <= span:
+                js = np.arange(1, span // sr + 1)
+                if np.all(np.abs(rho(js * sr)) <= 0.1):
+                    break
+                sr += 1
+            # Doppler: every lag j s_d up to the span min(2 (dguard +
+            # dtraining/2), M - 1), every d, modulo M (docs/detection.md
+            # §9); none: span + 1
+            dspan = min(2 * (dg + dtr // 2), M - 1)
+            sd = 1
+            while sd <= dspan:
+                ok = True
+                for j in range(1, dspan // sd + 1):
+                    lag = j * sd
+                    if np.max(np.abs(np.array([Cn[dd, (dd + lag) % M] for dd in range(M)]))) > 0.1:
+                        ok = False
+                        break
+                if ok:
+                    break
+                sd += 1
+
+    cache = {}
+
+    def os_rank(Nc):
+        """the rank on the map (§9): 1 + round((rank - 1)/training N_2D),
+        N_2D the cells of the whole 2-D region (Doppler extent unclamped),
+        then scaled to the Nc cells kept as one pulse's OS: round(r N/N_2D),
+        clamped to 1 .. Nc (round: half away from zero)."""
+        n2 = (2 * (g_ + tr // 2) + 1) * (2 * (dg + dtr // 2) + 1) - (2 * g_ + 1) * (2 * dg + 1)
+        r2 = 1 + int(math.floor((det["rank"] - 1) / tr * n2 + 0.5))
+        return min(max(int(math.floor(r2 * Nc / n2 + 0.5)), 1), Nc)
+
+    def cells(k, d):
+        """training cells (a, b) of cell (k, d) (§9)."""
+        out = []
+        for a in range(-(g_ + tr // 2), g_ + tr // 2 + 1):
+            if not (0 <= k + a < n and processed[k + a]):
+                continue
+            if a % sr:
+                continue
+            for b in range(-bmax, bmax + 1):
+                if abs(a) <= g_ and abs(b) <= dg:
+                    continue
+                if b % sd:
+                    continue
+                out.append((a, b))
+        return out
+
+    def level(k, d, power):
+        """(level with training cells N + power, level with N alone,
+        cells) at map cell (k, d)."""
+        if kind == "fixed":
+            v = -math.log(pfa) * Nd[d]
+            return v, v, []
+        cs = cells(k, d)
+        Nc = len(cs)
+        if Nc == 0:
+            return float("inf"), float("inf"), cs
+        kk_ = np.array([k + a for a, b in cs])
+        dd_ = np.array([(d + b) % M for a, b in cs])
+        vals = Nd[dd_] + power[kk_, dd_]
+        noise = Nd[dd_]
+        if kind == "ca_cfar":
+            key = (d, tuple(cs))
+            if key not in cache:
+                aa = np.array([0] + [a for a, b in cs])
+                bb = np.array([d] + list(dd_))
+                Sig = rho(aa[None, :] - aa[:, None]) * plan.Cd[bb[:, None], bb[None, :]] / Nd[d]
+                Sig = (Sig + Sig.conj().T) / 2
+                if Nc <= 64:
+                    cache[key] = model.ca_alpha_cut(Sig + 1e-12 * np.eye(Nc + 1), pfa)
+                else:
+                    St = Sig[1:, 1:]
+                    tr_ = float(np.real(np.trace(St)))
+                    Ne = tr_ ** 2 / float(np.sum(np.abs(St) ** 2))
+                    cache[key] = (Nc / tr_) * Ne * (pfa ** (-1 / Ne) - 1)
+            a = cache[key]
+            return a * vals.mean(), a * noise.mean(), cs
+        r = os_rank(Nc)
+        a = model.os_alpha(Nc, r, pfa)
+        return a * np.sort(vals)[r - 1], a * np.sort(noise)[r - 1], cs
+
+    out = []
+    req = det["pd_required"]
+    for j, o in enumerate(objs):
+        t = o["t"]
+        k, d = o["k"], o["d"]
+        Pmap = o["Pstar"] * o["g"][d]
+        Lk, Lnoise, cs = level(k, d, S)
+        Cc = S[k, d] - Pmap
+        T = max(Lk, Cc)
+        ecl = None
+        if 0 < o["nb"] < o["nin"] and o["Pstar"] > 0:
+            ecl = max(0.0, 10 * math.log10(o["Pustar"] / o["Pstar"]))
+        snr = 10 * math.log10(o["snr_eq"]) - wf["mismatch_loss_db"] - o["dl"] - (ecl or 0.0)
+        rec = {"id": t["id"], "range_m": o["R"], "snr_db": max(snr, -100.0), "doppler_hz": o["fd"],
+               "doppler_loss_db": o["dl"], "range_shift_m": o["shift"] * C / 2}
+        if ecl is not None:
+            rec["eclipsing_loss_db"] = ecl
+        chi = Pmap / Nd[d]
+        chiu = o["Pustar"] * o["g"][d] / Nd[d]
+        fl = t.get("fluctuation", "none")
+        pdf = None
+        sceneok = lambda r: True
+        reach = lambda r: True
+        if Pmap > 0 and math.isfinite(Lnoise) and Lnoise > 0:
+            if kind == "fixed":
+                if fl == "swerling1":
+                    pdf = lambda x, r=1.0: pd_sw1(x, kind, pfa, r)
+                else:
+                    pdf = lambda x, r=1.0: model.pd_fixed(x, pfa, r)
+            elif kind == "ca_cfar" and cs:
+                Mc = len(cs)
+                cc = pfa ** (-1.0 / Mc) - 1
+                if fl == "swerling1":
+                    pdf = lambda x, r=1.0, Mc=Mc: pd_sw1(x, kind, pfa, r, M=Mc)
+                else:
+                    pdf = lambda x, r=1.0, Mc=Mc: model.pd_ca(x, pfa, Mc, r)
+                sceneok = lambda r, Mc=Mc, cc=cc: -Mc * math.log1p(r * cc) >= math.log(1e-300)
+                reach = lambda r, cc=cc: r * cc <= 1e4  # multiplier on the sum (detection-probability.md §3)
+            elif kind == "os_cfar" and cs:
+                Nc = len(cs)
+                kk = os_rank(Nc)
+                if fl == "swerling1":
+                    pdf = lambda x, r=1.0, Nc=Nc, kk=kk: pd_sw1(x, kind, pfa, r, N=Nc, kk=kk)
+                else:
+                    pdf = lambda x, r=1.0, Nc=Nc, kk=kk: model.pd_os(x, pfa, Nc, kk, r)
+                a0 = model.os_alpha(Nc, kk, pfa)
+                sceneok = lambda r, Nc=Nc, kk=kk, a0=a0: sum(math.log((Nc - i) / (Nc - i + r * a0)) for i in range(kk)) >= math.log(1e-300)
+                reach = lambda r, Nc=Nc, a0=a0: r * a0 <= 1e4 * Nc  # idem, OS: 1e4 times the cells
+        if pdf is not None and fl != "none" and not reach(1.0):
+            # the nominal detector itself is beyond the series (a few OS
+            # cells at a low Pfa): no Pd for a fluctuating target, the
+            # threshold decides (detection.md §6)
+            pdf = None
+        touched = o["nb"] > 0
+        inwin = ws <= o["Ra"] <= we
+        rule = None
+        pd_noise = pd_scene = None
+        if pdf is not None:
+            rr_ = max(T / Lnoise, 1.0)
+            pd_noise = pdf(chi)
+            pd_scene = pdf(chi, rr_) if sceneok(rr_) else None
+            if fl != "none" and not reach(rr_):
+                # beyond the series' reach a fluctuating target's Pd in
+                # the scene is left out and P >= T decides (detection.md §6)
+                pd_scene = None
+        if not inwin:
+            st = "out_of_window"
+        elif o["folds"] > 0:
+            st = "folded"
+        elif touched and (o["nb"] == o["nin"] or Pmap == 0):  # on the map: no cell holds its power
+            st = "eclipsed"
+        elif Pmap <= 0:
+            st = "out_of_window"
+        elif pdf is not None:
+            rule = "pd"
+            if (pd_scene >= req) if pd_scene is not None else (Pmap >= T):
+                st = "detected"
+            elif touched and chiu > 0 and pdf(chiu) >= req:
+                st = "eclipsed"
+            elif pd_noise < req:
+                st = "too_weak"
+            else:
+                st = "masked"
+        else:
+            rule = "threshold"
+            if Pmap >= T:
+                st = "detected"
+            elif touched and o["Pustar"] * o["g"][d] >= Lnoise:
+                st = "eclipsed"
+            elif Pmap < Lnoise:
+                st = "too_weak"
+            else:
+                st = "masked"
+        if st == "masked":
+            if Cc >= Lk:
+                contrib = [q["P"][k] * q["g"][d] if i != j else -1 for i, q in enumerate(objs)]
+            else:
+                kk_ = np.array([k + a for a, b in cs])
+                dd_ = np.array([(d + b) % M for a, b in cs])
+                contrib = [float(np.sum(q["P"][kk_] * q["g"][dd_])) for q in objs]
+            best = int(np.argmax(contrib))
+            if contrib[best] > 0:
+                rec["masked_by"] = objs[best]["t"]["id"]
+            rec["_masked_via"] = "cell" if Cc >= Lk else "cfar"
+        rec["status"] = st
+        if rule is not None:
+            rec["decided_on"] = rule
+        if st not in ("eclipsed", "out_of_window", "folded") and Pmap > 0 and math.isfinite(T):
+            rec["threshold_margin_db"] = 10 * math.log10(Pmap / T)
+        if pdf is not None and (rule is not None or st == "folded"):
+            if pd_scene is not None:
+                rec["pd"] = pd_scene
+            cr = model.required_snr(pdf, req)
+            if cr is not None:
+                rec["snr_required_db"] = 10 * math.log10(cr)
+                rec["margin_db"] = 10 * math.log10(chi) - rec["snr_required_db"]
+        # snr_db (the continuous peak: no range straddle) plus the
+        # slow-time gain of the peak bin over its noise (report-format.md
+        # "Pulse trains"; README "Ambiguities" for the tested SNR)
+        if Pmap > 0:
+            rec["snr_integrated_db"] = rec["snr_db"] + 10 * math.log10(o["g"][d] / Nd[d])
+        # the target's range rate folded into +- lambda/(4 PRI)
+        vu = lam / (4 * pri)
+        rec["apparent_range_rate_mps"] = o["rr"] - 2 * vu * round(o["rr"] / (2 * vu))
+        # blind: the Doppler folds by a non-zero multiple of the PRF to
+        # within half a bin of zero (README "Ambiguities")
+        mult = round(o["fd"] * pri)
+        rec["blind_speed"] = bool(mult != 0 and abs(o["fd"] * pri - mult) <= 0.5 / M)
+        rec["_peak"] = [k, d]
+        rec["_level_db"] = 10 * math.log10(Lk) if math.isfinite(Lk) else None
+        rec["_noise_level_db"] = 10 * math.log10(Lnoise) if math.isfinite(Lnoise) else None
+        rec["_cells"] = len(cs)
+        out.append(rec)
+
+    nproc = int(np.count_nonzero(processed))
+    corr_len = float(np.sum(np.abs(acf) ** 2)) / G ** 2
+    indep_r = min(nproc / corr_len, nproc)
+    indep_d = M ** 2 / float(np.sum(np.abs(Cn) ** 2))
+    look = pulses * pri
+    indep = indep_r * indep_d
+    fa = {"pfa": pfa, "tested_cells": nproc * M, "independent_cells": indep, "look_s": look,
+          "cells_per_s": indep / look, "rate_per_s": pfa * indep / look}
+    return wf, out, {"false_alarms": fa}
+
+
+# ---------------------------------------------------------------- cases
+
+SEED = 20261202 + 31
+N_TRAIN = 200
+TRAIN_KINDS = ["lfm", "rect", "barker", "p4", "lfm", "frank", "mps", "mls", "lfm", "zadoff_chu", "p1", "barker"]
+DWINDOWS = ["default", "none", "hann", "hamming", "blackman", "blackman_harris", "taylor", "chebyshev",
+            "kaiser", "gaussian"]
+MTIS = ["none", "two_pulse", "three_pulse"]
+
+
+def train_case(rng, i):
+    """A random uniform pulse train: kinds, range and Doppler windows, MTI,
+    pulses, PRIs, Dopplers (a quarter near a blind speed), 1-4 targets,
+    fixed / CA / OS detectors with small (exact alpha) and large
+    (effective-cells) 2-D regions."""
+    import gen  # the single-pulse generator's random waveforms and windows
+    kind = TRAIN_KINDS[i % len(TRAIN_KINDS)]
+    w = gen.random_waveform(rng, kind, small=True)
+    rx = {}
+    if rng.random() < 0.4:
+        rx["window"] = gen.random_window(rng, gen.WINDOWS[int(rng.integers(1, len(gen.WINDOWS)))])
+    dwk = DWINDOWS[int(rng.integers(0, len(DWINDOWS)))]
+    if dwk != "default":
+        rx["doppler_window"] = gen.random_window(rng, dwk)
+    mti = MTIS[i % 3]
+    if mti != "none":
+        rx["mti"] = mti
+    dk = ["fixed", "ca_cfar", "os_cfar", "ca_cfar"][(i // 3) % 4]
+    det = {"kind": dk, "pfa": float(f"{10 ** rng.uniform(-8, -3):.2g}")}
+    if dk != "fixed":
+        small = rng.random() < 0.5
+        det["guard_cells"] = int(rng.integers(0, 4))
+        det["training_cells"] = 2 * int(rng.integers(1, 5 if small else 9))
+        det["doppler_guard_cells"] = int(rng.integers(0, 3))
+        det["doppler_training_cells"] = 2 * int(rng.integers(0, 2 if small else 4))
+        if dk == "os_cfar":
+            det["rank"] = int(rng.integers(1, det["training_cells"] + 1))
+    rx["detector"] = det
+    B = gen.bandwidth(w)
+    tau = gen.pulse_width(w)
+    fs = gen.rate_for(float(rng.choice([1, 1.5, 2, 3])), B)
+    pulses = int(rng.integers(6, 49))
+    pri = float(f"{max(5 * tau, 1e-6 * rng.uniform(40, 300)):.3g}")
+    runamb = C * pri / 2
+    blind = C * tau / 2
+    start = float(round(rng.uniform(0, 0.5) * blind)) if rng.random() < 0.5 else 0.0
+    stop = float(round(min(runamb, start + 3000 * C / (2 * fs))))
+    if stop >= runamb:
+        stop = None
+    wstop = stop if stop is not None else runamb
+    # Dopplers within the codes' single-peak range and the band, well
+    # away from fs/2
+    fdmax = min(0.3 * B, 0.4 * fs)
+    if kind not in ("lfm", "nlfm"):
+        fdmax = min(fdmax, 0.3 / tau)
+    M = pulses - len(MTI_TAPS[mti]) + 1
+    nt = int(rng.integers(1, 5))
+    targets = []
+    fds = []
+    for j in range(nt):
+        r = rng.random()
+        if r < 0.25:  # near a blind speed: a multiple of the PRF plus a fraction of a bin
+            kmax = int(fdmax * pri)
+            mult = int(rng.integers(-kmax, kmax + 1)) if kmax > 0 else 0
+            fdp = mult + rng.uniform(-1.5, 1.5) / M
+        elif r < 0.35 and j > 0:  # the same Doppler bin as a neighbour
+            fdp = fds[-1] * pri + rng.uniform(-0.5, 0.5) / M
+        elif r < 0.45:
+            fdp = 0.0
+        else:
+            fdp = rng.uniform(-1, 1) * fdmax * pri
+        fd = float(np.clip(fdp / pri, -fdmax, fdmax))
+        fds.append(fd)
+    carrier = gen.carrier_for(max(abs(f) for f in fds))
+    lam = C / carrier
+    base = rng.uniform(start + blind, wstop)
+    for j in range(nt):
+        r = rng.random()
+        if r < 0.4 and j > 0:  # near a previous target: masking in range, perhaps not in Doppler
+            R = targets[-1]["range_m"] + rng.uniform(-1, 1) * rng.choice([1, 3, 10]) * C / (2 * B)
+        elif r < 0.5:
+            R = blind * rng.uniform(0.6, 1.3)
+        elif r < 0.6:
+            R = runamb - blind * rng.uniform(-0.2, 1.3)
+        elif r < 0.65:
+            R = wstop + rng.uniform(0, 2) * runamb * 0.3
+        else:
+            R = base + rng.uniform(-1, 1) * 1500
+        R = float(round(max(R, 10.0), 2))
+        rcs = float(round(rng.uniform(-40, 10) - 10 * math.log10(pulses), 1))
+        rr = float(f"{-fds[j] * lam / 2:.6g}")
+        t = {"id": f"t{j}", "kind": "point", "range_m": R, "rcs_dbsm": rcs}
+        if rr:
+            t["range_rate_mps"] = rr
+        if rng.random() < 0.25:
+            t["fluctuation"] = "swerling1"
+        targets.append(t)
+    radar = {"carrier_hz": carrier, "sample_rate_hz": fs, "pri_s": pri, "pulses": pulses,
+             "window_start_m": start, "peak_power_w": float(f"{10 ** rng.uniform(1, 4):.3g}")}
+    if stop is not None:
+        radar["window_stop_m"] = stop
+    return {"version": 2, "name": f"train-{i:03d}", "radar": radar, "waveform": w, "receiver": rx,
+            "targets": targets}
+
+
+def strip(d):
+    return {k: v for k, v in d.items() if not k.startswith("_")}
+
+
+def expect(sc):
+    wf, ts, rep = train_scene(sc)
+    return ({"waveform": strip(wf), "targets": [strip(t) for t in ts], **rep},
+            {"peak": [t["_peak"] for t in ts], "level_db": [t["_level_db"] for t in ts],
+             "noise_level_db": [t["_noise_level_db"] for t in ts], "cells": [t["_cells"] for t in ts],
+             "masked_via": [t.get("_masked_via", "") for t in ts]})
+
+
+def check():
+    """The slow-time plan against definitions with closed forms."""
+    p = Plan(16, "none", {"kind": "none"})
+    # no MTI, no window: unit noise in every bin, gain = pulses at a bin centre
+    assert np.allclose(p.N, 1) and abs(p.gain(3 / 16).max() - 16) < 1e-9
+    # two-pulse canceller, no window: the bins' noise follows |H(f)|^2/sum h^2
+    # = 2 sin^2(pi f) ... averaged to 1 over the bins (docs/detection.md §9)
+    p = Plan(17, "two_pulse", {"kind": "none"})
+    assert abs(p.N.mean() - 1) < 1e-12
+    # a tone at zero Doppler is cancelled
+    assert p.gain(0.0).max() < 1e-20
+
+
+def main():
+    import json
+    import sys
+    import time
+    check()
+    rng = np.random.default_rng(SEED)
+    only = sys.argv[1] if len(sys.argv) > 1 else None
+    t0 = time.time()
+    cases = []
+    for i in range(N_TRAIN):
+        sc = train_case(rng, i)
+        if only and sc["name"] != only:
+            continue
+        exp, info = expect(sc)
+        cases.append({"scenario": sc, "expected": exp, "info": info})
+    out = {"generator": "testdata/diffmodel/train.py", "seed": SEED, "numpy": np.__version__,
+           "scipy": scipy.__version__, "cases": cases}
+    name = "train.json" if not only else "/tmp/train_" + only + ".json"
+    with open(name, "w") as f:
+        json.dump(out, f, separators=(",", ":"))
+        f.write("\n")
+    print(len(cases), "train cases in %.0f s" % (time.time() - t0), file=sys.stderr)
+
+
+if __name__ == "__main__":
+    main()
