@@ -1,6 +1,7 @@
 #!/usr/bin/python3
-"""The pulse-train part of the independent model: uniform-PRI trains
-(`radar.pulses` > 1) of point targets, from docs/detection.md §9 (the
+"""The pulse-train part of the independent model: uniform-PRI and staggered
+trains (`radar.pulses` > 1, `pri_stagger_s`) of point targets, from
+docs/detection.md §9 and §16 (the
 slow-time plan, the expected range-Doppler map, the 2-D CFAR, the
 verdict read over the peak bin's noise), §6-7 (statuses, masked_by),
 §10 (the false-alarm rate of a map), docs/detection-probability.md §7
@@ -34,19 +35,32 @@ MTI_TAPS = {"none": [1.0], "two_pulse": [1.0, -1.0], "three_pulse": [1.0, -2.0, 
 class Plan:
     """The slow-time plan of a uniform train."""
 
-    def __init__(self, pulses, mti, dwin):
+    def __init__(self, pulses, mti, dwin, pattern=None):
+        """pattern: a staggered train's PRIs (docs/detection.md §16): pulse p
+        at t_p = T_0 + ... + T_{p-1}, cycling; the bank is evaluated at the
+        MTI outputs' true times t_{q+l-1} - t_{l-1} in mean PRIs."""
         h = np.array(MTI_TAPS[mti])
         l = len(h)
         M = pulses - l + 1
         w = model.window_sym(dwin, M)
         s = 1 / math.sqrt(np.sum(h ** 2) * np.sum(w ** 2))
         fbin = (np.arange(M) - M // 2) / M
-        F = np.exp(-2j * math.pi * np.outer(fbin, np.arange(M))) * w[None, :] * s  # M x M (bins x MTI outputs)
+        self.pattern = pattern
+        if pattern is None:
+            tq = np.arange(M, dtype=float)
+            self.times = np.arange(pulses, dtype=float)  # in PRIs
+        else:
+            tb = sum(pattern) / len(pattern)
+            tp = np.concatenate([[0.0], np.cumsum([pattern[p % len(pattern)] for p in range(pulses - 1)])])
+            self.times = tp / tb  # in mean PRIs
+            tq = self.times[l - 1:] - self.times[l - 1]
+        F = np.exp(-2j * math.pi * np.outer(fbin, tq)) * w[None, :] * s  # M x M (bins x MTI outputs)
         H = np.zeros((M, pulses))  # MTI outputs x pulses
         for q in range(M):
             for i in range(l):
                 H[q, q + l - 1 - i] = h[i]
         self.A = F @ H
+        self.F, self.H = F, H
         self.M, self.P, self.h, self.w, self.s = M, pulses, h, w, s
         self.Cd = self.A @ self.A.conj().T
         self.N = np.real(np.diag(self.Cd)).copy()
@@ -58,6 +72,10 @@ class Plan:
         exp(-j 2 pi f i), periodic in f: computed at f - round(f), so that
         a tone at a multiple of the PRF is cancelled exactly (H = sum h = 0),
         as the canceller cancels it."""
+        if self.pattern is not None:  # fd_pri in cycles per mean PRI: the tone at the true times
+            t = np.exp(2j * math.pi * fd_pri * self.times)
+            # the canceller first (a zero-Doppler tone cancels exactly), then the bank
+            return np.abs(self.F @ (self.H @ t)) ** 2
         f = fd_pri - round(fd_pri)
         l = len(self.h)
         Hf = np.sum(self.h * np.exp(-2j * math.pi * f * np.arange(l)))
@@ -96,14 +114,25 @@ def train_scene(sc):
     if det["kind"] != "fixed":
         det.setdefault("doppler_guard_cells", 1)
         det.setdefault("doppler_training_cells", 4)
+    pattern = rd.get("pri_stagger_s")
+    if pattern:
+        rd["pri_s"] = min(pattern)
+        if not sc.get("radar", {}).get("window_stop_m"):
+            rd["window_stop_m"] = C * rd["pri_s"] / 2
     fs, pri, tau = rd["sample_rate_hz"], rd["pri_s"], wave.tau
     pulses = rd["pulses"]
     lam = C / rd["carrier_hz"]
-    plan = Plan(pulses, rx.get("mti", "none"), rx.get("doppler_window", {"kind": "hann"}))
+    plan = Plan(pulses, rx.get("mti", "none"), rx.get("doppler_window", {"kind": "hann"}), pattern)
     M = plan.M
+    tbar = sum(pattern) / len(pattern) if pattern else pri  # the bins span one mean PRF
     wf = {k: v for k, v in wf.items() if not k.startswith("_")}
-    wf["doppler_resolution_hz"] = 1 / (pulses * pri)
-    wf["velocity_resolution_mps"] = lam / 2 / (pulses * pri)
+    wf["unambiguous_range_m"] = C * pri / 2
+    wf["unambiguous_velocity_mps"] = lam / (4 * tbar)
+    wf["doppler_resolution_hz"] = 1 / (pulses * tbar)
+    wf["velocity_resolution_mps"] = lam / 2 / (pulses * tbar)
+    stag = None
+    if pattern:
+        stag = stagger_fields(plan, pattern, lam)
 
     # ---- the single-pulse responses (docs/detection.md §1-3), as model.scene
     ws, we = rd["window_start_m"], rd["window_stop_m"]
@@ -157,7 +186,7 @@ def train_scene(sc):
         Pp = np.where(processed, P, -1.0)
         k = first_argmax(Pp)
         Pstar = max(P[k], 0.0) if processed[k] else 0.0
-        g = plan.gain(fd * pri)
+        g = plan.gain(fd * tbar)
         d = first_argmax(g)  # ties: first bin (README "Ambiguities")
         dl, shift = model.doppler_response(wave, filt, fd)
         objs.append(dict(t=t, rr=rr, R=R, Ra=Ra, folds=folds, fd=fd, snr_eq=snr_eq, P=P, Pu=Pu, k=k, d=d, g=g,
@@ -390,13 +419,15 @@ def train_scene(sc):
         # "Pulse trains"; README "Ambiguities" for the tested SNR)
         if Pmap > 0:
             rec["snr_integrated_db"] = rec["snr_db"] + 10 * math.log10(o["g"][d] / Nd[d])
-        # the target's range rate folded into +- lambda/(4 PRI)
-        vu = lam / (4 * pri)
+        # the target's range rate folded into +- lambda/(4 PRI) (a
+        # stagger: by lambda/(2 Tbar), §16)
+        vu = lam / (4 * tbar)
         rec["apparent_range_rate_mps"] = o["rr"] - 2 * vu * round(o["rr"] / (2 * vu))
-        # blind: the Doppler folds by a non-zero multiple of the PRF to
-        # within half a bin of zero (README "Ambiguities")
-        mult = round(o["fd"] * pri)
-        rec["blind_speed"] = bool(mult != 0 and abs(o["fd"] * pri - mult) <= 0.5 / M)
+        # blind: the Doppler folds by a non-zero multiple of the PRF (a
+        # stagger: of 1/Delta) to within half a bin 1/(2 M Tbar) of zero
+        step = stag["step_s"] if stag else pri
+        mult = round(o["fd"] * step)
+        rec["blind_speed"] = bool(mult != 0 and abs(o["fd"] - mult / step) <= 0.5 / (M * tbar))
         rec["_peak"] = [k, d]
         rec["_level_db"] = 10 * math.log10(Lk) if math.isfinite(Lk) else None
         rec["_noise_level_db"] = 10 * math.log10(Lnoise) if math.isfinite(Lnoise) else None
@@ -407,11 +438,49 @@ def train_scene(sc):
     corr_len = float(np.sum(np.abs(acf) ** 2)) / G ** 2
     indep_r = min(nproc / corr_len, nproc)
     indep_d = M ** 2 / float(np.sum(np.abs(Cn) ** 2))
-    look = pulses * pri
+    look = pulses * pri  # report-format.md: pulses x pri_s (a stagger: its shortest PRI)
     indep = indep_r * indep_d
     fa = {"pfa": pfa, "tested_cells": nproc * M, "independent_cells": indep, "look_s": look,
           "cells_per_s": indep / look, "rate_per_s": pfa * indep / look}
-    return wf, out, {"false_alarms": fa}
+    rep = {"false_alarms": fa}
+    if stag:
+        rep["stagger"] = stag
+    return wf, out, rep
+
+
+def common_step(pattern):
+    """Delta: the largest step with T_i = n_i Delta, n_i whole, at most
+    10 000, within 1e-9 (docs/detection.md §16); the cases use whole
+    nanoseconds, so the integer gcd."""
+    ns = [round(t * 1e9) for t in pattern]
+    assert all(abs(n - t * 1e9) < 1e-6 for n, t in zip(ns, pattern))
+    g = 0
+    for n in ns:
+        g = math.gcd(g, n)
+    assert max(ns) // g <= 10000
+    return g * 1e-9
+
+
+def stagger_fields(plan, pattern, lam):
+    """report.stagger (report-format.md, docs/detection.md §16)."""
+    tbar = sum(pattern) / len(pattern)
+    step = common_step(pattern)
+    V = lam / (2 * step)
+    out = {"pri_s": list(pattern), "mean_pri_s": tbar, "step_s": step, "first_blind_speed_mps": V,
+           "mean_pri_blind_speed_mps": lam / (2 * tbar)}
+    if plan.M <= 256:
+        def resp(v):
+            fd = -2 * np.asarray(v) / lam
+            T = np.exp(2j * math.pi * np.outer(plan.times, fd * tbar))  # pulses x speeds
+            return np.max(np.abs(plan.A @ T) ** 2, axis=0)
+        mean = float(np.mean(resp((np.arange(4096) + 0.5) / 4096 * V)))
+        edge = lam / (4 * max(pattern))
+        vs = np.linspace(edge, V - edge, 4097)
+        r = resp(vs)
+        i = int(np.argmin(r))
+        out["deepest_dip_db"] = 10 * math.log10(r[i] / mean)
+        out["deepest_dip_mps"] = float(vs[i])
+    return out
 
 
 # ---------------------------------------------------------------- cases
@@ -519,6 +588,72 @@ def train_case(rng, i):
             "targets": targets}
 
 
+N_STAGGER = 60
+
+
+def stagger_case(rng, i):
+    """A random staggered train (docs/detection.md §16): 2-4 PRIs of whole
+    microseconds, 8-40 pulses, MTI and Doppler windows as train_case; the
+    window ends at least 2 c tau/2 short of c T_min/2 and the targets lie
+    inside it, beyond 1.2 c tau/2 and clear of its end, so that every
+    sweep hears every echo whole (per-sweep eclipsing and folding are not
+    generated); Dopplers random, near 1/Delta (the first true blind
+    speed), near a single PRI's blind speed, or zero."""
+    sc = train_case(rng, i)
+    sc["name"] = f"stagger-{i:03d}"
+    w = sc["waveform"]
+    import gen
+    tau = gen.pulse_width(w)
+    B = gen.bandwidth(w)
+    L = int(rng.integers(2, 5))
+    base = max(int(math.ceil(6 * tau * 1e6)), int(rng.integers(40, 200)))
+    pattern = sorted(set(base + int(rng.integers(0, base // 2 + 2)) for _ in range(L)))
+    if len(pattern) < 2:
+        pattern = [base, base + int(rng.integers(1, base // 2 + 2))]
+    rng.shuffle(pattern)
+    pattern = [p * 1e-6 for p in pattern]
+    rd = sc["radar"]
+    rd.pop("pri_s", None)
+    rd["pri_stagger_s"] = pattern
+    rd["pulses"] = int(rng.integers(8, 41))
+    blind = C * tau / 2
+    stop = C * min(pattern) / 2 - 2 * blind - 4 * C / (2 * rd["sample_rate_hz"])
+    start = rd["window_start_m"]
+    if stop - start < 4 * blind + 100:
+        start = 0.0
+    rd["window_start_m"] = start
+    rd["window_stop_m"] = float(math.floor(stop))
+    lam = C / rd["carrier_hz"]
+    tbar = sum(pattern) / len(pattern)
+    step = common_step(pattern)
+    fdmax = min(0.3 * B, 0.4 * rd["sample_rate_hz"])
+    if w["kind"] not in ("lfm", "nlfm"):
+        fdmax = min(fdmax, 0.3 / tau)
+    M = rd["pulses"] - len(MTI_TAPS[sc["receiver"].get("mti", "none")]) + 1
+    fds = []
+    for t in sc["targets"]:
+        lo, hi = max(start, 1.2 * blind), rd["window_stop_m"] - blind
+        t["range_m"] = float(round(rng.uniform(lo, hi), 2))
+        r = rng.random()
+        if r < 0.25 and 1 / step <= fdmax:
+            fd = (1 / step) * rng.choice([-1, 1]) + rng.uniform(-1.5, 1.5) / (M * tbar)
+        elif r < 0.45:
+            fd = rng.choice([-1, 1]) / pattern[int(rng.integers(0, len(pattern)))] + rng.uniform(-1, 1) / (M * tbar)
+        elif r < 0.55:
+            fd = 0.0
+        else:
+            fd = rng.uniform(-1, 1) * fdmax
+        fds.append(float(np.clip(fd, -fdmax, fdmax)))
+    rd["carrier_hz"] = gen.carrier_for(max(abs(f) for f in fds))  # |range rate| <= 1e4 m/s
+    lam = C / rd["carrier_hz"]
+    for t, fd in zip(sc["targets"], fds):
+        rr = float(f"{-fd * lam / 2:.6g}")
+        t.pop("range_rate_mps", None)
+        if rr:
+            t["range_rate_mps"] = rr
+    return sc
+
+
 def strip(d):
     return {k: v for k, v in d.items() if not k.startswith("_")}
 
@@ -553,8 +688,9 @@ def main():
     only = sys.argv[1] if len(sys.argv) > 1 else None
     t0 = time.time()
     cases = []
-    for i in range(N_TRAIN):
-        sc = train_case(rng, i)
+    scs = [train_case(rng, i) for i in range(N_TRAIN)]
+    scs += [stagger_case(rng, i) for i in range(N_STAGGER)]
+    for sc in scs:
         if only and sc["name"] != only:
             continue
         exp, info = expect(sc)
