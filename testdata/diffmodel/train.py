@@ -1,7 +1,8 @@
 #!/usr/bin/python3
 """The pulse-train part of the independent model: uniform-PRI and staggered
-trains (`radar.pulses` > 1, `pri_stagger_s`) of point targets, from
-docs/detection.md §9 and §16 (the
+trains (`radar.pulses` > 1, `pri_stagger_s`) of point targets and PRF
+schedules with M-of-N (`radar.schedule`, §11), from docs/detection.md §9
+and §16 (the
 slow-time plan, the expected range-Doppler map, the 2-D CFAR, the
 verdict read over the peak bin's noise), §6-7 (statuses, masked_by),
 §10 (the false-alarm rate of a map), docs/detection-probability.md §7
@@ -86,6 +87,11 @@ class Plan:
         return np.abs(Y) ** 2
 
 
+def rnd(x):
+    """round half away from zero."""
+    return math.copysign(math.floor(abs(x) + 0.5), x)
+
+
 def first_argmax(p, rel=1e-9):
     """first index whose value is within rel of the maximum."""
     mx = np.max(p)
@@ -106,7 +112,9 @@ def pd_sw1(chi, kind, pfa, r, M=None, N=None, kk=None):
     return math.exp(sum(math.log((N - i) / (N - i + a)) for i in range(kk)))
 
 
-def train_scene(sc):
+def train_scene(sc, cpi=False):
+    """cpi: judged as a schedule's CPI (docs/detection.md §11): a folded
+    echo is judged where it appears, not `folded`."""
     wf, wave, filt = model.waveform_figures(sc)
     rx = sc.get("receiver", {})
     rd = model.radar_defaults(sc, wave)
@@ -358,14 +366,17 @@ def train_scene(sc):
         if pdf is not None:
             rr_ = max(T / Lnoise, 1.0)
             pd_noise = pdf(chi)
-            pd_scene = pdf(chi, rr_) if sceneok(rr_) else None
+            # a steady target's Pd is the average of detection.md §6 at any
+            # raise; the series' limits (Pfa below 1e-300) bind the
+            # fluctuating ones only
+            pd_scene = pdf(chi, rr_) if (fl == "none" or sceneok(rr_)) else None
             if fl != "none" and not reach(rr_):
                 # beyond the series' reach a fluctuating target's Pd in
                 # the scene is left out and P >= T decides (detection.md §6)
                 pd_scene = None
         if not inwin:
             st = "out_of_window"
-        elif o["folds"] > 0:
+        elif o["folds"] > 0 and not cpi:
             st = "folded"
         elif touched and (o["nb"] == o["nin"] or Pmap == 0):  # on the map: no cell holds its power
             st = "eclipsed"
@@ -428,6 +439,18 @@ def train_scene(sc):
         step = stag["step_s"] if stag else pri
         mult = round(o["fd"] * step)
         rec["blind_speed"] = bool(mult != 0 and abs(o["fd"] - mult / step) <= 0.5 / (M * tbar))
+        if cpi:
+            # the schedule's measurements (§11; report-format.md "PRF schedules")
+            rec["folds"] = o["folds"]
+            # the gate nearest the folded range plus the range shift, when
+            # that lies in the window; the apparent range rate (above) on
+            # the bin grid lambda/(2 PRI M) (round: half away from zero)
+            a = o["Ra"] + o["shift"] * C / 2
+            if ws <= a <= we:
+                dr = C / (2 * fs)
+                rec["apparent_range_m"] = ws + dr * rnd((a - ws) / dr)
+            wgrid = lam / (2 * tbar * M)
+            rec["apparent_range_rate_mps"] = wgrid * rnd(rec["apparent_range_rate_mps"] / wgrid)
         rec["_peak"] = [k, d]
         rec["_level_db"] = 10 * math.log10(Lk) if math.isfinite(Lk) else None
         rec["_noise_level_db"] = 10 * math.log10(Lnoise) if math.isfinite(Lnoise) else None
@@ -572,7 +595,7 @@ def train_case(rng, i):
         else:
             R = base + rng.uniform(-1, 1) * 1500
         R = float(round(max(R, 10.0), 2))
-        rcs = float(round(rng.uniform(-40, 10) - 10 * math.log10(pulses), 1))
+        rcs = float(round(rng.uniform(-30, 20) - 10 * math.log10(pulses), 1))
         rr = float(f"{-fds[j] * lam / 2:.6g}")
         t = {"id": f"t{j}", "kind": "point", "range_m": R, "rcs_dbsm": rcs}
         if rr:
@@ -589,6 +612,103 @@ def train_case(rng, i):
 
 
 N_STAGGER = 60
+N_SCHEDULE = 40
+
+
+def at_least(ps, m):
+    """P(at least m of independent events with probabilities ps)."""
+    dist = [1.0]
+    for p in ps:
+        nd = [0.0] * (len(dist) + 1)
+        for k, v in enumerate(dist):
+            nd[k] += v * (1 - p)
+            nd[k + 1] += v * p
+        dist = nd
+    return sum(dist[m:])
+
+
+def schedule_scene(sc):
+    """Every CPI of radar.schedule judged by train_scene (the first with
+    the radar's own PRI and pulses), the window's end following each
+    CPI's PRI when left at its default, and the M-of-N combination
+    (docs/detection.md §11, report-format.md "PRF schedules")."""
+    import copy
+    rd = sc["radar"]
+    sch = rd["schedule"]
+    cpis = [{"pri_s": rd["pri_s"], "pulses": rd.get("pulses", 1)}] + [
+        {"pri_s": c["pri_s"], "pulses": c.get("pulses", rd.get("pulses", 1))} for c in sch["cpis"]]
+    n = len(cpis)
+    m = sch.get("m", n)
+    out_cpis = []
+    lam = C / rd.get("carrier_hz", 9.5e9)
+    for c in cpis:
+        s2 = copy.deepcopy(sc)
+        r2 = s2["radar"]
+        del r2["schedule"]
+        r2["pri_s"], r2["pulses"] = c["pri_s"], c["pulses"]
+        _, ts, _ = train_scene(s2, cpi=True)
+        tt = []
+        for t in ts:
+            e = {"id": t["id"], "status": t["status"], "detected": t["status"] == "detected", "folds": t["folds"]}
+            for f in ("margin_db", "pd", "apparent_range_m", "apparent_range_rate_mps", "blind_speed"):
+                if f in t:
+                    e[f] = t[f]
+            tt.append(e)
+        out_cpis.append({"pri_s": c["pri_s"], "pulses": c["pulses"], "unambiguous_range_m": C * c["pri_s"] / 2,
+                         "blind_speed_mps": lam / (2 * c["pri_s"]), "targets": tt})
+    step = common_step([c["pri_s"] for c in cpis])
+    ns = [round(c["pri_s"] / step) for c in cpis]
+    l = 1
+    for v in ns:
+        l = l * v // math.gcd(l, v)
+    out = {"n": n, "m": m, "unambiguous_range_m": C * l * step / 2, "cpis": out_cpis}
+    if all(c["pulses"] > 1 for c in cpis):
+        out["first_blind_speed_mps"] = lam / (2 * step)
+    targets = []
+    for j, t in enumerate(sc["targets"]):
+        det_in = sum(1 for c in out_cpis if c["targets"][j]["detected"])
+        e = {"id": t["id"], "detected_in": det_in, "detected": det_in >= m}
+        ps = [c["targets"][j].get("pd") for c in out_cpis]
+        if all(p is not None for p in ps):
+            e["pd"] = at_least(ps, m)
+        targets.append(e)
+    out["targets"] = targets
+    return out
+
+
+def schedule_case(rng, i):
+    """A uniform train (train_case) with 1-3 more CPIs of whole-microsecond
+    PRIs within 0.6-1.6 times the first, their own pulse counts at times,
+    M random; the window's end left at its default so that each CPI
+    listens to its own c PRI/2; targets anywhere up to three first-CPI
+    unambiguous ranges (folded echoes are judged where they appear)."""
+    sc = train_case(rng, i)
+    sc["name"] = f"schedule-{i:03d}"
+    rd = sc["radar"]
+    import gen
+    tau = gen.pulse_width(gen_w := sc["waveform"])
+    pri0 = max(round(rd["pri_s"] * 1e6), int(math.ceil(6 * tau * 1e6)))
+    rd["pri_s"] = float(f"{pri0 * 1e-6:.6g}")
+    rd.pop("window_stop_m", None)
+    rd["window_start_m"] = 0.0
+    mti = sc["receiver"].get("mti", "none")
+    minp = {"none": 2, "two_pulse": 3, "three_pulse": 4}[mti]
+    rd["pulses"] = max(rd["pulses"], minp + 2)
+    nc = int(rng.integers(1, 4))
+    cpis = []
+    for _ in range(nc):
+        c = {"pri_s": float(f"{int(round(pri0 * rng.uniform(0.6, 1.6))) * 1e-6:.6g}")}
+        if rng.random() < 0.3:
+            c["pulses"] = int(rng.integers(minp + 2, 33))
+        cpis.append(c)
+    rd["schedule"] = {"cpis": cpis, "m": int(rng.integers(1, nc + 2))}
+    runamb = C * rd["pri_s"] / 2
+    # the gate count stays moderate at the longest PRI
+    blind = C * tau / 2
+    for t in sc["targets"]:
+        if rng.random() < 0.4:
+            t["range_m"] = float(round(rng.uniform(1.2 * blind, 3 * runamb), 2))
+    return sc
 
 
 def stagger_case(rng, i):
@@ -660,6 +780,8 @@ def strip(d):
 
 def expect(sc):
     wf, ts, rep = train_scene(sc)
+    if "schedule" in sc["radar"]:
+        rep["schedule"] = schedule_scene(sc)
     return ({"waveform": strip(wf), "targets": [strip(t) for t in ts], **rep},
             {"peak": [t["_peak"] for t in ts], "level_db": [t["_level_db"] for t in ts],
              "noise_level_db": [t["_noise_level_db"] for t in ts], "cells": [t["_cells"] for t in ts],
@@ -690,6 +812,7 @@ def main():
     cases = []
     scs = [train_case(rng, i) for i in range(N_TRAIN)]
     scs += [stagger_case(rng, i) for i in range(N_STAGGER)]
+    scs += [schedule_case(rng, i) for i in range(N_SCHEDULE)]
     for sc in scs:
         if only and sc["name"] != only:
             continue
