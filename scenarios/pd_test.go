@@ -249,3 +249,24 @@ func TestPdMapOSRank(t *testing.T) {
 		t.Errorf("pd_alone %.6f, want %.6f (rank 2 of 3; rank 3 gives %.6f)", *tr.PdAlone, want, wrong)
 	}
 }
+
+// TestEclipsedBeyondSeriesReason: a Swerling 1 target on a pulse train,
+// eclipsed, whose scene threshold (its neighbour fills its two training
+// cells) is beyond the Pd series, so the peak against the threshold
+// decides (docs/detection.md §6). Its reason used to quote its Pd against
+// noise alone as the Pd the loss leaves ("Pd > 0.999, under the required
+// 0.9"); it must say how far under the threshold its peak is. Found by
+// the pulse-train differential test (testdata/diffmodel/train.py).
+func TestEclipsedBeyondSeriesReason(t *testing.T) {
+	doc := `{"version":2,"radar":{"carrier_hz":9.5e9,"sample_rate_hz":15873000.0,"pri_s":0.000276,"pulses":42,"window_start_m":9.0,"peak_power_w":208.0,"window_stop_m":28339.0},
+	"waveform":{"kind":"barker","length":5,"chip_s":1.26e-07},
+	"receiver":{"window":{"kind":"blackman"},"doppler_window":{"kind":"blackman_harris"},"mti":"three_pulse","detector":{"kind":"ca_cfar","pfa":0.00033,"guard_cells":1,"training_cells":2,"doppler_guard_cells":1,"doppler_training_cells":2}},
+	"targets":[{"id":"t0","kind":"point","range_m":70.85,"rcs_dbsm":-23.5,"range_rate_mps":-6853.44},{"id":"t1","kind":"point","range_m":79.9,"rcs_dbsm":-12.9,"range_rate_mps":-5970.76,"fluctuation":"swerling1"}]}`
+	tr := target(mustEvaluate(t, mustDecode(t, doc)), "t1")
+	if tr.Status != StatusEclipsed || tr.Pd != nil {
+		t.Fatalf("want eclipsed with no scene Pd, got %s, pd %v", tr.Status, tr.Pd)
+	}
+	if strings.Contains(tr.Reason, "under the required") || !strings.Contains(tr.Reason, "under the CA-CFAR threshold") {
+		t.Errorf("reason: %s", tr.Reason)
+	}
+}
