@@ -355,13 +355,10 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 	}
 	tr := sc.train
 	nb := tr.plan.Bins()
-	scenePow := func(k, d int) float64 {
-		s := 0.0
-		for i := range sc.targets {
-			s += tr.power(i, k, d)
-		}
-		return s
-	}
+	// The scene's power at a cell is asked for again by every level whose
+	// training cells hold it: keep the columns near the cell under test.
+	cols := newPowerColumns(sc, cf2)
+	scenePow := cols.at
 	for k := range m.n {
 		if !m.processed[k] {
 			continue
@@ -386,6 +383,56 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 		}
 	}
 	return cs
+}
+
+// powerColumns keeps the noise-free scene power of the range–Doppler
+// map's columns (all bins of a range cell) near the cell under test, in
+// a ring of slots: a detector's level reads its training cells' power
+// from here instead of summing every target's again. The values are
+// those of scenePower, bit for bit.
+type powerColumns struct {
+	sc   *scene
+	nb   int
+	tag  []int       // range cell held by each slot, -1: none
+	cols [][]float64 // slot → power per bin
+}
+
+// newPowerColumns makes the ring for a detector's training window (nil
+// cf2: a fixed threshold, which reads no training cell).
+func newPowerColumns(sc *scene, cf2 *dsp.CFAR2D) *powerColumns {
+	slots := 1
+	if cf2 != nil {
+		slots = 2*(cf2.GuardR+cf2.TrainR/2) + 2
+	}
+	pc := &powerColumns{sc: sc, nb: sc.train.plan.Bins(), tag: make([]int, slots), cols: make([][]float64, slots)}
+	for i := range pc.tag {
+		pc.tag[i] = -1
+		pc.cols[i] = make([]float64, pc.nb)
+	}
+	return pc
+}
+
+// at returns the scene power at range cell k, Doppler bin d.
+func (pc *powerColumns) at(k, d int) float64 {
+	i := k % len(pc.tag)
+	if pc.tag[i] != k {
+		col := pc.cols[i]
+		for dd := range col {
+			col[dd] = pc.sc.scenePower(k, dd)
+		}
+		pc.tag[i] = k
+	}
+	return pc.cols[i][d]
+}
+
+// scenePower returns the noise-free power of every object of a pulse
+// train's scene at range cell k, Doppler bin d.
+func (sc *scene) scenePower(k, d int) float64 {
+	s := 0.0
+	for i := range sc.targets {
+		s += sc.train.power(i, k, d)
+	}
+	return s
 }
 
 // spans merges ascending gates into runs of adjacent gates.
