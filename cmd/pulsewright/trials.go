@@ -183,7 +183,13 @@ func writeTrialsText(w io.Writer, s scenarios.TrialSummary, u scenarios.Units) e
 	if fa.Rate != nil {
 		fmt.Fprintf(w, "; rate %.3g, 95 %% interval %.3g … %.3g", *fa.Rate, *fa.RateLow, *fa.RateHigh)
 	}
-	_, err := fmt.Fprintln(w)
+	// The engine that counted (a merged run: the shards', which merge
+	// checked are one), as every report names it.
+	eng := scenarios.RunningEngine()
+	if s.Engine != nil {
+		eng = *s.Engine
+	}
+	_, err := fmt.Fprintf(w, "\n\n%s\n", eng)
 	return err
 }
 
