@@ -53,6 +53,15 @@ func TestTrialShardsMergeToWhole(t *testing.T) {
 			}
 		})
 	}
+	// The runner's -f passes the format to its merge.
+	d := filepath.Join(dir, "csv")
+	code, errs := runShards(t, append([]string{"-n", "2", "-d", d, "-f", "csv", "--", "trials"}, trialsRun...)...)
+	if got, _ := os.ReadFile(filepath.Join(d, "merged.csv")); code != 0 || !bytes.Equal(got, whole["csv"]) {
+		t.Errorf("run-shards -f csv: exit %d %s\n%s\nwant\n%s", code, errs, got, whole["csv"])
+	}
+	if code, errs := runShards(t, append([]string{"-n", "2", "-d", d, "-f", "xml", "--", "trials"}, trialsRun...)...); code != 2 || !strings.Contains(errs, "-f xml is not text, json or csv") {
+		t.Errorf("run-shards -f xml: exit %d %q", code, errs)
+	}
 }
 
 // TestTrialShardsRefused: merge refuses a trials shard stopped early (the
