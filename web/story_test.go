@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/chromedp/chromedp"
 )
@@ -12,7 +13,7 @@ import (
 // TestSceneStoryOnScreen: the scene's notes and the masked target's reason
 // are on screen; notes the user writes travel with the share link.
 func TestSceneStoryOnScreen(t *testing.T) {
-	ctx := mustBrowser(t)
+	ctx := mustBrowserFor(t, 150*time.Second) // two page loads and typing: 51 s alone at load 28, over 60 s beside other tests
 	base := mustServer(t)
 	openPage(t, ctx, base)
 	waitFor(t, ctx, "the skiff masked", jsTarget+`('skiff').status === 'masked'`)
