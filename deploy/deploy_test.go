@@ -165,6 +165,16 @@ func TestKubernetesManifests(t *testing.T) {
 	if modes := strs(t, "volume.yaml", at(t, "volume.yaml", pvc, "spec", "accessModes")); len(modes) != 1 || modes[0] != "ReadWriteMany" {
 		t.Errorf("volume.yaml: access modes %q; shards on several nodes need ReadWriteMany", modes)
 	}
+	// The image's engine line names its commit (merge and every report
+	// trace a figure to it): go build reads it from .git, which the build
+	// context must therefore hold.
+	if di, err := os.ReadFile("../.dockerignore"); err == nil {
+		for _, l := range strings.Split(string(di), "\n") {
+			if l = strings.TrimSpace(l); l == ".git" || l == ".git/" || l == "/.git" {
+				t.Errorf(".dockerignore leaves out .git: the image would be stamped \"pulsewright devel\" without its commit")
+			}
+		}
+	}
 	// The Dockerfile puts the binary where the Jobs call it.
 	df, err := os.ReadFile("../Dockerfile")
 	if err != nil {
