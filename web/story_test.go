@@ -124,17 +124,44 @@ func TestWordsAndUnits(t *testing.T) {
 	}
 }
 
-// TestCautionShowsWhole: the RF-exposure and spectrum caution is on
-// screen whole at 1280×720 and 1600×1000.
+// TestCautionShowsWhole: the RF-exposure and spectrum caution and the
+// engine's version stamp (engine, scenario format, report format) are both
+// on screen whole at 1280×720, 1366×768 and 1600×1000: neither is cut
+// (scrollWidth within clientWidth, its rectangle inside the footer and the
+// viewport), and the footer takes at most two lines.
 func TestCautionShowsWhole(t *testing.T) {
 	ctx := mustBrowser(t)
 	openPage(t, ctx, mustServer(t))
-	for _, size := range [][2]int64{{1280, 720}, {1600, 1000}} {
+	waitFor(t, ctx, "the engine stamp in the footer", `/ · report format \d+$/.test(document.querySelector('#engine').textContent)`)
+	for _, size := range [][2]int64{{1280, 720}, {1366, 768}, {1600, 1000}} {
 		do(t, ctx, chromedp.EmulateViewport(size[0], size[1]))
-		ok := eval[bool](t, ctx, `(() => { const s = [...document.querySelectorAll('.foot > span')].find((e) => e.textContent.includes('RF exposure'));
-			const r = s.getBoundingClientRect(); return s.scrollWidth <= s.clientWidth + 1 && r.right <= innerWidth && r.bottom <= innerHeight && r.width > 0; })()`)
-		if !ok {
+		// Settled: the layout has been recomputed for this viewport.
+		waitFor(t, ctx, fmt.Sprintf("the layout at %d px", size[0]), fmt.Sprintf(`innerWidth === %d && document.querySelector('.foot').getBoundingClientRect().right === %d`, size[0], size[0]))
+		got := eval[string](t, ctx, `(() => {
+			const foot = document.querySelector('.foot').getBoundingClientRect();
+			const whole = (s) => { const r = s.getBoundingClientRect();
+				return r.width > 0 && s.scrollWidth <= s.clientWidth + 1 && s.scrollHeight <= s.clientHeight + 1 &&
+					r.left >= foot.left - 0.5 && r.right <= foot.right + 0.5 && r.top >= foot.top - 0.5 && r.bottom <= foot.bottom + 0.5 &&
+					r.right <= innerWidth && r.bottom <= innerHeight; };
+			const caution = [...document.querySelectorAll('.foot > span')].find((e) => e.textContent.includes('RF exposure'));
+			const stamp = document.querySelector('#engine');
+			const plots = document.querySelector('.layout').getBoundingClientRect();
+			return [whole(caution), whole(stamp), Math.round(foot.height), Math.round(foot.top - plots.bottom)].join(' ');
+		})()`)
+		var cautionOK, stampOK bool
+		var footH, gap int
+		fmt.Sscan(got, &cautionOK, &stampOK, &footH, &gap)
+		if !cautionOK {
 			t.Errorf("%dx%d: the RF caution is cut or off screen", size[0], size[1])
 		}
+		if !stampOK {
+			t.Errorf("%dx%d: the engine stamp is cut or off screen: %q", size[0], size[1], eval[string](t, ctx, `document.querySelector('#engine').textContent`))
+		}
+		// Two 14 px lines and 2 px padding each side plus the border: 33 px.
+		if footH > 34 || gap != 0 {
+			t.Errorf("%dx%d: the footer is %d px high (at most two lines, 34 px), %d px below the columns (want 0)", size[0], size[1], footH, gap)
+		}
+		t.Logf("%dx%d: footer %d px high", size[0], size[1], footH)
+		shot(t, ctx, fmt.Sprintf("%dx%d", size[0], size[1]))
 	}
 }
