@@ -301,11 +301,102 @@ func (u Units) Signed(v float64, decimals int) string {
 // A span "1000–2000 m" is one unit for both ends.
 var siInText = regexp.MustCompile(`([+\-−±]?)(?:(\d+(?:\.\d+)?)–)?(\d+(?:\.\d+)?(?:e[+-]?\d+)?) ?(km|m/s|m)`)
 
+// Typed holds the values of a scenario a person types in Units (SI,
+// the file's sign convention): ranges in m, range rates in m/s, heights
+// in m. RestateTyped reads them back as typed.
+type Typed struct {
+	Range, Rate, Height []float64
+}
+
+// TypedIn lists s's typed ranges (targets' ranges and edges, the receive
+// window), range rates and heights (targets', the antenna's).
+func TypedIn(s *Scenario) Typed {
+	var t Typed
+	if s == nil {
+		return t
+	}
+	t.Range = append(t.Range, s.Radar.WindowStartM, s.Radar.WindowStopM)
+	t.Height = append(t.Height, s.Radar.AntennaHeightM)
+	for _, g := range s.Targets {
+		t.Range = append(t.Range, g.RangeM, g.RangeStartM, g.RangeStopM)
+		t.Rate = append(t.Rate, g.RangeRateMPS)
+		t.Height = append(t.Height, g.HeightM)
+	}
+	return t
+}
+
+// snap returns the value of vals nearest to v when the engine's rounding
+// of it could have written v: within half the resolution res of the
+// text. A rounded figure converted to another unit claims a precision it
+// lacks ("18518.15 km" is 9999.0011 nmi, but the 9999 nmi typed wrote
+// it); the typed value it came from reads back as typed.
+func snap(vals []float64, v, res float64, abs bool) (float64, bool) {
+	best, found := 0.0, false
+	for _, x := range vals {
+		if abs {
+			x = math.Abs(x)
+		}
+		if x == 0 || math.IsNaN(x) || math.Abs(x-v) > res/2*(1+1e-9) {
+			continue
+		}
+		if !found || math.Abs(x-v) < math.Abs(best-v) {
+			best, found = x, true
+		}
+	}
+	return best, found
+}
+
+// typedText is a value in the user's unit as a field shows it: up to 12
+// significant digits, so that a value typed in that unit reads back as
+// typed ("9999", "12.5"); never "-0".
+func typedText(v float64) string {
+	r, _ := strconv.ParseFloat(strconv.FormatFloat(v, 'g', 12, 64), 64)
+	if r == 0 {
+		return "0"
+	}
+	return strconv.FormatFloat(r, 'f', -1, 64)
+}
+
+// readBack is the number text (no unit) of the value of vals that v,
+// with resolution res, was rounded from (snap), in u's unit of q, when
+// there is one and it has no more decimals than the restatement would
+// give v (`decimals` in m or m/s): a value typed in that unit ("9999",
+// "12.5") reads back as typed; one typed in another unit (25 m/s is
+// 48.596112311 kt) keeps the ordinary rounding.
+func (u Units) readBack(q string, vals []float64, v, res float64, abs bool, decimals int) (string, bool) {
+	x, ok := snap(vals, v, res, abs)
+	if !ok {
+		return "", false
+	}
+	t := typedText(u.FromSI(q, x))
+	_, frac, _ := strings.Cut(t, ".")
+	if len(frac) > decimalsIn(u.Unit(q), decimals) {
+		return "", false
+	}
+	return t, true
+}
+
+// resolution is the step of the last digit of a number as the engine
+// wrote it ("18518.15" → 0.01, "1.5e3" → 100).
+func resolution(digits string) float64 {
+	mant, exp, _ := strings.Cut(digits, "e")
+	e, _ := strconv.Atoi(exp)
+	_, frac, _ := strings.Cut(mant, ".")
+	return math.Pow10(e - len(frac))
+}
+
 // Restate rewrites the SI numbers of a sentence the engine wrote (a
 // reason, a warning) in u, keeping their precision; a signed range rate
 // also takes u's sign convention. Text in SI units comes back unchanged.
-func (u Units) Restate(s string) string {
-	if u.Range == "m" && u.Speed == "m/s" && u.Rate == "opening" {
+// A height ("914 m high") is restated in u's height unit.
+func (u Units) Restate(s string) string { return u.RestateTyped(s, Typed{}) }
+
+// RestateTyped is Restate that reads a number back as the value of typed
+// (TypedIn) it was rounded from, when there is one: with range units nmi
+// a target typed as 9999 nmi, which the engine writes "18518.15 km",
+// reads "9999 nmi", not "9999.0011 nmi".
+func (u Units) RestateTyped(s string, typed Typed) string {
+	if u.Range == "m" && u.Speed == "m/s" && u.Rate == "opening" && u.Height == "m" {
 		return s
 	}
 	var sb strings.Builder
@@ -329,20 +420,28 @@ func (u Units) Restate(s string) string {
 			if unit == "m/s" || u.Range == "m" {
 				continue
 			}
-			a, _ := strconv.ParseFloat(s[m[4]:m[5]], 64)
+			from := s[m[4]:m[5]]
+			a, _ := strconv.ParseFloat(from, 64)
 			k, d := 1.0, len(fracDigits(digits))
 			if unit == "km" {
 				k, d = 1000, max(d-3, 0)
 			}
+			side := func(v float64, res string) string {
+				if t, ok := u.readBack(QRange, typed.Range, v*k, resolution(res)*k, false, d); ok {
+					return t
+				}
+				return u.Number(QRange, v*k, d)
+			}
 			sb.WriteString(s[last:m[0]])
-			sb.WriteString(sg + u.Number(QRange, a*k, d) + "–" + u.Format(QRange, v*k, d))
+			sb.WriteString(sg + side(a, from) + "–" + side(v, digits) + " " + u.Range)
 			last = end
 			continue
 		}
 		decimals := len(fracDigits(digits))
+		res := resolution(digits)
 		var out string
-		switch unit {
-		case "m/s":
+		switch {
+		case unit == "m/s":
 			if u.Speed == "m/s" && u.Rate == "opening" {
 				continue
 			}
@@ -350,20 +449,40 @@ func (u Units) Restate(s string) string {
 				if sg != "+" {
 					v = -v
 				}
-				out = u.Signed(v, decimals)
+				if t, ok := u.readBack(QRate, typed.Rate, v, res, false, decimals); ok {
+					if !strings.HasPrefix(t, "-") {
+						t = "+" + t
+					}
+					out = t + " " + u.Speed
+				} else {
+					out = u.Signed(v, decimals)
+				}
+			} else if t, ok := u.readBack(QSpeed, typed.Rate, v, res, true, decimals); ok {
+				out = sg + t + " " + u.Speed
 			} else {
 				out = sg + u.Format(QSpeed, v, decimals)
 			}
-		case "km":
-			if u.Range == "m" {
-				continue // the engine's own choice between m and km stays
-			}
-			out = sg + u.Format(QRange, v*1000, max(decimals-3, 0))
-		default:
-			if u.Range == "m" {
+		case unit == "m" && strings.HasPrefix(s[end:], " high"):
+			if u.Height == "m" {
 				continue
 			}
-			out = sg + u.Format(QRange, v, decimals)
+			if t, ok := u.readBack(QHeight, typed.Height, v, res, false, decimals); ok {
+				out = sg + t + " " + u.Height
+			} else {
+				out = sg + u.Format(QHeight, v, decimals)
+			}
+		case u.Range == "m":
+			continue // the engine's own choice between m and km stays
+		default:
+			k, d := 1.0, decimals
+			if unit == "km" {
+				k, d = 1000, max(decimals-3, 0)
+			}
+			if t, ok := u.readBack(QRange, typed.Range, v*k, res*k, false, d); ok {
+				out = sg + t + " " + u.Range
+			} else {
+				out = sg + u.Format(QRange, v*k, d)
+			}
 		}
 		sb.WriteString(s[last:m[0]])
 		sb.WriteString(out)

@@ -1,6 +1,7 @@
 package scenarios
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"strings"
@@ -170,5 +171,70 @@ func TestUnitsFormatAndRestate(t *testing.T) {
 	// Metres kept, knots asked: only speeds change.
 	if got := (Units{"m", "kt", "m", "opening"}).Restate("at 12.34 km, -5.0 m/s"); got != "at 12.34 km, -9.7 kt" {
 		t.Errorf("Restate m,kt = %q", got)
+	}
+}
+
+// TestRestateTyped: a value the user typed reads back as typed in a
+// sentence the engine wrote from it, though the engine rounded it first
+// (km(): 10 m; "%+.1f m/s"; "%.0f m high"). Converting the rounded figure
+// gave false precision: 9999 nmi typed, "18518.15 km" written, "9999.0011
+// nmi" read. The conversions are exact ratios (1 nmi = 1852 m, 1 kt =
+// 1852/3600 m/s, 1 ft = 0.3048 m; see Units); the expected strings are
+// the typed text.
+func TestRestateTyped(t *testing.T) {
+	naut := Units{"nmi", "kt", "ft", "opening"}
+	metric := Units{"km", "km/h", "m", "closing"}
+	parse := func(u Units, q, text string) float64 {
+		v, err := u.Parse(q, text)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return v
+	}
+	s := &Scenario{Radar: Radar{AntennaHeightM: parse(naut, QHeight, "60"), WindowStartM: 1000, WindowStopM: parse(metric, QRange, "7.3")}}
+	s.Targets = []Target{
+		{ID: "far", RangeM: parse(naut, QRange, "9999"), RangeRateMPS: parse(naut, QRate, "12.5"), HeightM: parse(naut, QHeight, "3000")},
+		{ID: "near", RangeM: parse(metric, QRange, "7.3"), RangeRateMPS: parse(metric, QRate, "30")},
+	}
+	typed := TypedIn(s)
+	far, near := s.Targets[0], s.Targets[1]
+	// The engine's own wording and rounding (reason.go, horizon.go, train.go).
+	text := fmt.Sprintf("at %s it lies beyond the horizon of an antenna %.0f m high and a target %.0f m high; at %+.1f m/s, folded to %s",
+		km(far.RangeM), s.Radar.AntennaHeightM, far.HeightM, far.RangeRateMPS, km(1234.5))
+	if text != "at 18518.15 km it lies beyond the horizon of an antenna 18 m high and a target 914 m high; at +6.4 m/s, folded to 1.23 km" {
+		t.Fatalf("engine text changed: %s", text)
+	}
+	// 1.23 km was not typed: it keeps the precision it had (0.01 km is
+	// 10 m, shown to 1e-4 nmi as before).
+	want := "at 9999 nmi it lies beyond the horizon of an antenna 60 ft high and a target 3000 ft high; at +12.5 kt, folded to 0.6641 nmi"
+	if got := naut.RestateTyped(text, typed); got != want {
+		t.Errorf("nautical:\n got %s\nwant %s", got, want)
+	}
+	if got := naut.Restate(text); got == want || !strings.Contains(got, "9999.0011 nmi") {
+		t.Errorf("without the typed values the rounded figure is converted as it was: %s", got)
+	}
+	// km and km/h (closing positive): 7.3 km typed, "7.30 km" written.
+	text = fmt.Sprintf("at %s, %+.1f m/s; window %s–%s", km(near.RangeM), near.RangeRateMPS, km(s.Radar.WindowStartM), km(s.Radar.WindowStopM))
+	want = "at 7.3 km, +30 km/h; window 1 km–7.3 km" // 30 km/h typed closing is -8.33 m/s in the file
+	if got := metric.RestateTyped(text, typed); got != want {
+		t.Errorf("metric:\n got %s\nwant %s", got, want)
+	}
+	// SI units: the text is untouched, typed values or not.
+	if got := SIUnits().RestateTyped(text, typed); got != text {
+		t.Errorf("SI changed the text: %s", got)
+	}
+	// Metres for range, m/s opening, but feet for height: only the height changes.
+	if got := (Units{"m", "m/s", "ft", "opening"}).RestateTyped("a target 914 m high at 18518.15 km", typed); got != "a target 3000 ft high at 18518.15 km" {
+		t.Errorf("m, m/s, ft: %s", got)
+	}
+	// A value typed in another unit is not read back to 12 digits: 25 m/s
+	// is 48.596112311 kt; "+25.0 m/s" reads "+48.6 kt" as before.
+	if got := naut.RestateTyped("at +25.0 m/s", Typed{Rate: []float64{25}}); got != "at +48.6 kt" {
+		t.Errorf("typed in m/s, read in kt: %s", got)
+	}
+	// A number that no typed value rounds to keeps the old restatement:
+	// 18518.16 km is not 9999 nmi.
+	if got := naut.RestateTyped("at 18518.16 km", typed); got != "at 9999.0065 nmi" {
+		t.Errorf("untyped: %s", got)
 	}
 }

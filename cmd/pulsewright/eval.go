@@ -35,7 +35,7 @@ func (e *env) eval(args []string) error {
 		return fmt.Errorf("evaluate: %w", err)
 	}
 	if *format == "text" {
-		return writeReportTextIn(e.stdout, &res.Report, u)
+		return writeReportTextIn(e.stdout, &res.Report, u, scenarios.TypedIn(s))
 	}
 	enc := json.NewEncoder(e.stdout)
 	enc.SetIndent("", "  ")
@@ -45,12 +45,13 @@ func (e *env) eval(args []string) error {
 // writeReportText prints a report as a table a person reads in a terminal,
 // in SI.
 func writeReportText(w io.Writer, r *scenarios.Report) error {
-	return writeReportTextIn(w, r, scenarios.SIUnits())
+	return writeReportTextIn(w, r, scenarios.SIUnits(), scenarios.Typed{})
 }
 
 // writeReportTextIn is writeReportText with ranges, speeds and range rates
-// in u (reasons and warnings restated).
-func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units) error {
+// in u (reasons and warnings restated; a value of typed, the scenario's
+// own, reads back as typed).
+func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units, typed scenarios.Typed) error {
 	wf := r.Waveform
 	fmt.Fprintf(w, "%s\n\n", r.Scenario)
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
@@ -103,7 +104,7 @@ func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units) erro
 	tw.Flush()
 	fmt.Fprintln(w)
 	for _, t := range r.Targets {
-		fmt.Fprintf(w, "%s: %s\n", t.ID, u.Restate(t.Reason))
+		fmt.Fprintf(w, "%s: %s\n", t.ID, u.RestateTyped(t.Reason, typed))
 	}
 	for _, t := range r.Targets {
 		if line := pdLine(t); line != "" {
@@ -112,7 +113,7 @@ func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units) erro
 	}
 	var clutter strings.Builder // its ranges restated in u
 	writeClutterText(&clutter, r)
-	io.WriteString(w, u.Restate(clutter.String()))
+	io.WriteString(w, u.RestateTyped(clutter.String(), typed))
 	writeScanText(w, r)
 	for _, t := range r.Targets {
 		if t.DetectionRangeM != nil {
@@ -121,11 +122,11 @@ func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units) erro
 		}
 	}
 	for _, warn := range r.Warnings {
-		fmt.Fprintf(w, "warning: %s\n", u.Restate(warn))
+		fmt.Fprintf(w, "warning: %s\n", u.RestateTyped(warn, typed))
 	}
 	if r.Schedule != nil {
 		fmt.Fprintln(w)
-		writeScheduleText(w, r.Schedule, u)
+		writeScheduleText(w, r.Schedule, u, typed)
 	}
 	eng := scenarios.RunningEngine()
 	if r.Engine != nil {

@@ -12,7 +12,7 @@ import (
 // writeScheduleText prints a PRF schedule's per-CPI and combined results:
 // one line per CPI, one table of the verdicts of every CPI and the M-of-N
 // verdict with the unfolded range and range rate, then the reasons.
-func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport, u scenarios.Units) {
+func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport, u scenarios.Units, typed scenarios.Typed) {
 	fmt.Fprintf(w, "PRF schedule: %d CPIs, %d-of-%d", s.N, s.M, s.N)
 	if s.UnambiguousRangeM != nil {
 		fmt.Fprintf(w, ", combined unambiguous range %s", kmText(u, *s.UnambiguousRangeM))
@@ -85,11 +85,11 @@ func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport, u scenarios.Uni
 	tw.Flush()
 	fmt.Fprintln(w)
 	for _, t := range s.Targets {
-		fmt.Fprintf(w, "%s (schedule): %s\n", t.ID, u.Restate(t.Reason))
+		fmt.Fprintf(w, "%s (schedule): %s\n", t.ID, u.RestateTyped(t.Reason, typed))
 	}
 	for k, c := range s.CPIs {
 		for _, warn := range c.Warnings {
-			fmt.Fprintf(w, "warning (CPI %d): %s\n", k+1, u.Restate(warn))
+			fmt.Fprintf(w, "warning (CPI %d): %s\n", k+1, u.RestateTyped(warn, typed))
 		}
 	}
 }
