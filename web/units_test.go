@@ -2,6 +2,7 @@ package web_test
 
 import (
 	"context"
+	"encoding/json"
 	"fmt"
 	"math"
 	"strings"
@@ -289,12 +290,48 @@ func TestUnitsRestateAgrees(t *testing.T) {
 		"10 dBsm at 3 ms, 20 µs, 5 m² and 10 MHz; the echo from 9999.0 m folds to 1234.5 m",
 		"sea: 3 false-alarm cells over 1852–3704 m, 12.3–12.9 km; x5 m and 1.5e3 m",
 	}
-	for _, u := range []scenarios.Units{{Range: "nmi", Speed: "kt", Height: "ft", Rate: "closing"}, {Range: "km", Speed: "km/h", Height: "m", Rate: "opening"}, {Range: "m", Speed: "kt", Height: "m", Rate: "closing"}, scenarios.SIUnits()} {
-		for _, text := range sentences {
-			js := eval[string](t, ctx, fmt.Sprintf(`import('/js/units.js').then((m) => m.restate(%q, {range: %q, speed: %q, height: %q, rate: %q}))`, text, u.Range, u.Speed, u.Height, u.Rate))
+	// With typed values: 9999 nmi, 12.5 kt, 3000 ft, 7.3 km and 30 km/h,
+	// written by the engine rounded ("18518.15 km", "+6.4 m/s", "914 m
+	// high", "7.30 km", "8.3 m/s").
+	naut, metric := scenarios.Units{Range: "nmi", Speed: "kt", Height: "ft", Rate: "opening"}, scenarios.Units{Range: "km", Speed: "km/h", Height: "m", Rate: "opening"}
+	must := func(u scenarios.Units, q, text string) float64 {
+		v, err := u.Parse(q, text)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return v
+	}
+	sc := &scenarios.Scenario{Radar: scenarios.Radar{WindowStartM: must(metric, scenarios.QRange, "7.3"), AntennaHeightM: 18}}
+	sc.Targets = []scenarios.Target{
+		{ID: "a", RangeM: must(naut, scenarios.QRange, "9999"), RangeRateMPS: must(naut, scenarios.QRate, "12.5"), HeightM: must(naut, scenarios.QHeight, "3000")},
+		{ID: "b", RangeStartM: 1852, RangeStopM: 3704, RangeRateMPS: must(metric, scenarios.QRate, "-30")},
+	}
+	scJSON, err := json.Marshal(sc)
+	if err != nil {
+		t.Fatal(err)
+	}
+	typedSentences := append(sentences,
+		"at 18518.15 km it lies beyond the horizon of an antenna 18 m high and a target 914 m high; at +6.4 m/s, folded to 1.23 km",
+		"Outside the receive window 7.30 km–18518.15 km; a spread of 6.4 m/s; at -8.3 m/s; over 1852–3704 m")
+	for _, u := range []scenarios.Units{{Range: "nmi", Speed: "kt", Height: "ft", Rate: "closing"}, {Range: "km", Speed: "km/h", Height: "m", Rate: "opening"}, {Range: "m", Speed: "kt", Height: "m", Rate: "closing"}, {Range: "m", Speed: "m/s", Height: "ft", Rate: "opening"}, scenarios.SIUnits()} {
+		for _, text := range typedSentences {
+			js := eval[string](t, ctx, fmt.Sprintf(`import('/js/units.js').then((m) => m.restate(%q, {range: %q, speed: %q, height: %q, rate: %q}, m.typedIn(null)))`, text, u.Range, u.Speed, u.Height, u.Rate))
 			if goText := u.Restate(text); js != goText {
 				t.Errorf("%v: %q\n page %q\n  cli %q", u, text, js, goText)
 			}
+			js = eval[string](t, ctx, fmt.Sprintf(`import('/js/units.js').then((m) => m.restate(%q, {range: %q, speed: %q, height: %q, rate: %q}, m.typedIn(%s)))`, text, u.Range, u.Speed, u.Height, u.Rate, scJSON))
+			if goText := u.RestateTyped(text, scenarios.TypedIn(sc)); js != goText {
+				t.Errorf("%v typed: %q\n page %q\n  cli %q", u, text, js, goText)
+			}
 		}
+	}
+	// The typed values read back exactly on the page.
+	js := eval[string](t, ctx, fmt.Sprintf(`import('/js/units.js').then((m) => m.restate(%q, {range: 'nmi', speed: 'kt', height: 'ft', rate: 'opening'}, m.typedIn(%s)))`, typedSentences[len(sentences)], scJSON))
+	if want := "at 9999 nmi it lies beyond the horizon of an antenna 59 ft high and a target 3000 ft high; at +12.5 kt, folded to 0.6641 nmi"; js != want {
+		t.Errorf("page, nautical:\n got %s\nwant %s", js, want)
+	}
+	js = eval[string](t, ctx, fmt.Sprintf(`import('/js/units.js').then((m) => m.restate(%q, {range: 'km', speed: 'km/h', height: 'm', rate: 'opening'}, m.typedIn(%s)))`, typedSentences[len(sentences)+1], scJSON))
+	if want := "Outside the receive window 7.3 km–18518.148 km; a spread of 23.0 km/h; at -30 km/h; over 1.852–3.704 km"; js != want {
+		t.Errorf("page, metric:\n got %s\nwant %s", js, want)
 	}
 }

@@ -17,12 +17,14 @@ import { Staleness } from './stale.js';
 import { initCopyLink } from './copylink.js';
 import { Story } from './story.js';
 import { fieldName, pdText, statusLabel } from './words.js';
-import { onUnits, restate } from './units.js';
+import { onUnits, restate, typedFrom } from './units.js';
 import { initUnitsPick } from './unitspick.js';
 
 const DefaultDemo = 'harbour-skiff';
 
 const store = new Store();
+// The engine's sentences read the scene's own typed values back as typed.
+typedFrom(() => store.scenario);
 const editor = new Editor({
   scene: $('#ed-scene'), targets: $('#ed-targets'), radar: $('#ed-radar'), pulse: $('#ed-pulse'), receive: $('#ed-receive'),
 }, store);
@@ -520,8 +522,8 @@ for (const b of $$('[data-png]')) {
 
 initLibrary({ store, notice, onOpen: () => { pushNextLink = true; } });
 // The footer names the engine, as reports and exports do.
-// The stamp may not fit beside the caution on a narrow window: its title
-// holds it whole.
+// Where the stamp does not fit beside the caution it takes a second
+// line (state.css); its title also holds it.
 api.version().then((v) => {
   engineText = v.text;
   const el = $('#engine');

@@ -234,28 +234,101 @@ export function tick(q, si, p = prefs) {
 // blind speed) has none. "±" and "m/s rms" keep their meaning.
 const siInText = /(?<![\w.])([+\-\u2212±]?)(?:(\d+(?:\.\d+)?)–)?(\d+(?:\.\d+)?(?:e[+-]?\d+)?) ?(km|m\/s|m)(?![\w/²³])/g; // "1000–2000 m": one unit for both ends
 
+// The values of the scenario the person typed (SI, file convention):
+// ranges, range rates, heights. restate reads a number back as the
+// typed value the server rounded it from (scenarios.RestateTyped).
+let typedSource = () => null;
+
+// typedFrom names where restate finds the current scenario.
+export function typedFrom(get) { typedSource = get; }
+
+// typedIn lists a scenario's typed ranges (targets' ranges and edges,
+// the receive window), range rates and heights (targets', the antenna's).
+export function typedIn(s) {
+  const t = { range: [], rate: [], height: [] };
+  if (!s || typeof s !== 'object') return t;
+  const r = s.radar || {};
+  t.range.push(r.window_start_m, r.window_stop_m);
+  t.height.push(r.antenna_height_m);
+  for (const g of s.targets || []) {
+    t.range.push(g.range_m, g.range_start_m, g.range_stop_m);
+    t.rate.push(g.range_rate_mps);
+    t.height.push(g.height_m);
+  }
+  for (const k of Object.keys(t)) t[k] = t[k].filter((x) => typeof x === 'number' && Number.isFinite(x) && x !== 0);
+  return t;
+}
+
+// snap is the value of vals nearest to v that the server's rounding
+// could have written as v (within half the resolution res), or undefined.
+function snap(vals, v, res, abs) {
+  let best;
+  for (let x of vals || []) {
+    if (abs) x = Math.abs(x);
+    if (x === 0 || Math.abs(x - v) > (res / 2) * (1 + 1e-9)) continue;
+    if (best === undefined || Math.abs(x - v) < Math.abs(best - v)) best = x;
+  }
+  return best;
+}
+
+// resolution is the step of the last digit of a number as the server
+// wrote it ("18518.15" → 0.01).
+function resolution(digits) {
+  const [mant, exp = '0'] = digits.split('e');
+  return 10 ** (Number(exp) - (mant.split('.')[1] || '').length);
+}
+
+// readBack is the typed value v was rounded from, in the user's unit as
+// a field shows it ("9999", "12.5"), when it has no more decimals than
+// the ordinary restatement would give; else undefined (25 m/s typed is
+// 48.596112311 kt and reads "48.6 kt").
+function readBack(q, vals, v, res, abs, decimals, p) {
+  const x = snap(vals, v, res, abs);
+  if (x === undefined) return undefined;
+  const t = String(Number(toUser(q, x, p).toPrecision(12)) || 0);
+  return (t.split('.')[1] || '').length > digitsFor(q, unit(q, p), decimals) ? undefined : t;
+}
+
 // restate rewrites the SI numbers of a sentence written by the server
 // in the user's units; it returns the text unchanged when the user's
-// units are SI.
-export function restate(text, p = prefs) {
-  if (typeof text !== 'string' || (p.range === 'm' && p.speed === 'm/s' && p.rate === FileConvention)) return text;
-  return text.replace(siInText, (all, sg, from, digits, u) => {
+// units are SI. A height ("914 m high") takes the height unit. A value
+// of typed (default: the current scenario's) reads back as typed: with
+// nmi, a target typed as 9999 nmi that the server wrote "18518.15 km"
+// reads "9999 nmi", not "9999.0011 nmi".
+export function restate(text, p = prefs, typed = typedIn(typedSource())) {
+  if (typeof text !== 'string' || (p.range === 'm' && p.speed === 'm/s' && p.rate === FileConvention && p.height === 'm')) return text;
+  return text.replace(siInText, (all, sg, from, digits, u, at, whole) => {
     const decimals = (digits.split('e')[0].split('.')[1] || '').length;
     if (from !== undefined) { // a span: both ends in the range unit
       if (u === 'm/s' || p.range === 'm') return all;
       const k = u === 'km' ? 1000 : 1;
       const d = u === 'km' ? Math.max(0, decimals - 3) : decimals;
-      return `${sg}${number('range', Number(from) * k, d, p)}–${format('range', Number(digits) * k, d, p)}`;
+      const side = (t) => readBack('range', typed.range, Number(t) * k, resolution(t) * k, false, d, p) ?? number('range', Number(t) * k, d, p);
+      return `${sg}${side(from)}–${side(digits)} ${unit('range', p)}`;
     }
     let v = Number(digits);
-    if (u === 'km') v *= 1000;
+    const res = resolution(digits);
     if (u === 'm/s') {
       if (p.speed === 'm/s' && p.rate === FileConvention) return all;
-      if (sg === '+' || sg === '-' || sg === '\u2212') return signed((sg === '+' ? 1 : -1) * v, decimals, p);
-      return `${sg}${format('speed', v, decimals, p)}`;
+      if (sg === '+' || sg === '-' || sg === '\u2212') {
+        v *= sg === '+' ? 1 : -1;
+        const t = readBack('rate', typed.rate, v, res, false, decimals, p);
+        if (t === undefined) return signed(v, decimals, p);
+        return `${t.startsWith('-') ? t : `+${t}`} ${unit('rate', p)}`;
+      }
+      const t = readBack('speed', typed.rate, v, res, true, decimals, p);
+      return t === undefined ? `${sg}${format('speed', v, decimals, p)}` : `${sg}${t} ${unit('speed', p)}`;
+    }
+    if (u === 'm' && whole.startsWith(' high', at + all.length)) {
+      if (p.height === 'm') return all;
+      const t = readBack('height', typed.height, v, res, false, decimals, p);
+      return t === undefined ? `${sg}${format('height', v, decimals, p)}` : `${sg}${t} ${unit('height', p)}`;
     }
     if (p.range === 'm') return all; // the server's own choice between m and km stays
-    return `${sg}${format('range', v, u === 'km' ? Math.max(0, decimals - 3) : decimals, p)}`;
+    const k = u === 'km' ? 1000 : 1;
+    const d = u === 'km' ? Math.max(0, decimals - 3) : decimals;
+    const t = readBack('range', typed.range, v * k, res * k, false, d, p);
+    return t === undefined ? `${sg}${format('range', v * k, d, p)}` : `${sg}${t} ${unit('range', p)}`;
   });
 }
 
