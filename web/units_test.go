@@ -335,3 +335,28 @@ func TestUnitsRestateAgrees(t *testing.T) {
 		t.Errorf("page, metric:\n got %s\nwant %s", js, want)
 	}
 }
+
+// TestUnitsTypedReadsBack: on the page, with ranges in nmi, a target
+// typed as 9999 nmi reads "9999 nmi" in the engine's reason (which the
+// server wrote "18518.15 km"), not "9999.0011 nmi".
+func TestUnitsTypedReadsBack(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#units-pick summary`)))
+	pickDown(t, ctx, "range", 2) // m, km, nmi
+	waitFor(t, ctx, "the table in nmi", `document.querySelector('table.targets thead').textContent.includes('(nmi)')`)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#figures`))) // closes the control
+	typeInto(t, ctx, `tr[data-row="1"] input[data-path="targets[1].range_m"]`, "9999")
+	waitFor(t, ctx, "the skiff at 9999 nmi in the report", `window.__pw.store.scenario.targets[1].range_m === 18518148 && `+jsTarget+`('skiff') && `+jsTarget+`('skiff').range_m === 18518148`)
+	waitFor(t, ctx, "the skiff's reason in nmi", `document.querySelector('#figures').textContent.includes('9999 nmi')`)
+	text := eval[string](t, ctx, `document.body.innerText`)
+	if strings.Contains(text, "9999.0011") || strings.Contains(text, "18518.15 km") {
+		t.Errorf("the page shows the rounded figure: %q", text)
+	}
+	raw := eval[string](t, ctx, jsTarget+`('skiff').reason`)
+	if !strings.Contains(raw, "18518.15 km") {
+		t.Errorf("the engine's reason no longer carries the rounded figure this test is about: %q", raw)
+	}
+	t.Logf("engine: %s", raw)
+	shot(t, ctx, "")
+}
