@@ -56,6 +56,33 @@ func TestCoverageCheckValue(t *testing.T) {
 	}
 }
 
+// TestDetectionRangeEclipsed: the long-pulse demo's drone is eclipsed at
+// 9 km (46.1 dB of its echo lost inside the 18 km blind range). Its
+// detection range is the radar equation's range for its RCS, from its
+// unblanked SNR (tested SNR + eclipsing_loss_db) by the R⁴ law: about
+// 44 km, not the 3.1 km the eclipsed SNR would give, since the loss does
+// not follow the target along the range axis (it vanishes beyond the
+// blind range). An unblanked target is unchanged: R·10^(margin/40).
+func TestDetectionRangeEclipsed(t *testing.T) {
+	d, err := LoadDemo("long-pulse-blind")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res := mustEvaluate(t, d.Scenario)
+	dr := target(res, "drone")
+	if dr.Status != StatusEclipsed || dr.EclipsingLossDB == nil || dr.MarginDB == nil || dr.DetectionRangeM == nil {
+		t.Fatalf("drone: %s, eclipsing loss %v, margin %v, detection range %v", dr.Status, dr.EclipsingLossDB, dr.MarginDB, dr.DetectionRangeM)
+	}
+	want := dr.RangeM * math.Pow(10, (*dr.MarginDB+*dr.EclipsingLossDB)/40)
+	if math.Abs(*dr.DetectionRangeM-want) > 1 || *dr.DetectionRangeM < 40000 {
+		t.Errorf("drone detection range %.0f m, want %.0f m (unblanked SNR, R⁴ law)", *dr.DetectionRangeM, want)
+	}
+	la := target(res, "light-aircraft")
+	if want := la.RangeM * math.Pow(10, *la.MarginDB/40); la.DetectionRangeM == nil || math.Abs(*la.DetectionRangeM-want) > 1 {
+		t.Errorf("light aircraft detection range %v, want %.0f m", la.DetectionRangeM, want)
+	}
+}
+
 // TestCoverageEclipsing: with the window opening inside the blind range
 // c·τ/2 (1.5 km for the 10 µs pulse), the range curve follows the R⁴ law
 // outside it and falls below it inside, where part of the echo arrives
