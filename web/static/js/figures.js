@@ -46,6 +46,7 @@ const MarginHelp = 'Margin: how far its SNR at the cell is above what the requir
 const ThresholdHelp = 'Over threshold: how far the expected peak clears the detector’s threshold at its range (raised by other echoes in the training cells), in dB. Clearing it is not enough: a fluctuating target needs more to be seen on most looks.';
 const IntegratedHelp = 'Integrated: the SNR after adding up all pulses of the train coherently.';
 const PdHelp = 'Pd: how often the target is seen at the detector’s false-alarm rate, for its fluctuation model, in this scene. “Alone” is its Pd with the other targets removed (its own range sidelobes still in its training cells), shown when it differs. The status compares Pd with the required Pd.';
+const GhostPdHelp = 'Ghost Pd: how often its folded echo is seen at the apparent range, where it looks like a target that is not there: a false target, not a detection at its true range.';
 const DetectionRangeHelp = 'Detection range: where its SNR at the cell would fall to what the required Pd needs, by the R⁴ law from its present range, its RCS and everything else kept (it may lie outside the receive window).';
 const NumbersHelp = 'Pd is how often a target is seen; it is detected when Pd reaches the required Pd. SNR is the peak above noise after compression; margin is the SNR over what the required Pd needs (below 0: too weak even alone).';
 
@@ -79,7 +80,7 @@ export function renderFigures(root, report, reference, computeMs) {
         h('span', { class: 'status', title: statusHelp(t.status) }, statusLabel(t.status)),
         rt && rt.status !== t.status ? h('span', { class: 'was' }, `pinned: ${statusLabel(rt.status)}`) : null),
       h('div', { class: 'tcard-nums' },
-        t.pd !== undefined ? h('b', { class: 'pd', title: PdHelp }, `Pd ${pdText(t.pd)}`
+        t.pd !== undefined ? h('b', { class: 'pd', title: t.status === 'folded' ? GhostPdHelp : PdHelp }, `${t.status === 'folded' ? 'ghost Pd' : 'Pd'} ${pdText(t.pd)}`
           + (t.pd_alone !== undefined && pdText(t.pd_alone) !== pdText(t.pd) ? ` (alone ${pdText(t.pd_alone)})` : '')) : null,
         h('span', { title: SNRHelp }, `SNR ${fmt(t.snr_db)} dB`),
         t.margin_db !== undefined ? h('span', { title: MarginHelp }, `margin ${t.margin_db >= 0 ? '+' : ''}${fmt(t.margin_db)} dB`) : null,
