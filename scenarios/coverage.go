@@ -113,10 +113,14 @@ func CoverageOf(ctx context.Context, s *Scenario, id string, fromM, toM float64,
 		return nil, fmt.Errorf("points %d: want 2 … %d: %w", points, MaxCurvePoints, ErrInvalid)
 	}
 	r := s.Radar
-	if fromM == 0 && toM == 0 {
+	window := fromM == 0 && toM == 0
+	if window {
 		fromM, toM = r.WindowStartM, r.WindowStopM
 	}
-	if !(fromM > 0) || !(toM > fromM) || math.IsInf(toM, 1) || toM > maxCurveRangeM {
+	// A window may open at 0 m (the long-pulse demo's); the curve then
+	// starts at its first range above 0 (points at or below 0 are left out
+	// below). Ranges the user gives must be above 0.
+	if !(fromM > 0 || window && fromM == 0) || !(toM > fromM) || math.IsInf(toM, 1) || toM > maxCurveRangeM {
 		return nil, fmt.Errorf("ranges %g … %g m: want 0 < from < to ≤ %g m: %w", fromM, toM, maxCurveRangeM, ErrInvalid)
 	}
 	m, err := newModel(s, nil)

@@ -83,6 +83,36 @@ func TestDetectionRangeEclipsed(t *testing.T) {
 	}
 }
 
+// TestCoverageWindowFromZero: the long-pulse demo's receive window opens
+// at 0 m; the Pd curves of its light aircraft over the window (the
+// default of the command and of the page's Pd curves tab) start at the
+// first range above 0 instead of refusing the window as a range.
+func TestCoverageWindowFromZero(t *testing.T) {
+	d, err := LoadDemo("long-pulse-blind")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.Scenario.Radar.WindowStartM != 0 {
+		t.Fatalf("the demo's window starts at %g m; this test needs 0", d.Scenario.Radar.WindowStartM)
+	}
+	c, err := CoverageOf(context.Background(), d.Scenario, "light-aircraft", 0, 0, 30)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(c.ByRange) < 20 || !(c.ByRange[0].RangeM > 0) || c.ByRange[len(c.ByRange)-1].RangeM > d.Scenario.Radar.WindowStopM {
+		t.Errorf("%d points from %.0f m, want about 30 in (0, %.0f] m", len(c.ByRange), c.ByRange[0].RangeM, d.Scenario.Radar.WindowStopM)
+	}
+	// Inside the 18 km blind range the aircraft is eclipsed; beyond it, seen.
+	for _, p := range c.ByRange {
+		if p.RangeM > 25000 && p.RangeM < 60000 && p.Status != StatusDetected {
+			t.Errorf("at %.0f m: %s, want detected", p.RangeM, p.Status)
+		}
+		if p.RangeM < 17000 && p.Status == StatusDetected {
+			t.Errorf("at %.0f m, inside the blind range: detected", p.RangeM)
+		}
+	}
+}
+
 // TestCoverageEclipsing: with the window opening inside the blind range
 // c·τ/2 (1.5 km for the 10 µs pulse), the range curve follows the R⁴ law
 // outside it and falls below it inside, where part of the echo arrives
