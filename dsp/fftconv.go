@@ -34,6 +34,9 @@ type convPlan struct {
 	lens  []int             // segment length at each level
 	tw    [][][3]complex128 // tw[i][k][j−1] = w^{j·k}, k < lens[i]/4, 1 ≤ j < 4 (radix-4 levels above the bottom)
 	leaf  int               // first level whose segments fit convLeaf
+	// simd: run the AVX2/FMA kernels (fftconv_amd64.s) instead of the
+	// pure Go ones; set when the processor has them.
+	simd bool
 }
 
 // convLeaf is the segment length (points) below which the levels run
@@ -50,7 +53,7 @@ func newConvPlan(n int) *convPlan {
 	if !isPow2(n) {
 		panic("dsp: conv fft length must be a power of two")
 	}
-	p := &convPlan{n: n}
+	p := &convPlan{n: n, simd: simdAvailable()}
 	lg := bits.TrailingZeros(uint(n))
 	for s := n; s > 1; {
 		r := 4
@@ -143,7 +146,7 @@ func (p *convPlan) fwdRec(seg []complex128, lvl int) {
 	last := len(p.lens) - 1
 	if lvl >= p.leaf {
 		for i := lvl; i < last; i++ {
-			fwd4(seg, p.lens[i], p.tw[i])
+			p.fwd4(seg, p.lens[i], p.tw[i])
 		}
 		if p.radix[last] == 4 {
 			bottom4(seg, nil)
@@ -152,7 +155,7 @@ func (p *convPlan) fwdRec(seg []complex128, lvl int) {
 		}
 		return
 	}
-	fwd4(seg, len(seg), p.tw[lvl])
+	p.fwd4(seg, len(seg), p.tw[lvl])
 	q := len(seg) / 4
 	for j := range 4 {
 		p.fwdRec(seg[j*q:(j+1)*q], lvl+1)
@@ -177,13 +180,12 @@ func (p *convPlan) convolve(dst, src, buf, spec []complex128) {
 		return
 	}
 	// The top level reads src and writes buf; its inverse writes dst.
-	tw := p.tw[0]
-	fwd4From(buf, src, tw)
-	q := n / 4
+	tw, q := p.tw[0], n/4
+	p.fwd4FromRange(buf, src, tw, 0, q)
 	for j := range 4 {
 		p.convRec(buf[j*q:(j+1)*q], spec[j*q:(j+1)*q], 1)
 	}
-	inv4To(dst, buf, tw)
+	p.inv4ToRange(dst, buf, tw, 0, q)
 }
 
 // convRec runs the forward levels from lvl, the product by spec and the
@@ -196,24 +198,84 @@ func (p *convPlan) convRec(seg, spec []complex128, lvl int) {
 	last := len(p.lens) - 1
 	if lvl >= p.leaf {
 		for i := lvl; i < last; i++ {
-			fwd4(seg, p.lens[i], p.tw[i])
+			p.fwd4(seg, p.lens[i], p.tw[i])
 		}
 		if p.radix[last] == 4 {
-			bottom4(seg, spec)
+			p.bottom4(seg, spec)
 		} else {
 			bottom2(seg, spec)
 		}
 		for i := last - 1; i >= lvl; i-- {
-			inv4(seg, p.lens[i], p.tw[i])
+			p.inv4(seg, p.lens[i], p.tw[i])
 		}
 		return
 	}
-	fwd4(seg, len(seg), p.tw[lvl])
+	p.fwd4(seg, len(seg), p.tw[lvl])
 	q := len(seg) / 4
 	for j := range 4 {
 		p.convRec(seg[j*q:(j+1)*q], spec[j*q:(j+1)*q], lvl+1)
 	}
-	inv4(seg, len(seg), p.tw[lvl])
+	p.inv4(seg, len(seg), p.tw[lvl])
+}
+
+// fwd4 runs a forward radix-4 level on every segment of s points of x
+// (s ≥ 8, a level above the bottom), on the plan's kernels.
+func (p *convPlan) fwd4(x []complex128, s int, tw [][3]complex128) {
+	if p.simd && s >= 8 && len(x) >= s && len(x)%s == 0 && len(tw) >= s/4 {
+		fwd4AVX(&x[0], &x[0], &tw[0], s/4, s/4, len(x)/s)
+		return
+	}
+	fwd4(x, s, tw)
+}
+
+// inv4 is fwd4's inverse level, on the plan's kernels.
+func (p *convPlan) inv4(x []complex128, s int, tw [][3]complex128) {
+	if p.simd && s >= 8 && len(x) >= s && len(x)%s == 0 && len(tw) >= s/4 {
+		inv4AVX(&x[0], &x[0], &tw[0], s/4, s/4, len(x)/s)
+		return
+	}
+	inv4(x, s, tw)
+}
+
+// bottom4 is bottom4 with a spectrum, on the plan's kernels.
+func (p *convPlan) bottom4(x, spec []complex128) {
+	if p.simd && len(x) >= 4 && len(x)%4 == 0 && len(spec) >= len(x) {
+		bottom4AVX(&x[0], &spec[0], len(x))
+		return
+	}
+	bottom4(x, spec)
+}
+
+// fwd4FromRange is fwd4FromRange on the plan's kernels: the SIMD kernel
+// takes the butterflies two at a time from an even k0, the pure Go one
+// an odd last one.
+func (p *convPlan) fwd4FromRange(dst, src []complex128, tw [][3]complex128, k0, k1 int) {
+	q := len(dst) / 4
+	if p.simd && k0%2 == 0 && k1-k0 >= 2 && k1 <= q && len(src) >= 4*q && len(tw) >= k1 {
+		e := k1 - (k1-k0)%2
+		fwd4AVX(&dst[k0], &src[k0], &tw[k0], q, e-k0, 1)
+		k0 = e
+	}
+	if k0 < k1 {
+		fwd4FromRange(dst, src, tw, k0, k1)
+	}
+}
+
+// inv4ToRange is inv4ToRange on the plan's kernels (its whole
+// butterflies as fwd4FromRange's).
+func (p *convPlan) inv4ToRange(dst, src []complex128, tw [][3]complex128, k0, k1 int) {
+	q := len(src) / 4
+	if p.simd && k0%2 == 0 && len(dst) <= 4*q && len(tw) >= min(k1, q) {
+		// The butterflies whose four outputs are all wanted.
+		full := min(k1, max(len(dst)-3*q, 0))
+		if e := full - (full-k0)%2; e-k0 >= 2 {
+			inv4AVX(&dst[k0], &src[k0], &tw[k0], q, e-k0, 1)
+			k0 = e
+		}
+	}
+	if k0 < k1 {
+		inv4ToRange(dst, src, tw, k0, k1)
+	}
 }
 
 // fwd4 runs a forward radix-4 level on every segment of s points of x.
@@ -238,13 +300,9 @@ func fwd4(x []complex128, s int, tw [][3]complex128) {
 	}
 }
 
-// fwd4From is fwd4 on one segment (len(dst) points) read from src and
-// written to dst; src may be dst.
-func fwd4From(dst, src []complex128, tw [][3]complex128) {
-	fwd4FromRange(dst, src, tw, 0, len(dst)/4)
-}
-
-// fwd4FromRange is fwd4From for the butterflies k0 ≤ k < k1 only.
+// fwd4FromRange is fwd4 on one segment (len(dst) points) read from src
+// and written to dst (src may be dst), for the butterflies k0 ≤ k < k1
+// only.
 func fwd4FromRange(dst, src []complex128, tw [][3]complex128, k0, k1 int) {
 	q := len(dst) / 4
 	tw = tw[k0:k1]
@@ -290,13 +348,9 @@ func inv4(x []complex128, s int, tw [][3]complex128) {
 	}
 }
 
-// inv4To is inv4 on one segment (len(src) points) whose outputs below
-// len(dst) are written to dst; the others are not computed.
-func inv4To(dst, src []complex128, tw [][3]complex128) {
-	inv4ToRange(dst, src, tw, 0, len(src)/4)
-}
-
-// inv4ToRange is inv4To for the butterflies k0 ≤ k < k1 only.
+// inv4ToRange is inv4 on one segment (len(src) points) whose outputs
+// below len(dst) are written to dst (the others are not computed), for
+// the butterflies k0 ≤ k < k1 only.
 func inv4ToRange(dst, src []complex128, tw [][3]complex128, k0, k1 int) {
 	q := len(src) / 4
 	// Quarter j of the output is dst[j·q : j·q+q]; kq[j] of its points are

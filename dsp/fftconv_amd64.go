@@ -1,0 +1,40 @@
+//go:build amd64 && !purego
+
+package dsp
+
+// The AVX2/FMA kernels of the power-of-two plan (fftconv_amd64.s). Build
+// with -tags purego to leave them out; plans then run the pure Go
+// kernels of fftconv.go, as on other architectures.
+
+func cpuid(eaxArg, ecxArg uint32) (eax, ebx, ecx, edx uint32)
+
+func xgetbv0() (eax uint32)
+
+// simdAvailable reports whether the processor and the operating system
+// support the AVX2 and FMA instructions the kernels use (CPUID leaf 1:
+// FMA, OSXSAVE, AVX; XCR0: the XMM and YMM state saved; leaf 7: AVX2).
+func simdAvailable() bool {
+	max, _, _, _ := cpuid(0, 0)
+	if max < 7 {
+		return false
+	}
+	_, _, c1, _ := cpuid(1, 0)
+	const fma, osxsave, avx = 1 << 12, 1 << 27, 1 << 28
+	if c1&(fma|osxsave|avx) != fma|osxsave|avx {
+		return false
+	}
+	if xgetbv0()&6 != 6 {
+		return false
+	}
+	_, b7, _, _ := cpuid(7, 0)
+	return b7&(1<<5) != 0
+}
+
+//go:noescape
+func fwd4AVX(dst, src *complex128, tw *[3]complex128, q, cnt, nseg int)
+
+//go:noescape
+func inv4AVX(dst, src *complex128, tw *[3]complex128, q, cnt, nseg int)
+
+//go:noescape
+func bottom4AVX(x, spec *complex128, n int)
