@@ -11,9 +11,19 @@ func cpuid(eaxArg, ecxArg uint32) (eax, ebx, ecx, edx uint32)
 func xgetbv0() (eax uint32)
 
 // simdAvailable reports whether the processor and the operating system
-// support the AVX2 and FMA instructions the kernels use (CPUID leaf 1:
-// FMA, OSXSAVE, AVX; XCR0: the XMM and YMM state saved; leaf 7: AVX2).
-func simdAvailable() bool {
+// support the AVX2 and FMA instructions the kernels use.
+func simdAvailable() bool { return hasAVX2FMA }
+
+// hasAVX2FMA is a read-only fact about the machine, found once when the
+// package is initialised: CPUID traps to the hypervisor on a virtual
+// machine (tens of µs under load, measured in BenchmarkCorrelatorCold's
+// profile), too slow to ask for every plan. Never written after
+// initialisation: no state, a constant of the processor.
+var hasAVX2FMA = detectAVX2FMA()
+
+// detectAVX2FMA asks the processor (CPUID leaf 1: FMA, OSXSAVE, AVX;
+// XCR0: the XMM and YMM state saved by the OS; leaf 7: AVX2).
+func detectAVX2FMA() bool {
 	max, _, _, _ := cpuid(0, 0)
 	if max < 7 {
 		return false
