@@ -506,16 +506,59 @@ def fftwcold(xf, hf, reps, block, flag):
 TRIAL_PROCS = 2
 
 
-def ca_cfar_rows(p):
-    """ca_cfar on every row of p (trials × cells)."""
+def pfa_cut(a, s, n):
+    """Exact Pfa of |z0|^2 > (a/n) sum |z_i|^2 for complex Gaussian noise of
+    covariance s over [cell under test, n training cells]: the eigenvalues
+    mu of S^(1/2) Q S^(1/2), Q = diag(1, -a/n, ...), one positive (mu+),
+    Pfa = prod 1/(1 + |mu_j|/mu+) over the others (docs/detection.md, the
+    CA-CFAR with correlated cells; the same formula as
+    testdata/golden/cfar.py)."""
+    q = np.diag(np.r_[1.0, -a / n * np.ones(n)])
+    w, v = np.linalg.eigh(s)
+    sh = v @ np.diag(np.sqrt(np.maximum(w, 0))) @ v.conj().T
+    mu = np.linalg.eigvalsh(sh @ q @ sh)
+    mp = mu.max()
+    rest = np.delete(mu, mu.argmax())
+    return np.prod(1 / (1 + np.abs(rest) / mp))
+
+
+def alpha_cut(offs, rho):
+    """The CA-CFAR multiplier for training cells at offsets offs from the
+    cell under test, compressed noise correlated as rho(m) (m >= 0), at the
+    scenario's Pfa (scipy.optimize.brentq on pfa_cut)."""
+    from scipy.optimize import brentq
+    o = np.r_[0, offs]
+    d = o[None, :] - o[:, None]
+    s_ = np.where(np.abs(d) < len(rho), rho[np.minimum(np.abs(d), len(rho) - 1)], 0)
+    s_ = np.where(d >= 0, s_, np.conj(s_))
+    n = len(offs)
+    return brentq(lambda a: np.log(pfa_cut(a, s_, n)) - np.log(PFA), 1e-6, 1e6, xtol=1e-12, rtol=1e-13)
+
+
+def cfar_alphas(n, rho):
+    """alpha per cell (the training cells available at each, fewer near the
+    ends), for compressed noise correlated as rho."""
+    k = np.arange(n)
+    lo1, hi1, lo2, hi2 = training(k, n)
+    alpha = np.zeros(n)
+    memo = {}
+    for i in range(n):
+        key = (lo1[i] - i, hi1[i] - i, lo2[i] - i, hi2[i] - i)
+        if key not in memo:
+            offs = np.r_[np.arange(key[0], key[1]), np.arange(key[2], key[3])]
+            memo[key] = alpha_cut(offs, rho)
+        alpha[i] = memo[key]
+    return alpha
+
+
+def ca_cfar_rows(p, alpha):
+    """The CA-CFAR threshold alpha/N * sum of every cell of every row of p
+    (trials × cells), N the training cells available."""
     n = p.shape[1]
     c = np.concatenate((np.zeros((p.shape[0], 1)), np.cumsum(p, axis=1)), axis=1)
     k = np.arange(n)
     lo1, hi1, lo2, hi2 = training(k, n)
     cnt = hi1 - lo1 + hi2 - lo2
-    alpha = np.full(n, ca_alpha(TRAIN))
-    edge = cnt != TRAIN
-    alpha[edge] = ca_alpha(cnt[edge])
     return (alpha / cnt) * np.maximum(c[:, hi1] - c[:, lo1] + c[:, hi2] - c[:, lo2], 0)
 
 
@@ -528,7 +571,10 @@ class TrialScene:
     detected in a trial when the compressed power at the cell of its own
     noise-free peak exceeds that cell's threshold; noise cells are those
     whose whole CFAR window holds less than 1e-3 of the noise in
-    noise-free scene power."""
+    noise-free scene power. The CFAR's multiplier holds the Pfa for the
+    compressed noise's correlation between cells (the reference's
+    normalised autocorrelation), exactly, cell under test included
+    (docs/detection.md)."""
 
     def __init__(self, s):
         m = int(round(s.tau * s.fs))
@@ -540,11 +586,16 @@ class TrialScene:
         self.L = sfft.next_fast_len(nrec)
         self.ref_spec = np.conj(sfft.fft(res["ref"], self.L))
         self.pulse = res["pulse"]
+        h = res["ref"]
+        span = GUARD + TRAIN // 2
+        rho = np.array([np.sum(h[:m - j] * np.conj(h[j:])) for j in range(min(2 * span + 1, m))]) / np.sum(np.abs(h) ** 2)
+        # y[k] = sum x[k+i] conj(h[i]): E[y_k conj(y_{k+j})] = sum_i h[i+j] conj(h[i]) = conj(rho(j)).
+        self.alpha = cfar_alphas(n, np.conj(rho))
         self.ids = [t["id"] for t in s.targets]
         self.cells = {}
         for t, lo, r, _ in res["resp"]:
             if len(r) and r.max() > 0:
-                self.cells[t["id"]] = lo + int(np.argmax(r))
+                self.cells[t["id"]] = int(lo) + int(np.argmax(r))
         # Steady point echoes summed once; fluctuating ones kept apart.
         self.steady = np.zeros(nrec, dtype=complex)
         self.fluct = []
@@ -589,7 +640,7 @@ class TrialScene:
             x[:, :s.blank_end] = 0
             y = sfft.ifft(sfft.fft(x, self.L, axis=1) * self.ref_spec, axis=1)[:, :n]
             p = (y.real ** 2 + y.imag ** 2) / self.noise_gain
-            th = ca_cfar_rows(p)
+            th = ca_cfar_rows(p, self.alpha)
             hit = p[:, idx] > th[:, idx]
             for j, i in enumerate(self.ids):
                 if has[j]:
