@@ -392,10 +392,10 @@ func (c *Correlator) coopUnit(ph, u int, dst, x []complex128) {
 			}
 			clear(buf[lo+k : hi])
 		}
-		c.conv.fwd4FromRange(buf, buf, c.conv.tw[0], k0, k1)
+		c.conv.fwd4FromRange(buf, buf, k0, k1)
 	case 1:
 		c.conv.convRec(buf[u*q:(u+1)*q], c.spec[u*q:(u+1)*q], 1)
 	case 2:
-		c.conv.inv4ToRange(dst[b:min(b+c.step, c.n)], buf, c.conv.tw[0], k0, k1)
+		c.conv.inv4ToRange(dst[b:min(b+c.step, c.n)], buf, k0, k1)
 	}
 }

@@ -48,3 +48,9 @@ func inv4AVX(dst, src *complex128, tw *[3]complex128, q, cnt, nseg int)
 
 //go:noescape
 func bottom4AVX(x, spec *complex128, n int)
+
+//go:noescape
+func fwd4TopAVX(dst, src, w *complex128, q, cnt int)
+
+//go:noescape
+func inv4TopAVX(dst, src, w *complex128, q, cnt int)

@@ -240,3 +240,106 @@ bloop:
 	JNZ  bloop
 	VZEROUPPER
 	RET
+
+// LOADTOP loads w^k and w^{k+1} (AX points at w^k) into Y12 and makes
+// their squares in Y13 and cubes in Y14 (Y8–Y10 temporaries).
+#define LOADTOP \
+	VMOVUPD (AX), Y12; \
+	VMOVAPD Y12, Y13; \
+	VMOVAPD Y12, Y8; \
+	CMUL(Y13, Y8, Y9, Y10); \
+	VMOVAPD Y13, Y14; \
+	VMOVAPD Y12, Y8; \
+	CMUL(Y14, Y8, Y9, Y10)
+
+// func fwd4TopAVX(dst, src, w *complex128, q, cnt int)
+//
+// fwd4AVX on one segment with the top level's compact table: w points at
+// w^k (one factor per butterfly); w^{2k} and w^{3k} are its square and
+// cube.
+TEXT ·fwd4TopAVX(SB), NOSPLIT, $0-40
+	MOVQ dst+0(FP), R14
+	MOVQ src+8(FP), R13
+	MOVQ w+16(FP), AX
+	MOVQ q+24(FP), R9
+	MOVQ cnt+32(FP), CX
+	SHLQ $4, R9
+	LEAQ (R9)(R9*1), R10
+	LEAQ (R10)(R9*1), R11
+	VMOVUPD negIm<>(SB), Y15
+
+tloop:
+	LOADTOP
+	VMOVUPD (R13), Y0
+	VMOVUPD (R13)(R9*1), Y1
+	VMOVUPD (R13)(R10*1), Y2
+	VMOVUPD (R13)(R11*1), Y3
+	VADDPD Y2, Y0, Y4
+	VSUBPD Y2, Y0, Y5
+	VADDPD Y3, Y1, Y6
+	VSUBPD Y3, Y1, Y7
+	VADDPD Y6, Y4, Y0
+	VSUBPD Y6, Y4, Y2
+	VPERMILPD $5, Y7, Y7
+	VXORPD Y15, Y7, Y7
+	VADDPD Y7, Y5, Y1
+	VSUBPD Y7, Y5, Y3
+	CMUL(Y1, Y12, Y8, Y9)
+	CMUL(Y2, Y13, Y10, Y11)
+	CMUL(Y3, Y14, Y8, Y9)
+	VMOVUPD Y0, (R14)
+	VMOVUPD Y1, (R14)(R9*1)
+	VMOVUPD Y2, (R14)(R10*1)
+	VMOVUPD Y3, (R14)(R11*1)
+	ADDQ $32, R13
+	ADDQ $32, R14
+	ADDQ $32, AX
+	SUBQ $2, CX
+	JNZ  tloop
+	VZEROUPPER
+	RET
+
+// func inv4TopAVX(dst, src, w *complex128, q, cnt int)
+//
+// inv4AVX on one segment with the top level's compact table.
+TEXT ·inv4TopAVX(SB), NOSPLIT, $0-40
+	MOVQ dst+0(FP), R14
+	MOVQ src+8(FP), R13
+	MOVQ w+16(FP), AX
+	MOVQ q+24(FP), R9
+	MOVQ cnt+32(FP), CX
+	SHLQ $4, R9
+	LEAQ (R9)(R9*1), R10
+	LEAQ (R10)(R9*1), R11
+	VMOVUPD negIm<>(SB), Y15
+
+uloop:
+	LOADTOP
+	VMOVUPD (R13), Y0
+	VMOVUPD (R13)(R9*1), Y1
+	VMOVUPD (R13)(R10*1), Y2
+	VMOVUPD (R13)(R11*1), Y3
+	CMULC(Y1, Y12, Y8, Y9)
+	CMULC(Y2, Y13, Y10, Y11)
+	CMULC(Y3, Y14, Y8, Y9)
+	VADDPD Y2, Y0, Y4
+	VSUBPD Y2, Y0, Y5
+	VADDPD Y3, Y1, Y6
+	VSUBPD Y3, Y1, Y7
+	VADDPD Y6, Y4, Y0
+	VSUBPD Y6, Y4, Y2
+	VPERMILPD $5, Y7, Y7
+	VXORPD Y15, Y7, Y7
+	VSUBPD Y7, Y5, Y1
+	VADDPD Y7, Y5, Y3
+	VMOVUPD Y0, (R14)
+	VMOVUPD Y1, (R14)(R9*1)
+	VMOVUPD Y2, (R14)(R10*1)
+	VMOVUPD Y3, (R14)(R11*1)
+	ADDQ $32, R13
+	ADDQ $32, R14
+	ADDQ $32, AX
+	SUBQ $2, CX
+	JNZ  uloop
+	VZEROUPPER
+	RET

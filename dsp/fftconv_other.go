@@ -16,3 +16,7 @@ func inv4AVX(dst, src *complex128, tw *[3]complex128, q, cnt, nseg int) {
 }
 
 func bottom4AVX(x, spec *complex128, n int) { panic("dsp: no simd kernels in this build") }
+
+func fwd4TopAVX(dst, src, w *complex128, q, cnt int) { panic("dsp: no simd kernels in this build") }
+
+func inv4TopAVX(dst, src, w *complex128, q, cnt int) { panic("dsp: no simd kernels in this build") }
