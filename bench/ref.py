@@ -36,6 +36,7 @@ the scenario JSON that the Go side evaluates.
 """
 import json
 import math
+import os
 import resource
 import sys
 import time
@@ -91,7 +92,7 @@ def compress(xf, hf, reps, go_out=None):
 
 # ---------------------------------------------------------------- FFTW
 
-FFTW_THREADS = 2
+FFTW_THREADS = int(os.environ.get("FFTW_THREADS", "2"))  # bench/run: 2 unless told
 FFTW_FLAGS = ("FFTW_MEASURE", "FFTW_DESTROY_INPUT")  # fftwcold may change the planner flag
 
 
