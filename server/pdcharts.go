@@ -185,5 +185,6 @@ func WriteCoveragePage(w io.Writer, c *scenarios.Coverage, lines []string) error
 		"Charts":  cs,
 		"Script":  js,
 		"Caution": caution,
+		"Engine":  scenarios.RunningEngine().String(),
 	})
 }
