@@ -365,7 +365,7 @@ function hoverCard(hit) {
   head.textContent = `${t.id} · ${statusLabel(t.status)}`;
   const nums = document.createElement('div');
   nums.className = 'hc-nums';
-  nums.textContent = (t.pd !== undefined ? `Pd ${pdText(t.pd)}${t.status === 'masked' && t.pd_alone !== undefined ? ` (alone ${pdText(t.pd_alone)})` : ''} · ` : '')
+  nums.textContent = (t.pd !== undefined ? `${t.status === 'folded' ? 'ghost Pd' : 'Pd'} ${pdText(t.pd)}${t.status === 'masked' && t.pd_alone !== undefined ? ` (alone ${pdText(t.pd_alone)})` : ''} · ` : '')
     + `SNR ${t.snr_db.toFixed(1)} dB` + (t.margin_db !== undefined ? ` · margin ${t.margin_db.toFixed(1)} dB` : '')
     + (t.masked_by ? ` · masked by ${t.masked_by}` : '');
   const reason = document.createElement('div');
