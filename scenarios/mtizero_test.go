@@ -44,3 +44,22 @@ func TestMTIZeroDopplerCancelled(t *testing.T) {
 		t.Errorf("no MTI: status %s (%s), want detected", a.Status, a.Reason)
 	}
 }
+
+// TestMTIZeroDopplerPartlyEclipsed: a zero-Doppler target partly inside
+// the blind range (1.45 km against c·τ/2 = 1.5 km for the 10 µs pulse: 97 %
+// of its echo heard, its response on processed gates) is too_weak behind
+// the canceller, not eclipsed: blanking does not lose it, the canceller
+// does (docs/detection.md §6 steps 3–4). Without the canceller the map
+// sees it (not eclipsed wholly).
+func TestMTIZeroDopplerPartlyEclipsed(t *testing.T) {
+	for _, mti := range []string{"none", "two_pulse"} {
+		doc := strings.Replace(trainScene(`{"kind":"none"}`, mti, pointJSON("near", 1450, rcsFor(30, 1450))), `"window_start_m":3000`, `"window_start_m":0`, 1)
+		a := target(mustEvaluate(t, mustDecode(t, doc)), "near")
+		switch {
+		case mti == "none" && a.Status == StatusEclipsed && strings.Contains(a.Reason, "none of its response"):
+			t.Errorf("no MTI: wholly eclipsed (%s); the test's geometry is wrong", a.Reason)
+		case mti != "none" && (a.Status != StatusTooWeak || !strings.Contains(a.Reason, "MTI canceller")):
+			t.Errorf("%s: status %s (%s), want too_weak naming the MTI canceller", mti, a.Status, a.Reason)
+		}
+	}
+}
