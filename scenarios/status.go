@@ -21,6 +21,7 @@ type verdict struct {
 	cells      int     // training cells used at the peak cell
 	unblanked  float64 // the peak of its echo without blanking (same units as peak), 0 when not blanked
 	alone      float64 // detector threshold with only the target itself in its training cells
+	cancelled  bool    // a range–Doppler map with no power of it, its echo on processed gates: the MTI canceller removed it (zero Doppler)
 
 	// Probabilities of detection (docs/detection.md §6), set by decide
 	// when a closed form applies (hasPd).
@@ -174,8 +175,9 @@ func (sc *scene) decide(g *tgt, v *verdict, train bool) string {
 }
 
 // windowStatus returns the status that the receive window and blanking
-// decide before any detector does (out_of_window, folded, eclipsed
-// wholly, too_weak for an echo the receiver's band rejects), or "".
+// decide before any detector does (out_of_window, folded, too_weak for
+// an echo the MTI canceller removes, eclipsed wholly, too_weak for an
+// echo the receiver's band rejects), or "".
 func (sc *scene) windowStatus(g *tgt, v *verdict) string {
 	switch {
 	case g.hidden:
@@ -184,6 +186,8 @@ func (sc *scene) windowStatus(g *tgt, v *verdict) string {
 		return StatusOutOfWindow
 	case g.t.Kind == TargetPoint && g.folds > 0:
 		return StatusFolded // its apparent range is inside the window
+	case v.cancelled && (v.peakK < 0 || v.peak <= 0):
+		return StatusTooWeak // the MTI canceller removes it: a blind speed, zero Doppler itself
 	case g.t.Kind == TargetPoint && g.blankTouched && (g.received <= 0 || v.peakK < 0 || v.peak <= 0):
 		return StatusEclipsed // wholly eclipsed
 	case g.t.Kind != TargetPoint && sc.inBlind(g):

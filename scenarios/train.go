@@ -295,9 +295,14 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 	}
 	// The eclipsing loss scales the target's map power as its range power.
 	pu := g.unblankedPeak
-	if _, p0 := g.resp.peakIn(tr.m.processed); p0 > 0 && k >= 0 {
+	_, p0 := g.resp.peakIn(tr.m.processed)
+	if p0 > 0 && k >= 0 {
 		pu *= v.peak / p0
 	}
+	// Its echo reaches processed gates but the map holds none of it: the
+	// MTI canceller removed it (zero Doppler exactly; docs/detection.md §6).
+	v.cancelled = tr.m.s.Receiver.MTI != MTINone && g.t.Kind == TargetPoint && !g.rejected &&
+		p0 > 0 && g.received > 0 && (k < 0 || v.peak <= 0)
 	v.unblanked = pu
 	if sc.decide(g, &v, true) == StatusMasked {
 		best := 0.0

@@ -308,6 +308,7 @@ def train_scene(sc, cpi=False):
 
     out = []
     req = det["pd_required"]
+    mti_on = rx.get("mti", "none") != "none"
     for j, o in enumerate(objs):
         t = o["t"]
         k, d = o["k"], o["d"]
@@ -378,6 +379,11 @@ def train_scene(sc, cpi=False):
             st = "out_of_window"
         elif o["folds"] > 0 and not cpi:
             st = "folded"
+        elif mti_on and Pmap <= 0 and o["Pstar"] > 0 and o["nb"] < o["nin"]:
+            # its echo reaches processed gates but the MTI canceller leaves
+            # none of it on the map (zero Doppler): too_weak, decided before
+            # any detector, no Pd figures (detection.md §6 step 3)
+            st = "too_weak"
         elif touched and (o["nb"] == o["nin"] or Pmap == 0):  # on the map: no cell holds its power
             st = "eclipsed"
         elif Pmap <= 0:
