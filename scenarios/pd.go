@@ -194,10 +194,11 @@ func (t pdTest) logPfaRaised(r float64) float64 {
 // series reaches.
 const pdBelow = 1e-9
 
-// pd returns t's Pd against a threshold raised r ≥ 1 times above the one
+// pd returns t's Pd against a threshold r > 0 times the one
 // the detector sets against noise alone (the scene's extra power in the
-// training cells, or a neighbour's power at the cell). The raised
-// threshold is the nominal one of a detector of smaller Pfa, so Pd is the
+// training cells, or a neighbour's power at the cell; r < 1 where
+// pdInCell rescales the test). The scaled threshold is the nominal one of
+// a detector of another Pfa, so Pd is the
 // exact series at that Pfa. ok is false when the series cannot reach the
 // raised threshold and Pd is not below pdBelow there.
 func (t pdTest) pd(r float64) (float64, bool) {
@@ -206,7 +207,7 @@ func (t pdTest) pd(r float64) (float64, bool) {
 
 // pdFresh is pd computed without the memo.
 func (t pdTest) pdFresh(r float64) (float64, bool) {
-	if !(r >= 1) || math.IsInf(r, 1) {
+	if !(r > 0) || math.IsInf(r, 1) {
 		return 0, false
 	}
 	if t.beyond {
@@ -216,10 +217,10 @@ func (t pdTest) pdFresh(r float64) (float64, bool) {
 		return t.pdCorrelated(t.snr, r), true
 	}
 	d := t.det
-	if d.CFARCells == 0 && r > 1 {
+	if d.CFARCells == 0 && r != 1 {
 		return knownNoisePd(d.Swerling, t.snr, -r*math.Log(d.Pfa)), true
 	}
-	if r > 1 {
+	if r != 1 {
 		lp := t.logPfaRaised(r)
 		d.Pfa = math.Exp(lp)
 		if lp < math.Log(1e-300) || d.Validate() != nil {
@@ -272,6 +273,9 @@ func (m *model) pdFigures(v verdict, alone float64, out *TargetReport) {
 		out.Pd = &p
 	}
 	switch ra := math.Max(alone/v.noiseLevel, 1); {
+	case ra == v.raise && v.inCellUsed:
+		p := v.pdOwn // the same level, without the echoes in its cell
+		out.PdAlone = &p
 	case ra == v.raise && v.sceneOK:
 		p := v.pdScene // nothing else raises its threshold: the same test
 		out.PdAlone = &p

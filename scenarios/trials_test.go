@@ -449,6 +449,67 @@ func TestTrialsCoherentNeighbour(t *testing.T) {
 		if !ok {
 			t.Errorf("random phase, %.2f cells: phase-averaged Pd %.4f outside the trials' [%.4f, %.4f]", off, want, lo, hi)
 		}
+		// The report's Pd is that average (pdcell.go), inside the same
+		// interval, and the target is masked by the strong one's sidelobe.
+		rep := tr.Report().Targets[1]
+		if rep.Pd == nil || math.Abs(*rep.Pd-want) > 1e-4 {
+			t.Errorf("random phase, %.2f cells: report Pd %s, want the phase average %.4f", off, optPd(rep.Pd), want)
+		} else if ok, lo, hi := inside(*rep.Pd, c.Detections[1], n); !ok {
+			t.Errorf("random phase, %.2f cells: report Pd %.4f outside the trials' [%.4f, %.4f]", off, *rep.Pd, lo, hi)
+		}
+		if rep.Status != StatusMasked || rep.MaskedBy != "strong" || !strings.Contains(rep.Reason, "carrier phase") {
+			t.Errorf("random phase, %.2f cells: want masked by strong's sidelobe in its cell, got %s by %q: %s", off, rep.Status, rep.MaskedBy, rep.Reason)
+		}
+	}
+}
+
+// TestTrialsNeighbourFluctuating: a Swerling 1 or 3 target beside the
+// steady 30 dB one, where its sidelobe (9.1 dB) lies under the threshold
+// in the weak target's cell. With the phases drawn per trial the report's
+// Pd (dsp.PdInCell: for Swerling 1 the Rician closed form
+// Q₁(√(2χs/(1+χ)), √(2T/(1+χ))), Rice 1945, derived here for the widened
+// noise; for Swerling 3 the integral over its power) lies inside the
+// trials' 99 % interval. The steady sidelobe raises a Swerling 1 target's
+// crossing rate (Marcum Q grows with its steady part), so the status is
+// decided on the target's own Pd, as the reason says.
+func TestTrialsNeighbourFluctuating(t *testing.T) {
+	fixed := `{"kind":"fixed","pfa":1e-6}`
+	res := C / (2 * 1e7)
+	const n = 2000
+	for _, c := range []struct {
+		fluct string
+		snr   float64
+	}{{"swerling1", 18}, {"swerling3", 15}} {
+		tg := []mcTarget{{"strong", "none", 6000, 30}, {"weak", c.fluct, 6000 + 3.6*res, c.snr}}
+		s := tunedScene(t, lfmDoc, fixed, tg)
+		tr, err := NewTrials(context.Background(), s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if err := tr.SetRandomPhase(true); err != nil {
+			t.Fatal(err)
+		}
+		cnt, _ := tr.Run(context.Background(), 0, n, 0, nil)
+		rep := tr.Report().Targets[1]
+		k := tr.cells[1][0]
+		chiW, chiS := tr.tested[1], tr.sc.targets[0].resp.at(k)
+		T := -math.Log(1e-6)
+		own := knownNoisePd(swerling(c.fluct), chiW, T)
+		if c.fluct == "swerling1" {
+			want := dsp.MarcumQ(1, math.Sqrt(2*chiS/(1+chiW)), math.Sqrt(2*T/(1+chiW)))
+			if rep.Pd == nil || math.Abs(*rep.Pd-want) > 1e-9 {
+				t.Errorf("%s: report Pd %s, want the Rician %.6f", c.fluct, optPd(rep.Pd), want)
+			}
+		}
+		if rep.Pd == nil {
+			t.Fatalf("%s: no Pd", c.fluct)
+		}
+		ok, lo, hi := inside(*rep.Pd, cnt.Detections[1], n)
+		t.Logf("%s %.0f dB with a %.1f dB steady sidelobe in its cell: trials %.4f [%.4f, %.4f], report %.4f, alone %.4f, %s",
+			c.fluct, c.snr, dsp.DB(chiS), float64(cnt.Detections[1])/n, lo, hi, *rep.Pd, own, rep.Status)
+		if !ok {
+			t.Errorf("%s: report Pd %.4f outside the trials' [%.4f, %.4f]", c.fluct, *rep.Pd, lo, hi)
+		}
 	}
 }
 
