@@ -130,8 +130,10 @@ func noPdWords(g *tgt, d Detector) string {
 	switch {
 	case g.t.Kind != TargetPoint:
 		return "an extended or volume return has no Pd here, so its noise-free peak against the threshold decides"
+	case d.Kind == DetectorCens && swerling(g.t.Fluctuation) != dsp.Swerling1 && swerling(g.t.Fluctuation) != dsp.Swerling2:
+		return "no Pd form for a steady or Swerling 3/4 target behind the " + detectorName(d) + " here, so the noise-free peak against the threshold decides"
 	case d.Kind == DetectorGO || d.Kind == DetectorSO || d.Kind == DetectorCens:
-		return "no Pd series for the " + detectorName(d) + " yet, so the noise-free peak against the threshold decides"
+		return "no Pd for the " + detectorName(d) + " on a range–Doppler map here, so the noise-free peak against the threshold decides"
 	}
 	return "no closed-form Pd applies here, so the noise-free peak against the threshold decides"
 }
@@ -428,7 +430,7 @@ func candidates(s *Scenario, j int, v verdict) []candidate {
 			// clutter (Hansen & Sawyers 1980; Weiss 1982). It trains on
 			// independent cells, so it may need a wider window to keep
 			// enough of them.
-			cf = append([]candidate{smallestOf(d, 1, edge), smallestOf(d, 2, edge), smallestOf(d, 4, edge)}, cf...)
+			cf = append([]candidate{smallestOf(d, 1, edge), smallestOf(d, 2, edge), smallestOf(d, 4, edge), smallestOf(d, 8, edge), smallestOf(d, 16, edge)}, cf...)
 		}
 		return append(cf, c...)
 	}

@@ -285,16 +285,20 @@ func TestTrialsFalseAlarmRate(t *testing.T) {
 	}
 }
 
-// TestTrialsCFARVariants: the report gives no Pd behind greatest-of,
-// smallest-of and censored CFARs (no series yet), so the Monte Carlo is
-// the reference there. For a Swerling 1 target one closed form holds
+// TestTrialsCFARVariants: the report's Pd behind greatest-of,
+// smallest-of and censored CFARs (dsp.VariantPd) against the Monte Carlo
+// trials, the reference there. For a Swerling 1 target one closed form holds
 // for any CFAR whose threshold is α times a scale-equivariant statistic
 // Z of the training cells: the cell under test is exponential of mean
 // 1+χ, so Pd(χ) = Pfa(α/(1+χ)), the CFAR's false-alarm law at a smaller
 // multiplier (Weiss, IEEE TAES 18(1), 1982; Gandhi & Kassam, IEEE TAES
 // 24(4), 1988). It is checked for each variant (and OS) with dsp's Pfa
-// laws. A steady target behind a CFAR cannot beat the same target
-// against a known noise level (the Neyman–Pearson test of its cell alone).
+// laws, and the report's pd must equal it. A steady target behind a CFAR
+// cannot beat the same target against a known noise level (the
+// Neyman–Pearson test of its cell alone); its report pd (GO and SO:
+// E_X[F(X)] by Simpson's rule, docs/detection-probability.md §3) must lie
+// inside the trials' interval. A censored CFAR has no steady-target Pd:
+// the report leaves it out and the threshold decides.
 func TestTrialsCFARVariants(t *testing.T) {
 	const (
 		n   = 2000
@@ -342,10 +346,23 @@ func TestTrialsCFARVariants(t *testing.T) {
 		if !ok {
 			t.Errorf("%s: Swerling 1 closed form %.4f outside [%.4f, %.4f]", kind, want, lo, hi)
 		}
-		if r := tr.Report().Targets[1].Pd; r != nil {
+		rep := tr.Report()
+		if r := rep.Targets[0].Pd; r == nil || math.Abs(*r-want) > 1e-9 {
+			t.Errorf("%s: Swerling 1 report pd %s, want the closed form %.6f", kind, optPd(r), want)
+		}
+		r := rep.Targets[1].Pd
+		switch {
+		case r == nil && kind != "censored_cfar":
+			t.Errorf("%s: no pd for the steady target", kind)
+		case r != nil && kind == "censored_cfar":
+			t.Errorf("%s: a steady target's pd %.4f, but there is no form for it", kind, *r)
+		case r != nil:
 			if ok, lo, hi := inside(*r, c.Detections[1], n); !ok {
 				t.Errorf("%s: steady target's analytic pd %.4f outside [%.4f, %.4f]", kind, *r, lo, hi)
 			}
+		}
+		if kind == "censored_cfar" && rep.Targets[1].DecidedOn != "threshold" {
+			t.Errorf("censored: steady target decided on %q, want threshold", rep.Targets[1].DecidedOn)
 		}
 		if slo > known {
 			t.Errorf("%s: steady target beats the known-noise detector: [%.4f, %.4f] above %.4f", kind, slo, shi, known)
