@@ -144,7 +144,8 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 //
 // Window and blanking come first (out_of_window, folded, wholly
 // eclipsed). Then, where a closed form gives the target's Pd (a point
-// target behind a fixed, CA or OS detector; v.hasPd), the status is
+// target behind a fixed, CA, OS, GO or SO detector, or a censored one for
+// Swerling 1/2; v.hasPd), the status is
 // decided on Pd at detector.pd_required: detected when Pd in the scene
 // reaches it; eclipsed when blanking cost it and the unblanked echo would
 // reach it against noise alone; too_weak when even against noise alone
