@@ -106,20 +106,27 @@ func TestPdInCellGolden(t *testing.T) {
 	if len(g.Cases) < 20 {
 		t.Fatalf("%d cases in pdcell.json", len(g.Cases))
 	}
-	worst := 0.0
+	worst, worstInterp := 0.0, 0.0
 	for i, c := range g.Cases {
 		var e []CellEcho
 		for _, x := range c.Echoes {
 			e = append(e, CellEcho{x.Power, x.Swerling})
 		}
 		d := c.Det
+		e2 := append([]CellEcho(nil), e...)
 		got, err := PdInCell(e, cellDetector(d.Kind, d.Pfa, d.Scale, d.Cells, d.Rank))
 		worst = max(worst, math.Abs(got-c.Pd))
 		if err != nil || math.Abs(got-c.Pd) > 1e-6 {
 			t.Errorf("case %d (%s, %v): Pd %.8f (%v), scipy %.8f", i, d.Kind, c.Echoes, got, err, c.Pd)
 		}
+		// The tabulated path the report uses, against the same file.
+		got, err = PdInCellInterp(e2, cellDetector(d.Kind, d.Pfa, d.Scale, d.Cells, d.Rank))
+		worstInterp = max(worstInterp, math.Abs(got-c.Pd))
+		if err != nil || math.Abs(got-c.Pd) > 2e-6 {
+			t.Errorf("case %d (%s, %v): tabulated Pd %.8f (%v), scipy %.8f", i, d.Kind, c.Echoes, got, err, c.Pd)
+		}
 	}
-	t.Logf("%d cases, largest difference %.2g", len(g.Cases), worst)
+	t.Logf("%d cases, largest difference %.2g (PdInCellInterp %.2g)", len(g.Cases), worst, worstInterp)
 }
 
 // TestPdInCellErrors: bad echoes are refused with the field and range.
