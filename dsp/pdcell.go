@@ -252,7 +252,7 @@ func PdInCellInterp(echoes []CellEcho, pdSteady func(snr, scale float64) (float6
 
 // InterpTolerance is the accuracy PdInCellInterp's table aims at (absolute,
 // in Pd).
-const InterpTolerance = 1e-8
+const InterpTolerance = 1e-7
 
 // InterpShortcut is the largest error of PdInCellInterp's result where it
 // returns the mean of Pd at the two ends of the domain without an
@@ -262,7 +262,7 @@ const InterpShortcut = 5e-7
 // InterpCellTolerance is the accuracy each nested integral of
 // PdInCellInterp aims at: above the table's own, whose panel joins put
 // steps of InterpTolerance into the integrand.
-const InterpCellTolerance = 1e-8
+const InterpCellTolerance = 1e-7
 
 // maxInterpDepth bounds the halvings of a panel of the table.
 const maxInterpDepth = 16
