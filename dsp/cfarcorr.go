@@ -204,8 +204,17 @@ func newCutSpectrum(n int, cov func(i, j int) complex128) (cutSpectrum, bool) {
 	var vec mat.Dense
 	e.VectorsTo(&vec)
 	sp := cutSpectrum{n: n, lambda: e.Values(nil), w: make([]float64, 2*m)}
+	top := 0.0
+	for _, l := range sp.lambda {
+		top = math.Max(top, l)
+	}
 	for k := range sp.lambda {
-		sp.lambda[k] = math.Max(sp.lambda[k], 0)
+		// Rounding's eigenvalues of a singular Σ (|λ| ≤ 1e-12 of the
+		// largest) are its null space: exactly 0, so that logPfa sees
+		// the cell under test's weight there as none.
+		if sp.lambda[k] <= 1e-12*top {
+			sp.lambda[k] = 0
+		}
 		a, b := vec.At(0, k), vec.At(m, k)
 		sp.w[k] = (a*a + b*b) / 2
 	}
@@ -236,6 +245,13 @@ func (sp cutSpectrum) logPfa(alpha float64) float64 {
 	lo := 1.0
 	for f, _ := fd(lo); f > 0 && lo > 1e-300; f, _ = fd(lo) {
 		lo /= 4
+	}
+	if f, _ := fd(lo); f > 0 {
+		// No positive eigenvalue: the cell under test's noise lies in
+		// the span of its training cells (a singular Σ, e.g. Doppler
+		// bins of a short windowed CPI) and β exceeds the largest
+		// |z0|²/Σ|z_i|² it can reach, so the test never fires.
+		return math.Inf(-1)
 	}
 	mu := lo
 	for range 100 {
@@ -274,6 +290,9 @@ func solveLog(g func(x float64) float64) float64 {
 	side := 0
 	for range 200 {
 		x := (a*gb - b*ga) / (gb - ga)
+		if math.IsInf(ga, 0) || math.IsInf(gb, 0) {
+			x = (a + b) / 2 // regula falsi needs finite ends: bisect
+		}
 		gx := g(x)
 		switch {
 		case gx == 0:

@@ -311,3 +311,33 @@ func BenchmarkCFARThresholdsCorrelated(b *testing.B) {
 		})
 	}
 }
+
+// TestCAMultiplierWithCUTSingular: a cell under test whose noise lies in
+// the span of its training cells (a singular covariance, as the Doppler
+// bins of a short CPI under a window that is zero at its ends give).
+// With z0 = (z1 + z2)/√2 and z1, z2 independent, write w = (z1 − z2)/√2:
+// |z1|² + |z2|² = |z0|² + |w|², so |z0|² > β(|z1|² + |z2|²) is
+// |z0|²/|w|² > β/(1 − β), a ratio of independent unit exponentials:
+// Pfa = 1 − β = 1 − α/2 for α < 2 and 0 beyond (closed form, derived
+// here). The multiplier was NaN (the exact form found no positive
+// eigenvalue at the bracket's first α) and the 2-D CFAR fell back to the
+// effective-cells form, 3.3 dB high in a case of the pulse-train
+// differential test (testdata/diffmodel/train.py, train-119).
+func TestCAMultiplierWithCUTSingular(t *testing.T) {
+	c := complex(1/math.Sqrt2, 0)
+	cov := func(i, j int) complex128 {
+		switch {
+		case i == j:
+			return 1
+		case i == 0 || j == 0:
+			return c
+		}
+		return 0
+	}
+	for _, pfa := range []float64{1e-6, 1e-3, 0.1} {
+		want := 2 * (1 - pfa)
+		if a := CAMultiplierWithCUT(pfa, 2, cov); !(math.Abs(a-want) < 1e-9*want) {
+			t.Errorf("pfa %g: α %v, want %v", pfa, a, want)
+		}
+	}
+}

@@ -63,7 +63,12 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 		det.CFARCells = v.cells
 		if v.cells > 0 {
 			if train {
-				det.OSRank = 1 + int(math.Round(float64(d.Rank-1)/float64(d.TrainingCells)*float64(v.cells)))
+				// The rank the map's detector uses at the cell (dsp.CFAR2D):
+				// scaled to the whole 2-D region, then to the cells kept
+				// (docs/detection.md §9).
+				n2 := c2DCells(&dsp.CFAR2D{GuardR: d.GuardCells, TrainR: d.TrainingCells, GuardD: d.DopplerGuardCells, TrainD: d.DopplerTrainingCells})
+				r2 := 1 + int(math.Round(float64(d.Rank-1)/float64(d.TrainingCells)*float64(n2)))
+				det.OSRank = int(math.Round(float64(r2) * float64(v.cells) / float64(n2)))
 			} else {
 				det.OSRank = int(math.Round(float64(d.Rank) * float64(v.cells) / float64(d.TrainingCells)))
 			}

@@ -200,3 +200,73 @@ func TestStatusOnPd(t *testing.T) {
 		}
 	}
 }
+
+// TestPdMapOSRank: behind an OS-CFAR on a range–Doppler map the Pd is that
+// of the rank the map's detector really uses (docs/detection.md §9: scaled
+// to the whole 2-D region, then to the cells kept). A 2-D region of ±2
+// gates × ±1 bin less ±1 × ±1 holds 6 cells; at the window's first gate
+// only the 3 cells at +2 gates remain. Rank 2 of 2 becomes 4 of 6, then
+// round(4·3/6) = 2 of 3 (a one-step scaling, 1 + round(1·3/2), gives 3).
+// A rect pulse at one sample per 1/B and no Doppler window keep every cell
+// independent. For a Swerling 1 target alone the Pd is Rohling's closed
+// form at α/(1 + χ) (Rohling, IEEE TAES 19(4), 1983), α from Rohling's Pfa
+// for that rank. Found by the pulse-train differential test
+// (testdata/diffmodel/train.py): the report used the one-step rank.
+func TestPdMapOSRank(t *testing.T) {
+	doc := `{"version":2,"radar":{"pri_s":1e-4,"pulses":4,"sample_rate_hz":1e6,"window_start_m":1500,"window_stop_m":6000},
+	"waveform":{"kind":"rect","pulse_width_s":1e-6},
+	"receiver":{"doppler_window":{"kind":"none"},"detector":{"kind":"os_cfar","pfa":1e-4,"guard_cells":1,"training_cells":2,"rank":2,"doppler_guard_cells":1,"doppler_training_cells":0}},
+	"targets":[{"id":"a","kind":"point","range_m":1500,"rcs_dbsm":-5,"fluctuation":"swerling1"}]}`
+	tr := target(mustEvaluate(t, mustDecode(t, doc)), "a")
+	if tr.PdAlone == nil || tr.SNRRequiredDB == nil || tr.MarginDB == nil {
+		t.Fatalf("Pd fields missing: %+v", tr)
+	}
+	chi := math.Pow(10, (*tr.SNRRequiredDB+*tr.MarginDB)/10) // the tested SNR
+	rohling := func(a float64, n, k int) float64 {
+		p := 1.0
+		for i := range k {
+			p *= float64(n-i) / (float64(n-i) + a)
+		}
+		return p
+	}
+	pdOf := func(k int) float64 {
+		lo, hi := 1e-6, 1e9 // α by bisection on Rohling's Pfa
+		for range 200 {
+			mid := math.Sqrt(lo * hi)
+			if rohling(mid, 3, k) > 1e-4 {
+				lo = mid
+			} else {
+				hi = mid
+			}
+		}
+		return rohling(lo/(1+chi), 3, k)
+	}
+	want, wrong := pdOf(2), pdOf(3)
+	if math.Abs(want-wrong) < 0.01 {
+		t.Fatalf("ranks 2 and 3 give Pd %.4f and %.4f: the case cannot tell them apart", want, wrong)
+	}
+	if math.Abs(*tr.PdAlone-want) > 1e-6 {
+		t.Errorf("pd_alone %.6f, want %.6f (rank 2 of 3; rank 3 gives %.6f)", *tr.PdAlone, want, wrong)
+	}
+}
+
+// TestEclipsedBeyondSeriesReason: a Swerling 1 target on a pulse train,
+// eclipsed, whose scene threshold (its neighbour fills its two training
+// cells) is beyond the Pd series, so the peak against the threshold
+// decides (docs/detection.md §6). Its reason used to quote its Pd against
+// noise alone as the Pd the loss leaves ("Pd > 0.999, under the required
+// 0.9"); it must say how far under the threshold its peak is. Found by
+// the pulse-train differential test (testdata/diffmodel/train.py).
+func TestEclipsedBeyondSeriesReason(t *testing.T) {
+	doc := `{"version":2,"radar":{"carrier_hz":9.5e9,"sample_rate_hz":15873000.0,"pri_s":0.000276,"pulses":42,"window_start_m":9.0,"peak_power_w":208.0,"window_stop_m":28339.0},
+	"waveform":{"kind":"barker","length":5,"chip_s":1.26e-07},
+	"receiver":{"window":{"kind":"blackman"},"doppler_window":{"kind":"blackman_harris"},"mti":"three_pulse","detector":{"kind":"ca_cfar","pfa":0.00033,"guard_cells":1,"training_cells":2,"doppler_guard_cells":1,"doppler_training_cells":2}},
+	"targets":[{"id":"t0","kind":"point","range_m":70.85,"rcs_dbsm":-23.5,"range_rate_mps":-6853.44},{"id":"t1","kind":"point","range_m":79.9,"rcs_dbsm":-12.9,"range_rate_mps":-5970.76,"fluctuation":"swerling1"}]}`
+	tr := target(mustEvaluate(t, mustDecode(t, doc)), "t1")
+	if tr.Status != StatusEclipsed || tr.Pd != nil {
+		t.Fatalf("want eclipsed with no scene Pd, got %s, pd %v", tr.Status, tr.Pd)
+	}
+	if strings.Contains(tr.Reason, "under the required") || !strings.Contains(tr.Reason, "under the CA-CFAR threshold") {
+		t.Errorf("reason: %s", tr.Reason)
+	}
+}

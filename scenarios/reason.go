@@ -68,12 +68,14 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 			return fmt.Sprintf("Eclipsed: at %s, inside the %s blind range of the %s pulse, none of its response reaches a processed range gate (the receiver is blanked while transmitting); %.0f %% of its echo is heard.", km(g.apparent), km(blind), sec(m.tau), 100*g.received)
 		}
 		l, _ := g.eclipseLossDB(sc.m.processed)
+		if v.rule == rulePd && v.sceneOK {
+			return fmt.Sprintf("Eclipsed: only %.0f %% of its echo is heard, the rest arrives while %s is transmitted; the %.1f dB lost leaves it Pd %s, under the required %g, while without that loss it would reach Pd %s against noise alone.", 100*g.received, which, l, PdText(v.pdScene), req, PdText(v.test.withSNR(v.unblanked).pdAt(1)))
+		}
 		if v.rule == rulePd {
-			pd := v.pdNoise
-			if v.sceneOK {
-				pd = v.pdScene
-			}
-			return fmt.Sprintf("Eclipsed: only %.0f %% of its echo is heard, the rest arrives while %s is transmitted; the %.1f dB lost leaves it Pd %s, under the required %g, while without that loss it would reach Pd %s against noise alone.", 100*g.received, which, l, PdText(pd), req, PdText(v.test.withSNR(v.unblanked).pdAt(1)))
+			// The scene's threshold is beyond the Pd series: the peak
+			// against the threshold decided (docs/detection.md §6), and
+			// the Pd against noise alone is not what failed.
+			return fmt.Sprintf("Eclipsed: only %.0f %% of its echo is heard, the rest arrives while %s is transmitted; the %.1f dB lost leaves its peak %.1f dB under the %s threshold the scene sets there (too high for its Pd to be computed), while without that loss it would reach Pd %s against noise alone.", 100*g.received, which, l, -dsp.DB(v.peak/v.threshold), det, PdText(v.test.withSNR(v.unblanked).pdAt(1)))
 		}
 		return fmt.Sprintf("Eclipsed: only %.0f %% of its echo is heard, the rest arrives while %s is transmitted; the %.1f dB lost leaves its peak on the processed range gates %.1f dB under the %s threshold, while without that loss it would clear the threshold against noise alone by %.1f dB.", 100*g.received, which, l, -dsp.DB(v.peak/v.threshold), det, dsp.DB(v.unblanked/v.noiseLevel))
 	case StatusTooWeak:

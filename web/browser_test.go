@@ -100,11 +100,11 @@ func mustBrowserFor(t *testing.T, d time.Duration) context.Context {
 	if browserErr != nil {
 		t.Fatalf("start chromium: %v", browserErr)
 	}
-	ctx, cancel := chromedp.NewContext(browserCtx)
-	ctx, cancelT := context.WithTimeout(ctx, d)
+	tab, _ := chromedp.NewContext(browserCtx)
+	ctx, cancelT := context.WithTimeout(tab, d)
 	t.Cleanup(func() {
 		cancelT()
-		cancel()
+		closeTab(tab)
 	})
 	// Fail the test on any uncaught exception in the page and on anything
 	// the Content-Security-Policy blocks.
@@ -120,6 +120,23 @@ func mustBrowserFor(t *testing.T, d time.Duration) context.Context {
 		}
 	}()
 	return ctx
+}
+
+// closeTab closes a tab and waits until the browser has let it go, so
+// that no tab's teardown overlaps the next tab's creation: the browser
+// driver's target bookkeeping raced under -race in CI when a test's tab
+// was created while the previous test's was still closing.
+func closeTab(tab context.Context) {
+	_ = chromedp.Cancel(tab)
+}
+
+// newTab opens a second tab in the browser of ctx, closed (and waited
+// for) when the test ends.
+func newTab(t *testing.T, ctx context.Context) context.Context {
+	t.Helper()
+	tab, _ := chromedp.NewContext(ctx)
+	t.Cleanup(func() { closeTab(tab) })
+	return tab
 }
 
 // mustServer starts the workbench server on an httptest listener.

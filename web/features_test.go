@@ -183,8 +183,7 @@ func TestLibrarySaveOpenConflictDelete(t *testing.T) {
 
 	// A second tab opens it, changes it and saves it back (its If-Match
 	// is the revision it opened).
-	ctx2, cancel := chromedp.NewContext(ctx)
-	defer cancel()
+	ctx2 := newTab(t, ctx)
 	openPage(t, ctx2, base)
 	do(t, ctx2, chromedp.Click(chromedp.CSS(`#btn-library`)))
 	waitFor(t, ctx2, "the list", rowNames+` === 'harbour-a'`)

@@ -64,8 +64,7 @@ func TestPdOnCardsAndRequiredPd(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	tab, cancel := chromedp.NewContext(ctx)
-	defer cancel()
+	tab := newTab(t, ctx)
 	openPage(t, tab, base+strings.TrimSpace(string(link)))
 	waitFor(t, tab, "the version 1 scene", jsTarget+`('dinghy') && `+jsTarget+`('dinghy').status === 'too_weak'`)
 	waitFor(t, tab, "the verdict change in the warnings", `document.querySelector('.warnings').innerText.includes('target dinghy: read from a format version 1 document, whose rules called it detected; version 2 calls it too_weak')`)

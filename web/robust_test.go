@@ -114,7 +114,7 @@ func TestBadLinkOnOpenShowsMessageAndScene(t *testing.T) {
 	ctx := mustBrowser(t)
 	base := mustServer(t)
 	for _, bad := range badScenes(t) {
-		tab, cancel := chromedp.NewContext(ctx)
+		tab := newTab(t, ctx)
 		do(t, tab, chromedp.Navigate(base+"/"+linkOf(t, bad.doc)))
 		waitFor(t, tab, bad.name+" notice", `!document.querySelector('#notice').hidden && document.querySelector('#notice-text').textContent.includes('cannot be')`)
 		alive(t, tab, bad.name)
@@ -124,7 +124,7 @@ func TestBadLinkOnOpenShowsMessageAndScene(t *testing.T) {
 		// A scene is shown, with its plots: not an empty page.
 		waitFor(t, tab, bad.name+" plots", `window.__pw.frame() && window.__pw.plots.charts.profile.getOption().series.find((s) => s.id === 'profile').data.length > 0`)
 		shot(t, tab, bad.name)
-		cancel()
+		closeTab(tab)
 	}
 }
 

@@ -36,8 +36,7 @@ func TestSceneStoryOnScreen(t *testing.T) {
 	waitFor(t, ctx, "the note in the story", `document.querySelector('.story').innerText.includes('Customer demo')`)
 	waitFor(t, ctx, "the note's frame", fresh+` && window.__pw.store.scenario.notes === "Customer demo: the skiff hides in the tanker's sidelobes."`)
 	link := eval[string](t, ctx, `window.__pw.frame().link`)
-	tab, cancel := chromedp.NewContext(ctx)
-	defer cancel()
+	tab := newTab(t, ctx)
 	openPage(t, tab, base+link)
 	waitFor(t, tab, "the linked note", `document.querySelector('.story').innerText.includes('Customer demo: the skiff hides')`)
 	if v := eval[string](t, tab, `document.querySelector('textarea[data-path="notes"]').value`); v != "Customer demo: the skiff hides in the tanker's sidelobes." {
