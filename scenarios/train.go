@@ -293,6 +293,9 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 			v.cell /= nz
 			v.threshold /= nz
 			v.alone /= nz
+			for i := range v.inCell { // the echoes in its cell alike
+				v.inCell[i].Power /= nz
+			}
 		}
 	}
 	// The eclipsing loss scales the target's map power as its range power.

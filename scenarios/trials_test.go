@@ -412,13 +412,12 @@ func TestTrialsMaskingCFAR(t *testing.T) {
 // two echoes with the carrier phases their ranges give, so the trials
 // see their coherent sum: 0.5 resolution cells of offset move the weak
 // target from a sidelobe that adds in phase (it is always seen) to one
-// that cancels it (it is almost never seen). The report's Pd adds the
-// two as powers and gives about the same figure for both places
-// (docs/detection-probability.md §8). With the carrier phases drawn per
-// trial (SetRandomPhase) the trials agree with the Rician Pd of the sum
-// averaged over a uniform relative phase, which is well below the
-// report's figure: the report is optimistic for a sidelobe under the
-// threshold in the target's own cell.
+// that cancels it (it is almost never seen). The report's Pd is the
+// Rician Pd of the sum averaged over a uniform relative phase
+// (docs/detection-probability.md §7, §8): the same figure for both
+// places. With the carrier phases drawn per trial (SetRandomPhase) the
+// trials agree with it (0.786 and 0.750, where treating the sidelobe as a
+// floor under the threshold gave an optimistic 0.972).
 func TestTrialsCoherentNeighbour(t *testing.T) {
 	fixed := `{"kind":"fixed","pfa":1e-6}`
 	res := C / (2 * 1e7)
