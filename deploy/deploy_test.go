@@ -139,8 +139,8 @@ func TestKubernetesManifests(t *testing.T) {
 		if cmd := strs(t, name, at(t, name, c, "command")); len(cmd) != 1 || cmd[0] != "/pulsewright" {
 			t.Errorf("%s: command %q, want [/pulsewright] (the Dockerfile's binary)", name, cmd)
 		}
-		if img, _ := c["image"].(string); !strings.Contains(img, "pulsewright") {
-			t.Errorf("%s: image %q", name, img)
+		if img, _ := c["image"].(string); !strings.Contains(img, "pulsewright") || !strings.Contains(img, ":") || strings.HasSuffix(img, ":latest") {
+			t.Errorf("%s: image %q; want the pulsewright image at a fixed tag (merge refuses shards of two builds)", name, img)
 		}
 		if u := at(t, name, spec, "securityContext", "runAsUser"); u != 65532 {
 			t.Errorf("%s: runAsUser %v, want the image's nonroot 65532", name, u)
@@ -155,12 +155,25 @@ func TestKubernetesManifests(t *testing.T) {
 			t.Errorf("%s: volume claim %v, want pulsewright-shards", name, claim)
 		}
 	}
+	if a, b := at(t, "sweep-job.yaml", sweep, "spec", "template", "spec", "containers", 0, "image"), at(t, "merge-job.yaml", merge, "spec", "template", "spec", "containers", 0, "image"); a != b {
+		t.Errorf("the sweep runs %v but the merge %v: use one image", a, b)
+	}
 	margs := strs(t, "merge-job.yaml", at(t, "merge-job.yaml", merge, "spec", "template", "spec", "containers", 0, "args"))
 	if margs[0] != "merge" || !strings.Contains(strings.Join(margs, " "), "-of-"+strconv.Itoa(n)+".csv") {
 		t.Errorf("merge-job.yaml: args %q do not read the %d shards", margs, n)
 	}
 	if modes := strs(t, "volume.yaml", at(t, "volume.yaml", pvc, "spec", "accessModes")); len(modes) != 1 || modes[0] != "ReadWriteMany" {
 		t.Errorf("volume.yaml: access modes %q; shards on several nodes need ReadWriteMany", modes)
+	}
+	// The image's engine line names its commit (merge and every report
+	// trace a figure to it): go build reads it from .git, which the build
+	// context must therefore hold.
+	if di, err := os.ReadFile("../.dockerignore"); err == nil {
+		for _, l := range strings.Split(string(di), "\n") {
+			if l = strings.TrimSpace(l); l == ".git" || l == ".git/" || l == "/.git" {
+				t.Errorf(".dockerignore leaves out .git: the image would be stamped \"pulsewright devel\" without its commit")
+			}
+		}
 	}
 	// The Dockerfile puts the binary where the Jobs call it.
 	df, err := os.ReadFile("../Dockerfile")

@@ -3,6 +3,7 @@ package dsp
 import (
 	"math"
 	"math/cmplx"
+	"slices"
 
 	"gonum.org/v1/gonum/dsp/fourier"
 )
@@ -291,6 +292,13 @@ type CFAR2D struct {
 	sr, sd   int
 	circ     int // 0 unknown, 1 DopplerCov circulant, 2 not
 	spacings bool
+	// Cells keeps its last list while the range cells it may use (mask)
+	// and the bin count are the same; gen counts the lists it has built,
+	// and multiplier keeps its last value for list multGen.
+	mask         []bool
+	maskNd       int
+	gen, multGen int
+	multLast     float64
 }
 
 // Cell2 is a training cell of a CFAR2D: offsets A in range cells and B in
@@ -314,10 +322,28 @@ func (c *CFAR2D) Cells(valid func(k int) bool, k, d, nr, nd int) []Cell2 {
 	if c.Rank != 0 || c.Variant != CellAveraging {
 		sr, sd = c.sr, c.sd
 	}
-	cs := c.cells2[:0]
+	// The list depends on k only through which range cells it may use:
+	// the same mask, the same list.
+	same := c.gen > 0 && c.maskNd == nd && len(c.mask) == 2*hr+1
+	if !same {
+		c.mask = slices.Grow(c.mask[:0], 2*hr+1)[:2*hr+1]
+	}
 	for dk := -hr; dk <= hr; dk++ {
 		kk := k + dk
-		if kk < 0 || kk >= nr || valid != nil && !valid(kk) || dk%sr != 0 {
+		use := !(kk < 0 || kk >= nr || valid != nil && !valid(kk) || dk%sr != 0)
+		if same && c.mask[dk+hr] != use {
+			same = false
+		}
+		c.mask[dk+hr] = use
+	}
+	if same {
+		return c.cells2
+	}
+	c.maskNd = nd
+	c.gen++
+	cs := c.cells2[:0]
+	for dk := -hr; dk <= hr; dk++ {
+		if !c.mask[dk+hr] {
 			continue
 		}
 		for dd := -hd; dd <= hd; dd++ {
@@ -393,6 +419,11 @@ func (c *CFAR2D) multiplier(cs []Cell2, d, nd int) float64 {
 			}
 		}
 	}
+	// The list of the last call, on a circulant (or absent) Doppler
+	// covariance: the last multiplier.
+	if c.circ == 1 && c.multGen == c.gen && c.gen > 0 {
+		return c.multLast
+	}
 	c.key = c.key[:0]
 	if c.circ == 2 {
 		c.key = append(c.key, byte(d), byte(d>>8), 0xff)
@@ -404,6 +435,7 @@ func (c *CFAR2D) multiplier(cs []Cell2, d, nd int) float64 {
 		c.pattern = make(map[string]float64)
 	}
 	if a, ok := c.pattern[string(c.key)]; ok {
+		c.multGen, c.multLast = c.gen, a
 		return a
 	}
 	// Index 0 is the cell under test, 1 … N the training cells.
@@ -418,6 +450,7 @@ func (c *CFAR2D) multiplier(cs []Cell2, d, nd int) float64 {
 		return lagCorrelation(c.RhoR, cj.A-ci.A) * c.dcorr(d, d+ci.B, d+cj.B, nd)
 	})
 	c.pattern[string(c.key)] = a
+	c.multGen, c.multLast = c.gen, a
 	return a
 }
 

@@ -375,7 +375,7 @@ func (b *BlindZoneMap) summary(w io.Writer, prefix string, u Units) {
 // WriteText writes the map as characters: one row per range rate (top:
 // most receding), one column per range cell, each the number of CPIs that
 // see it (1–9, + for more); '.' when fewer than M see it (missed) and ' '
-// when every CPI does.
+// when every CPI does; the engine's line last.
 func (b *BlindZoneMap) WriteText(w io.Writer) error {
 	return b.WriteTextIn(w, SIUnits())
 }
@@ -394,6 +394,7 @@ func (b *BlindZoneMap) WriteTextIn(w io.Writer, u Units) error {
 		}
 		sb.WriteString("|\n")
 	}
+	fmt.Fprintf(&sb, "\n%s\n", RunningEngine())
 	_, err := io.WriteString(w, sb.String())
 	return err
 }
@@ -411,11 +412,13 @@ func (b *BlindZoneMap) glyph(i, j int) byte {
 	return byte('0' + n)
 }
 
-// WriteCSV writes one row per cell: range_m, range_rate_mps, cpis_seen,
+// WriteCSV writes the engine's comment line (CSVComment), then one row
+// per cell: range_m, range_rate_mps, cpis_seen,
 // eclipsed_in and blind_in (CPI numbers from 1, separated by spaces), and
 // detected (M-of-N).
 func (b *BlindZoneMap) WriteCSV(w io.Writer) error {
 	var sb strings.Builder
+	sb.WriteString(CSVComment())
 	sb.WriteString("range_m,range_rate_mps,cpis_seen,eclipsed_in,blind_in,detected\n")
 	list := func(m uint32) string {
 		var p []string
@@ -437,7 +440,8 @@ func (b *BlindZoneMap) WriteCSV(w io.Writer) error {
 }
 
 // WriteHTML writes a self-contained page: the schedule and the map as a
-// grid of coloured cells (no script, no external resource).
+// grid of coloured cells (no script, no external resource), the engine in
+// its footer.
 func (b *BlindZoneMap) WriteHTML(w io.Writer) error {
 	var sb strings.Builder
 	n := len(b.Spec.PRIs)
@@ -472,7 +476,7 @@ func (b *BlindZoneMap) WriteHTML(w io.Writer) error {
 		}
 		sb.WriteString("</tr>\n")
 	}
-	sb.WriteString("</table></body></html>\n")
+	fmt.Fprintf(&sb, "</table>\n<footer>Made with Pulsewright: <span class=\"engine\">%s</span>.</footer>\n</body></html>\n", html.EscapeString(RunningEngine().String()))
 	_, err := io.WriteString(w, sb.String())
 	return err
 }

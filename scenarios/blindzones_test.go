@@ -144,8 +144,12 @@ func TestBlindZonesErrorsAndOutputs(t *testing.T) {
 	if !strings.Contains(txt.String(), "combined unambiguous range 1648.86 km") {
 		t.Errorf("text lacks the combined range:\n%s", txt.String())
 	}
-	if lines := strings.Count(csv.String(), "\n"); lines != 1+60*20 {
-		t.Errorf("CSV has %d lines, want %d", lines, 1+60*20)
+	if lines := strings.Count(csv.String(), "\n"); lines != 2+60*20 {
+		t.Errorf("CSV has %d lines, want %d (the engine line, the header and a row per cell)", lines, 2+60*20)
+	}
+	eng := RunningEngine().String()
+	if !strings.HasPrefix(csv.String(), "# "+eng+"\n") || !strings.HasSuffix(txt.String(), "\n"+eng+"\n") || !strings.Contains(page.String(), eng) {
+		t.Errorf("an output does not name the engine %q", eng)
 	}
 	for _, out := range []string{txt.String(), csv.String(), page.String()} {
 		if strings.Contains(out, "NaN") || strings.Contains(out, "Inf") {

@@ -355,13 +355,11 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 	}
 	tr := sc.train
 	nb := tr.plan.Bins()
-	scenePow := func(k, d int) float64 {
-		s := 0.0
-		for i := range sc.targets {
-			s += tr.power(i, k, d)
-		}
-		return s
-	}
+	// The scene's power at a cell is asked for again by every level whose
+	// training cells hold it: keep the columns near the cell under test.
+	cols := newPowerColumns(sc, cf2)
+	scenePow := cols.at
+	nl := newNoiseLevels(tr, cf2)
 	for k := range m.n {
 		if !m.processed[k] {
 			continue
@@ -376,7 +374,7 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 			if j < 0 || !sc.targets[j].t.IsClutter() {
 				continue
 			}
-			if s >= tr.level(cf2, k, d, func(int, int) float64 { return 0 }) && s >= tr.level(cf2, k, d, scenePow) {
+			if s >= nl.at(k, d) && s >= tr.level(cf2, k, d, scenePow) {
 				cs.cells[j]++
 				crossed[j] = true
 			}
@@ -386,6 +384,100 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 		}
 	}
 	return cs
+}
+
+// powerColumns keeps the noise-free scene power of the range–Doppler
+// map's columns (all bins of a range cell) near the cell under test, in
+// a ring of slots: a detector's level reads its training cells' power
+// from here instead of summing every target's again. The values are
+// those of scenePower, bit for bit.
+type powerColumns struct {
+	sc   *scene
+	nb   int
+	tag  []int       // range cell held by each slot, -1: none
+	cols [][]float64 // slot → power per bin
+}
+
+// newPowerColumns makes the ring for a detector's training window (nil
+// cf2: a fixed threshold, which reads no training cell).
+func newPowerColumns(sc *scene, cf2 *dsp.CFAR2D) *powerColumns {
+	slots := 1
+	if cf2 != nil {
+		slots = 2*(cf2.GuardR+cf2.TrainR/2) + 2
+	}
+	pc := &powerColumns{sc: sc, nb: sc.train.plan.Bins(), tag: make([]int, slots), cols: make([][]float64, slots)}
+	for i := range pc.tag {
+		pc.tag[i] = -1
+		pc.cols[i] = make([]float64, pc.nb)
+	}
+	return pc
+}
+
+// at returns the scene power at range cell k, Doppler bin d.
+func (pc *powerColumns) at(k, d int) float64 {
+	i := k % len(pc.tag)
+	if pc.tag[i] != k {
+		col := pc.cols[i]
+		for dd := range col {
+			col[dd] = pc.sc.scenePower(k, dd)
+		}
+		pc.tag[i] = k
+	}
+	return pc.cols[i][d]
+}
+
+// noiseLevels keeps the map detector's level against noise alone. It
+// depends on the cell under test only through its bin and which range
+// cells around it are processed (a level reads no power but its bins'
+// noise): kept per bin while that pattern holds, bit for bit the level
+// computed afresh.
+type noiseLevels struct {
+	tr     *train
+	cf2    *dsp.CFAR2D
+	hr     int
+	k      int    // the cell the pattern was last taken at
+	around []bool // processed range cells k−hr … k+hr
+	level  []float64
+	known  []bool
+}
+
+func newNoiseLevels(tr *train, cf2 *dsp.CFAR2D) *noiseLevels {
+	hr := 0
+	if cf2 != nil {
+		hr = cf2.GuardR + cf2.TrainR/2
+	}
+	nb := tr.plan.Bins()
+	return &noiseLevels{tr: tr, cf2: cf2, hr: hr, k: -1, around: make([]bool, 2*hr+1), level: make([]float64, nb), known: make([]bool, nb)}
+}
+
+// at returns the level against noise at range cell k, Doppler bin d.
+func (nl *noiseLevels) at(k, d int) float64 {
+	if k != nl.k {
+		nl.k = k
+		m := nl.tr.m
+		for dk := -nl.hr; dk <= nl.hr; dk++ {
+			kk := k + dk
+			use := kk >= 0 && kk < m.n && m.processed[kk]
+			if nl.around[dk+nl.hr] != use {
+				nl.around[dk+nl.hr] = use
+				clear(nl.known)
+			}
+		}
+	}
+	if !nl.known[d] {
+		nl.level[d], nl.known[d] = nl.tr.level(nl.cf2, k, d, func(int, int) float64 { return 0 }), true
+	}
+	return nl.level[d]
+}
+
+// scenePower returns the noise-free power of every object of a pulse
+// train's scene at range cell k, Doppler bin d.
+func (sc *scene) scenePower(k, d int) float64 {
+	s := 0.0
+	for i := range sc.targets {
+		s += sc.train.power(i, k, d)
+	}
+	return s
 }
 
 // spans merges ascending gates into runs of adjacent gates.

@@ -71,12 +71,17 @@ func DetectionRange(rangeM, snrDB, requiredDB float64) float64 {
 }
 
 // detectionRangeOf sets out.DetectionRangeM of a point target with
-// verdict v whose report has snr_required_db.
+// verdict v whose report has snr_required_db. An eclipsed echo is taken
+// at its unblanked peak: the eclipsing loss holds only at this range
+// (it vanishes beyond the blind range), so carrying it along the R⁴ law
+// would give a range where the target is neither eclipsed that much nor
+// seen (the long-pulse demo's drone: 3.1 km with its 46 dB loss kept).
 func detectionRangeOf(g *tgt, v verdict, out *TargetReport) {
-	if g.t.Kind != TargetPoint || out.SNRRequiredDB == nil || !(v.peak > 0) || !(g.t.RangeM > 0) {
+	peak := max(v.peak, v.unblanked)
+	if g.t.Kind != TargetPoint || out.SNRRequiredDB == nil || !(peak > 0) || !(g.t.RangeM > 0) {
 		return
 	}
-	if dr := DetectionRange(g.t.RangeM, dsp.DB(v.peak), *out.SNRRequiredDB); dr > 0 && !math.IsInf(dr, 0) && !math.IsNaN(dr) {
+	if dr := DetectionRange(g.t.RangeM, dsp.DB(peak), *out.SNRRequiredDB); dr > 0 && !math.IsInf(dr, 0) && !math.IsNaN(dr) {
 		out.DetectionRangeM = &dr
 	}
 }
@@ -108,10 +113,14 @@ func CoverageOf(ctx context.Context, s *Scenario, id string, fromM, toM float64,
 		return nil, fmt.Errorf("points %d: want 2 … %d: %w", points, MaxCurvePoints, ErrInvalid)
 	}
 	r := s.Radar
-	if fromM == 0 && toM == 0 {
+	window := fromM == 0 && toM == 0
+	if window {
 		fromM, toM = r.WindowStartM, r.WindowStopM
 	}
-	if !(fromM > 0) || !(toM > fromM) || math.IsInf(toM, 1) || toM > maxCurveRangeM {
+	// A window may open at 0 m (the long-pulse demo's); the curve then
+	// starts at its first range above 0 (points at or below 0 are left out
+	// below). Ranges the user gives must be above 0.
+	if !(fromM > 0 || window && fromM == 0) || !(toM > fromM) || math.IsInf(toM, 1) || toM > maxCurveRangeM {
 		return nil, fmt.Errorf("ranges %g … %g m: want 0 < from < to ≤ %g m: %w", fromM, toM, maxCurveRangeM, ErrInvalid)
 	}
 	m, err := newModel(s, nil)
@@ -134,10 +143,7 @@ func CoverageOf(ctx context.Context, s *Scenario, id string, fromM, toM float64,
 		c.SNRDB = &own
 		if c.SNRRequiredDB != nil {
 			req := *c.SNRRequiredDB
-			dr := DetectionRange(c.RangeM, own, req)
-			if dr > 0 && !math.IsInf(dr, 0) {
-				c.DetectionRangeM = &dr
-			}
+			c.DetectionRangeM = reps[j].DetectionRangeM // one definition: detectionRangeOf
 			lo, hi := math.Floor(min(req-15, own-3)), math.Ceil(max(req+15, own+3))
 			for x := lo; x <= hi+1e-9; x += 0.25 {
 				t.snr = dsp.FromDB(x)

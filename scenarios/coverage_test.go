@@ -56,6 +56,63 @@ func TestCoverageCheckValue(t *testing.T) {
 	}
 }
 
+// TestDetectionRangeEclipsed: the long-pulse demo's drone is eclipsed at
+// 9 km (46.1 dB of its echo lost inside the 18 km blind range). Its
+// detection range is the radar equation's range for its RCS, from its
+// unblanked SNR (tested SNR + eclipsing_loss_db) by the R⁴ law: about
+// 44 km, not the 3.1 km the eclipsed SNR would give, since the loss does
+// not follow the target along the range axis (it vanishes beyond the
+// blind range). An unblanked target is unchanged: R·10^(margin/40).
+func TestDetectionRangeEclipsed(t *testing.T) {
+	d, err := LoadDemo("long-pulse-blind")
+	if err != nil {
+		t.Fatal(err)
+	}
+	res := mustEvaluate(t, d.Scenario)
+	dr := target(res, "drone")
+	if dr.Status != StatusEclipsed || dr.EclipsingLossDB == nil || dr.MarginDB == nil || dr.DetectionRangeM == nil {
+		t.Fatalf("drone: %s, eclipsing loss %v, margin %v, detection range %v", dr.Status, dr.EclipsingLossDB, dr.MarginDB, dr.DetectionRangeM)
+	}
+	want := dr.RangeM * math.Pow(10, (*dr.MarginDB+*dr.EclipsingLossDB)/40)
+	if math.Abs(*dr.DetectionRangeM-want) > 1 || *dr.DetectionRangeM < 40000 {
+		t.Errorf("drone detection range %.0f m, want %.0f m (unblanked SNR, R⁴ law)", *dr.DetectionRangeM, want)
+	}
+	la := target(res, "light-aircraft")
+	if want := la.RangeM * math.Pow(10, *la.MarginDB/40); la.DetectionRangeM == nil || math.Abs(*la.DetectionRangeM-want) > 1 {
+		t.Errorf("light aircraft detection range %v, want %.0f m", la.DetectionRangeM, want)
+	}
+}
+
+// TestCoverageWindowFromZero: the long-pulse demo's receive window opens
+// at 0 m; the Pd curves of its light aircraft over the window (the
+// default of the command and of the page's Pd curves tab) start at the
+// first range above 0 instead of refusing the window as a range.
+func TestCoverageWindowFromZero(t *testing.T) {
+	d, err := LoadDemo("long-pulse-blind")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if d.Scenario.Radar.WindowStartM != 0 {
+		t.Fatalf("the demo's window starts at %g m; this test needs 0", d.Scenario.Radar.WindowStartM)
+	}
+	c, err := CoverageOf(context.Background(), d.Scenario, "light-aircraft", 0, 0, 30)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(c.ByRange) < 20 || !(c.ByRange[0].RangeM > 0) || c.ByRange[len(c.ByRange)-1].RangeM > d.Scenario.Radar.WindowStopM {
+		t.Errorf("%d points from %.0f m, want about 30 in (0, %.0f] m", len(c.ByRange), c.ByRange[0].RangeM, d.Scenario.Radar.WindowStopM)
+	}
+	// Inside the 18 km blind range the aircraft is eclipsed; beyond it, seen.
+	for _, p := range c.ByRange {
+		if p.RangeM > 25000 && p.RangeM < 60000 && p.Status != StatusDetected {
+			t.Errorf("at %.0f m: %s, want detected", p.RangeM, p.Status)
+		}
+		if p.RangeM < 17000 && p.Status == StatusDetected {
+			t.Errorf("at %.0f m, inside the blind range: detected", p.RangeM)
+		}
+	}
+}
+
 // TestCoverageEclipsing: with the window opening inside the blind range
 // c·τ/2 (1.5 km for the 10 µs pulse), the range curve follows the R⁴ law
 // outside it and falls below it inside, where part of the echo arrives

@@ -1,11 +1,17 @@
 package scenarios
 
 import (
+	"fmt"
+	"go/ast"
+	"go/parser"
+	"go/token"
 	"os"
+	"path/filepath"
 	"reflect"
 	"regexp"
 	"slices"
 	"sort"
+	"strconv"
 	"strings"
 	"testing"
 )
@@ -232,5 +238,191 @@ func TestDocsMarkersParse(t *testing.T) {
 	}
 	if got := names("`a`, `b` and `c`"); !slices.Equal(got, []string{"a", "b", "c"}) {
 		t.Errorf("names: %v", got)
+	}
+}
+
+// TestDecoderReadsOnlyListedFields closes the loop between the decoder's
+// code and its field lists, which the tests above compare with the
+// documents: the decoder accepts exactly the fields its readers take
+// (object.get marks a field used; finish reports the rest as unknown),
+// and the lists only name them in messages. So this test reads the
+// decoder's source and finds every field name a reader of an *object is
+// called with (o.float("pri_s", …), o.child("scan"), o.used["id"], …);
+// each must be in a list, so that a field read without being listed —
+// accepted but undocumented — fails here. Readers called with a variable
+// loop over a list (levelFields, airFields, iqFields) and need no check.
+func TestDecoderReadsOnlyListedFields(t *testing.T) {
+	listed := map[string]bool{"kind": true, "id": true}
+	for _, l := range [][]string{topFields, radarFields, receiverFields, tapsFields, scheduleFields, cpiFields, scanFields,
+		frontEndFields, propagationFields, airFields, levelFields, iqFields} {
+		for _, f := range l {
+			listed[f] = true
+		}
+	}
+	for _, m := range []map[string][]string{waveformFields, windowFields, detectorFields, targetFields} {
+		for _, fs := range m {
+			for _, f := range fs {
+				listed[f] = true
+			}
+		}
+	}
+	// The decoder's *object variables: the receiver o, a child c, the
+	// document top, a schedule's CPI e (newObject and child in decode.go).
+	isObject := func(x ast.Expr) bool {
+		id, ok := x.(*ast.Ident)
+		return ok && (id.Name == "o" || id.Name == "c" || id.Name == "top" || id.Name == "e")
+	}
+	readers := map[string]bool{"get": true, "has": true, "float": true, "intIn": true, "int": true, "int64": true, "str": true,
+		"kind": true, "require": true, "child": true, "numbers": true, "oneOf": true, "sameLength": true}
+	fset := token.NewFileSet()
+	files, err := filepath.Glob("*.go")
+	if err != nil {
+		t.Fatal(err)
+	}
+	read := map[string]string{} // field → where
+	for _, name := range files {
+		if strings.HasSuffix(name, "_test.go") {
+			continue
+		}
+		f, err := parser.ParseFile(fset, name, nil, 0)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, d := range f.Decls {
+			fd, ok := d.(*ast.FuncDecl)
+			if !ok || fd.Body == nil {
+				continue
+			}
+			ast.Inspect(fd.Body, func(n ast.Node) bool {
+				var lit *ast.BasicLit
+				switch x := n.(type) {
+				case *ast.CallExpr:
+					if sel, ok := x.Fun.(*ast.SelectorExpr); ok && readers[sel.Sel.Name] && isObject(sel.X) && len(x.Args) > 0 {
+						lit, _ = x.Args[0].(*ast.BasicLit)
+					}
+				case *ast.IndexExpr: // o.used["id"] = true
+					if sel, ok := x.X.(*ast.SelectorExpr); ok && sel.Sel.Name == "used" && isObject(sel.X) {
+						lit, _ = x.Index.(*ast.BasicLit)
+					}
+				}
+				if lit != nil && lit.Kind == token.STRING {
+					if v, err := strconv.Unquote(lit.Value); err == nil {
+						read[v] = fmt.Sprintf("%s (%s)", fset.Position(lit.Pos()), fd.Name.Name)
+					}
+				}
+				return true
+			})
+		}
+	}
+	if len(read) < 60 {
+		t.Fatalf("found only %d field names read by the decoder: the source scan is broken", len(read))
+	}
+	for f, where := range read {
+		if !listed[f] {
+			t.Errorf("the decoder reads %q at %s, but no field list names it (and so no document): add it to its list and to docs/scenario-format.md", f, where)
+		}
+	}
+	for f := range listed {
+		if _, ok := read[f]; !ok && !slices.Contains(levelFields, f) && !slices.Contains(airFields, f) && !slices.Contains(iqFields, f) {
+			t.Errorf("field %q is listed (and documented) but no reader of the decoder takes it by name", f)
+		}
+	}
+}
+
+// TestReportTablesCoverEveryType: every struct type the report holds has
+// its table in docs/report-format.md (listed in
+// TestReportFormatDocumentsEveryField), so that a new nested object cannot
+// go undocumented by being left out of that list. Embedded structs are
+// inlined into their parent's table; Span ({start_m, stop_m}) is
+// described in the breakthrough table's `spans` row.
+func TestReportTablesCoverEveryType(t *testing.T) {
+	covered := map[reflect.Type]bool{
+		reflect.TypeFor[Report](): true, reflect.TypeFor[WaveformReport](): true, reflect.TypeFor[TargetReport](): true,
+		reflect.TypeFor[EngineInfo](): true, reflect.TypeFor[ScheduleReport](): true, reflect.TypeFor[StaggerReport](): true,
+		reflect.TypeFor[CPIReport](): true, reflect.TypeFor[CPITarget](): true, reflect.TypeFor[ScheduleTarget](): true,
+		reflect.TypeFor[FalseAlarms](): true, reflect.TypeFor[ClutterSummary](): true, reflect.TypeFor[Breakthrough](): true,
+		reflect.TypeFor[ScanReport](): true, reflect.TypeFor[ScanCPI](): true,
+		reflect.TypeFor[Span](): true, // inline in the breakthrough table
+	}
+	seen := map[reflect.Type]bool{}
+	var walk func(typ reflect.Type, path string)
+	walk = func(typ reflect.Type, path string) {
+		for typ.Kind() == reflect.Pointer || typ.Kind() == reflect.Slice || typ.Kind() == reflect.Array || typ.Kind() == reflect.Map {
+			typ = typ.Elem()
+		}
+		if typ.Kind() != reflect.Struct || seen[typ] {
+			return
+		}
+		seen[typ] = true
+		for i := range typ.NumField() {
+			f := typ.Field(i)
+			if !f.IsExported() || f.Tag.Get("json") == "-" {
+				continue
+			}
+			name, _, _ := strings.Cut(f.Tag.Get("json"), ",")
+			ft := f.Type
+			for ft.Kind() == reflect.Pointer || ft.Kind() == reflect.Slice || ft.Kind() == reflect.Array || ft.Kind() == reflect.Map {
+				ft = ft.Elem()
+			}
+			if f.Anonymous && name == "" {
+				walk(ft, path) // inlined into this table
+				continue
+			}
+			if ft.Kind() == reflect.Struct && ft.PkgPath() == typ.PkgPath() && !covered[ft] {
+				t.Errorf("report field %s.%s holds %s, which has no table in docs/report-format.md", path, name, ft.Name())
+			}
+			walk(ft, path+"."+name)
+		}
+	}
+	walk(reflect.TypeFor[Report](), "report")
+	if len(seen) < len(covered) {
+		t.Errorf("walked %d struct types, fewer than the %d tables: the walk is broken", len(seen), len(covered))
+	}
+}
+
+// TestNothingPointsOutsideTheRepository: the repository stands alone (issue
+// 18): no file of it — code, documents, scripts, CI — refers to a
+// specification or a folder beside the clone ("../shared", "shared/spec"),
+// which a user who clones the repository does not have. The project's
+// docs/ are the format's truth.
+func TestNothingPointsOutsideTheRepository(t *testing.T) {
+	root := ".."
+	bad := regexp.MustCompile(`\.\./shared\b|\bshared/spec\b`)
+	files := 0
+	err := filepath.WalkDir(root, func(path string, d os.DirEntry, err error) error {
+		if err != nil {
+			return err
+		}
+		if d.IsDir() {
+			switch d.Name() {
+			case ".git", "test-output", "vendor", "node_modules":
+				return filepath.SkipDir
+			}
+			return nil
+		}
+		info, err := d.Info()
+		if err != nil || info.Size() > 4<<20 {
+			return err
+		}
+		data, err := os.ReadFile(path)
+		if err != nil {
+			return err
+		}
+		files++
+		if path == "../scenarios/docs_test.go" {
+			return nil // this test names the patterns
+		}
+		for i, line := range strings.Split(string(data), "\n") {
+			if bad.MatchString(line) {
+				t.Errorf("%s:%d points outside the repository: %s", strings.TrimPrefix(path, "../"), i+1, strings.TrimSpace(line))
+			}
+		}
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if files < 100 {
+		t.Errorf("read only %d files from the module root: the walk is broken", files)
 	}
 }

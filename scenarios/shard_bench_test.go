@@ -9,9 +9,11 @@ import (
 )
 
 // The scaling figures of bench/RESULTS.md ("Sharding: points per second
-// and cost per point"). Run them with
+// and cost per point", and the same for Monte Carlo trials). Run them with
 //
 //	go test ./scenarios -run X -bench 'ShardThroughput|PointCost' -cpu 1,2 -benchtime 20x
+//	go test ./scenarios -run X -bench 'TrialThroughput' -cpu 1,2 -benchtime 400x
+//	go test ./scenarios -run X -bench 'TrialCost' -cpu 1 -benchtime 40x
 
 // BenchmarkShardThroughput runs one shard of 16 points of the harbour
 // scene (the skiff's range swept; the waveform and the reference reused
@@ -123,5 +125,66 @@ func BenchmarkPointCost(b *testing.B) {
 				b.ReportMetric(cpu.Seconds()*1e3/float64(b.N), "cpu-ms/point")
 			}
 		})
+	}
+}
+
+// BenchmarkTrialThroughput is the Monte Carlo side of the sizing figures
+// (bench/RESULTS.md, "trials per second"): trials of the harbour demo on
+// one worker per GOMAXPROCS, so -cpu 1,2 gives one and two cores. A trials
+// shard runs its block of trials at the same rate: the partition only
+// picks which trial indices it runs. One op is one trial; the scene is
+// prepared once (NewTrials), as a shard does before its block.
+func BenchmarkTrialThroughput(b *testing.B) {
+	d, err := LoadDemo("harbour-skiff")
+	if err != nil {
+		b.Fatal(err)
+	}
+	benchTrials(b, d.Scenario, runtime.GOMAXPROCS(0))
+}
+
+// BenchmarkTrialCost is the cost of one Monte Carlo trial as the scene
+// grows along one dimension at a time, the scenes of BenchmarkPointCost
+// (from 4 targets, an 8 km window and one pulse): targets (1 … 64),
+// window length (2 … 128 km) and pulses (1 … 128), on one worker.
+func BenchmarkTrialCost(b *testing.B) {
+	for _, sz := range []struct {
+		name    string
+		targets int
+		windowM float64
+		pulses  int
+	}{
+		{"targets=1", 1, 8000, 1}, {"targets=4", 4, 8000, 1}, {"targets=16", 16, 8000, 1}, {"targets=64", 64, 8000, 1},
+		{"window_km=2", 4, 2000, 1}, {"window_km=32", 4, 32000, 1}, {"window_km=128", 4, 128000, 1},
+		{"pulses=8", 4, 8000, 8}, {"pulses=32", 4, 8000, 32}, {"pulses=128", 4, 8000, 128},
+	} {
+		b.Run(sz.name, func(b *testing.B) {
+			s := benchScene(b, sz.targets, sz.windowM, sz.pulses)
+			b.ReportMetric(float64(s.WindowSamples()), "samples")
+			benchTrials(b, s, 1)
+		})
+	}
+}
+
+// benchTrials runs b.N trials of s in one run on the given workers and
+// reports trials per second and the wall and CPU time per trial.
+func benchTrials(b *testing.B, s *Scenario, workers int) {
+	tr, err := NewTrials(context.Background(), s)
+	if err != nil {
+		b.Fatal(err)
+	}
+	b.ReportAllocs()
+	cpu0 := processCPU()
+	b.ResetTimer()
+	// One run of b.N trials: a run sets up each worker's plans once, as
+	// a shard's block does.
+	if _, err := tr.Run(context.Background(), 0, b.N, workers, nil); err != nil {
+		b.Fatal(err)
+	}
+	b.StopTimer()
+	per := b.Elapsed().Seconds() / float64(b.N)
+	b.ReportMetric(1/per, "trials/s")
+	b.ReportMetric(per*1e3, "ms/trial")
+	if cpu := processCPU() - cpu0; cpu > 0 {
+		b.ReportMetric(cpu.Seconds()*1e3/float64(b.N), "cpu-ms/trial")
 	}
 }

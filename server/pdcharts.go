@@ -49,8 +49,10 @@ func raised(m map[string]any) map[string]any {
 
 // CoverageOption builds the ECharts option of the Pd curves of c: Pd
 // against SNR with the required Pd, the SNR it needs and the target's own
-// SNR marked; Pd (in the scene and alone) against range in km with the
-// required Pd, the target's range and the coverage range marked.
+// SNR marked; Pd (in the scene and alone) against range with the
+// required Pd, the target's range and the coverage range marked. The range
+// axis is in metres and named "range (m)", so that the page restates it in
+// the units the user chose (web/static/js/units.js, axisUnits).
 func CoverageOption(c *scenarios.Coverage) map[string]any {
 	l := charts.NewLine()
 	l.SetGlobalOptions(
@@ -58,7 +60,7 @@ func CoverageOption(c *scenarios.Coverage) map[string]any {
 		charts.WithGridOpts(pdGrids[0], pdGrids[1]),
 	)
 	l.XAxisList, l.YAxisList = nil, nil
-	for i, name := range []string{"SNR at its cell (dB)", "range (km)"} {
+	for i, name := range []string{"SNR at its cell (dB)", "range (m)"} {
 		l.ExtendXAxis(opts.XAxis{Type: "value", GridIndex: i, Name: name, NameLocation: "middle", NameGap: 22,
 			Min: "dataMin", Max: "dataMax", SplitNumber: 4,
 			AxisLabel: &opts.AxisLabel{FontSize: 10, ShowMinLabel: opts.Bool(false), ShowMaxLabel: opts.Bool(false)}})
@@ -101,14 +103,14 @@ func CoverageOption(c *scenarios.Coverage) map[string]any {
 
 	var scene, alone [][2]any
 	for _, p := range c.ByRange {
-		x := round4(p.RangeM / 1000)
+		x := round4(p.RangeM)
 		scene = append(scene, [2]any{x, pdOrNull(p.Pd)})
 		alone = append(alone, [2]any{x, pdOrNull(p.PdAlone)})
 	}
 	rangeMarks := []map[string]any{pdMark("yAxis", req, fmt.Sprintf("Pd %g", req), "insideEndTop"),
-		pdMark("xAxis", c.RangeM/1000, c.Target, "end")}
+		pdMark("xAxis", c.RangeM, c.Target, "end")}
 	if c.CoverageM != nil {
-		rangeMarks = append(rangeMarks, raised(pdMark("xAxis", *c.CoverageM/1000, "coverage", "end")))
+		rangeMarks = append(rangeMarks, raised(pdMark("xAxis", *c.CoverageM, "coverage", "end")))
 	}
 	s1 := lineSeries(SeriesPdRange, colourProfile, 2, scene)
 	s1["name"] = "in the scene"
@@ -185,5 +187,6 @@ func WriteCoveragePage(w io.Writer, c *scenarios.Coverage, lines []string) error
 		"Charts":  cs,
 		"Script":  js,
 		"Caution": caution,
+		"Engine":  scenarios.RunningEngine().String(),
 	})
 }

@@ -3,6 +3,8 @@ package server
 import (
 	"html/template"
 	"io"
+
+	"github.com/pulsewright/pulsewright/scenarios"
 )
 
 // PdCurve is one line of a detection-probability page: points (x, Pd).
@@ -69,6 +71,7 @@ func WritePdPage(w io.Writer, p PdPage) error {
 		"Charts":  cs,
 		"Script":  js,
 		"Caution": caution,
+		"Engine":  scenarios.RunningEngine().String(),
 	})
 }
 
@@ -91,6 +94,7 @@ var pdTmpl = template.Must(template.New("pd").Parse(`<!DOCTYPE html>
 {{end}}
 <p class="notes">Square-law detector; SNR is the mean signal-to-noise ratio of one pulse after the matched filter. Methods and sources: docs/detection-probability.md.</p>
 <div class="caution"><b>Caution.</b> {{.Caution}}</div>
+<footer>Made with Pulsewright: <span class="engine">{{.Engine}}</span>.</footer>
 </main>
 <script type="module">{{.Script}}</script>
 </body>

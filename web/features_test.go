@@ -135,9 +135,15 @@ func TestExportAndImport(t *testing.T) {
 		t.Errorf("exported %s differs from the scene", name)
 	}
 
+	waitFor(t, ctx, "the engine stamp", `document.querySelector('#engine').textContent !== ''`)
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#btn-csv`)))
 	waitFor(t, ctx, "the CSV download", `window.__dl.length === 2`)
 	csv := strings.Split(strings.TrimSpace(eval[string](t, ctx, `window.__dl[1].blob.text()`)), "\n")
+	// The engine's comment line first, as in every CSV the program writes.
+	if eng := eval[string](t, ctx, `document.querySelector('#engine').textContent`); csv[0] != "# "+eng || !strings.HasPrefix(eng, "pulsewright ") {
+		t.Errorf("CSV first line %q, want the engine's comment line \"# %s\"", csv[0], eng)
+	}
+	csv = csv[1:]
 	if csv[0] != "range_m,profile_db,clean_db,threshold_db,noise_db" || len(csv) < 500 {
 		t.Errorf("CSV head %q, %d lines", csv[0], len(csv))
 	}

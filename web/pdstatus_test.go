@@ -15,7 +15,7 @@ import (
 // pilot boat's its Pd 0.722 (masked by its own sidelobes, so no other
 // "alone"), their dots have the masked shape, and lowering the required Pd in the detector form with
 // real key presses to 0.7 makes it detected. Then the long-pulse-blind
-// scene's far airliner is folded: its card says so and its marker, a pin,
+// scene's far airliner is folded: its card says so (its Pd is its ghost's) and its marker, a pin,
 // sits where its ghost appears (60.1 km), not at the window's edge.
 func TestPdOnCardsAndRequiredPd(t *testing.T) {
 	ctx := mustBrowserFor(t, 3*time.Minute) // three scenes, two tabs
@@ -55,6 +55,10 @@ func TestPdOnCardsAndRequiredPd(t *testing.T) {
 	}
 	if txt := eval[string](t, ctx, `document.querySelector('.tcard[data-target="airliner-far"] .status').textContent`); txt != "folded" {
 		t.Errorf("folded card status %q", txt)
+	}
+	// Its Pd is its ghost's, at the wrong range: the card says so.
+	if txt := eval[string](t, ctx, `document.querySelector('.tcard[data-target="airliner-far"] .pd').textContent`); txt != "ghost Pd > 0.999" {
+		t.Errorf("folded card Pd %q, want \"ghost Pd > 0.999\"", txt)
 	}
 	shot(t, ctx, "folded")
 

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"strings"
 	"testing"
+	"time"
 
 	"github.com/chromedp/chromedp"
 	"github.com/chromedp/chromedp/kb"
@@ -28,7 +29,7 @@ const jsCut = `(() => {
 // the target table shows every id and number whole, and its headers give
 // units that fit each target kind.
 func TestTargetTableShowsWholeValues(t *testing.T) {
-	ctx := mustBrowser(t)
+	ctx := mustBrowserFor(t, 240*time.Second) // every demo at two sizes: 60 s ran out at a load of 25
 	openPage(t, ctx, mustServer(t))
 	demos := eval[[]string](t, ctx, `fetch('/api/v1/demos').then((r) => r.json()).then((d) => d.map((x) => x.name))`)
 	for _, size := range [][2]int64{{1280, 720}, {1600, 1000}} {

@@ -45,17 +45,18 @@ func TestUnitsNauticalRoundTrip(t *testing.T) {
 	shot(t, ctx, "picked")
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#figures`))) // closes the control
 
-	// The skiff at 6300 m shows as 6300/1852 nmi: 7 significant digits in
-	// the table, 12 in the selected target's form.
+	// The skiff at 6300 m shows as 6300/1852 nmi: 6 significant digits in
+	// the table (whole in their cells), 12 in the selected target's form.
 	const skiffRange = `tr[data-row="1"] input[data-path="targets[1].range_m"]`
 	const skiffRate = `tr[data-row="1"] input[data-path="targets[1].range_rate_mps"]`
-	if got := eval[string](t, ctx, `document.querySelector('`+skiffRange+`').value`); got != "3.401728" {
-		t.Errorf("skiff range cell = %q, want 3.401728 (6300 m / 1852)", got)
+	if got := eval[string](t, ctx, `document.querySelector('`+skiffRange+`').value`); got != "3.40173" {
+		t.Errorf("skiff range cell = %q, want 3.40173 (6300 m / 1852)", got)
 	}
 	// −2 m/s is −2·3600/1852 kt.
-	if got := eval[string](t, ctx, `document.querySelector('`+skiffRate+`').value`); got != "-3.887689" {
-		t.Errorf("skiff rate cell = %q, want -3.887689 (−2 m/s · 3600/1852)", got)
+	if got := eval[string](t, ctx, `document.querySelector('`+skiffRate+`').value`); got != "-3.88769" {
+		t.Errorf("skiff rate cell = %q, want -3.88769 (−2 m/s · 3600/1852)", got)
 	}
+	tableWhole(t, ctx, "in nmi and kt")
 	do(t, ctx, chromedp.Click(chromedp.CSS(`tr[data-row="1"] .kind`)), chromedp.KeyEvent(kb.Escape))
 	waitFor(t, ctx, "the skiff's form", `document.querySelector('.detail-head').textContent.includes('skiff')`)
 	if got := eval[string](t, ctx, `document.querySelector('#f-targets_1__range_m').value`); got != "3.40172786177" {
@@ -121,6 +122,7 @@ func TestUnitsNauticalRoundTrip(t *testing.T) {
 	do(t, ctx, chromedp.Click(chromedp.CSS(`#figures`)))
 	typeInto(t, ctx, skiffRate, "12")
 	waitFor(t, ctx, "12 kt closing held as −12·1852/3600 m/s", `window.__pw.store.scenario.targets[1].range_rate_mps === -12*1852/3600`)
+	tableWhole(t, ctx, "closing positive")
 	shot(t, ctx, "closing")
 
 	// Reload: the choice stays with the browser.
@@ -157,10 +159,20 @@ func TestUnitsNauticalRoundTrip(t *testing.T) {
 	if got := eval[string](t, cctx, `document.querySelector('`+skiffRange+`').value`); got != "6574.6" {
 		t.Errorf("the colleague's skiff range field = %q, want 6574.6 (m)", got)
 	}
-	if got := eval[string](t, cctx, `document.querySelector('`+skiffRate+`').value`); got != "-6.173333" {
-		t.Errorf("the colleague's skiff rate cell = %q, want -6.173333 (m/s, opening +)", got)
+	if got := eval[string](t, cctx, `document.querySelector('`+skiffRate+`').value`); got != "-6.17333" {
+		t.Errorf("the colleague's skiff rate cell = %q, want -6.17333 (m/s, opening +)", got)
 	}
+	tableWhole(t, cctx, "the colleague's, in m and m/s")
 	shot(t, cctx, "colleague")
+}
+
+// tableWhole fails the test when a cell of the target table does not
+// show its whole text (jsCut, table_test.go).
+func tableWhole(t *testing.T, ctx context.Context, when string) {
+	t.Helper()
+	if cut := eval[[]string](t, ctx, jsCut); len(cut) > 0 {
+		t.Errorf("%s: target table cells cut: %s", when, strings.Join(cut, "; "))
+	}
 }
 
 // TestUnitsModuleExact checks the page's own conversions (units.js)

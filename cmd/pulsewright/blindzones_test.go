@@ -3,6 +3,8 @@ package main
 import (
 	"strings"
 	"testing"
+
+	"github.com/pulsewright/pulsewright/scenarios"
 )
 
 // TestBlindZonesCommand: the schedule of 100 and 125 µs at 9.5 GHz reports
@@ -15,7 +17,7 @@ func TestBlindZonesCommand(t *testing.T) {
 		t.Fatalf("exit %d, stderr %q, out:\n%s", code, errs, out)
 	}
 	code, out, _ = runCmd(t, "", "blindzones", "--pri", "1e-3,1.1e-3", "--tau", "1e-5", "--carrier", "3e9", "--cells", "10x4", "--format", "csv")
-	if code != 0 || !strings.HasPrefix(out, "range_m,range_rate_mps,cpis_seen,eclipsed_in,blind_in,detected\n") || strings.Count(out, "\n") != 41 {
+	if code != 0 || !strings.HasPrefix(out, scenarios.CSVComment()+"range_m,range_rate_mps,cpis_seen,eclipsed_in,blind_in,detected\n") || strings.Count(out, "\n") != 42 {
 		t.Errorf("csv: exit %d:\n%s", code, out)
 	}
 	code, out, _ = runCmd(t, "", "blindzones", "--pri", "1e-3", "--tau", "1e-5", "--carrier", "3e9", "--format", "html")

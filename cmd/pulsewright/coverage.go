@@ -133,14 +133,18 @@ func writeCoverageTable(w io.Writer, c *scenarios.Coverage, lines []string, by s
 		for _, p := range c.BySNR {
 			fmt.Fprintf(tw, "%.2f\t%s\t\n", p.SNRDB, prob(p.Pd))
 		}
-		return tw.Flush()
+	} else {
+		fmt.Fprintf(tw, "RANGE %s\tSNR dB\tPD\tPD ALONE\tSTATUS\t\n", u.Range)
+		for _, p := range c.ByRange {
+			fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t\n", u.Number(scenarios.QRange, p.RangeM, 1), optCell(p.SNRDB, func(v float64) string { return fx(v, 2) }),
+				optCell(p.Pd, prob), optCell(p.PdAlone, prob), p.Status)
+		}
 	}
-	fmt.Fprintf(tw, "RANGE %s\tSNR dB\tPD\tPD ALONE\tSTATUS\t\n", u.Range)
-	for _, p := range c.ByRange {
-		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t\n", u.Number(scenarios.QRange, p.RangeM, 1), optCell(p.SNRDB, func(v float64) string { return fx(v, 2) }),
-			optCell(p.Pd, prob), optCell(p.PdAlone, prob), p.Status)
+	if err := tw.Flush(); err != nil {
+		return err
 	}
-	return tw.Flush()
+	_, err := fmt.Fprintf(w, "\n%s\n", scenarios.RunningEngine())
+	return err
 }
 
 func writeCoverageCSV(w io.Writer, c *scenarios.Coverage, by string) error {

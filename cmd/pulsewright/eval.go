@@ -146,14 +146,20 @@ func fx(v float64, prec int) string {
 }
 
 // pdLine is a target's probability of detection in words, or "" when the
-// report has none.
+// report has none. pd_alone is named for what it is, the Pd with the
+// other targets removed (its own sidelobes kept), so that it is not read
+// as the Pd "against noise alone" a masked target's reason quotes. A
+// folded target's Pd is that of its ghost at the apparent range.
 func pdLine(t scenarios.TargetReport) string {
 	if t.Pd == nil {
 		return ""
 	}
 	line := "Pd " + scenarios.PdText(*t.Pd)
+	if t.Status == scenarios.StatusFolded {
+		line = "Pd of its ghost at the apparent range " + scenarios.PdText(*t.Pd)
+	}
 	if t.PdAlone != nil && scenarios.PdText(*t.PdAlone) != scenarios.PdText(*t.Pd) {
-		line += " in the scene, " + scenarios.PdText(*t.PdAlone) + " alone"
+		line += " in the scene, " + scenarios.PdText(*t.PdAlone) + " with the other targets removed"
 	}
 	if t.SNRRequiredDB != nil && t.MarginDB != nil {
 		line += fmt.Sprintf("; the required Pd needs %s dB at its cell, margin %s dB", fx(*t.SNRRequiredDB, 1), fx(*t.MarginDB, 1))

@@ -3,8 +3,10 @@ package main
 import (
 	"context"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -93,6 +95,13 @@ func TestExportImportPulse(t *testing.T) {
 	os.WriteFile(csv, []byte("amplitude,phase_deg\n1,0\n1,90\n1,180\n1,270\n"), 0o644)
 	if code, _, stderr := runCmd(t, "", "import", csv, "--into", "demo:rocky-coast"); code != exitInvalid || !strings.Contains(stderr, "--rate") {
 		t.Errorf("csv without a rate: exit %d: %s", code, stderr)
+	}
+	// A bad rate or bandwidth names the flag, the value and the range.
+	for _, c := range [][2]string{{"--rate", "-5"}, {"--bandwidth", "NaN"}, {"--rate", "+Inf"}} {
+		code, _, stderr := runCmd(t, "", "import", csv, c[0], c[1], "--into", "demo:rocky-coast")
+		if v, _ := strconv.ParseFloat(c[1], 64); code != exitInvalid || !strings.Contains(stderr, fmt.Sprintf("%s %g out of range: want a finite value > 0 Hz", c[0], v)) {
+			t.Errorf("%s %s: exit %d: %s", c[0], c[1], code, stderr)
+		}
 	}
 	code, out, stderr = runCmd(t, "", "import", csv, "--rate", "4e6", "--bandwidth", "1e6", "--into", "demo:rocky-coast")
 	if code != exitOK || !strings.Contains(out, `"amplitude": [`) {

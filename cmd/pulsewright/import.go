@@ -3,6 +3,7 @@ package main
 import (
 	"encoding/json"
 	"fmt"
+	"math"
 	"os"
 	"strings"
 
@@ -31,8 +32,15 @@ func (e *env) importSamples(args []string) error {
 	if *as != "waveform" && *as != "filter" {
 		return usageError{fmt.Sprintf("--as %q is not waveform or filter", *as)}
 	}
-	if *rate < 0 || *band < 0 {
-		return usageError{"--rate and --bandwidth must be positive"}
+	for _, f := range []struct {
+		name string
+		v    float64
+	}{{"--rate", *rate}, {"--bandwidth", *band}} {
+		// 0 (the default) takes the file's own value; the scenario's
+		// limits are checked when the pulse is written into it.
+		if !(f.v >= 0) || math.IsInf(f.v, 0) {
+			return usageError{fmt.Sprintf("%s %g out of range: want a finite value > 0 Hz (or 0, the default: the file's own)", f.name, f.v)}
+		}
 	}
 	rec, err := readRecording(pos[0])
 	if err != nil {

@@ -4,8 +4,10 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"html"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -147,4 +149,79 @@ func TestCheckVersion1NamesVerdictChange(t *testing.T) {
 	if strings.Contains(out, "target wall") {
 		t.Errorf("the wall's verdict did not change:\n%s", out)
 	}
+}
+
+// TestEveryOutputNamesTheEngine: every report a command writes — text for
+// people, CSV, HTML and JSON — names the engine and the format versions
+// that computed it (issue 18: a number must be traceable to its code).
+// Text and CSV carry the line of scenarios.EngineInfo.String (CSV as a
+// "# " comment first), HTML in its footer, JSON as the engine object.
+func TestEveryOutputNamesTheEngine(t *testing.T) {
+	eng := scenarios.RunningEngine().String()
+	dir := t.TempDir()
+	bz := []string{"blindzones", "--pri", "1e-3,1.1e-3", "--tau", "1e-5", "--carrier", "3e9", "--cells", "10x4"}
+	cov := []string{"coverage", "demo:harbour-skiff", "--target", "skiff", "--points", "5"}
+	trials := []string{"trials", "demo:harbour-skiff", "-n", "4"}
+	for _, c := range []struct {
+		name string
+		args []string
+		file string // the output, when the command writes a file
+		form string // text (the line last), csv (the comment first), html, json
+	}{
+		{"eval text", []string{"eval", "demo:harbour-skiff", "--format", "text"}, "", "text"},
+		{"eval json", []string{"eval", "demo:harbour-skiff"}, "", "json"},
+		{"report html", []string{"report", "demo:harbour-skiff", "-o", filepath.Join(dir, "r.html")}, filepath.Join(dir, "r.html"), "html"},
+		{"sweep csv", []string{"sweep", "demo:harbour-skiff", "--set", "seed=1:2:1"}, "", "csv"},
+		{"sweep html", []string{"sweep", "demo:harbour-skiff", "--set", "seed=1:2:1", "--html", filepath.Join(dir, "s.html")}, filepath.Join(dir, "s.html"), "html"},
+		{"export csv", []string{"export", "demo:harbour-skiff", "--csv", filepath.Join(dir, "p.csv")}, filepath.Join(dir, "p.csv"), "csv"},
+		{"pd table", []string{"pd", "--to", "3"}, "", "text"},
+		{"pd csv", []string{"pd", "--to", "3", "--csv"}, "", "csv"},
+		{"pd html", []string{"pd", "--to", "3", "--html", filepath.Join(dir, "pd.html")}, filepath.Join(dir, "pd.html"), "html"},
+		{"blindzones table", bz, "", "text"},
+		{"blindzones csv", append(slices.Clone(bz), "--format", "csv"), "", "csv"},
+		{"blindzones html", append(slices.Clone(bz), "--format", "html"), "", "html"},
+		{"coverage table", cov, "", "text"},
+		{"coverage table by snr", append(slices.Clone(cov), "--by", "snr"), "", "text"},
+		{"coverage csv", append(slices.Clone(cov), "--format", "csv"), "", "csv"},
+		{"coverage html", append(slices.Clone(cov), "--format", "html"), "", "html"},
+		{"trials text", append(slices.Clone(trials), "--format", "text"), "", "text"},
+		{"trials csv", append(slices.Clone(trials), "--format", "csv"), "", "csv"},
+		{"trials json", append(slices.Clone(trials), "--format", "json"), "", "json"},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			code, out, errs := runCmd(t, "", c.args...)
+			if code != exitOK {
+				t.Fatalf("exit %d: %s", code, errs)
+			}
+			if c.file != "" {
+				b, err := os.ReadFile(c.file)
+				if err != nil {
+					t.Fatal(err)
+				}
+				out = string(b)
+			}
+			var ok bool
+			switch c.form {
+			case "text":
+				ok = strings.HasSuffix(out, "\n"+eng+"\n")
+			case "csv":
+				ok = strings.HasPrefix(out, "# "+eng+"\n")
+			case "html":
+				ok = strings.Contains(out, `<span class="engine">`+html.EscapeString(eng)+`</span>`)
+			case "json":
+				var v struct{ Engine *scenarios.EngineInfo }
+				ok = json.Unmarshal([]byte(out), &v) == nil && v.Engine != nil && *v.Engine == scenarios.RunningEngine()
+			}
+			if !ok {
+				t.Errorf("the %s output does not name the engine %q:\n%.300s\n…\n%s", c.form, eng, out, tail(out, 300))
+			}
+		})
+	}
+}
+
+func tail(s string, n int) string {
+	if len(s) <= n {
+		return s
+	}
+	return s[len(s)-n:]
 }

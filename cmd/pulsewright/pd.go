@@ -77,6 +77,9 @@ func (e *env) pd(args []string) error {
 
 	switch {
 	case a.csv:
+		if _, err := io.WriteString(e.stdout, scenarios.CSVComment()); err != nil {
+			return err
+		}
 		c := csv.NewWriter(e.stdout)
 		if a.byRange {
 			c.Write([]string{"range_m", "snr_db", "pd"})
@@ -116,6 +119,7 @@ func (e *env) pd(args []string) error {
 		if err := tw.Flush(); err != nil {
 			return err
 		}
+		fmt.Fprintf(e.stdout, "\n%s\n", scenarios.RunningEngine())
 	}
 	if a.html == "" {
 		return nil

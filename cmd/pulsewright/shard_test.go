@@ -318,6 +318,7 @@ func TestSlurmScripts(t *testing.T) {
 	}
 	dir := t.TempDir()
 	whole := wholeSweep(t, dir, shardGrid)
+	env := []string{"OUT_DIR=out"}
 	sbatch := func(script string, task string, args ...string) (int, string) {
 		path, err := filepath.Abs("../../deploy/slurm/" + script)
 		if err != nil {
@@ -325,7 +326,7 @@ func TestSlurmScripts(t *testing.T) {
 		}
 		cmd := exec.Command("bash", append([]string{path}, args...)...)
 		cmd.Dir = dir
-		cmd.Env = append(os.Environ(), "PULSEWRIGHT="+os.Args[0], "PULSEWRIGHT_TEST_ARGV=1", "SLURM_CPUS_PER_TASK=1", "OUT_DIR=out")
+		cmd.Env = append(append(os.Environ(), "PULSEWRIGHT="+os.Args[0], "PULSEWRIGHT_TEST_ARGV=1", "SLURM_CPUS_PER_TASK=1"), env...)
 		if task != "" {
 			cmd.Env = append(cmd.Env, "SLURM_ARRAY_TASK_ID="+task)
 		}
@@ -358,6 +359,30 @@ func TestSlurmScripts(t *testing.T) {
 	}
 	if code, out := sbatch("shard.sbatch", "", append([]string{"3", "sweep"}, shardGrid...)...); code != 2 || !strings.Contains(out, "not a job array task") {
 		t.Errorf("no task id: exit %d %q", code, out)
+	}
+
+	// A Monte Carlo run through the same scripts: three blocks of the
+	// trials, merged in the format MERGE_FORMAT names, equal the
+	// unsharded run's file.
+	code, wantTrials, errs := runCmd(t, "", append(append([]string{"trials"}, trialsRun...), "--format", "csv")...)
+	if code != 0 {
+		t.Fatalf("trials: exit %d: %s", code, errs)
+	}
+	env = []string{"OUT_DIR=trials", "MERGE_FORMAT=csv"}
+	for k := range 3 {
+		if code, out := sbatch("shard.sbatch", strconv.Itoa(k), append([]string{"3", "trials"}, trialsRun...)...); code != 0 {
+			t.Fatalf("trials task %d: exit %d: %s", k, code, out)
+		}
+	}
+	if code, out := sbatch("merge.sbatch", "", "3"); code != 0 {
+		t.Fatalf("trials merge: exit %d: %s", code, out)
+	}
+	if got, err := os.ReadFile(filepath.Join(dir, "trials", "merged.csv")); err != nil || string(got) != wantTrials {
+		t.Errorf("merged trials differ from the unsharded run (%v):\n%s\nwant\n%s", err, got, wantTrials)
+	}
+	env = []string{"OUT_DIR=trials", "MERGE_FORMAT=xml"}
+	if code, out := sbatch("merge.sbatch", "", "3"); code != 2 || !strings.Contains(out, "MERGE_FORMAT xml") {
+		t.Errorf("MERGE_FORMAT=xml: exit %d %q", code, out)
 	}
 }
 

@@ -183,8 +183,18 @@ func writeTrialsText(w io.Writer, s scenarios.TrialSummary, u scenarios.Units) e
 	if fa.Rate != nil {
 		fmt.Fprintf(w, "; rate %.3g, 95 %% interval %.3g … %.3g", *fa.Rate, *fa.RateLow, *fa.RateHigh)
 	}
-	_, err := fmt.Fprintln(w)
+	_, err := fmt.Fprintf(w, "\n\n%s\n", trialsEngine(s))
 	return err
+}
+
+// trialsEngine is the engine that counted the trials of s: for a merged
+// run the shards' (merge checked they are one), not the merging
+// program's; the running engine when s names none.
+func trialsEngine(s scenarios.TrialSummary) scenarios.EngineInfo {
+	if s.Engine != nil {
+		return *s.Engine
+	}
+	return scenarios.RunningEngine()
 }
 
 // writeTrialsCSV writes one row per target and one for the false alarms:
@@ -192,7 +202,9 @@ func writeTrialsText(w io.Writer, s scenarios.TrialSummary, u scenarios.Units) e
 // (empirical Pd or false-alarm rate), low, high, expected (analytic Pd or
 // Pfa), inside.
 func writeTrialsCSV(w io.Writer, s scenarios.TrialSummary) error {
-	if _, err := io.WriteString(w, scenarios.CSVComment()); err != nil {
+	// The engine that counted: a merged run's is its shards' (merge checked
+	// they are one), not the merging program's.
+	if _, err := io.WriteString(w, "# "+trialsEngine(s).String()+"\n"); err != nil {
 		return err
 	}
 	c := csv.NewWriter(w)

@@ -8,6 +8,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"github.com/pulsewright/pulsewright/scenarios"
 )
 
 // trialsRun is 12 Monte Carlo trials of the harbour scene from trial 5.
@@ -50,6 +52,15 @@ func TestTrialShardsMergeToWhole(t *testing.T) {
 				}
 			}
 		})
+	}
+	// The runner's -f passes the format to its merge.
+	d := filepath.Join(dir, "csv")
+	code, errs := runShards(t, append([]string{"-n", "2", "-d", d, "-f", "csv", "--", "trials"}, trialsRun...)...)
+	if got, _ := os.ReadFile(filepath.Join(d, "merged.csv")); code != 0 || !bytes.Equal(got, whole["csv"]) {
+		t.Errorf("run-shards -f csv: exit %d %s\n%s\nwant\n%s", code, errs, got, whole["csv"])
+	}
+	if code, errs := runShards(t, append([]string{"-n", "2", "-d", d, "-f", "xml", "--", "trials"}, trialsRun...)...); code != 2 || !strings.Contains(errs, "-f xml is not text, json or csv") {
+		t.Errorf("run-shards -f xml: exit %d %q", code, errs)
 	}
 }
 
@@ -96,5 +107,22 @@ func TestTrialShardsRefused(t *testing.T) {
 	}
 	if code, _, errs := runCmd(t, "", append(append([]string{"trials"}, trialsRun...), "--shard", "2/2")...); code != exitInvalid || !strings.Contains(errs, `--shard "2/2": K = 2 is outside 0…1`) {
 		t.Errorf("--shard 2/2: exit %d %q", code, errs)
+	}
+}
+
+// TestMergedTrialsNameTheShardsEngine: a merged trials run is stamped with
+// the engine that counted it (the shards', carried in their summaries),
+// not the merging program's, in the text and CSV forms as in JSON.
+func TestMergedTrialsNameTheShardsEngine(t *testing.T) {
+	other := scenarios.EngineInfo{Version: "v9.8.7", Commit: "0123456789abcdef", ScenarioFormat: 2, ReportFormat: 2}
+	sum := scenarios.TrialSummary{Engine: &other}
+	for _, f := range []string{"text", "csv"} {
+		var b strings.Builder
+		if err := writeTrials(&b, f, sum, scenarios.SIUnits()); err != nil {
+			t.Fatal(err)
+		}
+		if !strings.Contains(b.String(), other.String()) || strings.Contains(b.String(), scenarios.RunningEngine().String()) {
+			t.Errorf("%s: does not name the summary's engine %q:\n%s", f, other, b.String())
+		}
 	}
 }

@@ -3,13 +3,15 @@
 # on this machine, then merge them into the output the unsharded run
 # writes, byte for byte.
 #
-#   deploy/local/run-shards.sh [-n N] [-d DIR] [-o OUT] [-j JOBS] [--only K[,K…]] -- COMMAND ARGS…
+#   deploy/local/run-shards.sh [-n N] [-d DIR] [-o OUT] [-j JOBS] [-f FORMAT] [--only K[,K…]] -- COMMAND ARGS…
 #
 #   -n N        number of shards (default: the number of processors)
 #   -d DIR      where the shard outputs and logs go (default: shards)
 #   -o OUT      the merged output (default: DIR/merged.csv)
 #   -j JOBS     --jobs given to each shard (default 1: N processes already
 #               fill N processors)
+#   -f FORMAT   trials only: the merged result's format, text, json or csv
+#               (default: merge's, text); a sweep's merge is its CSV
 #   --only K,…  run only these shards (after one failed or was stopped),
 #               then merge all N from DIR
 #   COMMAND ARGS…  the pulsewright command and its arguments, without
@@ -32,6 +34,7 @@ dir=shards
 out=
 jobs=1
 only=
+format=
 
 usage() {
 	sed -n '2,/^$/{s/^# \{0,1\}//;p}' "$0" >&2
@@ -44,6 +47,7 @@ while [ $# -gt 0 ]; do
 	-d) dir=${2-}; shift 2 || usage ;;
 	-o) out=${2-}; shift 2 || usage ;;
 	-j) jobs=${2-}; shift 2 || usage ;;
+	-f) format=${2-}; shift 2 || usage ;;
 	--only) only=${2-}; shift 2 || usage ;;
 	--) shift; break ;;
 	-h | --help) usage ;;
@@ -58,6 +62,10 @@ if [ "$n" -lt 1 ] || [ "$n" -gt 100000 ]; then
 	echo "run-shards: -n $n is outside 1…100000" >&2
 	exit 2
 fi
+case $format in
+'' | text | json | csv) ;;
+*) echo "run-shards: -f $format is not text, json or csv" >&2; exit 2 ;;
+esac
 case $jobs in
 '' | *[!0-9]*) echo "run-shards: -j $jobs is not a whole number (0: one per core)" >&2; exit 2 ;;
 esac
@@ -126,5 +134,5 @@ if [ "${#files[@]}" -eq 0 ]; then
 	echo "run-shards: no shard outputs in $dir" >&2
 	exit 1
 fi
-"$prog" merge "${files[@]}" --out "$out" || exit 1
+"$prog" merge "${files[@]}" ${format:+--format "$format"} --out "$out" || exit 1
 echo "run-shards: merged $n shard(s) into $out" >&2

@@ -5,7 +5,7 @@
 
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
-import { FastLayer, layerSeries, tooltipAbove } from './fastlayer.js';
+import { FastLayer, HeatLayer, layerSeries, tooltipAbove } from './fastlayer.js';
 import { axisPatch, axisUnits, format, niceTicks, restate, signed } from './units.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
@@ -83,10 +83,11 @@ export class Plots {
     this.hoverCard = hoverCard;
     this.wavelength = wavelength;
     this.onSettle = onSettle || (() => {});
-    // The line charts that follow every frame of a drag get a fast layer.
+    // The line charts that follow every frame of a drag get a fast layer,
+    // and so does the range–Doppler map (its cells as an image).
     this.fasts = {};
-    for (const name of ['profile', 'echo']) {
-      this.fasts[name] = new FastLayer(this.charts[name]);
+    for (const name of ['profile', 'echo', 'rdmap']) {
+      this.fasts[name] = name === 'rdmap' ? new HeatLayer(this.charts[name], 'rdmap') : new FastLayer(this.charts[name]);
       tooltipAbove(this.charts[name]);
     }
     this.fast = this.fasts.profile;

@@ -380,9 +380,10 @@ export class Editor {
     const lk = levelKey(t.kind, t);
     const lv = levelOf(t);
     const num = (key, qty = '') => h('input', {
-      type: 'text', inputmode: 'decimal', autocomplete: 'off', value: qty ? fieldText(qty, t[key], 7) : toDisplay(t[key], 1),
-      // The table's narrow cells show 7 digits; the form below shows all.
-      dataset: { path: `targets[${i}].${key}`, type: 'num', scale: '1', optional: '1', qty: qty || undefined, digits: qty ? '7' : undefined },
+      type: 'text', inputmode: 'decimal', autocomplete: 'off', value: qty ? fieldText(qty, t[key], 6) : toDisplay(t[key], 1),
+      // The table's narrow cells show 6 significant digits (7 with a sign,
+      // as 3.401728 nmi or -6.173333 m/s, were cut); the form below shows all.
+      dataset: { path: `targets[${i}].${key}`, type: 'num', scale: '1', optional: '1', qty: qty || undefined, digits: qty ? '6' : undefined },
       'aria-label': `${t.id} ${key}`,
     });
     const rep = this.reportTargets.length === (this.store.scenario.targets || []).length ? this.reportTargets[i] : this.status.get(t.id);

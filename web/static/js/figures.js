@@ -18,6 +18,8 @@ const eng = (v, unit) => {
 // A range in the user's unit (units.js); in metres, km from 10 km up.
 const metres = (v) => (v === undefined || !Number.isFinite(v) ? '—'
   : unit('range') === 'm' && v >= 10000 ? `${(v / 1000).toFixed(2)} km` : format('range', v, v < 10 ? 2 : 1));
+// A range to the metre (a detection range): in metres, km from 10 km up.
+const wholeMetres = (v) => (unit('range') === 'm' && v >= 10000 ? `${(v / 1000).toFixed(2)} km` : format('range', v, 0));
 
 // Rows: label, getter, formatter, and whether larger is better (for the
 // comparison arrow).
@@ -43,7 +45,9 @@ const SNRHelp = 'SNR: the target’s expected peak after pulse compression, in d
 const MarginHelp = 'Margin: how far its SNR at the cell is above what the required Pd needs against noise alone, in dB; negative means it is too weak even alone.';
 const ThresholdHelp = 'Over threshold: how far the expected peak clears the detector’s threshold at its range (raised by other echoes in the training cells), in dB. Clearing it is not enough: a fluctuating target needs more to be seen on most looks.';
 const IntegratedHelp = 'Integrated: the SNR after adding up all pulses of the train coherently.';
-const PdHelp = 'Pd: how often the target is seen at the detector’s false-alarm rate, for its fluctuation model, in this scene (and alone, when other echoes lower it). The status compares it with the required Pd.';
+const PdHelp = 'Pd: how often the target is seen at the detector’s false-alarm rate, for its fluctuation model, in this scene. “Alone” is its Pd with the other targets removed (its own range sidelobes still in its training cells), shown when it differs. The status compares Pd with the required Pd.';
+const GhostPdHelp = 'Ghost Pd: how often its folded echo is seen at the apparent range, where it looks like a target that is not there: a false target, not a detection at its true range.';
+const DetectionRangeHelp = 'Detection range: where its SNR at the cell would fall to what the required Pd needs, by the R⁴ law from its present range, its RCS and everything else kept (it may lie outside the receive window).';
 const NumbersHelp = 'Pd is how often a target is seen; it is detected when Pd reaches the required Pd. SNR is the peak above noise after compression; margin is the SNR over what the required Pd needs (below 0: too weak even alone).';
 
 export function renderFigures(root, report, reference, computeMs) {
@@ -76,10 +80,11 @@ export function renderFigures(root, report, reference, computeMs) {
         h('span', { class: 'status', title: statusHelp(t.status) }, statusLabel(t.status)),
         rt && rt.status !== t.status ? h('span', { class: 'was' }, `pinned: ${statusLabel(rt.status)}`) : null),
       h('div', { class: 'tcard-nums' },
-        t.pd !== undefined ? h('b', { class: 'pd', title: PdHelp }, `Pd ${pdText(t.pd)}`
+        t.pd !== undefined ? h('b', { class: 'pd', title: t.status === 'folded' ? GhostPdHelp : PdHelp }, `${t.status === 'folded' ? 'ghost Pd' : 'Pd'} ${pdText(t.pd)}`
           + (t.pd_alone !== undefined && pdText(t.pd_alone) !== pdText(t.pd) ? ` (alone ${pdText(t.pd_alone)})` : '')) : null,
         h('span', { title: SNRHelp }, `SNR ${fmt(t.snr_db)} dB`),
         t.margin_db !== undefined ? h('span', { title: MarginHelp }, `margin ${t.margin_db >= 0 ? '+' : ''}${fmt(t.margin_db)} dB`) : null,
+        t.detection_range_m !== undefined ? h('span', { class: 'detrange', title: DetectionRangeHelp }, `detection range ${wholeMetres(t.detection_range_m)}`) : null,
         t.threshold_margin_db !== undefined ? h('span', { title: ThresholdHelp }, `over threshold ${t.threshold_margin_db >= 0 ? '+' : ''}${fmt(t.threshold_margin_db)} dB`) : null,
         t.snr_integrated_db !== undefined ? h('span', { title: IntegratedHelp }, `integrated ${fmt(t.snr_integrated_db)} dB`) : null,
         t.masked_by ? h('span', {}, `masked by ${t.masked_by}`) : null,

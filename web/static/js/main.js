@@ -363,7 +363,7 @@ function hoverCard(hit) {
   head.textContent = `${t.id} · ${statusLabel(t.status)}`;
   const nums = document.createElement('div');
   nums.className = 'hc-nums';
-  nums.textContent = (t.pd !== undefined ? `Pd ${pdText(t.pd)}${t.status === 'masked' && t.pd_alone !== undefined ? ` (alone ${pdText(t.pd_alone)})` : ''} · ` : '')
+  nums.textContent = (t.pd !== undefined ? `${t.status === 'folded' ? 'ghost Pd' : 'Pd'} ${pdText(t.pd)}${t.status === 'masked' && t.pd_alone !== undefined ? ` (alone ${pdText(t.pd_alone)})` : ''} · ` : '')
     + `SNR ${t.snr_db.toFixed(1)} dB` + (t.margin_db !== undefined ? ` · margin ${t.margin_db.toFixed(1)} dB` : '')
     + (t.masked_by ? ` · masked by ${t.masked_by}` : '');
   const reason = document.createElement('div');
@@ -502,7 +502,11 @@ const fileStem = () => ((store.scenario && store.scenario.name) || 'scenario').r
 $('#btn-export').addEventListener('click', () => {
   download(`${fileStem()}.json`, JSON.stringify(store.scenario, null, 2) + '\n', 'application/json');
 });
-$('#btn-csv').addEventListener('click', () => download(`${fileStem()}-profile.csv`, plots.profileCSV(), 'text/csv'));
+// The engine's stamp line (GET /api/v1/version), set below: the footer
+// shows it and the Profile CSV opens with it as a comment line, as every
+// CSV the program writes does (docs/report-format.md).
+let engineText = '';
+$('#btn-csv').addEventListener('click', () => download(`${fileStem()}-profile.csv`, (engineText ? `# ${engineText}\n` : '') + plots.profileCSV(), 'text/csv'));
 // PNG: a printable picture of the shown plot, titled, without the slider.
 const plotTitle = (name) => ($(`.plot-head [data-show="${name}"]`) || $('.plot-label')).textContent.trim();
 for (const b of $$('[data-png]')) {
@@ -516,7 +520,14 @@ for (const b of $$('[data-png]')) {
 
 initLibrary({ store, notice, onOpen: () => { pushNextLink = true; } });
 // The footer names the engine, as reports and exports do.
-api.version().then((v) => { $('#engine').textContent = v.text; }).catch(() => {});
+// The stamp may not fit beside the caution on a narrow window: its title
+// holds it whole.
+api.version().then((v) => {
+  engineText = v.text;
+  const el = $('#engine');
+  el.textContent = v.text;
+  el.title = `${v.text}. ${el.title}`;
+}).catch(() => {});
 initKeys({ store, editor, lastFrame: () => lastFrame, profile: $('#chart-profile') });
 
 // Units: the editor, the panels and the plots' axes follow a new choice.
