@@ -11,7 +11,7 @@ import (
 )
 
 // Statuses on Pd, on the page: the harbour skiff's card shows its Pd
-// with its Pd alone (masked by the tanker: Pd 0.004, > 0.999 alone), the
+// with its Pd alone (masked by the tanker: Pd 0.025, > 0.999 alone), the
 // pilot boat's its Pd 0.722 (masked by its own sidelobes, so no other
 // "alone"), their dots have the masked shape, and lowering the required Pd in the detector form with
 // real key presses to 0.7 makes it detected. Then the long-pulse-blind
