@@ -17,6 +17,16 @@ python3-scipy), written the way an engineer would script it.
                                        minutes on a loaded machine)
   ref.py evaluate SCENE REPS [GO_DIR]  the scene: echoes, noise, compression,
                                        CA-CFAR, per-target peak and threshold
+  ref.py fftwcold X H REPS BLOCK FLAG  FFTW cold: every repetition makes the
+                                       plans (planner flag FLAG, e.g.
+                                       FFTW_ESTIMATE, or FFTW_MEASURE with the
+                                       wisdom of FFTW_WISDOM), the reference's
+                                       spectrum, and correlates once
+  ref.py trials SCENE N REPS [GO_JSON] Monte Carlo trials of the scene,
+                                       vectorised, on 2 processes: N trials
+                                       per repetition; GO_JSON: gobench's
+                                       trials line, whose detection counts
+                                       are compared with ours
 
 Each command times REPS repetitions inside the process after one untimed
 warm-up and prints one JSON line: times_ms, maxrss_kib, and the result of
@@ -26,6 +36,7 @@ the scenario JSON that the Go side evaluates.
 """
 import json
 import math
+import os
 import resource
 import sys
 import time
@@ -81,7 +92,8 @@ def compress(xf, hf, reps, go_out=None):
 
 # ---------------------------------------------------------------- FFTW
 
-FFTW_THREADS = 2
+FFTW_THREADS = int(os.environ.get("FFTW_THREADS", "2"))  # bench/run: 2 unless told
+FFTW_FLAGS = ("FFTW_MEASURE", "FFTW_DESTROY_INPUT")  # fftwcold may change the planner flag
 
 
 class FFTWCorrelator:
@@ -96,7 +108,7 @@ class FFTWCorrelator:
         self.n, self.m, self.L, self.step = n, m, L, L - m + 1
         self.a = pyfftw.empty_aligned(L, dtype="complex128")
         self.b = pyfftw.empty_aligned(L, dtype="complex128")
-        flags = ("FFTW_MEASURE", "FFTW_DESTROY_INPUT")
+        flags = FFTW_FLAGS
         self.fwd = pyfftw.FFTW(self.a, self.b, direction="FFTW_FORWARD", flags=flags, threads=FFTW_THREADS)
         self.inv = pyfftw.FFTW(self.b, self.a, direction="FFTW_BACKWARD", flags=flags, threads=FFTW_THREADS)
         self.a[:] = 0
@@ -236,9 +248,14 @@ class Setup:
         r = dict(DEFAULT_RADAR)
         r.update(doc["radar"])
         w = doc["waveform"]
-        assert w["kind"] == "lfm" and doc["receiver"]["window"]["kind"] == "taylor"
-        self.r, self.targets, self.seed = r, doc["targets"], doc.get("seed", 0)
-        self.fs = r["sample_rate_hz"]
+        self.window = doc.get("receiver", {}).get("window", {}).get("kind", "none")
+        det = doc.get("receiver", {}).get("detector", {})
+        assert w["kind"] == "lfm" and self.window in ("taylor", "none")
+        assert det.get("kind", "ca_cfar") == "ca_cfar" and det.get("pfa", PFA) == PFA
+        assert det.get("guard_cells", GUARD) == GUARD and det.get("training_cells", TRAIN) == TRAIN
+        self.r, self.targets, self.seed = r, doc["targets"], doc.get("seed", 1)
+        # The scenario format's default sample rate: 2 B (docs/scenario-format.md).
+        self.fs = r.get("sample_rate_hz", 2 * w["bandwidth_hz"])
         self.tau, self.B = w["pulse_width_s"], w["bandwidth_hz"]
         self.slope = self.B / self.tau
         self.lam = C / r["carrier_hz"]
@@ -265,12 +282,17 @@ def echo(s, delay, fd, amp, k):
     return amp * lfm(s, k / s.fs - delay) * np.exp(2j * np.pi * fd * k / s.fs)
 
 
-def evaluate(s):
+def evaluate(s, nrec=None):
+    """nrec: raw samples recorded for the trials (gates n plus the
+    reference's m-1 beyond the last: every gate compressed whole, as the
+    Go engine records them); each point's echo over them is kept in
+    "points". The evaluation's own window is the n gates."""
     n, fs = s.n, s.fs
+    nrec = nrec or n
     rng = np.random.default_rng(s.seed)
     np_ = int(round(s.tau * fs))
     pulse = lfm(s, np.arange(np_) / fs)
-    ref = pulse * sw.taylor(np_, nbar=5, sll=35, norm=False)
+    ref = pulse * sw.taylor(np_, nbar=5, sll=35, norm=False) if s.window == "taylor" else pulse
     m = len(ref)
     noise_gain = float(np.vdot(ref, ref).real)
     # Local buffers hold one echo and its whole compressed response.
@@ -283,11 +305,12 @@ def evaluate(s):
         return (y.real ** 2 + y.imag ** 2) / noise_gain
 
     x = np.zeros(n, dtype=complex)  # noise-free receive window
-    points = [t for t in s.targets if t["kind"] == "point"]
-    bufs = np.zeros((len(points), nloc), dtype=complex)
+    pts = [t for t in s.targets if t["kind"] == "point"]
+    bufs = np.zeros((len(pts), nloc), dtype=complex)
     kl = np.arange(nloc)
     info = []
-    for i, t in enumerate(points):
+    points, rains = [], []  # for trials: each point's echo samples; each volume's density and Doppler
+    for i, t in enumerate(pts):
         R = t["range_m"]
         fd = -2 * t.get("range_rate_mps", 0) / s.lam
         apparent = R - math.floor(R / s.unamb) * s.unamb
@@ -298,11 +321,13 @@ def evaluate(s):
         b = math.floor(delay * fs) - m
         k = b + kl
         e = echo(s, delay, fd, a, k)
-        e[(k < s.blank_end) | (k >= n)] = 0
+        e[(k < s.blank_end) | (k >= nrec)] = 0
         bufs[i] = e
         ok = (k >= 0) & (k < n)
         x[k[ok]] += e[ok]
         info.append((t, b, apparent, fd))
+        ok = (k >= 0) & (k < nrec)
+        points.append((i, k[ok], e[ok], t.get("fluctuation", "none")))
     pw = compress_local(bufs)
     total = np.zeros(n)
     resp = []
@@ -346,6 +371,7 @@ def evaluate(s):
         r = pw[olo - (lo - m):ohi - (lo - m)]
         total[olo:ohi] += r
         resp.append((t, olo, r, a0))
+        rains.append((lo, q, fd))
         rho = np.sqrt(q) * (rng.standard_normal(len(q)) + 1j * rng.standard_normal(len(q))) * math.sqrt(0.5)
         c = ss.fftconvolve(rho, pulse)
         kk = lo + np.arange(len(c))
@@ -390,7 +416,8 @@ def evaluate(s):
                 st = "eclipsed"
         rep.append({"id": t["id"], "status": st, "range_m": rng_m, "margin_db": margin})
     return {"x": x, "ref": ref, "noise_gain": noise_gain, "profile": profile, "clean": clean,
-            "threshold": threshold, "targets": rep, "resp": resp}
+            "threshold": threshold, "targets": rep, "resp": resp, "total": total,
+            "points": points, "rains": rains, "pulse": pulse}
 
 
 def check_evaluate(s, res, go_dir):
@@ -448,6 +475,237 @@ def evaluate_cmd(scene, reps, go_dir=None):
     out(d)
 
 
+# ---------------------------------------------------------------- FFTW cold
+
+def fftwcold(xf, hf, reps, block, flag):
+    """Every repetition plans afresh (planner flag FLAG; with
+    FFTW_MEASURE, the wisdom of FFTW_WISDOM is imported once before the
+    timing, so planning replays it), transforms the reference and
+    correlates once: the like-for-like line for a Go plan built and
+    applied once."""
+    import os
+    import pickle
+    import pyfftw
+    global FFTW_FLAGS
+    FFTW_FLAGS = (flag, "FFTW_DESTROY_INPUT")
+    wf = os.environ.get("FFTW_WISDOM")
+    if flag != "FFTW_ESTIMATE" and wf and os.path.exists(wf):
+        with open(wf, "rb") as f:
+            pyfftw.import_wisdom(pickle.load(f))
+    x = np.fromfile(xf, dtype="<c16")
+    h = np.fromfile(hf, dtype="<c16")
+    n, m = len(x), len(h)
+    L = fftw_full_len(n, m) if block == "full" else int(block)
+    y, (times, cpu) = timed(lambda: FFTWCorrelator(h, n, L)(x), reps)
+    want = ss.correlate(x, h, mode="full", method="fft")[m - 1:m - 1 + n]
+    err = float(np.max(np.abs(y - want)) / np.max(np.abs(want)))
+    out({"block": L, "flag": flag, "times_ms": times, "cpu_ms": cpu, "check_vs_scipy": err, "check_ok": bool(err < 1e-9)})
+
+
+# ---------------------------------------------------------------- trials
+
+TRIAL_PROCS = 2
+
+
+def pfa_cut(a, s, n):
+    """Exact Pfa of |z0|^2 > (a/n) sum |z_i|^2 for complex Gaussian noise of
+    covariance s over [cell under test, n training cells]: the eigenvalues
+    mu of S^(1/2) Q S^(1/2), Q = diag(1, -a/n, ...), one positive (mu+),
+    Pfa = prod 1/(1 + |mu_j|/mu+) over the others (docs/detection.md, the
+    CA-CFAR with correlated cells; the same formula as
+    testdata/golden/cfar.py)."""
+    q = np.diag(np.r_[1.0, -a / n * np.ones(n)])
+    w, v = np.linalg.eigh(s)
+    sh = v @ np.diag(np.sqrt(np.maximum(w, 0))) @ v.conj().T
+    mu = np.linalg.eigvalsh(sh @ q @ sh)
+    mp = mu.max()
+    rest = np.delete(mu, mu.argmax())
+    return np.prod(1 / (1 + np.abs(rest) / mp))
+
+
+def alpha_cut(offs, rho):
+    """The CA-CFAR multiplier for training cells at offsets offs from the
+    cell under test, compressed noise correlated as rho(m) (m >= 0), at the
+    scenario's Pfa (scipy.optimize.brentq on pfa_cut)."""
+    from scipy.optimize import brentq
+    o = np.r_[0, offs]
+    d = o[None, :] - o[:, None]
+    s_ = np.where(np.abs(d) < len(rho), rho[np.minimum(np.abs(d), len(rho) - 1)], 0)
+    s_ = np.where(d >= 0, s_, np.conj(s_))
+    n = len(offs)
+    return brentq(lambda a: np.log(pfa_cut(a, s_, n)) - np.log(PFA), 1e-6, 1e6, xtol=1e-12, rtol=1e-13)
+
+
+def cfar_alphas(n, rho):
+    """alpha per cell (the training cells available at each, fewer near the
+    ends), for compressed noise correlated as rho."""
+    k = np.arange(n)
+    lo1, hi1, lo2, hi2 = training(k, n)
+    alpha = np.zeros(n)
+    memo = {}
+    for i in range(n):
+        key = (lo1[i] - i, hi1[i] - i, lo2[i] - i, hi2[i] - i)
+        if key not in memo:
+            offs = np.r_[np.arange(key[0], key[1]), np.arange(key[2], key[3])]
+            memo[key] = alpha_cut(offs, rho)
+        alpha[i] = memo[key]
+    return alpha
+
+
+def ca_cfar_rows(p, alpha):
+    """The CA-CFAR threshold alpha/N * sum of every cell of every row of p
+    (trials × cells), N the training cells available."""
+    n = p.shape[1]
+    c = np.concatenate((np.zeros((p.shape[0], 1)), np.cumsum(p, axis=1)), axis=1)
+    k = np.arange(n)
+    lo1, hi1, lo2, hi2 = training(k, n)
+    cnt = hi1 - lo1 + hi2 - lo2
+    return (alpha / cnt) * np.maximum(c[:, hi1] - c[:, lo1] + c[:, hi2] - c[:, lo2], 0)
+
+
+class TrialScene:
+    """A scene prepared for Monte Carlo trials from the definitions
+    (docs/detection-probability.md §8): each trial is the receive window
+    with new thermal noise, new Swerling draws of the fluctuating point
+    targets' complex amplitudes and a new realisation of each volume
+    target's scatterers, compressed and tested by the CA-CFAR. A target is
+    detected in a trial when the compressed power at the cell of its own
+    noise-free peak exceeds that cell's threshold; noise cells are those
+    whose whole CFAR window holds less than 1e-3 of the noise in
+    noise-free scene power. The CFAR's multiplier holds the Pfa for the
+    compressed noise's correlation between cells (the reference's
+    normalised autocorrelation), exactly, cell under test included
+    (docs/detection.md)."""
+
+    def __init__(self, s):
+        m = int(round(s.tau * s.fs))
+        self.nrec = nrec = s.n + m - 1
+        res = evaluate(s, nrec)
+        assert len(res["ref"]) == m
+        self.s, n = s, s.n
+        self.m, self.noise_gain = m, res["noise_gain"]
+        self.L = sfft.next_fast_len(nrec)
+        self.ref_spec = np.conj(sfft.fft(res["ref"], self.L))
+        self.pulse = res["pulse"]
+        h = res["ref"]
+        span = GUARD + TRAIN // 2
+        rho = np.array([np.sum(h[:m - j] * np.conj(h[j:])) for j in range(min(2 * span + 1, m))]) / np.sum(np.abs(h) ** 2)
+        # y[k] = sum x[k+i] conj(h[i]): E[y_k conj(y_{k+j})] = sum_i h[i+j] conj(h[i]) = conj(rho(j)).
+        self.alpha = cfar_alphas(n, np.conj(rho))
+        self.ids = [t["id"] for t in s.targets]
+        self.cells = {}
+        for t, lo, r, _ in res["resp"]:
+            if len(r) and r.max() > 0:
+                self.cells[t["id"]] = int(lo) + int(np.argmax(r))
+        # Steady point echoes summed once; fluctuating ones kept apart.
+        self.steady = np.zeros(nrec, dtype=complex)
+        self.fluct = []
+        for _, k, e, fl in res["points"]:
+            if fl == "none":
+                self.steady[k] += e
+            else:
+                f = np.zeros(nrec, dtype=complex)
+                f[k] = e
+                self.fluct.append((f, fl))
+        self.rains = res["rains"]
+        span = GUARD + TRAIN // 2
+        quiet = res["total"] <= 1e-3
+        win = np.convolve((~quiet).astype(float), np.ones(2 * span + 1), mode="same") == 0
+        win[:s.blank_end] = False  # compressed over blanked samples
+        self.quiet = np.nonzero(win)[0]
+
+    def run(self, count, seed, batch):
+        """count trials in batches; returns (detections per id, false alarms, noise cells)."""
+        s, n, nrec = self.s, self.s.n, self.nrec
+        rng = np.random.default_rng(seed)
+        det = {i: 0 for i in self.ids}
+        fa = nc = 0
+        kk = np.arange(nrec)
+        idx = np.array([self.cells.get(i, 0) for i in self.ids])
+        has = np.array([i in self.cells for i in self.ids])
+        for b0 in range(0, count, batch):
+            B = min(batch, count - b0)
+            x = np.broadcast_to(self.steady, (B, nrec)).copy()
+            for f, fl in self.fluct:
+                if fl in ("swerling1", "swerling2"):  # exponential power, uniform phase
+                    g = (rng.standard_normal(B) + 1j * rng.standard_normal(B)) * math.sqrt(0.5)
+                else:  # chi-square with 4 degrees of freedom, mean 1
+                    g = np.sqrt(rng.gamma(2.0, 0.5, B)) * np.exp(2j * np.pi * rng.random(B))
+                x += g[:, None] * f
+            for lo, q, fd in self.rains:
+                rho = np.sqrt(q) * (rng.standard_normal((B, len(q))) + 1j * rng.standard_normal((B, len(q)))) * math.sqrt(0.5)
+                c = ss.fftconvolve(rho, self.pulse[None, :], axes=1)
+                hi = min(lo + c.shape[1], nrec)
+                x[:, lo:hi] += c[:, :hi - lo] * np.exp(2j * np.pi * fd * kk[lo:hi] / s.fs)
+            x += (rng.standard_normal((B, nrec)) + 1j * rng.standard_normal((B, nrec))) * math.sqrt(0.5)
+            x[:, :s.blank_end] = 0
+            y = sfft.ifft(sfft.fft(x, self.L, axis=1) * self.ref_spec, axis=1)[:, :n]
+            p = (y.real ** 2 + y.imag ** 2) / self.noise_gain
+            th = ca_cfar_rows(p, self.alpha)
+            hit = p[:, idx] > th[:, idx]
+            for j, i in enumerate(self.ids):
+                if has[j]:
+                    det[i] += int(hit[:, j].sum())
+            fa += int((p[:, self.quiet] > th[:, self.quiet]).sum())
+            nc += B * len(self.quiet)
+        return det, fa, nc
+
+
+_TRIAL_SCENE = None
+
+
+def _trial_worker(args):
+    count, seed, batch = args
+    return _TRIAL_SCENE.run(count, seed, batch)
+
+
+def trials_cmd(scene, count, reps, go_json=None):
+    global _TRIAL_SCENE
+    import multiprocessing as mp
+    s = Setup(json.load(open(scene)))
+    _TRIAL_SCENE = TrialScene(s)
+    # Batches of about 2 M samples per array.
+    batch = max(1, min(256, (1 << 21) // (s.n + int(round(s.tau * s.fs)))))
+    ctx = mp.get_context("fork")
+    with ctx.Pool(TRIAL_PROCS) as pool:  # started once, outside the timing
+        rnd = [0]
+
+        def run():
+            rnd[0] += 1
+            half = [count // TRIAL_PROCS + (1 if i < count % TRIAL_PROCS else 0) for i in range(TRIAL_PROCS)]
+            parts = pool.map(_trial_worker, [(c, (s.seed, rnd[0], i), batch) for i, c in enumerate(half)])
+            det = {i: sum(p[0][i] for p in parts) for i in _TRIAL_SCENE.ids}
+            return det, sum(p[1] for p in parts), sum(p[2] for p in parts)
+
+        res, (times, cpu) = timed(run, reps)
+        # The counts checked are the warm-up's (count trials).
+        tot = {i: res[0][i] for i in _TRIAL_SCENE.ids}
+        fa, nc = res[1], res[2]
+        # cpu_ms (process_time) counts this process only; the workers'
+        # CPU is in children_cpu_s (all repetitions and the warm-up).
+    ch = resource.getrusage(resource.RUSAGE_CHILDREN)
+    d = {"times_ms": times, "cpu_ms": cpu, "trials_per_rep": count, "batch": batch,
+         "children_cpu_s": ch.ru_utime + ch.ru_stime, "cells": _TRIAL_SCENE.cells,
+         "check_trials": count, "detections": tot, "false_alarms": fa, "noise_cells": nc}
+    if go_json:
+        g = json.loads(go_json)["counts"]
+        ng, nr = g["trials"], count
+        worst, bad = 0.0, []
+        for i, dg in zip(g["ids"], g["detections"]):
+            pg, pr = dg / ng, tot[i] / nr
+            pp = (dg + tot[i]) / (ng + nr)
+            sd = math.sqrt(max(pp * (1 - pp), 0.25 / (ng + nr)) * (1 / ng + 1 / nr))
+            z = abs(pg - pr) / sd
+            worst = max(worst, z)
+            if z > 4.5:
+                bad.append("%s go %.3f ref %.3f" % (i, pg, pr))
+        d["check_go_trials"] = ng
+        d["check_worst_z"] = worst
+        d["check_mismatched"] = bad
+        d["check_ok"] = not bad
+    out(d)
+
+
 if __name__ == "__main__":
     cmd, a = sys.argv[1], sys.argv[2:]
     if cmd == "compress":
@@ -456,5 +714,9 @@ if __name__ == "__main__":
         fftw(a[0], a[1], int(a[2]), a[3], a[4] if len(a) > 4 else None)
     elif cmd == "evaluate":
         evaluate_cmd(a[0], int(a[1]), a[2] if len(a) > 2 else None)
+    elif cmd == "fftwcold":
+        fftwcold(a[0], a[1], int(a[2]), a[3], a[4])
+    elif cmd == "trials":
+        trials_cmd(a[0], int(a[1]), int(a[2]), a[3] if len(a) > 3 else None)
     else:
         sys.exit("usage: ref.py compress X H REPS [GO_OUT] | fftw X H REPS BLOCK [GO_OUT] | evaluate SCENE REPS [GO_DIR]")

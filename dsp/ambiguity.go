@@ -96,11 +96,19 @@ func (p *DopplerPlan) peak(pulse []complex128, fd float64) (pos, val float64) {
 		p.in[nr+n] = v * expj(2*math.Pi*fd*float64(n)/p.fs)
 	}
 	p.corr.Apply(p.z, p.in)
-	k := 0
 	best := 0.0
+	for _, v := range p.z {
+		best = max(best, real(v)*real(v)+imag(v)*imag(v))
+	}
+	// The first lag within rounding of the largest: a code whose response
+	// has two equal peaks (Barker 13 at some Doppler shifts, one chip
+	// either side) must not choose between them by the last bits of the
+	// FFT's rounding, which differ between kernels (FMA or not).
+	k := 0
 	for i, v := range p.z {
-		if a := real(v)*real(v) + imag(v)*imag(v); a > best {
-			best, k = a, i
+		if real(v)*real(v)+imag(v)*imag(v) >= best*(1-1e-9) {
+			k = i
+			break
 		}
 	}
 	if p.held {

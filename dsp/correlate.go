@@ -73,7 +73,7 @@ func NewCorrelatorWorkers(ref []complex128, n, workers int) *Correlator {
 	if n < 1 || len(ref) < 1 || workers < 1 {
 		panic("dsp: correlator needs n ≥ 1, a non-empty reference and workers ≥ 1")
 	}
-	l := bestBlockLen(n, len(ref), workers)
+	l := bestBlockLen(n, len(ref), workers, simdAvailable())
 	return newCorrelatorLen(ref, n, l, workers)
 }
 
@@ -152,13 +152,24 @@ func stageCost(radix int) float64 {
 // copies, with a penalty of 17 % per doubling beyond 2¹⁴, where its two
 // buffers spill out of a core's cache (BenchmarkFFTRadix; and
 // BenchmarkCorrelatorLen: 1.2 ns per unit at 15 360 points, 1.7–1.8 at
-// 196 608 and 327 680).
-func fftCost(l int) float64 {
+// 196 608 and 327 680). With simd (the power-of-two plan's AVX2/FMA
+// kernels, fftconv_amd64.s) a power of two costs 0.37 of that
+// (BenchmarkConvolve, CPU per block at 4 096–262 144 points: 0.33–0.43),
+// plus 0.15 pass for an odd power's radix-2 bottom level, which stays in
+// Go (BenchmarkCorrelatorLen at 65 536 × 5 000: 7.3 ns per point and
+// block at 8 192, 7.0 at 16 384).
+func fftCost(l int, simd bool) float64 {
 	lg := math.Log2(float64(l))
 	if isPow2(l) {
 		c := math.Ceil(lg/2) + 0.25
 		if lg > 14 {
 			c *= 1 + 0.03*(lg-14)
+		}
+		if simd {
+			c *= 0.37
+			if int(lg)%2 == 1 {
+				c += 0.15
+			}
 		}
 		return c * float64(l)
 	}
@@ -183,26 +194,26 @@ func fftCost(l int) float64 {
 // bestBlockLen picks the FFT length minimising the modelled time of the
 // busiest worker, over 2,3,5-smooth L from the smallest useful block to
 // twice one block of n+m−1 (a longer single block of cheaper radices can
-// win).
-func bestBlockLen(n, m, workers int) int {
+// win); simd: whether the power-of-two plan runs its SIMD kernels.
+func bestBlockLen(n, m, workers int, simd bool) int {
 	best, bestCost := 0, math.Inf(1)
 	for l := fftSize(m + 1); l <= 2*(n+m-1); l = fftSize(l + 1) {
-		if c := blockCost(n, m, l, workers); c < bestCost {
+		if c := blockCost(n, m, l, workers, simd); c < bestCost {
 			best, bestCost = l, c
 		}
 	}
 	return best
 }
 
-func blockCost(n, m, l, workers int) float64 {
+func blockCost(n, m, l, workers int, simd bool) float64 {
 	blocks := (n + l - m) / (l - m + 1) // ceil(n / (l−m+1))
 	if shareLast(l, blocks, workers) {
 		// The last block is shared: each worker does 1/workers of it
 		// (and a little more for the waits between its phases).
-		return (float64(blocks-1)/float64(workers) + 1.1/float64(workers)) * fftCost(l)
+		return (float64(blocks-1)/float64(workers) + 1.1/float64(workers)) * fftCost(l, simd)
 	}
 	perWorker := (blocks + workers - 1) / workers
-	return float64(perWorker) * fftCost(l)
+	return float64(perWorker) * fftCost(l, simd)
 }
 
 // shareLast reports whether the last of the blocks of length l is shared
@@ -381,10 +392,10 @@ func (c *Correlator) coopUnit(ph, u int, dst, x []complex128) {
 			}
 			clear(buf[lo+k : hi])
 		}
-		fwd4FromRange(buf, buf, c.conv.tw[0], k0, k1)
+		c.conv.fwd4FromRange(buf, buf, k0, k1)
 	case 1:
 		c.conv.convRec(buf[u*q:(u+1)*q], c.spec[u*q:(u+1)*q], 1)
 	case 2:
-		inv4ToRange(dst[b:min(b+c.step, c.n)], buf, c.conv.tw[0], k0, k1)
+		c.conv.inv4ToRange(dst[b:min(b+c.step, c.n)], buf, k0, k1)
 	}
 }

@@ -24,7 +24,8 @@ func BenchmarkFFTRadix(b *testing.B) {
 // BenchmarkConvolve times one block of the correlator's power-of-two
 // plan (forward levels, spectral product, inverse levels) by length,
 // with the process's CPU time per block beside the wall time (cpu-ns/op:
-// steadier than the wall time on a shared machine).
+// steadier than the wall time on a shared machine), on the pure Go and
+// (where the processor has them) the SIMD kernels.
 func BenchmarkConvolve(b *testing.B) {
 	for _, n := range []int{4096, 16384, 65536, 1 << 18} {
 		rnd := rand.New(rand.NewPCG(3, 3))
@@ -33,13 +34,16 @@ func BenchmarkConvolve(b *testing.B) {
 			spec[i] /= complex(float64(n), 0) // keep the repeated products bounded
 		}
 		p, buf, dst := newConvPlan(n), make([]complex128, n), make([]complex128, n)
-		b.Run(fmt.Sprint(n), func(b *testing.B) {
-			c0 := processCPU()
-			for b.Loop() {
-				p.convolve(dst, x, buf, spec)
-			}
-			b.ReportMetric(float64((processCPU()-c0).Nanoseconds())/float64(b.N), "cpu-ns/op")
-		})
+		for _, simd := range convKernels() {
+			p.simd = simd
+			b.Run(fmt.Sprintf("%s/%d", kernelName(simd), n), func(b *testing.B) {
+				c0 := processCPU()
+				for b.Loop() {
+					p.convolve(dst, x, buf, spec)
+				}
+				b.ReportMetric(float64((processCPU()-c0).Nanoseconds())/float64(b.N), "cpu-ns/op")
+			})
+		}
 	}
 }
 

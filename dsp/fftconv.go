@@ -32,8 +32,12 @@ type convPlan struct {
 	n     int
 	radix []int             // radix of each level, from the whole length down
 	lens  []int             // segment length at each level
-	tw    [][][3]complex128 // tw[i][k][j−1] = w^{j·k}, k < lens[i]/4, 1 ≤ j < 4 (radix-4 levels above the bottom)
+	tw    [][][3]complex128 // tw[i][k][j−1] = w^{j·k}, k < lens[i]/4, 1 ≤ j < 4 (radix-4 levels above the bottom; not the top when top is set)
+	top   []complex128      // top[k] = w_n^k, k < n/4: the top level's compact table when leaf > 0
 	leaf  int               // first level whose segments fit convLeaf
+	// simd: run the AVX2/FMA kernels (fftconv_amd64.s) instead of the
+	// pure Go ones; set when the processor has them.
+	simd bool
 }
 
 // convLeaf is the segment length (points) below which the levels run
@@ -50,7 +54,7 @@ func newConvPlan(n int) *convPlan {
 	if !isPow2(n) {
 		panic("dsp: conv fft length must be a power of two")
 	}
-	p := &convPlan{n: n}
+	p := &convPlan{n: n, simd: simdAvailable()}
 	lg := bits.TrailingZeros(uint(n))
 	for s := n; s > 1; {
 		r := 4
@@ -71,49 +75,60 @@ func newConvPlan(n int) *convPlan {
 	if n == 1 {
 		return p
 	}
-	// Every level above the bottom is radix 4. The top level's table holds
-	// w_n^{j·k} for k < n/4, j < 4, each the product of two exactly rounded
-	// factors (as roots does, without its n-point table); a lower level of
-	// length s needs w_s^{j·k} = w_n^{j·k·n/s}, k·n/s < n/4: every fourth
-	// entry of the level above's table. All tables share one allocation.
+	// Every level above the bottom is radix 4. A level of length s needs
+	// w_s^{j·k} for k < s/4, 1 ≤ j < 4. When the top level runs alone
+	// (p.leaf > 0: only through fwd4FromRange and inv4ToRange, which
+	// stream the whole block through memory and have cycles to spare) its
+	// table is compact: w_n^k alone, its square and cube made in the
+	// loop, a third of the memory. The first full table holds the three
+	// factors per butterfly, each the product of two exactly rounded
+	// factors (as roots does, without its n-point table); a lower level
+	// needs w_s^{j·k} = w_{4s}^{j·4k}: every fourth entry of the level
+	// above's table. The full tables share one allocation.
 	if n <= 4 {
 		return p // one level, the bottom: unit twiddles
 	}
+	first := 0
+	if p.leaf > 0 {
+		first = 1
+		p.top = make([]complex128, n/4)
+		lo, hi, b := rootParts(n)
+		a, c := 0, 0
+		for k := range p.top {
+			p.top[k] = hi[a] * lo[c]
+			if c++; c == b {
+				c, a = 0, a+1
+			}
+		}
+	}
 	size := 0
-	for i, l := range p.lens {
-		if l != p.radix[i] {
+	for i := first; i < len(p.lens); i++ {
+		if l := p.lens[i]; l != p.radix[i] {
 			size += l / 4
 		}
 	}
+	p.tw = make([][][3]complex128, len(p.lens))
+	if size == 0 {
+		return p
+	}
 	all := make([][3]complex128, size)
-	top := all[:n/4]
-	all = all[len(top):]
-	b := int(math.Sqrt(float64(n))) + 1
-	ang := -2 * math.Pi / float64(n)
-	lo := make([]complex128, b)
-	for c := range lo {
-		sin, cos := math.Sincos(ang * float64(c))
-		lo[c] = complex(cos, sin)
-	}
-	hi := make([]complex128, 3*(n/4)/b+1)
-	for a := range hi {
-		sin, cos := math.Sincos(ang * float64(a*b))
-		hi[a] = complex(cos, sin)
-	}
+	s0 := p.lens[first]
+	t0 := all[:s0/4]
+	all = all[len(t0):]
+	lo, hi, b := rootParts(s0)
 	// w^{j·k} = hi[a]·lo[c] with j·k = a·b + c, stepped without division.
 	var a, c [3]int
-	for k := range top {
+	for k := range t0 {
 		for j := range 3 {
-			top[k][j] = hi[a[j]] * lo[c[j]]
+			t0[k][j] = hi[a[j]] * lo[c[j]]
 			if c[j] += j + 1; c[j] >= b {
 				c[j] -= b
 				a[j]++
 			}
 		}
 	}
-	p.tw = make([][][3]complex128, len(p.lens))
-	p.tw[0] = top
-	for i := 1; i < len(p.lens); i++ {
+	p.tw[first] = t0
+	for i := first + 1; i < len(p.lens); i++ {
 		s := p.lens[i]
 		if s == p.radix[i] {
 			continue // the bottom level: unit twiddles
@@ -127,6 +142,24 @@ func newConvPlan(n int) *convPlan {
 		p.tw[i] = t
 	}
 	return p
+}
+
+// rootParts returns the factors of the powers of w = exp(−j2π/s): w^m =
+// hi[m/b]·lo[m%b] for 0 ≤ m < 3s/4 + b, each factor exactly rounded.
+func rootParts(s int) (lo, hi []complex128, b int) {
+	b = int(math.Sqrt(float64(s))) + 1
+	ang := -2 * math.Pi / float64(s)
+	lo = make([]complex128, b)
+	for c := range lo {
+		sin, cos := math.Sincos(ang * float64(c))
+		lo[c] = complex(cos, sin)
+	}
+	hi = make([]complex128, 3*(s/4)/b+2)
+	for a := range hi {
+		sin, cos := math.Sincos(ang * float64(a*b))
+		hi[a] = complex(cos, sin)
+	}
+	return lo, hi, b
 }
 
 // forward replaces x (len n) by its DFT in the plan's digit-reversed order.
@@ -143,7 +176,7 @@ func (p *convPlan) fwdRec(seg []complex128, lvl int) {
 	last := len(p.lens) - 1
 	if lvl >= p.leaf {
 		for i := lvl; i < last; i++ {
-			fwd4(seg, p.lens[i], p.tw[i])
+			p.fwd4(seg, p.lens[i], p.tw[i])
 		}
 		if p.radix[last] == 4 {
 			bottom4(seg, nil)
@@ -152,8 +185,12 @@ func (p *convPlan) fwdRec(seg []complex128, lvl int) {
 		}
 		return
 	}
-	fwd4(seg, len(seg), p.tw[lvl])
 	q := len(seg) / 4
+	if lvl == 0 && p.top != nil {
+		p.fwd4FromRange(seg, seg, 0, q)
+	} else {
+		p.fwd4(seg, len(seg), p.tw[lvl])
+	}
 	for j := range 4 {
 		p.fwdRec(seg[j*q:(j+1)*q], lvl+1)
 	}
@@ -177,13 +214,12 @@ func (p *convPlan) convolve(dst, src, buf, spec []complex128) {
 		return
 	}
 	// The top level reads src and writes buf; its inverse writes dst.
-	tw := p.tw[0]
-	fwd4From(buf, src, tw)
 	q := n / 4
+	p.fwd4FromRange(buf, src, 0, q)
 	for j := range 4 {
 		p.convRec(buf[j*q:(j+1)*q], spec[j*q:(j+1)*q], 1)
 	}
-	inv4To(dst, buf, tw)
+	p.inv4ToRange(dst, buf, 0, q)
 }
 
 // convRec runs the forward levels from lvl, the product by spec and the
@@ -196,24 +232,93 @@ func (p *convPlan) convRec(seg, spec []complex128, lvl int) {
 	last := len(p.lens) - 1
 	if lvl >= p.leaf {
 		for i := lvl; i < last; i++ {
-			fwd4(seg, p.lens[i], p.tw[i])
+			p.fwd4(seg, p.lens[i], p.tw[i])
 		}
 		if p.radix[last] == 4 {
-			bottom4(seg, spec)
+			p.bottom4(seg, spec)
 		} else {
 			bottom2(seg, spec)
 		}
 		for i := last - 1; i >= lvl; i-- {
-			inv4(seg, p.lens[i], p.tw[i])
+			p.inv4(seg, p.lens[i], p.tw[i])
 		}
 		return
 	}
-	fwd4(seg, len(seg), p.tw[lvl])
+	p.fwd4(seg, len(seg), p.tw[lvl])
 	q := len(seg) / 4
 	for j := range 4 {
 		p.convRec(seg[j*q:(j+1)*q], spec[j*q:(j+1)*q], lvl+1)
 	}
-	inv4(seg, len(seg), p.tw[lvl])
+	p.inv4(seg, len(seg), p.tw[lvl])
+}
+
+// fwd4 runs a forward radix-4 level on every segment of s points of x
+// (s ≥ 8, a level above the bottom), on the plan's kernels.
+func (p *convPlan) fwd4(x []complex128, s int, tw [][3]complex128) {
+	if p.simd && s >= 8 && len(x) >= s && len(x)%s == 0 && len(tw) >= s/4 {
+		fwd4AVX(&x[0], &x[0], &tw[0], s/4, s/4, len(x)/s)
+		return
+	}
+	fwd4(x, s, tw)
+}
+
+// inv4 is fwd4's inverse level, on the plan's kernels.
+func (p *convPlan) inv4(x []complex128, s int, tw [][3]complex128) {
+	if p.simd && s >= 8 && len(x) >= s && len(x)%s == 0 && len(tw) >= s/4 {
+		inv4AVX(&x[0], &x[0], &tw[0], s/4, s/4, len(x)/s)
+		return
+	}
+	inv4(x, s, tw)
+}
+
+// bottom4 is bottom4 with a spectrum, on the plan's kernels.
+func (p *convPlan) bottom4(x, spec []complex128) {
+	if p.simd && len(x) >= 4 && len(x)%4 == 0 && len(spec) >= len(x) {
+		bottom4AVX(&x[0], &spec[0], len(x))
+		return
+	}
+	bottom4(x, spec)
+}
+
+// fwd4FromRange runs the top level (its compact table, p.top) forward
+// on one block read from src and written to dst (len n; src may be dst),
+// butterflies k0 ≤ k < k1, on the plan's kernels: the SIMD kernel takes
+// them two at a time from an even k0, the pure Go one an odd last one.
+func (p *convPlan) fwd4FromRange(dst, src []complex128, k0, k1 int) {
+	q := p.n / 4
+	if len(dst) != p.n || len(src) != p.n || k0 < 0 || k1 > q || len(p.top) != q {
+		panic("dsp: conv fft top level out of range")
+	}
+	if p.simd && k0%2 == 0 && k1-k0 >= 2 {
+		e := k1 - (k1-k0)%2
+		fwd4TopAVX(&dst[k0], &src[k0], &p.top[k0], q, e-k0)
+		k0 = e
+	}
+	if k0 < k1 {
+		fwd4Top(dst, src, p.top, k0, k1)
+	}
+}
+
+// inv4ToRange runs the top level inverse on one block (src, len n),
+// writing its outputs below len(dst) to dst (the others are not
+// computed), butterflies k0 ≤ k < k1, on the plan's kernels (its whole
+// butterflies as fwd4FromRange's).
+func (p *convPlan) inv4ToRange(dst, src []complex128, k0, k1 int) {
+	q := p.n / 4
+	if len(src) != p.n || len(dst) > p.n || k0 < 0 || k1 > q || len(p.top) != q {
+		panic("dsp: conv fft top level out of range")
+	}
+	if p.simd && k0%2 == 0 {
+		// The butterflies whose four outputs are all wanted.
+		full := min(k1, max(len(dst)-3*q, 0))
+		if e := full - (full-k0)%2; e-k0 >= 2 {
+			inv4TopAVX(&dst[k0], &src[k0], &p.top[k0], q, e-k0)
+			k0 = e
+		}
+	}
+	if k0 < k1 {
+		inv4Top(dst, src, p.top, k0, k1)
+	}
 }
 
 // fwd4 runs a forward radix-4 level on every segment of s points of x.
@@ -238,29 +343,27 @@ func fwd4(x []complex128, s int, tw [][3]complex128) {
 	}
 }
 
-// fwd4From is fwd4 on one segment (len(dst) points) read from src and
-// written to dst; src may be dst.
-func fwd4From(dst, src []complex128, tw [][3]complex128) {
-	fwd4FromRange(dst, src, tw, 0, len(dst)/4)
-}
-
-// fwd4FromRange is fwd4From for the butterflies k0 ≤ k < k1 only.
-func fwd4FromRange(dst, src []complex128, tw [][3]complex128, k0, k1 int) {
+// fwd4Top is fwd4 on one segment (len(dst) points) read from src and
+// written to dst (src may be dst), for the butterflies k0 ≤ k < k1 only,
+// with the compact table top[k] = w^k (w^{2k}, w^{3k} its square and
+// cube).
+func fwd4Top(dst, src, top []complex128, k0, k1 int) {
 	q := len(dst) / 4
-	tw = tw[k0:k1]
+	tw := top[k0:k1]
 	x0, x1, x2, x3 := src[k0:k1], src[q+k0:q+k1], src[2*q+k0:2*q+k1], src[3*q+k0:3*q+k1]
 	y0, y1, y2, y3 := dst[k0:k1], dst[q+k0:q+k1], dst[2*q+k0:2*q+k1], dst[3*q+k0:3*q+k1]
 	x0, x1, x2, x3 = x0[:len(tw)], x1[:len(tw)], x2[:len(tw)], x3[:len(tw)]
 	y0, y1, y2, y3 = y0[:len(tw)], y1[:len(tw)], y2[:len(tw)], y3[:len(tw)]
-	for k := range tw {
-		w := &tw[k]
+	for k, w1 := range tw {
+		w2 := w1 * w1
+		w3 := w2 * w1
 		a0, a1, a2, a3 := x0[k], x1[k], x2[k], x3[k]
 		t0, t1 := a0+a2, a0-a2
 		t2, d := a1+a3, a1-a3
 		y0[k] = t0 + t2
-		y1[k] = complex(real(t1)+imag(d), imag(t1)-real(d)) * w[0]
-		y2[k] = (t0 - t2) * w[1]
-		y3[k] = complex(real(t1)-imag(d), imag(t1)+real(d)) * w[2]
+		y1[k] = complex(real(t1)+imag(d), imag(t1)-real(d)) * w1
+		y2[k] = (t0 - t2) * w2
+		y3[k] = complex(real(t1)-imag(d), imag(t1)+real(d)) * w3
 	}
 }
 
@@ -290,14 +393,10 @@ func inv4(x []complex128, s int, tw [][3]complex128) {
 	}
 }
 
-// inv4To is inv4 on one segment (len(src) points) whose outputs below
-// len(dst) are written to dst; the others are not computed.
-func inv4To(dst, src []complex128, tw [][3]complex128) {
-	inv4ToRange(dst, src, tw, 0, len(src)/4)
-}
-
-// inv4ToRange is inv4To for the butterflies k0 ≤ k < k1 only.
-func inv4ToRange(dst, src []complex128, tw [][3]complex128, k0, k1 int) {
+// inv4Top is inv4 on one segment (len(src) points) whose outputs below
+// len(dst) are written to dst (the others are not computed), for the
+// butterflies k0 ≤ k < k1 only, with fwd4Top's compact table.
+func inv4Top(dst, src, top []complex128, k0, k1 int) {
 	q := len(src) / 4
 	// Quarter j of the output is dst[j·q : j·q+q]; kq[j] of its points are
 	// wanted: all four quarters for k < kq[3], three for k < kq[2], …
@@ -305,13 +404,11 @@ func inv4ToRange(dst, src []complex128, tw [][3]complex128, k0, k1 int) {
 	for j := range kq {
 		kq[j] = min(max(len(dst)-j*q, 0), q)
 	}
-	if e := min(k1, kq[3]); k0 < e {
-		inv4Full(dst[k0:e], dst[q+k0:q+e], dst[2*q+k0:2*q+e], dst[3*q+k0:3*q+e],
-			src[k0:e], src[q+k0:q+e], src[2*q+k0:2*q+e], src[3*q+k0:3*q+e], tw[k0:e])
-	}
-	for k := max(k0, kq[3]); k < min(k1, kq[0]); k++ {
-		w := &tw[k]
-		b0, b1, b2, b3 := src[k], mulConj(src[q+k], w[0]), mulConj(src[2*q+k], w[1]), mulConj(src[3*q+k], w[2])
+	for k := k0; k < min(k1, kq[0]); k++ {
+		w1 := top[k]
+		w2 := w1 * w1
+		w3 := w2 * w1
+		b0, b1, b2, b3 := src[k], mulConj(src[q+k], w1), mulConj(src[2*q+k], w2), mulConj(src[3*q+k], w3)
 		t0, t1 := b0+b2, b0-b2
 		t2, d := b1+b3, b1-b3
 		dst[k] = t0 + t2
@@ -321,23 +418,9 @@ func inv4ToRange(dst, src []complex128, tw [][3]complex128, k0, k1 int) {
 		if k < kq[2] {
 			dst[2*q+k] = t0 - t2
 		}
-	}
-}
-
-// inv4Full is the inverse radix-4 butterfly on x0…x3 into y0…y3 (all of
-// len(tw) points).
-func inv4Full(y0, y1, y2, y3, x0, x1, x2, x3 []complex128, tw [][3]complex128) {
-	x0, x1, x2, x3 = x0[:len(tw)], x1[:len(tw)], x2[:len(tw)], x3[:len(tw)]
-	y0, y1, y2, y3 = y0[:len(tw)], y1[:len(tw)], y2[:len(tw)], y3[:len(tw)]
-	for k := range tw {
-		w := &tw[k]
-		b0, b1, b2, b3 := x0[k], mulConj(x1[k], w[0]), mulConj(x2[k], w[1]), mulConj(x3[k], w[2])
-		t0, t1 := b0+b2, b0-b2
-		t2, d := b1+b3, b1-b3
-		y0[k] = t0 + t2
-		y1[k] = complex(real(t1)-imag(d), imag(t1)+real(d))
-		y2[k] = t0 - t2
-		y3[k] = complex(real(t1)+imag(d), imag(t1)-real(d))
+		if k < kq[3] {
+			dst[3*q+k] = complex(real(t1)+imag(d), imag(t1)-real(d))
+		}
 	}
 }
 

@@ -29,6 +29,22 @@ func convFreq(p *convPlan) []int {
 	return f
 }
 
+// convKernels lists the kernels a plan can run here (convPlan.simd): the
+// pure Go ones always, the SIMD ones where the processor has them.
+func convKernels() []bool {
+	if simdAvailable() {
+		return []bool{false, true}
+	}
+	return []bool{false}
+}
+
+func kernelName(simd bool) string {
+	if simd {
+		return "simd"
+	}
+	return "go"
+}
+
 // goldenInput is the input of testdata/golden/fft.py, rebuilt exactly.
 func goldenInput(n int) []complex128 {
 	x := make([]complex128, n)
@@ -76,15 +92,19 @@ func TestFFTNumpy(t *testing.T) {
 			x := goldenInput(c.N)
 			newFFTPlan(c.N).transform(x, make([]complex128, c.N))
 			check("stockham", x)
-			if isPow2(c.N) {
+			for _, simd := range convKernels() {
+				if !isPow2(c.N) {
+					break
+				}
 				p := newConvPlan(c.N)
+				p.simd = simd
 				y := goldenInput(c.N)
 				p.forward(y)
 				got := make([]complex128, c.N)
 				for pos, k := range convFreq(p) {
 					got[k] = y[pos]
 				}
-				check("conv", got)
+				check("conv/"+kernelName(simd), got)
 			}
 		})
 	}
@@ -102,15 +122,18 @@ func TestConvPlanGonum(t *testing.T) {
 	for _, n := range sizes {
 		x := randComplex(rnd, n)
 		want := fourier.NewCmplxFFT(n).Coefficients(nil, x)
-		p := newConvPlan(n)
-		y := append([]complex128(nil), x...)
-		p.forward(y)
-		var e float64
-		for pos, k := range convFreq(p) {
-			e = math.Max(e, cmplx.Abs(y[pos]-want[k]))
-		}
-		if e /= norm2(want); e > tol {
-			t.Errorf("n=%d: max error %.3g of the norm > %v", n, e, tol)
+		for _, simd := range convKernels() {
+			p := newConvPlan(n)
+			p.simd = simd
+			y := append([]complex128(nil), x...)
+			p.forward(y)
+			var e float64
+			for pos, k := range convFreq(p) {
+				e = math.Max(e, cmplx.Abs(y[pos]-want[k]))
+			}
+			if e /= norm2(want); e > tol {
+				t.Errorf("n=%d, %s kernels: max error %.3g of the norm > %v", n, kernelName(simd), e, tol)
+			}
 		}
 	}
 }
@@ -120,8 +143,17 @@ func TestConvPlanGonum(t *testing.T) {
 // nothing past them, and leave src intact. Source: gonum's CmplxFFT.
 func TestConvPlanConvolve(t *testing.T) {
 	rnd := rand.New(rand.NewPCG(12, 12))
-	for _, n := range []int{1, 2, 4, 8, 32, 512, 2048, 4096, 8192, 1 << 15} {
+	for _, c := range convKernels() {
+		for _, n := range []int{1, 2, 4, 8, 16, 32, 512, 2048, 4096, 8192, 1 << 15, 1 << 16} {
+			testConvPlanConvolve(t, rnd, n, c)
+		}
+	}
+}
+
+func testConvPlanConvolve(t *testing.T, rnd *rand.Rand, n int, simd bool) {
+	{
 		p := newConvPlan(n)
+		p.simd = simd
 		x, s := randComplex(rnd, n), randComplex(rnd, n)
 		fft := fourier.NewCmplxFFT(n)
 		spec := fft.Coefficients(nil, x)
@@ -139,7 +171,7 @@ func TestConvPlanConvolve(t *testing.T) {
 			if k < 1 || k > n {
 				continue
 			}
-			t.Run(fmt.Sprintf("n=%d/out=%d", n, k), func(t *testing.T) {
+			t.Run(fmt.Sprintf("%s/n=%d/out=%d", kernelName(simd), n, k), func(t *testing.T) {
 				keep := append([]complex128(nil), x...)
 				out := make([]complex128, n+1)
 				const sentinel = complex(7, 7)
@@ -186,23 +218,26 @@ func TestCorrelatorConvLengths(t *testing.T) {
 		{30000, 1000, 2048, 2}, {60000, 9000, 32768, 2}, {30000, 3000, 8192, 3},
 		{5000, 5000, 16384, 2}, {3000, 3000, 8192, 4},
 	} {
-		t.Run(fmt.Sprintf("n=%d/m=%d/L=%d/w=%d", c.n, c.m, c.l, c.w), func(t *testing.T) {
-			x, h := randComplex(rnd, c.n), randComplex(rnd, c.m)
-			want := directCorrelate(x, h)
-			p := newCorrelatorLen(h, c.n, c.l, c.w)
-			if p.conv == nil {
-				t.Fatal("power-of-two length without the conv plan")
-			}
-			blocks := (c.n + p.step - 1) / p.step
-			if want := c.w > 1 && blocks%c.w == 1; p.coop != want {
-				t.Fatalf("%d blocks on %d workers: shared last block %v, want %v", blocks, c.w, p.coop, want)
-			}
-			for range 2 {
-				if e := maxRelErr(p.Apply(nil, x), want); e > tol {
-					t.Errorf("max relative error %.3g > %v", e, tol)
+		x, h := randComplex(rnd, c.n), randComplex(rnd, c.m)
+		want := directCorrelate(x, h)
+		for _, simd := range convKernels() {
+			t.Run(fmt.Sprintf("%s/n=%d/m=%d/L=%d/w=%d", kernelName(simd), c.n, c.m, c.l, c.w), func(t *testing.T) {
+				p := newCorrelatorLen(h, c.n, c.l, c.w)
+				if p.conv == nil {
+					t.Fatal("power-of-two length without the conv plan")
 				}
-			}
-		})
+				p.conv.simd = simd
+				blocks := (c.n + p.step - 1) / p.step
+				if want := c.w > 1 && blocks%c.w == 1; p.coop != want {
+					t.Fatalf("%d blocks on %d workers: shared last block %v, want %v", blocks, c.w, p.coop, want)
+				}
+				for range 2 {
+					if e := maxRelErr(p.Apply(nil, x), want); e > tol {
+						t.Errorf("max relative error %.3g > %v", e, tol)
+					}
+				}
+			})
+		}
 	}
 }
 

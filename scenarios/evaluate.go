@@ -351,7 +351,31 @@ func (sc *scene) series() Series {
 // Response.
 func (sc *scene) window(workers int) Series {
 	m := sc.m
+	s := Series{
+		RangeM0:    m.rangeOf(0),
+		RangeStepM: C / (2 * m.fs),
+		ProfileDB:  make([]float64, m.n),
+	}
 	x := make([]complex128, m.recLen+m.lead)
+	s.Echo = sc.windowPower(workers, x, nil, s.ProfileDB)[:m.n] // x is not used after the compression
+	dsp.PowersDB(s.ProfileDB, s.ProfileDB, dbFloor)
+	for k, ok := range m.processed {
+		if !ok {
+			s.ProfileDB[k] = dbFloor
+		}
+	}
+	return s
+}
+
+// windowPower synthesises the noisy receive window into x (len
+// recLen+lead, overwritten), compresses it into y (len recLen+lead; nil:
+// allocated) and writes the compressed power re noise of gates 0 … n−1
+// into p (len n), linear; it returns the echo (x past the lead zeros).
+// Monte Carlo trials call it with buffers of their own and test p
+// directly (no round trip through dB).
+func (sc *scene) windowPower(workers int, x, y []complex128, p []float64) []complex128 {
+	m := sc.m
+	clear(x)
 	echo := x[m.lead:]
 	for _, g := range sc.targets {
 		pn := sc.fe.newPNEcho(m, g, 1, m.s.Seed)
@@ -381,24 +405,12 @@ func (sc *scene) window(workers int) Series {
 	if m.winCorr == nil || m.winCorr.Len() != len(x) {
 		m.winCorr = dsp.NewCorrelatorWorkers(m.ref, len(x), workers)
 	}
-	y := m.winCorr.Apply(nil, x)
-	s := Series{
-		RangeM0:    m.rangeOf(0),
-		RangeStepM: C / (2 * m.fs),
-		Echo:       echo[:m.n], // x is not used after the compression
-		ProfileDB:  make([]float64, m.n),
-	}
-	for k := range m.n {
+	y = m.winCorr.Apply(y, x)
+	for k := range p[:m.n] {
 		v := y[k]
-		s.ProfileDB[k] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
+		p[k] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
 	}
-	dsp.PowersDB(s.ProfileDB, s.ProfileDB, dbFloor)
-	for k, ok := range m.processed {
-		if !ok {
-			s.ProfileDB[k] = dbFloor
-		}
-	}
-	return s
+	return echo
 }
 
 // levels fills the noise-free profile and the detection threshold of s

@@ -326,7 +326,11 @@ type trialWorker struct {
 	cf2 *dsp.CFAR2D
 	p   []float64
 	th  []float64
-	pm  [][]float64 // pulse trains: linear map [bin][cell]
+	// Single pulses: the window and its compression (windowPower), and
+	// the profile's floor, linear.
+	x, y  []complex128
+	floor float64
+	pm    [][]float64 // pulse trains: linear map [bin][cell]
 }
 
 func (t *Trials) newWorker() *trialWorker {
@@ -361,6 +365,9 @@ func (t *Trials) newWorker() *trialWorker {
 	}
 	w.p = make([]float64, t.m.n)
 	w.th = make([]float64, t.m.n)
+	w.x = make([]complex128, t.m.recLen+t.m.lead)
+	w.y = make([]complex128, len(w.x))
+	w.floor = dsp.FromDB(dbFloor)
 	return w
 }
 
@@ -378,9 +385,13 @@ func (w *trialWorker) trial(i int, c *TrialCounts) {
 			g.phase = cmplx.Rect(1, 2*math.Pi*streamOf(w.s.Seed, g.t.ID, 0x9a5e).Float64())
 		}
 	}
-	ser := w.sc.window(1)
-	for k, db := range ser.ProfileDB {
-		w.p[k] = dsp.FromDB(db)
+	// The compressed power, linear, as window's ProfileDB would give it
+	// after dsp.FromDB (its floor and unprocessed gates included).
+	w.sc.windowPower(1, w.x, w.y, w.p)
+	for k, ok := range m.processed {
+		if !ok || w.p[k] < w.floor {
+			w.p[k] = w.floor
+		}
 	}
 	if w.cf != nil {
 		w.cf.ThresholdsValid(w.th, w.p, m.processed)

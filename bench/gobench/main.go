@@ -5,6 +5,7 @@
 //	gobench gen -dir D -seed S -n N -m M          write D/x_N.cf64 and D/h_M.cf64
 //	gobench compress -x F -h F -reps R [-workers W] [-cold] [-out F]
 //	gobench evaluate -scene F -reps R [-out DIR]
+//	gobench trials -scene F -n N -reps R [-workers W]
 //
 // Files are raw little-endian complex128 (cf64: re, im float64 pairs) or
 // float64. Each timing command prints one JSON line: the per-repetition
@@ -58,6 +59,13 @@ func main() {
 		out := fs.String("out", "", "write series and targets into this directory")
 		fs.Parse(os.Args[2:])
 		err = evaluate(*scene, *reps, *out)
+	case "trials":
+		scene := fs.String("scene", "", "scenario file")
+		n := fs.Int("n", 1000, "trials per repetition")
+		reps := fs.Int("reps", 5, "timed repetitions")
+		workers := fs.Int("workers", runtime.GOMAXPROCS(0), "trials run at once")
+		fs.Parse(os.Args[2:])
+		err = trials(*scene, *n, *reps, *workers)
 	default:
 		err = fmt.Errorf("unknown command %q", os.Args[1])
 	}
@@ -95,6 +103,7 @@ type timing struct {
 	PlanMS    float64   `json:"plan_ms,omitempty"`
 	MaxRSSKiB int64     `json:"maxrss_kib"`
 	Info      string    `json:"info,omitempty"`
+	Counts    any       `json:"counts,omitempty"` // trials: the counts of all repetitions
 }
 
 func compress(xf, hf string, reps, workers int, cold bool, out string) error {
@@ -167,6 +176,55 @@ func evaluate(file string, reps int, out string) error {
 		tm.CPUMS = append(tm.CPUMS, ms(cpuTime()-c))
 	}
 	tm.Info = fmt.Sprintf("samples=%d targets=%d", len(res.Series.ProfileDB), len(res.Report.Targets))
+	return report(tm)
+}
+
+// trials times Monte Carlo runs of n trials of the scenario
+// (scenarios.Trials.Run, as "pulsewright trials" does) on workers
+// goroutines: the scene prepared once (NewTrials, untimed, as the
+// reference precomputes its noise-free echoes), each timed repetition a
+// new run of the next n trials (a run sets up its workers' plans). It
+// adds the trials per second of the median repetition and the counts of
+// all repetitions (detections per target, false alarms over noise
+// cells) for ref.py's cross-check.
+func trials(file string, n, reps, workers int) error {
+	data, err := os.ReadFile(file)
+	if err != nil {
+		return err
+	}
+	s, err := scenarios.Decode(data)
+	if err != nil {
+		return err
+	}
+	ctx := context.Background()
+	tr, err := scenarios.NewTrials(ctx, s)
+	if err != nil {
+		return err
+	}
+	if _, err := tr.Run(ctx, 0, n, workers, nil); err != nil { // warm-up
+		return err
+	}
+	var tm timing
+	total := scenarios.TrialCounts{First: n, Detections: make([]int64, len(s.Targets))}
+	for r := range reps {
+		t, c := time.Now(), cpuTime()
+		got, err := tr.Run(ctx, (r+1)*n, n, workers, nil)
+		if err != nil {
+			return err
+		}
+		tm.TimesMS = append(tm.TimesMS, ms(time.Since(t)))
+		tm.CPUMS = append(tm.CPUMS, ms(cpuTime()-c))
+		if err := total.Add(got); err != nil {
+			return err
+		}
+	}
+	ids := make([]string, len(s.Targets))
+	for j, t := range s.Targets {
+		ids[j] = t.ID
+	}
+	tm.Counts = map[string]any{"ids": ids, "trials": total.Trials, "detections": total.Detections,
+		"false_alarms": total.FalseAlarms, "noise_cells": total.NoiseCells}
+	tm.Info = fmt.Sprintf("workers=%d trials_per_rep=%d", workers, n)
 	return report(tm)
 }
 
