@@ -29,24 +29,6 @@ DATA negHiRe<>+16(SB)/8, $0x8000000000000000
 DATA negHiRe<>+24(SB)/8, $0x0000000000000000
 GLOBL negHiRe<>(SB), RODATA|NOPTR, $32
 
-// func cpuid(eaxArg, ecxArg uint32) (eax, ebx, ecx, edx uint32)
-TEXT ·cpuid(SB), NOSPLIT, $0-24
-	MOVL eaxArg+0(FP), AX
-	MOVL ecxArg+4(FP), CX
-	CPUID
-	MOVL AX, eax+8(FP)
-	MOVL BX, ebx+12(FP)
-	MOVL CX, ecx+16(FP)
-	MOVL DX, edx+20(FP)
-	RET
-
-// func xgetbv0() (eax uint32)
-TEXT ·xgetbv0(SB), NOSPLIT, $0-4
-	MOVL $0, CX
-	BYTE $0x0f; BYTE $0x01; BYTE $0xd0 // XGETBV
-	MOVL AX, eax+0(FP)
-	RET
-
 // CMUL multiplies the pairs in U by the pairs in W (complex, per lane)
 // into U, using R and S as temporaries.
 #define CMUL(U, W, R, S) \

@@ -347,6 +347,22 @@ func racePd(lambda, shape float64, q []float64) float64 {
 				logw += math.Log((shape + float64(a-1)) / float64(a) * p)
 			}
 		}
+		// The h_a sum to 1 over a (Σ_a H_a(q) = Π 1/(1−q_i)), so the
+		// rest of the sum, from a on, is below S_a. Past the mode of
+		// the weights (ratio r_a = w_{a+1}/w_a < 1 and not growing: the
+		// Poisson, or a negative binomial of shape ≥ 1), S_a is below
+		// w_a/(1 − r_a): stop when that is below 1e-17 of the sum. (S_a
+		// itself, computed by subtraction, keeps a rounding residue near
+		// 1e-17 that would never reach 0.)
+		if a > 0 && sum > 0 && lambda > 0 && (poisson || shape >= 1) {
+			r := lambda / float64(a+1)
+			if !poisson {
+				r = (shape + float64(a)) / float64(a+1) * p
+			}
+			if r < 1 && math.Exp(logw)/(1-r) <= 1e-17*sum {
+				break
+			}
+		}
 		ha := math.Exp(logscale + math.Log(h[len(h)-1]))
 		term := ha * surv
 		sum += term

@@ -83,13 +83,43 @@ const maxCellPoints = 2048
 // a fixed array for up to 1 + MaxCellDims phasors (the echoes are sorted
 // in place by descending power, so pass a slice the caller owns).
 func PdInCell(echoes []CellEcho, pdSteady func(snr, scale float64) (float64, bool)) (float64, error) {
+	var c cellInt
+	if err := c.prepare(echoes, pdSteady, CellTolerance); err != nil {
+		return 0, err
+	}
+	// With steady phasors only, the resultant lies between |a₀ − Σaᵢ| and
+	// Σaᵢ and Pd grows with it: where the Pd at the two ends agree to
+	// CellTolerance (a strong target, a weak neighbour), no integral is
+	// needed.
+	if steady := c.n > 1; steady {
+		for i := range c.n {
+			if c.ph[i].Swerling != SwerlingNone {
+				steady = false
+			}
+		}
+		if steady {
+			lo, hi := c.bounds()
+			pl, ok1 := c.f(lo*lo, 1/c.v)
+			ph, ok2 := c.f(hi*hi, 1/c.v)
+			if ok1 && ok2 && ph-pl < CellTolerance && ph >= pl {
+				return math.Min(math.Max((pl+ph)/2, 0), 1), nil
+			}
+		}
+	}
+	return c.integrate()
+}
+
+// prepare validates the echoes, sorts them, adds the Gaussian ones (and
+// the phasors beyond MaxCellDims) to the noise power v and keeps the
+// phasors to integrate over; tol is the accuracy of each integral.
+func (c *cellInt) prepare(echoes []CellEcho, pdSteady func(snr, scale float64) (float64, bool), tol float64) error {
 	v := 1.0
 	for _, e := range echoes {
 		switch {
 		case !(e.Power >= 0) || math.IsInf(e.Power, 1):
-			return 0, fmt.Errorf("dsp: cell echo power %g out of range: want finite ≥ 0", e.Power)
+			return fmt.Errorf("dsp: cell echo power %g out of range: want finite ≥ 0", e.Power)
 		case e.Swerling < SwerlingNone || e.Swerling > Swerling4:
-			return 0, fmt.Errorf("dsp: cell echo Swerling %d out of range: want 0 (steady) … 4", e.Swerling)
+			return fmt.Errorf("dsp: cell echo Swerling %d out of range: want 0 (steady) … 4", e.Swerling)
 		}
 		if e.Swerling == Swerling1 || e.Swerling == Swerling2 {
 			v += e.Power
@@ -100,8 +130,7 @@ func PdInCell(echoes []CellEcho, pdSteady func(snr, scale float64) (float64, boo
 			echoes[k], echoes[k-1] = echoes[k-1], echoes[k]
 		}
 	}
-	var c cellInt
-	c.f, c.v = pdSteady, v
+	c.f, c.v, c.tol = pdSteady, v, tol
 	dims := 0
 	for _, e := range echoes {
 		if e.Power <= 0 || e.Swerling == Swerling1 || e.Swerling == Swerling2 {
@@ -122,36 +151,254 @@ func PdInCell(echoes []CellEcho, pdSteady func(snr, scale float64) (float64, boo
 		c.n++
 		dims += need
 	}
-	// With steady phasors only, the resultant lies between |a₀ − Σaᵢ| and
-	// Σaᵢ and Pd grows with it: where the Pd at the two ends agree to
-	// CellTolerance (a strong target, a weak neighbour), no integral is
-	// needed.
-	if steady := c.n > 1; steady {
-		sum, rest := 0.0, 0.0
-		for i := range c.n {
-			if c.ph[i].Swerling != SwerlingNone {
-				steady = false
-			}
-			a := math.Sqrt(c.ph[i].Power)
-			sum += a
-			if i > 0 {
-				rest += a
-			}
+	return nil
+}
+
+// bounds returns the smallest and largest amplitude of the phasors'
+// resultant over the integration domain, in units of √v (so that the
+// steady echo's SNR in the widened noise is the square): a Swerling 3/4
+// power ranges over q ∈ [0, qMax] halves of its mean.
+func (c *cellInt) bounds() (lo, hi float64) {
+	var amax [1 + MaxCellDims]float64
+	for i := range c.n {
+		e := c.ph[i]
+		amax[i] = math.Sqrt(e.Power)
+		if e.Swerling != SwerlingNone {
+			amax[i] = math.Sqrt(e.Power / 2 * qMax)
 		}
-		if steady {
-			lo := math.Max(math.Sqrt(c.ph[0].Power)-rest, 0)
-			pl, ok1 := c.f(lo*lo/c.v, 1/c.v)
-			ph, ok2 := c.f(sum*sum/c.v, 1/c.v)
-			if ok1 && ok2 && ph-pl < CellTolerance && ph >= pl {
-				return math.Min(math.Max((pl+ph)/2, 0), 1), nil
-			}
-		}
+		hi += amax[i]
 	}
+	rest := hi - amax[0]
+	a0 := math.Sqrt(c.ph[0].Power) // the reference's smallest amplitude
+	if c.ph[0].Swerling != SwerlingNone {
+		a0 = 0
+	}
+	sv := math.Sqrt(c.v)
+	return math.Max(a0-rest, 0) / sv, hi / sv
+}
+
+// integrate evaluates the nested integrals of the prepared phasors.
+func (c *cellInt) integrate() (float64, error) {
 	p := c.at(0, 0, 0)
 	if c.failed {
 		return 0, errors.New("dsp: the detector's Pd is not available for a cell echo")
 	}
 	return math.Min(math.Max(p, 0), 1), nil
+}
+
+// PdInCellInterp returns PdInCell's probability with the detector's
+// steady-target Pd replaced by an interpolant, for detectors whose Pd is
+// costly (an ordered-statistic CFAR against a raised threshold: its series
+// runs over thousands of terms, and the nested integrals ask for it at
+// thousands of points). Within one call the threshold scale is the same
+// at every point (1/v, v the noise power widened by the Gaussian echoes),
+// so pdSteady is a function of the steady resultant's amplitude u alone
+// (in units of √v, SNR u²), non-decreasing in u. It is tabulated over the
+// domain of the integrals (bounds) as a piecewise Chebyshev interpolant:
+// each panel holds the values at 17 Chebyshev–Lobatto points and is
+// accepted when its interpolant's last three Chebyshev coefficients add
+// up to less than InterpTolerance, else it is halved (at most
+// maxInterpDepth times). Above the first amplitude where Pd
+// reaches 1 − InterpTolerance (found by doubling steps) Pd is held there:
+// the error is at most InterpTolerance, since Pd is non-decreasing and
+// at most 1. Where Pd at the two ends of the domain (or at the first
+// point within InterpTolerance of 1) differs by less than 2·InterpShortcut,
+// their mean is returned without an integral, for every law: the
+// integrals average Pd over that domain, and Pd is monotone in u, so the
+// error is at most InterpShortcut (their difference may also be rounding
+// of a series near 1). The integrals otherwise run to
+// InterpCellTolerance. Its result is within 1e-6 of PdInCell's (TestPdInCellInterp compares the two on random
+// cells for every detector kind and law); it calls pdSteady a few dozen
+// to a few hundred times instead of thousands, and allocates the table.
+func PdInCellInterp(echoes []CellEcho, pdSteady func(snr, scale float64) (float64, bool)) (float64, error) {
+	var c cellInt
+	if err := c.prepare(echoes, pdSteady, InterpCellTolerance); err != nil {
+		return 0, err
+	}
+	if c.n == 0 || (c.n == 1 && (c.ph[0].Swerling == SwerlingNone)) {
+		return c.integrate() // one point: nothing to tabulate
+	}
+	lo, hi := c.bounds()
+	var t cellTable
+	t.f, t.s = pdSteady, 1/c.v
+	pl, ok1 := t.at(lo)
+	if !ok1 {
+		return 0, errors.New("dsp: the detector's Pd is not available for a cell echo")
+	}
+	// The first amplitude above lo where Pd is within InterpTolerance of
+	// 1, or hi.
+	top, ptop := hi, math.NaN()
+	for step := 0.5; ; step *= 2 {
+		u := math.Min(lo+step, hi)
+		p, ok := t.at(u)
+		if !ok {
+			return 0, errors.New("dsp: the detector's Pd is not available for a cell echo")
+		}
+		if p >= 1-InterpTolerance || u == hi {
+			top, ptop = u, p
+			break
+		}
+	}
+	if math.Abs(ptop-pl) < 2*InterpShortcut {
+		return math.Min(math.Max((pl+ptop)/2, 0), 1), nil
+	}
+	if err := t.build(lo, top); err != nil {
+		return 0, err
+	}
+	t.top, t.ptop = top, ptop
+	c.tab = &t
+	return c.integrate()
+}
+
+// InterpTolerance is the accuracy PdInCellInterp's table aims at (absolute,
+// in Pd).
+const InterpTolerance = 1e-7
+
+// InterpShortcut is the largest error of PdInCellInterp's result where it
+// returns the mean of Pd at the two ends of the domain without an
+// integral.
+const InterpShortcut = 5e-7
+
+// InterpCellTolerance is the accuracy each nested integral of
+// PdInCellInterp aims at: above the table's own, whose panel joins put
+// steps of InterpTolerance into the integrand.
+const InterpCellTolerance = 1e-7
+
+// maxInterpDepth bounds the halvings of a panel of the table.
+const maxInterpDepth = 16
+
+// qMax is the largest Swerling 3/4 power, in halves of its mean, of the
+// integral over it (at's tHi).
+const qMax = 105
+
+// cellTable is PdInCellInterp's interpolant of pdSteady(u², s) on
+// [panels[0].a, top], held at ptop above top.
+type cellTable struct {
+	f         func(snr, scale float64) (float64, bool)
+	s         float64
+	panels    []cellPanel
+	top, ptop float64
+	calls     int
+	cheb      [cellNodes]float64 // the Chebyshev–Lobatto points cos(πj/16) on [−1, 1]
+}
+
+// cellPanel is one panel: the values at the 17 Chebyshev–Lobatto points
+// of [a, b], x_j = (a+b)/2 + (b−a)/2·cos(πj/16).
+type cellPanel struct {
+	a, b float64
+	y    [cellNodes]float64
+}
+
+// cellNodes is the number of points of a panel.
+const cellNodes = 17
+
+// at returns pdSteady at amplitude u.
+func (t *cellTable) at(u float64) (float64, bool) {
+	t.calls++
+	p, ok := t.f(u*u, t.s)
+	if !ok || math.IsNaN(p) {
+		return 0, false
+	}
+	return p, true
+}
+
+// build fills the panels over [a, b].
+func (t *cellTable) build(a, b float64) error {
+	for j := range t.cheb {
+		t.cheb[j] = math.Cos(math.Pi * float64(j) / (cellNodes - 1))
+	}
+	var p cellPanel
+	return t.panel(a, b, 0, &p)
+}
+
+// panel tabulates [a, b], halving it until the test of PdInCellInterp
+// passes; p is scratch.
+func (t *cellTable) panel(a, b float64, depth int, p *cellPanel) error {
+	p.a, p.b = a, b
+	m, h := (a+b)/2, (b-a)/2
+	for j := range cellNodes {
+		y, ok := t.at(m + h*t.cheb[j])
+		if !ok {
+			return errors.New("dsp: the detector's Pd is not available for a cell echo")
+		}
+		p.y[j] = y
+	}
+	if depth < maxInterpDepth && t.tail(p) > InterpTolerance {
+		var q cellPanel
+		if err := t.panel(a, m, depth+1, &q); err != nil {
+			return err
+		}
+		return t.panel(m, b, depth+1, &q)
+	}
+	t.panels = append(t.panels, *p)
+	return nil
+}
+
+// tail returns |c₁₄| + |c₁₅| + |c₁₆|, the last three Chebyshev coefficients
+// of the panel's interpolant, c_k = (2/16)·Σ″ y_j·cos(πjk/16) (the
+// first and last terms halved, and c₁₆ halved; Trefethen, Approximation
+// Theory and Approximation Practice, 2013, ch. 3): they bound how far the
+// interpolant can be from a function whose coefficients keep falling.
+func (t *cellTable) tail(p *cellPanel) float64 {
+	const n = cellNodes - 1
+	sum := 0.0
+	for k := n - 2; k <= n; k++ {
+		c := 0.0
+		for j := 0; j <= n; j++ {
+			m := (j * k) % (2 * n) // cos(πm/n), m ∈ [0, 2n)
+			if m > n {
+				m = 2*n - m
+			}
+			w := p.y[j] * t.cheb[m]
+			if j == 0 || j == n {
+				w /= 2
+			}
+			c += w
+		}
+		c *= 2.0 / n
+		if k == n {
+			c /= 2
+		}
+		sum += math.Abs(c)
+	}
+	return sum
+}
+
+// eval returns the interpolated Pd at amplitude u (in units of √v).
+func (t *cellTable) eval(u float64) float64 {
+	if u >= t.top {
+		return t.ptop
+	}
+	ps := t.panels
+	i, j := 0, len(ps)-1
+	for i < j { // the last panel whose a ≤ u
+		k := (i + j + 1) / 2
+		if ps[k].a <= u {
+			i = k
+		} else {
+			j = k - 1
+		}
+	}
+	p := &ps[i]
+	x := (2*u - p.a - p.b) / (p.b - p.a)
+	x = math.Min(math.Max(x, -1), 1)
+	num, den := 0.0, 0.0
+	for j := range cellNodes {
+		d := x - t.cheb[j]
+		if d == 0 {
+			return p.y[j]
+		}
+		w := 1.0 / d
+		if j%2 == 1 {
+			w = -w
+		}
+		if j == 0 || j == cellNodes-1 {
+			w /= 2
+		}
+		num += w * p.y[j]
+		den += w
+	}
+	return num / den
 }
 
 // cellInt holds the state of PdInCell's nested integrals.
@@ -160,6 +407,8 @@ type cellInt struct {
 	n      int
 	v      float64
 	f      func(snr, scale float64) (float64, bool)
+	tab    *cellTable // PdInCellInterp's interpolant of f, or nil
+	tol    float64    // the accuracy of each integral
 	failed bool
 }
 
@@ -170,6 +419,9 @@ func (c *cellInt) at(i int, re, im float64) float64 {
 		return 0
 	}
 	if i == c.n {
+		if c.tab != nil {
+			return c.tab.eval(math.Sqrt((re*re + im*im) / c.v))
+		}
 		p, ok := c.f((re*re+im*im)/c.v, 1/c.v)
 		if !ok || math.IsNaN(p) {
 			c.failed = true
@@ -206,7 +458,7 @@ func (c *cellInt) at(i int, re, im float64) float64 {
 		n *= 2
 		step /= 2
 		next := sum * step
-		if math.Abs(next-est) < CellTolerance {
+		if math.Abs(next-est) < c.tol {
 			return next
 		}
 		est = next
@@ -238,7 +490,7 @@ func (c *cellInt) phase(i int, re, im, amp float64) float64 {
 		}
 		n *= 2
 		next := sum / float64(n)
-		if math.Abs(next-est) < CellTolerance && n >= 32 {
+		if math.Abs(next-est) < c.tol && n >= 32 {
 			return next
 		}
 		est = next

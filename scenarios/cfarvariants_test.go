@@ -59,7 +59,8 @@ func TestCFARVariantKinds(t *testing.T) {
 // the clear is the smallest-of CFAR, which averages only the clean half
 // (Hansen & Sawyers 1980; Weiss 1982). The reason must propose it, and the
 // proposal, applied and re-evaluated here, must detect the aircraft with
-// the margin the reason states.
+// the Pd the reason states (256 training cells: with 64, of which 12 are
+// independent, the threshold is cleared by 5.2 dB but the Pd is 0.795).
 func TestSquallLineSuggestsSmallestOf(t *testing.T) {
 	s := demoScenario(t, "squall-line")
 	got := target(mustEvaluate(t, s), "light-aircraft")
@@ -67,7 +68,6 @@ func TestSquallLineSuggestsSmallestOf(t *testing.T) {
 		t.Fatalf("light-aircraft: %s by %q: %s", got.Status, got.MaskedBy, got.Reason)
 	}
 	var n int
-	var margin float64
 	i := strings.Index(got.Reason, "An SO-CFAR detector with ")
 	if i < 0 {
 		t.Fatalf("no SO-CFAR suggestion: %s", got.Reason)
@@ -75,19 +75,27 @@ func TestSquallLineSuggestsSmallestOf(t *testing.T) {
 	if _, err := fmt.Sscanf(got.Reason[i:], "An SO-CFAR detector with %d training cells", &n); err != nil {
 		t.Fatal(err)
 	}
-	j := strings.Index(got.Reason, "would detect it with ")
+	j := strings.Index(got.Reason, "would detect it with Pd ")
 	if j < 0 {
 		t.Fatalf("suggestion not verified: %s", got.Reason)
 	}
-	fmt.Sscanf(got.Reason[j:], "would detect it with %g dB margin", &margin)
+	stated := strings.TrimSuffix(strings.Fields(got.Reason[j+len("would detect it with Pd "):])[0], ".")
 	fixed := s.clone()
-	fixed.Receiver.Detector = Detector{Kind: DetectorSO, PFA: s.Receiver.Detector.PFA, GuardCells: s.Receiver.Detector.GuardCells, TrainingCells: n,
+	fixed.Receiver.Detector = Detector{Kind: DetectorSO, PFA: s.Receiver.Detector.PFA, PdRequired: s.Receiver.Detector.PdRequired, GuardCells: s.Receiver.Detector.GuardCells, TrainingCells: n,
 		DopplerGuardCells: s.Receiver.Detector.DopplerGuardCells, DopplerTrainingCells: s.Receiver.Detector.DopplerTrainingCells}
 	after := target(mustEvaluate(t, fixed), "light-aircraft")
-	// No Pd series behind an SO-CFAR yet: the threshold decides, and the
-	// suggestion states the threshold margin.
-	if after.Status != StatusDetected || after.DecidedOn != "threshold" || after.ThresholdMarginDB == nil || math.Abs(*after.ThresholdMarginDB-margin) > 0.05 {
-		t.Errorf("SO-CFAR with %d cells: %s, margin %v, reason said %.1f dB: %s", n, after.Status, after.ThresholdMarginDB, margin, after.Reason)
+	// Behind an SO-CFAR the Pd is dsp.VariantPd's (Swerling 1: the SO
+	// false-alarm law at α/(1+χ)); the suggestion states it, and the
+	// detector it names reaches the required Pd.
+	if after.Status != StatusDetected || after.DecidedOn != "pd" || after.Pd == nil || PdText(*after.Pd) != stated {
+		t.Errorf("SO-CFAR with %d cells: %s on %s, pd %s, reason said Pd %s: %s", n, after.Status, after.DecidedOn, optPd(after.Pd), stated, after.Reason)
+	}
+	// Fewer cells clear the threshold (64 by 5.2 dB) but not the required
+	// Pd: the SO-CFAR's loss with few independent halves.
+	few := fixed.clone()
+	few.Receiver.Detector.TrainingCells = 64
+	if g := target(mustEvaluate(t, few), "light-aircraft"); g.Status == StatusDetected || g.ThresholdMarginDB == nil || *g.ThresholdMarginDB < 3 {
+		t.Errorf("SO-CFAR with 64 cells: %s, threshold margin %v: %s", g.Status, g.ThresholdMarginDB, g.Reason)
 	}
 	// The greatest-of CFAR, the clutter-edge detector for false alarms,
 	// keeps it masked: it takes the rain half.

@@ -221,31 +221,38 @@ func (m *model) straddle(f dsp.ChiFigures) (maxDB, meanDB float64) {
 	}
 	snrC := f.Peak * f.Peak / f.EnergyH // noise density 1
 	np, nr := len(m.pulse), len(m.ref)
-	// The best lag at zero delay, from the full correlation.
+	// The full correlation of each delayed echo (all lags, docs/figures.md
+	// §6: the best output sample may be a sidelobe's when a narrow window
+	// weights the centre of a code), by FFT; the best lags' values are then
+	// recomputed as direct sums.
 	in := make([]complex128, nr-1+np+1)
-	copy(in[nr-1:], m.pulse)
-	y := dsp.NewCorrelator(m.ref, len(in)).Apply(nil, in)
-	k0 := 0
-	for i, v := range y {
-		if cmplx.Abs(v) > cmplx.Abs(y[k0]) {
-			k0 = i
+	corr := dsp.NewCorrelator(m.ref, len(in))
+	y := make([]complex128, len(in))
+	x := in[nr-1:] // lag: y[lag+nr-1] = Σ_i x[lag+i]·conj(ref[i])
+	direct := func(lag int) float64 {
+		var s complex128
+		for i, r := range m.ref {
+			if n := lag + i; n >= 0 && n < len(x) {
+				s += x[n] * cmplx.Conj(r)
+			}
 		}
+		return real(s)*real(s) + imag(s)*imag(s)
 	}
-	k0 -= nr - 1 // lag: y[lag] = Σ_i x[lag+i]·conj(ref[i])
-	x := make([]complex128, np+1)
 	maxDB = math.Inf(-1)
 	for j := range straddleSteps {
-		clear(x)
+		clear(in)
 		dsp.AddEcho(x, m.wave, m.fs, float64(j)/straddleSteps/m.fs, 1, 0)
-		best := 0.0
-		for lag := k0 - 2; lag <= k0+3; lag++ {
-			var s complex128
-			for i, r := range m.ref {
-				if n := lag + i; n >= 0 && n < len(x) {
-					s += x[n] * cmplx.Conj(r)
-				}
+		corr.Apply(y, in)
+		kb := 0
+		for i, v := range y {
+			if real(v)*real(v)+imag(v)*imag(v) > real(y[kb])*real(y[kb])+imag(y[kb])*imag(y[kb]) {
+				kb = i
 			}
-			best = math.Max(best, real(s)*real(s)+imag(s)*imag(s))
+		}
+		kb -= nr - 1
+		best := 0.0
+		for lag := kb - 1; lag <= kb+1; lag++ {
+			best = math.Max(best, direct(lag))
 		}
 		snrS := best / (m.fs * m.noiseGain)
 		loss := 10 * math.Log10(snrC/snrS)

@@ -29,6 +29,12 @@ type pdTest struct {
 	// beyond is set for a steady target behind a CFAR whose multiplier
 	// dsp's series does not accept: Pd is then pdBeyond's average.
 	beyond bool
+	// variant, when not CellAveraging, is a greatest-of, smallest-of or
+	// censored CFAR (single pulse): Pd is dsp.VariantPd with alpha the
+	// multiplier on the half-mean (GO, SO; n1 leading and n2 lagging
+	// cells) or on the kept mean (censored; n1 cells, n2 censored).
+	variant dsp.CFARVariant
+	n1, n2  int
 	// memo keeps pd's and requiredSNR's results across evaluations
 	// (pdmemo.go); nil computes them afresh.
 	memo *pdMemo
@@ -68,8 +74,14 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 			}
 			det.OSRank = min(max(det.OSRank, 1), v.cells)
 		}
+	case DetectorGO, DetectorSO, DetectorCens:
+		if train || v.cells == 0 {
+			// On a range–Doppler map the variants' halves are not
+			// modelled here: the threshold decides.
+			return pdTest{}, false
+		}
+		return m.variantTest(det, v)
 	default:
-		// Greatest-of, smallest-of and censored CFARs: no series here yet.
 		return pdTest{}, false
 	}
 	if d.Kind != DetectorFixed && v.cells == 0 {
@@ -89,6 +101,59 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 		t.ev, t.alpha = m.correlatedCells(v.peakK)
 	}
 	return t, true
+}
+
+// variantTest returns the test of a target behind the scene's greatest-of,
+// smallest-of or censored CFAR (docs/detection-probability.md §7): the
+// training cells the plan uses at the target's peak gate (independent by
+// construction, on the ordered statistic's lattice), split into the
+// leading and lagging halves, or counted with the censoring scaled to
+// them as the plan does, and the multiplier that holds Pfa for exactly
+// those cells. A censored CFAR has a Pd for Swerling 1 and 2 targets only
+// (dsp.VariantPd); for others false (the threshold decides).
+func (m *model) variantTest(det dsp.Detector, v verdict) (pdTest, bool) {
+	d := m.s.Receiver.Detector
+	cf := m.detector()
+	offs := cf.Cells(nil, v.peakK, m.n, m.processed)
+	t := pdTest{det: det, snr: v.peak, memo: m.memo, variant: cfarVariant(d.Kind)}
+	t.det.CFARCells = len(offs)
+	switch t.variant {
+	case dsp.GreatestOf, dsp.SmallestOf:
+		for _, o := range offs {
+			if o < 0 {
+				t.n1++
+			} else {
+				t.n2++
+			}
+		}
+		if t.variant == dsp.GreatestOf {
+			t.alpha = dsp.GOMultiplier(d.PFA, t.n1, t.n2)
+		} else {
+			t.alpha = dsp.SOMultiplier(d.PFA, t.n1, t.n2)
+		}
+	case dsp.Censored:
+		if det.Swerling != dsp.Swerling1 && det.Swerling != dsp.Swerling2 {
+			return pdTest{}, false
+		}
+		n := len(offs)
+		c := 0
+		if d.TrainingCells > 0 {
+			c = min(max(int(math.Round(float64(d.CensoredCells)*float64(n)/float64(d.TrainingCells))), 0), n-1)
+		}
+		t.n1, t.n2 = n, c
+		t.alpha = dsp.CensoredMultiplier(d.PFA, n, c)
+	}
+	return t, true
+}
+
+// pdVariant returns the Pd of a variant test at SNR snr against r times
+// its nominal threshold.
+func (t pdTest) pdVariant(snr, r float64) (float64, bool) {
+	p, err := dsp.VariantPd(t.variant, t.det.Swerling, snr, r*t.alpha, t.n1, t.n2)
+	if err != nil || math.IsNaN(p) {
+		return 0, false
+	}
+	return p, true
 }
 
 // correlatedCells returns the eigenvalues of the noise covariance of the
@@ -148,10 +213,14 @@ func (t pdTest) requiredSNR(pd float64) (float64, error) {
 
 // requiredSNRFresh is requiredSNR computed without the memo.
 func (t pdTest) requiredSNRFresh(pd float64) (float64, error) {
-	if t.ev == nil && !t.beyond {
+	if t.ev == nil && !t.beyond && t.variant == dsp.CellAveraging {
 		return t.det.RequiredSNR(pd)
 	}
 	at := func(snr float64) float64 {
+		if t.variant != dsp.CellAveraging {
+			p, _ := t.pdVariant(snr, 1)
+			return p
+		}
 		if t.beyond {
 			p, _ := t.pdBeyond(snr, 1)
 			return p
@@ -163,7 +232,7 @@ func (t pdTest) requiredSNRFresh(pd float64) (float64, error) {
 		return 0, fmt.Errorf("Pd %g needs more than %g dB", pd, hi)
 	}
 	eps := 1e-9
-	if t.beyond {
+	if t.beyond || t.variant != dsp.CellAveraging {
 		eps = 1e-5 // each step integrates: 35 steps
 	}
 	for hi-lo > eps {
@@ -199,10 +268,11 @@ func (t pdTest) logPfaRaised(r float64) float64 {
 // series reaches.
 const pdBelow = 1e-9
 
-// pd returns t's Pd against a threshold raised r ≥ 1 times above the one
+// pd returns t's Pd against a threshold r > 0 times the one
 // the detector sets against noise alone (the scene's extra power in the
-// training cells, or a neighbour's power at the cell). The raised
-// threshold is the nominal one of a detector of smaller Pfa, so Pd is the
+// training cells, or a neighbour's power at the cell; r < 1 where
+// pdInCell rescales the test). The scaled threshold is the nominal one of
+// a detector of another Pfa, so Pd is the
 // exact series at that Pfa. ok is false when the series cannot reach the
 // raised threshold and Pd is not below pdBelow there.
 func (t pdTest) pd(r float64) (float64, bool) {
@@ -211,8 +281,11 @@ func (t pdTest) pd(r float64) (float64, bool) {
 
 // pdFresh is pd computed without the memo.
 func (t pdTest) pdFresh(r float64) (float64, bool) {
-	if !(r >= 1) || math.IsInf(r, 1) {
+	if !(r > 0) || math.IsInf(r, 1) {
 		return 0, false
+	}
+	if t.variant != dsp.CellAveraging {
+		return t.pdVariant(t.snr, r)
 	}
 	if t.beyond {
 		return t.pdBeyond(t.snr, r)
@@ -221,10 +294,10 @@ func (t pdTest) pdFresh(r float64) (float64, bool) {
 		return t.pdCorrelated(t.snr, r), true
 	}
 	d := t.det
-	if d.CFARCells == 0 && r > 1 {
+	if d.CFARCells == 0 && r != 1 {
 		return knownNoisePd(d.Swerling, t.snr, -r*math.Log(d.Pfa)), true
 	}
-	if r > 1 {
+	if r != 1 {
 		lp := t.logPfaRaised(r)
 		d.Pfa = math.Exp(lp)
 		if lp < math.Log(1e-300) || d.Validate() != nil {
@@ -277,6 +350,9 @@ func (m *model) pdFigures(v verdict, alone float64, out *TargetReport) {
 		out.Pd = &p
 	}
 	switch ra := math.Max(alone/v.noiseLevel, 1); {
+	case ra == v.raise && v.inCellUsed:
+		p := v.pdOwn // the same level, without the echoes in its cell
+		out.PdAlone = &p
 	case ra == v.raise && v.sceneOK:
 		p := v.pdScene // nothing else raises its threshold: the same test
 		out.PdAlone = &p

@@ -13,8 +13,9 @@ import (
 // its detector needs for the required Pd (pdTest.requiredSNR) are pure
 // functions of the test's inputs: the dsp detector (Pfa, pulses,
 // integration, Swerling case, CFAR cells and rank), the tested SNR, the
-// raise of the threshold, and for correlated CA-CFAR cells their
-// eigenvalues and multiplier. They are about half of an evaluation, and
+// raise of the threshold, for correlated CA-CFAR cells their
+// eigenvalues and multiplier, and for a greatest-of, smallest-of or
+// censored CFAR its variant, cell counts and multiplier. They are about half of an evaluation, and
 // while a user drags one target almost all of them are the same as in the
 // previous frame (the required SNR does not even depend on the target).
 // An Engine keeps one memo across its evaluations, keyed by exactly those
@@ -34,6 +35,9 @@ type pdKey struct {
 	ev     int32 // the interned eigenvalues (evIDs), −1 for none
 	beyond bool
 	req    bool // a requiredSNR result, not a pd one
+	// the variant CFAR and its cell counts (pdTest.variant)
+	variant dsp.CFARVariant
+	n1, n2  int
 }
 
 // pdVal is a memoised result.
@@ -159,7 +163,8 @@ func (p *pdMemo) store(k pdKey, v pdVal) {
 
 // key returns t's key for arg; the caller holds p.mu.
 func (p *pdMemo) key(t pdTest, snr, arg float64, req bool) pdKey {
-	return pdKey{det: t.det, snr: snr, arg: arg, alpha: t.alpha, ev: p.evID(t.ev), beyond: t.beyond, req: req}
+	return pdKey{det: t.det, snr: snr, arg: arg, alpha: t.alpha, ev: p.evID(t.ev), beyond: t.beyond, req: req,
+		variant: t.variant, n1: t.n1, n2: t.n2}
 }
 
 // pd returns t.pd(r), memoised.

@@ -38,7 +38,7 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		return sc.horizonReason(g)
 	case StatusDetected:
 		if v.rule == rulePd {
-			return fmt.Sprintf("Detected: %s; its peak, %.1f dB above noise, clears the %s threshold by %.1f dB.", sc.pdWords(g, v, tr, true), dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold)) + sc.lossWords(g)
+			return fmt.Sprintf("Detected: %s; its peak, %.1f dB above noise, clears the %s threshold by %.1f dB.", sc.pdWords(g, v, tr, true), dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold)) + inCellWords(v) + sc.lossWords(g)
 		}
 		return fmt.Sprintf("Detected: its peak, %.1f dB above noise, clears the %s threshold by %.1f dB (%s).", dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold), noPdWords(g, m.s.Receiver.Detector)) + sc.lossWords(g)
 	case StatusFolded:
@@ -82,11 +82,19 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		if g.rejected {
 			return fmt.Sprintf("Too weak: its Doppler shift of %s lies outside the receiver's band of ±%s, which rejects its echo entirely.", hz(g.fd), hz(m.fs/2))
 		}
+		if v.cancelled {
+			mti := "two-pulse"
+			if m.s.Receiver.MTI == MTIThreePulse {
+				mti = "three-pulse"
+			}
+			_, p0 := g.resp.peakIn(m.processed)
+			return fmt.Sprintf("Too weak: the %s MTI canceller removes it. At zero Doppler its echo is the same on every pulse, and the canceller's response is zero there, as at every multiple of the PRF (the blind speeds), so none of it reaches the range–Doppler map; in a single pulse its peak is %.1f dB above noise.", mti, dsp.DB(p0))
+		}
 		if math.IsInf(v.noiseLevel, 1) {
 			return fmt.Sprintf("Too weak: its peak is %.1f dB above noise, but the %s has no training cells around it in this receive window, so it cannot detect there; widen the window or use fewer training cells.", dsp.DB(v.peak), det) + sc.lossWords(g)
 		}
 		if v.rule == rulePd {
-			return fmt.Sprintf("Too weak: even against noise alone %s.", sc.pdWords(g, v, tr, false)) + sc.lossWords(g)
+			return fmt.Sprintf("Too weak: even against noise alone %s.", sc.pdWords(g, v, tr, false)) + inCellWords(v) + sc.lossWords(g)
 		}
 		return fmt.Sprintf("Too weak: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone (%s).", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel), noPdWords(g, m.s.Receiver.Detector)) + sc.lossWords(g)
 	}
@@ -132,8 +140,10 @@ func noPdWords(g *tgt, d Detector) string {
 	switch {
 	case g.t.Kind != TargetPoint:
 		return "an extended or volume return has no Pd here, so its noise-free peak against the threshold decides"
+	case d.Kind == DetectorCens && swerling(g.t.Fluctuation) != dsp.Swerling1 && swerling(g.t.Fluctuation) != dsp.Swerling2:
+		return "no Pd form for a steady or Swerling 3/4 target behind the " + detectorName(d) + " here, so the noise-free peak against the threshold decides"
 	case d.Kind == DetectorGO || d.Kind == DetectorSO || d.Kind == DetectorCens:
-		return "no Pd series for the " + detectorName(d) + " yet, so the noise-free peak against the threshold decides"
+		return "no Pd for the " + detectorName(d) + " on a range–Doppler map here, so the noise-free peak against the threshold decides"
 	}
 	return "no closed-form Pd applies here, so the noise-free peak against the threshold decides"
 }
@@ -168,6 +178,10 @@ func (sc *scene) maskedReason(g *tgt, v verdict, tr TargetReport) string {
 		} else if other != nil && other.t.Kind != TargetPoint && g.t.Kind == TargetPoint && g.apparent >= other.t.RangeStartM && g.apparent <= other.t.RangeStopM {
 			what = "clutter in the same cell"
 		}
+		if v.inCellUsed {
+			return fmt.Sprintf("Masked by %s: its %s puts %.1f dB (re noise) into %s's cell, %.1f dB under the %s threshold there; it adds to %s's echo with a carrier phase that changes from look to look (half a wavelength of range turns it through a full cycle), and averaged over that phase %s's Pd falls from %s to %s.",
+				by, what, dsp.DB(v.cell), id, dsp.DB(v.sceneLevel/v.cell), det, id, id, PdText(v.pdOwn), PdText(v.pdScene)) + clipped + sc.maskedPd(v, tr, other == g) + sc.lossWords(g)
+		}
 		if v.cell >= v.peak {
 			return fmt.Sprintf("Masked by %s: its %s puts %.1f dB more power into %s's cell than %s's own peak, which would clear the noise-only threshold by %.1f dB.",
 				by, what, dsp.DB(v.cell/v.peak), id, id, clear) + clipped + sc.maskedPd(v, tr, other == g)
@@ -188,7 +202,22 @@ func (sc *scene) maskedReason(g *tgt, v verdict, tr TargetReport) string {
 			det, cells, lift(v), clear) + sc.maskedPd(v, tr, true) + sc.lossWords(g)
 	}
 	return fmt.Sprintf("Masked by %s through the %s: its echo in the %s lifts the threshold %s %s's peak, which would clear the noise-only threshold by %.1f dB.",
-		by, det, cells, lift(v), id, clear) + clipped + sc.maskedPd(v, tr, false) + sc.lossWords(g)
+		by, det, cells, lift(v), id, clear) + clipped + sc.maskedPd(v, tr, false) + inCellWords(v) + sc.lossWords(g)
+}
+
+// inCellWords says how the echoes in a target's cell, below the
+// threshold, change its Pd (pdcell.go), or "" when they do not matter at
+// the three decimals of the report.
+func inCellWords(v verdict) string {
+	if !v.inCellUsed || math.Abs(v.pdCross-v.pdOwn) < 0.0005 {
+		return ""
+	}
+	if v.pdCross < v.pdOwn {
+		return fmt.Sprintf(" The rest of the scene puts %.1f dB (re noise) into its cell, under the threshold; added with a carrier phase that changes from look to look, it lowers its Pd from %s to %s.",
+			dsp.DB(v.cell), PdText(v.pdOwn), PdText(v.pdCross))
+	}
+	return fmt.Sprintf(" The rest of the scene puts %.1f dB (re noise) into its cell, under the threshold; added with a carrier phase that changes from look to look, it makes the cell cross with Pd %s, but the status credits the target only with its own %s.",
+		dsp.DB(v.cell), PdText(v.pdCross), PdText(v.pdOwn))
 }
 
 // lift says where the scene's threshold sits against a masked target's
@@ -411,7 +440,7 @@ func candidates(s *Scenario, j int, v verdict) []candidate {
 			// clutter (Hansen & Sawyers 1980; Weiss 1982). It trains on
 			// independent cells, so it may need a wider window to keep
 			// enough of them.
-			cf = append([]candidate{smallestOf(d, 1, edge), smallestOf(d, 2, edge), smallestOf(d, 4, edge)}, cf...)
+			cf = append([]candidate{smallestOf(d, 1, edge), smallestOf(d, 2, edge), smallestOf(d, 4, edge), smallestOf(d, 8, edge), smallestOf(d, 16, edge)}, cf...)
 		}
 		return append(cf, c...)
 	}

@@ -155,3 +155,17 @@ type Response struct {
 	RangeM []float64 // m, negative before the peak
 	DB     []float64 // dB re peak, floored at −120 dB
 }
+
+// MaskedByWords is what follows a status in a table: " by ID" for a
+// target masked by another, " by its own sidelobes" for one whose own
+// response masks it (masked_by equal to its own id), and nothing when
+// maskedBy is empty.
+func MaskedByWords(id, maskedBy string) string {
+	switch maskedBy {
+	case "":
+		return ""
+	case id:
+		return " by its own sidelobes"
+	}
+	return " by " + maskedBy
+}

@@ -21,6 +21,7 @@ type verdict struct {
 	cells      int     // training cells used at the peak cell
 	unblanked  float64 // the peak of its echo without blanking (same units as peak), 0 when not blanked
 	alone      float64 // detector threshold with only the target itself in its training cells
+	cancelled  bool    // a range–Doppler map with no power of it, its echo on processed gates: the MTI canceller removed it (zero Doppler)
 
 	// Probabilities of detection (docs/detection.md §6), set by decide
 	// when a closed form applies (hasPd).
@@ -30,7 +31,19 @@ type verdict struct {
 	pdScene float64 // Pd against the scene's threshold at the cell; valid when sceneOK
 	sceneOK bool
 	raise   float64 // the scene's threshold over the noise-only one (≥ 1)
-	rule    string  // "pd" or "threshold": what decided a detected, masked, too_weak or eclipsed-by-loss status
+
+	// Echoes sharing the tested cell (pdcell.go): what the rest of the
+	// scene puts into it, each with its law. Where that power lies below
+	// the detector's level (inCellApplies), pdScene (= pdCross) is the Pd
+	// of the sum over uniform phases, pdOwn the target's Pd against the
+	// same level without them, and the status is decided on the smaller
+	// of the two (echoes that make the cell cross more often are not
+	// credited to the target); inCellUsed says so.
+	inCell     []dsp.CellEcho
+	pdOwn      float64
+	pdCross    float64 // the probability that the cell crosses, echoes in it included
+	inCellUsed bool
+	rule       string // "pd" or "threshold": what decided a detected, masked, too_weak or eclipsed-by-loss status
 }
 
 // Rules that decide a status (TargetReport.DecidedOn).
@@ -116,6 +129,8 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 		v.alone = sc.level(cf, v.peakK, g.resp.at)
 		v.cell = others(v.peakK)
 		v.threshold = math.Max(v.sceneLevel, v.cell)
+		v.inCell = sc.cellEchoes(j, v.cell, func(i int) float64 { return sc.targets[i].resp.at(v.peakK) },
+			func(i int) float64 { return sc.extras[i].resp.at(v.peakK) })
 	}
 	if sc.decide(g, &v, false) == StatusMasked {
 		v.culprit, v.cause = sc.culprit(j, v, cf)
@@ -130,7 +145,8 @@ func (sc *scene) judge(j int, cf *dsp.CFAR) verdict {
 //
 // Window and blanking come first (out_of_window, folded, wholly
 // eclipsed). Then, where a closed form gives the target's Pd (a point
-// target behind a fixed, CA or OS detector; v.hasPd), the status is
+// target behind a fixed, CA, OS, GO or SO detector, or a censored one for
+// Swerling 1/2; v.hasPd), the status is
 // decided on Pd at detector.pd_required: detected when Pd in the scene
 // reaches it; eclipsed when blanking cost it and the unblanked echo would
 // reach it against noise alone; too_weak when even against noise alone
@@ -150,7 +166,7 @@ func (sc *scene) decide(g *tgt, v *verdict, train bool) string {
 		v.rule = rulePd
 		detected := v.peak >= v.threshold // beyond the series: the threshold decides
 		if v.sceneOK {
-			detected = v.pdScene >= req
+			detected = v.pdStatus() >= req
 		}
 		switch {
 		case detected:
@@ -161,7 +177,10 @@ func (sc *scene) decide(g *tgt, v *verdict, train bool) string {
 			v.status = StatusTooWeak
 		default:
 			v.status = StatusMasked
-			v.byCell = v.cell >= v.sceneLevel
+			// By its cell when the neighbours' power there decides: above
+			// the detector's level, or below it but adding to the echo
+			// lowers a Pd that the raised level alone would leave.
+			v.byCell = v.cell >= v.sceneLevel || (v.inCellUsed && v.pdOwn >= req && v.pdCross < req)
 		}
 		return v.status
 	}
@@ -173,9 +192,20 @@ func (sc *scene) decide(g *tgt, v *verdict, train bool) string {
 	return v.status
 }
 
+// pdStatus is the Pd the status is decided on: Pd in the scene, or with
+// echoes in the cell the smaller of the cell's crossing probability and
+// the target's own Pd without them.
+func (v *verdict) pdStatus() float64 {
+	if v.inCellUsed {
+		return math.Min(v.pdCross, v.pdOwn)
+	}
+	return v.pdScene
+}
+
 // windowStatus returns the status that the receive window and blanking
-// decide before any detector does (out_of_window, folded, eclipsed
-// wholly, too_weak for an echo the receiver's band rejects), or "".
+// decide before any detector does (out_of_window, folded, too_weak for
+// an echo the MTI canceller removes, eclipsed wholly, too_weak for an
+// echo the receiver's band rejects), or "".
 func (sc *scene) windowStatus(g *tgt, v *verdict) string {
 	switch {
 	case g.hidden:
@@ -184,6 +214,8 @@ func (sc *scene) windowStatus(g *tgt, v *verdict) string {
 		return StatusOutOfWindow
 	case g.t.Kind == TargetPoint && g.folds > 0:
 		return StatusFolded // its apparent range is inside the window
+	case v.cancelled && (v.peakK < 0 || v.peak <= 0):
+		return StatusTooWeak // the MTI canceller removes it: a blind speed, zero Doppler itself
 	case g.t.Kind == TargetPoint && g.blankTouched && (g.received <= 0 || v.peakK < 0 || v.peak <= 0):
 		return StatusEclipsed // wholly eclipsed
 	case g.t.Kind != TargetPoint && sc.inBlind(g):
@@ -227,6 +259,21 @@ func (sc *scene) probabilities(g *tgt, v *verdict, train bool) {
 	}
 	v.hasPd, v.test, v.pdNoise = true, t, pn
 	v.raise = math.Max(v.threshold/v.noiseLevel, 1)
+	if v.inCellApplies() {
+		// The neighbours' power in the cell adds to the echo (pdcell.go);
+		// the threshold is the detector's level with the scene in its
+		// training cells.
+		own := pn
+		if v.raise != 1 {
+			own, ok = t.pd(v.raise)
+		}
+		if ok {
+			if p, ok2 := t.pdInCell(v.inCell, v.raise); ok2 {
+				v.pdScene, v.pdOwn, v.pdCross, v.sceneOK, v.inCellUsed = p, own, p, true, true
+				return
+			}
+		}
+	}
 	if v.raise == 1 {
 		v.pdScene, v.sceneOK = pn, true // the series is costly for strong targets: once
 		return

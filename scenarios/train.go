@@ -277,6 +277,8 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 		v.sceneLevel = tr.level(cf, k, d, func(kk, dd int) float64 { return others(kk, dd) + own(kk, dd) })
 		v.cell = others(k, d)
 		v.threshold = math.Max(v.sceneLevel, v.cell)
+		v.inCell = sc.cellEchoes(j, v.cell, func(i int) float64 { return tr.power(i, k, d) },
+			func(i int) float64 { return tr.extraPower(i, k, d) })
 		v.alone = tr.level(cf, k, d, func(kk, dd int) float64 { return tr.power(j, kk, dd) })
 		if cf != nil {
 			v.cells = len(cf.Cells(tr.valid, k, d, tr.m.n, tr.plan.Bins()))
@@ -291,13 +293,21 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 			v.cell /= nz
 			v.threshold /= nz
 			v.alone /= nz
+			for i := range v.inCell { // the echoes in its cell alike
+				v.inCell[i].Power /= nz
+			}
 		}
 	}
 	// The eclipsing loss scales the target's map power as its range power.
 	pu := g.unblankedPeak
-	if _, p0 := g.resp.peakIn(tr.m.processed); p0 > 0 && k >= 0 {
+	_, p0 := g.resp.peakIn(tr.m.processed)
+	if p0 > 0 && k >= 0 {
 		pu *= v.peak / p0
 	}
+	// Its echo reaches processed gates but the map holds none of it: the
+	// MTI canceller removed it (zero Doppler exactly; docs/detection.md §6).
+	v.cancelled = tr.m.s.Receiver.MTI != MTINone && g.t.Kind == TargetPoint && !g.rejected &&
+		p0 > 0 && g.received > 0 && (k < 0 || v.peak <= 0)
 	v.unblanked = pu
 	if sc.decide(g, &v, true) == StatusMasked {
 		best := 0.0

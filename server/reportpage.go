@@ -160,9 +160,7 @@ func targetRows(r *scenarios.Report) []targetRow {
 				row.Pd += " (alone " + scenarios.PdText(*t.PdAlone) + ")"
 			}
 		}
-		if t.MaskedBy != "" {
-			row.Status += " by " + t.MaskedBy
-		}
+		row.Status += scenarios.MaskedByWords(t.ID, t.MaskedBy)
 		if t.MarginDB != nil {
 			row.Margin = fixed(*t.MarginDB, 1)
 			if row.Margin != "0.0" && !strings.HasPrefix(row.Margin, "-") {

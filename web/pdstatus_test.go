@@ -11,7 +11,7 @@ import (
 )
 
 // Statuses on Pd, on the page: the harbour skiff's card shows its Pd
-// with its Pd alone (masked by the tanker: Pd 0.004, > 0.999 alone), the
+// with its Pd alone (masked by the tanker: Pd 0.025, > 0.999 alone), the
 // pilot boat's its Pd 0.722 (masked by its own sidelobes, so no other
 // "alone"), their dots have the masked shape, and lowering the required Pd in the detector form with
 // real key presses to 0.7 makes it detected. Then the long-pulse-blind
@@ -24,7 +24,7 @@ func TestPdOnCardsAndRequiredPd(t *testing.T) {
 	waitFor(t, ctx, "the pilot boat masked", jsTarget+`('pilot-boat').status === 'masked'`)
 	card := `document.querySelector('.tcard[data-target="pilot-boat"]')`
 	waitFor(t, ctx, "the pilot boat's card", card+` && `+card+`.textContent.includes('Pd 0.722')`)
-	if txt := eval[string](t, ctx, `document.querySelector('.tcard[data-target="skiff"] .pd').textContent`); txt != "Pd 0.004 (alone > 0.999)" {
+	if txt := eval[string](t, ctx, `document.querySelector('.tcard[data-target="skiff"] .pd').textContent`); txt != "Pd 0.025 (alone > 0.999)" {
 		t.Errorf("skiff's Pd on its card: %q", txt)
 	}
 	if txt := eval[string](t, ctx, card+`.querySelector('.tcard-head').textContent`); !strings.Contains(txt, "masked") {
@@ -38,7 +38,7 @@ func TestPdOnCardsAndRequiredPd(t *testing.T) {
 	waitFor(t, ctx, "the pilot boat detected at Pd 0.7", jsTarget+`('pilot-boat').status === 'detected' && window.__pw.store.scenario.receiver.detector.pd_required === 0.7`)
 	waitFor(t, ctx, "its card follows", card+`.classList.contains('st-detected') && `+card+`.textContent.includes('Pd 0.722')`)
 	if st := eval[string](t, ctx, jsTarget+`('skiff').status`); st != "masked" {
-		t.Errorf("skiff %s at Pd 0.7, want still masked (Pd 0.004)", st)
+		t.Errorf("skiff %s at Pd 0.7, want still masked (Pd 0.025)", st)
 	}
 	shot(t, ctx, "pd-required")
 	eval[bool](t, ctx, `(() => { `+card+`.scrollIntoView({block: 'center'}); return true; })()`)

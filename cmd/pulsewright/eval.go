@@ -96,9 +96,7 @@ func writeReportTextIn(w io.Writer, r *scenarios.Report, u scenarios.Units, type
 			margin = fx(*t.MarginDB, 1)
 		}
 		status := t.Status
-		if t.MaskedBy != "" {
-			status += " by " + t.MaskedBy
-		}
+		status += scenarios.MaskedByWords(t.ID, t.MaskedBy)
 		fmt.Fprintf(tw, "%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t%s\t\n", t.ID, u.Number(scenarios.QRange, t.RangeM, 1), fx(t.SNRDB, 1), fx(t.DopplerHz, 0), fx(t.DopplerLossDB, 2), u.Number(scenarios.QRange, t.RangeShiftM, 2), pd, margin, thrMargin, status)
 	}
 	tw.Flush()

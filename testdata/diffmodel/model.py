@@ -1089,6 +1089,33 @@ def pd_corr(chi, pfa, lam, r=1.0):
         return min(max(float(out), 0.0), 1.0)
 
 
+def pd_in_cell(pdf, phasors, r):
+    """docs/detection-probability.md §7, "Echoes sharing the tested cell":
+    the cell holds the target's and the other echoes' steady phasors (the
+    model's targets are all steady) with independent uniform carrier
+    phases, plus unit noise, against r times the nominal threshold. The
+    strongest phasor is the phase reference; at most two relative phases
+    are integrated (the weaker phasors beyond are Gaussian of their power:
+    noise of power v = 1 + their sum, and the steady part tested at
+    |sum|^2/v against the threshold scaled by 1/v). The phases by
+    scipy.integrate.quad over [0, pi] (the integrand is even in each)."""
+    ph = sorted((p for p in phasors if p > 0), reverse=True)
+    v = 1.0 + sum(ph[3:])
+    amps = [math.sqrt(p) for p in ph[:3]]
+    f = lambda a2: pdf(a2 / v, r / v)
+    if len(amps) == 1:
+        return f(amps[0] ** 2)
+
+    def over(i, z):
+        if i == len(amps):
+            return f(abs(z) ** 2)
+        g = lambda th: over(i + 1, z + amps[i] * complex(math.cos(th), math.sin(th)))
+        val, _ = integrate.quad(g, 0, math.pi, epsabs=1e-10, epsrel=1e-10, limit=200)
+        return val / math.pi
+
+    return over(1, complex(amps[0], 0))
+
+
 def required_snr(pd_of, req):
     """SNR (linear) at which pd_of(chi) = req (brentq on dB), or None
     beyond 200 dB."""
@@ -1316,10 +1343,21 @@ def scene(sc):
         infold = d["folds"] > 0 and ws <= d["Ra"] <= we
         rule = None
         pd_noise = pd_scene = None
+        in_cell = False
+        pd_status = None
         if pdf is not None:
             rr = max(T / Lnoise, 1.0)
             pd_noise = pdf(Pstar)
             pd_scene = pdf(Pstar, rr) if sceneok(rr) else None
+            if 0 < Cc < Lk and math.isfinite(Lk) and sceneok(rr):
+                # the others' power in the cell, under the level, adds to
+                # the echo (detection-probability.md §7): pd = the crossing
+                # probability of the sum; the status is decided on the
+                # smaller of it and the target's own Pd
+                pd_own = pd_scene
+                pd_scene = pd_in_cell(pdf, [Pstar] + [e["P"][k] for i, e in enumerate(targets) if i != j], rr)
+                pd_status = min(pd_scene, pd_own)
+                in_cell = pd_own >= req and pd_scene < req
         if not (ws <= d["Ra"] <= we):
             st = "out_of_window"
         elif infold:
@@ -1332,7 +1370,9 @@ def scene(sc):
             st = "out_of_window"
         elif pdf is not None:
             rule = "pd"
-            detected = pd_scene >= req if pd_scene is not None else Pstar >= T
+            if pd_status is None:
+                pd_status = pd_scene
+            detected = pd_status >= req if pd_status is not None else Pstar >= T
             if detected:
                 st = "detected"
             elif touched and d["Pustar"] > 0 and pdf(d["Pustar"]) >= req:
@@ -1352,7 +1392,8 @@ def scene(sc):
             else:
                 st = "masked"
         if st == "masked":
-            if Cc >= Lk:
+            by_cell = Cc >= Lk or in_cell
+            if by_cell:
                 contrib = [e["P"][k] if i != j else -1 for i, e in enumerate(targets)]
             else:
                 o = np.array(offs) + k
@@ -1360,7 +1401,7 @@ def scene(sc):
             best = int(np.argmax(contrib))
             if contrib[best] > 0:
                 rec["masked_by"] = targets[best]["t"]["id"]
-            rec["_masked_via"] = "cell" if Cc >= Lk else "cfar"
+            rec["_masked_via"] = "cell" if by_cell else "cfar"
         rec["status"] = st
         if rule is not None:
             rec["decided_on"] = rule

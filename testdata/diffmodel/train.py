@@ -308,6 +308,7 @@ def train_scene(sc, cpi=False):
 
     out = []
     req = det["pd_required"]
+    mti_on = rx.get("mti", "none") != "none"
     for j, o in enumerate(objs):
         t = o["t"]
         k, d = o["k"], o["d"]
@@ -363,6 +364,8 @@ def train_scene(sc, cpi=False):
         inwin = ws <= o["Ra"] <= we
         rule = None
         pd_noise = pd_scene = None
+        pd_status = None
+        in_cell = False
         if pdf is not None:
             rr_ = max(T / Lnoise, 1.0)
             pd_noise = pdf(chi)
@@ -374,17 +377,60 @@ def train_scene(sc, cpi=False):
                 # beyond the series' reach a fluctuating target's Pd in
                 # the scene is left out and P >= T decides (detection.md §6)
                 pd_scene = None
+            if pd_scene is not None and 0 < Cc < Lk and math.isfinite(Lk):
+                # the others' power in the cell, under the level, adds to
+                # the echo (detection-probability.md §7, "Echoes sharing
+                # the tested cell"): pd is the crossing probability of the
+                # sum over uniform phases, steady echoes as phasors and
+                # Swerling 1 ones as Gaussian (their powers widen the
+                # noise); the status is decided on the smaller of it and
+                # the target's own Pd
+                steady_pdf = None
+                if kind == "fixed":
+                    steady_pdf = lambda x, r: model.pd_fixed(x, pfa, r)
+                elif kind == "ca_cfar":
+                    steady_pdf = lambda x, r, Mc=len(cs): model.pd_ca(x, pfa, Mc, r)
+                elif kind == "os_cfar":
+                    steady_pdf = lambda x, r, Nc=len(cs), kk=os_rank(len(cs)): model.pd_os(x, pfa, Nc, kk, r)
+                steady, gauss = [], 0.0
+                for i, q in enumerate(objs):
+                    pw = chi if i == j else q["P"][k] * q["g"][d] / Nd[d]
+                    if pw <= 0:
+                        continue
+                    if q["t"].get("fluctuation", "none") == "swerling1":
+                        gauss += pw
+                    else:
+                        steady.append(pw)
+                if steady_pdf is not None:
+                    vg = 1.0 + gauss
+                    pd_own = pd_scene
+                    if steady:
+                        # the Gaussian part scales the steady powers and the
+                        # threshold by 1/vg (pd_in_cell adds its own weak
+                        # phasors to vg·v)
+                        pd_scene = model.pd_in_cell(steady_pdf, [x / vg for x in steady], rr_ / vg)
+                    else:
+                        pd_scene = steady_pdf(0.0, rr_ / vg)
+                    pd_status = min(pd_scene, pd_own)
+                    in_cell = pd_own >= req and pd_scene < req
+            if pd_status is None:
+                pd_status = pd_scene
         if not inwin:
             st = "out_of_window"
         elif o["folds"] > 0 and not cpi:
             st = "folded"
+        elif mti_on and Pmap <= 0 and o["Pstar"] > 0 and o["nb"] < o["nin"]:
+            # its echo reaches processed gates but the MTI canceller leaves
+            # none of it on the map (zero Doppler): too_weak, decided before
+            # any detector, no Pd figures (detection.md §6 step 3)
+            st = "too_weak"
         elif touched and (o["nb"] == o["nin"] or Pmap == 0):  # on the map: no cell holds its power
             st = "eclipsed"
         elif Pmap <= 0:
             st = "out_of_window"
         elif pdf is not None:
             rule = "pd"
-            if (pd_scene >= req) if pd_scene is not None else (Pmap >= T):
+            if (pd_status >= req) if pd_status is not None else (Pmap >= T):
                 st = "detected"
             elif touched and chiu > 0 and pdf(chiu) >= req:
                 st = "eclipsed"
@@ -402,8 +448,9 @@ def train_scene(sc, cpi=False):
                 st = "too_weak"
             else:
                 st = "masked"
+        by_cell = Cc >= Lk or in_cell
         if st == "masked":
-            if Cc >= Lk:
+            if by_cell:
                 contrib = [q["P"][k] * q["g"][d] if i != j else -1 for i, q in enumerate(objs)]
             else:
                 kk_ = np.array([k + a for a, b in cs])
@@ -412,7 +459,7 @@ def train_scene(sc, cpi=False):
             best = int(np.argmax(contrib))
             if contrib[best] > 0:
                 rec["masked_by"] = objs[best]["t"]["id"]
-            rec["_masked_via"] = "cell" if Cc >= Lk else "cfar"
+            rec["_masked_via"] = "cell" if by_cell else "cfar"
         rec["status"] = st
         if rule is not None:
             rec["decided_on"] = rule

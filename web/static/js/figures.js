@@ -87,7 +87,7 @@ export function renderFigures(root, report, reference, computeMs) {
         t.detection_range_m !== undefined ? h('span', { class: 'detrange', title: DetectionRangeHelp }, `detection range ${wholeMetres(t.detection_range_m)}`) : null,
         t.threshold_margin_db !== undefined ? h('span', { title: ThresholdHelp }, `over threshold ${t.threshold_margin_db >= 0 ? '+' : ''}${fmt(t.threshold_margin_db)} dB`) : null,
         t.snr_integrated_db !== undefined ? h('span', { title: IntegratedHelp }, `integrated ${fmt(t.snr_integrated_db)} dB`) : null,
-        t.masked_by ? h('span', {}, `masked by ${t.masked_by}`) : null,
+        t.masked_by ? h('span', {}, t.masked_by === t.id ? 'masked by its own sidelobes' : `masked by ${t.masked_by}`) : null,
         t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null,
         t.doppler_hz ? h('span', { class: 'dop', title: 'Doppler shift of the echo, and the shift of its compressed peak in range (range–Doppler coupling)' },
           `Doppler ${t.doppler_hz > 0 ? '+' : ''}${eng(t.doppler_hz, 'Hz')} · peak shift ${t.range_shift_m > 0 ? '+' : ''}${format('range', t.range_shift_m, 2)}`) : null,

@@ -367,7 +367,7 @@ function hoverCard(hit) {
   nums.className = 'hc-nums';
   nums.textContent = (t.pd !== undefined ? `${t.status === 'folded' ? 'ghost Pd' : 'Pd'} ${pdText(t.pd)}${t.status === 'masked' && t.pd_alone !== undefined ? ` (alone ${pdText(t.pd_alone)})` : ''} · ` : '')
     + `SNR ${t.snr_db.toFixed(1)} dB` + (t.margin_db !== undefined ? ` · margin ${t.margin_db.toFixed(1)} dB` : '')
-    + (t.masked_by ? ` · masked by ${t.masked_by}` : '');
+    + (t.masked_by ? (t.masked_by === t.id ? ' · masked by its own sidelobes' : ` · masked by ${t.masked_by}`) : '');
   const reason = document.createElement('div');
   reason.textContent = restate(t.reason);
   const tip = document.createElement('div');
