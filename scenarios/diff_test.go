@@ -173,6 +173,26 @@ type worst struct {
 	name  string
 }
 
+// readKnownDiffs reads a list of known differences (known.json,
+// known_train.json) into a map keyed "case/field"; a missing file is an
+// empty list.
+func readKnownDiffs(t *testing.T, path string) map[string]string {
+	t.Helper()
+	known := map[string]string{}
+	kd, err := os.ReadFile(path)
+	if err != nil {
+		return known
+	}
+	var list []knownDiff
+	if err := json.Unmarshal(kd, &list); err != nil {
+		t.Fatalf("parse %s: %v", path, err)
+	}
+	for _, k := range list {
+		known[k.Case+"/"+k.Field] = k.Reason
+	}
+	return known
+}
+
 func TestDiffModel(t *testing.T) {
 	data, err := os.ReadFile("../testdata/diffmodel/cases.json")
 	if err != nil {
@@ -185,16 +205,7 @@ func TestDiffModel(t *testing.T) {
 	if len(file.Cases) < 500 {
 		t.Fatalf("%d cases; gen.py writes at least 500", len(file.Cases))
 	}
-	known := map[string]string{}
-	if kd, err := os.ReadFile("../testdata/diffmodel/known.json"); err == nil {
-		var list []knownDiff
-		if err := json.Unmarshal(kd, &list); err != nil {
-			t.Fatalf("parse known.json: %v", err)
-		}
-		for _, k := range list {
-			known[k.Case+"/"+k.Field] = k.Reason
-		}
-	}
+	known := readKnownDiffs(t, "../testdata/diffmodel/known.json")
 	// DIFF_DUMP=FILE writes the engine's reports (one JSON object per
 	// case, keyed by name) for study next to the model's expectations.
 	dump := map[string]json.RawMessage{}

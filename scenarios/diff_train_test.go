@@ -81,16 +81,7 @@ func TestDiffModelTrain(t *testing.T) {
 	if len(file.Cases) < 290 {
 		t.Fatalf("%d train cases; train.py writes 300", len(file.Cases))
 	}
-	known := map[string]string{}
-	if kd, err := os.ReadFile("../testdata/diffmodel/known_train.json"); err == nil {
-		var list []knownDiff
-		if err := json.Unmarshal(kd, &list); err != nil {
-			t.Fatalf("parse known_train.json: %v", err)
-		}
-		for _, k := range list {
-			known[k.Case+"/"+k.Field] = k.Reason
-		}
-	}
+	known := readKnownDiffs(t, "../testdata/diffmodel/known_train.json")
 	seenKnown := map[string]bool{}
 	var failures []string
 	var current []map[string]string
