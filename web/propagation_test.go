@@ -31,7 +31,9 @@ func TestSeaStateAndAirOnPage(t *testing.T) {
 	}
 	shot(t, ctx, "sea-error")
 	typeInto(t, ctx, `input[data-path="targets[0].range_stop_m"]`, "10000")
-	waitFor(t, ctx, "the sea evaluated", jsTarget+`('sea') && `+jsTarget+`('sea').grazing_deg > 0 && `+jsTarget+`('sea').sigma0_db !== undefined`)
+	// Typing sends a frame per key (1, 10, 100, …); read σ⁰ from the
+	// frame of the whole value only, settled.
+	waitFor(t, ctx, "the sea evaluated", fresh+` && window.__pw.store.scenario.targets[0].range_stop_m === 10000 && `+jsTarget+`('sea') && `+jsTarget+`('sea').grazing_deg > 0 && `+jsTarget+`('sea').sigma0_db !== undefined`)
 	waitFor(t, ctx, "the sea's card with σ⁰ and ψ", `(() => { const c = document.querySelector('.tcard[data-target="sea"]'); return !!c && c.textContent.includes('σ⁰') && c.textContent.includes('ψ'); })()`)
 	h := eval[float64](t, ctx, jsTarget+`('sea').sigma0_db`)
 	setSelect(t, ctx, `select[data-path="targets[0].polarisation"]`, "vertical")
