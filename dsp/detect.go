@@ -88,6 +88,18 @@ type CFAR struct {
 	Variant CFARVariant
 	Censor  int // Censored: largest training cells dropped, of Train (scaled to the cells used)
 
+	// Pulses, when > 1, says that every cell of the profile is the sum
+	// (or the mean: the law is scale-free) of Pulses square-law detected
+	// pulses of independent noise (non-coherent integration), a
+	// Gamma(Pulses) variable under noise alone. Cell averaging then
+	// trains on the lattice of independent cells DecorrelationSpacing of
+	// Rho apart, like an ordered statistic, and its multiplier on their
+	// mean is Detector{Pulses, NonCoherent, CFARCells}.Threshold(): the
+	// exact Pfa = I_{1/(1+α/M)}(M·Pulses, Pulses) for M independent
+	// cells. Only cell averaging (Rank 0, Variant CellAveraging) is
+	// defined; 0 or 1 is one pulse.
+	Pulses int
+
 	vc   variantCache
 	lead []bool
 
@@ -111,7 +123,9 @@ func (c *CFAR) Multiplier(n int) float64 {
 		return a
 	}
 	var a float64
-	if c.Rank == 0 {
+	if c.Pulses > 1 {
+		a = Detector{Pfa: c.PFA, Pulses: c.Pulses, Integration: NonCoherent, CFARCells: n}.integratedMultiplier()
+	} else if c.Rank == 0 {
 		a = CAMultiplier(c.PFA, n)
 	} else {
 		a = OSMultiplier(c.PFA, n, c.rank(n))
@@ -124,7 +138,7 @@ func (c *CFAR) Multiplier(n int) float64 {
 // uses: 1 for cell averaging or independent cells, otherwise
 // DecorrelationSpacing of Rho over the training span.
 func (c *CFAR) Spacing() int {
-	if c.Rank == 0 && c.Variant == CellAveraging || c.Rho == nil {
+	if c.Rank == 0 && c.Variant == CellAveraging && c.Pulses <= 1 || c.Rho == nil {
 		return 1
 	}
 	if c.step == 0 {
@@ -136,7 +150,7 @@ func (c *CFAR) Spacing() int {
 // multiplierFor returns the multiplier for the training offsets offs
 // (relative to the cell under test).
 func (c *CFAR) multiplierFor(offs []int) float64 {
-	if c.Rho == nil || c.Rank != 0 {
+	if c.Rho == nil || c.Rank != 0 || c.Pulses > 1 {
 		return c.Multiplier(len(offs))
 	}
 	c.key = c.key[:0]
@@ -256,7 +270,7 @@ func (c *CFAR) ThresholdsValid(dst, power []float64, valid []bool) []float64 {
 	if len(dst) != n || valid != nil && len(valid) != n {
 		panic("dsp: CFAR destination length mismatch")
 	}
-	if c.Rank != 0 || c.Variant != CellAveraging {
+	if c.Rank != 0 || c.Variant != CellAveraging || c.Pulses > 1 && c.Spacing() > 1 {
 		for k := range power {
 			dst[k] = c.LevelValid(power, valid, k)
 		}

@@ -211,6 +211,16 @@ func (d Detector) Threshold() float64 {
 	return float64(d.CFARCells) * cfarSumMultiplier(d.Pfa, n, float64(d.CFARCells))
 }
 
+// integratedMultiplier is Threshold for a valid cell-averaging d, and
+// +Inf when d's CFARCells are too few for its Pfa (Validate refuses it):
+// no threshold the reference cells could set holds Pfa then.
+func (d Detector) integratedMultiplier() float64 {
+	if d.Validate() != nil {
+		return math.Inf(1)
+	}
+	return d.Threshold()
+}
+
 // GammaThreshold returns T > 0 with Q(n, T) = pfa, where Q is the upper
 // regularized incomplete gamma function: the threshold, in units of the
 // noise power of one pulse, on the sum of n square-law detected pulses of

@@ -183,6 +183,7 @@ func canonicalReceiver(r Receiver) ordered {
 		o = append(o, member{"doppler_window", canonicalWindow(r.DopplerWindow)})
 	}
 	o.put("mti", r.MTI, d.MTI)
+	o.put("integration", r.Integration, d.Integration)
 	return o
 }
 

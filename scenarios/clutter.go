@@ -335,7 +335,7 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 			if j < 0 || !sc.targets[j].t.IsClutter() {
 				continue
 			}
-			level := dsp.FixedMultiplier(m.s.Receiver.Detector.PFA)
+			level := m.fixedLevel()
 			if cf != nil {
 				if th == nil {
 					p := make([]float64, m.n)
@@ -622,6 +622,8 @@ func (sc *scene) falseAlarms() *FalseAlarms {
 			return cov[i][j] / complex(math.Sqrt(real(cov[i][i])*real(cov[j][j])), 0)
 		})
 		fa.LookS *= float64(r.Pulses)
+	} else if m.s.NonCoherent() {
+		fa.LookS *= float64(r.Pulses) // one test per gate per integrated train
 	}
 	fa.IndependentCells = math.Min(fa.IndependentCells, float64(fa.TestedCells))
 	fa.CellsPerS = fa.IndependentCells / fa.LookS

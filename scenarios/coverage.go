@@ -199,7 +199,7 @@ func rangePoint(ctx context.Context, s *Scenario, j int, rangeM float64, prev *m
 		return RangePoint{}, nil, err
 	}
 	focus := j
-	if t.Radar.Pulses > 1 {
+	if t.CoherentTrain() {
 		focus = -1
 	}
 	sc, err := newSceneFor(ctx, m, focus)

@@ -16,7 +16,7 @@ import (
 // scheduleBudget bounds the changed scenarios evaluated per report for
 // these suggestions: each costs a scene per CPI.
 func scheduleBudget(m *model) int {
-	if m.s.Radar.Schedule != nil || m.n*m.s.Radar.Pulses > 1<<21 || len(m.s.Targets) > 16 {
+	if m.s.Radar.Schedule != nil || m.s.NonCoherent() || m.n*m.s.Radar.Pulses > 1<<21 || len(m.s.Targets) > 16 {
 		return 0
 	}
 	return 4

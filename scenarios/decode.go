@@ -119,6 +119,7 @@ func defaultReceiver() Receiver {
 		Detector:           defaultDetector(DetectorCA),
 		DopplerWindow:      Window{Kind: WindowHann},
 		MTI:                MTINone,
+		Integration:        IntegrationCoherent,
 	}
 }
 

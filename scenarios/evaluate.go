@@ -97,6 +97,7 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	res.Report.FalseAlarms, res.Report.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	res.Report.Warnings = append([]string{}, m.warnings...)
 	res.Report.Stagger = staggerReport(s)
+	res.Report.Integration = integrationReport(s)
 	res.Report.Scan = scanReport(s)
 	if s.Radar.Schedule != nil {
 		if res.Report.Schedule, err = evalSchedule(ctx, s, m); err != nil {
@@ -135,6 +136,7 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	rep.FalseAlarms, rep.Clutter = sc.falseAlarms(), sc.clutterSummary(sc.clutter)
 	rep.Warnings = append([]string{}, m.warnings...)
 	rep.Stagger = staggerReport(s)
+	rep.Integration = integrationReport(s)
 	rep.Scan = scanReport(s)
 	if s.Radar.Schedule != nil {
 		if rep.Schedule, err = evalSchedule(ctx, s, m); err != nil {
@@ -178,7 +180,7 @@ func (m *model) waveformReport() WaveformReport {
 		pslr, islr := fig.PSLRDB, fig.ISLRDB
 		rep.PSLRDB, rep.ISLRDB = &pslr, &islr
 	}
-	if r.Pulses > 1 {
+	if m.s.CoherentTrain() {
 		dres := 1 / (float64(r.Pulses) * r.slowPRI())
 		vres := dres * m.lambda / 2
 		rep.DopplerResolutionHz, rep.VelocityResolutionMPS = &dres, &vres
@@ -375,6 +377,9 @@ func (sc *scene) window(workers int) Series {
 // directly (no round trip through dB).
 func (sc *scene) windowPower(workers int, x, y []complex128, p []float64) []complex128 {
 	m := sc.m
+	if m.s.NonCoherent() {
+		return sc.nciPower(workers, x, y, p) // every pulse of the train, integrated
+	}
 	clear(x)
 	echo := x[m.lead:]
 	for _, g := range sc.targets {
@@ -432,7 +437,7 @@ func (sc *scene) levels(s *Series) {
 		}
 		dsp.PowersDB(th, th, dbFloor)
 	} else {
-		t := toDB(dsp.FixedMultiplier(m.s.Receiver.Detector.PFA))
+		t := toDB(m.fixedLevel())
 		for k := range s.ThresholdDB {
 			s.ThresholdDB[k] = t
 		}

@@ -19,8 +19,9 @@ var (
 
 	topFields      = []string{"version", "name", "notes", "seed", "radar", "waveform", "receiver", "targets", "front_end", "propagation", "view"}
 	radarFields    = []string{"carrier_hz", "peak_power_w", "antenna_gain_dbi", "noise_figure_db", "system_loss_db", "sample_rate_hz", "pri_s", "pri_stagger_s", "pulses", "window_start_m", "window_stop_m", "beamwidth_az_deg", "beamwidth_el_deg", "antenna_height_m", "schedule", "scan"}
-	receiverFields = []string{"filter", "filter_length_factor", "taps", "window", "detector", "doppler_window", "mti"}
+	receiverFields = []string{"filter", "filter_length_factor", "taps", "window", "detector", "doppler_window", "mti", "integration"}
 	mtis           = []string{MTINone, MTITwoPulse, MTIThreePulse}
+	integrations   = []string{IntegrationCoherent, IntegrationNonCoherent}
 )
 
 // waveformFields lists, per kind, the fields after "kind" in format order.
@@ -273,6 +274,9 @@ func (o *object) decodeReceiver(r *Receiver) {
 	}
 	if o.str("mti", &r.MTI) {
 		o.oneOf("mti", r.MTI, mtis)
+	}
+	if o.str("integration", &r.Integration) {
+		o.oneOf("integration", r.Integration, integrations)
 	}
 	o.finish(receiverFields...)
 }

@@ -286,7 +286,7 @@ func (sc *scene) pointSkirt(j int, g *tgt, lp *localPlan, b int) {
 	}
 	var slow []tone
 	slowVar := 0.0
-	if m.s.Radar.Pulses > 1 {
+	if m.s.CoherentTrain() {
 		slow, slowVar = fe.slowTones(g.fd, m.s.Radar.slowPRI(), T, m.s.Radar.Pulses)
 	}
 	if g.amp == 0 || (fast+slowVar)*g.amp*g.amp*m.noiseGain < fe.skirtMin {
@@ -658,7 +658,7 @@ func (sc *scene) distributedExtras(j int, g *tgt, lp *localPlan, density []float
 	}
 	var slow []tone
 	slowVar := 0.0
-	if m.s.Radar.Pulses > 1 {
+	if m.s.CoherentTrain() {
 		slow, slowVar = fe.slowTones(g.fd, m.s.Radar.slowPRI(), T, m.s.Radar.Pulses)
 	}
 	_, peak := g.resp.peak()

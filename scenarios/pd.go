@@ -7,6 +7,7 @@ import (
 	"strconv"
 
 	"github.com/pulsewright/pulsewright/dsp"
+	"gonum.org/v1/gonum/mathext"
 )
 
 // Probability of detection of a point target in the scene
@@ -55,6 +56,13 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 	}
 	d := m.s.Receiver.Detector
 	det := dsp.Detector{Pfa: d.PFA, Pulses: 1, Integration: dsp.Coherent, Swerling: sw}
+	if n := m.nciPulses(); n > 1 {
+		// Non-coherent integration (docs/detection.md §10): the sum of n
+		// square-law pulses at the gate, Swerling 1 and 3 constant over
+		// them, 2 and 4 independent from pulse to pulse; v.peak is the
+		// SNR of one pulse there.
+		det.Pulses, det.Integration = n, dsp.NonCoherent
+	}
 	switch d.Kind {
 	case DetectorFixed:
 	case DetectorCA:
@@ -91,13 +99,13 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 	if det.Validate() != nil {
 		// Too few training cells for the series: a steady target's Pd
 		// is still the average of pdavg.go.
-		if sw != dsp.SwerlingNone || det.CFARCells == 0 || det.Swerling != dsp.SwerlingNone {
+		if sw != dsp.SwerlingNone || det.CFARCells == 0 || det.Swerling != dsp.SwerlingNone || det.Pulses > 1 {
 			return pdTest{}, false
 		}
 		t.beyond = true
 		return t, true
 	}
-	if d.Kind == DetectorCA && !train {
+	if d.Kind == DetectorCA && !train && det.Pulses == 1 {
 		t.ev, t.alpha = m.correlatedCells(v.peakK)
 	}
 	return t, true
@@ -252,6 +260,17 @@ func (t pdTest) requiredSNRFresh(pd float64) (float64, error) {
 func (t pdTest) logPfaRaised(r float64) float64 {
 	d := t.det
 	m := float64(d.CFARCells)
+	if d.Pulses > 1 && d.Integration == dsp.NonCoherent {
+		// N pulses summed: Q(N, r·T) with a known noise level, and
+		// I_{1/(1+r·c)}(M·N, N) behind a CA-CFAR whose multiplier on the
+		// sum of its M cells is c (dsp.Detector.Threshold).
+		n := float64(d.Pulses)
+		if d.CFARCells == 0 {
+			return math.Log(mathext.GammaIncRegComp(n, r*d.Threshold()))
+		}
+		c := d.Threshold() / m
+		return math.Log(mathext.RegIncBeta(m*n, n, 1/(1+r*c)))
+	}
 	switch {
 	case d.CFARCells == 0:
 		return r * math.Log(d.Pfa) // exp(−r·T), T = −ln Pfa
@@ -294,7 +313,7 @@ func (t pdTest) pdFresh(r float64) (float64, bool) {
 		return t.pdCorrelated(t.snr, r), true
 	}
 	d := t.det
-	if d.CFARCells == 0 && r != 1 {
+	if d.CFARCells == 0 && r != 1 && d.Pulses == 1 {
 		return knownNoisePd(d.Swerling, t.snr, -r*math.Log(d.Pfa)), true
 	}
 	if r != 1 {

@@ -87,6 +87,9 @@ func thresholdCDF(d dsp.Detector, r float64) func(x float64) float64 {
 // nominal threshold by pdAverage; ok is false for fluctuating targets and
 // known noise levels (the series reaches every threshold there).
 func (t pdTest) pdBeyond(snr, r float64) (float64, bool) {
+	if t.det.Pulses > 1 {
+		return 0, false // one pulse's average only
+	}
 	cdf := thresholdCDF(t.det, r)
 	if t.det.Swerling != dsp.SwerlingNone || cdf == nil || t.ev != nil {
 		return 0, false

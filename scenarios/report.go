@@ -1,7 +1,9 @@
 package scenarios
 
+import "fmt"
+
 // ReportVersion is the version of the report format.
-const ReportVersion = 2
+const ReportVersion = 3
 
 // Target statuses (docs/report-format.md; decided by scene.decide,
 // docs/detection.md §6).
@@ -18,7 +20,7 @@ const (
 var Statuses = []string{StatusDetected, StatusMasked, StatusTooWeak, StatusEclipsed, StatusFolded, StatusOutOfWindow, StatusClutter, StatusBelowHorizon}
 
 // Report is what the tool concludes about one scenario: the report format
-// of docs/report-format.md, version 2. A quantity that does not
+// of docs/report-format.md, version 3. A quantity that does not
 // apply is a nil pointer and is left out of the JSON.
 type Report struct {
 	Version  int            `json:"version"`
@@ -35,6 +37,10 @@ type Report struct {
 	// Scan holds the figures of radar.scan (scan.go); nil for a staring
 	// beam. Added in version 2.
 	Scan *ScanReport `json:"scan,omitempty"`
+	// Integration describes a train integrated non-coherently
+	// (receiver.integration noncoherent, nci.go; added in version 3); nil
+	// for one pulse or a coherent train.
+	Integration *IntegrationReport `json:"integration,omitempty"`
 	// The detector's false-alarm rate and the scene's clutter (clutter.go).
 	FalseAlarms *FalseAlarms    `json:"false_alarms,omitempty"`
 	Clutter     *ClutterSummary `json:"clutter,omitempty"`
@@ -168,4 +174,28 @@ func MaskedByWords(id, maskedBy string) string {
 		return " by its own sidelobes"
 	}
 	return " by " + maskedBy
+}
+
+// IntegrationReport says how the pulses of a train were combined when it
+// is not the coherent range–Doppler map (added in report format version
+// 3).
+type IntegrationReport struct {
+	Mode   string `json:"mode"`   // "noncoherent"
+	Pulses int    `json:"pulses"` // pulses summed per range gate
+	// Note says in words what the evaluation did and did not produce.
+	Note string `json:"note"`
+}
+
+// integrationReport returns the report's integration object of s, nil
+// unless it integrates non-coherently.
+func integrationReport(s *Scenario) *IntegrationReport {
+	if !s.NonCoherent() {
+		return nil
+	}
+	n := s.Radar.Pulses
+	return &IntegrationReport{Mode: IntegrationNonCoherent, Pulses: n, Note: fmt.Sprintf(
+		"the %d pulses are compressed and square-law detected one by one and summed per range gate before the detector "+
+			"(non-coherent integration); no Doppler filter runs, so there is no range–Doppler map and no Doppler measurement. "+
+			"The profile is the mean of the %d detected pulses (noise alone at 0 dB); Pd is the exact series for %d pulses "+
+			"(Swerling 1 and 3 constant over them, 2 and 4 independent from pulse to pulse)", n, n, n)}
 }

@@ -14,7 +14,7 @@ const (
 )
 
 // Version is the scenario format version this package reads and writes.
-const Version = 2
+const Version = 3
 
 // Limits that guard memory and time. Each is checked before the memory it
 // bounds is allocated.
@@ -183,6 +183,33 @@ type Receiver struct {
 	Detector           Detector `json:"detector"`
 	DopplerWindow      Window   `json:"doppler_window"`
 	MTI                string   `json:"mti"` // extension: none, two_pulse or three_pulse canceller before the Doppler DFT
+	// Integration says how the radar.pulses of a train are combined
+	// (added in format version 3): coherent (the default: the Doppler
+	// filter bank of the range–Doppler map) or noncoherent (each pulse
+	// compressed and square-law detected, the radar.pulses detected
+	// samples of each range gate summed before the detector: video
+	// integration; docs/detection.md §10).
+	Integration string `json:"integration"`
+}
+
+// Integration modes of receiver.integration (added in format version 3).
+const (
+	IntegrationCoherent    = "coherent"
+	IntegrationNonCoherent = "noncoherent"
+)
+
+// NonCoherent reports whether the scenario integrates a train of several
+// pulses non-coherently (receiver.integration noncoherent, radar.pulses
+// ≥ 2): the evaluation then tests an integrated range profile and forms
+// no range–Doppler map.
+func (s *Scenario) NonCoherent() bool {
+	return s.Receiver.Integration == IntegrationNonCoherent && s.Radar.Pulses > 1
+}
+
+// CoherentTrain reports whether the scenario forms a range–Doppler map:
+// several pulses integrated coherently.
+func (s *Scenario) CoherentTrain() bool {
+	return s.Radar.Pulses > 1 && !s.NonCoherent()
 }
 
 // MTI cancellers (an extension of the format).

@@ -187,7 +187,7 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 	if focus < 0 {
 		m.scanWarnings()
 	}
-	if m.s.Radar.Pulses > 1 && focus < 0 { // suggestions are checked on single pulses
+	if m.s.CoherentTrain() && focus < 0 { // suggestions are checked on single pulses
 		sc.train = newTrain(m, sc)
 	}
 	return sc, nil

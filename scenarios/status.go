@@ -89,7 +89,7 @@ func (m *model) detector() *dsp.CFAR {
 	}
 	if m.cfar == nil {
 		m.cfar = &dsp.CFAR{PFA: d.PFA, Guard: d.GuardCells, Train: d.TrainingCells, Rho: m.noiseCorrelation(),
-			Variant: cfarVariant(d.Kind), Censor: d.CensoredCells}
+			Variant: cfarVariant(d.Kind), Censor: d.CensoredCells, Pulses: m.nciPulses()}
 		if d.Kind == DetectorOS {
 			m.cfar.Rank = d.Rank
 		}
@@ -101,7 +101,7 @@ func (m *model) detector() *dsp.CFAR {
 // hold 1 (noise) plus extra(i) at gate i; only processed gates train.
 func (sc *scene) level(cf *dsp.CFAR, k int, extra func(i int) float64) float64 {
 	if cf == nil {
-		return dsp.FixedMultiplier(sc.m.s.Receiver.Detector.PFA)
+		return sc.m.fixedLevel()
 	}
 	lo1, _, _, hi2 := cf.TrainingCells(k, sc.m.n)
 	lo1, hi2 = min(lo1, k), max(hi2, k+1)
@@ -373,4 +373,28 @@ func (sc *scene) culprit(j int, v verdict, cf *dsp.CFAR) (int, string) {
 		}
 	}
 	return bi, cause
+}
+
+// nciPulses returns the number of pulses the scene integrates
+// non-coherently before its detector (receiver.integration noncoherent;
+// docs/detection.md §10), 1 otherwise. Its profile is then the mean over
+// those pulses of each gate's square-law detected power (noise mean 1,
+// as a single pulse's), and every level is on that mean.
+func (m *model) nciPulses() int {
+	if m.s.NonCoherent() {
+		return m.s.Radar.Pulses
+	}
+	return 1
+}
+
+// fixedLevel returns the fixed threshold on the (integrated) profile in
+// units of the noise power of one pulse: −ln Pfa for one pulse
+// (dsp.FixedMultiplier); for N pulses integrated non-coherently T/N, with
+// Q(N, T) = Pfa on their sum (dsp.GammaThreshold).
+func (m *model) fixedLevel() float64 {
+	pfa := m.s.Receiver.Detector.PFA
+	if n := m.nciPulses(); n > 1 {
+		return dsp.GammaThreshold(pfa, float64(n)) / float64(n)
+	}
+	return dsp.FixedMultiplier(pfa)
 }

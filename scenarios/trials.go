@@ -396,7 +396,7 @@ func (w *trialWorker) trial(i int, c *TrialCounts) {
 	if w.cf != nil {
 		w.cf.ThresholdsValid(w.th, w.p, m.processed)
 	} else {
-		fixed := dsp.FixedMultiplier(m.s.Receiver.Detector.PFA)
+		fixed := m.fixedLevel()
 		for k := range w.th {
 			w.th[k] = fixed
 		}

@@ -29,7 +29,7 @@ import (
 type upgrade func(doc map[string]any) (notes []string, err error)
 
 // formatUpgrades maps each older version v to its upgrade to v+1.
-var formatUpgrades = map[int]upgrade{1: upgrade1}
+var formatUpgrades = map[int]upgrade{1: upgrade1, 2: upgrade2}
 
 // upgrade1 reads a version 1 scenario as version 2. No field of a
 // scenario changed name or meaning; what changed is how the report
@@ -52,6 +52,21 @@ func upgrade1(doc map[string]any) ([]string, error) {
 	}
 	notes := []string{fmt.Sprintf("statuses are now decided on the probability of detection at receiver.detector.pd_required (%s) rather than on the noise-free peak against the threshold; below_noise is now called too_weak, and a folded echo inside the window is folded rather than out_of_window", req)}
 	return append(notes, roleNotes(doc)...), nil
+}
+
+// upgrade2 reads a version 2 scenario as version 3. Version 3 added
+// receiver.integration (coherent or noncoherent; docs/scenario-format.md);
+// a version 2 document integrates a pulse train coherently, the default,
+// so nothing changes name or meaning and there is nothing to tell. A
+// version 2 document that already carries receiver.integration is
+// refused: the field does not exist in version 2.
+func upgrade2(doc map[string]any) ([]string, error) {
+	if r, ok := doc["receiver"].(map[string]any); ok {
+		if _, ok := r["integration"]; ok {
+			return nil, fmt.Errorf("receiver.integration was added in format version 3: set \"version\": 3 to use it")
+		}
+	}
+	return nil, nil
 }
 
 // UpgradeNotes returns what a user should hear of a scenario read from an

@@ -241,6 +241,7 @@ func (s *Scenario) validateReceiver(c checker) {
 	if taps := map[string]int{MTITwoPulse: 2, MTIThreePulse: 3}[r.MTI]; taps > 0 && !c.errs.has("radar.pulses") && s.Radar.Pulses < taps+1 {
 		c.errs.add("receiver.mti", "%s needs at least %d pulses; radar.pulses is %d", r.MTI, taps+1, s.Radar.Pulses)
 	}
+	s.validateIntegration(c)
 	if (r.Filter == FilterLeastSquares || r.Filter == FilterMinimax) && !c.errs.has("receiver.filter") && !c.errs.has("waveform.kind") {
 		limit := MaxFilterTaps
 		if r.Filter == FilterMinimax {
@@ -384,4 +385,41 @@ func nearbyWelch(n int) string {
 		return fmt.Sprint(hi)
 	}
 	return fmt.Sprintf("%d or %d", lo, hi)
+}
+
+// validateIntegration checks receiver.integration noncoherent against the
+// rest of the scenario (docs/detection.md §10): it needs a train of at
+// least 2 pulses, a detector whose Pd after the integration dsp computes
+// exactly (fixed or ca_cfar), and a uniform, single-CPI, staring,
+// uncancelled train; the other combinations are refused, each naming the
+// field that conflicts.
+func (s *Scenario) validateIntegration(c checker) {
+	r := s.Receiver
+	if r.Integration != IntegrationNonCoherent || c.errs.has("receiver.integration") {
+		return
+	}
+	const f = "receiver.integration"
+	if !c.errs.has("radar.pulses") && s.Radar.Pulses < 2 {
+		c.errs.add(f, "noncoherent sums the detected samples of several pulses; radar.pulses is %d, want 2 … %d (or integration \"coherent\" for one pulse)", s.Radar.Pulses, dsp.MaxPulses)
+	}
+	if !c.errs.has("radar.pulses") && s.Radar.Pulses > dsp.MaxPulses {
+		c.errs.add(f, "noncoherent over radar.pulses %d pulses: want 2 … %d", s.Radar.Pulses, dsp.MaxPulses)
+	}
+	switch k := r.Detector.Kind; k {
+	case DetectorFixed, DetectorCA:
+	case DetectorOS, DetectorGO, DetectorSO, DetectorCens:
+		c.errs.add(f, "noncoherent with receiver.detector.kind %q is not modelled (no exact Pd for %s after integrating several pulses); want kind \"fixed\" or \"ca_cfar\", or integration \"coherent\"", k, k)
+	}
+	if r.MTI != MTINone {
+		c.errs.add(f, "noncoherent with receiver.mti %q is not modelled (a canceller works on the pulses' phases before a Doppler filter); want mti \"none\" or integration \"coherent\"", r.MTI)
+	}
+	if s.Radar.Staggered() {
+		c.errs.add(f, "noncoherent with radar.pri_stagger_s is not modelled (each PRI eclipses and folds differently); want a uniform train (radar.pri_s) or integration \"coherent\"")
+	}
+	if s.Radar.Schedule != nil {
+		c.errs.add(f, "noncoherent with radar.schedule is not modelled; want a single CPI or integration \"coherent\"")
+	}
+	if s.Radar.Scan != nil {
+		c.errs.add(f, "noncoherent with radar.scan is not modelled (the beam's gain would change from pulse to pulse); want a staring beam or integration \"coherent\"")
+	}
 }
