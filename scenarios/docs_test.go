@@ -220,6 +220,7 @@ func TestReportFormatDocumentsEveryField(t *testing.T) {
 		{"report: breakthrough", reflect.TypeFor[Breakthrough]()},
 		{"report: scan", reflect.TypeFor[ScanReport]()},
 		{"report: scancpi", reflect.TypeFor[ScanCPI]()},
+		{"report: integration", reflect.TypeFor[IntegrationReport]()},
 	} {
 		rows, ok := tables[c.key]
 		if !ok {
@@ -341,7 +342,7 @@ func TestReportTablesCoverEveryType(t *testing.T) {
 		reflect.TypeFor[EngineInfo](): true, reflect.TypeFor[ScheduleReport](): true, reflect.TypeFor[StaggerReport](): true,
 		reflect.TypeFor[CPIReport](): true, reflect.TypeFor[CPITarget](): true, reflect.TypeFor[ScheduleTarget](): true,
 		reflect.TypeFor[FalseAlarms](): true, reflect.TypeFor[ClutterSummary](): true, reflect.TypeFor[Breakthrough](): true,
-		reflect.TypeFor[ScanReport](): true, reflect.TypeFor[ScanCPI](): true,
+		reflect.TypeFor[ScanReport](): true, reflect.TypeFor[ScanCPI](): true, reflect.TypeFor[IntegrationReport](): true,
 		reflect.TypeFor[Span](): true, // inline in the breakthrough table
 	}
 	seen := map[reflect.Type]bool{}

@@ -8,7 +8,7 @@ import (
 )
 
 // Non-coherent integration (receiver.integration noncoherent;
-// docs/detection.md §10). Each of the radar.pulses pulses of a uniform
+// docs/detection.md §17). Each of the radar.pulses pulses of a uniform
 // train is synthesised, compressed and square-law detected on its own,
 // and the detected powers of each range gate are summed (video
 // integration). The profile the detector tests is that sum divided by
@@ -117,4 +117,21 @@ func (sc *scene) nciPower(workers int, x, y []complex128, p []float64) []complex
 		}
 	}
 	return echo
+}
+
+// nciWarnings warns of point targets that move more than a range
+// resolution cell during the integrated train: the verdict takes them at
+// one gate, while the simulated pulses (and so the integrated profile)
+// spread their echo over several.
+func (sc *scene) nciWarnings() {
+	m := sc.m
+	r := m.s.Radar
+	for _, g := range sc.targets {
+		if g.t.Kind != TargetPoint {
+			continue
+		}
+		if move := math.Abs(g.t.RangeRateMPS) * r.pulseTime(r.Pulses); move > m.resolution() {
+			m.warn("target %s moves %.1f m during the %d integrated pulses, more than the %.1f m resolution: its echo migrates across range cells, which the integrated profile shows and its Pd (taken at one gate) does not", g.t.ID, move, r.Pulses, m.resolution())
+		}
+	}
 }

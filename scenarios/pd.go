@@ -57,7 +57,7 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 	d := m.s.Receiver.Detector
 	det := dsp.Detector{Pfa: d.PFA, Pulses: 1, Integration: dsp.Coherent, Swerling: sw}
 	if n := m.nciPulses(); n > 1 {
-		// Non-coherent integration (docs/detection.md §10): the sum of n
+		// Non-coherent integration (docs/detection.md §17): the sum of n
 		// square-law pulses at the gate, Swerling 1 and 3 constant over
 		// them, 2 and 4 independent from pulse to pulse; v.peak is the
 		// SNR of one pulse there.

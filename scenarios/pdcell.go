@@ -96,7 +96,7 @@ func (t pdTest) pdInCell(others []dsp.CellEcho, r float64) (float64, bool) {
 // target's cell is below the detector's level there (so it adds to the
 // target's echo rather than deciding the cell by itself).
 func (v *verdict) inCellApplies() bool {
-	// Not after non-coherent integration (docs/detection.md §10): the
+	// Not after non-coherent integration (docs/detection.md §17): the
 	// sum over uniform phases is one pulse's law; there the power in the
 	// cell raises the threshold instead (v.threshold).
 	return len(v.inCell) > 0 && v.cell > 0 && v.cell < v.sceneLevel && !math.IsInf(v.sceneLevel, 1) && v.test.det.Pulses <= 1

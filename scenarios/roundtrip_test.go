@@ -297,7 +297,7 @@ func TestCanonicalOmitsDefaults(t *testing.T) {
 		t.Fatal(err)
 	}
 	got, _ := Canonical(s)
-	want := `{"version":2,"waveform":{"kind":"lfm","pulse_width_s":0.00001,"bandwidth_hz":1000000}}`
+	want := `{"version":3,"waveform":{"kind":"lfm","pulse_width_s":0.00001,"bandwidth_hz":1000000}}`
 	if string(got) != want {
 		t.Fatalf("canonical:\n got %s\nwant %s", got, want)
 	}

@@ -188,7 +188,7 @@ type Receiver struct {
 	// filter bank of the range–Doppler map) or noncoherent (each pulse
 	// compressed and square-law detected, the radar.pulses detected
 	// samples of each range gate summed before the detector: video
-	// integration; docs/detection.md §10).
+	// integration; docs/detection.md §17).
 	Integration string `json:"integration"`
 }
 

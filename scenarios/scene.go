@@ -190,6 +190,9 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 	if m.s.CoherentTrain() && focus < 0 { // suggestions are checked on single pulses
 		sc.train = newTrain(m, sc)
 	}
+	if m.s.NonCoherent() && focus < 0 {
+		sc.nciWarnings()
+	}
 	return sc, nil
 }
 

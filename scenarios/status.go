@@ -377,7 +377,7 @@ func (sc *scene) culprit(j int, v verdict, cf *dsp.CFAR) (int, string) {
 
 // nciPulses returns the number of pulses the scene integrates
 // non-coherently before its detector (receiver.integration noncoherent;
-// docs/detection.md §10), 1 otherwise. Its profile is then the mean over
+// docs/detection.md §17), 1 otherwise. Its profile is then the mean over
 // those pulses of each gate's square-law detected power (noise mean 1,
 // as a single pulse's), and every level is on that mean.
 func (m *model) nciPulses() int {

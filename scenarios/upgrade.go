@@ -54,6 +54,14 @@ func upgrade1(doc map[string]any) ([]string, error) {
 	return append(notes, roleNotes(doc)...), nil
 }
 
+// readsAsCurrent lists the older versions whose documents Decode reads
+// directly as the current version, without the generic round trip of
+// upgradeDocument (which costs memory in proportion to the document):
+// their upgrade changes nothing but refusing the fields added since,
+// which Decode checks itself. Their upgrade function stays in
+// formatUpgrades for the chain from older versions.
+var readsAsCurrent = map[int]bool{2: true}
+
 // upgrade2 reads a version 2 scenario as version 3. Version 3 added
 // receiver.integration (coherent or noncoherent; docs/scenario-format.md);
 // a version 2 document integrates a pulse train coherently, the default,

@@ -81,7 +81,7 @@ func TestUpgradeChain(t *testing.T) {
 			return []string{"radar.window_end_m is now radar.window_stop_m"}, nil
 		}
 		return nil, nil
-	}, 1: upgrade1}
+	}, 1: upgrade1, 2: upgrade2}
 	old := []byte(`{"version":0,"radar":{"window_end_m":9000},"waveform":{"kind":"rect","pulse_width_s":1e-6}}`)
 	s, err := decodeWith(old, ups)
 	if err != nil {
@@ -98,14 +98,14 @@ func TestUpgradeChain(t *testing.T) {
 	// Without the upgrade, version 0 is refused with the list of versions.
 	_, err = Decode(old)
 	var verr *ValidationError
-	if !errors.As(err, &verr) || !strings.Contains(err.Error(), "0 is not supported (supported versions: 1, 2)") {
+	if !errors.As(err, &verr) || !strings.Contains(err.Error(), "0 is not supported (supported versions: 1, 2, 3)") {
 		t.Errorf("version 0 without an upgrade: %v", err)
 	}
-	if got := joinInts(supportedVersions(ups)); got != "0, 1, 2" {
-		t.Errorf("supported versions %q, want \"0, 1, 2\"", got)
+	if got := joinInts(supportedVersions(ups)); got != "0, 1, 2, 3" {
+		t.Errorf("supported versions %q, want \"0, 1, 2, 3\"", got)
 	}
 	// A current document is not marked as upgraded.
-	cur, err := decodeWith([]byte(`{"version":2,"waveform":{"kind":"rect","pulse_width_s":1e-6}}`), ups)
+	cur, err := decodeWith([]byte(`{"version":3,"waveform":{"kind":"rect","pulse_width_s":1e-6}}`), ups)
 	if err != nil || cur.ReadVersion != 0 || cur.Upgraded != nil {
 		t.Errorf("current document: %v, read %d, notes %q", err, cur.ReadVersion, cur.Upgraded)
 	}
@@ -177,5 +177,62 @@ func TestVersion1VerdictChange(t *testing.T) {
 	}
 	if notes, _ := UpgradeNotes(context.Background(), cur); notes != nil {
 		t.Errorf("a version 2 document has upgrade notes: %q", notes)
+	}
+}
+
+// TestReadsVersion2 keeps a version 2 file and its share link readable:
+// both decode to the same scenario, with no upgrade note (version 3 only
+// added receiver.integration, coherent by default, which is what a
+// version 2 train did), whose canonical form is the committed version 3
+// one, and whose report equals that of the same scenario written as
+// version 3.
+func TestReadsVersion2(t *testing.T) {
+	dir := "testdata/formats/v2/"
+	file, err := os.ReadFile(dir + "jet.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	link, err := os.ReadFile(dir + "jet.link")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := os.ReadFile(dir + "jet.canonical.json")
+	if err != nil {
+		t.Fatal(err)
+	}
+	fromFile, err := Decode(file)
+	if err != nil {
+		t.Fatalf("version 2 file: %v", err)
+	}
+	fromLink, err := ParseLink(strings.TrimSpace(string(link)))
+	if err != nil {
+		t.Fatalf("version 2 link: %v", err)
+	}
+	for name, s := range map[string]*Scenario{"file": fromFile, "link": fromLink} {
+		if s.ReadVersion != 2 || len(s.Upgraded) != 0 || s.Receiver.Integration != IntegrationCoherent {
+			t.Errorf("%s: read version %d, notes %q, integration %q", name, s.ReadVersion, s.Upgraded, s.Receiver.Integration)
+		}
+		got, err := Canonical(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if !bytes.Equal(got, bytes.TrimSpace(want)) {
+			t.Errorf("%s: canonical form\n%s\nwant\n%s", name, got, want)
+		}
+	}
+	cur := mustDecode(t, string(want))
+	a, b := mustEvaluate(t, fromFile), mustEvaluate(t, cur)
+	for i := range a.Report.Targets {
+		if a.Report.Targets[i].Status != b.Report.Targets[i].Status || *a.Report.Targets[i].Pd != *b.Report.Targets[i].Pd {
+			t.Errorf("target %s: version 2 %s, version 3 %s", a.Report.Targets[i].ID, a.Report.Targets[i].Status, b.Report.Targets[i].Status)
+		}
+	}
+	// A version 2 document cannot use the version 3 field.
+	bad := strings.Replace(string(file), `"receiver": {`, `"receiver": {"integration": "noncoherent", `, 1)
+	if !strings.Contains(bad, "integration") {
+		bad = strings.Replace(string(file), `"targets"`, `"receiver": {"integration": "coherent"}, "targets"`, 1)
+	}
+	if _, err := Decode([]byte(bad)); err == nil || !strings.Contains(err.Error(), "receiver.integration: added in format version 3") {
+		t.Errorf("version 2 document with receiver.integration: %v", err)
 	}
 }

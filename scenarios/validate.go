@@ -388,7 +388,7 @@ func nearbyWelch(n int) string {
 }
 
 // validateIntegration checks receiver.integration noncoherent against the
-// rest of the scenario (docs/detection.md §10): it needs a train of at
+// rest of the scenario (docs/detection.md §17): it needs a train of at
 // least 2 pulses, a detector whose Pd after the integration dsp computes
 // exactly (fixed or ca_cfar), and a uniform, single-CPI, staring,
 // uncancelled train; the other combinations are refused, each naming the

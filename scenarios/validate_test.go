@@ -21,7 +21,7 @@ func TestBadScenarios(t *testing.T) {
 		{"spec example", `{"version":2,` + okWave + `,"targets":[{"id":"a","kind":"point","range_m":1,"rcs_dbsm":0},{"id":"b","kind":"point","range_m":1,"rcs_dbsm":0},{"id":"c","kind":"point","range_m":1,"rcs_dbsm":0},{"id":"d","kind":"point","range_m":-5,"rcs_dbsm":0}]}`,
 			[]string{"targets[3].range_m: -5 is below the minimum 0"}},
 		{"version missing", `{` + okWave + `}`, []string{"version: required", "supported: 1"}},
-		{"version 3", `{"version":3}`, []string{"version: 3 is not supported (supported versions: 1, 2)"}},
+		{"version 4", `{"version":4}`, []string{"version: 4 is not supported (supported versions: 1, 2, 3)"}},
 		{"not an object", `[1,2]`, []string{"is not a JSON object"}},
 		{"broken json", `{"version":2,`, []string{"not valid JSON"}},
 		{"empty", ``, []string{"empty input"}},

@@ -14,7 +14,7 @@ func TestEngineFromBuild(t *testing.T) {
 		want EngineInfo
 		str  string
 	}{
-		{"no build info", nil, EngineInfo{Version: "devel"}, "pulsewright devel · scenario format 2 · report format 2"},
+		{"no build info", nil, EngineInfo{Version: "devel"}, "pulsewright devel · scenario format 3 · report format 3"},
 		{"go test", &debug.BuildInfo{Main: debug.Module{Version: "(devel)"}}, EngineInfo{Version: "devel"}, "pulsewright devel · "},
 		{"release", &debug.BuildInfo{Main: debug.Module{Version: "v1.4.0"}, Settings: []debug.BuildSetting{
 			{Key: "vcs.revision", Value: "4bca754b1a2c3d4e5f60718293a4b5c6d7e8f901"}, {Key: "vcs.modified", Value: "false"}}},
