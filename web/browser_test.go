@@ -247,7 +247,7 @@ func TestPageLoadsWithPlots(t *testing.T) {
 		t.Errorf("footer caution missing: %q", txt)
 	}
 	// The footer names the engine, from GET /api/v1/version.
-	waitFor(t, ctx, "the engine in the footer", `/^pulsewright .* · scenario format 2 · report format 2$/.test(document.querySelector('#engine').textContent)`)
+	waitFor(t, ctx, "the engine in the footer", `/^pulsewright .* · scenario format 3 · report format 3$/.test(document.querySelector('#engine').textContent)`)
 	shot(t, ctx, "")
 }
 

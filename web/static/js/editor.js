@@ -366,6 +366,13 @@ export class Editor {
     if (rx.filter === 'least_squares' || rx.filter === 'minimax') {
       filterBlock.push(this.field(s, 'receiver', { key: 'filter_length_factor', label: 'Filter length', unit: '× code', scale: 1, type: 'int', def: 3 }));
     }
+    // How the pulses of a train are combined (receiver.integration,
+    // scenario format 3): the Doppler filter bank, or the sum of the
+    // detected pulses per range gate (no range–Doppler map).
+    filterBlock.push(this.field(s, 'receiver', {
+      key: 'integration', label: 'Pulse integration (pulses > 1)', type: 'select', def: 'coherent', scale: 1, wide: true,
+      options: [['coherent', 'Coherent: Doppler filter, range–Doppler map'], ['noncoherent', 'Non-coherent: sum of the detected pulses']],
+    }));
     this.roots.receive.replaceChildren(
       h('div', { class: 'grid' }, filterBlock),
       this.windowBlock(s, 'Range weighting', 'receiver.window', 'none'),

@@ -100,6 +100,10 @@ export function renderFigures(root, report, reference, computeMs) {
     h('h3', {}, 'Waveform'),
     table,
     h('h3', {}, 'Targets'),
+    report.integration
+      ? h('p', { class: 'integration-note small', title: 'receiver.integration: noncoherent' },
+        `Non-coherent integration of ${report.integration.pulses} pulses: ${report.integration.note}.`)
+      : null,
     (report.targets || []).length ? h('p', { class: 'muted small nums-help' }, NumbersHelp) : null,
     cards.length ? h('ul', { class: 'tcards' }, cards) : h('p', { class: 'muted' }, 'No targets in the scene.'),
     clutterSummary(report),

@@ -12,7 +12,7 @@ const targetWords = {
 };
 const receiverWords = {
   filter: 'compression filter', filter_length_factor: 'filter length', window: 'range weighting',
-  doppler_window: 'pulse-to-pulse weighting', detector: 'detector', mti: 'MTI canceller',
+  doppler_window: 'pulse-to-pulse weighting', detector: 'detector', mti: 'MTI canceller', integration: 'pulse integration',
 };
 const topWords = { name: 'scene name', notes: 'notes', seed: 'noise seed', version: 'format version', radar: 'radar', waveform: 'waveform', receiver: 'receiver', targets: 'targets', front_end: 'front end', propagation: 'propagation' };
 
