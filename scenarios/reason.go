@@ -120,8 +120,12 @@ func (sc *scene) pdWords(g *tgt, v verdict, tr TargetReport, scene bool) string 
 		if *tr.MarginDB < 0 {
 			what = "under"
 		}
-		out += fmt.Sprintf(" (its %.1f dB SNR at the cell is %.1f dB %s the %.1f dB a %s target needs for that with the %s detector at Pfa %g)",
-			dsp.DB(v.test.snr), math.Abs(*tr.MarginDB), what, *tr.SNRRequiredDB, fluctuationWords(g.t.Fluctuation), detectorName(sc.m.s.Receiver.Detector), sc.m.s.Receiver.Detector.PFA)
+		per := ""
+		if n := sc.m.nciPulses(); n > 1 {
+			per = fmt.Sprintf(" per pulse, %d pulses integrated non-coherently,", n)
+		}
+		out += fmt.Sprintf(" (its %.1f dB SNR at the cell is %.1f dB %s the %.1f dB%s a %s target needs for that with the %s detector at Pfa %g)",
+			dsp.DB(v.test.snr), math.Abs(*tr.MarginDB), what, *tr.SNRRequiredDB, per, fluctuationWords(g.t.Fluctuation), detectorName(sc.m.s.Receiver.Detector), sc.m.s.Receiver.Detector.PFA)
 	}
 	return out
 }

@@ -35,7 +35,7 @@ func TestRoutes(t *testing.T) {
 		want                     string // substring of the body
 	}{
 		{"health", "GET", "/healthz", "", nil, 200, `"engine":{"version":"`},
-		{"version", "GET", "/api/v1/version", "", nil, 200, `"scenario_format":2,"report_format":2,"text":"pulsewright `},
+		{"version", "GET", "/api/v1/version", "", nil, 200, `"scenario_format":3,"report_format":3,"text":"pulsewright `},
 		{"evaluate names its engine", "POST", "/api/v1/evaluate", demo, nil, 200, `"engine":{"version":`},
 		{"evaluate", "POST", "/api/v1/evaluate", demo, nil, 200, `"scenario":"Harbour approach`},
 		{"evaluate invalid", "POST", "/api/v1/evaluate", invalid, nil, 400, `"path":"waveform.length"`},

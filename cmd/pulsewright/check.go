@@ -90,6 +90,9 @@ func writeSummaryIn(w io.Writer, s *scenarios.Scenario, u scenarios.Units) error
 	fmt.Fprintf(tw, "timing\tfs %s, %s, %d pulse(s), window %.6g–%.6g %s (%d samples)\n", scenarios.SI(r.SampleRateHz, "Hz"), pri, r.Pulses,
 		u.FromSI(scenarios.QRange, r.WindowStartM), u.FromSI(scenarios.QRange, r.WindowStopM), u.Range, s.WindowSamples())
 	fmt.Fprintf(tw, "receiver\t%s filter, window %s, %s\n", rx.Filter, rx.Window.Describe(), rx.Detector.Describe())
+	if s.NonCoherent() {
+		fmt.Fprintf(tw, "integration\tnon-coherent: the %d detected pulses summed per range gate (no range–Doppler map)\n", s.Radar.Pulses)
+	}
 	fmt.Fprintf(tw, "targets\t%s\n", scenarios.DescribeTargets(s.Targets))
 	fmt.Fprintf(tw, "seed\t%d\n", s.Seed)
 	fmt.Fprintf(tw, "canonical\t%s\n", canon)

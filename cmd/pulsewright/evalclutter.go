@@ -44,6 +44,9 @@ func writeClutterText(w io.Writer, r *scenarios.Report) {
 	if c := r.Clutter; c != nil && c.CNRPeakDB != nil && c.CNRPeakRangeM != nil {
 		fmt.Fprintf(w, "clutter: peak CNR %s dB at %.0f m, %d cells break through\n", fx(*c.CNRPeakDB, 1), *c.CNRPeakRangeM, c.BreakthroughCells)
 	}
+	if in := r.Integration; in != nil {
+		fmt.Fprintf(w, "integration: %s\n", in.Note)
+	}
 	if fa := r.FalseAlarms; fa != nil {
 		fmt.Fprintf(w, "false alarms from noise: %.3g per s (Pfa %.2g × %.0f independent cells of %d tested per %s)\n",
 			fa.RatePerS, fa.PFA, fa.IndependentCells, fa.TestedCells, scenarios.SI(fa.LookS, "s"))

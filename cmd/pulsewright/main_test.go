@@ -26,7 +26,7 @@ func runCmd(t *testing.T, stdin string, args ...string) (int, string, string) {
 func TestCheckForms(t *testing.T) {
 	dir := t.TempDir()
 	file := filepath.Join(dir, "s.json")
-	doc := `{"version":2,"name":"file scene","waveform":{"kind":"p4","length":64,"chip_s":1e-7}}`
+	doc := `{"version":3,"name":"file scene","waveform":{"kind":"p4","length":64,"chip_s":1e-7}}`
 	if err := os.WriteFile(file, []byte(doc), 0o644); err != nil {
 		t.Fatal(err)
 	}
@@ -45,7 +45,7 @@ func TestCheckForms(t *testing.T) {
 		if code != 0 {
 			t.Fatalf("check %q: exit %d, %s", ref, code, errs)
 		}
-		if !strings.HasPrefix(out, "valid") || !strings.Contains(out, "canonical  {\"version\":2") {
+		if !strings.HasPrefix(out, "valid") || !strings.Contains(out, "canonical  {\"version\":3") {
 			t.Fatalf("check %q summary:\n%s", ref, out)
 		}
 	}
@@ -118,7 +118,7 @@ func TestCheckHostileInput(t *testing.T) {
 // report's engine object as JSON.
 func TestVersionCommand(t *testing.T) {
 	code, out, stderr := runCmd(t, "", "version")
-	if code != exitOK || !strings.HasPrefix(out, "pulsewright ") || !strings.Contains(out, "scenario format 2 · report format 2") {
+	if code != exitOK || !strings.HasPrefix(out, "pulsewright ") || !strings.Contains(out, "scenario format 3 · report format 3") {
 		t.Errorf("version: exit %d, %q %s", code, out, stderr)
 	}
 	code, out, _ = runCmd(t, "", "version", "--format", "json")
@@ -140,7 +140,7 @@ func TestCheckVersion1NamesVerdictChange(t *testing.T) {
 	if code != 0 {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	for _, want := range []string{"read as format version 2 from version 1", "statuses are now decided on the probability of detection",
+	for _, want := range []string{"read as format version 3 from version 1", "statuses are now decided on the probability of detection",
 		"target dinghy: read from a format version 1 document, whose rules called it detected; version 2 calls it too_weak: Pd 0.679"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("check output lacks %q:\n%s", want, out)
