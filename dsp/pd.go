@@ -277,6 +277,42 @@ func (d Detector) Pd(snr float64) float64 {
 	return mixture(lambda, shape, betaTail(n, m, cfarSumMultiplier(d.Pfa, n, m)))
 }
 
+// PdAtThreshold returns the Pd of a known-noise detector d (CFARCells 0)
+// against the threshold t > 0 on its statistic in units of the noise
+// power of one pulse (Σ|y_i|²/σ² for non-coherent integration, as
+// Threshold), for any t: where t is far in the noise tail, Pd at the Pfa
+// Q(n, t) would underflow, this does not. PdAtThreshold(snr,
+// d.Threshold()) is Pd(snr). It panics if d is not valid, has reference
+// cells, or snr or t is out of range.
+func (d Detector) PdAtThreshold(snr, t float64) float64 {
+	d.mustValidate()
+	if d.CFARCells != 0 {
+		panic("dsp: PdAtThreshold needs a known noise level (CFARCells 0)")
+	}
+	if !(snr >= 0) || math.IsInf(snr, 1) || !(t > 0) || math.IsInf(t, 1) {
+		panic("dsp: PdAtThreshold needs a finite SNR ≥ 0 and a finite threshold > 0")
+	}
+	n, shape, scale := d.stat()
+	return mixture(scale*snr, shape, gammaTail(n, t))
+}
+
+// PdAtSumMultiplier returns the Pd of a cell-averaging detector d
+// (CFARCells M > 0, OSRank 0) whose threshold is c > 0 times the SUM of
+// its M reference cells (d.Threshold()/M at the nominal Pfa), for any c;
+// the series has about 40·(1 + c) terms. It panics if d is not valid, is
+// not cell averaging, or snr or c is out of range.
+func (d Detector) PdAtSumMultiplier(snr, c float64) float64 {
+	d.mustValidate()
+	if d.CFARCells == 0 || d.OSRank != 0 {
+		panic("dsp: PdAtSumMultiplier needs a cell-averaging CFAR")
+	}
+	if !(snr >= 0) || math.IsInf(snr, 1) || !(c > 0) || math.IsInf(c, 1) {
+		panic("dsp: PdAtSumMultiplier needs a finite SNR ≥ 0 and a finite multiplier > 0")
+	}
+	n, shape, scale := d.stat()
+	return mixture(scale*snr, shape, betaTail(n, float64(d.CFARCells), c))
+}
+
 // osPd returns the Pd of one square-law test against α times the k-th
 // smallest of m exponential reference cells, exactly. By the Rényi
 // representation, α·X_(k) is a sum of k exponential stages of rates

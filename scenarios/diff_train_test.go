@@ -29,6 +29,7 @@ type trainCase struct {
 		FalseAlarms map[string]any   `json:"false_alarms"`
 		Stagger     map[string]any   `json:"stagger"`
 		Schedule    map[string]any   `json:"schedule"`
+		Integration map[string]any   `json:"integration"`
 	} `json:"expected"`
 }
 
@@ -78,8 +79,8 @@ func TestDiffModelTrain(t *testing.T) {
 	if err := json.Unmarshal(data, &file); err != nil {
 		t.Fatalf("parse cases: %v", err)
 	}
-	if len(file.Cases) < 290 {
-		t.Fatalf("%d train cases; train.py writes 300", len(file.Cases))
+	if len(file.Cases) < 330 {
+		t.Fatalf("%d train cases; train.py writes 340", len(file.Cases))
 	}
 	known := readKnownDiffs(t, "../testdata/diffmodel/known_train.json")
 	seenKnown := map[string]bool{}
@@ -132,6 +133,7 @@ func TestDiffModelTrain(t *testing.T) {
 			FalseAlarms map[string]any   `json:"false_alarms"`
 			Stagger     map[string]any   `json:"stagger"`
 			Schedule    map[string]any   `json:"schedule"`
+			Integration map[string]any   `json:"integration"`
 		}
 		if err := json.Unmarshal(enc, &got); err != nil {
 			t.Fatalf("%s: report JSON: %v", name, err)
@@ -204,6 +206,13 @@ func TestDiffModelTrain(t *testing.T) {
 			case strings.Contains(reason, "Inf") || strings.Contains(reason, "NaN"):
 				record(name, prefix+"reason", reason, "finite numbers")
 			}
+		}
+		// Non-coherent integration (docs/detection.md §17): the report's
+		// integration object, present exactly for those cases.
+		if (c.Expected.Integration == nil) != (got.Integration == nil) {
+			record(name, "integration", show(got.Integration, got.Integration != nil), show(c.Expected.Integration, c.Expected.Integration != nil))
+		} else if c.Expected.Integration != nil {
+			compare("integration.", c.Expected.Integration, got.Integration, []string{"mode", "pulses"})
 		}
 		compare("false_alarms.", c.Expected.FalseAlarms, got.FalseAlarms, []string{
 			"pfa", "tested_cells", "independent_cells", "look_s", "cells_per_s", "rate_per_s",

@@ -241,3 +241,40 @@ func TestNCITrials(t *testing.T) {
 		}
 	}
 }
+
+// TestKnownNoisePdN: the closed forms the scene uses at raised
+// thresholds equal dsp's exact series at the nominal one (Swerling 1,
+// DiFranco & Rubin / Mahafza eq. 2.79; Swerling 2, Richards eq. 6.107).
+func TestKnownNoisePdN(t *testing.T) {
+	for _, sw := range []int{dsp.Swerling1, dsp.Swerling2} {
+		for _, n := range []int{2, 3, 10, 64} {
+			d := dsp.Detector{Pfa: 1e-6, Pulses: n, Integration: dsp.NonCoherent, Swerling: sw}
+			for _, snr := range []float64{0.1, 1, 10, 1000} {
+				got, ok := knownNoisePdN(sw, n, snr, d.Threshold())
+				if want := d.Pd(snr); !ok || math.Abs(got-want) > 1e-9 {
+					t.Errorf("Swerling %d, %d pulses, SNR %g: %g, series %g", sw, n, snr, got, want)
+				}
+			}
+		}
+	}
+}
+
+// TestPdStrongFluct: the quadrature the scene uses for strong Swerling 3
+// and 4 targets over several pulses equals dsp's exact series where both
+// are cheap (energies 1e3 … 1e4, thresholds 1 … 30 times the nominal).
+func TestPdStrongFluct(t *testing.T) {
+	for _, sw := range []int{dsp.Swerling3, dsp.Swerling4} {
+		for _, n := range []int{2, 10} {
+			d := dsp.Detector{Pfa: 1e-6, Pulses: n, Integration: dsp.NonCoherent, Swerling: sw}
+			for _, e := range []float64{1e3, 1e4} {
+				for _, r := range []float64{1, 30} {
+					chi := e / float64(n)
+					got, want := pdStrongFluct(d, chi, r*d.Threshold()), d.PdAtThreshold(chi, r*d.Threshold())
+					if math.Abs(got-want) > 1e-7 {
+						t.Errorf("Swerling %d, %d pulses, energy %g, raise %g: %g, series %g", sw, n, e, r, got, want)
+					}
+				}
+			}
+		}
+	}
+}

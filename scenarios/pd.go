@@ -316,6 +316,31 @@ func (t pdTest) pdFresh(r float64) (float64, bool) {
 	if d.CFARCells == 0 && r != 1 && d.Pulses == 1 {
 		return knownNoisePd(d.Swerling, t.snr, -r*math.Log(d.Pfa)), true
 	}
+	if d.CFARCells == 0 && d.Pulses > 1 && (d.Swerling == dsp.Swerling3 || d.Swerling == dsp.Swerling4) && float64(d.Pulses)*t.snr > strongEnergy {
+		if T := r * d.Threshold(); T <= strongThreshold {
+			return pdStrongFluct(d, t.snr, T), true
+		}
+		// A strong target under a threshold raised far into the tail:
+		// both the series and the quadrature would take seconds; no Pd
+		// (the threshold decides; docs/detection.md §17).
+		return 0, false
+	}
+	if d.CFARCells == 0 && r != 1 {
+		// N pulses integrated, a known level: at the raised threshold
+		// itself, which no Pfa underflow limits; Swerling 1 and 2 in
+		// closed form (the series is long for strong targets).
+		if p, ok := knownNoisePdN(d.Swerling, d.Pulses, t.snr, r*d.Threshold()); ok {
+			return p, true
+		}
+		return d.PdAtThreshold(t.snr, r*d.Threshold()), true
+	}
+	if d.CFARCells > 0 && r != 1 && d.Pulses > 1 && d.OSRank == 0 {
+		// Behind a CA-CFAR: the series at the raised multiplier on the
+		// reference sum (its cost grows with the multiplier: bounded).
+		if c := r * d.Threshold() / float64(d.CFARCells); c <= maxRaisedSumMultiplier {
+			return d.PdAtSumMultiplier(t.snr, c), true
+		}
+	}
 	if r != 1 {
 		lp := t.logPfaRaised(r)
 		d.Pfa = math.Exp(lp)
@@ -419,4 +444,95 @@ func knownNoisePd(swerling int, chi, T float64) float64 {
 		return math.Exp(-T/(1+x)) * (1 + x*T/((1+x)*(1+x)))
 	}
 	return dsp.MarcumQ(1, math.Sqrt(2*chi), math.Sqrt(2*T))
+}
+
+// maxRaisedSumMultiplier bounds the raised CA-CFAR multiplier on the
+// reference sum for which pdFresh sums dsp's series directly (about
+// 40·(1 + c) terms).
+const maxRaisedSumMultiplier = 1e5
+
+// knownNoisePdN returns the Pd of n pulses integrated non-coherently
+// against the threshold T on their sum (noise units per pulse) for a
+// Swerling 1 or 2 target of per-pulse SNR chi, in closed form, and false
+// for other models:
+//
+//	Swerling 2: Q(n, T/(1+χ)) (Richards, Fundamentals of Radar Signal
+//	Processing, 2nd ed., eq. 6.107);
+//	Swerling 1: 1 − P(n−1, T) + (1 + 1/(nχ))^(n−1)·P(n−1, T/(1 + 1/(nχ)))·e^(−T/(1+nχ))
+//	(DiFranco & Rubin; Mahafza, Radar Systems Analysis and Design Using
+//	MATLAB, eq. 2.79),
+//
+// with P and Q the lower and upper regularized incomplete gamma functions.
+func knownNoisePdN(swerling, n int, chi, T float64) (float64, bool) {
+	N := float64(n)
+	switch swerling {
+	case dsp.Swerling2:
+		return mathext.GammaIncRegComp(N, T/(1+chi)), true
+	case dsp.Swerling1:
+		if n < 2 || !(chi > 0) {
+			return 0, false
+		}
+		b := 1 + 1/(N*chi)
+		p := 1 - mathext.GammaIncReg(N-1, T) + math.Pow(b, N-1)*mathext.GammaIncReg(N-1, T/b)*math.Exp(-T/(1+N*chi))
+		return min(max(p, 0), 1), true
+	}
+	return 0, false
+}
+
+// strongEnergy is the mean target energy N·χ (noise units) above which
+// pdStrongFluct replaces dsp's series for Swerling 3 and 4 targets over
+// several pulses: the series' negative-binomial weights then spread over
+// about N·χ terms.
+const strongEnergy = 1e5
+
+// strongThreshold bounds the threshold (noise units, on the sum) for
+// which pdStrongFluct integrates: its steady series at λ near T costs
+// about √T terms per point.
+const strongThreshold = 1e4
+
+// pdStrongFluct returns the Pd of n pulses (d.Pulses, known noise) of a
+// Swerling 3 or 4 target of per-pulse SNR chi against the threshold T on
+// their sum, as 1 − ∫ (1 − Pd_steady(λ)) g(λ) dλ over the gamma law g of
+// its energy λ (shape K = 2 or 2n, mean n·χ; detection-probability.md
+// §3): 1 − Pd_steady(λ) is negligible beyond λ = T + 40·(√T + 1) (the
+// steady test's statistic has mean n + λ and standard deviation
+// √(n + 2λ)), so the integral runs over [0, U] by Simpson's rule on 400
+// panels with the steady Pd from dsp's series, whose Poisson weights are
+// short there.
+func pdStrongFluct(d dsp.Detector, chi, T float64) float64 {
+	n := float64(d.Pulses)
+	K := 2.0
+	if d.Swerling == dsp.Swerling4 {
+		K = 2 * n
+	}
+	theta := n * chi / K
+	U := T + 40*(math.Sqrt(T)+1)
+	steady := d
+	steady.Swerling = dsp.SwerlingNone
+	lg := func(l float64) float64 { // log of the gamma density
+		if l <= 0 {
+			return math.Inf(-1)
+		}
+		lgK, _ := math.Lgamma(K)
+		return (K-1)*math.Log(l) - l/theta - K*math.Log(theta) - lgK
+	}
+	const panels = 400
+	h := U / panels
+	sum := 0.0
+	for i := 0; i <= panels; i++ {
+		l := float64(i) * h
+		w := 2.0
+		switch {
+		case i == 0 || i == panels:
+			w = 1
+		case i%2 == 1:
+			w = 4
+		}
+		miss := 1 - steady.PdAtThreshold(l/n, T)
+		if g := lg(l); !math.IsInf(g, -1) {
+			sum += w * miss * math.Exp(g)
+		}
+	}
+	// Beyond U every draw is detected: what lies below U and is missed.
+	return min(max(1-sum*h/3, 0), 1)
 }

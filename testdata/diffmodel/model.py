@@ -1116,6 +1116,94 @@ def pd_in_cell(pdf, phasors, r):
     return over(1, complex(amps[0], 0))
 
 
+# ------------------------------------------ non-coherent integration
+#
+# docs/detection.md §17 (receiver.integration noncoherent, scenario format
+# 3): N pulses compressed, square-law detected and summed per gate; the
+# gate's tested value is the mean over the pulses (noise mean 1). Under
+# noise alone the sum X is Gamma(N, 1). A target of per-pulse SNR chi
+# gives X | lambda = a non-central chi-square with 2N degrees of freedom
+# over 2, non-centrality 2 lambda (the total energy lambda); steady:
+# lambda = N chi; Swerling 1 to 4: lambda ~ Gamma(K, N chi / K), K = 1, N,
+# 2, 2N (1 and 3 constant over the pulses, 2 and 4 from pulse to pulse).
+# Fixed threshold on the mean: T / N with Q(N, T) = pfa (scipy's
+# gammainccinv). CA-CFAR: M independent cells on the ordered statistic's
+# lattice, each the mean of N pulses; the reference sum of M N unit
+# exponentials is Gamma(M N); the multiplier c on that sum gives
+# pfa = P(Gamma(N) > c Gamma(M N)) = I_{1/(1+c)}(M N, N) (scipy's
+# betaincinv), alpha = M c on the mean of the cells. Pd by quadrature
+# (scipy.integrate.quad) over lambda and, behind the CFAR, over X, never
+# by the series the engine uses.
+
+from scipy.special import betaincinv, gammaincc, gammainccinv
+
+NCI_K = {"none": None, "swerling1": lambda n: 1, "swerling2": lambda n: n,
+         "swerling3": lambda n: 2, "swerling4": lambda n: 2 * n}
+
+
+def nci_T(pfa, n):
+    """Q(n, T) = pfa: the threshold on the sum of n unit exponentials."""
+    return float(gammainccinv(n, pfa))
+
+
+def nci_c(pfa, n, m):
+    """The CA-CFAR multiplier c on the sum of m cells of n pulses each."""
+    y = float(betaincinv(m * n, n, pfa))
+    return (1 - y) / y
+
+
+def _nci_steady_sf(lam, n, x):
+    """P(X > x) for total energy lam: scipy's ncx2 survival function."""
+    if lam <= 0:
+        return float(gammaincc(n, x))
+    if lam > 5e5:  # beyond boost's series: the normal limit, as marcum_q1
+        a, b = math.sqrt(2 * lam), math.sqrt(2 * x)
+        return 0.5 * math.erfc((b - a) / math.sqrt(2))
+    return float(stats.ncx2.sf(2 * x, 2 * n, 2 * lam))
+
+
+def _over_lambda(f, chi, n, fluct):
+    """E over the target's energy lambda of f(lambda) (steady: f(n chi))."""
+    kf = NCI_K[fluct or "none"]
+    if kf is None:
+        return f(n * chi)
+    k = kf(n)
+    th = n * chi / k
+    dist = stats.gamma(k, scale=th)
+    lo, hi = dist.ppf(1e-14), dist.isf(1e-14)
+    v, _ = integrate.quad(lambda l: f(l) * dist.pdf(l), lo, hi, limit=200, epsabs=1e-12, epsrel=1e-10,
+                          points=[dist.mean()])
+    return min(max(v, 0.0), 1.0)
+
+
+def pd_nci_fixed(chi, n, fluct, pfa, r=1.0):
+    """Pd of n pulses against r times the fixed threshold T(pfa, n)."""
+    x = r * nci_T(pfa, n)
+    if fluct == "swerling2":  # each pulse CN(0, 1 + chi): X ~ Gamma(n, 1 + chi), closed form
+        return float(gammaincc(n, x / (1 + chi)))
+    return _over_lambda(lambda l: _nci_steady_sf(l, n, x), chi, n, fluct)
+
+
+def pd_nci_ca(chi, n, fluct, pfa, m, r=1.0):
+    """Pd of n pulses behind an m-cell CA-CFAR, threshold r c Z on the sum,
+    Z ~ Gamma(m n): E over X of P(Z < X / (r c)) (scipy's gammainc).
+    Steady and Swerling 2 only (the cases the generator draws)."""
+    a = r * nci_c(pfa, n, m)
+    if fluct == "swerling2":
+        dist = stats.gamma(n, scale=1 + chi)
+    elif not fluct or fluct == "none":
+        lam = n * chi
+        if lam > 5e5:  # X within a few sqrt(lam) of its mean lam + n: the CDF there
+            return float(gammainc(m * n, (lam + n) / a))
+        dist = stats.ncx2(2 * n, 2 * lam, scale=0.5)
+    else:
+        raise ValueError("pd_nci_ca: steady and swerling2 only")
+    lo, hi = dist.ppf(1e-13), dist.isf(1e-13)
+    v, _ = integrate.quad(lambda x: gammainc(m * n, x / a) * dist.pdf(x), lo, hi, limit=200,
+                          epsabs=1e-12, epsrel=1e-10, points=[dist.mean()])
+    return min(max(v, 0.0), 1.0)
+
+
 def required_snr(pd_of, req):
     """SNR (linear) at which pd_of(chi) = req (brentq on dB), or None
     beyond 200 dB."""
@@ -1243,11 +1331,13 @@ def scene(sc):
     kind = det["kind"]
     pfa = det["pfa"]
     cache = {}
+    # non-coherent integration (docs/detection.md §17): nci > 1 pulses
+    nci = rd["pulses"] if rx.get("integration") == "noncoherent" and rd["pulses"] > 1 else 1
 
     def train_offsets(k):
         g, tr = det["guard_cells"], det["training_cells"]
         offs = [o for o in range(-(g + tr // 2), g + tr // 2 + 1) if abs(o) > g]
-        if kind == "os_cfar":
+        if kind == "os_cfar" or nci > 1:
             span = 2 * (g + tr // 2)
             s_ = 1
             while s_ <= span:
@@ -1262,13 +1352,16 @@ def scene(sc):
         """(detector level with training cells 1 + power, with 1 only,
         offsets)."""
         if kind == "fixed":
-            v = -math.log(pfa)
+            v = -math.log(pfa) if nci == 1 else nci_T(pfa, nci) / nci
             return v, v, []
         offs = train_offsets(k)
         N = len(offs)
         if N == 0:
             return float("inf"), float("inf"), offs
         vals = 1 + power[np.array(offs) + k]
+        if kind == "ca_cfar" and nci > 1:
+            a = N * nci_c(pfa, nci, N)
+            return a * vals.mean(), a, offs
         if kind == "ca_cfar":
             key = tuple(offs)
             if key not in cache:
@@ -1317,7 +1410,13 @@ def scene(sc):
         # cell), as a function of its SNR chi and the raise r >= 1
         pdf = None
         sceneok = lambda r: True
-        if not rejected and Pstar > 0 and math.isfinite(Lnoise) and Lnoise > 0:
+        fl = t.get("fluctuation", "none")
+        if not rejected and Pstar > 0 and math.isfinite(Lnoise) and Lnoise > 0 and nci > 1:
+            if kind == "fixed":
+                pdf = lambda chi, r=1.0: pd_nci_fixed(chi, nci, fl, pfa, r)
+            elif kind == "ca_cfar" and offs:
+                pdf = lambda chi, r=1.0, M=len(offs): pd_nci_ca(chi, nci, fl, pfa, M, r)
+        elif not rejected and Pstar > 0 and math.isfinite(Lnoise) and Lnoise > 0:
             if kind == "fixed":
                 pdf = lambda chi, r=1.0: pd_fixed(chi, pfa, r)
             elif kind == "ca_cfar" and offs:
@@ -1349,7 +1448,7 @@ def scene(sc):
             rr = max(T / Lnoise, 1.0)
             pd_noise = pdf(Pstar)
             pd_scene = pdf(Pstar, rr) if sceneok(rr) else None
-            if 0 < Cc < Lk and math.isfinite(Lk) and sceneok(rr):
+            if 0 < Cc < Lk and math.isfinite(Lk) and sceneok(rr) and nci == 1:
                 # the others' power in the cell, under the level, adds to
                 # the echo (detection-probability.md §7): pd = the crossing
                 # probability of the sum; the status is decided on the
@@ -1420,6 +1519,8 @@ def scene(sc):
         rec["_noise_level_db"] = 10 * math.log10(Lnoise) if math.isfinite(Lnoise) else None
         rec["_cell_db"] = 10 * math.log10(Cc) if Cc > 0 else None
         rec["_cells"] = len(offs)
+        rec["_nproc"] = int(np.count_nonzero(processed))
+        rec["_corr_len"] = float(np.sum(np.abs(acf) ** 2)) / G ** 2
         out.append(rec)
     return wf, out
 
