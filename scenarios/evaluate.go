@@ -214,8 +214,9 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 	schedBudget := scheduleBudget(m)
 	out := make([]TargetReport, len(sc.targets))
 	sc.clutter = sc.analyseClutter(cf, cf2)
+	verdicts := sc.judgeAll(cf)
 	for j, g := range sc.targets {
-		v := sc.judge(j, cf)
+		v := verdicts[j]
 		single := v
 		bin := -1
 		if sc.train != nil {
