@@ -213,8 +213,8 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 	}
 	schedBudget := scheduleBudget(m)
 	out := make([]TargetReport, len(sc.targets))
-	sc.clutter = sc.analyseClutter(cf, cf2)
-	verdicts := sc.judgeAll(cf)
+	// The clutter analysis reads no verdict: it runs beside the judging.
+	verdicts := sc.judgeAll(cf, func(c *dsp.CFAR) { sc.clutter = sc.analyseClutter(c, cf2) })
 	for j, g := range sc.targets {
 		v := verdicts[j]
 		single := v

@@ -20,23 +20,33 @@ import (
 // out one at a time, as the in-cell Pd makes some much dearer than
 // others. Everything judge reads lazily is made before the goroutines
 // start.
-func (sc *scene) judgeAll(cf *dsp.CFAR) []verdict {
+//
+// side, when not nil, is work that reads the scene but no verdict (the
+// clutter analysis): it runs first when judging is sequential, otherwise
+// on a goroutine of its own, with a third detector of the same settings,
+// while the targets are judged; judgeAll returns when both are done.
+func (sc *scene) judgeAll(cf *dsp.CFAR, side func(*dsp.CFAR)) []verdict {
 	n := len(sc.targets)
 	out := make([]verdict, n)
 	if n < 2 || runtime.GOMAXPROCS(0) < 2 {
+		if side != nil {
+			side(cf)
+		}
 		for j := range out {
 			out[j] = sc.judge(j, cf)
 		}
 		return out
 	}
 	sc.m.noiseCorrelation()
-	var cf2 *dsp.CFAR
 	if cf != nil {
 		cf.Spacing() // an ordered statistic's lattice, solved once (read by correlatedCells)
-		cf2 = &dsp.CFAR{PFA: cf.PFA, Guard: cf.Guard, Train: cf.Train, Rank: cf.Rank, Rho: cf.Rho,
-			Variant: cf.Variant, Censor: cf.Censor}
-		cf2.Spacing()
 	}
+	var wg sync.WaitGroup
+	if side != nil {
+		cf3 := sameDetector(cf)
+		wg.Go(func() { side(cf3) })
+	}
+	cf2 := sameDetector(cf)
 	var next atomic.Int64
 	work := func(c *dsp.CFAR) {
 		for {
@@ -47,9 +57,21 @@ func (sc *scene) judgeAll(cf *dsp.CFAR) []verdict {
 			out[j] = sc.judge(j, c)
 		}
 	}
-	var wg sync.WaitGroup
 	wg.Go(func() { work(cf2) })
 	work(cf)
 	wg.Wait()
 	return out
+}
+
+// sameDetector returns a new detector with the settings of cf (nil for
+// nil): the multipliers it solves are those cf solves, bit for bit, but
+// its scratch buffers and caches are its own.
+func sameDetector(cf *dsp.CFAR) *dsp.CFAR {
+	if cf == nil {
+		return nil
+	}
+	c := &dsp.CFAR{PFA: cf.PFA, Guard: cf.Guard, Train: cf.Train, Rank: cf.Rank, Rho: cf.Rho,
+		Variant: cf.Variant, Censor: cf.Censor}
+	c.Spacing()
+	return c
 }
