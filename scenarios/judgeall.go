@@ -71,7 +71,7 @@ func sameDetector(cf *dsp.CFAR) *dsp.CFAR {
 		return nil
 	}
 	c := &dsp.CFAR{PFA: cf.PFA, Guard: cf.Guard, Train: cf.Train, Rank: cf.Rank, Rho: cf.Rho,
-		Variant: cf.Variant, Censor: cf.Censor}
+		Variant: cf.Variant, Censor: cf.Censor, Pulses: cf.Pulses}
 	c.Spacing()
 	return c
 }

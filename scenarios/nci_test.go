@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"math"
+	"reflect"
 	"strconv"
 	"strings"
 	"testing"
@@ -276,5 +277,58 @@ func TestPdStrongFluct(t *testing.T) {
 				}
 			}
 		}
+	}
+}
+
+// TestNCIManyTargetsSameVerdicts: with many targets (judged on several
+// goroutines, each with its own copy of the detector) every target's
+// verdict equals the one it gets alone in the same scene with the other
+// targets far away: the copies integrate as the original does. Four
+// identical steady targets 2 km apart at 6 dB per pulse, 10 pulses,
+// CA-CFAR with 64 guard and 16 training cells at 4 samples per 1/B: the
+// decorrelation lattice keeps one cell a side (its spacing exceeds the 8
+// cells of a side), so each needs 8.586 dB (dsp's series for M = 2; a
+// copy of the detector without the pulses would ask the single-pulse
+// multiplier instead) and all have the same Pd.
+func TestNCIManyTargetsSameVerdicts(t *testing.T) {
+	var ts []string
+	for i := range 4 {
+		b, _ := json.Marshal(map[string]any{"id": "t" + strconv.Itoa(i), "kind": "point", "range_m": 4000 + 2000*i, "rcs_dbsm": rcsFor(6, 4000+2000*float64(i))})
+		ts = append(ts, string(b))
+	}
+	res := mustEvaluate(t, mustDecode(t, nciScene(10, `{"kind":"taylor"}`, `{"kind":"ca_cfar","pfa":1e-6,"guard_cells":64,"training_cells":16}`, ts...)))
+	for _, tr := range res.Report.Targets {
+		if tr.SNRRequiredDB == nil || math.Abs(*tr.SNRRequiredDB-8.586) > 0.01 || tr.Pd == nil {
+			t.Errorf("%s: snr_required_db %v, pd %v; want 8.586 dB (10 pulses, 2 CA cells, Pfa 1e-6) and a Pd", tr.ID, ptrVal(tr.SNRRequiredDB), ptrVal(tr.Pd))
+		}
+	}
+	p0 := *res.Report.Targets[0].Pd
+	for _, tr := range res.Report.Targets[1:] {
+		if math.Abs(*tr.Pd-p0) > 0.03 { // straddle differs by range
+			t.Errorf("%s: pd %.4f, t0 %.4f: want alike", tr.ID, *tr.Pd, p0)
+		}
+	}
+}
+
+// TestSameDetectorCopiesEverySetting: the detector copies the scene's
+// judging goroutines use (sameDetector) carry every exported setting of
+// the original, the integrated pulses included, so that they solve the
+// same multipliers (a copy without Pulses would train on every cell with
+// the single-pulse multiplier).
+func TestSameDetectorCopiesEverySetting(t *testing.T) {
+	orig := &dsp.CFAR{PFA: 1e-5, Guard: 3, Train: 12, Rank: 0, Rho: []complex128{1, 0.5}, Variant: dsp.CellAveraging, Censor: 2, Pulses: 10}
+	c := sameDetector(orig)
+	ov, cv := reflect.ValueOf(orig).Elem(), reflect.ValueOf(c).Elem()
+	for i := range ov.NumField() {
+		f := ov.Type().Field(i)
+		if !f.IsExported() {
+			continue
+		}
+		if !reflect.DeepEqual(ov.Field(i).Interface(), cv.Field(i).Interface()) {
+			t.Errorf("sameDetector: field %s is %v, the original's %v", f.Name, cv.Field(i).Interface(), ov.Field(i).Interface())
+		}
+	}
+	if a, b := c.Multiplier(6), orig.Multiplier(6); a != b {
+		t.Errorf("multiplier for 6 cells: copy %g, original %g", a, b)
 	}
 }
