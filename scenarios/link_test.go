@@ -53,7 +53,7 @@ func TestBadLinks(t *testing.T) {
 		{"truncated", good[:len(good)/2], "cut short"},
 		{"corrupt", "#s=" + base64.RawURLEncoding.EncodeToString([]byte{0xff, 0xfe, 0x00, 0x12, 0x34}), "corrupt"},
 		{"bomb", bomb, "inflates past the limit"},
-		{"unknown version", deflateLink(t, []byte(`{"version":7,"waveform":{"kind":"rect","pulse_width_s":1e-6}}`)), "version: 7 is not supported (supported versions: 1, 2)"},
+		{"unknown version", deflateLink(t, []byte(`{"version":7,"waveform":{"kind":"rect","pulse_width_s":1e-6}}`)), "version: 7 is not supported (supported versions: 1, 2, 3)"},
 		{"invalid scenario", deflateLink(t, []byte(`{"version":2,"waveform":{"kind":"rect","pulse_width_s":-1}}`)), "waveform.pulse_width_s: -1 must be above 0"},
 		{"oversized", "#s=" + strings.Repeat("A", maxLinkChars+1), "exceed the limit"},
 	}
