@@ -46,7 +46,7 @@ func TestRoutes(t *testing.T) {
 		{"links", "POST", "/api/v1/links", demo, nil, 200, `"link":"/#s=`},
 		{"links invalid", "POST", "/api/v1/links", invalid, nil, 400, `not a Barker length`},
 		{"demos", "GET", "/api/v1/demos", "", nil, 200, `"name":"harbour-skiff"`},
-		{"demo canonical", "GET", "/api/v1/demos/rocky-coast", "", nil, 200, `{"version":2,"name":"Patrol boat`},
+		{"demo canonical", "GET", "/api/v1/demos/rocky-coast", "", nil, 200, `{"version":3,"name":"Patrol boat`},
 		{"demo full", "GET", "/api/v1/demos/rocky-coast?form=full", "", nil, 200, `"sample_rate_hz":10000000`},
 		{"demo bad form", "GET", "/api/v1/demos/rocky-coast?form=xml", "", nil, 400, `want canonical or full`},
 		{"demo missing", "GET", "/api/v1/demos/nope", "", nil, 404, `known: closing-jet`},
