@@ -64,7 +64,7 @@ func badScenes(t *testing.T) []struct {
 		name, path string
 		doc        []byte
 	}{
-		{"version-3", "version", demoWith(t, func(m map[string]any) { m["version"] = 3 })},
+		{"version-4", "version", demoWith(t, func(m map[string]any) { m["version"] = 4 })},
 		{"unknown-top", "colour", demoWith(t, func(m map[string]any) { m["colour"] = "red" })},
 		{"unknown-nested", "mti", demoWith(t, func(m map[string]any) { m["receiver"] = map[string]any{"mti": "four_pulse"} })},
 	}

@@ -10,7 +10,7 @@ import { describeFields } from './words.js';
 const MaxDocumentBytes = 4 << 20;
 
 // The scenario format versions a link may hold (scenarios.supportedVersions).
-export const ScenarioVersions = [1, 2];
+export const ScenarioVersions = [1, 2, 3];
 
 export class LinkError extends Error {}
 
@@ -65,7 +65,7 @@ export async function decodeLink(enc) {
   if (!s || typeof s !== 'object' || Array.isArray(s)) throw new LinkError('the link does not hold a scenario object');
   // Version 1 links are read too: the server upgrades them, and the
   // report's warnings name any verdict the version 2 rules change.
-  if (!ScenarioVersions.includes(s.version)) throw new LinkError(`the link holds scenario format version ${JSON.stringify(s.version)}; this page reads versions ${ScenarioVersions.join(' and ')}`);
+  if (!ScenarioVersions.includes(s.version)) throw new LinkError(`the link holds scenario format version ${JSON.stringify(s.version)}; this page reads versions ${ScenarioVersions.slice(0, -1).join(', ')} and ${ScenarioVersions.at(-1)}`);
   return s;
 }
 
