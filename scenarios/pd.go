@@ -109,8 +109,7 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 // construction, on the ordered statistic's lattice), split into the
 // leading and lagging halves, or counted with the censoring scaled to
 // them as the plan does, and the multiplier that holds Pfa for exactly
-// those cells. A censored CFAR has a Pd for Swerling 1 and 2 targets only
-// (dsp.VariantPd); for others false (the threshold decides).
+// those cells (dsp.VariantPd: every fluctuation).
 func (m *model) variantTest(det dsp.Detector, v verdict) (pdTest, bool) {
 	d := m.s.Receiver.Detector
 	cf := m.detector()
@@ -132,9 +131,6 @@ func (m *model) variantTest(det dsp.Detector, v verdict) (pdTest, bool) {
 			t.alpha = dsp.SOMultiplier(d.PFA, t.n1, t.n2)
 		}
 	case dsp.Censored:
-		if det.Swerling != dsp.Swerling1 && det.Swerling != dsp.Swerling2 {
-			return pdTest{}, false
-		}
 		n := len(offs)
 		c := 0
 		if d.TrainingCells > 0 {

@@ -140,8 +140,6 @@ func noPdWords(g *tgt, d Detector) string {
 	switch {
 	case g.t.Kind != TargetPoint:
 		return "an extended or volume return has no Pd here, so its noise-free peak against the threshold decides"
-	case d.Kind == DetectorCens && swerling(g.t.Fluctuation) != dsp.Swerling1 && swerling(g.t.Fluctuation) != dsp.Swerling2:
-		return "no Pd form for a steady or Swerling 3/4 target behind the " + detectorName(d) + " here, so the noise-free peak against the threshold decides"
 	case d.Kind == DetectorGO || d.Kind == DetectorSO || d.Kind == DetectorCens:
 		return "no Pd for the " + detectorName(d) + " on a range–Doppler map here, so the noise-free peak against the threshold decides"
 	}

@@ -297,8 +297,8 @@ func TestTrialsFalseAlarmRate(t *testing.T) {
 // cannot beat the same target against a known noise level (the
 // Neyman–Pearson test of its cell alone); its report pd (GO and SO:
 // E_X[F(X)] by Simpson's rule, docs/detection-probability.md §3) must lie
-// inside the trials' interval. A censored CFAR has no steady-target Pd:
-// the report leaves it out and the threshold decides.
+// inside the trials' interval; behind the censored CFAR too (the race of
+// the kept sum's exponential stages, dsp.VariantPd).
 func TestTrialsCFARVariants(t *testing.T) {
 	const (
 		n   = 2000
@@ -352,17 +352,12 @@ func TestTrialsCFARVariants(t *testing.T) {
 		}
 		r := rep.Targets[1].Pd
 		switch {
-		case r == nil && kind != "censored_cfar":
+		case r == nil:
 			t.Errorf("%s: no pd for the steady target", kind)
-		case r != nil && kind == "censored_cfar":
-			t.Errorf("%s: a steady target's pd %.4f, but there is no form for it", kind, *r)
-		case r != nil:
+		default:
 			if ok, lo, hi := inside(*r, c.Detections[1], n); !ok {
 				t.Errorf("%s: steady target's analytic pd %.4f outside [%.4f, %.4f]", kind, *r, lo, hi)
 			}
-		}
-		if kind == "censored_cfar" && rep.Targets[1].DecidedOn != "threshold" {
-			t.Errorf("censored: steady target decided on %q, want threshold", rep.Targets[1].DecidedOn)
 		}
 		if slo > known {
 			t.Errorf("%s: steady target beats the known-noise detector: [%.4f, %.4f] above %.4f", kind, slo, shi, known)
