@@ -140,8 +140,10 @@ func noPdWords(g *tgt, d Detector) string {
 	switch {
 	case g.t.Kind != TargetPoint:
 		return "an extended or volume return has no Pd here, so its noise-free peak against the threshold decides"
-	case d.Kind == DetectorGO || d.Kind == DetectorSO || d.Kind == DetectorCens:
-		return "no Pd for the " + detectorName(d) + " on a range–Doppler map here, so the noise-free peak against the threshold decides"
+	case swerling(g.t.Fluctuation) == dsp.Swerling4 && d.Kind == DetectorCens:
+		return "no Pd for a Swerling 4 target behind the " + detectorName(d) + " on a range–Doppler map here, so the noise-free peak against the threshold decides"
+	case swerling(g.t.Fluctuation) == dsp.Swerling4:
+		return "no Pd for a Swerling 4 target on a staggered train's map here, so the noise-free peak against the threshold decides"
 	}
 	return "no closed-form Pd applies here, so the noise-free peak against the threshold decides"
 }
