@@ -232,6 +232,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 			Status:            v.status,
 			ThresholdMarginDB: v.margin(),
 			DecidedOn:         v.rule,
+			cancelled:         v.status == StatusTooWeak && v.cancelled,
 		}
 		if g.t.Kind != TargetPoint && v.peakK >= 0 {
 			tr.RangeM = m.rangeOf(float64(v.peakK))

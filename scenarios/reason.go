@@ -40,7 +40,7 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		if v.rule == rulePd {
 			return fmt.Sprintf("Detected: %s; its peak, %.1f dB above noise, clears the %s threshold by %.1f dB.", sc.pdWords(g, v, tr, true), dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold)) + inCellWords(v) + sc.lossWords(g)
 		}
-		return fmt.Sprintf("Detected: its peak, %.1f dB above noise, clears the %s threshold by %.1f dB (%s).", dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold), noPdWords(g, m.s.Receiver.Detector)) + sc.lossWords(g)
+		return fmt.Sprintf("Detected: its peak, %.1f dB above noise, clears the %s threshold by %.1f dB (%s).", dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold), noPdWords(g, m.s)) + sc.lossWords(g)
 	case StatusFolded:
 		out := fmt.Sprintf("Folded: it lies beyond the unambiguous range of %s, so the echo from %s arrives after the next pulse and shows at an apparent %s, inside the window, where it looks like a target at that range.", km(m.unambM), km(g.rangeM), km(g.apparent))
 		if v.hasPd && v.sceneOK {
@@ -83,12 +83,8 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 			return fmt.Sprintf("Too weak: its Doppler shift of %s lies outside the receiver's band of ±%s, which rejects its echo entirely.", hz(g.fd), hz(m.fs/2))
 		}
 		if v.cancelled {
-			mti := "two-pulse"
-			if m.s.Receiver.MTI == MTIThreePulse {
-				mti = "three-pulse"
-			}
 			_, p0 := g.resp.peakIn(m.processed)
-			return fmt.Sprintf("Too weak: the %s MTI canceller removes it. At zero Doppler its echo is the same on every pulse, and the canceller's response is zero there, as at every multiple of the PRF (the blind speeds), so none of it reaches the range–Doppler map; in a single pulse its peak is %.1f dB above noise.", mti, dsp.DB(p0))
+			return fmt.Sprintf("Too weak: the %s removes it. At zero Doppler its echo is the same on every pulse, and the canceller's response is zero there, as at every multiple of the PRF (the blind speeds), so none of it reaches the range–Doppler map; in a single pulse its peak is %.1f dB above noise.", cancellerWords(m.s.Receiver.MTI), dsp.DB(p0))
 		}
 		if math.IsInf(v.noiseLevel, 1) {
 			return fmt.Sprintf("Too weak: its peak is %.1f dB above noise, but the %s has no training cells around it in this receive window, so it cannot detect there; widen the window or use fewer training cells.", dsp.DB(v.peak), det) + sc.lossWords(g)
@@ -96,7 +92,7 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		if v.rule == rulePd {
 			return fmt.Sprintf("Too weak: even against noise alone %s.", sc.pdWords(g, v, tr, false)) + inCellWords(v) + sc.lossWords(g)
 		}
-		return fmt.Sprintf("Too weak: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone (%s).", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel), noPdWords(g, m.s.Receiver.Detector)) + sc.lossWords(g)
+		return fmt.Sprintf("Too weak: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone (%s).", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel), noPdWords(g, m.s)) + sc.lossWords(g)
 	}
 	return sc.maskedReason(g, v, tr)
 }
@@ -136,13 +132,15 @@ func fluctuationWords(f string) string {
 }
 
 // noPdWords says why the threshold rather than Pd decided a status.
-func noPdWords(g *tgt, d Detector) string {
+func noPdWords(g *tgt, s *Scenario) string {
+	d := s.Receiver.Detector
+	train := s.Radar.Pulses > 1
 	switch {
 	case g.t.Kind != TargetPoint:
 		return "an extended or volume return has no Pd here, so its noise-free peak against the threshold decides"
-	case swerling(g.t.Fluctuation) == dsp.Swerling4 && d.Kind == DetectorCens:
+	case train && swerling(g.t.Fluctuation) == dsp.Swerling4 && d.Kind == DetectorCens:
 		return "no Pd for a Swerling 4 target behind the " + detectorName(d) + " on a range–Doppler map here, so the noise-free peak against the threshold decides"
-	case swerling(g.t.Fluctuation) == dsp.Swerling4:
+	case train && swerling(g.t.Fluctuation) == dsp.Swerling4 && len(s.Radar.PRIStaggerS) > 0:
 		return "no Pd for a Swerling 4 target on a staggered train's map here, so the noise-free peak against the threshold decides"
 	}
 	return "no closed-form Pd applies here, so the noise-free peak against the threshold decides"
