@@ -663,7 +663,8 @@ def goso_cdf(x, n1, n2, a, kind):
 def goso_pfa(a, n1, n2, kind):
     """E over the unit-exponential cell under test: int e^-x dF(x) = int F(x) e^-x dx."""
     f = lambda x: goso_cdf(x, n1, n2, a, kind) * math.exp(-x)
-    edges = [0, a / 4, a, 4 * a, 16 * a, 64 * a, np.inf]
+    # e^-x falls on the scale 1, F rises on the scale a: edges on both
+    edges = sorted({0.0, 1.0, 4.0, 16.0, 64.0, 256.0, a / 4, a, 4 * a, 16 * a, 64 * a}) + [np.inf]
     return sum(integrate.quad(f, lo, hi, limit=200, epsabs=0, epsrel=1e-11)[0] for lo, hi in zip(edges, edges[1:]))
 
 
