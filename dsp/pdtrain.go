@@ -217,3 +217,36 @@ func (t *TrainChi4) PdThreshold(chi float64, cdf func(x float64) float64) float6
 	}
 	return math.Min(math.Max(sum*h/3+tail, 0), 1)
 }
+
+// PdCA returns the Pd behind a cell-averaging CFAR of m independent
+// cells with multiplier alpha on their mean: E_S[Survival(χ, α·S/m)],
+// S ~ Gamma(m, 1), by Simpson's rule in S over the mean ± 14 standard
+// deviations (√m) and 10 more, 400 intervals. The same value as
+// PdThreshold with the gamma CDF (within 2·10⁻¹¹ on the golden cases) at a
+// fraction of the cost: the reference sum's law is narrow and smooth.
+func (t *TrainChi4) PdCA(chi float64, m int, alpha float64) float64 {
+	fm := float64(m)
+	sd := math.Sqrt(fm)
+	lo := math.Max(0, fm-14*sd-10)
+	hi := fm + 14*sd + 10
+	const n = 400
+	h := (hi - lo) / n
+	lg, _ := math.Lgamma(fm)
+	sum := 0.0
+	for i := 0; i <= n; i++ {
+		w := 2.0
+		switch {
+		case i == 0 || i == n:
+			w = 1
+		case i%2 == 1:
+			w = 4
+		}
+		s := lo + float64(i)*h
+		if s <= 0 {
+			continue
+		}
+		dens := math.Exp((fm-1)*math.Log(s) - s - lg)
+		sum += w * dens * t.Survival(chi, alpha*s/fm)
+	}
+	return math.Min(math.Max(sum*h/3, 0), 1)
+}

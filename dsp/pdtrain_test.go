@@ -185,6 +185,11 @@ func TestTrainChi4Golden(t *testing.T) {
 		if math.Abs(got-c.Pd) > 1e-7 {
 			t.Errorf("CA-CFAR %d cells, %d pulses, %g dB: %.10f, golden %.10f", c.Cells, len(c.Weights), c.SNRDB, got, c.Pd)
 		}
+		ca := law.PdCA(FromDB(c.SNRDB), c.Cells, alpha)
+		worst = math.Max(worst, math.Abs(ca-c.Pd))
+		if math.Abs(ca-c.Pd) > 1e-9 {
+			t.Errorf("PdCA, %d cells, %d pulses, %g dB: %.12f, golden %.12f", c.Cells, len(c.Weights), c.SNRDB, ca, c.Pd)
+		}
 	}
 	t.Logf("largest difference %.2g", worst)
 }
@@ -211,6 +216,11 @@ func BenchmarkTrainChi4(b *testing.B) {
 	b.Run("ca132", func(b *testing.B) {
 		for range b.N {
 			law.PdThreshold(chi, func(x float64) float64 { return mathext.GammaIncReg(m, m*x/alpha) })
+		}
+	})
+	b.Run("ca132-PdCA", func(b *testing.B) {
+		for range b.N {
+			law.PdCA(chi, 132, alpha)
 		}
 	})
 	d := Detector{Pfa: 1e-6, Pulses: 1, Integration: Coherent, Swerling: Swerling4, CFARCells: 132}

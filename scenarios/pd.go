@@ -236,6 +236,10 @@ func (t pdTest) pdChi4(snr, r float64) (float64, bool) {
 	if t.det.CFARCells == 0 {
 		return t.chi4.Survival(snr, -r*math.Log(t.det.Pfa)), true
 	}
+	if t.variant == dsp.CellAveraging && t.det.OSRank == 0 {
+		m := float64(t.det.CFARCells)
+		return t.chi4.PdCA(snr, t.det.CFARCells, r*m*math.Expm1(-math.Log(t.det.Pfa)/m)), true
+	}
 	cdf := t.thresholdCDF(r)
 	if cdf == nil {
 		return 0, false
