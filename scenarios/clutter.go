@@ -267,6 +267,11 @@ type clutterScene struct {
 	any   bool
 	cells []int   // per target: crossing cells (clutter objects only)
 	gates [][]int // per target: gates with a crossing, ascending
+	// th is the single-pulse scene level at every gate (ThresholdsValid
+	// of 1 + the scene's power, processed gates training), linear, when
+	// the breakthrough test needed it; the plotted threshold is the same
+	// computation and reuses it (levels).
+	th []float64
 }
 
 // clutterAt returns the clutter power at gate k re noise, single pulse,
@@ -327,7 +332,7 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 	}
 	if sc.train == nil {
 		var th []float64
-		for k := range m.n {
+		for k := range sc.clutterGates() { // elsewhere no clutter object is dominant
 			if !m.processed[k] {
 				continue
 			}
@@ -343,6 +348,7 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 						p[i] = 1 + sc.total[i]
 					}
 					th = cf.ThresholdsValid(nil, p, m.processed)
+					cs.th = th
 				}
 				level = th[k]
 			}
@@ -644,7 +650,7 @@ func (sc *scene) clutterSummary(cs *clutterScene) *ClutterSummary {
 		out.BreakthroughCells += c
 	}
 	best, bk := 0.0, -1
-	for k := range m.n {
+	for k := range sc.clutterGates() { // elsewhere the clutter power is 0
 		if !m.processed[k] {
 			continue
 		}
@@ -659,7 +665,7 @@ func (sc *scene) clutterSummary(cs *clutterScene) *ClutterSummary {
 	}
 	if sc.train != nil {
 		best := 0.0
-		for k := range m.n {
+		for k := range sc.clutterGates() {
 			if !m.processed[k] || sc.clutterAt(k, -1) <= 0 {
 				continue
 			}

@@ -58,6 +58,38 @@ type CPITarget struct {
 	ApparentRangeRateMPS *float64 `json:"apparent_range_rate_mps,omitempty"` // CPIs of more than one pulse: the Doppler bin's range rate
 	BlindSpeed           *bool    `json:"blind_speed,omitempty"`
 	Reason               string   `json:"reason"`
+	// cancelledBy names the MTI canceller that removes it in this CPI
+	// ("two-pulse MTI canceller"; docs/detection.md §6 step 3), "" when
+	// none does. Not in the report format: its reason says so.
+	cancelledBy string
+}
+
+// CancelledBy returns the MTI canceller that removes t in its CPI, a
+// zero-Doppler point target whose status is too_weak for that reason
+// ("two-pulse MTI canceller"), or "" when no canceller removes it.
+func (t CPITarget) CancelledBy() string { return t.cancelledBy }
+
+// CPIStatusWords says in a few words how target t fares in its CPI, for a
+// schedule's summary: "detected", "eclipsed", "at a blind speed",
+// "cancelled by the two-pulse MTI canceller" (rather than "too weak": the
+// canceller, not its SNR, loses it).
+func CPIStatusWords(t CPITarget) string {
+	switch {
+	case t.cancelledBy != "":
+		return "cancelled by the " + t.cancelledBy
+	case !t.Detected && t.BlindSpeed != nil && *t.BlindSpeed:
+		return "at a blind speed"
+	}
+	return strings.ReplaceAll(t.Status, "_", " ")
+}
+
+// cancellerWords names the MTI canceller of receiver.mti mti:
+// "two-pulse MTI canceller".
+func cancellerWords(mti string) string {
+	if mti == MTIThreePulse {
+		return "three-pulse MTI canceller"
+	}
+	return "two-pulse MTI canceller"
 }
 
 // ScheduleTarget is one target's combined verdict.
@@ -199,6 +231,9 @@ func evalSchedule(ctx context.Context, s *Scenario, base *model) (*ScheduleRepor
 			g := sc.targets[j]
 			ct := CPITarget{ID: tr.ID, Status: tr.Status, Detected: tr.Status == StatusDetected, MarginDB: tr.MarginDB, Pd: tr.Pd,
 				BlindSpeed: tr.BlindSpeed, Reason: tr.Reason}
+			if tr.cancelled {
+				ct.cancelledBy = cancellerWords(t.Receiver.MTI)
+			}
 			if g.t.Kind == TargetPoint {
 				ct.Folds = folds[j]
 				if a := g.apparent + tr.RangeShiftM; a >= r.WindowStartM && a <= r.WindowStopM {
@@ -390,7 +425,8 @@ func candidateWords(measurements, n int, what, within string) string {
 }
 
 // lostIn names the CPIs that do not detect target j and why, in a few
-// words: "CPI 2 eclipsed, CPI 3 at a blind speed".
+// words: "CPI 2 eclipsed, CPI 3 at a blind speed, CPI 4 cancelled by the
+// two-pulse MTI canceller".
 func lostIn(cpis []CPIReport, j int) string {
 	var out []string
 	for k, c := range cpis {
@@ -398,11 +434,7 @@ func lostIn(cpis []CPIReport, j int) string {
 		if t.Detected {
 			continue
 		}
-		w := t.Status
-		if t.BlindSpeed != nil && *t.BlindSpeed {
-			w = "at a blind speed"
-		}
-		out = append(out, fmt.Sprintf("CPI %d %s", k+1, strings.ReplaceAll(w, "_", " ")))
+		out = append(out, fmt.Sprintf("CPI %d %s", k+1, CPIStatusWords(t)))
 	}
 	return strings.Join(out, ", ")
 }

@@ -213,9 +213,10 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 	}
 	schedBudget := scheduleBudget(m)
 	out := make([]TargetReport, len(sc.targets))
-	sc.clutter = sc.analyseClutter(cf, cf2)
+	// The clutter analysis reads no verdict: it runs beside the judging.
+	verdicts := sc.judgeAll(cf, func(c *dsp.CFAR) { sc.clutter = sc.analyseClutter(c, cf2) })
 	for j, g := range sc.targets {
-		v := sc.judge(j, cf)
+		v := verdicts[j]
 		single := v
 		bin := -1
 		if sc.train != nil {
@@ -232,6 +233,7 @@ func (sc *scene) targetReports(ctx context.Context, m *model, suggest bool) []Ta
 			Status:            v.status,
 			ThresholdMarginDB: v.margin(),
 			DecidedOn:         v.rule,
+			cancelled:         v.status == StatusTooWeak && v.cancelled,
 		}
 		if g.t.Kind != TargetPoint && v.peakK >= 0 {
 			tr.RangeM = m.rangeOf(float64(v.peakK))
@@ -420,11 +422,17 @@ func (sc *scene) levels(s *Series) {
 	m := sc.m
 	s.CleanDB, s.ThresholdDB = make([]float64, m.n), make([]float64, m.n)
 	if cf := m.detector(); cf != nil {
-		p := s.CleanDB // holds 1 + total until the dB values below
-		for k := range p {
-			p[k] = 1 + sc.total[k]
+		var th []float64
+		if sc.clutter != nil && sc.clutter.th != nil { // the same computation, done for the breakthrough
+			th = s.ThresholdDB
+			copy(th, sc.clutter.th)
+		} else {
+			p := s.CleanDB // holds 1 + total until the dB values below
+			for k := range p {
+				p[k] = 1 + sc.total[k]
+			}
+			th = cf.ThresholdsValid(s.ThresholdDB, p, m.processed)
 		}
-		th := cf.ThresholdsValid(s.ThresholdDB, p, m.processed)
 		for k, ok := range m.processed { // no training cell: no threshold
 			if !ok || math.IsInf(th[k], 1) {
 				th[k] = 0

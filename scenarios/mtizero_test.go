@@ -1,6 +1,8 @@
 package scenarios
 
 import (
+	"context"
+	"fmt"
 	"strings"
 	"testing"
 )
@@ -60,6 +62,41 @@ func TestMTIZeroDopplerPartlyEclipsed(t *testing.T) {
 			t.Errorf("no MTI: wholly eclipsed (%s); the test's geometry is wrong", a.Reason)
 		case mti != "none" && (a.Status != StatusTooWeak || !strings.Contains(a.Reason, "MTI canceller")):
 			t.Errorf("%s: status %s (%s), want too_weak naming the MTI canceller", mti, a.Status, a.Reason)
+		}
+	}
+}
+
+// TestScheduleNamesMTICancellation: in a PRF schedule, the summary of a
+// zero-Doppler target behind an MTI canceller says which canceller
+// removes it in each CPI ("CPI 1 cancelled by the two-pulse MTI
+// canceller"), as the report's reason does (docs/detection.md §6 step
+// 3), not "too weak", which reads as a target short of SNR. A target
+// at a non-zero blind speed keeps its words ("at a blind speed").
+func TestScheduleNamesMTICancellation(t *testing.T) {
+	for _, c := range []struct{ mti, words string }{{"two_pulse", "two-pulse"}, {"three_pulse", "three-pulse"}} {
+		doc := trainScene(`{"kind":"none"}`, c.mti, pointJSON("zero", 6000, rcsFor(20, 6000)))
+		doc = strings.Replace(doc, `"radar":{`, `"radar":{"schedule":{"cpis":[{"pri_s":1.2e-4}]},`, 1)
+		rep, err := Analyse(context.Background(), mustDecode(t, doc))
+		if err != nil {
+			t.Fatal(err)
+		}
+		if rep.Schedule == nil || len(rep.Schedule.Targets) != 1 {
+			t.Fatalf("%s: no schedule report for the one target: %+v", c.mti, rep.Schedule)
+		}
+		st := rep.Schedule.Targets[0]
+		for k := 1; k <= 2; k++ {
+			want := fmt.Sprintf("CPI %d cancelled by the %s MTI canceller", k, c.words)
+			if !strings.Contains(st.Reason, want) {
+				t.Errorf("%s: schedule reason %q does not say %q", c.mti, st.Reason, want)
+			}
+		}
+		if strings.Contains(st.Reason, "too weak") {
+			t.Errorf("%s: schedule reason calls the cancelled target too weak: %q", c.mti, st.Reason)
+		}
+		for k, cr := range rep.Schedule.CPIs {
+			if w := CPIStatusWords(cr.Targets[0]); w != "cancelled by the "+c.words+" MTI canceller" {
+				t.Errorf("%s: CPI %d status words %q", c.mti, k+1, w)
+			}
 		}
 	}
 }

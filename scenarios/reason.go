@@ -83,12 +83,8 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 			return fmt.Sprintf("Too weak: its Doppler shift of %s lies outside the receiver's band of ±%s, which rejects its echo entirely.", hz(g.fd), hz(m.fs/2))
 		}
 		if v.cancelled {
-			mti := "two-pulse"
-			if m.s.Receiver.MTI == MTIThreePulse {
-				mti = "three-pulse"
-			}
 			_, p0 := g.resp.peakIn(m.processed)
-			return fmt.Sprintf("Too weak: the %s MTI canceller removes it. At zero Doppler its echo is the same on every pulse, and the canceller's response is zero there, as at every multiple of the PRF (the blind speeds), so none of it reaches the range–Doppler map; in a single pulse its peak is %.1f dB above noise.", mti, dsp.DB(p0))
+			return fmt.Sprintf("Too weak: the %s removes it. At zero Doppler its echo is the same on every pulse, and the canceller's response is zero there, as at every multiple of the PRF (the blind speeds), so none of it reaches the range–Doppler map; in a single pulse its peak is %.1f dB above noise.", cancellerWords(m.s.Receiver.MTI), dsp.DB(p0))
 		}
 		if math.IsInf(v.noiseLevel, 1) {
 			return fmt.Sprintf("Too weak: its peak is %.1f dB above noise, but the %s has no training cells around it in this receive window, so it cannot detect there; widen the window or use fewer training cells.", dsp.DB(v.peak), det) + sc.lossWords(g)

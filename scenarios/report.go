@@ -109,6 +109,10 @@ type TargetReport struct {
 	// threshold, where no Pd series applies); omitted for statuses that
 	// neither decides (out_of_window, folded, wholly eclipsed).
 	DecidedOn string `json:"decided_on,omitempty"`
+	// cancelled: too_weak because the MTI canceller removes it (zero
+	// Doppler; docs/detection.md §6 step 3). Not in the report format:
+	// the reason says so; a PRF schedule's summary uses it.
+	cancelled bool
 	ClutterFigures
 }
 

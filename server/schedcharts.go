@@ -238,6 +238,9 @@ func scheduleTable(sr *scenarios.ScheduleReport) *scheduleData {
 		for _, c := range sr.CPIs {
 			ct := c.Targets[j]
 			cell := strings.ReplaceAll(ct.Status, "_", " ")
+			if c := ct.CancelledBy(); c != "" {
+				cell = "cancelled by the " + c
+			}
 			if ct.Detected && ct.ApparentRangeM != nil {
 				cell += fmt.Sprintf(" at %.2f km", *ct.ApparentRangeM/1000)
 			}

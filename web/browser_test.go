@@ -251,13 +251,24 @@ func TestPageLoadsWithPlots(t *testing.T) {
 	shot(t, ctx, "")
 }
 
-// typeInto replaces the text of the input at sel as a user would.
+// typeInto replaces the text of the input at sel as a user would: it
+// focuses the input, selects its text and sends one key event per
+// character to the focused element.
+//
+// It does not use chromedp.SendKeys: in chromedp v0.23 SendKeys reads the
+// node's attribute slice before taking the node's lock, while the tab's
+// event goroutine rewrites that slice whenever the page changes an
+// attribute of the input (the editor does, on every frame), a data race
+// that `go test -race` reports. chromedp.KeyEvent sends the same key events
+// without touching chromedp's node cache.
 func typeInto(t *testing.T, ctx context.Context, sel, text string) {
 	t.Helper()
+	waitFor(t, ctx, "the input "+sel, fmt.Sprintf(`(() => { const e = document.querySelector(%q);
+		return !!e && e.offsetParent !== null && !e.disabled; })()`, sel))
 	do(t, ctx,
-		chromedp.Focus(chromedp.CSS(sel)),
-		chromedp.Evaluate[chromedp.Void](fmt.Sprintf(`document.querySelector(%q).select()`, sel)),
-		chromedp.SendKeys(chromedp.CSS(sel), text))
+		chromedp.Evaluate[chromedp.Void](fmt.Sprintf(`(() => { const e = document.querySelector(%q);
+			e.focus(); if (e.select) e.select(); })()`, sel)),
+		chromedp.KeyEvent(text))
 }
 
 func TestEditRangeMovesMarker(t *testing.T) {

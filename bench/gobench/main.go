@@ -139,14 +139,6 @@ func compress(xf, hf string, reps, workers int, cold bool, out string) error {
 	return report(tm)
 }
 
-// target is the part of a target report that ref.py cross-checks.
-type target struct {
-	ID       string   `json:"id"`
-	Status   string   `json:"status"`
-	RangeM   float64  `json:"range_m"`
-	MarginDB *float64 `json:"margin_db"`
-}
-
 func evaluate(file string, reps int, out string) error {
 	data, err := os.ReadFile(file)
 	if err != nil {
@@ -228,9 +220,14 @@ func trials(file string, n, reps, workers int) error {
 	return report(tm)
 }
 
+// writeResult writes what ref.py evaluate cross-checks: the raw record
+// the compression used (go_echo.cf64: the n gates' samples and the m−1
+// recorded past the window's end, docs/detection.md §1; Series.Echo is
+// the first n of them, the rest sit in its backing array), the plot
+// series and the report's targets (every field, as the report has them).
 func writeResult(dir string, res *scenarios.Result) error {
 	se := res.Series
-	if err := writeCf64(filepath.Join(dir, "go_echo.cf64"), se.Echo); err != nil {
+	if err := writeCf64(filepath.Join(dir, "go_echo.cf64"), se.Echo[:cap(se.Echo)]); err != nil {
 		return err
 	}
 	for name, v := range map[string][]float64{"go_profile_db": se.ProfileDB, "go_clean_db": se.CleanDB, "go_threshold_db": se.ThresholdDB} {
@@ -238,11 +235,7 @@ func writeResult(dir string, res *scenarios.Result) error {
 			return err
 		}
 	}
-	var ts []target
-	for _, t := range res.Report.Targets {
-		ts = append(ts, target{ID: t.ID, Status: t.Status, RangeM: t.RangeM, MarginDB: t.MarginDB})
-	}
-	b, err := json.MarshalIndent(ts, "", " ")
+	b, err := json.MarshalIndent(res.Report.Targets, "", " ")
 	if err != nil {
 		return err
 	}

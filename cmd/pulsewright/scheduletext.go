@@ -51,6 +51,9 @@ func writeScheduleText(w io.Writer, s *scenarios.ScheduleReport, u scenarios.Uni
 		for _, c := range s.CPIs {
 			ct := c.Targets[j]
 			cell := ct.Status
+			if ct.CancelledBy() != "" {
+				cell = "cancelled" // by the MTI canceller: the reason names it
+			}
 			if ct.ApparentRangeM != nil && ct.Detected {
 				cell = fmt.Sprintf("%s @ %s", ct.Status, kmText(u, *ct.ApparentRangeM))
 			}

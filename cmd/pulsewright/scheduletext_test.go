@@ -41,3 +41,41 @@ func TestReportTextShowsSchedule(t *testing.T) {
 		}
 	}
 }
+
+// TestScheduleTextNamesCancellation: the schedule's text table and summary
+// call a zero-Doppler target behind an MTI canceller cancelled, naming the
+// canceller, as the report's reason does (docs/detection.md §6 step 3),
+// not too_weak.
+func TestScheduleTextNamesCancellation(t *testing.T) {
+	doc := `{"version":2,"radar":{"peak_power_w":1000,"sample_rate_hz":4e7,"pri_s":1e-4,"pulses":32,"window_start_m":3000,"window_stop_m":9000,
+		"schedule":{"cpis":[{"pri_s":1.2e-4}]}},
+		"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e7},
+		"receiver":{"mti":"two_pulse","window":{"kind":"none"},"detector":{"kind":"fixed","pfa":1e-6}},
+		"targets":[{"id":"still","kind":"point","range_m":6000,"rcs_dbsm":10}]}`
+	s, err := scenarios.Decode([]byte(doc))
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := scenarios.Analyse(context.Background(), s)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Schedule == nil {
+		t.Fatal("no schedule report")
+	}
+	var b bytes.Buffer
+	writeScheduleText(&b, r.Schedule, scenarios.SIUnits(), scenarios.Typed{})
+	out := b.String()
+	row := ""
+	for _, l := range strings.Split(out, "\n") {
+		if strings.HasPrefix(strings.TrimSpace(l), "still ") && !strings.Contains(l, "(schedule)") {
+			row = l // the table's row, not the reason's line
+		}
+	}
+	if strings.Count(row, "cancelled") != 2 || strings.Contains(row, "too_weak") {
+		t.Errorf("table row %q: want both CPIs cancelled\n%s", row, out)
+	}
+	if !strings.Contains(out, "CPI 1 cancelled by the two-pulse MTI canceller, CPI 2 cancelled by the two-pulse MTI canceller") {
+		t.Errorf("summary does not name the canceller:\n%s", out)
+	}
+}
