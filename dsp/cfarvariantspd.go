@@ -35,6 +35,30 @@ import (
 // Signal Processing, 2nd ed., Table 6.1), by Simpson's rule in x over
 // [0, 60(1+a)] (2 000 intervals).
 
+// Censored CFAR, steady and Swerling 3/4 targets (derived here): by
+// CensoredPfa's spacings the kept sum is Σ_{j=1}^{m} b_j·E_j, m = n − c,
+// b_j = (m−j+1)/(n−j+1), E_j independent unit exponentials, so the
+// threshold (α/m)·Σ b_j·E_j is a sum of m exponential stages of means
+// α·b_j/m — the reference of a CA-CFAR with correlated cells whose
+// covariance has the eigenvalues b_j (Detector.PdCorrelatedCA, whose
+// threshold is α·Σ ev_j·E_j/len(ev)). The race of those stages against
+// the test statistic's Gamma(1 + J) stages gives Pd exactly, as for the
+// ordered-statistic CFAR (docs/detection-probability.md §3); at zero SNR
+// it is CensoredPfa.
+func censoredRacePd(swerling int, chi, alpha float64, n, c int) float64 {
+	m := n - c
+	var buf [64]float64
+	b := buf[:0]
+	if m > len(buf) {
+		b = make([]float64, 0, m)
+	}
+	for j := 1; j <= m; j++ {
+		b = append(b, float64(m-j+1)/float64(n-j+1))
+	}
+	d := Detector{Pfa: 1e-6, Pulses: 1, Integration: Coherent, Swerling: swerling} // Pfa unused: α sets the threshold
+	return d.PdCorrelatedCA(chi, alpha, b)
+}
+
 // variantSimpson is the number of Simpson intervals of VariantPd's
 // integrals.
 const variantSimpson = 2000
@@ -44,8 +68,9 @@ const variantSimpson = 2000
 // greatest-of or smallest-of CFAR with n1 and n2 training cells and
 // multiplier alpha on the half-mean (GOMultiplier, SOMultiplier), or a
 // censored CFAR with n1 cells, n2 of them censored, and alpha on the kept
-// mean (CensoredMultiplier; Swerling 1 and 2 only: the kept sum's law has
-// no form here for a steady target). It does not allocate.
+// mean (CensoredMultiplier; every fluctuation: Swerling 1 and 2 by the
+// closed form, steady and Swerling 3/4 by censoredRacePd). It does not
+// allocate for up to 64 kept cells.
 func VariantPd(v CFARVariant, swerling int, chi, alpha float64, n1, n2 int) (float64, error) {
 	switch {
 	case !(chi >= 0) || math.IsInf(chi, 1):
@@ -64,10 +89,10 @@ func VariantPd(v CFARVariant, swerling int, chi, alpha float64, n1, n2 int) (flo
 		if n1 < 1 || n1 > MaxCFARCells || n2 < 0 || n2 >= n1 {
 			return 0, fmt.Errorf("dsp: variant CFAR Pd: %d cells with %d censored out of range: want 1 … %d cells, 0 … cells−1 censored", n1, n2, MaxCFARCells)
 		}
-		if swerling != Swerling1 && swerling != Swerling2 {
-			return 0, fmt.Errorf("dsp: variant CFAR Pd: a censored CFAR's Pd is computed for Swerling 1 and 2 only, not %d", swerling)
+		if swerling == Swerling1 || swerling == Swerling2 {
+			return CensoredPfa(alpha/(1+chi), n1, n2), nil
 		}
-		return CensoredPfa(alpha/(1+chi), n1, n2), nil
+		return censoredRacePd(swerling, chi, alpha, n1, n2), nil
 	default:
 		return 0, fmt.Errorf("dsp: variant CFAR Pd: variant %d out of range: want GreatestOf, SmallestOf or Censored", int(v))
 	}

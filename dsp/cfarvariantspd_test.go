@@ -32,6 +32,10 @@ func TestVariantPdMonteCarlo(t *testing.T) {
 		{GreatestOf, Swerling1, 20, 8, 8, 1e-3, 0},
 		{SmallestOf, Swerling2, 20, 8, 8, 1e-3, 0},
 		{Censored, Swerling1, 20, 16, 0, 1e-3, 2},
+		{Censored, SwerlingNone, 12, 16, 0, 1e-3, 2},
+		{Censored, SwerlingNone, 14, 24, 0, 1e-4, 5},
+		{Censored, Swerling3, 16, 16, 0, 1e-3, 2},
+		{Censored, Swerling4, 16, 16, 0, 1e-3, 3},
 	}
 	for _, c := range cases {
 		var alpha float64
@@ -125,12 +129,29 @@ func TestVariantPdLimits(t *testing.T) {
 			}
 		}
 	}
+	// Censored: the stage race at zero SNR is CensoredPfa (Rickard &
+	// Dillard 1977's detector; the product form of CensoredPfa).
+	a := CensoredMultiplier(1e-5, 24, 4)
+	for _, sw := range []int{SwerlingNone, Swerling3, Swerling4} {
+		got, err := VariantPd(Censored, sw, 0, a, 24, 4)
+		if err != nil || math.Abs(got-1e-5) > 1e-11 {
+			t.Errorf("censored, Swerling %d at 0 SNR: %g (%v), want 1e-5", sw, got, err)
+		}
+	}
+	// With nothing censored the censored CFAR is cell averaging:
+	// Detector.Pd's CA-CFAR series (itself checked against scipy).
+	for _, sw := range []int{SwerlingNone, Swerling3} {
+		d := Detector{Pfa: 1e-5, Pulses: 1, Integration: Coherent, Swerling: sw, CFARCells: 16}
+		got, err := VariantPd(Censored, sw, FromDB(15), CensoredMultiplier(1e-5, 16, 0), 16, 0)
+		if want := d.Pd(FromDB(15)); err != nil || math.Abs(got-want) > 1e-9 {
+			t.Errorf("censored with none dropped, Swerling %d: %g (%v), want the CA-CFAR %g", sw, got, err, want)
+		}
+	}
 	for _, bad := range []func() error{
 		func() error { _, err := VariantPd(GreatestOf, 0, -1, 10, 8, 8); return err },
 		func() error { _, err := VariantPd(GreatestOf, 0, 10, 0, 8, 8); return err },
 		func() error { _, err := VariantPd(GreatestOf, 7, 10, 10, 8, 8); return err },
 		func() error { _, err := VariantPd(GreatestOf, 0, 10, 10, 0, 0); return err },
-		func() error { _, err := VariantPd(Censored, 0, 10, 10, 16, 2); return err },
 		func() error { _, err := VariantPd(Censored, 1, 10, 10, 16, 16); return err },
 		func() error { _, err := VariantPd(CellAveraging, 1, 10, 10, 16, 0); return err },
 	} {

@@ -7,6 +7,7 @@ import (
 	"strconv"
 
 	"github.com/pulsewright/pulsewright/dsp"
+	"gonum.org/v1/gonum/mathext"
 )
 
 // Probability of detection of a point target in the scene
@@ -35,22 +36,32 @@ type pdTest struct {
 	// cells) or on the kept mean (censored; n1 cells, n2 censored).
 	variant dsp.CFARVariant
 	n1, n2  int
+	// chi4, when set, is the law of a Swerling 4 target's test in its
+	// Doppler bin of a range–Doppler map (dsp.TrainChi4), chi4w the pulse
+	// weights it was built from (the memo's key); det.Swerling is then
+	// Swerling4 with one test, the one-pulse law used only where the
+	// target shares its cell with other echoes (pdInCell).
+	chi4  *dsp.TrainChi4
+	chi4w []float64
 	// memo keeps pd's and requiredSNR's results across evaluations
 	// (pdmemo.go); nil computes them afresh.
 	memo *pdMemo
 }
 
 // pdTestFor returns the test of a target of fluctuation fluct whose
-// verdict is v, or false when no closed form applies: distributed targets,
-// no peak, no training cell, and Swerling 2 and 4 targets on a
-// range–Doppler map (their echo decorrelates within the train; left to
-// the Monte Carlo command).
+// verdict is v, or false when no form applies: distributed targets, no
+// peak, no training cell; a Swerling 4 target on a staggered train's map
+// or behind a censored CFAR on a map. On a map a Swerling 2 target's test
+// is exponential at the tested SNR (its echo, independent complex
+// Gaussian from pulse to pulse, is complex Gaussian in every bin), a
+// Swerling 4 target's is dsp.TrainChi4 for its bin's pulse weights
+// (docs/detection-probability.md §2, §7).
 func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 	if g.t.Kind != TargetPoint || v.peakK < 0 || !(v.peak > 0) || math.IsInf(v.peak, 0) {
 		return pdTest{}, false
 	}
 	sw := swerling(g.t.Fluctuation)
-	if train && (sw == dsp.Swerling2 || sw == dsp.Swerling4) {
+	if train && sw == dsp.Swerling4 && (v.chi4 == nil || m.s.Receiver.Detector.Kind == DetectorCens) {
 		return pdTest{}, false
 	}
 	d := m.s.Receiver.Detector
@@ -75,10 +86,11 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 			det.OSRank = min(max(det.OSRank, 1), v.cells)
 		}
 	case DetectorGO, DetectorSO, DetectorCens:
-		if train || v.cells == 0 {
-			// On a range–Doppler map the variants' halves are not
-			// modelled here: the threshold decides.
+		if v.cells == 0 {
 			return pdTest{}, false
+		}
+		if train {
+			return m.variantTestMap(det, v)
 		}
 		return m.variantTest(det, v)
 	default:
@@ -88,6 +100,13 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 		return pdTest{}, false
 	}
 	t := pdTest{det: det, snr: v.peak, memo: m.memo}
+	if train && sw == dsp.Swerling4 {
+		t.chi4, t.chi4w = v.chi4, v.chi4w
+		if det.Validate() != nil {
+			return pdTest{}, false
+		}
+		return t, true
+	}
 	if det.Validate() != nil {
 		// Too few training cells for the series: a steady target's Pd
 		// is still the average of pdavg.go.
@@ -109,8 +128,7 @@ func (m *model) pdTestFor(g *tgt, v verdict, train bool) (pdTest, bool) {
 // construction, on the ordered statistic's lattice), split into the
 // leading and lagging halves, or counted with the censoring scaled to
 // them as the plan does, and the multiplier that holds Pfa for exactly
-// those cells. A censored CFAR has a Pd for Swerling 1 and 2 targets only
-// (dsp.VariantPd); for others false (the threshold decides).
+// those cells (dsp.VariantPd: every fluctuation).
 func (m *model) variantTest(det dsp.Detector, v verdict) (pdTest, bool) {
 	d := m.s.Receiver.Detector
 	cf := m.detector()
@@ -132,9 +150,6 @@ func (m *model) variantTest(det dsp.Detector, v verdict) (pdTest, bool) {
 			t.alpha = dsp.SOMultiplier(d.PFA, t.n1, t.n2)
 		}
 	case dsp.Censored:
-		if det.Swerling != dsp.Swerling1 && det.Swerling != dsp.Swerling2 {
-			return pdTest{}, false
-		}
 		n := len(offs)
 		c := 0
 		if d.TrainingCells > 0 {
@@ -146,9 +161,98 @@ func (m *model) variantTest(det dsp.Detector, v verdict) (pdTest, bool) {
 	return t, true
 }
 
+// variantTestMap returns the test of a target behind the scene's
+// greatest-of, smallest-of or censored CFAR on a range–Doppler map: the
+// 2-D training cells used at its peak cell, split into halves (leading:
+// range offset < 0, or 0 and Doppler offset < 0) or censored as the map's
+// detector does (verdict.halves, verdict.censor; docs/detection.md §5),
+// taken as independent, and the multiplier that holds Pfa for exactly
+// those cells.
+func (m *model) variantTestMap(det dsp.Detector, v verdict) (pdTest, bool) {
+	d := m.s.Receiver.Detector
+	t := pdTest{det: det, snr: v.peak, memo: m.memo, variant: cfarVariant(d.Kind), chi4: v.chi4, chi4w: v.chi4w}
+	t.det.CFARCells = v.cells
+	switch t.variant {
+	case dsp.GreatestOf:
+		t.n1, t.n2 = v.halves[0], v.halves[1]
+		t.alpha = dsp.GOMultiplier(d.PFA, t.n1, t.n2)
+	case dsp.SmallestOf:
+		t.n1, t.n2 = v.halves[0], v.halves[1]
+		t.alpha = dsp.SOMultiplier(d.PFA, t.n1, t.n2)
+	case dsp.Censored:
+		if t.chi4 != nil {
+			return pdTest{}, false
+		}
+		t.n1, t.n2 = v.cells, v.censor
+		t.alpha = dsp.CensoredMultiplier(d.PFA, t.n1, t.n2)
+	}
+	if t.n1+t.n2 < 1 || t.det.Swerling != dsp.Swerling4 {
+		t.chi4, t.chi4w = nil, nil
+	}
+	return t, t.n1+t.n2 >= 1
+}
+
+// thresholdCDF returns the CDF of the random threshold of t's CFAR at r
+// times its nominal multiplier, in units of the cell's noise, with
+// independent exponential training cells: CA-CFAR, M cells, α on the
+// mean: P(M, M·x/(rα)); OS-CFAR, rank k of M: P(at least k cells below
+// x/(rα)) = I_{1−e^(−x/(rα))}(k, M−k+1); greatest-of and smallest-of as
+// dsp.VariantPd. nil for a censored CFAR (no such form here).
+func (t pdTest) thresholdCDF(r float64) func(x float64) float64 {
+	d := t.det
+	m := float64(d.CFARCells)
+	switch {
+	case t.variant == dsp.GreatestOf || t.variant == dsp.SmallestOf:
+		a := r * t.alpha
+		return func(x float64) float64 {
+			p := func(n int) float64 {
+				if n == 0 {
+					return 1
+				}
+				return mathext.GammaIncReg(float64(n), float64(n)*x/a)
+			}
+			p1, p2 := p(t.n1), p(t.n2)
+			if t.n1 == 0 || t.n2 == 0 || t.variant == dsp.GreatestOf {
+				return p1 * p2
+			}
+			return 1 - (1-p1)*(1-p2)
+		}
+	case t.variant != dsp.CellAveraging:
+		return nil
+	case d.OSRank > 0:
+		a := r * dsp.OSMultiplier(d.Pfa, d.CFARCells, d.OSRank)
+		k := float64(d.OSRank)
+		return func(x float64) float64 {
+			return mathext.RegIncBeta(k, m-k+1, -math.Expm1(-x/a))
+		}
+	}
+	a := r * m * math.Expm1(-math.Log(d.Pfa)/m) // α on the mean
+	return func(x float64) float64 { return mathext.GammaIncReg(m, m*x/a) }
+}
+
+// pdChi4 returns the Pd of a Swerling 4 target on a map (t.chi4) at SNR
+// snr against r times the detector's nominal threshold.
+func (t pdTest) pdChi4(snr, r float64) (float64, bool) {
+	if t.det.CFARCells == 0 {
+		return t.chi4.Survival(snr, -r*math.Log(t.det.Pfa)), true
+	}
+	if t.variant == dsp.CellAveraging && t.det.OSRank == 0 {
+		m := float64(t.det.CFARCells)
+		return t.chi4.PdCA(snr, t.det.CFARCells, r*m*math.Expm1(-math.Log(t.det.Pfa)/m)), true
+	}
+	cdf := t.thresholdCDF(r)
+	if cdf == nil {
+		return 0, false
+	}
+	return t.chi4.PdThreshold(snr, cdf), true
+}
+
 // pdVariant returns the Pd of a variant test at SNR snr against r times
 // its nominal threshold.
 func (t pdTest) pdVariant(snr, r float64) (float64, bool) {
+	if t.chi4 != nil {
+		return t.pdChi4(snr, r)
+	}
 	p, err := dsp.VariantPd(t.variant, t.det.Swerling, snr, r*t.alpha, t.n1, t.n2)
 	if err != nil || math.IsNaN(p) {
 		return 0, false
@@ -213,10 +317,14 @@ func (t pdTest) requiredSNR(pd float64) (float64, error) {
 
 // requiredSNRFresh is requiredSNR computed without the memo.
 func (t pdTest) requiredSNRFresh(pd float64) (float64, error) {
-	if t.ev == nil && !t.beyond && t.variant == dsp.CellAveraging {
+	if t.ev == nil && !t.beyond && t.variant == dsp.CellAveraging && t.chi4 == nil {
 		return t.det.RequiredSNR(pd)
 	}
 	at := func(snr float64) float64 {
+		if t.chi4 != nil && t.variant == dsp.CellAveraging {
+			p, _ := t.pdChi4(snr, 1)
+			return p
+		}
 		if t.variant != dsp.CellAveraging {
 			p, _ := t.pdVariant(snr, 1)
 			return p
@@ -232,7 +340,7 @@ func (t pdTest) requiredSNRFresh(pd float64) (float64, error) {
 		return 0, fmt.Errorf("Pd %g needs more than %g dB", pd, hi)
 	}
 	eps := 1e-9
-	if t.beyond || t.variant != dsp.CellAveraging {
+	if t.beyond || t.variant != dsp.CellAveraging || (t.chi4 != nil && t.det.CFARCells > 0) {
 		eps = 1e-5 // each step integrates: 35 steps
 	}
 	for hi-lo > eps {
@@ -286,6 +394,9 @@ func (t pdTest) pdFresh(r float64) (float64, bool) {
 	}
 	if t.variant != dsp.CellAveraging {
 		return t.pdVariant(t.snr, r)
+	}
+	if t.chi4 != nil {
+		return t.pdChi4(t.snr, r)
 	}
 	if t.beyond {
 		return t.pdBeyond(t.snr, r)

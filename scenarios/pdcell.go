@@ -80,6 +80,7 @@ func (t pdTest) pdInCell(others []dsp.CellEcho, r float64) (float64, bool) {
 	echoes = append(echoes, others...)
 	steady := t
 	steady.det.Swerling = dsp.SwerlingNone
+	steady.chi4, steady.chi4w = nil, nil // the target's own law is in echoes (one-pulse Swerling 4 on a map: an approximation)
 	// The table's points go through the memo (pdmemo.go): a few to a
 	// few hundred per call, most of them the same in the next frame of
 	// a drag that moves another target.

@@ -38,6 +38,7 @@ type pdKey struct {
 	// the variant CFAR and its cell counts (pdTest.variant)
 	variant dsp.CFARVariant
 	n1, n2  int
+	chi4    int32 // the interned pulse weights of a Swerling 4 target on a map (pdTest.chi4w), −1 for none
 }
 
 // pdVal is a memoised result.
@@ -164,7 +165,7 @@ func (p *pdMemo) store(k pdKey, v pdVal) {
 // key returns t's key for arg; the caller holds p.mu.
 func (p *pdMemo) key(t pdTest, snr, arg float64, req bool) pdKey {
 	return pdKey{det: t.det, snr: snr, arg: arg, alpha: t.alpha, ev: p.evID(t.ev), beyond: t.beyond, req: req,
-		variant: t.variant, n1: t.n1, n2: t.n2}
+		variant: t.variant, n1: t.n1, n2: t.n2, chi4: p.evID(t.chi4w)}
 }
 
 // pd returns t.pd(r), memoised.

@@ -40,7 +40,7 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		if v.rule == rulePd {
 			return fmt.Sprintf("Detected: %s; its peak, %.1f dB above noise, clears the %s threshold by %.1f dB.", sc.pdWords(g, v, tr, true), dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold)) + inCellWords(v) + sc.lossWords(g)
 		}
-		return fmt.Sprintf("Detected: its peak, %.1f dB above noise, clears the %s threshold by %.1f dB (%s).", dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold), noPdWords(g, m.s.Receiver.Detector)) + sc.lossWords(g)
+		return fmt.Sprintf("Detected: its peak, %.1f dB above noise, clears the %s threshold by %.1f dB (%s).", dsp.DB(v.peak), det, dsp.DB(v.peak/v.threshold), noPdWords(g, m.s)) + sc.lossWords(g)
 	case StatusFolded:
 		out := fmt.Sprintf("Folded: it lies beyond the unambiguous range of %s, so the echo from %s arrives after the next pulse and shows at an apparent %s, inside the window, where it looks like a target at that range.", km(m.unambM), km(g.rangeM), km(g.apparent))
 		if v.hasPd && v.sceneOK {
@@ -92,7 +92,7 @@ func (sc *scene) reason(g *tgt, v verdict, tr TargetReport, cf *dsp.CFAR) string
 		if v.rule == rulePd {
 			return fmt.Sprintf("Too weak: even against noise alone %s.", sc.pdWords(g, v, tr, false)) + inCellWords(v) + sc.lossWords(g)
 		}
-		return fmt.Sprintf("Too weak: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone (%s).", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel), noPdWords(g, m.s.Receiver.Detector)) + sc.lossWords(g)
+		return fmt.Sprintf("Too weak: its peak, %.1f dB above noise, is %.1f dB under the %s threshold of %.1f dB against noise alone (%s).", dsp.DB(v.peak), dsp.DB(v.noiseLevel/v.peak), det, dsp.DB(v.noiseLevel), noPdWords(g, m.s)) + sc.lossWords(g)
 	}
 	return sc.maskedReason(g, v, tr)
 }
@@ -132,14 +132,16 @@ func fluctuationWords(f string) string {
 }
 
 // noPdWords says why the threshold rather than Pd decided a status.
-func noPdWords(g *tgt, d Detector) string {
+func noPdWords(g *tgt, s *Scenario) string {
+	d := s.Receiver.Detector
+	train := s.Radar.Pulses > 1
 	switch {
 	case g.t.Kind != TargetPoint:
 		return "an extended or volume return has no Pd here, so its noise-free peak against the threshold decides"
-	case d.Kind == DetectorCens && swerling(g.t.Fluctuation) != dsp.Swerling1 && swerling(g.t.Fluctuation) != dsp.Swerling2:
-		return "no Pd form for a steady or Swerling 3/4 target behind the " + detectorName(d) + " here, so the noise-free peak against the threshold decides"
-	case d.Kind == DetectorGO || d.Kind == DetectorSO || d.Kind == DetectorCens:
-		return "no Pd for the " + detectorName(d) + " on a range–Doppler map here, so the noise-free peak against the threshold decides"
+	case train && swerling(g.t.Fluctuation) == dsp.Swerling4 && d.Kind == DetectorCens:
+		return "no Pd for a Swerling 4 target behind the " + detectorName(d) + " on a range–Doppler map here, so the noise-free peak against the threshold decides"
+	case train && swerling(g.t.Fluctuation) == dsp.Swerling4 && len(s.Radar.PRIStaggerS) > 0:
+		return "no Pd for a Swerling 4 target on a staggered train's map here, so the noise-free peak against the threshold decides"
 	}
 	return "no closed-form Pd applies here, so the noise-free peak against the threshold decides"
 }

@@ -23,6 +23,16 @@ type verdict struct {
 	alone      float64 // detector threshold with only the target itself in its training cells
 	cancelled  bool    // a range–Doppler map with no power of it, its echo on processed gates: the MTI canceller removed it (zero Doppler)
 
+	// On a range–Doppler map (train.judge): the variant CFARs' training
+	// cells at the peak cell — leading (range offset < 0, or 0 and
+	// Doppler offset < 0) and lagging counts, and the censoring scaled to
+	// them as the map's detector scales it; and for a Swerling 4 target
+	// the pulse weights of its peak bin and its law there (pdtrain.go).
+	halves [2]int
+	censor int
+	chi4w  []float64
+	chi4   *dsp.TrainChi4
+
 	// Probabilities of detection (docs/detection.md §6), set by decide
 	// when a closed form applies (hasPd).
 	hasPd   bool

@@ -60,17 +60,16 @@ func mtiTaps(kind string) []float64 {
 	return dsp.MTINone
 }
 
-// coherentFraction is the share of a fluctuating target's mean power that
-// stays coherent from pulse to pulse when only its amplitude fluctuates:
-// (E√σ)²/Eσ, π/4 for exponential power (Swerling 2) and
-// Γ(2.5)²/(2·Γ(2)²) = 9π/32 for chi-square with four degrees of freedom
-// (Swerling 4). Steady and scan-to-scan targets stay wholly coherent.
+// coherentFraction is the share of a target's mean power that stays
+// coherent from pulse to pulse: all of it for steady and scan-to-scan
+// (Swerling 1 and 3) targets; none for Swerling 2 and 4, whose complex
+// amplitude — power and carrier phase — is drawn anew every pulse
+// (simulate), so its mean is zero and its power spreads over the Doppler
+// bins as white noise does (docs/detection-probability.md §2).
 func coherentFraction(fluct string) float64 {
 	switch fluct {
-	case "swerling2":
-		return math.Pi / 4
-	case "swerling4":
-		return 9 * math.Pi / 32
+	case "swerling2", "swerling4":
+		return 0
 	}
 	return 1
 }
@@ -192,6 +191,20 @@ func (tr *train) peak(j int) (k, d int, p float64) {
 			d = i
 		}
 	}
+	if coherentFraction(tr.sc.targets[j].t.Fluctuation) == 0 {
+		// A pulse-to-pulse decorrelating echo fills the bins as noise
+		// does: among the bins within rounding of its largest power, the
+		// one of its own Doppler (the same SNR in each without MTI).
+		own := dsp.Fold(tr.sc.targets[j].fd * tr.T)
+		top, best := tr.gain[j][d], math.Inf(1)
+		for i, v := range tr.gain[j] {
+			if v >= top*(1-1e-9) {
+				if e := math.Abs(dsp.Fold(tr.plan.BinFrequency(i) - own)); e < best {
+					d, best = i, e
+				}
+			}
+		}
+	}
 	return k, d, pr * tr.gain[j][d]
 }
 
@@ -242,6 +255,31 @@ func (tr *train) level(cf *dsp.CFAR2D, k, d int, p func(k, d int) float64) float
 	return cf.LevelValid(func(kk, dd int) float64 { return tr.noise[dd] + p(kk, dd) }, tr.valid, k, d, tr.m.n, tr.plan.Bins())
 }
 
+// chi4Law returns the pulse weights |A_{d,p}|²·s_p of Doppler bin d (A
+// the plan's linear map: MTI, window, DFT; s_p the scan's power on pulse
+// p, 1 when staring) and the law of a Swerling 4 target's test in that
+// bin (dsp.TrainChi4), or nil when the bin holds none of the pulses.
+func (tr *train) chi4Law(d int) ([]float64, *dsp.TrainChi4) {
+	np := tr.plan.Pulses()
+	w := make([]float64, np)
+	e := make([]complex128, np)
+	y := make([]complex128, tr.plan.Bins())
+	for p := range np {
+		clear(e)
+		e[p] = 1
+		tr.plan.Apply(y, e)
+		w[p] = real(y[d])*real(y[d]) + imag(y[d])*imag(y[d])
+		if tr.scanPow != nil {
+			w[p] *= tr.scanPow[p]
+		}
+	}
+	law, err := dsp.NewTrainChi4(w)
+	if err != nil {
+		return nil, nil
+	}
+	return w, law
+}
+
 // judge decides target j's status on the range–Doppler map.
 func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 	sc := tr.sc
@@ -281,7 +319,25 @@ func (tr *train) judge(j int, cf *dsp.CFAR2D) (verdict, int) {
 			func(i int) float64 { return tr.extraPower(i, k, d) })
 		v.alone = tr.level(cf, k, d, func(kk, dd int) float64 { return tr.power(j, kk, dd) })
 		if cf != nil {
-			v.cells = len(cf.Cells(tr.valid, k, d, tr.m.n, tr.plan.Bins()))
+			cs := cf.Cells(tr.valid, k, d, tr.m.n, tr.plan.Bins())
+			v.cells = len(cs)
+			if cf.Variant != dsp.CellAveraging && len(cs) > 0 {
+				// The halves and the censoring as dsp.CFAR2D.LevelValid
+				// forms them (docs/detection.md §5, 2-D).
+				for _, q := range cs {
+					if q.A < 0 || q.A == 0 && q.B < 0 {
+						v.halves[0]++
+					} else {
+						v.halves[1]++
+					}
+				}
+				if n2 := c2DCells(cf); n2 > 0 {
+					v.censor = min(max(int(math.Round(float64(cf.Censor)*float64(len(cs))/float64(n2))), 0), len(cs)-1)
+				}
+			}
+		}
+		if swerling(g.t.Fluctuation) == dsp.Swerling4 && g.t.Kind == TargetPoint && tr.times == nil {
+			v.chi4w, v.chi4 = tr.chi4Law(d)
 		}
 		// The verdict's powers are re the noise of the peak's own bin,
 		// so that its peak is the SNR the detector sees there (an MTI
@@ -381,22 +437,30 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 	r := m.s.Radar
 	np, nb, n := r.Pulses, tr.plan.Bins(), m.n
 	targets := tr.sc.targets
-	// Fluctuation: scan-to-scan once per interval, pulse-to-pulse per pulse.
-	amps := make([][]float64, np)
+	// Fluctuation: scan-to-scan once per interval; pulse-to-pulse
+	// (Swerling 2 and 4) a new amplitude and a new uniform carrier phase
+	// every pulse — the echo of many scatterers that decorrelates from
+	// pulse to pulse, the phase convention of the Pd laws
+	// (docs/detection-probability.md §2).
+	amps := make([][]complex128, np)
 	for p := range amps {
-		amps[p] = make([]float64, len(targets))
+		amps[p] = make([]complex128, len(targets))
 	}
 	for j, g := range targets {
 		rng := streamOf(m.s.Seed, g.t.ID, 0x5157)
 		fl := swerling(g.t.Fluctuation)
-		a := math.Sqrt(dsp.SwerlingRCS(rng, 1, fl))
+		pulsed := fl == dsp.Swerling2 || fl == dsp.Swerling4
+		a := complex(math.Sqrt(dsp.SwerlingRCS(rng, 1, fl)), 0)
+		if pulsed {
+			a *= cmplx.Rect(1, 2*math.Pi*rng.Float64())
+		}
 		for p := range np {
-			if p > 0 && (fl == dsp.Swerling2 || fl == dsp.Swerling4) {
-				a = math.Sqrt(dsp.SwerlingRCS(rng, 1, fl))
+			if p > 0 && pulsed {
+				a = cmplx.Rect(math.Sqrt(dsp.SwerlingRCS(rng, 1, fl)), 2*math.Pi*rng.Float64())
 			}
 			amps[p][j] = a
 			if tr.scanA != nil && g.t.Kind == TargetPoint {
-				amps[p][j] *= tr.scanA[p]
+				amps[p][j] *= complex(tr.scanA[p], 0)
 			}
 		}
 	}
@@ -435,11 +499,11 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 					// in this sweep, at its pulse's range and phase.
 					m.sweepEchoes(p, g.t.RangeM, g.t.RangeRateMPS, func(_ int, rq, delay float64) {
 						ph := cmplx.Rect(1, -4*math.Pi*math.Mod(rq/m.lambda, 1))
-						a := g.amp * math.Pow(g.t.RangeM/rq, 2) * amps[p][j]
+						a := complex(g.amp*math.Pow(g.t.RangeM/rq, 2), 0) * amps[p][j]
 						if pns[j] != nil {
-							m.addPointEchoPN(echo, pns[j], g.t.ID, p, delay-m.t0, complex(a, 0)*ph, g.fd)
+							m.addPointEchoPN(echo, pns[j], g.t.ID, p, delay-m.t0, a*ph, g.fd)
 						} else {
-							m.addPointEcho(echo, delay-m.t0, complex(a, 0)*ph, g.fd)
+							m.addPointEcho(echo, delay-m.t0, a*ph, g.fd)
 						}
 					})
 				case g.t.Kind == TargetPoint && g.amp > 0:
@@ -449,11 +513,11 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 					}
 					app, _ := m.fold(rp)
 					ph := cmplx.Rect(1, -4*math.Pi*math.Mod(rp/m.lambda, 1))
-					a := g.amp * math.Pow(g.t.RangeM/rp, 2) * amps[p][j]
+					a := complex(g.amp*math.Pow(g.t.RangeM/rp, 2), 0) * amps[p][j]
 					if pns[j] != nil {
-						m.addPointEchoPN(echo, pns[j], g.t.ID, p, 2*app/C-m.t0, complex(a, 0)*ph, g.fd)
+						m.addPointEchoPN(echo, pns[j], g.t.ID, p, 2*app/C-m.t0, a*ph, g.fd)
 					} else {
-						m.addPointEcho(echo, 2*app/C-m.t0, complex(a, 0)*ph, g.fd)
+						m.addPointEcho(echo, 2*app/C-m.t0, a*ph, g.fd)
 					}
 				case own[j] != nil:
 					own[j].add(echo, p)

@@ -297,8 +297,8 @@ func TestTrialsFalseAlarmRate(t *testing.T) {
 // cannot beat the same target against a known noise level (the
 // Neyman–Pearson test of its cell alone); its report pd (GO and SO:
 // E_X[F(X)] by Simpson's rule, docs/detection-probability.md §3) must lie
-// inside the trials' interval. A censored CFAR has no steady-target Pd:
-// the report leaves it out and the threshold decides.
+// inside the trials' interval; behind the censored CFAR too (the race of
+// the kept sum's exponential stages, dsp.VariantPd).
 func TestTrialsCFARVariants(t *testing.T) {
 	const (
 		n   = 2000
@@ -352,17 +352,12 @@ func TestTrialsCFARVariants(t *testing.T) {
 		}
 		r := rep.Targets[1].Pd
 		switch {
-		case r == nil && kind != "censored_cfar":
+		case r == nil:
 			t.Errorf("%s: no pd for the steady target", kind)
-		case r != nil && kind == "censored_cfar":
-			t.Errorf("%s: a steady target's pd %.4f, but there is no form for it", kind, *r)
-		case r != nil:
+		default:
 			if ok, lo, hi := inside(*r, c.Detections[1], n); !ok {
 				t.Errorf("%s: steady target's analytic pd %.4f outside [%.4f, %.4f]", kind, *r, lo, hi)
 			}
-		}
-		if kind == "censored_cfar" && rep.Targets[1].DecidedOn != "threshold" {
-			t.Errorf("censored: steady target decided on %q, want threshold", rep.Targets[1].DecidedOn)
 		}
 		if slo > known {
 			t.Errorf("%s: steady target beats the known-noise detector: [%.4f, %.4f] above %.4f", kind, slo, shi, known)
@@ -529,17 +524,18 @@ func TestTrialsNeighbourFluctuating(t *testing.T) {
 	}
 }
 
-// TestTrialsPulseTrains: on a 16-pulse range–Doppler map the report has
-// a Pd for steady and scan-to-scan (Swerling 1) targets, and none for
-// Swerling 2 and 4, whose amplitude changes from pulse to pulse. The
-// trials check the first and measure the second: at the same mean
-// integrated SNR (14 dB) a pulse-to-pulse fluctuating target's Pd lies
-// between the scan-to-scan one (Swerling 1 or 3, closed forms above) and
-// the steady one (Marcum Q): integration averages part of the
-// fluctuation out (Richards, Fundamentals of Radar Signal Processing,
-// 2nd ed., §6.3: Swerling 2 and 4 need less SNR than 1 and 3 at high Pd).
-// Measured: Swerling 2 0.77, Swerling 4 0.88, against 0.589 (Swerling 1),
-// 0.70 (Swerling 3) and 0.972 (steady).
+// TestTrialsPulseTrains: on a 16-pulse range–Doppler map the report's Pd
+// of steady, Swerling 1 and 3 targets (one test at the integrated SNR)
+// and of Swerling 2 and 4 targets (docs/detection-probability.md §2: a
+// new complex amplitude every pulse, uniform phase; in a Doppler bin
+// Swerling 2 is complex Gaussian — the exponential law at the bin's SNR,
+// no coherent gain — and Swerling 4 is dsp.TrainChi4) lie inside the
+// trials' 99 % interval. The trials simulate pulse by pulse through the
+// MTI, window and DFT, an independent path. The tested SNR (14 dB) of a
+// Swerling 2 or 4 target on a map is the SNR of its echo in the bin, the
+// single pulse's; Swerling 2's Pd there is e^(−T/(1+χ)) (Richards,
+// Fundamentals of Radar Signal Processing, 2nd ed., §6.3), which the
+// report must equal.
 func TestTrialsPulseTrains(t *testing.T) {
 	fixed := `{"kind":"fixed","pfa":1e-6}`
 	doc := func(det, targets string) string {
@@ -554,21 +550,123 @@ func TestTrialsPulseTrains(t *testing.T) {
 			t.Errorf("train, %s: analytic %.4f outside trials [%.4f, %.4f]", base[j].fluct, *r.Pd, lo, hi)
 		}
 	}
-	s2 := *s
-	s2.Targets = append([]Target{}, s.Targets...)
-	s2.Targets[0].Fluctuation, s2.Targets[1].Fluctuation = "swerling2", "swerling4"
-	tr2, c2 := runTrials(t, &s2, n)
+	const n2 = 2000
+	pp := []mcTarget{{"a", "swerling2", 9950, 14}, {"b", "swerling4", 20000, 14}}
+	s2 := tunedScene(t, doc, fixed, pp)
+	tr2, c2 := runTrials(t, s2, n2)
 	T := -math.Log(1e-6)
 	chi := dsp.FromDB(14)
-	steady := 0.9721470965909175 // scipy ncx2.sf(2T, 2, 2χ) at 14 dB
-	for j, lower := range []float64{pdSwerling1(chi, T), pdSwerling3(chi, T)} {
-		if tr2.Report().Targets[j].Pd != nil {
-			t.Errorf("%s in a train: the report now has a Pd; check it here", s2.Targets[j].Fluctuation)
+	for j, r := range tr2.Report().Targets {
+		if r.Pd == nil {
+			t.Fatalf("%s in a train: no Pd (%s)", pp[j].fluct, r.Reason)
 		}
-		_, lo, hi := inside(0, c2.Detections[j], n)
-		t.Logf("%s, 16 pulses, 14 dB: trials %.4f [%.4f, %.4f]; scan-to-scan %.4f, steady %.4f", s2.Targets[j].Fluctuation, float64(c2.Detections[j])/n, lo, hi, lower, steady)
-		if !(lo > lower && hi < steady) {
-			t.Errorf("%s: trials [%.4f, %.4f] not between %.4f and %.4f", s2.Targets[j].Fluctuation, lo, hi, lower, steady)
+		ok, lo, hi := inside(*r.Pd, c2.Detections[j], n2)
+		t.Logf("%s, 16 pulses, %.2f dB in its bin: report %.4f, trials %.4f [%.4f, %.4f]; one-pulse Swerling 1 %.4f, Swerling 3 %.4f",
+			pp[j].fluct, testedDB(t, tr2, j), *r.Pd, float64(c2.Detections[j])/n2, lo, hi, pdSwerling1(chi, T), pdSwerling3(chi, T))
+		if !ok {
+			t.Errorf("%s: analytic %.4f outside trials [%.4f, %.4f]", pp[j].fluct, *r.Pd, lo, hi)
+		}
+		if j == 0 {
+			if want := pdSwerling1(dsp.FromDB(testedDB(t, tr2, j)), T); math.Abs(*r.Pd-want) > 1e-9 {
+				t.Errorf("swerling2 on a map: pd %.6f, want the exponential law %.6f", *r.Pd, want)
+			}
+		}
+	}
+}
+
+// TestTrialsMapCFARs: on a 16-pulse map, behind the map's greatest-of,
+// smallest-of and censored CFARs (halves and censoring as the 2-D
+// detector forms them) and behind a CA-CFAR, the report's Pd of a steady,
+// a Swerling 1, a Swerling 2 and (not censored) a Swerling 4 target
+// against the trials (2 000, 99 % interval). Inside the interval: every
+// target behind the GO-CFAR, Swerling 1, 2 and 4 behind the CA-CFAR,
+// steady and Swerling 1 behind SO and censored. Where the report
+// approximates (docs/detection-probability.md §7), the trials measure
+// the error and the test bounds it: a Swerling 2 or 4 target fills its
+// own range row across the Doppler bins, so its training cells in that
+// row hold its power, which the report treats as a raise of the
+// threshold with the reference's noise-only randomness (behind SO far
+// too low: 0.32 against 0.49; censored at the interval's edge); behind
+// the CA-CFAR a steady target's Pd is optimistic because the map's
+// Doppler-correlated training cells are taken as independent (0.911
+// against 0.881 [0.861, 0.899]). Those must lie within 0.2 of the
+// trials and, for the self-masking cases, below them (conservative).
+func TestTrialsMapCFARs(t *testing.T) {
+	doc := func(det, targets string) string {
+		return strings.Replace(barkerScene(det, targets), `"pri_s":5e-4`, `"pri_s":5e-4,"pulses":16`, 1)
+	}
+	const n = 2000
+	for _, kind := range []string{"go_cfar", "so_cfar", "censored_cfar", "ca_cfar"} {
+		det := `{"kind":"` + kind + `","pfa":1e-5,"guard_cells":2,"training_cells":8,"doppler_guard_cells":1,"doppler_training_cells":4}`
+		tg := []mcTarget{{"steady", "none", 9950, 13}, {"sw1", "swerling1", 17000, 20}, {"sw2", "swerling2", 24000, 18}, {"sw4", "swerling4", 31000, 16}}
+		s := tunedScene(t, doc, det, tg)
+		tr, c := runTrials(t, s, n)
+		for j, r := range tr.Report().Targets {
+			if r.Pd == nil {
+				if kind == "censored_cfar" && tg[j].fluct == "swerling4" {
+					continue // no form (docs/detection-probability.md §7)
+				}
+				t.Errorf("%s, %s: no Pd (%s)", kind, tg[j].fluct, r.Reason)
+				continue
+			}
+			ok, lo, hi := inside(*r.Pd, c.Detections[j], n)
+			emp := float64(c.Detections[j]) / n
+			t.Logf("%s, %s at %.2f dB: report %.4f, trials %.4f [%.4f, %.4f]", kind, tg[j].fluct, testedDB(t, tr, j), *r.Pd, emp, lo, hi)
+			selfMasked := (kind == "so_cfar" || kind == "censored_cfar") && (tg[j].fluct == "swerling2" || tg[j].fluct == "swerling4")
+			approx := selfMasked || kind == "ca_cfar" && tg[j].fluct == "none"
+			switch {
+			case !approx && !ok:
+				t.Errorf("%s, %s: analytic %.4f outside trials [%.4f, %.4f]", kind, tg[j].fluct, *r.Pd, lo, hi)
+			case approx && math.Abs(*r.Pd-emp) > 0.2:
+				t.Errorf("%s, %s: analytic %.4f more than 0.2 from the trials' %.4f", kind, tg[j].fluct, *r.Pd, emp)
+			case selfMasked && *r.Pd > hi+0.005:
+				t.Errorf("%s, %s: analytic %.4f above the trials' [%.4f, %.4f]: not conservative", kind, tg[j].fluct, *r.Pd, lo, hi)
+			}
+		}
+	}
+}
+
+// testedDB is the SNR (dB) target j's test sees at its cell.
+func testedDB(t *testing.T, tr *Trials, j int) float64 {
+	t.Helper()
+	db, ok := tr.TestedSNRDB(j)
+	if !ok {
+		t.Fatalf("target %d has no tested cell", j)
+	}
+	return db
+}
+
+// TestTrialsMapSwerling2And4MTIStagger: Swerling 2 on a staggered train's
+// map (fixed threshold: the bin is a sum of Gaussian contributions of the
+// groups, exponential whatever its weights) and Swerling 2 and 4 behind a
+// two-pulse MTI canceller and a 2-D CA-CFAR (the bins' unequal noise and
+// the canceller's weights in dsp.TrainChi4): the report's Pd inside the
+// trials' 99 % interval (1 000 trials). Measured: staggered 0.1090 and
+// 0.1008 against 0.105 and 0.102; MTI Swerling 4 0.5668 against 0.578,
+// Swerling 2 0.5205 against 0.496.
+func TestTrialsMapSwerling2And4MTIStagger(t *testing.T) {
+	const n = 1000
+	head := `{"version":2,"seed":7,"radar":{"carrier_hz":9.5e9,"peak_power_w":5000,"antenna_gain_dbi":33,"noise_figure_db":4,"system_loss_db":6,` +
+		`"pri_s":5e-4,%s"pulses":16,"sample_rate_hz":1e6,"window_start_m":5000,"window_stop_m":40000},` +
+		`"waveform":{"kind":"barker","length":13,"chip_s":1e-6},"receiver":{%s},"targets":[` +
+		`{"id":"a","kind":"point","range_m":9950,"rcs_dbsm":%g,"fluctuation":"%s","range_rate_mps":30},` +
+		`{"id":"b","kind":"point","range_m":20000,"rcs_dbsm":%g,"fluctuation":"swerling2","range_rate_mps":-80}]}`
+	for _, doc := range []string{
+		fmt.Sprintf(head, `"pri_stagger_s":[5e-4,6e-4],`, `"detector":{"kind":"fixed","pfa":1e-6}`, -18.0, "swerling2", -6.0),
+		fmt.Sprintf(head, ``, `"mti":"two_pulse","detector":{"kind":"ca_cfar","pfa":1e-5}`, -8.0, "swerling4", 3.0),
+	} {
+		s := mustDecode(t, doc)
+		tr, c := runTrials(t, s, n)
+		for j, r := range tr.Report().Targets {
+			if r.Pd == nil {
+				t.Errorf("%s: no Pd (%s)", r.ID, r.Reason)
+				continue
+			}
+			ok, lo, hi := inside(*r.Pd, c.Detections[j], n)
+			t.Logf("%s (%s): report %.4f, trials %.4f [%.4f, %.4f]", r.ID, s.Targets[j].Fluctuation, *r.Pd, float64(c.Detections[j])/n, lo, hi)
+			if !ok {
+				t.Errorf("%s: analytic %.4f outside [%.4f, %.4f]", r.ID, *r.Pd, lo, hi)
+			}
 		}
 	}
 }

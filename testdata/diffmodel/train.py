@@ -25,7 +25,10 @@ a target's gain g(d) = |A t|^2 for its tone t_p = exp(j 2 pi f_D PRI p).
 import math
 
 import numpy as np
+import scipy.optimize
 import scipy.signal
+import scipy.special
+from scipy import integrate, stats
 
 import model
 
@@ -196,6 +199,8 @@ def train_scene(sc, cpi=False):
         Pstar = max(P[k], 0.0) if processed[k] else 0.0
         g = plan.gain(fd * tbar)
         d = first_argmax(g)  # ties: first bin (README "Ambiguities")
+        if t.get("fluctuation", "none") in DECORRELATING and pattern is None:
+            g, d = decorrelating_gain(plan, fd * tbar)
         dl, shift = model.doppler_response(wave, filt, fd)
         objs.append(dict(t=t, rr=rr, R=R, Ra=Ra, folds=folds, fd=fd, snr_eq=snr_eq, P=P, Pu=Pu, k=k, d=d, g=g,
                          Pstar=Pstar, Pustar=float(Pu.max()), nb=nb, nin=nin, dl=dl, shift=shift))
@@ -222,7 +227,7 @@ def train_scene(sc, cpi=False):
         dg, dtr = det["doppler_guard_cells"], det["doppler_training_cells"]
         bmax = min(dg + dtr // 2, (M - 1) // 2)
         sr = sd = 1
-        if kind == "os_cfar":
+        if kind in ("os_cfar", "go_cfar", "so_cfar"):
             span = 2 * (g_ + tr // 2)
             while sr <= span:
                 js = np.arange(1, span // sr + 1)
@@ -302,6 +307,11 @@ def train_scene(sc, cpi=False):
                     cache[key] = (Nc / tr_) * Ne * (pfa ** (-1 / Ne) - 1)
             a = cache[key]
             return a * vals.mean(), a * noise.mean(), cs
+        if kind in ("go_cfar", "so_cfar"):
+            lead = np.array([a < 0 or (a == 0 and b < 0) for a, b in cs])
+            n1, n2 = int(np.sum(lead)), int(np.sum(~lead))
+            a = goso_alpha(pfa, n1, n2, kind)
+            return a * goso_mean(vals, lead, kind), a * goso_mean(noise, lead, kind), cs
         r = os_rank(Nc)
         a = model.os_alpha(Nc, r, pfa)
         return a * np.sort(vals)[r - 1], a * np.sort(noise)[r - 1], cs
@@ -355,6 +365,8 @@ def train_scene(sc, cpi=False):
                 a0 = model.os_alpha(Nc, kk, pfa)
                 sceneok = lambda r, Nc=Nc, kk=kk, a0=a0: sum(math.log((Nc - i) / (Nc - i + r * a0)) for i in range(kk)) >= math.log(1e-300)
                 reach = lambda r, Nc=Nc, a0=a0: r * a0 <= 1e4 * Nc  # idem, OS: 1e4 times the cells
+        if Pmap > 0 and math.isfinite(Lnoise) and Lnoise > 0 and (fl in DECORRELATING or kind in ("go_cfar", "so_cfar")):
+            pdf, sceneok, reach = map_pdf(plan, d, fl, kind, pfa, cs, reach, sceneok, os_rank)
         if pdf is not None and fl != "none" and not reach(1.0):
             # the nominal detector itself is beyond the series (a few OS
             # cells at a low Pfa): no Pd for a fluctuating target, the
@@ -373,7 +385,7 @@ def train_scene(sc, cpi=False):
             # raise; the series' limits (Pfa below 1e-300) bind the
             # fluctuating ones only
             pd_scene = pdf(chi, rr_) if (fl == "none" or sceneok(rr_)) else None
-            if fl != "none" and not reach(rr_):
+            if fl != "none" and fl != "swerling4" and not reach(rr_):
                 # beyond the series' reach a fluctuating target's Pd in
                 # the scene is left out and P >= T decides (detection.md §6)
                 pd_scene = None
@@ -392,12 +404,16 @@ def train_scene(sc, cpi=False):
                     steady_pdf = lambda x, r, Mc=len(cs): model.pd_ca(x, pfa, Mc, r)
                 elif kind == "os_cfar":
                     steady_pdf = lambda x, r, Nc=len(cs), kk=os_rank(len(cs)): model.pd_os(x, pfa, Nc, kk, r)
+                elif kind in ("go_cfar", "so_cfar"):
+                    steady_pdf = lambda x, r, cs=cs: goso_pd_steady(x, pfa, cs, kind, r)
                 steady, gauss = [], 0.0
                 for i, q in enumerate(objs):
                     pw = chi if i == j else q["P"][k] * q["g"][d] / Nd[d]
                     if pw <= 0:
                         continue
-                    if q["t"].get("fluctuation", "none") == "swerling1":
+                    if q["t"].get("fluctuation", "none") == "swerling4":
+                        raise Chi4InCell(t["id"])
+                    if q["t"].get("fluctuation", "none") in ("swerling1", "swerling2"):
                         gauss += pw
                     else:
                         steady.append(pw)
@@ -554,6 +570,203 @@ def stagger_fields(plan, pattern, lam):
 
 
 # ---------------------------------------------------------------- cases
+
+# ---- Swerling 2 and 4 on maps; GO and SO CFARs on maps (docs/detection.md
+# §9 "expected map power", §5 "2-D"; detection-probability.md §2 "Pulse-to-
+# pulse fluctuation in a Doppler bin", §7). Written from those documents.
+
+DECORRELATING = ("swerling2", "swerling4")
+
+
+class Chi4InCell(Exception):
+    """A Swerling 4 echo in a tested cell under the level: the in-cell law
+    of a chi-square-4 phasor is not in this model; such cases are not
+    generated (mapfl_case)."""
+
+
+def decorrelating_gain(plan, fd_pri):
+    """A Swerling 2/4 echo's complex amplitude is new every pulse: its
+    power spreads over the bins as noise, N(d); the peak bin is, among the
+    bins within 1e-9 of the largest, the one nearest its own folded
+    Doppler (detection.md §9)."""
+    g = plan.N.copy()
+    mx = g.max()
+    own = fd_pri - math.floor(fd_pri + 0.5)
+    best, d = float("inf"), 0
+    for i in range(plan.M):
+        if g[i] >= mx * (1 - 1e-9):
+            e = plan.fbin[i] - own
+            e = abs(e - math.floor(e + 0.5))
+            if e < best:
+                best, d = e, i
+    return g, d
+
+
+def bin_weights(plan, d):
+    """|A_{d,p}|^2: the bin's weight on each pulse (detection-probability.md §2)."""
+    return np.abs(plan.A[d, :]) ** 2
+
+
+def chi4_coeffs(w):
+    """c_m = m! e_m(w), w normalised to sum 1."""
+    w = np.asarray(w, float)
+    w = w[w > 0] / np.sum(w)
+    c = np.zeros(len(w) + 1)
+    c[0] = 1.0
+    for x in w:
+        c[1:] = c[1:] + np.arange(1, len(c)) * x * c[:-1]
+    return c
+
+
+def chi4_survival(c, chi, T):
+    """detection-probability.md §2: Pd(T) = e^-y [1 + sum_m (-1)^(m+1) (c_m/m)
+    rho^m y L_{m-1}^(1)(y)], y = T/V, V = 1 + chi/2, rho = (chi/2)/V."""
+    V = 1 + chi / 2
+    rho, y = chi / 2 / V, T / V
+    m = np.arange(1, len(c))
+    L = scipy.special.eval_genlaguerre(m - 1, 1, y)
+    s = 1 + np.sum((-1.0) ** (m + 1) * c[1:] / m * rho ** m * y * L)
+    return min(max(math.exp(-y) * s, 0.0), 1.0)
+
+
+def chi4_density(c, chi, x):
+    V = 1 + chi / 2
+    rho, y = chi / 2 / V, x / V
+    m = np.arange(0, len(c))
+    L = scipy.special.eval_laguerre(m, y)
+    return max(math.exp(-y) * float(np.sum((-1.0) ** m * c * rho ** m * L)) / V, 0.0)
+
+
+def chi4_over_x(c, chi, G):
+    """E_X[G(X)] for the Swerling 4 bin law, quad over x."""
+    f = lambda x: chi4_density(c, chi, x) * G(x)
+    V = 1 + chi
+    edges = [0, V, 5 * V, 20 * V, 80 * V]
+    return min(max(sum(integrate.quad(f, a, b, limit=200, epsabs=1e-12)[0] for a, b in zip(edges, edges[1:])), 0.0), 1.0)
+
+
+def goso_mean(vals, lead, kind):
+    """max (GO) or min (SO) of the halves' means; an empty half: the other."""
+    h = [vals[lead], vals[~lead]]
+    ms = [float(np.mean(x)) for x in h if len(x)]
+    return max(ms) if kind == "go_cfar" else min(ms)
+
+
+def goso_cdf(x, n1, n2, a, kind):
+    """P(a * Z <= x), Z the max/min of the half-means (Gamma(n, 1/n) each)."""
+    p = [scipy.special.gammainc(n, n * x / a) for n in (n1, n2) if n > 0]
+    if len(p) == 1 or kind == "go_cfar":
+        return float(np.prod(p))
+    return 1 - (1 - p[0]) * (1 - p[1])
+
+
+def goso_pfa(a, n1, n2, kind):
+    """E over the unit-exponential cell under test: int e^-x dF(x) = int F(x) e^-x dx."""
+    f = lambda x: goso_cdf(x, n1, n2, a, kind) * math.exp(-x)
+    # e^-x falls on the scale 1, F rises on the scale a: edges on both
+    edges = sorted({0.0, 1.0, 4.0, 16.0, 64.0, 256.0, a / 4, a, 4 * a, 16 * a, 64 * a}) + [np.inf]
+    return sum(integrate.quad(f, lo, hi, limit=200, epsabs=0, epsrel=1e-11)[0] for lo, hi in zip(edges, edges[1:]))
+
+
+_goso_cache = {}
+
+
+def goso_alpha(pfa, n1, n2, kind):
+    key = (pfa, n1, n2, kind)
+    if key not in _goso_cache:
+        g = lambda la: math.log(max(goso_pfa(math.exp(la), n1, n2, kind), 1e-320)) - math.log(pfa)
+        hi = 1.0
+        while g(hi) > 0:
+            hi += 1.0
+        _goso_cache[key] = math.exp(scipy.optimize.brentq(g, hi - 1.0 if hi > 1 else math.log(1e-3), hi, xtol=1e-14))
+    return _goso_cache[key]
+
+
+def halves(cs):
+    lead = [a < 0 or (a == 0 and b < 0) for a, b in cs]
+    return sum(lead), len(lead) - sum(lead)
+
+
+def goso_pd_steady(chi, pfa, cs, kind, r=1.0):
+    n1, n2 = halves(cs)
+    a = r * goso_alpha(pfa, n1, n2, kind)
+    return model._over_x(chi, np.vectorize(lambda x: goso_cdf(x, n1, n2, a, kind)))
+
+
+def map_pdf(plan, d, fl, kind, pfa, cs, reach, sceneok, os_rank):
+    """(pdf, sceneok, reach) of a target on the map: Swerling 2 the
+    exponential law at its bin's SNR (every detector as Swerling 1: the
+    CFAR's false-alarm law at alpha r / (1 + chi)); Swerling 4 the bin law
+    of §2 with the bin's weights, behind a CFAR E_X[F(X)]; GO and SO with
+    the 2-D halves (detection.md §5 "2-D")."""
+    if kind != "fixed" and not cs:
+        return None, sceneok, reach
+    if fl == "swerling4":
+        c = chi4_coeffs(bin_weights(plan, d))
+        if kind == "fixed":
+            return (lambda x, r=1.0: chi4_survival(c, x, r * -math.log(pfa))), sceneok, reach
+        if kind == "ca_cfar":
+            Mc = len(cs)
+            F = lambda r: (lambda x: scipy.special.gammainc(Mc, x / (r * (pfa ** (-1.0 / Mc) - 1))))
+        elif kind == "os_cfar":
+            Nc = len(cs)
+            kk = os_rank(Nc)
+            F = lambda r: (lambda x: stats.binom.sf(kk - 1, Nc, -math.expm1(-x / (r * model.os_alpha(Nc, kk, pfa)))))
+        else:
+            n1, n2 = halves(cs)
+            F = lambda r: (lambda x: goso_cdf(x, n1, n2, r * goso_alpha(pfa, n1, n2, kind), kind))
+        return (lambda x, r=1.0: chi4_over_x(c, x, F(r))), (lambda r: True), reach
+    if kind in ("go_cfar", "so_cfar"):
+        n1, n2 = halves(cs)
+        if fl in ("swerling1", "swerling2"):
+            return (lambda x, r=1.0: goso_pfa(r * goso_alpha(pfa, n1, n2, kind) / (1 + x), n1, n2, kind)), (lambda r: True), (lambda r: True)
+        return (lambda x, r=1.0: goso_pd_steady(x, pfa, cs, kind, r)), (lambda r: True), (lambda r: True)
+    # Swerling 2 behind fixed, CA, OS: the Swerling 1 forms at the bin's SNR
+    if kind == "fixed":
+        return (lambda x, r=1.0: pd_sw1(x, kind, pfa, r)), sceneok, reach
+    if kind == "ca_cfar":
+        return (lambda x, r=1.0, Mc=len(cs): pd_sw1(x, kind, pfa, r, M=Mc)), sceneok, reach
+    Nc = len(cs)
+    return (lambda x, r=1.0, kk=os_rank(Nc): pd_sw1(x, kind, pfa, r, N=Nc, kk=kk)), sceneok, reach
+
+
+N_MAPFL = 40
+
+
+def mapfl_case(rng, i):
+    """A uniform train (train_case) with Swerling 2 and 4 targets among
+    steady and Swerling 1 ones, behind fixed, CA, OS, GO and SO detectors;
+    a case where a Swerling 4 echo would share a tested cell under the
+    level is drawn again."""
+    while True:
+        sc = train_case(rng, i)
+        sc["name"] = f"mapfl-{i:03d}"
+        det = sc["receiver"]["detector"]
+        kind = ["fixed", "ca_cfar", "os_cfar", "go_cfar", "so_cfar"][i % 5]
+        if kind != det["kind"]:
+            det["kind"] = kind
+            if kind != "fixed":
+                det.setdefault("guard_cells", int(rng.integers(0, 4)))
+                det.setdefault("training_cells", 2 * int(rng.integers(2, 9)))
+                det.setdefault("doppler_guard_cells", int(rng.integers(0, 3)))
+                det.setdefault("doppler_training_cells", 2 * int(rng.integers(1, 4)))
+            else:
+                for f in ("guard_cells", "training_cells", "doppler_guard_cells", "doppler_training_cells", "rank"):
+                    det.pop(f, None)
+            if kind == "os_cfar":
+                det["rank"] = int(rng.integers(1, det["training_cells"] + 1))
+            else:
+                det.pop("rank", None)
+        for t in sc["targets"]:
+            t["fluctuation"] = str(rng.choice(["none", "swerling1", "swerling2", "swerling4", "swerling2"]))
+            if t["fluctuation"] == "none":
+                del t["fluctuation"]
+        try:
+            train_scene(sc)
+        except Chi4InCell:
+            continue
+        return sc
+
 
 SEED = 20261202 + 31
 N_TRAIN = 200
@@ -860,6 +1073,8 @@ def main():
     scs = [train_case(rng, i) for i in range(N_TRAIN)]
     scs += [stagger_case(rng, i) for i in range(N_STAGGER)]
     scs += [schedule_case(rng, i) for i in range(N_SCHEDULE)]
+    rng2 = np.random.default_rng(SEED + 1)  # a stream of its own: the cases above stay as they were
+    scs += [mapfl_case(rng2, i) for i in range(N_MAPFL)]
     for sc in scs:
         if only and sc["name"] != only:
             continue
