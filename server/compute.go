@@ -58,6 +58,8 @@ type evalCache struct {
 	mapsOf          *scenarios.Result   // the result whose CPISeries ScheduleMaps filled in
 	maps            mapScratch          // the heat maps' reused storage (mapframes.go)
 	linker          scenarios.Linker    // makes the share links, reusing its compressor
+	floorsMemo      [2]floorsMemo       // the Floors views of the last two results asked for
+	floorsErr       error               // why the last frame has no Floors chart, when asked for
 }
 
 // compute evaluates the newest state the reader posted and puts its frame
@@ -123,6 +125,7 @@ func (ss *session) release(c *evalCache) {
 		return
 	}
 	c.res, c.pinRes = nil, nil
+	c.floorsMemo = [2]floorsMemo{}
 	if ss.srv.cfg.SessionEvaluator != nil {
 		ss.eval = ss.srv.cfg.SessionEvaluator()
 	}
@@ -217,10 +220,8 @@ func (ss *session) evaluate(ctx context.Context, w want, c *evalCache) (*frame, 
 	f := ss.newFrame()
 	f.id, f.report, f.link, f.reference = w.id, c.report, c.link, nil
 	c.chartsOf(f, c.res, c.pinRes, w.view, len(ss.frames.ch) > 0)
-	if ch, ok, err := floorsChart(c.res, w.view); err != nil {
-		ss.log.Debug("floors", "id", w.id, "err", err)
-	} else if ok {
-		f.charts = append(f.charts, ch)
+	if c.floorsErr != nil {
+		ss.log.Debug("floors", "id", w.id, "err", c.floorsErr)
 	}
 	f.charts = append(f.charts, c.amb...)
 	f.charts = append(f.charts, c.wave...)

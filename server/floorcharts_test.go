@@ -3,7 +3,10 @@ package server
 import (
 	"context"
 	"encoding/json"
+	"fmt"
+	"math"
 	"net/http/httptest"
+	"reflect"
 	"slices"
 	"strings"
 	"testing"
@@ -133,6 +136,107 @@ func TestMaskWords(t *testing.T) {
 	} {
 		if got := maskWords(c.reason, c.id); got != c.want {
 			t.Errorf("maskWords(%q, %q) = %q, want %q", c.reason, c.id, got, c.want)
+		}
+	}
+}
+
+// markItemRef is a mark's data item as a map, encoded by encoding/json:
+// the reference appendMarkItem, which encodes by hand without
+// allocating, must agree with.
+func markItemRef(m scenarios.FloorMark, f *scenarios.Floors) map[string]any {
+	st, ok := statusStyle[m.Status]
+	if !ok {
+		st = statusStyle[scenarios.StatusTooWeak]
+	}
+	colour := floorStyle[m.Floor].colour
+	style := map[string]any{"color": colour, "borderColor": colour, "borderWidth": 1.5}
+	symbol := strings.TrimPrefix(st.symbol, "empty")
+	if !m.Hidden {
+		style["color"] = "#ffffff"
+		symbol = st.symbol
+	}
+	var tip string
+	words := strings.ReplaceAll(m.Status, "_", " ")
+	switch {
+	case m.Hidden && m.Floor == scenarios.FloorThermal:
+		tip = fmt.Sprintf("%s: %s, its peak %.1f dB is too weak for thermal noise", m.ID, words, m.PeakDB)
+	case m.Hidden && m.Floor == scenarios.FloorOwn:
+		tip = fmt.Sprintf("%s: %s by its own response, which fills the detector's training cells (its peak %.1f dB)", m.ID, words, m.PeakDB)
+	case m.Hidden && m.Floor == scenarios.FloorOthers && m.Source != "":
+		tip = fmt.Sprintf("%s: %s, hidden by %s (%.1f dB at its cell; its peak %.1f dB)", m.ID, words, m.Source, m.FloorDB, m.PeakDB)
+	case m.Hidden && m.Floor == scenarios.FloorQuantise, m.Hidden && m.Floor == scenarios.FloorDC:
+		tip = fmt.Sprintf("%s: %s, hidden by the %s (%.1f dB at its cell; its peak %.1f dB)", m.ID, words, floorWords[m.Floor], m.FloorDB, m.PeakDB)
+	case m.Hidden:
+		tip = fmt.Sprintf("%s: %s, hidden by %s's %s (%.1f dB at its cell; its peak %.1f dB)", m.ID, words, f.Target, floorWords[m.Floor], m.FloorDB, m.PeakDB)
+	default:
+		tip = fmt.Sprintf("%s: %s, its peak %.1f dB over the highest floor at its cell, %s at %.1f dB", m.ID, words, m.PeakDB, floorWords[m.Floor], m.FloorDB)
+	}
+	if f.Row >= 0 && !m.OnRow {
+		tip += fmt.Sprintf(" — at %+.1f m/s, off the plotted row (its floor is read on its own row)", m.RateMPS)
+		style["opacity"] = 0.45
+	}
+	return map[string]any{
+		"value": []float64{round2(m.RangeM), math.Round(clampDB(m.PeakDB)*100) / 100},
+		"name":  m.ID, "id": m.ID, "status": m.Status, "floor": m.Floor, "hidden": m.Hidden,
+		"symbol": symbol, "itemStyle": style, "tip": tip,
+	}
+}
+
+// TestMarkItemMatchesJSON: the Floors marks encoded by hand decode to the
+// same values as encoding/json's encoding of the same items as maps, for
+// every mark of every demo's Floors view and for made-up marks through
+// every tooltip sentence, off the map row or on it, with names that need
+// escaping, negative zero, NaN-free extremes and a rate of either sign.
+func TestMarkItemMatchesJSON(t *testing.T) {
+	demos, err := scenarios.Demos()
+	if err != nil {
+		t.Fatal(err)
+	}
+	check := func(what string, m scenarios.FloorMark, f *scenarios.Floors) {
+		t.Helper()
+		var got, want any
+		b := appendMarkItem(nil, m, f)
+		if err := json.Unmarshal(b, &got); err != nil {
+			t.Fatalf("%s: %s is not JSON: %v", what, b, err)
+		}
+		w, _ := json.Marshal(markItemRef(m, f))
+		json.Unmarshal(w, &want)
+		if !reflect.DeepEqual(got, want) {
+			t.Errorf("%s:\n got %s\nwant %s", what, b, w)
+		}
+	}
+	n := 0
+	for _, d := range demos {
+		res, err := scenarios.Evaluate(context.Background(), d.Scenario)
+		if err != nil {
+			t.Fatal(err)
+		}
+		f, err := res.Floors("", "")
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, m := range f.Marks {
+			check(d.Name+" "+m.ID, m, f)
+			n++
+		}
+	}
+	if n < 5 {
+		t.Errorf("only %d marks in the demos' Floors views", n)
+	}
+	f := &scenarios.Floors{Target: `tank"er<&>`, Row: 2}
+	floors := []string{scenarios.FloorThermal, scenarios.FloorOwn, scenarios.FloorOthers, scenarios.FloorQuantise, scenarios.FloorDC,
+		scenarios.FloorResponse, scenarios.FloorSkirt, scenarios.FloorImage, "unknown"}
+	for _, fl := range floors {
+		for _, hidden := range []bool{true, false} {
+			for _, onRow := range []bool{true, false} {
+				for _, src := range []string{"", "pilot\\boat\u2028"} {
+					m := scenarios.FloorMark{ID: "sk\"iff\t", RangeM: 1234.5678, PeakDB: -0.04, Status: "too_weak", Floor: fl, FloorDB: 17.25,
+						Hidden: hidden, Source: src, OnRow: onRow, RateMPS: -0.04}
+					check(fmt.Sprintf("%s hidden %v on row %v source %q", fl, hidden, onRow, src), m, f)
+					m.RateMPS, m.PeakDB, m.RangeM, m.Status = 12.35, 1e6, 2.5e6, "out_of_window"
+					check(fmt.Sprintf("%s hidden %v on row %v source %q (2)", fl, hidden, onRow, src), m, f)
+				}
+			}
 		}
 	}
 }

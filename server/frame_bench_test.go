@@ -98,9 +98,11 @@ func BenchmarkDragFrame(b *testing.B) {
 func frameViews(res *scenarios.Result) []view {
 	g := windowGrid(&res.Series, len(res.Series.ProfileDB))
 	zoom := &[2]float64{g.x(g.n / 3), g.x(g.n / 2)}
-	vws := []view{{width: 1200, mapWidth: 560}, {width: 700, mapWidth: 500, rangeM: zoom, cpiMaps: true}}
+	// The Floors tab shows: the strongest target's, then the last one's.
+	vws := []view{{width: 1200, mapWidth: 560, floors: &floorsReq{}}, {width: 700, mapWidth: 500, rangeM: zoom, cpiMaps: true}}
 	if len(res.Report.Targets) > 0 {
 		t := res.Report.Targets[len(res.Report.Targets)-1]
+		vws[1].floors = &floorsReq{target: t.ID}
 		rate := 0.0
 		if t.ApparentRangeRateMPS != nil {
 			rate = *t.ApparentRangeRateMPS
@@ -122,6 +124,9 @@ func wholeCharts(scn *scenarios.Scenario, res, ref *scenarios.Result, vw view) m
 	for _, c := range scheduleCharts(scn, res, vw) {
 		whole[c.name] = c
 	}
+	if c, ok, _ := floorsChart(res, vw); ok {
+		whole[c.name] = c
+	}
 	return whole
 }
 
@@ -132,8 +137,8 @@ var omitted = map[string]string{ChartBlindZones: SeriesZones}
 // TestFrameDataMatchesFullOption: the data-only path encodes each series
 // exactly as the whole chart carries it, for every chart of every demo
 // (the profile with its breakthrough areas, the echo, the range–Doppler
-// map and its cuts, the blind zones and the CPI maps), pinned or not,
-// zoomed or not.
+// map and its cuts, the blind zones, the CPI maps and the Floors tab's
+// curves and marks), pinned or not, zoomed or not.
 func TestFrameDataMatchesFullOption(t *testing.T) {
 	demos, err := scenarios.Demos()
 	if err != nil {
@@ -208,8 +213,10 @@ func TestFrameDataMatchesFullOption(t *testing.T) {
 // allocates nothing between the evaluation's result and the bytes for the
 // websocket, on every demo: the cached surfaces and designer plots are
 // looked up, the series, the range–Doppler map and its cuts, the
-// breakthrough areas, the blind zones' markers and the CPI maps decimated
-// and encoded into the frame's reused buffer, the response recognised as
+// breakthrough areas, the blind zones' markers, the CPI maps and the
+// Floors tab's curves and marks decimated and encoded into the frame's
+// reused buffer (the Floors analysis of a result, like the evaluation,
+// allocates, once per result: see floorsFor), the response recognised as
 // the one the page holds, and the frame encoded into the writer's reused
 // buffer. (The evaluation itself, the report's and link's encoding for a
 // new scenario, allocate: see BenchmarkDragFrame.)

@@ -67,6 +67,7 @@ func (c *evalCache) chartsOf(f *frame, res, ref *scenarios.Result, vw view, pend
 	if c.velOK {
 		f.charts = append(f.charts, c.settle([]chartOut{c.velOut})...)
 	}
+	c.floorsInto(f, res, vw, pending)
 	// The data slices point into buf and store, which have stopped
 	// growing; a chart's series are consecutive in refs.
 	for _, r := range f.refs {

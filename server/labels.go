@@ -96,8 +96,17 @@ func mustJSON(v any) []byte {
 
 // mapLabel names a marker on a heat map: dark text on a pale, rounded
 // plate, readable over the darkest cells.
-var mapLabel = opts.Label{Show: opts.Bool(true), Position: "right", Formatter: "{b}", FontSize: 11, Color: "#10202c",
+// Its line height is given, so that the box ECharts keeps the names
+// apart by (mapLabelLayout) is the plate drawn, whatever the fonts'
+// metrics.
+var mapLabel = opts.Label{Show: opts.Bool(true), Position: "right", Formatter: "{b}", FontSize: 11, LineHeight: 14, Color: "#10202c",
 	BackgroundColor: "rgba(255,255,255,0.85)", BorderRadius: 3}
+
+// mapLabelLayout keeps the names of markers that lie close on a map from
+// being drawn over each other: as on the profile, a name that would
+// overlap one already placed is left out (ECharts sorts them by symbol
+// area, then in data order: the scene's order of targets).
+var mapLabelLayout = map[string]any{"hideOverlap": true}
 
 // cutsLegends gives each plot of a twoCuts chart its own legend, under
 // its heading, at the plot's left.

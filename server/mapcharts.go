@@ -125,7 +125,13 @@ func heatChart(name, key string, h heat, more ...heatSeries) chartOut {
 	for i, s := range more {
 		ss := c.MultiSeries[i+1]
 		ss.Data = nil
-		series = append(series, seriesJSON{SingleSeries: ss, Data: placeholder(i + 1)})
+		// Above the cells (z 2), names included: a name on a strong
+		// cell was drawn under it.
+		sj := seriesJSON{SingleSeries: ss, Data: placeholder(i + 1), Z: 3}
+		if s.labels {
+			sj.LabelLayout = mapLabelLayout
+		}
+		series = append(series, sj)
 		b.data = append(b.data, seriesData{id: s.id, data: s.data})
 	}
 	opt["series"] = series
@@ -137,6 +143,9 @@ type heatSeries struct {
 	id, name string
 	data     []byte
 	opts     []charts.SeriesOpts
+	// labels, when set, names the markers (mapLabel) and keeps their
+	// names from overlapping (mapLabelLayout).
+	labels bool
 }
 
 // appendCell appends one heat map cell [col,row,v] to an array that b,

@@ -202,7 +202,7 @@ func rdmapChart(res *scenarios.Result, vw view) (chartOut, bool) {
 	more := []heatSeries{{id: SeriesMarkers, name: "targets", data: appendRDMarkers(nil, res, l), opts: []charts.SeriesOpts{
 		charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.SymbolSize = 13 }),
 		charts.WithLabelOpts(mapLabel),
-	}}}
+	}, labels: true}}
 	key := string(l.appendKey(nil, vmin, vmax, vw.cell != nil))
 	if vw.cell != nil {
 		more = append(more, heatSeries{id: SeriesCell, name: "selected cell", data: l.appendSelected(nil, *vw.cell), opts: []charts.SeriesOpts{

@@ -94,7 +94,7 @@ func blindZonesChartOf(sc *scenarios.Scenario, sr *scenarios.ScheduleReport, bz 
 	h.xCats, h.yCats = km, roundAll(bz.Rates, 0.1, 1)
 	h.colours, h.cells, h.pieces = []string{bzSeen[len(bzSeen)-1]}, cells, bzPieces(n, sr.M)
 	out := heatChart(SeriesZones, key, h, heatSeries{id: SeriesMarkers, name: "targets", data: appendBZMarkers(nil, sc, sr, h),
-		opts: []charts.SeriesOpts{charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.SymbolSize = 13 }), charts.WithLabelOpts(mapLabel)}})
+		opts: []charts.SeriesOpts{charts.WithSeriesOpts(func(s *charts.SingleSeries) { s.SymbolSize = 13 }), charts.WithLabelOpts(mapLabel)}, labels: true})
 	out.name = ChartBlindZones
 	return out
 }

@@ -61,6 +61,7 @@ export class FastLayer {
     chart.getDom().append(this.canvas);
     this.styles = new Map(); // series id → how it is drawn
     this.data = new Map(); // series id → its newest data
+    this.labels = []; // the labels last drawn, each with its box
     this.active = false;
   }
 
@@ -85,6 +86,8 @@ export class FastLayer {
         size: s.symbolSize || 10,
         border: is.borderColor ? { colour: is.borderColor, width: is.borderWidth ?? 1 } : null,
         label: s.label && s.label.show ? s.label : null,
+        hideOverlap: !!(s.labelLayout && s.labelLayout.hideOverlap),
+        opacity80: is.opacity ?? 0.8, // a scatter series' symbols (ECharts' default)
         endLabel: s.endLabel && s.endLabel.show ? s.endLabel : null,
       });
       if (Array.isArray(s.data)) this.data.set(s.id, s.data);
@@ -180,7 +183,8 @@ export class FastLayer {
       else if (st.type === 'scatter') this.markers(g, map, st, data, labels);
     }
     g.restore();
-    for (const l of labels) text(g, l);
+    this.labels = hideOverlaps(g, labels);
+    for (const l of this.labels) text(g, l);
   }
 
   // What lies under the series (the heat map's cells); nothing here.
@@ -223,6 +227,9 @@ export class FastLayer {
 
   markers(g, map, st, data, labels) {
     const r = st.size / 2;
+    // ECharts draws a scatter series' symbols at opacity 0.8 unless told.
+    g.save();
+    g.globalAlpha = st.opacity80;
     for (const d of data) {
       const v = Array.isArray(d) ? d : d && d.value;
       if (!v || !Number.isFinite(v[0]) || !Number.isFinite(v[1])) continue;
@@ -233,11 +240,17 @@ export class FastLayer {
       symbol(g, d.symbol || st.symbol || 'circle', px, py, r, is.color || st.colour, border);
       if (st.label && d.name) {
         const colour = st.label.color || '#25292e';
+        const hide = st.hideOverlap;
+        // ECharts places a label by the symbol's drawn box, its outline
+        // included, 5 px away.
+        const b = symbolBox(d.symbol || st.symbol || 'circle', r, border ? border.width : 0);
         if (st.label.position === 'right') {
-          labels.push({ x: px + r + 5, y: py, text: String(d.name), colour, font: Font, align: 'left', base: 'middle', plate: st.label.backgroundColor });
-        } else labels.push({ x: px, y: py - r - 5, text: String(d.name), colour, font: Font, align: 'center', base: 'bottom' });
+          labels.push({ x: px + b.right + 5, y: py + (b.top + b.bottom) / 2, text: String(d.name), colour, font: Font, align: 'left', base: 'middle',
+            plate: st.label.backgroundColor, line: st.label.lineHeight, hide });
+        } else labels.push({ x: px, y: py + b.top - 5, text: String(d.name), colour, font: Font, align: 'center', base: 'bottom', hide });
       }
     }
+    g.restore();
   }
 }
 
@@ -334,28 +347,11 @@ function colourTable(colours) {
   return new Uint32Array(bytes.buffer);
 }
 
+// symbol draws a marker of size 2r at (x, y) with the path ECharts
+// (5.x, its symbol.ts) builds for the same symbol name (symbolPath), so
+// that a marker keeps its status shape on this layer.
 function symbol(g, kind, x, y, r, colour, border) {
-  g.beginPath();
-  switch (kind) {
-    case 'diamond':
-      g.moveTo(x, y - r);
-      g.lineTo(x + r, y);
-      g.lineTo(x, y + r);
-      g.lineTo(x - r, y);
-      g.closePath();
-      break;
-    case 'triangle':
-      g.moveTo(x, y - r);
-      g.lineTo(x + r, y + r);
-      g.lineTo(x - r, y + r);
-      g.closePath();
-      break;
-    case 'rect':
-      g.rect(x - r, y - r, 2 * r, 2 * r);
-      break;
-    default:
-      g.arc(x, y, kind === 'emptyCircle' ? r - 1 : r, 0, 2 * Math.PI);
-  }
+  symbolPath(g, kind, x, y, r);
   if (kind === 'emptyCircle') {
     g.fillStyle = '#fff';
     g.fill();
@@ -375,15 +371,123 @@ function symbol(g, kind, x, y, r, colour, border) {
   }
 }
 
+// symbolPath begins a path of symbol kind, of size 2r, at (x, y) on g.
+export function symbolPath(g, kind, x, y, r) {
+  g.beginPath();
+  switch (kind) {
+    case 'roundRect':
+      g.roundRect(x - r, y - r, 2 * r, 2 * r, r / 2); // corner radius: a quarter of the side
+      break;
+    case 'pin': {
+      // A pin whose tip is at (x, y): a circle 3/5 of the size wide on
+      // top, joined to the tip by two curves.
+      const w = (2 * r * 3) / 5;
+      const h = Math.max(w, 2 * r);
+      const a = w / 2;
+      const dy = (a * a) / (h - a);
+      const cy = y - h + a + dy;
+      const u = Math.asin(dy / a);
+      const dx = Math.cos(u) * a;
+      const tx = Math.sin(u);
+      const ty = Math.cos(u);
+      const c1 = 0.6 * a;
+      const c2 = 0.7 * a;
+      g.moveTo(x - dx, cy + dy);
+      g.arc(x, cy, a, Math.PI - u, 2 * Math.PI + u);
+      g.bezierCurveTo(x + dx - tx * c1, cy + dy + ty * c1, x, y - c2, x, y);
+      g.bezierCurveTo(x, y - c2, x - dx + tx * c1, cy + dy + ty * c1, x - dx, cy + dy);
+      g.closePath();
+      break;
+    }
+    case 'arrow': {
+      // ECharts' arrow hangs from (x, y), its notched base 2r below.
+      const dx = (2 * r * 2) / 3;
+      g.moveTo(x, y);
+      g.lineTo(x + dx, y + 2 * r);
+      g.lineTo(x, y + 1.5 * r);
+      g.lineTo(x - dx, y + 2 * r);
+      g.lineTo(x, y);
+      g.closePath();
+      break;
+    }
+    case 'diamond':
+      g.moveTo(x, y - r);
+      g.lineTo(x + r, y);
+      g.lineTo(x, y + r);
+      g.lineTo(x - r, y);
+      g.closePath();
+      break;
+    case 'triangle':
+      g.moveTo(x, y - r);
+      g.lineTo(x + r, y + r);
+      g.lineTo(x - r, y + r);
+      g.closePath();
+      break;
+    case 'rect':
+      g.rect(x - r, y - r, 2 * r, 2 * r);
+      break;
+    default:
+      g.arc(x, y, kind === 'emptyCircle' ? r - 1 : r, 0, 2 * Math.PI);
+  }
+}
+
+// hideOverlaps returns the labels to draw: as ECharts' labelLayout
+// hideOverlap does, a label of a series that asks for it is left out when
+// it would overlap one of those labels placed before it (in series and
+// data order; the markers are all of one size, which ECharts ranks
+// first). Each label kept gets its box, {x, y, w, h} in CSS px.
+function hideOverlaps(g, labels) {
+  const placed = [];
+  const out = [];
+  for (const l of labels) {
+    l.box = labelBox(g, l);
+    if (l.hide) {
+      const b = l.box;
+      if (placed.some((p) => b.x < p.x + p.w && p.x < b.x + b.w && b.y < p.y + p.h && p.y < b.y + b.h)) continue;
+      placed.push(b);
+    }
+    out.push(l);
+  }
+  return out;
+}
+
+// labelBox is the box text(g, l) draws in: the plate, or the text. A
+// label with a line height (the map's names) has ECharts' plate: the
+// text's width by the line height, without padding.
+function labelBox(g, l) {
+  g.font = l.font;
+  const w = g.measureText(l.text).width;
+  const x = l.align === 'center' ? l.x - w / 2 : l.x;
+  if (l.line) return { x, y: l.base === 'bottom' ? l.y - l.line : l.y - l.line / 2, w, h: l.line };
+  const y = l.base === 'bottom' ? l.y - 13 : l.y - 8;
+  return l.plate ? { x: x - 3, y, w: w + 6, h: 16 } : { x, y, w, h: 13 };
+}
+
+// symbolBox is the box ECharts' symbol of size 2r covers around its
+// point, its outline (width bw) included: {top, bottom, right} offsets.
+function symbolBox(kind, r, bw) {
+  const o = bw / 2;
+  if (kind === 'pin') {
+    const a = (2 * r * 3) / 10;
+    const h = Math.max(2 * a, 2 * r);
+    return { top: -h + (a * a) / (h - a) - o, bottom: o, right: a + o };
+  }
+  if (kind === 'arrow') return { top: -o, bottom: 2 * r + o, right: (4 * r) / 3 + o };
+  return { top: -r - o, bottom: r + o, right: r + o };
+}
+
 function text(g, l) {
   g.font = l.font;
   g.textAlign = l.align;
   g.textBaseline = l.base;
   if (l.plate) {
-    const w = g.measureText(l.text).width;
-    const x = l.align === 'center' ? l.x - w / 2 : l.x;
+    const b = l.box || labelBox(g, l);
     g.fillStyle = l.plate;
-    g.fillRect(x - 3, l.y - 8, w + 6, 16);
+    if (l.line) {
+      g.beginPath();
+      g.roundRect(b.x, b.y, b.w, b.h, 3);
+      g.fill();
+    } else g.fillRect(b.x, b.y, b.w, b.h);
   }
   g.fillStyle = l.colour;
   g.fillText(l.text, l.x, l.y);

@@ -109,13 +109,15 @@ function renderForms() {
 
 store.onChange((s, cause) => {
   session.noteEdit();
-  if (cause !== 'edit' || !plots.drag) renderForms();
-  else if (!formsTimer) formsTimer = setTimeout(renderForms, Math.max(0, formsAt + FormsMs - performance.now()));
   if (cause === 'load' || cause === 'link') { // a new scene: its own cuts
     if (session.cell) session.sendCell(null);
     plots.clearCell();
   }
+  // The edit goes to the server first; the forms follow while it computes.
   session.sendScenario(s, cause === 'link' ? 'link' : null, store.version);
+  session.sendNow();
+  if (cause !== 'edit' || !plots.drag) renderForms();
+  else if (!formsTimer) formsTimer = setTimeout(renderForms, Math.max(0, formsAt + FormsMs - performance.now()));
   refreshStale();
   $('#btn-undo').disabled = !store.undoStack.length;
   $('#btn-redo').disabled = !store.redoStack.length;

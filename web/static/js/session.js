@@ -1,8 +1,13 @@
-// The websocket session with the server: sends edits (at most one per
-// animation frame, latest wins), the view and the pin, and hands frames
+// The websocket session with the server: sends edits (at once, and at
+// most one per animation frame while they stream; latest wins), the view and the pin, and hands frames
 // and errors to the page. Reconnects with back-off and resends its state.
 
 import { MsgError, MsgFrame, cellMsg, floorsMsg, pinMsg, scenarioMsg, viewMsg } from './protocol.js';
+
+// A drag's steps come once per animation frame (about 16.7 ms apart, a
+// little less when frames jitter); a gap this short keeps them from
+// waiting a frame more while still merging bursts within one frame.
+const SendGapMs = 10;
 
 export class Session {
   constructor({ onFrame, onError, onStatus }) {
@@ -26,6 +31,9 @@ export class Session {
     this.tags = new Map(); // edit id → tag given to sendScenario
     this.version = 0; // the page's version of this.scenario
     this.versions = []; // [id, version] of the scenarios sent, oldest first
+    this.flushedAt = -Infinity; // performance.now() of the last flush
+    this.turn = 0; // counts schedules, so that a sent one does not run again
+    this.soon = false; // the scheduled flush is a microtask, not an animation frame
   }
 
   connect() {
@@ -133,18 +141,41 @@ export class Session {
     this.schedule();
   }
 
+  // Messages go out at the end of the task that queued them (a
+  // microtask: the changes of one task, a new scene's cell and scenario,
+  // go together), without waiting for the next animation frame, which
+  // cost a single edit up to 16 ms before the server saw it. Only when
+  // the last message went out less than SendGapMs ago do they wait for
+  // the next animation frame, so that a burst of edits (keys held, a
+  // drag's steps) sends at most one scenario per frame.
   schedule() {
     if (this.scheduled) return;
     this.scheduled = true;
-    requestAnimationFrame(() => {
+    const turn = ++this.turn;
+    const run = () => {
+      if (turn !== this.turn || !this.scheduled) return; // sent already (sendNow)
       this.scheduled = false;
       this.flush();
-    });
+    };
+    this.soon = performance.now() - this.flushedAt >= SendGapMs;
+    if (this.soon) queueMicrotask(run);
+    else requestAnimationFrame(run);
+  }
+
+  // Send what is queued for the end of this task now, before the caller
+  // does slower work (the editor's forms); what waits for an animation
+  // frame keeps waiting.
+  sendNow() {
+    if (!this.scheduled || !this.soon) return;
+    this.scheduled = false;
+    this.turn++;
+    this.flush();
   }
 
   flush() {
     const ws = this.ws;
     if (!ws || ws.readyState !== WebSocket.OPEN) return;
+    this.flushedAt = performance.now();
     // The view and the pin go first, so that the edit's frame uses them.
     if (this.dirty.view) {
       this.dirty.view = false;
