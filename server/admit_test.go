@@ -164,7 +164,7 @@ func TestRealEvaluationHonoursDeadline(t *testing.T) {
 		t.Skip("seconds of CPU")
 	}
 	var tg []string
-	for i := range 24 {
+	for i := range 96 {
 		tg = append(tg, fmt.Sprintf(`{"id":"c%d","kind":"extended","range_start_m":6000,"range_stop_m":900000,"rcs_dbsm_per_m":-30}`, i))
 	}
 	doc := `{"version":2,"radar":{"sample_rate_hz":2e7,"pri_s":0.1,"window_start_m":5000,"window_stop_m":900000},` +
