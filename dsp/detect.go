@@ -111,6 +111,11 @@ type CFAR struct {
 	scratch []float64
 	prefix  []float64
 	count   []int
+	// Cell averaging's per-cell factors for the last validity pattern
+	// (caCoefficients).
+	caCoef  []float64
+	caValid []bool
+	caNil   bool
 }
 
 // Multiplier returns the threshold multiplier for n independent training
@@ -276,17 +281,61 @@ func (c *CFAR) ThresholdsValid(dst, power []float64, valid []bool) []float64 {
 		}
 		return dst
 	}
+	coef := c.caCoefficients(n, valid)
 	c.prefix = slices.Grow(c.prefix[:0], n+1)[:n+1]
-	c.count = slices.Grow(c.count[:0], n+1)[:n+1]
-	c.prefix[0], c.count[0] = 0, 0
-	for i, v := range power {
-		ok := valid == nil || valid[i]
-		if !ok {
-			v = 0
+	p := c.prefix
+	p[0] = 0
+	// The running sum stays in a register (p[i+1] = p[i] + v, the same
+	// additions).
+	acc := 0.0
+	if valid == nil {
+		for i, v := range power {
+			acc += v
+			p[i+1] = acc
 		}
-		c.prefix[i+1] = c.prefix[i] + v
+	} else {
+		valid = valid[:len(power)]
+		for i, v := range power {
+			if !valid[i] {
+				v = 0
+			}
+			acc += v
+			p[i+1] = acc
+		}
+	}
+	half := c.Train / 2
+	for k := range n {
+		a := coef[k]
+		if a < 0 {
+			dst[k] = math.Inf(1)
+			continue
+		}
+		// TrainingCells(k, n), inlined.
+		hi1, lo1 := max(k-c.Guard, 0), max(k-c.Guard-half, 0)
+		lo2, hi2 := min(k+c.Guard+1, n), min(k+c.Guard+1+half, n)
+		s := p[hi1] - p[lo1] + p[hi2] - p[lo2]
+		if s <= 0 { // math.Max(s, 0) without its call: −0 and negatives to +0, NaN kept
+			s = 0
+		}
+		dst[k] = a * s
+	}
+	return dst
+}
+
+// caCoefficients returns, per cell of a profile of length n with the
+// validity valid, the cell-averaging multiplier over the number of
+// training cells it uses (the factor on their sum), or −1 when it has
+// none. The last pattern's coefficients are kept: Monte Carlo trials test
+// profile after profile of one validity.
+func (c *CFAR) caCoefficients(n int, valid []bool) []float64 {
+	if c.caCoef != nil && len(c.caCoef) == n && c.caNil == (valid == nil) && (valid == nil || slices.Equal(c.caValid, valid)) {
+		return c.caCoef
+	}
+	c.count = slices.Grow(c.count[:0], n+1)[:n+1]
+	c.count[0] = 0
+	for i := range n {
 		c.count[i+1] = c.count[i]
-		if ok {
+		if valid == nil || valid[i] {
 			c.count[i+1]++
 		}
 	}
@@ -297,24 +346,26 @@ func (c *CFAR) ThresholdsValid(dst, power []float64, valid []bool) []float64 {
 		c.offs = c.Cells(c.offs[:0], c.Guard+half, max(n, 2*(c.Guard+half)+1), nil)
 		aFull = c.multiplierFor(c.offs) / float64(full)
 	}
-	p, cnt := c.prefix, c.count
+	coef := slices.Grow(c.caCoef[:0], n)[:n]
+	cnt := c.count
 	for k := range n {
 		lo1, hi1, lo2, hi2 := c.TrainingCells(k, n)
 		m := cnt[hi1] - cnt[lo1] + cnt[hi2] - cnt[lo2]
-		s := math.Max(p[hi1]-p[lo1]+p[hi2]-p[lo2], 0)
 		switch {
 		case m == 0:
-			dst[k] = math.Inf(1)
+			coef[k] = -1
 		case m == full:
-			dst[k] = aFull * s
+			coef[k] = aFull
 		case c.Rho == nil:
-			dst[k] = c.Multiplier(m) / float64(m) * s
+			coef[k] = c.Multiplier(m) / float64(m)
 		default:
 			c.offs = c.Cells(c.offs[:0], k, n, valid)
-			dst[k] = c.multiplierFor(c.offs) / float64(m) * s
+			coef[k] = c.multiplierFor(c.offs) / float64(m)
 		}
 	}
-	return dst
+	c.caCoef, c.caNil = coef, valid == nil
+	c.caValid = append(c.caValid[:0], valid...)
+	return coef
 }
 
 // quickSelect returns the k-th smallest (0-based) element of x, reordering x.

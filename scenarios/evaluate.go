@@ -402,10 +402,7 @@ func (sc *scene) windowPower(workers int, x, y []complex128, p []float64) []comp
 		}
 	}
 	sc.fe.stcShape(m, echo, 0)
-	noise := streamOf(m.s.Seed, "", 0x4e01)
-	for i := range echo {
-		echo[i] += dsp.ComplexNormal(noise)
-	}
+	addNoise(echo, m.s.Seed, 0x4e01)
 	sc.fe.receive(echo)
 	sc.blank(echo, 0)
 	// x holds lead zeros, then the echo: an echo at window sample d peaks at y[d].

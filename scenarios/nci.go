@@ -104,10 +104,7 @@ func (sc *scene) nciPower(workers int, x, y []complex128, p []float64) []complex
 			}
 		}
 		sc.fe.stcShape(m, echo, 0)
-		noise := streamOf(m.s.Seed, "", 0x4e01+uint64(q)<<24)
-		for i := range echo {
-			echo[i] += dsp.ComplexNormal(noise)
-		}
+		addNoise(echo, m.s.Seed, 0x4e01+uint64(q)<<24)
 		sc.fe.receive(echo)
 		sc.blank(echo, 0)
 		y = m.winCorr.Apply(y, x)

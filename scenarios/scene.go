@@ -2,7 +2,6 @@ package scenarios
 
 import (
 	"context"
-	"hash/fnv"
 	"math"
 	"math/bits"
 	"math/cmplx"
@@ -123,10 +122,35 @@ type tgt struct {
 	unclipped response
 }
 
+// streamOf returns the random stream of (seed, id, salt): a PCG seeded
+// with the scenario seed and streamKey(id, salt).
 func streamOf(seed int64, id string, salt uint64) *rand.Rand {
-	h := fnv.New64a()
-	h.Write([]byte(id))
-	return rand.New(rand.NewPCG(uint64(seed), h.Sum64()^salt))
+	return rand.New(rand.NewPCG(uint64(seed), streamKey(id, salt)))
+}
+
+// streamKey is the second PCG seed of a stream: the 64-bit FNV-1a hash of
+// id (hash/fnv's New64a, written out so that it allocates nothing) xor
+// salt.
+func streamKey(id string, salt uint64) uint64 {
+	const (
+		offset = 14695981039346656037
+		prime  = 1099511628211
+	)
+	h := uint64(offset)
+	for i := 0; i < len(id); i++ {
+		h ^= uint64(id[i])
+		h *= prime
+	}
+	return h ^ salt
+}
+
+// addNoise adds unit-power thermal noise to x from the stream
+// (seed, "", salt): the values of dsp.ComplexNormal over streamOf, drawn
+// by the faster dsp.AddComplexNormal.
+func addNoise(x []complex128, seed int64, salt uint64) {
+	var src rand.PCG
+	src.Seed(uint64(seed), streamKey("", salt))
+	dsp.AddComplexNormal(x, &src)
 }
 
 // newScene computes the noise-free response of every target. Work is

@@ -524,10 +524,7 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 				}
 			}
 			tr.sc.fe.stcShape(m, echo, 0)
-			noise := streamOf(m.s.Seed, "", 0x4e01+uint64(p)<<24)
-			for i := range echo {
-				echo[i] += dsp.ComplexNormal(noise)
-			}
+			addNoise(echo, m.s.Seed, 0x4e01+uint64(p)<<24)
 			tr.sc.fe.receive(echo)
 			if tr.times != nil {
 				m.blankSweep(echo, p)

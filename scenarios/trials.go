@@ -5,7 +5,9 @@ import (
 	"fmt"
 	"math"
 	"math/cmplx"
+	"math/rand/v2"
 	"runtime"
+	"slices"
 	"sync"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -331,6 +333,35 @@ type trialWorker struct {
 	x, y  []complex128
 	floor float64
 	pm    [][]float64 // pulse trains: linear map [bin][cell]
+	// Single coherent pulses: the echoes that do not change from trial
+	// to trial, made once (echoCache); nil for non-coherent trains.
+	ech *trialEchoes
+	// A stream of its own, reseeded per draw (streamOf without the
+	// allocations).
+	pcg rand.PCG
+	rng *rand.Rand
+}
+
+// trialEchoes are a worker's noise-free echoes of a single coherent pulse,
+// as the reference does it: the steady point targets' echoes summed once,
+// each fluctuating (or, under SetRandomPhase, each) point target's echo at
+// unit RCS and its range's phase (phase 1 under SetRandomPhase) kept
+// apart and scaled per trial by √(its RCS draw) (and its phase draw), so
+// a trial synthesises no waveform. Volume targets and echoes with phase
+// noise are still drawn per trial as windowPower draws them. The window
+// equals windowPower's to rounding (the sums are taken in another order).
+type trialEchoes struct {
+	steady  []complex128 // len recLen: the steady echoes, STC applied; nil when none
+	points  []trialPoint
+	dynamic []int // targets windowPower's way, per trial (volume, phase noise)
+}
+
+// trialPoint is one point target's echo at unit RCS, STC applied.
+type trialPoint struct {
+	rcsKey, phaseKey uint64 // streamKey of its RCS and phase draws
+	model            int    // Swerling case
+	lo               int    // window sample of echo[0]
+	echo             []complex128
 }
 
 func (t *Trials) newWorker() *trialWorker {
@@ -363,6 +394,10 @@ func (t *Trials) newWorker() *trialWorker {
 			w.sc.targets[j] = &c
 		}
 	}
+	w.rng = rand.New(&w.pcg)
+	if !t.s.NonCoherent() {
+		w.ech = w.echoCache()
+	}
 	w.p = make([]float64, t.m.n)
 	w.th = make([]float64, t.m.n)
 	w.x = make([]complex128, t.m.recLen+t.m.lead)
@@ -380,14 +415,18 @@ func (w *trialWorker) trial(i int, c *TrialCounts) {
 		return
 	}
 	m := &w.m
-	if w.t.randomPhase {
-		for _, g := range w.sc.targets {
-			g.phase = cmplx.Rect(1, 2*math.Pi*streamOf(w.s.Seed, g.t.ID, 0x9a5e).Float64())
-		}
-	}
 	// The compressed power, linear, as window's ProfileDB would give it
 	// after dsp.FromDB (its floor and unprocessed gates included).
-	w.sc.windowPower(1, w.x, w.y, w.p)
+	if w.ech != nil {
+		w.windowPower()
+	} else {
+		if w.t.randomPhase {
+			for _, g := range w.sc.targets {
+				g.phase = cmplx.Rect(1, 2*math.Pi*streamOf(w.s.Seed, g.t.ID, 0x9a5e).Float64())
+			}
+		}
+		w.sc.windowPower(1, w.x, w.y, w.p)
+	}
 	for k, ok := range m.processed {
 		if !ok || w.p[k] < w.floor {
 			w.p[k] = w.floor
@@ -414,6 +453,118 @@ func (w *trialWorker) trial(i int, c *TrialCounts) {
 				c.FalseAlarms++
 			}
 		}
+	}
+}
+
+// echoCache makes the worker's trialEchoes (single coherent pulses).
+func (w *trialWorker) echoCache() *trialEchoes {
+	m, sc := &w.m, &w.sc
+	e := &trialEchoes{}
+	nrec := m.recLen
+	for j, g := range sc.targets {
+		switch {
+		case g.t.Kind == TargetPoint && g.amp > 0 && sc.fe.newPNEcho(m, g, 1, m.s.Seed) == nil:
+			model := swerling(g.t.Fluctuation)
+			if model == dsp.SwerlingNone && !w.t.randomPhase {
+				if e.steady == nil {
+					e.steady = make([]complex128, nrec)
+				}
+				// windowPower's amplitude for a steady target: g.amp·√1.
+				m.addPointEcho(e.steady, g.delay, complex(g.amp, 0)*g.phase, g.fd)
+				continue
+			}
+			buf := make([]complex128, nrec)
+			ph := g.phase
+			if w.t.randomPhase {
+				ph = 1
+			}
+			m.addPointEcho(buf, g.delay, complex(g.amp, 0)*ph, g.fd)
+			sc.fe.stcShape(m, buf, 0)
+			lo, hi := 0, len(buf)
+			for lo < hi && buf[lo] == 0 {
+				lo++
+			}
+			for hi > lo && buf[hi-1] == 0 {
+				hi--
+			}
+			e.points = append(e.points, trialPoint{
+				rcsKey: streamKey(g.t.ID, 0x5157), phaseKey: streamKey(g.t.ID, 0x9a5e),
+				model: model, lo: lo, echo: slices.Clip(buf[lo:hi]),
+			})
+		case g.t.Kind == TargetPoint && g.amp > 0, g.density != nil:
+			e.dynamic = append(e.dynamic, j)
+		}
+	}
+	if e.steady != nil {
+		sc.fe.stcShape(m, e.steady, 0)
+	}
+	return e
+}
+
+// draw reseeds the worker's stream to streamOf(seed, ·, ·) of key.
+func (w *trialWorker) draw(key uint64) *rand.Rand {
+	w.pcg.Seed(uint64(w.s.Seed), key)
+	return w.rng
+}
+
+// windowPower is scene.windowPower for a single coherent pulse from the
+// worker's cached echoes (trialEchoes): the noisy window into w.x, its
+// compression into w.y, the compressed power re noise into w.p.
+func (w *trialWorker) windowPower() {
+	m, sc, e := &w.m, &w.sc, w.ech
+	x := w.x
+	clear(x[:m.lead])
+	echo := x[m.lead:]
+	if len(e.dynamic) > 0 {
+		clear(echo)
+		for _, j := range e.dynamic {
+			g := sc.targets[j]
+			if w.t.randomPhase {
+				g.phase = cmplx.Rect(1, 2*math.Pi*w.draw(streamKey(g.t.ID, 0x9a5e)).Float64())
+			}
+			pn := sc.fe.newPNEcho(m, g, 1, m.s.Seed)
+			switch {
+			case g.t.Kind == TargetPoint && g.amp > 0:
+				amp := g.amp * math.Sqrt(dsp.SwerlingRCS(w.draw(streamKey(g.t.ID, 0x5157)), 1, swerling(g.t.Fluctuation)))
+				m.addPointEchoPN(echo, pn, g.t.ID, 0, g.delay, complex(amp, 0)*g.phase, g.fd)
+			case g.density != nil:
+				f := sc.newClutterField(g)
+				f.pn = pn
+				f.add(echo, 0)
+			}
+		}
+		sc.fe.stcShape(m, echo, 0)
+		if e.steady != nil {
+			for i, v := range e.steady {
+				echo[i] += v
+			}
+		}
+	} else if e.steady != nil {
+		copy(echo, e.steady)
+	} else {
+		clear(echo)
+	}
+	for _, pt := range e.points {
+		c := complex(math.Sqrt(dsp.SwerlingRCS(w.draw(pt.rcsKey), 1, pt.model)), 0)
+		if w.t.randomPhase {
+			c *= cmplx.Rect(1, 2*math.Pi*w.draw(pt.phaseKey).Float64())
+		}
+		dst := echo[pt.lo : pt.lo+len(pt.echo)]
+		for i, v := range pt.echo {
+			dst[i] += c * v
+		}
+	}
+	addNoise(echo, m.s.Seed, 0x4e01)
+	sc.fe.receive(echo)
+	sc.blank(echo, 0)
+	// As scene.windowPower: an echo at window sample d peaks at y[d].
+	if m.winCorr == nil || m.winCorr.Len() != len(x) {
+		m.winCorr = dsp.NewCorrelatorWorkers(m.ref, len(x), 1)
+	}
+	y := m.winCorr.Apply(w.y, x)
+	for k := range w.p {
+		v := y[k]
+		w.p[k] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
 	}
 }
 

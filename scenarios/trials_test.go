@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"hash/fnv"
 	"math"
 	"strconv"
 	"strings"
@@ -666,6 +667,20 @@ func TestTrialsMapSwerling2And4MTIStagger(t *testing.T) {
 			t.Logf("%s (%s): report %.4f, trials %.4f [%.4f, %.4f]", r.ID, s.Targets[j].Fluctuation, *r.Pd, float64(c.Detections[j])/n, lo, hi)
 			if !ok {
 				t.Errorf("%s: analytic %.4f outside [%.4f, %.4f]", r.ID, *r.Pd, lo, hi)
+			}
+		}
+	}
+}
+
+// TestStreamKeyIsFNV: the allocation-free stream key against Go's
+// hash/fnv (FNV-1a, 64 bits), the hash the streams were defined with.
+func TestStreamKeyIsFNV(t *testing.T) {
+	for _, id := range []string{"", "a", "tanker", "pilot-boat", "ü-ß 漢字", strings.Repeat("x", 300)} {
+		h := fnv.New64a()
+		h.Write([]byte(id))
+		for _, salt := range []uint64{0, 0x4e01, 0x5157 + 7<<24} {
+			if got, want := streamKey(id, salt), h.Sum64()^salt; got != want {
+				t.Errorf("streamKey(%q, %#x) = %#x, hash/fnv gives %#x", id, salt, got, want)
 			}
 		}
 	}
