@@ -23,6 +23,7 @@ import (
 // whatever its worker count. It is not safe for concurrent use.
 type Correlator struct {
 	n, m    int
+	nIn     int            // input length: n, or more for NewCorrelatorOutputs
 	step    int            // outputs per block, L−m+1
 	fft     *fftPlan       // length L, shared read-only by the workers (L not a power of two)
 	conv    *convPlan      // length L, when L is a power of two (fftconv.go)
@@ -77,11 +78,27 @@ func NewCorrelatorWorkers(ref []complex128, n, workers int) *Correlator {
 	return newCorrelatorLen(ref, n, l, workers)
 }
 
+// NewCorrelatorOutputs is NewCorrelatorWorkers for a plan that computes
+// only the first n outputs of windows of nIn ≥ n samples (x zero beyond
+// nIn): y[k], k = 0 … n−1, as NewCorrelator(ref, nIn) gives them (to
+// rounding: the block length is chosen for n outputs), at the cost of n
+// outputs. Its Apply takes len(x) = nIn and len(dst) = n. It panics on
+// empty arguments, nIn < n or workers < 1.
+func NewCorrelatorOutputs(ref []complex128, nIn, n, workers int) *Correlator {
+	if n < 1 || nIn < n || len(ref) < 1 || workers < 1 {
+		panic("dsp: correlator needs 1 ≤ n ≤ nIn, a non-empty reference and workers ≥ 1")
+	}
+	c := newCorrelatorLen(ref, n, bestBlockLen(n, len(ref), workers, simdAvailable()), workers)
+	c.nIn = nIn
+	return c
+}
+
 // newCorrelatorLen builds the plan with FFT length l ≥ len(ref).
 func newCorrelatorLen(ref []complex128, n, l, workers int) *Correlator {
 	m := len(ref)
 	c := &Correlator{
 		n:    n,
+		nIn:  n,
 		m:    m,
 		step: l - m + 1,
 		l:    l,
@@ -224,17 +241,21 @@ func shareLast(l, blocks, workers int) bool {
 	return workers > 1 && blocks%workers == 1 && isPow2(l) && l > convLeaf
 }
 
-// Len returns n, the input and output length.
+// Len returns n, the output length (and the input length but for a plan
+// of NewCorrelatorOutputs).
 func (c *Correlator) Len() int { return c.n }
+
+// InLen returns the input length (Len but for NewCorrelatorOutputs).
+func (c *Correlator) InLen() int { return c.nIn }
 
 // RefLen returns the reference length m.
 func (c *Correlator) RefLen() int { return c.m }
 
-// Apply compresses x (len(x) = Len()) into dst and returns dst; a nil dst
-// is allocated. dst must not overlap x. Apply panics if len(x) or a
-// non-nil len(dst) differs from Len().
+// Apply compresses x (len(x) = InLen()) into dst (len Len()) and returns
+// dst; a nil dst is allocated. dst must not overlap x. Apply panics if
+// len(x) differs from InLen() or a non-nil len(dst) from Len().
 func (c *Correlator) Apply(dst, x []complex128) []complex128 {
-	if len(x) != c.n {
+	if len(x) != c.nIn {
 		panic("dsp: correlator input length mismatch")
 	}
 	if dst == nil {
@@ -294,7 +315,7 @@ func (c *Correlator) blocks(i int, dst, x []complex128) {
 			return
 		}
 		src := buf
-		if b+l <= c.n {
+		if b+l <= c.nIn {
 			src = x[b : b+l]
 		} else {
 			k := copy(buf, x[b:])
@@ -336,7 +357,7 @@ func (c *Correlator) convBlocks(i int, dst, x []complex128) {
 		}
 		b := k * c.step
 		src := buf
-		if b+l <= c.n {
+		if b+l <= c.nIn {
 			src = x[b : b+l]
 		} else {
 			k := copy(buf, x[b:])
@@ -387,8 +408,8 @@ func (c *Correlator) coopUnit(ph, u int, dst, x []complex128) {
 		for j := range 4 {
 			lo, hi := j*q+k0, j*q+k1
 			k := 0
-			if b+lo < c.n {
-				k = copy(buf[lo:hi], x[b+lo:min(b+hi, c.n)])
+			if b+lo < c.nIn {
+				k = copy(buf[lo:hi], x[b+lo:min(b+hi, c.nIn)])
 			}
 			clear(buf[lo+k : hi])
 		}

@@ -335,7 +335,8 @@ type trialWorker struct {
 	pm    [][]float64 // pulse trains: linear map [bin][cell]
 	// Single coherent pulses: the echoes that do not change from trial
 	// to trial, made once (echoCache); nil for non-coherent trains.
-	ech *trialEchoes
+	ech  *trialEchoes
+	corr *dsp.Correlator // the window's first n outputs only (with ech)
 	// A stream of its own, reseeded per draw (streamOf without the
 	// allocations).
 	pcg rand.PCG
@@ -395,13 +396,16 @@ func (t *Trials) newWorker() *trialWorker {
 		}
 	}
 	w.rng = rand.New(&w.pcg)
-	if !t.s.NonCoherent() {
-		w.ech = w.echoCache()
-	}
 	w.p = make([]float64, t.m.n)
 	w.th = make([]float64, t.m.n)
 	w.x = make([]complex128, t.m.recLen+t.m.lead)
 	w.y = make([]complex128, len(w.x))
+	if !t.s.NonCoherent() {
+		w.ech = w.echoCache()
+		// The detector reads gates 0 … n−1 only.
+		w.corr = dsp.NewCorrelatorOutputs(t.m.ref, len(w.x), t.m.n, 1)
+		w.y = w.y[:t.m.n]
+	}
 	w.floor = dsp.FromDB(dbFloor)
 	return w
 }
@@ -545,26 +549,27 @@ func (w *trialWorker) windowPower() {
 		clear(echo)
 	}
 	for _, pt := range e.points {
-		c := complex(math.Sqrt(dsp.SwerlingRCS(w.draw(pt.rcsKey), 1, pt.model)), 0)
-		if w.t.randomPhase {
-			c *= cmplx.Rect(1, 2*math.Pi*w.draw(pt.phaseKey).Float64())
-		}
+		a := math.Sqrt(dsp.SwerlingRCS(w.draw(pt.rcsKey), 1, pt.model))
 		dst := echo[pt.lo : pt.lo+len(pt.echo)]
+		if w.t.randomPhase {
+			c := complex(a, 0) * cmplx.Rect(1, 2*math.Pi*w.draw(pt.phaseKey).Float64())
+			for i, v := range pt.echo {
+				dst[i] += c * v
+			}
+			continue
+		}
 		for i, v := range pt.echo {
-			dst[i] += c * v
+			dst[i] += complex(a*real(v), a*imag(v))
 		}
 	}
 	addNoise(echo, m.s.Seed, 0x4e01)
 	sc.fe.receive(echo)
 	sc.blank(echo, 0)
 	// As scene.windowPower: an echo at window sample d peaks at y[d].
-	if m.winCorr == nil || m.winCorr.Len() != len(x) {
-		m.winCorr = dsp.NewCorrelatorWorkers(m.ref, len(x), 1)
-	}
-	y := m.winCorr.Apply(w.y, x)
-	for k := range w.p {
-		v := y[k]
-		w.p[k] = (real(v)*real(v) + imag(v)*imag(v)) / m.noiseGain
+	y := w.corr.Apply(w.y, x)
+	inv := 1 / m.noiseGain
+	for k, v := range y[:len(w.p)] {
+		w.p[k] = (real(v)*real(v) + imag(v)*imag(v)) * inv
 	}
 }
 
