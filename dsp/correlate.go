@@ -144,6 +144,25 @@ func newCorrelatorLen(ref []complex128, n, l, workers int) *Correlator {
 	return c
 }
 
+// Clone returns a plan for the same reference, lengths and workers that
+// shares c's read-only tables (the FFT plan and the reference's spectrum)
+// and has scratch space of its own, for another goroutine. Clone only
+// reads c: clones may be taken while c is in use.
+func (c *Correlator) Clone() *Correlator {
+	d := &Correlator{n: c.n, m: c.m, nIn: c.nIn, step: c.step, fft: c.fft, conv: c.conv, l: c.l,
+		spec: c.spec, par: c.par, coop: c.coop, whole: c.whole}
+	for _, b := range c.scratch {
+		d.scratch = append(d.scratch, make([]complex128, len(b)))
+	}
+	for i := 1; i < d.par; i++ {
+		d.workers = append(d.workers, func() {
+			defer d.wg.Done()
+			d.blocks(i, d.dst, d.x)
+		})
+	}
+	return d
+}
+
 // Relative cost per point of one FFT stage, by radix, from the best of
 // repeated BenchmarkFFTRadix runs (amd64): a radix-4 stage covers two
 // halvings for the price of a radix-2 one.

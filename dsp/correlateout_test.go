@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/cmplx"
 	"math/rand/v2"
+	"slices"
 	"testing"
 )
 
@@ -52,5 +53,54 @@ func TestCorrelatorOutputs(t *testing.T) {
 				t.Fatalf("%+v: y[%d] = %v, full plan %v", c, k, y[k], full[k])
 			}
 		}
+	}
+}
+
+// TestClones: a cloned correlator gives its original's outputs to the last
+// bit (the same tables, the same blocks), on one and two workers; a cloned
+// CA-CFAR warmed on a validity pattern gives its original's thresholds to
+// the last bit, and filling the clone's caches leaves the original's
+// untouched.
+func TestClones(t *testing.T) {
+	r := rand.New(rand.NewPCG(5, 6))
+	h := make([]complex128, 300)
+	x := make([]complex128, 5000)
+	for i := range h {
+		h[i] = ComplexNormal(r)
+	}
+	for i := range x {
+		x[i] = ComplexNormal(r)
+	}
+	for _, workers := range []int{1, 2} {
+		c := NewCorrelatorWorkers(h, len(x), workers)
+		want := c.Apply(nil, x)
+		got := c.Clone().Apply(nil, x)
+		for k := range want {
+			if got[k] != want[k] {
+				t.Fatalf("workers %d: clone's y[%d] = %v, original %v", workers, k, got[k], want[k])
+			}
+		}
+	}
+	rho := NoiseCorrelation(nil, h)
+	p := make([]float64, 700)
+	valid := make([]bool, len(p))
+	for i := range p {
+		p[i] = r.ExpFloat64()
+		valid[i] = i%97 > 3
+	}
+	cf := &CFAR{PFA: 1e-6, Guard: 2, Train: 16, Rho: rho}
+	want := cf.ThresholdsValid(nil, p, valid)
+	cl := cf.Clone()
+	got := cl.ThresholdsValid(nil, p, valid)
+	for k := range want {
+		if got[k] != want[k] && !(math.IsInf(got[k], 1) && math.IsInf(want[k], 1)) {
+			t.Fatalf("clone's threshold %d = %v, original %v", k, got[k], want[k])
+		}
+	}
+	nPattern := len(cf.pattern)
+	cl.ThresholdsValid(nil, p, nil)
+	cl.ThresholdsValid(nil, p[:300], valid[:300])
+	if len(cf.pattern) != nPattern || len(cf.caCoef) != len(p) || !slices.Equal(cf.caValid, valid) {
+		t.Error("the clone's caches share the original's")
 	}
 }

@@ -1,6 +1,7 @@
 package dsp
 
 import (
+	"maps"
 	"math"
 	"math/cmplx"
 	"slices"
@@ -116,6 +117,23 @@ type CFAR struct {
 	caCoef  []float64
 	caValid []bool
 	caNil   bool
+}
+
+// Clone returns a copy of c with its own copies of the multipliers it
+// has computed so far (by cell count, by training pattern and per cell
+// for the last validity pattern), so that a plan warmed once can be handed
+// to several goroutines without each solving the same multipliers again.
+// Clone only reads c: clones may be taken concurrently while c itself is
+// not in use. The copy shares Rho, which neither modifies.
+func (c *CFAR) Clone() *CFAR {
+	d := &CFAR{
+		PFA: c.PFA, Guard: c.Guard, Train: c.Train, Rank: c.Rank, Rho: c.Rho,
+		Variant: c.Variant, Censor: c.Censor, Pulses: c.Pulses,
+		vc: maps.Clone(c.vc), mult: maps.Clone(c.mult), pattern: maps.Clone(c.pattern),
+		step: c.step, caNil: c.caNil,
+		caCoef: slices.Clone(c.caCoef), caValid: slices.Clone(c.caValid),
+	}
+	return d
 }
 
 // Multiplier returns the threshold multiplier for n independent training

@@ -66,6 +66,13 @@ type Trials struct {
 	// randomPhase draws each point echo's carrier phase anew per trial
 	// (SetRandomPhase).
 	randomPhase bool
+	// Single coherent pulses: what every worker of every run shares,
+	// made once as the reference makes its set-up once: the cached
+	// echoes (read-only), and a warmed detector and correlator that
+	// workers clone (their multipliers and tables solved once).
+	ech  *trialEchoes
+	cf   *dsp.CFAR
+	corr *dsp.Correlator
 }
 
 // SetRandomPhase makes every trial draw each point target's carrier phase
@@ -78,6 +85,10 @@ type Trials struct {
 func (t *Trials) SetRandomPhase(on bool) error {
 	if on && t.sc.train != nil {
 		return fmt.Errorf("random phase: radar.pulses is %d; it applies to single pulses, whose echoes keep no phase history: %w", t.s.Radar.Pulses, ErrInvalid)
+	}
+	if on != t.randomPhase && t.ech != nil {
+		t.randomPhase = on
+		t.ech = t.newWorker().echoCache() // the point echoes with or without their range's phase
 	}
 	t.randomPhase = on
 	return nil
@@ -155,6 +166,15 @@ func NewTrials(ctx context.Context, s *Scenario) (*Trials, error) {
 		}
 	}
 	t.findQuiet()
+	if sc.train == nil && !s.NonCoherent() {
+		w := t.newWorker()
+		t.ech, t.corr = w.ech, w.corr
+		if w.cf != nil {
+			// Every multiplier of the processed gates' pattern, solved once.
+			w.cf.ThresholdsValid(w.th, w.p, m.processed)
+			t.cf = w.cf
+		}
+	}
 	return t, nil
 }
 
@@ -386,6 +406,9 @@ func (t *Trials) newWorker() *trialWorker {
 		}
 		return w
 	}
+	if t.cf != nil {
+		w.m.cfar = t.cf.Clone()
+	}
 	w.cf = w.m.detector()
 	if t.randomPhase {
 		// Targets of its own, whose phases it sets per trial.
@@ -401,9 +424,16 @@ func (t *Trials) newWorker() *trialWorker {
 	w.x = make([]complex128, t.m.recLen+t.m.lead)
 	w.y = make([]complex128, len(w.x))
 	if !t.s.NonCoherent() {
-		w.ech = w.echoCache()
-		// The detector reads gates 0 … n−1 only.
-		w.corr = dsp.NewCorrelatorOutputs(t.m.ref, len(w.x), t.m.n, 1)
+		w.ech, w.corr = t.ech, t.corr
+		if w.ech == nil {
+			w.ech = w.echoCache()
+		}
+		if w.corr == nil {
+			// The detector reads gates 0 … n−1 only.
+			w.corr = dsp.NewCorrelatorOutputs(t.m.ref, len(w.x), t.m.n, 1)
+		} else {
+			w.corr = w.corr.Clone()
+		}
 		w.y = w.y[:t.m.n]
 	}
 	w.floor = dsp.FromDB(dbFloor)
