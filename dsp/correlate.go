@@ -43,7 +43,12 @@ type Correlator struct {
 	// all blocks otherwise).
 	coop  bool
 	whole int
-	phase [3]coopPhase // the shared block's phases' claimed and finished units
+	// NewCorrelatorOutputs, one worker, power-of-two blocks: the last
+	// block on a shorter power-of-two plan when its outputs fit one (the
+	// outputs past the last whole block rarely need a block of L).
+	tail     *convPlan
+	tailSpec []complex128
+	phase    [3]coopPhase // the shared block's phases' claimed and finished units
 }
 
 // coopPhase counts the units of one phase of the shared block that have
@@ -90,6 +95,23 @@ func NewCorrelatorOutputs(ref []complex128, nIn, n, workers int) *Correlator {
 	}
 	c := newCorrelatorLen(ref, n, bestBlockLen(n, len(ref), workers, simdAvailable()), workers)
 	c.nIn = nIn
+	if c.conv != nil && c.par == 1 && !c.coop && c.whole > 1 {
+		r := n - (c.whole-1)*c.step // the last block's outputs
+		lt := 1
+		for lt < r+c.m-1 {
+			lt *= 2
+		}
+		if lt < c.l {
+			c.tail = newConvPlan(lt)
+			c.tailSpec = make([]complex128, lt)
+			copy(c.tailSpec, ref)
+			c.tail.forward(c.tailSpec)
+			inv := 1 / float64(lt)
+			for i, v := range c.tailSpec {
+				c.tailSpec[i] = complex(real(v)*inv, -imag(v)*inv)
+			}
+		}
+	}
 	return c
 }
 
@@ -150,7 +172,7 @@ func newCorrelatorLen(ref []complex128, n, l, workers int) *Correlator {
 // reads c: clones may be taken while c is in use.
 func (c *Correlator) Clone() *Correlator {
 	d := &Correlator{n: c.n, m: c.m, nIn: c.nIn, step: c.step, fft: c.fft, conv: c.conv, l: c.l,
-		spec: c.spec, par: c.par, coop: c.coop, whole: c.whole}
+		spec: c.spec, par: c.par, coop: c.coop, whole: c.whole, tail: c.tail, tailSpec: c.tailSpec}
 	for _, b := range c.scratch {
 		d.scratch = append(d.scratch, make([]complex128, len(b)))
 	}
@@ -375,6 +397,11 @@ func (c *Correlator) convBlocks(i int, dst, x []complex128) {
 			break
 		}
 		b := k * c.step
+		plan, spec, l := c.conv, c.spec, l
+		if c.tail != nil && k == c.whole-1 {
+			plan, spec, l = c.tail, c.tailSpec, c.tail.n
+		}
+		buf := buf[:l]
 		src := buf
 		if b+l <= c.nIn {
 			src = x[b : b+l]
@@ -382,7 +409,7 @@ func (c *Correlator) convBlocks(i int, dst, x []complex128) {
 			k := copy(buf, x[b:])
 			clear(buf[k:])
 		}
-		c.conv.convolve(dst[b:min(b+c.step, c.n)], src, buf, c.spec)
+		plan.convolve(dst[b:min(b+c.step, c.n)], src, buf, spec)
 	}
 }
 

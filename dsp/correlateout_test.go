@@ -11,12 +11,14 @@ import (
 // TestCorrelatorOutputs: a plan for the first n outputs of a longer window
 // against the definition y[k] = Σ x[k+i]·conj(h[i]) summed directly (x
 // zero beyond its end) and against the full plan's first n outputs, for
-// single blocks, overlap-save blocks, both FFT plans and two workers.
+// single blocks, overlap-save blocks (with a shorter last block), both
+// FFT plans and two workers.
 func TestCorrelatorOutputs(t *testing.T) {
 	r := rand.New(rand.NewPCG(3, 4))
+	tails := 0
 	for _, c := range []struct{ nIn, n, m, workers int }{
 		{1133, 734, 400, 1}, {1133, 734, 400, 2}, {1133, 1133, 400, 1}, {5000, 700, 13, 1},
-		{70000, 65536, 5000, 2}, {70000, 9000, 64, 2}, {300, 1, 300, 1}, {10, 10, 1, 1},
+		{70000, 65536, 5000, 2}, {70000, 65536, 5000, 1}, {70000, 9000, 64, 2}, {9000, 9000, 64, 1}, {300, 1, 300, 1}, {10, 10, 1, 1},
 	} {
 		h := make([]complex128, c.m)
 		x := make([]complex128, c.nIn)
@@ -27,6 +29,9 @@ func TestCorrelatorOutputs(t *testing.T) {
 			x[i] = ComplexNormal(r)
 		}
 		p := NewCorrelatorOutputs(h, c.nIn, c.n, c.workers)
+		if p.tail != nil {
+			tails++
+		}
 		if p.Len() != c.n || p.InLen() != c.nIn {
 			t.Fatalf("%+v: Len %d InLen %d", c, p.Len(), p.InLen())
 		}
@@ -53,6 +58,9 @@ func TestCorrelatorOutputs(t *testing.T) {
 				t.Fatalf("%+v: y[%d] = %v, full plan %v", c, k, y[k], full[k])
 			}
 		}
+	}
+	if tails == 0 {
+		t.Error("no case ran a shorter last block")
 	}
 }
 
