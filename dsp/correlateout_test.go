@@ -112,3 +112,40 @@ func TestClones(t *testing.T) {
 		t.Error("the clone's caches share the original's")
 	}
 }
+
+// TestThresholdsValidIsLevelValid: the cell-averaging profile loop (cached
+// factors, interior cells at fixed offsets) against the cell-by-cell
+// definition, LevelValid (which sums the cells directly, so to 1e-12
+// relative), with and without validity and correlation, for profiles
+// shorter and longer than the CFAR window; a second call, from the
+// cached factors, to the last bit.
+func TestThresholdsValidIsLevelValid(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 8))
+	h := make([]complex128, 40)
+	for i := range h {
+		h[i] = ComplexNormal(r)
+	}
+	rho := NoiseCorrelation(nil, h)
+	for _, n := range []int{1, 5, 21, 22, 23, 60, 500} {
+		p := make([]float64, n)
+		valid := make([]bool, n)
+		for i := range p {
+			p[i] = r.ExpFloat64()
+			valid[i] = i%17 != 3
+		}
+		for _, v := range [][]bool{nil, valid} {
+			for _, rh := range [][]complex128{nil, rho} {
+				cf := &CFAR{PFA: 1e-5, Guard: 2, Train: 16, Rho: rh}
+				got := cf.ThresholdsValid(nil, p, v)
+				again := cf.ThresholdsValid(nil, p, v) // from the cached factors
+				for k := range p {
+					want := cf.LevelValid(p, v, k)
+					same := math.IsInf(got[k], 1) && math.IsInf(want, 1) || math.Abs(got[k]-want) <= 1e-12*math.Abs(want)
+					if !same || again[k] != got[k] {
+						t.Fatalf("n %d, valid %v, rho %v: cell %d: %v (again %v), LevelValid %v", n, v != nil, rh != nil, k, got[k], again[k], want)
+					}
+				}
+			}
+		}
+	}
+}

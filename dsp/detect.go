@@ -321,23 +321,53 @@ func (c *CFAR) ThresholdsValid(dst, power []float64, valid []bool) []float64 {
 			p[i+1] = acc
 		}
 	}
-	half := c.Train / 2
-	for k := range n {
+	half, g := c.Train/2, c.Guard
+	// Cells whose training cells all lie inside the profile (k−g−half ≥ 0
+	// and k+g+half < n) read the prefix sums at fixed offsets; the others
+	// clamp their ranges as TrainingCells does.
+	in0, in1 := min(g+half, n), max(min(n-g-half, n), min(g+half, n))
+	edge := func(k int) {
 		a := coef[k]
 		if a < 0 {
 			dst[k] = math.Inf(1)
-			continue
+			return
 		}
-		// TrainingCells(k, n), inlined.
-		hi1, lo1 := max(k-c.Guard, 0), max(k-c.Guard-half, 0)
-		lo2, hi2 := min(k+c.Guard+1, n), min(k+c.Guard+1+half, n)
-		s := p[hi1] - p[lo1] + p[hi2] - p[lo2]
-		if s <= 0 { // math.Max(s, 0) without its call: −0 and negatives to +0, NaN kept
-			s = 0
+		hi1, lo1 := max(k-g, 0), max(k-g-half, 0)
+		lo2, hi2 := min(k+g+1, n), min(k+g+1+half, n)
+		dst[k] = a * nonNegative(p[hi1]-p[lo1]+p[hi2]-p[lo2])
+	}
+	for k := range in0 {
+		edge(k)
+	}
+	if in1 > in0 {
+		// p[k−g] − p[k−g−half] + p[k+g+1+half] − p[k+g+1], in that order.
+		lead := p[in0-g-half : in1-g-half]
+		hi1 := p[in0-g : in1-g]
+		lo2 := p[in0+g+1 : in1+g+1]
+		hi2 := p[in0+g+1+half : in1+g+1+half]
+		out, co := dst[in0:in1], coef[in0:in1]
+		for i := range out {
+			a := co[i]
+			if a < 0 {
+				out[i] = math.Inf(1)
+				continue
+			}
+			out[i] = a * nonNegative(hi1[i]-lead[i]+hi2[i]-lo2[i])
 		}
-		dst[k] = a * s
+	}
+	for k := in1; k < n; k++ {
+		edge(k)
 	}
 	return dst
+}
+
+// nonNegative is math.Max(s, 0) without its call: −0 and negatives give
+// +0, NaN stays NaN.
+func nonNegative(s float64) float64 {
+	if s <= 0 {
+		return 0
+	}
+	return s
 }
 
 // caCoefficients returns, per cell of a profile of length n with the

@@ -594,7 +594,12 @@ func (w *trialWorker) windowPower() {
 	}
 	addNoise(echo, m.s.Seed, 0x4e01)
 	sc.fe.receive(echo)
-	sc.blank(echo, 0)
+	// sc.blank(echo, 0): echo is the whole record (recLen samples from 0).
+	for _, bl := range m.blanks {
+		if lo, hi := max(bl[0], 0), min(bl[1], len(echo)); lo < hi {
+			clear(echo[lo:hi])
+		}
+	}
 	// As scene.windowPower: an echo at window sample d peaks at y[d].
 	y := w.corr.Apply(w.y, x)
 	inv := 1 / m.noiseGain
