@@ -149,3 +149,49 @@ func TestThresholdsValidIsLevelValid(t *testing.T) {
 		}
 	}
 }
+
+// TestLevelsAt: thresholds at listed cells against ThresholdsValid's at the
+// same cells (1e-12 relative: direct sums against prefix-sum
+// differences), for cell averaging with and without correlation and
+// validity, and for an ordered statistic (LevelValid on both sides);
+// cells not listed are left alone.
+func TestLevelsAt(t *testing.T) {
+	r := rand.New(rand.NewPCG(9, 10))
+	h := make([]complex128, 40)
+	for i := range h {
+		h[i] = ComplexNormal(r)
+	}
+	rho := NoiseCorrelation(nil, h)
+	p := make([]float64, 300)
+	valid := make([]bool, len(p))
+	for i := range p {
+		p[i] = r.ExpFloat64()
+		valid[i] = i%41 > 2
+	}
+	cells := []int{0, 1, 5, 17, 40, 41, 42, 150, 290, 299}
+	for _, cf := range []*CFAR{
+		{PFA: 1e-5, Guard: 2, Train: 16},
+		{PFA: 1e-5, Guard: 2, Train: 16, Rho: rho},
+		{PFA: 1e-5, Guard: 3, Train: 24, Rank: 18},
+	} {
+		for _, v := range [][]bool{nil, valid} {
+			want := cf.ThresholdsValid(nil, p, v)
+			got := make([]float64, len(p))
+			for i := range got {
+				got[i] = -7
+			}
+			cf.LevelsAt(got, p, v, cells)
+			for k := range p {
+				if !slices.Contains(cells, k) {
+					if got[k] != -7 {
+						t.Fatalf("%+v: cell %d not listed but set", cf, k)
+					}
+					continue
+				}
+				if !(math.IsInf(got[k], 1) && math.IsInf(want[k], 1)) && math.Abs(got[k]-want[k]) > 1e-12*math.Abs(want[k]) {
+					t.Errorf("%+v, valid %v: cell %d: %v, ThresholdsValid %v", cf, v != nil, k, got[k], want[k])
+				}
+			}
+		}
+	}
+}

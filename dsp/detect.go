@@ -370,6 +370,43 @@ func nonNegative(s float64) float64 {
 	return s
 }
 
+// LevelsAt is ThresholdsValid at the listed cells only: it sets dst[k]
+// (len(dst) = len(power)) for every k in cells and leaves the rest of dst
+// alone, for a caller that tests a few cells of a long profile. Cell
+// averaging sums each cell's training cells directly (equal to
+// ThresholdsValid's prefix-sum differences to rounding) with the same
+// cached multipliers; the other detectors use LevelValid.
+func (c *CFAR) LevelsAt(dst, power []float64, valid []bool, cells []int) {
+	n := len(power)
+	if len(dst) != n || valid != nil && len(valid) != n {
+		panic("dsp: CFAR destination length mismatch")
+	}
+	if c.Rank != 0 || c.Variant != CellAveraging || c.Pulses > 1 && c.Spacing() > 1 {
+		for _, k := range cells {
+			dst[k] = c.LevelValid(power, valid, k)
+		}
+		return
+	}
+	coef := c.caCoefficients(n, valid)
+	for _, k := range cells {
+		a := coef[k]
+		if a < 0 {
+			dst[k] = math.Inf(1)
+			continue
+		}
+		lo1, hi1, lo2, hi2 := c.TrainingCells(k, n)
+		s := 0.0
+		for _, r := range [2][2]int{{lo1, hi1}, {lo2, hi2}} {
+			for i := r[0]; i < r[1]; i++ {
+				if valid == nil || valid[i] {
+					s += power[i]
+				}
+			}
+		}
+		dst[k] = a * nonNegative(s)
+	}
+}
+
 // caCoefficients returns, per cell of a profile of length n with the
 // validity valid, the cell-averaging multiplier over the number of
 // training cells it uses (the factor on their sum), or −1 when it has

@@ -63,6 +63,11 @@ type Trials struct {
 	tested []float64 // per target: its own noise-free power at that cell, re noise (the SNR its Pd test sees)
 	quiet  []bool    // per range gate: noise only, its training cells too (false-alarm count)
 	nQuiet int       // quiet cells per trial (gates, or gates × Doppler bins)
+	// Single pulses: the gates a trial tests (targets' and quiet ones),
+	// ascending, and whether they are few enough to take their thresholds
+	// one by one (dsp.CFAR.LevelsAt) rather than the whole profile's.
+	testGates []int
+	fewGates  bool
 	// randomPhase draws each point echo's carrier phase anew per trial
 	// (SetRandomPhase).
 	randomPhase bool
@@ -166,6 +171,14 @@ func NewTrials(ctx context.Context, s *Scenario) (*Trials, error) {
 		}
 	}
 	t.findQuiet()
+	for k, q := range t.quiet {
+		if q || slices.ContainsFunc(t.cells, func(c [2]int) bool { return c[0] == k }) {
+			t.testGates = append(t.testGates, k)
+		}
+	}
+	// A whole profile costs a few ns per gate; one gate's training cells
+	// about Train adds.
+	t.fewGates = len(t.testGates)*max(s.Receiver.Detector.TrainingCells, 1) < m.n
 	if sc.train == nil && !s.NonCoherent() {
 		w := t.newWorker()
 		t.ech, t.corr = w.ech, w.corr
@@ -452,7 +465,7 @@ func (w *trialWorker) trial(i int, c *TrialCounts) {
 	// The compressed power, linear, as window's ProfileDB would give it
 	// after dsp.FromDB (its floor and unprocessed gates included).
 	if w.ech != nil {
-		w.windowPower()
+		w.windowPower() // floor applied
 	} else {
 		if w.t.randomPhase {
 			for _, g := range w.sc.targets {
@@ -460,28 +473,32 @@ func (w *trialWorker) trial(i int, c *TrialCounts) {
 			}
 		}
 		w.sc.windowPower(1, w.x, w.y, w.p)
-	}
-	for k, ok := range m.processed {
-		if !ok || w.p[k] < w.floor {
-			w.p[k] = w.floor
+		for k, ok := range m.processed {
+			if !ok || w.p[k] < w.floor {
+				w.p[k] = w.floor
+			}
 		}
 	}
-	if w.cf != nil {
+	switch {
+	case w.cf != nil && w.t.fewGates:
+		w.cf.LevelsAt(w.th, w.p, m.processed, w.t.testGates)
+	case w.cf != nil:
 		w.cf.ThresholdsValid(w.th, w.p, m.processed)
-	} else {
+	default:
 		fixed := m.fixedLevel()
-		for k := range w.th {
+		for _, k := range w.t.testGates {
 			w.th[k] = fixed
 		}
 	}
+	// Only the tested gates' thresholds are set (testGates).
 	hit := func(k int) bool { return !math.IsInf(w.th[k], 1) && w.p[k] > w.th[k] }
 	for j, cell := range w.t.cells {
 		if k := cell[0]; k >= 0 && hit(k) {
 			c.Detections[j]++
 		}
 	}
-	for k, q := range w.t.quiet {
-		if q {
+	for _, k := range w.t.testGates {
+		if w.t.quiet[k] {
 			c.NoiseCells++
 			if hit(k) {
 				c.FalseAlarms++
@@ -543,7 +560,8 @@ func (w *trialWorker) draw(key uint64) *rand.Rand {
 
 // windowPower is scene.windowPower for a single coherent pulse from the
 // worker's cached echoes (trialEchoes): the noisy window into w.x, its
-// compression into w.y, the compressed power re noise into w.p.
+// compression into w.y, the compressed power re noise into w.p, with the
+// profile's floor at unprocessed gates and below it.
 func (w *trialWorker) windowPower() {
 	m, sc, e := &w.m, &w.sc, w.ech
 	x := w.x
@@ -603,8 +621,13 @@ func (w *trialWorker) windowPower() {
 	// As scene.windowPower: an echo at window sample d peaks at y[d].
 	y := w.corr.Apply(w.y, x)
 	inv := 1 / m.noiseGain
+	proc := m.processed[:len(w.p)]
 	for k, v := range y[:len(w.p)] {
-		w.p[k] = (real(v)*real(v) + imag(v)*imag(v)) * inv
+		pk := (real(v)*real(v) + imag(v)*imag(v)) * inv
+		if !proc[k] || pk < w.floor {
+			pk = w.floor
+		}
+		w.p[k] = pk
 	}
 }
 
