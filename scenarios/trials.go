@@ -19,11 +19,13 @@ import (
 // fluctuation draws, counted against the analytic Pd of the report.
 //
 // Trial i is the scenario evaluated with the seed TrialSeed(seed, i): its
-// receive window (or pulse train) is exactly the one Evaluate computes
-// for that seed, so any trial can be opened on the page by setting the
-// seed. A trial's draws depend on the scenario's seed and its index
-// only, never on the worker that runs it, so counts are sums that any
-// split of the trials (workers, machines) reproduces exactly.
+// receive window (or pulse train) is the one Evaluate computes for that
+// seed (the same draws; a single pulse's window from cached echoes,
+// trialEchoes, equals it to rounding), so any trial can be opened on the
+// page by setting the seed. A trial's draws depend on the scenario's seed
+// and its index only, never on the worker that runs it, so counts are
+// sums that any split of the trials (workers, machines) reproduces
+// exactly.
 
 // MaxTrials bounds the trials of one run.
 const MaxTrials = 10_000_000
