@@ -80,6 +80,30 @@ type Trials struct {
 	ech  *trialEchoes
 	cf   *dsp.CFAR
 	corr *dsp.Correlator
+	// Workers of finished runs, kept for the next run (a worker's
+	// buffers and plans are reset by each trial): as many as a run has
+	// used at once.
+	mu   sync.Mutex
+	idle []*trialWorker
+}
+
+// worker returns an idle worker of an earlier run, or a new one.
+func (t *Trials) worker() *trialWorker {
+	t.mu.Lock()
+	defer t.mu.Unlock()
+	if n := len(t.idle); n > 0 {
+		w := t.idle[n-1]
+		t.idle = t.idle[:n-1]
+		return w
+	}
+	return t.newWorker()
+}
+
+// release keeps w for a later run.
+func (t *Trials) release(w *trialWorker) {
+	t.mu.Lock()
+	t.idle = append(t.idle, w)
+	t.mu.Unlock()
 }
 
 // SetRandomPhase makes every trial draw each point target's carrier phase
@@ -92,6 +116,9 @@ type Trials struct {
 func (t *Trials) SetRandomPhase(on bool) error {
 	if on && t.sc.train != nil {
 		return fmt.Errorf("random phase: radar.pulses is %d; it applies to single pulses, whose echoes keep no phase history: %w", t.s.Radar.Pulses, ErrInvalid)
+	}
+	if on != t.randomPhase {
+		t.idle = nil // their echoes and targets are for the other setting
 	}
 	if on != t.randomPhase && t.ech != nil {
 		t.randomPhase = on
@@ -312,7 +339,8 @@ func (t *Trials) Run(ctx context.Context, first, count, workers int, progress fu
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			w := t.newWorker()
+			w := t.worker()
+			defer t.release(w)
 			own := TrialCounts{Detections: make([]int64, len(t.cells))}
 			for {
 				mu.Lock()
