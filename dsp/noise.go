@@ -188,11 +188,39 @@ func normSlow(s pcgState, u uint64, t *zigTables) (float64, pcgState) {
 			}
 			return -rn - x, s
 		}
-		if t.fn[i]+float32(s.float64())*(t.fn[i-1]-t.fn[i]) < float32(math.Exp(-.5*x*x)) {
+		if wedgeAccept(t.fn[i]+float32(s.float64())*(t.fn[i-1]-t.fn[i]), -.5*x*x) {
 			return x, s
 		}
 		u = s.uint64()
 	}
+}
+
+// wedgeAccept is math/rand/v2's wedge test, l < float32(math.Exp(v)),
+// decided without math.Exp when l lies clear of expBound's bracket.
+func wedgeAccept(l float32, v float64) bool {
+	e := expBound(v)
+	switch lf := float64(l); {
+	case lf < e*(1-1.5e-7):
+		return true
+	case lf > e*(1+1.5e-7):
+		return false
+	}
+	return l < float32(math.Exp(v))
+}
+
+// expBound returns e^v for −9 ≤ v ≤ 0 within a relative 2·10⁻⁸, cheaply:
+// v = n·ln 2 + r with n an integer and |r| ≤ ln 2 / 2, e^r by its Taylor
+// series to r⁷ (remainder ≤ e^0.347·0.347⁸/8! < 1.1·10⁻⁸ of e^r), times
+// 2ⁿ exactly. normSlow's wedge test compares a float32 l with
+// R = float32(math.Exp(v)), which lies within 2⁻²⁴ (6·10⁻⁸, rounding to
+// float32) of e^v: l < e·(1 − 1.5·10⁻⁷) implies l < R, and
+// l > e·(1 + 1.5·10⁻⁷) implies l > R, so only l in between needs math.Exp
+// (TestAddComplexNormalIsComplexNormal: the same values as math/rand/v2).
+func expBound(v float64) float64 {
+	n := int(v*math.Log2E - 0.5) // rounds v/ln 2 to an integer for v ≤ 0
+	r := v - float64(n)*math.Ln2
+	p := 1 + r*(1+r*(1.0/2+r*(1.0/6+r*(1.0/24+r*(1.0/120+r*(1.0/720+r*(1.0/5040)))))))
+	return p * math.Float64frombits(uint64(1023+n)<<52)
 }
 
 // zigTables are the 128-strip ziggurat tables of math/rand/v2's
