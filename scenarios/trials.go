@@ -118,7 +118,9 @@ func (t *Trials) SetRandomPhase(on bool) error {
 		return fmt.Errorf("random phase: radar.pulses is %d; it applies to single pulses, whose echoes keep no phase history: %w", t.s.Radar.Pulses, ErrInvalid)
 	}
 	if on != t.randomPhase {
+		t.mu.Lock()
 		t.idle = nil // their echoes and targets are for the other setting
+		t.mu.Unlock()
 	}
 	if on != t.randomPhase && t.ech != nil {
 		t.randomPhase = on
