@@ -1,0 +1,133 @@
+package scenarios
+
+import (
+	"math"
+
+	"github.com/pulsewright/pulsewright/dsp"
+)
+
+// Work an Engine keeps across evaluations besides the detection
+// probabilities (pdmemo.go): while a user drags one target, the other
+// targets' and the clutter's work is the same as in the previous frame,
+// and the changed scenarios that the suggestions verify are the same in
+// every frame but for the dragged target. Each kept result is keyed by
+// the exact values it is computed from (compared bit for bit, not by
+// pointer), so what is reused is what a fresh evaluation computes; the
+// stores are bounded in count and bytes, and a nil *pdMemo (an Engine's
+// uncached mode, the Monte Carlo trials) keeps nothing.
+
+// planKept is the number of local compression plans a memo keeps idle.
+const planKept = 4
+
+// keptPlan is an idle compression plan of a reference for buffers of n
+// samples.
+type keptPlan struct {
+	ref []complex128 // the reference (a model's, never written)
+	n   int
+	c   *dsp.Correlator
+}
+
+// takePlan returns a plan correlating with ref for n samples: a kept one
+// whose reference equals ref bit for bit, which the caller then owns
+// until it puts it back (a plan keeps scratch buffers: one user at a
+// time), or a new one.
+func (p *pdMemo) takePlan(ref []complex128, n int) *dsp.Correlator {
+	if p != nil {
+		p.mu.Lock()
+		for i, k := range p.plans {
+			if k.n == n && sameBits(k.ref, ref) {
+				p.plans = append(p.plans[:i], p.plans[i+1:]...)
+				p.mu.Unlock()
+				return k.c
+			}
+		}
+		p.mu.Unlock()
+	}
+	return dsp.NewCorrelator(ref, n)
+}
+
+// putPlan keeps an idle plan c of ref for n samples (the newest first;
+// the oldest beyond planKept is dropped).
+func (p *pdMemo) putPlan(ref []complex128, n int, c *dsp.Correlator) {
+	if p == nil || c == nil {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	if len(p.plans) < planKept {
+		p.plans = append(p.plans, keptPlan{})
+	}
+	copy(p.plans[1:], p.plans)
+	p.plans[0] = keptPlan{ref: ref, n: n, c: c}
+}
+
+// convKept and convKeptBytes bound the kept density convolutions.
+const (
+	convKept      = 8
+	convKeptBytes = 32 << 20
+)
+
+// keptConv is one convolveFFT result: its inputs (copies) and the values
+// it added to dst[a … a+len(add)).
+type keptConv struct {
+	q, kern []float64
+	shift   int // qlo − off − dlo: output t lands on dst[t+shift]
+	dstLen  int
+	a       int
+	add     []float64
+}
+
+func (k *keptConv) bytes() int { return 8 * (len(k.q) + len(k.kern) + len(k.add)) }
+
+// conv returns the kept convolution of these inputs, or nil.
+func (p *pdMemo) conv(q, kern []float64, shift, dstLen int) *keptConv {
+	if p == nil {
+		return nil
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	for i, k := range p.convs {
+		if k.shift == shift && k.dstLen == dstLen && sameFloatBits(k.kern, kern) && sameFloatBits(k.q, q) {
+			copy(p.convs[1:i+1], p.convs[:i])
+			p.convs[0] = k
+			return k
+		}
+	}
+	return nil
+}
+
+// keepConv keeps a convolution, the newest first, dropping the oldest
+// beyond convKept entries or convKeptBytes.
+func (p *pdMemo) keepConv(k *keptConv) {
+	if p == nil || k.bytes() > convKeptBytes/2 {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	p.convs = append(p.convs, nil)
+	copy(p.convs[1:], p.convs)
+	p.convs[0] = k
+	total := 0
+	for i, c := range p.convs {
+		total += c.bytes()
+		if i >= convKept || total > convKeptBytes {
+			clear(p.convs[i:])
+			p.convs = p.convs[:i]
+			break
+		}
+	}
+}
+
+// sameFloatBits says whether two vectors hold the same values bit for
+// bit.
+func sameFloatBits(a, b []float64) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i, v := range a {
+		if math.Float64bits(v) != math.Float64bits(b[i]) {
+			return false
+		}
+	}
+	return true
+}
