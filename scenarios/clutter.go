@@ -619,9 +619,9 @@ func (sc *scene) falseAlarms() *FalseAlarms {
 		}
 	}
 	fa := &FalseAlarms{PFA: m.s.Receiver.Detector.PFA, TestedCells: gates, LookS: r.PRIS}
-	fa.IndependentCells = float64(gates) / dsp.NoiseCorrelationLength(m.ref)
+	fa.IndependentCells = float64(gates) / m.noiseCorrelationLength()
 	if sc.train != nil {
-		cov := sc.train.plan.NoiseCovariance()
+		cov := sc.train.noiseCov()
 		nd := len(cov)
 		fa.TestedCells *= nd
 		fa.IndependentCells *= dsp.EffectiveCells(nd, func(i, j int) complex128 {

@@ -34,7 +34,8 @@ type train struct {
 	// uniform train, and follows the canceller's |H(f)|²/Σh² with one
 	// (near zero at zero Doppler, about 2 at ±PRF/2 for two pulses).
 	noise []float64
-	cf2   *dsp.CFAR2D // the map's detector, kept with the multipliers it has solved
+	cf2   *dsp.CFAR2D    // the map's detector, kept with the multipliers it has solved
+	cov   [][]complex128 // plan.NoiseCovariance(), made once (noiseCov); read only
 	cfOK  bool
 	// T is the slow-time unit, s: the PRI, or a stagger's mean PRI;
 	// times the pulse times in units of T for a stagger (nil: uniform).
@@ -74,13 +75,22 @@ func coherentFraction(fluct string) float64 {
 	return 1
 }
 
+// noiseCov returns the plan's noise covariance (dsp.SlowTimePlan.
+// NoiseCovariance), computed on the first call; callers do not change it.
+func (tr *train) noiseCov() [][]complex128 {
+	if tr.cov == nil {
+		tr.cov = tr.plan.NoiseCovariance()
+	}
+	return tr.cov
+}
+
 func newTrain(m *model, sc *scene) *train {
 	r := m.s.Radar
 	tr := &train{m: m, sc: sc, T: r.slowPRI(), times: staggerTimes(r)}
 	tr.plan = tr.newPlan()
 	nb := tr.plan.Bins()
 	tr.noise = make([]float64, nb)
-	for d, row := range tr.plan.NoiseCovariance() {
+	for d, row := range tr.noiseCov() {
 		tr.noise[d] = real(row[d])
 	}
 	tr.groups = make([][]staggerGroup, len(sc.targets))
@@ -221,7 +231,7 @@ func (tr *train) cfar() *dsp.CFAR2D {
 		return nil
 	}
 	c := &dsp.CFAR2D{PFA: d.PFA, GuardR: d.GuardCells, TrainR: d.TrainingCells, GuardD: d.DopplerGuardCells, TrainD: d.DopplerTrainingCells,
-		RhoR: tr.m.noiseCorrelation(), DopplerCov: tr.plan.NoiseCovariance(), Variant: cfarVariant(d.Kind)}
+		RhoR: tr.m.noiseCorrelation(), DopplerCov: tr.noiseCov(), Variant: cfarVariant(d.Kind)}
 	if d.Kind == DetectorCens {
 		c.Censor = int(math.Round(float64(d.CensoredCells) / float64(d.TrainingCells) * float64(c2DCells(c))))
 	}
