@@ -73,10 +73,11 @@ type pdMemo struct {
 	// training cells) was a fifth of a frame on a demo with clutter, and
 	// a drag changes none of them.
 	cf1s [][cfSet]*dsp.CFAR
-	// plans and convs (reuse.go): idle local compression plans and kept
-	// density convolutions.
-	plans []keptPlan
-	convs []*keptConv
+	// plans, convs and levels (reuse.go): idle local compression plans,
+	// kept density convolutions and range–Doppler clutter levels.
+	plans  []keptPlan
+	convs  []*keptConv
+	levels []*keptLevels
 }
 
 // cfSet is the number of detectors of the same settings one evaluation

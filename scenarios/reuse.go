@@ -2,6 +2,7 @@ package scenarios
 
 import (
 	"math"
+	"slices"
 
 	"github.com/pulsewright/pulsewright/dsp"
 )
@@ -130,4 +131,74 @@ func sameFloatBits(a, b []float64) bool {
 		}
 	}
 	return true
+}
+
+// levelsKept and levelsKeptCells bound the kept range–Doppler clutter
+// levels, in maps and in cells of all of them together (17 bytes a
+// cell): a map of more cells is analysed without keeping its levels.
+const (
+	levelsKept      = 4
+	levelsKeptCells = 1 << 20
+)
+
+// keptLevels is the clutter analysis of one range–Doppler map
+// (analyseClutter): the scene power of every cell and the detector's
+// level where it was computed. A level at cell (k, d) is a function of
+// the detector's settings, the bins' noise, which range cells are
+// processed and the scene power of the columns k−hr … k+hr (hr: the
+// detector's guard and training half-width), so a later analysis with
+// the same settings, noise and processed cells reuses it where none of
+// those columns changed.
+type keptLevels struct {
+	cf2       *dsp.CFAR2D
+	n, nb     int
+	noise     []float64
+	processed []bool
+	pow       []float64 // pow[k·nb+d]
+	level     []float64
+	has       []bool // level computed
+}
+
+// levelsFor returns the kept analysis of a map with these settings, or
+// nil.
+func (p *pdMemo) levelsFor(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processed []bool) *keptLevels {
+	if p == nil {
+		return nil
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	for _, l := range p.levels {
+		if l.n == n && l.nb == nb && sameCFAR2D(l.cf2, cf2) && sameFloatBits(l.noise, noise) && slices.Equal(l.processed, processed) {
+			return l
+		}
+	}
+	return nil
+}
+
+// keepLevels keeps an analysis, replacing one of the same settings, the
+// newest first, dropping the oldest beyond levelsKept.
+func (p *pdMemo) keepLevels(l *keptLevels) {
+	if p == nil {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	for i, o := range p.levels {
+		if o.n == l.n && o.nb == l.nb && sameCFAR2D(o.cf2, l.cf2) && sameFloatBits(o.noise, l.noise) && slices.Equal(o.processed, l.processed) {
+			p.levels = append(p.levels[:i], p.levels[i+1:]...)
+			break
+		}
+	}
+	p.levels = append(p.levels, nil)
+	copy(p.levels[1:], p.levels)
+	p.levels[0] = l
+	cells := 0
+	for i, o := range p.levels {
+		cells += o.n * o.nb
+		if i >= levelsKept || cells > levelsKeptCells {
+			clear(p.levels[i:])
+			p.levels = p.levels[:i]
+			break
+		}
+	}
 }
