@@ -414,7 +414,7 @@ func (sc *scene) analyseMapClutter(cs *clutterScene, cf2 *dsp.CFAR2D) *clutterSc
 			row[d] = sc.scenePower(k, d)
 		}
 	}
-	prev := m.memo.levelsFor(cf2, n, nb, tr.noise, m.processed)
+	prev := m.memo.levelsFor(cf2, n, nb, tr.noise, m.processed, cur.pow)
 	// changed[k+1] − changed[lo] counts the columns lo … k that differ
 	// from the kept analysis (all of them without one).
 	changed := make([]int, n+1)
@@ -460,7 +460,7 @@ func (sc *scene) analyseMapClutter(cs *clutterScene, cf2 *dsp.CFAR2D) *clutterSc
 			cs.gates[j] = append(cs.gates[j], k)
 		}
 	}
-	m.memo.keepLevels(cur)
+	m.memo.keepLevels(cur, prev)
 	return cs
 }
 

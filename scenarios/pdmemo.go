@@ -78,6 +78,7 @@ type pdMemo struct {
 	plans  []keptPlan
 	convs  []*keptConv
 	levels []*keptLevels
+	evals  uint64 // evaluations counted (nextEvaluation)
 }
 
 // cfSet is the number of detectors of the same settings one evaluation

@@ -137,7 +137,7 @@ func sameFloatBits(a, b []float64) bool {
 // levels, in maps and in cells of all of them together (17 bytes a
 // cell): a map of more cells is analysed without keeping its levels.
 const (
-	levelsKept      = 4
+	levelsKept      = 8
 	levelsKeptCells = 1 << 20
 )
 
@@ -157,37 +157,61 @@ type keptLevels struct {
 	pow       []float64 // pow[k·nb+d]
 	level     []float64
 	has       []bool // level computed
+	gen       uint64 // the evaluation that made it (pdMemo.evals)
 }
 
-// levelsFor returns the kept analysis of a map with these settings, or
-// nil.
-func (p *pdMemo) levelsFor(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processed []bool) *keptLevels {
+// nextEvaluation counts an evaluation of the Engine (Evaluate, Analyse).
+func (p *pdMemo) nextEvaluation() {
+	if p == nil {
+		return
+	}
+	p.mu.Lock()
+	p.evals++
+	p.mu.Unlock()
+}
+
+// levelsFor returns the kept analysis of a map with these settings whose
+// scene power pow (pow[k·nb+d]) differs from it in the fewest columns, or
+// nil. (One evaluation analyses several maps of the same settings: the
+// scenario's and each CPI's of a schedule.)
+func (p *pdMemo) levelsFor(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processed []bool, pow []float64) *keptLevels {
 	if p == nil {
 		return nil
 	}
 	p.mu.Lock()
 	defer p.mu.Unlock()
+	var best *keptLevels
+	fewest := n + 1
 	for _, l := range p.levels {
-		if l.n == n && l.nb == nb && sameCFAR2D(l.cf2, cf2) && sameFloatBits(l.noise, noise) && slices.Equal(l.processed, processed) {
-			return l
+		if l.n != n || l.nb != nb || !sameCFAR2D(l.cf2, cf2) || !sameFloatBits(l.noise, noise) || !slices.Equal(l.processed, processed) {
+			continue
+		}
+		c := 0
+		for k := range n {
+			if !sameFloatBits(l.pow[k*nb:(k+1)*nb], pow[k*nb:(k+1)*nb]) {
+				c++
+			}
+		}
+		if c < fewest {
+			best, fewest = l, c
 		}
 	}
-	return nil
+	return best
 }
 
-// keepLevels keeps an analysis, replacing one of the same settings, the
-// newest first, dropping the oldest beyond levelsKept.
-func (p *pdMemo) keepLevels(l *keptLevels) {
+// keepLevels keeps the analysis l in place of prev, the one it reused
+// (nil: none) unless an earlier map of this evaluation made it, the
+// newest first, dropping the oldest beyond levelsKept maps or
+// levelsKeptCells cells.
+func (p *pdMemo) keepLevels(l, prev *keptLevels) {
 	if p == nil {
 		return
 	}
 	p.mu.Lock()
 	defer p.mu.Unlock()
-	for i, o := range p.levels {
-		if o.n == l.n && o.nb == l.nb && sameCFAR2D(o.cf2, l.cf2) && sameFloatBits(o.noise, l.noise) && slices.Equal(o.processed, l.processed) {
-			p.levels = append(p.levels[:i], p.levels[i+1:]...)
-			break
-		}
+	l.gen = p.evals
+	if i := slices.Index(p.levels, prev); prev != nil && i >= 0 && prev.gen != p.evals {
+		p.levels = slices.Delete(p.levels, i, i+1)
 	}
 	p.levels = append(p.levels, nil)
 	copy(p.levels[1:], p.levels)
