@@ -404,9 +404,8 @@ func (sc *scene) windowPower(workers int, x, y []complex128, p []float64) []comp
 		}
 	}
 	sc.fe.stcShape(m, echo, 0)
-	noise := streamOf(m.s.Seed, "", 0x4e01)
-	for i := range echo {
-		echo[i] += dsp.ComplexNormal(noise)
+	for i, v := range m.memo.windowNoise(m.s.Seed, len(echo)) {
+		echo[i] += v
 	}
 	sc.fe.receive(echo)
 	sc.blank(echo, 0)

@@ -79,6 +79,10 @@ type pdMemo struct {
 	convs  []*keptConv
 	levels []*keptLevels
 	evals  uint64 // evaluations counted (nextEvaluation)
+	// noise is the last single-pulse receive window's noise for
+	// noiseSeed (windowNoise).
+	noise     []complex128
+	noiseSeed int64
 }
 
 // cfSet is the number of detectors of the same settings one evaluation

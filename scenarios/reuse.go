@@ -226,3 +226,34 @@ func (p *pdMemo) keepLevels(l, prev *keptLevels) {
 		}
 	}
 }
+
+// noiseKeptSamples bounds the kept receive-window noise.
+const noiseKeptSamples = 1 << 20
+
+// windowNoise returns the thermal noise of a single pulse's receive
+// window of n samples for seed: the first n draws of dsp.ComplexNormal
+// from the window's noise stream, the values windowPower adds. The noise
+// depends on the seed and the length alone, so a memo keeps the last
+// one (up to noiseKeptSamples samples); the caller does not change it.
+func (p *pdMemo) windowNoise(seed int64, n int) []complex128 {
+	if p != nil {
+		p.mu.Lock()
+		if p.noiseSeed == seed && len(p.noise) == n && p.noise != nil {
+			v := p.noise
+			p.mu.Unlock()
+			return v
+		}
+		p.mu.Unlock()
+	}
+	rng := streamOf(seed, "", 0x4e01)
+	v := make([]complex128, n)
+	for i := range v {
+		v[i] = dsp.ComplexNormal(rng)
+	}
+	if p != nil && n <= noiseKeptSamples {
+		p.mu.Lock()
+		p.noise, p.noiseSeed = v, seed
+		p.mu.Unlock()
+	}
+	return v
+}
