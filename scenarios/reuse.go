@@ -18,7 +18,7 @@ import (
 // uncached mode, the Monte Carlo trials) keeps nothing.
 
 // planKept is the number of local compression plans a memo keeps idle.
-const planKept = 4
+const planKept = 8
 
 // keptPlan is an idle compression plan of a reference for buffers of n
 // samples.
