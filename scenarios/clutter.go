@@ -3,6 +3,7 @@ package scenarios
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -406,7 +407,7 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 func (sc *scene) analyseMapClutter(cs *clutterScene, cf2 *dsp.CFAR2D) *clutterScene {
 	m, tr := sc.m, sc.train
 	n, nb := m.n, tr.plan.Bins()
-	cur := &keptLevels{cf2: cf2, n: n, nb: nb, noise: tr.noise, processed: m.processed,
+	cur := &keptLevels{cf2: cf2, n: n, nb: nb, noise: slices.Clone(tr.noise), processed: slices.Clone(m.processed),
 		pow: make([]float64, n*nb), level: make([]float64, n*nb), has: make([]bool, n*nb)}
 	for k := range n {
 		row := cur.pow[k*nb : (k+1)*nb]

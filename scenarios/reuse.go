@@ -23,7 +23,7 @@ const planKept = 8
 // keptPlan is an idle compression plan of a reference for buffers of n
 // samples.
 type keptPlan struct {
-	ref []complex128 // the reference (a model's, never written)
+	ref []complex128 // a copy of the reference
 	n   int
 	c   *dsp.Correlator
 }
@@ -59,7 +59,7 @@ func (p *pdMemo) putPlan(ref []complex128, n int, c *dsp.Correlator) {
 		p.plans = append(p.plans, keptPlan{})
 	}
 	copy(p.plans[1:], p.plans)
-	p.plans[0] = keptPlan{ref: ref, n: n, c: c}
+	p.plans[0] = keptPlan{ref: slices.Clone(ref), n: n, c: c}
 }
 
 // convKept and convKeptBytes bound the kept density convolutions.
