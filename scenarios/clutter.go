@@ -461,7 +461,7 @@ func (sc *scene) analyseMapClutter(cs *clutterScene, cf2 *dsp.CFAR2D) *clutterSc
 			cs.gates[j] = append(cs.gates[j], k)
 		}
 	}
-	m.memo.keepLevels(cur, prev)
+	m.memo.keepLevels(cur)
 	return cs
 }
 

@@ -51,7 +51,6 @@ func (e *Engine) Evaluate(ctx context.Context, s *Scenario) (*Result, error) {
 	if e.uncached {
 		m.memo = nil
 	}
-	m.memo.nextEvaluation()
 	// The window's compression plan is kept across frames by the Engine
 	// alone: suggestions build models of their own and must not share it.
 	if p := e.last; p != nil && p.winCorr != nil && p.n == m.n && len(p.ref) > 0 && len(p.ref) == len(m.ref) && &p.ref[0] == &m.ref[0] {
@@ -128,7 +127,6 @@ func (e *Engine) Analyse(ctx context.Context, s *Scenario) (*Report, error) {
 	if e.uncached {
 		m.memo = nil
 	}
-	m.memo.nextEvaluation()
 	sc, err := newScene(ctx, m)
 	if err != nil {
 		return nil, err

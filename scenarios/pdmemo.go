@@ -78,7 +78,6 @@ type pdMemo struct {
 	plans  []keptPlan
 	convs  []*keptConv
 	levels []*keptLevels
-	evals  uint64 // evaluations counted (nextEvaluation)
 	// noise is the last single-pulse receive window's noise for
 	// noiseSeed (windowNoise).
 	noise     []complex128

@@ -157,17 +157,6 @@ type keptLevels struct {
 	pow       []float64 // pow[k·nb+d]
 	level     []float64
 	has       []bool // level computed
-	gen       uint64 // the evaluation that made it (pdMemo.evals)
-}
-
-// nextEvaluation counts an evaluation of the Engine (Evaluate, Analyse).
-func (p *pdMemo) nextEvaluation() {
-	if p == nil {
-		return
-	}
-	p.mu.Lock()
-	p.evals++
-	p.mu.Unlock()
 }
 
 // levelsFor returns the kept analysis of a map with these settings whose
@@ -187,32 +176,30 @@ func (p *pdMemo) levelsFor(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processe
 			continue
 		}
 		c := 0
-		for k := range n {
+		for k := 0; k < n && c < fewest; k++ {
 			if !sameFloatBits(l.pow[k*nb:(k+1)*nb], pow[k*nb:(k+1)*nb]) {
 				c++
 			}
 		}
 		if c < fewest {
 			best, fewest = l, c
+			if c == 0 {
+				break // the same map
+			}
 		}
 	}
 	return best
 }
 
-// keepLevels keeps the analysis l in place of prev, the one it reused
-// (nil: none) unless an earlier map of this evaluation made it, the
-// newest first, dropping the oldest beyond levelsKept maps or
-// levelsKeptCells cells.
-func (p *pdMemo) keepLevels(l, prev *keptLevels) {
+// keepLevels keeps the analysis l, the newest first, dropping the
+// oldest beyond levelsKept maps or levelsKeptCells cells: the maps of the
+// last evaluation or two (a wheel's nudge and its way back find theirs).
+func (p *pdMemo) keepLevels(l *keptLevels) {
 	if p == nil {
 		return
 	}
 	p.mu.Lock()
 	defer p.mu.Unlock()
-	l.gen = p.evals
-	if i := slices.Index(p.levels, prev); prev != nil && i >= 0 && prev.gen != p.evals {
-		p.levels = slices.Delete(p.levels, i, i+1)
-	}
 	p.levels = append(p.levels, nil)
 	copy(p.levels[1:], p.levels)
 	p.levels[0] = l
