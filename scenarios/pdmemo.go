@@ -75,9 +75,10 @@ type pdMemo struct {
 	cf1s [][cfSet]*dsp.CFAR
 	// plans, convs and levels (reuse.go): idle local compression plans,
 	// kept density convolutions and range–Doppler clutter levels.
-	plans  []keptPlan
-	convs  []*keptConv
-	levels []*keptLevels
+	plans    []keptPlan
+	convs    []*keptConv
+	levels   []*keptLevels
+	profiles []*keptProfile
 	// noise is the last single-pulse receive window's noise for
 	// noiseSeed (windowNoise).
 	noise     []complex128

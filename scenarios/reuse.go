@@ -244,3 +244,88 @@ func (p *pdMemo) windowNoise(seed int64, n int) []complex128 {
 	}
 	return v
 }
+
+// keptProfile is the threshold series of one range–Doppler map
+// (train.series): the noise-free map (lin[d][k], float32 as the series
+// hold it) and, per range cell k, the detector's level at the cell's
+// strongest bin bin[k]. Like keptLevels, a later series with the same
+// detector settings, bins' noise and processed cells reuses the level of
+// cell k where its bin is the same and none of the columns k−hr … k+hr
+// changed bit for bit.
+type keptProfile struct {
+	cf2       *dsp.CFAR2D
+	n, nb     int
+	noise     []float64
+	processed []bool
+	lin       []float32 // lin[k·nb+d]
+	bin       []int     // −1: no level
+	level     []float64
+}
+
+// profileFor returns the kept series of a map with these settings whose
+// noise-free map (lin[k·nb+d]) differs from it in the fewest columns, or
+// nil.
+func (p *pdMemo) profileFor(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processed []bool, lin []float32) *keptProfile {
+	if p == nil {
+		return nil
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	var best *keptProfile
+	fewest := n + 1
+	for _, l := range p.profiles {
+		if l.n != n || l.nb != nb || !sameCFAR2D(l.cf2, cf2) || !sameFloatBits(l.noise, noise) || !slices.Equal(l.processed, processed) {
+			continue
+		}
+		c := 0
+		for k := 0; k < n && c < fewest; k++ {
+			if !sameFloat32Bits(l.lin[k*nb:(k+1)*nb], lin[k*nb:(k+1)*nb]) {
+				c++
+			}
+		}
+		if c < fewest {
+			best, fewest = l, c
+			if c == 0 {
+				break
+			}
+		}
+	}
+	return best
+}
+
+// keepProfile keeps a series' levels, the newest first, within the
+// bounds of the kept clutter levels (levelsKept maps, levelsKeptCells
+// cells).
+func (p *pdMemo) keepProfile(l *keptProfile) {
+	if p == nil {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	p.profiles = append(p.profiles, nil)
+	copy(p.profiles[1:], p.profiles)
+	p.profiles[0] = l
+	cells := 0
+	for i, o := range p.profiles {
+		cells += o.n * o.nb
+		if i >= levelsKept || cells > levelsKeptCells {
+			clear(p.profiles[i:])
+			p.profiles = p.profiles[:i]
+			break
+		}
+	}
+}
+
+// sameFloat32Bits says whether two vectors hold the same values bit for
+// bit.
+func sameFloat32Bits(a, b []float32) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i, v := range a {
+		if math.Float32bits(v) != math.Float32bits(b[i]) {
+			return false
+		}
+	}
+	return true
+}

@@ -739,6 +739,42 @@ func (tr *train) series(ctx context.Context) (Series, error) {
 	}
 	clean := func(k, d int) float64 { return float64(lin[d][k]) }
 	cf := tr.cfar()
+	// The level of a cell is kept across evaluations where the map near
+	// it did not change (reuse.go).
+	var cur, prev *keptProfile
+	var changed []int
+	hr := 0
+	if cf != nil && n*nb <= levelsKeptCells && m.memo != nil {
+		cur = &keptProfile{cf2: cf, n: n, nb: nb, noise: slices.Clone(tr.noise), processed: slices.Clone(m.processed),
+			lin: make([]float32, n*nb), bin: make([]int, n), level: make([]float64, n)}
+		for k := range n {
+			for d := range nb {
+				cur.lin[k*nb+d] = lin[d][k]
+			}
+			cur.bin[k] = -1
+		}
+		prev = m.memo.profileFor(cf, n, nb, tr.noise, m.processed, cur.lin)
+		changed = make([]int, n+1) // changed[k+1] − changed[lo]: columns lo … k unlike prev's
+		for k := range n {
+			c := 1
+			if prev != nil && sameFloat32Bits(prev.lin[k*nb:(k+1)*nb], cur.lin[k*nb:(k+1)*nb]) {
+				c = 0
+			}
+			changed[k+1] = changed[k] + c
+		}
+		hr = cf.GuardR + cf.TrainR/2
+	}
+	level := func(k, d int) float64 {
+		if cur == nil {
+			return tr.level(cf, k, d, clean)
+		}
+		if prev != nil && prev.bin[k] == d && changed[min(k+hr, n-1)+1]-changed[max(k-hr, 0)] == 0 {
+			cur.bin[k], cur.level[k] = d, prev.level[k]
+			return cur.level[k]
+		}
+		cur.bin[k], cur.level[k] = d, tr.level(cf, k, d, clean)
+		return cur.level[k]
+	}
 	for k := range n {
 		if k%4096 == 0 && ctx.Err() != nil {
 			return Series{}, ctx.Err()
@@ -756,11 +792,14 @@ func (tr *train) series(ctx context.Context) (Series, error) {
 			s.ProfileDB[k], s.CleanDB[k], s.ThresholdDB[k] = dbFloor, dbFloor, dbFloor
 			continue
 		}
-		th := tr.level(cf, k, bd, clean)
+		th := level(k, bd)
 		if math.IsInf(th, 1) {
 			th = 0
 		}
 		s.ThresholdDB[k] = toDB(th)
+	}
+	if cur != nil {
+		m.memo.keepProfile(cur)
 	}
 	s.Response = m.response()
 	return s, nil
