@@ -73,8 +73,9 @@ type pdMemo struct {
 	// training cells) was a fifth of a frame on a demo with clutter, and
 	// a drag changes none of them.
 	cf1s [][cfSet]*dsp.CFAR
-	// plans, convs and levels (reuse.go): idle local compression plans,
-	// kept density convolutions and range–Doppler clutter levels.
+	// plans, convs, levels and profiles (reuse.go): idle local
+	// compression plans, kept density convolutions, range–Doppler
+	// clutter levels and pulse trains' threshold series.
 	plans    []keptPlan
 	convs    []*keptConv
 	levels   []*keptLevels

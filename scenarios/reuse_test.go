@@ -175,8 +175,9 @@ func TestReuseMatchesFresh(t *testing.T) {
 	}
 }
 
-// TestReuseBounded: the kept detectors, plans and convolutions stay
-// within their bounds over many different scenes.
+// TestReuseBounded: the kept detectors, plans, convolutions, clutter
+// levels and threshold series stay within their bounds over many
+// different scenes.
 func TestReuseBounded(t *testing.T) {
 	if testing.Short() {
 		t.Skip("evaluates demos")
@@ -203,6 +204,36 @@ func TestReuseBounded(t *testing.T) {
 	p := e.last.memo
 	if len(p.cf1s) > cf1Kept || len(p.plans) > planKept || len(p.convs) > convKept {
 		t.Errorf("memo keeps %d detector sets (bound %d), %d plans (%d), %d convolutions (%d)", len(p.cf1s), cf1Kept, len(p.plans), planKept, len(p.convs), convKept)
+	}
+	// A pulse train's maps: its clutter levels and threshold series.
+	h, err := LoadDemo("hill-clutter-doppler")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var eh Engine
+	for i := range 12 {
+		s := *h.Scenario
+		s.Targets = slices.Clone(s.Targets)
+		for j := range s.Targets {
+			if s.Targets[j].Kind == TargetPoint {
+				s.Targets[j].RangeM += float64(i) * 11
+			}
+		}
+		if _, err := eh.Evaluate(ctx, &s); err != nil {
+			t.Fatal(err)
+		}
+	}
+	ph := eh.last.memo
+	cells := 0
+	for _, l := range ph.levels {
+		cells += l.n * l.nb
+	}
+	pcells := 0
+	for _, l := range ph.profiles {
+		pcells += l.n * l.nb
+	}
+	if len(ph.levels) == 0 || len(ph.profiles) == 0 || len(ph.levels) > levelsKept || len(ph.profiles) > levelsKept || cells > levelsKeptCells || pcells > levelsKeptCells {
+		t.Errorf("memo keeps %d clutter maps (%d cells) and %d threshold series (%d cells); bounds %d maps, %d cells, and at least one of each", len(ph.levels), cells, len(ph.profiles), pcells, levelsKept, levelsKeptCells)
 	}
 	total := 0
 	for _, c := range p.convs {
