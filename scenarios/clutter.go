@@ -3,6 +3,7 @@ package scenarios
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -361,6 +362,9 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 	}
 	tr := sc.train
 	nb := tr.plan.Bins()
+	if cf2 != nil && m.n*nb <= levelsKeptCells && m.memo != nil {
+		return sc.analyseMapClutter(cs, cf2)
+	}
 	// The scene's power at a cell is asked for again by every level whose
 	// training cells hold it: keep the columns near the cell under test.
 	cols := newPowerColumns(sc, cf2)
@@ -389,6 +393,75 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 			cs.gates[j] = append(cs.gates[j], k)
 		}
 	}
+	return cs
+}
+
+// analyseMapClutter is analyseClutter's range–Doppler part behind a CFAR
+// with the levels kept across evaluations (reuse.go): the scene power of
+// every cell is computed first (the values powerColumns gives), then each
+// level that analyseClutter asks for is taken from the kept analysis when
+// the settings are the same and none of the columns its training cells
+// may read changed bit for bit (a drag changes the columns near the
+// dragged target), and computed otherwise. The result is analyseClutter's
+// without the kept levels, bit for bit.
+func (sc *scene) analyseMapClutter(cs *clutterScene, cf2 *dsp.CFAR2D) *clutterScene {
+	m, tr := sc.m, sc.train
+	n, nb := m.n, tr.plan.Bins()
+	cur := &keptLevels{cf2: cf2, n: n, nb: nb, noise: slices.Clone(tr.noise), processed: slices.Clone(m.processed),
+		pow: make([]float64, n*nb), level: make([]float64, n*nb), has: make([]bool, n*nb)}
+	for k := range n {
+		row := cur.pow[k*nb : (k+1)*nb]
+		for d := range row {
+			row[d] = sc.scenePower(k, d)
+		}
+	}
+	prev := m.memo.levelsFor(cf2, n, nb, tr.noise, m.processed, cur.pow)
+	// changed[k+1] − changed[lo] counts the columns lo … k that differ
+	// from the kept analysis (all of them without one).
+	changed := make([]int, n+1)
+	for k := range n {
+		c := 1
+		if prev != nil && sameFloatBits(prev.pow[k*nb:(k+1)*nb], cur.pow[k*nb:(k+1)*nb]) {
+			c = 0
+		}
+		changed[k+1] = changed[k] + c
+	}
+	hr := cf2.GuardR + cf2.TrainR/2
+	scenePow := func(k, d int) float64 { return cur.pow[k*nb+d] }
+	level := func(k, d int) float64 {
+		i := k*nb + d
+		if prev != nil && prev.has[i] && changed[min(k+hr, n-1)+1]-changed[max(k-hr, 0)] == 0 {
+			cur.level[i], cur.has[i] = prev.level[i], true
+			return cur.level[i]
+		}
+		cur.level[i], cur.has[i] = tr.level(cf2, k, d, scenePow), true
+		return cur.level[i]
+	}
+	nl := newNoiseLevels(tr, cf2)
+	for k := range n {
+		if !m.processed[k] {
+			continue
+		}
+		crossed := make(map[int]bool)
+		for d := range nb {
+			s := scenePow(k, d)
+			if s <= tr.noise[d] { // under its own bin's noise (an MTI canceller's bins hold unequal noise)
+				continue
+			}
+			j := sc.dominant(k, d)
+			if j < 0 || !sc.targets[j].t.IsClutter() {
+				continue
+			}
+			if s >= nl.at(k, d) && s >= level(k, d) {
+				cs.cells[j]++
+				crossed[j] = true
+			}
+		}
+		for j := range crossed {
+			cs.gates[j] = append(cs.gates[j], k)
+		}
+	}
+	m.memo.keepLevels(cur)
 	return cs
 }
 
@@ -619,9 +692,9 @@ func (sc *scene) falseAlarms() *FalseAlarms {
 		}
 	}
 	fa := &FalseAlarms{PFA: m.s.Receiver.Detector.PFA, TestedCells: gates, LookS: r.PRIS}
-	fa.IndependentCells = float64(gates) / dsp.NoiseCorrelationLength(m.ref)
+	fa.IndependentCells = float64(gates) / m.noiseCorrelationLength()
 	if sc.train != nil {
-		cov := sc.train.plan.NoiseCovariance()
+		cov := sc.train.noiseCov()
 		nd := len(cov)
 		fa.TestedCells *= nd
 		fa.IndependentCells *= dsp.EffectiveCells(nd, func(i, j int) complex128 {

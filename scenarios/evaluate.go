@@ -402,7 +402,9 @@ func (sc *scene) windowPower(workers int, x, y []complex128, p []float64) []comp
 		}
 	}
 	sc.fe.stcShape(m, echo, 0)
-	addNoise(echo, m.s.Seed, 0x4e01)
+	for i, v := range m.memo.windowNoise(m.s.Seed, len(echo)) {
+		echo[i] += v
+	}
 	sc.fe.receive(echo)
 	sc.blank(echo, 0)
 	// x holds lead zeros, then the echo: an echo at window sample d peaks at y[d].

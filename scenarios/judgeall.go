@@ -19,7 +19,8 @@ import (
 // solved multipliers), made with the same settings; targets are handed
 // out one at a time, as the in-cell Pd makes some much dearer than
 // others. Everything judge reads lazily is made before the goroutines
-// start.
+// start. The other detectors are kept across evaluations (pdMemo.cfar1)
+// with the multipliers they have solved.
 //
 // side, when not nil, is work that reads the scene but no verdict (the
 // clutter analysis): it runs first when judging is sequential, otherwise
@@ -43,10 +44,10 @@ func (sc *scene) judgeAll(cf *dsp.CFAR, side func(*dsp.CFAR)) []verdict {
 	}
 	var wg sync.WaitGroup
 	if side != nil {
-		cf3 := sameDetector(cf)
+		cf3 := sc.m.memo.cfar1(cf, 2)
 		wg.Go(func() { side(cf3) })
 	}
-	cf2 := sameDetector(cf)
+	cf2 := sc.m.memo.cfar1(cf, 1)
 	var next atomic.Int64
 	work := func(c *dsp.CFAR) {
 		for {

@@ -37,6 +37,7 @@ type model struct {
 	processed []bool   // per gate: its sample time lies in no transmit interval
 	cfar      *dsp.CFAR
 	rho       []complex128 // noise correlation of the reference by lag, up to the CFAR span
+	ncl       float64      // dsp.NoiseCorrelationLength of the reference, 0 until asked for (noiseCorrelationLength)
 	memo      *pdMemo      // detection probabilities, shared with the models that follow (pdmemo.go)
 }
 
@@ -174,6 +175,7 @@ func newModel(s *Scenario, prev *model) (*model, error) {
 		if rx.Filter == prx.Filter && rx.FilterLengthFactor == prx.FilterLengthFactor && rx.Window == prx.Window {
 			m.ref, m.lead, m.noiseGain, m.taps = prev.ref, prev.lead, prev.noiseGain, prev.taps
 			m.cont = prev.cont
+			m.ncl = prev.ncl
 			m.warnings = append(m.warnings, prev.refWarnings...)
 			m.refWarnings = prev.refWarnings
 			if prev.rho != nil && len(prev.rho) == rhoLags(s, len(m.ref)) {
@@ -324,6 +326,16 @@ func (m *model) noiseCorrelation() []complex128 {
 		m.rho = dsp.NoiseCorrelation(make([]complex128, rhoLags(m.s, len(m.ref))), m.ref)
 	}
 	return m.rho
+}
+
+// noiseCorrelationLength returns dsp.NoiseCorrelationLength of the
+// reference, computed once per reference (a later model that reuses the
+// reference reuses it).
+func (m *model) noiseCorrelationLength() float64 {
+	if m.ncl == 0 {
+		m.ncl = dsp.NoiseCorrelationLength(m.ref)
+	}
+	return m.ncl
 }
 
 func (m *model) warn(format string, args ...any) {

@@ -64,6 +64,98 @@ type pdMemo struct {
 	// the multipliers they have solved: solving them is a third of a
 	// pulse train's evaluation, and a drag changes none of them.
 	cf2s []*dsp.CFAR2D
+	// cf1s are the single-pulse detectors of the last evaluations (the
+	// scenario's and those of the changed scenarios its suggestions
+	// verify), newest first, each as a set of detectors with the same
+	// settings: [0] judges on the evaluation's goroutine, [1] beside it
+	// and [2] analyses the clutter (judgeAll). Solving their multipliers
+	// (for correlated cells an eigendecomposition per pattern of
+	// training cells) was a fifth of a frame on a demo with clutter, and
+	// a drag changes none of them.
+	cf1s [][cfSet]*dsp.CFAR
+	// plans, convs, levels and profiles (reuse.go): idle local
+	// compression plans, kept density convolutions, range–Doppler
+	// clutter levels and pulse trains' threshold series.
+	plans    []keptPlan
+	convs    []*keptConv
+	levels   []*keptLevels
+	profiles []*keptProfile
+	// noise is the last single-pulse receive window's noise for
+	// noiseSeed (windowNoise).
+	noise     []complex128
+	noiseSeed int64
+}
+
+// cfSet is the number of detectors of the same settings one evaluation
+// uses at once (judgeAll).
+const cfSet = 3
+
+// cf1Kept is the number of single-pulse detector settings a memo keeps.
+const cf1Kept = 8
+
+// cfar1 returns detector i (0 … cfSet−1) of the set kept for the
+// settings of c (sameCFAR: every field that sets a multiplier, the noise
+// correlation value for value), with the multipliers it has solved;
+// without such a set it starts one (c itself as detector 0, detectors of
+// c's settings as the others). Detectors of one set are used by
+// different goroutines of one evaluation; one evaluation runs at a time
+// (an Engine is not safe for concurrent use). A nil memo returns c for
+// 0 and a new detector of c's settings otherwise.
+func (p *pdMemo) cfar1(c *dsp.CFAR, i int) *dsp.CFAR {
+	if c == nil {
+		return nil
+	}
+	if p == nil {
+		if i == 0 {
+			return c
+		}
+		return sameDetector(c)
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	for n, set := range p.cf1s {
+		if sameCFAR(set[0], c) {
+			copy(p.cf1s[1:n+1], p.cf1s[:n])
+			if set[i] == nil {
+				set[i] = sameDetector(c)
+			}
+			p.cf1s[0] = set
+			return set[i]
+		}
+	}
+	var set [cfSet]*dsp.CFAR
+	set[0] = c
+	if i != 0 {
+		set[i] = sameDetector(c)
+	}
+	if len(p.cf1s) < cf1Kept {
+		p.cf1s = append(p.cf1s, set)
+	}
+	copy(p.cf1s[1:], p.cf1s)
+	p.cf1s[0] = set
+	return set[i]
+}
+
+// sameCFAR says whether two single-pulse detectors have the same
+// settings (those sameDetector copies) and noise correlation.
+func sameCFAR(a, b *dsp.CFAR) bool {
+	return a.PFA == b.PFA && a.Guard == b.Guard && a.Train == b.Train && a.Rank == b.Rank &&
+		a.Variant == b.Variant && a.Censor == b.Censor && a.Pulses == b.Pulses &&
+		(a.Rho == nil) == (b.Rho == nil) && sameBits(a.Rho, b.Rho)
+}
+
+// sameBits says whether two vectors hold the same values bit for bit.
+func sameBits(a, b []complex128) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i, v := range a {
+		w := b[i]
+		if math.Float64bits(real(v)) != math.Float64bits(real(w)) || math.Float64bits(imag(v)) != math.Float64bits(imag(w)) {
+			return false
+		}
+	}
+	return true
 }
 
 // cf2Kept is the number of range–Doppler detectors a memo keeps.

@@ -168,6 +168,7 @@ func newSceneFor(ctx context.Context, m *model, focus int) (*scene, error) {
 	sc := &scene{m: m, total: make([]float64, m.n), reachHi: m.n, fe: newFrontEnd(m)}
 	sc.targets = make([]*tgt, len(m.s.Targets))
 	lp := &localPlan{m: m}
+	defer lp.done()
 	order := make([]int, 0, len(m.s.Targets))
 	if focus >= 0 {
 		order = append(order, focus)
@@ -245,9 +246,24 @@ func (lp *localPlan) size() int {
 func (lp *localPlan) ensure() {
 	if lp.c == nil {
 		n := lp.size()
-		lp.c = dsp.NewCorrelator(lp.m.ref, n)
+		if lp.n == 0 {
+			// The default size: a plan kept from an earlier scene of the
+			// same reference (done returns it).
+			lp.c = lp.m.memo.takePlan(lp.m.ref, n)
+		} else {
+			lp.c = dsp.NewCorrelator(lp.m.ref, n)
+		}
 		lp.x = make([]complex128, n)
 		lp.y = make([]complex128, n)
+	}
+}
+
+// done hands a plan of the default size back to the memo for later
+// scenes; lp is not used after.
+func (lp *localPlan) done() {
+	if lp.c != nil && lp.n == 0 {
+		lp.m.memo.putPlan(lp.m.ref, lp.size(), lp.c)
+		lp.c = nil
 	}
 }
 
@@ -528,14 +544,23 @@ func (sc *scene) convolveDensity(density []float64, lo int, kern []float64) resp
 			}
 		}
 	} else {
-		convolveFFT(pow, outLo, density, lo, kern, off)
+		convolveFFT(m.memo, pow, outLo, density, lo, kern, off)
 	}
 	return response{lo: outLo, pow: pow}
 }
 
 // convolveFFT adds Σ_i q[i]·kern[k−(qlo+i)+off] to dst[k−dlo] by FFT
-// correlation with the reversed kernel.
-func convolveFFT(dst []float64, dlo int, q []float64, qlo int, kern []float64, off int) {
+// correlation with the reversed kernel. A memo keeps the result for the
+// same q, kern, placement and len(dst) (reuse.go): a clutter patch's or
+// a rain band's, the same while another target is dragged.
+func convolveFFT(memo *pdMemo, dst []float64, dlo int, q []float64, qlo int, kern []float64, off int) {
+	shift := qlo - off - dlo
+	if k := memo.conv(q, kern, shift, len(dst)); k != nil {
+		for i, v := range k.add {
+			dst[k.a+i] += v
+		}
+		return
+	}
 	n := len(q) + len(kern)
 	rev := make([]complex128, len(kern))
 	for j, v := range kern {
@@ -547,10 +572,19 @@ func convolveFFT(dst []float64, dlo int, q []float64, qlo int, kern []float64, o
 	}
 	y := dsp.NewCorrelator(rev, n).Apply(nil, x)
 	// y[t] = Σ_{i+j=t} q[i]·kern[j], which lands on sample k = qlo + t − off.
+	a, b := max(shift, 0), min(len(y)+shift, len(dst)) // the dst indices written
+	if a >= b {
+		return
+	}
+	add := make([]float64, b-a)
 	for t, v := range y {
 		k := t + qlo - off
 		if k >= dlo && k < dlo+len(dst) {
-			dst[k-dlo] += math.Max(real(v), 0)
+			add[k-dlo-a] = math.Max(real(v), 0)
+			dst[k-dlo] += add[k-dlo-a]
 		}
+	}
+	if memo != nil {
+		memo.keepConv(&keptConv{q: append([]float64(nil), q...), kern: append([]float64(nil), kern...), shift: shift, dstLen: len(dst), a: a, add: add})
 	}
 }

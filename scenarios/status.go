@@ -103,6 +103,10 @@ func (m *model) detector() *dsp.CFAR {
 		if d.Kind == DetectorOS {
 			m.cfar.Rank = d.Rank
 		}
+		// A detector of the same settings kept from an earlier
+		// evaluation (a suggestion's changed scenario) keeps the
+		// multipliers it has solved.
+		m.cfar = m.memo.cfar1(m.cfar, 0)
 	}
 	return m.cfar
 }

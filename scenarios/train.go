@@ -34,7 +34,8 @@ type train struct {
 	// uniform train, and follows the canceller's |H(f)|²/Σh² with one
 	// (near zero at zero Doppler, about 2 at ±PRF/2 for two pulses).
 	noise []float64
-	cf2   *dsp.CFAR2D // the map's detector, kept with the multipliers it has solved
+	cf2   *dsp.CFAR2D    // the map's detector, kept with the multipliers it has solved
+	cov   [][]complex128 // plan.NoiseCovariance(), made once (noiseCov); read only
 	cfOK  bool
 	// T is the slow-time unit, s: the PRI, or a stagger's mean PRI;
 	// times the pulse times in units of T for a stagger (nil: uniform).
@@ -74,13 +75,22 @@ func coherentFraction(fluct string) float64 {
 	return 1
 }
 
+// noiseCov returns the plan's noise covariance (dsp.SlowTimePlan.
+// NoiseCovariance), computed on the first call; callers do not change it.
+func (tr *train) noiseCov() [][]complex128 {
+	if tr.cov == nil {
+		tr.cov = tr.plan.NoiseCovariance()
+	}
+	return tr.cov
+}
+
 func newTrain(m *model, sc *scene) *train {
 	r := m.s.Radar
 	tr := &train{m: m, sc: sc, T: r.slowPRI(), times: staggerTimes(r)}
 	tr.plan = tr.newPlan()
 	nb := tr.plan.Bins()
 	tr.noise = make([]float64, nb)
-	for d, row := range tr.plan.NoiseCovariance() {
+	for d, row := range tr.noiseCov() {
 		tr.noise[d] = real(row[d])
 	}
 	tr.groups = make([][]staggerGroup, len(sc.targets))
@@ -221,7 +231,7 @@ func (tr *train) cfar() *dsp.CFAR2D {
 		return nil
 	}
 	c := &dsp.CFAR2D{PFA: d.PFA, GuardR: d.GuardCells, TrainR: d.TrainingCells, GuardD: d.DopplerGuardCells, TrainD: d.DopplerTrainingCells,
-		RhoR: tr.m.noiseCorrelation(), DopplerCov: tr.plan.NoiseCovariance(), Variant: cfarVariant(d.Kind)}
+		RhoR: tr.m.noiseCorrelation(), DopplerCov: tr.noiseCov(), Variant: cfarVariant(d.Kind)}
 	if d.Kind == DetectorCens {
 		c.Censor = int(math.Round(float64(d.CensoredCells) / float64(d.TrainingCells) * float64(c2DCells(c))))
 	}
@@ -726,6 +736,42 @@ func (tr *train) series(ctx context.Context) (Series, error) {
 	}
 	clean := func(k, d int) float64 { return float64(lin[d][k]) }
 	cf := tr.cfar()
+	// The level of a cell is kept across evaluations where the map near
+	// it did not change (reuse.go).
+	var cur, prev *keptProfile
+	var changed []int
+	hr := 0
+	if cf != nil && n*nb <= levelsKeptCells && m.memo != nil {
+		cur = &keptProfile{cf2: cf, n: n, nb: nb, noise: slices.Clone(tr.noise), processed: slices.Clone(m.processed),
+			lin: make([]float32, n*nb), bin: make([]int, n), level: make([]float64, n)}
+		for k := range n {
+			for d := range nb {
+				cur.lin[k*nb+d] = lin[d][k]
+			}
+			cur.bin[k] = -1
+		}
+		prev = m.memo.profileFor(cf, n, nb, tr.noise, m.processed, cur.lin)
+		changed = make([]int, n+1) // changed[k+1] − changed[lo]: columns lo … k unlike prev's
+		for k := range n {
+			c := 1
+			if prev != nil && sameFloat32Bits(prev.lin[k*nb:(k+1)*nb], cur.lin[k*nb:(k+1)*nb]) {
+				c = 0
+			}
+			changed[k+1] = changed[k] + c
+		}
+		hr = cf.GuardR + cf.TrainR/2
+	}
+	level := func(k, d int) float64 {
+		if cur == nil {
+			return tr.level(cf, k, d, clean)
+		}
+		if prev != nil && prev.bin[k] == d && changed[min(k+hr, n-1)+1]-changed[max(k-hr, 0)] == 0 {
+			cur.bin[k], cur.level[k] = d, prev.level[k]
+			return cur.level[k]
+		}
+		cur.bin[k], cur.level[k] = d, tr.level(cf, k, d, clean)
+		return cur.level[k]
+	}
 	for k := range n {
 		if k%4096 == 0 && ctx.Err() != nil {
 			return Series{}, ctx.Err()
@@ -743,11 +789,14 @@ func (tr *train) series(ctx context.Context) (Series, error) {
 			s.ProfileDB[k], s.CleanDB[k], s.ThresholdDB[k] = dbFloor, dbFloor, dbFloor
 			continue
 		}
-		th := tr.level(cf, k, bd, clean)
+		th := level(k, bd)
 		if math.IsInf(th, 1) {
 			th = 0
 		}
 		s.ThresholdDB[k] = toDB(th)
+	}
+	if cur != nil {
+		m.memo.keepProfile(cur)
 	}
 	s.Response = m.response()
 	return s, nil

@@ -26,8 +26,24 @@ func dragSession(tb testing.TB) (*session, *evalCache) {
 	return &session{srv: s, eval: new(scenarios.Engine).Evaluate, log: testLogger(tb), frames: newMailbox[*frame](), free: make(chan *frame, 2)}, &evalCache{}
 }
 
-// dragEdits returns raw scenarios of demo name with its first target at
-// n ranges 0.25 m apart, as a drag sends them.
+// firstPoint returns the first point target of a scenario decoded into
+// m (a distributed one, such as hill-clutter-doppler's ridge, has no
+// range_m or rcs_dbsm to drag or nudge).
+func firstPoint(tb testing.TB, m map[string]any) map[string]any {
+	tb.Helper()
+	for _, t := range m["targets"].([]any) {
+		if t := t.(map[string]any); t["kind"] == scenarios.TargetPoint || t["kind"] == nil {
+			if _, ok := t["range_m"].(float64); ok {
+				return t
+			}
+		}
+	}
+	tb.Fatal("no point target")
+	return nil
+}
+
+// dragEdits returns raw scenarios of demo name with its first point
+// target at n ranges 0.25 m apart, as a drag sends them.
 func dragEdits(tb testing.TB, name string, n int) []json.RawMessage {
 	tb.Helper()
 	d, err := scenarios.LoadDemo(name)
@@ -42,18 +58,107 @@ func dragEdits(tb testing.TB, name string, n int) []json.RawMessage {
 			tb.Fatal(err)
 		}
 		json.Unmarshal(raw, &m)
-		t := m["targets"].([]any)[0].(map[string]any)
-		if r, ok := t["range_m"].(float64); ok {
-			t["range_m"] = r + 0.25*float64(i)
-		}
+		t := firstPoint(tb, m)
+		t["range_m"] = t["range_m"].(float64) + 0.25*float64(i)
 		raw, _ = json.Marshal(m)
 		out = append(out, raw)
 	}
 	return out
 }
 
-// BenchmarkDragFrame: one frame of a drag on each demo (a target moved,
-// the rest unchanged), from the raw scenario to the bytes for the
+// editScenes are the scenes of the single-edit benchmark: every demo and
+// the page tests' 64 k-sample scene (harbour-skiff at 20 MHz over a
+// 65 536-sample window, web's TestEditLatency).
+func editScenes(tb testing.TB) []string {
+	tb.Helper()
+	demos, err := scenarios.Demos()
+	if err != nil {
+		tb.Fatal(err)
+	}
+	var out []string
+	for _, d := range demos {
+		out = append(out, d.Name)
+	}
+	return append(out, "64k-samples")
+}
+
+// nudgeEdits returns raw scenarios of scene name (a demo, or
+// "64k-samples") with its first point target's RCS nudged by +1 dB and back,
+// alternately, as the page's wheel sends them: [nudged, base].
+func nudgeEdits(tb testing.TB, name string) []json.RawMessage {
+	tb.Helper()
+	demo := name
+	if name == "64k-samples" {
+		demo = "harbour-skiff"
+	}
+	d, err := scenarios.LoadDemo(demo)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	raw, err := scenarios.Canonical(d.Scenario)
+	if err != nil {
+		tb.Fatal(err)
+	}
+	var out []json.RawMessage
+	for _, step := range []float64{1, 0} {
+		var m map[string]any
+		json.Unmarshal(raw, &m)
+		if name == "64k-samples" {
+			r := m["radar"].(map[string]any)
+			r["sample_rate_hz"], r["pri_s"], r["window_start_m"] = 20e6, 4e-3, 3500.0
+			r["window_stop_m"] = 3500 + 65535*299792458/2/20e6
+		}
+		t := firstPoint(tb, m)
+		t["rcs_dbsm"] = t["rcs_dbsm"].(float64) + step
+		b, _ := json.Marshal(m)
+		if _, err := scenarios.Decode(b); err != nil {
+			tb.Fatalf("%s: nudged scenario: %v", name, err)
+		}
+		out = append(out, b)
+	}
+	return out
+}
+
+// BenchmarkEditFrame: one frame of a single edit on each demo and the
+// 64 k-sample scene, the first point target's RCS nudged by 1 dB up, then back
+// down (the page's wheel), from the raw scenario to the bytes for the
+// websocket, with the session's engine and caches warm.
+func BenchmarkEditFrame(b *testing.B) {
+	for _, name := range editScenes(b) {
+		b.Run(name, func(b *testing.B) {
+			ss, c := dragSession(b)
+			edits := nudgeEdits(b, name)
+			sent := map[string]string{}
+			ctx := context.Background()
+			gen := uint64(0)
+			frameOf := func(i int) {
+				gen++
+				w := want{gen: gen, id: int64(gen), scn: edit{seq: gen, id: int64(gen), raw: edits[i%len(edits)]}, view: view{width: 1200}}
+				f, err := ss.evaluate(ctx, w, c)
+				if err != nil {
+					b.Fatal(err)
+				}
+				f.encode(sent)
+				for _, ch := range f.charts {
+					sent[ch.name] = ch.key
+				}
+			}
+			frameOf(0)
+			frameOf(1)
+			b.ReportAllocs()
+			i := 1
+			cpu0 := processCPU()
+			for b.Loop() {
+				i++
+				frameOf(i)
+			}
+			b.ReportMetric(float64(processCPU()-cpu0)/float64(b.N)/1e6, "cpu-ms/op")
+		})
+	}
+}
+
+// BenchmarkDragFrame: one frame of a drag on each demo (its first point
+// target moved, the rest unchanged), from the raw scenario to the bytes for the
 // websocket, with the session's engine and caches warm.
 func BenchmarkDragFrame(b *testing.B) {
 	demos, err := scenarios.Demos()

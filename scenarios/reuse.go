@@ -1,0 +1,328 @@
+package scenarios
+
+import (
+	"math"
+	"slices"
+
+	"github.com/pulsewright/pulsewright/dsp"
+)
+
+// Work an Engine keeps across evaluations besides the detection
+// probabilities (pdmemo.go): while a user drags one target, the other
+// targets' and the clutter's work is the same as in the previous frame,
+// and the changed scenarios that the suggestions verify are the same in
+// every frame but for the dragged target. Each kept result is keyed by
+// the exact values it is computed from (compared bit for bit, not by
+// pointer), so what is reused is what a fresh evaluation computes; the
+// stores are bounded in count and bytes, and a nil *pdMemo (an Engine's
+// uncached mode, the Monte Carlo trials) keeps nothing.
+
+// planKept is the number of local compression plans a memo keeps idle.
+const planKept = 8
+
+// keptPlan is an idle compression plan of a reference for buffers of n
+// samples.
+type keptPlan struct {
+	ref []complex128 // a copy of the reference
+	n   int
+	c   *dsp.Correlator
+}
+
+// takePlan returns a plan correlating with ref for n samples: a kept one
+// whose reference equals ref bit for bit, which the caller then owns
+// until it puts it back (a plan keeps scratch buffers: one user at a
+// time), or a new one.
+func (p *pdMemo) takePlan(ref []complex128, n int) *dsp.Correlator {
+	if p != nil {
+		p.mu.Lock()
+		for i, k := range p.plans {
+			if k.n == n && sameBits(k.ref, ref) {
+				p.plans = append(p.plans[:i], p.plans[i+1:]...)
+				p.mu.Unlock()
+				return k.c
+			}
+		}
+		p.mu.Unlock()
+	}
+	return dsp.NewCorrelator(ref, n)
+}
+
+// putPlan keeps an idle plan c of ref for n samples (the newest first;
+// the oldest beyond planKept is dropped).
+func (p *pdMemo) putPlan(ref []complex128, n int, c *dsp.Correlator) {
+	if p == nil || c == nil {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	if len(p.plans) < planKept {
+		p.plans = append(p.plans, keptPlan{})
+	}
+	copy(p.plans[1:], p.plans)
+	p.plans[0] = keptPlan{ref: slices.Clone(ref), n: n, c: c}
+}
+
+// convKept and convKeptBytes bound the kept density convolutions.
+const (
+	convKept      = 8
+	convKeptBytes = 32 << 20
+)
+
+// keptConv is one convolveFFT result: its inputs (copies) and the values
+// it added to dst[a … a+len(add)).
+type keptConv struct {
+	q, kern []float64
+	shift   int // qlo − off − dlo: output t lands on dst[t+shift]
+	dstLen  int
+	a       int
+	add     []float64
+}
+
+func (k *keptConv) bytes() int { return 8 * (len(k.q) + len(k.kern) + len(k.add)) }
+
+// conv returns the kept convolution of these inputs, or nil.
+func (p *pdMemo) conv(q, kern []float64, shift, dstLen int) *keptConv {
+	if p == nil {
+		return nil
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	for i, k := range p.convs {
+		if k.shift == shift && k.dstLen == dstLen && sameFloatBits(k.kern, kern) && sameFloatBits(k.q, q) {
+			copy(p.convs[1:i+1], p.convs[:i])
+			p.convs[0] = k
+			return k
+		}
+	}
+	return nil
+}
+
+// keepConv keeps a convolution, the newest first, dropping the oldest
+// beyond convKept entries or convKeptBytes.
+func (p *pdMemo) keepConv(k *keptConv) {
+	if p == nil || k.bytes() > convKeptBytes/2 {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	p.convs = append(p.convs, nil)
+	copy(p.convs[1:], p.convs)
+	p.convs[0] = k
+	total := 0
+	for i, c := range p.convs {
+		total += c.bytes()
+		if i >= convKept || total > convKeptBytes {
+			clear(p.convs[i:])
+			p.convs = p.convs[:i]
+			break
+		}
+	}
+}
+
+// sameFloatBits says whether two vectors hold the same values bit for
+// bit.
+func sameFloatBits(a, b []float64) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i, v := range a {
+		if math.Float64bits(v) != math.Float64bits(b[i]) {
+			return false
+		}
+	}
+	return true
+}
+
+// levelsKept and levelsKeptCells bound the kept range–Doppler clutter
+// levels, in maps and in cells of all of them together (17 bytes a
+// cell): a map of more cells is analysed without keeping its levels.
+const (
+	levelsKept      = 8
+	levelsKeptCells = 1 << 20
+)
+
+// keptLevels is the clutter analysis of one range–Doppler map
+// (analyseClutter): the scene power of every cell and the detector's
+// level where it was computed. A level at cell (k, d) is a function of
+// the detector's settings, the bins' noise, which range cells are
+// processed and the scene power of the columns k−hr … k+hr (hr: the
+// detector's guard and training half-width), so a later analysis with
+// the same settings, noise and processed cells reuses it where none of
+// those columns changed.
+type keptLevels struct {
+	cf2       *dsp.CFAR2D
+	n, nb     int
+	noise     []float64
+	processed []bool
+	pow       []float64 // pow[k·nb+d]
+	level     []float64
+	has       []bool // level computed
+}
+
+// levelsFor returns the kept analysis of a map with these settings whose
+// scene power pow (pow[k·nb+d]) differs from it in the fewest columns, or
+// nil. (One evaluation analyses several maps of the same settings: the
+// scenario's and each CPI's of a schedule.)
+func (p *pdMemo) levelsFor(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processed []bool, pow []float64) *keptLevels {
+	if p == nil {
+		return nil
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	var best *keptLevels
+	fewest := n + 1
+	for _, l := range p.levels {
+		if l.n != n || l.nb != nb || !sameCFAR2D(l.cf2, cf2) || !sameFloatBits(l.noise, noise) || !slices.Equal(l.processed, processed) {
+			continue
+		}
+		c := 0
+		for k := 0; k < n && c < fewest; k++ {
+			if !sameFloatBits(l.pow[k*nb:(k+1)*nb], pow[k*nb:(k+1)*nb]) {
+				c++
+			}
+		}
+		if c < fewest {
+			best, fewest = l, c
+			if c == 0 {
+				break // the same map
+			}
+		}
+	}
+	return best
+}
+
+// keepLevels keeps the analysis l, the newest first, dropping the
+// oldest beyond levelsKept maps or levelsKeptCells cells: the maps of the
+// last evaluation or two (a wheel's nudge and its way back find theirs).
+func (p *pdMemo) keepLevels(l *keptLevels) {
+	if p == nil {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	p.levels = append(p.levels, nil)
+	copy(p.levels[1:], p.levels)
+	p.levels[0] = l
+	cells := 0
+	for i, o := range p.levels {
+		cells += o.n * o.nb
+		if i >= levelsKept || cells > levelsKeptCells {
+			clear(p.levels[i:])
+			p.levels = p.levels[:i]
+			break
+		}
+	}
+}
+
+// noiseKeptSamples bounds the kept receive-window noise.
+const noiseKeptSamples = 1 << 20
+
+// windowNoise returns the thermal noise of a single pulse's receive
+// window of n samples for seed: the first n draws of dsp.ComplexNormal
+// from the window's noise stream, the values windowPower adds. The noise
+// depends on the seed and the length alone, so a memo keeps the last
+// one (up to noiseKeptSamples samples); the caller does not change it.
+func (p *pdMemo) windowNoise(seed int64, n int) []complex128 {
+	if p != nil {
+		p.mu.Lock()
+		if p.noiseSeed == seed && len(p.noise) == n && p.noise != nil {
+			v := p.noise
+			p.mu.Unlock()
+			return v
+		}
+		p.mu.Unlock()
+	}
+	v := make([]complex128, n)
+	addNoise(v, seed, 0x4e01)
+	if p != nil && n <= noiseKeptSamples {
+		p.mu.Lock()
+		p.noise, p.noiseSeed = v, seed
+		p.mu.Unlock()
+	}
+	return v
+}
+
+// keptProfile is the threshold series of one range–Doppler map
+// (train.series): the noise-free map (lin[d][k], float32 as the series
+// hold it) and, per range cell k, the detector's level at the cell's
+// strongest bin bin[k]. Like keptLevels, a later series with the same
+// detector settings, bins' noise and processed cells reuses the level of
+// cell k where its bin is the same and none of the columns k−hr … k+hr
+// changed bit for bit.
+type keptProfile struct {
+	cf2       *dsp.CFAR2D
+	n, nb     int
+	noise     []float64
+	processed []bool
+	lin       []float32 // lin[k·nb+d]
+	bin       []int     // −1: no level
+	level     []float64
+}
+
+// profileFor returns the kept series of a map with these settings whose
+// noise-free map (lin[k·nb+d]) differs from it in the fewest columns, or
+// nil.
+func (p *pdMemo) profileFor(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processed []bool, lin []float32) *keptProfile {
+	if p == nil {
+		return nil
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	var best *keptProfile
+	fewest := n + 1
+	for _, l := range p.profiles {
+		if l.n != n || l.nb != nb || !sameCFAR2D(l.cf2, cf2) || !sameFloatBits(l.noise, noise) || !slices.Equal(l.processed, processed) {
+			continue
+		}
+		c := 0
+		for k := 0; k < n && c < fewest; k++ {
+			if !sameFloat32Bits(l.lin[k*nb:(k+1)*nb], lin[k*nb:(k+1)*nb]) {
+				c++
+			}
+		}
+		if c < fewest {
+			best, fewest = l, c
+			if c == 0 {
+				break
+			}
+		}
+	}
+	return best
+}
+
+// keepProfile keeps a series' levels, the newest first, within the
+// bounds of the kept clutter levels (levelsKept maps, levelsKeptCells
+// cells).
+func (p *pdMemo) keepProfile(l *keptProfile) {
+	if p == nil {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	p.profiles = append(p.profiles, nil)
+	copy(p.profiles[1:], p.profiles)
+	p.profiles[0] = l
+	cells := 0
+	for i, o := range p.profiles {
+		cells += o.n * o.nb
+		if i >= levelsKept || cells > levelsKeptCells {
+			clear(p.profiles[i:])
+			p.profiles = p.profiles[:i]
+			break
+		}
+	}
+}
+
+// sameFloat32Bits says whether two vectors hold the same values bit for
+// bit.
+func sameFloat32Bits(a, b []float32) bool {
+	if len(a) != len(b) {
+		return false
+	}
+	for i, v := range a {
+		if math.Float32bits(v) != math.Float32bits(b[i]) {
+			return false
+		}
+	}
+	return true
+}
