@@ -143,8 +143,10 @@ function sameExtents(chart, data, miss, check) {
 // fast layer stands in at rest (Plots.behind) takes its data first.
 const SyncCalls = ['getOption', 'getDataURL', 'dispatchAction', 'resize'];
 // Pointer events on a chart that ECharts answers from its data (the
-// tooltip, the zoom and pan): they bring the chart up to date first.
-const SyncEvents = ['pointerdown', 'pointermove', 'mousedown', 'mousemove', 'wheel'];
+// tooltip, a pan): they bring the chart up to date first. Not the wheel:
+// over a marker it nudges, and the edit must not wait for a re-layout;
+// a zoom brings the chart up to date on its datazoom event.
+const SyncEvents = ['pointerdown', 'pointermove', 'mousedown', 'mousemove'];
 
 // carryCharts joins the charts of a skipped frame to the next one's:
 // chart name → the list of options to apply in turn (see Plots.apply).
