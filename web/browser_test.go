@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"strconv"
 	"strings"
 	"sync"
 	"testing"
@@ -385,12 +386,21 @@ func TestEditLatency(t *testing.T) {
 		s.radar.sample_rate_hz = 20e6; s.radar.pri_s = 4e-3; s.radar.window_start_m = 3500;
 		s.radar.window_stop_m = 3500 + 65535 * 299792458 / 2 / 20e6; return s; })`})
 	const edits = 20
+	// PW_EDIT_GAP_MS paces the nudges (ms from one nudge to the next, at
+	// least; the repaint is waited for as always) to compare two builds
+	// at the same cadence; unset, each nudge follows its repaint at once.
+	gap, _ := strconv.Atoi(os.Getenv("PW_EDIT_GAP_MS"))
 	for _, sc := range scenes {
 		eval[bool](t, ctx, `(async () => { const s = await `+sc.load+`; window.__pw.store.load(s); return true; })()`)
 		waitFor(t, ctx, sc.name+" loaded", fresh+` && window.__pw.frame().report.scenario === window.__pw.store.scenario.name`)
 		eval[bool](t, ctx, `(window.__pwLatencies.length = 0, window.__pwLongTasks.length = 0, window.__pwLoAF.length = 0, [window.__pwChartMs, window.__pwWork].forEach((o) => Object.keys(o).forEach((k) => delete o[k])), true)`)
 		load0, cpu0 := loadAvg(), cpuNow(t, ctx)
+		var nudged time.Time
 		for i := range edits {
+			if wait := time.Duration(gap)*time.Millisecond - time.Since(nudged); gap > 0 && wait > 0 {
+				time.Sleep(wait)
+			}
+			nudged = time.Now()
 			// One nudge of the first target's level, as the wheel does; wait
 			// for its repaint (every plot and panel) before the next, so
 			// that none is skipped.
