@@ -286,6 +286,7 @@ export class Plots {
       else this.deferred.add(name);
       return;
     }
+    if (entry.replace) this.pending[name] = []; // superseded, a resting chart's data merge too
     this.flush(name);
     this.setOption(name, entry);
   }
