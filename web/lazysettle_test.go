@@ -68,4 +68,9 @@ func TestSettleWaitsUntilRead(t *testing.T) {
 	if m := eval[string](t, ctx, `JSON.stringify(window.__pwAxisMiss)`); m != "[]" {
 		t.Errorf("predicted axis extents that ECharts did not give: %s", m)
 	}
+	// The page's performance marks of the frames shown are cleared (a
+	// long drag left tens of thousands).
+	if n := eval[int](t, ctx, `performance.getEntriesByType('mark').length + performance.getEntriesByType('measure').length`); n > 3 {
+		t.Errorf("%d performance marks and measures left after the frames were shown, want at most those of one frame in flight", n)
+	}
 }

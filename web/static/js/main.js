@@ -236,8 +236,14 @@ function applyFrame() {
     const t4 = performance.now();
     paintedId = f.id;
     settle();
+    let m = { duration: t3 - sentAt };
+    if (sentAt !== undefined) {
+      try {
+        m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
+      } catch { /* its marks were cleared */ }
+    }
+    clearMarksTo(f.id);
     if (sentAt === undefined) return;
-    const m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
     const editAt = session.editedAt.get(f.id);
     // ms: send → the profile's new pixels; edit_ms: the edit (the store's
     // change) → the same pixels; wait_ms: send → the frame's arrival
@@ -261,6 +267,18 @@ function applyFrame() {
     latencies.push(entry);
     if (latencies.length > 1000) latencies.shift();
   });
+}
+
+// The performance marks and measures of the frames up to id (those of
+// frames skipped too): a long drag left tens of thousands in the page's
+// timeline.
+let marksClearedTo = 0;
+function clearMarksTo(id) {
+  for (let k = marksClearedTo + 1; k <= id; k++) {
+    for (const name of ['send', 'apply', 'paint']) performance.clearMarks(`pw-${name}-${k}`);
+    performance.clearMeasures(`pw-edit-${k}`);
+  }
+  marksClearedTo = Math.max(marksClearedTo, id);
 }
 
 // The address bar follows the shown scene's link once the edits rest:
