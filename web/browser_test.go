@@ -10,6 +10,7 @@ import (
 	"os"
 	"path/filepath"
 	"slices"
+	"strconv"
 	"strings"
 	"sync"
 	"testing"
@@ -385,12 +386,21 @@ func TestEditLatency(t *testing.T) {
 		s.radar.sample_rate_hz = 20e6; s.radar.pri_s = 4e-3; s.radar.window_start_m = 3500;
 		s.radar.window_stop_m = 3500 + 65535 * 299792458 / 2 / 20e6; return s; })`})
 	const edits = 20
+	// PW_EDIT_GAP_MS paces the nudges (ms from one nudge to the next, at
+	// least; the repaint is waited for as always) to compare two builds
+	// at the same cadence; unset, each nudge follows its repaint at once.
+	gap, _ := strconv.Atoi(os.Getenv("PW_EDIT_GAP_MS"))
 	for _, sc := range scenes {
 		eval[bool](t, ctx, `(async () => { const s = await `+sc.load+`; window.__pw.store.load(s); return true; })()`)
 		waitFor(t, ctx, sc.name+" loaded", fresh+` && window.__pw.frame().report.scenario === window.__pw.store.scenario.name`)
-		eval[bool](t, ctx, `(window.__pwLatencies.length = 0, window.__pwLongTasks.length = 0, Object.keys(window.__pwChartMs).forEach((k) => delete window.__pwChartMs[k]), true)`)
+		eval[bool](t, ctx, `(window.__pwLatencies.length = 0, window.__pwLongTasks.length = 0, window.__pwLoAF.length = 0, [window.__pwChartMs, window.__pwWork].forEach((o) => Object.keys(o).forEach((k) => delete o[k])), true)`)
 		load0, cpu0 := loadAvg(), cpuNow(t, ctx)
+		var nudged time.Time
 		for i := range edits {
+			if wait := time.Duration(gap)*time.Millisecond - time.Since(nudged); gap > 0 && wait > 0 {
+				time.Sleep(wait)
+			}
+			nudged = time.Now()
 			// One nudge of the first target's level, as the wheel does; wait
 			// for its repaint (every plot and panel) before the next, so
 			// that none is skipped.
@@ -420,6 +430,7 @@ func TestEditLatency(t *testing.T) {
 			parts = append(parts, fmt.Sprintf("%s %.0f", name, median(perChart[name])))
 		}
 		t.Logf("%-16s setOption per chart: %s (medians); %d of %d pictures had a plot other than the profile held back ≤ 100 ms", "", strings.Join(parts, ", "), st.held, len(lat))
+		logPageWork(t, ctx, sc.name, lat)
 		shot(t, ctx, sc.name)
 	}
 }
@@ -428,6 +439,10 @@ func TestEditLatency(t *testing.T) {
 type latency struct {
 	MS        float64  `json:"ms"`
 	EditMS    float64  `json:"edit_ms"`
+	FrameMS   float64  `json:"frame_ms"`
+	PaintMS   float64  `json:"paint_ms"`
+	EditAt    float64  `json:"edit_at"`
+	PixelsAt  float64  `json:"pixels_at"`
 	ComputeMS float64  `json:"compute_ms"`
 	WaitMS    float64  `json:"wait_ms"`
 	ParseMS   float64  `json:"parse_ms"`
@@ -471,4 +486,82 @@ func maxOr0(v []float64) float64 {
 		return 0
 	}
 	return slices.Max(v)
+}
+
+// pageWork is what the page logs beside its latencies: its work off an
+// edit's path to the pixels (main.js and charts.js, worked: name →
+// [[start, ms], …]) and its long animation frames.
+type pageWork struct {
+	Work map[string][][2]float64 `json:"work"`
+	LoAF []struct {
+		Start    float64 `json:"start"`
+		MS       float64 `json:"ms"`
+		RenderMS float64 `json:"render_ms"`
+		Scripts  []struct {
+			Name     string  `json:"name"`
+			MS       float64 `json:"ms"`
+			LayoutMS float64 `json:"layout_ms"`
+		} `json:"scripts"`
+	} `json:"loaf"`
+}
+
+// logPageWork logs the animation frame's share of a run's latencies
+// (the wait for it, and its own length), the page's work off the edits'
+// paths (median and largest per kind), the long animation frames by
+// script, and for the slowest tenth of the edits what else ran between
+// the edit and its pixels.
+func logPageWork(t *testing.T, ctx context.Context, name string, lat []latency) {
+	t.Helper()
+	w := eval[pageWork](t, ctx, `({work: window.__pwWork, loaf: window.__pwLoAF})`)
+	var frame, paint []float64
+	for _, l := range lat {
+		frame, paint = append(frame, l.FrameMS), append(paint, l.PaintMS)
+	}
+	var parts []string
+	for _, k := range slices.Sorted(maps.Keys(w.Work)) {
+		var ms []float64
+		for _, e := range w.Work[k] {
+			ms = append(ms, e[1])
+		}
+		parts = append(parts, fmt.Sprintf("%s %d× median %.1f ms, max %.0f", k, len(ms), median(ms), maxOr0(ms)))
+	}
+	t.Logf("%-16s the painting animation frame: wait %.1f ms, length %.1f (medians) | work off the path: %s", "", median(frame), median(paint), strings.Join(parts, "; "))
+	scripts := map[string]float64{}
+	var render float64
+	for _, f := range w.LoAF {
+		render += f.RenderMS
+		for _, s := range f.Scripts {
+			scripts[s.Name] += s.MS
+		}
+	}
+	names := slices.SortedFunc(maps.Keys(scripts), func(a, b string) int { return int(scripts[b] - scripts[a]) })
+	parts = parts[:0]
+	for _, k := range names[:min(6, len(names))] {
+		parts = append(parts, fmt.Sprintf("%s %.0f", k, scripts[k]/float64(len(lat))))
+	}
+	t.Logf("%-16s long animation frames: %d, style/layout/paint %.0f ms per edit; scripts, ms per edit: %s", "", len(w.LoAF), render/float64(len(lat)), strings.Join(parts, ", "))
+	// The slowest tenth: what overlapped the edit's window.
+	slow := slices.Clone(lat)
+	slices.SortFunc(slow, func(a, b latency) int { return int(b.EditMS - a.EditMS) })
+	for _, l := range slow[:max(1, len(slow)/10)] {
+		var over []string
+		for _, k := range slices.Sorted(maps.Keys(w.Work)) {
+			for _, e := range w.Work[k] {
+				if e[0] < l.PixelsAt && e[0]+e[1] > l.EditAt {
+					over = append(over, fmt.Sprintf("%s %.0f ms at %+.0f", k, e[1], e[0]-l.EditAt))
+				}
+			}
+		}
+		for _, f := range w.LoAF {
+			if f.Start < l.PixelsAt && f.Start+f.MS > l.EditAt {
+				var ss []string
+				for _, s := range f.Scripts {
+					ss = append(ss, fmt.Sprintf("%s %.0f", s.Name, s.MS))
+				}
+				over = append(over, fmt.Sprintf("long frame %.0f ms at %+.0f (render %.0f; %s)", f.MS, f.Start-l.EditAt, f.RenderMS, strings.Join(ss, ", ")))
+			}
+		}
+		t.Logf("%-16s slow edit: %.0f ms = compute %.1f, send→arrival %.1f, arrival→pixels %.1f (frame wait %.1f, frame %.1f) | overlapping: %s",
+			"", l.EditMS, l.ComputeMS, l.WaitMS, l.PageMS, l.FrameMS, l.PaintMS, strings.Join(over, "; "))
+	}
 }

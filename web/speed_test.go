@@ -37,7 +37,7 @@ func TestDragRate(t *testing.T) {
 		p := markerPx(t, ctx, id)
 		ox, oy := chartOrigin(t, ctx, "#chart-profile")
 		x, y := ox+p[0], oy+p[1]
-		eval[bool](t, ctx, `(window.__pwLatencies.length = 0, window.__pwLongTasks.length = 0, true)`)
+		eval[bool](t, ctx, `(window.__pwLatencies.length = 0, window.__pwLongTasks.length = 0, window.__pwLoAF.length = 0, Object.keys(window.__pwWork).forEach((k) => delete window.__pwWork[k]), true)`)
 		load0, cpu0 := loadAvg(), cpuNow(t, ctx)
 		mouse(t, ctx, chromedp.MouseMoved, x, y)
 		mouse(t, ctx, chromedp.MousePressed, x, y, chromedp.ButtonLeft, chromedp.ClickCount(1))
@@ -75,6 +75,7 @@ func TestDragRate(t *testing.T) {
 			d, id, moves, len(lat), secs, float64(len(lat))/secs, median(st.edit), quantile(st.edit, 0.95), median(st.ms), quantile(st.ms, 0.95), load0, load1)
 		t.Logf("%-22s stages (medians): server compute %.1f ms | send→arrival %.1f | parse %.1f | profile setOption %.1f | marks %.1f | after the paint %.1f | long tasks %d, max %.0f ms | %d held back | %s",
 			"", median(st.compute), median(st.wait), median(st.parse), median(st.charts), median(st.panel), median(st.rest), len(long), maxOr0(long), st.held, cpu1.perPicture(cpu0, len(lat)))
+		logPageWork(t, ctx, d, lat)
 		shot(t, ctx, d)
 		waitFor(t, ctx, "the drag's last frame", fresh)
 	}

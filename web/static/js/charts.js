@@ -5,7 +5,7 @@
 
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
-import { FastLayer, HeatLayer, layerSeries, tooltipAbove } from './fastlayer.js';
+import { FastLayer, Fixed, HeatLayer, layerSeries, tooltipAbove } from './fastlayer.js';
 import { axisPatch, axisUnits, format, niceTicks, restate, signed } from './units.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
@@ -21,6 +21,15 @@ const chartMs = {};
 window.__pwChartMs = chartMs;
 const fastMs = {}; // time per fast-layer drawing, ms, by chart
 window.__pwFastMs = fastMs;
+// The page's work outside an edit's path to its pixels, for the browser
+// tests: name → [[start, ms], …] (performance.now), the last 200 of each.
+const work = {};
+window.__pwWork = work;
+export function worked(name, t0) {
+  const w = (work[name] = work[name] || []);
+  w.push([t0, performance.now() - t0]);
+  if (w.length > 200) w.shift();
+}
 
 // Tooltips are drawn in the canvas (renderMode 'richText': an HTML
 // tooltip would need inline styles, which the CSP refuses). Text from the
@@ -52,6 +61,92 @@ function spaceAxisLabels(option, width) {
     ax.axisLabel = { ...(ax.axisLabel || {}), hideOverlap: true };
   }
 }
+
+// The value axes' extents ECharts 5 gives the data (its interval scale:
+// the span over splitNumber rounded to 1, 2, 3, 5 or 10 times a power of
+// ten, and each free end floored or ceiled to it; a fixed end, a number
+// or dataMin / dataMax, stays; without scale the extent holds 0), or
+// null when the axis is of another kind. lo, hi: the data's extent.
+function axisExtent(opt, lo, hi) {
+  if (!opt || opt.type !== 'value' || !(lo <= hi)) return null;
+  const fixMin = typeof opt.min === 'number' || opt.min === 'dataMin';
+  const fixMax = typeof opt.max === 'number' || opt.max === 'dataMax';
+  if ((opt.min !== undefined && opt.min !== null && !fixMin) || (opt.max !== undefined && opt.max !== null && !fixMax)) return null;
+  let a = typeof opt.min === 'number' ? opt.min : lo;
+  let b = typeof opt.max === 'number' ? opt.max : hi;
+  if (!opt.scale) {
+    if (a > 0 && b > 0 && !fixMin) a = 0;
+    if (a < 0 && b < 0 && !fixMax) b = 0;
+  }
+  if (!(b > a)) return null;
+  const step = echarts.number.nice((b - a) / (opt.splitNumber || 5), true);
+  const round = (v) => +v.toFixed(10);
+  if (!fixMin) a = round(Math.floor(a / step) * step);
+  if (!fixMax) b = round(Math.ceil(b / step) * step);
+  return [a, b];
+}
+
+const sameExtent = (p, q) => !!p && !!q && p.every((v, i) => Math.abs(v - q[i]) <= 1e-9 * Math.max(1, Math.abs(v)));
+
+// The x and y extents of a fast layer's data (series id → data).
+function dataExtents(data) {
+  const e = [[Infinity, -Infinity], [Infinity, -Infinity]];
+  for (const d of data.values()) {
+    for (const p of d) {
+      const v = Array.isArray(p) ? p : p && Array.isArray(p.value) ? p.value : null;
+      if (!v) continue;
+      for (let k = 0; k < 2; k++) {
+        const x = v[k];
+        if (typeof x !== 'number' || !Number.isFinite(x)) continue;
+        if (x < e[k][0]) e[k][0] = x;
+        if (x > e[k][1]) e[k][1] = x;
+      }
+    }
+  }
+  return e;
+}
+
+// The level-0 series (areas the fast layer does not draw) of an option's
+// series list: "id.data" and "id.markArea" → their data as text.
+function fixedParts(series) {
+  const out = new Map();
+  for (const s of series) {
+    if (!s || !Fixed.has(s.id)) continue;
+    if ('data' in s) out.set(`${s.id}.data`, JSON.stringify(s.data));
+    if (s.markArea) out.set(`${s.id}.markArea`, JSON.stringify(s.markArea.data));
+  }
+  return out;
+}
+
+// Whether chart's axes, as they stand, are those ECharts would give the
+// data (series id → data). check: the chart has just taken that data;
+// a prediction that differs from its axes is logged in miss.
+function sameExtents(chart, data, miss, check) {
+  const model = chart.getModel();
+  const e = dataExtents(data);
+  for (const [k, dim] of [[0, 'xAxis'], [1, 'yAxis']]) {
+    const ax = model && model.getComponent(dim, 0);
+    if (!ax || !ax.axis || model.getComponent(dim, 1)) return false;
+    const want = axisExtent(ax.option, e[k][0], e[k][1]);
+    const now = ax.axis.scale.getExtent();
+    if (sameExtent(want, now)) continue;
+    if (check && want) {
+      miss.push({ chart: chart.getDom().id, axis: dim, want, got: now, data: e[k] });
+      if (miss.length > 50) miss.shift();
+    }
+    return false;
+  }
+  return true;
+}
+
+// Chart calls that read or redraw the chart's own data: a chart whose
+// fast layer stands in at rest (Plots.behind) takes its data first.
+const SyncCalls = ['getOption', 'getDataURL', 'dispatchAction', 'resize'];
+// Pointer events on a chart that ECharts answers from its data (the
+// tooltip, a pan): they bring the chart up to date first. Not the wheel:
+// over a marker it nudges, and the edit must not wait for a re-layout;
+// a zoom brings the chart up to date on its datazoom event.
+const SyncEvents = ['pointerdown', 'pointermove', 'mousedown', 'mousemove'];
 
 // carryCharts joins the charts of a skipped frame to the next one's:
 // chart name → the list of options to apply in turn (see Plots.apply).
@@ -91,6 +186,25 @@ export class Plots {
       tooltipAbove(this.charts[name]);
     }
     this.fast = this.fasts.profile;
+    // Line charts whose fast layer stands in for them at rest: the frames
+    // rested, and the chart would draw the same axes (and the same level-0
+    // areas) as the layer's, so setOption (a whole re-layout, 10–40 ms
+    // quiet) waits until something reads or redraws the chart's data.
+    this.behind = new Set();
+    this.fixed = {}; // chart name → its level-0 series' data as the chart holds them (fixedParts)
+    this.axisMiss = []; // predicted extents ECharts did not give (none expected), for the tests
+    window.__pwAxisMiss = this.axisMiss;
+    for (const name of ['profile', 'echo']) {
+      const chart = this.charts[name];
+      for (const m of SyncCalls) {
+        const f = chart[m].bind(chart);
+        chart[m] = (...a) => {
+          this.sync(name);
+          return f(...a);
+        };
+      }
+      for (const ev of SyncEvents) els[name].addEventListener(ev, () => this.syncAll(), { capture: true, passive: true });
+    }
     this.settleTimer = 0;
     this.drag = null;
     this.lastView = null;
@@ -109,6 +223,8 @@ export class Plots {
 
     this.charts.profile.on('datazoom', () => this.viewChanged());
     for (const c of Object.values(this.charts)) c.on('datazoom', () => niceTicks(c));
+    this.charts.profile.on('datazoom', () => this.syncAll());
+    this.charts.echo.on('datazoom', () => this.syncAll());
     const ro = new ResizeObserver(() => {
       for (const c of Object.values(this.charts)) c.resize();
       this.viewChanged();
@@ -144,6 +260,7 @@ export class Plots {
     const fast = this.fasts[name];
     if (fast && !entry.replace && fast.ready()) {
       const t0 = performance.now();
+      this.behind.delete(name);
       this.hold(name, entry);
       if (fast.draw(entry.option)) {
         if (name === 'profile') this.cacheMarkers(entry.option);
@@ -169,6 +286,7 @@ export class Plots {
       else this.deferred.add(name);
       return;
     }
+    if (entry.replace) this.pending[name] = []; // superseded, a resting chart's data merge too
     this.flush(name);
     this.setOption(name, entry);
   }
@@ -180,21 +298,70 @@ export class Plots {
     this.settleTimer = setTimeout(() => this.settle(), SettleMs);
   }
 
+  // One chart a task, the profile first: each setOption re-lays out a
+  // whole chart (10–40 ms on a quiet machine, 100–300 ms on a busy one),
+  // and a frame that comes meanwhile is drawn between two of them (on the
+  // fast layers; it puts the rest off by SettleMs again) instead of
+  // waiting for all.
   settle() {
     clearTimeout(this.settleTimer);
     this.settleTimer = 0;
     if (this.drag) return; // the drag's end settles
-    for (const [name, fast] of Object.entries(this.fasts)) {
-      if (!fast.active) continue;
-      this.flush(name);
-      fast.end();
+    const waiting = () => Object.keys(this.fasts).find((n) => this.fasts[n].active && !this.behind.has(n));
+    const name = waiting();
+    if (name) {
+      const t0 = performance.now();
+      if (this.canWait(name)) {
+        this.behind.add(name);
+        worked(`settle ${name} put off`, t0);
+      } else {
+        this.flush(name);
+        this.fasts[name].end();
+        worked(`settle ${name}`, t0);
+      }
+    }
+    if (waiting()) {
+      this.settleTimer = setTimeout(() => this.settle(), 0);
+      return;
     }
     this.onSettle();
   }
 
-  // Whether a chart is behind its fast layer.
+  // Whether chart name may stay behind its fast layer at rest: it is the
+  // profile or the echo, not zoomed, holds one data merge that the layer
+  // drew whole, its level-0 series are as the chart holds them, and its
+  // axes would come out as they stand.
+  canWait(name) {
+    if (name !== 'profile' && name !== 'echo') return false;
+    if (this.visibleRange() !== null) return false; // zoomed: panning redraws from the chart's data
+    const q = this.pending[name] || [];
+    if (q.length !== 1 || q[0].replace) return false;
+    const fast = this.fasts[name];
+    const series = [q[0].option.series || []].flat();
+    if (series.some((s) => !s || (!Fixed.has(s.id) && !fast.styles.has(s.id)))) return false;
+    const held = this.fixed[name] || new Map();
+    for (const [k, v] of fixedParts(series)) if (held.get(k) !== v) return false;
+    return sameExtents(this.charts[name], fast.data, this.axisMiss, false);
+  }
+
+  // Give a chart that waits behind its fast layer its data now.
+  sync(name) {
+    if (!this.behind.has(name)) return;
+    const t0 = performance.now();
+    this.behind.delete(name);
+    this.flush(name);
+    this.fasts[name].end();
+    worked(`sync ${name}`, t0);
+  }
+
+  syncAll() {
+    for (const name of [...this.behind]) this.sync(name);
+  }
+
+  // Whether a chart is behind its fast layer with work still to do (one
+  // that waits until it is read, Plots.behind, is settled).
   unsettled() {
-    return Object.values(this.fasts).some((f) => f.active) || !!this.settleTimer;
+    return Object.entries(this.fasts).some(([n, f]) => f.active && !this.behind.has(n)) || !!this.settleTimer;
   }
 
   // Draw the plots held back until after the profile's paint; true when
@@ -225,6 +392,7 @@ export class Plots {
     clearTimeout(this.timers[name]);
     this.timers[name] = 0;
     if (this.hidden(name)) return;
+    this.behind.delete(name);
     const q = this.pending[name] || [];
     this.pending[name] = [];
     for (const entry of q) this.setOption(name, entry);
@@ -243,6 +411,13 @@ export class Plots {
       layerSeries(entry.option);
     }
     chart.setOption(entry.option, { notMerge: !!entry.replace });
+    if (name === 'profile' || name === 'echo') {
+      const series = [entry.option.series || []].flat();
+      if (entry.replace || !this.fixed[name]) this.fixed[name] = new Map();
+      for (const [k, v] of fixedParts(series)) this.fixed[name].set(k, v);
+      // Check the extents canWait predicts against ECharts' own.
+      if (this.fasts[name].ready() && this.visibleRange() === null) sameExtents(chart, this.fasts[name].data, this.axisMiss, true);
+    }
     niceTicks(chart); // round ticks in the user's units; a no-op while they hold
     // Paint now, inside this animation frame, instead of waiting for the
     // renderer's own loop to notice on the next one.

@@ -22,7 +22,7 @@
 export const FastZ = 1;
 
 // Series that stay on level 0.
-const Fixed = new Set(['blind', 'breakthrough']);
+export const Fixed = new Set(['blind', 'breakthrough']);
 
 const Font = '11px sans-serif';
 const BoldFont = 'bold 11px sans-serif';
@@ -171,20 +171,35 @@ export class FastLayer {
     this.under(g, map);
     const legend = this.chart.getModel().getComponent('legend', 0);
     const shown = (st) => !legend || !legend.isSelected || !st.name || legend.isSelected(st.name);
+    // As ECharts stacks them: the lines, their labels, then the markers
+    // (a series of a higher z) over those labels, and their names.
     const labels = [];
-    g.save();
-    g.beginPath();
-    g.rect(map.rect.x, map.rect.y, map.rect.w, map.rect.h);
-    g.clip();
-    for (const [id, st] of this.styles) {
-      const data = this.data.get(id);
-      if (!data || !shown(st)) continue;
-      if (st.type === 'line') this.line(g, map, st, data, labels);
-      else if (st.type === 'scatter') this.markers(g, map, st, data, labels);
-    }
-    g.restore();
+    const clipped = (fn) => {
+      g.save();
+      g.beginPath();
+      g.rect(map.rect.x, map.rect.y, map.rect.w, map.rect.h);
+      g.clip();
+      fn();
+      g.restore();
+    };
+    const scatters = [];
+    clipped(() => {
+      for (const [id, st] of this.styles) {
+        const data = this.data.get(id);
+        if (!data || !shown(st)) continue;
+        if (st.type === 'line') this.line(g, map, st, data, labels);
+        else if (st.type === 'scatter') scatters.push([st, data]);
+      }
+    });
+    const lineLabels = labels.length;
+    for (const [st, data] of scatters) this.markers(null, map, st, data, labels);
     this.labels = hideOverlaps(g, labels);
-    for (const l of this.labels) text(g, l);
+    const kept = new Set(this.labels);
+    for (const l of labels.slice(0, lineLabels)) if (kept.has(l)) text(g, l);
+    clipped(() => {
+      for (const [st, data] of scatters) this.markers(g, map, st, data, null);
+    });
+    for (const l of labels.slice(lineLabels)) if (kept.has(l)) text(g, l);
   }
 
   // What lies under the series (the heat map's cells); nothing here.
@@ -225,11 +240,15 @@ export class FastLayer {
     }
   }
 
+  // Draw a scatter series' symbols on g, or (g null) add their names to
+  // labels.
   markers(g, map, st, data, labels) {
     const r = st.size / 2;
     // ECharts draws a scatter series' symbols at opacity 0.8 unless told.
-    g.save();
-    g.globalAlpha = st.opacity80;
+    if (g) {
+      g.save();
+      g.globalAlpha = st.opacity80;
+    }
     for (const d of data) {
       const v = Array.isArray(d) ? d : d && d.value;
       if (!v || !Number.isFinite(v[0]) || !Number.isFinite(v[1])) continue;
@@ -237,7 +256,10 @@ export class FastLayer {
       const py = map.y(v[1]);
       const is = (d && d.itemStyle) || {};
       const border = is.borderColor ? { colour: is.borderColor, width: is.borderWidth ?? 1 } : st.border;
-      symbol(g, d.symbol || st.symbol || 'circle', px, py, r, is.color || st.colour, border);
+      if (g) {
+        symbol(g, d.symbol || st.symbol || 'circle', px, py, r, is.color || st.colour, border);
+        continue;
+      }
       if (st.label && d.name) {
         const colour = st.label.color || '#25292e';
         const hide = st.hideOverlap;
@@ -250,7 +272,7 @@ export class FastLayer {
         } else labels.push({ x: px, y: py + b.top - 5, text: String(d.name), colour, font: Font, align: 'center', base: 'bottom', hide });
       }
     }
-    g.restore();
+    if (g) g.restore();
   }
 }
 

@@ -4,7 +4,7 @@
 import { $, $$, download, h } from './dom.js';
 import { Editor } from './editor.js';
 import { renderFigures } from './figures.js';
-import { Plots, carryCharts } from './charts.js';
+import { Plots, carryCharts, worked } from './charts.js';
 import { Session } from './session.js';
 import { HTTPError, api, decodeLink, linkPart, refusal } from './share.js';
 import { Store } from './store.js';
@@ -105,10 +105,12 @@ function renderForms() {
   formsAt = performance.now();
   editor.render(store.scenario);
   story.render(store.scenario, lastFrame && lastFrame.report);
+  worked('forms', formsAt);
 }
 
 store.onChange((s, cause) => {
   session.noteEdit();
+  addressLater();
   if (cause === 'load' || cause === 'link') { // a new scene: its own cuts
     if (session.cell) session.sendCell(null);
     plots.clearCell();
@@ -148,7 +150,7 @@ let paintedId = null; // the newest frame whose after-paint work ran
 // A frame is settled once its after-paint work ran and the profile chart
 // itself (not only the fast layer) shows it.
 function settle() {
-  if (lastFrame && paintedId === lastFrame.id && !plots.unsettled() && !addressTimer) settledId = lastFrame.id;
+  if (lastFrame && paintedId === lastFrame.id && !plots.unsettled()) settledId = lastFrame.id;
 }
 
 // The editor's status marks and the figures panel follow the frames, but
@@ -176,6 +178,7 @@ function drawPanels() {
   panelsAt = performance.now();
   editor.setReport(f.report);
   renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms);
+  worked('panels', panelsAt);
 }
 
 // afterPaint runs fn once the next animation frame's pixels are out: a
@@ -189,7 +192,8 @@ paintChannel.port1.onmessage = () => {
 };
 function afterPaint(fn) {
   requestAnimationFrame(() => {
-    afterPaintQueue.push(fn);
+    const frameAt = performance.now(); // this animation frame's callbacks run now
+    afterPaintQueue.push(() => fn(frameAt));
     paintChannel.port2.postMessage(0);
   });
 }
@@ -221,7 +225,7 @@ function applyFrame() {
   const sentAt = session.sent.get(f.id);
   const t2 = performance.now();
   performance.mark(`pw-apply-${f.id}`);
-  afterPaint(() => {
+  afterPaint((frameAt) => {
     performance.mark(`pw-paint-${f.id}`);
     const t3 = performance.now();
     // The rest of the frame, after the profile's paint.
@@ -232,8 +236,14 @@ function applyFrame() {
     const t4 = performance.now();
     paintedId = f.id;
     settle();
+    let m = { duration: t3 - sentAt };
+    if (sentAt !== undefined) {
+      try {
+        m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
+      } catch { /* its marks were cleared */ }
+    }
+    clearMarksTo(f.id);
     if (sentAt === undefined) return;
-    const m = performance.measure(`pw-edit-${f.id}`, `pw-send-${f.id}`, `pw-paint-${f.id}`);
     const editAt = session.editedAt.get(f.id);
     // ms: send → the profile's new pixels; edit_ms: the edit (the store's
     // change) → the same pixels; wait_ms: send → the frame's arrival
@@ -241,11 +251,16 @@ function applyFrame() {
     // parse_ms: JSON.parse of the frame; page_ms: arrival → pixels, of
     // which charts_ms went to the profile's setOption and panel_ms to
     // the marks; rest_ms: the other plots, panels and story after the
-    // paint, and all_ms: send → the end of those.
+    // paint, and all_ms: send → the end of those. Of page_ms, frame_ms
+    // is the wait from the end of the apply to the animation frame that
+    // paints it and paint_ms that frame (its callbacks, style, layout and
+    // paint); edit_at and pixels_at place the edit in time, against the
+    // page's other work (__pwWork, __pwLoAF).
     const entry = {
       fast: plots.unsettled(),
       id: f.id, ms: m.duration, edit_ms: editAt !== undefined ? t3 - editAt : m.duration, compute_ms: f.compute_ms,
       wait_ms: f.arrivedAt - sentAt, parse_ms: f.parseMs, page_ms: t3 - f.arrivedAt,
+      frame_ms: frameAt - t2, paint_ms: t3 - frameAt, edit_at: editAt !== undefined ? editAt : sentAt, pixels_at: t3,
       charts_ms: t1 - t0, panel_ms: t2 - t1, rest_ms: t4 - t3, all_ms: t4 - sentAt, rest_charts: rest,
       held: plots.held(), panels_held: !!panelTimer,
     };
@@ -254,21 +269,93 @@ function applyFrame() {
   });
 }
 
-// The address bar follows the shown scene's link once frames rest for
-// AddressMs: history.replaceState with a long URL costs the main thread
-// 40–60 ms a call on a busy machine, so a drag must not pay it per frame.
-const AddressMs = 300;
+// The performance marks and measures of the frames up to id (those of
+// frames skipped too): a long drag left tens of thousands in the page's
+// timeline.
+let marksClearedTo = 0;
+function clearMarksTo(id) {
+  for (let k = marksClearedTo + 1; k <= id; k++) {
+    for (const name of ['send', 'apply', 'paint']) performance.clearMarks(`pw-${name}-${k}`);
+    performance.clearMeasures(`pw-edit-${k}`);
+  }
+  marksClearedTo = Math.max(marksClearedTo, id);
+}
+
+// The address bar follows the shown scene's link once the edits rest:
+// AddressMs after the last frame or edit, in idle time (at most
+// AddressIdleMs later). Each write of the address cost the page's main
+// thread 7–44 ms (medians, load 10–12; history.replaceState brings style
+// and layout up to date) and the browser's process 40–65 ms of CPU
+// (its CPU per edit fell from 59–89 ms to 16–25 ms without it). Paid
+// once per edit, it fell on the next edit's way; now a run of edits (a
+// drag, the wheel, the keys, one nudge after another) pays it once, when
+// it stops.
+// The page is settled without it (settled() does not wait for it): a
+// test that needs the address waits for location.hash. Leaving the page
+// (pagehide, a hidden tab) and a location changed by the user (back,
+// forward, a pasted link) write it or drop it at once.
+const AddressMs = 600;
+const AddressIdleMs = 400;
 let addressTimer = 0;
-let addressLink = null;
+let addressIdle = 0;
+let addressLink = null; // the link still to write, or null
 function addressSoon(link) {
   addressLink = link;
+  addressLater();
+}
+// Put the address off: an edit or a frame came.
+function addressLater() {
+  if (addressLink === null) return;
+  cancelAddress();
+  addressTimer = setTimeout(() => {
+    addressTimer = 0;
+    addressIdle = requestIdleCallback(addressNow, { timeout: AddressIdleMs });
+  }, AddressMs);
+}
+function cancelAddress() {
   clearTimeout(addressTimer);
-  addressTimer = setTimeout(addressNow, AddressMs);
+  addressTimer = 0;
+  if (addressIdle) cancelIdleCallback(addressIdle);
+  addressIdle = 0;
 }
 function addressNow() {
-  addressTimer = 0;
-  updateAddress(addressLink);
-  settle();
+  cancelAddress();
+  const link = addressLink;
+  addressLink = null;
+  if (link === null) return;
+  const t0 = performance.now();
+  updateAddress(link);
+  worked('address', t0);
+}
+document.addEventListener('visibilitychange', () => {
+  if (document.visibilityState === 'hidden') addressNow();
+});
+// A reload (or back and forward to this page) made while the address
+// still waits would open the link before the last edits: the browser
+// takes the entry's URL before the page hears of it. So leaving the page
+// also keeps the link in the tab's session storage, with the address it
+// was to replace, and the page opens it on its return to that address.
+const PendingKey = 'pulsewright-pending-link';
+addEventListener('pagehide', () => {
+  if (addressLink === null) return;
+  const enc = linkPart(addressLink.slice(addressLink.indexOf('#')));
+  try {
+    if (enc !== null) sessionStorage.setItem(PendingKey, JSON.stringify({ from: location.hash, enc }));
+  } catch { /* storage refused: the address below is all there is */ }
+  addressNow();
+});
+// The link kept for this address by pagehide, written into the address
+// bar, or null.
+function pendingLink() {
+  let p = null;
+  try {
+    p = JSON.parse(sessionStorage.getItem(PendingKey) || 'null');
+    sessionStorage.removeItem(PendingKey);
+  } catch { /* none */ }
+  const nav = performance.getEntriesByType('navigation')[0];
+  if (!p || typeof p.enc !== 'string' || p.from !== location.hash || !nav || (nav.type !== 'reload' && nav.type !== 'back_forward')) return null;
+  history.replaceState(null, '', `${location.pathname}${location.search}#s=${p.enc}`);
+  return p.enc;
 }
 
 function updateAddress(link) {
@@ -433,6 +520,9 @@ function restoreAddress() {
 function fromLocation() {
   const enc = linkPart(location.hash);
   if (enc === null || enc === shownLink) return;
+  // The user's location wins over a link not yet written.
+  cancelAddress();
+  addressLink = null;
   openLink(enc);
 }
 addEventListener('hashchange', fromLocation);
@@ -562,10 +652,25 @@ try {
     for (const e of list.getEntries()) window.__pwLongTasks.push(e.duration);
   }).observe({ type: 'longtask' });
 } catch { /* not supported */ }
+// Long animation frames (> 50 ms, the Long Animation Frames API), for the
+// browser tests: when, how long, how much of it went to style, layout and
+// paint, and the scripts that ran in it (each ≥ 5 ms, by entry point).
+window.__pwLoAF = [];
+try {
+  new PerformanceObserver((list) => {
+    for (const e of list.getEntries()) {
+      window.__pwLoAF.push({
+        start: e.startTime, ms: e.duration, render_ms: e.renderStart ? e.startTime + e.duration - e.renderStart : 0,
+        scripts: (e.scripts || []).map((x) => ({ name: `${x.invoker} ${x.sourceFunctionName || ''}`.trim(), ms: x.duration, layout_ms: x.forcedStyleAndLayoutDuration })),
+      });
+      if (window.__pwLoAF.length > 500) window.__pwLoAF.shift();
+    }
+  }).observe({ type: 'long-animation-frame' });
+} catch { /* not supported */ }
 
 session.connect();
 const demosReady = fillDemos();
-const startLink = linkPart(location.hash);
+const startLink = pendingLink() ?? linkPart(location.hash);
 function loadStart() {
   return demosReady.then((demos) => loadDemo((demos.find((d) => d.start) || {}).name || DefaultDemo));
 }
