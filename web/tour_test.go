@@ -1,0 +1,95 @@
+package web_test
+
+import (
+	"fmt"
+	"regexp"
+	"testing"
+	"time"
+
+	"github.com/chromedp/chromedp"
+)
+
+// jsBarCut lists the top bar's controls that do not show whole: past the
+// window's right edge, or their text wider than their box.
+const jsBarCut = `(() => {
+	const out = [];
+	const bar = document.querySelector('.bar');
+	if (bar.scrollWidth > bar.clientWidth + 1) out.push('the bar is ' + bar.scrollWidth + ' px wide in ' + bar.clientWidth);
+	for (const el of bar.querySelectorAll('button, select, .conn, .brand')) {
+		if (el.offsetParent === null) continue;
+		const r = el.getBoundingClientRect();
+		const name = (el.id || el.className || el.tagName) + ' "' + el.textContent.trim().slice(0, 30) + '"';
+		if (r.right > innerWidth + 0.5) out.push(name + ' ends at ' + Math.round(r.right) + ' px, past ' + innerWidth);
+		else if (el.tagName !== 'SELECT' && el.scrollWidth > el.clientWidth + 1) out.push(name + ' cut');
+	}
+	return out; })()`
+
+// jsFormCut lists the target form's menus whose shown option does not fit
+// its box.
+const jsFormCut = `(() => {
+	const out = [];
+	const ctx = document.createElement('canvas').getContext('2d');
+	for (const el of document.querySelectorAll('#ed-targets .detail select')) {
+		const cs = getComputedStyle(el);
+		ctx.font = cs.fontWeight + ' ' + cs.fontSize + ' ' + cs.fontFamily;
+		const text = el.options[el.selectedIndex].text;
+		// The text, the padding and the drop-down arrow (about 20 px).
+		const need = ctx.measureText(text).width + parseFloat(cs.paddingLeft) + parseFloat(cs.paddingRight) + 20;
+		if (need > el.clientWidth + 0.5) out.push('"' + text + '" (' + Math.ceil(need) + ' px in ' + el.clientWidth + ')');
+	}
+	return out; })()`
+
+// identifiers are the scenario format's names that a customer should not
+// read on the page: detector, filter, status and field identifiers.
+var identifiers = regexp.MustCompile(`\b(ca_cfar|os_cfar|go_cfar|so_cfar|cmld_cfar|least_squares|too_weak|out_of_window|below_noise|below_horizon|phase_code|rcs_dbsm|range_m|pd_required)\b`)
+
+// shouting finds units and names spoilt by an upper-case heading style:
+// "1274.1 KM", "3 CPIS", "M/S", "DBSM".
+var shouting = regexp.MustCompile(`\d\s?(KM|NMI|M/S|KT|DBSM|DBZ|MHZ|KHZ|GHZ|ΜS|MS)\b|\bCPIS\b`)
+
+// TestCustomerTour opens every demo at 1280×720 and 1600×1000 as a
+// customer meeting would, selects each target with a real click, and
+// checks what such a meeting sees: the top bar whole (the connection state
+// included), the target form's menus whole, no format identifiers in the
+// text on screen (the demos' notes included), and no unit turned to
+// capitals by a heading style.
+func TestCustomerTour(t *testing.T) {
+	ctx := mustBrowserFor(t, 300*time.Second) // seven demos at two sizes, each target clicked
+	openPage(t, ctx, mustServer(t))
+	demos := eval[[]string](t, ctx, `fetch('/api/v1/demos').then((r) => r.json()).then((d) => d.map((x) => x.name))`)
+	for _, size := range [][2]int64{{1280, 720}, {1600, 1000}} {
+		do(t, ctx, chromedp.EmulateViewport(size[0], size[1]))
+		waitFor(t, ctx, fmt.Sprintf("the layout at %d px", size[0]), fmt.Sprintf(`innerWidth === %d && document.querySelector('.foot').getBoundingClientRect().right === %d`, size[0], size[0]))
+		for _, d := range demos {
+			where := fmt.Sprintf("%dx%d %s", size[0], size[1], d)
+			loadDemo(t, ctx, d)
+			waitFor(t, ctx, d+" settled", fresh+` && document.querySelectorAll('.tcard[data-target]').length === window.__pw.frame().report.targets.length`)
+			for _, c := range eval[[]string](t, ctx, jsBarCut) {
+				t.Errorf("%s: top bar: %s", where, c)
+			}
+			// innerText is the text as drawn, after the style's upper case.
+			text := eval[string](t, ctx, `document.body.innerText`)
+			for _, id := range identifiers.FindAllString(text, -1) {
+				t.Errorf("%s: the page shows the identifier %q", where, id)
+			}
+			for _, s := range shouting.FindAllString(text, -1) {
+				t.Errorf("%s: the page shows %q in capitals", where, s)
+			}
+			n := eval[int](t, ctx, `document.querySelectorAll('#ed-targets tr[data-row]').length`)
+			for i := range n {
+				sel := fmt.Sprintf(`tr[data-row="%d"] td:first-child`, i)
+				// The table is rebuilt after a frame's paint; a click on a
+				// row replaced under it is tried again.
+				waitFor(t, ctx, fmt.Sprintf("row %d", i), fmt.Sprintf(`!!document.querySelector(%q)`, sel))
+				do(t, ctx, chromedp.Click(chromedp.CSS(sel)))
+				waitFor(t, ctx, fmt.Sprintf("row %d's form", i), fmt.Sprintf(`window.__pw.editor.selected === %d && document.querySelector('.detail-head') && document.querySelector('.detail-head').textContent.includes(window.__pw.store.scenario.targets[%d].id)`, i, i))
+				for _, c := range eval[[]string](t, ctx, jsFormCut) {
+					t.Errorf("%s: target %d's form: menu cut: %s", where, i, c)
+				}
+			}
+			if size[0] == 1280 {
+				shot(t, ctx, fmt.Sprintf("%dx%d-%s", size[0], size[1], d))
+			}
+		}
+	}
+}
