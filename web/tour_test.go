@@ -39,6 +39,21 @@ const jsFormCut = `(() => {
 	}
 	return out; })()`
 
+// jsProfileLabels lists what the profile plot lacks of its labels.
+const jsProfileLabels = `(() => {
+	const out = [];
+	const f = window.__pw.frame();
+	const o = window.__pw.plots.charts.profile.getOption();
+	const th = o.series.find((s) => s.id === 'threshold');
+	if (!th || !th.endLabel || !th.endLabel.show || th.endLabel.formatter !== 'threshold') out.push('the threshold is not named');
+	if (![o.legend].flat().some((l) => l && l.show !== false)) out.push('no legend');
+	const names = ((o.series.find((s) => s.id === 'markers') || {}).data || []).map((d) => d.name).join();
+	if (names !== f.report.targets.map((t) => t.id).join()) out.push('markers named ' + names + ', targets ' + f.report.targets.map((t) => t.id).join());
+	const blind = o.series.find((s) => s.id === 'blind');
+	const shaded = !!blind && !!blind.markArea && blind.markArea.data.length > 0;
+	if ((f.report.waveform.blind_range_m > (window.__pw.store.scenario.radar.window_start_m ?? 0)) !== shaded) out.push('blind range ' + f.report.waveform.blind_range_m + ' m, window from ' + window.__pw.store.scenario.radar.window_start_m + ' m, shaded: ' + shaded);
+	return out; })()`
+
 // identifiers are the scenario format's names that a customer should not
 // read on the page: detector, filter, status and field identifiers.
 var identifiers = regexp.MustCompile(`\b(ca_cfar|os_cfar|go_cfar|so_cfar|cmld_cfar|least_squares|too_weak|out_of_window|below_noise|below_horizon|phase_code|rcs_dbsm|range_m|pd_required)\b`)
@@ -74,6 +89,12 @@ func TestCustomerTour(t *testing.T) {
 			}
 			for _, s := range shouting.FindAllString(text, -1) {
 				t.Errorf("%s: the page shows %q in capitals", where, s)
+			}
+			// The profile tells the story by itself: a legend, the
+			// threshold named, every marker named, the blind range shaded
+			// where it reaches into the receive window.
+			for _, p := range eval[[]string](t, ctx, jsProfileLabels) {
+				t.Errorf("%s: profile: %s", where, p)
 			}
 			n := eval[int](t, ctx, `document.querySelectorAll('#ed-targets tr[data-row]').length`)
 			for i := range n {
