@@ -3,6 +3,7 @@ package web_test
 import (
 	"fmt"
 	"regexp"
+	"strings"
 	"testing"
 	"time"
 
@@ -113,4 +114,37 @@ func TestCustomerTour(t *testing.T) {
 			}
 		}
 	}
+}
+
+// TestScheduleFollowsUnits: the PRF schedule's verdicts in the figures
+// panel and its summary over the blind zones follow the units chosen with
+// the units control (they read km and m/s whatever the choice).
+func TestScheduleFollowsUnits(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	loadDemo(t, ctx, "hill-clutter-doppler")
+	waitFor(t, ctx, "the verdicts", fresh+` && /jet detected, 2 of 3 CPIs · unfolds to 7\.65 km, -157\.8 m\/s/.test(document.querySelector('.sched-story').textContent)`)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#units-pick summary`)))
+	pickDown(t, ctx, "range", 2)                         // m, km, nmi
+	pickDown(t, ctx, "speed", 2)                         // m/s, km/h, kt
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#figures`))) // closes the control
+	waitFor(t, ctx, "the table in nmi and kt", `document.querySelector('table.targets thead').textContent.includes('(nmi)')`)
+	story := eval[string](t, ctx, `document.querySelector('.sched-story').textContent`)
+	// The jet unfolds to 7646.8 m = 4.13 nmi and −157.786 m/s = −306.7 kt
+	// (1 nmi = 1852 m, 1 kt = 1852/3600 m/s); the schedule is unambiguous
+	// to 1274.1 km = 688.0 nmi.
+	for _, want := range []string{"unambiguous to 688.0 nmi", "unfolds to 4.13 nmi, -306.7 kt"} {
+		if !strings.Contains(story, want) {
+			t.Errorf("the schedule's verdicts in nmi and kt lack %q: %q", want, story)
+		}
+	}
+	for _, bad := range []string{" km", "m/s"} {
+		if strings.Contains(story, bad) {
+			t.Errorf("the schedule's verdicts in nmi and kt still read %q: %q", bad, story)
+		}
+	}
+	if sum := eval[string](t, ctx, `document.querySelector('#sched-sum').textContent`); strings.Contains(sum, " km") || strings.Contains(sum, "m/s") {
+		t.Errorf("the schedule's summary in nmi and kt reads %q", sum)
+	}
+	shot(t, ctx, "")
 }
