@@ -148,3 +148,51 @@ func TestScheduleFollowsUnits(t *testing.T) {
 	}
 	shot(t, ctx, "")
 }
+
+// jsNameClashes lists the marker names the profile draws over another
+// target's marker or over a masking label, and the names not drawn, from
+// the chart library's own elements.
+const jsNameClashes = `(() => {
+	const chart = window.__pw.plots.charts.profile;
+	const model = chart.getModel();
+	const box = (tx) => { const r = tx.getBoundingRect().clone(); r.applyTransform(tx.getComputedTransform()); return r; };
+	const text = (el) => { const p = el && (el.getSymbolPath ? el.getSymbolPath() : el); const tx = p && p.getTextContent && p.getTextContent();
+		return tx && !tx.ignore && !tx.invisible && tx.style && tx.style.text ? tx : null; };
+	const meets = (a, b) => a.x < b.x + b.width && b.x < a.x + a.width && a.y < b.y + b.height && b.y < a.y + a.height;
+	const markers = model.getSeries().find((s) => s.id === 'markers').getData();
+	const masking = model.getSeries().find((s) => s.id === 'masking');
+	const marks = [], names = [], plates = [];
+	markers.each((i) => {
+		const el = markers.getItemGraphicEl(i);
+		if (!el) return;
+		marks.push({ id: markers.getName(i), r: { x: el.x - 5.5, y: el.y - 5.5, width: 11, height: 11 } });
+		const tx = text(el);
+		if (tx) names.push({ id: markers.getName(i), r: box(tx) });
+		else names.push({ id: markers.getName(i), hidden: true });
+	});
+	if (masking) { const md = masking.getData(); md.each((i) => { const tx = text(md.getItemGraphicEl(i)); if (tx) plates.push({ text: tx.style.text, r: box(tx) }); }); }
+	const out = [];
+	for (const n of names) {
+		if (n.hidden) { out.push(n.id + ': name not drawn'); continue; }
+		for (const m of marks) if (m.id !== n.id && meets(n.r, m.r)) out.push(n.id + ': name over ' + m.id + "'s marker");
+		for (const p of plates) if (meets(n.r, p.r)) out.push(n.id + ': name under the label "' + p.text + '"');
+	}
+	for (const p of plates) for (const m of marks) if (meets(p.r, m.r)) out.push('the label "' + p.text + '" under ' + m.id + "'s marker");
+	return out; })()`
+
+// TestMarkerNamesClear: on the demos whose targets sit close together,
+// each marker's name on the profile is drawn, and clear of the other
+// markers and of the masking label; the masking label is clear of the
+// markers.
+func TestMarkerNamesClear(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	for _, d := range []string{"squall-line", "rocky-coast", "harbour-skiff"} {
+		loadDemo(t, ctx, d)
+		waitFor(t, ctx, d+" settled", fresh+` && window.__pw.plots.charts.profile.getOption().series.find((s) => s.id === 'markers').data.length === window.__pw.frame().report.targets.length`)
+		for _, c := range eval[[]string](t, ctx, jsNameClashes) {
+			t.Errorf("%s: %s", d, c)
+		}
+		shot(t, ctx, d)
+	}
+}

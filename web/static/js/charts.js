@@ -6,6 +6,7 @@
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
 import { FastLayer, HeatLayer, layerSeries, tooltipAbove } from './fastlayer.js';
+import { keepNamesClear } from './labels.js';
 import { axisPatch, axisUnits, format, niceTicks, restate, signed } from './units.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
@@ -242,6 +243,7 @@ export class Plots {
       this.fasts[name].setStyles(entry.option);
       layerSeries(entry.option);
     }
+    if (name === 'profile' && entry.replace) keepNamesClear(entry.option, chart);
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     niceTicks(chart); // round ticks in the user's units; a no-op while they hold
     // Paint now, inside this animation frame, instead of waiting for the

@@ -1,0 +1,100 @@
+// Marker names on the profile kept clear of the other markers and of the
+// masking labels. ECharts' hideOverlap keeps labels apart from one another
+// but not from other symbols: a target beside another (an aircraft in
+// front of a rain band, a buoy in the surf line) had its name written
+// over its neighbour's marker. A name that would cover another marker or
+// a masking label goes under its own marker instead, or to its left or
+// right, the first of these places that is clear; otherwise it stays
+// above. Applied by the chart library when the
+// plot is laid out at rest (the page's fast layer, drawing while frames
+// stream, keeps names above).
+
+const SymbolHalf = 7; // half the markers' symbol (11 px) and a margin, px
+
+// keepNamesClear gives the markers series of a full profile option its
+// label placement.
+export function keepNamesClear(option, chart) {
+  const series = [option.series || []].flat();
+  const m = series.find((s) => s && s.id === 'markers');
+  if (!m) return;
+  const place = (p) => {
+    const out = { hideOverlap: true };
+    const L = p.labelRect;
+    const others = obstacles(chart, p.seriesIndex, p.dataIndex);
+    if (!others.some((r) => meets(r, L))) return out;
+    const R = p.rect;
+    const mid = R.y + R.height / 2 - L.height / 2;
+    const places = [
+      [0, R.y + R.height + 3 - L.y], // under
+      [R.x - 4 - L.width - L.x, mid - L.y], // left
+      [R.x + R.width + 4 - L.x, mid - L.y], // right
+    ];
+    for (const [dx, dy] of places) {
+      if (!others.some((r) => meets(r, { x: L.x + dx, y: L.y + dy, width: L.width, height: L.height }))) return { ...out, dx, dy };
+    }
+    return out;
+  };
+  // The fast layer reads hideOverlap off the series' labelLayout.
+  place.hideOverlap = true;
+  m.labelLayout = place;
+  // A masking label ("rain-band's response masks light-aircraft") that
+  // starts over a marker (the masker 150 m beyond) moves right, past it.
+  const k = series.find((s) => s && s.id === 'masking');
+  if (k) {
+    k.labelLayout = (p) => {
+      const L = p.labelRect;
+      let dx = 0;
+      for (let moved = true; moved;) {
+        moved = false;
+        for (const r of obstacles(chart, markersIndex(chart), -1, false)) {
+          if (meets(r, { x: L.x + dx, y: L.y, width: L.width, height: L.height }) && r.x + r.width + 3 - L.x > dx) {
+            dx = r.x + r.width + 3 - L.x;
+            moved = true;
+          }
+        }
+      }
+      // Placed absolutely: the chart library keeps a line symbol's label
+      // attached to its place and drops an offset.
+      return dx ? { x: L.x + dx, y: L.y + L.height / 2, align: 'left', verticalAlign: 'middle' } : {};
+    };
+  }
+}
+
+function markersIndex(chart) {
+  const s = chart.getModel() && chart.getModel().getSeries().find((x) => x.id === 'markers');
+  return s ? s.seriesIndex : -1;
+}
+
+function meets(a, b) {
+  return a.x < b.x + b.width && b.x < a.x + a.width && a.y < b.y + b.height && b.y < a.y + a.height;
+}
+
+// obstacles are the boxes, in chart px, of every marker but the one at
+// dataIndex and (withLabels) of the masking labels drawn.
+function obstacles(chart, seriesIndex, dataIndex, withLabels = true) {
+  const out = [];
+  const model = chart.getModel();
+  const markers = model && seriesIndex >= 0 && model.getSeriesByIndex(seriesIndex);
+  if (!markers) return out;
+  const data = markers.getData();
+  data.each((i) => {
+    const el = i !== dataIndex && data.getItemGraphicEl(i);
+    if (el && Number.isFinite(el.x) && Number.isFinite(el.y)) {
+      out.push({ x: el.x - SymbolHalf, y: el.y - SymbolHalf, width: 2 * SymbolHalf, height: 2 * SymbolHalf });
+    }
+  });
+  const masking = withLabels && model.getSeries().find((s) => s.id === 'masking');
+  if (masking) {
+    const md = masking.getData();
+    md.each((i) => {
+      const el = md.getItemGraphicEl(i);
+      const path = el && (el.getSymbolPath ? el.getSymbolPath() : el);
+      const tx = path && path.getTextContent && path.getTextContent();
+      if (!tx || tx.ignore || tx.invisible || !tx.style || !tx.style.text) return;
+      const r = tx.getBoundingRect().clone();
+      r.applyTransform(tx.getComputedTransform());
+      out.push(r);
+    });
+  }
+  return out;
+}
