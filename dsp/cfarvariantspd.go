@@ -121,7 +121,6 @@ func VariantPd(v CFARVariant, swerling int, chi, alpha float64, n1, n2 int) (flo
 		}
 		return 1 - (1-p1)*(1-p2)
 	}
-	sum := 0.0
 	var lo, h float64
 	var density func(x float64) float64
 	if swerling == SwerlingNone {
@@ -141,17 +140,7 @@ func VariantPd(v CFARVariant, swerling int, chi, alpha float64, n1, n2 int) (flo
 			return math.Exp(-x/b) / b * (1 + a*x/(b*b) - a/b) * cdf(x)
 		}
 	}
-	for i := 0; i <= variantSimpson; i++ {
-		w := 2.0
-		switch {
-		case i == 0 || i == variantSimpson:
-			w = 1
-		case i%2 == 1:
-			w = 4
-		}
-		sum += w * density(lo+float64(i)*h)
-	}
-	return math.Min(math.Max(sum*h/3, 0), 1), nil
+	return math.Min(math.Max(Simpson(density, lo, h, variantSimpson), 0), 1), nil
 }
 
 // besselI0e returns e^−x·I0(x) for x ≥ 0 (I0 the modified Bessel function

@@ -203,19 +203,8 @@ func (t *TrainChi4) PdThreshold(chi float64, cdf func(x float64) float64) float6
 	}
 	h := (x1 - x0) / trainSimpson
 	terms := t.terms(chi / 2 / (1 + chi/2))
-	sum := 0.0
-	for i := 0; i <= trainSimpson; i++ {
-		w := 2.0
-		switch {
-		case i == 0 || i == trainSimpson:
-			w = 1
-		case i%2 == 1:
-			w = 4
-		}
-		x := x0 + float64(i)*h
-		sum += w * t.density(chi, x, terms) * cdf(x)
-	}
-	return math.Min(math.Max(sum*h/3+tail, 0), 1)
+	in := Simpson(func(x float64) float64 { return t.density(chi, x, terms) * cdf(x) }, x0, h, trainSimpson)
+	return math.Min(math.Max(in+tail, 0), 1)
 }
 
 // PdCA returns the Pd behind a cell-averaging CFAR of m independent
@@ -232,21 +221,12 @@ func (t *TrainChi4) PdCA(chi float64, m int, alpha float64) float64 {
 	const n = 400
 	h := (hi - lo) / n
 	lg, _ := math.Lgamma(fm)
-	sum := 0.0
-	for i := 0; i <= n; i++ {
-		w := 2.0
-		switch {
-		case i == 0 || i == n:
-			w = 1
-		case i%2 == 1:
-			w = 4
-		}
-		s := lo + float64(i)*h
+	in := Simpson(func(s float64) float64 {
 		if s <= 0 {
-			continue
+			return 0
 		}
 		dens := math.Exp((fm-1)*math.Log(s) - s - lg)
-		sum += w * dens * t.Survival(chi, alpha*s/fm)
-	}
-	return math.Min(math.Max(sum*h/3, 0), 1)
+		return dens * t.Survival(chi, alpha*s/fm)
+	}, lo, h, n)
+	return math.Min(math.Max(in, 0), 1)
 }

@@ -2,11 +2,8 @@ package scenarios
 
 import (
 	"fmt"
-	"math"
 	"strings"
 	"testing"
-
-	"github.com/pulsewright/pulsewright/dsp"
 )
 
 // TestCFARVariantKinds: go_cfar, so_cfar and censored_cfar decode with
@@ -111,42 +108,9 @@ func TestSquallLineSuggestsSmallestOf(t *testing.T) {
 // real noise path at 4 samples per 1/B, as TestFalseAlarmsOversampledScene
 // does for CA and OS.
 func TestCFARVariantsOversampledScene(t *testing.T) {
-	for _, det := range []string{
+	checkOversampledFalseAlarms(t, 11, []string{
 		`{"kind":"go_cfar","pfa":1e-3,"guard_cells":4,"training_cells":64}`,
 		`{"kind":"so_cfar","pfa":1e-3,"guard_cells":4,"training_cells":64}`,
 		`{"kind":"censored_cfar","pfa":1e-3,"guard_cells":4,"training_cells":64,"censored_cells":8}`,
-	} {
-		alarms, trials := 0, 0
-		for seed := range 6 {
-			doc := fmt.Sprintf(`{"version":2,"seed":%d,"radar":{"peak_power_w":1000,"sample_rate_hz":4e7,"pri_s":2e-3,"window_start_m":3000,"window_stop_m":240000},
-				"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e7},"receiver":{"window":{"kind":"hamming"},"detector":%s},"targets":[]}`, seed+11, det)
-			sc := mustDecode(t, doc)
-			s := mustEvaluate(t, sc).Series
-			m, err := newModel(sc, nil)
-			if err != nil {
-				t.Fatal(err)
-			}
-			p := make([]float64, len(s.ProfileDB))
-			for k, v := range s.ProfileDB {
-				p[k] = dsp.FromDB(v)
-			}
-			th := m.detector().ThresholdsValid(nil, p, m.processed)
-			for k := 0; k < len(p); k += 6 {
-				if !m.processed[k] {
-					continue
-				}
-				trials++
-				if p[k] > th[k] {
-					alarms++
-				}
-			}
-		}
-		mean := 1e-3 * float64(trials)
-		half := 2.576 * math.Sqrt(mean*(1-1e-3))
-		if math.Abs(float64(alarms)-mean) > half {
-			t.Errorf("%s: %d false alarms in %d gates, 99%% interval %.0f ± %.0f", det, alarms, trials, mean, half)
-		} else {
-			t.Logf("%s: %d false alarms in %d gates (expected %.0f ± %.0f)", det, alarms, trials, mean, half)
-		}
-	}
+	})
 }

@@ -238,14 +238,22 @@ func TestMaskedByCFARChoosesLargestContribution(t *testing.T) {
 // other) over 6 seeds must fall inside the 99 % binomial interval of
 // Pfa = 1e-3, for CA- and OS-CFAR.
 func TestFalseAlarmsOversampledScene(t *testing.T) {
-	for _, det := range []string{
+	checkOversampledFalseAlarms(t, 1, []string{
 		`{"kind":"ca_cfar","pfa":1e-3,"guard_cells":4,"training_cells":24}`,
 		`{"kind":"os_cfar","pfa":1e-3,"guard_cells":4,"training_cells":32,"rank":24}`,
-	} {
+	})
+}
+
+// checkOversampledFalseAlarms runs TestFalseAlarmsOversampledScene's
+// Monte Carlo for each detector (receiver.detector JSON), over the six
+// seeds seed0 … seed0+5.
+func checkOversampledFalseAlarms(t *testing.T, seed0 int, dets []string) {
+	t.Helper()
+	for _, det := range dets {
 		alarms, trials := 0, 0
 		for seed := range 6 {
 			doc := fmt.Sprintf(`{"version":2,"seed":%d,"radar":{"peak_power_w":1000,"sample_rate_hz":4e7,"pri_s":2e-3,"window_start_m":3000,"window_stop_m":240000},
-				"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e7},"receiver":{"window":{"kind":"hamming"},"detector":%s},"targets":[]}`, seed+1, det)
+				"waveform":{"kind":"lfm","pulse_width_s":1e-5,"bandwidth_hz":1e7},"receiver":{"window":{"kind":"hamming"},"detector":%s},"targets":[]}`, seed0+seed, det)
 			sc := mustDecode(t, doc)
 			s := mustEvaluate(t, sc).Series
 			m, err := newModel(sc, nil)

@@ -2,7 +2,6 @@ package scenarios
 
 import (
 	"context"
-	"errors"
 	"math"
 	"reflect"
 	"strings"
@@ -322,20 +321,7 @@ func TestFrontEndErrors(t *testing.T) {
 		{`{"bits":12}`, "front_end.bits", "unknown field"},
 	} {
 		_, err := Decode([]byte(withFrontEnd(base, c.fe)))
-		var ve *ValidationError
-		if !errors.As(err, &ve) {
-			t.Errorf("%s: %v", c.fe, err)
-			continue
-		}
-		found := false
-		for _, f := range ve.Fields {
-			if f.Path == c.path && strings.Contains(f.Message, c.words) {
-				found = true
-			}
-		}
-		if !found {
-			t.Errorf("%s: want %s: …%s…, got %v", c.fe, c.path, c.words, ve.Fields)
-		}
+		wantFieldError(t, c.fe, err, c.path, c.words)
 	}
 }
 

@@ -628,21 +628,13 @@ func pdStrongFluct(d dsp.Detector, chi, T float64) float64 {
 	}
 	const panels = 400
 	h := U / panels
-	sum := 0.0
-	for i := 0; i <= panels; i++ {
-		l := float64(i) * h
-		w := 2.0
-		switch {
-		case i == 0 || i == panels:
-			w = 1
-		case i%2 == 1:
-			w = 4
-		}
+	missed := dsp.Simpson(func(l float64) float64 {
 		miss := 1 - steady.PdAtThreshold(l/n, T)
 		if g := lg(l); !math.IsInf(g, -1) {
-			sum += w * miss * math.Exp(g)
+			return miss * math.Exp(g)
 		}
-	}
+		return 0
+	}, 0, h, panels)
 	// Beyond U every draw is detected: what lies below U and is missed.
-	return min(max(1-sum*h/3, 0), 1)
+	return min(max(1-missed, 0), 1)
 }

@@ -29,20 +29,11 @@ func pdAverage(chi float64, cdf func(x float64) float64) float64 {
 	sc := math.Sqrt(chi)
 	lo := math.Max(0, sc-10)
 	h := (sc + 10 - lo) / avgIntervals
-	sum := 0.0
-	for i := 0; i <= avgIntervals; i++ {
-		u := lo + float64(i)*h
-		w := 2.0
-		switch {
-		case i == 0 || i == avgIntervals:
-			w = 1
-		case i%2 == 1:
-			w = 4
-		}
+	in := dsp.Simpson(func(u float64) float64 {
 		d := u - sc
-		sum += w * 2 * u * math.Exp(-d*d) * i0e(2*u*sc) * cdf(u*u)
-	}
-	return math.Min(math.Max(sum*h/3, 0), 1)
+		return 2 * u * math.Exp(-d*d) * i0e(2*u*sc) * cdf(u*u)
+	}, lo, h, avgIntervals)
+	return math.Min(math.Max(in, 0), 1)
 }
 
 // i0e returns e^−x·I0(x) for x ≥ 0, I0 the modified Bessel function of

@@ -2,7 +2,6 @@ package scenarios
 
 import (
 	"encoding/json"
-	"errors"
 	"math"
 	"os"
 	"path/filepath"
@@ -232,20 +231,7 @@ func TestScanErrors(t *testing.T) {
 		{`60`, "radar.scan", ""},
 	} {
 		_, err := Decode([]byte(scanScene(`, "scan": `+c.scan, 10)))
-		var ve *ValidationError
-		if !errors.As(err, &ve) {
-			t.Errorf("%s: %v", c.scan, err)
-			continue
-		}
-		found := false
-		for _, f := range ve.Fields {
-			if f.Path == c.path && strings.Contains(f.Message, c.words) {
-				found = true
-			}
-		}
-		if !found {
-			t.Errorf("%s: want %s: …%s…, got %v", c.scan, c.path, c.words, ve.Fields)
-		}
+		wantFieldError(t, c.scan, err, c.path, c.words)
 	}
 }
 

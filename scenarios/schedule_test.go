@@ -3,7 +3,6 @@ package scenarios
 import (
 	"context"
 	"encoding/json"
-	"errors"
 	"math"
 	"strings"
 	"testing"
@@ -45,20 +44,7 @@ func TestScheduleDecodeErrors(t *testing.T) {
 		{map[string]any{"cpis": "1e-3"}, "radar.schedule.cpis", "not an array"},
 	} {
 		_, err := Decode(withSchedule(t, "long-pulse-blind", c.schedule))
-		var ve *ValidationError
-		if !errors.As(err, &ve) {
-			t.Errorf("%v: error %v, want a ValidationError", c.schedule, err)
-			continue
-		}
-		found := false
-		for _, f := range ve.Fields {
-			if f.Path == c.path && strings.Contains(f.Message, c.words) {
-				found = true
-			}
-		}
-		if !found {
-			t.Errorf("%v: errors %v, want %s: …%s…", c.schedule, ve.Fields, c.path, c.words)
-		}
+		wantFieldError(t, c.schedule, err, c.path, c.words)
 	}
 }
 

@@ -3,7 +3,6 @@ package scenarios
 import (
 	"context"
 	"encoding/json"
-	"errors"
 	"math"
 	"os"
 	"slices"
@@ -58,20 +57,7 @@ func TestStaggerDecodeErrors(t *testing.T) {
 		{map[string]any{"pri_stagger_s": []any{100e-6, 100e-6 * math.Sqrt2}}, "radar.pri_stagger_s", "no common step"},
 	} {
 		_, err := Decode(staggerScene(c.radar))
-		var ve *ValidationError
-		if !errors.As(err, &ve) {
-			t.Errorf("%v: error %v, want a ValidationError", c.radar, err)
-			continue
-		}
-		found := false
-		for _, f := range ve.Fields {
-			if f.Path == c.path && strings.Contains(f.Message, strings.ReplaceAll(c.words, "1.25e-04", "0.000125")) {
-				found = true
-			}
-		}
-		if !found {
-			t.Errorf("%v: errors %v, want %s: …%s…", c.radar, ve.Fields, c.path, c.words)
-		}
+		wantFieldError(t, c.radar, err, c.path, strings.ReplaceAll(c.words, "1.25e-04", "0.000125"))
 	}
 	// A CPI of a schedule: pri_s is not required with a stagger, and the
 	// same checks name the CPI's field.
@@ -85,20 +71,7 @@ func TestStaggerDecodeErrors(t *testing.T) {
 		{map[string]any{"pri_s": 1e-4, "pri_stagger_s": []any{110e-6, 125e-6}}, "radar.schedule.cpis[0].pri_s", "not the shortest"},
 	} {
 		_, err := Decode(staggerScene(map[string]any{"pri_stagger_s": nil, "pri_s": 1e-4, "schedule": map[string]any{"cpis": []any{c.cpi}}}))
-		var ve *ValidationError
-		if !errors.As(err, &ve) {
-			t.Errorf("%v: error %v, want a ValidationError", c.cpi, err)
-			continue
-		}
-		found := false
-		for _, f := range ve.Fields {
-			if f.Path == c.path && strings.Contains(f.Message, c.words) {
-				found = true
-			}
-		}
-		if !found {
-			t.Errorf("%v: errors %v, want %s: …%s…", c.cpi, ve.Fields, c.path, c.words)
-		}
+		wantFieldError(t, c.cpi, err, c.path, c.words)
 	}
 }
 
