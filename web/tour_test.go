@@ -149,11 +149,12 @@ func TestScheduleFollowsUnits(t *testing.T) {
 	shot(t, ctx, "")
 }
 
-// jsNameClashes lists the marker names the profile draws over another
-// target's marker or over a masking label, and the names not drawn, from
-// the chart library's own elements.
-const jsNameClashes = `(() => {
-	const chart = window.__pw.plots.charts.profile;
+// jsNameClashes lists the marker names a chart (the profile, the map)
+// draws over another target's marker (symbols half px across each side)
+// or over a masking label, and the names not drawn, from the chart
+// library's own elements.
+const jsNameClashes = `((name, half) => {
+	const chart = window.__pw.plots.charts[name];
 	const model = chart.getModel();
 	const box = (tx) => { const r = tx.getBoundingRect().clone(); r.applyTransform(tx.getComputedTransform()); return r; };
 	const text = (el) => { const p = el && (el.getSymbolPath ? el.getSymbolPath() : el); const tx = p && p.getTextContent && p.getTextContent();
@@ -165,7 +166,7 @@ const jsNameClashes = `(() => {
 	markers.each((i) => {
 		const el = markers.getItemGraphicEl(i);
 		if (!el) return;
-		marks.push({ id: markers.getName(i), r: { x: el.x - 5.5, y: el.y - 5.5, width: 11, height: 11 } });
+		marks.push({ id: markers.getName(i), r: { x: el.x - half, y: el.y - half, width: 2 * half, height: 2 * half } });
 		const tx = text(el);
 		if (tx) names.push({ id: markers.getName(i), r: box(tx) });
 		else names.push({ id: markers.getName(i), hidden: true });
@@ -178,21 +179,28 @@ const jsNameClashes = `(() => {
 		for (const p of plates) if (meets(n.r, p.r)) out.push(n.id + ': name under the label "' + p.text + '"');
 	}
 	for (const p of plates) for (const m of marks) if (meets(p.r, m.r)) out.push('the label "' + p.text + '" under ' + m.id + "'s marker");
-	return out; })()`
+	return out; })`
 
 // TestMarkerNamesClear: on the demos whose targets sit close together,
 // each marker's name on the profile is drawn, and clear of the other
 // markers and of the masking label; the masking label is clear of the
-// markers.
+// markers. On the pulse train's range–Doppler map, no name covers
+// another marker (the ridge's covered the jet's).
 func TestMarkerNamesClear(t *testing.T) {
 	ctx := mustBrowser(t)
 	openPage(t, ctx, mustServer(t))
 	for _, d := range []string{"squall-line", "rocky-coast", "harbour-skiff"} {
 		loadDemo(t, ctx, d)
 		waitFor(t, ctx, d+" settled", fresh+` && window.__pw.plots.charts.profile.getOption().series.find((s) => s.id === 'markers').data.length === window.__pw.frame().report.targets.length`)
-		for _, c := range eval[[]string](t, ctx, jsNameClashes) {
+		for _, c := range eval[[]string](t, ctx, jsNameClashes+`('profile', 5.5)`) {
 			t.Errorf("%s: %s", d, c)
 		}
 		shot(t, ctx, d)
 	}
+	loadDemo(t, ctx, "hill-clutter-doppler")
+	waitFor(t, ctx, "the map settled", fresh+` && window.__pw.plots.fasts.rdmap.ready() && window.__pw.plots.charts.rdmap.getOption().series.find((s) => s.id === 'markers').data.length === window.__pw.frame().report.targets.length`)
+	for _, c := range eval[[]string](t, ctx, jsNameClashes+`('rdmap', 6.5)`) {
+		t.Errorf("hill-clutter-doppler map: %s", c)
+	}
+	shot(t, ctx, "hill-clutter-doppler")
 }

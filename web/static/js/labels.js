@@ -1,5 +1,5 @@
-// Marker names on the profile kept clear of the other markers and of the
-// masking labels. ECharts' hideOverlap keeps labels apart from one another
+// Marker names on the profile (and on the range–Doppler map) kept clear
+// of the other markers and of the masking labels. ECharts' hideOverlap keeps labels apart from one another
 // but not from other symbols: a target beside another (an aircraft in
 // front of a rain band, a buoy in the surf line) had its name written
 // over its neighbour's marker. A name that would cover another marker or
@@ -9,16 +9,19 @@
 // plot is laid out at rest (the page's fast layer, drawing while frames
 // stream, keeps names above).
 
-const SymbolHalf = 7; // half the markers' symbol (11 px) and a margin, px
+// Half a marker's symbol and a margin, px: the profile's are 11 px, the
+// map's 13 px.
+const SymbolHalf = { profile: 7, rdmap: 8 };
 
 // Above this many markers the names keep ECharts' own placement (hidden
 // where they overlap): moving them costs a crowded plot's layout more
 // than it helps (201 targets 1 px apart: about 1.6× the layout time).
 const MaxPlaced = 64;
 
-// keepNamesClear gives the markers series of a full profile option its
-// label placement.
-export function keepNamesClear(option, chart) {
+// keepNamesClear gives the markers series of a full option of the chart
+// name ('profile' or 'rdmap') its label placement.
+export function keepNamesClear(name, option, chart) {
+  const half = SymbolHalf[name] || 7;
   const series = [option.series || []].flat();
   const m = series.find((s) => s && s.id === 'markers');
   if (!m) return;
@@ -27,7 +30,7 @@ export function keepNamesClear(option, chart) {
     const s = chart.getModel() && chart.getModel().getSeriesByIndex(p.seriesIndex);
     if (!s || s.getData().count() > MaxPlaced) return out;
     const L = p.labelRect;
-    const others = obstacles(chart, p.seriesIndex, p.dataIndex);
+    const others = obstacles(chart, p.seriesIndex, p.dataIndex, half);
     if (!others.some((r) => meets(r, L))) return out;
     const R = p.rect;
     const mid = R.y + R.height / 2 - L.height / 2;
@@ -36,8 +39,11 @@ export function keepNamesClear(option, chart) {
       [R.x - 4 - L.width - L.x, mid - L.y], // left
       [R.x + R.width + 4 - L.x, mid - L.y], // right
     ];
+    // Placed absolutely: the chart library drops an offset (dx, dy) from
+    // a label with a plate (the map's names).
     for (const [dx, dy] of places) {
-      if (!others.some((r) => meets(r, { x: L.x + dx, y: L.y + dy, width: L.width, height: L.height }))) return { ...out, dx, dy };
+      const to = { x: L.x + dx, y: L.y + dy, width: L.width, height: L.height };
+      if (!others.some((r) => meets(r, to))) return { ...out, x: to.x, y: to.y, align: 'left', verticalAlign: 'top' };
     }
     return out;
   };
@@ -55,16 +61,15 @@ export function keepNamesClear(option, chart) {
       let dx = 0;
       for (let moved = true; moved;) {
         moved = false;
-        for (const r of obstacles(chart, mi, -1, false)) {
+        for (const r of obstacles(chart, mi, -1, half, false)) {
           if (meets(r, { x: L.x + dx, y: L.y, width: L.width, height: L.height }) && r.x + r.width + 3 - L.x > dx) {
             dx = r.x + r.width + 3 - L.x;
             moved = true;
           }
         }
       }
-      // Placed absolutely: the chart library keeps a line symbol's label
-      // attached to its place and drops an offset.
-      return dx ? { x: L.x + dx, y: L.y + L.height / 2, align: 'left', verticalAlign: 'middle' } : {};
+      // Placed absolutely, as above.
+      return dx ? { x: L.x + dx, y: L.y, align: 'left', verticalAlign: 'top' } : {};
     };
   }
 }
@@ -83,18 +88,18 @@ function meets(a, b) {
 // asks once per label: the boxes are found once per pass (256 targets
 // would otherwise cost 256² look-ups) and kept until the pass's task ends.
 let passes = null;
-function obstacles(chart, seriesIndex, dataIndex, withLabels = true) {
+function obstacles(chart, seriesIndex, dataIndex, half, withLabels = true) {
   if (!passes) {
     passes = new Map();
     queueMicrotask(() => { passes = null; });
   }
   const key = `${chart.id}/${seriesIndex}/${withLabels}`;
   let all = passes.get(key);
-  if (!all) passes.set(key, (all = boxes(chart, seriesIndex, withLabels)));
+  if (!all) passes.set(key, (all = boxes(chart, seriesIndex, half, withLabels)));
   return all.filter((b) => b.i !== dataIndex);
 }
 
-function boxes(chart, seriesIndex, withLabels) {
+function boxes(chart, seriesIndex, half, withLabels) {
   const out = [];
   const model = chart.getModel();
   const markers = model && seriesIndex >= 0 && model.getSeriesByIndex(seriesIndex);
@@ -103,7 +108,7 @@ function boxes(chart, seriesIndex, withLabels) {
   data.each((i) => {
     const el = data.getItemGraphicEl(i);
     if (el && Number.isFinite(el.x) && Number.isFinite(el.y)) {
-      out.push({ i, x: el.x - SymbolHalf, y: el.y - SymbolHalf, width: 2 * SymbolHalf, height: 2 * SymbolHalf });
+      out.push({ i, x: el.x - half, y: el.y - half, width: 2 * half, height: 2 * half });
     }
   });
   const masking = withLabels && model.getSeries().find((s) => s.id === 'masking');
