@@ -203,4 +203,11 @@ func TestMarkerNamesClear(t *testing.T) {
 		t.Errorf("hill-clutter-doppler map: %s", c)
 	}
 	shot(t, ctx, "hill-clutter-doppler")
+	// The schedule's CPI maps, opened by a real click.
+	do(t, ctx, chromedp.Click(chromedp.CSS(`[data-show="cpimaps"]`)))
+	waitFor(t, ctx, "the CPI maps", `(() => { const c = window.__pw.plots.charts.cpimap1; const o = c && c.getOption(); return !!o && o.series.length > 0 && !document.querySelector('.cpi-map[data-cpi="1"]').hidden; })()`)
+	for _, c := range eval[[]string](t, ctx, jsNameClashes+`('cpimap1', 6.5)`) {
+		t.Errorf("hill-clutter-doppler CPI 1 map: %s", c)
+	}
+	shot(t, ctx, "hill-clutter-doppler-cpimaps")
 }

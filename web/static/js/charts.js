@@ -243,7 +243,7 @@ export class Plots {
       this.fasts[name].setStyles(entry.option);
       layerSeries(entry.option);
     }
-    if ((name === 'profile' || name === 'rdmap') && entry.replace) keepNamesClear(name, entry.option, chart);
+    if (entry.replace && (name === 'profile' || name === 'rdmap' || name.startsWith('cpimap'))) keepNamesClear(name, entry.option, chart);
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     niceTicks(chart); // round ticks in the user's units; a no-op while they hold
     // Paint now, inside this animation frame, instead of waiting for the

@@ -3,15 +3,15 @@
 // but not from other symbols: a target beside another (an aircraft in
 // front of a rain band, a buoy in the surf line) had its name written
 // over its neighbour's marker. A name that would cover another marker or
-// a masking label goes under its own marker instead, or to its left or
-// right, the first of these places that is clear; otherwise it stays
-// above. Applied by the chart library when the
+// a masking label goes under its own marker instead, or over it, to its
+// left or right, the first of these places that is clear; otherwise it
+// stays where the chart put it. Applied by the chart library when the
 // plot is laid out at rest (the page's fast layer, drawing while frames
 // stream, keeps names above).
 
 // Half a marker's symbol and a margin, px: the profile's are 11 px, the
-// map's 13 px.
-const SymbolHalf = { profile: 7, rdmap: 8 };
+// maps' (the range–Doppler map, a schedule's CPI maps) 13 px.
+const halfOf = (name) => (name === 'profile' ? 7 : 8);
 
 // Above this many markers the names keep ECharts' own placement (hidden
 // where they overlap): moving them costs a crowded plot's layout more
@@ -19,9 +19,9 @@ const SymbolHalf = { profile: 7, rdmap: 8 };
 const MaxPlaced = 64;
 
 // keepNamesClear gives the markers series of a full option of the chart
-// name ('profile' or 'rdmap') its label placement.
+// name ('profile', 'rdmap', 'cpimapK') its label placement.
 export function keepNamesClear(name, option, chart) {
-  const half = SymbolHalf[name] || 7;
+  const half = halfOf(name);
   const series = [option.series || []].flat();
   const m = series.find((s) => s && s.id === 'markers');
   if (!m) return;
@@ -36,6 +36,7 @@ export function keepNamesClear(name, option, chart) {
     const mid = R.y + R.height / 2 - L.height / 2;
     const places = [
       [0, R.y + R.height + 3 - L.y], // under
+      [0, R.y - 3 - L.height - L.y], // over (a map's name sits at the right)
       [R.x - 4 - L.width - L.x, mid - L.y], // left
       [R.x + R.width + 4 - L.x, mid - L.y], // right
     ];
