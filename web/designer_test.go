@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"github.com/chromedp/chromedp"
+	"github.com/chromedp/chromedp/kb"
 )
 
 // The page tells the harbour scene's story on the plots themselves:
@@ -31,9 +32,7 @@ func TestStoryLabelsAndFocus(t *testing.T) {
 	shot(t, ctx, "labels")
 
 	// Real keys in the profile's Focus list: typing "s" picks "skiff and
-	// tanker (masks it)". (A double-click on a marker does the same; a
-	// click on a marker still trips a chart-library exception that another
-	// change fixes, so this test uses the keyboard.)
+	// tanker (masks it)".
 	do(t, ctx, chromedp.Focus(chromedp.CSS(`#focus-select`)), chromedp.KeyEvent("s"))
 	waitFor(t, ctx, "the focused zoom", `window.__pw.plots.visibleRange() !== null`)
 	r := eval[[]float64](t, ctx, `window.__pw.plots.visibleRange()`)
@@ -44,6 +43,36 @@ func TestStoryLabelsAndFocus(t *testing.T) {
 	}
 	waitFor(t, ctx, "the echo following", `(() => { const a = window.__pw.plots.charts.echo.getModel().getComponent('xAxis', 0).axis.scale.getExtent(); return a[1] - a[0] < 700; })()`)
 	shot(t, ctx, "focused")
+
+	// A target masked by its own sidelobes is listed alone, not "pilot-boat
+	// and pilot-boat (masks it)".
+	for _, o := range eval[[]string](t, ctx, `[...document.querySelectorAll('#focus-select option')].map((o) => o.textContent)`) {
+		if strings.HasPrefix(o, "pilot-boat and pilot-boat") {
+			t.Errorf("the Focus list offers %q", o)
+		}
+	}
+	// Back to the whole window with the keyboard (↓ from "Focus…" picks
+	// "whole window"), then a real double-click on the skiff's marker does
+	// the same zoom.
+	do(t, ctx, chromedp.Focus(chromedp.CSS(`#focus-select`)), chromedp.KeyEvent(kb.ArrowDown))
+	waitFor(t, ctx, "the whole window", `window.__pw.plots.visibleRange() === null || window.__pw.plots.visibleRange()[1] - window.__pw.plots.visibleRange()[0] > 5000`)
+	waitFor(t, ctx, "the markers on the whole window", fresh+` && `+jsMarker+`('skiff')`)
+	p := markerPx(t, ctx, "skiff")
+	ox, oy := chartOrigin(t, ctx, "#chart-profile")
+	mouse(t, ctx, chromedp.MouseMoved, ox+p[0], oy+p[1])
+	for n := 1; n <= 2; n++ {
+		mouse(t, ctx, chromedp.MousePressed, ox+p[0], oy+p[1], chromedp.ButtonLeft, chromedp.ClickCount(n))
+		mouse(t, ctx, chromedp.MouseReleased, ox+p[0], oy+p[1], chromedp.ButtonLeft, chromedp.ClickCount(n))
+	}
+	waitFor(t, ctx, "the double-click's zoom", `window.__pw.plots.visibleRange() !== null && window.__pw.plots.visibleRange()[1] - window.__pw.plots.visibleRange()[0] < 700`)
+	r = eval[[]float64](t, ctx, `window.__pw.plots.visibleRange()`)
+	if !(r[0] < 6000 && r[1] > 6300) {
+		t.Errorf("double-click on the skiff: range %v m, want the skiff (6300 m) and the tanker (6000 m)", r)
+	}
+	if v := eval[float64](t, ctx, `window.__pw.store.scenario.targets[1].range_m`); v != 6300 {
+		t.Errorf("the double-click moved the skiff to %g m", v)
+	}
+	shot(t, ctx, "double-click")
 }
 
 // The designer's tabs show the pulse, the spectrum with its occupied band,
@@ -146,4 +175,77 @@ func TestMapLabelsAndCutLegends(t *testing.T) {
 		t.Errorf("map cuts have %d legends, want one per plot", n)
 	}
 	shot(t, ctx, "cuts")
+}
+
+// jsCatchDownloads records the page's downloads (name and address) in
+// window.__downloads instead of saving them, and the text drawn on any
+// canvas in window.__drawn.
+const jsCatchDownloads = `(() => {
+	window.__downloads = []; window.__drawn = [];
+	document.addEventListener('click', (e) => {
+		const a = e.target.closest && e.target.closest('a[download]');
+		if (a) { window.__downloads.push({ name: a.download, href: a.href }); e.preventDefault(); }
+	}, true);
+	const fill = CanvasRenderingContext2D.prototype.fillText;
+	CanvasRenderingContext2D.prototype.fillText = function (text, ...rest) { window.__drawn.push(String(text)); return fill.call(this, text, ...rest); };
+	return true; })()`
+
+// TestPNGButtons: a real click on each plot's PNG button saves a PNG of
+// the plot shown, titled with the scene's whole name (a smaller type on a
+// narrow plot) and named for that plot: the profile, a lower plot's shown
+// tab, and the first CPI map of a PRF schedule; a CPI maps tab without
+// maps says there is nothing to save.
+func TestPNGButtons(t *testing.T) {
+	ctx := mustBrowser(t)
+	openPage(t, ctx, mustServer(t))
+	loadDemo(t, ctx, "long-pulse-blind")
+	waitFor(t, ctx, "settled", fresh)
+	eval[bool](t, ctx, jsCatchDownloads)
+	scene := "Long pulse: blind near range and folded echoes"
+	save := func(button, wantName, wantSub string) {
+		t.Helper()
+		eval[bool](t, ctx, `(window.__downloads.length = 0, window.__drawn.length = 0, true)`)
+		do(t, ctx, chromedp.Click(chromedp.CSS(button)))
+		waitFor(t, ctx, "the download of "+wantName, `window.__downloads.length === 1`)
+		d := eval[map[string]string](t, ctx, `window.__downloads[0]`)
+		const head = "data:image/png;base64,"
+		if d["name"] != wantName || !strings.HasPrefix(d["href"], head) {
+			t.Errorf("%s saved %q (%.30s…), want %s as a PNG", button, d["name"], d["href"], wantName)
+		} else if png, err := base64.StdEncoding.DecodeString(d["href"][len(head):]); err == nil {
+			// The saved picture, kept beside the screenshots.
+			os.MkdirAll(outDir, 0o755)
+			os.WriteFile(filepath.Join(outDir, "TestPNGButtons-"+wantName), png, 0o644)
+		}
+		drawn := eval[[]string](t, ctx, `window.__drawn`)
+		var title, sub bool
+		for _, s := range drawn {
+			title = title || s == scene
+			sub = sub || strings.HasPrefix(s, wantSub+" · Pulsewright · ") && strings.HasSuffix(s, " UTC")
+		}
+		if !title || !sub {
+			t.Errorf("%s: the picture's band lacks the title or the subtitle %q (drawn: %q)", button, wantSub, drawn)
+		}
+	}
+	save(`button[data-png="profile"]`, "Long-pulse-blind-near-range-and-folded-echoes-profile.png", "Compressed range profile")
+	save(`#panel-right button.png`, "Long-pulse-blind-near-range-and-folded-echoes-response.png", "Response")
+	// This schedule's CPIs are single pulses: no maps, nothing to save.
+	do(t, ctx, chromedp.Click(chromedp.CSS(`[data-show="cpimaps"]`)))
+	waitFor(t, ctx, "the CPI maps tab", `document.querySelector('#cpimaps').classList.contains('on')`)
+	eval[bool](t, ctx, `(window.__downloads.length = 0, true)`)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#panel-left button.png`)))
+	waitFor(t, ctx, "the nothing-to-save notice", `!document.querySelector('#notice').hidden && document.querySelector('#notice-text').textContent.includes('no plot to save')`)
+	if n := eval[int](t, ctx, `window.__downloads.length`); n != 0 {
+		t.Errorf("an empty CPI maps tab saved %d files", n)
+	}
+	do(t, ctx, chromedp.Click(chromedp.CSS(`#notice-close`)))
+
+	// A pulse-train schedule: the CPI maps, opened by a real click, come
+	// from the server, and the PNG button saves the first.
+	loadDemo(t, ctx, "hill-clutter-doppler")
+	waitFor(t, ctx, "settled", fresh)
+	scene = "Low flyer over hill clutter, seen in Doppler"
+	do(t, ctx, chromedp.Click(chromedp.CSS(`[data-show="echo"]`)), chromedp.Click(chromedp.CSS(`[data-show="cpimaps"]`)))
+	waitFor(t, ctx, "the CPI maps", `(() => { const c = window.__pw.plots.charts.cpimap1; const o = c && c.getOption(); return !!o && o.series.length > 0 && !document.querySelector('.cpi-map[data-cpi="1"]').hidden; })()`)
+	save(`#panel-left button.png`, "Low-flyer-over-hill-clutter-seen-in-Doppler-cpimap1.png", "CPI 1 range–Doppler map")
+	shot(t, ctx, "cpimaps")
 }

@@ -8,7 +8,7 @@ import (
 )
 
 // mapPixels samples, at the centre of every heat-map cell away from the
-// markers, the range–Doppler map as ECharts drew it (its series layer)
+// markers and their names (wherever the chart placed them), the range–Doppler map as ECharts drew it (its series layer)
 // and as the page's heat layer (fastlayer.js, HeatLayer) draws the same
 // data; the pairs of colours come back as [[r,g,b, r,g,b], …]. A cell
 // matches when the layer's colour equals ECharts' at its centre or at a
@@ -18,6 +18,10 @@ const mapPixels = `(() => {
 	const o = chart.getOption();
 	const cells = o.series.find((s) => s.id === 'rdmap').data;
 	const marks = o.series.find((s) => s.id === 'markers').data.map((d) => chart.convertToPixel({xAxisIndex: 1, yAxisIndex: 1}, d.value));
+	const names = [];
+	const md = chart.getModel().getSeries().find((s) => s.id === 'markers').getData();
+	md.each((i) => { const el = md.getItemGraphicEl(i); const p = el && (el.getSymbolPath ? el.getSymbolPath() : el); const tx = p && p.getTextContent && p.getTextContent();
+		if (!tx || tx.ignore || tx.invisible) return; const r = tx.getBoundingRect().clone(); r.applyTransform(tx.getComputedTransform()); names.push(r); });
 	const rect = chart.getModel().getComponent('grid', 0).coordinateSystem.getRect();
 	const cols = o.xAxis[0].data.length, rows = o.yAxis[0].data.length;
 	const dpr = window.devicePixelRatio || 1;
@@ -30,6 +34,7 @@ const mapPixels = `(() => {
 	for (const [c, r] of cells) {
 		const x = rect.x + (c + 0.5) * rect.width / cols, y = rect.y + rect.height - (r + 0.5) * rect.height / rows;
 		if (marks.some((m) => x > m[0] - 14 && x < m[0] + 100 && Math.abs(m[1] - y) < 14)) continue;
+		if (names.some((r) => x > r.x - 2 && x < r.x + r.width + 2 && y > r.y - 2 && y < r.y + r.height + 2)) continue;
 		const mine = at(ours, x, y);
 		const near = [[0, 0], [-1, 0], [1, 0], [0, -1], [0, 1]].map(([dx, dy]) => at(theirs, x + dx, y + dy));
 		const best = near.reduce((a, b) => (Math.max(...b.map((v, i) => Math.abs(v - mine[i]))) < Math.max(...a.map((v, i) => Math.abs(v - mine[i]))) ? b : a));

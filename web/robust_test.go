@@ -108,6 +108,18 @@ func TestBadImportKeepsPageAndScene(t *testing.T) {
 		shot(t, ctx, bad.name)
 		do(t, ctx, chromedp.Click(chromedp.CSS(`#notice-close`)))
 	}
+	// The editor's own guard, behind the check above: refusals at a
+	// top-level or unknown path that reach it find no field and come back
+	// as the page's own messages, without freezing the page.
+	c, cancel := context.WithTimeout(ctx, 5*time.Second)
+	defer cancel()
+	orphans, err := chromedp.Run(c, chromedp.Evaluate[[]string](`window.__pw.editor.showErrors([{path: 'version', message: '4 is not supported'}, {path: 'colour', message: 'unknown field'}])`))
+	if err != nil {
+		t.Fatalf("the editor's messages for top-level paths: %v (frozen page?)", err)
+	}
+	if len(orphans) != 2 {
+		t.Errorf("messages without a field: %q, want the two top-level ones", orphans)
+	}
 }
 
 func TestBadLinkOnOpenShowsMessageAndScene(t *testing.T) {

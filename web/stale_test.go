@@ -108,6 +108,12 @@ func TestStalePlotsSaySo(t *testing.T) {
 	if v := eval[float64](t, ctx, `window.__pw.store.scenario.targets[2].rcs_dbsm`); v != 12 {
 		t.Logf("scene holds %g (the last valid text, \"12\")", v)
 	}
+	// The figures column's verdicts are the plotted scene's too: dimmed
+	// with the figures.
+	o := eval[string](t, ctx, `[...document.querySelectorAll('#figures, .story-masked')].map((e) => getComputedStyle(e).opacity).join(' ')`)
+	if f := strings.Fields(o); len(f) < 2 || strings.Trim(o, "0.5 ") != "" {
+		t.Errorf("opacity of the figures and the masked targets' reasons while not updated: %q, want 0.5 each", o)
+	}
 	shot(t, ctx, "not-a-number")
 
 	// Copy link now: the notice says the link is the plotted, last valid

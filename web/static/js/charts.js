@@ -6,6 +6,7 @@
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { SeriesMarkers } from './protocol.js';
 import { FastLayer, Fixed, HeatLayer, layerSeries, tooltipAbove } from './fastlayer.js';
+import { keepNamesClear } from './labels.js';
 import { axisPatch, axisUnits, format, niceTicks, restate, signed } from './units.js';
 
 const HitPx = 9; // how near the pointer must be to a marker, px
@@ -410,6 +411,7 @@ export class Plots {
       this.fasts[name].setStyles(entry.option);
       layerSeries(entry.option);
     }
+    if (entry.replace && (name === 'profile' || name === 'rdmap' || name.startsWith('cpimap'))) keepNamesClear(name, entry.option, chart);
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     if (name === 'profile' || name === 'echo') {
       const series = [entry.option.series || []].flat();

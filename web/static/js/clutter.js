@@ -56,12 +56,12 @@ export function clutterFields(editor, s, i, t) {
         x[k] = def;
       }, `surface:${i}`);
     });
-    out.push(h('div', { class: 'field' }, h('label', { for: id }, 'Surface given by'), sel));
+    out.push(h('div', { class: 'field wide' }, h('label', { for: id }, 'Surface given by'), sel));
     if (cur === 'sea_state') {
       out.push(editor.field(s, base, { key: 'polarisation', label: 'Polarisation', unit: '', scale: 1, type: 'select', options: ['horizontal', 'vertical'], def: 'horizontal' }));
     }
   }
-  out.push(editor.field(s, base, { key: 'role', label: 'Role', unit: '', scale: 1, type: 'select', options: roleOptions, def: 'clutter' }));
+  out.push(editor.field(s, base, { key: 'role', label: 'Role', unit: '', scale: 1, type: 'select', options: roleOptions, def: 'clutter', wide: true }));
   return out;
 }
 

@@ -43,7 +43,8 @@ export function initFocus({ plots, frame }) {
     if (key === last) return;
     last = key;
     const opts = [new Option('Focus…', ''), new Option('whole window', '*')];
-    for (const t of targets) opts.push(new Option(t.masked_by ? `${t.id} and ${t.masked_by} (masks it)` : t.id, t.id));
+    // A target masked by its own sidelobes has no other target to show.
+    for (const t of targets) opts.push(new Option(t.masked_by && t.masked_by !== t.id ? `${t.id} and ${t.masked_by} (masks it)` : t.id, t.id));
     sel.replaceChildren(...opts);
   };
   plots.charts.profile.getDom().addEventListener('dblclick', (ev) => {

@@ -602,10 +602,22 @@ $('#btn-export').addEventListener('click', () => {
 let engineText = '';
 $('#btn-csv').addEventListener('click', () => download(`${fileStem()}-profile.csv`, (engineText ? `# ${engineText}\n` : '') + plots.profileCSV(), 'text/csv'));
 // PNG: a printable picture of the shown plot, titled, without the slider.
-const plotTitle = (name) => ($(`.plot-head [data-show="${name}"]`) || $('.plot-label')).textContent.trim();
+// A CPI map is named by its CPI.
+const plotTitle = (name) => {
+  const cpi = /^cpimap(\d+)$/.exec(name);
+  if (cpi) return `CPI ${cpi[1]} range–Doppler map`;
+  return ($(`.plot-head [data-show="${name}"]`) || $('.plot-label')).textContent.trim();
+};
 for (const b of $$('[data-png]')) {
   b.addEventListener('click', async () => {
-    const name = b.dataset.png;
+    let name = b.dataset.png;
+    // The CPI maps' tab, opened before its maps arrived: its first map.
+    const first = name === 'cpimaps' && $$('#cpimaps .cpi-map').find((x) => !x.hidden);
+    if (first) name = `cpimap${first.dataset.cpi}`;
+    if (!plots.charts[name]) {
+      notice('This tab holds no plot to save as PNG.');
+      return;
+    }
     const title = (store.scenario && store.scenario.name) || 'Untitled scene';
     const when = new Date().toISOString().slice(0, 16).replace('T', ' ');
     download(`${fileStem()}-${name}.png`, await printablePNG(plots.charts[name], { title, subtitle: `${plotTitle(name)} · Pulsewright · ${when} UTC` }));

@@ -6,6 +6,7 @@
 
 import * as echarts from '../vendor/echarts/echarts.esm.min.js';
 import { $, $$, h } from './dom.js';
+import { format, onUnits, signed, toUser, unit } from './units.js';
 
 const { store, plots, session, onFrame } = window.__pw;
 const MaxCPIs = 16; // scenarios.MaxCPIs: the radar's own CPI and 15 more
@@ -15,6 +16,9 @@ const localErrors = new Map(); // path → message for text that is not a number
 
 const plain = (v) => String(v).replace(/[{}]/g, '');
 const num = (v, d) => (Number.isFinite(v) ? v.toFixed(d) : '—');
+// Ranges and speeds of the verdicts in the user's units (units.js), a
+// range with d decimals (in km when the unit is metres).
+const far = (m, d) => (unit('range') === 'm' ? `${num(m / 1000, d)} km` : `${num(toUser('range', m), d)} ${unit('range')}`);
 const wrap = (text, width = 56) => {
   const lines = [];
   let line = '';
@@ -384,12 +388,12 @@ function renderVerdicts(sr) {
   verdicts.hidden = !sr;
   if (!sr) return;
   const head = [`PRF schedule · ${sr.n} CPIs · ${sr.m}-of-${sr.n}`];
-  if (sr.unambiguous_range_m !== undefined) head.push(`unambiguous to ${num(sr.unambiguous_range_m / 1000, 1)} km`);
+  if (sr.unambiguous_range_m !== undefined) head.push(`unambiguous to ${far(sr.unambiguous_range_m, 1)}`);
   const clutter = new Set((report.targets || []).filter((t) => t.status === 'clutter').map((t) => t.id));
   const rows = sr.targets.filter((t) => !clutter.has(t.id)).map((t) => {
     const found = [];
-    if (t.range_m !== undefined) found.push(`${num(t.range_m / 1000, 2)} km`);
-    if (t.range_rate_mps !== undefined) found.push(`${num(t.range_rate_mps, 1)} m/s`);
+    if (t.range_m !== undefined) found.push(far(t.range_m, 2));
+    if (t.range_rate_mps !== undefined) found.push(signed(t.range_rate_mps, 1));
     return h('li', { class: t.detected ? 'ok' : 'miss', title: t.reason },
       h('span', { class: 'mark' }, t.detected ? '✓' : '✗'), ' ', h('b', {}, t.id),
       ` ${t.detected ? 'detected' : 'missed'}, ${t.detected_in} of ${sr.n} CPIs`,
@@ -402,8 +406,8 @@ function renderVerdicts(sr) {
 // range and each target's count of detecting CPIs.
 function summary(sr) {
   const parts = [`${sr.n} CPIs, ${sr.m}-of-${sr.n}`];
-  if (sr.unambiguous_range_m !== undefined) parts.push(`unambiguous to ${num(sr.unambiguous_range_m / 1000, 1)} km`);
-  if (sr.first_blind_speed_mps !== undefined) parts.push(`first common blind speed ${num(sr.first_blind_speed_mps, 1)} m/s`);
+  if (sr.unambiguous_range_m !== undefined) parts.push(`unambiguous to ${far(sr.unambiguous_range_m, 1)}`);
+  if (sr.first_blind_speed_mps !== undefined) parts.push(`first common blind speed ${format('speed', sr.first_blind_speed_mps, 1)}`);
   const clutter = new Set(((report && report.targets) || []).filter((t) => t.status === 'clutter').map((t) => t.id));
   const ts = sr.targets.filter((t) => !clutter.has(t.id)).map((t) => `${t.id} ${t.detected ? '✓' : '✗'} ${t.detected_in}/${sr.n}`);
   const el = $('#sched-sum');
@@ -425,4 +429,11 @@ $('.plot-head [data-show="cpimaps"]').addEventListener('click', () => {
     plots.charts[name].resize();
     plots.flush(name);
   }
+});
+
+// A change of units restates the verdicts and the summary.
+onUnits(() => {
+  const sr = report && report.schedule;
+  renderVerdicts(sr);
+  if (sr) summary(sr);
 });
