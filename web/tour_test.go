@@ -1,6 +1,7 @@
 package web_test
 
 import (
+	"context"
 	"fmt"
 	"regexp"
 	"strings"
@@ -181,14 +182,46 @@ const jsNameClashes = `((name, half) => {
 	for (const p of plates) for (const m of marks) if (meets(p.r, m.r)) out.push('the label "' + p.text + '" under ' + m.id + "'s marker");
 	return out; })`
 
+// jsFastNameClashes is jsNameClashes for the names the fast layer of
+// chart name drew last (fastlayer.js: its labels, with the boxes their
+// placement used, and its markers): a chart resting behind its fast
+// layer shows those.
+const jsFastNameClashes = `((name, half) => {
+	const fast = window.__pw.plots.fasts[name];
+	const meets = (a, b) => a.x < b.x + b.width && b.x < a.x + a.width && a.y < b.y + b.height && b.y < a.y + a.height;
+	const sq = (m) => ({ x: m.x - half, y: m.y - half, width: 2 * half, height: 2 * half });
+	const ink = (l) => l.ink || { x: l.box.x, y: l.box.y, width: l.box.w, height: l.box.h };
+	const names = fast.labels.filter((l) => l.of), plates = fast.labels.filter((l) => l.shift);
+	const out = [];
+	if (fast.marks.length === 0) out.push('no markers drawn');
+	for (const m of fast.marks) if (!names.some((n) => n.of === m)) out.push('a marker at ' + Math.round(m.x) + ',' + Math.round(m.y) + ' px without its name');
+	for (const n of names) {
+		for (const m of fast.marks) if (m !== n.of && meets(ink(n), sq(m))) out.push(n.text + ': name over the marker at ' + Math.round(m.x) + ',' + Math.round(m.y) + ' px');
+		for (const p of plates) if (meets(ink(n), ink(p))) out.push(n.text + ': name under the label "' + p.text + '"');
+	}
+	for (const p of plates) for (const m of fast.marks) if (meets(ink(p), sq(m))) out.push('the label "' + p.text + '" under the marker at ' + Math.round(m.x) + ',' + Math.round(m.y) + ' px');
+	return out; })`
+
+// nudgeToRest nudges the level of target i (a weak one: the axes stay)
+// down 1 dB, as the wheel does, and waits until chart name rests behind
+// its fast layer.
+func nudgeToRest(t *testing.T, ctx context.Context, name string, i int) {
+	t.Helper()
+	eval[bool](t, ctx, fmt.Sprintf(`(window.__pw.editor.nudge(%d, -1), true)`, i))
+	waitFor(t, ctx, name+" at rest behind its fast layer", fresh+` && window.__pw.plots.behind.has('`+name+`') && window.__pw.plots.fasts.`+name+`.active`)
+}
+
 // TestMarkerNamesClear: on the demos whose targets sit close together,
 // each marker's name on the profile is drawn, and clear of the other
 // markers and of the masking label; the masking label is clear of the
 // markers. On the pulse train's range–Doppler map, no name covers
-// another marker (the ridge's covered the jet's).
+// another marker (the ridge's covered the jet's). The same holds for the
+// names the fast layers draw while the profile and the map rest behind
+// them after an edit.
 func TestMarkerNamesClear(t *testing.T) {
 	ctx := mustBrowser(t)
 	openPage(t, ctx, mustServer(t))
+	weak := map[string]int{"squall-line": 0, "rocky-coast": 1, "harbour-skiff": 1} // light-aircraft, buoy, skiff
 	for _, d := range []string{"squall-line", "rocky-coast", "harbour-skiff"} {
 		loadDemo(t, ctx, d)
 		waitFor(t, ctx, d+" settled", fresh+` && window.__pw.plots.charts.profile.getOption().series.find((s) => s.id === 'markers').data.length === window.__pw.frame().report.targets.length`)
@@ -196,6 +229,13 @@ func TestMarkerNamesClear(t *testing.T) {
 			t.Errorf("%s: %s", d, c)
 		}
 		shot(t, ctx, d)
+		// After an edit the profile rests behind its fast layer, which
+		// must place the names as the chart does.
+		nudgeToRest(t, ctx, "profile", weak[d])
+		for _, c := range eval[[]string](t, ctx, jsFastNameClashes+`('profile', 5.5)`) {
+			t.Errorf("%s after a nudge (the fast layer): %s", d, c)
+		}
+		shot(t, ctx, d+"-nudged")
 	}
 	loadDemo(t, ctx, "hill-clutter-doppler")
 	waitFor(t, ctx, "the map settled", fresh+` && window.__pw.plots.fasts.rdmap.ready() && window.__pw.plots.charts.rdmap.getOption().series.find((s) => s.id === 'markers').data.length === window.__pw.frame().report.targets.length`)
@@ -203,6 +243,11 @@ func TestMarkerNamesClear(t *testing.T) {
 		t.Errorf("hill-clutter-doppler map: %s", c)
 	}
 	shot(t, ctx, "hill-clutter-doppler")
+	nudgeToRest(t, ctx, "rdmap", 2) // the jet
+	for _, c := range eval[[]string](t, ctx, jsFastNameClashes+`('rdmap', 6.5)`) {
+		t.Errorf("hill-clutter-doppler map after a nudge (the heat layer): %s", c)
+	}
+	shot(t, ctx, "hill-clutter-doppler-nudged")
 	// The schedule's CPI maps, opened by a real click.
 	do(t, ctx, chromedp.Click(chromedp.CSS(`[data-show="cpimaps"]`)))
 	waitFor(t, ctx, "the CPI maps", `(() => { const c = window.__pw.plots.charts.cpimap1; const o = c && c.getOption(); return !!o && o.series.length > 0 && !document.querySelector('.cpi-map[data-cpi="1"]').hidden; })()`)

@@ -187,15 +187,16 @@ export class Plots {
       tooltipAbove(this.charts[name]);
     }
     this.fast = this.fasts.profile;
-    // Line charts whose fast layer stands in for them at rest: the frames
+    // Charts whose fast layer stands in for them at rest: the frames
     // rested, and the chart would draw the same axes (and the same level-0
     // areas) as the layer's, so setOption (a whole re-layout, 10–40 ms
-    // quiet) waits until something reads or redraws the chart's data.
+    // quiet; the range–Doppler map's 20 ms) waits until something reads or
+    // redraws the chart's data.
     this.behind = new Set();
     this.fixed = {}; // chart name → its level-0 series' data as the chart holds them (fixedParts)
     this.axisMiss = []; // predicted extents ECharts did not give (none expected), for the tests
     window.__pwAxisMiss = this.axisMiss;
-    for (const name of ['profile', 'echo']) {
+    for (const name of ['profile', 'echo', 'rdmap']) {
       const chart = this.charts[name];
       for (const m of SyncCalls) {
         const f = chart[m].bind(chart);
@@ -226,9 +227,19 @@ export class Plots {
     for (const c of Object.values(this.charts)) c.on('datazoom', () => niceTicks(c));
     this.charts.profile.on('datazoom', () => this.syncAll());
     this.charts.echo.on('datazoom', () => this.syncAll());
-    const ro = new ResizeObserver(() => {
-      for (const c of Object.values(this.charts)) c.resize();
-      this.viewChanged();
+    // Only a chart whose box changed is resized: a resize re-lays out the
+    // chart (and brings a resting one up to date), and the observer also
+    // reports boxes that kept their size (the first observation, a pane
+    // shown again at its old size).
+    const ro = new ResizeObserver((entries) => {
+      let changed = false;
+      for (const e of entries) {
+        const c = echarts.getInstanceByDom(e.target);
+        if (!c || (e.target.clientWidth === c.getWidth() && e.target.clientHeight === c.getHeight())) continue;
+        c.resize();
+        changed = true;
+      }
+      if (changed) this.viewChanged();
     });
     this.ro = ro;
     for (const el of Object.values(els)) ro.observe(el);
@@ -328,17 +339,22 @@ export class Plots {
     this.onSettle();
   }
 
-  // Whether chart name may stay behind its fast layer at rest: it is the
-  // profile or the echo, not zoomed, holds one data merge that the layer
-  // drew whole, its level-0 series are as the chart holds them, and its
-  // axes would come out as they stand.
+  // Whether chart name may stay behind its fast layer at rest: it holds
+  // one data merge that the layer drew whole and, for the profile and the
+  // echo, it is not zoomed, its level-0 series are as the chart holds
+  // them, and its axes would come out as they stand.
   canWait(name) {
-    if (name !== 'profile' && name !== 'echo') return false;
-    if (this.visibleRange() !== null) return false; // zoomed: panning redraws from the chart's data
+    if (!this.fasts[name]) return false;
     const q = this.pending[name] || [];
     if (q.length !== 1 || q[0].replace) return false;
     const fast = this.fasts[name];
     const series = [q[0].option.series || []].flat();
+    if (name === 'rdmap') {
+      // The map's axes and colour scale come with its full options only
+      // (its data merges carry series), and it does not zoom.
+      return Object.keys(q[0].option).every((k) => k === 'series') && series.every((s) => s && fast.styles.has(s.id));
+    }
+    if (this.visibleRange() !== null) return false; // zoomed: panning redraws from the chart's data
     if (series.some((s) => !s || (!Fixed.has(s.id) && !fast.styles.has(s.id)))) return false;
     const held = this.fixed[name] || new Map();
     for (const [k, v] of fixedParts(series)) if (held.get(k) !== v) return false;
@@ -407,11 +423,12 @@ export class Plots {
       spaceAxisLabels(entry.option, chart.getWidth());
       axisUnits(entry.option);
     }
+    // The names' placement first: the fast layer learns it with the styles.
+    if (entry.replace && (name === 'profile' || name === 'rdmap' || name.startsWith('cpimap'))) keepNamesClear(name, entry.option, chart);
     if (this.fasts[name] && entry.replace) {
       this.fasts[name].setStyles(entry.option);
       layerSeries(entry.option);
     }
-    if (entry.replace && (name === 'profile' || name === 'rdmap' || name.startsWith('cpimap'))) keepNamesClear(name, entry.option, chart);
     chart.setOption(entry.option, { notMerge: !!entry.replace });
     if (name === 'profile' || name === 'echo') {
       const series = [entry.option.series || []].flat();

@@ -16,6 +16,8 @@
 // beyond the axes as they stood are clipped to the plot area until the
 // chart settles and rescales.
 
+import { MaxPlaced, clearPlace, shiftPast } from './labels.js';
+
 // The zlevel of the series this layer stands in for. The blind range and
 // the clutter breakthrough areas (mark areas, which the chart takes when
 // the frames rest) stay with the axes on level 0.
@@ -62,6 +64,7 @@ export class FastLayer {
     this.styles = new Map(); // series id → how it is drawn
     this.data = new Map(); // series id → its newest data
     this.labels = []; // the labels last drawn, each with its box
+    this.marks = []; // the markers last drawn whose names labels.js places
     this.active = false;
   }
 
@@ -87,6 +90,8 @@ export class FastLayer {
         border: is.borderColor ? { colour: is.borderColor, width: is.borderWidth ?? 1 } : null,
         label: s.label && s.label.show ? s.label : null,
         hideOverlap: !!(s.labelLayout && s.labelLayout.hideOverlap),
+        clear: (s.labelLayout && s.labelLayout.clear) || 0, // labels.js places its names: half a marker, px
+
         opacity80: is.opacity ?? 0.8, // a scatter series' symbols (ECharts' default)
         endLabel: s.endLabel && s.endLabel.show ? s.endLabel : null,
       });
@@ -192,7 +197,9 @@ export class FastLayer {
       }
     });
     const lineLabels = labels.length;
+    this.marks = [];
     for (const [st, data] of scatters) this.markers(null, map, st, data, labels);
+    if (this.marks.length <= MaxPlaced) placeNames(g, labels, this.marks);
     this.labels = hideOverlaps(g, labels);
     const kept = new Set(this.labels);
     for (const l of labels.slice(0, lineLabels)) if (kept.has(l)) text(g, l);
@@ -228,7 +235,7 @@ export class FastLayer {
       last = [px, py];
       if (d && d.label && d.label.show && d.label.formatter) {
         labels.push({ x: px + (d.label.distance ?? 5), y: py, text: d.label.formatter, colour: d.label.color || st.colour,
-          font: d.label.fontWeight === 'bold' ? BoldFont : Font, align: 'left', base: 'middle', plate: d.label.backgroundColor });
+          font: d.label.fontWeight === 'bold' ? BoldFont : Font, align: 'left', base: 'middle', plate: d.label.backgroundColor, shift: st.clear });
       }
     }
     g.stroke();
@@ -260,16 +267,21 @@ export class FastLayer {
         symbol(g, d.symbol || st.symbol || 'circle', px, py, r, is.color || st.colour, border);
         continue;
       }
+      const b = symbolBox(d.symbol || st.symbol || 'circle', r, border ? border.width : 0);
+      // The marker, for the names' placement (labels.js): its point and
+      // its drawn box.
+      const mark = { x: px, y: py, half: st.clear, rect: { x: px - b.right, y: py + b.top, width: 2 * b.right, height: b.bottom - b.top } };
+      if (st.clear) this.marks.push(mark);
       if (st.label && d.name) {
         const colour = st.label.color || '#25292e';
         const hide = st.hideOverlap;
         // ECharts places a label by the symbol's drawn box, its outline
         // included, 5 px away.
-        const b = symbolBox(d.symbol || st.symbol || 'circle', r, border ? border.width : 0);
+        const of = st.clear ? mark : null;
         if (st.label.position === 'right') {
           labels.push({ x: px + b.right + 5, y: py + (b.top + b.bottom) / 2, text: String(d.name), colour, font: Font, align: 'left', base: 'middle',
-            plate: st.label.backgroundColor, line: st.label.lineHeight, hide });
-        } else labels.push({ x: px, y: py + b.top - 5, text: String(d.name), colour, font: Font, align: 'center', base: 'bottom', hide });
+            plate: st.label.backgroundColor, line: st.label.lineHeight, hide, of });
+        } else labels.push({ x: px, y: py + b.top - 5, text: String(d.name), colour, font: Font, align: 'center', base: 'bottom', hide, of });
       }
     }
     if (g) g.restore();
@@ -450,6 +462,41 @@ export function symbolPath(g, kind, x, y, r) {
       break;
     default:
       g.arc(x, y, kind === 'emptyCircle' ? r - 1 : r, 0, 2 * Math.PI);
+  }
+}
+
+// placeNames moves the labels as labels.js has the chart move them (the
+// chart's labelLayout): a masking label that starts over a marker moves
+// right past it, then a marker's name that meets another marker or a
+// masking label goes to the first clear place around its marker. marks
+// are the markers drawn ({x, y, half, rect}), the labels' of.
+function placeNames(g, labels, marks) {
+  // A plate's box, or the text's: its width by the font's size (11 px;
+  // the line box, 13 px, would find no place beside a marker that the
+  // glyphs clear).
+  const box = (l) => {
+    const b = labelBox(g, l);
+    if (l.plate) return { x: b.x, y: b.y, width: b.w, height: b.h };
+    return { x: b.x, y: l.base === 'bottom' ? l.y - 11 : l.y - 5.5, width: b.w, height: 11 };
+  };
+  const square = (m) => ({ x: m.x - m.half, y: m.y - m.half, width: 2 * m.half, height: 2 * m.half });
+  const plates = [];
+  for (const l of labels) {
+    if (!l.shift) continue;
+    const L = box(l);
+    l.x += shiftPast(L, marks.map(square));
+    plates.push((l.ink = box(l)));
+  }
+  for (const l of labels) {
+    if (!l.of) continue;
+    const L = box(l);
+    const others = marks.filter((m) => m !== l.of).map(square).concat(plates);
+    const to = clearPlace(L, l.of.rect, others);
+    if (to) {
+      l.x += to.x - L.x;
+      l.y += to.y - L.y;
+    }
+    l.ink = box(l); // where it ends up, for the tests
   }
 }
 

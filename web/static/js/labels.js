@@ -9,14 +9,56 @@
 // plot is laid out at rest (the page's fast layer, drawing while frames
 // stream, keeps names above).
 
+// The page's fast layers (fastlayer.js) place the names they draw by the
+// same rules (clearPlace, shiftPast), so that a chart resting behind its
+// fast layer shows its names where the chart would.
+
 // Half a marker's symbol and a margin, px: the profile's are 11 px, the
 // maps' (the range–Doppler map, a schedule's CPI maps) 13 px.
-const halfOf = (name) => (name === 'profile' ? 7 : 8);
+export const halfOf = (name) => (name === 'profile' ? 7 : 8);
 
 // Above this many markers the names keep ECharts' own placement (hidden
 // where they overlap): moving them costs a crowded plot's layout more
 // than it helps (201 targets 1 px apart: about 1.6× the layout time).
-const MaxPlaced = 64;
+export const MaxPlaced = 64;
+
+// clearPlace returns where a name whose box is L (chart px, {x, y,
+// width, height}) beside its marker's drawn box R goes when it meets one
+// of the boxes others: the first clear place of under, over, left and
+// right of the marker, as the box {x, y, width, height} there; null when
+// it is clear where it is or no place is.
+export function clearPlace(L, R, others) {
+  if (!others.some((r) => meets(r, L))) return null;
+  const mid = R.y + R.height / 2 - L.height / 2;
+  const places = [
+    [0, R.y + R.height + 3 - L.y], // under
+    [0, R.y - 3 - L.height - L.y], // over (a map's name sits at the right)
+    [R.x - 4 - L.width - L.x, mid - L.y], // left
+    [R.x + R.width + 4 - L.x, mid - L.y], // right
+  ];
+  for (const [dx, dy] of places) {
+    const to = { x: L.x + dx, y: L.y + dy, width: L.width, height: L.height };
+    if (!others.some((r) => meets(r, to))) return to;
+  }
+  return null;
+}
+
+// shiftPast returns how far right a masking label whose box is L moves
+// to start clear of the boxes obstacles (the markers), px (0: it is
+// clear).
+export function shiftPast(L, obstacles) {
+  let dx = 0;
+  for (let moved = true; moved;) {
+    moved = false;
+    for (const r of obstacles) {
+      if (meets(r, { x: L.x + dx, y: L.y, width: L.width, height: L.height }) && r.x + r.width + 3 - L.x > dx) {
+        dx = r.x + r.width + 3 - L.x;
+        moved = true;
+      }
+    }
+  }
+  return dx;
+}
 
 // keepNamesClear gives the markers series of a full option of the chart
 // name ('profile', 'rdmap', 'cpimapK') its label placement.
@@ -30,26 +72,15 @@ export function keepNamesClear(name, option, chart) {
     const s = chart.getModel() && chart.getModel().getSeriesByIndex(p.seriesIndex);
     if (!s || s.getData().count() > MaxPlaced) return out;
     const L = p.labelRect;
-    const others = obstacles(chart, p.seriesIndex, p.dataIndex, half);
-    if (!others.some((r) => meets(r, L))) return out;
-    const R = p.rect;
-    const mid = R.y + R.height / 2 - L.height / 2;
-    const places = [
-      [0, R.y + R.height + 3 - L.y], // under
-      [0, R.y - 3 - L.height - L.y], // over (a map's name sits at the right)
-      [R.x - 4 - L.width - L.x, mid - L.y], // left
-      [R.x + R.width + 4 - L.x, mid - L.y], // right
-    ];
+    const to = clearPlace(L, p.rect, obstacles(chart, p.seriesIndex, p.dataIndex, half));
     // Placed absolutely: the chart library drops an offset (dx, dy) from
     // a label with a plate (the map's names).
-    for (const [dx, dy] of places) {
-      const to = { x: L.x + dx, y: L.y + dy, width: L.width, height: L.height };
-      if (!others.some((r) => meets(r, to))) return { ...out, x: to.x, y: to.y, align: 'left', verticalAlign: 'top' };
-    }
+    if (to) return { ...out, x: to.x, y: to.y, align: 'left', verticalAlign: 'top' };
     return out;
   };
-  // The fast layer reads hideOverlap off the series' labelLayout.
+  // The fast layer reads these off the series' labelLayout.
   place.hideOverlap = true;
+  place.clear = half;
   m.labelLayout = place;
   // A masking label ("rain-band's response masks light-aircraft") that
   // starts over a marker (the masker 150 m beyond) moves right, past it.
@@ -59,19 +90,11 @@ export function keepNamesClear(name, option, chart) {
       const mi = markersIndex(chart);
       if (mi < 0 || chart.getModel().getSeriesByIndex(mi).getData().count() > MaxPlaced) return {};
       const L = p.labelRect;
-      let dx = 0;
-      for (let moved = true; moved;) {
-        moved = false;
-        for (const r of obstacles(chart, mi, -1, half, false)) {
-          if (meets(r, { x: L.x + dx, y: L.y, width: L.width, height: L.height }) && r.x + r.width + 3 - L.x > dx) {
-            dx = r.x + r.width + 3 - L.x;
-            moved = true;
-          }
-        }
-      }
+      const dx = shiftPast(L, obstacles(chart, mi, -1, half, false));
       // Placed absolutely, as above.
       return dx ? { x: L.x + dx, y: L.y, align: 'left', verticalAlign: 'top' } : {};
     };
+    k.labelLayout.clear = half;
   }
 }
 
