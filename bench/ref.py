@@ -875,8 +875,8 @@ class TrialScene:
     """A scene prepared for Monte Carlo trials from the definitions
     (docs/detection-probability.md §8): each trial is the receive window
     with new thermal noise, new Swerling draws of the fluctuating point
-    targets' complex amplitudes and a new realisation of each volume
-    target's scatterers, compressed and tested by the CA-CFAR. A target is
+    targets' powers (each keeps the carrier phase its range gives) and a
+    new realisation of each volume target's scatterers, compressed and tested by the CA-CFAR. A target is
     detected in a trial when the compressed power at the cell of its own
     noise-free peak exceeds that cell's threshold; noise cells are those
     whose whole CFAR window holds less than 1e-3 of the noise in
@@ -934,11 +934,16 @@ class TrialScene:
         for b0 in range(0, count, batch):
             B = min(batch, count - b0)
             x = np.broadcast_to(self.steady, (B, nrec)).copy()
+            # Each fluctuating echo's power is drawn; its carrier phase is
+            # the one its range gives (f holds it), as the trials define a
+            # single pulse's trial (the page's window for the trial's seed).
+            # Echoes sharing a cell keep their relative phase: a uniform
+            # phase here is Go's --random-phase, another model.
             for f, fl in self.fluct:
-                if fl in ("swerling1", "swerling2"):  # exponential power, uniform phase
-                    g = (rng.standard_normal(B) + 1j * rng.standard_normal(B)) * math.sqrt(0.5)
+                if fl in ("swerling1", "swerling2"):  # exponential power, mean 1
+                    g = np.sqrt(rng.exponential(1.0, B))
                 else:  # chi-square with 4 degrees of freedom, mean 1
-                    g = np.sqrt(rng.gamma(2.0, 0.5, B)) * np.exp(2j * np.pi * rng.random(B))
+                    g = np.sqrt(rng.gamma(2.0, 0.5, B))
                 x += g[:, None] * f
             for lo, q, fd in self.rains:
                 rho = np.sqrt(q) * (rng.standard_normal((B, len(q))) + 1j * rng.standard_normal((B, len(q)))) * math.sqrt(0.5)
