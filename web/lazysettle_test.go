@@ -20,7 +20,8 @@ const (
 // (ECharts' setOption, a whole re-layout, is put off), and the page is
 // settled; reading a chart, or the pointer over it, gives the chart the
 // newest data first. An edit that moves the axes settles the charts as
-// before. The axis extents the page predicts are checked against
+// before; one that shrinks the y axis by less than half its span waits
+// on the taller axis until read. The axis extents the page predicts are checked against
 // ECharts' own at every real setOption (__pwAxisMiss).
 func TestSettleWaitsUntilRead(t *testing.T) {
 	ctx := mustBrowser(t)
@@ -65,6 +66,22 @@ func TestSettleWaitsUntilRead(t *testing.T) {
 		t.Error("the profile's option after the big nudge holds other data than the frame's")
 	}
 	shot(t, ctx, "settled")
+	// Back down 30 dB: the y axis would shrink, by less than half its
+	// span (the data still fill it). The profile stays on its fast layer
+	// on the taller axis until read, and refits then.
+	yTop := `window.__pw.plots.charts.profile.getModel().getComponent('yAxis', 0).axis.scale.getExtent()[1]`
+	tall := eval[float64](t, ctx, yTop)
+	eval[bool](t, ctx, `(window.__pw.editor.nudge(0, -30), true)`)
+	waitFor(t, ctx, "the nudge back shown, at rest", fresh+` && window.__pw.frame().id === window.__pwLatencies.at(-1).id`)
+	if !eval[bool](t, ctx, `window.__pw.plots.behind.has('profile') && window.__pw.plots.fast.active`) {
+		t.Error("the profile re-laid out at rest although its data still fill the y axis")
+	}
+	if got, want := eval[string](t, ctx, chartProfile), eval[string](t, ctx, sentProfile); got != want {
+		t.Error("the profile's option after the nudge back holds other data than the frame's")
+	}
+	if top := eval[float64](t, ctx, yTop); !(top < tall) {
+		t.Errorf("read after the nudge back, the profile's y axis tops at %g dB, as before (%g dB): it did not refit", top, tall)
+	}
 	if m := eval[string](t, ctx, `JSON.stringify(window.__pwAxisMiss)`); m != "[]" {
 		t.Errorf("predicted axis extents that ECharts did not give: %s", m)
 	}

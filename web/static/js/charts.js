@@ -121,7 +121,11 @@ function fixedParts(series) {
 
 // Whether chart's axes, as they stand, are those ECharts would give the
 // data (series id → data). check: the chart has just taken that data;
-// a prediction that differs from its axes is logged in miss.
+// a prediction that differs from its axes is logged in miss. Otherwise
+// (roomy) a y axis that would shrink by at most half its span also
+// holds: the data still fill it, and a ±1 dB nudge of the strongest echo
+// across a round number does not re-lay out the chart at every step
+// (the chart refits when it is read or next redrawn).
 function sameExtents(chart, data, miss, check) {
   const model = chart.getModel();
   const e = dataExtents(data);
@@ -131,6 +135,7 @@ function sameExtents(chart, data, miss, check) {
     const want = axisExtent(ax.option, e[k][0], e[k][1]);
     const now = ax.axis.scale.getExtent();
     if (sameExtent(want, now)) continue;
+    if (!check && k === 1 && want && want[0] >= now[0] && want[1] <= now[1] && want[1] - want[0] >= 0.5 * (now[1] - now[0])) continue;
     if (check && want) {
       miss.push({ chart: chart.getDom().id, axis: dim, want, got: now, data: e[k] });
       if (miss.length > 50) miss.shift();
