@@ -6,6 +6,7 @@ import (
 	"io"
 	"log/slog"
 	"maps"
+	"math"
 	"net/http/httptest"
 	"os"
 	"path/filepath"
@@ -385,7 +386,10 @@ func TestEditLatency(t *testing.T) {
 	scenes = append(scenes, scene{"64k-samples", `fetch('/api/v1/demos/harbour-skiff').then((r) => r.json()).then((s) => {
 		s.radar.sample_rate_hz = 20e6; s.radar.pri_s = 4e-3; s.radar.window_start_m = 3500;
 		s.radar.window_stop_m = 3500 + 65535 * 299792458 / 2 / 20e6; return s; })`})
-	const edits = 20
+	// 60 edits a scene: the 95th percentile is then the 57th, so that one
+	// late vsync of a 2-core machine running the browser, the server and
+	// this test does not decide it alone (of 20, it was the 19th).
+	const edits = 60
 	// PW_EDIT_GAP_MS paces the nudges (ms from one nudge to the next, at
 	// least; the repaint is waited for as always) to compare two builds
 	// at the same cadence; unset, each nudge follows its repaint at once.
@@ -427,6 +431,13 @@ func TestEditLatency(t *testing.T) {
 		}
 		long := eval[[]float64](t, ctx, `window.__pwLongTasks`)
 		st := stats(lat)
+		if os.Getenv("PW_EDIT_SERIES") != "" {
+			var b strings.Builder
+			for _, l := range lat {
+				fmt.Fprintf(&b, " %.0f/%.0f/%.0f", l.EditMS, l.ComputeMS, l.WaitMS)
+			}
+			t.Logf("%s edit/compute/send→arrival ms in order:%s", sc.name, b.String())
+		}
 		t.Logf("%-16s %2d edits  edit→pixels median %4.0f ms, p95 %4.0f | send→pixels median %4.0f, p95 %4.0f | all plots median %4.0f, p95 %4.0f | load %s→%s",
 			sc.name, len(lat), median(st.edit), quantile(st.edit, 0.95), median(st.ms), quantile(st.ms, 0.95), median(st.all), quantile(st.all, 0.95), load0, load1)
 		t.Logf("%-16s stages (medians): server compute %.1f ms | send→arrival %.1f | parse %.1f | profile setOption %.1f | marks %.1f | arrival→pixels %.1f | after the paint: other plots, panels %.1f | long tasks %d, max %.0f ms | %s",
@@ -480,10 +491,13 @@ func stats(lat []latency) latencyStats {
 	return s
 }
 
+// quantile is the q-quantile of v by the nearest-rank method: the
+// ⌈q·n⌉-th smallest of the n values (the 19th of 20 for the 95th
+// percentile; this took the 20th, the maximum, before).
 func quantile(v []float64, q float64) float64 {
 	s := slices.Clone(v)
 	slices.Sort(s)
-	return s[min(len(s)-1, int(q*float64(len(s))))]
+	return s[max(0, min(len(s)-1, int(math.Ceil(q*float64(len(s))))-1))]
 }
 
 func median(v []float64) float64 { return quantile(v, 0.5) }
