@@ -410,10 +410,7 @@ func (sc *scene) analyseMapClutter(cs *clutterScene, cf2 *dsp.CFAR2D) *clutterSc
 	cur := &keptLevels{cf2: cf2, n: n, nb: nb, noise: slices.Clone(tr.noise), processed: slices.Clone(m.processed),
 		pow: make([]float64, n*nb), level: make([]float64, n*nb), has: make([]bool, n*nb)}
 	for k := range n {
-		row := cur.pow[k*nb : (k+1)*nb]
-		for d := range row {
-			row[d] = sc.scenePower(k, d)
-		}
+		sc.scenePowerRow(k, cur.pow[k*nb:(k+1)*nb])
 	}
 	prev := m.memo.levelsFor(cf2, n, nb, tr.noise, m.processed, cur.pow)
 	// changed[k+1] − changed[lo] counts the columns lo … k that differ
@@ -496,10 +493,7 @@ func newPowerColumns(sc *scene, cf2 *dsp.CFAR2D) *powerColumns {
 func (pc *powerColumns) at(k, d int) float64 {
 	i := k % len(pc.tag)
 	if pc.tag[i] != k {
-		col := pc.cols[i]
-		for dd := range col {
-			col[dd] = pc.sc.scenePower(k, dd)
-		}
+		pc.sc.scenePowerRow(k, pc.cols[i])
 		pc.tag[i] = k
 	}
 	return pc.cols[i][d]
@@ -557,6 +551,40 @@ func (sc *scene) scenePower(k, d int) float64 {
 		s += sc.train.power(i, k, d)
 	}
 	return s
+}
+
+// scenePowerRow sets row[d] to scenePower(k, d) for every Doppler bin d,
+// bit for bit: the same products added in the same order of objects,
+// leaving out the objects whose response holds no power at k (their
+// products are +0, which leaves a sum unchanged).
+func (sc *scene) scenePowerRow(k int, row []float64) {
+	tr := sc.train
+	clear(row)
+	for i := range sc.targets {
+		if gs := tr.groups[i]; gs != nil {
+			any := false
+			for _, g := range gs {
+				if sc.targets[i].resp.at(k-g.shift) != 0 {
+					any = true
+					break
+				}
+			}
+			if any {
+				for d := range row {
+					row[d] += tr.power(i, k, d)
+				}
+			}
+			continue
+		}
+		a := sc.targets[i].resp.at(k)
+		if a == 0 {
+			continue
+		}
+		gain := tr.gain[i][:len(row)]
+		for d := range row {
+			row[d] += a * gain[d]
+		}
+	}
 }
 
 // spans merges ascending gates into runs of adjacent gates.
