@@ -430,11 +430,21 @@ func (f *frame) encode(sent map[string]string) []byte {
 
 // appendTo is encode appending to b.
 func (f *frame) appendTo(b []byte, sent map[string]string) []byte {
+	// The size of what is written below: a chart the page holds is left
+	// out, one of the structure it holds is sent as its data alone.
 	size := len(f.report) + len(f.reference) + len(f.link) + 128
 	for _, c := range f.charts {
-		size += len(c.option) + 64
+		held := sent[c.name] == c.key
+		if c.static && held {
+			continue
+		}
+		size += len(c.name) + 64
+		if !held {
+			size += len(c.option)
+			continue
+		}
 		for _, d := range c.data {
-			size += len(d.data) + 32
+			size += len(d.id) + len(d.field) + len(d.data) + 32
 		}
 	}
 	b = slices.Grow(b, size)
