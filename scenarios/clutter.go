@@ -3,7 +3,6 @@ package scenarios
 import (
 	"fmt"
 	"math"
-	"slices"
 	"strings"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -407,8 +406,7 @@ func (sc *scene) analyseClutter(cf *dsp.CFAR, cf2 *dsp.CFAR2D) *clutterScene {
 func (sc *scene) analyseMapClutter(cs *clutterScene, cf2 *dsp.CFAR2D) *clutterScene {
 	m, tr := sc.m, sc.train
 	n, nb := m.n, tr.plan.Bins()
-	cur := &keptLevels{cf2: cf2, n: n, nb: nb, noise: slices.Clone(tr.noise), processed: slices.Clone(m.processed),
-		pow: make([]float64, n*nb), level: make([]float64, n*nb), has: make([]bool, n*nb)}
+	cur := m.memo.newLevels(cf2, n, nb, tr.noise, m.processed)
 	for k := range n {
 		sc.scenePowerRow(k, cur.pow[k*nb:(k+1)*nb])
 	}
@@ -435,11 +433,12 @@ func (sc *scene) analyseMapClutter(cs *clutterScene, cf2 *dsp.CFAR2D) *clutterSc
 		return cur.level[i]
 	}
 	nl := newNoiseLevels(tr, cf2)
+	crossed := make([]bool, len(sc.targets))
 	for k := range n {
 		if !m.processed[k] {
 			continue
 		}
-		crossed := make(map[int]bool)
+		clear(crossed)
 		for d := range nb {
 			s := scenePow(k, d)
 			if s <= tr.noise[d] { // under its own bin's noise (an MTI canceller's bins hold unequal noise)
@@ -454,10 +453,13 @@ func (sc *scene) analyseMapClutter(cs *clutterScene, cf2 *dsp.CFAR2D) *clutterSc
 				crossed[j] = true
 			}
 		}
-		for j := range crossed {
-			cs.gates[j] = append(cs.gates[j], k)
+		for j, c := range crossed {
+			if c {
+				cs.gates[j] = append(cs.gates[j], k)
+			}
 		}
 	}
+	m.memo.doneLevels(prev)
 	m.memo.keepLevels(cur)
 	return cs
 }
@@ -562,14 +564,14 @@ func (sc *scene) scenePowerRow(k int, row []float64) {
 	clear(row)
 	for i := range sc.targets {
 		if gs := tr.groups[i]; gs != nil {
-			any := false
+			on := false
 			for _, g := range gs {
 				if sc.targets[i].resp.at(k-g.shift) != 0 {
-					any = true
+					on = true
 					break
 				}
 			}
-			if any {
+			if on {
 				for d := range row {
 					row[d] += tr.power(i, k, d)
 				}

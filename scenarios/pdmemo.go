@@ -80,6 +80,10 @@ type pdMemo struct {
 	convs    []*keptConv
 	levels   []*keptLevels
 	profiles []*keptProfile
+	// spareLevels are clutter analyses dropped from levels that no
+	// analysis reads any more: their buffers hold the next one's
+	// (reuse.go).
+	spareLevels []*keptLevels
 	// noise is the last single-pulse receive window's noise for
 	// noiseSeed (windowNoise).
 	noise     []complex128

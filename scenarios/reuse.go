@@ -157,12 +157,78 @@ type keptLevels struct {
 	pow       []float64 // pow[k·nb+d]
 	level     []float64
 	has       []bool // level computed
+	// users counts the analyses reading this one as their previous map
+	// (levelsFor to doneLevels); dropped: it left the memo's levels, and
+	// its buffers become a spare when the last user is done.
+	users   int
+	dropped bool
+}
+
+// levelsSpare bounds the spare clutter analyses a memo keeps: their cells
+// count towards levelsKeptCells with those of the kept ones.
+const levelsSpare = 2
+
+// newLevels returns an analysis of a map of n range cells by nb bins for
+// these settings, with pow, level and has of n·nb cells and has all
+// false: a spare one's buffers when one is large enough, new ones
+// otherwise.
+func (p *pdMemo) newLevels(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processed []bool) *keptLevels {
+	var l *keptLevels
+	if p != nil {
+		p.mu.Lock()
+		for i, s := range p.spareLevels {
+			if cap(s.pow) >= n*nb {
+				l = s
+				p.spareLevels = slices.Delete(p.spareLevels, i, i+1)
+				break
+			}
+		}
+		p.mu.Unlock()
+	}
+	if l == nil {
+		return &keptLevels{cf2: cf2, n: n, nb: nb, noise: slices.Clone(noise), processed: slices.Clone(processed),
+			pow: make([]float64, n*nb), level: make([]float64, n*nb), has: make([]bool, n*nb)}
+	}
+	*l = keptLevels{cf2: cf2, n: n, nb: nb, noise: append(l.noise[:0], noise...), processed: append(l.processed[:0], processed...),
+		pow: l.pow[:n*nb], level: l.level[:n*nb], has: l.has[:n*nb]}
+	clear(l.has) // pow is written whole by its user, level where has is set
+	return l
+}
+
+// spare keeps the buffers of an analysis that left the levels and has no
+// user, within levelsSpare and, with the kept ones, levelsKeptCells.
+// The caller holds p.mu.
+func (p *pdMemo) spare(l *keptLevels) {
+	cells := cap(l.pow)
+	for _, o := range p.levels {
+		cells += o.n * o.nb
+	}
+	for _, o := range p.spareLevels {
+		cells += cap(o.pow)
+	}
+	if len(p.spareLevels) < levelsSpare && cells <= levelsKeptCells {
+		p.spareLevels = append(p.spareLevels, l)
+	}
+}
+
+// doneLevels ends a use of l as a previous map (levelsFor).
+func (p *pdMemo) doneLevels(l *keptLevels) {
+	if p == nil || l == nil {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	l.users--
+	if l.users == 0 && l.dropped {
+		p.spare(l)
+	}
 }
 
 // levelsFor returns the kept analysis of a map with these settings whose
 // scene power pow (pow[k·nb+d]) differs from it in the fewest columns, or
 // nil. (One evaluation analyses several maps of the same settings: the
-// scenario's and each CPI's of a schedule.)
+// scenario's and each CPI's of a schedule.) The caller reads the kept
+// analysis until it calls doneLevels.
 func (p *pdMemo) levelsFor(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processed []bool, pow []float64) *keptLevels {
 	if p == nil {
 		return nil
@@ -188,6 +254,9 @@ func (p *pdMemo) levelsFor(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processe
 			}
 		}
 	}
+	if best != nil {
+		best.users++
+	}
 	return best
 }
 
@@ -207,8 +276,26 @@ func (p *pdMemo) keepLevels(l *keptLevels) {
 	for i, o := range p.levels {
 		cells += o.n * o.nb
 		if i >= levelsKept || cells > levelsKeptCells {
+			drop := slices.Clone(p.levels[i:])
 			clear(p.levels[i:])
 			p.levels = p.levels[:i]
+			for _, o := range drop {
+				if o.dropped = true; o.users == 0 {
+					p.spare(o)
+				}
+			}
+			break
+		}
+	}
+	// The kept ones come first: spares beyond the cells left go.
+	cells = 0
+	for _, o := range p.levels {
+		cells += o.n * o.nb
+	}
+	for i, o := range p.spareLevels {
+		if cells += cap(o.pow); cells > levelsKeptCells {
+			clear(p.spareLevels[i:])
+			p.spareLevels = p.spareLevels[:i]
 			break
 		}
 	}

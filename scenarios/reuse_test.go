@@ -228,6 +228,21 @@ func TestReuseBounded(t *testing.T) {
 	for _, l := range ph.levels {
 		cells += l.n * l.nb
 	}
+	spare := 0
+	for _, l := range ph.spareLevels {
+		spare += cap(l.pow)
+		if l.users != 0 || !l.dropped || slices.Contains(ph.levels, l) {
+			t.Errorf("a spare clutter analysis has %d users, dropped %v, kept %v", l.users, l.dropped, slices.Contains(ph.levels, l))
+		}
+	}
+	if len(ph.spareLevels) > levelsSpare || cells+spare > levelsKeptCells {
+		t.Errorf("memo keeps %d spare clutter analyses (bound %d) of %d cells with %d kept cells (bound %d)", len(ph.spareLevels), levelsSpare, spare, cells, levelsKeptCells)
+	}
+	for _, l := range ph.levels {
+		if l.users != 0 {
+			t.Errorf("a kept clutter analysis has %d users after the evaluations", l.users)
+		}
+	}
 	pcells := 0
 	for _, l := range ph.profiles {
 		pcells += l.n * l.nb
