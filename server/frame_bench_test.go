@@ -122,7 +122,9 @@ func nudgeEdits(tb testing.TB, name string) []json.RawMessage {
 // BenchmarkEditFrame: one frame of a single edit on each demo and the
 // 64 k-sample scene, the first point target's RCS nudged by 1 dB up, then back
 // down (the page's wheel), from the raw scenario to the bytes for the
-// websocket, with the session's engine and caches warm.
+// websocket, with the session's engine and caches warm; the bytes go into
+// the writer's reused buffer and the frame back to compute, as writeLoop
+// does.
 func BenchmarkEditFrame(b *testing.B) {
 	for _, name := range editScenes(b) {
 		b.Run(name, func(b *testing.B) {
@@ -138,10 +140,11 @@ func BenchmarkEditFrame(b *testing.B) {
 				if err != nil {
 					b.Fatal(err)
 				}
-				f.encode(sent)
+				ss.out = f.appendTo(ss.out[:0], sent) // as the writer does
 				for _, ch := range f.charts {
 					sent[ch.name] = ch.key
 				}
+				ss.recycle(f)
 			}
 			frameOf(0)
 			frameOf(1)
@@ -159,7 +162,8 @@ func BenchmarkEditFrame(b *testing.B) {
 
 // BenchmarkDragFrame: one frame of a drag on each demo (its first point
 // target moved, the rest unchanged), from the raw scenario to the bytes for the
-// websocket, with the session's engine and caches warm.
+// websocket, with the session's engine and caches warm (the writer's
+// buffer and the frames reused, as in BenchmarkEditFrame).
 func BenchmarkDragFrame(b *testing.B) {
 	demos, err := scenarios.Demos()
 	if err != nil {
@@ -180,10 +184,11 @@ func BenchmarkDragFrame(b *testing.B) {
 				if err != nil {
 					b.Fatal(err)
 				}
-				f.encode(sent)
+				ss.out = f.appendTo(ss.out[:0], sent) // as the writer does
 				for _, ch := range f.charts {
 					sent[ch.name] = ch.key
 				}
+				ss.recycle(f)
 			}
 			frameOf(0)
 			b.ReportAllocs()
