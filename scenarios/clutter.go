@@ -3,6 +3,7 @@ package scenarios
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -407,19 +408,40 @@ func (sc *scene) analyseMapClutter(cs *clutterScene, cf2 *dsp.CFAR2D) *clutterSc
 	m, tr := sc.m, sc.train
 	n, nb := m.n, tr.plan.Bins()
 	cur := m.memo.newLevels(cf2, n, nb, tr.noise, m.processed)
-	for k := range n {
-		sc.scenePowerRow(k, cur.pow[k*nb:(k+1)*nb])
-	}
-	prev := m.memo.levelsFor(cf2, n, nb, tr.noise, m.processed, cur.pow)
 	// changed[k+1] − changed[lo] counts the columns lo … k that differ
 	// from the kept analysis (all of them without one).
 	changed := make([]int, n+1)
-	for k := range n {
-		c := 1
-		if prev != nil && sameFloatBits(prev.pow[k*nb:(k+1)*nb], cur.pow[k*nb:(k+1)*nb]) {
-			c = 0
+	// A kept analysis whose objects differ from these in a few range cells
+	// only (an edit of one target) gives the scene power of the others.
+	var prev *keptLevels
+	if sc.recordInputs(cur) {
+		diff := make([]bool, n)
+		if prev = m.memo.levelsByInputs(cf2, n, nb, tr.noise, m.processed, cur.resp, cur.gain, diff); prev != nil {
+			for k := range n {
+				row := cur.pow[k*nb : (k+1)*nb]
+				c := 0
+				if diff[k] {
+					sc.scenePowerRow(k, row)
+					c = 1
+				} else {
+					copy(row, prev.pow[k*nb:(k+1)*nb])
+				}
+				changed[k+1] = changed[k] + c
+			}
 		}
-		changed[k+1] = changed[k] + c
+	}
+	if prev == nil {
+		for k := range n {
+			sc.scenePowerRow(k, cur.pow[k*nb:(k+1)*nb])
+		}
+		prev = m.memo.levelsFor(cf2, n, nb, tr.noise, m.processed, cur.pow)
+		for k := range n {
+			c := 1
+			if prev != nil && sameFloatBits(prev.pow[k*nb:(k+1)*nb], cur.pow[k*nb:(k+1)*nb]) {
+				c = 0
+			}
+			changed[k+1] = changed[k] + c
+		}
 	}
 	hr := cf2.GuardR + cf2.TrainR/2
 	scenePow := func(k, d int) float64 { return cur.pow[k*nb+d] }
@@ -553,6 +575,31 @@ func (sc *scene) scenePower(k, d int) float64 {
 		s += sc.train.power(i, k, d)
 	}
 	return s
+}
+
+// recordInputs copies into l the inputs of scenePowerRow, each object's
+// response and power per bin, and reports whether it did: not for a
+// stagger's echo groups, nor when the responses hold more samples than
+// the map has cells (the copies stay within the kept analyses' bounds).
+func (sc *scene) recordInputs(l *keptLevels) bool {
+	tr := sc.train
+	size := 0
+	for i, g := range sc.targets {
+		if tr.groups[i] != nil {
+			return false
+		}
+		size += len(g.resp.pow)
+	}
+	if size > l.n*l.nb {
+		return false
+	}
+	l.resp = make([]response, len(sc.targets))
+	l.gain = make([][]float64, len(sc.targets))
+	for i, g := range sc.targets {
+		l.resp[i] = response{lo: g.resp.lo, pow: slices.Clone(g.resp.pow)}
+		l.gain[i] = slices.Clone(tr.gain[i][:l.nb])
+	}
+	return true
 }
 
 // scenePowerRow sets row[d] to scenePower(k, d) for every Doppler bin d,

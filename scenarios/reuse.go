@@ -157,6 +157,11 @@ type keptLevels struct {
 	pow       []float64 // pow[k·nb+d]
 	level     []float64
 	has       []bool // level computed
+	// resp and gain are the inputs of pow (scenePowerRow): each object's
+	// response and power per bin, copies; nil when not recorded (a
+	// stagger's echo groups).
+	resp []response
+	gain [][]float64
 	// users counts the analyses reading this one as their previous map
 	// (levelsFor to doneLevels); dropped: it left the memo's levels, and
 	// its buffers become a spare when the last user is done.
@@ -251,6 +256,61 @@ func (p *pdMemo) levelsFor(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processe
 			best, fewest = l, c
 			if c == 0 {
 				break // the same map
+			}
+		}
+	}
+	if best != nil {
+		best.users++
+	}
+	return best
+}
+
+// levelsByInputs returns the kept analysis with these settings whose
+// objects' responses and gains (resp, gain: the inputs of scenePowerRow)
+// differ from these in the fewest range cells, or nil; diff (n cells)
+// marks where they differ: the kept scene power of every other cell is
+// this scene's bit for bit. Only an analysis with every gain the same bit
+// for bit qualifies. The caller reads it until it calls doneLevels.
+func (p *pdMemo) levelsByInputs(cf2 *dsp.CFAR2D, n, nb int, noise []float64, processed []bool, resp []response, gain [][]float64, diff []bool) *keptLevels {
+	if p == nil {
+		return nil
+	}
+	mark := make([]bool, n)
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	var best *keptLevels
+	fewest := n + 1
+outer:
+	for _, l := range p.levels {
+		if l.resp == nil || len(l.resp) != len(resp) || l.n != n || l.nb != nb || !sameCFAR2D(l.cf2, cf2) || !sameFloatBits(l.noise, noise) || !slices.Equal(l.processed, processed) {
+			continue
+		}
+		for i := range gain {
+			if !sameFloatBits(l.gain[i], gain[i]) {
+				continue outer
+			}
+		}
+		clear(mark)
+		c := 0
+		for i := range resp {
+			a, b := &l.resp[i], &resp[i]
+			if a.lo == b.lo && sameFloatBits(a.pow, b.pow) {
+				continue
+			}
+			lo := max(min(a.lo, b.lo), 0)
+			hi := min(max(a.lo+len(a.pow), b.lo+len(b.pow)), n)
+			for k := lo; k < hi; k++ {
+				if !mark[k] && math.Float64bits(a.at(k)) != math.Float64bits(b.at(k)) {
+					mark[k] = true
+					c++
+				}
+			}
+		}
+		if c < fewest {
+			best, fewest = l, c
+			copy(diff, mark)
+			if c == 0 {
+				break
 			}
 		}
 	}
