@@ -84,6 +84,9 @@ type pdMemo struct {
 	// analysis reads any more: their buffers hold the next one's
 	// (reuse.go).
 	spareLevels []*keptLevels
+	// covs are the noise covariances of the last uniform trains' slow-time
+	// plans (reuse.go), newest first.
+	covs []keptCov
 	// noise is the last single-pulse receive window's noise for
 	// noiseSeed (windowNoise).
 	noise     []complex128

@@ -473,3 +473,56 @@ func sameFloat32Bits(a, b []float32) bool {
 	}
 	return true
 }
+
+// covKept and covKeptBins bound the kept noise covariances: a plan of
+// more bins (nb² complex values) is not kept.
+const (
+	covKept     = 4
+	covKeptBins = 256
+)
+
+// keptCov is the noise covariance of a uniform train's slow-time plan
+// (dsp.SlowTimePlan.NoiseCovariance), a function of the plan's inputs
+// alone: the number of pulses, the MTI canceller and the Doppler window
+// (newPlan). Its users only read it.
+type keptCov struct {
+	pulses int
+	mti    string
+	win    Window
+	cov    [][]complex128
+}
+
+// sameWindow says whether two windows have the same settings bit for bit.
+func sameWindow(a, b Window) bool {
+	return a.Kind == b.Kind && a.NBar == b.NBar && math.Float64bits(a.SidelobeDB) == math.Float64bits(b.SidelobeDB) &&
+		math.Float64bits(a.Beta) == math.Float64bits(b.Beta) && math.Float64bits(a.Sigma) == math.Float64bits(b.Sigma)
+}
+
+// noiseCov returns the kept covariance of a uniform train's plan of these
+// inputs, or computes it with make and keeps it (the newest first, up to
+// covKept plans of at most covKeptBins bins).
+func (p *pdMemo) noiseCov(pulses int, mti string, win Window, make func() [][]complex128) [][]complex128 {
+	if p == nil {
+		return make()
+	}
+	p.mu.Lock()
+	for _, k := range p.covs {
+		if k.pulses == pulses && k.mti == mti && sameWindow(k.win, win) {
+			p.mu.Unlock()
+			return k.cov
+		}
+	}
+	p.mu.Unlock()
+	cov := make()
+	if len(cov) > covKeptBins {
+		return cov
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	if len(p.covs) < covKept {
+		p.covs = append(p.covs, keptCov{})
+	}
+	copy(p.covs[1:], p.covs)
+	p.covs[0] = keptCov{pulses: pulses, mti: mti, win: win, cov: cov}
+	return cov
+}

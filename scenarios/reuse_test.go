@@ -238,6 +238,9 @@ func TestReuseBounded(t *testing.T) {
 	if len(ph.spareLevels) > levelsSpare || cells+spare > levelsKeptCells {
 		t.Errorf("memo keeps %d spare clutter analyses (bound %d) of %d cells with %d kept cells (bound %d)", len(ph.spareLevels), levelsSpare, spare, cells, levelsKeptCells)
 	}
+	if len(ph.covs) == 0 || len(ph.covs) > covKept {
+		t.Errorf("memo keeps %d noise covariances, bound %d and at least one", len(ph.covs), covKept)
+	}
 	for _, l := range ph.levels {
 		if l.users != 0 {
 			t.Errorf("a kept clutter analysis has %d users after the evaluations", l.users)

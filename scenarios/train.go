@@ -76,10 +76,16 @@ func coherentFraction(fluct string) float64 {
 }
 
 // noiseCov returns the plan's noise covariance (dsp.SlowTimePlan.
-// NoiseCovariance), computed on the first call; callers do not change it.
+// NoiseCovariance), computed on the first call or, for a uniform train,
+// kept across evaluations (reuse.go); callers do not change it.
 func (tr *train) noiseCov() [][]complex128 {
 	if tr.cov == nil {
-		tr.cov = tr.plan.NoiseCovariance()
+		if tr.times == nil {
+			rx := tr.m.s.Receiver
+			tr.cov = tr.m.memo.noiseCov(tr.m.s.Radar.Pulses, rx.MTI, rx.DopplerWindow, tr.plan.NoiseCovariance)
+		} else {
+			tr.cov = tr.plan.NoiseCovariance()
+		}
 	}
 	return tr.cov
 }
