@@ -87,6 +87,8 @@ type pdMemo struct {
 	// covs are the noise covariances of the last uniform trains' slow-time
 	// plans (reuse.go), newest first.
 	covs []keptCov
+	// scratch are idle work buffers (takeScratch), the newest last.
+	scratch [][]complex128
 	// noise is the last single-pulse receive window's noise for
 	// noiseSeed (windowNoise).
 	noise     []complex128

@@ -526,3 +526,48 @@ func (p *pdMemo) noiseCov(pulses int, mti string, win Window, make func() [][]co
 	p.covs[0] = keptCov{pulses: pulses, mti: mti, win: win, cov: cov}
 	return cov
 }
+
+// scratchKept and scratchKeptSamples bound the idle work buffers a memo
+// keeps, in count and in complex samples of all of them together.
+const (
+	scratchKept        = 4
+	scratchKeptSamples = 1 << 18
+)
+
+// takeScratch returns a work buffer of n samples whose contents are
+// arbitrary (the caller writes every sample before it reads one): an idle
+// one of the memo's, which the caller then owns until it puts it back, or
+// a new one.
+func (p *pdMemo) takeScratch(n int) []complex128 {
+	if p != nil {
+		p.mu.Lock()
+		for i := len(p.scratch) - 1; i >= 0; i-- {
+			if b := p.scratch[i]; cap(b) >= n {
+				p.scratch = slices.Delete(p.scratch, i, i+1)
+				p.mu.Unlock()
+				return b[:n]
+			}
+		}
+		p.mu.Unlock()
+	}
+	return make([]complex128, n)
+}
+
+// putScratch keeps an idle work buffer, dropping the oldest beyond
+// scratchKept buffers or scratchKeptSamples samples.
+func (p *pdMemo) putScratch(b []complex128) {
+	if p == nil || cap(b) > scratchKeptSamples {
+		return
+	}
+	p.mu.Lock()
+	defer p.mu.Unlock()
+	p.scratch = append(p.scratch, b)
+	total := 0
+	for i := len(p.scratch) - 1; i >= 0; i-- {
+		total += cap(p.scratch[i])
+		if len(p.scratch)-i > scratchKept || total > scratchKeptSamples {
+			p.scratch = slices.Delete(p.scratch, 0, i+1)
+			break
+		}
+	}
+}

@@ -238,6 +238,13 @@ func TestReuseBounded(t *testing.T) {
 	if len(ph.spareLevels) > levelsSpare || cells+spare > levelsKeptCells {
 		t.Errorf("memo keeps %d spare clutter analyses (bound %d) of %d cells with %d kept cells (bound %d)", len(ph.spareLevels), levelsSpare, spare, cells, levelsKeptCells)
 	}
+	samples := 0
+	for _, b := range ph.scratch {
+		samples += cap(b)
+	}
+	if len(ph.scratch) == 0 || len(ph.scratch) > scratchKept || samples > scratchKeptSamples {
+		t.Errorf("memo keeps %d work buffers of %d samples, bounds %d and %d and at least one", len(ph.scratch), samples, scratchKept, scratchKeptSamples)
+	}
 	if len(ph.covs) == 0 || len(ph.covs) > covKept {
 		t.Errorf("memo keeps %d noise covariances, bound %d and at least one", len(ph.covs), covKept)
 	}

@@ -491,11 +491,13 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 			fields[j].pn = pns[j]
 		}
 	}
-	cube := make([]complex128, np*n) // cube[p*n+k]
+	cube := m.memo.takeScratch(np * n) // cube[p*n+k], every sample written below
+	defer m.memo.putScratch(cube)
 	echo0 := make([]complex128, n)
 	scale := complex(1/math.Sqrt(m.noiseGain), 0)
 	err := parallel(ctx, np, func(next func() (int, bool)) {
-		corr := dsp.NewCorrelator(m.ref, m.recLen+m.lead)
+		corr := m.memo.takePlan(m.ref, m.recLen+m.lead)
+		defer m.memo.putPlan(m.ref, m.recLen+m.lead, corr)
 		x := make([]complex128, m.recLen+m.lead)
 		y := make([]complex128, m.recLen+m.lead)
 		own := make([]*clutterField, len(fields))
@@ -574,7 +576,8 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 		plan := tr.newPlan()
 		col := make([]complex128, np)
 		out := make([]complex128, nb)
-		block := make([]complex128, chunk*np) // block[i*np+p]: cell c·chunk+i, pulse p
+		block := m.memo.takeScratch(chunk * np) // block[i*np+p]: cell c·chunk+i, pulse p; the rows read are written first
+		defer m.memo.putScratch(block)
 		for c, ok := next(); ok; c, ok = next() {
 			k0, k1 := c*chunk, min((c+1)*chunk, n)
 			for p := range np { // gather pulse rows in cache-friendly runs
