@@ -447,8 +447,9 @@ func (tr *train) binHz(d int) float64 { return tr.plan.BinFrequency(d) / tr.T }
 // of its own (per pulse for noise, per target for fluctuation and
 // scatterers), so the result does not depend on the number of workers.
 // It returns the map, the first pulse's raw echo and the expected map in
-// linear units ([bin][cell]).
-func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][]float32, error) {
+// linear units (lin[k·nb+d]: range cell k, Doppler bin d; the caller owns
+// it).
+func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, []float32, error) {
 	m := tr.m
 	r := m.s.Radar
 	np, nb, n := r.Pulses, tr.plan.Bins(), m.n
@@ -563,13 +564,12 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 		return nil, nil, nil, err
 	}
 	rd := &RangeDoppler{DopplerHz: make([]float64, nb), RangeRateMPS: make([]float64, nb), DB: make([][]float32, nb), CleanDB: make([][]float32, nb)}
-	lin := make([][]float32, nb)
+	lin := make([]float32, n*nb) // lin[k·nb+d]
 	for d := range nb {
 		rd.DopplerHz[d] = tr.binHz(d)
 		rd.RangeRateMPS[d] = -rd.DopplerHz[d] * m.lambda / 2
 		rd.DB[d] = make([]float32, n)
 		rd.CleanDB[d] = make([]float32, n)
-		lin[d] = make([]float32, n)
 	}
 	const chunk = 256
 	err = parallel(ctx, (n+chunk-1)/chunk, func(next func() (int, bool)) {
@@ -604,7 +604,7 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 				for i, pw := range g.resp.pow {
 					if k := g.resp.lo + i + gr.shift; k >= 0 && k < n {
 						for d := range nb {
-							lin[d][k] += float32(pw * gr.gain[d])
+							lin[k*nb+d] += float32(pw * gr.gain[d])
 						}
 					}
 				}
@@ -614,7 +614,7 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 		for i, pw := range g.resp.pow {
 			k := g.resp.lo + i
 			for d := range nb {
-				lin[d][k] += float32(pw * tr.gain[j][d])
+				lin[k*nb+d] += float32(pw * tr.gain[j][d])
 			}
 		}
 	}
@@ -623,12 +623,12 @@ func (tr *train) simulate(ctx context.Context) (*RangeDoppler, []complex128, [][
 		for q, pw := range e.resp.pow {
 			k := e.resp.lo + q
 			for d := range nb {
-				lin[d][k] += float32(pw * e.gain[d])
+				lin[k*nb+d] += float32(pw * e.gain[d])
 			}
 		}
 	}
-	for d := range nb {
-		for k, v := range lin[d] {
+	for k := range n {
+		for d, v := range lin[k*nb : (k+1)*nb] {
 			rd.CleanDB[d][k] = float32(toDB(float64(v)))
 		}
 	}
@@ -743,7 +743,7 @@ func (tr *train) series(ctx context.Context) (Series, error) {
 		ThresholdDB:  make([]float64, n),
 		RangeDoppler: rd,
 	}
-	clean := func(k, d int) float64 { return float64(lin[d][k]) }
+	clean := func(k, d int) float64 { return float64(lin[k*nb+d]) }
 	cf := tr.cfar()
 	// The level of a cell is kept across evaluations where the map near
 	// it did not change (reuse.go).
@@ -752,11 +752,8 @@ func (tr *train) series(ctx context.Context) (Series, error) {
 	hr := 0
 	if cf != nil && n*nb <= levelsKeptCells && m.memo != nil {
 		cur = &keptProfile{cf2: cf, n: n, nb: nb, noise: slices.Clone(tr.noise), processed: slices.Clone(m.processed),
-			lin: make([]float32, n*nb), bin: make([]int, n), level: make([]float64, n)}
+			lin: lin, bin: make([]int, n), level: make([]float64, n)} // the kept series owns lin
 		for k := range n {
-			for d := range nb {
-				cur.lin[k*nb+d] = lin[d][k]
-			}
 			cur.bin[k] = -1
 		}
 		prev = m.memo.profileFor(cf, n, nb, tr.noise, m.processed, cur.lin)
