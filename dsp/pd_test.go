@@ -762,3 +762,38 @@ func TestPdCorrelatedCA(t *testing.T) {
 		t.Errorf("correlated CA-CFAR: Monte Carlo Pd %.5f, series %.5f (99 %% half-width %.5f)", p, want, half)
 	}
 }
+
+// TestFluctPdMatchesRace checks the closed form of fluctPd (Swerling 1–4 in
+// one test against a sum of exponential stages) against the stage race it
+// replaces (raceSeries), on random stage rates from the noise level to a
+// threshold raised far into clutter (q up to 0.9995) and SNRs from 0 to
+// 40 dB. Both are also checked against scipy quadrature in TestPdGolden
+// (testdata/golden/pd.py, os_cfar, including multipliers of Pfa 1e-30 and
+// 1e-60); this one covers the space between those cases.
+func TestFluctPdMatchesRace(t *testing.T) {
+	rng := rand.New(rand.NewPCG(7, 11))
+	for i := range 400 {
+		shape := float64(1 + i%2)
+		k := 1 + rng.IntN(40)
+		q := make([]float64, k)
+		top := 0.5 + 0.4995*rng.Float64()
+		for j := range q {
+			q[j] = top * (0.02 + 0.98*rng.Float64())
+		}
+		lambda := 0.0
+		if i%10 != 0 {
+			lambda = math.Pow(10, 4*rng.Float64())
+		}
+		got, ok := fluctPd(lambda, shape, q)
+		if !ok {
+			t.Fatalf("shape %g: no closed form", shape)
+		}
+		want := raceSeries(lambda, shape, append([]float64(nil), q...))
+		if math.Abs(got-want) > 1e-10*want+1e-15 {
+			t.Errorf("shape %g, λ %.6g, %d stages, q up to %.6g: closed form %.15g, race %.15g", shape, lambda, k, top, got, want)
+		}
+	}
+	if _, ok := fluctPd(1, math.Inf(1), []float64{0.5}); ok {
+		t.Error("a steady target (shape +Inf) took the closed form")
+	}
+}

@@ -166,7 +166,12 @@ def main():
     for p, pfa, n in [(0.9, 1e-6, 1), (0.9, 1e-6, 10), (0.5, 1e-6, 1), (0.9, 1e-4, 1), (0.8, 1e-5, 100)]:
         out["albersheim"].append({"pd": p, "pfa": pfa, "pulses": n, "snr_db": float(albersheim(p, pfa, n))})
     for sw, snr_db, m, k, pfa in [(0, 0.0, 16, 12, 1e-6), (0, 15.0, 16, 12, 1e-6), (0, 18.0, 24, 18, 1e-6),
-                                  (2, 20.0, 16, 8, 1e-4), (0, 12.0, 32, 24, 1e-4), (0, 16.0, 8, 6, 1e-3)]:
+                                  (2, 20.0, 16, 8, 1e-4), (0, 12.0, 32, 24, 1e-4), (0, 16.0, 8, 6, 1e-3),
+                                  # Swerling 1, 3 and 4, and thresholds raised far above the noise
+                                  # (a Pfa of 1e-30 or 1e-60 is the multiplier a clutter edge sets):
+                                  (1, 20.0, 24, 18, 1e-6), (3, 18.0, 24, 18, 1e-6), (4, 15.0, 16, 12, 1e-4),
+                                  (3, 10.0, 8, 6, 1e-3), (1, 35.0, 24, 18, 1e-30), (3, 35.0, 24, 18, 1e-30),
+                                  (4, 40.0, 24, 18, 1e-60), (0, 35.0, 24, 18, 1e-30)]:
         alpha, v = pd_os(10 ** (snr_db / 10), sw, pfa, m, k)
         out["os_cfar"].append({"swerling": sw, "snr_db": snr_db, "cfar_cells": m, "rank": k, "pfa": pfa,
                                "alpha": float(alpha), "pd": float(v)})
