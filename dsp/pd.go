@@ -365,8 +365,11 @@ func raceSeries(lambda, shape float64, q []float64) float64 {
 		h[i] = 1                    // H_0 = 1
 	}
 	// Weights of the mixture index J and its survival S_a = P(J ≥ a).
+	// The weight w_a is kept as a number while it is one (above
+	// minLinear) and as its logarithm logw below, where it adds nothing
+	// to S_a; the ratio w_a/w_{a−1} updates either.
 	poisson := math.IsInf(shape, 1)
-	var logw, p float64
+	var logw, w, p float64
 	if poisson {
 		logw = -lambda
 	} else {
@@ -374,8 +377,15 @@ func raceSeries(lambda, shape float64, q []float64) float64 {
 		logw = -shape * math.Log1p(theta)
 		p = theta / (1 + theta)
 	}
+	linear := logw > logMinLinear
+	if linear {
+		w = math.Exp(logw)
+	}
 	surv := 1.0
-	logscale := logp0 // h_a = exp(logscale)·h[k−1]
+	// h_a = scale·h[k−1], scale = exp(logscale) while it is a normal
+	// number (else h_a is formed from the logarithms).
+	logscale := logp0
+	scale := math.Exp(logscale)
 	sum := 0.0
 	prev := math.Inf(1)
 	for a := 0; a < maxTerms; a++ {
@@ -391,15 +401,29 @@ func raceSeries(lambda, shape float64, q []float64) float64 {
 					h[i] *= 1e-100
 				}
 				logscale += 100 * math.Ln10
+				scale = math.Exp(logscale)
 			}
 			// S_a = S_{a−1} − w_{a−1}.
-			surv = max(surv-math.Exp(logw), 0)
-			if lambda == 0 {
+			if linear {
+				surv = max(surv-w, 0)
+			}
+			ratio := lambda / float64(a)
+			if !poisson {
+				ratio = (shape + float64(a-1)) / float64(a) * p
+			}
+			switch {
+			case lambda == 0:
 				surv = 0
-			} else if poisson {
-				logw += math.Log(lambda / float64(a))
-			} else {
-				logw += math.Log((shape + float64(a-1)) / float64(a) * p)
+			case linear:
+				w *= ratio
+				if w < minLinear {
+					linear, logw = false, math.Log(w)
+				}
+			default:
+				logw += math.Log(ratio)
+				if logw > logMinLinear {
+					linear, w = true, math.Exp(logw)
+				}
 			}
 		}
 		// The h_a sum to 1 over a (Σ_a H_a(q) = Π 1/(1−q_i)), so the
@@ -414,11 +438,20 @@ func raceSeries(lambda, shape float64, q []float64) float64 {
 			if !poisson {
 				r = (shape + float64(a)) / float64(a+1) * p
 			}
-			if r < 1 && math.Exp(logw)/(1-r) <= 1e-17*sum {
+			wa := w
+			if !linear {
+				wa = math.Exp(logw)
+			}
+			if r < 1 && wa/(1-r) <= 1e-17*sum {
 				break
 			}
 		}
-		ha := math.Exp(logscale + math.Log(h[len(h)-1]))
+		var ha float64
+		if scale >= minLinear {
+			ha = scale * h[len(h)-1]
+		} else {
+			ha = math.Exp(logscale + math.Log(h[len(h)-1]))
+		}
 		term := ha * surv
 		sum += term
 		if surv == 0 {
@@ -433,6 +466,14 @@ func raceSeries(lambda, shape float64, q []float64) float64 {
 	}
 	return min(sum, 1)
 }
+
+// minLinear and logMinLinear: raceSeries keeps a weight or a scale as a
+// number at or above 1e-280 and as its logarithm below (a margin above
+// the smallest normal number, 2.2e-308).
+const (
+	minLinear    = 1e-280
+	logMinLinear = -644.7238 // ≈ ln(1e-280), rounded up
+)
 
 // fluctPd returns racePd's P(X > T) in closed form for a target whose
 // mixture shape K is 1 (Swerling 1 and 2 in one test) or 2 (Swerling 3 and

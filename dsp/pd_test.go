@@ -676,6 +676,17 @@ func BenchmarkPd(b *testing.B) {
 			}
 		})
 	}
+	// An OS-CFAR threshold raised as a clutter edge raises it (the
+	// multiplier of Pfa 1e-30, 660) on a 35 dB target: the stage race's
+	// long case, and the closed form for the fluctuating ones.
+	for _, sw := range []int{SwerlingNone, Swerling1, Swerling3} {
+		d := Detector{Pfa: 1e-30, Pulses: 1, Swerling: sw, CFARCells: 24, OSRank: 18}
+		b.Run(fmt.Sprintf("raised_sw%d_M24_k18", sw), func(b *testing.B) {
+			for b.Loop() {
+				d.Pd(FromDB(35))
+			}
+		})
+	}
 }
 
 func ExampleDetector_RequiredSNR() {
