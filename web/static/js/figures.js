@@ -50,7 +50,9 @@ const GhostPdHelp = 'Ghost Pd: how often its folded echo is seen at the apparent
 const DetectionRangeHelp = 'Detection range: where its SNR at the cell would fall to what the required Pd needs, by the R⁴ law from its present range, its RCS and everything else kept (it may lie outside the receive window).';
 const NumbersHelp = 'Pd is how often a target is seen; it is detected when Pd reaches the required Pd. SNR is the peak above noise after compression; margin is the SNR over what the required Pd needs (below 0: too weak even alone).';
 
-export function renderFigures(root, report, reference, computeMs) {
+// selected: the id of the target selected in the editor, whose card is
+// marked; a click on a card selects its target (main.js).
+export function renderFigures(root, report, reference, computeMs, selected) {
   if (!report) {
     root.replaceChildren(h('p', { class: 'muted' }, 'Waiting for the first result…'));
     return;
@@ -73,7 +75,8 @@ export function renderFigures(root, report, reference, computeMs) {
   const refTargets = new Map(((reference && reference.targets) || []).map((t) => [t.id, t]));
   const cards = (report.targets || []).map((t) => {
     const rt = refTargets.get(t.id);
-    return h('li', { class: `tcard st-${t.status}`, dataset: { target: t.id } },
+    return h('li', { class: `tcard st-${t.status}${t.id === selected ? ' sel' : ''}`, dataset: { target: t.id },
+      title: 'Click to select this target in the editor' },
       h('div', { class: 'tcard-head' },
         h('span', { class: `dot st-${t.status}` }),
         h('b', {}, t.id),

@@ -177,9 +177,29 @@ function drawPanels() {
   const f = panelFrame;
   panelsAt = performance.now();
   editor.setReport(f.report);
-  renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms);
+  renderFigures($('#figures'), f.report, pinned ? f.reference : null, f.compute_ms, selectedId());
   worked('panels', panelsAt);
 }
+const selectedId = () => ((store.scenario && store.scenario.targets) || [])[editor.selected]?.id;
+
+// A click on a target's card (or on a masked target's reason in the
+// story) selects the target: its row and form in the Scene tab, and its
+// card marked, as a click on its marker does.
+function markCard(id) {
+  for (const c of $$('.tcard[data-target]')) c.classList.toggle('sel', c.dataset.target === id);
+}
+editor.selectHooks.push((i) => markCard(((store.scenario && store.scenario.targets) || [])[i]?.id));
+$('.figures').addEventListener('click', (ev) => {
+  const card = ev.target.closest('.tcard[data-target], .story-masked[data-target]');
+  if (!card || ev.target.closest('a, button, input, select')) return;
+  // Selecting text in a card is not a click on it.
+  if (String(getSelection() || '') !== '') return;
+  editor.selectId(card.dataset.target);
+  markCard(card.dataset.target);
+  showTab('scene');
+  const row = document.querySelector(`#ed-targets tr[data-row="${editor.selected}"]`);
+  if (row) row.scrollIntoView({ block: 'nearest' });
+});
 
 // afterPaint runs fn once the next animation frame's pixels are out: a
 // task posted from the frame's requestAnimationFrame callback runs after

@@ -1,0 +1,45 @@
+package web_test
+
+import (
+	"fmt"
+	"testing"
+
+	"github.com/chromedp/chromedp"
+)
+
+// TestCardClickSelectsTarget: a click on a target's card in the figures
+// panel (or on a masked target's reason above it) selects that target, as
+// a click on its marker does: its row and form in the Scene tab (shown,
+// if another tab was), its card marked. The cards did nothing when
+// clicked.
+func TestCardClickSelectsTarget(t *testing.T) {
+	ctx := mustBrowser(t)
+	do(t, ctx, chromedp.EmulateViewport(1280, 720))
+	openPage(t, ctx, mustServer(t))
+	waitFor(t, ctx, "the cards", fresh+` && document.querySelectorAll('.tcard[data-target]').length === 3`)
+	// The user was in the Receive tab.
+	do(t, ctx, chromedp.Click(chromedp.CSS(`.tabs [data-tab="receive"]`)))
+	for _, c := range []struct {
+		sel, id string
+		i       int
+	}{
+		{`.tcard[data-target="tanker"] .tcard-nums`, "tanker", 0},
+		{`.tcard[data-target="pilot-boat"] .reason`, "pilot-boat", 2},
+		{`.story-masked[data-target="skiff"] p`, "skiff", 1},
+	} {
+		do(t, ctx, chromedp.ScrollIntoView(chromedp.CSS(c.sel)), chromedp.Click(chromedp.CSS(c.sel)))
+		waitFor(t, ctx, c.id+" selected", fmt.Sprintf(`window.__pw.editor.selected === %d && document.querySelector('.detail-head').textContent.includes(%q)
+			&& !document.querySelector('[data-panel="scene"]').hidden && document.querySelector('tr[data-row="%d"]').classList.contains('sel')`, c.i, c.id, c.i))
+		marked := eval[[]string](t, ctx, `[...document.querySelectorAll('.tcard.sel')].map((e) => e.dataset.target)`)
+		if len(marked) != 1 || marked[0] != c.id {
+			t.Errorf("after a click on %s's card, cards marked: %v", c.id, marked)
+		}
+		shot(t, ctx, c.id)
+	}
+	// The mark stays through the next frame's panel.
+	eval[bool](t, ctx, `(window.__pw.editor.nudge(0, -1), true)`)
+	waitFor(t, ctx, "the nudge's frame", fresh)
+	if m := eval[[]string](t, ctx, `[...document.querySelectorAll('.tcard.sel')].map((e) => e.dataset.target)`); len(m) != 1 || m[0] != "skiff" {
+		t.Errorf("after a frame, cards marked: %v, want the skiff's", m)
+	}
+}
