@@ -86,11 +86,19 @@ type dualLine struct {
 	markArea         map[string]any
 }
 
-// Layout of two plots side by side, each with axes on both sides.
+// Layout of two plots side by side, each with axes on both sides. Each
+// plot's tick labels are kept inside its own half (containLabel): the
+// left plot's right-hand labels ran into the right plot's left-hand ones
+// in a narrow pane ("-100" and "0.2" read "-1000.2"). From the top: the
+// titles, the legends, the axis names (dualNameGap above the plots) and
+// the top tick labels, each clear of the next.
 var dualGrids = [2]opts.Grid{
-	{Left: "44", Right: "57%", Top: "42", Bottom: "40"},
-	{Left: "57%", Right: "44", Top: "42", Bottom: "40"},
+	{Left: "18", Right: "51%", Top: "56", Bottom: "40", ContainLabel: opts.Bool(true)},
+	{Left: "51%", Right: "18", Top: "56", Bottom: "40", ContainLabel: opts.Bool(true)},
 }
+
+// dualNameGap is the gap between a plot's top and its y axes' names, px.
+const dualNameGap = 10
 
 // dualChart builds a chart of two plots side by side.
 func dualChart(name, key string, plots [2]dualPlot) chartOut {
@@ -113,12 +121,12 @@ func dualChart(name, key string, plots [2]dualPlot) chartOut {
 		c.ExtendXAxis(opts.XAxis{Type: "value", GridIndex: i, Name: p.xName, NameLocation: "middle", NameGap: 24,
 			Min: xMin, Max: xMax, SplitNumber: 3, AxisLabel: ends})
 		yIndex[i][0] = len(c.YAxisList)
-		c.ExtendYAxis(opts.YAxis{Type: "value", GridIndex: i, Position: "left", Name: p.leftName, NameLocation: "end", NameGap: 6,
+		c.ExtendYAxis(opts.YAxis{Type: "value", GridIndex: i, Position: "left", Name: p.leftName, NameLocation: "end", NameGap: dualNameGap,
 			Min: p.leftMin, Max: p.leftMax, SplitNumber: 4, AxisLabel: &opts.AxisLabel{FontSize: 10}})
 		yIndex[i][1] = yIndex[i][0]
 		if p.rightName != "" {
 			yIndex[i][1] = len(c.YAxisList)
-			c.ExtendYAxis(opts.YAxis{Type: "value", GridIndex: i, Position: "right", Name: p.rightName, NameLocation: "end", NameGap: 6,
+			c.ExtendYAxis(opts.YAxis{Type: "value", GridIndex: i, Position: "right", Name: p.rightName, NameLocation: "end", NameGap: dualNameGap,
 				SplitNumber: 4, SplitLine: &opts.SplitLine{Show: opts.Bool(false)}, AxisLabel: &opts.AxisLabel{FontSize: 10}})
 		}
 		left := dualGrids[i].Left
