@@ -16,7 +16,7 @@
 // beyond the axes as they stood are clipped to the plot area until the
 // chart settles and rescales.
 
-import { MaxPlaced, clearPlace, shiftPast } from './labels.js';
+import { MaxPlaced, clearPlace, placeMasking } from './labels.js';
 
 // The zlevel of the series this layer stands in for. The blind range and
 // the clutter breakthrough areas (mark areas, which the chart takes when
@@ -199,7 +199,7 @@ export class FastLayer {
     const lineLabels = labels.length;
     this.marks = [];
     for (const [st, data] of scatters) this.markers(null, map, st, data, labels);
-    if (this.marks.length <= MaxPlaced) placeNames(g, labels, this.marks);
+    if (this.marks.length <= MaxPlaced) placeNames(g, labels, this.marks, w);
     this.labels = hideOverlaps(g, labels);
     const kept = new Set(this.labels);
     for (const l of labels.slice(0, lineLabels)) if (kept.has(l)) text(g, l);
@@ -466,11 +466,12 @@ export function symbolPath(g, kind, x, y, r) {
 }
 
 // placeNames moves the labels as labels.js has the chart move them (the
-// chart's labelLayout): a masking label that starts over a marker moves
-// right past it, then a marker's name that meets another marker or a
+// chart's labelLayout): a masking label that starts over a marker or past
+// the right edge (right, px) goes to the first clear place near its
+// target (placeMasking), then a marker's name that meets another marker or a
 // masking label goes to the first clear place around its marker. marks
 // are the markers drawn ({x, y, half, rect}), the labels' of.
-function placeNames(g, labels, marks) {
+function placeNames(g, labels, marks, right) {
   // A plate's box, or the text's: its width by the font's size (11 px;
   // the line box, 13 px, would find no place beside a marker that the
   // glyphs clear).
@@ -484,7 +485,9 @@ function placeNames(g, labels, marks) {
   for (const l of labels) {
     if (!l.shift) continue;
     const L = box(l);
-    l.x += shiftPast(L, marks.map(square));
+    const [dx, dy] = placeMasking(L, marks.map(square).concat(plates), l.shift, right);
+    l.x += dx;
+    l.y += dy;
     plates.push((l.ink = box(l)));
   }
   for (const l of labels) {

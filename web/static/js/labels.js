@@ -10,7 +10,7 @@
 // stream, keeps names above).
 
 // The page's fast layers (fastlayer.js) place the names they draw by the
-// same rules (clearPlace, shiftPast), so that a chart resting behind its
+// same rules (clearPlace, placeMasking), so that a chart resting behind its
 // fast layer shows its names where the chart would.
 
 // Half a marker's symbol and a margin, px: the profile's are 11 px, the
@@ -60,6 +60,34 @@ export function shiftPast(L, obstacles) {
   return dx;
 }
 
+// placeMasking returns where a masking label whose box is L (chart px;
+// it starts just right of the masked target's end of its segment) goes,
+// as [dx, dy] px: where it is, or else above or below that end, or to its
+// left (ending before the target), above or below there, the first place
+// clear of the boxes obstacles (the markers and the masking labels placed
+// before it; half: a marker's half size)
+// and inside the chart's width right. Only when none is, it moves right
+// past the markers, as far as the chart's right edge allows. It moved
+// right past every marker in its way: the harbour's "tanker's response
+// masks skiff" sat beside the pilot boat 1.1 km on, and a label near the
+// right edge was cut ("… masks pilot").
+export function placeMasking(L0, obstacles, half, right) {
+  // The chart library gives a label's box a few px high whatever its
+  // font (its 11 px bold): at least a line of text, about its middle.
+  const h = Math.max(L0.height, 14);
+  const L = { x: L0.x, y: L0.y + L0.height / 2 - h / 2, width: L0.width, height: h };
+  const up = -(L.height / 2 + half + 3);
+  const down = L.height / 2 + half + 3;
+  const back = -(L.width + 10);
+  for (const [dx, dy] of [[0, 0], [0, up], [0, down], [back, 0], [back, up], [back, down]]) {
+    const to = { x: L.x + dx, y: L.y + dy, width: L.width, height: L.height };
+    if (to.x >= 0 && to.x + to.width <= right && !obstacles.some((r) => meets(r, to))) return [dx, dy];
+  }
+  let dx = shiftPast(L, obstacles);
+  if (L.x + dx + L.width > right) dx = Math.max(right - L.width - L.x, -L.x);
+  return [dx, 0];
+}
+
 // keepNamesClear gives the markers series of a full option of the chart
 // name ('profile', 'rdmap', 'cpimapK') its label placement.
 export function keepNamesClear(name, option, chart) {
@@ -83,16 +111,22 @@ export function keepNamesClear(name, option, chart) {
   place.clear = half;
   m.labelLayout = place;
   // A masking label ("rain-band's response masks light-aircraft") that
-  // starts over a marker (the masker 150 m beyond) moves right, past it.
+  // starts over a marker (the masker 150 m beyond) or past the plot's
+  // right edge goes to the nearest clear place (placeMasking).
   const k = series.find((s) => s && s.id === 'masking');
   if (k) {
     k.labelLayout = (p) => {
       const mi = markersIndex(chart);
       if (mi < 0 || chart.getModel().getSeriesByIndex(mi).getData().count() > MaxPlaced) return {};
       const L = p.labelRect;
-      const dx = shiftPast(L, obstacles(chart, mi, -1, half, false));
+      // The masking labels placed before this one in the pass are in
+      // the way too (two targets masked by one tanker).
+      const placed = placedMasks(chart);
+      const [dx, dy] = placeMasking(L, obstacles(chart, mi, -1, half, false).concat(placed), half, chart.getWidth());
+      const h = Math.max(L.height, 14);
+      placed.push({ x: L.x + dx, y: L.y + L.height / 2 - h / 2 + dy, width: L.width, height: h });
       // Placed absolutely, as above.
-      return dx ? { x: L.x + dx, y: L.y, align: 'left', verticalAlign: 'top' } : {};
+      return dx || dy ? { x: L.x + dx, y: L.y + dy, align: 'left', verticalAlign: 'top' } : {};
     };
     k.labelLayout.clear = half;
   }
@@ -121,6 +155,19 @@ function obstacles(chart, seriesIndex, dataIndex, half, withLabels = true) {
   let all = passes.get(key);
   if (!all) passes.set(key, (all = boxes(chart, seriesIndex, half, withLabels)));
   return all.filter((b) => b.i !== dataIndex);
+}
+
+// placedMasks is the list of the masking labels placed so far in this
+// layout pass of chart, kept as the obstacles are.
+function placedMasks(chart) {
+  if (!passes) {
+    passes = new Map();
+    queueMicrotask(() => { passes = null; });
+  }
+  const key = `${chart.id}/masks`;
+  let all = passes.get(key);
+  if (!all) passes.set(key, (all = []));
+  return all;
 }
 
 function boxes(chart, seriesIndex, half, withLabels) {
