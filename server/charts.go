@@ -303,7 +303,9 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 	if s.RangeDoppler != nil {
 		// A pulse train's profile is the largest value over Doppler of each
 		// range cell: its noise sits a few dB above the 0 dB floor.
-		profileName, cleanName = "max over Doppler", "noise-free, max over Doppler"
+		// The noise-free line is too; the legend says it once, so that
+		// its entries fit one row of a 1280 px window.
+		profileName, cleanName = "profile, max over Doppler", "noise-free"
 	}
 	b.add(SeriesProfile, profileName, colourProfile, dbSeries(g, s.ProfileDB, sp), opts.LineStyle{Width: 1.2})
 	b.add(SeriesClean, cleanName, colourClean, dbSeries(windowGrid(s, len(s.CleanDB)), s.CleanDB, sp), opts.LineStyle{Width: 1})
@@ -324,6 +326,18 @@ func profileChart(res *scenarios.Result, ref *scenarios.Result, vw view) chartOu
 	)
 	b.extra[SeriesMarkers] = seriesExtra{LabelLayout: map[string]any{"hideOverlap": true}, Z: 5}
 	b.data = append(b.data, seriesData{id: SeriesMarkers, data: appendMarkers(nil, res, g.x0, last)})
+	// The legend names the lines and areas. The markers carry their
+	// names and status colours, and each masking segment its own label,
+	// so neither has an entry: "targets" showed one blue dot for markers
+	// of every colour, "masking" stood there with nothing masked, and
+	// with them the entries went behind a pager at 1280 px.
+	var entries []string
+	for _, s := range b.line.MultiSeries {
+		if s.Id != SeriesMarkers && s.Id != SeriesMasking {
+			entries = append(entries, s.Name)
+		}
+	}
+	b.line.Legend.Data = entries
 	return b.build(ChartProfile, key)
 }
 
