@@ -43,3 +43,29 @@ func TestCardClickSelectsTarget(t *testing.T) {
 		t.Errorf("after a frame, cards marked: %v, want the skiff's", m)
 	}
 }
+
+// TestNewSceneShowsItsStory: a scene picked from the menu opens with its
+// story (name, notes, masked targets) in view at the top of the figures
+// column; the column stayed scrolled where the last scene's cards were,
+// so the new scene's name and notes were out of sight.
+func TestNewSceneShowsItsStory(t *testing.T) {
+	ctx := mustBrowser(t)
+	do(t, ctx, chromedp.EmulateViewport(1280, 720))
+	openPage(t, ctx, mustServer(t))
+	waitFor(t, ctx, "the cards", fresh+` && document.querySelectorAll('.tcard[data-target]').length === 3`)
+	// The user reads the cards further down: the wheel over the column.
+	r := eval[[]float64](t, ctx, `(() => { const r = document.querySelector('.figures').getBoundingClientRect(); return [r.left + r.width / 2, r.top + r.height / 2]; })()`)
+	mouse(t, ctx, chromedp.MouseMoved, r[0], r[1])
+	for range 4 {
+		wheelAt(t, ctx, r[0], r[1], 200)
+	}
+	waitFor(t, ctx, "the column scrolled", `document.querySelector('.figures').scrollTop > 300`)
+	loadDemo(t, ctx, "squall-line")
+	waitFor(t, ctx, "the new story", fresh+` && document.querySelector('.story-name').textContent === window.__pw.store.scenario.name`)
+	inView := eval[bool](t, ctx, `(() => { const c = document.querySelector('.figures').getBoundingClientRect();
+		const n = document.querySelector('.story-name').getBoundingClientRect(); return n.top >= c.top && n.bottom <= c.bottom; })()`)
+	if !inView {
+		t.Errorf("the new scene's name is out of view: the figures column is scrolled to %v px", eval[float64](t, ctx, `document.querySelector('.figures').scrollTop`))
+	}
+	shot(t, ctx, "")
+}

@@ -114,6 +114,9 @@ store.onChange((s, cause) => {
   if (cause === 'load' || cause === 'link') { // a new scene: its own cuts
     if (session.cell) session.sendCell(null);
     plots.clearCell();
+    // and its story, at the top of the figures column: the column stayed
+    // scrolled where the last scene's cards were.
+    $('.figures').scrollTop = 0;
   }
   // The edit goes to the server first; the forms follow while it computes.
   session.sendScenario(s, cause === 'link' ? 'link' : null, store.version);
