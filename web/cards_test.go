@@ -56,9 +56,10 @@ func TestNewSceneShowsItsStory(t *testing.T) {
 	// The user reads the cards further down: the wheel over the column.
 	r := eval[[]float64](t, ctx, `(() => { const r = document.querySelector('.figures').getBoundingClientRect(); return [r.left + r.width / 2, r.top + r.height / 2]; })()`)
 	mouse(t, ctx, chromedp.MouseMoved, r[0], r[1])
-	for range 4 {
-		wheelAt(t, ctx, r[0], r[1], 200)
-	}
+	eval[bool](t, ctx, `(window.__scrolled = new Promise((ok) => document.querySelector('.figures').addEventListener('scrollend', () => ok(true), { once: true })), true)`)
+	wheelAt(t, ctx, r[0], r[1], 800)
+	// The scroll animates; it has ended before the next scene is picked.
+	eval[bool](t, ctx, `window.__scrolled`)
 	waitFor(t, ctx, "the column scrolled", `document.querySelector('.figures').scrollTop > 300`)
 	loadDemo(t, ctx, "squall-line")
 	waitFor(t, ctx, "the new story", fresh+` && document.querySelector('.story-name').textContent === window.__pw.store.scenario.name`)
