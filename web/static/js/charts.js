@@ -173,7 +173,7 @@ export class Plots {
     this.charts = {};
     for (const [name, el] of Object.entries(els)) this.charts[name] = echarts.init(el, null, { renderer: 'canvas' });
     this.els = els;
-    this.markers = []; // [{id, x, y}] of the profile's markers series
+    this.markers = []; // [{id, x, y, status}] of the profile's markers series
     this.report = null;
     this.onView = onView;
     this.onDrag = onDrag;
@@ -565,7 +565,7 @@ export class Plots {
     const targets = (this.report && this.report.targets) || [];
     this.markers = m.data.map((d, i) => {
       const v = Array.isArray(d) ? d : d && Array.isArray(d.value) ? d.value : [NaN, NaN];
-      return { id: (d && d.id) || (targets[i] && targets[i].id) || '', x: Number(v[0]), y: Number(v[1]) };
+      return { id: (d && d.id) || (targets[i] && targets[i].id) || '', x: Number(v[0]), y: Number(v[1]), status: (d && d.status) || '' };
     });
   }
 
@@ -638,7 +638,12 @@ export class Plots {
       ev.stopPropagation();
       ev.preventDefault();
       el.setPointerCapture(ev.pointerId);
-      this.drag = { id: m.id, pointerId: ev.pointerId, startX: px, moved: false };
+      // The target moves as far as the pointer does, from where it is: a
+      // folded target's marker shows its ghost, an extended target's its
+      // peak, not the range the scenario holds. A marker held at the
+      // window's edge (a target outside it) comes to the pointer instead.
+      const r0 = m.status === 'out_of_window' ? null : this.rangeAt(px);
+      this.drag = { id: m.id, pointerId: ev.pointerId, startX: px, moved: false, r0 };
       this.onSelect(m.id);
     }, true);
     el.addEventListener('pointermove', (ev) => {
@@ -699,13 +704,14 @@ export class Plots {
   }
 
   // One step of a drag, at most once per animation frame: the target
-  // moves to the newest pointer position.
+  // follows the newest pointer position (onDrag(id, range there, range
+  // where the drag started, or null: to the pointer)).
   dragStep() {
     const d = this.drag;
     if (!d || !d.queued) return;
     d.queued = false;
     const r = this.rangeAt(d.px);
-    if (r !== null) this.onDrag(d.id, r);
+    if (r !== null) this.onDrag(d.id, r, d.r0);
     this.guide(d.px);
     this.hoverCard(null);
   }

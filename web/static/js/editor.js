@@ -29,6 +29,7 @@ export class Editor {
     this.store = store;
     this.selected = 0; // index of the selected target
     this.selectHooks = []; // fn(i) called when the user selects target i
+    this.dragOrigin = null; // {id, r0, from} of the drag in progress (dragTo)
     this.status = new Map(); // target id → report entry
     this.reportTargets = []; // the report's entries, in scene order
     this.shape = '';
@@ -204,6 +205,25 @@ export class Editor {
   }
 
   // Move target id to range r (drag on the profile plot).
+  // A drag on the plot from range r0 to r moves the target by r − r0
+  // from where the drag found it (dragOrigin, cleared when the drag
+  // ends): a folded target stays folded (its marker is its ghost, a
+  // pulse repetition nearer), an extended one keeps its edges where its
+  // peak was grabbed. With r0 null it goes to r (moveTo). It went to the
+  // pointer's range: a small drag of long-pulse-blind's folded airliner
+  // at 210 km put it at 71 km.
+  dragTo(id, r, r0) {
+    if (r0 === null || r0 === undefined) {
+      this.moveTo(id, r);
+      return;
+    }
+    const t = (this.store.scenario.targets || []).find((x) => x.id === id);
+    if (!t) return;
+    const o = this.dragOrigin;
+    if (!o || o.id !== id || o.r0 !== r0) this.dragOrigin = { id, r0, from: t.kind === 'point' ? t.range_m : t.range_start_m };
+    this.moveTo(id, this.dragOrigin.from + (r - r0));
+  }
+
   moveTo(id, r) {
     const i = (this.store.scenario.targets || []).findIndex((t) => t.id === id);
     if (i < 0) return;

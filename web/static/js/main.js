@@ -68,8 +68,9 @@ const plots = new Plots({
   pulse: $('#chart-pulse'), filter: $('#chart-filter'), pdcurves: $('#chart-pdcurves'),
 }, {
   onView: (range, width, mapWidth) => session.sendView(range, width, mapWidth),
-  onDrag: (id, r) => editor.moveTo(id, r),
+  onDrag: (id, r, r0) => editor.dragTo(id, r, r0),
   onDragEnd: () => {
+    editor.dragOrigin = null;
     store.seal();
     if (formsTimer) renderForms();
   },
