@@ -6,13 +6,20 @@
 // masker (if any) with room around them: half the distance between them
 // or twelve main-lobe widths, whichever is larger, each side; null when t
 // has no finite range.
+//
+// A target beyond the unambiguous range is shown where its folded echo
+// appears (as its marker is: server/framecharts.go appendMarkers), and
+// focused there; the focus went to its true range, past the window's end
+// (long-pulse-blind's airliner at 210 km: 145.7 … 150 km, an empty stretch).
 export function focusSpan(report, id) {
   const targets = (report && report.targets) || [];
   const t = targets.find((x) => x.id === id);
   if (!t || !Number.isFinite(t.range_m)) return null;
+  const ru = (report.waveform && report.waveform.unambiguous_range_m) || 0;
+  const shown = (x) => (ru > 0 && x.range_m >= ru ? x.range_m - Math.floor(x.range_m / ru) * ru : x.range_m);
   const m = t.masked_by ? targets.find((x) => x.id === t.masked_by) : null;
-  const rs = [t.range_m];
-  if (m && Number.isFinite(m.range_m)) rs.push(m.range_m);
+  const rs = [shown(t)];
+  if (m && Number.isFinite(m.range_m)) rs.push(shown(m));
   const lo = Math.min(...rs);
   const hi = Math.max(...rs);
   const lobe = (report.waveform && report.waveform.mainlobe_3db_m) || 0;
