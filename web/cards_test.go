@@ -70,3 +70,24 @@ func TestNewSceneShowsItsStory(t *testing.T) {
 	}
 	shot(t, ctx, "")
 }
+
+// TestBlindZonesSummaryWhole: at 1280×720 the line over the blind-zones
+// map shows whole: cut to one line it read "3 CPIs, 2-of-3 · unambiguous
+// to 1274.1 km · first c…", the common blind speed and every target's
+// count of CPIs out of sight (its tooltip holds the reasons only).
+func TestBlindZonesSummaryWhole(t *testing.T) {
+	ctx := mustBrowser(t)
+	do(t, ctx, chromedp.EmulateViewport(1280, 720))
+	openPage(t, ctx, mustServer(t))
+	loadDemo(t, ctx, "hill-clutter-doppler")
+	do(t, ctx, chromedp.Click(chromedp.CSS(`.plot-head [data-show="blindzones"]`)))
+	waitFor(t, ctx, "the summary and the map", fresh+` && document.querySelector('#sched-sum').textContent.includes('jet') && window.__pw.plots.charts.blindzones && window.__pw.plots.charts.blindzones.getOption().series.length > 0`)
+	cut := eval[bool](t, ctx, `(() => { const e = document.querySelector('#sched-sum'); return e.scrollWidth > e.clientWidth + 1 || e.scrollHeight > e.clientHeight + 1; })()`)
+	if cut {
+		t.Errorf("the blind-zones summary is cut: %q", eval[string](t, ctx, `document.querySelector('#sched-sum').textContent`))
+	}
+	if h := eval[float64](t, ctx, `document.querySelector('#chart-blindzones').getBoundingClientRect().height`); h < 150 {
+		t.Errorf("the blind-zones map is %.0f px high under its summary", h)
+	}
+	shot(t, ctx, "")
+}
