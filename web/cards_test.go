@@ -91,3 +91,26 @@ func TestBlindZonesSummaryWhole(t *testing.T) {
 	}
 	shot(t, ctx, "")
 }
+
+// TestFloorsNoteWhole: at 1280×720 the Floors tab's note says whole how
+// to pick another target (it was cut to "… a row of the target t…"), and
+// a click on a target's card picks it.
+func TestFloorsNoteWhole(t *testing.T) {
+	ctx := mustBrowser(t)
+	do(t, ctx, chromedp.EmulateViewport(1280, 720))
+	openPage(t, ctx, mustServer(t))
+	waitFor(t, ctx, "the cards", fresh+` && document.querySelectorAll('.tcard[data-target]').length === 3`)
+	do(t, ctx, chromedp.Click(chromedp.CSS(`.plot-head [data-show="floors"]`)))
+	waitFor(t, ctx, "the floors of the strongest", `document.querySelector('#floors-note').textContent.includes('strongest') && window.__pw.plots.charts.floors.getOption() && window.__pw.plots.charts.floors.getOption().series.length > 0`)
+	const jsCut = `(() => { const e = document.querySelector('#floors-note'); return e.scrollWidth > e.clientWidth + 1 || e.scrollHeight > e.clientHeight + 1; })()`
+	if eval[bool](t, ctx, jsCut) {
+		t.Errorf("the Floors note is cut: %q", eval[string](t, ctx, `document.querySelector('#floors-note').textContent`))
+	}
+	shot(t, ctx, "strongest")
+	do(t, ctx, chromedp.ScrollIntoView(chromedp.CSS(`.tcard[data-target="pilot-boat"] .tcard-nums`)), chromedp.Click(chromedp.CSS(`.tcard[data-target="pilot-boat"] .tcard-nums`)))
+	waitFor(t, ctx, "the pilot boat's floors", `document.querySelector('#floors-note').textContent.includes('pilot-boat')`)
+	if eval[bool](t, ctx, jsCut) {
+		t.Errorf("the Floors note is cut: %q", eval[string](t, ctx, `document.querySelector('#floors-note').textContent`))
+	}
+	shot(t, ctx, "pilot-boat")
+}

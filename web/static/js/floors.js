@@ -28,8 +28,8 @@ const shown = () => pane.classList.contains('on');
 function ask() {
   session.sendFloors(shown() ? { target: chosen, row: rowPick.value } : null);
   note.textContent = chosen
-    ? `Floors of ${chosen}, selected in the target table`
-    : 'Floors of the strongest target · a row of the target table picks another';
+    ? `Floors of ${chosen}, the selected target`
+    : 'Floors of the strongest target · a row of the target table, a target’s card or its marker picks another';
 }
 
 // Tabs of the lower right plot: ask while this one shows, stop otherwise.
