@@ -280,7 +280,8 @@ func (t *CAEchoTest) Pd(mu []complex128) (float64, error) {
 	f := func(s float64) float64 {
 		return imagPhi(math.Exp(s), d0, t.lam, c2, w)
 	}
-	v, err := adaptiveGK(f, math.Log(lo), math.Log(hi), math.Pi*tol/4)
+	// Start from 8 panels: the integrand in ln t lives on a few decades.
+	v, err := adaptiveGK(f, math.Log(lo), math.Log(hi), 8, math.Pi*tol/4)
 	if err != nil {
 		return 0, fmt.Errorf("dsp: echo Pd (β %g, %d cells): %w", t.beta, t.m, err)
 	}
@@ -309,6 +310,31 @@ func (t *CAEchoTest) tailBound(u float64, c2 []float64, w float64) float64 {
 func imagPhi(t, d0 float64, lam, c2 []float64, w float64) float64 {
 	// ln φ = i·t·d₀ + Σ_k w·[−ln(1 − 2iλt)] − 2t²c²/(1 − 2iλt), with
 	// 1/(1 − 2iλt) = (1 + 2iλt)/(1 + 4λ²t²).
+	if w == 1 {
+		// Pairs: Π_k 1/(1 − ix_k) = p/|p|², p = Π_k (1 + ix_k), one
+		// complex product (rescaled by 2^±k as it grows) and one
+		// logarithm and one arctangent in all: sin is 2π-periodic, so
+		// arg p needs no unwrapping.
+		re, im := 0.0, t*d0
+		pr, pi := 1.0, 0.0
+		scale := 0 // p = (pr + i·pi)·2^scale
+		for k, l := range lam {
+			x := 2 * l * t
+			pr, pi = pr-pi*x, pi+pr*x
+			if c := c2[k]; c != 0 {
+				f := 2 * t * t * c / (1 + x*x)
+				re -= f
+				im -= f * x
+			}
+			if math.Abs(pr)+math.Abs(pi) > 0x1p500 {
+				pr, pi = math.Ldexp(pr, -500), math.Ldexp(pi, -500)
+				scale += 500
+			}
+		}
+		mag := math.Hypot(pr, pi)
+		re -= math.Log(mag) + float64(scale)*math.Ln2
+		return math.Exp(re) * math.Sin(im+math.Atan2(pi, pr))
+	}
 	re, im := 0.0, t*d0
 	for k, l := range lam {
 		x := 2 * l * t
@@ -346,11 +372,15 @@ var (
 
 func gk15(f func(float64) float64, a, b float64) (val, err float64) {
 	c, h := (a+b)/2, (b-a)/2
-	fc := f(c)
-	k := fc * gkWK[7]
-	g := fc * gkWG[3]
+	var fv [15]float64
+	fv[7] = f(c)
 	for j := range 7 {
-		s := f(c-h*gkX[j]) + f(c+h*gkX[j])
+		fv[j], fv[14-j] = f(c-h*gkX[j]), f(c+h*gkX[j])
+	}
+	k := fv[7] * gkWK[7]
+	g := fv[7] * gkWG[3]
+	for j := range 7 {
+		s := fv[j] + fv[14-j]
 		k += gkWK[j] * s
 		if j%2 == 1 {
 			g += gkWG[j/2] * s
@@ -362,13 +392,11 @@ func gk15(f func(float64) float64, a, b float64) (val, err float64) {
 // adaptiveGK integrates f over [a, b] to an absolute error estimate tol by
 // bisecting the subinterval of largest error (QUADPACK's qag strategy,
 // without extrapolation), on a fixed-size heap-free list.
-func adaptiveGK(f func(float64) float64, a, b, tol float64) (float64, error) {
+func adaptiveGK(f func(float64) float64, a, b float64, start int, tol float64) (float64, error) {
 	type piece struct{ a, b, v, e float64 }
 	var buf [256]piece
 	ps := buf[:0]
-	// Start from 16 panels: the integrand in ln t lives on a few decades.
-	const start = 16
-	h := (b - a) / start
+	h := (b - a) / float64(start)
 	tv, te := 0.0, 0.0
 	for i := range start {
 		x0, x1 := a+float64(i)*h, a+float64(i+1)*h
@@ -422,4 +450,85 @@ func CAEchoPd(alpha float64, mu []complex128, cov func(i, j int) complex128) (fl
 		return 0, err
 	}
 	return t.Pd(mu)
+}
+
+// PdTarget returns the Pd of a target whose echo fluctuates from look to
+// look (one test per look) while the other echoes stay as they are:
+// target holds its complex amplitudes at the cells at its mean power (the
+// cell under test first, then the training cells, as for Pd; its own
+// range response, the carrier phase its range gives included), others
+// the other echoes' (nil: none). Its power is x times the mean with x of
+// the law of swerling, its phase kept, so
+//
+//	Pd = E_x[ P(D > 0 | μ = √x·target + others) ]:
+//
+// SwerlingNone, x = 1 (Pd(target + others)); Swerling1 and Swerling2
+// (one test: the same law), x exponential of mean 1; Swerling3 and
+// Swerling4, x ~ Gamma(2, ½). The expectation is adaptive Gauss–Kronrod
+// over the amplitude a = √x (the means are linear in it, so the integrand
+// is analytic), density 2a·e^(−a²) (Swerling 1) or 8a³·e^(−2a²) (Swerling
+// 3), on [0, a_hi] leaving out less than 1e-11 of the law's mass, to an
+// error estimate of EchoPdTolerance. With a target alone in the cells and
+// Swerling 1 the echo is complex Gaussian whatever its phase, y ~
+// CN(0, R + target·targetᴴ). It allocates nothing for M ≤ 64.
+func (t *CAEchoTest) PdTarget(swerling int, target, others []complex128) (float64, error) {
+	n := t.m + 1
+	if len(target) != n {
+		return 0, fmt.Errorf("dsp: target amplitudes: %d cells, want %d (the cell under test and %d training cells)", len(target), n, t.m)
+	}
+	if others != nil && len(others) != n {
+		return 0, fmt.Errorf("dsp: other echoes' amplitudes: %d cells, want %d (the cell under test and %d training cells)", len(others), n, t.m)
+	}
+	for i, v := range target {
+		if cmplx.IsNaN(v) || cmplx.IsInf(v) {
+			return 0, fmt.Errorf("dsp: target amplitude target[%d] = %v out of range: want finite", i, v)
+		}
+	}
+	var buf [MaxExactCorrelatedCells + 1]complex128
+	mu := buf[:n]
+	at := func(a float64) (float64, error) {
+		for i := range mu {
+			mu[i] = complex(a, 0) * target[i]
+			if others != nil {
+				mu[i] += others[i]
+			}
+		}
+		return t.Pd(mu)
+	}
+	// In the amplitude a = √x (the means are linear in it, so the
+	// integrand is analytic in a): Swerling 1, density 2a·e^(−a²);
+	// Swerling 3, 8a³·e^(−2a²).
+	var hi float64
+	var density func(a float64) float64
+	switch swerling {
+	case SwerlingNone:
+		return at(1)
+	case Swerling1, Swerling2:
+		hi = math.Sqrt(26) // e^(−26) = 5e-12 of the mass beyond
+		density = func(a float64) float64 { return 2 * a * math.Exp(-a*a) }
+	case Swerling3, Swerling4:
+		hi = math.Sqrt(15) // 31·e^(−30) = 3e-12 beyond
+		density = func(a float64) float64 { return 8 * a * a * a * math.Exp(-2*a*a) }
+	default:
+		return 0, fmt.Errorf("dsp: Swerling %d out of range: want 0 (steady) … 4", swerling)
+	}
+	var perr error
+	f := func(a float64) float64 {
+		if perr != nil {
+			return 0
+		}
+		p, err := at(a)
+		if err != nil {
+			perr = err
+		}
+		return p * density(a)
+	}
+	v, err := adaptiveGK(f, 0, hi, 4, 1e-9)
+	if perr != nil {
+		return 0, perr
+	}
+	if err != nil {
+		return 0, fmt.Errorf("dsp: fluctuating target's Pd: over its power: %w", err)
+	}
+	return min(max(v, 0), 1), nil
 }

@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"math"
+	"math/cmplx"
 	"os"
 	"path/filepath"
 	"strings"
@@ -292,6 +293,180 @@ func BenchmarkCAEchoPd(b *testing.B) {
 		b.Run(fmt.Sprintf("reference-PdCorrelatedCA/M%d", m), func(b *testing.B) {
 			for range b.N {
 				d.PdCorrelatedCA(25, alpha, ev)
+			}
+		})
+	}
+}
+
+// TestCAEchoPdTargetClosedForms: a fluctuating target alone in the cell
+// under test of independent cells is Detector{Swerling: s, CFARCells:
+// M}.Pd (Swerling 1: Richards' closed form (1 + α/(M(1+χ)))^(−M),
+// Fundamentals of Radar Signal Processing, 2nd ed., eq. 6.137; Swerling 3:
+// dsp's series, checked against scipy in TestPdGolden); steady, Pd with
+// the same amplitudes.
+func TestCAEchoPdTargetClosedForms(t *testing.T) {
+	worst := 0.0
+	for _, m := range []int{4, 16, 32} {
+		pfa := 1e-6
+		alpha := float64(m) * (math.Pow(pfa, -1/float64(m)) - 1)
+		tst, err := NewCAEchoTest(alpha, m, identityCov)
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, snrDB := range []float64{0, 10, 17, 25, 35} {
+			snr := math.Pow(10, snrDB/10)
+			target := make([]complex128, m+1)
+			target[0] = complex(0, math.Sqrt(snr))
+			for _, sw := range []int{SwerlingNone, Swerling1, Swerling2, Swerling3, Swerling4} {
+				got, err := tst.PdTarget(sw, target, nil)
+				if err != nil {
+					t.Fatal(err)
+				}
+				want := Detector{Pfa: pfa, Pulses: 1, Swerling: sw, CFARCells: m}.Pd(snr)
+				if sw == Swerling1 {
+					if r := math.Pow(1+alpha/(float64(m)*(1+snr)), -float64(m)); math.Abs(r-want) > 1e-12 {
+						t.Fatalf("Richards %g, series %g", r, want)
+					}
+				}
+				worst = math.Max(worst, math.Abs(got-want))
+				if math.Abs(got-want) > 1e-8 {
+					t.Errorf("M %d SNR %g dB Swerling %d: got %.12g, want %.12g", m, snrDB, sw, got, want)
+				}
+			}
+		}
+	}
+	t.Logf("largest difference %.3g", worst)
+}
+
+// TestCAEchoPdTargetSwerling1Sidelobes: a Swerling 1 target with its own
+// range response s in correlated cells (the cell under test correlated
+// with its neighbours) and no other echo is complex Gaussian, y ~
+// CN(0, R + s·sᴴ), so its Pd is that covariance's false-alarm
+// probability by cutSpectrum.logPfa (the one positive eigenvalue of the
+// test's form and the matrix determinant lemma; checked against numpy in
+// TestCorrelatedCAMultiplierGolden) — an independent route to the
+// quadrature over its power.
+func TestCAEchoPdTargetSwerling1Sidelobes(t *testing.T) {
+	rho := sincRho(2, 128)
+	for _, tc := range []struct {
+		guard, m   int
+		snrDB, pfa float64
+	}{{0, 8, 12, 1e-2}, {1, 16, 18, 1e-5}, {2, 24, 25, 1e-5}} {
+		offs := []int{0}
+		for k := 1; k <= tc.m/2; k++ {
+			offs = append(offs, tc.guard+k, -tc.guard-k)
+		}
+		cov := func(i, j int) complex128 { return lagCorrelation(rho, offs[i]-offs[j]) }
+		a := math.Sqrt(math.Pow(10, tc.snrDB/10))
+		target := make([]complex128, tc.m+1)
+		for i, o := range offs {
+			target[i] = complex(a, 0) * lagCorrelation(rho, o) * complex(math.Cos(0.8), math.Sin(0.8))
+		}
+		alpha := float64(tc.m) * (math.Pow(tc.pfa, -1/float64(tc.m)) - 1)
+		tst, err := NewCAEchoTest(alpha, tc.m, cov)
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := tst.PdTarget(Swerling1, target, nil)
+		if err != nil {
+			t.Fatal(err)
+		}
+		sp, ok := newCutSpectrum(tc.m, func(i, j int) complex128 { return cov(i, j) + target[i]*cmplx.Conj(target[j]) })
+		if !ok {
+			t.Fatal("eigen-decomposition failed")
+		}
+		want := math.Exp(sp.logPfa(alpha))
+		t.Logf("guard %d M %d %g dB: %.10g, logPfa route %.10g", tc.guard, tc.m, tc.snrDB, got, want)
+		if math.Abs(got-want) > 1e-8 {
+			t.Errorf("guard %d M %d %g dB: got %.12g, want %.12g", tc.guard, tc.m, tc.snrDB, got, want)
+		}
+	}
+}
+
+// TestCAEchoPdTargetGolden compares PdTarget with the "fluct" cases of
+// testdata/golden/cfarecho.json (cfarecho.py: scipy.integrate.quad over
+// the power law, scipy.stats.expon for Swerling 1 and gamma(2, ½) for
+// Swerling 3, of the Imhof integral of scipy; and a seeded numpy Monte
+// Carlo of 10^6 draws that draws the power each time): a fluctuating
+// target with its own range response in the training cells, alone and
+// beside a steady echo, guard 1 (LFM) and 0 (Barker).
+func TestCAEchoPdTargetGolden(t *testing.T) {
+	b, err := os.ReadFile(filepath.Join("..", "testdata", "golden", "cfarecho.json"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	var g struct {
+		Fluct []struct {
+			Name     string
+			Swerling int
+			Alpha    float64
+			CovRe    [][]float64 `json:"cov_re"`
+			CovIm    [][]float64 `json:"cov_im"`
+			TargetRe []float64   `json:"target_re"`
+			TargetIm []float64   `json:"target_im"`
+			OthersRe []float64   `json:"others_re"`
+			OthersIm []float64   `json:"others_im"`
+			PD       float64     `json:"pd"`
+			MC       float64     `json:"mc"`
+			Draws    float64     `json:"mc_draws"`
+		}
+	}
+	if err := json.Unmarshal(b, &g); err != nil {
+		t.Fatal(err)
+	}
+	if len(g.Fluct) < 4 {
+		t.Fatalf("%d golden fluctuating cases, want ≥ 4", len(g.Fluct))
+	}
+	for _, c := range g.Fluct {
+		n := len(c.TargetRe)
+		s, o := make([]complex128, n), make([]complex128, n)
+		for i := range s {
+			s[i] = complex(c.TargetRe[i], c.TargetIm[i])
+			o[i] = complex(c.OthersRe[i], c.OthersIm[i])
+		}
+		tst, err := NewCAEchoTest(c.Alpha, n-1, func(i, j int) complex128 { return complex(c.CovRe[i][j], c.CovIm[i][j]) })
+		if err != nil {
+			t.Fatal(err)
+		}
+		got, err := tst.PdTarget(c.Swerling, s, o)
+		if err != nil {
+			t.Fatalf("%s: %v", c.Name, err)
+		}
+		t.Logf("%s: %.12g, scipy %.12g, Monte Carlo %.6g", c.Name, got, c.PD, c.MC)
+		if math.Abs(got-c.PD) > 1e-8 {
+			t.Errorf("%s: got %.12g, scipy %.12g", c.Name, got, c.PD)
+		}
+		if sd := math.Sqrt(got*(1-got)/c.Draws) + 1/c.Draws; math.Abs(got-c.MC) > 5*sd {
+			t.Errorf("%s: got %.6g, Monte Carlo %.6g (σ %.2g)", c.Name, got, c.MC, sd)
+		}
+	}
+}
+
+func BenchmarkCAEchoPdTarget(b *testing.B) {
+	rho := sincRho(2, 128)
+	const m = 16
+	offs := []int{0}
+	for k := 1; k <= m/2; k++ {
+		offs = append(offs, 1+k, -1-k)
+	}
+	cov := func(i, j int) complex128 { return lagCorrelation(rho, offs[i]-offs[j]) }
+	alpha := float64(m) * (math.Pow(1e-5, -1/float64(m)) - 1)
+	tst, err := NewCAEchoTest(alpha, m, cov)
+	if err != nil {
+		b.Fatal(err)
+	}
+	s, o := make([]complex128, m+1), make([]complex128, m+1)
+	for i, off := range offs {
+		s[i] = 7 * lagCorrelation(rho, off)
+		o[i] = 4i * lagCorrelation(rho, off-7)
+	}
+	for _, sw := range []int{SwerlingNone, Swerling1, Swerling3} {
+		b.Run(fmt.Sprintf("swerling%d/M%d", sw, m), func(b *testing.B) {
+			b.ReportAllocs()
+			for range b.N {
+				if _, err := tst.PdTarget(sw, s, o); err != nil {
+					b.Fatal(err)
+				}
 			}
 		})
 	}

@@ -22,6 +22,13 @@ embedding and factors R by its eigen-decomposition):
   piece to infinity.
 Second, coarser check: a seeded numpy Monte Carlo of 10^6 draws of y.
 
+Fluctuating targets ("fluct", dsp.CAEchoTest.PdTarget): the target's
+amplitudes s at the cells scale by sqrt(x), its phase kept, x of mean 1:
+Swerling 1 exponential (scipy.stats.expon), Swerling 3 Gamma(2, 1/2)
+(scipy.stats.gamma); the other echoes b stay. Pd = E_x[P(D > 0 | mu =
+sqrt(x) s + b)], by scipy.integrate.quad over x of the law's pdf times the
+value above; the Monte Carlo draws x for every draw.
+
 Cases: the noise correlation of a matched filter (an LFM of time-bandwidth
 product 20 at 2 samples per 1/B, and a 13-chip Barker code at 2 samples a
 chip), cells at the CUT 0 and training offsets +-(g+1 .. g+M/2) after g guard
@@ -36,7 +43,7 @@ import json
 
 import numpy as np
 import scipy
-from scipy import integrate, linalg
+from scipy import integrate, linalg, stats
 
 
 def lfm_ref(tb, os):
@@ -107,6 +114,28 @@ def pd_mc(mu, R, alpha, draws, rng):
     for _ in range(draws // 100000):
         w = (rng.standard_normal((100000, n)) + 1j * rng.standard_normal((100000, n))) / np.sqrt(2)
         y = mu + w @ C.T
+        p = np.abs(y) ** 2
+        hits += int(np.sum(p[:, 0] - alpha / m * np.sum(p[:, 1:], axis=1) > 0))
+    return hits / draws
+
+
+def pd_fluct(law, s, b, R, alpha):
+    dist = stats.expon() if law == 1 else stats.gamma(2, scale=0.5)
+    f = lambda x: dist.pdf(x) * pd_exact(np.sqrt(x) * s + b, R, alpha)
+    hi = dist.isf(1e-13)
+    v, _ = integrate.quad(f, 0, hi, epsabs=1e-11, epsrel=1e-10, limit=200)
+    return v
+
+
+def pd_fluct_mc(law, s, b, R, alpha, draws, rng):
+    n = len(s)
+    m = n - 1
+    C = np.linalg.cholesky(R)
+    hits = 0
+    for _ in range(draws // 100000):
+        x = rng.exponential(1.0, 100000) if law == 1 else rng.gamma(2.0, 0.5, 100000)
+        w = (rng.standard_normal((100000, n)) + 1j * rng.standard_normal((100000, n))) / np.sqrt(2)
+        y = np.sqrt(x)[:, None] * s + b + w @ C.T
         p = np.abs(y) ** 2
         hits += int(np.sum(p[:, 0] - alpha / m * np.sum(p[:, 1:], axis=1) > 0))
     return hits / draws
@@ -190,8 +219,41 @@ def main():
     R = np.eye(5, dtype=complex)
     add("independent M4 interferer", R, None, alpha_richards(1e-3, 4), [4.0, 0, 1.5j, 0, 0])
 
+    fluct = []
+
+    def add_fluct(name, law, offs, rho, alpha, s, b):
+        R = cov_from(rho, offs)
+        s, b = np.asarray(s, dtype=complex), np.asarray(b, dtype=complex)
+        pd = pd_fluct(law, s, b, R, alpha)
+        mc = pd_fluct_mc(law, s, b, R, alpha, 10 ** 6, rng)
+        fluct.append({
+            "name": name, "swerling": law, "alpha": alpha,
+            "cov_re": R.real.tolist(), "cov_im": R.imag.tolist(),
+            "target_re": s.real.tolist(), "target_im": s.imag.tolist(),
+            "others_re": b.real.tolist(), "others_im": b.imag.tolist(),
+            "pd": pd, "mc": mc, "mc_draws": 10 ** 6,
+        })
+        print(f"{name:48s} pd {pd:.12g}  mc {mc:.6f}")
+
+    # A fluctuating target with its own range response in the training
+    # cells (guard 1: its mainlobe's shoulders train), alone and beside a
+    # steady echo whose sidelobes reach its cells.
+    offs = offsets(1, 16)
+    a = alpha_richards(1e-5, 16)
+    s1 = target(lfm, offs, 10 ** (17 / 20) * np.exp(0.5j))
+    echo = target(lfm, offs, 10 ** (12 / 20) * np.exp(-2.2j), at=7)
+    add_fluct("swerling1 lfm g1 M16 17 dB", 1, offs, lfm, a, s1, np.zeros(17))
+    add_fluct("swerling1 lfm g1 M16 17 dB, 12 dB echo at +7", 1, offs, lfm, a, s1, echo)
+    add_fluct("swerling3 lfm g1 M16 17 dB, 12 dB echo at +7", 3, offs, lfm, a, s1, echo)
+    # Guard 0 behind a Barker code: the echo two cells away in the CUT too.
+    offs = offsets(0, 12)
+    a = alpha_richards(1e-3, 12)
+    s3 = target(bark, offs, 10 ** (14 / 20))
+    echo = target(bark, offs, 10 ** (9 / 20) * 1j, at=2)
+    add_fluct("swerling3 barker g0 M12 14 dB, 9 dB echo at +2", 3, offs, bark, a, s3, echo)
+
     with open("cfarecho.json", "w") as f:
-        json.dump({"numpy": np.__version__, "scipy": scipy.__version__, "cases": cases}, f, indent=1)
+        json.dump({"numpy": np.__version__, "scipy": scipy.__version__, "cases": cases, "fluct": fluct}, f, indent=1)
 
 
 if __name__ == "__main__":
