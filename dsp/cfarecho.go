@@ -63,6 +63,10 @@ type CAEchoTest struct {
 	m     int     // training cells M
 	beta  float64 // α/M
 	noise float64 // tr(|A|·R): the noise part of E|D|
+	mean  float64 // tr(A·R): the noise part of E[D]
+	// sig1, sig2, sig3 are Σσ, Σσ², Σσ³ over the eigenvalues σ of R,
+	// sigMax the largest, and aMax = max(1, β) (the lower end's bound).
+	sig1, sig2, sig3, sigMax, aMax float64
 	// lam are the eigenvalues of LᵀÃL: one per equal pair when pair
 	// (weight 1 in ln φ), else every one (weight ½).
 	lam  []float64
@@ -205,7 +209,17 @@ func NewCAEchoTest(alpha float64, m int, cov func(i, j int) complex128) (*CAEcho
 	}
 	for i := range n {
 		t.noise += math.Abs(aw(i)) * real(cov(i, i))
+		t.mean += aw(i) * real(cov(i, i))
 	}
+	// Σ̃'s eigenvalues are σ/2, each twice.
+	for _, v := range sv {
+		v = max(v, 0)
+		t.sig1 += v
+		t.sig2 += 2 * v * v
+		t.sig3 += 4 * v * v * v
+		t.sigMax = max(t.sigMax, 2*v)
+	}
+	t.aMax = max(1, beta)
 	return t, nil
 }
 
@@ -226,7 +240,7 @@ func (t *CAEchoTest) Pd(mu []complex128) (float64, error) {
 	}
 	var am [2 * (MaxExactCorrelatedCells + 1)]float64
 	var cbuf [2 * (MaxExactCorrelatedCells + 1)]float64
-	d0, mnorm := 0.0, 0.0
+	d0, mnorm, m2 := 0.0, 0.0, 0.0 // μᴴAμ, μᴴ|A|μ, ‖μ‖²
 	for i, v := range mu {
 		if cmplx.IsNaN(v) || cmplx.IsInf(v) {
 			return 0, fmt.Errorf("dsp: echo amplitude mu[%d] = %v out of range: want finite", i, v)
@@ -239,6 +253,7 @@ func (t *CAEchoTest) Pd(mu []complex128) (float64, error) {
 		p := real(v)*real(v) + imag(v)*imag(v)
 		d0 += w * p
 		mnorm += math.Abs(w) * p
+		m2 += p
 	}
 	// c² per pair.
 	c2 := cbuf[:len(t.lam)]
@@ -264,8 +279,17 @@ func (t *CAEchoTest) Pd(mu []complex128) (float64, error) {
 		w = 1
 	}
 	tol := EchoPdTolerance
-	// Lower end: |∫_0^lo Im φ/t| ≤ lo·E|D|, E|D| ≤ tr(|A|R) + μᴴ|A|μ.
-	lo := math.Pi * tol / 4 / (t.noise + mnorm)
+	// Lower end: Im φ(t) = E[sin(tD)] and |sin x − x| ≤ |x|³/6, so
+	// ∫_0^lo Im φ(t)/t dt = lo·E[D] within lo³·E|D|³/18, E[D] = tr(AR) +
+	// μᴴAμ. |D| ≤ max(1, β)·S, S = ‖y‖², whose cumulants are
+	// κ_r = (r−1)!·(Σσ^r + r·μᴴR^(r−1)μ) (σ the eigenvalues of R;
+	// μᴴR^kμ ≤ σ_max^k·‖μ‖²), E[S³] = κ₃ + 3κ₂κ₁ + κ₁³.
+	k1 := t.sig1 + m2
+	k2 := t.sig2 + 2*t.sigMax*m2
+	k3 := 2 * (t.sig3 + 3*t.sigMax*t.sigMax*m2)
+	d3 := t.aMax * t.aMax * t.aMax * (k3 + 3*k2*k1 + k1*k1*k1)
+	lo := math.Cbrt(18 * math.Pi * tol / 4 / d3)
+	low := lo * (t.mean + d0) // ∫_0^lo Im φ(t)/t dt
 	// Upper end: double until Imhof's bound holds.
 	hi := 1 / (t.noise + mnorm)
 	for range 2000 {
@@ -285,7 +309,7 @@ func (t *CAEchoTest) Pd(mu []complex128) (float64, error) {
 	if err != nil {
 		return 0, fmt.Errorf("dsp: echo Pd (β %g, %d cells): %w", t.beta, t.m, err)
 	}
-	return min(max(0.5+v/math.Pi, 0), 1), nil
+	return min(max(0.5+(low+v)/math.Pi, 0), 1), nil
 }
 
 // tailBound is Imhof's bound on (1/π)·|∫_u^∞ Im φ(t)/t dt|.
