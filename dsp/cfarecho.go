@@ -232,7 +232,8 @@ func (t *CAEchoTest) Cells() int { return t.m }
 // power (|mu[i]|² is an SNR), len(mu) = M+1. mu = nil is noise alone: the
 // false-alarm probability. The result is within EchoPdTolerance (absolute)
 // of the exact value, or an error says it could not be reached. It
-// allocates nothing for M ≤ 64.
+// allocates nothing for M ≤ 64 (unless the quadrature needs more than 256
+// subintervals).
 func (t *CAEchoTest) Pd(mu []complex128) (float64, error) {
 	n := t.m + 1
 	if mu != nil && len(mu) != n {
@@ -492,9 +493,12 @@ func CAEchoPd(alpha float64, mu []complex128, cov func(i, j int) complex128) (fl
 // over the amplitude a = √x (the means are linear in it, so the integrand
 // is analytic), density 2a·e^(−a²) (Swerling 1) or 8a³·e^(−2a²) (Swerling
 // 3), on [0, a_hi] leaving out less than 1e-11 of the law's mass, to an
-// error estimate of EchoPdTolerance. With a target alone in the cells and
-// Swerling 1 the echo is complex Gaussian whatever its phase, y ~
-// CN(0, R + target·targetᴴ). It allocates nothing for M ≤ 64.
+// error estimate of 1e-9 (absolute; each Pd within EchoPdTolerance). With
+// a target alone in the cells and Swerling 1 the echo is complex
+// Gaussian whatever its phase, y ~ CN(0, R + target·targetᴴ). It returns
+// an error for amplitudes of the wrong length or not finite and for a
+// Swerling model outside 0 … 4. It allocates nothing for M ≤ 64 (unless
+// a quadrature needs more than 256 subintervals).
 func (t *CAEchoTest) PdTarget(swerling int, target, others []complex128) (float64, error) {
 	n := t.m + 1
 	if len(target) != n {
@@ -506,6 +510,11 @@ func (t *CAEchoTest) PdTarget(swerling int, target, others []complex128) (float6
 	for i, v := range target {
 		if cmplx.IsNaN(v) || cmplx.IsInf(v) {
 			return 0, fmt.Errorf("dsp: target amplitude target[%d] = %v out of range: want finite", i, v)
+		}
+	}
+	for i, v := range others {
+		if cmplx.IsNaN(v) || cmplx.IsInf(v) {
+			return 0, fmt.Errorf("dsp: other echoes' amplitude others[%d] = %v out of range: want finite", i, v)
 		}
 	}
 	var buf [MaxExactCorrelatedCells + 1]complex128

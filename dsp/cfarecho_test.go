@@ -471,3 +471,29 @@ func BenchmarkCAEchoPdTarget(b *testing.B) {
 		})
 	}
 }
+
+// TestCAEchoPdTargetErrors: bad input to PdTarget is an error naming it.
+func TestCAEchoPdTargetErrors(t *testing.T) {
+	tst, err := NewCAEchoTest(3, 2, identityCov)
+	if err != nil {
+		t.Fatal(err)
+	}
+	ok := make([]complex128, 3)
+	for _, tc := range []struct {
+		name          string
+		sw            int
+		target, other []complex128
+		want          string
+	}{
+		{"short target", Swerling1, make([]complex128, 2), nil, "target amplitudes: 2 cells"},
+		{"short others", Swerling1, ok, make([]complex128, 4), "other echoes' amplitudes: 4 cells"},
+		{"NaN target", Swerling3, []complex128{1, complex(0, math.Inf(1)), 0}, nil, "target[1]"},
+		{"NaN others", Swerling1, ok, []complex128{0, 0, complex(math.NaN(), 0)}, "others[2]"},
+		{"Swerling 5", 5, ok, nil, "Swerling 5"},
+	} {
+		_, err := tst.PdTarget(tc.sw, tc.target, tc.other)
+		if err == nil || !strings.Contains(err.Error(), tc.want) {
+			t.Errorf("%s: error %v, want one naming %q", tc.name, err, tc.want)
+		}
+	}
+}
