@@ -306,7 +306,7 @@ func (t *CAEchoTest) Pd(mu []complex128) (float64, error) {
 		return imagPhi(math.Exp(s), d0, t.lam, c2, w)
 	}
 	// Start from 8 panels: the integrand in ln t lives on a few decades.
-	v, err := adaptiveGK(f, math.Log(lo), math.Log(hi), 8, math.Pi*tol/4)
+	v, err := absGK(f, math.Log(lo), math.Log(hi), 8, math.Pi*tol/4)
 	if err != nil {
 		return 0, fmt.Errorf("dsp: echo Pd (β %g, %d cells): %w", t.beta, t.m, err)
 	}
@@ -374,50 +374,13 @@ func imagPhi(t, d0 float64, lam, c2 []float64, w float64) float64 {
 	return math.Exp(re) * math.Sin(im)
 }
 
-// Gauss–Kronrod 7–15 nodes and weights on [−1, 1] (the standard table,
-// e.g. QUADPACK's qk15; Piessens et al., QUADPACK, Springer 1983).
-var (
-	gkX = [8]float64{
-		0.991455371120812639206854697526329, 0.949107912342758524526189684047851,
-		0.864864423359769072789712788640926, 0.741531185599394439863864773280788,
-		0.586087235467691130294144845693013, 0.405845151377397166906606412076961,
-		0.207784955007898467600689403773245, 0,
-	}
-	gkWK = [8]float64{
-		0.022935322010529224963732008058970, 0.063092092629978553290700663189204,
-		0.104790010322250183839876322541518, 0.140653259715525918745189590510238,
-		0.169004726639267902826583426598550, 0.190350578064785409913256402421014,
-		0.204432940075298892414161999234649, 0.209482141084727828012999174891714,
-	}
-	gkWG = [4]float64{ // on the odd-indexed nodes 1, 3, 5 and the centre
-		0.129484966168869693270611432679082, 0.279705391489276667901467771423780,
-		0.381830050505118944950369775488975, 0.417959183673469387755102040816327,
-	}
-)
-
-func gk15(f func(float64) float64, a, b float64) (val, err float64) {
-	c, h := (a+b)/2, (b-a)/2
-	var fv [15]float64
-	fv[7] = f(c)
-	for j := range 7 {
-		fv[j], fv[14-j] = f(c-h*gkX[j]), f(c+h*gkX[j])
-	}
-	k := fv[7] * gkWK[7]
-	g := fv[7] * gkWG[3]
-	for j := range 7 {
-		s := fv[j] + fv[14-j]
-		k += gkWK[j] * s
-		if j%2 == 1 {
-			g += gkWG[j/2] * s
-		}
-	}
-	return k * h, math.Abs((k - g) * h)
-}
-
-// adaptiveGK integrates f over [a, b] to an absolute error estimate tol by
-// bisecting the subinterval of largest error (QUADPACK's qag strategy,
-// without extrapolation), on a fixed-size heap-free list.
-func adaptiveGK(f func(float64) float64, a, b float64, start int, tol float64) (float64, error) {
+// absGK integrates f over [a, b], starting from start equal panels, to an
+// absolute error estimate tol by halving the panel of largest error
+// (QUADPACK's qag strategy, without extrapolation; gk15Panel's 15-point
+// Kronrod rule and its difference from the 7-point Gauss rule), and
+// returns an error when maxEchoIntervals panels do not reach it. The
+// panels live on the stack up to 256.
+func absGK(f func(float64) float64, a, b float64, start int, tol float64) (float64, error) {
 	type piece struct{ a, b, v, e float64 }
 	var buf [256]piece
 	ps := buf[:0]
@@ -428,7 +391,7 @@ func adaptiveGK(f func(float64) float64, a, b float64, start int, tol float64) (
 		if i == start-1 {
 			x1 = b
 		}
-		v, e := gk15(f, x0, x1)
+		v, e := gk15Panel(f, x0, x1)
 		ps = append(ps, piece{x0, x1, v, e})
 		tv += v
 		te += e
@@ -445,8 +408,8 @@ func adaptiveGK(f func(float64) float64, a, b float64, start int, tol float64) (
 		}
 		p := ps[w]
 		m := (p.a + p.b) / 2
-		v1, e1 := gk15(f, p.a, m)
-		v2, e2 := gk15(f, m, p.b)
+		v1, e1 := gk15Panel(f, p.a, m)
+		v2, e2 := gk15Panel(f, m, p.b)
 		ps[w] = piece{p.a, m, v1, e1}
 		ps = append(ps, piece{m, p.b, v2, e2})
 		// Re-sum (not update) so rounding does not accumulate.
@@ -556,7 +519,7 @@ func (t *CAEchoTest) PdTarget(swerling int, target, others []complex128) (float6
 		}
 		return p * density(a)
 	}
-	v, err := adaptiveGK(f, 0, hi, 4, 1e-9)
+	v, err := absGK(f, 0, hi, 4, 1e-9)
 	if perr != nil {
 		return 0, perr
 	}
