@@ -3,7 +3,6 @@ package scenarios
 import (
 	"context"
 	"math"
-	"math/cmplx"
 	"testing"
 
 	"github.com/pulsewright/pulsewright/dsp"
@@ -57,15 +56,7 @@ func exactCellPd(t *testing.T, tr *Trials, j int) float64 {
 	}
 	alpha := w.cf.LevelValid(ones, m.processed, k) // the multiplier on the mean
 	rho := m.noiseCorrelation()
-	lag := func(l int) complex128 {
-		switch {
-		case l >= len(rho) || -l >= len(rho):
-			return 0
-		case l < 0:
-			return cmplx.Conj(rho[-l])
-		}
-		return rho[l]
-	}
+	lag := lagCorrelation(rho)
 	// E[y_a·conj(y_b)] = ρ(o_b − o_a) for y[k] = Σ x[k+i]·conj(h[i]).
 	tst, err := dsp.NewCAEchoTest(alpha, len(offs)-1, func(a, b int) complex128 { return lag(offs[b] - offs[a]) })
 	if err != nil {
