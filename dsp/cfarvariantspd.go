@@ -59,10 +59,6 @@ func censoredRacePd(swerling int, chi, alpha float64, n, c int) float64 {
 	return d.PdCorrelatedCA(chi, alpha, b)
 }
 
-// variantSimpson is the number of Simpson intervals of VariantPd's
-// integrals.
-const variantSimpson = 2000
-
 // VariantPd returns the Pd of a target of SNR chi (linear, at the cell
 // under test, re the noise power) and fluctuation swerling behind a
 // greatest-of or smallest-of CFAR with n1 and n2 training cells and
@@ -121,26 +117,73 @@ func VariantPd(v CFARVariant, swerling int, chi, alpha float64, n1, n2 int) (flo
 		}
 		return 1 - (1-p1)*(1-p2)
 	}
-	var lo, h float64
+	// The reference's distribution function steps up where the cell under
+	// test crosses α times the half-means' typical values, 1 ± a few
+	// 1/√n: a step about α/√n wide, narrow for long halves, so the
+	// quadrature starts with edges there (and at the target's scale) and
+	// refines adaptively.
+	nMin := n1
+	if n2 > 0 && (n1 == 0 || n2 < n1) {
+		nMin = n2
+	}
+	var zs [9]float64
+	for i, k := range [...]float64{-8, -4, -2, -1, 0, 1, 2, 4, 8} {
+		zs[i] = 1 + k/math.Sqrt(float64(nMin))
+	}
+	var buf [20]float64
+	edges := buf[:0]
 	var density func(x float64) float64
 	if swerling == SwerlingNone {
 		sc := math.Sqrt(chi)
-		lo = math.Max(0, sc-10)
-		h = (sc + 10 - lo) / variantSimpson
+		lo, hi := math.Max(0, sc-10), sc+10
 		// in u = √x: 2u·e^−(u−√χ)²·i0e(2u√χ)
 		density = func(u float64) float64 {
 			d := u - sc
 			return 2 * u * math.Exp(-d*d) * besselI0e(2*u*sc) * cdf(u*u)
 		}
+		edges = append(edges, lo, hi, sc)
+		for _, z := range zs {
+			if z > 0 {
+				edges = append(edges, math.Sqrt(alpha*z))
+			}
+		}
+		edges = sortedWithin(edges, lo, hi)
 	} else {
 		a := chi / 2
 		b := 1 + a
-		h = 60 * b / variantSimpson
 		density = func(x float64) float64 {
 			return math.Exp(-x/b) / b * (1 + a*x/(b*b) - a/b) * cdf(x)
 		}
+		hi := 60 * b
+		edges = append(edges, 0, hi, b, 5*b, 20*b)
+		for _, z := range zs {
+			if z > 0 {
+				edges = append(edges, alpha*z)
+			}
+		}
+		edges = sortedWithin(edges, 0, hi)
 	}
-	return math.Min(math.Max(Simpson(density, lo, h, variantSimpson), 0), 1), nil
+	return math.Min(math.Max(adaptiveGK(density, edges, variantTol), 0), 1), nil
+}
+
+// variantTol is the relative accuracy VariantPd asks of its quadrature.
+const variantTol = 1e-12
+
+// sortedWithin sorts e in place (insertion sort: a few dozen values) and
+// returns the values in [lo, hi] without repeats; lo and hi must be in e.
+func sortedWithin(e []float64, lo, hi float64) []float64 {
+	for i := 1; i < len(e); i++ {
+		for j := i; j > 0 && e[j] < e[j-1]; j-- {
+			e[j], e[j-1] = e[j-1], e[j]
+		}
+	}
+	out := e[:0]
+	for _, v := range e {
+		if v >= lo && v <= hi && (len(out) == 0 || v > out[len(out)-1]) {
+			out = append(out, v)
+		}
+	}
+	return out
 }
 
 // besselI0e returns e^−x·I0(x) for x ≥ 0 (I0 the modified Bessel function

@@ -590,9 +590,13 @@ type tail struct {
 	a          float64 // beta: M·n, the shape of the reference sum
 	logy, logv float64 // beta: log y and log(1−y), y = 1/(1+c)
 
+	v float64 // beta: 1−y
+
 	b    float64 // current shape n + k
 	g    float64 // G_k
 	logd float64 // log(G_{k+1} − G_k)
+	d    float64 // G_{k+1} − G_k, while lin
+	lin  bool    // d holds the increment (it is at least minLinear)
 }
 
 // gammaTail is G_k = Q(n+k, t): Q(b+1, t) = Q(b, t) + e^(−t)·t^b/Γ(b+1).
@@ -603,7 +607,7 @@ func gammaTail(n, t float64) tail { return tail{gamma: true, n: n, t: t} }
 // I_y(a, b+1) = I_y(a, b) + y^a·(1−y)^b·Γ(a+b)/(Γ(a)·Γ(b+1)).
 func betaTail(n, m, c float64) tail {
 	logy := -math.Log1p(c)
-	return tail{n: n, a: m * n, logy: logy, logv: math.Log(c) + logy}
+	return tail{n: n, a: m * n, logy: logy, logv: math.Log(c) + logy, v: c / (1 + c)}
 }
 
 // start sets the sequence at k = k0 directly.
@@ -614,6 +618,7 @@ func (s *tail) start(k0 float64) {
 	if s.gamma {
 		s.g = mathext.GammaIncRegComp(b, s.t)
 		s.logd = -s.t + b*math.Log(s.t) - lb1
+		s.setLinear()
 		return
 	}
 	if b == 1 {
@@ -624,21 +629,39 @@ func (s *tail) start(k0 float64) {
 	lab, _ := math.Lgamma(s.a + b)
 	la, _ := math.Lgamma(s.a)
 	s.logd = s.a*s.logy + b*s.logv + lab - la - lb1
+	s.setLinear()
+}
+
+// setLinear keeps the increment as a number from here on if it is one.
+func (s *tail) setLinear() {
+	if s.lin = s.logd > logMinLinear; s.lin {
+		s.d = math.Exp(s.logd)
+	}
 }
 
 // next advances from G_k to G_{k+1}. It reports whether G has converged:
 // the increments fall and all the remaining ones add up to less than
 // 1e-17, so every later G_k equals the current one to rounding.
+// The increment is kept as a number while it is at least minLinear (one
+// multiplication a term) and as its logarithm below.
 func (s *tail) next() (converged bool) {
-	s.g = min(s.g+math.Exp(s.logd), 1)
 	var r float64 // d_{k+1}/d_k
 	if s.gamma {
 		r = s.t / (s.b + 1)
 	} else {
-		r = math.Exp(s.logv) * (s.a + s.b) / (s.b + 1)
+		r = s.v * (s.a + s.b) / (s.b + 1)
 	}
 	s.b++
+	if s.lin {
+		s.g = min(s.g+s.d, 1)
+		if s.d *= r; s.d < minLinear {
+			s.lin, s.logd = false, math.Log(s.d)
+		}
+		return r < 1 && s.d/(1-r) < 1e-17
+	}
+	s.g = min(s.g+math.Exp(s.logd), 1)
 	s.logd += math.Log(r)
+	s.setLinear()
 	return r < 1 && math.Exp(s.logd)/(1-r) < 1e-17
 }
 
@@ -689,14 +712,29 @@ func mixture(lambda, shape float64, s tail) float64 {
 	s.start(k0)
 	const tol = 1e-16
 	sum, wsum := 0.0, 0.0
+	// The weight is kept as a number while it is at least minLinear (one
+	// multiplication a term) and as its logarithm below.
+	lin := logw > logMinLinear
+	var w float64
+	if lin {
+		w = math.Exp(logw)
+	}
 	for j := 0; j < maxTerms; j++ {
 		k := k0 + float64(j)
-		w := math.Exp(logw)
+		if !lin {
+			w = math.Exp(logw)
+		}
 		sum += w * s.g
 		wsum += w
 		converged := s.next()
 		r := ratio(k)
-		logw += math.Log(r)
+		if lin {
+			if w *= r; w < minLinear {
+				lin, logw = false, math.Log(w)
+			}
+		} else if logw += math.Log(r); logw > logMinLinear {
+			lin, w = true, math.Exp(logw)
+		}
 		if converged {
 			// Every later G equals s.g to rounding: add the remaining
 			// weight at once.
@@ -705,7 +743,11 @@ func mixture(lambda, shape float64, s tail) float64 {
 		if rn := ratio(k + 1); rn < 1 && r < 1 {
 			// Past the mode the ratios fall, so the remaining weight is
 			// below w_{k+1}/(1 − r_{k+1}); each G is at most 1.
-			if math.Exp(logw)/(1-rn) <= tol*sum {
+			wn := w
+			if !lin {
+				wn = math.Exp(logw)
+			}
+			if wn/(1-rn) <= tol*sum {
 				break
 			}
 		}

@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"math"
+	"slices"
 	"strings"
 	"testing"
 
@@ -321,6 +322,36 @@ func BenchmarkEvaluateDemo(b *testing.B) {
 			b.ReportAllocs()
 			for b.Loop() {
 				if _, err := Evaluate(context.Background(), d.Scenario); err != nil {
+					b.Fatal(err)
+				}
+			}
+		})
+	}
+}
+
+// BenchmarkDragPath evaluates each demo with one Engine as a drag does:
+// its first point target at 200 positions spread over ±2 km (20 m apart)
+// around where the demo places it, one op per position. New Pd tests at
+// every step, so it measures the detection-probability numerics as the
+// page's drags pay for them (rocky-coast's patrol boat crosses the
+// shoreline's edge; harbour-skiff's tanker sweeps past its neighbours).
+// Profile with -cpuprofile to see where a drag's time goes.
+func BenchmarkDragPath(b *testing.B) {
+	for _, name := range demoNames() {
+		d, _ := LoadDemo(name)
+		j := slices.IndexFunc(d.Scenario.Targets, func(t Target) bool { return t.Kind == TargetPoint })
+		if j < 0 {
+			continue
+		}
+		b.Run(name, func(b *testing.B) {
+			s := d.Scenario.clone()
+			r0 := s.Targets[j].RangeM
+			var e Engine
+			i := 0
+			for b.Loop() {
+				s.Targets[j].RangeM = max(r0-2000+20*float64(i%200), 1)
+				i++
+				if _, err := e.Evaluate(context.Background(), s); err != nil {
 					b.Fatal(err)
 				}
 			}

@@ -291,15 +291,7 @@ func (m *model) correlatedCells(k int) ([]float64, float64) {
 	if !corr {
 		return nil, 0
 	}
-	lag := func(l int) complex128 {
-		switch {
-		case l >= len(rho) || -l >= len(rho):
-			return 0
-		case l < 0:
-			return cmplx.Conj(rho[-l])
-		}
-		return rho[l]
-	}
+	lag := lagCorrelation(rho)
 	ev := dsp.HermitianEigenvalues(len(offs), func(i, j int) complex128 { return lag(offs[j] - offs[i]) })
 	if ev == nil {
 		return nil, 0
@@ -637,4 +629,19 @@ func pdStrongFluct(d dsp.Detector, chi, T float64) float64 {
 	}, 0, h, panels)
 	// Beyond U every draw is detected: what lies below U and is missed.
 	return min(max(1-missed, 0), 1)
+}
+
+// lagCorrelation returns the noise correlation at lag l (in samples, either
+// sign) from rho, its values at lags 0, 1, … (dsp.NoiseCorrelation):
+// conj(rho[−l]) below zero, 0 beyond the filter's length.
+func lagCorrelation(rho []complex128) func(l int) complex128 {
+	return func(l int) complex128 {
+		switch {
+		case l >= len(rho) || -l >= len(rho):
+			return 0
+		case l < 0:
+			return cmplx.Conj(rho[-l])
+		}
+		return rho[l]
+	}
 }
