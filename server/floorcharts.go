@@ -295,15 +295,31 @@ func floorsWhole(f *scenarios.Floors, vw view) chartOut {
 		b.extra[sid] = seriesExtra{LabelLayout: map[string]any{"hideOverlap": true}, Z: 5}
 	}
 	// The level curves named at their right ends, inside the plot.
-	for id, words := range map[string]string{scenarios.FloorThreshold: "threshold", scenarios.FloorThermal: "thermal noise",
-		scenarios.FloorQuantise: "quantisation", scenarios.FloorDC: "DC offset"} {
+	ends := map[string]string{scenarios.FloorThreshold: "threshold", scenarios.FloorThermal: "thermal noise",
+		scenarios.FloorQuantise: "quantisation", scenarios.FloorDC: "DC offset"}
+	for id, words := range ends {
 		b.extra["floor-"+id] = seriesExtra{EndLabel: map[string]any{
 			"show": true, "formatter": words, "color": floorStyle[id].colour, "fontSize": 11, "offset": []int{-8 - 6*len(words), -9}}}
 	}
+	// The legend names the curves that carry no name of their own: not
+	// the level curves (named at their ends) nor the other targets'
+	// marks (each named by its target, coloured as its floor, explained
+	// by its tooltip). With them the legend went behind a pager of six
+	// pages in the 1280 px window's narrow pane.
+	var entries []string
+	for _, c := range f.Curves {
+		if _, named := ends[c.ID]; !named {
+			entries = append(entries, c.Name)
+		}
+	}
+	// Its own grid, lower than newBuilder's for the title and the legend
+	// (WithGridOpts appends: the curves sat on newBuilder's, under the
+	// legend, and this one was empty).
+	b.line.GridList = nil
 	b.line.SetGlobalOptions(charts.WithTitleOpts(opts.Title{Title: floorsTitle(f), Left: "64", Top: "0",
 		TitleStyle: &opts.TextStyle{FontSize: 11, Color: "#25292e"}}),
-		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Type: "scroll", Top: "20", Left: "64", Right: "8", ItemWidth: 18, ItemHeight: 10,
-			TextStyle: &opts.TextStyle{FontSize: 11}}),
+		charts.WithLegendOpts(opts.Legend{Show: opts.Bool(true), Type: "scroll", Top: "20", Left: "40", Right: "8", ItemWidth: 18, ItemHeight: 10,
+			Data: entries, TextStyle: &opts.TextStyle{FontSize: 11}}),
 		charts.WithGridOpts(opts.Grid{Left: fmt.Sprint(gridLeft), Right: "18", Top: "50", Bottom: "62"}))
 	return b.buildZoomed(ChartFloors, key, near)
 }

@@ -113,4 +113,15 @@ func TestFloorsNoteWhole(t *testing.T) {
 		t.Errorf("the Floors note is cut: %q", eval[string](t, ctx, `document.querySelector('#floors-note').textContent`))
 	}
 	shot(t, ctx, "pilot-boat")
+	// On a pulse train the map-row picker shares the line: the note stays
+	// whole and the plot keeps its room.
+	loadDemo(t, ctx, "hill-clutter-doppler")
+	waitFor(t, ctx, "the train's floors", fresh+` && !document.querySelector('.floors-row').hidden && window.__pw.plots.charts.floors.getOption().series.length > 0`)
+	if eval[bool](t, ctx, jsCut) {
+		t.Errorf("the Floors note is cut on a pulse train: %q", eval[string](t, ctx, `document.querySelector('#floors-note').textContent`))
+	}
+	if h := eval[float64](t, ctx, `document.querySelector('#chart-floors').getBoundingClientRect().height`); h < 170 {
+		t.Errorf("the Floors plot is %.0f px high under its note and map-row picker, want at least 170", h)
+	}
+	shot(t, ctx, "train")
 }

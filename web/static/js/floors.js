@@ -29,7 +29,8 @@ function ask() {
   session.sendFloors(shown() ? { target: chosen, row: rowPick.value } : null);
   note.textContent = chosen
     ? `Floors of ${chosen}, the selected target`
-    : 'Floors of the strongest target · a row of the target table, a target’s card or its marker picks another';
+    : 'Floors of the strongest target · pick another in the target table, on its card or its marker';
+  note.title = note.textContent;
 }
 
 // Tabs of the lower right plot: ask while this one shows, stop otherwise.
