@@ -40,6 +40,11 @@ const waveformRows = [
   ['Velocity resolution', (w) => w.velocity_resolution_mps, (v) => format('speed', v, 2)],
 ];
 
+// keepUnits joins each number to the unit after it with a no-break space,
+// so that a card's line never ends between them ("peak shift -35.66" with
+// "m" alone on the next line).
+const keepUnits = (text) => text.replace(/(\d) (?=[^\s\d·])/g, '$1\u00a0');
+
 // What the two SNR-like numbers on a card mean.
 const SNRHelp = 'SNR: the target’s expected peak after pulse compression, in dB above the noise.';
 const MarginHelp = 'Margin: how far its SNR at the cell is above what the required Pd needs against noise alone, in dB; negative means it is too weak even alone.';
@@ -93,7 +98,7 @@ export function renderFigures(root, report, reference, computeMs, selected) {
         t.masked_by ? h('span', {}, t.masked_by === t.id ? 'masked by its own sidelobes' : `masked by ${t.masked_by}`) : null,
         t.doppler_loss_db > 0.05 ? h('span', {}, `Doppler loss ${fmt(t.doppler_loss_db)} dB`) : null,
         t.doppler_hz ? h('span', { class: 'dop', title: 'Doppler shift of the echo, and the shift of its compressed peak in range (range–Doppler coupling)' },
-          `Doppler ${t.doppler_hz > 0 ? '+' : ''}${eng(t.doppler_hz, 'Hz')} · peak shift ${t.range_shift_m > 0 ? '+' : ''}${format('range', t.range_shift_m, 2)}`) : null,
+          keepUnits(`Doppler ${t.doppler_hz > 0 ? '+' : ''}${eng(t.doppler_hz, 'Hz')} · peak shift ${t.range_shift_m > 0 ? '+' : ''}${format('range', t.range_shift_m, 2)}`)) : null,
         ...clutterNums(t)),
       h('div', { class: 'reason' }, restate(t.reason || '')));
   });
