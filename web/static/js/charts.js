@@ -217,6 +217,9 @@ export class Plots {
     this.lastView = null;
     this.pending = {}; // chart name → options held back (its pane is hidden, or it was drawn just now)
     this.drawnAt = {}; // chart name → when it was last drawn (performance.now)
+    this.layouts = {}; // chart name → layoutKey of its last full option
+    this.fullDraws = {}; // chart name → full options the chart has drawn (for the tests)
+    this.fullsCome = {}; // chart name → full options that have come (for the tests)
     this.timers = {}; // chart name → timer that draws what it holds back
     this.deferred = new Set(); // chart names to draw once the profile's new pixels are out
     this.cats = {}; // heat map name → {x, y}: the cell centres of its category axes
@@ -272,9 +275,24 @@ export class Plots {
       this.hold(name, entry);
       return;
     }
+    if (entry.replace) this.fullsCome[name] = (this.fullsCome[name] || 0) + 1;
     // The profile's and the echo's data merges are drawn by their fast
     // layers at once; the charts take them when the frames rest (settle).
     const fast = this.fasts[name];
+    // While a marker is dragged, a full option of the range–Doppler map
+    // that keeps its layout (its colour scale stepped by 10 dB, its
+    // markers) is drawn by the map's fast layer too, on the colour scale
+    // the chart's colour bar shows (a cell above its top takes the top
+    // colour), and the chart takes it when the drag ends: ECharts re-lays
+    // out the map's 16 000 cells for it, 50–120 ms, a long task mid-drag.
+    if (name === 'rdmap' && entry.replace && this.drag && fast && fast.ready() && this.layouts[name] === layoutKey(entry.option)) {
+      this.behind.delete(name);
+      this.hold(name, entry);
+      if (fast.draw(entry.option)) {
+        this.settleSoon();
+        return;
+      }
+    }
     if (fast && !entry.replace && fast.ready()) {
       const t0 = performance.now();
       this.behind.delete(name);
@@ -425,6 +443,8 @@ export class Plots {
     const t0 = performance.now();
     this.drawnAt[name] = t0;
     if (entry.replace) {
+      this.layouts[name] = layoutKey(entry.option);
+      this.fullDraws[name] = (this.fullDraws[name] || 0) + 1;
       spaceAxisLabels(entry.option, chart.getWidth());
       axisUnits(entry.option);
     }
@@ -757,4 +777,12 @@ export class Plots {
     const body = [...rows.entries()].sort((a, b) => a[0] - b[0]).map(([x, vs]) => [x, ...vs].join(','));
     return [head, ...body].join('\n') + '\n';
   }
+}
+
+// layoutKey names what places a chart's data on its grid: the type,
+// extent and categories of its axes, as the server sent them (before the
+// page formats their labels).
+function layoutKey(option) {
+  const axes = (a) => [a || []].flat().map((x) => x && [x.type, x.min, x.max, x.data]);
+  return JSON.stringify([axes(option.xAxis), axes(option.yAxis), option.grid]);
 }
